@@ -1,0 +1,66 @@
+/**
+ * Regular 1-D and 2-D grids. Cell (ix, iy) sits at (x0 + dx·ix, y0 + dy·iy) and has the flat
+ * index i = ix + nx·iy (x fastest).
+ */
+import { InputError } from '../errors.ts';
+
+export interface Grid {
+  /** [nx] or [nx, ny], positive integers. */
+  readonly shape: readonly number[];
+  /** [dx] or [dx, dy], > 0. */
+  readonly spacing: readonly number[];
+  /** Coordinates of cell 0; zeros when omitted. */
+  readonly origin?: readonly number[];
+  /** Unit of length, e.g. "m". */
+  readonly unit?: string;
+}
+
+export function gridDimension(g: Grid): 1 | 2 {
+  return g.shape.length === 2 ? 2 : 1;
+}
+
+export function cellCount(g: Grid): number {
+  return g.shape.reduce((a, b) => a * b, 1);
+}
+
+/** Coordinates of every cell (y is all zeros in 1-D). */
+export function cellCoordinates(g: Grid): { x: Float64Array; y: Float64Array } {
+  const n = cellCount(g);
+  const x = new Float64Array(n);
+  const y = new Float64Array(n);
+  const nx = g.shape[0]!;
+  const [x0 = 0, y0 = 0] = g.origin ?? [];
+  const dx = g.spacing[0]!;
+  const dy = g.spacing[1] ?? 0;
+  for (let i = 0; i < n; i++) {
+    x[i] = x0 + dx * (i % nx);
+    y[i] = y0 + dy * Math.floor(i / nx);
+  }
+  return { x, y };
+}
+
+/** Throws InputError unless the grid is a valid 1-D or 2-D regular grid. */
+export function validateGrid(g: Grid, field = 'grid'): void {
+  if (!Array.isArray(g.shape) || (g.shape.length !== 1 && g.shape.length !== 2)) {
+    throw new InputError(`${field}.shape`, '[nx] or [nx, ny]', g.shape);
+  }
+  g.shape.forEach((s, k) => {
+    if (!Number.isInteger(s) || s < 1) throw new InputError(`${field}.shape[${k}]`, 'a positive integer', s);
+  });
+  if (!Array.isArray(g.spacing) || g.spacing.length !== g.shape.length) {
+    throw new InputError(`${field}.spacing`, `an array of ${g.shape.length} numbers`, g.spacing);
+  }
+  g.spacing.forEach((s, k) => {
+    if (typeof s !== 'number' || !Number.isFinite(s) || s <= 0) {
+      throw new InputError(`${field}.spacing[${k}]`, 'a finite number > 0', s);
+    }
+  });
+  if (g.origin !== undefined) {
+    if (!Array.isArray(g.origin) || g.origin.length !== g.shape.length) {
+      throw new InputError(`${field}.origin`, `an array of ${g.shape.length} numbers`, g.origin);
+    }
+    g.origin.forEach((s, k) => {
+      if (typeof s !== 'number' || !Number.isFinite(s)) throw new InputError(`${field}.origin[${k}]`, 'a finite number', s);
+    });
+  }
+}

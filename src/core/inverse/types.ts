@@ -1,0 +1,31 @@
+/**
+ * Result types of the linear-Gaussian posterior (data-space form; see ./posterior.ts).
+ * PUBLIC API used by the worker, the CLI and the UI.
+ */
+import type { Matrix } from '../linalg/matrix.ts';
+
+export interface PosteriorSummary {
+  /** Posterior mean m̃ = m0 + Cm Gᵀ K⁻¹ (d − G m0), K = G Cm Gᵀ + Cd. */
+  readonly mean: Float64Array;
+  /** Pointwise posterior standard deviation √diag(Cm − Cm Gᵀ K⁻¹ G Cm). */
+  readonly std: Float64Array;
+  /** Pointwise prior standard deviation √diag(Cm). */
+  readonly priorStd: Float64Array;
+  /** 1 − σ_post² / σ_prior² per cell. */
+  readonly varianceReduction: Float64Array;
+  /** G m̃. */
+  readonly predicted: Float64Array;
+  /** Normalised residuals: (d − G m̃)/σ for diagonal Cd, Ld⁻¹ (d − G m̃) for a full Cd = Ld Ldᵀ. */
+  readonly residuals: Float64Array;
+  /** Σ residuals². */
+  readonly chi2: number;
+  /** log N(d; G m0, K), natural log, including −(M/2) log 2π. */
+  readonly logEvidence: number;
+  /** tr R, R = Cm Gᵀ K⁻¹ G (effective number of parameters resolved). */
+  readonly resolutionTrace: number;
+  readonly dataCount: number;
+  readonly parameterCount: number;
+  readonly path: 'dense' | 'fft';
+  /** Full posterior covariance, only when requested (small N). */
+  readonly covariance?: Matrix;
+}
