@@ -1,0 +1,244 @@
+/**
+ * Eigenvalues (and, for small N, eigenvectors) of dense symmetric matrices, and Lanczos estimates of
+ * the extreme eigenvalues of a symmetric operator given only as a product.
+ *
+ * Dense path: Householder reduction to tridiagonal form T = Qᵀ A Q, then the implicit symmetric
+ * QL iteration with Wilkinson-type shifts on T (Golub & Van Loan, Matrix Computations, 4th ed.,
+ * §8.3.1 Householder tridiagonalisation and §8.3.3–8.3.5 implicit symmetric QR step (memory); the QL
+ * variant is the same step run from the bottom of the matrix upwards).
+ *
+ * CONTRACT: like `cholesky`, the dense routines read only the lower triangle of `a` (the upper one
+ * is assumed to mirror it) and never modify `a`.
+ */
+import { matrix, type Matrix } from './matrix.ts';
+
+const EPS = 2 ** -52;
+
+/** Tridiagonal form of a symmetric matrix: diagonal `d` (n) and sub-diagonal `e` (n, e[n-1] = 0). */
+export interface Tridiagonal {
+  readonly d: Float64Array;
+  readonly e: Float64Array;
+}
+
+function checkSquare(a: Matrix, who: string): number {
+  if (a.rows !== a.cols) throw new RangeError(`${who}: matrix is ${a.rows}×${a.cols}, expected square`);
+  return a.rows;
+}
+
+/**
+ * Householder tridiagonalisation of the symmetric matrix held in the lower triangle of `w` (n × n,
+ * row-major, overwritten). Step k reflects column k below the diagonal onto e₁:
+ * H_k = I − β v vᵀ, then the trailing block A₂₂ ← H A₂₂ H is done as a rank-2 update
+ * A₂₂ −= v wᵀ + w vᵀ with p = β A₂₂ v, w = p − (β/2)(pᵀv) v (Golub & Van Loan §8.3.1, memory).
+ * Only the lower triangle of A₂₂ is touched. Each v is kept in row k, columns k+1…n−1 (the unused
+ * upper triangle), and its β in `betas[k]`, so the caller can rebuild Q when it needs vectors.
+ */
+function tridiagonaliseInPlace(w: Float64Array, n: number, betas: Float64Array): Tridiagonal {
+  const d = new Float64Array(n);
+  const e = new Float64Array(n);
+  const p = new Float64Array(n);
+  for (let k = 0; k < n - 2; k++) {
+    d[k] = w[k * n + k]!;
+    // x = A[k+1:n, k] (column k under the diagonal, lower triangle); v goes to row k, cols k+1..n-1.
+    const vo = k * n;
+    let sigma2 = 0;
+    for (let i = k + 1; i < n; i++) {
+      const xi = w[i * n + k]!;
+      w[vo + i] = xi;
+      sigma2 += xi * xi;
+    }
+    const x0 = w[vo + k + 1]!;
+    const tail2 = sigma2 - x0 * x0;
+    if (tail2 === 0) {
+      // Already reduced in this column: no reflection needed.
+      e[k] = x0;
+      betas[k] = 0;
+      continue;
+    }
+    const sigma = Math.sqrt(sigma2);
+    const alpha = x0 >= 0 ? -sigma : sigma;
+    w[vo + k + 1] = x0 - alpha;
+    // vᵀv = 2σ(σ + |x0|), so β = 2 / vᵀv.
+    const beta = 1 / (sigma * (sigma + Math.abs(x0)));
+    betas[k] = beta;
+    e[k] = alpha;
+    // p = β A₂₂ v using only the lower triangle of A₂₂ (rows/cols k+1..n-1).
+    const s0 = k + 1;
+    for (let i = s0; i < n; i++) p[i] = 0;
+    for (let i = s0; i < n; i++) {
+      const oi = i * n;
+      const vi = w[vo + i]!;
+      let s = 0;
+      for (let j = s0; j < i; j++) {
+        const aij = w[oi + j]!;
+        s += aij * w[vo + j]!;
+        p[j] += aij * vi;
+      }
+      p[i] += s + w[oi + i]! * vi;
+    }
+    let pv = 0;
+    for (let i = s0; i < n; i++) {
+      p[i] *= beta;
+      pv += p[i]! * w[vo + i]!;
+    }
+    const half = 0.5 * beta * pv;
+    for (let i = s0; i < n; i++) p[i] -= half * w[vo + i]!; // p is now w of the formula
+    for (let i = s0; i < n; i++) {
+      const oi = i * n;
+      const vi = w[vo + i]!;
+      const wi = p[i]!;
+      for (let j = s0; j <= i; j++) w[oi + j] -= vi * p[j]! + wi * w[vo + j]!;
+    }
+  }
+  if (n >= 2) {
+    d[n - 2] = w[(n - 2) * n + n - 2]!;
+    e[n - 2] = w[(n - 1) * n + n - 2]!;
+  }
+  if (n >= 1) d[n - 1] = w[(n - 1) * n + n - 1]!;
+  return { d, e };
+}
+
+/**
+ * Implicit QL iteration on a symmetric tridiagonal matrix (d diagonal, e[i] couples i and i+1),
+ * overwriting d with the eigenvalues (unsorted). With `z` (n × n row-major, starting as Q), the
+ * Givens rotations are applied to its columns so that on return column j of z is the eigenvector
+ * of d[j]. Shift: eigenvalue of the leading 2×2 of the active block nearest d[l] (Wilkinson-type;
+ * Golub & Van Loan §8.3.4, memory). Deflation when |e[m]| ≤ ε (|d[m]| + |d[m+1]|).
+ */
+function tridiagonalQL(d: Float64Array, e: Float64Array, z: Float64Array | null): void {
+  const n = d.length;
+  for (let l = 0; l < n; l++) {
+    let iter = 0;
+    for (;;) {
+      let m = l;
+      for (; m < n - 1; m++) {
+        const dd = Math.abs(d[m]!) + Math.abs(d[m + 1]!);
+        if (Math.abs(e[m]!) <= EPS * dd) break;
+      }
+      if (m === l) break;
+      if (++iter > 60) {
+        throw new Error(`symmetric eigenvalues: QL iteration did not converge at index ${l} after 60 sweeps`);
+      }
+      // Shift from the 2×2 block at l.
+      let g = (d[l + 1]! - d[l]!) / (2 * e[l]!);
+      let r = Math.hypot(g, 1);
+      g = d[m]! - d[l]! + e[l]! / (g + (g >= 0 ? r : -r));
+      let s = 1;
+      let c = 1;
+      let p = 0;
+      let i = m - 1;
+      let underflow = false;
+      for (; i >= l; i--) {
+        const f = s * e[i]!;
+        const b = c * e[i]!;
+        r = Math.hypot(f, g);
+        e[i + 1] = r;
+        if (r === 0) {
+          // Rotation became trivial: the block splits; undo the partial shift and restart.
+          d[i + 1] -= p;
+          e[m] = 0;
+          underflow = true;
+          break;
+        }
+        s = f / r;
+        c = g / r;
+        g = d[i + 1]! - p;
+        r = (d[i]! - g) * s + 2 * c * b;
+        p = s * r;
+        d[i + 1] = g + p;
+        g = c * r - b;
+        if (z) {
+          for (let k = 0; k < n; k++) {
+            const ok = k * n;
+            const zf = z[ok + i + 1]!;
+            const zi = z[ok + i]!;
+            z[ok + i + 1] = s * zi + c * zf;
+            z[ok + i] = c * zi - s * zf;
+          }
+        }
+      }
+      if (underflow) continue;
+      d[l] -= p;
+      e[l] = g;
+      e[m] = 0;
+    }
+  }
+}
+
+/** Tridiagonal form T = Qᵀ A Q of the symmetric matrix in the lower triangle of `a` (a is not changed). */
+export function tridiagonalise(a: Matrix): Tridiagonal {
+  const n = checkSquare(a, 'tridiagonalise');
+  return tridiagonaliseInPlace(a.data.slice(), n, new Float64Array(Math.max(n, 1)));
+}
+
+/** All eigenvalues of a symmetric tridiagonal matrix (diagonal d, sub-diagonal e of length ≥ n−1), ascending. */
+export function tridiagonalEigenvalues(d: ArrayLike<number>, e: ArrayLike<number>): Float64Array {
+  const n = d.length;
+  const dd = Float64Array.from(d);
+  const ee = new Float64Array(n);
+  for (let i = 0; i < n - 1; i++) ee[i] = e[i]!;
+  tridiagonalQL(dd, ee, null);
+  return dd.sort();
+}
+
+/**
+ * All eigenvalues of the symmetric matrix whose lower triangle is `a`, ascending. O(4/3 N³) for the
+ * reduction plus O(N²) for the QL iteration; exact up to round-off (backward stable, error of order
+ * ε‖A‖₂ per eigenvalue; Golub & Van Loan §8.3, memory).
+ */
+export function symmetricEigenvalues(a: Matrix): Float64Array {
+  const n = checkSquare(a, 'symmetricEigenvalues');
+  if (n === 0) return new Float64Array(0);
+  const { d, e } = tridiagonaliseInPlace(a.data.slice(), n, new Float64Array(n));
+  tridiagonalQL(d, e, null);
+  return d.sort();
+}
+
+/** Eigen-decomposition A = V diag(values) Vᵀ: values ascending, column j of `vectors` belongs to values[j]. */
+export interface SymmetricEigen {
+  readonly values: Float64Array;
+  readonly vectors: Matrix;
+}
+
+/**
+ * Eigenvalues and orthonormal eigenvectors of the symmetric matrix whose lower triangle is `a`.
+ * Meant for small N (the rotations cost O(N³) on top of the reduction, with strided access).
+ */
+export function symmetricEigen(a: Matrix): SymmetricEigen {
+  const n = checkSquare(a, 'symmetricEigen');
+  const w = a.data.slice();
+  const betas = new Float64Array(Math.max(n, 1));
+  const { d, e } = tridiagonaliseInPlace(w, n, betas);
+  // Q = H₀ H₁ … H_{n−3}, built from the right: Q ← H_k Q on rows/cols k+1..n−1.
+  const q = new Float64Array(n * n);
+  for (let i = 0; i < n; i++) q[i * n + i] = 1;
+  const t = new Float64Array(n);
+  for (let k = n - 3; k >= 0; k--) {
+    const beta = betas[k]!;
+    if (beta === 0) continue;
+    const vo = k * n;
+    const s0 = k + 1;
+    // t = vᵀ Q (row vector over columns s0..n-1), then Q -= β v t.
+    for (let j = s0; j < n; j++) t[j] = 0;
+    for (let i = s0; i < n; i++) {
+      const vi = w[vo + i]!;
+      const oi = i * n;
+      for (let j = s0; j < n; j++) t[j] += vi * q[oi + j]!;
+    }
+    for (let i = s0; i < n; i++) {
+      const bvi = beta * w[vo + i]!;
+      const oi = i * n;
+      for (let j = s0; j < n; j++) q[oi + j] -= bvi * t[j]!;
+    }
+  }
+  tridiagonalQL(d, e, q);
+  const order = Array.from({ length: n }, (_, i) => i).sort((x, y) => d[x]! - d[y]!);
+  const values = new Float64Array(n);
+  const vectors = matrix(n, n);
+  for (let j = 0; j < n; j++) {
+    const src = order[j]!;
+    values[j] = d[src]!;
+    for (let i = 0; i < n; i++) vectors.data[i * n + j] = q[i * n + src]!;
+  }
+  return { values, vectors };
+}

@@ -1,0 +1,62 @@
+"""Outside reference for src/core/linalg: Debian's numpy / scipy.
+
+Reads JSON {"cases": [{"op": ..., ...}]} on stdin and prints {"results": [...]} in the same order.
+Matrices travel as {"rows": r, "cols": c, "data": [row-major values]}.
+
+ops:
+  cholesky          {"a"}            -> numpy.linalg.cholesky(a) (lower), or {"failed": true} on LinAlgError
+  solve_lower       {"l", "b"}       -> scipy.linalg.solve_triangular(l, b, lower=True)
+  solve_lower_t     {"l", "b"}       -> scipy.linalg.solve_triangular(l, b, lower=True, trans='T')
+  eigvalsh          {"a"}            -> numpy.linalg.eigvalsh(a) (ascending; reads the lower triangle)
+  eigh              {"a"}            -> numpy.linalg.eigh(a): values and vectors (columns)
+  leading_minor_det {"a", "k"}       -> numpy.linalg.det(a[:k, :k]) for k = 1..k (sign pattern of minors)
+  matmul            {"a", "b"}       -> a @ b
+"""
+import json
+import sys
+
+import numpy as np
+import scipy.linalg
+
+
+def to_np(m):
+    return np.array(m["data"], dtype=np.float64).reshape(m["rows"], m["cols"])
+
+
+def from_np(a):
+    a = np.atleast_2d(a)
+    return {"rows": int(a.shape[0]), "cols": int(a.shape[1]), "data": a.ravel().tolist()}
+
+
+def run(case):
+    op = case["op"]
+    if op == "cholesky":
+        a = to_np(case["a"])
+        try:
+            return {"failed": False, "factor": from_np(np.linalg.cholesky(a))}
+        except np.linalg.LinAlgError:
+            return {"failed": True}
+    if op == "solve_lower":
+        return from_np(scipy.linalg.solve_triangular(to_np(case["l"]), to_np(case["b"]), lower=True))
+    if op == "solve_lower_t":
+        return from_np(scipy.linalg.solve_triangular(to_np(case["l"]), to_np(case["b"]), lower=True, trans="T"))
+    if op == "eigvalsh":
+        return np.linalg.eigvalsh(to_np(case["a"]), UPLO="L").tolist()
+    if op == "eigh":
+        w, v = np.linalg.eigh(to_np(case["a"]), UPLO="L")
+        return {"values": w.tolist(), "vectors": from_np(v)}
+    if op == "leading_minor_det":
+        a = to_np(case["a"])
+        return [float(np.linalg.det(a[:k, :k])) for k in range(1, case["k"] + 1)]
+    if op == "matmul":
+        return from_np(to_np(case["a"]) @ to_np(case["b"]))
+    raise ValueError(f"linalg_reference.py: unknown op {op!r}")
+
+
+def main():
+    request = json.load(sys.stdin)
+    json.dump({"results": [run(c) for c in request["cases"]]}, sys.stdout)
+
+
+if __name__ == "__main__":
+    main()
