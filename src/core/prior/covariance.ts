@@ -1,19 +1,122 @@
-/** STUB — replaced by the prior/covariance owner. Signatures are the contract. */
-import type { Grid } from '../grid/grid.ts';
-import type { Matrix } from '../linalg/matrix.ts';
+/**
+ * Prior covariance Cm and mean m0 on a regular grid.
+ *
+ *   Cm[i][j] = s_i s_j Σ_t variance_t ρ_t(h_t(x_j − x_i)) + nugget·δ_ij        (./spec.ts)
+ *
+ * PUBLIC API: covarianceMatrix, covarianceApply, priorVariance, meanVector, validatePrior.
+ *
+ * Assembly goes through a lag table (./lag.ts): ρ is evaluated once per distinct index offset
+ * ((2nx−1)(2ny−1) values, 2N−1 in 1-D) and each matrix row is copied from contiguous slices of the
+ * table, so assembly costs O(N²) memory writes and only O(N) kernel evaluations.
+ */
+import { cellCount, type Grid } from '../grid/grid.ts';
+import { matrix, type Matrix } from '../linalg/matrix.ts';
+import { lagIndex, lagTable, type LagTable } from './lag.ts';
 import type { PriorSpec } from './spec.ts';
+import { validatePrior } from './validate.ts';
 
-/** Dense prior covariance Cm (N × N) on the grid. */
-export function covarianceMatrix(_grid: Grid, _prior: PriorSpec): Matrix {
-  throw new Error('covarianceMatrix: not implemented yet');
+export { meanVector } from './mean.ts';
+export { validatePrior } from './validate.ts';
+
+/** Dense prior covariance Cm (N × N) on the grid. Validates the prior first (InputError). */
+export function covarianceMatrix(grid: Grid, prior: PriorSpec): Matrix {
+  validatePrior(prior, grid);
+  return assembleCovariance(grid, prior, lagTable(grid, prior.terms));
 }
 
-/** Mean model m0 (length N). */
-export function meanVector(_grid: Grid, _prior: PriorSpec): Float64Array {
-  throw new Error('meanVector: not implemented yet');
+/** Dense Cm from an already computed lag table (no validation). */
+export function assembleCovariance(grid: Grid, prior: PriorSpec, table: LagTable): Matrix {
+  const { nx, ny, values } = table;
+  const n = nx * ny;
+  const c = matrix(n, n);
+  const d = c.data;
+  for (let iy = 0; iy < ny; iy++) {
+    for (let ix = 0; ix < nx; ix++) {
+      const i = ix + nx * iy;
+      const oi = i * n;
+      for (let jy = 0; jy < ny; jy++) {
+        // Row i, cells (0..nx−1, jy): offsets Δix = −ix … nx−1−ix, contiguous in the table.
+        const a = lagIndex(table, -ix, jy - iy);
+        d.set(values.subarray(a, a + nx), oi + jy * nx);
+      }
+    }
+  }
+  const s = prior.stdProfile;
+  if (s !== undefined) {
+    for (let i = 0; i < n; i++) {
+      const si = s[i]!;
+      const oi = i * n;
+      for (let j = 0; j < n; j++) d[oi + j] = si * s[j]! * d[oi + j]!;
+    }
+  }
+  const nugget = prior.nugget ?? 0;
+  if (nugget !== 0) for (let i = 0; i < n; i++) d[i * n + i] += nugget;
+  return c;
 }
 
-/** Throws InputError (field path + value) unless the prior is valid for this grid. */
-export function validatePrior(_prior: PriorSpec, _grid: Grid): void {
-  throw new Error('validatePrior: not implemented yet');
+/**
+ * Prior variance per cell, the diagonal of Cm: s_i² Σ_t variance_t ρ_t(0) + nugget, without
+ * forming Cm (ρ_t(0) = 1 for every kernel; it is evaluated, not assumed).
+ */
+export function priorVariance(grid: Grid, prior: PriorSpec): Float64Array {
+  validatePrior(prior, grid);
+  const t = lagTable({ shape: [1], spacing: [1] }, prior.terms).values[0]!;
+  const n = cellCount(grid);
+  const out = new Float64Array(n);
+  const s = prior.stdProfile;
+  const nugget = prior.nugget ?? 0;
+  for (let i = 0; i < n; i++) {
+    const si = s === undefined ? 1 : s[i]!;
+    out[i] = si * si * t + nugget;
+  }
+  return out;
+}
+
+/** out = Cm x; returns `out`. */
+export type CovarianceApply = (x: ArrayLike<number>, out?: Float64Array) => Float64Array;
+
+/**
+ * The product x ↦ Cm x. Given `dense` (a Cm already assembled by {@link covarianceMatrix}) it is a
+ * plain dense product; otherwise it runs over the lag table without storing Cm (O(N²) flops and
+ * O(N) memory per product), for operators too large to keep (used by Lanczos eigenvalue estimates).
+ */
+export function covarianceApply(grid: Grid, prior: PriorSpec, dense?: Matrix): CovarianceApply {
+  validatePrior(prior, grid);
+  const n = cellCount(grid);
+  if (dense !== undefined) {
+    if (dense.rows !== n || dense.cols !== n) {
+      throw new RangeError(`covarianceApply: dense matrix is ${dense.rows}×${dense.cols}, grid has ${n} cells`);
+    }
+    const d = dense.data;
+    return (x, out = new Float64Array(n)) => {
+      for (let i = 0; i < n; i++) {
+        let acc = 0;
+        const oi = i * n;
+        for (let j = 0; j < n; j++) acc += d[oi + j]! * x[j]!;
+        out[i] = acc;
+      }
+      return out;
+    };
+  }
+  const table = lagTable(grid, prior.terms);
+  const { nx, ny, values } = table;
+  const s = prior.stdProfile;
+  const nugget = prior.nugget ?? 0;
+  const sx = new Float64Array(n);
+  return (x, out = new Float64Array(n)) => {
+    for (let j = 0; j < n; j++) sx[j] = (s === undefined ? 1 : s[j]!) * x[j]!;
+    for (let iy = 0; iy < ny; iy++) {
+      for (let ix = 0; ix < nx; ix++) {
+        const i = ix + nx * iy;
+        let acc = 0;
+        for (let jy = 0; jy < ny; jy++) {
+          const a = lagIndex(table, -ix, jy - iy);
+          const o = jy * nx;
+          for (let jx = 0; jx < nx; jx++) acc += values[a + jx]! * sx[o + jx]!;
+        }
+        out[i] = (s === undefined ? 1 : s[i]!) * acc + nugget * x[i]!;
+      }
+    }
+    return out;
+  };
 }

@@ -1,0 +1,47 @@
+/**
+ * Mean model m0 on the grid (./spec.ts):
+ *   constant  m0_i = c
+ *   values    m0_i = values[i]
+ *   trend     m0_i = intercept + slope[0]·x_i (+ slope[1]·y_i in 2-D), absolute cell coordinates
+ *             (origin included, see ../grid/grid.ts).
+ */
+import { cellCoordinates, cellCount, type Grid } from '../grid/grid.ts';
+import { assertNever } from '../linalg/operator.ts';
+import type { MeanSpec, PriorSpec } from './spec.ts';
+import { validatePrior } from './validate.ts';
+
+/** Mean model m0 (length N). Validates the prior first (InputError). */
+export function meanVector(grid: Grid, prior: PriorSpec): Float64Array {
+  validatePrior(prior, grid);
+  return evaluateMean(grid, prior.mean);
+}
+
+/** Which of the three mean forms a (validated) MeanSpec is. */
+export function meanKind(mean: MeanSpec): 'constant' | 'values' | 'trend' {
+  if ('constant' in mean) return 'constant';
+  if ('values' in mean) return 'values';
+  return 'trend';
+}
+
+/** m0 for a validated mean spec. */
+export function evaluateMean(grid: Grid, mean: MeanSpec): Float64Array {
+  const n = cellCount(grid);
+  const kind = meanKind(mean);
+  switch (kind) {
+    case 'constant':
+      return new Float64Array(n).fill((mean as { constant: number }).constant);
+    case 'values':
+      return Float64Array.from((mean as { values: readonly number[] }).values);
+    case 'trend': {
+      const { intercept, slope } = (mean as { trend: { intercept: number; slope: readonly number[] } }).trend;
+      const { x, y } = cellCoordinates(grid);
+      const a = slope[0]!;
+      const b = slope[1] ?? 0;
+      const out = new Float64Array(n);
+      for (let i = 0; i < n; i++) out[i] = intercept + a * x[i]! + b * y[i]!;
+      return out;
+    }
+    default:
+      return assertNever(kind);
+  }
+}

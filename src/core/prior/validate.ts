@@ -1,0 +1,116 @@
+/**
+ * Validation of a PriorSpec against a grid, at the edge of the core (files, UI, command line).
+ * Every failure is an InputError naming the field path (`terms[0].length`, `stdProfile[12]`,
+ * `mean.values`) and the value received.
+ *
+ * Decisions (documented here because they are policy, not mathematics):
+ * - `nu` on a kernel other than `matern` is ignored, not an error (a user switching the kernel in
+ *   the UI keeps the field); diagnostics report it with the warning code "nu-ignored".
+ * - `matern` without `nu` uses the kernel module's default smoothness (1.5).
+ * - `angle` without `lengths` is allowed (it has no effect on an isotropic term) but must be finite.
+ * - A term may not have both `length` and `lengths`; in 1-D only `length` is allowed.
+ * - No terms and no (or zero) nugget is an error: the covariance would be the zero matrix.
+ */
+import { InputError } from '../errors.ts';
+import { cellCount, gridDimension, validateGrid, type Grid } from '../grid/grid.ts';
+import { correlationFunction } from '../kernels/correlation.ts';
+import { KERNEL_NAMES, type Term } from '../kernels/spec.ts';
+import type { PriorSpec } from './spec.ts';
+
+const isFiniteNumber = (v: unknown): v is number => typeof v === 'number' && Number.isFinite(v);
+const isPositive = (v: unknown): v is number => isFiniteNumber(v) && v > 0;
+const isObject = (v: unknown): v is Record<string, unknown> => typeof v === 'object' && v !== null && !Array.isArray(v);
+const isArrayLike = (v: unknown): v is ArrayLike<unknown> => Array.isArray(v) || ArrayBuffer.isView(v);
+
+/** Throws InputError (field path + value) unless the prior is valid for this grid. */
+export function validatePrior(prior: PriorSpec, grid: Grid): void {
+  validateGrid(grid);
+  if (!isObject(prior)) throw new InputError('prior', 'an object with mean and terms', prior);
+  const n = cellCount(grid);
+  const dim = gridDimension(grid);
+  validateMean(prior.mean, n, dim);
+
+  if (!Array.isArray(prior.terms)) throw new InputError('terms', 'an array of covariance terms', prior.terms);
+  prior.terms.forEach((t, k) => validateTerm(t, `terms[${k}]`, dim));
+
+  if (prior.nugget !== undefined && !(isFiniteNumber(prior.nugget) && prior.nugget >= 0)) {
+    throw new InputError('nugget', 'a finite number ≥ 0', prior.nugget);
+  }
+  if (prior.terms.length === 0 && !((prior.nugget ?? 0) > 0)) {
+    throw new InputError('terms', 'at least one covariance term, or a nugget > 0 (the covariance would be zero)', prior.terms);
+  }
+
+  const s = prior.stdProfile;
+  if (s !== undefined) {
+    if (!isArrayLike(s) || s.length !== n) {
+      throw new InputError('stdProfile', `an array of ${n} numbers (one per grid cell)`, s);
+    }
+    for (let i = 0; i < n; i++) {
+      if (!isPositive(s[i])) throw new InputError(`stdProfile[${i}]`, 'a finite number > 0', s[i]);
+    }
+  }
+}
+
+function validateMean(mean: unknown, n: number, dim: 1 | 2): void {
+  const forms = 'one of {constant}, {values}, {trend: {intercept, slope}}';
+  if (!isObject(mean)) throw new InputError('mean', forms, mean);
+  const keys = ['constant', 'values', 'trend'].filter((k) => k in mean);
+  if (keys.length !== 1) throw new InputError('mean', `exactly ${forms}`, keys.length === 0 ? mean : keys.join(' and '));
+  if ('constant' in mean) {
+    if (!isFiniteNumber(mean.constant)) throw new InputError('mean.constant', 'a finite number', mean.constant);
+  } else if ('values' in mean) {
+    const v = mean.values;
+    if (!isArrayLike(v) || v.length !== n) throw new InputError('mean.values', `an array of ${n} numbers (one per grid cell)`, v);
+    for (let i = 0; i < n; i++) {
+      if (!isFiniteNumber(v[i])) throw new InputError(`mean.values[${i}]`, 'a finite number', v[i]);
+    }
+  } else {
+    const t = mean.trend;
+    if (!isObject(t)) throw new InputError('mean.trend', 'an object {intercept, slope}', t);
+    if (!isFiniteNumber(t.intercept)) throw new InputError('mean.trend.intercept', 'a finite number', t.intercept);
+    const s = t.slope;
+    if (!isArrayLike(s) || s.length !== dim) {
+      throw new InputError('mean.trend.slope', `an array of ${dim} number${dim === 1 ? '' : 's'} (one per grid axis)`, s);
+    }
+    for (let k = 0; k < dim; k++) {
+      if (!isFiniteNumber(s[k])) throw new InputError(`mean.trend.slope[${k}]`, 'a finite number', s[k]);
+    }
+  }
+}
+
+function validateTerm(term: Term, f: string, dim: 1 | 2): void {
+  if (!isObject(term)) throw new InputError(f, 'an object {kernel, variance, length or lengths}', term);
+  if (!(KERNEL_NAMES as readonly unknown[]).includes(term.kernel)) {
+    throw new InputError(`${f}.kernel`, `one of ${KERNEL_NAMES.join(', ')}`, term.kernel);
+  }
+  if (!isPositive(term.variance)) throw new InputError(`${f}.variance`, 'a finite number > 0', term.variance);
+
+  const hasLength = term.length !== undefined;
+  const hasLengths = term.lengths !== undefined;
+  if (hasLengths && dim === 1) {
+    throw new InputError(`${f}.lengths`, 'absent on a 1-D grid (give a single length)', term.lengths);
+  }
+  if (hasLength && hasLengths) {
+    throw new InputError(`${f}.lengths`, 'absent when length is given (use one of length or lengths)', term.lengths);
+  }
+  if (!hasLengths) {
+    if (!isPositive(term.length)) throw new InputError(`${f}.length`, 'a finite number > 0 (the correlation length)', term.length);
+  } else {
+    const l = term.lengths;
+    if (!isArrayLike(l) || l.length !== 2) throw new InputError(`${f}.lengths`, 'an array of 2 lengths [l1, l2]', l);
+    for (let k = 0; k < 2; k++) {
+      if (!isPositive(l[k])) throw new InputError(`${f}.lengths[${k}]`, 'a finite number > 0', l[k]);
+    }
+  }
+  if (term.angle !== undefined && !isFiniteNumber(term.angle)) {
+    throw new InputError(`${f}.angle`, 'a finite number of degrees', term.angle);
+  }
+  if (term.kernel === 'matern' && term.nu !== undefined) {
+    if (!isPositive(term.nu)) throw new InputError(`${f}.nu`, 'a finite number > 0', term.nu);
+    try {
+      correlationFunction('matern', term.nu);
+    } catch (e) {
+      throw new InputError(`${f}.nu`, `a smoothness the Matérn kernel supports (${(e as Error).message})`, term.nu);
+    }
+  }
+}
