@@ -50,7 +50,9 @@ describe('gravityOperator', () => {
   it('decays with depth below a station and rejects stations inside the grid', () => {
     const grid = { shape: [3, 4], spacing: [10, 5], origin: [5, 2.5] };
     const G = gravityOperator(grid, [[15, -1]]);
-    const col = [1, 4, 7, 10].map((j) => G.matrix.data[j]!);
+    if (G.kind !== 'dense') throw new Error('expected a dense operator');
+    const g = G.matrix;
+    const col = [1, 4, 7, 10].map((j) => g.data[j]!);
     for (let k = 1; k < col.length; k++) expect(col[k]!).toBeLessThan(col[k - 1]!);
     expect(() => gravityOperator(grid, [[15, 3]])).toThrow('stations[0].z must be a depth above the grid top 0, got 3');
   });
