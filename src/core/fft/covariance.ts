@@ -1,0 +1,245 @@
+/**
+ * Prior covariance products Cm·x on regular grids, through circulant embedding when the prior is
+ * stationary on the grid, else through the dense matrix.
+ *
+ *   Cm = S C S + nugget·I,   S = diag(stdProfile) (identity when absent),
+ *   C  = BTTB kernel part, embedded in a BCCB matrix C̃ = F⁻¹ diag(λ) F (./embedding.ts),
+ *   Cm·x = s ⊙ [F⁻¹(λ ⊙ F pad(s ⊙ x))]_grid + nugget·x.
+ *
+ * Two real vectors travel in one complex transform: since λ is real and even, F⁻¹(λ ⊙ F(a + ib)) =
+ * C̃a + i C̃b (linearity; both products are real). Cost per pair of vectors: one forward and one
+ * inverse px × py transform, px = smallest power of two ≥ 2nx − 1 (likewise py).
+ *
+ * PUBLIC API: covarianceOperator, isStationaryOnGrid, nonStationaryReason, CirculantProduct.
+ */
+import { InputError } from '../errors.ts';
+import { cellCount, gridDimension, type Grid } from '../grid/grid.ts';
+import { matrix, matvec, type Matrix } from '../linalg/matrix.ts';
+import { assertNever } from '../linalg/operator.ts';
+import { covarianceMatrix } from '../prior/covariance.ts';
+import type { PriorSpec } from '../prior/spec.ts';
+import { circulantEmbedding, gridAxes, productPadding, stationaryCovariance } from './embedding.ts';
+import { Fft2 } from './fft2.ts';
+
+export type CovariancePath = 'fft' | 'dense';
+
+export interface CovarianceOperator {
+  readonly path: CovariancePath;
+  /** N, the number of grid cells. */
+  readonly size: number;
+  /** Embedding sizes per grid axis ([px] or [px, py]); the grid shape itself on the dense path. */
+  readonly padding: readonly number[];
+  /** Why the dense path ran ('' on the FFT path). */
+  readonly reason: string;
+  /** Cm·x (length N). */
+  apply(x: ArrayLike<number>): Float64Array;
+  /** Cm·xᵢ for every row xᵢ of X (count × N), one result per row. */
+  applyMany(x: Matrix): Matrix;
+  /** diag(Cm). */
+  diagonal(): Float64Array;
+}
+
+/**
+ * Why the FFT path cannot represent this prior on this grid, or null when it can.
+ * Today every term of a valid prior is stationary (its covariance depends on the offset only) and
+ * the std profile and nugget are diagonal corrections, so only grids other than 1-D/2-D regular
+ * ones are refused; new non-stationary term kinds must be declared here (exhaustive switch).
+ */
+export function nonStationaryReason(grid: Grid, prior: PriorSpec): string | null {
+  const dim = grid.shape.length;
+  if (dim !== 1 && dim !== 2) return `grid has ${dim} axes; the FFT path handles 1-D and 2-D grids`;
+  for (const [k, t] of prior.terms.entries()) {
+    switch (t.kernel) {
+      case 'exponential':
+      case 'gaussian':
+      case 'matern':
+      case 'spherical':
+        break;
+      default:
+        return `terms[${k}].kernel ${String(assertNeverKernel(t.kernel))} is not known to be stationary`;
+    }
+  }
+  return null;
+}
+
+function assertNeverKernel(k: never): unknown {
+  return k;
+}
+
+/** True when Cm·x can go through circulant embedding (see {@link nonStationaryReason}). */
+export function isStationaryOnGrid(grid: Grid, prior: PriorSpec): boolean {
+  return nonStationaryReason(grid, prior) === null;
+}
+
+/**
+ * The kernel part C of the prior on one grid as a circulant product: spectra of padded (pairs of)
+ * vectors and their products with C̃. Workspace is per instance; not for concurrent use.
+ */
+export class CirculantProduct {
+  readonly nx: number;
+  readonly ny: number;
+  readonly px: number;
+  readonly py: number;
+  /** λ, real eigenvalues of the embedding (px·py). */
+  readonly eigenvalues: Float64Array;
+  /** c(0, 0), the kernel variance Σ_t variance_t. */
+  readonly variance: number;
+  private readonly fft: Fft2;
+  private readonly work: Float64Array;
+
+  constructor(grid: Grid, prior: PriorSpec, padding?: readonly [number, number]) {
+    const { nx, ny } = gridAxes(grid);
+    this.nx = nx;
+    this.ny = ny;
+    this.px = padding?.[0] ?? productPadding(nx);
+    this.py = padding?.[1] ?? productPadding(ny);
+    if (this.px < 2 * nx - 1 || this.py < 2 * ny - 1) {
+      throw new RangeError(`CirculantProduct: padding ${this.px} × ${this.py} is below 2n − 1 for ${nx} × ${ny}`);
+    }
+    this.eigenvalues = circulantEmbedding(grid, prior.terms, this.px, this.py).eigenvalues;
+    this.variance = stationaryCovariance(prior.terms)(0, 0);
+    this.fft = new Fft2(this.px, this.py);
+    this.work = new Float64Array(2 * this.px * this.py);
+  }
+
+  /** Length of one spectrum buffer (interleaved complex, px·py values). */
+  get spectrumLength(): number {
+    return 2 * this.px * this.py;
+  }
+
+  /**
+   * F pad(a + i b) into `out` (length spectrumLength). `b` may be null (zero imaginary part).
+   * a and b are grid vectors of length nx·ny.
+   */
+  spectrum(a: ArrayLike<number>, b: ArrayLike<number> | null, out: Float64Array): Float64Array {
+    const { nx, ny, px } = this;
+    out.fill(0);
+    for (let iy = 0; iy < ny; iy++) {
+      const o = 2 * px * iy;
+      const g = nx * iy;
+      for (let ix = 0; ix < nx; ix++) out[o + 2 * ix] = a[g + ix]!;
+      if (b !== null) for (let ix = 0; ix < nx; ix++) out[o + 2 * ix + 1] = b[g + ix]!;
+    }
+    this.fft.transform(out, { inputRows: ny });
+    return out;
+  }
+
+  /**
+   * From a spectrum X = F pad(a + i b): outA = [C̃ a]_grid, outB = [C̃ b]_grid (outB may be null).
+   * `spec` is not modified.
+   */
+  fromSpectrum(spec: Float64Array, outA: Float64Array, outB: Float64Array | null, offsetA = 0, offsetB = 0): void {
+    const { nx, ny, px } = this;
+    const w = this.work;
+    const lam = this.eigenvalues;
+    for (let k = 0, n = lam.length; k < n; k++) {
+      const l = lam[k]!;
+      w[2 * k] = l * spec[2 * k]!;
+      w[2 * k + 1] = l * spec[2 * k + 1]!;
+    }
+    this.fft.transform(w, { inverse: true, outputRows: ny });
+    for (let iy = 0; iy < ny; iy++) {
+      const o = 2 * px * iy;
+      const g = nx * iy;
+      for (let ix = 0; ix < nx; ix++) outA[offsetA + g + ix] = w[o + 2 * ix]!;
+      if (outB !== null) for (let ix = 0; ix < nx; ix++) outB[offsetB + g + ix] = w[o + 2 * ix + 1]!;
+    }
+  }
+}
+
+function checkLength(x: ArrayLike<number>, n: number, field: string): void {
+  if (x.length !== n) throw new InputError(field, `a vector of length ${n} (one value per grid cell)`, x);
+}
+
+export interface CovarianceOperatorOptions {
+  /** Force a path (e.g. to compare); default: 'fft' when isStationaryOnGrid, else 'dense'. */
+  readonly path?: CovariancePath;
+}
+
+/**
+ * Cm as an operator on this grid. The FFT path is exact for products (round-off only); the
+ * dense path assembles Cm with prior/covariance.ts (N² memory).
+ */
+export function covarianceOperator(grid: Grid, prior: PriorSpec, options: CovarianceOperatorOptions = {}): CovarianceOperator {
+  const n = cellCount(grid);
+  const reasonNot = nonStationaryReason(grid, prior);
+  const path: CovariancePath = options.path ?? (reasonNot === null ? 'fft' : 'dense');
+  if (path === 'fft' && reasonNot !== null) throw new InputError('path', 'dense for this prior and grid', `fft (${reasonNot})`);
+  const s = prior.stdProfile;
+  if (s !== undefined) checkLength(s, n, 'prior.stdProfile');
+  const nugget = prior.nugget ?? 0;
+  switch (path) {
+    case 'dense': {
+      const cm = covarianceMatrix(grid, prior);
+      const reason = options.path === 'dense' ? 'dense path requested' : (reasonNot ?? '');
+      return {
+        path,
+        size: n,
+        padding: [...grid.shape],
+        reason,
+        apply: (x) => {
+          checkLength(x, n, 'x');
+          return matvec(cm, x);
+        },
+        applyMany: (x) => {
+          if (x.cols !== n) throw new InputError('x.cols', `${n} (one column per grid cell)`, x.cols);
+          const out = matrix(x.rows, n);
+          for (let r = 0; r < x.rows; r++) out.data.set(matvec(cm, x.data.subarray(r * n, (r + 1) * n)), r * n);
+          return out;
+        },
+        diagonal: () => {
+          const d = new Float64Array(n);
+          for (let i = 0; i < n; i++) d[i] = cm.data[i * n + i]!;
+          return d;
+        },
+      };
+    }
+    case 'fft': {
+      const cp = new CirculantProduct(grid, prior);
+      const spec = new Float64Array(cp.spectrumLength);
+      const scaled = (x: ArrayLike<number>): ArrayLike<number> => {
+        if (s === undefined) return x;
+        const y = new Float64Array(n);
+        for (let i = 0; i < n; i++) y[i] = s[i]! * x[i]!;
+        return y;
+      };
+      const finish = (x: ArrayLike<number>, y: Float64Array, off: number): void => {
+        if (s !== undefined) for (let i = 0; i < n; i++) y[off + i] *= s[i]!;
+        if (nugget !== 0) for (let i = 0; i < n; i++) y[off + i] += nugget * x[i]!;
+      };
+      return {
+        path,
+        size: n,
+        padding: gridDimension(grid) === 1 ? [cp.px] : [cp.px, cp.py],
+        reason: '',
+        apply: (x) => {
+          checkLength(x, n, 'x');
+          const y = new Float64Array(n);
+          cp.fromSpectrum(cp.spectrum(scaled(x), null, spec), y, null);
+          finish(x, y, 0);
+          return y;
+        },
+        applyMany: (x) => {
+          if (x.cols !== n) throw new InputError('x.cols', `${n} (one column per grid cell)`, x.cols);
+          const out = matrix(x.rows, n);
+          for (let r = 0; r < x.rows; r += 2) {
+            const a = x.data.subarray(r * n, (r + 1) * n);
+            const b = r + 1 < x.rows ? x.data.subarray((r + 1) * n, (r + 2) * n) : null;
+            cp.spectrum(scaled(a), b === null ? null : scaled(b), spec);
+            cp.fromSpectrum(spec, out.data, b === null ? null : out.data, r * n, (r + 1) * n);
+            finish(a, out.data, r * n);
+            if (b !== null) finish(b, out.data, (r + 1) * n);
+          }
+          return out;
+        },
+        diagonal: () => {
+          const d = new Float64Array(n);
+          for (let i = 0; i < n; i++) d[i] = (s === undefined ? 1 : s[i]! * s[i]!) * cp.variance + nugget;
+          return d;
+        },
+      };
+    }
+    default:
+      return assertNever(path);
+  }
+}

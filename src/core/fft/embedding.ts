@@ -1,0 +1,143 @@
+/**
+ * Circulant embedding of a stationary covariance on a regular 1-D or 2-D grid.
+ *
+ * On an nx × ny grid with spacing (dx, dy) the kernel part of the prior, c(Δix, Δiy) =
+ * Σ_t variance_t ρ_t(h_t(Δix·dx, Δiy·dy)) (../kernels/spec.ts), makes a block-Toeplitz matrix with
+ * Toeplitz blocks (BTTB). It is the leading nx × ny block of a block-circulant matrix with
+ * circulant blocks (BCCB) of size px × py whose first column is the periodic base
+ *
+ *   c̃(jx, jy) = c(δ(jx, px)·dx, δ(jy, py)·dy),   δ(j, p) = j for j < p/2, j − p for j > p/2,
+ *
+ * averaged over ±p/2 at the Nyquist index j = p/2 so that c̃(−j) = c̃(j) holds exactly even for a
+ * rotated kernel (which is symmetric under Δ → −Δ but not under Δx → −Δx alone). A BCCB matrix is
+ * diagonalised by the 2-D DFT: C̃ = F⁻¹ diag(λ) F with λ = F c̃ (Davis 1979, Circulant Matrices,
+ * Thm 3.2.2 for the 1-D case, memory; Dietrich & Newsam 1997 §2 for the 2-D embedding). Since
+ * c̃ is real and even, λ is real.
+ *
+ * Products: any p ≥ 2n − 1 per axis holds every lag |Δi| ≤ n − 1 at its own place without
+ * wrapping onto another, so Cm·x restricted to the grid is exact (up to round-off).
+ * Realisations: need λ ≥ 0 (the embedding must be non-negative definite); Wood & Chan (1994) start
+ * at the smallest power of two ≥ 2(n − 1) and double; see ../fft/realisations.ts.
+ */
+import { correlationFunction } from '../kernels/correlation.ts';
+import type { Term } from '../kernels/spec.ts';
+import type { Grid } from '../grid/grid.ts';
+import { Fft2, nextPowerOfTwo } from './fft2.ts';
+
+/** Σ_t variance_t ρ_t(h_t(ox, oy)) at a physical offset (ox, oy); oy ≡ 0 on a 1-D grid. */
+export function stationaryCovariance(terms: readonly Term[]): (ox: number, oy: number) => number {
+  const parts = terms.map((t) => {
+    const rho = correlationFunction(t.kernel, t.nu);
+    const v = t.variance;
+    if (t.lengths !== undefined) {
+      const [l1, l2] = t.lengths;
+      const theta = ((t.angle ?? 0) * Math.PI) / 180;
+      // Rotate the offset by −θ into the kernel's axes (u, v).
+      const c = Math.cos(theta);
+      const s = Math.sin(theta);
+      return (ox: number, oy: number) => {
+        const u = (c * ox + s * oy) / l1;
+        const w = (-s * ox + c * oy) / l2;
+        return v * rho(Math.sqrt(u * u + w * w));
+      };
+    }
+    const l = t.length!;
+    return (ox: number, oy: number) => v * rho(Math.sqrt(ox * ox + oy * oy) / l);
+  });
+  if (parts.length === 1) return parts[0]!;
+  return (ox, oy) => {
+    let s = 0;
+    for (const p of parts) s += p(ox, oy);
+    return s;
+  };
+}
+
+/**
+ * True when every term is unchanged under Δx → −Δx alone (isotropic, or axes along x/y). Then the
+ * Nyquist lag p/2 is unambiguous and the minimal embedding p = 2(n − 1) is exact.
+ */
+export function isAxisSymmetric(terms: readonly Term[]): boolean {
+  return terms.every((t) => t.lengths === undefined || (((t.angle ?? 0) % 90) + 90) % 90 === 0 || t.lengths[0] === t.lengths[1]);
+}
+
+/** Grid axes as [n, spacing] pairs, 1-D grids as ny = 1. */
+export function gridAxes(grid: Grid): { nx: number; ny: number; dx: number; dy: number } {
+  return {
+    nx: grid.shape[0]!,
+    ny: grid.shape[1] ?? 1,
+    dx: grid.spacing[0]!,
+    dy: grid.spacing[1] ?? 1,
+  };
+}
+
+/** Smallest power of two ≥ 2n − 1 (products; 1 when n = 1). */
+export function productPadding(n: number): number {
+  return n === 1 ? 1 : nextPowerOfTwo(2 * n - 1);
+}
+
+/**
+ * Smallest power of two ≥ 2(n − 1) (Wood & Chan 1994), or ≥ 2n − 1 when the Nyquist lag would be
+ * ambiguous (a rotated kernel with 2(n − 1) a power of two). 1 when n = 1.
+ */
+export function minimalPadding(n: number, axisSymmetric: boolean): number {
+  if (n === 1) return 1;
+  return axisSymmetric ? nextPowerOfTwo(2 * (n - 1)) : nextPowerOfTwo(2 * n - 1);
+}
+
+export interface CirculantEmbedding {
+  readonly nx: number;
+  readonly ny: number;
+  /** Embedding sizes per axis (powers of two). */
+  readonly px: number;
+  readonly py: number;
+  /** Periodic base c̃ (px·py values, x fastest). */
+  readonly base: Float64Array;
+  /** Eigenvalues λ = F c̃ of the embedding (real; px·py values, x fastest). */
+  readonly eigenvalues: Float64Array;
+  readonly minEigenvalue: number;
+  readonly maxEigenvalue: number;
+}
+
+function lagOffsets(j: number, p: number): number[] {
+  if (p === 1) return [0];
+  if (2 * j < p) return [j];
+  if (2 * j > p) return [j - p];
+  return [j, -j];
+}
+
+/** The periodic base c̃ on a px × py torus (see the module comment). */
+export function circulantBase(grid: Grid, terms: readonly Term[], px: number, py: number): Float64Array {
+  const { dx, dy } = gridAxes(grid);
+  const cov = stationaryCovariance(terms);
+  const base = new Float64Array(px * py);
+  const xs = Array.from({ length: px }, (_, j) => lagOffsets(j, px));
+  for (let jy = 0; jy < py; jy++) {
+    const oys = lagOffsets(jy, py);
+    for (let jx = 0; jx < px; jx++) {
+      const oxs = xs[jx]!;
+      let s = 0;
+      for (const ox of oxs) for (const oy of oys) s += cov(ox * dx, oy * dy);
+      base[jx + px * jy] = s / (oxs.length * oys.length);
+    }
+  }
+  return base;
+}
+
+/** Base and eigenvalues of the px × py embedding of the kernel part of the prior. */
+export function circulantEmbedding(grid: Grid, terms: readonly Term[], px: number, py: number): CirculantEmbedding {
+  const { nx, ny } = gridAxes(grid);
+  const base = circulantBase(grid, terms, px, py);
+  const buf = new Float64Array(2 * px * py);
+  for (let i = 0; i < base.length; i++) buf[2 * i] = base[i]!;
+  new Fft2(px, py).transform(buf);
+  const eigenvalues = new Float64Array(px * py);
+  let lo = Infinity;
+  let hi = -Infinity;
+  for (let i = 0; i < eigenvalues.length; i++) {
+    const v = buf[2 * i]!;
+    eigenvalues[i] = v;
+    if (v < lo) lo = v;
+    if (v > hi) hi = v;
+  }
+  return { nx, ny, px, py, base, eigenvalues, minEigenvalue: lo, maxEigenvalue: hi };
+}

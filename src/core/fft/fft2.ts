@@ -1,0 +1,158 @@
+/**
+ * 1-D and 2-D discrete Fourier transforms over interleaved complex Float64Array buffers, built on
+ * fft.js (radix-4, power-of-two sizes).
+ *
+ * Layout: a px × py complex array stores element (kx, ky) at re = buf[2(kx + px·ky)],
+ * im = buf[2(kx + px·ky) + 1] (x fastest, like the grid's flat index i = ix + nx·iy).
+ *
+ * Conventions (the same as numpy.fft.fft2, checked in test/reference/fft.test.ts):
+ *   forward  X(k) = Σ_j x(j) e^(−2πi (kx jx / px + ky jy / py))           (unnormalised)
+ *   inverse  x(j) = 1/(px py) Σ_k X(k) e^(+2πi (kx jx / px + ky jy / py))
+ * A size of 1 along an axis is the identity along it (fft.js itself needs sizes ≥ 2).
+ *
+ * Pruning (both exact, they only skip work on known zeros or unwanted outputs):
+ *   `inputRows = r`  rows ky ≥ r of the input are zero: the x-pass runs on the first r rows only;
+ *   `outputRows = r` only rows ky < r of the output are wanted: the y-pass runs first over all
+ *                    columns, then the x-pass on the first r rows only (rows ≥ r are left stale).
+ */
+import FFT from 'fft.js';
+
+/** Smallest power of two ≥ n (n ≥ 1). */
+export function nextPowerOfTwo(n: number): number {
+  let p = 1;
+  while (p < n) p *= 2;
+  return p;
+}
+
+export function isPowerOfTwo(n: number): boolean {
+  return Number.isInteger(n) && n >= 1 && (n & (n - 1)) === 0;
+}
+
+const plans = new Map<number, FFT>();
+
+function plan(n: number): FFT {
+  let p = plans.get(n);
+  if (p === undefined) {
+    p = new FFT(n);
+    plans.set(n, p);
+  }
+  return p;
+}
+
+/** In-place 1-D transform of `n` complex values starting at complex offset 0 of `buf`. */
+export function fft1(buf: Float64Array, inverse = false): void {
+  const n = buf.length / 2;
+  if (!isPowerOfTwo(n)) throw new RangeError(`fft1: length ${n} is not a power of two`);
+  if (n === 1) return;
+  const scratch = new Float64Array(2 * n);
+  if (inverse) plan(n).inverseTransform(scratch, buf);
+  else plan(n).transform(scratch, buf);
+  buf.set(scratch);
+}
+
+export interface Fft2Options {
+  readonly inverse?: boolean;
+  /** Rows ky ≥ inputRows of the input are zero (default py). */
+  readonly inputRows?: number;
+  /** Only rows ky < outputRows of the output are needed (default py). */
+  readonly outputRows?: number;
+}
+
+/** Columns gathered per sweep of the y-pass (keeps the strided reads cache-friendly). */
+const COLUMN_BLOCK = 8;
+
+/**
+ * Reusable workspace for px × py transforms (scratch rows and column blocks). One per thread;
+ * not shared between concurrent calls.
+ */
+export class Fft2 {
+  readonly px: number;
+  readonly py: number;
+  private readonly rowScratch: Float64Array;
+  private readonly colIn: Float64Array[];
+  private readonly colOut: Float64Array;
+
+  constructor(px: number, py: number) {
+    if (!isPowerOfTwo(px) || !isPowerOfTwo(py)) {
+      throw new RangeError(`Fft2: sizes ${px} × ${py} must be powers of two`);
+    }
+    this.px = px;
+    this.py = py;
+    this.rowScratch = new Float64Array(2 * px);
+    this.colIn = Array.from({ length: COLUMN_BLOCK }, () => new Float64Array(2 * py));
+    this.colOut = new Float64Array(2 * py);
+  }
+
+  /** In-place 2-D transform of a px × py complex buffer (length 2·px·py). */
+  transform(buf: Float64Array, options: Fft2Options = {}): void {
+    const { px, py } = this;
+    if (buf.length !== 2 * px * py) {
+      throw new RangeError(`Fft2: buffer has length ${buf.length}, expected 2·${px}·${py} = ${2 * px * py}`);
+    }
+    const inverse = options.inverse ?? false;
+    const inputRows = Math.min(options.inputRows ?? py, py);
+    const outputRows = Math.min(options.outputRows ?? py, py);
+    if (inputRows < py || outputRows === py) {
+      this.rows(buf, inputRows, inverse);
+      this.columns(buf, inverse);
+    } else {
+      this.columns(buf, inverse);
+      this.rows(buf, outputRows, inverse);
+    }
+  }
+
+  private rows(buf: Float64Array, count: number, inverse: boolean): void {
+    const px = this.px;
+    if (px === 1) return;
+    const f = plan(px);
+    const s = this.rowScratch;
+    const w = 2 * px;
+    for (let r = 0; r < count; r++) {
+      const row = buf.subarray(r * w, (r + 1) * w);
+      if (inverse) f.inverseTransform(s, row);
+      else f.transform(s, row);
+      row.set(s);
+    }
+  }
+
+  private columns(buf: Float64Array, inverse: boolean): void {
+    const { px, py } = this;
+    if (py === 1) return;
+    const f = plan(py);
+    const out = this.colOut;
+    const w = 2 * px;
+    for (let c0 = 0; c0 < px; c0 += COLUMN_BLOCK) {
+      const nb = Math.min(COLUMN_BLOCK, px - c0);
+      // Gather nb columns in one sweep down the rows.
+      for (let r = 0; r < py; r++) {
+        const o = r * w + 2 * c0;
+        for (let b = 0; b < nb; b++) {
+          const col = this.colIn[b]!;
+          col[2 * r] = buf[o + 2 * b]!;
+          col[2 * r + 1] = buf[o + 2 * b + 1]!;
+        }
+      }
+      for (let b = 0; b < nb; b++) {
+        const col = this.colIn[b]!;
+        if (inverse) f.inverseTransform(out, col);
+        else f.transform(out, col);
+        col.set(out);
+      }
+      for (let r = 0; r < py; r++) {
+        const o = r * w + 2 * c0;
+        for (let b = 0; b < nb; b++) {
+          const col = this.colIn[b]!;
+          buf[o + 2 * b] = col[2 * r]!;
+          buf[o + 2 * b + 1] = col[2 * r + 1]!;
+        }
+      }
+    }
+  }
+}
+
+/** Convenience: a new transformed copy of a px × py complex buffer. */
+export function fft2(buf: Float64Array, px: number, py: number, options: Fft2Options = {}): Float64Array {
+  const out = buf.slice();
+  new Fft2(px, py).transform(out, options);
+  return out;
+}

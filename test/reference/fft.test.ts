@@ -1,0 +1,91 @@
+/**
+ * src/core/fft against Debian's numpy (test/reference/fft_reference.py, run with /usr/bin/python3):
+ * transforms against numpy.fft.fft2/ifft2, circulant-embedding products against Cm @ x with Cm
+ * built in Python from the kernel formulas (Matérn via scipy.special.kv, Rasmussen & Williams 2006
+ * eq. 4.14), embedding eigenvalues against numpy.linalg.eigvalsh of the explicit BCCB matrix.
+ */
+import { describe, expect, it } from 'vitest';
+import { Fft2 } from '../../src/core/fft/fft2.ts';
+import { covarianceOperator } from '../../src/core/fft/covariance.ts';
+import { circulantEmbedding } from '../../src/core/fft/embedding.ts';
+import type { Grid } from '../../src/core/grid/grid.ts';
+import type { PriorSpec } from '../../src/core/prior/spec.ts';
+import { runPython } from './python.ts';
+import { COVARIANCE_CASES, relErr, seededVector } from '../core/fft/cases.ts';
+
+describe('Fft2 vs numpy.fft.fft2 / ifft2 (Debian python3-numpy)', () => {
+  const sizes: [number, number][] = [[2, 1], [1, 16], [2, 2], [8, 4], [4, 32], [64, 32], [256, 128]];
+  const inputs = sizes.flatMap(([px, py], k) =>
+    [false, true].map((inverse) => ({ px, py, inverse, buf: seededVector(2 * px * py, 10 + k) })),
+  );
+  const ref = runPython<{ results: { re: number[]; im: number[] }[] }>('fft_reference.py', {
+    cases: inputs.map(({ px, py, inverse, buf }) => ({
+      op: 'fft2', px, py, inverse,
+      re: Array.from(buf.filter((_, i) => i % 2 === 0)),
+      im: Array.from(buf.filter((_, i) => i % 2 === 1)),
+    })),
+  }).results;
+  inputs.forEach(({ px, py, inverse, buf }, k) => {
+    it(`${px} × ${py} ${inverse ? 'inverse' : 'forward'}: 1e-12 relative to the norm`, () => {
+      const ours = buf.slice();
+      new Fft2(px, py).transform(ours, { inverse });
+      const want = new Float64Array(2 * px * py);
+      ref[k]!.re.forEach((v, i) => (want[2 * i] = v));
+      ref[k]!.im.forEach((v, i) => (want[2 * i + 1] = v));
+      expect(relErr(ours, want)).toBeLessThan(1e-12);
+    });
+  });
+});
+
+describe('covarianceOperator (FFT path) vs Cm @ x from numpy / scipy.special.kv', () => {
+  const ref = runPython<{ results: number[][][] }>('fft_reference.py', {
+    cases: COVARIANCE_CASES.map(({ grid, prior }, k) => ({
+      op: 'cov_apply', grid, prior,
+      x: [0, 1, 2].map((r) => Array.from(seededVector(cellCountOf(grid), 100 * k + r))),
+    })),
+  }).results;
+  COVARIANCE_CASES.forEach(({ name, grid, prior }, k) => {
+    it(`${name}: apply and applyMany within 1e-10 relative`, () => {
+      const op = covarianceOperator(grid, prior);
+      expect(op.path).toBe('fft');
+      const n = cellCountOf(grid);
+      const xs = [0, 1, 2].map((r) => seededVector(n, 100 * k + r));
+      xs.forEach((x, r) => expect(relErr(op.apply(x), ref[k]![r]!)).toBeLessThan(1e-10));
+      const many = new Float64Array(3 * n);
+      xs.forEach((x, r) => many.set(x, r * n));
+      const out = op.applyMany({ rows: 3, cols: n, data: many });
+      xs.forEach((_, r) => expect(relErr(out.data.subarray(r * n, (r + 1) * n), ref[k]![r]!)).toBeLessThan(1e-10));
+    });
+  });
+});
+
+describe('embedding eigenvalues vs numpy.linalg.eigvalsh of the explicit block-circulant matrix', () => {
+  const cases: { grid: Grid; prior: PriorSpec; px: number; py: number }[] = [
+    { grid: { shape: [9], spacing: [0.5] }, prior: p([{ kernel: 'exponential', variance: 2, length: 1.5 }]), px: 16, py: 1 },
+    { grid: { shape: [6, 5], spacing: [1, 0.7] }, prior: p([{ kernel: 'gaussian', variance: 1, lengths: [3, 1], angle: 35 }]), px: 16, py: 16 },
+    { grid: { shape: [5, 7], spacing: [1, 1] }, prior: p([{ kernel: 'matern', nu: 1.5, variance: 1, length: 4 }]), px: 8, py: 16 },
+  ];
+  const ref = runPython<{ results: number[][] }>('fft_reference.py', {
+    cases: cases.map(({ grid, prior, px, py }) => ({
+      op: 'bccb_eigs', px, py, base: Array.from(circulantEmbedding(grid, prior.terms, px, py).base),
+    })),
+  }).results;
+  cases.forEach(({ grid, prior, px, py }, k) => {
+    it(`${grid.shape.join('×')} in ${px}×${py}: sorted λ equal to 1e-10 of max |λ|`, () => {
+      const e = circulantEmbedding(grid, prior.terms, px, py);
+      const ours = Array.from(e.eigenvalues).sort((a, b) => a - b);
+      const want = ref[k]!;
+      const scale = Math.max(...want.map(Math.abs));
+      ours.forEach((v, i) => expect(Math.abs(v - want[i]!)).toBeLessThan(1e-10 * scale));
+      expect(e.minEigenvalue).toBeCloseTo(want[0]!, 10);
+    });
+  });
+});
+
+function p(terms: PriorSpec['terms']): PriorSpec {
+  return { mean: { constant: 0 }, terms };
+}
+
+function cellCountOf(g: Grid): number {
+  return g.shape.reduce((a, b) => a * b, 1);
+}
