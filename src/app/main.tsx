@@ -1,12 +1,51 @@
+/** Entry point: creates the worker client and the store, mounts the workbench. */
+import { StrictMode } from 'react';
 import { createRoot } from 'react-dom/client';
+import { WorkerClient, type WorkerLike } from '../worker/client.ts';
+import { App } from './App.tsx';
+import { StoreContext } from './context.ts';
+import { DEFAULT_DEMO } from './demos.ts';
+import { createWorkbenchStore } from './store.ts';
+import './styles.css';
 
-function App() {
-  return (
-    <main>
-      <h1>Priorscope</h1>
-      <p>Workbench under construction.</p>
-    </main>
-  );
+const client = new WorkerClient(
+  () => new Worker(new URL('../worker/worker.ts', import.meta.url), { type: 'module' }) as unknown as WorkerLike,
+  { onProgress: (channel, stage, fraction) => store.getState().setProgress({ channel, stage, fraction }) },
+);
+const params = new URLSearchParams(location.search);
+const store = createWorkbenchStore(client, { demoId: params.get('demo') ?? DEFAULT_DEMO });
+
+/** Read-only hook for the end-to-end tests: a snapshot of plain state, never the live store. */
+declare global {
+  interface Window {
+    __priorscope?: { getState(): unknown };
+  }
 }
+window.__priorscope = {
+  getState: () => {
+    const s = store.getState();
+    return structuredClone({
+      demoId: s.demoId,
+      problemVersion: s.problem?.version ?? null,
+      prior: s.prior,
+      priorRevision: s.priorRevision,
+      seed: s.seed,
+      tab: s.tab,
+      selectedCell: s.selectedCell,
+      errors: s.errors,
+      busy: s.busy,
+      computedFor: s.computedFor,
+      diagnostics: s.diagnostics,
+      restarts: client.restarts,
+    });
+  },
+};
 
-createRoot(document.getElementById('root')!).render(<App />);
+createRoot(document.getElementById('root')!).render(
+  <StrictMode>
+    <StoreContext.Provider value={store}>
+      <App />
+    </StoreContext.Provider>
+  </StrictMode>,
+);
+void store.getState().loadDemo(store.getState().demoId);

@@ -1,0 +1,121 @@
+/** The workbench shell: header with demo picker, prior panel, status, tabbed screens, caution footer. */
+import { useRef, type KeyboardEvent } from 'react';
+import { DEMO_CHOICES } from './demos.ts';
+import { useWb } from './context.ts';
+import { PriorPanel } from './PriorPanel.tsx';
+import { StatusPanel } from './StatusPanel.tsx';
+import { FitScreen, PosteriorScreen, PriorScreen, ProblemScreen, RealisationsScreen } from './screens.tsx';
+import { TABS, type TabId } from './store.ts';
+
+/** Shown in the footer at all times. */
+export const CAUTION =
+  'Results depend on the forward model, the data errors and the chosen prior. Where they inform decisions about ' +
+  'safety, resources or regulated matters, they need review by a qualified professional under local codes and practice.';
+
+function Screen({ tab }: { tab: TabId }) {
+  switch (tab) {
+    case 'problem':
+      return <ProblemScreen />;
+    case 'prior':
+      return <PriorScreen />;
+    case 'realisations':
+      return <RealisationsScreen />;
+    case 'posterior':
+      return <PosteriorScreen />;
+    case 'fit':
+      return <FitScreen />;
+    default: {
+      const never: never = tab;
+      throw new Error(`unknown tab ${String(never)}`);
+    }
+  }
+}
+
+export function App() {
+  const demoId = useWb((s) => s.demoId);
+  const loadDemo = useWb((s) => s.loadDemo);
+  const status = useWb((s) => s.problemStatus);
+  const problemError = useWb((s) => s.problemError);
+  const tab = useWb((s) => s.tab);
+  const setTab = useWb((s) => s.setTab);
+  const notice = useWb((s) => s.notice);
+  const dismiss = useWb((s) => s.dismissNotice);
+  const progress = useWb((s) => s.progress);
+  const busy = useWb((s) => Object.values(s.busy).some(Boolean));
+  const tabRefs = useRef<(HTMLButtonElement | null)[]>([]);
+
+  const onTabKey = (e: KeyboardEvent, i: number) => {
+    const n = TABS.length;
+    const j = e.key === 'ArrowRight' ? (i + 1) % n : e.key === 'ArrowLeft' ? (i + n - 1) % n : e.key === 'Home' ? 0 : e.key === 'End' ? n - 1 : -1;
+    if (j < 0) return;
+    e.preventDefault();
+    setTab(TABS[j]!.id);
+    tabRefs.current[j]?.focus();
+  };
+
+  return (
+    <div className="app">
+      <header className="top">
+        <h1>Priorscope</h1>
+        <label className="inline demo-picker">
+          Problem{' '}
+          <select data-testid="demo-select" value={demoId} onChange={(e) => void loadDemo(e.target.value)} title="Built-in invented example problems">
+            {DEMO_CHOICES.map((d) => (
+              <option key={d.id} value={d.id}>
+                {d.title}
+              </option>
+            ))}
+          </select>
+        </label>
+        <span className="activity" data-testid="activity" aria-live="polite">
+          {status === 'loading' ? 'Loading problem …' : progress ? `${progress.stage} …` : busy ? 'Computing …' : 'Up to date'}
+        </span>
+        <StatusPanel />
+      </header>
+      {notice && (
+        <div className="notice" role="status">
+          {notice}{' '}
+          <button type="button" onClick={dismiss}>
+            OK
+          </button>
+        </div>
+      )}
+      <div className="body">
+        <PriorPanel />
+        <main className="main">
+          <div role="tablist" aria-label="Screens" className="tabs">
+            {TABS.map((t, i) => (
+              <button
+                key={t.id}
+                ref={(el) => {
+                  tabRefs.current[i] = el;
+                }}
+                role="tab"
+                id={`tab-${t.id}`}
+                data-testid={`tab-${t.id}`}
+                aria-selected={tab === t.id}
+                aria-controls="screen"
+                tabIndex={tab === t.id ? 0 : -1}
+                onClick={() => setTab(t.id)}
+                onKeyDown={(e) => onTabKey(e, i)}
+              >
+                {t.label}
+              </button>
+            ))}
+          </div>
+          <div id="screen" role="tabpanel" aria-labelledby={`tab-${tab}`} className="tabpanel">
+            {status === 'error' && (
+              <p className="error" role="alert" data-testid="problem-error">
+                Could not load the problem: {problemError}
+              </p>
+            )}
+            {status === 'ready' && <Screen tab={tab} />}
+          </div>
+        </main>
+      </div>
+      <footer className="caution" data-testid="caution">
+        {CAUTION}
+      </footer>
+    </div>
+  );
+}

@@ -1,0 +1,283 @@
+/** The left panel: mean model, covariance terms (add / remove / reorder), nugget. */
+import { KERNEL_NAMES, type KernelName, type Term } from '../core/kernels/spec.ts';
+import type { MeanSpec } from '../core/prior/spec.ts';
+import { gridDimension } from '../core/grid/grid.ts';
+import { useWb } from './context.ts';
+import { LogSlider, NumberField } from './controls.tsx';
+import type { ProblemView } from '../worker/protocol.ts';
+
+/** Kernel labels and the correlation formula each one stands for (h = scaled distance). */
+export const KERNEL_INFO: Record<KernelName, { label: string; formula: string }> = {
+  exponential: { label: 'Exponential', formula: 'ρ(h) = exp(−h)' },
+  gaussian: { label: 'Gaussian (squared exponential)', formula: 'ρ(h) = exp(−h²/2)' },
+  matern: { label: 'Matérn', formula: 'ρ(h) = 2^(1−ν)/Γ(ν) (√(2ν) h)^ν K_ν(√(2ν) h)' },
+  spherical: { label: 'Spherical', formula: 'ρ(h) = 1 − 1.5h + 0.5h³ for h < 1, else 0' },
+};
+
+function lengthRange(problem: ProblemView): [number, number] {
+  const g = problem.grid;
+  const minSpacing = Math.min(...g.spacing);
+  const extent = Math.max(...g.shape.map((n, k) => n * g.spacing[k]!));
+  return [minSpacing / 10, extent * 10];
+}
+
+export function PriorPanel() {
+  const prior = useWb((s) => s.prior);
+  const problem = useWb((s) => s.problem);
+  const addTerm = useWb((s) => s.addTerm);
+  const setNugget = useWb((s) => s.setNugget);
+  const resetPrior = useWb((s) => s.resetPrior);
+  if (!prior || !problem) return <aside className="prior-panel" aria-label="Prior" />;
+  const unit = problem.quantity.unit;
+  const varUnit = unit ? `(${unit})²` : '';
+  const refVar = Math.max(...prior.terms.map((t) => t.variance), problem.startPrior?.terms[0]?.variance ?? 1, 1e-12);
+  return (
+    <aside className="prior-panel" aria-label="Prior">
+      <h2>Prior</h2>
+      <MeanEditor mean={prior.mean} problem={problem} />
+      <ol className="terms" aria-label="Covariance terms">
+        {prior.terms.map((t, i) => (
+          <TermEditor key={i} index={i} term={t} count={prior.terms.length} problem={problem} refVar={refVar} />
+        ))}
+      </ol>
+      <div className="row">
+        <button type="button" data-testid="add-term" onClick={addTerm} title="Add a covariance term: Cm += σ² ρ(h)">
+          + Add term
+        </button>
+        <button type="button" data-testid="reset-prior" onClick={resetPrior} title="Back to the problem's starting prior">
+          Reset
+        </button>
+      </div>
+      <fieldset>
+        <legend>Nugget</legend>
+        <LogSlider
+          label="Nugget"
+          value={prior.nugget ?? 0}
+          min={refVar * 1e-12}
+          max={refVar * 10}
+          allowZero
+          unit={varUnit}
+          tip="White variance on the diagonal: Cm[i][i] += nugget (leftmost position = 0)"
+          testId="nugget"
+          onChange={setNugget}
+        />
+      </fieldset>
+    </aside>
+  );
+}
+
+function MeanEditor({ mean, problem }: { mean: MeanSpec; problem: ProblemView }) {
+  const setMean = useWb((s) => s.setMean);
+  const unit = problem.quantity.unit;
+  const lenUnit = problem.grid.unit ?? '';
+  const dim = gridDimension(problem.grid);
+  const kind = 'constant' in mean ? 'constant' : 'trend' in mean ? 'trend' : 'values';
+  return (
+    <fieldset>
+      <legend>Mean m₀</legend>
+      <label className="inline">
+        Form{' '}
+        <select
+          data-testid="mean-kind"
+          value={kind}
+          title="Constant m₀ = c, or linear trend m₀(x, y) = a + b·x (+ c·y)"
+          onChange={(e) => {
+            const v = e.target.value;
+            if (v === 'constant') setMean({ constant: 'trend' in mean ? mean.trend.intercept : 0 });
+            else if (v === 'trend') {
+              const c = 'constant' in mean ? mean.constant : 0;
+              setMean({ trend: { intercept: c, slope: dim === 2 ? [0, 0] : [0] } });
+            }
+          }}
+        >
+          <option value="constant">constant</option>
+          <option value="trend">linear trend</option>
+          {kind === 'values' && <option value="values">from file (per cell)</option>}
+        </select>
+      </label>
+      {'constant' in mean && (
+        <NumberField
+          label="Value c"
+          value={mean.constant}
+          unit={unit}
+          tip="m₀ = c in every cell"
+          testId="mean-constant"
+          validate={() => null}
+          onCommit={(v) => setMean({ constant: v })}
+        />
+      )}
+      {'trend' in mean && (
+        <>
+          <NumberField
+            label="Intercept a"
+            value={mean.trend.intercept}
+            unit={unit}
+            tip="m₀(x, y) = a + b·x + c·y, at absolute coordinates"
+            testId="mean-intercept"
+            validate={() => null}
+            onCommit={(v) => setMean({ trend: { ...mean.trend, intercept: v } })}
+          />
+          {mean.trend.slope.map((b, k) => (
+            <NumberField
+              key={k}
+              label={k === 0 ? 'Slope b (x)' : 'Slope c (y)'}
+              value={b}
+              unit={`${unit}/${lenUnit}`}
+              tip="Change of m₀ per unit distance"
+              testId={`mean-slope-${k}`}
+              validate={() => null}
+              onCommit={(v) => {
+                const slope = [...mean.trend.slope];
+                slope[k] = v;
+                setMean({ trend: { ...mean.trend, slope } });
+              }}
+            />
+          ))}
+        </>
+      )}
+    </fieldset>
+  );
+}
+
+function TermEditor({ index, term, count, problem, refVar }: { index: number; term: Term; count: number; problem: ProblemView; refVar: number }) {
+  const updateTerm = useWb((s) => s.updateTerm);
+  const setKernel = useWb((s) => s.setKernel);
+  const setAnisotropic = useWb((s) => s.setAnisotropic);
+  const removeTerm = useWb((s) => s.removeTerm);
+  const moveTerm = useWb((s) => s.moveTerm);
+  const unit = problem.quantity.unit;
+  const varUnit = unit ? `(${unit})²` : '';
+  const lenUnit = problem.grid.unit ?? '';
+  const [lo, hi] = lengthRange(problem);
+  const dim = gridDimension(problem.grid);
+  const t = `term-${index}`;
+  return (
+    <li className="term" data-testid={t} aria-label={`Term ${index + 1}`}>
+      <div className="term-head">
+        <span className="term-no">{index + 1}</span>
+        <select
+          aria-label={`Kernel of term ${index + 1}`}
+          data-testid={`${t}-kernel`}
+          value={term.kernel}
+          title={KERNEL_INFO[term.kernel].formula}
+          onChange={(e) => setKernel(index, e.target.value as KernelName)}
+        >
+          {KERNEL_NAMES.map((k) => (
+            <option key={k} value={k} title={KERNEL_INFO[k].formula}>
+              {KERNEL_INFO[k].label}
+            </option>
+          ))}
+        </select>
+        <button type="button" aria-label={`Move term ${index + 1} up`} title="Move up" disabled={index === 0} onClick={() => moveTerm(index, -1)}>
+          ↑
+        </button>
+        <button
+          type="button"
+          aria-label={`Move term ${index + 1} down`}
+          title="Move down"
+          disabled={index === count - 1}
+          onClick={() => moveTerm(index, 1)}
+        >
+          ↓
+        </button>
+        <button type="button" aria-label={`Remove term ${index + 1}`} title="Remove this term" data-testid={`${t}-remove`} onClick={() => removeTerm(index)}>
+          ×
+        </button>
+      </div>
+      <LogSlider
+        label="Variance σ²"
+        value={term.variance}
+        min={refVar * 1e-4}
+        max={refVar * 1e3}
+        unit={varUnit}
+        tip="Contribution σ² ρ(h) to Cm; σ² is the variance of this term (its sill)"
+        testId={`${t}-variance`}
+        onChange={(v) => updateTerm(index, { variance: v })}
+      />
+      {dim === 2 && (
+        <label className="inline" title="Different lengths along two rotated axes: h = √((u/ℓ₁)² + (v/ℓ₂)²)">
+          <input
+            type="checkbox"
+            data-testid={`${t}-anisotropic`}
+            checked={term.lengths !== undefined}
+            onChange={(e) => setAnisotropic(index, e.target.checked)}
+          />{' '}
+          anisotropic
+        </label>
+      )}
+      {term.lengths ? (
+        <>
+          <LogSlider
+            label="Length ℓ₁"
+            value={term.lengths[0]}
+            min={lo}
+            max={hi}
+            unit={lenUnit}
+            tip="Length along the first (rotated) axis: u = cos θ·dx + sin θ·dy, h = √((u/ℓ₁)² + (v/ℓ₂)²)"
+            testId={`${t}-length1`}
+            onChange={(v) => updateTerm(index, { lengths: [v, term.lengths![1]] })}
+          />
+          <LogSlider
+            label="Length ℓ₂"
+            value={term.lengths[1]}
+            min={lo}
+            max={hi}
+            unit={lenUnit}
+            tip="Length across the first axis: v = −sin θ·dx + cos θ·dy"
+            testId={`${t}-length2`}
+            onChange={(v) => updateTerm(index, { lengths: [term.lengths![0], v] })}
+          />
+          <div className="log-slider">
+            <label htmlFor={`${t}-angle`} title="θ, degrees counter-clockwise from +x to the first axis">
+              Angle θ
+            </label>
+            <input
+              id={`${t}-angle`}
+              type="range"
+              min={-90}
+              max={90}
+              step={1}
+              value={term.angle ?? 0}
+              title="θ, degrees counter-clockwise from +x to the first axis"
+              data-testid={`${t}-angle-slider`}
+              onChange={(e) => updateTerm(index, { angle: Number(e.target.value) })}
+            />
+            <NumberField
+              label="Angle θ"
+              value={term.angle ?? 0}
+              unit="°"
+              tip="θ, degrees counter-clockwise from +x to the first axis"
+              testId={`${t}-angle-input`}
+              compact
+              validate={(v) => (v < -180 || v > 180 ? 'Angle must be between −180° and 180°' : null)}
+              onCommit={(v) => updateTerm(index, { angle: v })}
+            />
+          </div>
+        </>
+      ) : (
+        <LogSlider
+          label="Length ℓ"
+          value={term.length ?? 1}
+          min={lo}
+          max={hi}
+          unit={lenUnit}
+          tip="Correlation length: h = r/ℓ, r = distance between two cells"
+          testId={`${t}-length`}
+          onChange={(v) => updateTerm(index, { length: v })}
+        />
+      )}
+      {term.kernel === 'matern' && (
+        <LogSlider
+          label="Smoothness ν"
+          value={term.nu ?? 1.5}
+          min={0.1}
+          max={20}
+          unit=""
+          tip="Matérn ν: realisations are ⌈ν⌉−1 times differentiable; ν = ½ is exponential, ν → ∞ Gaussian"
+          testId={`${t}-nu`}
+          onChange={(v) => updateTerm(index, { nu: v })}
+        />
+      )}
+    </li>
+  );
+}

@@ -1,0 +1,73 @@
+/** Positive-definiteness status of the current prior covariance, always visible. */
+import { useWb } from './context.ts';
+
+function fmt(x: number): string {
+  if (!Number.isFinite(x)) return x > 0 ? '∞' : String(x);
+  if (x === 0) return '0';
+  const a = Math.abs(x);
+  return a >= 1e4 || a < 1e-3 ? x.toExponential(2) : x.toPrecision(3);
+}
+
+/** Condition numbers above this are reported as near-singular (common practice, no source). */
+export const NEAR_SINGULAR_CONDITION = 1e10;
+
+export type PdLevel = 'ok' | 'near-singular' | 'not-pd' | 'pending';
+
+export function pdLevel(d: { positiveDefinite: boolean; conditionNumber: number; suggestedJitter: number | null } | null): PdLevel {
+  if (!d) return 'pending';
+  if (!d.positiveDefinite) return 'not-pd';
+  if (d.conditionNumber > NEAR_SINGULAR_CONDITION || d.suggestedJitter !== null) return 'near-singular';
+  return 'ok';
+}
+
+const TEXT: Record<PdLevel, string> = {
+  ok: 'Cm factors (positive definite)',
+  'near-singular': 'Cm is near-singular',
+  'not-pd': 'Cm does not factor (not positive definite)',
+  pending: 'Checking Cm …',
+};
+
+export function StatusPanel() {
+  const d = useWb((s) => s.diagnostics);
+  const error = useWb((s) => s.errors.diagnostics ?? null);
+  const busy = useWb((s) => s.busy.diagnostics ?? false);
+  const apply = useWb((s) => s.applySuggestedJitter);
+  const unit = useWb((s) => s.problem?.quantity.unit ?? '');
+  const level = error ? 'pending' : pdLevel(d);
+  return (
+    <section className={`pd-status pd-${level}`} data-testid="pd-status" data-level={level} aria-live="polite" aria-label="Positive-definiteness status">
+      <strong data-testid="pd-text">{error ? 'Check failed' : TEXT[level]}</strong>
+      {busy && <span className="busy-dot" title="recomputing" aria-label="recomputing" />}
+      {d && !error && (
+        <span className="pd-numbers">
+          <span title="Smallest eigenvalue of Cm (λmin); Cm is positive definite when λmin > 0">
+            λ<sub>min</sub> = <span data-testid="pd-min-eig">{fmt(d.minEigenvalue)}</span>
+            {unit ? ` (${unit})²` : ''}
+          </span>
+          <span title="Condition number κ = λmax/λmin (∞ when λmin ≤ 0)">
+            κ = <span data-testid="pd-condition">{fmt(d.conditionNumber)}</span>
+          </span>
+          {d.suggestedJitter !== null && (
+            <>
+              <span title="Smallest diagonal jitter that lets Cm factor safely; adding it to the nugget applies it">
+                suggested jitter <span data-testid="pd-jitter">{fmt(d.suggestedJitter)}</span>
+                {unit ? ` (${unit})²` : ''}
+              </span>
+              <button type="button" data-testid="apply-jitter" onClick={apply} title="nugget ← nugget + suggested jitter">
+                Apply jitter
+              </button>
+            </>
+          )}
+        </span>
+      )}
+      {error && <span className="pd-warning">{error}</span>}
+      {d && !error && d.warnings.length > 0 && (
+        <ul className="pd-warnings" data-testid="pd-warnings">
+          {d.warnings.map((w) => (
+            <li key={w.code}>{w.message}</li>
+          ))}
+        </ul>
+      )}
+    </section>
+  );
+}

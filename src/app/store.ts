@@ -1,0 +1,340 @@
+/**
+ * The workbench store: one zustand store made of four slices (problem, prior, results, view).
+ * Framework-free (zustand/vanilla); React reads it through ./useWorkbench.ts. All numerics go
+ * through the worker client; the store only keeps plain specs and the typed-array results.
+ */
+import { createStore, type StoreApi } from 'zustand/vanilla';
+import type { PriorSpec, MeanSpec } from '../core/prior/spec.ts';
+import type { Term, KernelName } from '../core/kernels/spec.ts';
+import type { Diagnostics } from '../core/prior/diagnostics.ts';
+import type { Matrix } from '../core/linalg/matrix.ts';
+import { cellCount, gridDimension } from '../core/grid/grid.ts';
+import type { Outcome } from '../worker/client.ts';
+import type { Channel, PosteriorResult, ProblemView } from '../worker/protocol.ts';
+
+/** The subset of WorkerClient the store uses (a fake in unit tests). */
+export interface ClientPort {
+  loadDemo(demoId: string): Promise<Outcome<ProblemView>>;
+  posterior(prior: PriorSpec): Promise<Outcome<PosteriorResult>>;
+  diagnostics(prior: PriorSpec): Promise<Outcome<Diagnostics>>;
+  priorDraws(prior: PriorSpec, count: number, seed: number): Promise<Outcome<Matrix>>;
+  posteriorDraws(prior: PriorSpec, count: number, seed: number): Promise<Outcome<Matrix>>;
+  resolution(prior: PriorSpec, cell: number): Promise<Outcome<{ cell: number; row: Float64Array }>>;
+  covariance(prior: PriorSpec): Promise<Outcome<Matrix>>;
+  onRestart(listener: (reason: string) => void): () => void;
+}
+
+export type TabId = 'problem' | 'prior' | 'realisations' | 'posterior' | 'fit';
+export const TABS: readonly { id: TabId; label: string }[] = [
+  { id: 'problem', label: 'Problem' },
+  { id: 'prior', label: 'Prior' },
+  { id: 'realisations', label: 'Realisations' },
+  { id: 'posterior', label: 'Posterior' },
+  { id: 'fit', label: 'Data fit' },
+];
+
+/** Largest N for which the covariance heat map is requested. */
+export const COVARIANCE_VIEW_CELLS = 400;
+export const DRAW_COUNT = 6;
+
+type ResultChannel = Exclude<Channel, 'problem'>;
+
+export interface ProblemSlice {
+  demoId: string;
+  problem: ProblemView | null;
+  problemStatus: 'idle' | 'loading' | 'ready' | 'error';
+  problemError: string | null;
+}
+
+export interface PriorSlice {
+  prior: PriorSpec | null;
+  /** Incremented on every prior edit. */
+  priorRevision: number;
+}
+
+export interface ResultsSlice {
+  posterior: PosteriorResult | null;
+  diagnostics: Diagnostics | null;
+  priorDraws: Matrix | null;
+  posteriorDraws: Matrix | null;
+  resolution: { cell: number; row: Float64Array } | null;
+  covariance: Matrix | null;
+  /** Error message per channel for the current prior (null when fine). */
+  errors: Partial<Record<ResultChannel, string>>;
+  busy: Partial<Record<ResultChannel, boolean>>;
+  /** Key (revision, seed, cell) each result was computed for; avoids recomputing on tab switches. */
+  computedFor: Partial<Record<ResultChannel, string>>;
+  progress: { channel: Channel; stage: string; fraction: number } | null;
+}
+
+export interface ViewSlice {
+  tab: TabId;
+  seed: number;
+  selectedCell: number | null;
+  notice: string | null;
+}
+
+export interface Actions {
+  loadDemo(demoId: string): Promise<void>;
+  setPrior(prior: PriorSpec): void;
+  updateTerm(index: number, patch: Partial<Term>): void;
+  setKernel(index: number, kernel: KernelName): void;
+  setAnisotropic(index: number, on: boolean): void;
+  addTerm(): void;
+  removeTerm(index: number): void;
+  moveTerm(index: number, delta: -1 | 1): void;
+  setNugget(nugget: number): void;
+  setMean(mean: MeanSpec): void;
+  applySuggestedJitter(): void;
+  resetPrior(): void;
+  setTab(tab: TabId): void;
+  setSeed(seed: number): void;
+  newSeed(): void;
+  selectCell(cell: number | null): void;
+  setProgress(p: ResultsSlice['progress']): void;
+  dismissNotice(): void;
+  /** Request every result the current screen needs that is not up to date. */
+  refresh(): void;
+}
+
+export type WorkbenchState = ProblemSlice & PriorSlice & ResultsSlice & ViewSlice & Actions;
+export type WorkbenchStore = StoreApi<WorkbenchState>;
+
+const emptyResults = (): Omit<ResultsSlice, 'progress'> => ({
+  posterior: null,
+  diagnostics: null,
+  priorDraws: null,
+  posteriorDraws: null,
+  resolution: null,
+  covariance: null,
+  errors: {},
+  busy: {},
+  computedFor: {},
+});
+
+/** Performance mark names read by the UI benchmark. */
+export const MARK_PARAM_CHANGE = 'ps:param-change';
+export const MARK_POSTERIOR_DRAWN = 'ps:posterior-drawn';
+
+function mark(name: string): void {
+  if (typeof performance !== 'undefined' && typeof performance.mark === 'function') performance.mark(name);
+}
+
+/** Next seed in a fixed sequence (a 31-bit linear congruential step; any new value will do). */
+export function nextSeed(seed: number): number {
+  return (Math.imul(seed, 1103515245) + 12345) >>> 1;
+}
+
+export function createWorkbenchStore(client: ClientPort, initial: { demoId: string; seed?: number }): WorkbenchStore {
+  const store = createStore<WorkbenchState>()((set, get) => {
+    const editPrior = (f: (p: PriorSpec) => PriorSpec) => {
+      const p = get().prior;
+      if (!p) return;
+      mark(MARK_PARAM_CHANGE);
+      set({ prior: f(p), priorRevision: get().priorRevision + 1 });
+      get().refresh();
+    };
+    const editTerms = (f: (terms: Term[]) => Term[]) => editPrior((p) => ({ ...p, terms: f([...p.terms]) }));
+
+    /** Run one channel's request and store its result (ignoring superseded outcomes). */
+    const run = <T>(
+      channel: ResultChannel,
+      key: string,
+      call: () => Promise<Outcome<T>>,
+      apply: (value: T) => Partial<ResultsSlice>,
+    ) => {
+      const s = get();
+      if (s.computedFor[channel] === key && !s.errors[channel]) return;
+      set({ busy: { ...get().busy, [channel]: true }, computedFor: { ...get().computedFor, [channel]: key } });
+      call().then(
+        (o) => {
+          if (o.superseded) return;
+          const errors = { ...get().errors };
+          delete errors[channel];
+          set({ ...apply(o.value), errors, busy: { ...get().busy, [channel]: false }, progress: null });
+        },
+        (e: unknown) => {
+          const computedFor = { ...get().computedFor };
+          delete computedFor[channel];
+          set({
+            errors: { ...get().errors, [channel]: e instanceof Error ? e.message : String(e) },
+            busy: { ...get().busy, [channel]: false },
+            computedFor,
+            progress: null,
+          });
+        },
+      );
+    };
+
+    return {
+      demoId: initial.demoId,
+      problem: null,
+      problemStatus: 'idle',
+      problemError: null,
+      prior: null,
+      priorRevision: 0,
+      ...emptyResults(),
+      progress: null,
+      tab: 'posterior',
+      seed: initial.seed ?? 20240611,
+      selectedCell: null,
+      notice: null,
+
+      async loadDemo(demoId) {
+        set({ demoId, problemStatus: 'loading', problemError: null, ...emptyResults(), selectedCell: null });
+        try {
+          const o = await client.loadDemo(demoId);
+          if (o.superseded) return;
+          const view = o.value;
+          set({
+            problem: view,
+            problemStatus: 'ready',
+            prior: view.startPrior ?? defaultPrior(view),
+            priorRevision: get().priorRevision + 1,
+          });
+          get().refresh();
+        } catch (e) {
+          set({ problemStatus: 'error', problemError: e instanceof Error ? e.message : String(e) });
+        }
+      },
+
+      setPrior(prior) {
+        editPrior(() => prior);
+      },
+      updateTerm(index, patch) {
+        editTerms((terms) => terms.map((t, i) => (i === index ? { ...t, ...patch } : t)));
+      },
+      setKernel(index, kernel) {
+        editTerms((terms) =>
+          terms.map((t, i) => {
+            if (i !== index) return t;
+            const { nu: _nu, ...rest } = t;
+            return kernel === 'matern' ? { ...rest, kernel, nu: t.nu ?? 1.5 } : { ...rest, kernel };
+          }),
+        );
+      },
+      setAnisotropic(index, on) {
+        editTerms((terms) =>
+          terms.map((t, i) => {
+            if (i !== index) return t;
+            const { length, lengths, angle: _angle, ...rest } = t;
+            if (on) {
+              const l = length ?? lengths?.[0] ?? 1;
+              return { ...rest, lengths: [l, l] as const, angle: t.angle ?? 0 };
+            }
+            return { ...rest, length: lengths?.[0] ?? length ?? 1 };
+          }),
+        );
+      },
+      addTerm() {
+        const problem = get().problem;
+        if (!problem) return;
+        editTerms((terms) => [...terms, defaultTerm(problem)]);
+      },
+      removeTerm(index) {
+        editTerms((terms) => terms.filter((_, i) => i !== index));
+      },
+      moveTerm(index, delta) {
+        editTerms((terms) => {
+          const j = index + delta;
+          if (j < 0 || j >= terms.length) return terms;
+          const out = [...terms];
+          [out[index], out[j]] = [out[j]!, out[index]!];
+          return out;
+        });
+      },
+      setNugget(nugget) {
+        editPrior((p) => ({ ...p, nugget }));
+      },
+      setMean(mean) {
+        editPrior((p) => ({ ...p, mean }));
+      },
+      applySuggestedJitter() {
+        const j = get().diagnostics?.suggestedJitter;
+        if (j === null || j === undefined) return;
+        editPrior((p) => ({ ...p, nugget: (p.nugget ?? 0) + j }));
+      },
+      resetPrior() {
+        const v = get().problem;
+        if (v) editPrior(() => v.startPrior ?? defaultPrior(v));
+      },
+
+      setTab(tab) {
+        set({ tab });
+        get().refresh();
+      },
+      setSeed(seed) {
+        if (!Number.isInteger(seed) || seed < 0) return;
+        set({ seed });
+        get().refresh();
+      },
+      newSeed() {
+        get().setSeed(nextSeed(get().seed));
+      },
+      selectCell(cell) {
+        set({ selectedCell: cell, ...(cell === null ? { resolution: null } : {}) });
+        get().refresh();
+      },
+      setProgress(progress) {
+        set({ progress });
+      },
+      dismissNotice() {
+        set({ notice: null });
+      },
+
+      refresh() {
+        const s = get();
+        const prior = s.prior;
+        const problem = s.problem;
+        if (!prior || !problem || s.problemStatus !== 'ready') return;
+        const rev = `${problem.version}:${s.priorRevision}`;
+        run('posterior', rev, () => client.posterior(prior), (posterior) => ({ posterior }));
+        run('diagnostics', rev, () => client.diagnostics(prior), (diagnostics) => ({ diagnostics }));
+        if (s.tab === 'posterior' && s.selectedCell !== null) {
+          const cell = s.selectedCell;
+          run('resolution', `${rev}:${cell}`, () => client.resolution(prior, cell), (resolution) => ({ resolution }));
+        }
+        if (s.tab === 'realisations') {
+          const key = `${rev}:${s.seed}`;
+          const seed = s.seed;
+          run('priorDraws', key, () => client.priorDraws(prior, DRAW_COUNT, seed), (priorDraws) => ({ priorDraws }));
+          run('posteriorDraws', key, () => client.posteriorDraws(prior, DRAW_COUNT, seed), (posteriorDraws) => ({
+            posteriorDraws,
+          }));
+        }
+        if (s.tab === 'prior' && cellCount(problem.grid) <= COVARIANCE_VIEW_CELLS) {
+          run('covariance', rev, () => client.covariance(prior), (covariance) => ({ covariance }));
+        }
+      },
+    };
+  });
+
+  client.onRestart((reason) => {
+    store.setState({
+      notice: `The numerics worker stopped (${reason}); it was restarted and the results are being recomputed.`,
+      computedFor: {},
+      busy: {},
+    });
+    store.getState().refresh();
+  });
+  return store;
+}
+
+/** A prior to start from when a problem brings none: one exponential term, a tenth of the extent. */
+export function defaultPrior(problem: ProblemView): PriorSpec {
+  return { mean: { constant: 0 }, terms: [defaultTerm(problem)], nugget: 0 };
+}
+
+export function defaultTerm(problem: ProblemView): Term {
+  const g = problem.grid;
+  const extent = Math.max(...g.shape.map((n, k) => n * g.spacing[k]!));
+  const length = roundTo2(extent / 10);
+  return gridDimension(g) === 2
+    ? { kernel: 'exponential', variance: 1, length }
+    : { kernel: 'exponential', variance: 1, length };
+}
+
+function roundTo2(x: number): number {
+  const p = 10 ** Math.floor(Math.log10(x));
+  return Math.round((x / p) * 10) / 10 * p;
+}

@@ -1,0 +1,166 @@
+/**
+ * The message protocol between the workbench (main thread) and the numerics worker.
+ *
+ * Every request carries an `id`; every reply names the id it answers and holds either a result or a
+ * serialised error. Long work may send `progress` messages first. Float64Array buffers in results are
+ * transferred (zero-copy), not cloned. Requests of one `channel` supersede each other: only the
+ * newest pending request of a channel is ever run (see ./client.ts and ./worker.ts).
+ *
+ * The problem is sent once (`loadDemo` or `setProblem`) and kept by the worker; every later request
+ * names the `problemVersion` it was made for, so work for a replaced problem is refused, not run.
+ */
+import type { Diagnostics } from '../core/prior/diagnostics.ts';
+import type { PriorSpec } from '../core/prior/spec.ts';
+import type { Problem } from '../core/problems/spec.ts';
+import type { Grid } from '../core/grid/grid.ts';
+import type { Matrix } from '../core/linalg/matrix.ts';
+import type { PosteriorSummary } from '../core/inverse/types.ts';
+
+/** What the main thread needs to draw a problem (the operator itself stays in the worker). */
+export interface ProblemView {
+  readonly version: number;
+  readonly demoId: string | null;
+  readonly title: string;
+  readonly description: string;
+  readonly grid: Grid;
+  readonly dataCount: number;
+  readonly values: Float64Array;
+  /** Per-datum standard deviation (√diag Cd for a full data covariance). */
+  readonly sigma: Float64Array;
+  readonly truth: Float64Array | null;
+  /** Sensitivity / coverage: column sums of |G|, length N. */
+  readonly coverage: Float64Array;
+  readonly operatorKind: 'dense' | 'sparse';
+  /** Non-zeros of G (all entries for a dense G). */
+  readonly operatorNonZeros: number;
+  readonly quantity: { readonly name: string; readonly unit: string };
+  readonly startPrior: PriorSpec | null;
+  readonly truthPrior: PriorSpec | null;
+}
+
+/** Posterior summary plus the χ² interval of the data fit, when the χ² quantile function exists. */
+export interface PosteriorResult {
+  readonly summary: PosteriorSummary;
+  /** Central 95% interval of χ²_M / M (from χ² quantiles 0.025 and 0.975), or null if unavailable. */
+  readonly chi2Interval: readonly [number, number] | null;
+}
+
+export interface RequestBase {
+  readonly id: number;
+}
+
+/** Requests of one channel supersede each other (latest wins). */
+export type Channel = 'problem' | 'posterior' | 'diagnostics' | 'priorDraws' | 'posteriorDraws' | 'resolution' | 'covariance';
+
+/** Order in which the worker runs pending channels: the posterior plot first. */
+export const CHANNEL_PRIORITY: readonly Channel[] = [
+  'problem',
+  'posterior',
+  'diagnostics',
+  'resolution',
+  'priorDraws',
+  'posteriorDraws',
+  'covariance',
+];
+
+export type WorkerRequest =
+  | (RequestBase & { readonly kind: 'loadDemo'; readonly version: number; readonly demoId: string })
+  | (RequestBase & { readonly kind: 'setProblem'; readonly version: number; readonly problem: Problem })
+  | (RequestBase & { readonly kind: 'posterior'; readonly problemVersion: number; readonly prior: PriorSpec })
+  | (RequestBase & { readonly kind: 'diagnostics'; readonly problemVersion: number; readonly prior: PriorSpec })
+  | (RequestBase & {
+      readonly kind: 'priorDraws';
+      readonly problemVersion: number;
+      readonly prior: PriorSpec;
+      readonly count: number;
+      readonly seed: number;
+    })
+  | (RequestBase & {
+      readonly kind: 'posteriorDraws';
+      readonly problemVersion: number;
+      readonly prior: PriorSpec;
+      readonly count: number;
+      readonly seed: number;
+    })
+  | (RequestBase & { readonly kind: 'resolution'; readonly problemVersion: number; readonly prior: PriorSpec; readonly cell: number })
+  | (RequestBase & { readonly kind: 'covariance'; readonly problemVersion: number; readonly prior: PriorSpec })
+  /** Drop a queued request (no reply is sent for it). */
+  | (RequestBase & { readonly kind: 'cancel'; readonly target: number });
+
+export type RequestKind = Exclude<WorkerRequest['kind'], 'cancel'>;
+
+/** Result type of each request kind. */
+export interface ResultMap {
+  loadDemo: ProblemView;
+  setProblem: ProblemView;
+  posterior: PosteriorResult;
+  diagnostics: Diagnostics;
+  priorDraws: Matrix;
+  posteriorDraws: Matrix;
+  resolution: { readonly cell: number; readonly row: Float64Array };
+  covariance: Matrix;
+}
+
+/** The channel each request kind belongs to. */
+export function channelOf(kind: RequestKind): Channel {
+  switch (kind) {
+    case 'loadDemo':
+    case 'setProblem':
+      return 'problem';
+    case 'posterior':
+    case 'diagnostics':
+    case 'priorDraws':
+    case 'posteriorDraws':
+    case 'resolution':
+    case 'covariance':
+      return kind;
+    default:
+      return assertNever(kind);
+  }
+}
+
+/** An error as it crosses the worker boundary. `field` is set for input errors. */
+export interface SerialisedError {
+  readonly name: string;
+  readonly message: string;
+  readonly field?: string;
+}
+
+export type WorkerReply =
+  | { readonly type: 'result'; readonly id: number; readonly result: ResultMap[RequestKind] }
+  | { readonly type: 'error'; readonly id: number; readonly error: SerialisedError }
+  | { readonly type: 'progress'; readonly id: number; readonly stage: string; readonly fraction: number }
+  /** Sent for a queued request the worker dropped because a newer one of its channel arrived. */
+  | { readonly type: 'superseded'; readonly id: number };
+
+export function serialiseError(e: unknown): SerialisedError {
+  if (e instanceof Error) {
+    const field = (e as { field?: unknown }).field;
+    return typeof field === 'string' ? { name: e.name, message: e.message, field } : { name: e.name, message: e.message };
+  }
+  return { name: 'Error', message: String(e) };
+}
+
+/** Every distinct ArrayBuffer reachable in a result, for postMessage's transfer list. */
+export function transferables(value: unknown, out: ArrayBuffer[] = [], seen = new Set<unknown>()): ArrayBuffer[] {
+  if (value === null || typeof value !== 'object' || seen.has(value)) return out;
+  seen.add(value);
+  if (ArrayBuffer.isView(value)) {
+    // Only whole-buffer arrays move; a view into a larger buffer (which the sender may still need) is cloned.
+    const buf = value.buffer;
+    if (buf instanceof ArrayBuffer && value.byteOffset === 0 && value.byteLength === buf.byteLength && !out.includes(buf)) {
+      out.push(buf);
+    }
+    return out;
+  }
+  if (Array.isArray(value)) {
+    for (const v of value) transferables(v, out, seen);
+    return out;
+  }
+  for (const v of Object.values(value as Record<string, unknown>)) transferables(v, out, seen);
+  return out;
+}
+
+export function assertNever(x: never): never {
+  throw new Error(`unexpected variant: ${JSON.stringify(x)}`);
+}

@@ -1,0 +1,54 @@
+/// <reference lib="webworker" />
+/**
+ * Worker entry: receives requests, keeps only the newest pending one per channel (./queue.ts),
+ * runs them one at a time on the {@link Engine}, and transfers result buffers back.
+ */
+import { Engine } from './engine.ts';
+import { LatestWinsQueue } from './queue.ts';
+import { channelOf, serialiseError, transferables, type WorkerReply, type WorkerRequest } from './protocol.ts';
+
+type Job = Exclude<WorkerRequest, { kind: 'cancel' }>;
+
+const scope = self as unknown as DedicatedWorkerGlobalScope;
+const engine = new Engine();
+const queue = new LatestWinsQueue<Job>();
+let scheduled = false;
+let running = false;
+
+function post(reply: WorkerReply, transfer: Transferable[] = []): void {
+  scope.postMessage(reply, transfer);
+}
+
+function schedule(): void {
+  if (scheduled || running) return;
+  scheduled = true;
+  // A macrotask, so that messages that arrived during the last job are queued (and coalesced) first.
+  setTimeout(drain, 0);
+}
+
+async function drain(): Promise<void> {
+  scheduled = false;
+  const job = queue.take();
+  if (!job) return;
+  running = true;
+  try {
+    const result = await engine.handle(job, (stage, fraction) => post({ type: 'progress', id: job.id, stage, fraction }));
+    post({ type: 'result', id: job.id, result }, transferables(result));
+  } catch (e) {
+    post({ type: 'error', id: job.id, error: serialiseError(e) });
+  } finally {
+    running = false;
+    if (queue.size > 0) schedule();
+  }
+}
+
+scope.onmessage = (ev: MessageEvent<WorkerRequest>) => {
+  const req = ev.data;
+  if (req.kind === 'cancel') {
+    if (queue.remove(req.target)) post({ type: 'superseded', id: req.target });
+    return;
+  }
+  const replaced = queue.push(channelOf(req.kind), req);
+  if (replaced) post({ type: 'superseded', id: replaced.id });
+  schedule();
+};
