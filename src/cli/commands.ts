@@ -1,0 +1,334 @@
+/**
+ * The commands of `priorscope`: a thin layer that reads files through src/core/io, calls the core
+ * and writes JSON (or CSV / .npy for samples). Each command returns its exit code:
+ * 0 ok, 2 bad input, 3 `check` found the prior not positive definite.
+ */
+import { dirname, resolve } from 'node:path';
+import { KERNEL_NAMES, type KernelName } from '../core/kernels/spec.ts';
+import { correlation } from '../core/kernels/correlation.ts';
+import type { Matrix } from '../core/linalg/matrix.ts';
+import { assertNever } from '../core/linalg/operator.ts';
+import { diagnosePrior } from '../core/prior/diagnostics.ts';
+import { priorRealisations } from '../core/sampling/realisations.ts';
+import { posteriorRealisations, posteriorSummary, preparePosterior } from '../core/inverse/posterior.ts';
+import { DEMOS } from '../core/problems/demos.ts';
+import type { FileWarning } from '../core/io/errors.ts';
+import { writeCsv } from '../core/io/csv.ts';
+import { formatJson } from '../core/io/json.ts';
+import { writeNpyMatrix } from '../core/io/npy.ts';
+import { writePriorFile } from '../core/io/priorFile.ts';
+import { writeProblemFile } from '../core/io/problemFile.ts';
+import { cellCount } from '../core/grid/grid.ts';
+import {
+  optionFlag,
+  optionString,
+  parseNumberListOption,
+  parseNumberOption,
+  UsageError,
+  type OptionSpec,
+  type ParsedArgs,
+} from './args.ts';
+import { loadPrior, loadProblem, writeOutputFile } from './files.ts';
+
+/** Where a command writes: stdout / stderr of the process, replaceable in tests. */
+export interface Io {
+  stdout(content: string | Uint8Array): void;
+  stderr(line: string): void;
+  /** True when stdout / stderr are terminals (progress lines and the binary-output guard). */
+  readonly stdoutIsTTY: boolean;
+  readonly stderrIsTTY: boolean;
+}
+
+export interface Command {
+  readonly name: string;
+  readonly summary: string;
+  readonly usage: string;
+  /** Longer description printed by `priorscope <command> --help`. */
+  readonly details: string;
+  readonly options: readonly OptionSpec[];
+  readonly available: boolean;
+  run(args: ParsedArgs, io: Io): number;
+}
+
+const OUT: OptionSpec = { name: 'out', value: 'FILE', help: 'write the result to FILE instead of stdout' };
+const PROBLEM: OptionSpec = { name: 'problem', value: 'P.json', help: 'problem file (kind "priorscope.problem", version 1)', required: true };
+const PRIOR: OptionSpec = { name: 'prior', value: 'Q.json', help: 'prior file (kind "priorscope.prior", version 1)', required: true };
+
+/** JSON text of a result (see formatJson: NaN and ±Infinity become null). */
+export function toJson(value: unknown): string {
+  return formatJson(value);
+}
+
+function emit(io: Io, args: ParsedArgs, content: string | Uint8Array): void {
+  const out = optionString(args, 'out');
+  if (out !== undefined) writeOutputFile(out, content);
+  else io.stdout(content);
+}
+
+function reportWarnings(io: Io, warnings: readonly FileWarning[]): void {
+  for (const w of warnings) io.stderr(`warning: ${w.message}`);
+}
+
+function progress(io: Io, line: string): void {
+  if (io.stderrIsTTY) io.stderr(`priorscope: ${line}`);
+}
+
+function loadBoth(args: ParsedArgs, io: Io) {
+  const problemPath = optionString(args, 'problem')!;
+  const priorPath = optionString(args, 'prior')!;
+  const p = loadProblem(problemPath);
+  const q = loadPrior(priorPath, p.problem.grid);
+  reportWarnings(io, p.warnings);
+  reportWarnings(io, q.warnings);
+  return { problem: p.problem, prior: q.prior };
+}
+
+function noPositionals(args: ParsedArgs): void {
+  if (args.positionals.length > 0) throw new UsageError(`unexpected argument ${JSON.stringify(args.positionals[0])}`);
+}
+
+const posterior: Command = {
+  name: 'posterior',
+  summary: 'posterior mean, standard deviation, residuals and log-evidence',
+  usage: 'priorscope posterior --problem P.json --prior Q.json [--out FILE]',
+  details:
+    'Prints {"mean": [N], "std": [N], "priorStd": [N], "predicted": [M], "residuals": [M], "chi2", "logEvidence",\n' +
+    '"resolutionTrace", "dataCount", "parameterCount", "path": "dense" | "fft"}. residuals are normalised\n' +
+    '((d − G m̃)/σ, or Ld⁻¹ (d − G m̃) for a full data covariance Cd = Ld Ldᵀ) and chi2 is their sum of squares.\n' +
+    'logEvidence is the natural log of N(d; G m0, G Cm Gᵀ + Cd), including −(M/2) log 2π.',
+  options: [PROBLEM, PRIOR, OUT],
+  available: true,
+  run(args, io) {
+    noPositionals(args);
+    const { problem, prior } = loadBoth(args, io);
+    progress(io, `posterior for ${cellCount(problem.grid)} cells and ${problem.data.values.length} data …`);
+    const s = posteriorSummary(preparePosterior(problem, prior));
+    emit(
+      io,
+      args,
+      toJson({
+        mean: s.mean,
+        std: s.std,
+        priorStd: s.priorStd,
+        predicted: s.predicted,
+        residuals: s.residuals,
+        chi2: s.chi2,
+        logEvidence: s.logEvidence,
+        resolutionTrace: s.resolutionTrace,
+        dataCount: s.dataCount,
+        parameterCount: s.parameterCount,
+        path: s.path,
+      }),
+    );
+    return 0;
+  },
+};
+
+const check: Command = {
+  name: 'check',
+  summary: 'is the prior covariance positive definite on the problem grid? (exit 3 if not)',
+  usage: 'priorscope check --problem P.json --prior Q.json [--out FILE]',
+  details:
+    'Prints {"positiveDefinite", "failedPivot", "minEigenvalue", "maxEigenvalue", "conditionNumber",\n' +
+    '"eigenvalueMethod", "suggestedJitter", "suggestedJitterRelative", "warnings": [{"code", "message"}]}.\n' +
+    'conditionNumber is null when it is infinite (λmin ≤ 0); suggestedJitter (variance units, to add to the\n' +
+    'nugget) is null when none is needed. Exit code 0 when positive definite, 3 when not.',
+  options: [PROBLEM, PRIOR, OUT],
+  available: true,
+  run(args, io) {
+    noPositionals(args);
+    const { problem, prior } = loadBoth(args, io);
+    progress(io, `checking the prior on ${cellCount(problem.grid)} cells …`);
+    const d = diagnosePrior(problem.grid, prior);
+    emit(
+      io,
+      args,
+      toJson({
+        positiveDefinite: d.positiveDefinite,
+        failedPivot: d.failedPivot,
+        minEigenvalue: d.minEigenvalue,
+        maxEigenvalue: d.maxEigenvalue,
+        conditionNumber: Number.isFinite(d.conditionNumber) ? d.conditionNumber : null,
+        eigenvalueMethod: d.eigenvalueMethod,
+        suggestedJitter: d.suggestedJitter,
+        suggestedJitterRelative: d.suggestedJitterRelative,
+        warnings: d.warnings,
+      }),
+    );
+    if (!d.positiveDefinite) io.stderr('priorscope check: the prior covariance is not positive definite on this grid');
+    return d.positiveDefinite ? 0 : 3;
+  },
+};
+
+type SampleFormat = 'json' | 'csv' | 'npy';
+
+/** Largest count × N written by `sample` (8 bytes each: 1 GiB of float64). */
+export const MAX_SAMPLE_VALUES = 2 ** 27;
+
+const sample: Command = {
+  name: 'sample',
+  summary: 'seeded prior (or posterior) realisations, one per row',
+  usage: 'priorscope sample --problem P.json --prior Q.json --count K --seed S [--posterior] [--format json|csv|npy] [--out FILE]',
+  details:
+    'Draws K realisations of the prior N(m0, Cm) on the problem grid, or of the posterior with --posterior.\n' +
+    'The same seed gives byte-identical output. Formats: json (default) prints {"kind": "prior" | "posterior",\n' +
+    '"seed", "count", "parameterCount", "realisations": [[N numbers], … K rows]}; csv prints K lines of N\n' +
+    'numbers (no header); npy writes a K × N float64 array (binary: use --out, or redirect stdout).\n' +
+    'Without --format, an --out name ending in .csv or .npy chooses that format.',
+  options: [
+    PROBLEM,
+    PRIOR,
+    { name: 'count', value: 'K', help: 'number of realisations (positive integer)', required: true },
+    { name: 'seed', value: 'S', help: 'seed, an integer from 0 to 4294967295', required: true },
+    { name: 'posterior', help: 'sample the posterior instead of the prior' },
+    { name: 'format', value: 'json|csv|npy', help: 'output format (default json)' },
+    OUT,
+  ],
+  available: true,
+  run(args, io) {
+    noPositionals(args);
+    const count = parseNumberOption('count', optionString(args, 'count')!, { integer: true, ge: 1 });
+    const seed = parseNumberOption('seed', optionString(args, 'seed')!, { integer: true, ge: 0, le: 0xffffffff });
+    const out = optionString(args, 'out');
+    const formatText = optionString(args, 'format') ?? (out?.toLowerCase().endsWith('.npy') ? 'npy' : out?.toLowerCase().endsWith('.csv') ? 'csv' : 'json');
+    if (formatText !== 'json' && formatText !== 'csv' && formatText !== 'npy') {
+      throw new UsageError(`--format must be one of json, csv, npy, got ${JSON.stringify(formatText)}`);
+    }
+    const format: SampleFormat = formatText;
+    if (format === 'npy' && out === undefined && io.stdoutIsTTY) {
+      throw new UsageError('--format npy writes binary data: give --out FILE or redirect stdout to a file');
+    }
+    const { problem, prior } = loadBoth(args, io);
+    const n = cellCount(problem.grid);
+    if (count * n > MAX_SAMPLE_VALUES) {
+      throw new UsageError(`--count must be at most ${Math.floor(MAX_SAMPLE_VALUES / n)} for ${n} cells (${MAX_SAMPLE_VALUES} values in all), got ${count}`);
+    }
+    const post = optionFlag(args, 'posterior');
+    progress(io, `drawing ${count} ${post ? 'posterior' : 'prior'} realisations on ${n} cells …`);
+    const m: Matrix = post ? posteriorRealisations(preparePosterior(problem, prior), count, seed) : priorRealisations(problem.grid, prior, count, seed);
+    switch (format) {
+      case 'json': {
+        const rows = Array.from({ length: m.rows }, (_, i) => m.data.subarray(i * m.cols, (i + 1) * m.cols));
+        emit(io, args, toJson({ kind: post ? 'posterior' : 'prior', seed, count, parameterCount: m.cols, realisations: rows }));
+        break;
+      }
+      case 'csv':
+        emit(io, args, writeCsv(m));
+        break;
+      case 'npy':
+        emit(io, args, writeNpyMatrix(m));
+        break;
+      default:
+        assertNever(format);
+    }
+    return 0;
+  },
+};
+
+const correlationCommand: Command = {
+  name: 'correlation',
+  summary: 'a kernel’s correlation at given scaled distances',
+  usage: 'priorscope correlation --kernel exponential|gaussian|matern|spherical [--nu V] --lags 0,0.5,1 [--out FILE]',
+  details:
+    'Prints {"kernel", "nu" (matern only), "lags": [...], "values": [...]}: the correlation ρ(h) at scaled\n' +
+    'distance h = r / length: exponential e^(−h), gaussian e^(−h²/2), matern (Rasmussen & Williams 2006,\n' +
+    'eq. 4.14) with smoothness --nu (required for matern), spherical 1 − 1.5h + 0.5h³ for h < 1, else 0.',
+  options: [
+    { name: 'kernel', value: 'NAME', help: KERNEL_NAMES.join(', '), required: true },
+    { name: 'nu', value: 'V', help: 'Matérn smoothness ν > 0 (matern only)' },
+    { name: 'lags', value: 'H1,H2,…', help: 'scaled distances h ≥ 0, comma-separated', required: true },
+    OUT,
+  ],
+  available: true,
+  run(args, io) {
+    noPositionals(args);
+    const kernelText = optionString(args, 'kernel')!;
+    if (!(KERNEL_NAMES as readonly string[]).includes(kernelText)) {
+      throw new UsageError(`--kernel must be one of ${KERNEL_NAMES.join(', ')}, got ${JSON.stringify(kernelText)}`);
+    }
+    const kernel = kernelText as KernelName;
+    const nuText = optionString(args, 'nu');
+    let nu: number | undefined;
+    if (kernel === 'matern') {
+      if (nuText === undefined) throw new UsageError('--nu V is required for the matern kernel (smoothness ν > 0)');
+      nu = parseNumberOption('nu', nuText, { gt: 0 });
+    } else if (nuText !== undefined) {
+      io.stderr(`warning: --nu is ignored for the ${kernel} kernel (only matern has a smoothness)`);
+    }
+    const lags = parseNumberListOption('lags', optionString(args, 'lags')!, { ge: 0 });
+    const values = lags.map((h) => correlation(kernel, h, nu));
+    emit(io, args, toJson(nu === undefined ? { kernel, lags, values } : { kernel, nu, lags, values }));
+    return 0;
+  },
+};
+
+const tune: Command = {
+  name: 'tune',
+  summary: 'log-evidence grid over one term’s length and variance (not available yet)',
+  usage: 'priorscope tune --problem P.json --prior Q.json --term 0 --lengths lo:hi:n --variances lo:hi:n',
+  details: 'Not available yet: this command arrives with the tuning issue. Until then it exits with code 2.',
+  options: [
+    PROBLEM,
+    PRIOR,
+    { name: 'term', value: 'K', help: 'index of the term to tune' },
+    { name: 'lengths', value: 'lo:hi:n', help: 'length grid' },
+    { name: 'variances', value: 'lo:hi:n', help: 'variance grid' },
+    OUT,
+  ],
+  available: false,
+  run(_args, io) {
+    io.stderr('priorscope tune: not available until the tuning issue lands; no output was written');
+    return 2;
+  },
+};
+
+const demo: Command = {
+  name: 'demo',
+  summary: 'list the built-in problems, or write one as a problem file',
+  usage: 'priorscope demo --list | priorscope demo NAME [--out P.json] [--prior Q.json] [--truth-prior T.json] [--operator-file G.npy|G.mtx|G.csv]',
+  details:
+    '--list prints [{"id", "title", "description"}]. demo NAME writes the problem file (to --out or stdout);\n' +
+    '--prior also writes the suggested starting prior, --truth-prior the prior the synthetic truth was drawn\n' +
+    'from; --operator-file stores the operator in a sibling file (named relative to the problem file) instead\n' +
+    'of inline.',
+  options: [
+    { name: 'list', help: 'list the built-in problems' },
+    OUT,
+    { name: 'prior', value: 'Q.json', help: 'also write the starting prior file' },
+    { name: 'truth-prior', value: 'T.json', help: 'also write the prior of the synthetic truth' },
+    { name: 'operator-file', value: 'NAME', help: 'store the operator in this sibling file (.npy, .mtx or .csv)' },
+  ],
+  available: true,
+  run(args, io) {
+    if (optionFlag(args, 'list')) {
+      if (args.positionals.length > 0) throw new UsageError('--list takes no demo name');
+      emit(io, args, toJson(DEMOS.map((d) => ({ id: d.id, title: d.title, description: d.description }))));
+      return 0;
+    }
+    if (args.positionals.length !== 1) {
+      throw new UsageError(`give one demo name (${DEMOS.map((d) => d.id).join(', ')}) or --list`);
+    }
+    const name = args.positionals[0]!;
+    const d = DEMOS.find((x) => x.id === name);
+    if (!d) throw new UsageError(`demo name must be one of ${DEMOS.map((x) => x.id).join(', ')}, got ${JSON.stringify(name)}`);
+    const opFile = optionString(args, 'operator-file');
+    if (opFile !== undefined && !/\.(npy|mtx|csv)$/i.test(opFile)) {
+      throw new UsageError(`--operator-file must end in .npy, .mtx or .csv, got ${JSON.stringify(opFile)}`);
+    }
+    const out = optionString(args, 'out');
+    if (opFile !== undefined && out === undefined) throw new UsageError('--operator-file needs --out (the operator file is written next to it)');
+    const built = d.build();
+    const written = writeProblemFile(built.problem, opFile === undefined ? 'inline' : { file: opFile });
+    if (written.operatorFile && out !== undefined) {
+      writeOutputFile(resolve(dirname(resolve(out)), written.operatorFile.name), written.operatorFile.bytes);
+    }
+    emit(io, args, written.json);
+    const priorOut = optionString(args, 'prior');
+    if (priorOut !== undefined) writeOutputFile(priorOut, writePriorFile(built.startPrior, priorOut));
+    const truthOut = optionString(args, 'truth-prior');
+    if (truthOut !== undefined) writeOutputFile(truthOut, writePriorFile(built.truthPrior, truthOut));
+    return 0;
+  },
+};
+
+export const COMMANDS: readonly Command[] = [posterior, check, sample, correlationCommand, tune, demo];

@@ -1,0 +1,192 @@
+/**
+ * The prior file: JSON `{"kind": "priorscope.prior", "version": 1, …}` ⇄ PriorSpec.
+ *
+ *   mean        {"constant": c} | {"values": [N numbers]} | {"trend": {"intercept": a, "slope": [b1] or [b1, b2]}}
+ *   terms       [{"kernel": "exponential"|"gaussian"|"matern"|"spherical", "variance": > 0,
+ *                 "length": > 0  — or, in 2-D, "lengths": [l1, l2] (> 0) with optional "angle" (degrees),
+ *                 "nu": > 0 (matern only, required there)}, …]
+ *   nugget      ≥ 0 (optional, default 0), variance units
+ *   stdProfile  N numbers > 0 (optional)
+ *
+ * The meaning of each field is the core's (src/core/prior/spec.ts, src/core/kernels/spec.ts).
+ * Reading keeps exactly the fields present (no defaults are filled in), so that
+ * parse(write(spec)) deep-equals spec and write(parse(text)) = text for text this module wrote.
+ * Unknown fields give warnings (and are dropped); an `angle` on an isotropic term and a `nu` on a
+ * non-Matérn term are kept in the spec (for the exact round trip) but warned about: the core ignores them.
+ */
+import type { Grid } from '../grid/grid.ts';
+import { cellCount } from '../grid/grid.ts';
+import { KERNEL_NAMES, type KernelName, type Term } from '../kernels/spec.ts';
+import type { MeanSpec, PriorSpec } from '../prior/spec.ts';
+import { assertNever } from '../linalg/operator.ts';
+import { fieldError, FileFormatError, type FileWarning } from './errors.ts';
+import { formatJson, JsonReader, parseJsonText } from './json.ts';
+
+export const PRIOR_KIND = 'priorscope.prior';
+export const PRIOR_VERSION = 1;
+
+export interface PriorFileResult {
+  readonly prior: PriorSpec;
+  readonly warnings: readonly FileWarning[];
+}
+
+export interface PriorReadOptions {
+  /** When given, lengths that depend on the grid (mean.values, stdProfile, 2-D-only fields) are checked. */
+  readonly grid?: Grid;
+}
+
+const TOP_FIELDS = ['kind', 'version', 'mean', 'terms', 'nugget', 'stdProfile'] as const;
+const TERM_FIELDS = ['kernel', 'variance', 'length', 'lengths', 'angle', 'nu'] as const;
+
+/** Check `kind` and `version` of a parsed file object (shared with the problem file). */
+export function checkKindVersion(r: JsonReader, obj: Record<string, unknown>, kind: string, version: number): void {
+  const k = obj.kind;
+  if (k !== kind) {
+    const hint = typeof k === 'string' && k.startsWith('priorscope.') ? ` (this is a ${k.slice(11)} file)` : '';
+    r.fail('kind', `"${kind}"${hint}`, k);
+  }
+  if (obj.version !== version) r.fail('version', `${version} (the version this program reads)`, obj.version);
+}
+
+function readMean(r: JsonReader, value: unknown): MeanSpec {
+  const obj = r.object(value, 'mean', ['constant', 'values', 'trend']);
+  const forms = ['constant', 'values', 'trend'].filter((k) => obj[k] !== undefined);
+  if (forms.length !== 1) {
+    r.fail('mean', 'an object with exactly one of constant, values, trend', forms.length === 0 ? 'none of them' : forms.join(' and '));
+  }
+  if (obj.constant !== undefined) return { constant: r.number(obj.constant, 'mean.constant') };
+  if (obj.values !== undefined) return { values: r.numbers(obj.values, 'mean.values') };
+  const t = r.object(obj.trend, 'mean.trend', ['intercept', 'slope']);
+  const intercept = r.number(r.required(t, 'mean.trend', 'intercept', 'a finite number'), 'mean.trend.intercept');
+  const slope = r.numbers(r.required(t, 'mean.trend', 'slope', 'an array of 1 or 2 numbers'), 'mean.trend.slope');
+  if (slope.length !== 1 && slope.length !== 2) r.fail('mean.trend.slope', 'an array of 1 or 2 numbers', slope);
+  return { trend: { intercept, slope } };
+}
+
+function readTerm(r: JsonReader, value: unknown, k: number): Term {
+  const f = `terms[${k}]`;
+  const obj = r.object(value, f, TERM_FIELDS);
+  const kernelValue = obj.kernel;
+  if (typeof kernelValue !== 'string' || !(KERNEL_NAMES as readonly string[]).includes(kernelValue)) {
+    r.fail(`${f}.kernel`, `one of ${KERNEL_NAMES.map((n) => `"${n}"`).join(', ')}`, kernelValue);
+  }
+  const kernel = kernelValue as KernelName;
+  const variance = r.number(obj.variance, `${f}.variance`, { gt: 0 });
+  const term: { -readonly [K in keyof Term]: Term[K] } = { kernel, variance };
+  if (obj.length !== undefined && obj.lengths !== undefined) {
+    r.fail(f, 'a term with either length (isotropic) or lengths (anisotropic 2-D), not both', 'both');
+  }
+  if (obj.lengths !== undefined) {
+    const l = r.numbers(obj.lengths, `${f}.lengths`, 2, { gt: 0 });
+    term.lengths = [l[0]!, l[1]!];
+    if (obj.angle !== undefined) term.angle = r.number(obj.angle, `${f}.angle`);
+  } else {
+    if (obj.length === undefined) r.fail(`${f}.length`, 'a finite number > 0 (or give lengths [l1, l2] in 2-D)', undefined);
+    term.length = r.number(obj.length, `${f}.length`, { gt: 0 });
+    if (obj.angle !== undefined) {
+      term.angle = r.number(obj.angle, `${f}.angle`);
+      r.warn(`${f}.angle`, `${f}.angle is ignored for an isotropic term (it rotates the two axes of lengths [l1, l2])`);
+    }
+  }
+  switch (kernel) {
+    case 'matern':
+      term.nu = r.number(r.required(obj, f, 'nu', 'a finite number > 0 for the matern kernel'), `${f}.nu`, { gt: 0 });
+      break;
+    case 'exponential':
+    case 'gaussian':
+    case 'spherical':
+      if (obj.nu !== undefined) {
+        term.nu = r.number(obj.nu, `${f}.nu`, { gt: 0 });
+        r.warn(`${f}.nu`, `${f}.nu is ignored for the ${kernel} kernel (only matern has a smoothness)`);
+      }
+      break;
+    default:
+      assertNever(kernel);
+  }
+  return term;
+}
+
+/** A parsed prior object (already JSON-decoded) → PriorSpec; `r` collects the warnings. */
+export function readPriorObject(r: JsonReader, value: unknown, options: PriorReadOptions = {}): PriorSpec {
+  const obj = r.object(value, '', TOP_FIELDS);
+  checkKindVersion(r, obj, PRIOR_KIND, PRIOR_VERSION);
+  const mean = readMean(r, r.required(obj, '', 'mean', 'an object with constant, values or trend'));
+  const termsValue = r.array(r.required(obj, '', 'terms', 'an array of covariance terms'), 'terms', undefined, 'terms');
+  const terms = termsValue.map((t, k) => readTerm(r, t, k));
+  const prior: { -readonly [K in keyof PriorSpec]: PriorSpec[K] } = { mean, terms };
+  if (obj.nugget !== undefined) prior.nugget = r.number(obj.nugget, 'nugget', { ge: 0 });
+  if (obj.stdProfile !== undefined) prior.stdProfile = r.numbers(obj.stdProfile, 'stdProfile', undefined, { gt: 0 });
+  if (terms.length === 0 && !((prior.nugget ?? 0) > 0)) {
+    r.fail('terms', 'a non-empty array of covariance terms (or give a nugget > 0)', termsValue);
+  }
+  if (options.grid) checkPriorForGrid(r.file, prior, options.grid);
+  return prior;
+}
+
+/**
+ * Grid-dependent checks of a prior: lengths of mean.values and stdProfile equal the cell count,
+ * the trend slope and anisotropic terms match the grid's dimension.
+ */
+export function checkPriorForGrid(file: string, prior: PriorSpec, grid: Grid): void {
+  const n = cellCount(grid);
+  const dim = grid.shape.length;
+  const m = prior.mean;
+  if ('values' in m && m.values.length !== n) {
+    throw fieldError(file, 'mean.values', `an array of ${n} numbers (one per grid cell)`, m.values);
+  }
+  if ('trend' in m && m.trend.slope.length !== dim) {
+    throw fieldError(file, 'mean.trend.slope', `an array of ${dim} number${dim === 1 ? '' : 's'} (one per grid axis)`, m.trend.slope);
+  }
+  if (prior.stdProfile && prior.stdProfile.length !== n) {
+    throw fieldError(file, 'stdProfile', `an array of ${n} numbers (one per grid cell)`, prior.stdProfile);
+  }
+  prior.terms.forEach((t, k) => {
+    if (t.lengths && dim !== 2) {
+      throw new FileFormatError(file, `terms[${k}].lengths needs a 2-D grid; on this 1-D grid give terms[${k}].length`, { field: `terms[${k}].lengths` });
+    }
+  });
+}
+
+/** Parse a prior file (text or UTF-8 bytes). */
+export function parsePriorFile(file: string, input: string | Uint8Array, options: PriorReadOptions = {}): PriorFileResult {
+  const r = new JsonReader(file);
+  const prior = readPriorObject(r, parseJsonText(file, input), options);
+  return { prior, warnings: r.warnings };
+}
+
+/** The JSON object of a prior file, keys in the documented order, only the fields present. */
+export function priorToJson(prior: PriorSpec): Record<string, unknown> {
+  const m = prior.mean;
+  const mean =
+    'constant' in m
+      ? { constant: m.constant }
+      : 'values' in m
+        ? { values: Array.from(m.values) }
+        : { trend: { intercept: m.trend.intercept, slope: Array.from(m.trend.slope) } };
+  const out: Record<string, unknown> = {
+    kind: PRIOR_KIND,
+    version: PRIOR_VERSION,
+    mean,
+    terms: prior.terms.map((t) => {
+      const o: Record<string, unknown> = { kernel: t.kernel, variance: t.variance };
+      if (t.length !== undefined) o.length = t.length;
+      if (t.lengths !== undefined) o.lengths = [t.lengths[0], t.lengths[1]];
+      if (t.angle !== undefined) o.angle = t.angle;
+      if (t.nu !== undefined) o.nu = t.nu;
+      return o;
+    }),
+  };
+  if (prior.nugget !== undefined) out.nugget = prior.nugget;
+  if (prior.stdProfile !== undefined) out.stdProfile = Array.from(prior.stdProfile);
+  return out;
+}
+
+/**
+ * Prior file text (JSON from formatJson: one field per line, number arrays on one line). The spec is validated first: a spec that
+ * would not read back throws the same FileFormatError the reader gives, naming `file`.
+ */
+export function writePriorFile(prior: PriorSpec, file = 'prior'): string {
+  const text = formatJson(priorToJson(prior));
+  parsePriorFile(file, text);
+  return text;
+}

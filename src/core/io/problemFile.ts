@@ -1,0 +1,289 @@
+/**
+ * The problem file: JSON `{"kind": "priorscope.problem", "version": 1, …}` ⇄ core Problem.
+ *
+ *   title      optional string
+ *   grid       {"shape": [nx] | [nx, ny], "spacing": [dx] | [dx, dy] (> 0), "origin"?: [...], "unit"?: "m"}
+ *              cell (ix, iy) sits at (x0 + dx·ix, y0 + dy·iy) and has index ix + nx·iy
+ *   operator   {"dense": [[N numbers], … M rows]}
+ *              | {"sparse": {"rows": [...], "cols": [...], "values": [...]}}   zero-based, duplicates summed
+ *              | {"file": "G.csv" | "G.mtx" | "G.npy"}                         a sibling file, by extension
+ *   data       {"values": [M numbers], "sigma": [M numbers > 0]}  or  {"values": [...], "covariance": M×M SPD}
+ *   truth      optional, N numbers
+ *   quantity   optional {"name": "...", "unit"?: "..."}
+ *
+ * M (the number of data) is the length of data.values; N is the grid's cell count. Sibling files
+ * are read through an injected `readSibling(name) → bytes`, so the browser (files picked together)
+ * and the command line (the problem file's directory) share this module. A data covariance must be
+ * symmetric (to 1e-12 of its largest entry) and pass the Cholesky test of positive definiteness
+ * (Higham 2002, Thm 10.7).
+ */
+import { cellCount, type Grid } from '../grid/grid.ts';
+import { cholesky } from '../linalg/cholesky.ts';
+import type { Matrix } from '../linalg/matrix.ts';
+import { assertNever, type Operator } from '../linalg/operator.ts';
+import { sparseFromCoordinates } from '../linalg/sparse.ts';
+import type { DataSpec, Problem } from '../problems/spec.ts';
+import { formatValue } from '../errors.ts';
+import { baseName, FileFormatError, type FileWarning } from './errors.ts';
+import { formatJson, JsonReader, parseJsonText } from './json.ts';
+import { checkKindVersion } from './priorFile.ts';
+import { parseCsv } from './csv.ts';
+import { parseMatrixMarket, writeMatrixMarket } from './matrixMarket.ts';
+import { npyToMatrix, parseNpy, writeNpyMatrix } from './npy.ts';
+import { writeCsv } from './csv.ts';
+import { operatorToDense } from '../linalg/operator.ts';
+
+export const PROBLEM_KIND = 'priorscope.problem';
+export const PROBLEM_VERSION = 1;
+
+/** Largest grid accepted from a file (cells). Dense covariances beyond this do not fit in memory anyway. */
+export const MAX_CELLS = 4_000_000;
+
+/** Reads a file named in the problem file (relative to it). May throw; the message is reported. */
+export type ReadSibling = (name: string) => Uint8Array;
+
+export interface ProblemReadOptions {
+  readonly readSibling?: ReadSibling;
+}
+
+export interface ProblemFileResult {
+  readonly problem: Problem;
+  readonly warnings: readonly FileWarning[];
+}
+
+const TOP_FIELDS = ['kind', 'version', 'title', 'grid', 'operator', 'data', 'truth', 'quantity'] as const;
+
+function readGrid(r: JsonReader, value: unknown): Grid {
+  const g = r.object(value, 'grid', ['shape', 'spacing', 'origin', 'unit']);
+  const shapeValue = r.required(g, 'grid', 'shape', '[nx] or [nx, ny]');
+  if (!Array.isArray(shapeValue) || (shapeValue.length !== 1 && shapeValue.length !== 2)) {
+    r.fail('grid.shape', '[nx] or [nx, ny] (positive integers)', shapeValue);
+  }
+  const shape = r.numbers(shapeValue, 'grid.shape', undefined, { integer: true, ge: 1 });
+  const dim = shape.length;
+  const cells = shape.reduce((a, b) => a * b, 1);
+  if (cells > MAX_CELLS) r.fail('grid.shape', `at most ${MAX_CELLS} cells in all`, `${shape.join(' × ')} = ${cells}`);
+  const spacing = r.numbers(r.required(g, 'grid', 'spacing', dim === 1 ? '[dx]' : '[dx, dy]'), 'grid.spacing', dim, { gt: 0 });
+  const grid: { -readonly [K in keyof Grid]: Grid[K] } = { shape, spacing };
+  if (g.origin !== undefined) grid.origin = r.numbers(g.origin, 'grid.origin', dim);
+  if (g.unit !== undefined) grid.unit = r.string(g.unit, 'grid.unit');
+  return grid;
+}
+
+function readData(r: JsonReader, value: unknown): DataSpec {
+  const d = r.object(value, 'data', ['values', 'sigma', 'covariance']);
+  const values = r.vector(r.required(d, 'data', 'values', 'an array of numbers (the data)'), 'data.values');
+  const m = values.length;
+  if (m === 0) r.fail('data.values', 'a non-empty array of numbers', values);
+  if (d.sigma !== undefined && d.covariance !== undefined) {
+    r.fail('data', 'an object with either sigma or covariance, not both', 'both');
+  }
+  if (d.covariance !== undefined) {
+    const c = r.matrixRows(d.covariance, 'data.covariance', m, m);
+    checkDataCovariance(r, c);
+    return { values, covariance: c };
+  }
+  if (d.sigma === undefined) r.fail('data.sigma', `an array of ${m} numbers > 0 (or give data.covariance)`, undefined);
+  return { values, sigma: r.vector(d.sigma, 'data.sigma', m, { gt: 0 }) };
+}
+
+/** Symmetric to 1e-12 of the largest |entry|, and positive definite by the Cholesky test. */
+function checkDataCovariance(r: JsonReader, c: Matrix): void {
+  const n = c.rows;
+  let scale = 0;
+  for (const v of c.data) scale = Math.max(scale, Math.abs(v));
+  const tol = 1e-12 * scale;
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < i; j++) {
+      const a = c.data[i * n + j]!;
+      const b = c.data[j * n + i]!;
+      if (Math.abs(a - b) > tol) {
+        r.fail(`data.covariance[${i}][${j}]`, `equal to data.covariance[${j}][${i}] = ${b} (the covariance must be symmetric)`, a);
+      }
+    }
+  }
+  const f = cholesky(c);
+  if (!f.ok) {
+    throw new FileFormatError(
+      r.file,
+      `data.covariance must be positive definite, got a matrix whose Cholesky factorisation fails at row ${f.pivot} (pivot ${formatValue(f.value)})`,
+      { field: 'data.covariance' },
+    );
+  }
+}
+
+function readIndex(r: JsonReader, value: unknown, field: string, limit: number, what: string): number {
+  if (typeof value !== 'number' || !Number.isInteger(value) || value < 0 || value >= limit) {
+    r.fail(field, `an integer from 0 to ${limit - 1} (zero-based ${what})`, value);
+  }
+  return value as number;
+}
+
+function readOperator(r: JsonReader, value: unknown, m: number, n: number, options: ProblemReadOptions): Operator {
+  const o = r.object(value, 'operator', ['dense', 'sparse', 'file']);
+  const forms = ['dense', 'sparse', 'file'].filter((k) => o[k] !== undefined);
+  if (forms.length !== 1) {
+    r.fail('operator', 'an object with exactly one of dense, sparse, file', forms.length === 0 ? 'none of them' : forms.join(' and '));
+  }
+  if (o.dense !== undefined) {
+    const rows = r.array(o.dense, 'operator.dense', undefined, 'rows');
+    if (rows.length !== m) r.fail('operator.dense', `an array of ${m} rows (one per datum in data.values)`, rows);
+    for (let i = 0; i < m; i++) {
+      const row = rows[i];
+      if (!Array.isArray(row) || row.length !== n) r.fail(`operator.dense[${i}]`, `an array of ${n} numbers (one per grid cell)`, row);
+    }
+    return { kind: 'dense', matrix: r.matrixRows(o.dense, 'operator.dense', m, n) };
+  }
+  if (o.sparse !== undefined) {
+    const s = r.object(o.sparse, 'operator.sparse', ['rows', 'cols', 'values']);
+    const values = r.numbers(r.required(s, 'operator.sparse', 'values', 'an array of numbers'), 'operator.sparse.values');
+    const k = values.length;
+    const ri = r.array(r.required(s, 'operator.sparse', 'rows', `an array of ${k} row indices`), 'operator.sparse.rows', k, 'row indices');
+    const ci = r.array(r.required(s, 'operator.sparse', 'cols', `an array of ${k} column indices`), 'operator.sparse.cols', k, 'column indices');
+    const rows = ri.map((v, p) => readIndex(r, v, `operator.sparse.rows[${p}]`, m, 'datum index'));
+    const cols = ci.map((v, p) => readIndex(r, v, `operator.sparse.cols[${p}]`, n, 'cell index'));
+    return { kind: 'sparse', matrix: sparseFromCoordinates(m, n, rows, cols, values) };
+  }
+  const name = r.string(o.file, 'operator.file');
+  const lower = name.toLowerCase();
+  const format = lower.endsWith('.csv') ? 'csv' : lower.endsWith('.mtx') ? 'mtx' : lower.endsWith('.npy') ? 'npy' : null;
+  if (!format) r.fail('operator.file', 'the name of a .csv, .mtx (Matrix Market) or .npy file', name);
+  if (!options.readSibling) {
+    throw new FileFormatError(r.file, `operator.file ${formatValue(name)} cannot be read here (no access to files next to ${r.file})`, { field: 'operator.file' });
+  }
+  let bytes: Uint8Array;
+  try {
+    bytes = options.readSibling(name);
+  } catch (e) {
+    throw new FileFormatError(r.file, `operator.file ${formatValue(name)} could not be read: ${(e as Error).message}`, { field: 'operator.file' });
+  }
+  const sibling = baseName(name);
+  let g: Operator;
+  switch (format!) {
+    case 'csv':
+      g = { kind: 'dense', matrix: parseCsv(sibling, bytes, { header: 'auto' }).matrix };
+      break;
+    case 'mtx':
+      g = parseMatrixMarket(sibling, bytes);
+      break;
+    case 'npy':
+      g = { kind: 'dense', matrix: npyToMatrix(sibling, parseNpy(sibling, bytes)) };
+      break;
+    default:
+      return assertNever(format!);
+  }
+  if (g.matrix.rows !== m || g.matrix.cols !== n) {
+    throw new FileFormatError(
+      r.file,
+      `operator.file ${formatValue(name)} must hold a ${m} × ${n} matrix (data × grid cells), got ${g.matrix.rows} × ${g.matrix.cols}`,
+      { field: 'operator.file' },
+    );
+  }
+  return g;
+}
+
+/** Parse a problem file (text or UTF-8 bytes). */
+export function parseProblemFile(file: string, input: string | Uint8Array, options: ProblemReadOptions = {}): ProblemFileResult {
+  const r = new JsonReader(file);
+  const obj = r.object(parseJsonText(file, input), '', TOP_FIELDS);
+  checkKindVersion(r, obj, PROBLEM_KIND, PROBLEM_VERSION);
+  const grid = readGrid(r, r.required(obj, '', 'grid', 'an object with shape and spacing'));
+  const n = cellCount(grid);
+  const data = readData(r, r.required(obj, '', 'data', 'an object with values and sigma or covariance'));
+  const operator = readOperator(r, r.required(obj, '', 'operator', 'an object with dense, sparse or file'), data.values.length, n, options);
+  const problem: { -readonly [K in keyof Problem]: Problem[K] } = { grid, operator, data };
+  if (obj.title !== undefined) problem.title = r.string(obj.title, 'title');
+  if (obj.truth !== undefined) problem.truth = r.vector(obj.truth, 'truth', n);
+  if (obj.quantity !== undefined) {
+    const q = r.object(obj.quantity, 'quantity', ['name', 'unit']);
+    const name = r.string(r.required(q, 'quantity', 'name', 'a string'), 'quantity.name');
+    problem.quantity = q.unit !== undefined ? { name, unit: r.string(q.unit, 'quantity.unit') } : { name };
+  }
+  return { problem, warnings: r.warnings };
+}
+
+/** How the writer stores the operator: inline in the JSON, or in a sibling file of this name. */
+export type OperatorPlacement = 'inline' | { readonly file: string };
+
+export interface ProblemWriteResult {
+  /** The problem file text (JSON from formatJson: one field per line, number arrays on one line). */
+  readonly json: string;
+  /** The sibling operator file, when the placement asked for one. */
+  readonly operatorFile?: { readonly name: string; readonly bytes: Uint8Array };
+}
+
+function vec(a: ArrayLike<number>): number[] {
+  return Array.from(a);
+}
+
+/** The JSON object of a problem file (operator inline unless `operatorFile` names a sibling). */
+export function problemToJson(problem: Problem, operatorFile?: string): Record<string, unknown> {
+  const g = problem.grid;
+  const grid: Record<string, unknown> = { shape: vec(g.shape), spacing: vec(g.spacing) };
+  if (g.origin !== undefined) grid.origin = vec(g.origin);
+  if (g.unit !== undefined) grid.unit = g.unit;
+  let operator: Record<string, unknown>;
+  const op = problem.operator;
+  if (operatorFile !== undefined) operator = { file: operatorFile };
+  else {
+    switch (op.kind) {
+      case 'dense': {
+        const { rows, cols, data } = op.matrix;
+        operator = { dense: Array.from({ length: rows }, (_, i) => vec(data.subarray(i * cols, (i + 1) * cols))) };
+        break;
+      }
+      case 'sparse': {
+        const s = op.matrix;
+        const rows: number[] = [];
+        for (let i = 0; i < s.rows; i++) for (let p = s.rowPtr[i]!; p < s.rowPtr[i + 1]!; p++) rows.push(i);
+        operator = { sparse: { rows, cols: vec(s.colIdx), values: vec(s.values) } };
+        break;
+      }
+      default:
+        return assertNever(op);
+    }
+  }
+  const d = problem.data;
+  const data: Record<string, unknown> = { values: vec(d.values) };
+  if (d.covariance) {
+    const c = d.covariance;
+    data.covariance = Array.from({ length: c.rows }, (_, i) => vec(c.data.subarray(i * c.cols, (i + 1) * c.cols)));
+  } else if (d.sigma) data.sigma = vec(d.sigma);
+  const out: Record<string, unknown> = { kind: PROBLEM_KIND, version: PROBLEM_VERSION };
+  if (problem.title !== undefined) out.title = problem.title;
+  out.grid = grid;
+  out.operator = operator;
+  out.data = data;
+  if (problem.truth !== undefined) out.truth = vec(problem.truth);
+  if (problem.quantity !== undefined) out.quantity = { ...problem.quantity };
+  return out;
+}
+
+/** Bytes of an operator in the sibling format chosen by the file name's extension. */
+export function encodeOperatorFile(name: string, g: Operator): Uint8Array {
+  const lower = name.toLowerCase();
+  if (lower.endsWith('.npy')) return writeNpyMatrix(g.kind === 'dense' ? g.matrix : operatorToDense(g));
+  if (lower.endsWith('.mtx')) return new TextEncoder().encode(writeMatrixMarket(g));
+  if (lower.endsWith('.csv')) return new TextEncoder().encode(writeCsv(g.kind === 'dense' ? g.matrix : operatorToDense(g)));
+  throw new RangeError(`operator file name must end in .npy, .mtx or .csv, got ${JSON.stringify(name)}`);
+}
+
+/**
+ * Problem file text, and the operator's sibling file when `placement` names one. The output reads
+ * back (with the sibling) to an equal Problem: numbers are written in their shortest round-trip
+ * form, a sparse operator as its (sorted, duplicate-free) coordinates.
+ */
+export function writeProblemFile(problem: Problem, placement: OperatorPlacement = 'inline'): ProblemWriteResult {
+  if (placement === 'inline') return { json: formatJson(problemToJson(problem)) };
+  const bytes = encodeOperatorFile(placement.file, problem.operator);
+  return {
+    json: formatJson(problemToJson(problem, placement.file)),
+    operatorFile: { name: placement.file, bytes },
+  };
+}
+
+/** A dense matrix → nested rows (for JSON output). */
+export function matrixRowsJson(m: Matrix): number[][] {
+  return Array.from({ length: m.rows }, (_, i) => vec(m.data.subarray(i * m.cols, (i + 1) * m.cols)));
+}
+
