@@ -23,6 +23,11 @@ export interface PosteriorSummary {
   readonly logEvidence: number;
   /** tr R, R = Cm Gᵀ K⁻¹ G (effective number of parameters resolved). */
   readonly resolutionTrace: number;
+  /** (Optional so that other paths may omit it.) rᵀ K⁻¹ r with r = d − G m0: twice the Bayesian cost at m̃ (data misfit plus model penalty),
+   *  χ²-distributed with M degrees of freedom when the prior and Cd are right. */
+  readonly dataMisfit?: number;
+  /** Central 95% interval of dataMisfit / M under the model: [q_χ²_M(0.025), q_χ²_M(0.975)] / M. */
+  readonly reducedMisfitInterval95?: readonly [number, number];
   readonly dataCount: number;
   readonly parameterCount: number;
   readonly path: 'dense' | 'fft';
