@@ -7,10 +7,12 @@ ops:
   cholesky          {"a"}            -> numpy.linalg.cholesky(a) (lower), or {"failed": true} on LinAlgError
   solve_lower       {"l", "b"}       -> scipy.linalg.solve_triangular(l, b, lower=True)
   solve_lower_t     {"l", "b"}       -> scipy.linalg.solve_triangular(l, b, lower=True, trans='T')
+  cho_solve         {"l", "b"}       -> scipy.linalg.cho_solve((l, True), b)  (A x = b with A = l lᵀ)
   eigvalsh          {"a"}            -> numpy.linalg.eigvalsh(a) (ascending; reads the lower triangle)
   eigh              {"a"}            -> numpy.linalg.eigh(a): values and vectors (columns)
   leading_minor_det {"a", "k"}       -> numpy.linalg.det(a[:k, :k]) for k = 1..k (sign pattern of minors)
   matmul            {"a", "b"}       -> a @ b
+  colsumsq          {"a"}            -> (a ** 2).sum(axis=0)
 """
 import json
 import sys
@@ -40,6 +42,8 @@ def run(case):
         return from_np(scipy.linalg.solve_triangular(to_np(case["l"]), to_np(case["b"]), lower=True))
     if op == "solve_lower_t":
         return from_np(scipy.linalg.solve_triangular(to_np(case["l"]), to_np(case["b"]), lower=True, trans="T"))
+    if op == "cho_solve":
+        return from_np(scipy.linalg.cho_solve((to_np(case["l"]), True), to_np(case["b"])))
     if op == "eigvalsh":
         return np.linalg.eigvalsh(to_np(case["a"]), UPLO="L").tolist()
     if op == "eigh":
@@ -48,6 +52,8 @@ def run(case):
     if op == "leading_minor_det":
         a = to_np(case["a"])
         return [float(np.linalg.det(a[:k, :k])) for k in range(1, case["k"] + 1)]
+    if op == "colsumsq":
+        return (to_np(case["a"]) ** 2).sum(axis=0).tolist()
     if op == "matmul":
         return from_np(to_np(case["a"]) @ to_np(case["b"]))
     raise ValueError(f"linalg_reference.py: unknown op {op!r}")

@@ -6,6 +6,7 @@
  * modifies `a` unless `inPlace`, and returns L with a zeroed strict upper triangle.
  */
 import { matrix, type Matrix } from './matrix.ts';
+import { gemmNT, transposeBlock } from './kernels.ts';
 
 export type CholeskyResult =
   | { readonly ok: true; readonly factor: Matrix }
@@ -18,11 +19,97 @@ export interface CholeskyOptions {
   readonly jitter?: number;
 }
 
+/** Block size of the blocked factorisation (columns per panel); chosen by measurement (test/bench). */
+export const CHOLESKY_BLOCK = 64;
+
 /**
  * Lower Cholesky factor of `a`, or the zero-based pivot where a non-positive (or NaN) pivot
- * `value` appeared. Reference (unblocked, row-oriented) version; see the blocked kernel below.
+ * `value` appeared (the Schur complement's diagonal entry, jitter included).
+ *
+ * Blocked left-looking (Crout) order, Golub & Van Loan §4.2.9 (memory): for each panel of
+ * CHOLESKY_BLOCK columns J, (1) A[J:, J] −= L[J:, :J] L[J, :J]ᵀ with the register-blocked NT kernel
+ * (./kernels.ts), (2) factor the diagonal block unblocked, (3) solve the panel below it against the
+ * diagonal block's factor, four rows at a time. Reads only the lower triangle; the strict upper
+ * triangle of the result is zero.
  */
 export function cholesky(a: Matrix, options: CholeskyOptions = {}): CholeskyResult {
+  const n = a.rows;
+  if (a.cols !== n) throw new RangeError(`cholesky: matrix is ${a.rows}×${a.cols}, expected square`);
+  const L = options.inPlace ? a : matrix(n, n, a.data.slice());
+  const d = L.data;
+  const jitter = options.jitter ?? 0;
+  if (jitter !== 0) for (let i = 0; i < n; i++) d[i * n + i] += jitter;
+  const nb = CHOLESKY_BLOCK;
+  for (let j0 = 0; j0 < n; j0 += nb) {
+    const jb = Math.min(nb, n - j0);
+    const diagOff = j0 * n + j0;
+    // (1) Left-looking update of block column J from all finished columns.
+    if (j0 > 0) gemmNT(n - j0, jb, j0, -1, d, j0 * n, n, d, j0 * n, n, d, diagOff, n, true, 0);
+    // (2) Diagonal block: unblocked, row-oriented.
+    for (let i = 0; i < jb; i++) {
+      const oi = diagOff + i * n;
+      for (let j = 0; j <= i; j++) {
+        const oj = diagOff + j * n;
+        let s = d[oi + j]!;
+        for (let p = 0; p < j; p++) s -= d[oi + p]! * d[oj + p]!;
+        if (i === j) {
+          if (!(s > 0)) {
+            zeroStrictUpper(d, n);
+            return { ok: false, pivot: j0 + i, value: s };
+          }
+          d[oi + i] = Math.sqrt(s);
+        } else {
+          d[oi + j] = s / d[oj + j]!;
+        }
+      }
+    }
+    // (3) Panel rows i ≥ j0 + jb: solve x L_JJᵀ = a_i, four rows sharing each row of L_JJ.
+    let i = j0 + jb;
+    for (; i + 4 <= n; i += 4) {
+      const o0 = i * n + j0;
+      const o1 = o0 + n;
+      const o2 = o1 + n;
+      const o3 = o2 + n;
+      for (let j = 0; j < jb; j++) {
+        const oj = diagOff + j * n;
+        let s0 = d[o0 + j]!, s1 = d[o1 + j]!, s2 = d[o2 + j]!, s3 = d[o3 + j]!;
+        for (let p = 0; p < j; p++) {
+          const l = d[oj + p]!;
+          s0 -= d[o0 + p]! * l;
+          s1 -= d[o1 + p]! * l;
+          s2 -= d[o2 + p]! * l;
+          s3 -= d[o3 + p]! * l;
+        }
+        const inv = 1 / d[oj + j]!;
+        d[o0 + j] = s0 * inv;
+        d[o1 + j] = s1 * inv;
+        d[o2 + j] = s2 * inv;
+        d[o3 + j] = s3 * inv;
+      }
+    }
+    for (; i < n; i++) {
+      const o = i * n + j0;
+      for (let j = 0; j < jb; j++) {
+        const oj = diagOff + j * n;
+        let s = d[o + j]!;
+        for (let p = 0; p < j; p++) s -= d[o + p]! * d[oj + p]!;
+        d[o + j] = s / d[oj + j]!;
+      }
+    }
+  }
+  zeroStrictUpper(d, n);
+  return { ok: true, factor: L };
+}
+
+function zeroStrictUpper(d: Float64Array, n: number): void {
+  for (let i = 0; i < n; i++) d.fill(0, i * n + i + 1, (i + 1) * n);
+}
+
+/**
+ * Reference (unblocked, row-oriented) Cholesky with the same contract as {@link cholesky}: the
+ * oracle for the blocked version's unit tests and the baseline of the benchmark.
+ */
+export function choleskyUnblocked(a: Matrix, options: CholeskyOptions = {}): CholeskyResult {
   const n = a.rows;
   if (a.cols !== n) throw new RangeError(`cholesky: matrix is ${a.rows}×${a.cols}, expected square`);
   const L = options.inPlace ? a : matrix(n, n, a.data.slice());
@@ -35,7 +122,10 @@ export function cholesky(a: Matrix, options: CholeskyOptions = {}): CholeskyResu
       let s = d[oi + j]! + (i === j ? jitter : 0);
       for (let k = 0; k < j; k++) s -= d[oi + k]! * d[oj + k]!;
       if (i === j) {
-        if (!(s > 0)) return { ok: false, pivot: i, value: s };
+        if (!(s > 0)) {
+          zeroStrictUpper(d, n);
+          return { ok: false, pivot: i, value: s };
+        }
         d[oi + i] = Math.sqrt(s);
       } else {
         d[oi + j] = s / d[oj + j]!;
@@ -78,28 +168,155 @@ export function choleskySolve(L: Matrix, b: ArrayLike<number>): Float64Array {
   return solveLowerTranspose(L, solveLower(L, b));
 }
 
+/** Rows per block of the blocked triangular solves. */
+const SOLVE_BLOCK = 64;
+
+function checkFactor(L: Matrix, who: string): number {
+  if (L.rows !== L.cols) throw new RangeError(`${who}: factor is ${L.rows}×${L.cols}, expected square`);
+  return L.rows;
+}
+
+/**
+ * Forward substitution on every row of X (k × n, overwritten): row r becomes L⁻¹ x_r.
+ * Blocked by SOLVE_BLOCK columns: X[:, I] −= X[:, :I] L[I, :I]ᵀ (NT kernel), then the small
+ * triangle of block I, four right-hand sides at a time (Golub & Van Loan §3.1, memory).
+ */
+export function solveLowerRowsInPlace(L: Matrix, X: Matrix): Matrix {
+  const n = checkFactor(L, 'solveLowerRowsInPlace');
+  if (X.cols !== n) throw new RangeError(`solveLowerRowsInPlace: L is ${n}×${n}, right-hand sides are ${X.rows}×${X.cols} (expected ${n} columns)`);
+  const k = X.rows;
+  const l = L.data;
+  const x = X.data;
+  for (let i0 = 0; i0 < n; i0 += SOLVE_BLOCK) {
+    const ib = Math.min(SOLVE_BLOCK, n - i0);
+    if (i0 > 0) gemmNT(k, ib, i0, -1, x, 0, n, l, i0 * n, n, x, i0, n);
+    let r = 0;
+    for (; r + 4 <= k; r += 4) {
+      const o0 = r * n;
+      const o1 = o0 + n;
+      const o2 = o1 + n;
+      const o3 = o2 + n;
+      for (let i = i0; i < i0 + ib; i++) {
+        const oi = i * n;
+        let s0 = x[o0 + i]!, s1 = x[o1 + i]!, s2 = x[o2 + i]!, s3 = x[o3 + i]!;
+        for (let p = i0; p < i; p++) {
+          const lp = l[oi + p]!;
+          s0 -= x[o0 + p]! * lp;
+          s1 -= x[o1 + p]! * lp;
+          s2 -= x[o2 + p]! * lp;
+          s3 -= x[o3 + p]! * lp;
+        }
+        const inv = 1 / l[oi + i]!;
+        x[o0 + i] = s0 * inv;
+        x[o1 + i] = s1 * inv;
+        x[o2 + i] = s2 * inv;
+        x[o3 + i] = s3 * inv;
+      }
+    }
+    for (; r < k; r++) {
+      const o = r * n;
+      for (let i = i0; i < i0 + ib; i++) {
+        const oi = i * n;
+        let s = x[o + i]!;
+        for (let p = i0; p < i; p++) s -= x[o + p]! * l[oi + p]!;
+        x[o + i] = s / l[oi + i]!;
+      }
+    }
+  }
+  return X;
+}
+
+/**
+ * Back substitution with Lᵀ on every row of X (k × n, overwritten): row r becomes L⁻ᵀ x_r.
+ * Blocks run from the bottom: X[:, I] −= X[:, I⁺] (L[I⁺, I]) with I⁺ the rows below I; the column
+ * block of L is packed transposed so the NT kernel reads it along rows.
+ */
+export function solveLowerTransposeRowsInPlace(L: Matrix, X: Matrix): Matrix {
+  const n = checkFactor(L, 'solveLowerTransposeRowsInPlace');
+  if (X.cols !== n) throw new RangeError(`solveLowerTransposeRowsInPlace: L is ${n}×${n}, right-hand sides are ${X.rows}×${X.cols} (expected ${n} columns)`);
+  const k = X.rows;
+  const l = L.data;
+  const x = X.data;
+  const pack = new Float64Array(SOLVE_BLOCK * n);
+  const lastStart = Math.floor((n - 1) / SOLVE_BLOCK) * SOLVE_BLOCK;
+  for (let i0 = lastStart; i0 >= 0; i0 -= SOLVE_BLOCK) {
+    const ib = Math.min(SOLVE_BLOCK, n - i0);
+    const i1 = i0 + ib;
+    // pack[i][p] = L[i0 + p][i0 + i] for p < n − i0 (diagonal block and everything below it).
+    const w = n - i0;
+    transposeBlock(w, ib, l, i0 * n + i0, n, pack, 0, w);
+    if (i1 < n) gemmNT(k, ib, n - i1, -1, x, i1, n, pack, ib, w, x, i0, n);
+    for (let r = 0; r < k; r++) {
+      const o = r * n;
+      for (let i = i1 - 1; i >= i0; i--) {
+        const pi = (i - i0) * w - i0;
+        let s = x[o + i]!;
+        for (let p = i + 1; p < i1; p++) s -= x[o + p]! * pack[pi + p]!;
+        x[o + i] = s / pack[pi + i]!;
+      }
+    }
+  }
+  return X;
+}
+
+/** Row r of the result is L⁻¹ b_r for each row b_r of B (k × n). Returns a new k × n matrix. */
+export function solveLowerRows(L: Matrix, B: Matrix): Matrix {
+  return solveLowerRowsInPlace(L, matrix(B.rows, B.cols, B.data.slice()));
+}
+
 /**
  * Solve L X = B for X where B is n × k (row-major), i.e. forward substitution on k right-hand
- * sides at once. Returns a new n × k matrix.
+ * sides at once. Returns a new n × k matrix. (Works on Bᵀ internally so the kernel reads rows.)
  */
 export function solveLowerMatrix(L: Matrix, B: Matrix): Matrix {
   const n = L.rows;
   const k = B.cols;
   if (B.rows !== n) throw new RangeError(`solveLowerMatrix: L is ${n}×${n}, B is ${B.rows}×${k}`);
-  const X = matrix(n, k, B.data.slice());
-  const x = X.data;
-  const d = L.data;
-  for (let i = 0; i < n; i++) {
-    const oi = i * k;
-    for (let p = 0; p < i; p++) {
-      const lip = d[i * n + p]!;
-      if (lip === 0) continue;
-      const op = p * k;
-      for (let j = 0; j < k; j++) x[oi + j] -= lip * x[op + j]!;
-    }
-    const inv = 1 / d[i * n + i]!;
-    for (let j = 0; j < k; j++) x[oi + j] *= inv;
-  }
+  const bt = matrix(k, n);
+  transposeBlock(n, k, B.data, 0, k, bt.data, 0, n);
+  solveLowerRowsInPlace(L, bt);
+  const X = matrix(n, k);
+  transposeBlock(k, n, bt.data, 0, n, X.data, 0, k);
+  return X;
+}
+
+/**
+ * Solve L X = Bᵀ where B is given k × n row-major (e.g. W = L⁻¹ (Cm Gᵀ)ᵀ with B = Cm Gᵀ).
+ * Returns X, n × k. When Xᵀ is as useful, {@link solveLowerRows} saves the final transpose.
+ */
+export function solveLowerMatrixTransposed(L: Matrix, B: Matrix): Matrix {
+  const n = L.rows;
+  if (B.cols !== n) throw new RangeError(`solveLowerMatrixTransposed: L is ${n}×${n}, B is ${B.rows}×${B.cols} (expected ${n} columns)`);
+  const xt = solveLowerRows(L, B);
+  const X = matrix(n, B.rows);
+  transposeBlock(B.rows, n, xt.data, 0, n, X.data, 0, B.rows);
+  return X;
+}
+
+/** Solve Lᵀ X = B for B n × k. Returns a new n × k matrix. */
+export function solveLowerTransposeMatrix(L: Matrix, B: Matrix): Matrix {
+  const n = L.rows;
+  const k = B.cols;
+  if (B.rows !== n) throw new RangeError(`solveLowerTransposeMatrix: L is ${n}×${n}, B is ${B.rows}×${k}`);
+  const bt = matrix(k, n);
+  transposeBlock(n, k, B.data, 0, k, bt.data, 0, n);
+  solveLowerTransposeRowsInPlace(L, bt);
+  const X = matrix(n, k);
+  transposeBlock(k, n, bt.data, 0, n, X.data, 0, k);
+  return X;
+}
+
+/** Solve A X = B (B n × k) given the lower Cholesky factor L of A. Returns a new n × k matrix. */
+export function choleskySolveMatrix(L: Matrix, B: Matrix): Matrix {
+  const n = L.rows;
+  const k = B.cols;
+  if (B.rows !== n) throw new RangeError(`choleskySolveMatrix: L is ${n}×${n}, B is ${B.rows}×${k}`);
+  const bt = matrix(k, n);
+  transposeBlock(n, k, B.data, 0, k, bt.data, 0, n);
+  solveLowerRowsInPlace(L, bt);
+  solveLowerTransposeRowsInPlace(L, bt);
+  const X = matrix(n, k);
+  transposeBlock(k, n, bt.data, 0, n, X.data, 0, k);
   return X;
 }
 

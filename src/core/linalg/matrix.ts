@@ -2,6 +2,7 @@
  * Dense matrices as flat row-major Float64Array storage: element (i, j) sits at data[i * cols + j].
  * One buffer per matrix, so a matrix moves to a worker as one transferable ArrayBuffer.
  */
+import { gemmNT, transposeBlock } from './kernels.ts';
 export interface Matrix {
   readonly rows: number;
   readonly cols: number;
@@ -91,11 +92,20 @@ export function matTvec(a: Matrix, x: ArrayLike<number>, out = new Float64Array(
   return out;
 }
 
-/** C = A B (i-k-j loop order; the blocked kernels live in ./products.ts). */
+/**
+ * C = A B. Small products use an i-k-j loop; larger ones transpose B once and run the
+ * register-blocked NT kernel (./kernels.ts). ./products.ts has the other product shapes.
+ */
 export function matmul(a: Matrix, b: Matrix): Matrix {
   if (a.cols !== b.rows) throw new RangeError(`matmul: ${a.rows}×${a.cols} times ${b.rows}×${b.cols}`);
   const out = matrix(a.rows, b.cols);
   const n = b.cols;
+  if (a.rows * a.cols * n > 32768) {
+    const bt = new Float64Array(b.rows * n);
+    transposeBlock(b.rows, n, b.data, 0, n, bt, 0, b.rows);
+    gemmNT(a.rows, n, a.cols, 1, a.data, 0, a.cols, bt, 0, b.rows, out.data, 0, n);
+    return out;
+  }
   for (let i = 0; i < a.rows; i++) {
     const oi = i * n;
     for (let k = 0; k < a.cols; k++) {

@@ -2,7 +2,8 @@
  * The forward operator G (M data × N cells): dense or sparse, behind one set of products.
  */
 import { matrix, type Matrix } from './matrix.ts';
-import type { SparseMatrix } from './sparse.ts';
+import { denseTimesSparseTranspose, sparseTimesDense, type SparseMatrix } from './sparse.ts';
+import { multiply, multiplyNT } from './products.ts';
 
 export type Operator =
   | { readonly kind: 'dense'; readonly matrix: Matrix }
@@ -88,6 +89,30 @@ export function operatorToDense(g: Operator): Matrix {
   const out = matrix(rows, cols);
   for (let i = 0; i < rows; i++) out.data.set(operatorRow(g, i), i * cols);
   return out;
+}
+
+/** G X for X dense N × k (M × k result). */
+export function operatorTimesDense(g: Operator, x: Matrix): Matrix {
+  switch (g.kind) {
+    case 'dense':
+      return multiply(g.matrix, x);
+    case 'sparse':
+      return sparseTimesDense(g.matrix, x);
+    default:
+      return assertNever(g);
+  }
+}
+
+/** A Gᵀ for A dense r × N (r × M result), e.g. B = Cm Gᵀ. */
+export function denseTimesOperatorTranspose(a: Matrix, g: Operator): Matrix {
+  switch (g.kind) {
+    case 'dense':
+      return multiplyNT(a, g.matrix);
+    case 'sparse':
+      return denseTimesSparseTranspose(a, g.matrix);
+    default:
+      return assertNever(g);
+  }
 }
 
 export function assertNever(x: never): never {

@@ -69,3 +69,46 @@ export function denseToSparse(a: Matrix): SparseMatrix {
   }
   return sparseFromCoordinates(a.rows, a.cols, ri, ci, v);
 }
+
+/** C = S X for S sparse M × N and X dense N × k: each row of C sums rows of X (contiguous axpys). */
+export function sparseTimesDense(s: SparseMatrix, x: Matrix): Matrix {
+  if (x.rows !== s.cols) throw new RangeError(`sparseTimesDense: S is ${s.rows}×${s.cols}, X is ${x.rows}×${x.cols} (expected ${s.cols} rows)`);
+  const k = x.cols;
+  const out = matrix(s.rows, k);
+  const c = out.data;
+  const xd = x.data;
+  const { rowPtr, colIdx, values } = s;
+  for (let i = 0; i < s.rows; i++) {
+    const oi = i * k;
+    for (let p = rowPtr[i]!; p < rowPtr[i + 1]!; p++) {
+      const v = values[p]!;
+      const ox = colIdx[p]! * k;
+      for (let j = 0; j < k; j++) c[oi + j] += v * xd[ox + j]!;
+    }
+  }
+  return out;
+}
+
+/**
+ * C = A Sᵀ for A dense r × N and S sparse M × N (e.g. B = Cm Gᵀ): C[i][m] = Σ_p A[i][col_p] v_p over
+ * the entries of row m of S, so each row of A is gathered from while it sits in cache.
+ */
+export function denseTimesSparseTranspose(a: Matrix, s: SparseMatrix): Matrix {
+  if (a.cols !== s.cols) throw new RangeError(`denseTimesSparseTranspose: A is ${a.rows}×${a.cols}, S is ${s.rows}×${s.cols} (expected ${a.cols} columns)`);
+  const n = a.cols;
+  const m = s.rows;
+  const out = matrix(a.rows, m);
+  const c = out.data;
+  const ad = a.data;
+  const { rowPtr, colIdx, values } = s;
+  for (let i = 0; i < a.rows; i++) {
+    const oa = i * n;
+    const oc = i * m;
+    for (let r = 0; r < m; r++) {
+      let acc = 0;
+      for (let p = rowPtr[r]!; p < rowPtr[r + 1]!; p++) acc += ad[oa + colIdx[p]!]! * values[p]!;
+      c[oc + r] = acc;
+    }
+  }
+  return out;
+}
