@@ -105,4 +105,5 @@ def main():
     json.dump({"cases": out}, sys.stdout)
 
 
-main()
+if __name__ == "__main__":
+    main()
