@@ -26,6 +26,8 @@ const MAX_SERIES_TERMS = 30;
 /** Continued-fraction iterations allowed (≈ 60 are needed at x = 2, fewer for larger x; measured). */
 const MAX_CF_ITERATIONS = 1000;
 const EPS = 2.220446049250313e-16;
+/** Tabulated continued-fraction steps (76 are needed at x = 2, measured; beyond the table they are computed on the fly). */
+const CF_TABLE = 128;
 
 /** Constants of Temme's series that depend only on the fractional order μ ∈ [−½, ½). */
 export interface BesselOrder {
@@ -51,6 +53,10 @@ export interface BesselOrder {
   readonly invKMinusMu: Float64Array;
   readonly invKPlusMu: Float64Array;
   readonly invK: Float64Array;
+  /** Continued-fraction coefficients depending only on μ, for i = 1 … CF_TABLE − 1: a_{i+1}, 1/a_{i+1}, C_{i+1}. */
+  readonly cfA: Float64Array;
+  readonly cfInvA: Float64Array;
+  readonly cfC: Float64Array;
 }
 
 function checkOrder(fn: string, nu: number): void {
@@ -86,6 +92,21 @@ export function besselOrder(nu: number): BesselOrder {
     invKPlusMu[k] = 1 / (k + mu);
     invK[k] = 1 / k;
   }
+  const cfA = new Float64Array(CF_TABLE);
+  const cfInvA = new Float64Array(CF_TABLE);
+  const cfC = new Float64Array(CF_TABLE);
+  {
+    const a1 = 0.25 - mu * mu;
+    let ai = -a1;
+    let ci = a1;
+    for (let i = 1; i < CF_TABLE; i++) {
+      ai -= 2 * i;
+      ci = (-ai * ci) / (i + 1);
+      cfA[i] = ai;
+      cfInvA[i] = 1 / ai;
+      cfC[i] = ci;
+    }
+  }
   return {
     nu: a,
     mu,
@@ -100,6 +121,9 @@ export function besselOrder(nu: number): BesselOrder {
     invKMinusMu,
     invKPlusMu,
     invK,
+    cfA,
+    cfInvA,
+    cfC,
   };
 }
 
@@ -154,7 +178,8 @@ export function temmeSeries(order: BesselOrder, x: number, out: Float64Array): v
  * where z_k are the ratios of successive solutions of the recurrence behind CF2; Steed's algorithm forms the
  * continued fraction and S together from the same convergents (Temme 1975 eqs. 3.7–3.10).
  */
-export function temmeContinuedFraction(mu: number, x: number, out: Float64Array): void {
+export function temmeContinuedFraction(order: BesselOrder, x: number, out: Float64Array): void {
+  const { mu, cfA, cfInvA, cfC } = order;
   const a1 = 0.25 - mu * mu;
   let b = 2 * (1 + x);
   let d = 1 / b;
@@ -162,17 +187,15 @@ export function temmeContinuedFraction(mu: number, x: number, out: Float64Array)
   let h = d; // convergents of 1/(b_1 + a_2/(b_2 + …))
   let q1 = 0;
   let q2 = 1;
-  let c = a1; // C_k
   let q = a1; // Σ C_k q_k
-  let a = -a1;
   let s = 1 + q * delh;
-  for (let i = 1; i < MAX_CF_ITERATIONS; i++) {
-    a -= 2 * i;
-    c = (-a * c) / (i + 1);
-    const qnew = (q1 - b * q2) / a;
+  let i = 1;
+  for (; i < CF_TABLE; i++) {
+    const a = cfA[i]!;
+    const qnew = (q1 - b * q2) * cfInvA[i]!;
     q1 = q2;
     q2 = qnew;
-    q += c * qnew;
+    q += cfC[i]! * qnew;
     b += 2;
     d = 1 / (b + a * d);
     delh = (b * d - 1) * delh;
@@ -180,6 +203,26 @@ export function temmeContinuedFraction(mu: number, x: number, out: Float64Array)
     const dels = q * delh;
     s += dels;
     if (Math.abs(dels) < EPS * Math.abs(s)) break;
+  }
+  if (i === CF_TABLE) {
+    // Not reached for x ≥ 2 (measured ≤ 76 steps); continue with coefficients computed on the fly.
+    let a = cfA[CF_TABLE - 1]!;
+    let c = cfC[CF_TABLE - 1]!;
+    for (; i < MAX_CF_ITERATIONS; i++) {
+      a -= 2 * i;
+      c = (-a * c) / (i + 1);
+      const qnew = (q1 - b * q2) / a;
+      q1 = q2;
+      q2 = qnew;
+      q += c * qnew;
+      b += 2;
+      d = 1 / (b + a * d);
+      delh = (b * d - 1) * delh;
+      h += delh;
+      const dels = q * delh;
+      s += dels;
+      if (Math.abs(dels) < EPS * Math.abs(s)) break;
+    }
   }
   const kmu = Math.sqrt(Math.PI / (2 * x)) / s;
   out[0] = kmu;
@@ -194,7 +237,7 @@ export function temmeContinuedFraction(mu: number, x: number, out: Float64Array)
 export function besselKWithOrder(order: BesselOrder, x: number, scaled: boolean, scratch: Float64Array): number {
   const isSeries = x < SERIES_LIMIT;
   if (isSeries) temmeSeries(order, x, scratch);
-  else temmeContinuedFraction(order.mu, x, scratch);
+  else temmeContinuedFraction(order, x, scratch);
   let k0 = scratch[0]!;
   let result = k0;
   if (order.n > 0) {

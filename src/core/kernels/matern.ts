@@ -1,0 +1,121 @@
+/**
+ * Matérn correlation in the scaling of Rasmussen & Williams (2006) eq. 4.14, at scaled distance h = r/ℓ ≥ 0:
+ *
+ *   ρ_ν(h) = 2^{1−ν}/Γ(ν) · z^ν K_ν(z),   z = √(2ν) h,   ν > 0,
+ *
+ * with closed forms (eq. 4.17) ν = 1/2: e^{−h}; ν = 3/2: (1 + √3h) e^{−√3h}; ν = 5/2: (1 + √5h + 5h²/3) e^{−√5h}.
+ * ν sets the smoothness (realisations are ⌈ν⌉ − 1 times mean-square differentiable, R&W §4.2.1); as ν → ∞,
+ * ρ_ν(h) → e^{−h²/2}, the Gaussian kernel, with the first-order error e^{−h²/2} h²(h² − 4)/(8ν) (derived in
+ * test/core/kernels/matern.test.ts from the spectral density, R&W eq. 4.15). Other authors (e.g. Stein 1999) scale
+ * the argument without √(2ν); ours keeps the curvature at 0 close to the Gaussian's for large ν.
+ *
+ * General-ν evaluation. Write ν = μ + n with μ ∈ [−½, ½) and n = ⌊ν + ½⌋ (./../special/bessel.ts), and
+ *   r_k(z) = z^{μ+k} K_{μ+k}(z) / (Γ(μ+k) 2^{μ+k−1}),
+ * so that ρ_ν(h) = r_n(√(2ν)h). Multiplying K_{m+1} = K_{m−1} + (2m/z) K_m (DLMF 10.29.1) by z^{m+1} and
+ * normalising gives the recurrence (derived)
+ *   r_{k+1} = r_k + z² r_{k−1} / (4 (μ+k)(μ+k−1)),   k ≥ 2,
+ * whose terms are all positive (no cancellation) and which never overflows (0 < r_k ≤ 1), so no Γ(ν) or 2^ν
+ * factors appear even for ν in the thousands. It starts from r_1, r_2 built from z^μ K_μ and z^{μ+1} K_{μ+1}
+ * (Temme's series for z < 2, the continued fraction scaled by e^z for z ≥ 2). The work per call is O(n).
+ * For z ≥ 2 the values carry the factor e^z; they are rescaled by 2^{−900} when large and the factor is removed
+ * at the end, so large z underflows gracefully to 0.
+ * ρ(0) = 1 exactly; results are clamped to [0, 1] (rounding can otherwise give 1 + 1 ulp near h = 0).
+ */
+import type { CorrelationFunction } from './correlation.ts';
+import { besselOrder, temmeContinuedFraction, temmeSeries } from '../special/bessel.ts';
+import { gamma } from '../special/gamma.ts';
+
+const SQRT3 = Math.sqrt(3);
+const SQRT5 = Math.sqrt(5);
+const RESCALE = Math.pow(2, -900);
+const RESCALE_LOG = 900 * Math.LN2;
+const RESCALE_ABOVE = 1e250;
+
+/** Matérn ν = 1/2 (R&W eq. 4.17): e^{−h}. */
+export function matern12(h: number): number {
+  return Math.exp(-h);
+}
+
+/** Matérn ν = 3/2 (R&W eq. 4.17): (1 + √3 h) e^{−√3 h}. */
+export function matern32(h: number): number {
+  const t = SQRT3 * h;
+  return (1 + t) * Math.exp(-t);
+}
+
+/** Matérn ν = 5/2 (R&W eq. 4.17): (1 + √5 h + 5h²/3) e^{−√5 h}. */
+export function matern52(h: number): number {
+  const t = SQRT5 * h;
+  return (1 + t + (t * t) / 3) * Math.exp(-t);
+}
+
+function checkNu(nu: number): void {
+  if (!(nu > 0) || !Number.isFinite(nu)) {
+    throw new RangeError(`matern: nu must be a finite number > 0, got ${Number.isNaN(nu) ? 'NaN' : nu}`);
+  }
+}
+
+/**
+ * The general-ν evaluator through K_ν (no closed-form shortcut). Constants depending only on ν are
+ * computed here once; the returned function is cheap to call in covariance-filling loops.
+ * Throws RangeError unless ν is finite and > 0.
+ */
+export function maternBessel(nu: number): CorrelationFunction {
+  checkNu(nu);
+  const order = besselOrder(nu);
+  const { mu, n } = order;
+  const s = Math.sqrt(2 * nu);
+  // Normalisers 1/(Γ(μ+k) 2^{μ+k−1}) for k = 0 (only used when n = 0, then μ = ν > 0), 1 and 2.
+  const norm0 = n === 0 ? 1 / (gamma(mu) * Math.pow(2, mu - 1)) : 0;
+  const norm1 = 1 / (order.gammaPlus * order.twoPowMu); // Γ(μ+1) 2^μ
+  const norm2 = norm1 / (2 * (mu + 1)); // Γ(μ+2) 2^{μ+1} = 2(μ+1) Γ(μ+1) 2^μ
+  const twoMuPlus1 = 2 * (mu + 1);
+  // coef[k] = 1/(4(μ+k)(μ+k−1)) for k = 2 … n−1.
+  const coef = new Float64Array(Math.max(n, 2));
+  for (let k = 2; k < n; k++) coef[k] = 1 / (4 * (mu + k) * (mu + k - 1));
+  const scratch = new Float64Array(3);
+
+  return (h: number): number => {
+    if (h === 0) return 1;
+    const z = s * h;
+    const series = z < 2;
+    if (series) temmeSeries(order, z, scratch);
+    else temmeContinuedFraction(order, z, scratch);
+    // scratch: [K_μ, z K_{μ+1}, z^μ] (times e^z when !series).
+    const zmu = scratch[2]!;
+    const g0 = zmu * scratch[0]!; // z^μ K_μ
+    const g1 = zmu * scratch[1]!; // z^{μ+1} K_{μ+1}
+    let r: number;
+    let logScale = 0;
+    if (n === 0) r = g0 * norm0;
+    else if (n === 1) r = g1 * norm1;
+    else {
+      const z2 = z * z;
+      let r1 = g1 * norm1;
+      let r2 = (z2 * g0 + twoMuPlus1 * g1) * norm2;
+      for (let k = 2; k < n; k++) {
+        const r3 = r2 + z2 * r1 * coef[k]!;
+        r1 = r2;
+        r2 = r3;
+        if (r2 > RESCALE_ABOVE) {
+          r1 *= RESCALE;
+          r2 *= RESCALE;
+          logScale += RESCALE_LOG;
+        }
+      }
+      r = r2;
+    }
+    if (!series) r = logScale === 0 && z < 700 ? r * Math.exp(-z) : Math.exp(Math.log(r) + logScale - z);
+    return r > 1 ? 1 : r;
+  };
+}
+
+/**
+ * Fast Matérn evaluator ρ_ν(h): the closed forms for ν = 1/2, 3/2, 5/2 (R&W eq. 4.17), else {@link maternBessel}.
+ */
+export function maternCorrelationFunction(nu: number): CorrelationFunction {
+  checkNu(nu);
+  if (nu === 0.5) return matern12;
+  if (nu === 1.5) return matern32;
+  if (nu === 2.5) return matern52;
+  return maternBessel(nu);
+}
