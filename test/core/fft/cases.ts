@@ -75,3 +75,19 @@ export const COVARIANCE_CASES: readonly CovarianceCase[] = [
   },
   { name: '2-D grid with nx = 1', grid: g2c, prior: { mean: zero, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, lengths: [2, 3], angle: 10 }] } },
 ];
+
+/** `count` straight rays between seeded points on the left/right and top/bottom edges of a 2-D grid. */
+export function rayFan(grid: Grid, count: number, seed: number): { from: [number, number]; to: [number, number] }[] {
+  const [nx, ny] = [grid.shape[0]!, grid.shape[1]!];
+  const [dx, dy] = [grid.spacing[0]!, grid.spacing[1]!];
+  const [x0, y0] = [-dx / 2, -dy / 2];
+  const [w, h] = [nx * dx, ny * dy];
+  const u = seededVector(2 * count, seed);
+  return Array.from({ length: count }, (_, k) => {
+    const a = 0.5 + 0.5 * u[2 * k]!;
+    const b = 0.5 + 0.5 * u[2 * k + 1]!;
+    return k % 2 === 0
+      ? { from: [x0, y0 + a * h] as [number, number], to: [x0 + w, y0 + b * h] as [number, number] }
+      : { from: [x0 + a * w, y0] as [number, number], to: [x0 + b * w, y0 + h] as [number, number] };
+  });
+}

@@ -1,0 +1,425 @@
+/**
+ * Linear-Gaussian posterior through the structured (FFT) path for stationary priors on regular
+ * grids, in the data-space form (Tarantola 2005, Inverse Problem Theory, §3.2):
+ *
+ *   K = G Cm Gᵀ + Cd = L Lᵀ,   m̃ = m0 + B K⁻¹ (d − G m0),   var_i = Cm_ii − Σ_k W_ki²,
+ *   B = Cm Gᵀ (N × M),  W = L⁻¹ Bᵀ (M × N).
+ *
+ * Bᵀ is computed row by row with circulant embedding (../fft/covariance.ts): row k of Bᵀ is
+ * Cm g_k = s ⊙ C(s ⊙ g_k) + nugget·g_k, two rows per complex transform. The spectra F pad(s ⊙ g_k)
+ * depend on the problem and the std profile only, so they are cached on a {@link StructuredProblem}
+ * (within a memory budget): a change of kernel, lengths or variances then costs one pointwise
+ * product with λ and one inverse transform per pair of data. No N × N matrix is formed.
+ *
+ * Progressive: {@link prepareStructuredPosterior} factors K and returns the mean at once;
+ * {@link structuredPosteriorStd} adds the standard deviations (the M²N/2 triangular solve), column
+ * block by column block ({@link structuredVarianceBlock} is the unit a worker runs; each column's
+ * arithmetic is the same whatever the blocks, so split runs are identical to one run).
+ *
+ * PUBLIC API: structuredProblem, prepareStructuredPosterior, structuredPosteriorStd,
+ * structuredVarianceBlock, structuredPosteriorSummary, posteriorAuto.
+ */
+import { InputError, NotPositiveDefiniteError } from '../errors.ts';
+import { cellCount } from '../grid/grid.ts';
+import { cholesky, choleskySolve, solveLower, solveLowerMatrix } from '../linalg/cholesky.ts';
+import { matrix, type Matrix } from '../linalg/matrix.ts';
+import { applyOperator, assertNever, operatorRow, type Operator } from '../linalg/operator.ts';
+import { CirculantProduct, nonStationaryReason } from '../fft/covariance.ts';
+import { meanVector, validatePrior } from '../prior/covariance.ts';
+import type { PriorSpec } from '../prior/spec.ts';
+import type { Problem } from '../problems/spec.ts';
+import { chiSquareInterval } from './chisquare.ts';
+import { posteriorSummary, preparePosterior } from './posterior.ts';
+import type { PosteriorSummary } from './types.ts';
+
+/** Default memory budget for cached row spectra (bytes). */
+export const DEFAULT_SPECTRUM_CACHE_BYTES = 128 * 1024 * 1024;
+
+/** A problem with its cache of row spectra for the FFT path. */
+export interface StructuredProblem {
+  readonly problem: Problem;
+  readonly cacheBytes: number;
+  /** Filled on first use; replaced when the padding or the std profile changes. */
+  cache: RowSpectra | null;
+}
+
+interface RowSpectra {
+  readonly px: number;
+  readonly py: number;
+  /** The std profile the spectra were taken with (by value). */
+  readonly profile: Float64Array | null;
+  /** One interleaved complex spectrum per pair of data rows (2k, 2k + 1). */
+  readonly spectra: Float64Array[];
+}
+
+export function structuredProblem(problem: Problem, options: { cacheBytes?: number } = {}): StructuredProblem {
+  return { problem, cacheBytes: options.cacheBytes ?? DEFAULT_SPECTRUM_CACHE_BYTES, cache: null };
+}
+
+export interface StructuredPosteriorState {
+  readonly problem: Problem;
+  readonly prior: PriorSpec;
+  readonly m0: Float64Array;
+  /** Bᵀ = G Cm (M × N). */
+  readonly Bt: Matrix;
+  /** Lower Cholesky factor of K (M × M). */
+  readonly L: Matrix;
+  /** Lower Cholesky factor of a full Cd; absent for diagonal Cd. */
+  readonly Ld?: Matrix;
+  readonly r: Float64Array;
+  readonly alpha: Float64Array;
+  /** Posterior mean m̃ = m0 + Bᵀᵀ α. */
+  readonly mean: Float64Array;
+  /** diag(Cm). */
+  readonly priorVariance: Float64Array;
+  /** Embedding sizes [px, py] used for the products. */
+  readonly padding: readonly [number, number];
+  /** Whether the row spectra came from the cache. */
+  readonly spectraCached: boolean;
+  /** Milliseconds per stage (for benchmarks and the UI). */
+  readonly timings: { readonly spectra: number; readonly products: number; readonly factor: number };
+}
+
+function now(): number {
+  return typeof performance !== 'undefined' ? performance.now() : Date.now();
+}
+
+function sameProfile(a: Float64Array | null, b: readonly number[] | undefined): boolean {
+  if (a === null || b === undefined) return a === null && b === undefined;
+  if (a.length !== b.length) return false;
+  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return false;
+  return true;
+}
+
+function validateProblem(problem: Problem, n: number): number {
+  const { rows, cols } = problem.operator.matrix;
+  if (cols !== n) throw new InputError('problem.operator', `a matrix with ${n} columns (one per grid cell)`, `${rows}×${cols}`);
+  const d = problem.data;
+  if (d.values.length !== rows) throw new InputError('problem.data.values', `${rows} values (one per operator row)`, d.values);
+  if ((d.sigma === undefined) === (d.covariance === undefined)) {
+    throw new InputError('problem.data', 'exactly one of sigma or covariance', d.sigma === undefined ? 'neither' : 'both');
+  }
+  if (d.sigma !== undefined) {
+    if (d.sigma.length !== rows) throw new InputError('problem.data.sigma', `${rows} values`, d.sigma);
+    d.sigma.forEach((s, k) => {
+      if (!(s > 0) || !Number.isFinite(s)) throw new InputError(`problem.data.sigma[${k}]`, 'a finite number > 0', s);
+    });
+  } else if (d.covariance!.rows !== rows || d.covariance!.cols !== rows) {
+    throw new InputError('problem.data.covariance', `an ${rows}×${rows} matrix`, `${d.covariance!.rows}×${d.covariance!.cols}`);
+  }
+  return rows;
+}
+
+/** Rows of G scaled by the std profile: (s ⊙ g_k). */
+function scaledRow(g: Operator, k: number, s: readonly number[] | undefined): Float64Array {
+  const row = operatorRow(g, k);
+  if (s !== undefined) for (let i = 0; i < row.length; i++) row[i] *= s[i]!;
+  return row;
+}
+
+/**
+ * Factors the posterior through the FFT path and computes the mean. Throws InputError for a bad
+ * prior or problem, NotPositiveDefiniteError when K does not factor, and InputError when the prior
+ * is not stationary on the grid (use {@link posteriorAuto} to fall back to the dense path).
+ */
+export function prepareStructuredPosterior(sp: StructuredProblem | Problem, prior: PriorSpec): StructuredPosteriorState {
+  const holder = 'cacheBytes' in sp ? sp : structuredProblem(sp);
+  const problem = holder.problem;
+  const grid = problem.grid;
+  validatePrior(prior, grid);
+  const why = nonStationaryReason(grid, prior);
+  if (why !== null) throw new InputError('prior', 'stationary on a regular grid for the FFT path', why);
+  const n = cellCount(grid);
+  const m = validateProblem(problem, n);
+  const g = problem.operator;
+  const s = prior.stdProfile;
+  const nugget = prior.nugget ?? 0;
+
+  // Bᵀ rows by circulant products, two data rows per complex transform.
+  let t0 = now();
+  const cp = new CirculantProduct(grid, prior);
+  const pairs = Math.ceil(m / 2);
+  const specBytes = cp.spectrumLength * 8;
+  let cache = holder.cache;
+  let spectraCached = false;
+  if (cache !== null && cache.px === cp.px && cache.py === cp.py && sameProfile(cache.profile, s)) {
+    spectraCached = true;
+  } else {
+    cache = null;
+    holder.cache = null;
+  }
+  const fits = pairs * specBytes <= holder.cacheBytes;
+  const spectra: Float64Array[] = spectraCached ? cache!.spectra : [];
+  let spectraTime = 0;
+  const Bt = matrix(m, n);
+  const bt = Bt.data;
+  const scratch = spectraCached || fits ? null : new Float64Array(cp.spectrumLength);
+  let tProducts = 0;
+  for (let p = 0; p < pairs; p++) {
+    const a = 2 * p;
+    const b = a + 1 < m ? a + 1 : -1;
+    let spec: Float64Array;
+    if (spectraCached) {
+      spec = spectra[p]!;
+    } else {
+      const ts = now();
+      spec = scratch ?? new Float64Array(cp.spectrumLength);
+      cp.spectrum(scaledRow(g, a, s), b < 0 ? null : scaledRow(g, b, s), spec);
+      if (fits) spectra.push(spec);
+      spectraTime += now() - ts;
+    }
+    const tp = now();
+    cp.fromSpectrum(spec, bt, b < 0 ? null : bt, a * n, b < 0 ? 0 : b * n);
+    tProducts += now() - tp;
+  }
+  if (!spectraCached && fits) holder.cache = { px: cp.px, py: cp.py, profile: s === undefined ? null : Float64Array.from(s), spectra };
+  // Profile and nugget: row k of Bᵀ = s ⊙ C(s ⊙ g_k) + nugget·g_k.
+  const tFix = now();
+  if (s !== undefined || nugget !== 0) {
+    for (let k = 0; k < m; k++) {
+      const o = k * n;
+      if (s !== undefined) for (let i = 0; i < n; i++) bt[o + i] *= s[i]!;
+      if (nugget !== 0) addScaledRow(g, k, nugget, bt, o);
+    }
+  }
+  tProducts += now() - tFix;
+  t0 = now();
+
+  // K = G Bᵀᵀ + Cd (symmetrised), its factor, α.
+  const K = gTimesBtTransposed(g, Bt);
+  addDataCovariance(K, problem);
+  const f = cholesky(K, { inPlace: true });
+  if (!f.ok) {
+    throw new NotPositiveDefiniteError('K = G Cm Gᵀ + Cd', f.pivot, 'check the data errors (σ > 0) or add a nugget to the prior');
+  }
+  const L = f.factor;
+  let Ld: Matrix | undefined;
+  if (problem.data.covariance !== undefined) {
+    const fd = cholesky(problem.data.covariance);
+    if (!fd.ok) throw new NotPositiveDefiniteError('problem.data.covariance', fd.pivot, 'the data covariance must be symmetric positive definite');
+    Ld = fd.factor;
+  }
+  const m0 = meanVector(grid, prior);
+  const gm0 = applyOperator(g, m0);
+  const r = new Float64Array(m);
+  for (let k = 0; k < m; k++) r[k] = problem.data.values[k]! - gm0[k]!;
+  const alpha = choleskySolve(L, r);
+  const mean = m0.slice();
+  for (let k = 0; k < m; k++) {
+    const ak = alpha[k]!;
+    const o = k * n;
+    for (let i = 0; i < n; i++) mean[i] += ak * bt[o + i]!;
+  }
+  const priorVariance = new Float64Array(n);
+  for (let i = 0; i < n; i++) priorVariance[i] = (s === undefined ? 1 : s[i]! * s[i]!) * cp.variance + nugget;
+  const factorTime = now() - t0;
+  const base = { problem, prior, m0, Bt, L, r, alpha, mean, priorVariance, padding: [cp.px, cp.py] as const, spectraCached };
+  const timings = { spectra: spectraTime, products: tProducts, factor: factorTime };
+  return Ld === undefined ? { ...base, timings } : { ...base, Ld, timings };
+}
+
+function addScaledRow(g: Operator, k: number, c: number, out: Float64Array, o: number): void {
+  switch (g.kind) {
+    case 'dense': {
+      const { cols, data } = g.matrix;
+      for (let i = 0; i < cols; i++) out[o + i] += c * data[k * cols + i]!;
+      return;
+    }
+    case 'sparse': {
+      const { rowPtr, colIdx, values } = g.matrix;
+      for (let q = rowPtr[k]!; q < rowPtr[k + 1]!; q++) out[o + colIdx[q]!] += c * values[q]!;
+      return;
+    }
+    default:
+      assertNever(g);
+  }
+}
+
+/** K = G Bᵀᵀ (M × M), symmetrised as ½(K + Kᵀ) against round-off. */
+function gTimesBtTransposed(g: Operator, Bt: Matrix): Matrix {
+  const m = Bt.rows;
+  const n = Bt.cols;
+  const K = matrix(m, m);
+  const kd = K.data;
+  const bt = Bt.data;
+  switch (g.kind) {
+    case 'sparse': {
+      const { rowPtr, colIdx, values } = g.matrix;
+      for (let a = 0; a < m; a++) {
+        const p0 = rowPtr[a]!;
+        const p1 = rowPtr[a + 1]!;
+        for (let b = 0; b < m; b++) {
+          const o = b * n;
+          let sum = 0;
+          for (let q = p0; q < p1; q++) sum += values[q]! * bt[o + colIdx[q]!]!;
+          kd[a * m + b] = sum;
+        }
+      }
+      break;
+    }
+    case 'dense': {
+      const gd = g.matrix.data;
+      for (let a = 0; a < m; a++) {
+        for (let b = 0; b < m; b++) {
+          let sum = 0;
+          const oa = a * n;
+          const ob = b * n;
+          for (let i = 0; i < n; i++) sum += gd[oa + i]! * bt[ob + i]!;
+          kd[a * m + b] = sum;
+        }
+      }
+      break;
+    }
+    default:
+      assertNever(g);
+  }
+  for (let a = 0; a < m; a++) {
+    for (let b = 0; b < a; b++) {
+      const v = 0.5 * (kd[a * m + b]! + kd[b * m + a]!);
+      kd[a * m + b] = v;
+      kd[b * m + a] = v;
+    }
+  }
+  return K;
+}
+
+function addDataCovariance(K: Matrix, problem: Problem): void {
+  const m = K.rows;
+  const { sigma, covariance } = problem.data;
+  if (sigma !== undefined) {
+    for (let k = 0; k < m; k++) K.data[k * m + k] += sigma[k]! * sigma[k]!;
+  } else {
+    for (let i = 0; i < m * m; i++) K.data[i] += covariance!.data[i]!;
+  }
+}
+
+/** Default column-block width of the triangular solve (M × width doubles stay in cache). */
+export const VARIANCE_BLOCK = 256;
+
+/**
+ * Posterior variances of cells [c0, c1): var_j = Cm_jj − Σ_k W_kj², W = L⁻¹ Bᵀ restricted to the
+ * block (forward substitution by rows of the block, Golub & Van Loan §3.1, memory). Writes
+ * out[j − c0]. Pure function of its inputs: the unit of work for a worker.
+ */
+export function structuredVarianceBlock(
+  L: Matrix,
+  Bt: Matrix,
+  priorVariance: Float64Array,
+  c0: number,
+  c1: number,
+  out: Float64Array = new Float64Array(c1 - c0),
+): Float64Array {
+  const m = L.rows;
+  const n = Bt.cols;
+  const w = c1 - c0;
+  const x = new Float64Array(m * w);
+  const bt = Bt.data;
+  const l = L.data;
+  for (let k = 0; k < m; k++) x.set(bt.subarray(k * n + c0, k * n + c1), k * w);
+  for (let i = 0; i < m; i++) {
+    const oi = i * w;
+    for (let p = 0; p < i; p++) {
+      const lip = l[i * m + p]!;
+      if (lip === 0) continue;
+      const op = p * w;
+      for (let j = 0; j < w; j++) x[oi + j] -= lip * x[op + j]!;
+    }
+    const inv = 1 / l[i * m + i]!;
+    for (let j = 0; j < w; j++) x[oi + j] *= inv;
+  }
+  for (let j = 0; j < w; j++) out[j] = priorVariance[c0 + j]!;
+  for (let k = 0; k < m; k++) {
+    const o = k * w;
+    for (let j = 0; j < w; j++) out[j] -= x[o + j]! * x[o + j]!;
+  }
+  // Round-off can leave a tiny negative where the data fix a cell almost exactly: clamp to 0.
+  for (let j = 0; j < w; j++) if (out[j]! < 0) out[j] = 0;
+  return out;
+}
+
+/** Pointwise posterior standard deviations √var (length N), single thread, block by block. */
+export function structuredPosteriorStd(state: StructuredPosteriorState, block = VARIANCE_BLOCK): Float64Array {
+  const n = state.Bt.cols;
+  const v = new Float64Array(n);
+  for (let c0 = 0; c0 < n; c0 += block) {
+    const c1 = Math.min(n, c0 + block);
+    structuredVarianceBlock(state.L, state.Bt, state.priorVariance, c0, c1, v.subarray(c0, c1));
+  }
+  for (let i = 0; i < n; i++) v[i] = Math.sqrt(v[i]!);
+  return v;
+}
+
+/** The full PosteriorSummary (path 'fft'); `std` may be passed when already computed. */
+export function structuredPosteriorSummary(state: StructuredPosteriorState, std?: Float64Array): PosteriorSummary {
+  const { problem, L, Ld, r, alpha, mean, priorVariance } = state;
+  const n = mean.length;
+  const m = r.length;
+  const sd = std ?? structuredPosteriorStd(state);
+  const priorStd = new Float64Array(n);
+  const varianceReduction = new Float64Array(n);
+  for (let i = 0; i < n; i++) {
+    const pv = priorVariance[i]!;
+    priorStd[i] = Math.sqrt(pv);
+    varianceReduction[i] = pv > 0 ? 1 - (sd[i]! * sd[i]!) / pv : 0;
+  }
+  const predicted = applyOperator(problem.operator, mean);
+  const misfit = new Float64Array(m);
+  for (let k = 0; k < m; k++) misfit[k] = problem.data.values[k]! - predicted[k]!;
+  let residuals: Float64Array;
+  if (Ld !== undefined) {
+    residuals = solveLower(Ld, misfit);
+  } else {
+    residuals = new Float64Array(m);
+    for (let k = 0; k < m; k++) residuals[k] = misfit[k]! / problem.data.sigma![k]!;
+  }
+  let chi2 = 0;
+  for (let k = 0; k < m; k++) chi2 += residuals[k]! * residuals[k]!;
+  // log N(d; G m0, K) = −½ rᵀα − Σ log L_kk − (M/2) log 2π (Rasmussen & Williams 2006, Alg. 2.1).
+  let rAlpha = 0;
+  let logDiag = 0;
+  for (let k = 0; k < m; k++) {
+    rAlpha += r[k]! * alpha[k]!;
+    logDiag += Math.log(L.data[k * m + k]!);
+  }
+  const logEvidence = -0.5 * rAlpha - logDiag - 0.5 * m * Math.log(2 * Math.PI);
+  // tr R = tr(L⁻¹ (K − Cd) L⁻ᵀ) = M − ‖L⁻¹ Ld‖_F² (derived; Ld = diag σ for a diagonal Cd).
+  const ld = Ld ?? diagonalMatrix(problem.data.sigma!);
+  const X = solveLowerMatrix(L, ld);
+  let fro = 0;
+  for (const v of X.data) fro += v * v;
+  const [lo, hi] = chiSquareInterval(m);
+  const summary = {
+    mean,
+    std: sd,
+    priorStd,
+    varianceReduction,
+    predicted,
+    residuals,
+    chi2,
+    logEvidence,
+    resolutionTrace: m - fro,
+    dataMisfit: rAlpha,
+    reducedMisfitInterval95: [lo / m, hi / m] as const,
+    dataCount: m,
+    parameterCount: n,
+    path: 'fft' as const,
+  };
+  return summary;
+}
+
+function diagonalMatrix(v: ArrayLike<number>): Matrix {
+  const k = v.length;
+  const out = matrix(k, k);
+  for (let i = 0; i < k; i++) out.data[i * k + i] = v[i]!;
+  return out;
+}
+
+/**
+ * The posterior summary through the FFT path when the prior is stationary on the grid, else the
+ * dense path (prior/covariance.ts + inverse/posterior.ts); `summary.path` says which ran.
+ */
+export function posteriorAuto(sp: StructuredProblem | Problem, prior: PriorSpec): PosteriorSummary {
+  const problem = 'cacheBytes' in sp ? sp.problem : sp;
+  if (nonStationaryReason(problem.grid, prior) !== null) return posteriorSummary(preparePosterior(problem, prior));
+  return structuredPosteriorSummary(prepareStructuredPosterior(sp, prior));
+}
