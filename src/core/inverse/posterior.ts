@@ -12,7 +12,9 @@
  * sparse G costs nnz(G)·N. With W = L⁻¹ Bᵀ (M × N):
  *   C̃ = Cm − Bᵀᵀ K⁻¹ Bᵀ = Cm − Wᵀ W,   so  var_i = Cm_ii − Σ_k W_ki².
  * Rounding can make var_i a tiny negative number where the data determine a cell almost exactly;
- * such values are clamped to 0 (std = 0) rather than returned as NaN.
+ * such values are clamped to 0 (std = 0) rather than returned as NaN. The subtraction cancels, so
+ * var_i carries an absolute error of a few ε·Cm_ii: posterior std below about √(ε Cm_ii)·10 is
+ * rounding noise (use the model-space form if such tiny posterior variances matter).
  */
 import { InputError, NotPositiveDefiniteError } from '../errors.ts';
 import { cellCount } from '../grid/grid.ts';
