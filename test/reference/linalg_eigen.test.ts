@@ -1,11 +1,13 @@
 /**
  * Eigenvalues against Debian's numpy.linalg.eigvalsh / eigh (LAPACK syevd), run through
- * test/reference/linalg_reference.py on seeded random symmetric matrices.
+ * test/reference/linalg_reference.py on seeded random symmetric matrices; Lanczos extremes against
+ * the same eigvalsh.
  */
 import { describe, expect, it } from 'vitest';
-import { symmetricEigen, symmetricEigenvalues } from '../../src/core/linalg/eigen.ts';
+import { lanczosExtremes, symmetricEigen, symmetricEigenvalues } from '../../src/core/linalg/eigen.ts';
+import { matrix, matvec, type Matrix } from '../../src/core/linalg/matrix.ts';
 import { runPython } from './python.ts';
-import { poisonUpper, randomSpd, randomSymmetric, relError, toJson, type JsonMatrix } from '../core/linalg/helpers.ts';
+import { poisonUpper, randomMatrix, randomSpd, randomSymmetric, relError, toJson, type JsonMatrix } from '../core/linalg/helpers.ts';
 
 const SIZES = [1, 2, 3, 7, 63, 64, 65, 130, 257];
 
@@ -48,3 +50,56 @@ describe('symmetricEigen vs numpy.linalg.eigh (Debian python3-numpy)', () => {
     });
   });
 });
+
+describe('lanczosExtremes vs numpy.linalg.eigvalsh (Debian python3-numpy)', () => {
+  // Random SPD matrices (spectrum dense at its edges: slow convergence) and an evenly spaced spectrum
+  // 1, 2, …, n rotated by two Householder reflections (relative gap 1/n: fast convergence).
+  const cases = [
+    { n: 300, iterations: 100, a: randomSpd(300, 11), converged: false },
+    { n: 257, iterations: 60, a: randomSpd(257, 12), converged: false },
+    { n: 40, iterations: 40, a: randomSpd(40, 13), converged: true },
+    { n: 300, iterations: 100, a: plantedSpectrum(300, 14), converged: true },
+  ];
+  const ref = runPython<{ results: number[][] }>('linalg_reference.py', {
+    cases: cases.map(({ a }) => ({ op: 'eigvalsh', a: toJson(a) })),
+  }).results;
+  cases.forEach(({ n, iterations, a, converged }, c) => {
+    it(`n = ${n}, ${iterations} steps: extremes within the residual bound and inside the spectrum`, () => {
+      const r = lanczosExtremes((x) => matvec(a, x), n, { iterations, seed: 5 });
+      const lam = ref[c]!;
+      const lo = lam[0]!;
+      const hi = lam[n - 1]!;
+      const tol = 1e-10 * hi;
+      // Ritz values interlace, so they lie inside [λ_min, λ_max] (Cauchy interlacing, memory).
+      expect(r.min).toBeGreaterThanOrEqual(lo - tol);
+      expect(r.max).toBeLessThanOrEqual(hi + tol);
+      // Some eigenvalue lies within the residual of each Ritz value; at the ends, the extreme one.
+      expect(Math.abs(r.min - lo)).toBeLessThanOrEqual(r.minResidual + tol);
+      expect(Math.abs(r.max - hi)).toBeLessThanOrEqual(r.maxResidual + tol);
+      if (converged) {
+        expect(Math.abs(r.min - lo) / hi).toBeLessThan(1e-8);
+        expect(Math.abs(r.max - hi) / hi).toBeLessThan(1e-8);
+      }
+    });
+  });
+});
+
+/** H₂ H₁ diag(1, …, n) H₁ H₂ with seeded Householder reflections H = I − 2uuᵀ. */
+function plantedSpectrum(n: number, seed: number): Matrix {
+  const a = matrix(n, n);
+  for (let i = 0; i < n; i++) a.data[i * n + i] = i + 1;
+  for (const s of [seed, seed + 1]) {
+    const u = randomMatrix(1, n, s).data;
+    const nu = Math.sqrt(u.reduce((acc, v) => acc + v * v, 0));
+    for (let i = 0; i < n; i++) u[i]! /= nu;
+    // A ← H A H = A − 2u(uᵀA) − 2(Au)uᵀ + 4(uᵀAu) u uᵀ
+    const au = matvec(a, u);
+    const uau = au.reduce((acc, v, i) => acc + v * u[i]!, 0);
+    for (let i = 0; i < n; i++) {
+      for (let j = 0; j < n; j++) {
+        a.data[i * n + j] += -2 * u[i]! * au[j]! - 2 * au[i]! * u[j]! + 4 * uau * u[i]! * u[j]!;
+      }
+    }
+  }
+  return a;
+}

@@ -242,3 +242,109 @@ export function symmetricEigen(a: Matrix): SymmetricEigen {
   }
   return { values, vectors };
 }
+
+/** Options of {@link lanczosExtremes}. */
+export interface LanczosOptions {
+  /** Lanczos steps (Krylov dimension), at most n; default min(n, 80). */
+  readonly iterations?: number;
+  /** Seed of the start vector; default 1. */
+  readonly seed?: number;
+}
+
+/** Ritz estimates of the extreme eigenvalues and their residual bounds. */
+export interface LanczosExtremes {
+  readonly min: number;
+  readonly max: number;
+  /**
+   * ‖A y − θ y‖ for the Ritz pair of `min` / `max`, = |β_m s_m| (last component of the Ritz vector of
+   * T times the last β). A has an eigenvalue within this distance of the estimate (Golub & Van Loan
+   * §10.1.4 and Parlett, The Symmetric Eigenvalue Problem, Thm 3.2.1 (memory)).
+   */
+  readonly minResidual: number;
+  readonly maxResidual: number;
+  /** Steps actually taken (fewer than asked when the Krylov space became invariant). */
+  readonly iterations: number;
+}
+
+/**
+ * Extreme eigenvalues of a symmetric operator known only through `applyA(x)` (returns A x, length n),
+ * by Lanczos with full reorthogonalisation (classical Gram–Schmidt run twice against all previous
+ * vectors; Golub & Van Loan §10.1 and §10.3, memory). Storage n × iterations; meant for ≤ ~100 steps.
+ * The start vector is seeded, so results are reproducible.
+ */
+export function lanczosExtremes(
+  applyA: (x: Float64Array) => ArrayLike<number>,
+  n: number,
+  options: LanczosOptions = {},
+): LanczosExtremes {
+  if (!Number.isInteger(n) || n < 1) throw new RangeError(`lanczosExtremes: n must be a positive integer, got ${n}`);
+  const steps = Math.min(n, Math.max(1, Math.floor(options.iterations ?? 80)));
+  const q = new Float64Array(steps * n);
+  const alpha = new Float64Array(steps);
+  const beta = new Float64Array(steps);
+  // Seeded start vector (integer hash generator; common practice, no source).
+  let s = (options.seed ?? 1) >>> 0;
+  let norm2 = 0;
+  for (let i = 0; i < n; i++) {
+    s = (s + 0x9e3779b9) >>> 0;
+    let z = Math.imul(s ^ (s >>> 16), 0x85ebca6b) >>> 0;
+    z = Math.imul(z ^ (z >>> 13), 0xc2b2ae35) >>> 0;
+    const v = ((z ^ (z >>> 16)) >>> 0) / 2 ** 31 - 1;
+    q[i] = v;
+    norm2 += v * v;
+  }
+  const inv0 = 1 / Math.sqrt(norm2);
+  for (let i = 0; i < n; i++) q[i] *= inv0;
+  const w = new Float64Array(n);
+  let m = 0;
+  let lastBeta = 0;
+  for (let j = 0; j < steps; j++) {
+    m = j + 1;
+    const qj = q.subarray(j * n, (j + 1) * n);
+    const aq = applyA(qj);
+    if (aq.length !== n) throw new RangeError(`lanczosExtremes: applyA returned length ${aq.length}, expected ${n}`);
+    let a = 0;
+    for (let i = 0; i < n; i++) {
+      w[i] = aq[i]!;
+      a += w[i]! * qj[i]!;
+    }
+    alpha[j] = a;
+    // Full reorthogonalisation against q_0..q_j, twice ("twice is enough", Parlett §6.9, memory).
+    for (let pass = 0; pass < 2; pass++) {
+      for (let p = 0; p <= j; p++) {
+        const o = p * n;
+        let h = 0;
+        for (let i = 0; i < n; i++) h += q[o + i]! * w[i]!;
+        for (let i = 0; i < n; i++) w[i] -= h * q[o + i]!;
+      }
+    }
+    let b2 = 0;
+    for (let i = 0; i < n; i++) b2 += w[i]! * w[i]!;
+    const b = Math.sqrt(b2);
+    lastBeta = b;
+    // Invariant subspace: T's eigenvalues are exact eigenvalues of A.
+    const scale = Math.abs(a) + (j > 0 ? beta[j - 1]! : 0);
+    if (j === steps - 1 || b <= 1e-14 * Math.max(scale, Number.MIN_VALUE)) break;
+    beta[j] = b;
+    const o = (j + 1) * n;
+    for (let i = 0; i < n; i++) q[o + i] = w[i]! / b;
+  }
+  // Eigen-decomposition of the m × m tridiagonal T (dense; m is small).
+  const T = matrix(m, m);
+  for (let i = 0; i < m; i++) {
+    T.data[i * m + i] = alpha[i]!;
+    if (i + 1 < m) {
+      T.data[(i + 1) * m + i] = beta[i]!;
+      T.data[i * m + i + 1] = beta[i]!;
+    }
+  }
+  const { values, vectors } = symmetricEigen(T);
+  const last = (col: number) => Math.abs(lastBeta * vectors.data[(m - 1) * m + col]!);
+  return {
+    min: values[0]!,
+    max: values[m - 1]!,
+    minResidual: last(0),
+    maxResidual: last(m - 1),
+    iterations: m,
+  };
+}
