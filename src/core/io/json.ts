@@ -173,9 +173,10 @@ export function locateJsonError(text: string): { pos: number; reason: string } |
       if (/^-?(NaN|Infinity)/.test(text.slice(p, p + 10))) fail('NaN and Infinity are not JSON numbers; every number must be finite');
       return fail(`malformed number ${describe(p)}`);
     }
+    const start = p;
     p += m[0].length;
     const next = text[p];
-    if (next !== undefined && /[0-9.eE+\-a-zA-Z]/.test(next)) fail(`malformed number ${describe(p - m[0].length)}`);
+    if (next !== undefined && /[0-9.eE+\-a-zA-Z]/.test(next)) fail(`malformed number ${describe(start)}`, start);
   };
   try {
     value(0);

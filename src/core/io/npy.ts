@@ -38,7 +38,7 @@ function parseHeaderDict(file: string, header: string): Map<string, PyValue> {
   let p = 0;
   const n = header.length;
   const bad = (what: string): never => {
-    throw new FileFormatError(file, `header is not a valid .npy header dict: ${what} at character ${p + 1} of ${formatValue(header.trim())}`);
+    throw new FileFormatError(file, `header is not a valid .npy header dict: ${what} at character ${p + 1} of ${JSON.stringify(header.trim().slice(0, 200))}`);
   };
   const ws = () => {
     while (p < n && /\s/.test(header[p]!)) p++;
