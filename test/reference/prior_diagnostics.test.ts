@@ -42,6 +42,19 @@ describe('diagnostics vs numpy eigvalsh', () => {
     expect(d.positiveDefinite).toBe(true);
   });
 
+  it('above the exact limit (N = 1600): Lanczos Ritz values are inner bounds close to numpy', () => {
+    const grid: Grid = { shape: [1600], spacing: [1] };
+    const prior = p([{ kernel: 'exponential', variance: 2, length: 10 }], 0.01);
+    const [r] = runPython<{ cases: Ref[] }>('prior_diagnostics_reference.py', { cases: [{ grid, prior }] }).cases;
+    const d = diagnosePrior(grid, prior);
+    expect(d.eigenvalueMethod).toBe('lanczos');
+    // Ritz values lie inside the spectrum (Cauchy interlacing); λmax converges fast, λmin slowly.
+    expect(d.maxEigenvalue).toBeLessThanOrEqual(r!.max * (1 + 1e-12));
+    expect(d.maxEigenvalue / r!.max).toBeGreaterThan(1 - 1e-9);
+    expect(d.minEigenvalue).toBeGreaterThanOrEqual(r!.min * (1 - 1e-12));
+    expect(d.minEigenvalue / r!.min).toBeLessThan(1.05);
+  });
+
   it.each(condCases.map((c, k) => [c.name, k] as const))('%s: lattice condition estimate ≈ numpy cond', (_n, k) => {
     const { grid, prior, factor } = condCases[k]!;
     const r = ref[eigCases.length + k]!;

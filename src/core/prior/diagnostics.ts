@@ -17,7 +17,7 @@
  */
 import { cellCount, gridDimension, type Grid } from '../grid/grid.ts';
 import { cholesky } from '../linalg/cholesky.ts';
-import { symmetricEigenvalues } from '../linalg/eigen.ts';
+import { lanczosExtremes, symmetricEigenvalues } from '../linalg/eigen.ts';
 import type { Matrix } from '../linalg/matrix.ts';
 import { covarianceMatrix } from './covariance.ts';
 import { lagTable, meanRowSum } from './lag.ts';
@@ -70,10 +70,34 @@ export interface Diagnostics {
 
 const fmt = (x: number) => (Number.isFinite(x) ? x.toPrecision(2) : String(x));
 
-/** Extreme eigenvalues of a symmetric matrix (exact up to round-off). */
+/** Lanczos steps used above EXACT_EIGEN_LIMIT (each costs one dense product, N² flops). */
+export const LANCZOS_STEPS = 100;
+
+/**
+ * Extreme eigenvalues of a symmetric matrix: all of them (exact up to round-off) for N ≤
+ * EXACT_EIGEN_LIMIT, else Lanczos Ritz values. Ritz values lie inside the spectrum (θmin ≥ λmin,
+ * θmax ≤ λmax; Cauchy interlacing, Golub & Van Loan §10.1, memory), and θmin converges slowly when
+ * the small eigenvalues cluster, so with 'lanczos' the condition number is a lower estimate.
+ */
 function extremeEigenvalues(c: Matrix): { min: number; max: number; method: 'exact' | 'lanczos' } {
-  const ev = symmetricEigenvalues(c);
-  return { min: ev[0]!, max: ev[ev.length - 1]!, method: 'exact' };
+  const n = c.rows;
+  if (n <= EXACT_EIGEN_LIMIT) {
+    const ev = symmetricEigenvalues(c);
+    return { min: ev[0]!, max: ev[ev.length - 1]!, method: 'exact' };
+  }
+  const d = c.data;
+  const y = new Float64Array(n);
+  const apply = (x: Float64Array): Float64Array => {
+    for (let i = 0; i < n; i++) {
+      let s = 0;
+      const oi = i * n;
+      for (let j = 0; j < n; j++) s += d[oi + j]! * x[j]!;
+      y[i] = s;
+    }
+    return y;
+  };
+  const r = lanczosExtremes(apply, n, { iterations: LANCZOS_STEPS });
+  return { min: r.min, max: r.max, method: 'lanczos' };
 }
 
 /** Diagnostics of a symmetric matrix; with `context`, prior-specific warnings are added. */
