@@ -1,0 +1,246 @@
+/**
+ * Closed-form prior-selection criteria for one (problem, prior): leave-one-out predictive log score,
+ * the discrepancy principle as a scaling of the prior variance, and the prior predictive check.
+ *
+ * PUBLIC API: leaveOneOut, discrepancyScale, priorPredictiveCheck, priorCriteria,
+ * CRITERIA_DIFFER_EXPLANATION.
+ *
+ * Notation: r = d − G m0, K = G Cm Gᵀ + Cd = L Lᵀ, α = K⁻¹ r, Cd = Ld Ldᵀ.
+ */
+import { InputError } from '../errors.ts';
+import { choleskySolve, solveLower, solveLowerMatrix } from '../linalg/cholesky.ts';
+import { symmetricEigen } from '../linalg/eigen.ts';
+import { identity, matTvec, transpose } from '../linalg/matrix.ts';
+import { chiSquareInterval, regularizedGammaP, regularizedGammaQ } from '../inverse/chisquare.ts';
+import type { PriorSpec } from '../prior/spec.ts';
+import type { Problem } from '../problems/spec.ts';
+import { LOG_2PI, logEvidenceOf, prepareDataSide, priorDataSpace, symmetrise, type DataSide } from './dataSpace.ts';
+
+/**
+ * One line for the UI on why the criteria can disagree: they answer different questions.
+ */
+export const CRITERIA_DIFFER_EXPLANATION =
+  'They answer different questions: the evidence scores how probable all data are jointly under the prior, ' +
+  'leave-one-out scores how well each datum is predicted from the others, the discrepancy rule only matches ' +
+  'the size of the misfit, and the predictive check only asks whether the data are plausible at all.';
+
+export interface LeaveOneOut {
+  /** Σ_i log p(d_i | d_−i), natural log. */
+  readonly logScore: number;
+  /** log p(d_i | d_−i) per datum. */
+  readonly contributions: Float64Array;
+  /** Predictive mean of d_i given the other data (data units). */
+  readonly mean: Float64Array;
+  /** Predictive standard deviation of d_i given the other data. */
+  readonly std: Float64Array;
+  /** (d_i − mean_i)/std_i. */
+  readonly standardised: Float64Array;
+}
+
+/**
+ * Leave-one-out predictive densities in closed form (Rasmussen & Williams 2006, eqs. 5.10–5.12),
+ * for the residual r = d − G m0 ~ N(0, K):
+ *
+ *   σ_i² = 1/[K⁻¹]_ii,   μ_i = r_i − α_i/[K⁻¹]_ii,
+ *   log p(r_i | r_−i) = −½ log σ_i² − (r_i − μ_i)²/(2σ_i²) − ½ log 2π = −½ log σ_i² − α_i²/(2[K⁻¹]_ii) − ½ log 2π.
+ *
+ * In data units the predictive mean is (G m0)_i + μ_i. diag(K⁻¹) comes from the rows of the
+ * factor's inverse: K⁻¹ = L⁻ᵀ L⁻¹, so [K⁻¹]_ii = Σ_k (L⁻¹)_ki², the squared norm of column i of
+ * Z = L⁻¹ (one triangular solve with M right-hand sides, M³/3 flops; K⁻¹ itself is never formed).
+ * This is the conditional of datum i given the rest, with the full Cd (correlated errors included).
+ */
+export function leaveOneOut(problem: Problem, prior: PriorSpec): LeaveOneOut {
+  const side = prepareDataSide(problem);
+  const ev = logEvidenceOf(side, prior);
+  const m = side.dataCount;
+  const L = ev.factor;
+  const r = ev.space.residual;
+  const alpha = choleskySolve(L, r);
+  const z = solveLowerMatrix(L, identity(m));
+  const kii = new Float64Array(m);
+  for (let k = 0; k < m; k++) {
+    const ok = k * m;
+    // Z is lower triangular: column i has entries in rows k ≥ i only.
+    for (let i = 0; i <= k; i++) kii[i] += z.data[ok + i]! * z.data[ok + i]!;
+  }
+  const contributions = new Float64Array(m);
+  const mean = new Float64Array(m);
+  const std = new Float64Array(m);
+  const standardised = new Float64Array(m);
+  let logScore = 0;
+  for (let i = 0; i < m; i++) {
+    const s2 = 1 / kii[i]!;
+    const mu = r[i]! - alpha[i]! * s2;
+    const c = -0.5 * Math.log(s2) - (0.5 * alpha[i]! * alpha[i]!) / kii[i]! - 0.5 * LOG_2PI;
+    contributions[i] = c;
+    logScore += c;
+    mean[i] = problem.data.values[i]! - r[i]! + mu;
+    std[i] = Math.sqrt(s2);
+    standardised[i] = alpha[i]! / Math.sqrt(kii[i]!);
+  }
+  return { logScore, contributions, mean, std, standardised };
+}
+
+export interface DiscrepancyResult {
+  /**
+   * 'found': χ²(s) = target at `scale`; 'mean-fits': even s → 0 gives χ² ≤ target (the prior mean
+   * alone fits the data to the noise level, no positive scale is needed); 'unreachable': even s → ∞
+   * leaves χ² > target (the data contain a part that the prior cannot fit at any variance).
+   */
+  readonly status: 'found' | 'mean-fits' | 'unreachable';
+  /** The factor s applied to every term variance and to the nugget (NaN unless found). */
+  readonly scale: number;
+  /** The prior with variances and nugget multiplied by s (null unless found). */
+  readonly prior: PriorSpec | null;
+  /** χ² at the scale (or at the limit that was reached). */
+  readonly chi2: number;
+  readonly target: number;
+  /** χ² at s → 0 and at s → ∞: the range any scale can give. */
+  readonly chi2Range: readonly [number, number];
+}
+
+/** The prior with every term variance and the nugget multiplied by s. */
+export function scalePrior(prior: PriorSpec, s: number): PriorSpec {
+  return {
+    ...prior,
+    terms: prior.terms.map((t) => ({ ...t, variance: t.variance * s })),
+    ...(prior.nugget !== undefined ? { nugget: prior.nugget * s } : {}),
+  };
+}
+
+/**
+ * Discrepancy principle (Morozov 1984, Methods for Solving Incorrectly Posed Problems): choose the
+ * scale s of the prior covariance (Cm → s Cm) so that the χ² of the normalised residuals of the
+ * posterior mean equals `target` (default M).
+ *
+ * Closed form: with P = G Cm Gᵀ, the residual of the posterior mean is
+ * d − G m̃(s) = r − s P (s P + Cd)⁻¹ r = Cd (s P + Cd)⁻¹ r. Whitening Cd = Ld Ldᵀ and
+ * A = Ld⁻¹ P Ld⁻ᵀ = U Λ Uᵀ gives s P + Cd = Ld (sA + I) Ldᵀ, so the normalised residual is
+ * Ld⁻¹ Cd (sP + Cd)⁻¹ r = U (sΛ + I)⁻¹ b with b = Uᵀ Ld⁻¹ r, and
+ *
+ *   χ²(s) = Σ_k b_k² / (1 + s λ_k)²,
+ *
+ * strictly decreasing from Σ b² (s → 0) to Σ_{λ_k = 0} b² (s → ∞) (our derivation). The root is
+ * found by bisection on log s (monotone, so bisection cannot fail) to relative precision 1e-13.
+ */
+export function discrepancyScale(problem: Problem, prior: PriorSpec, options: { readonly target?: number } = {}): DiscrepancyResult {
+  const side = prepareDataSide(problem);
+  const target = options.target ?? side.dataCount;
+  if (!(target > 0) || !Number.isFinite(target)) throw new InputError('target', 'a finite χ² target > 0', target);
+  const { lambda, b } = whitenedByCd(side, prior);
+  const top = lambda.reduce((a, v) => Math.max(a, v), 0);
+  const chi2 = (s: number): number => {
+    let q = 0;
+    for (let k = 0; k < lambda.length; k++) {
+      const t = 1 + s * lambda[k]!;
+      q += (b[k]! * b[k]!) / (t * t);
+    }
+    return q;
+  };
+  let at0 = 0;
+  let atInf = 0;
+  for (let k = 0; k < lambda.length; k++) {
+    at0 += b[k]! * b[k]!;
+    // Eigenvalues at the round-off level of the largest count as zero (null space of G Cm Gᵀ).
+    if (lambda[k]! <= 1e-12 * top) atInf += b[k]! * b[k]!;
+  }
+  const range: [number, number] = [at0, atInf];
+  if (at0 <= target) return { status: 'mean-fits', scale: Number.NaN, prior: null, chi2: at0, target, chi2Range: range };
+  if (atInf >= target) return { status: 'unreachable', scale: Number.NaN, prior: null, chi2: atInf, target, chi2Range: range };
+  // Bracket in log s, starting from s = 1 (the prior as given).
+  let lo = 0;
+  let hi = 0;
+  if (chi2(1) > target) {
+    while (chi2(Math.exp(hi)) > target) hi += Math.LN10;
+    lo = hi - Math.LN10;
+  } else {
+    while (chi2(Math.exp(lo)) <= target) lo -= Math.LN10;
+    hi = lo + Math.LN10;
+  }
+  for (let it = 0; it < 200 && hi - lo > 1e-13; it++) {
+    const mid = 0.5 * (lo + hi);
+    if (chi2(Math.exp(mid)) > target) lo = mid;
+    else hi = mid;
+  }
+  const s = Math.exp(0.5 * (lo + hi));
+  return { status: 'found', scale: s, prior: scalePrior(prior, s), chi2: chi2(s), target, chi2Range: range };
+}
+
+/** Eigenvalues λ of Ld⁻¹ G Cm Gᵀ Ld⁻ᵀ (clamped at 0) and b = Uᵀ Ld⁻¹ r. */
+function whitenedByCd(side: DataSide, prior: PriorSpec): { lambda: Float64Array; b: Float64Array } {
+  const { residual, projected } = priorDataSpace(side, prior);
+  const ld = side.cdFactor;
+  const x = solveLowerMatrix(ld, projected);
+  const a = solveLowerMatrix(ld, transpose(x));
+  symmetrise(a);
+  const { values, vectors } = symmetricEigen(a);
+  const lambda = values.map((v) => Math.max(v, 0));
+  return { lambda, b: matTvec(vectors, solveLower(ld, residual)) };
+}
+
+export interface PriorPredictiveCheck {
+  /** q = rᵀ K⁻¹ r, χ²_M-distributed if the data come from this prior and these errors. */
+  readonly statistic: number;
+  readonly dataCount: number;
+  /** q / M. */
+  readonly reduced: number;
+  /** P(χ²_M ≥ q): small when the data are too far from the prior mean for the prior's spread. */
+  readonly pUpper: number;
+  /** P(χ²_M ≤ q): small when the data fit suspiciously well (prior far too wide, or errors overstated). */
+  readonly pLower: number;
+  /** 2 min(pUpper, pLower), capped at 1. */
+  readonly pTwoSided: number;
+  /** Central 95% interval of χ²_M. */
+  readonly interval95: readonly [number, number];
+  /** Whether q lies inside interval95. */
+  readonly plausible: boolean;
+}
+
+/**
+ * Prior predictive check: under the model r = d − G m0 ~ N(0, K), so q = rᵀ K⁻¹ r = ‖L⁻¹ r‖² is
+ * χ² with M degrees of freedom (a quadratic form of a whitened Gaussian; common practice, no
+ * source). Tail probabilities from the regularised incomplete gamma function (P(χ²_M ≤ q) =
+ * P(M/2, q/2), DLMF 8.2.4) in src/core/inverse/chisquare.ts.
+ */
+export function priorPredictiveCheck(problem: Problem, prior: PriorSpec): PriorPredictiveCheck {
+  const side = prepareDataSide(problem);
+  const ev = logEvidenceOf(side, prior);
+  return predictiveFromStatistic(ev.quadratic, side.dataCount);
+}
+
+function predictiveFromStatistic(q: number, m: number): PriorPredictiveCheck {
+  const pUpper = regularizedGammaQ(m / 2, q / 2);
+  const pLower = regularizedGammaP(m / 2, q / 2);
+  const interval95 = chiSquareInterval(m, 0.95);
+  return {
+    statistic: q,
+    dataCount: m,
+    reduced: q / m,
+    pUpper,
+    pLower,
+    pTwoSided: Math.min(1, 2 * Math.min(pUpper, pLower)),
+    interval95,
+    plausible: q >= interval95[0] && q <= interval95[1],
+  };
+}
+
+export interface PriorCriteria {
+  readonly logEvidence: number;
+  readonly leaveOneOut: LeaveOneOut;
+  readonly discrepancy: DiscrepancyResult;
+  readonly priorPredictive: PriorPredictiveCheck;
+  readonly explanation: string;
+}
+
+/** All closed-form criteria for one prior, for a side-by-side scores table. */
+export function priorCriteria(problem: Problem, prior: PriorSpec): PriorCriteria {
+  const side = prepareDataSide(problem);
+  const ev = logEvidenceOf(side, prior);
+  return {
+    logEvidence: ev.logDensity,
+    leaveOneOut: leaveOneOut(problem, prior),
+    discrepancy: discrepancyScale(problem, prior),
+    priorPredictive: predictiveFromStatistic(ev.quadratic, side.dataCount),
+    explanation: CRITERIA_DIFFER_EXPLANATION,
+  };
+}

@@ -1,0 +1,248 @@
+/**
+ * Data-space building blocks shared by the prior-selection criteria (evidence, leave-one-out,
+ * discrepancy, calibration). Everything here works with
+ *
+ *   r = d − G m0,   P = G Cm Gᵀ (M × M),   K = P + Cd = L Lᵀ (Cholesky),
+ *
+ * so a criterion costs one projection of Cm and one M × M factorisation, never an N × N solve.
+ * Log density of the data under the prior (Rasmussen & Williams 2006, eq. 2.30 / Algorithm 2.1):
+ *
+ *   log N(d; G m0, K) = −½ rᵀ K⁻¹ r − Σ log L_ii − (M/2) log 2π.
+ */
+import { InputError, NotPositiveDefiniteError } from '../errors.ts';
+import { cellCount } from '../grid/grid.ts';
+import { cholesky, logDetFromCholesky, solveLower } from '../linalg/cholesky.ts';
+import { matrix, type Matrix } from '../linalg/matrix.ts';
+import { applyOperator, assertNever, operatorShape, operatorToDense, type Operator } from '../linalg/operator.ts';
+import { covarianceMatrix, meanVector } from '../prior/covariance.ts';
+import type { PriorSpec } from '../prior/spec.ts';
+import type { Problem } from '../problems/spec.ts';
+
+/** ln 2π. */
+export const LOG_2PI = Math.log(2 * Math.PI);
+
+/** Optional progress report and cancellation flag, shared by every long-running tuning call. */
+export interface TuningControl {
+  /** Called with the finished fraction in [0, 1] after each unit of work (grid cell, replicate …). */
+  readonly onProgress?: (fraction: number) => void;
+  /** Checked between units of work; when it becomes true the call stops and says so in its result. */
+  readonly signal?: { readonly aborted: boolean };
+}
+
+/** The problem's fixed data-space pieces: sizes, the factor of Cd and the data. */
+export interface DataSide {
+  readonly problem: Problem;
+  readonly dataCount: number;
+  readonly cellCount: number;
+  /** Lower Cholesky factor of Cd (diagonal for per-datum σ). */
+  readonly cdFactor: Matrix;
+  /** Cd as a dense M × M matrix. */
+  readonly cd: Matrix;
+  /** True when Cd is diagonal (σ given per datum). */
+  readonly diagonalCd: boolean;
+}
+
+/**
+ * Checks the problem's sizes and factors Cd. Throws InputError naming the field when the data,
+ * the operator and the grid disagree or when σ is not positive; NotPositiveDefiniteError when a
+ * full Cd does not factor.
+ */
+export function prepareDataSide(problem: Problem): DataSide {
+  const { rows: m, cols: n } = operatorShape(problem.operator);
+  const cells = cellCount(problem.grid);
+  if (n !== cells) throw new InputError('problem.operator', `${cells} columns (one per grid cell)`, `${n} columns`);
+  const d = problem.data;
+  if (d.values.length !== m) throw new InputError('problem.data.values', `${m} values (one per operator row)`, d.values);
+  for (let i = 0; i < m; i++) {
+    if (!Number.isFinite(d.values[i]!)) throw new InputError(`problem.data.values[${i}]`, 'a finite number', d.values[i]);
+  }
+  const cd = matrix(m, m);
+  if (d.sigma !== undefined) {
+    if (d.covariance !== undefined) throw new InputError('problem.data', 'exactly one of sigma or covariance', 'both');
+    if (d.sigma.length !== m) throw new InputError('problem.data.sigma', `${m} standard deviations`, d.sigma);
+    const f = matrix(m, m);
+    for (let i = 0; i < m; i++) {
+      const s = d.sigma[i]!;
+      if (!(s > 0) || !Number.isFinite(s)) throw new InputError(`problem.data.sigma[${i}]`, 'a finite number > 0', s);
+      f.data[i * m + i] = s;
+      cd.data[i * m + i] = s * s;
+    }
+    return { problem, dataCount: m, cellCount: cells, cdFactor: f, cd, diagonalCd: true };
+  }
+  if (d.covariance === undefined) throw new InputError('problem.data', 'one of sigma or covariance', 'neither');
+  if (d.covariance.rows !== m || d.covariance.cols !== m) {
+    throw new InputError('problem.data.covariance', `an ${m}×${m} matrix`, `${d.covariance.rows}×${d.covariance.cols}`);
+  }
+  cd.data.set(d.covariance.data);
+  const f = cholesky(cd);
+  if (!f.ok) throw new NotPositiveDefiniteError('data covariance Cd', f.pivot, 'check problem.data.covariance');
+  return { problem, dataCount: m, cellCount: cells, cdFactor: f.factor, cd, diagonalCd: false };
+}
+
+/** G C (M × N) for a dense N × N matrix C, using the operator's sparsity. */
+export function operatorTimes(g: Operator, c: Matrix): Matrix {
+  const { rows: m, cols: n } = operatorShape(g);
+  if (c.rows !== n) throw new RangeError(`operatorTimes: G has ${n} columns, C has ${c.rows} rows`);
+  const k = c.cols;
+  const out = matrix(m, k);
+  const o = out.data;
+  const cd = c.data;
+  switch (g.kind) {
+    case 'dense': {
+      const gd = g.matrix.data;
+      for (let i = 0; i < m; i++) {
+        const oi = i * k;
+        for (let j = 0; j < n; j++) {
+          const gij = gd[i * n + j]!;
+          if (gij === 0) continue;
+          const oj = j * k;
+          for (let q = 0; q < k; q++) o[oi + q] += gij * cd[oj + q]!;
+        }
+      }
+      return out;
+    }
+    case 'sparse': {
+      const { rowPtr, colIdx, values } = g.matrix;
+      for (let i = 0; i < m; i++) {
+        const oi = i * k;
+        for (let p = rowPtr[i]!; p < rowPtr[i + 1]!; p++) {
+          const gij = values[p]!;
+          const oj = colIdx[p]! * k;
+          for (let q = 0; q < k; q++) o[oi + q] += gij * cd[oj + q]!;
+        }
+      }
+      return out;
+    }
+    default:
+      return assertNever(g);
+  }
+}
+
+/**
+ * P = G C Gᵀ (M × M) for a symmetric N × N matrix C: G C by {@link operatorTimes}, then each row
+ * of P is G applied to a row of G C (C symmetric ⇒ (G C Gᵀ)_i· = G (G C)_i·ᵀ). Symmetrised by
+ * averaging so that round-off does not leave P unsymmetric. Cost: nnz(G)·N + M·nnz(G) flops.
+ */
+export function projectCovariance(g: Operator, c: Matrix): Matrix {
+  const gc = operatorTimes(g, c);
+  const m = gc.rows;
+  const n = gc.cols;
+  const p = matrix(m, m);
+  for (let i = 0; i < m; i++) p.data.set(applyOperator(g, gc.data.subarray(i * n, (i + 1) * n)), i * m);
+  symmetrise(p);
+  return p;
+}
+
+/** A ← (A + Aᵀ)/2 in place. */
+export function symmetrise(a: Matrix): void {
+  const n = a.rows;
+  const d = a.data;
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < i; j++) {
+      const v = 0.5 * (d[i * n + j]! + d[j * n + i]!);
+      d[i * n + j] = v;
+      d[j * n + i] = v;
+    }
+  }
+}
+
+/** a + b (new matrix). */
+export function addMatrices(a: Matrix, b: Matrix): Matrix {
+  const out = matrix(a.rows, a.cols, a.data.slice());
+  for (let i = 0; i < out.data.length; i++) out.data[i] += b.data[i]!;
+  return out;
+}
+
+/** The prior-dependent data-space pieces for one prior. */
+export interface PriorDataSpace {
+  /** d − G m0. */
+  readonly residual: Float64Array;
+  /** G Cm Gᵀ. */
+  readonly projected: Matrix;
+  /** Dense Cm (N × N), kept for the model-space steps of calibration. */
+  readonly cm: Matrix;
+}
+
+/** r = d − G m0 and P = G Cm Gᵀ for `prior` (validated by covarianceMatrix / meanVector). */
+export function priorDataSpace(side: DataSide, prior: PriorSpec): PriorDataSpace {
+  const { grid, operator, data } = side.problem;
+  const m0 = meanVector(grid, prior);
+  const cm = covarianceMatrix(grid, prior);
+  const gm0 = applyOperator(operator, m0);
+  const residual = new Float64Array(side.dataCount);
+  for (let i = 0; i < residual.length; i++) residual[i] = data.values[i]! - gm0[i]!;
+  return { residual, projected: projectCovariance(operator, cm), cm };
+}
+
+/** The Gaussian log density log N(r; 0, K) and the pieces it was made of. */
+export interface GaussianLogDensity {
+  readonly logDensity: number;
+  /** rᵀ K⁻¹ r. */
+  readonly quadratic: number;
+  /** log |K|. */
+  readonly logDet: number;
+  /** Lower Cholesky factor of K. */
+  readonly factor: Matrix;
+  /** w = L⁻¹ r (so rᵀK⁻¹r = wᵀw). */
+  readonly whitened: Float64Array;
+}
+
+/**
+ * log N(r; 0, K) = −½ rᵀK⁻¹r − ½ log|K| − (M/2) log 2π by Cholesky (Rasmussen & Williams 2006,
+ * Algorithm 2.1). Returns null when K does not factor (not positive definite in floating point).
+ */
+export function gaussianLogDensity(k: Matrix, r: ArrayLike<number>): GaussianLogDensity | null {
+  const f = cholesky(k);
+  if (!f.ok) return null;
+  const w = solveLower(f.factor, r);
+  let q = 0;
+  for (let i = 0; i < w.length; i++) q += w[i]! * w[i]!;
+  const logDet = logDetFromCholesky(f.factor);
+  return { logDensity: -0.5 * q - 0.5 * logDet - 0.5 * r.length * LOG_2PI, quadratic: q, logDet, factor: f.factor, whitened: w };
+}
+
+/** K = G Cm Gᵀ + Cd for a prior, factored; throws NotPositiveDefiniteError naming the prior when it fails. */
+export function logEvidenceOf(side: DataSide, prior: PriorSpec): GaussianLogDensity & { readonly space: PriorDataSpace } {
+  const space = priorDataSpace(side, prior);
+  const g = gaussianLogDensity(addMatrices(space.projected, side.cd), space.residual);
+  if (g === null) throw new NotPositiveDefiniteError('data-space covariance G Cm Gᵀ + Cd', 0, 'the prior gives an indefinite covariance; add a nugget');
+  return { ...g, space };
+}
+
+/** Throws InputError unless `index` names a term of the prior. */
+export function checkTermIndex(prior: PriorSpec, index: number, field = 'term'): void {
+  if (!Number.isInteger(index) || index < 0 || index >= prior.terms.length) {
+    throw new InputError(field, `an integer from 0 to ${prior.terms.length - 1} (the prior has ${prior.terms.length} terms)`, index);
+  }
+}
+
+/** True when the kernel module evaluates the Matérn kernel at a non-half-integer ν (general ν available). */
+export function generalMaternAvailable(): boolean {
+  try {
+    // The probe ν = 1.3 is arbitrary; any non-closed-form order would do.
+    return Number.isFinite(covarianceMatrix({ shape: [2], spacing: [1] }, { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.3, variance: 1, length: 1 }] }).data[1]!);
+  } catch {
+    return false;
+  }
+}
+
+/** Check the control's abort flag. */
+export function aborted(control: TuningControl | undefined): boolean {
+  return control?.signal?.aborted === true;
+}
+
+/** G Gᵀ (M × M): the projection of the identity covariance (the nugget's shape in data space). */
+export function operatorGram(g: Operator): Matrix {
+  const gd = operatorToDense(g);
+  const { rows: m, cols: n } = gd;
+  const out = matrix(m, m);
+  for (let i = 0; i < m; i++) {
+    for (let k = 0; k <= i; k++) {
+      let s = 0;
+      for (let j = 0; j < n; j++) s += gd.data[i * n + j]! * gd.data[k * n + j]!;
+      out.data[i * m + k] = s;
+      out.data[k * m + i] = s;
+    }
+  }
+  return out;
+}

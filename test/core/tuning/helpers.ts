@@ -1,0 +1,75 @@
+/** Small seeded test problems for the tuning tests (invented; sizes chosen to keep the tests fast). */
+import { cholesky } from '../../../src/core/linalg/cholesky.ts';
+import { matrix, type Matrix } from '../../../src/core/linalg/matrix.ts';
+import type { Operator } from '../../../src/core/linalg/operator.ts';
+import { sparseFromCoordinates } from '../../../src/core/linalg/sparse.ts';
+import type { Grid } from '../../../src/core/grid/grid.ts';
+import { covarianceMatrix, meanVector } from '../../../src/core/prior/covariance.ts';
+import type { PriorSpec } from '../../../src/core/prior/spec.ts';
+import type { Problem } from '../../../src/core/problems/spec.ts';
+import { Random } from '../../../src/core/sampling/random.ts';
+
+/** Dense M × N operator of local averages: datum i averages `width` cells from a random start. */
+export function averagingOperator(m: number, n: number, width: number, rng: Random): Operator {
+  const g = matrix(m, n);
+  for (let i = 0; i < m; i++) {
+    const start = Math.floor(rng.nextDouble() * (n - width + 1));
+    for (let j = start; j < start + width; j++) g.data[i * n + j] = 1 / width;
+  }
+  return { kind: 'dense', matrix: g };
+}
+
+/** Sparse operator observing cell idx[i] directly. */
+export function pointOperator(idx: readonly number[], n: number): Operator {
+  return { kind: 'sparse', matrix: sparseFromCoordinates(idx.length, n, idx.map((_, i) => i), idx, idx.map(() => 1)) };
+}
+
+/** A draw m0 + L z from the prior (own Cholesky, MT19937 normals). */
+export function drawTruth(grid: Grid, prior: PriorSpec, rng: Random): Float64Array {
+  const c = covarianceMatrix(grid, prior);
+  const f = cholesky(c);
+  if (!f.ok) throw new Error('test prior does not factor');
+  const n = c.rows;
+  const z = rng.fillNormal(new Float64Array(n));
+  const out = meanVector(grid, prior);
+  for (let i = 0; i < n; i++) {
+    let s = 0;
+    for (let k = 0; k <= i; k++) s += f.factor.data[i * n + k]! * z[k]!;
+    out[i] += s;
+  }
+  return out;
+}
+
+/** d = G m + σ e. */
+export function simulateData(g: Operator, m: Float64Array, sigma: Float64Array, rng: Random): Float64Array {
+  const gd = g.kind === 'dense' ? g.matrix : null;
+  const out = new Float64Array(sigma.length);
+  for (let i = 0; i < out.length; i++) {
+    let s = 0;
+    if (gd) for (let j = 0; j < gd.cols; j++) s += gd.data[i * gd.cols + j]! * m[j]!;
+    else {
+      const sp = g.matrix as { rowPtr: Int32Array; colIdx: Int32Array; values: Float64Array };
+      for (let p = sp.rowPtr[i]!; p < sp.rowPtr[i + 1]!; p++) s += sp.values[p]! * m[sp.colIdx[p]!]!;
+    }
+    out[i] = s + sigma[i]! * rng.nextNormal();
+  }
+  return out;
+}
+
+/** A 1-D problem on `n` cells with `m` averaging data simulated from `truthPrior`. */
+export function smallProblem(seed: number, truthPrior: PriorSpec, n = 40, m = 25, sigma = 0.1): Problem {
+  const rng = new Random(seed);
+  const grid: Grid = { shape: [n], spacing: [1] };
+  const operator = averagingOperator(m, n, 3, rng);
+  const truth = drawTruth(grid, truthPrior, rng);
+  const s = new Float64Array(m).fill(sigma);
+  return { grid, operator, data: { values: simulateData(operator, truth, s, rng), sigma: s }, truth };
+}
+
+/** The same problem with a full, correlated data covariance Cd_ij = σ² exp(−|i−j|/2). */
+export function withCorrelatedErrors(p: Problem, sigma: number): Problem {
+  const m = p.data.values.length;
+  const cov: Matrix = matrix(m, m);
+  for (let i = 0; i < m; i++) for (let j = 0; j < m; j++) cov.data[i * m + j] = sigma * sigma * Math.exp(-Math.abs(i - j) / 2);
+  return { ...p, data: { values: p.data.values, covariance: cov } };
+}
