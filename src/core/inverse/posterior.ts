@@ -21,10 +21,11 @@ import { cellCount } from '../grid/grid.ts';
 import { cholesky, choleskySolve, solveLower, solveLowerMatrix } from '../linalg/cholesky.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
 import { applyOperator, applyOperatorTranspose, assertNever, type Operator } from '../linalg/operator.ts';
+import { columnSumsOfSquares, mirrorLowerToUpper, multiplyNT, symmetricProductNT, transposeOf } from '../linalg/products.ts';
 import { covarianceMatrix, meanVector } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
-import { seededNormals } from '../problems/truth.ts';
+import { Random, validateSeed } from '../sampling/random.ts';
 import { chiSquareInterval } from './chisquare.ts';
 import { logEvidenceFromFactor } from './evidence.ts';
 import type { PosteriorSummary } from './types.ts';
@@ -89,11 +90,11 @@ function checkProblem(problem: Problem, Cm: Matrix, m0: ArrayLike<number>): void
 function operatorTimesCovariance(G: Operator, Cm: Matrix): Matrix {
   const n = Cm.cols;
   const m = G.matrix.rows;
-  const out = matrix(m, n);
-  const o = out.data;
-  const c = Cm.data;
   switch (G.kind) {
     case 'sparse': {
+      const out = matrix(m, n);
+      const o = out.data;
+      const c = Cm.data;
       const { rowPtr, colIdx, values } = G.matrix;
       for (let k = 0; k < m; k++) {
         const ok = k * n;
@@ -105,33 +106,23 @@ function operatorTimesCovariance(G: Operator, Cm: Matrix): Matrix {
       }
       return out;
     }
-    case 'dense': {
-      const gd = G.matrix.data;
-      for (let k = 0; k < m; k++) {
-        const ok = k * n;
-        for (let j = 0; j < n; j++) {
-          const g = gd[ok + j]!;
-          if (g === 0) continue;
-          const oj = j * n;
-          for (let i = 0; i < n; i++) o[ok + i] += g * c[oj + i]!;
-        }
-      }
-      return out;
-    }
+    case 'dense':
+      // G Cmᵀ = G Cm: the register-blocked NT product reads both along rows.
+      return multiplyNT(G.matrix, Cm);
     default:
       return assertNever(G);
   }
 }
 
-/** K = G (Bᵀ)ᵀ = G Cm Gᵀ (M × M), symmetric by construction (lower computed, mirrored). */
+/** K = G (Bᵀ)ᵀ = G Cm Gᵀ (M × M), exactly symmetric (lower triangle computed, then mirrored). */
 function dataSpaceCovariance(G: Operator, Bt: Matrix): Matrix {
   const m = Bt.rows;
   const n = Bt.cols;
-  const K = matrix(m, m);
-  const kd = K.data;
-  const b = Bt.data;
   switch (G.kind) {
     case 'sparse': {
+      const K = matrix(m, m);
+      const kd = K.data;
+      const b = Bt.data;
       const { rowPtr, colIdx, values } = G.matrix;
       for (let k = 0; k < m; k++) {
         for (let l = 0; l <= k; l++) {
@@ -141,26 +132,13 @@ function dataSpaceCovariance(G: Operator, Bt: Matrix): Matrix {
           kd[k * m + l] = s;
         }
       }
-      break;
+      return mirrorLowerToUpper(K);
     }
-    case 'dense': {
-      const gd = G.matrix.data;
-      for (let k = 0; k < m; k++) {
-        const ok = k * n;
-        for (let l = 0; l <= k; l++) {
-          const ol = l * n;
-          let s = 0;
-          for (let j = 0; j < n; j++) s += gd[ok + j]! * b[ol + j]!;
-          kd[k * m + l] = s;
-        }
-      }
-      break;
-    }
+    case 'dense':
+      return symmetricProductNT(G.matrix, Bt);
     default:
-      assertNever(G);
+      return assertNever(G);
   }
-  for (let k = 0; k < m; k++) for (let l = 0; l < k; l++) kd[l * m + k] = kd[k * m + l]!;
-  return K;
 }
 
 const K_HINT =
@@ -267,12 +245,7 @@ export function posteriorSummary(state: PosteriorFactors, options: SummaryOption
   const m = L.rows;
   const mean = addCrossCovariance(state, state.m0, alpha);
   const W = solveLowerMatrix(L, Bt);
-  const w = W.data;
-  const colSq = new Float64Array(n);
-  for (let k = 0; k < m; k++) {
-    const ok = k * n;
-    for (let i = 0; i < n; i++) colSq[i] += w[ok + i]! * w[ok + i]!;
-  }
+  const colSq = columnSumsOfSquares(W);
   const std = new Float64Array(n);
   const priorStd = new Float64Array(n);
   const varianceReduction = new Float64Array(n);
@@ -309,22 +282,12 @@ export function posteriorSummary(state: PosteriorFactors, options: SummaryOption
   return options.fullCovariance ? { ...summary, covariance: covarianceFromW(Cm, W) } : summary;
 }
 
-/** Cm − Wᵀ W (N × N). */
+/** Cm − Wᵀ W (N × N), with Wᵀ W = Wt Wtᵀ by the symmetric NT product (Wt = Wᵀ, N × M). */
 function covarianceFromW(Cm: Matrix, W: Matrix): Matrix {
-  const n = Cm.rows;
-  const m = W.rows;
-  const C = matrix(n, n, Cm.data.slice());
+  const Wt = transposeOf(W);
+  const C = symmetricProductNT(Wt, Wt);
   const c = C.data;
-  const w = W.data;
-  for (let k = 0; k < m; k++) {
-    const ok = k * n;
-    for (let i = 0; i < n; i++) {
-      const wi = w[ok + i]!;
-      if (wi === 0) continue;
-      const oi = i * n;
-      for (let j = 0; j < n; j++) c[oi + j] -= wi * w[ok + j]!;
-    }
-  }
+  for (let i = 0; i < c.length; i++) c[i] = Cm.data[i]! - c[i]!;
   return C;
 }
 
@@ -354,10 +317,12 @@ export function resolutionRow(state: PosteriorFactors, cell: number): Float64Arr
  * Why exact: m_s is linear in the Gaussian (m*, ε), with mean m0 + B K⁻¹ (d − G m0) = m̃ and
  * covariance Cm − B K⁻¹ G Cm − Cm Gᵀ K⁻¹ Bᵀ + B K⁻¹ (G Cm Gᵀ + Cd) K⁻¹ Bᵀ = Cm − B K⁻¹ Bᵀ = C̃
  * (B = Cm Gᵀ; our derivation).
- * Draws: per realisation, N normals for z then M normals for ε, from one stream seeded with `seed`.
+ * Draws: one generator of src/core/sampling/random.ts seeded with `seed`; per realisation, N normals
+ * for z, then M normals for ε (this order is part of the same-seed-same-numbers contract).
  */
 export function posteriorRealisations(state: PosteriorFactors, count: number, seed: number): Matrix {
   if (!Number.isInteger(count) || count < 0) throw new InputError('count', 'a non-negative integer', count);
+  validateSeed(seed);
   const { Cm, problem, L } = state;
   const n = Cm.rows;
   const m = L.rows;
@@ -366,15 +331,14 @@ export function posteriorRealisations(state: PosteriorFactors, count: number, se
     throw new NotPositiveDefiniteError('prior covariance Cm', fm.pivot, 'posterior realisations need a prior that factors: add a small nugget');
   }
   const Lm = fm.factor.data;
-  // PROVISIONAL stream until src/core/sampling/random.ts lands: all count·(N + M) normals at once.
-  const normals = seededNormals(seed, count * (n + m));
+  const rng = new Random(seed);
   const out = matrix(count, n);
   const z = new Float64Array(n);
   const e = new Float64Array(m);
   const sigma = problem.data.sigma;
   for (let s = 0; s < count; s++) {
-    z.set(normals.subarray(s * (n + m), s * (n + m) + n));
-    e.set(normals.subarray(s * (n + m) + n, (s + 1) * (n + m)));
+    rng.fillNormal(z);
+    rng.fillNormal(e);
     const mStar = Float64Array.from(state.m0);
     for (let i = 0; i < n; i++) {
       let acc = 0;

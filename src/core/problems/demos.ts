@@ -11,10 +11,11 @@ import type { Operator } from '../linalg/operator.ts';
 import { applyOperator } from '../linalg/operator.ts';
 import { sparseFromCoordinates } from '../linalg/sparse.ts';
 import type { PriorSpec } from '../prior/spec.ts';
+import { Random } from '../sampling/random.ts';
+import { priorRealisations } from '../sampling/realisations.ts';
 import { gravityOperator } from './potential.ts';
 import { rayOperator, type Ray } from './rays.ts';
 import type { Problem } from './spec.ts';
-import { drawFromPrior, seededNormals } from './truth.ts';
 
 export interface DemoProblem {
   /** Stable id used in URLs and the CLI: "borehole-log", "crosshole-tomography", "potential-field". */
@@ -26,10 +27,15 @@ export interface DemoProblem {
   build(): { problem: Problem; truthPrior: PriorSpec; startPrior: PriorSpec };
 }
 
-/** d = G m_true + σ e with e ~ N(0, I) from `seed`. */
+/** One realisation of the prior (Cholesky of Cm times seeded normals, src/core/sampling). */
+function drawFromPrior(grid: Grid, prior: PriorSpec, seed: number): Float64Array {
+  return priorRealisations(grid, prior, 1, seed).data;
+}
+
+/** d = G m_true + σ e with e ~ N(0, I) from `seed` (src/core/sampling/random.ts). */
 function syntheticData(G: Operator, truth: Float64Array, sigma: Float64Array, seed: number): Float64Array {
   const d = applyOperator(G, truth);
-  const e = seededNormals(seed, d.length);
+  const e = new Random(seed).fillNormal(new Float64Array(d.length));
   for (let k = 0; k < d.length; k++) d[k] += sigma[k]! * e[k]!;
   return d;
 }

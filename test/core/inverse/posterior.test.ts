@@ -7,7 +7,7 @@
 import { describe, expect, it } from 'vitest';
 import { NotPositiveDefiniteError } from '../../../src/core/errors.ts';
 import { cellCoordinates, type Grid } from '../../../src/core/grid/grid.ts';
-import { chiSquareQuantile } from '../../../src/core/inverse/chisquare.ts';
+import { chiSquareQuantile, logGamma } from '../../../src/core/inverse/chisquare.ts';
 import { logEvidenceFromFactor } from '../../../src/core/inverse/evidence.ts';
 import {
   posteriorCovariance,
@@ -22,13 +22,24 @@ import { applyOperator, type Operator } from '../../../src/core/linalg/operator.
 import { covarianceMatrix, meanVector } from '../../../src/core/prior/covariance.ts';
 import type { PriorSpec } from '../../../src/core/prior/spec.ts';
 import type { Problem } from '../../../src/core/problems/spec.ts';
-import { seededNormals } from '../../../src/core/problems/truth.ts';
+import { Random } from '../../../src/core/sampling/random.ts';
 
-/** Two-sided 0.1% limits of a Binomial(n, p) count, normal approximation (z = 3.29; A&S 26.2). */
+/**
+ * Two-sided 0.1% limits of a Binomial(n, p) count: the exact 0.05% and 99.95% quantiles, summing the
+ * pmf C(n,k) pᵏ (1−p)ⁿ⁻ᵏ (textbook definition; ln C(n,k) by logGamma). The normal approximation is
+ * too narrow in the upper tail for p = 2.5% (it gives 57.4 where the exact point is 59). For n = 1500
+ * these limits equal scipy.stats.binom.ppf([0.0005, 0.9995], n, p) for every p used here (checked by hand).
+ */
 function binomialLimits(n: number, p: number): [number, number] {
-  const z = 3.2905;
-  const sd = Math.sqrt(n * p * (1 - p));
-  return [n * p - z * sd, n * p + z * sd];
+  const logPmf = (k: number) => logGamma(n + 1) - logGamma(k + 1) - logGamma(n - k + 1) + k * Math.log(p) + (n - k) * Math.log1p(-p);
+  let cdf = 0;
+  let lo = -1;
+  for (let k = 0; k <= n; k++) {
+    cdf += Math.exp(logPmf(k));
+    if (lo < 0 && cdf >= 0.0005) lo = k;
+    if (cdf >= 0.9995) return [lo, k];
+  }
+  return [lo, n];
 }
 
 /** Standard normal two-sided quantiles for 68.27% and 95% (A&S Table 26.1: z = 1 and 1.959964). */
@@ -68,7 +79,7 @@ function drawTruth(z: Float64Array): Float64Array {
 
 describe('calibration over seeded replicates (truth from the prior, data = G truth + noise)', () => {
   const R = 1500;
-  const normals = seededNormals(987654, R * 50);
+  const normals = new Random(987654).fillNormal(new Float64Array(R * 50));
   let in68 = 0;
   let in95 = 0;
   let chiTruthAbove95 = 0;

@@ -4,7 +4,7 @@ import { chiSquareQuantile } from '../../../src/core/inverse/chisquare.ts';
 import { cholesky, solveLower } from '../../../src/core/linalg/cholesky.ts';
 import { applyOperator } from '../../../src/core/linalg/operator.ts';
 import { DEMOS, DEMO_IDS, demoById } from '../../../src/core/problems/demos.ts';
-import { demoCovariance, demoMean } from '../../../src/core/problems/truth.ts';
+import { covarianceMatrix, meanVector } from '../../../src/core/prior/covariance.ts';
 
 const built = new Map(DEMOS.map((d) => [d.id, d.build()]));
 
@@ -41,11 +41,11 @@ describe('demo problems', () => {
   // freedom. Two-sided 99.9% limits from our χ² quantile (itself checked against NIST and scipy).
   it.each(DEMOS.map((d) => [d.id] as const))('%s: whitened truth and noise pass a χ² test', (id) => {
     const { problem, truthPrior } = built.get(id)!;
-    const C = demoCovariance(problem.grid, truthPrior);
+    const C = covarianceMatrix(problem.grid, truthPrior);
     const f = cholesky(C);
     expect(f.ok).toBe(true);
     if (!f.ok) return;
-    const m0 = demoMean(problem.grid, truthPrior);
+    const m0 = meanVector(problem.grid, truthPrior);
     const z = solveLower(f.factor, problem.truth!.map((v, i) => v - m0[i]!));
     const n = z.length;
     const sz = z.reduce((s, v) => s + v * v, 0);

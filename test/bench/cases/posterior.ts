@@ -1,0 +1,69 @@
+/**
+ * Benchmark cases for the dense data-space posterior (not a timed test). Target: 1-D, N = 1000 cells,
+ * M = 100 data, mean + std + χ² + evidence (preparePosteriorFromCovariance + posteriorSummary) ≤ 40 ms
+ * median on the project machine, with Cm given (its assembly is the prior module's benchmark).
+ *
+ * Format: a plain list of { name, run() } (the shared harness test/bench/run.ts was not there when
+ * this was written); `npx tsx test/bench/cases/posterior.ts` runs the list itself and prints JSON.
+ */
+import { cellCoordinates, type Grid } from '../../../src/core/grid/grid.ts';
+import { posteriorSummary, preparePosteriorFromCovariance } from '../../../src/core/inverse/posterior.ts';
+import { matrix } from '../../../src/core/linalg/matrix.ts';
+import { applyOperator, type Operator } from '../../../src/core/linalg/operator.ts';
+import { denseToSparse } from '../../../src/core/linalg/sparse.ts';
+import { covarianceMatrix, meanVector } from '../../../src/core/prior/covariance.ts';
+import type { PriorSpec } from '../../../src/core/prior/spec.ts';
+import type { Problem } from '../../../src/core/problems/spec.ts';
+
+export interface BenchCase {
+  readonly name: string;
+  run(): void;
+}
+
+function setup(kind: 'dense' | 'sparse', n: number, m: number) {
+  const grid: Grid = { shape: [n], spacing: [1], origin: [0.5] };
+  const prior: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, length: 30 }], nugget: 1e-3 };
+  const { x } = cellCoordinates(grid);
+  const G = matrix(m, n);
+  const width = kind === 'dense' ? n / 8 : 8;
+  for (let k = 0; k < m; k++) {
+    const c = ((k + 0.5) * n) / m;
+    for (let j = 0; j < n; j++) {
+      const u = (x[j]! - c) / width;
+      if (kind === 'dense' || Math.abs(u) < 3) G.data[k * n + j] = Math.exp(-0.5 * u * u);
+    }
+  }
+  const op: Operator = kind === 'dense' ? { kind: 'dense', matrix: G } : { kind: 'sparse', matrix: denseToSparse(G) };
+  const values = applyOperator(op, x.map((v) => Math.sin(v / 40))).map((v, k) => v + 0.01 * Math.cos(k));
+  const problem: Problem = { grid, operator: op, data: { values, sigma: new Float64Array(m).fill(0.01) } };
+  return { problem, Cm: covarianceMatrix(grid, prior), m0: meanVector(grid, prior) };
+}
+
+function posteriorCase(kind: 'dense' | 'sparse', n: number, m: number): BenchCase {
+  const s = setup(kind, n, m);
+  return {
+    name: `posterior ${kind} G, 1-D N=${n} M=${m} (mean, std, χ², evidence)`,
+    run: () => void posteriorSummary(preparePosteriorFromCovariance(s.problem, s.Cm, s.m0)),
+  };
+}
+
+export const cases: BenchCase[] = [posteriorCase('dense', 1000, 100), posteriorCase('sparse', 1000, 100)];
+
+function median(a: number[]): number {
+  const s = [...a].sort((p, q) => p - q);
+  return s[Math.floor(s.length / 2)]!;
+}
+
+if (import.meta.url === `file://${process.argv[1]}`) {
+  const out = cases.map((c) => {
+    for (let i = 0; i < 3; i++) c.run();
+    const t: number[] = [];
+    for (let i = 0; i < 15; i++) {
+      const t0 = performance.now();
+      c.run();
+      t.push(performance.now() - t0);
+    }
+    return { name: c.name, medianMs: +median(t).toFixed(2), minMs: +Math.min(...t).toFixed(2), runs: t.length };
+  });
+  console.log(JSON.stringify(out, null, 2));
+}
