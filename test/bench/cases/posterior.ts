@@ -3,8 +3,9 @@
  * M = 100 data, mean + std + χ² + evidence (preparePosteriorFromCovariance + posteriorSummary) ≤ 40 ms
  * median on the project machine, with Cm given (its assembly is the prior module's benchmark).
  *
- * Format: a plain list of { name, run() } (the shared harness test/bench/run.ts was not there when
- * this was written); `npx tsx test/bench/cases/posterior.ts` runs the list itself and prints JSON.
+ * Format: `cases` in the shape of test/bench/types.ts (BenchCase: name, params, setup, runs, warmup;
+ * declared locally so this file does not depend on the harness). The shared harness picks it up;
+ * `npx tsx test/bench/cases/posterior.ts` also runs the list by itself and prints JSON.
  */
 import { cellCoordinates, type Grid } from '../../../src/core/grid/grid.ts';
 import { posteriorSummary, preparePosteriorFromCovariance } from '../../../src/core/inverse/posterior.ts';
@@ -17,7 +18,10 @@ import type { Problem } from '../../../src/core/problems/spec.ts';
 
 export interface BenchCase {
   readonly name: string;
-  run(): void;
+  readonly params?: Readonly<Record<string, number>>;
+  readonly setup: () => () => unknown;
+  readonly runs?: number;
+  readonly warmup?: number;
 }
 
 function setup(kind: 'dense' | 'sparse', n: number, m: number) {
@@ -40,10 +44,15 @@ function setup(kind: 'dense' | 'sparse', n: number, m: number) {
 }
 
 function posteriorCase(kind: 'dense' | 'sparse', n: number, m: number): BenchCase {
-  const s = setup(kind, n, m);
   return {
     name: `posterior ${kind} G, 1-D N=${n} M=${m} (mean, std, χ², evidence)`,
-    run: () => void posteriorSummary(preparePosteriorFromCovariance(s.problem, s.Cm, s.m0)),
+    params: { N: n, M: m },
+    runs: 15,
+    warmup: 3,
+    setup: () => {
+      const s = setup(kind, n, m);
+      return () => posteriorSummary(preparePosteriorFromCovariance(s.problem, s.Cm, s.m0));
+    },
   };
 }
 
@@ -56,11 +65,12 @@ function median(a: number[]): number {
 
 if (import.meta.url === `file://${process.argv[1]}`) {
   const out = cases.map((c) => {
-    for (let i = 0; i < 3; i++) c.run();
+    const run = c.setup();
+    for (let i = 0; i < (c.warmup ?? 1); i++) run();
     const t: number[] = [];
-    for (let i = 0; i < 15; i++) {
+    for (let i = 0; i < (c.runs ?? 5); i++) {
       const t0 = performance.now();
-      c.run();
+      run();
       t.push(performance.now() - t0);
     }
     return { name: c.name, medianMs: +median(t).toFixed(2), minMs: +Math.min(...t).toFixed(2), runs: t.length };
