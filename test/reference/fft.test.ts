@@ -8,6 +8,7 @@ import { describe, expect, it } from 'vitest';
 import { Fft2 } from '../../src/core/fft/fft2.ts';
 import { covarianceOperator } from '../../src/core/fft/covariance.ts';
 import { circulantEmbedding } from '../../src/core/fft/embedding.ts';
+import { nonNegativeEmbedding } from '../../src/core/fft/realisations.ts';
 import type { Grid } from '../../src/core/grid/grid.ts';
 import type { PriorSpec } from '../../src/core/prior/spec.ts';
 import { runPython } from './python.ts';
@@ -89,3 +90,23 @@ function p(terms: PriorSpec['terms']): PriorSpec {
 function cellCountOf(g: Grid): number {
   return g.shape.reduce((a, b) => a * b, 1);
 }
+
+describe('padding growth decisions vs numpy.linalg.eigvalsh of the explicit circulant (1-D gaussian, n = 32)', () => {
+  const grid: Grid = { shape: [32], spacing: [1] };
+  const lengths = [6, 12];
+  const searches = lengths.map((length) => nonNegativeEmbedding(grid, [{ kernel: 'gaussian', variance: 1, length }]));
+  const cases = searches.flatMap((s, k) => s.tried.map(([px]) => ({ k, px, base: Array.from(circulantEmbedding(grid, [{ kernel: 'gaussian', variance: 1, length: lengths[k]! }], px, 1).base) })));
+  const ref = runPython<{ results: number[][] }>('fft_reference.py', { cases: cases.map(({ px, base }) => ({ op: 'bccb_eigs', px, py: 1, base })) }).results;
+  lengths.forEach((length, k) => {
+    it(`length ${length}: every rejected size has min λ < −1e-10·max λ in numpy, the chosen one does not`, () => {
+      const tried = searches[k]!.tried;
+      expect(tried.length).toBeGreaterThan(1);
+      cases.forEach((c, q) => {
+        if (c.k !== k) return;
+        const eig = ref[q]!;
+        const ok = eig[0]! >= -1e-10 * eig[eig.length - 1]!;
+        expect(ok).toBe(c.px === searches[k]!.embedding.px);
+      });
+    });
+  });
+});
