@@ -44,11 +44,11 @@ export function Plot({ id, label, data, layout, height = 300, onDrawn, onPointCl
       data,
       {
         height,
-        margin: { l: 56, r: 16, t: 30, b: 42 },
+        margin: { l: 56, r: 16, t: 30, b: 66 },
         font: FONT,
         paper_bgcolor: 'rgba(0,0,0,0)',
         plot_bgcolor: '#fbfaf6',
-        legend: { orientation: 'h', y: -0.2 },
+        legend: { orientation: 'h', x: 0, y: -0.22, yanchor: 'top' },
         ...layout,
       },
       CONFIG,

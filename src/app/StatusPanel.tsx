@@ -1,4 +1,5 @@
 /** Positive-definiteness status of the current prior covariance, always visible. */
+import type { Diagnostics } from '../core/prior/diagnostics.ts';
 import { useWb } from './context.ts';
 
 function fmt(x: number): string {
@@ -8,15 +9,13 @@ function fmt(x: number): string {
   return a >= 1e4 || a < 1e-3 ? x.toExponential(2) : x.toPrecision(3);
 }
 
-/** Condition numbers above this are reported as near-singular (common practice, no source). */
-export const NEAR_SINGULAR_CONDITION = 1e10;
-
 export type PdLevel = 'ok' | 'near-singular' | 'not-pd' | 'pending';
 
-export function pdLevel(d: { positiveDefinite: boolean; conditionNumber: number; suggestedJitter: number | null } | null): PdLevel {
+/** Level shown for a diagnosis: the core decides what is near-singular (it then suggests a jitter). */
+export function pdLevel(d: Pick<Diagnostics, 'positiveDefinite' | 'suggestedJitter' | 'warnings'> | null): PdLevel {
   if (!d) return 'pending';
   if (!d.positiveDefinite) return 'not-pd';
-  if (d.conditionNumber > NEAR_SINGULAR_CONDITION || d.suggestedJitter !== null) return 'near-singular';
+  if (d.suggestedJitter !== null || d.warnings.some((w) => w.code === 'near-singular')) return 'near-singular';
   return 'ok';
 }
 

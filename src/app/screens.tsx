@@ -1,7 +1,6 @@
 /** The five screens of the main area: problem, prior, realisations, posterior, data fit. */
 import { useMemo, useState } from 'react';
 import { useShallow } from 'zustand/react/shallow';
-import { meanVector } from '../core/prior/covariance.ts';
 import { useWb } from './context.ts';
 import { Plot } from './Plot.tsx';
 import { NumberField } from './controls.tsx';
@@ -408,7 +407,6 @@ const markDrawn = () => performance.mark(MARK_POSTERIOR_DRAWN);
 
 export function PosteriorScreen() {
   const p = useWb((s) => s.problem);
-  const prior = useWb((s) => s.prior);
   const post = useWb((s) => s.posterior);
   const error = useWb((s) => s.errors.posterior ?? null);
   const resolution = useWb((s) => s.resolution);
@@ -417,15 +415,6 @@ export function PosteriorScreen() {
   const selected = useWb((s) => s.selectedCell);
   const is2D = p ? gridDimension(p.grid) === 2 : false;
 
-  const m0 = useMemo(() => {
-    if (!p || !prior) return null;
-    try {
-      return meanVector(p.grid, prior);
-    } catch {
-      return null;
-    }
-  }, [p, prior]);
-
   const oneD = useMemo(() => {
     if (!p || !post || is2D) return null;
     const x = axis1D(p.grid);
@@ -433,22 +422,21 @@ export function PosteriorScreen() {
     const b95 = band(s.mean, s.std, Z95);
     const b68 = band(s.mean, s.std, Z68);
     const traces: Trace[] = [];
-    if (m0) {
-      const pb = band(m0, s.priorStd, Z95);
-      traces.push(...bandTraces(x, pb.lower, pb.upper, 'prior 95%', COLOURS.prior));
-    }
+    const pb = band(post.priorMean, s.priorStd, Z95);
+    traces.push(...bandTraces(x, pb.lower, pb.upper, 'prior 95%', COLOURS.prior));
     traces.push(...bandTraces(x, b95.lower, b95.upper, 'posterior 95%', COLOURS.band95));
     traces.push(...bandTraces(x, b68.lower, b68.upper, 'posterior 68%', COLOURS.band68));
     if (p.truth) traces.push({ type: 'scatter', mode: 'lines', x, y: p.truth, name: 'truth', line: { color: COLOURS.truth, width: 1.2, dash: 'dot' } });
     traces.push({ type: 'scatter', mode: 'lines', x, y: s.mean, name: 'posterior mean', line: { color: COLOURS.mean, width: 2.2 } });
     return traces;
-  }, [p, post, is2D, m0]);
+  }, [p, post, is2D]);
   const oneDLayout = useMemo(
     () =>
       p && {
         title: { text: 'Posterior mean with 68% and 95% bands; prior 95% band', font: { size: 12 } },
-        xaxis: { title: { text: xLabel(p) } },
+        xaxis: { title: { text: xLabel(p), standoff: 4 } },
         yaxis: { title: { text: qLabel(p) } },
+        legend: { orientation: 'h', x: 0, y: -0.18, yanchor: 'top' },
       },
     [p],
   );
@@ -501,7 +489,7 @@ export function PosteriorScreen() {
     <div className="screen" data-testid="screen-posterior">
       {error && <p className="error" role="alert" data-testid="posterior-error">Posterior: {error}</p>}
       {!post && !error && <Waiting what="the posterior" />}
-      {oneD && <Plot id="plot-posterior" label="Posterior mean and bands" data={oneD} layout={oneDLayout} height={300} onDrawn={markDrawn} onPointClick={click} />}
+      {oneD && <Plot id="plot-posterior" label="Posterior mean and bands" data={oneD} layout={oneDLayout} height={340} onDrawn={markDrawn} onPointClick={click} />}
       {maps && (
         <div className="grid-3">
           <Plot id="plot-posterior-mean" label="Posterior mean map" data={maps.mean} layout={layouts.mean} height={240} onDrawn={markDrawn} onPointClick={click} />

@@ -8,7 +8,7 @@ import type { Problem } from '../core/problems/spec.ts';
 import type { PriorSpec } from '../core/prior/spec.ts';
 import { cellCount } from '../core/grid/grid.ts';
 import { diagnosePrior } from '../core/prior/diagnostics.ts';
-import { covarianceMatrix } from '../core/prior/covariance.ts';
+import { covarianceMatrix, meanVector } from '../core/prior/covariance.ts';
 import { priorRealisations } from '../core/sampling/realisations.ts';
 import {
   posteriorRealisations,
@@ -154,7 +154,7 @@ export class Engine {
         const m = summary.dataCount;
         const chi2Interval: readonly [number, number] | null =
           m > 0 ? [chiSquareQuantile(0.025, m) / m, chiSquareQuantile(0.975, m) / m] : null;
-        return { summary, chi2Interval };
+        return { summary, chi2Interval, priorMean: meanVector(state.problem.grid, r.prior) };
       }
       case 'diagnostics':
         return diagnosePrior(this.requireProblem(r.problemVersion).grid, r.prior);

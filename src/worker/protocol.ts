@@ -41,6 +41,8 @@ export interface ProblemView {
 /** Posterior summary plus the χ² interval of the data fit, when the χ² quantile function exists. */
 export interface PosteriorResult {
   readonly summary: PosteriorSummary;
+  /** Prior mean m0 of the same prior (for the prior band). */
+  readonly priorMean: Float64Array;
   /** Central 95% interval of χ²_M / M (from χ² quantiles 0.025 and 0.975), or null if unavailable. */
   readonly chi2Interval: readonly [number, number] | null;
 }

@@ -168,7 +168,7 @@ describe('WorkerClient', () => {
     void client.setProblem(problem);
     const sent = w().sent[0]!;
     expect(sent.transfer).toHaveLength(3);
-    const m = sent.message as { problem: typeof problem };
+    const m = sent.message as unknown as { problem: typeof problem };
     expect(m.problem.data.values).not.toBe(values);
     expect(Array.from(m.problem.data.values)).toEqual([1, 2, 3]);
   });

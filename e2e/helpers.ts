@@ -1,0 +1,102 @@
+/** Shared helpers for the workbench end-to-end specs. */
+import { expect, type Page, type TestInfo } from '@playwright/test';
+import { mkdirSync } from 'node:fs';
+import type { PriorSpec } from '../src/core/prior/spec.ts';
+
+export interface PageState {
+  demoId: string;
+  problemVersion: number | null;
+  prior: PriorSpec;
+  priorRevision: number;
+  seed: number;
+  tab: string;
+  selectedCell: number | null;
+  errors: Record<string, string>;
+  busy: Record<string, boolean>;
+  computedFor: Record<string, string>;
+  diagnostics: { positiveDefinite: boolean; suggestedJitter: number | null } | null;
+  restarts: number;
+}
+
+/** Records console errors, page errors and every request that leaves the page's origin. */
+export function watch(page: Page, origin: string) {
+  const problems: string[] = [];
+  const foreign: string[] = [];
+  page.on('console', (m) => {
+    if (m.type() === 'error') problems.push(`console: ${m.text()}`);
+  });
+  page.on('pageerror', (e) => problems.push(`page error: ${e.message}`));
+  page.on('request', (r) => {
+    const url = r.url();
+    if (url.startsWith('data:') || url.startsWith('blob:')) return;
+    if (new URL(url).origin !== origin) foreign.push(url);
+  });
+  return { problems, foreign };
+}
+
+export async function state(page: Page): Promise<PageState> {
+  return (await page.evaluate(() => (window as unknown as { __priorscope: { getState(): unknown } }).__priorscope.getState())) as PageState;
+}
+
+/** Wait until nothing is being computed and the posterior is up to date for the current prior. */
+export async function settle(page: Page): Promise<PageState> {
+  await expect
+    .poll(
+      async () => {
+        const s = await state(page);
+        const busy = Object.values(s.busy).some(Boolean);
+        const rev = `${s.problemVersion}:${s.priorRevision}`;
+        return !busy && s.computedFor.posterior === rev;
+      },
+      { timeout: 45_000 },
+    )
+    .toBe(true);
+  return state(page);
+}
+
+export async function open(page: Page, demo?: string): Promise<PageState> {
+  await page.goto(demo ? `/?demo=${demo}` : '/');
+  await expect(page.getByTestId('activity')).toHaveText('Up to date', { timeout: 45_000 });
+  return settle(page);
+}
+
+/** y values (or z rows) of the named trace of a plotly figure, read from the graph div. */
+export async function traceValues(page: Page, plotId: string, traceName: string, key: 'y' | 'z' = 'y'): Promise<number[] | number[][]> {
+  return page.evaluate(
+    ([id, name, k]) => {
+      const gd = document.getElementById(id!) as unknown as { data?: Record<string, unknown>[] } | null;
+      const t = gd?.data?.find((d) => d.name === name);
+      if (!t) return [];
+      const v = t[k!] as ArrayLike<number> | ArrayLike<number>[];
+      const arr = Array.from(v as ArrayLike<unknown>);
+      return arr.map((row) => (typeof row === 'number' ? row : Array.from(row as ArrayLike<number>))) as number[] | number[][];
+    },
+    [plotId, traceName, key] as const,
+  );
+}
+
+export async function traceNames(page: Page, plotId: string): Promise<string[]> {
+  return page.evaluate((id) => {
+    const gd = document.getElementById(id) as unknown as { data?: { name?: string }[] } | null;
+    return (gd?.data ?? []).map((d) => d.name ?? '');
+  }, plotId);
+}
+
+/** Largest |a − b| relative to the largest |b| (both flat). */
+export function maxRelDiff(a: ArrayLike<number>, b: ArrayLike<number>): number {
+  expect(a.length).toBe(b.length);
+  let scale = 0;
+  let d = 0;
+  for (let i = 0; i < b.length; i++) {
+    scale = Math.max(scale, Math.abs(b[i]!));
+    d = Math.max(d, Math.abs(a[i]! - b[i]!));
+  }
+  return d / (scale || 1);
+}
+
+export async function screenshot(page: Page, info: TestInfo, name: string): Promise<void> {
+  mkdirSync('test-results/screens', { recursive: true });
+  const path = `test-results/screens/${name}.png`;
+  await page.screenshot({ path });
+  await info.attach(name, { path, contentType: 'image/png' });
+}

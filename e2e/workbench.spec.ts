@@ -1,0 +1,255 @@
+/**
+ * Acceptance of the workbench (issue 4) in Chromium. Expected numbers are computed here, in Node,
+ * with the same numerical core the worker runs, for the prior the page reports it used.
+ *
+ * Tolerance for page-against-Node comparisons: the same code in IEEE double arithmetic on two V8
+ * builds; we allow 1e-9 relative for round-off differences (common practice, no source). The
+ * changes we detect are many orders of magnitude larger (asserted in each test).
+ */
+import { expect, test } from '@playwright/test';
+import { DEMOS } from '../src/core/problems/demos.ts';
+import { posteriorSummary, preparePosterior, resolutionRow } from '../src/core/inverse/posterior.ts';
+import { priorRealisations } from '../src/core/sampling/realisations.ts';
+import { maxRelDiff, open, screenshot, settle, state, traceNames, traceValues, watch } from './helpers.ts';
+
+const TOL = 1e-9;
+const ORIGIN = 'http://127.0.0.1:' + (process.env.PRIORSCOPE_E2E_PORT ?? 4317);
+
+function demo(id: string) {
+  const d = DEMOS.find((x) => x.id === id);
+  if (!d) throw new Error(`demo ${id} missing`);
+  return d.build();
+}
+
+const borehole = demo('borehole-log');
+
+test('loads the 1-D demo with posterior mean, bands and data fit; no console errors; no foreign requests', async ({ page }) => {
+  const w = watch(page, ORIGIN);
+  const s = await open(page);
+  expect(s.demoId).toBe('borehole-log');
+  await expect(page.getByTestId('demo-select')).toHaveValue('borehole-log');
+  const names = await traceNames(page, 'plot-posterior');
+  for (const n of ['posterior mean', 'posterior 68%', 'posterior 95%', 'prior 95%', 'truth']) expect(names).toContain(n);
+  const mean = (await traceValues(page, 'plot-posterior', 'posterior mean')) as number[];
+  expect(mean).toHaveLength(200);
+  // The drawn mean is the core's posterior mean for the page's prior (the demo's starting prior).
+  expect(s.prior).toEqual(borehole.startPrior);
+  const expected = posteriorSummary(preparePosterior(borehole.problem, s.prior));
+  expect(maxRelDiff(mean, expected.mean)).toBeLessThan(TOL);
+  // the 95% band is mean ± 1.96 σ of the core's posterior std
+  const upper95 = (await traceValues(page, 'plot-posterior', 'posterior 95%')) as number[];
+  expect(maxRelDiff(upper95, Array.from(expected.mean, (m, i) => m + 1.959963984540054 * expected.std[i]!))).toBeLessThan(TOL);
+
+  await page.getByTestId('tab-fit').click();
+  await expect(page.getByTestId('plot-fit')).toBeVisible();
+  const predicted = (await traceValues(page, 'plot-fit', 'predicted G m̃')) as number[];
+  expect(maxRelDiff(predicted, expected.predicted)).toBeLessThan(TOL);
+  const residuals = (await traceValues(page, 'plot-residuals', 'normalised residual')) as number[];
+  expect(maxRelDiff(residuals, expected.residuals)).toBeLessThan(TOL);
+  await expect(page.getByTestId('chi2-ratio')).toHaveText((expected.chi2 / expected.dataCount).toFixed(3));
+  await expect(page.getByTestId('chi2-interval')).toBeVisible();
+  await expect(page.getByTestId('caution')).toContainText('qualified professional');
+  await expect(page.getByTestId('pd-status')).toBeVisible();
+
+  expect(w.problems).toEqual([]);
+  expect(w.foreign).toEqual([]);
+});
+
+test('changing a correlation length changes the posterior to the core numbers for that prior', async ({ page }) => {
+  const w = watch(page, ORIGIN);
+  await open(page);
+  const before = (await traceValues(page, 'plot-posterior', 'posterior mean')) as number[];
+  const input = page.getByTestId('term-0-length-input');
+  await input.fill('2.5');
+  await input.press('Enter');
+  const s = await settle(page);
+  expect(s.prior.terms[0]!.length).toBe(2.5);
+  await expect.poll(async () => maxRelDiff((await traceValues(page, 'plot-posterior', 'posterior mean')) as number[], before)).toBeGreaterThan(1e-4);
+  const after = (await traceValues(page, 'plot-posterior', 'posterior mean')) as number[];
+  const expected = posteriorSummary(preparePosterior(borehole.problem, { ...borehole.startPrior, terms: [{ ...borehole.startPrior.terms[0]!, length: 2.5 }] }));
+  expect(maxRelDiff(after, expected.mean)).toBeLessThan(TOL);
+  const std = (await traceValues(page, 'plot-posterior', 'posterior 68%')) as number[];
+  expect(maxRelDiff(std, Array.from(expected.mean, (m, i) => m + expected.std[i]!))).toBeLessThan(TOL);
+  expect(w.problems).toEqual([]);
+});
+
+test('a Gaussian kernel far longer than the spacing is flagged with a jitter; applying it clears the status', async ({ page }) => {
+  const w = watch(page, ORIGIN);
+  await open(page);
+  await expect(page.getByTestId('pd-status')).toHaveAttribute('data-level', 'ok');
+  await page.getByTestId('term-0-kernel').selectOption('gaussian');
+  const input = page.getByTestId('term-0-length-input');
+  await input.fill('40'); // 80 cell spacings
+  await input.press('Enter');
+  await page.getByTestId('nugget-input').fill('0');
+  await page.getByTestId('nugget-input').press('Enter');
+  await expect(page.getByTestId('pd-status')).toHaveAttribute('data-level', /not-pd|near-singular/, { timeout: 45_000 });
+  await expect(page.getByTestId('pd-jitter')).toBeVisible();
+  await expect(page.getByTestId('pd-warnings')).not.toBeEmpty();
+  const jitter = (await state(page)).diagnostics!.suggestedJitter!;
+  expect(jitter).toBeGreaterThan(0);
+  await page.getByTestId('apply-jitter').click();
+  await expect(page.getByTestId('pd-status')).toHaveAttribute('data-level', 'ok', { timeout: 45_000 });
+  const s = await state(page);
+  expect(s.prior.nugget).toBe(jitter);
+  await expect(page.getByTestId('pd-jitter')).toHaveCount(0);
+  expect(w.problems).toEqual([]);
+});
+
+test('redraw with a new seed changes the realisations; the same seed reproduces them', async ({ page }) => {
+  const w = watch(page, ORIGIN);
+  await open(page);
+  await page.getByTestId('tab-realisations').click();
+  const seedInput = page.getByTestId('seed-input');
+  const readDraws = async () => {
+    await expect(page.getByTestId('plot-prior-draws')).toBeVisible();
+    await settle(page);
+    await expect.poll(async () => (await state(page)).computedFor.priorDraws?.endsWith(`:${(await state(page)).seed}`)).toBe(true);
+    await expect.poll(async () => (await state(page)).busy.priorDraws ?? false).toBe(false);
+    await page.waitForTimeout(200); // let plotly finish the redraw
+    const out: number[][] = [];
+    for (let k = 1; k <= 6; k++) out.push((await traceValues(page, 'plot-prior-draws', `draw ${k}`)) as number[]);
+    return out;
+  };
+  await seedInput.fill('123');
+  await seedInput.press('Enter');
+  const a = await readDraws();
+  expect(a.every((d) => d.length === 200)).toBe(true);
+  const prior = (await state(page)).prior;
+  const core = priorRealisations(borehole.problem.grid, prior, 6, 123);
+  expect(maxRelDiff(a.flat(), core.data)).toBeLessThan(TOL);
+  await page.getByTestId('redraw').click();
+  const newSeed = (await state(page)).seed;
+  expect(newSeed).not.toBe(123);
+  await expect(seedInput).toHaveValue(String(newSeed));
+  const b = await readDraws();
+  expect(maxRelDiff(b.flat(), a.flat())).toBeGreaterThan(1e-3);
+  await seedInput.fill('123');
+  await seedInput.press('Enter');
+  const c = await readDraws();
+  expect(c).toEqual(a);
+  await expect(page.getByTestId('plot-posterior-draws')).toBeVisible();
+  expect(w.problems).toEqual([]);
+});
+
+for (const id of ['crosshole-tomography', 'potential-field']) {
+  test(`2-D demo ${id} renders its maps and a clicked cell shows its averaging kernel`, async ({ page }, info) => {
+    test.setTimeout(120_000);
+    const w = watch(page, ORIGIN);
+    const built = demo(id);
+    const [nx, ny] = built.problem.grid.shape as [number, number];
+    await open(page, id);
+    for (const plot of ['plot-posterior-mean', 'plot-posterior-std', 'plot-variance-reduction', 'plot-truth']) {
+      await expect(page.getByTestId(plot)).toBeVisible();
+    }
+    const z = (await traceValues(page, 'plot-posterior-mean', 'mean', 'z')) as number[][];
+    expect(z).toHaveLength(ny);
+    expect(z[0]).toHaveLength(nx);
+    const s = await state(page);
+    const post = preparePosterior(built.problem, s.prior);
+    expect(maxRelDiff(z.flat(), posteriorSummary(post).mean)).toBeLessThan(TOL);
+
+    // click inside the mean map's plotting area
+    const drag = page.locator('#plot-posterior-mean .nsewdrag').first();
+    const box = (await drag.boundingBox())!;
+    await page.mouse.click(box.x + box.width * 0.3, box.y + box.height * 0.4);
+    await expect(page.getByTestId('plot-kernel')).toBeVisible({ timeout: 45_000 });
+    await expect.poll(async () => (await state(page)).busy.resolution ?? true, { timeout: 45_000 }).toBe(false);
+    const cell = (await state(page)).selectedCell!;
+    expect(cell).toBeGreaterThanOrEqual(0);
+    expect(cell).toBeLessThan(nx * ny);
+    // roughly where we clicked: 30% across, 40% down
+    expect(Math.abs((cell % nx) / nx - 0.3)).toBeLessThan(0.1);
+    expect(Math.abs(Math.floor(cell / nx) / ny - 0.4)).toBeLessThan(0.12);
+    await page.waitForTimeout(200);
+    const kernel = (await traceValues(page, 'plot-kernel', 'R row', 'z')) as number[][];
+    expect(maxRelDiff(kernel.flat(), resolutionRow(post, cell))).toBeLessThan(TOL);
+    await screenshot(page, info, `${id}-posterior`);
+    expect(w.problems).toEqual([]);
+  });
+}
+
+test('20 rapid slider changes in a second end in the last value, with no errors', async ({ page }) => {
+  const w = watch(page, ORIGIN);
+  await open(page);
+  const slider = page.getByTestId('term-0-length-slider');
+  const positions = Array.from({ length: 20 }, (_, k) => 100 + 7 * k);
+  // 20 input events 50 ms apart inside the page (as a drag produces them), within one second.
+  const elapsed = await slider.evaluate(async (el, list) => {
+    const input = el as HTMLInputElement;
+    const setValue = Object.getOwnPropertyDescriptor(HTMLInputElement.prototype, 'value')!.set!;
+    const t0 = performance.now();
+    for (const pos of list) {
+      setValue.call(input, String(pos));
+      input.dispatchEvent(new Event('input', { bubbles: true }));
+      await new Promise((r) => setTimeout(r, 50));
+    }
+    return performance.now() - t0;
+  }, positions);
+  expect(elapsed).toBeLessThan(1200);
+  expect((await state(page)).priorRevision).toBeGreaterThanOrEqual(20);
+  const s = await settle(page);
+  await expect(slider).toHaveValue(String(positions[positions.length - 1]));
+  const shown = Number(await page.getByTestId('term-0-length-input').inputValue());
+  expect(s.prior.terms[0]!.length).toBe(shown);
+  // the last value, not an earlier one: slider positions map monotonically to lengths
+  const max = Number(await slider.getAttribute('max'));
+  expect(max).toBeGreaterThan(positions[positions.length - 1]!);
+  await expect.poll(async () => {
+    const mean = (await traceValues(page, 'plot-posterior', 'posterior mean')) as number[];
+    const expected = posteriorSummary(preparePosterior(borehole.problem, s.prior)).mean;
+    return maxRelDiff(mean, expected);
+  }).toBeLessThan(TOL);
+  expect(Object.keys(s.errors)).toEqual([]);
+  await expect(page.locator('[role=alert]')).toHaveCount(0);
+  expect(w.problems).toEqual([]);
+});
+
+test('every control is reachable and usable from the keyboard', async ({ page }) => {
+  await open(page);
+  // tabs: arrow keys move between screens
+  await page.getByTestId('tab-posterior').focus();
+  await page.keyboard.press('ArrowRight');
+  await expect(page.getByTestId('tab-fit')).toHaveAttribute('aria-selected', 'true');
+  await page.keyboard.press('ArrowLeft');
+  await page.keyboard.press('ArrowLeft');
+  await expect(page.getByTestId('tab-realisations')).toHaveAttribute('aria-selected', 'true');
+  // a slider moves with the arrow keys and updates the prior
+  const before = (await state(page)).prior.terms[0]!.variance;
+  await page.getByTestId('term-0-variance-slider').focus();
+  await page.keyboard.press('ArrowRight');
+  await expect.poll(async () => (await state(page)).prior.terms[0]!.variance).toBeGreaterThan(before);
+  // add a term with Enter, remove it again
+  await page.getByTestId('add-term').focus();
+  await page.keyboard.press('Enter');
+  await expect(page.getByTestId('term-1')).toBeVisible();
+  await page.getByTestId('term-1-remove').focus();
+  await page.keyboard.press('Enter');
+  await expect(page.getByTestId('term-1')).toHaveCount(0);
+  // bad typed input gets a precise message and leaves the prior alone
+  const len = (await state(page)).prior.terms[0]!.length;
+  await page.getByTestId('term-0-length-input').fill('-3');
+  await page.getByTestId('term-0-length-input').press('Enter');
+  await expect(page.getByRole('alert').first()).toContainText('Length ℓ must be > 0');
+  expect((await state(page)).prior.terms[0]!.length).toBe(len);
+  // every control has a tooltip with its formula or meaning
+  const untitled = await page.evaluate(
+    () => [...document.querySelectorAll('.prior-panel input, .prior-panel select')].filter((e) => !e.getAttribute('title')).length,
+  );
+  expect(untitled).toBe(0);
+});
+
+test('screenshots of each screen (1-D demo, and the 2-D demos on every screen)', async ({ page }, info) => {
+  test.setTimeout(180_000);
+  for (const id of ['borehole-log', 'crosshole-tomography', 'potential-field']) {
+    await open(page, id);
+    for (const tab of ['problem', 'prior', 'realisations', 'posterior', 'fit']) {
+      await page.getByTestId(`tab-${tab}`).click();
+      await expect(page.getByTestId(`screen-${tab}`)).toBeVisible();
+      await settle(page);
+      await expect.poll(async () => Object.values((await state(page)).busy).some(Boolean), { timeout: 60_000 }).toBe(false);
+      await page.waitForTimeout(300);
+      await screenshot(page, info, `${id}-${tab}`);
+    }
+  }
+});
