@@ -121,10 +121,20 @@ describe('calibration over seeded replicates (truth from the prior, data = G tru
   });
 });
 
-describe('posterior realisations', () => {
+/** Full Cd with neighbouring data correlated (0.5 on the first off-diagonal, σ² on the diagonal). */
+function banded(): Matrix {
+  const C = matrix(10, 10);
+  for (let k = 0; k < 10; k++) {
+    C.data[k * 10 + k] = SIGMA * SIGMA;
+    if (k > 0) C.data[k * 10 + k - 1] = C.data[(k - 1) * 10 + k] = 0.5 * SIGMA * SIGMA;
+  }
+  return C;
+}
+
+describe.each(['diagonal', 'full'] as const)('posterior realisations, %s Cd', (cdKind) => {
   const { x } = cellCoordinates(grid);
   const values = applyOperator(G, x.map((v) => 2 + Math.sin(v / 5))).map((v, k) => v + 0.1 * Math.cos(k));
-  const problem: Problem = { grid, operator: G, data: { values, sigma } };
+  const problem: Problem = { grid, operator: G, data: cdKind === 'diagonal' ? { values, sigma } : { values, covariance: banded() } };
   const state = preparePosterior(problem, prior);
   const s = posteriorSummary(state);
   const C = posteriorCovariance(state);
