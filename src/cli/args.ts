@@ -87,9 +87,12 @@ export function parseNumberOption(name: string, text: string, rule: { integer?: 
     (rule.le === undefined || v <= rule.le);
   if (!ok) {
     const parts = [rule.integer ? 'an integer' : 'a finite number'];
-    if (rule.gt !== undefined) parts.push(`> ${rule.gt}`);
-    if (rule.ge !== undefined) parts.push(`≥ ${rule.ge}`);
-    if (rule.le !== undefined) parts.push(`≤ ${rule.le}`);
+    if (rule.ge !== undefined && rule.le !== undefined) parts.push(`from ${rule.ge} to ${rule.le}`);
+    else {
+      if (rule.gt !== undefined) parts.push(`> ${rule.gt}`);
+      if (rule.ge !== undefined) parts.push(`≥ ${rule.ge}`);
+      if (rule.le !== undefined) parts.push(`≤ ${rule.le}`);
+    }
     throw new UsageError(`--${name} must be ${parts.join(' ')}, got ${formatValue(text)}`);
   }
   return v;
