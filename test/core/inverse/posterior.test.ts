@@ -15,6 +15,7 @@ import {
   posteriorSummary,
   preparePosterior,
   preparePosteriorFromCovariance,
+  resolutionRow,
 } from '../../../src/core/inverse/posterior.ts';
 import { cholesky, solveLower } from '../../../src/core/linalg/cholesky.ts';
 import { fromRows, identity, matrix, type Matrix } from '../../../src/core/linalg/matrix.ts';
@@ -243,8 +244,12 @@ describe('special cases and edge behaviour', () => {
       operator: { kind: 'dense', matrix: identity(n) },
       data: { values: new Float64Array(n), sigma: new Float64Array(n).fill(1e-6) },
     };
-    const s = posteriorSummary(preparePosterior(problem, { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length: 2 }], nugget: 0.1 }));
-    expect(Math.abs(s.resolutionTrace - n)).toBeLessThan(1e-9);
+    // Derived: with G = I, R = Cm (Cm + σ²I)⁻¹ = I − σ² (Cm + σ²I)⁻¹, so ‖R − I‖ ≤ σ²/λmin(Cm) and
+    // λmin(Cm) ≥ nugget = 0.1: every entry of R − I is below 1e-11, tr R within n·1e-11 of n.
+    const state = preparePosterior(problem, { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length: 2 }], nugget: 0.1 });
+    const s = posteriorSummary(state);
+    expect(Math.abs(s.resolutionTrace - n)).toBeLessThan(n * 1e-11);
+    resolutionRow(state, 3).forEach((v, j) => expect(Math.abs(v - (j === 3 ? 1 : 0))).toBeLessThan(1e-11));
   });
 });
 
@@ -267,6 +272,12 @@ describe('bad input', () => {
     expect(() => preparePosteriorFromCovariance(problem({ values: new Float64Array(3), sigma: new Float64Array(3).fill(1) }), identity(4), [0, 0, 0])).toThrow(
       'prior covariance Cm must be a 3×3 matrix, got "4×4"',
     );
+  });
+  it('resolutionRow and posteriorRealisations check their arguments', () => {
+    const st = preparePosteriorFromCovariance(problem({ values: new Float64Array(3), sigma: new Float64Array(3).fill(1) }), C3, [0, 0, 0]);
+    expect(() => resolutionRow(st, 3)).toThrow('cell must be an integer in [0, 2], got 3');
+    expect(() => posteriorRealisations(st, -1, 1)).toThrow('count must be a non-negative integer, got -1');
+    expect(() => posteriorRealisations(st, 2, -5)).toThrow(/seed/);
   });
   it('an indefinite full Cd or K gives NotPositiveDefiniteError with a hint', () => {
     const bad = fromRows([[1, 2, 0], [2, 1, 0], [0, 0, 1]]);
