@@ -13,6 +13,9 @@
 /** Depth of one pass over p; 4·KC doubles of A stay in L1 while a strip of B streams from L2. */
 export const KC = 256;
 
+/** Rows of B per pass, so an NC × KC strip of B (512 KiB) stays in L2 while A's rows sweep it. */
+export const NC = 256;
+
 /**
  * C[i][j] += α Σ_{p<k} A[i][p] B[j][p] for 0 ≤ i < m, 0 ≤ j < n; with `lower`, only j ≤ i + diag
  * is written (entries above are neither read nor written), where `diag` shifts the diagonal
@@ -37,14 +40,42 @@ export function gemmNT(
 ): void {
   for (let pc = 0; pc < k; pc += KC) {
     const kk = Math.min(KC, k - pc);
-    let i = 0;
+    for (let jc = 0; jc < n; jc += NC) {
+      const jcEnd = Math.min(n, jc + NC);
+      gemmNTPanel(m, jc, jcEnd, kk, pc, alpha, a, ao, lda, b, bo, ldb, c, co, ldc, lower, diag);
+    }
+  }
+}
+
+/** One KC-deep pass of {@link gemmNT} over columns jc ≤ j < jcEnd of C. */
+function gemmNTPanel(
+  m: number,
+  jc: number,
+  jcEnd: number,
+  kk: number,
+  pc: number,
+  alpha: number,
+  a: Float64Array,
+  ao: number,
+  lda: number,
+  b: Float64Array,
+  bo: number,
+  ldb: number,
+  c: Float64Array,
+  co: number,
+  ldc: number,
+  lower: boolean,
+  diag: number,
+): void {
+  {
+    let i = lower ? Math.max(0, (jc - diag - 3) & ~3) : 0;
     for (; i + 4 <= m; i += 4) {
-      const jEnd = lower ? Math.min(n, i + 4 + diag) : n;
+      const jEnd = lower ? Math.min(jcEnd, i + 4 + diag) : jcEnd;
       const pa0 = ao + i * lda + pc;
       const pa1 = pa0 + lda;
       const pa2 = pa1 + lda;
       const pa3 = pa2 + lda;
-      let j = 0;
+      let j = jc;
       for (; j + 2 <= jEnd; j += 2) {
         const pb0 = bo + j * ldb + pc;
         const pb1 = pb0 + ldb;
@@ -97,9 +128,9 @@ export function gemmNT(
     }
     // Leftover rows (m not a multiple of 4).
     for (; i < m; i++) {
-      const jEnd = lower ? Math.min(n, i + 1 + diag) : n;
+      const jEnd = lower ? Math.min(jcEnd, i + 1 + diag) : jcEnd;
       const pa = ao + i * lda + pc;
-      for (let j = 0; j < jEnd; j++) {
+      for (let j = jc; j < jEnd; j++) {
         const pb = bo + j * ldb + pc;
         let s = 0;
         for (let p = 0; p < kk; p++) s += a[pa + p]! * b[pb + p]!;
