@@ -19,7 +19,7 @@
  * (Temme's series for z < 2, the continued fraction scaled by e^z for z ≥ 2). The work per call is O(n).
  * For z ≥ 2 the values carry the factor e^z; they are rescaled by 2^{−900} when large and the factor is removed
  * at the end, so large z underflows gracefully to 0.
- * ρ(0) = 1 exactly; results are clamped to [0, 1] (rounding can otherwise give 1 + 1 ulp near h = 0).
+ * ρ(0) = 1 exactly (also when √(2ν)h underflows to 0); results are clamped to [0, 1] (rounding can otherwise give 1 + 1 ulp near h = 0).
  */
 import type { CorrelationFunction } from './correlation.ts';
 import { besselOrder, temmeContinuedFraction, temmeSeries } from '../special/bessel.ts';
@@ -73,10 +73,13 @@ export function maternBessel(nu: number): CorrelationFunction {
   const coef = new Float64Array(Math.max(n, 2));
   for (let k = 2; k < n; k++) coef[k] = 1 / (4 * (mu + k) * (mu + k - 1));
   const scratch = new Float64Array(3);
+  // For n ≥ 2 (ν ≥ 3/2), 1 − ρ ≈ z²/(4(ν − 1)) < 1e-300 below z = 1e-150, so ρ = 1 in double precision; returning
+  // it there also avoids z^μ K_μ ~ z^{2μ} (μ < 0) overflowing against z² = 0 for subnormal z.
+  const zOne = n >= 2 ? 1e-150 : 0;
 
   return (h: number): number => {
-    if (h === 0) return 1;
     const z = s * h;
+    if (z <= zOne) return 1; // h = 0, z underflowed to 0, or (ν ≥ 3/2) z < 1e-150
     const series = z < 2;
     if (series) temmeSeries(order, z, scratch);
     else temmeContinuedFraction(order, z, scratch);

@@ -5,7 +5,9 @@
  * (compact support); linear near 0 like the exponential.
  */
 export function sphericalCorrelation(h: number): number {
-  return h < 1 ? 1 - h * (1.5 - 0.5 * h * h) : 0;
+  if (!(h < 1)) return 0;
+  const u = 1 - h; // exact for h ∈ [1/2, 1)
+  return 0.5 * u * u * (2 + h); // = 1 − 1.5h + 0.5h³, factored: no cancellation as h → 1
 }
 
 /**
