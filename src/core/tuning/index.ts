@@ -1,0 +1,14 @@
+/**
+ * Prior selection: evidence maps and profiles, type-II maximum likelihood, leave-one-out,
+ * discrepancy principle, prior predictive check and simulation-based calibration.
+ * The whole public API of src/core/tuning; inputs are JSON-able specs, outputs typed arrays.
+ */
+export type { TuningControl } from './dataSpace.ts';
+export { evidenceMap, evidenceProfile, logSpaced, setTermLength, termLength, withTerm } from './evidenceMap.ts';
+export type { EvidenceMap, EvidenceMapOptions, EvidenceMethod, EvidenceProfile, EvidenceProfileOptions, LogAxis, ProfileParameter } from './evidenceMap.ts';
+export { applyHyperParameters, evidenceGradient, hyperParameters, hyperParameterVector, logEvidence, maximiseEvidence } from './typeII.ts';
+export type { EvidenceAndGradient, FittedParameter, HyperParameter, MaximiseOptions, TypeIIResult } from './typeII.ts';
+export { CRITERIA_DIFFER_EXPLANATION, discrepancyScale, leaveOneOut, priorCriteria, priorPredictiveCheck, scalePrior } from './criteria.ts';
+export type { DiscrepancyResult, LeaveOneOut, PriorCriteria, PriorPredictiveCheck } from './criteria.ts';
+export { BAND_LEVELS, calibrate, calibrationTable } from './calibration.ts';
+export type { CalibrationOptions, CalibrationResult, CalibrationTable } from './calibration.ts';
