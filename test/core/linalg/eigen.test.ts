@@ -5,6 +5,7 @@ import {
   symmetricEigenvalues,
   tridiagonalEigenvalues,
   tridiagonalise,
+  tridiagonaliseUnblocked,
 } from '../../../src/core/linalg/eigen.ts';
 import { fromRows, matrix, matvec } from '../../../src/core/linalg/matrix.ts';
 import { randomSymmetric, relError } from './helpers.ts';
@@ -52,8 +53,17 @@ describe('symmetric eigenvalues', () => {
     expect(trT).toBeCloseTo(tr, 11);
     expect(frT).toBeCloseTo(fr, 10);
   });
+  for (const n of [65, 97, 160]) {
+    it(`blocked reduction n = ${n} gives the unblocked tridiagonal (panels of 32, partial last panel)`, () => {
+      const a = randomSymmetric(n, 50 + n);
+      const t1 = tridiagonalise(a);
+      const t2 = tridiagonaliseUnblocked(a);
+      expect(relError(t1.d, t2.d)).toBeLessThan(1e-12);
+      expect(relError(t1.e, t2.e)).toBeLessThan(1e-12);
+    });
+  }
   it('eigenvectors: A V = V Λ and Vᵀ V = I', () => {
-    const n = 30;
+    const n = 90; // above the blocked-reduction threshold
     const a = randomSymmetric(n, 3);
     const { values, vectors } = symmetricEigen(a);
     let res = 0, orth = 0;
