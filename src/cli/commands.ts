@@ -12,6 +12,7 @@ import { diagnosePrior } from '../core/prior/diagnostics.ts';
 import { priorRealisations } from '../core/sampling/realisations.ts';
 import { posteriorRealisations, posteriorSummary, preparePosterior } from '../core/inverse/posterior.ts';
 import { DEMOS } from '../core/problems/demos.ts';
+import { evidenceMap, type LogAxis } from '../core/tuning/evidenceMap.ts';
 import type { FileWarning } from '../core/io/errors.ts';
 import { writeCsv } from '../core/io/csv.ts';
 import { formatJson } from '../core/io/json.ts';
@@ -46,7 +47,6 @@ export interface Command {
   /** Longer description printed by `priorscope <command> --help`. */
   readonly details: string;
   readonly options: readonly OptionSpec[];
-  readonly available: boolean;
   run(args: ParsedArgs, io: Io): number;
 }
 
@@ -97,7 +97,6 @@ const posterior: Command = {
     '((d − G m̃)/σ, or Ld⁻¹ (d − G m̃) for a full data covariance Cd = Ld Ldᵀ) and chi2 is their sum of squares.\n' +
     'logEvidence is the natural log of N(d; G m0, G Cm Gᵀ + Cd), including −(M/2) log 2π.',
   options: [PROBLEM, PRIOR, OUT],
-  available: true,
   run(args, io) {
     noPositionals(args);
     const { problem, prior } = loadBoth(args, io);
@@ -134,7 +133,6 @@ const check: Command = {
     'conditionNumber is null when it is infinite (λmin ≤ 0); suggestedJitter (variance units, to add to the\n' +
     'nugget) is null when none is needed. Exit code 0 when positive definite, 3 when not.',
   options: [PROBLEM, PRIOR, OUT],
-  available: true,
   run(args, io) {
     noPositionals(args);
     const { problem, prior } = loadBoth(args, io);
@@ -184,7 +182,6 @@ const sample: Command = {
     { name: 'format', value: 'json|csv|npy', help: 'output format (default json)' },
     OUT,
   ],
-  available: true,
   run(args, io) {
     noPositionals(args);
     const count = parseNumberOption('count', optionString(args, 'count')!, { integer: true, ge: 1 });
@@ -239,7 +236,6 @@ const correlationCommand: Command = {
     { name: 'lags', value: 'H1,H2,…', help: 'scaled distances h ≥ 0, comma-separated', required: true },
     OUT,
   ],
-  available: true,
   run(args, io) {
     noPositionals(args);
     const kernelText = optionString(args, 'kernel')!;
@@ -262,23 +258,70 @@ const correlationCommand: Command = {
   },
 };
 
+/** "lo:hi:n" → a log-spaced axis (0 < lo ≤ hi, 1 ≤ n ≤ 10000). */
+function parseAxis(name: string, text: string): LogAxis {
+  const parts = text.split(':');
+  const bad = () => new UsageError(`--${name} must be lo:hi:n with 0 < lo ≤ hi and n an integer from 1 to 10000, got ${JSON.stringify(text)}`);
+  if (parts.length !== 3) throw bad();
+  let axis: LogAxis;
+  try {
+    axis = {
+      min: parseNumberOption(name, parts[0]!, { gt: 0 }),
+      max: parseNumberOption(name, parts[1]!, { gt: 0 }),
+      count: parseNumberOption(name, parts[2]!, { integer: true, ge: 1, le: 10000 }),
+    };
+  } catch {
+    throw bad();
+  }
+  if (axis.max < axis.min) throw bad();
+  return axis;
+}
+
 const tune: Command = {
   name: 'tune',
-  summary: 'log-evidence grid over one term’s length and variance (not available yet)',
-  usage: 'priorscope tune --problem P.json --prior Q.json --term 0 --lengths lo:hi:n --variances lo:hi:n',
-  details: 'Not available yet: this command arrives with the tuning issue. Until then it exits with code 2.',
+  summary: 'log-evidence grid over one term’s length and variance, and its maximum',
+  usage: 'priorscope tune --problem P.json --prior Q.json --term 0 --lengths lo:hi:n --variances lo:hi:n [--out FILE]',
+  details:
+    'Evaluates log N(d; G m0, G Cm Gᵀ + Cd) on n log-spaced lengths × n log-spaced variances of term K\n' +
+    '(for an anisotropic term the length axis is l1, with l2 scaled in proportion), everything else in the\n' +
+    'prior fixed. Prints {"term", "lengths": [...], "variances": [...], "logEvidence": [[one row per length]],\n' +
+    '"best": {"length", "variance", "logEvidence"} | null, "method": "eigen" | "cholesky"}; cells where the\n' +
+    'covariance did not factor are null.',
   options: [
     PROBLEM,
     PRIOR,
-    { name: 'term', value: 'K', help: 'index of the term to tune' },
-    { name: 'lengths', value: 'lo:hi:n', help: 'length grid' },
-    { name: 'variances', value: 'lo:hi:n', help: 'variance grid' },
+    { name: 'term', value: 'K', help: 'zero-based index of the term in the prior file', required: true },
+    { name: 'lengths', value: 'lo:hi:n', help: 'log-spaced length axis', required: true },
+    { name: 'variances', value: 'lo:hi:n', help: 'log-spaced variance axis', required: true },
     OUT,
   ],
-  available: false,
-  run(_args, io) {
-    io.stderr('priorscope tune: not available until the tuning issue lands; no output was written');
-    return 2;
+  run(args, io) {
+    noPositionals(args);
+    const lengths = parseAxis('lengths', optionString(args, 'lengths')!);
+    const variances = parseAxis('variances', optionString(args, 'variances')!);
+    const termText = optionString(args, 'term')!;
+    const { problem, prior } = loadBoth(args, io);
+    const term = parseNumberOption('term', termText, { integer: true, ge: 0 });
+    if (term >= prior.terms.length) {
+      throw new UsageError(`--term must be an integer from 0 to ${prior.terms.length - 1} (the prior has ${prior.terms.length} term${prior.terms.length === 1 ? '' : 's'}), got ${JSON.stringify(termText)}`);
+    }
+    progress(io, `evidence on ${lengths.count} × ${variances.count} cells …`);
+    const map = evidenceMap(problem, prior, { term, lengths, variances });
+    const nv = map.variances.length;
+    const rows = Array.from(map.lengths, (_, i) => map.logEvidence.subarray(i * nv, (i + 1) * nv));
+    emit(
+      io,
+      args,
+      toJson({
+        term,
+        lengths: map.lengths,
+        variances: map.variances,
+        logEvidence: rows,
+        best: map.best ? { length: map.best.length, variance: map.best.variance, logEvidence: map.best.logEvidence } : null,
+        method: map.method,
+      }),
+    );
+    return 0;
   },
 };
 
@@ -298,7 +341,6 @@ const demo: Command = {
     { name: 'truth-prior', value: 'T.json', help: 'also write the prior of the synthetic truth' },
     { name: 'operator-file', value: 'NAME', help: 'store the operator in this sibling file (.npy, .mtx or .csv)' },
   ],
-  available: true,
   run(args, io) {
     if (optionFlag(args, 'list')) {
       if (args.positionals.length > 0) throw new UsageError('--list takes no demo name');

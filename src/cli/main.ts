@@ -86,7 +86,6 @@ export async function main(argv: readonly string[], io: Io = processIo()): Promi
     io.stdout(commandHelp(command));
     return 0;
   }
-  if (!command.available) return command.run({ options: new Map(), positionals: [] }, io);
   try {
     const args = parseArgs(rest, command.options);
     return command.run(args, io);

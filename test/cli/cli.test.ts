@@ -4,7 +4,8 @@
  * and byte-identical seeded samples.
  */
 import { execFileSync } from 'node:child_process';
-import { readFileSync } from 'node:fs';
+import { readFileSync, truncateSync } from 'node:fs';
+import { MAX_FILE_BYTES } from '../../src/core/io/errors.ts';
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { parseCsv } from '../../src/core/io/csv.ts';
@@ -180,6 +181,13 @@ describe('bad input files: exit 2, one line naming file, field and expectation',
       expectBadInput(r, line.replace('DIR', d));
     }
   });
+  it('a file over the 512 MiB limit is refused before it is read', () => {
+    // A sparse file: truncateSync extends it without writing (or storing) the bytes.
+    const d = tempDir();
+    writeFiles(d, { 'q.json': PRIOR, 'big.json': '{}' });
+    truncateSync(join(d, 'big.json'), MAX_FILE_BYTES + 1);
+    expectBadInput(runCli(['posterior', '--problem', 'big.json', '--prior', 'q.json'], d), 'big.json: file is 512.0 MiB, larger than the limit of 512 MiB');
+  });
   it('a missing problem file, a directory, and a missing option', () => {
     expectBadInput(runCli(['posterior', '--problem', 'none.json', '--prior', 'q.json'], dir), 'none.json: cannot be read: no such file');
     expectBadInput(runCli(['posterior', '--problem', '.', '--prior', 'q.json'], dir), '.: cannot be read: it is a directory, not a file');
@@ -237,9 +245,22 @@ describe('sample', () => {
 });
 
 describe('tune and demo', () => {
-  it('tune is not faked: exit 2 with a clear message and no output', () => {
-    const r = runCli(['tune', '--problem', 'p.json', '--prior', 'q.json', '--term', '0', '--lengths', '1:5:3', '--variances', '1:2:2'], dir);
-    expectBadInput(r, 'priorscope tune: not available until the tuning issue lands; no output was written');
+  it('tune prints the evidence grid and its maximum', () => {
+    const r = runCli(['tune', '--problem', 'p.json', '--prior', 'q.json', '--term', '0', '--lengths', '0.5:8:4', '--variances', '0.1:10:3'], dir);
+    expect(r.code, r.err).toBe(0);
+    const j = JSON.parse(r.out) as { lengths: number[]; variances: number[]; logEvidence: number[][]; best: { logEvidence: number } };
+    expect(j.lengths).toHaveLength(4);
+    expect(j.variances).toHaveLength(3);
+    expect(j.logEvidence.map((row) => row.length)).toEqual([3, 3, 3, 3]);
+    expect(j.best.logEvidence).toBe(Math.max(...j.logEvidence.flat()));
+  });
+  it.each([
+    [['--term', '1', '--lengths', '1:2:2', '--variances', '1:2:2'], 'priorscope tune: --term must be an integer from 0 to 0 (the prior has 1 term), got "1" (see priorscope tune --help)'],
+    [['--term', '0', '--lengths', '2:1:2', '--variances', '1:2:2'], 'priorscope tune: --lengths must be lo:hi:n with 0 < lo ≤ hi and n an integer from 1 to 10000, got "2:1:2" (see priorscope tune --help)'],
+    [['--term', '0', '--lengths', '1:2', '--variances', '1:2:2'], 'priorscope tune: --lengths must be lo:hi:n with 0 < lo ≤ hi and n an integer from 1 to 10000, got "1:2" (see priorscope tune --help)'],
+    [['--term', '0', '--lengths', '1:2:2', '--variances', '0:2:2'], 'priorscope tune: --variances must be lo:hi:n with 0 < lo ≤ hi and n an integer from 1 to 10000, got "0:2:2" (see priorscope tune --help)'],
+  ])('tune bad options %j', (args, line) => {
+    expectBadInput(runCli(['tune', '--problem', 'p.json', '--prior', 'q.json', ...args], dir), line);
   });
   it('demo --list lists the built-in problems', () => {
     const r = runCli(['demo', '--list'], dir);

@@ -3,6 +3,9 @@ read and computes the posterior independently with numpy/scipy.
 
 stdin:  {"problem": "/path/p.json", "prior": "/path/q.json"}
 stdout: {"mean": [...], "std": [...], "predicted": [...], "residuals": [...], "chi2": x, "logEvidence": x}
+With "tune": {"term": k, "lengths": [...], "variances": [...]} added to stdin, stdout is instead
+{"logEvidence": [[...] one row per length]}: the same logpdf with term k's length (l1, and l2 scaled
+in proportion for an anisotropic term) and variance replaced.
 
 Deliberately a different route from the core's data-space form:
 - covariance built entry by entry from the file's definitions (issue 3; kernels/spec.ts): offset rotated
@@ -56,6 +59,23 @@ def rho(kernel, h, nu):
     raise ValueError(kernel)
 
 
+def prior_covariance(Q, x, y, n):
+    ox = x[None, :] - x[:, None]
+    oy = y[None, :] - y[:, None]
+    C = np.zeros((n, n))
+    for term in Q["terms"]:
+        if "lengths" in term:
+            th = np.deg2rad(term.get("angle", 0.0))
+            u = np.cos(th) * ox + np.sin(th) * oy  # offset rotated by -angle
+            v = -np.sin(th) * ox + np.cos(th) * oy
+            h = np.sqrt((u / term["lengths"][0]) ** 2 + (v / term["lengths"][1]) ** 2)
+        else:
+            h = np.sqrt(ox ** 2 + oy ** 2) / term["length"]
+        C += term["variance"] * rho(term["kernel"], h, term.get("nu", 0.5))
+    s = np.array(Q.get("stdProfile", np.ones(n)), dtype=float)
+    return s[:, None] * C * s[None, :] + Q.get("nugget", 0.0) * np.eye(n)
+
+
 def main():
     args = json.load(sys.stdin)
     with open(args["problem"]) as f:
@@ -91,21 +111,27 @@ def main():
         t = mean["trend"]
         m0 = t["intercept"] + t["slope"][0] * x + (t["slope"][1] * y if len(t["slope"]) > 1 else 0.0)
 
-    ox = x[None, :] - x[:, None]
-    oy = y[None, :] - y[:, None]
-    C = np.zeros((n, n))
-    for term in Q["terms"]:
-        if "lengths" in term:
-            th = np.deg2rad(term.get("angle", 0.0))
-            u = np.cos(th) * ox + np.sin(th) * oy  # offset rotated by -angle
-            v = -np.sin(th) * ox + np.cos(th) * oy
-            h = np.sqrt((u / term["lengths"][0]) ** 2 + (v / term["lengths"][1]) ** 2)
-        else:
-            h = np.sqrt(ox ** 2 + oy ** 2) / term["length"]
-        C += term["variance"] * rho(term["kernel"], h, term.get("nu", 0.5))
-    s = np.array(Q.get("stdProfile", np.ones(n)), dtype=float)
-    Cm = s[:, None] * C * s[None, :] + Q.get("nugget", 0.0) * np.eye(n)
+    if "tune" in args:
+        tune = args["tune"]
+        k = tune["term"]
+        grid_out = []
+        for length in tune["lengths"]:
+            row = []
+            for variance in tune["variances"]:
+                q = json.loads(json.dumps(Q))
+                t = q["terms"][k]
+                if "lengths" in t:
+                    t["lengths"] = [length, t["lengths"][1] * length / t["lengths"][0]]
+                else:
+                    t["length"] = length
+                t["variance"] = variance
+                Cm = prior_covariance(q, x, y, n)
+                row.append(float(stats.multivariate_normal.logpdf(d, mean=G @ m0, cov=G @ Cm @ G.T + Cd)))
+            grid_out.append(row)
+        json.dump({"logEvidence": grid_out}, sys.stdout)
+        return
 
+    Cm = prior_covariance(Q, x, y, n)
     cd = linalg.cho_factor(Cd, lower=True)
     cm = linalg.cho_factor(Cm, lower=True)
     A = G.T @ linalg.cho_solve(cd, G) + linalg.cho_solve(cm, np.eye(n))

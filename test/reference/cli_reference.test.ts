@@ -3,7 +3,7 @@
  * `priorscope posterior`, and compare with test/reference/cli_reference.py, which reads the same files
  * and computes the model-space posterior (Tarantola 2005 §3.2) with numpy/scipy and the evidence with
  * scipy.stats.multivariate_normal.logpdf. Agreement to 1e-8 relative (to the largest |value| of
- * each vector).
+ * each vector). `tune` is checked the same way against logpdf on every cell of its grid.
  */
 import { describe, expect, it } from 'vitest';
 import { join } from 'node:path';
@@ -114,5 +114,30 @@ describe('priorscope posterior against numpy/scipy (through the binary)', () => 
     });
     const { ref } = compare(d);
     expect(ref.conditionCm!).toBeLessThan(1e6);
+    tuneCompare(d, 0, '3:12:3', '0.3:3:4');
   });
 });
+
+/** `priorscope tune` against scipy.stats.multivariate_normal.logpdf cell by cell, 1e-8 relative. */
+function tuneCompare(dir: string, term: number, lengths: string, variances: string): void {
+  const r = runCli(['tune', '--problem', 'p.json', '--prior', 'q.json', '--term', String(term), '--lengths', lengths, '--variances', variances], dir);
+  expect(r.code, r.err).toBe(0);
+  const ours = JSON.parse(r.out) as { lengths: number[]; variances: number[]; logEvidence: number[][]; best: { length: number; variance: number; logEvidence: number } };
+  // Axes: lo·(hi/lo)^(k/(n−1)), the documented log spacing.
+  const axis = (text: string) => {
+    const [lo, hi, n] = text.split(':').map(Number) as [number, number, number];
+    return Array.from({ length: n }, (_, k) => lo * (hi / lo) ** (k / (n - 1)));
+  };
+  expectClose(ours.lengths, axis(lengths), 'lengths', 1e-14);
+  expectClose(ours.variances, axis(variances), 'variances', 1e-14);
+  const ref = runPython<{ logEvidence: number[][] }>('cli_reference.py', {
+    problem: join(dir, 'p.json'),
+    prior: join(dir, 'q.json'),
+    tune: { term, lengths: ours.lengths, variances: ours.variances },
+  });
+  ours.logEvidence.forEach((row, i) => expectClose(row, ref.logEvidence[i]!, `logEvidence row ${i}`));
+  const flat = ref.logEvidence.flat();
+  const k = flat.indexOf(Math.max(...flat));
+  expect(ours.best.length).toBe(ours.lengths[Math.floor(k / ours.variances.length)]);
+  expect(ours.best.variance).toBe(ours.variances[k % ours.variances.length]);
+}
