@@ -11,7 +11,7 @@
  * is assumed to mirror it) and never modify `a`.
  */
 import { matrix, type Matrix } from './matrix.ts';
-import { gemmNT } from './kernels.ts';
+import { gemmNT, transposeBlock } from './kernels.ts';
 
 const EPS = 2 ** -52;
 
@@ -246,9 +246,9 @@ function tridiagonaliseInPlace(w: Float64Array, n: number, betas: Float64Array):
 
 /**
  * Implicit QL iteration on a symmetric tridiagonal matrix (d diagonal, e[i] couples i and i+1),
- * overwriting d with the eigenvalues (unsorted). With `z` (n × n row-major, starting as Q), the
- * Givens rotations are applied to its columns so that on return column j of z is the eigenvector
- * of d[j]. Shift: eigenvalue of the leading 2×2 of the active block nearest d[l] (Wilkinson-type;
+ * overwriting d with the eigenvalues (unsorted). With `z` (n × n row-major, starting as Qᵀ), the
+ * Givens rotations are applied to its rows so that on return row j of z is the eigenvector of d[j]
+ * (rows rather than columns keep the rotation loops contiguous). Shift: eigenvalue of the leading 2×2 of the active block nearest d[l] (Wilkinson-type;
  * Golub & Van Loan §8.3.4, memory). Deflation when |e[m]| ≤ ε (|d[m]| + |d[m+1]|).
  */
 function tridiagonalQL(d: Float64Array, e: Float64Array, z: Float64Array | null): void {
@@ -294,12 +294,14 @@ function tridiagonalQL(d: Float64Array, e: Float64Array, z: Float64Array | null)
         d[i + 1] = g + p;
         g = c * r - b;
         if (z) {
+          // Rows i and i+1 of z = Zᵀ (contiguous), i.e. columns i and i+1 of Z.
+          const oa = i * n;
+          const ob = oa + n;
           for (let k = 0; k < n; k++) {
-            const ok = k * n;
-            const zf = z[ok + i + 1]!;
-            const zi = z[ok + i]!;
-            z[ok + i + 1] = s * zi + c * zf;
-            z[ok + i] = c * zi - s * zf;
+            const zf = z[ob + k]!;
+            const zi = z[oa + k]!;
+            z[ob + k] = s * zi + c * zf;
+            z[oa + k] = c * zi - s * zf;
           }
         }
       }
@@ -354,7 +356,7 @@ export interface SymmetricEigen {
 
 /**
  * Eigenvalues and orthonormal eigenvectors of the symmetric matrix whose lower triangle is `a`.
- * Meant for small N (the rotations cost O(N³) on top of the reduction, with strided access).
+ * Costs several times {@link symmetricEigenvalues}: forming Q and the QL rotations add O(N³).
  */
 export function symmetricEigen(a: Matrix): SymmetricEigen {
   const n = checkSquare(a, 'symmetricEigen');
@@ -383,14 +385,16 @@ export function symmetricEigen(a: Matrix): SymmetricEigen {
       for (let j = s0; j < n; j++) q[oi + j] -= bvi * t[j]!;
     }
   }
-  tridiagonalQL(d, e, q);
+  const zt = new Float64Array(n * n);
+  transposeBlock(n, n, q, 0, n, zt, 0, n);
+  tridiagonalQL(d, e, zt);
   const order = Array.from({ length: n }, (_, i) => i).sort((x, y) => d[x]! - d[y]!);
   const values = new Float64Array(n);
   const vectors = matrix(n, n);
   for (let j = 0; j < n; j++) {
     const src = order[j]!;
     values[j] = d[src]!;
-    for (let i = 0; i < n; i++) vectors.data[i * n + j] = q[i * n + src]!;
+    for (let i = 0; i < n; i++) vectors.data[i * n + j] = zt[src * n + i]!;
   }
   return { values, vectors };
 }
