@@ -13,6 +13,7 @@ import { InputError, NotPositiveDefiniteError } from '../errors.ts';
 import { cellCount } from '../grid/grid.ts';
 import { cholesky, logDetFromCholesky, solveLower } from '../linalg/cholesky.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
+import { multiplyNT, symmetricProductNT } from '../linalg/products.ts';
 import { applyOperator, assertNever, operatorShape, operatorToDense, type Operator } from '../linalg/operator.ts';
 import { covarianceMatrix, meanVector } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
@@ -122,8 +123,13 @@ export function operatorTimes(g: Operator, c: Matrix): Matrix {
  * P = G C Gᵀ (M × M) for a symmetric N × N matrix C: G C by {@link operatorTimes}, then each row
  * of P is G applied to a row of G C (C symmetric ⇒ (G C Gᵀ)_i· = G (G C)_i·ᵀ). Symmetrised by
  * averaging so that round-off does not leave P unsymmetric. Cost: nnz(G)·N + M·nnz(G) flops.
+ * A dense G goes through the register-blocked products of ../linalg/products.ts instead.
  */
 export function projectCovariance(g: Operator, c: Matrix): Matrix {
+  if (g.kind === 'dense') {
+    // Dense G: the blocked NT kernels; G C = G Cᵀ (C symmetric), then P = (G C) Gᵀ, lower half mirrored.
+    return symmetricProductNT(multiplyNT(g.matrix, c), g.matrix);
+  }
   const gc = operatorTimes(g, c);
   const m = gc.rows;
   const n = gc.cols;

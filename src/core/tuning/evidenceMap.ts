@@ -22,9 +22,13 @@
  * the same algebra covers them — that is an extension of the issue's wording, stated here so it can
  * be checked (test/core/tuning/evidenceMap.test.ts compares both paths on priors with a nugget and
  * a second term). The nugget profile uses the same identity with C₁ = I (K(η) = η G Gᵀ + B).
- * The per-cell Cholesky path (`method: 'cholesky'`) is used when asked for, or when the whitened
- * matrix has a clearly negative eigenvalue (an indefinite term, e.g. a kernel outside its valid
- * dimension), where the shortcut's log(1 + σ²λ) could fail.
+ * The per-cell Cholesky path (K = σ² P₁ + B factored for every cell, M³/3 flops each) is used when
+ * asked for, when the whitened matrix has a clearly negative eigenvalue (an indefinite term, e.g. a
+ * kernel outside its valid dimension) where log(1 + σ²λ) could fail, and by `method: 'auto'` when
+ * the variance axis is short: one symmetricEigen of an M × M matrix costs about as much as
+ * {@link EIGEN_BREAK_EVEN} Cholesky factorisations of it (measured on the project machine at
+ * M = 256, crosshole demo: ≈ 440 ms against ≈ 17 ms per cell), so below that many variances the
+ * factorisations are cheaper. Both paths agree to 1e-10 (test/core/tuning/evidenceMap.test.ts).
  */
 import { InputError } from '../errors.ts';
 import type { Term } from '../kernels/spec.ts';
@@ -58,6 +62,12 @@ export interface LogAxis {
 }
 
 export type EvidenceMethod = 'eigen' | 'cholesky';
+
+/**
+ * Variance-axis length from which `method: 'auto'` uses the eigen shortcut (see the module comment;
+ * measured, machine-dependent, so it is a constant to retune rather than a law).
+ */
+export const EIGEN_BREAK_EVEN = 24;
 
 /** Values min·(max/min)^(k/(count−1)), k = 0 … count−1. InputError naming `field` on bad ranges. */
 export function logSpaced(axis: LogAxis, field = 'axis'): Float64Array {
@@ -99,8 +109,12 @@ export interface EvidenceMapOptions extends TuningControl {
   readonly term: number;
   readonly lengths: LogAxis;
   readonly variances: LogAxis;
-  /** 'auto' (default): eigen shortcut where it applies; 'cholesky': one factorisation per cell. */
-  readonly method?: 'auto' | 'cholesky';
+  /**
+   * 'auto' (default): the eigen shortcut when the variance axis has at least EIGEN_BREAK_EVEN
+   * values, else a Cholesky per cell; 'eigen': the shortcut wherever it applies; 'cholesky': one
+   * factorisation per cell.
+   */
+  readonly method?: 'auto' | 'eigen' | 'cholesky';
 }
 
 export interface EvidenceMap {
@@ -200,8 +214,9 @@ export function evidenceMap(problem: Problem, prior: PriorSpec, options: Evidenc
   checkTermIndex(prior, options.term, 'term');
   const lengths = logSpaced(options.lengths, 'lengths');
   const variances = logSpaced(options.variances, 'variances');
-  const requested = options.method ?? 'auto';
-  if (requested !== 'auto' && requested !== 'cholesky') throw new InputError('method', '"auto" or "cholesky"', requested);
+  const asked = options.method ?? 'auto';
+  if (asked !== 'auto' && asked !== 'eigen' && asked !== 'cholesky') throw new InputError('method', '"auto", "eigen" or "cholesky"', asked);
+  const requested = asked === 'cholesky' || (asked === 'auto' && variances.length < EIGEN_BREAK_EVEN) ? 'cholesky' : 'auto';
   const side = prepareDataSide(problem);
   const term = prior.terms[options.term]!;
   const unit = (len: number): PriorSpec => ({ ...prior, terms: [{ ...setTermLength(term, len), variance: 1 }], nugget: 0 });
@@ -235,7 +250,8 @@ export function evidenceMap(problem: Problem, prior: PriorSpec, options: Evidenc
     }
     if (spec !== null) options.onProgress?.(((i + 1) * nv) / total);
   }
-  if (requested === 'cholesky') note = 'Cholesky per cell was requested';
+  if (asked === 'cholesky') note = 'Cholesky per cell was requested';
+  else if (requested === 'cholesky') note = `Cholesky per cell: fewer than ${EIGEN_BREAK_EVEN} variances, where it is cheaper than an eigendecomposition per length`;
   let best: EvidenceMap['best'] = null;
   for (let k = 0; k < out.length; k++) {
     const v = out[k]!;
@@ -252,7 +268,8 @@ export type ProfileParameter = { readonly parameter: 'nu'; readonly term: number
 export interface EvidenceProfileOptions extends TuningControl {
   /** Values of ν (> 0) or of the nugget (≥ 0) at which to evaluate. */
   readonly values: ArrayLike<number>;
-  readonly method?: 'auto' | 'cholesky';
+  /** Nugget profile only; as in EvidenceMapOptions (ν profiles always factor per value). */
+  readonly method?: 'auto' | 'eigen' | 'cholesky';
 }
 
 export interface EvidenceProfile {
@@ -306,7 +323,8 @@ export function evidenceProfile(problem: Problem, prior: PriorSpec, which: Profi
       });
       const fixed = fixedPart(side, prior, null, true);
       const ggt = operatorGram(problem.operator);
-      const wh = options.method === 'cholesky' ? null : whiten(fixed, residual);
+      const useCholesky = options.method === 'cholesky' || ((options.method ?? 'auto') === 'auto' && values.length < EIGEN_BREAK_EVEN);
+      const wh = useCholesky ? null : whiten(fixed, residual);
       const spec = wh === null ? null : whitenedSpectrum(wh, ggt);
       method = spec !== null ? 'eigen' : 'cholesky';
       for (let k = 0; k < values.length; k++) {

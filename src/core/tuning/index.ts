@@ -4,7 +4,7 @@
  * The whole public API of src/core/tuning; inputs are JSON-able specs, outputs typed arrays.
  */
 export type { TuningControl } from './dataSpace.ts';
-export { evidenceMap, evidenceProfile, logSpaced, setTermLength, termLength, withTerm } from './evidenceMap.ts';
+export { EIGEN_BREAK_EVEN, evidenceMap, evidenceProfile, logSpaced, setTermLength, termLength, withTerm } from './evidenceMap.ts';
 export type { EvidenceMap, EvidenceMapOptions, EvidenceMethod, EvidenceProfile, EvidenceProfileOptions, LogAxis, ProfileParameter } from './evidenceMap.ts';
 export { applyHyperParameters, evidenceGradient, hyperParameters, hyperParameterVector, logEvidence, maximiseEvidence } from './typeII.ts';
 export type { EvidenceAndGradient, FittedParameter, HyperParameter, MaximiseOptions, TypeIIResult } from './typeII.ts';

@@ -3,6 +3,8 @@
  * (term 0 of the demo's start prior, lengths ×0.2 … ×5, variances ×0.01 … ×100) ≤ 2 s on the 1-D
  * demo and ≤ 20 s on the 2-D demos, medians on the project machine. Also one type-II maximum
  * likelihood fit on the 1-D demo (reported, no target). No scipy counterpart: the shortcut has none.
+ * With 16 variances 'auto' factors per cell (src/core/tuning/evidenceMap.ts, EIGEN_BREAK_EVEN); the
+ * forced-eigen crosshole case shows the shortcut's cost at that size for comparison.
  *
  * Picked up by test/bench/run.ts; `npx tsx test/bench/cases/tuning.ts` runs the list by itself
  * (one run each) and prints JSON.
@@ -12,9 +14,9 @@ import { evidenceMap, termLength } from '../../../src/core/tuning/evidenceMap.ts
 import { maximiseEvidence } from '../../../src/core/tuning/typeII.ts';
 import type { BenchCase } from '../types.ts';
 
-function mapCase(id: string): BenchCase {
+function mapCase(id: string, method: 'auto' | 'eigen' = 'auto'): BenchCase {
   return {
-    name: `tuning evidence map 16×16, ${id}`,
+    name: `tuning evidence map 16×16, ${id}${method === 'eigen' ? ' (eigen shortcut forced)' : ''}`,
     runs: 5,
     warmup: 0,
     setup: () => {
@@ -24,6 +26,7 @@ function mapCase(id: string): BenchCase {
       return () =>
         evidenceMap(problem, startPrior, {
           term: 0,
+          method,
           lengths: { min: 0.2 * l, max: 5 * l, count: 16 },
           variances: { min: 0.01 * t.variance, max: 100 * t.variance, count: 16 },
         });
@@ -35,6 +38,7 @@ export const cases: BenchCase[] = [
   mapCase('borehole-log'),
   mapCase('crosshole-tomography'),
   mapCase('potential-field'),
+  mapCase('crosshole-tomography', 'eigen'),
   {
     name: 'tuning type-II ML fit, borehole-log (start prior, all hyperparameters)',
     runs: 5,

@@ -10,7 +10,7 @@ import type { Grid } from '../../../src/core/grid/grid.ts';
 import type { PriorSpec } from '../../../src/core/prior/spec.ts';
 import type { Problem } from '../../../src/core/problems/spec.ts';
 import { Random } from '../../../src/core/sampling/random.ts';
-import { evidenceMap, evidenceProfile, logSpaced, setTermLength, withTerm } from '../../../src/core/tuning/evidenceMap.ts';
+import { EIGEN_BREAK_EVEN, evidenceMap, evidenceProfile, logSpaced, setTermLength, withTerm } from '../../../src/core/tuning/evidenceMap.ts';
 import { logEvidence } from '../../../src/core/tuning/typeII.ts';
 import { drawTruth, pointOperator, simulateData, smallProblem, withCorrelatedErrors } from './helpers.ts';
 
@@ -43,7 +43,7 @@ const cases: [string, Problem, PriorSpec, number][] = [
 ];
 
 describe.each(cases)('evidence map: %s', (_name, problem, prior, term) => {
-  const opts = { term, lengths: { min: 0.5, max: 20, count: 5 }, variances: { min: 0.01, max: 50, count: 6 } };
+  const opts = { term, lengths: { min: 0.5, max: 20, count: 5 }, variances: { min: 0.01, max: 50, count: 6 }, method: 'eigen' as const };
   const map = evidenceMap(problem, prior, opts);
   it('uses the eigen shortcut', () => {
     expect(map.method).toBe('eigen');
@@ -71,7 +71,7 @@ describe('profiles', () => {
   const problem = smallProblem(8, withNuggetAndSecond);
   it('nugget profile: eigen shortcut (C₁ = I) equals direct evaluation to 1e-10', () => {
     const values = [0, 1e-4, 1e-2, 0.3, 5];
-    const prof = evidenceProfile(problem, withNuggetAndSecond, { parameter: 'nugget' }, { values });
+    const prof = evidenceProfile(problem, withNuggetAndSecond, { parameter: 'nugget' }, { values, method: 'eigen' });
     expect(prof.method).toBe('eigen');
     values.forEach((v, k) => {
       const direct = logEvidence(problem, { ...withNuggetAndSecond, nugget: v });
@@ -107,7 +107,7 @@ describe('input errors and control', () => {
   });
   it('progress rises to 1; a signal stops the map and leaves NaN cells', () => {
     const seen: number[] = [];
-    evidenceMap(problem, single, { term: 0, lengths: { min: 1, max: 8, count: 4 }, variances: { min: 1, max: 2, count: 3 }, onProgress: (f) => seen.push(f) });
+    evidenceMap(problem, single, { term: 0, lengths: { min: 1, max: 8, count: 4 }, variances: { min: 1, max: 2, count: 3 }, method: 'eigen', onProgress: (f) => seen.push(f) });
     expect(seen.length).toBe(4);
     seen.forEach((f, k) => expect(f).toBeGreaterThan(k === 0 ? 0 : seen[k - 1]!));
     expect(seen[seen.length - 1]).toBe(1);
@@ -124,6 +124,15 @@ describe('input errors and control', () => {
     expect(m.cancelled).toBe(true);
     expect(Number.isFinite(m.logEvidence[0]!)).toBe(true);
     expect(Number.isNaN(m.logEvidence[11]!)).toBe(true);
+  });
+  it("'auto' factors per cell on a short variance axis and uses the shortcut on a long one", () => {
+    const lengths = { min: 1, max: 8, count: 2 };
+    const short = evidenceMap(problem, single, { term: 0, lengths, variances: { min: 0.1, max: 10, count: EIGEN_BREAK_EVEN - 1 } });
+    const long = evidenceMap(problem, single, { term: 0, lengths, variances: { min: 0.1, max: 10, count: EIGEN_BREAK_EVEN } });
+    expect(short.method).toBe('cholesky');
+    expect(short.note).toMatch(/fewer than 24 variances/);
+    expect(long.method).toBe('eigen');
+    expect(() => evidenceMap(problem, single, { term: 0, lengths, variances: lengths, method: 'fast' as 'eigen' })).toThrow(/^method must be "auto", "eigen" or "cholesky", got "fast"/);
   });
   it('logSpaced hits both ends and is geometric', () => {
     const v = logSpaced({ min: 0.1, max: 1000, count: 5 });
