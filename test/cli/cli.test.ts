@@ -136,6 +136,12 @@ describe('posterior and check', () => {
     const j = JSON.parse(r.out) as { positiveDefinite: boolean; suggestedJitter: number | null };
     expect(j.positiveDefinite).toBe(false);
     expect(r.err).toContain('not positive definite');
+    // Prior sampling needs the Cholesky factor of Cm itself: exit 3 and one line, no output.
+    const s = runCli(['sample', '--problem', 'p.json', '--prior', 'q.json', '--count', '1', '--seed', '0'], d);
+    expect(s.code).toBe(3);
+    expect(s.out).toBe('');
+    expect(s.err.trim().split('\n')).toHaveLength(1);
+    expect(s.err).toMatch(/^priorscope sample: .*not positive definite/);
   });
   it('unknown fields give warnings on stderr, not errors', () => {
     const d = tempDir();
