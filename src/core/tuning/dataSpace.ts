@@ -19,8 +19,9 @@ import { covarianceMatrix, meanVector } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
 
-/** ln 2π. */
-export const LOG_2PI = Math.log(2 * Math.PI);
+import { LOG_2PI } from '../inverse/evidence.ts';
+
+export { LOG_2PI };
 
 /** Optional progress report and cancellation flag, shared by every long-running tuning call. */
 export interface TuningControl {

@@ -30,7 +30,7 @@
  * (Laplace approximation of the likelihood surface; common practice, no source). If J is not
  * positive definite the optimum is not a strict maximum (a flat direction) and the errors are NaN.
  */
-import { InputError } from '../errors.ts';
+import { InputError, NotPositiveDefiniteError } from '../errors.ts';
 import type { Term } from '../kernels/spec.ts';
 import { cholesky, choleskySolve, solveLowerMatrix } from '../linalg/cholesky.ts';
 import { identity, type Matrix } from '../linalg/matrix.ts';
@@ -283,7 +283,14 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
   let evaluations = 0;
   const evaluate = (th: Float64Array): EvidenceAndGradient => {
     evaluations++;
-    return evidenceGradient(problem, applyHyperParameters(start, params, th), params, side);
+    try {
+      return evidenceGradient(problem, applyHyperParameters(start, params, th), params, side);
+    } catch (e) {
+      // A trial point outside the valid range (e.g. a length overflowing to ∞) is rejected like an
+      // indefinite K: the line search backs off from it.
+      if (e instanceof InputError || e instanceof NotPositiveDefiniteError) return { logEvidence: Number.NEGATIVE_INFINITY, gradient: new Float64Array(p).fill(Number.NaN) };
+      throw e;
+    }
   };
   let theta = hyperParameterVector(start, params);
   let cur = evaluate(theta);

@@ -91,6 +91,13 @@ describe('calibration cross-table', () => {
     // The other way round the bands are too wide: over-coverage.
     expect(table.coverage95[1 * 2 + 0]).toBeGreaterThan(0.97);
   });
+  it('stops at a signal between replicates and reports what it completed', () => {
+    const signal = { aborted: false };
+    const r = calibrate(problem, prior, prior, { replicates: 50, draws: 2, seed: 3, signal, onProgress: (f) => (signal.aborted = f >= 0.1) });
+    expect(r.cancelled).toBe(true);
+    expect(r.replicates).toBe(5);
+    expect(r.replicateCoverage68.length).toBe(5);
+  });
   it('rejects bad options with the field named', () => {
     expect(() => calibrate(problem, prior, prior, { replicates: 0, seed: 1 })).toThrow(/^replicates must be an integer from 1/);
     expect(() => calibrate(problem, prior, prior, { replicates: 2, seed: -1 })).toThrow(/^seed must be an integer/);
