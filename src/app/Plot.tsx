@@ -27,6 +27,42 @@ const CONFIG = {
   modeBarButtonsToRemove: ['select2d', 'lasso2d'],
 };
 
+/**
+ * Redraws are queued and run one figure per macrotask (newest arguments per figure win), so that a
+ * new result that changes several figures does not become one long main-thread task. Figures with
+ * `priority` (the posterior plot) go first.
+ */
+interface DrawJob {
+  run: () => Promise<void>;
+  priority: boolean;
+}
+const drawQueue = new Map<HTMLElement, DrawJob>();
+let drawScheduled = false;
+const channel = typeof MessageChannel !== 'undefined' ? new MessageChannel() : null;
+
+function scheduleDraws(): void {
+  if (drawScheduled) return;
+  drawScheduled = true;
+  if (channel) channel.port2.postMessage(0);
+  else setTimeout(runOneDraw, 0);
+}
+
+function runOneDraw(): void {
+  drawScheduled = false;
+  let pick: HTMLElement | null = null;
+  for (const [el, job] of drawQueue) {
+    if (!pick || job.priority) pick = el;
+    if (job.priority) break;
+  }
+  if (!pick) return;
+  const job = drawQueue.get(pick)!;
+  drawQueue.delete(pick);
+  void job.run().finally(() => {
+    if (drawQueue.size > 0) scheduleDraws();
+  });
+}
+if (channel) channel.port1.onmessage = runOneDraw;
+
 export function Plot({ id, label, data, layout, height = 300, onDrawn, onPointClick }: PlotProps) {
   const ref = useRef<HTMLDivElement>(null);
   const clickRef = useRef(onPointClick);
@@ -39,7 +75,8 @@ export function Plot({ id, label, data, layout, height = 300, onDrawn, onPointCl
     const el = ref.current;
     if (!el) return;
     let live = true;
-    Plotly.react(
+    const run = () =>
+      Plotly.react(
       el,
       data,
       {
@@ -63,6 +100,8 @@ export function Plot({ id, label, data, layout, height = 300, onDrawn, onPointCl
       }
       drawnRef.current?.();
     });
+    drawQueue.set(el, { run, priority: onDrawn !== undefined });
+    scheduleDraws();
     return () => {
       live = false;
     };
@@ -71,7 +110,10 @@ export function Plot({ id, label, data, layout, height = 300, onDrawn, onPointCl
   useEffect(() => {
     const el = ref.current;
     return () => {
-      if (el) Plotly.purge(el);
+      if (el) {
+        drawQueue.delete(el);
+        Plotly.purge(el);
+      }
     };
   }, []);
 

@@ -9,7 +9,7 @@ function fmt(x: number): string {
   return a >= 1e4 || a < 1e-3 ? x.toExponential(2) : x.toPrecision(3);
 }
 
-export type PdLevel = 'ok' | 'near-singular' | 'not-pd' | 'pending';
+export type PdLevel = 'ok' | 'near-singular' | 'not-pd' | 'pending' | 'error';
 
 /** Level shown for a diagnosis: the core decides what is near-singular (it then suggests a jitter). */
 export function pdLevel(d: Pick<Diagnostics, 'positiveDefinite' | 'suggestedJitter' | 'warnings'> | null): PdLevel {
@@ -24,6 +24,7 @@ const TEXT: Record<PdLevel, string> = {
   'near-singular': 'Cm is near-singular',
   'not-pd': 'Cm does not factor (not positive definite)',
   pending: 'Checking Cm …',
+  error: 'Check failed',
 };
 
 export function StatusPanel() {
@@ -32,10 +33,10 @@ export function StatusPanel() {
   const busy = useWb((s) => s.busy.diagnostics ?? false);
   const apply = useWb((s) => s.applySuggestedJitter);
   const unit = useWb((s) => s.problem?.quantity.unit ?? '');
-  const level = error ? 'pending' : pdLevel(d);
+  const level: PdLevel = error ? 'error' : pdLevel(d);
   return (
     <section className={`pd-status pd-${level}`} data-testid="pd-status" data-level={level} aria-live="polite" aria-label="Positive-definiteness status">
-      <strong data-testid="pd-text">{error ? 'Check failed' : TEXT[level]}</strong>
+      <strong data-testid="pd-text">{TEXT[level]}</strong>
       {busy && <span className="busy-dot" title="recomputing" aria-label="recomputing" />}
       {d && !error && (
         <span className="pd-numbers">

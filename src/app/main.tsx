@@ -2,16 +2,19 @@
 import { StrictMode } from 'react';
 import { createRoot } from 'react-dom/client';
 import { WorkerClient, type WorkerLike } from '../worker/client.ts';
+import { SplitClient } from '../worker/split.ts';
 import { App } from './App.tsx';
 import { StoreContext } from './context.ts';
 import { DEFAULT_DEMO } from './demos.ts';
 import { createWorkbenchStore } from './store.ts';
 import './styles.css';
 
-const client = new WorkerClient(
-  () => new Worker(new URL('../worker/worker.ts', import.meta.url), { type: 'module' }) as unknown as WorkerLike,
-  { onProgress: (channel, stage, fraction) => store.getState().setProgress({ channel, stage, fraction }) },
-);
+const makeClient = () =>
+  new WorkerClient(
+    () => new Worker(new URL('../worker/worker.ts', import.meta.url), { type: 'module' }) as unknown as WorkerLike,
+    { onProgress: (channel, stage, fraction) => store.getState().setProgress({ channel, stage, fraction }) },
+  );
+const client = new SplitClient(makeClient(), makeClient());
 const params = new URLSearchParams(location.search);
 const store = createWorkbenchStore(client, { demoId: params.get('demo') ?? DEFAULT_DEMO });
 

@@ -9,7 +9,7 @@ import {
   axes2D,
   axis1D,
   band,
-  bandTraces,
+  bandTrace,
   cellAt,
   cellCount,
   COLOURS,
@@ -423,9 +423,9 @@ export function PosteriorScreen() {
     const b68 = band(s.mean, s.std, Z68);
     const traces: Trace[] = [];
     const pb = band(post.priorMean, s.priorStd, Z95);
-    traces.push(...bandTraces(x, pb.lower, pb.upper, 'prior 95%', COLOURS.prior));
-    traces.push(...bandTraces(x, b95.lower, b95.upper, 'posterior 95%', COLOURS.band95));
-    traces.push(...bandTraces(x, b68.lower, b68.upper, 'posterior 68%', COLOURS.band68));
+    traces.push(bandTrace(x, pb.lower, pb.upper, 'prior 95%', COLOURS.prior));
+    traces.push(bandTrace(x, b95.lower, b95.upper, 'posterior 95%', COLOURS.band95));
+    traces.push(bandTrace(x, b68.lower, b68.upper, 'posterior 68%', COLOURS.band68));
     if (p.truth) traces.push({ type: 'scatter', mode: 'lines', x, y: p.truth, name: 'truth', line: { color: COLOURS.truth, width: 1.2, dash: 'dot' } });
     traces.push({ type: 'scatter', mode: 'lines', x, y: s.mean, name: 'posterior mean', line: { color: COLOURS.mean, width: 2.2 } });
     return traces;

@@ -69,12 +69,21 @@ export function band(mean: ArrayLike<number>, std: ArrayLike<number>, z: number)
   return { lower, upper };
 }
 
-/** Two traces (lower invisible, upper filled down to it) drawing a band. */
-export function bandTraces(x: ArrayLike<number>, lower: ArrayLike<number>, upper: ArrayLike<number>, name: string, fill: string): Trace[] {
-  return [
-    { x, y: lower, type: 'scatter', mode: 'lines', line: { width: 0 }, name: `${name} (lower)`, showlegend: false, hoverinfo: 'skip' },
-    { x, y: upper, type: 'scatter', mode: 'lines', line: { width: 0 }, fill: 'tonexty', fillcolor: fill, name, hoverinfo: 'skip' },
-  ];
+/**
+ * One closed, filled trace drawing a band: the upper edge left to right, then the lower edge back
+ * (so y[0 … n−1] is the upper edge and y[n … 2n−1] the lower edge reversed).
+ */
+export function bandTrace(x: ArrayLike<number>, lower: ArrayLike<number>, upper: ArrayLike<number>, name: string, fill: string): Trace {
+  const n = x.length;
+  const xs = new Float64Array(2 * n);
+  const ys = new Float64Array(2 * n);
+  for (let i = 0; i < n; i++) {
+    xs[i] = x[i]!;
+    ys[i] = upper[i]!;
+    xs[2 * n - 1 - i] = x[i]!;
+    ys[2 * n - 1 - i] = lower[i]!;
+  }
+  return { x: xs, y: ys, type: 'scatter', mode: 'lines', line: { width: 0 }, fill: 'toself', fillcolor: fill, name, hoverinfo: 'skip' };
 }
 
 /** Colours of our own (a slate / teal / amber palette). */

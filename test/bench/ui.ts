@@ -1,0 +1,150 @@
+/**
+ * UI benchmark (`npm run bench:ui`): in Chromium, for each demo, the time from a prior parameter
+ * change (performance mark `ps:param-change`) to the redrawn posterior plot (`ps:posterior-drawn`),
+ * median over 20 changes, and the main-thread long tasks (PerformanceObserver 'longtask') during a
+ * slider drag of 30 input events at 60 Hz. Measures a production build (vite build into a
+ * temporary directory, served by vite preview) unless PRIORSCOPE_BENCH_URL points at a running
+ * server. Prints JSON and writes bench-results/ui.json.
+ */
+import { chromium, type Page } from '@playwright/test';
+import { execFileSync, spawn, type ChildProcess } from 'node:child_process';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { mkdirSync, writeFileSync } from 'node:fs';
+
+const DEMO_IDS = ['borehole-log', 'crosshole-tomography', 'potential-field'];
+const CHANGES = Number(process.env.PRIORSCOPE_BENCH_CHANGES ?? 20);
+const PORT = Number(process.env.PRIORSCOPE_BENCH_PORT ?? 4319);
+
+function median(xs: number[]): number {
+  const s = [...xs].sort((a, b) => a - b);
+  const n = s.length;
+  return n === 0 ? NaN : n % 2 ? s[(n - 1) / 2]! : 0.5 * (s[n / 2 - 1]! + s[n / 2]!);
+}
+
+async function waitForServer(url: string, ms = 60_000): Promise<void> {
+  const t0 = Date.now();
+  while (Date.now() - t0 < ms) {
+    try {
+      const r = await fetch(url);
+      if (r.ok) return;
+    } catch {
+      // not up yet
+    }
+    await new Promise((r) => setTimeout(r, 300));
+  }
+  throw new Error(`bench: no server at ${url} after ${ms} ms`);
+}
+
+/** Set the first term's length slider to `pos`; resolve with param-change → posterior-drawn in ms. */
+async function timedChange(page: Page, pos: number): Promise<number> {
+  return page.evaluate(
+    (p) =>
+      new Promise<number>((resolve, reject) => {
+        const start = performance.now();
+        const timer = setTimeout(() => reject(new Error('no ps:posterior-drawn within 60 s')), 60_000);
+        const obs = new PerformanceObserver((list) => {
+          for (const e of list.getEntries()) {
+            if (e.name !== 'ps:posterior-drawn' || e.startTime < start) continue;
+            const change = performance.getEntriesByName('ps:param-change').filter((m) => m.startTime >= start)[0];
+            if (!change) continue;
+            obs.disconnect();
+            clearTimeout(timer);
+            resolve(e.startTime - change.startTime);
+            return;
+          }
+        });
+        obs.observe({ type: 'mark' });
+        const el = document.querySelector('[data-testid=term-0-length-slider]') as HTMLInputElement;
+        Object.getOwnPropertyDescriptor(HTMLInputElement.prototype, 'value')!.set!.call(el, String(p));
+        el.dispatchEvent(new Event('input', { bubbles: true }));
+      }),
+    pos,
+  );
+}
+
+/** 30 input events at 60 Hz (absolute schedule) on the length slider; long tasks until quiet. */
+async function drag(page: Page): Promise<{ longTasks: number[]; dragMs: number }> {
+  return page.evaluate(async () => {
+    const longTasks: number[] = [];
+    const obs = new PerformanceObserver((l) => l.getEntries().forEach((e) => longTasks.push(e.duration)));
+    obs.observe({ type: 'longtask' });
+    const el = document.querySelector('[data-testid=term-0-length-slider]') as HTMLInputElement;
+    const setValue = Object.getOwnPropertyDescriptor(HTMLInputElement.prototype, 'value')!.set!;
+    const t0 = performance.now();
+    for (let k = 0; k < 30; k++) {
+      const wait = t0 + (1000 / 60) * k - performance.now();
+      if (wait > 0) await new Promise((r) => setTimeout(r, wait));
+      setValue.call(el, String(120 + 3 * k));
+      el.dispatchEvent(new Event('input', { bubbles: true }));
+    }
+    const dragMs = performance.now() - t0;
+    await new Promise((r) => setTimeout(r, 3000));
+    obs.disconnect();
+    return { longTasks, dragMs };
+  });
+}
+
+async function main(): Promise<void> {
+  let server: ChildProcess | null = null;
+  let base = process.env.PRIORSCOPE_BENCH_URL;
+  if (!base) {
+    base = `http://127.0.0.1:${PORT}`;
+    const outDir = join(tmpdir(), 'priorscope-bench-ui');
+    execFileSync('npx', ['vite', 'build', '--outDir', outDir, '--emptyOutDir', '--logLevel', 'warn'], { stdio: 'inherit' });
+    server = spawn('npx', ['vite', 'preview', '--outDir', outDir, '--host', '127.0.0.1', '--port', String(PORT), '--strictPort'], {
+      stdio: 'ignore',
+      detached: true,
+    });
+    await waitForServer(base);
+  }
+  const browser = await chromium.launch({
+    executablePath: process.env.CHROMIUM_PATH || '/usr/bin/chromium',
+    args: ['--no-sandbox', '--disable-gpu', '--disable-background-networking', '--no-first-run'],
+  });
+  const results: Record<string, unknown>[] = [];
+  try {
+    for (const id of DEMO_IDS) {
+      const page = await browser.newPage({ viewport: { width: 1280, height: 720 } });
+      await page.goto(`${base}/?demo=${id}`);
+      await page.getByTestId('activity').filter({ hasText: 'Up to date' }).waitFor({ timeout: 120_000 });
+      await page.waitForSelector('[data-testid=term-0-length-slider]');
+      const t: number[] = [];
+      for (let k = 0; k < CHANGES; k++) t.push(await timedChange(page, k % 2 ? 180 : 220 - k));
+      const d = await drag(page);
+      const r = {
+        demo: id,
+        changes: t.length,
+        medianMs: Number(median(t).toFixed(1)),
+        minMs: Number(Math.min(...t).toFixed(1)),
+        maxMs: Number(Math.max(...t).toFixed(1)),
+        targetMs: id === 'borehole-log' ? 100 : 500,
+        dragEvents: 30,
+        dragMs: Number(d.dragMs.toFixed(1)),
+        longTaskCount: d.longTasks.length,
+        longestTaskMs: d.longTasks.length ? Number(Math.max(...d.longTasks).toFixed(1)) : 0,
+        longTaskTargetMs: 50,
+      };
+      results.push(r);
+      console.error(`bench:ui ${id}: median ${r.medianMs} ms, longest task ${r.longestTaskMs} ms`);
+      await page.close();
+    }
+  } finally {
+    await browser.close();
+    if (server?.pid) process.kill(-server.pid);
+  }
+  const out = {
+    benchmark: 'ui',
+    server: process.env.PRIORSCOPE_BENCH_URL ? `external ${process.env.PRIORSCOPE_BENCH_URL}` : 'production build, vite preview',
+    date: new Date().toISOString(),
+    results,
+  };
+  mkdirSync('bench-results', { recursive: true });
+  writeFileSync('bench-results/ui.json', JSON.stringify(out, null, 2) + '\n');
+  console.log(JSON.stringify(out, null, 2));
+}
+
+main().catch((e: unknown) => {
+  console.error(e);
+  process.exit(1);
+});
