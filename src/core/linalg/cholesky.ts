@@ -22,6 +22,9 @@ export interface CholeskyOptions {
 /** Block size of the blocked factorisation (columns per panel); chosen by measurement (test/bench). */
 export const CHOLESKY_BLOCK = 64;
 
+/** Columns per chunk of the panel solve (the rest of the panel work goes through the NT kernel). */
+const PANEL_CHUNK = 16;
+
 /**
  * Lower Cholesky factor of `a`, or the zero-based pivot where a non-positive (or NaN) pivot
  * `value` appeared (the Schur complement's diagonal entry, jitter included).
@@ -63,37 +66,44 @@ export function cholesky(a: Matrix, options: CholeskyOptions = {}): CholeskyResu
         }
       }
     }
-    // (3) Panel rows i ≥ j0 + jb: solve x L_JJᵀ = a_i, four rows sharing each row of L_JJ.
-    let i = j0 + jb;
-    for (; i + 4 <= n; i += 4) {
-      const o0 = i * n + j0;
-      const o1 = o0 + n;
-      const o2 = o1 + n;
-      const o3 = o2 + n;
-      for (let j = 0; j < jb; j++) {
-        const oj = diagOff + j * n;
-        let s0 = d[o0 + j]!, s1 = d[o1 + j]!, s2 = d[o2 + j]!, s3 = d[o3 + j]!;
-        for (let p = 0; p < j; p++) {
-          const l = d[oj + p]!;
-          s0 -= d[o0 + p]! * l;
-          s1 -= d[o1 + p]! * l;
-          s2 -= d[o2 + p]! * l;
-          s3 -= d[o3 + p]! * l;
+    // (3) Panel rows i ≥ j0 + jb: solve X L_JJᵀ = A_IJ in column chunks of PANEL_CHUNK: the chunk's
+    // columns first lose the earlier chunks' contribution (NT kernel), then a small triangle
+    // solve, four rows sharing each row of L_JJ.
+    const r0 = j0 + jb;
+    for (let c0 = 0; c0 < jb; c0 += PANEL_CHUNK) {
+      const c1 = Math.min(jb, c0 + PANEL_CHUNK);
+      if (c0 > 0 && r0 < n) gemmNT(n - r0, c1 - c0, c0, -1, d, r0 * n + j0, n, d, (j0 + c0) * n + j0, n, d, r0 * n + j0 + c0, n);
+      let i = r0;
+      for (; i + 4 <= n; i += 4) {
+        const o0 = i * n + j0;
+        const o1 = o0 + n;
+        const o2 = o1 + n;
+        const o3 = o2 + n;
+        for (let j = c0; j < c1; j++) {
+          const oj = diagOff + j * n;
+          let s0 = d[o0 + j]!, s1 = d[o1 + j]!, s2 = d[o2 + j]!, s3 = d[o3 + j]!;
+          for (let p = c0; p < j; p++) {
+            const l = d[oj + p]!;
+            s0 -= d[o0 + p]! * l;
+            s1 -= d[o1 + p]! * l;
+            s2 -= d[o2 + p]! * l;
+            s3 -= d[o3 + p]! * l;
+          }
+          const inv = 1 / d[oj + j]!;
+          d[o0 + j] = s0 * inv;
+          d[o1 + j] = s1 * inv;
+          d[o2 + j] = s2 * inv;
+          d[o3 + j] = s3 * inv;
         }
-        const inv = 1 / d[oj + j]!;
-        d[o0 + j] = s0 * inv;
-        d[o1 + j] = s1 * inv;
-        d[o2 + j] = s2 * inv;
-        d[o3 + j] = s3 * inv;
       }
-    }
-    for (; i < n; i++) {
-      const o = i * n + j0;
-      for (let j = 0; j < jb; j++) {
-        const oj = diagOff + j * n;
-        let s = d[o + j]!;
-        for (let p = 0; p < j; p++) s -= d[o + p]! * d[oj + p]!;
-        d[o + j] = s / d[oj + j]!;
+      for (; i < n; i++) {
+        const o = i * n + j0;
+        for (let j = c0; j < c1; j++) {
+          const oj = diagOff + j * n;
+          let s = d[o + j]!;
+          for (let p = c0; p < j; p++) s -= d[o + p]! * d[oj + p]!;
+          d[o + j] = s / d[oj + j]!;
+        }
       }
     }
   }
