@@ -72,18 +72,23 @@ export function isStationaryOnGrid(grid: Grid, prior: PriorSpec): boolean {
 }
 
 /**
- * The kernel part C of the prior on one grid as a circulant product: spectra of padded (pairs of)
- * vectors and their products with C̃. Workspace is per instance; not for concurrent use.
+ * The kernel part C of the prior on one grid as a circulant product. A product runs as
+ *   forward x-passes on the ny rows that hold data → per column: F_y, × λ, F_y⁻¹ (fused, one
+ *   gather; ../fft/fft2.ts columnFilter) → inverse x-passes on the ny rows that are wanted,
+ * so buffers hold ny (not py) rows. The "row spectrum" R = F_x pad(a + i b) (ny rows of px complex
+ * values) depends only on the vectors, not on the prior: it is what callers cache.
+ * Workspace is per instance; not for concurrent use.
  */
 export class CirculantProduct {
   readonly nx: number;
   readonly ny: number;
   readonly px: number;
   readonly py: number;
-  /** λ, real eigenvalues of the embedding (px·py). */
+  /** λ, real eigenvalues of the embedding (px·py, x fastest). */
   readonly eigenvalues: Float64Array;
   /** c(0, 0), the kernel variance Σ_t variance_t. */
   readonly variance: number;
+  private readonly lambdaT: Float64Array;
   private readonly fft: Fft2;
   private readonly work: Float64Array;
 
@@ -96,20 +101,23 @@ export class CirculantProduct {
     if (this.px < 2 * nx - 1 || this.py < 2 * ny - 1) {
       throw new RangeError(`CirculantProduct: padding ${this.px} × ${this.py} is below 2n − 1 for ${nx} × ${ny}`);
     }
-    this.eigenvalues = circulantEmbedding(grid, prior.terms, this.px, this.py).eigenvalues;
+    const { px, py } = this;
+    this.eigenvalues = circulantEmbedding(grid, prior.terms, px, py).eigenvalues;
+    this.lambdaT = new Float64Array(px * py);
+    for (let ky = 0; ky < py; ky++) for (let kx = 0; kx < px; kx++) this.lambdaT[kx * py + ky] = this.eigenvalues[kx + px * ky]!;
     this.variance = stationaryCovariance(prior.terms)(0, 0);
-    this.fft = new Fft2(this.px, this.py);
-    this.work = new Float64Array(2 * this.px * this.py);
+    this.fft = new Fft2(px, py);
+    this.work = new Float64Array(2 * px * ny);
   }
 
-  /** Length of one spectrum buffer (interleaved complex, px·py values). */
+  /** Length of one row spectrum (interleaved complex, px·ny values). */
   get spectrumLength(): number {
-    return 2 * this.px * this.py;
+    return 2 * this.px * this.ny;
   }
 
   /**
-   * F pad(a + i b) into `out` (length spectrumLength). `b` may be null (zero imaginary part).
-   * a and b are grid vectors of length nx·ny.
+   * Row spectrum F_x pad(a + i b) into `out` (length spectrumLength). `b` may be null (zero
+   * imaginary part). a and b are grid vectors of length nx·ny.
    */
   spectrum(a: ArrayLike<number>, b: ArrayLike<number> | null, out: Float64Array): Float64Array {
     const { nx, ny, px } = this;
@@ -120,24 +128,20 @@ export class CirculantProduct {
       for (let ix = 0; ix < nx; ix++) out[o + 2 * ix] = a[g + ix]!;
       if (b !== null) for (let ix = 0; ix < nx; ix++) out[o + 2 * ix + 1] = b[g + ix]!;
     }
-    this.fft.transform(out, { inputRows: ny });
+    this.fft.rows(out, ny, false);
     return out;
   }
 
   /**
-   * From a spectrum X = F pad(a + i b): outA = [C̃ a]_grid, outB = [C̃ b]_grid (outB may be null).
-   * `spec` is not modified.
+   * From a row spectrum R = F_x pad(a + i b): outA = [C̃ a]_grid, outB = [C̃ b]_grid (outB may be
+   * null), written at the given offsets. `spec` is not modified.
    */
   fromSpectrum(spec: Float64Array, outA: Float64Array, outB: Float64Array | null, offsetA = 0, offsetB = 0): void {
     const { nx, ny, px } = this;
     const w = this.work;
-    const lam = this.eigenvalues;
-    for (let k = 0, n = lam.length; k < n; k++) {
-      const l = lam[k]!;
-      w[2 * k] = l * spec[2 * k]!;
-      w[2 * k + 1] = l * spec[2 * k + 1]!;
-    }
-    this.fft.transform(w, { inverse: true, outputRows: ny });
+    w.set(spec);
+    this.fft.columnFilter(w, this.lambdaT, ny, ny);
+    this.fft.rows(w, ny, true);
     for (let iy = 0; iy < ny; iy++) {
       const o = 2 * px * iy;
       const g = nx * iy;

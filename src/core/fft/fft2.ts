@@ -70,7 +70,7 @@ export class Fft2 {
   readonly py: number;
   private readonly rowScratch: Float64Array;
   private readonly colIn: Float64Array[];
-  private readonly colOut: Float64Array;
+  private readonly colOut: Float64Array[];
 
   constructor(px: number, py: number) {
     if (!isPowerOfTwo(px) || !isPowerOfTwo(py)) {
@@ -80,7 +80,7 @@ export class Fft2 {
     this.py = py;
     this.rowScratch = new Float64Array(2 * px);
     this.colIn = Array.from({ length: COLUMN_BLOCK }, () => new Float64Array(2 * py));
-    this.colOut = new Float64Array(2 * py);
+    this.colOut = Array.from({ length: COLUMN_BLOCK }, () => new Float64Array(2 * py));
   }
 
   /** In-place 2-D transform of a px × py complex buffer (length 2·px·py). */
@@ -94,14 +94,15 @@ export class Fft2 {
     const outputRows = Math.min(options.outputRows ?? py, py);
     if (inputRows < py || outputRows === py) {
       this.rows(buf, inputRows, inverse);
-      this.columns(buf, inverse);
+      this.columns(buf, inverse, inputRows, py);
     } else {
-      this.columns(buf, inverse);
+      this.columns(buf, inverse, py, outputRows);
       this.rows(buf, outputRows, inverse);
     }
   }
 
-  private rows(buf: Float64Array, count: number, inverse: boolean): void {
+  /** The x-pass alone on rows 0 … count − 1 (fft.js on each contiguous row). */
+  rows(buf: Float64Array, count: number, inverse: boolean): void {
     const px = this.px;
     if (px === 1) return;
     const f = plan(px);
@@ -115,16 +116,66 @@ export class Fft2 {
     }
   }
 
-  private columns(buf: Float64Array, inverse: boolean): void {
+  /**
+   * The y-pass: columns gathered COLUMN_BLOCK at a time, transformed with fft.js and scattered
+   * back. Only rows < gatherRows are read (the rest are taken as zero) and only rows < scatterRows
+   * are written. `buf` has rows of 2·px values; it may hold fewer than py rows when
+   * gatherRows, scatterRows ≤ its row count.
+   */
+  private columns(buf: Float64Array, inverse: boolean, gatherRows = this.py, scatterRows = this.py): void {
+    this.columnPass(buf, gatherRows, scatterRows, (col, out) => {
+      if (inverse) plan(this.py).inverseTransform(out, col);
+      else plan(this.py).transform(out, col);
+      return out;
+    });
+  }
+
+  /**
+   * Circulant filtering along y fused with both y-passes: for each column ix,
+   * col ← F⁻¹_y (λ[ix, ·] ⊙ F_y col). `lambdaT` is λ transposed (element (kx, ky) at kx·py + ky).
+   * After forward x-passes on rows < gatherRows and with inverse x-passes on rows < scatterRows
+   * this gives F⁻¹ (λ ⊙ F x) without a full-size buffer or a second gather.
+   */
+  columnFilter(buf: Float64Array, lambdaT: Float64Array, gatherRows: number, scatterRows: number): void {
+    const py = this.py;
+    if (py === 1) {
+      // No y-axis: a pointwise product along x.
+      const px = this.px;
+      for (let ix = 0; ix < px; ix++) {
+        const l = lambdaT[ix]!;
+        buf[2 * ix] *= l;
+        buf[2 * ix + 1] *= l;
+      }
+      return;
+    }
+    const f = plan(py);
+    let ix = 0;
+    this.columnPass(buf, gatherRows, scatterRows, (col, out, column) => {
+      ix = column;
+      f.transform(out, col);
+      const o = ix * py;
+      for (let k = 0; k < py; k++) {
+        const l = lambdaT[o + k]!;
+        out[2 * k] *= l;
+        out[2 * k + 1] *= l;
+      }
+      f.inverseTransform(col, out);
+      return col;
+    });
+  }
+
+  private columnPass(
+    buf: Float64Array,
+    gatherRows: number,
+    scatterRows: number,
+    apply: (col: Float64Array, out: Float64Array, column: number) => Float64Array,
+  ): void {
     const { px, py } = this;
     if (py === 1) return;
-    const f = plan(py);
-    const out = this.colOut;
     const w = 2 * px;
     for (let c0 = 0; c0 < px; c0 += COLUMN_BLOCK) {
       const nb = Math.min(COLUMN_BLOCK, px - c0);
-      // Gather nb columns in one sweep down the rows.
-      for (let r = 0; r < py; r++) {
+      for (let r = 0; r < gatherRows; r++) {
         const o = r * w + 2 * c0;
         for (let b = 0; b < nb; b++) {
           const col = this.colIn[b]!;
@@ -134,11 +185,12 @@ export class Fft2 {
       }
       for (let b = 0; b < nb; b++) {
         const col = this.colIn[b]!;
-        if (inverse) f.inverseTransform(out, col);
-        else f.transform(out, col);
-        col.set(out);
+        if (gatherRows < py) col.fill(0, 2 * gatherRows);
+        const res = apply(col, this.colOut[b]!, c0 + b);
+        if (res !== col) this.colIn[b] = res;
+        if (res !== col) this.colOut[b] = col;
       }
-      for (let r = 0; r < py; r++) {
+      for (let r = 0; r < scatterRows; r++) {
         const o = r * w + 2 * c0;
         for (let b = 0; b < nb; b++) {
           const col = this.colIn[b]!;

@@ -11,6 +11,10 @@
  * Generation, §2; derived: E[z z*] = 2I, E[z zᵀ] = 0, F diag(λ) F* = P C̃). Their leading
  * nx × ny blocks are N(0, C) on the grid. Then m = m0 + s ⊙ y + √nugget · ε.
  *
+ * A single realisation (the last one of an odd count) uses P normals instead of 2P: see
+ * {@link hermitianSpectrum}. So draw(2k) gives the same first 2k fields whatever k, and an odd
+ * count's last field differs from the one an even count would give at that place.
+ *
  * This needs λ ≥ 0. Padding (Wood & Chan 1994): start at the smallest power of two ≥ 2(n − 1) per
  * axis and double every axis with n > 1 until min λ ≥ −tol·max λ (tiny negatives are round-off and
  * set to 0) or the embedding would exceed `maxCells`. Past the bound: dense Cholesky when
@@ -159,14 +163,18 @@ export function circulantSampler(grid: Grid, prior: PriorSpec, options: SamplerO
       const fft = new Fft2(px, py);
       const eps = nugget > 0 ? new Float64Array(n) : null;
       for (let r = 0; r < count; r += 2) {
-        rng.fillNormal(buf);
-        for (let k = 0; k < cells; k++) {
-          const q = root[k]!;
-          buf[2 * k] *= q;
-          buf[2 * k + 1] *= q;
+        const single = r + 1 === count;
+        if (single) hermitianSpectrum(rng, root, px, py, buf);
+        else {
+          rng.fillNormal(buf);
+          for (let k = 0; k < cells; k++) {
+            const q = root[k]!;
+            buf[2 * k] *= q;
+            buf[2 * k + 1] *= q;
+          }
         }
         fft.transform(buf, { outputRows: ny });
-        for (let part = 0; part < 2 && r + part < count; part++) {
+        for (let part = 0; part < (single ? 1 : 2); part++) {
           const o = (r + part) * n;
           for (let iy = 0; iy < ny; iy++) {
             const b = 2 * px * iy + part;
@@ -184,6 +192,36 @@ export function circulantSampler(grid: Grid, prior: PriorSpec, options: SamplerO
       return out;
     },
   };
+}
+
+/**
+ * One real field from P normals (used for the last realisation of an odd count): a spectrum
+ * ẑ with ẑ(−k) = conj ẑ(k), E|ẑ(k)|² = λ_k / P and E[ẑ(k)²] = 0 for k ≠ −k (real, variance λ_k/P,
+ * where k = −k mod (px, py)), so y = F ẑ is real with covariance F diag(λ/P) F* = C̃ (derived, as in
+ * the module comment). Pairs (k, −k) take their two normals at the smaller flat index.
+ */
+function hermitianSpectrum(rng: Random, root: Float64Array, px: number, py: number, buf: Float64Array): void {
+  const h = Math.SQRT1_2;
+  for (let ky = 0; ky < py; ky++) {
+    const my = ky === 0 ? 0 : py - ky;
+    for (let kx = 0; kx < px; kx++) {
+      const mx = kx === 0 ? 0 : px - kx;
+      const k = kx + px * ky;
+      const mk = mx + px * my;
+      if (mk === k) {
+        buf[2 * k] = root[k]! * rng.nextNormal();
+        buf[2 * k + 1] = 0;
+      } else if (k < mk) {
+        const q = root[k]! * h;
+        const a = q * rng.nextNormal();
+        const b = q * rng.nextNormal();
+        buf[2 * k] = a;
+        buf[2 * k + 1] = b;
+        buf[2 * mk] = a;
+        buf[2 * mk + 1] = -b;
+      }
+    }
+  }
 }
 
 function checkCount(count: number): void {

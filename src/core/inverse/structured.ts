@@ -235,7 +235,10 @@ function addScaledRow(g: Operator, k: number, c: number, out: Float64Array, o: n
   }
 }
 
-/** K = G Bᵀᵀ (M × M), symmetrised as ½(K + Kᵀ) against round-off. */
+/**
+ * K = G Bᵀᵀ (M × M): K[a][b] = g_a · (Cm g_b). Only a ≥ b is computed, with row b of Bᵀ held in
+ * cache while G streams past, and the upper triangle is mirrored (K is symmetric).
+ */
 function gTimesBtTransposed(g: Operator, Bt: Matrix): Matrix {
   const m = Bt.rows;
   const n = Bt.cols;
@@ -245,13 +248,11 @@ function gTimesBtTransposed(g: Operator, Bt: Matrix): Matrix {
   switch (g.kind) {
     case 'sparse': {
       const { rowPtr, colIdx, values } = g.matrix;
-      for (let a = 0; a < m; a++) {
-        const p0 = rowPtr[a]!;
-        const p1 = rowPtr[a + 1]!;
-        for (let b = 0; b < m; b++) {
-          const o = b * n;
+      for (let b = 0; b < m; b++) {
+        const o = b * n;
+        for (let a = b; a < m; a++) {
           let sum = 0;
-          for (let q = p0; q < p1; q++) sum += values[q]! * bt[o + colIdx[q]!]!;
+          for (let q = rowPtr[a]!, q1 = rowPtr[a + 1]!; q < q1; q++) sum += values[q]! * bt[o + colIdx[q]!]!;
           kd[a * m + b] = sum;
         }
       }
@@ -259,11 +260,11 @@ function gTimesBtTransposed(g: Operator, Bt: Matrix): Matrix {
     }
     case 'dense': {
       const gd = g.matrix.data;
-      for (let a = 0; a < m; a++) {
-        for (let b = 0; b < m; b++) {
+      for (let b = 0; b < m; b++) {
+        const ob = b * n;
+        for (let a = b; a < m; a++) {
           let sum = 0;
           const oa = a * n;
-          const ob = b * n;
           for (let i = 0; i < n; i++) sum += gd[oa + i]! * bt[ob + i]!;
           kd[a * m + b] = sum;
         }
@@ -273,13 +274,7 @@ function gTimesBtTransposed(g: Operator, Bt: Matrix): Matrix {
     default:
       assertNever(g);
   }
-  for (let a = 0; a < m; a++) {
-    for (let b = 0; b < a; b++) {
-      const v = 0.5 * (kd[a * m + b]! + kd[b * m + a]!);
-      kd[a * m + b] = v;
-      kd[b * m + a] = v;
-    }
-  }
+  for (let a = 0; a < m; a++) for (let b = 0; b < a; b++) kd[b * m + a] = kd[a * m + b]!;
   return K;
 }
 
@@ -294,12 +289,15 @@ function addDataCovariance(K: Matrix, problem: Problem): void {
 }
 
 /** Default column-block width of the triangular solve (M × width doubles stay in cache). */
-export const VARIANCE_BLOCK = 256;
+export const VARIANCE_BLOCK = 64;
 
 /**
  * Posterior variances of cells [c0, c1): var_j = Cm_jj − Σ_k W_kj², W = L⁻¹ Bᵀ restricted to the
- * block (forward substitution by rows of the block, Golub & Van Loan §3.1, memory). Writes
- * out[j − c0]. Pure function of its inputs: the unit of work for a worker.
+ * block, by blocked forward substitution (Golub & Van Loan, Matrix Computations, §3.1, memory):
+ * rows of W in groups of 4, X[i-group] −= L[i-group, :i0] · W[:i0] with a 4 × 4 register-blocked
+ * kernel, then the 4 × 4 diagonal triangle. Writes out[j − c0]. A pure function of its inputs
+ * (the unit of work for a worker); every column gets the same operations in the same order
+ * whatever c0 and c1 are, so split runs equal one run bit for bit.
  */
 export function structuredVarianceBlock(
   L: Matrix,
@@ -316,16 +314,63 @@ export function structuredVarianceBlock(
   const bt = Bt.data;
   const l = L.data;
   for (let k = 0; k < m; k++) x.set(bt.subarray(k * n + c0, k * n + c1), k * w);
-  for (let i = 0; i < m; i++) {
-    const oi = i * w;
-    for (let p = 0; p < i; p++) {
-      const lip = l[i * m + p]!;
-      if (lip === 0) continue;
-      const op = p * w;
-      for (let j = 0; j < w; j++) x[oi + j] -= lip * x[op + j]!;
+  const lt = new Float64Array(4 * m); // L[i0..i0+3, p] interleaved by p: lt[4p + r]
+  const w4 = w - (w % 4);
+  for (let i0 = 0; i0 < m; i0 += 4) {
+    const rows = Math.min(4, m - i0);
+    for (let p = 0; p < i0; p++) for (let r = 0; r < 4; r++) lt[4 * p + r] = r < rows ? l[(i0 + r) * m + p]! : 0;
+    if (rows === 4 && i0 > 0) {
+      const o0 = i0 * w;
+      const o1 = o0 + w;
+      const o2 = o1 + w;
+      const o3 = o2 + w;
+      for (let j = 0; j < w4; j += 4) {
+        let a00 = x[o0 + j]!, a01 = x[o0 + j + 1]!, a02 = x[o0 + j + 2]!, a03 = x[o0 + j + 3]!;
+        let a10 = x[o1 + j]!, a11 = x[o1 + j + 1]!, a12 = x[o1 + j + 2]!, a13 = x[o1 + j + 3]!;
+        let a20 = x[o2 + j]!, a21 = x[o2 + j + 1]!, a22 = x[o2 + j + 2]!, a23 = x[o2 + j + 3]!;
+        let a30 = x[o3 + j]!, a31 = x[o3 + j + 1]!, a32 = x[o3 + j + 2]!, a33 = x[o3 + j + 3]!;
+        for (let p = 0, op = j; p < i0; p++, op += w) {
+          const y0 = x[op]!, y1 = x[op + 1]!, y2 = x[op + 2]!, y3 = x[op + 3]!;
+          const l0 = lt[4 * p]!, l1 = lt[4 * p + 1]!, l2 = lt[4 * p + 2]!, l3 = lt[4 * p + 3]!;
+          a00 -= l0 * y0; a01 -= l0 * y1; a02 -= l0 * y2; a03 -= l0 * y3;
+          a10 -= l1 * y0; a11 -= l1 * y1; a12 -= l1 * y2; a13 -= l1 * y3;
+          a20 -= l2 * y0; a21 -= l2 * y1; a22 -= l2 * y2; a23 -= l2 * y3;
+          a30 -= l3 * y0; a31 -= l3 * y1; a32 -= l3 * y2; a33 -= l3 * y3;
+        }
+        x[o0 + j] = a00; x[o0 + j + 1] = a01; x[o0 + j + 2] = a02; x[o0 + j + 3] = a03;
+        x[o1 + j] = a10; x[o1 + j + 1] = a11; x[o1 + j + 2] = a12; x[o1 + j + 3] = a13;
+        x[o2 + j] = a20; x[o2 + j + 1] = a21; x[o2 + j + 2] = a22; x[o2 + j + 3] = a23;
+        x[o3 + j] = a30; x[o3 + j + 1] = a31; x[o3 + j + 2] = a32; x[o3 + j + 3] = a33;
+      }
+      for (let j = w4; j < w; j++) {
+        for (let r = 0; r < 4; r++) {
+          let a0 = x[(i0 + r) * w + j]!;
+          for (let p = 0; p < i0; p++) a0 -= lt[4 * p + r]! * x[p * w + j]!;
+          x[(i0 + r) * w + j] = a0;
+        }
+      }
+    } else if (i0 > 0) {
+      for (let r = 0; r < rows; r++) {
+        const oi = (i0 + r) * w;
+        for (let j = 0; j < w; j++) {
+          let a0 = x[oi + j]!;
+          for (let p = 0; p < i0; p++) a0 -= lt[4 * p + r]! * x[p * w + j]!;
+          x[oi + j] = a0;
+        }
+      }
     }
-    const inv = 1 / l[i * m + i]!;
-    for (let j = 0; j < w; j++) x[oi + j] *= inv;
+    // The diagonal triangle of the group.
+    for (let r = 0; r < rows; r++) {
+      const i = i0 + r;
+      const oi = i * w;
+      for (let q = 0; q < r; q++) {
+        const liq = l[i * m + i0 + q]!;
+        const oq = (i0 + q) * w;
+        for (let j = 0; j < w; j++) x[oi + j] -= liq * x[oq + j]!;
+      }
+      const inv = 1 / l[i * m + i]!;
+      for (let j = 0; j < w; j++) x[oi + j] *= inv;
+    }
   }
   for (let j = 0; j < w; j++) out[j] = priorVariance[c0 + j]!;
   for (let k = 0; k < m; k++) {

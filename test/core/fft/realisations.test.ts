@@ -70,6 +70,32 @@ describe('sample covariance of circulant-embedding realisations matches Cm', () 
     });
   }
 
+  it('single-field draws (odd count, P normals, Hermitian spectrum) pass the same χ² checks', () => {
+    const { grid, prior } = STAT_CASES[0]!;
+    const sampler = circulantSampler(grid, prior);
+    const count = 4000;
+    const n = 30;
+    const data = new Float64Array(count * n);
+    for (let r = 0; r < count; r++) data.set(sampler.draw(1, 5000 + r).data, r * n);
+    const w = whiten({ rows: count, cols: n, data }, grid, prior);
+    let diag = 0;
+    for (const v of w) for (let i = 0; i < n; i++) diag += v[i]! * v[i]!;
+    const [dlo, dhi] = chi2Limits(count * n, ALPHA);
+    expect(diag).toBeGreaterThan(dlo);
+    expect(diag).toBeLessThan(dhi);
+    let off = 0;
+    for (let i = 0; i < n; i++) {
+      for (let j = i + 1; j < n; j++) {
+        let sij = 0;
+        for (const v of w) sij += v[i]! * v[j]!;
+        off += (sij * sij) / count;
+      }
+    }
+    const [olo, ohi] = chi2Limits((n * (n - 1)) / 2, ALPHA);
+    expect(off).toBeGreaterThan(olo);
+    expect(off).toBeLessThan(ohi);
+  });
+
   it('the two fields of one complex draw are uncorrelated: (K/2) Σ_ij X_ij² inside χ²(N²) limits', () => {
     const { grid, prior } = STAT_CASES[0]!;
     const count = 4000;
