@@ -7,7 +7,9 @@
  * OPENBLAS_L2_SIZE removed from its environment only. Writes bench-results/bench.json and prints a
  * table with ratio = ours / scipy (time; > 1 means slower than scipy).
  *
- *   npx tsx test/bench/run.ts [--filter TEXT] [--no-scipy] [--out FILE]
+ *   npx tsx test/bench/run.ts [--file NAME] [--filter TEXT] [--no-scipy] [--out FILE]
+ *
+ * --file linalg loads only test/bench/cases/linalg.ts; --filter keeps cases whose name contains TEXT.
  */
 import { execFileSync } from 'node:child_process';
 import { existsSync, mkdirSync, readdirSync, writeFileSync } from 'node:fs';
@@ -38,23 +40,35 @@ interface CaseResult {
   readonly gflops_scipy: number | null;
 }
 
-function parseArgs(argv: string[]): { filter: string | null; scipy: boolean; out: string } {
+interface Args {
+  readonly file: string | null;
+  readonly filter: string | null;
+  readonly scipy: boolean;
+  readonly out: string;
+}
+
+function parseArgs(argv: string[]): Args {
+  let file: string | null = null;
   let filter: string | null = null;
   let scipy = true;
   let out = join(repoRoot, 'bench-results', 'bench.json');
   for (let i = 0; i < argv.length; i++) {
     const a = argv[i]!;
-    if (a === '--filter') filter = argv[++i] ?? '';
+    if (a === '--file') file = (argv[++i] ?? '').replace(/\.ts$/, '');
+    else if (a === '--filter') filter = argv[++i] ?? '';
     else if (a === '--no-scipy') scipy = false;
     else if (a === '--out') out = resolve(argv[++i] ?? out);
-    else throw new Error(`bench: unknown argument ${JSON.stringify(a)} (expected --filter TEXT, --no-scipy, --out FILE)`);
+    else throw new Error(`bench: unknown argument ${JSON.stringify(a)} (expected --file NAME, --filter TEXT, --no-scipy, --out FILE)`);
   }
-  return { filter, scipy, out };
+  return { file, filter, scipy, out };
 }
 
-async function loadCases(): Promise<{ file: string; c: BenchCase }[]> {
+async function loadCases(only: string | null): Promise<{ file: string; c: BenchCase }[]> {
   const dir = join(here, 'cases');
-  const files = readdirSync(dir).filter((f) => f.endsWith('.ts')).sort();
+  const files = readdirSync(dir)
+    .filter((f) => f.endsWith('.ts') && (only === null || f === `${only}.ts`))
+    .sort();
+  if (files.length === 0) throw new Error(`bench: no case file test/bench/cases/${only ?? '*'}.ts`);
   const all: { file: string; c: BenchCase }[] = [];
   const seen = new Set<string>();
   for (const f of files) {
@@ -142,7 +156,7 @@ function printTable(rows: CaseResult[]): void {
 
 async function main(): Promise<void> {
   const args = parseArgs(process.argv.slice(2));
-  let list = await loadCases();
+  let list = await loadCases(args.file);
   if (args.filter !== null) list = list.filter(({ c }) => c.name.includes(args.filter!));
   if (list.length === 0) throw new Error(`bench: no case matches ${JSON.stringify(args.filter)}`);
   const loadBefore = loadavg();
@@ -155,7 +169,14 @@ async function main(): Promise<void> {
   let scipyResults = new Map<string, Timing>();
   if (args.scipy) {
     process.stderr.write('bench: scipy/numpy side …\n');
-    ({ blas, results: scipyResults } = timeScipy(list));
+    try {
+      ({ blas, results: scipyResults } = timeScipy(list));
+    } catch (e) {
+      // Ours are still worth reporting; the scipy columns stay empty and the reason is recorded.
+      const why = e instanceof Error ? e.message : String(e);
+      process.stderr.write(`bench: scipy side failed (${why}); reporting ours only\n`);
+      blas = { error: why };
+    }
   }
   const rows: CaseResult[] = list.map(({ file, c }) => {
     const o = ours.get(c.name)!;
