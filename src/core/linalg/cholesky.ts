@@ -29,7 +29,7 @@ const PANEL_CHUNK = 16;
  * Lower Cholesky factor of `a`, or the zero-based pivot where a non-positive (or NaN) pivot
  * `value` appeared (the Schur complement's diagonal entry, jitter included).
  *
- * Blocked left-looking (Crout) order, Golub & Van Loan §4.2.9 (memory): for each panel of
+ * Blocked left-looking order (Golub & Van Loan, 4th ed., §4.2, block Cholesky; memory): for each panel of
  * CHOLESKY_BLOCK columns J, (1) A[J:, J] −= L[J:, :J] L[J, :J]ᵀ with the register-blocked NT kernel
  * (./kernels.ts), (2) factor the diagonal block unblocked, (3) solve the panel below it against the
  * diagonal block's factor, four rows at a time. Reads only the lower triangle; the strict upper

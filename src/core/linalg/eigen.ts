@@ -413,8 +413,8 @@ export interface LanczosExtremes {
   readonly max: number;
   /**
    * ‖A y − θ y‖ for the Ritz pair of `min` / `max`, = |β_m s_m| (last component of the Ritz vector of
-   * T times the last β). A has an eigenvalue within this distance of the estimate (Golub & Van Loan
-   * §10.1.4 and Parlett, The Symmetric Eigenvalue Problem, Thm 3.2.1 (memory)).
+   * T times the last β). A symmetric A has an eigenvalue within this distance of the estimate (the
+   * residual bound; Golub & Van Loan §8.1 and §10.1, memory).
    */
   readonly minResidual: number;
   readonly maxResidual: number;
@@ -465,7 +465,8 @@ export function lanczosExtremes(
       a += w[i]! * qj[i]!;
     }
     alpha[j] = a;
-    // Full reorthogonalisation against q_0..q_j, twice ("twice is enough", Parlett §6.9, memory).
+    // Full reorthogonalisation against q_0..q_j, twice ("twice is enough": Parlett 1998, The
+    // Symmetric Eigenvalue Problem, memory).
     for (let pass = 0; pass < 2; pass++) {
       for (let p = 0; p <= j; p++) {
         const o = p * n;
