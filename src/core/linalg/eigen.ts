@@ -26,6 +26,19 @@ function checkSquare(a: Matrix, who: string): number {
   return a.rows;
 }
 
+/** Square, and finite in the lower triangle (a NaN would otherwise surface as a convergence failure). */
+function checkSymmetricInput(a: Matrix, who: string): number {
+  const n = checkSquare(a, who);
+  const d = a.data;
+  for (let i = 0; i < n; i++) {
+    const o = i * n;
+    for (let j = 0; j <= i; j++) {
+      if (!Number.isFinite(d[o + j]!)) throw new RangeError(`${who}: entry (${i}, ${j}) must be finite, got ${d[o + j]}`);
+    }
+  }
+  return n;
+}
+
 /**
  * Householder tridiagonalisation of the symmetric matrix held in the lower triangle of `w` (n × n,
  * row-major, overwritten). Step k reflects column k below the diagonal onto e₁:
@@ -341,7 +354,7 @@ export function tridiagonalEigenvalues(d: ArrayLike<number>, e: ArrayLike<number
  * ε‖A‖₂ per eigenvalue; Golub & Van Loan §8.3, memory).
  */
 export function symmetricEigenvalues(a: Matrix): Float64Array {
-  const n = checkSquare(a, 'symmetricEigenvalues');
+  const n = checkSymmetricInput(a, 'symmetricEigenvalues');
   if (n === 0) return new Float64Array(0);
   const { d, e } = tridiagonaliseInPlace(a.data.slice(), n, new Float64Array(n));
   tridiagonalQL(d, e, null);
@@ -359,7 +372,7 @@ export interface SymmetricEigen {
  * Costs several times {@link symmetricEigenvalues}: forming Q and the QL rotations add O(N³).
  */
 export function symmetricEigen(a: Matrix): SymmetricEigen {
-  const n = checkSquare(a, 'symmetricEigen');
+  const n = checkSymmetricInput(a, 'symmetricEigen');
   const w = a.data.slice();
   const betas = new Float64Array(Math.max(n, 1));
   const { d, e } = tridiagonaliseInPlace(w, n, betas);
@@ -464,6 +477,7 @@ export function lanczosExtremes(
       w[i] = aq[i]!;
       a += w[i]! * qj[i]!;
     }
+    if (!Number.isFinite(a)) throw new RangeError(`lanczosExtremes: applyA gave a non-finite product at step ${j}`);
     alpha[j] = a;
     // Full reorthogonalisation against q_0..q_j, twice ("twice is enough": Parlett 1998, The
     // Symmetric Eigenvalue Problem, memory).

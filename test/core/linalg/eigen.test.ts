@@ -80,8 +80,15 @@ describe('symmetric eigenvalues', () => {
     expect(res).toBeLessThan(1e-12);
     expect(orth).toBeLessThan(1e-12);
   });
-  it('non-square input is rejected', () => {
+  it('non-square or non-finite input is rejected with the entry named', () => {
     expect(() => symmetricEigenvalues(matrix(2, 3))).toThrow(/2×3, expected square/);
+    const a = matrix(3, 3);
+    a.data[2 * 3 + 1] = Number.NaN;
+    expect(() => symmetricEigenvalues(a)).toThrow(/entry \(2, 1\) must be finite, got NaN/);
+    expect(() => symmetricEigen(a)).toThrow(/entry \(2, 1\) must be finite/);
+    a.data[2 * 3 + 1] = 0;
+    a.data[1 * 3 + 2] = Number.NaN; // upper triangle is not read
+    expect(Array.from(symmetricEigenvalues(a))).toEqual([0, 0, 0]);
   });
 });
 
@@ -99,7 +106,8 @@ describe('lanczosExtremes', () => {
     const f = (x: Float64Array) => matvec(a, x);
     expect(lanczosExtremes(f, 120, { seed: 3, iterations: 30 })).toEqual(lanczosExtremes(f, 120, { seed: 3, iterations: 30 }));
   });
-  it('a wrong-length product is reported', () => {
+  it('a wrong-length or non-finite product is reported', () => {
     expect(() => lanczosExtremes(() => new Float64Array(3), 4)).toThrow(/returned length 3, expected 4/);
+    expect(() => lanczosExtremes(() => new Float64Array(4).fill(Number.NaN), 4)).toThrow(/non-finite product at step 0/);
   });
 });

@@ -1,8 +1,7 @@
 /**
  * Test helpers for the linear-algebra suites: a tiny seeded generator and random test matrices.
  * The generator is a Weyl sequence through the MurmurHash3 32-bit finaliser (common practice, no
- * source); its quality only
- * needs to give "generic" matrices, not statistics.
+ * source); it only needs to give "generic" matrices, not statistics.
  */
 import { matrix, type Matrix } from '../../../src/core/linalg/matrix.ts';
 
