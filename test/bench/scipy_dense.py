@@ -1,6 +1,6 @@
 """scipy/numpy side of the benchmark harness (test/bench/run.ts).
 
-Reads JSON {"cases": [{"name", "op", "params", "runs", "warmup"}]} on stdin, builds inputs of the
+Reads JSON {"cases": [{"name", "op", "params", "runs", "warmup"}]} (or {"list_ops": true}) on stdin, builds inputs of the
 given sizes, times each op (median of `runs` after `warmup`) and prints
 {"blas": {...}, "results": [{"name", "median_s", "min_s", "times_s"}]}.
 
@@ -149,6 +149,9 @@ def time_case(case):
 def main():
     request = json.load(sys.stdin)
     load_plugins()
+    if request.get("list_ops"):
+        json.dump({"ops": sorted(OPS)}, sys.stdout)
+        return
     # Touch BLAS once so its library is mapped before blas_info() looks for it.
     np.ones((4, 4)) @ np.ones((4, 4))
     results = [time_case(c) for c in request["cases"]]

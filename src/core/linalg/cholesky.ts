@@ -15,7 +15,7 @@ export type CholeskyResult =
 export interface CholeskyOptions {
   /** Overwrite `a` with the factor (saves one N² buffer). */
   readonly inPlace?: boolean;
-  /** Added to every diagonal element before factoring. */
+  /** Added to every diagonal element before factoring (with `inPlace`, into `a` itself). */
   readonly jitter?: number;
 }
 
