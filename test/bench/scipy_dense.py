@@ -51,6 +51,22 @@ def op_solve_lower(p):
     return lambda: scipy.linalg.solve_triangular(l, b, lower=True)
 
 
+def op_solve_lower_rows(p):
+    """Rows of b (n x m) solved against l (m x m): the same as solve_triangular(l, b.T)."""
+    m, n = int(p["m"]), int(p["n"])
+    l = np.linalg.cholesky(bench_spd(m))
+    b = random_dense(n, m, 5)
+    return lambda: scipy.linalg.solve_triangular(l, b.T, lower=True)
+
+
+def op_symmetric_product(p):
+    """g @ b, full (numpy has no half-product for a symmetric result of a general product)."""
+    m, n = int(p["m"]), int(p["n"])
+    g = random_dense(m, n, 6)
+    b = random_dense(n, m, 7)
+    return lambda: g @ b
+
+
 def op_eigvalsh(p):
     a = bench_spd(int(p["n"]))
     return lambda: np.linalg.eigvalsh(a)
@@ -71,6 +87,8 @@ def op_matmul(p):
 OPS = {
     "cholesky": op_cholesky,
     "solve_lower": op_solve_lower,
+    "solve_lower_rows": op_solve_lower_rows,
+    "symmetric_product": op_symmetric_product,
     "eigvalsh": op_eigvalsh,
     "matmul_nt": op_matmul_nt,
     "matmul": op_matmul,

@@ -3,10 +3,10 @@
  * right-hand sides (N² k flops), symmetric eigenvalues (≈ 4/3 N³ for the reduction), GEMM (2 m k n).
  * Flop counts: Golub & Van Loan, Matrix Computations, 4th ed., §4.2, §3.1, §8.3 (memory).
  */
-import { cholesky, choleskyUnblocked, solveLowerMatrix } from '../../../src/core/linalg/cholesky.ts';
+import { cholesky, choleskyUnblocked, solveLowerMatrix, solveLowerRows } from '../../../src/core/linalg/cholesky.ts';
 import { symmetricEigenvalues } from '../../../src/core/linalg/eigen.ts';
 import { matrix, type Matrix } from '../../../src/core/linalg/matrix.ts';
-import { multiplyNT } from '../../../src/core/linalg/products.ts';
+import { multiplyNT, symmetricProduct } from '../../../src/core/linalg/products.ts';
 import type { BenchCase } from '../types.ts';
 
 /** Seeded uniform [0, 1) (integer hash; common practice, no source). */
@@ -100,6 +100,32 @@ export const cases: BenchCase[] = [
     setup: () => {
       const a = benchSpd(500);
       return () => symmetricEigenvalues(a);
+    },
+  },
+  {
+    // Posterior shape: W = L⁻¹ Bᵀ with B = Cm Gᵀ (N × M), L the factor of G Cm Gᵀ + Cd (M × M).
+    name: 'solve L Wᵀ rows: M=200, N=2000 right-hand sides',
+    params: { m: 200, n: 2000 },
+    flops: 200 * 200 * 2000,
+    scipyOp: 'solve_lower_rows',
+    runs: 7,
+    setup: () => {
+      const L = factor(benchSpd(200));
+      const B = randomDense(2000, 200, 5);
+      return () => solveLowerRows(L, B);
+    },
+  },
+  {
+    // Posterior shape: K = G B with B = Cm Gᵀ, symmetric, lower triangle computed (half of 2 M² N).
+    name: 'symmetric product G B: M=200, N=2000',
+    params: { m: 200, n: 2000 },
+    flops: 200 * 200 * 2000,
+    scipyOp: 'symmetric_product',
+    runs: 7,
+    setup: () => {
+      const g = randomDense(200, 2000, 6);
+      const b = randomDense(2000, 200, 7);
+      return () => symmetricProduct(g, b);
     },
   },
   {
