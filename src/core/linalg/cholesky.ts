@@ -179,7 +179,7 @@ export function choleskySolve(L: Matrix, b: ArrayLike<number>): Float64Array {
 }
 
 /** Rows per block of the blocked triangular solves. */
-const SOLVE_BLOCK = 64;
+const SOLVE_BLOCK = 32;
 
 function checkFactor(L: Matrix, who: string): number {
   if (L.rows !== L.cols) throw new RangeError(`${who}: factor is ${L.rows}×${L.cols}, expected square`);
@@ -256,7 +256,30 @@ export function solveLowerTransposeRowsInPlace(L: Matrix, X: Matrix): Matrix {
     const w = n - i0;
     transposeBlock(w, ib, l, i0 * n + i0, n, pack, 0, w);
     if (i1 < n) gemmNT(k, ib, n - i1, -1, x, i1, n, pack, ib, w, x, i0, n);
-    for (let r = 0; r < k; r++) {
+    let r = 0;
+    for (; r + 4 <= k; r += 4) {
+      const o0 = r * n;
+      const o1 = o0 + n;
+      const o2 = o1 + n;
+      const o3 = o2 + n;
+      for (let i = i1 - 1; i >= i0; i--) {
+        const pi = (i - i0) * w - i0;
+        let s0 = x[o0 + i]!, s1 = x[o1 + i]!, s2 = x[o2 + i]!, s3 = x[o3 + i]!;
+        for (let p = i + 1; p < i1; p++) {
+          const lp = pack[pi + p]!;
+          s0 -= x[o0 + p]! * lp;
+          s1 -= x[o1 + p]! * lp;
+          s2 -= x[o2 + p]! * lp;
+          s3 -= x[o3 + p]! * lp;
+        }
+        const inv = 1 / pack[pi + i]!;
+        x[o0 + i] = s0 * inv;
+        x[o1 + i] = s1 * inv;
+        x[o2 + i] = s2 * inv;
+        x[o3 + i] = s3 * inv;
+      }
+    }
+    for (; r < k; r++) {
       const o = r * n;
       for (let i = i1 - 1; i >= i0; i--) {
         const pi = (i - i0) * w - i0;
