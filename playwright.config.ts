@@ -27,9 +27,10 @@ export default defineConfig({
     },
   },
   webServer: {
-    command: `npx vite --host 127.0.0.1 --port ${port} --strictPort`,
+    // A production build served by `vite preview`: stable while files change and what users get.
+    command: `npx vite build --outDir test-results/e2e-dist --emptyOutDir && npx vite preview --outDir test-results/e2e-dist --host 127.0.0.1 --port ${port} --strictPort`,
     url: `http://127.0.0.1:${port}`,
     reuseExistingServer: !process.env.CI,
-    timeout: 120_000,
+    timeout: 240_000,
   },
 });
