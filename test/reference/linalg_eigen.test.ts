@@ -4,7 +4,7 @@
  * the same eigvalsh.
  */
 import { describe, expect, it } from 'vitest';
-import { lanczosExtremes, symmetricEigen, symmetricEigenvalues } from '../../src/core/linalg/eigen.ts';
+import { lanczosExtremes, symmetricEigen, symmetricEigenProjected, symmetricEigenvalues } from '../../src/core/linalg/eigen.ts';
 import { matrix, matvec, type Matrix } from '../../src/core/linalg/matrix.ts';
 import { runPython } from './python.ts';
 import { poisonUpper, randomMatrix, randomSpd, randomSymmetric, relError, toJson, type JsonMatrix } from '../core/linalg/helpers.ts';
@@ -46,6 +46,29 @@ describe('symmetricEigen vs numpy.linalg.eigh (Debian python3-numpy)', () => {
         let err = 0;
         for (let i = 0; i < n; i++) err = Math.max(err, Math.abs(sign * vectors.data[i * n + j]! - rv[i * n + j]!));
         expect(err).toBeLessThan(1e-8);
+      }
+    });
+  });
+});
+
+describe('symmetricEigenProjected vs numpy.linalg.eigh: Vᵀ B (Debian python3-numpy)', () => {
+  const shapes = [[1, 1], [5, 2], [64, 1], [97, 3], [150, 4]] as const;
+  const inputs = shapes.map(([n, k]) => ({ a: randomSymmetric(n, 400 + n), b: randomMatrix(n, k, 500 + n) }));
+  const ref = runPython<{ results: { values: number[]; projected: JsonMatrix }[] }>('linalg_reference.py', {
+    cases: inputs.map(({ a, b }) => ({ op: 'eigh_project', a: toJson(a), b: toJson(b) })),
+  }).results;
+  shapes.forEach(([n, k], c) => {
+    it(`n = ${n}, k = ${k}: values to 1e-10, each row of Vᵀ B to 1e-8 up to the eigenvector's sign`, () => {
+      const { a, b } = inputs[c]!;
+      const r = symmetricEigenProjected(poisonUpper(a), b);
+      expect(relError(r.values, ref[c]!.values)).toBeLessThan(1e-10);
+      const rp = ref[c]!.projected.data;
+      for (let j = 0; j < n; j++) {
+        const ours = Array.from(r.projected.data.subarray(j * k, (j + 1) * k));
+        const theirs = rp.slice(j * k, (j + 1) * k);
+        const same = Math.max(...ours.map((v, q) => Math.abs(v - theirs[q]!)));
+        const flipped = Math.max(...ours.map((v, q) => Math.abs(v + theirs[q]!)));
+        expect(Math.min(same, flipped)).toBeLessThan(1e-8);
       }
     });
   });

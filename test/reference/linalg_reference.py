@@ -10,6 +10,7 @@ ops:
   cho_solve         {"l", "b"}       -> scipy.linalg.cho_solve((l, True), b)  (A x = b with A = l lᵀ)
   eigvalsh          {"a"}            -> numpy.linalg.eigvalsh(a) (ascending; reads the lower triangle)
   eigh              {"a"}            -> numpy.linalg.eigh(a): values and vectors (columns)
+  eigh_project      {"a", "b"}       -> eigh values and vᵀ b (rows: eigenvectors' projections of b)
   leading_minor_det {"a", "k"}       -> numpy.linalg.det(a[:k, :k]) for k = 1..k (sign pattern of minors)
   matmul            {"a", "b"}       -> a @ b
   colsumsq          {"a"}            -> (a ** 2).sum(axis=0)
@@ -49,6 +50,9 @@ def run(case):
     if op == "eigh":
         w, v = np.linalg.eigh(to_np(case["a"]), UPLO="L")
         return {"values": w.tolist(), "vectors": from_np(v)}
+    if op == "eigh_project":
+        w, v = np.linalg.eigh(to_np(case["a"]), UPLO="L")
+        return {"values": w.tolist(), "projected": from_np(v.T @ to_np(case["b"]))}
     if op == "leading_minor_det":
         a = to_np(case["a"])
         return [float(np.linalg.det(a[:k, :k])) for k in range(1, case["k"] + 1)]

@@ -261,10 +261,11 @@ function tridiagonaliseInPlace(w: Float64Array, n: number, betas: Float64Array):
  * Implicit QL iteration on a symmetric tridiagonal matrix (d diagonal, e[i] couples i and i+1),
  * overwriting d with the eigenvalues (unsorted). With `z` (n × n row-major, starting as Qᵀ), the
  * Givens rotations are applied to its rows so that on return row j of z is the eigenvector of d[j]
- * (rows rather than columns keep the rotation loops contiguous). Shift: eigenvalue of the leading 2×2 of the active block nearest d[l] (Wilkinson-type;
+ * (rows rather than columns keep the rotation loops contiguous). z may have any number `zcols` of
+ * columns: started as Qᵀ B it ends as Vᵀ B. Shift: eigenvalue of the leading 2×2 of the active block nearest d[l] (Wilkinson-type;
  * Golub & Van Loan §8.3.4, memory). Deflation when |e[m]| ≤ ε (|d[m]| + |d[m+1]|).
  */
-function tridiagonalQL(d: Float64Array, e: Float64Array, z: Float64Array | null): void {
+function tridiagonalQL(d: Float64Array, e: Float64Array, z: Float64Array | null, zcols = d.length): void {
   const n = d.length;
   for (let l = 0; l < n; l++) {
     let iter = 0;
@@ -308,9 +309,9 @@ function tridiagonalQL(d: Float64Array, e: Float64Array, z: Float64Array | null)
         g = c * r - b;
         if (z) {
           // Rows i and i+1 of z = Zᵀ (contiguous), i.e. columns i and i+1 of Z.
-          const oa = i * n;
-          const ob = oa + n;
-          for (let k = 0; k < n; k++) {
+          const oa = i * zcols;
+          const ob = oa + zcols;
+          for (let k = 0; k < zcols; k++) {
             const zf = z[ob + k]!;
             const zi = z[oa + k]!;
             z[ob + k] = s * zi + c * zf;
@@ -410,6 +411,57 @@ export function symmetricEigen(a: Matrix): SymmetricEigen {
     for (let i = 0; i < n; i++) vectors.data[i * n + j] = zt[src * n + i]!;
   }
   return { values, vectors };
+}
+
+/** Eigenvalues with the eigenvector projections of given vectors: row j of `projected` is v_jᵀ B. */
+export interface SymmetricEigenProjected {
+  readonly values: Float64Array;
+  readonly projected: Matrix;
+}
+
+/**
+ * Eigenvalues (ascending) of the symmetric matrix whose lower triangle is `a`, and Vᵀ B for B n × k
+ * without forming V: the reflectors are applied to B (Qᵀ B) and the QL rotations to its rows, so the
+ * cost past the reduction is O(N² k) instead of O(N³). Row j of `projected` belongs to values[j];
+ * its sign follows the (arbitrary) sign of v_j, so sign-free uses (squares, Σ_j f(λ_j)(v_jᵀb)²) are
+ * what this is for.
+ */
+export function symmetricEigenProjected(a: Matrix, b: Matrix): SymmetricEigenProjected {
+  const n = checkSymmetricInput(a, 'symmetricEigenProjected');
+  if (b.rows !== n) throw new RangeError(`symmetricEigenProjected: matrix is ${n}×${n}, B is ${b.rows}×${b.cols} (expected ${n} rows)`);
+  const k = b.cols;
+  const w = a.data.slice();
+  const betas = new Float64Array(Math.max(n, 1));
+  const { d, e } = tridiagonaliseInPlace(w, n, betas);
+  // Qᵀ B = H_{n−3} ⋯ H₀ B: apply the reflectors in order.
+  const z = b.data.slice();
+  const t = new Float64Array(k);
+  for (let r = 0; r < n - 2; r++) {
+    const beta = betas[r]!;
+    if (beta === 0) continue;
+    const vo = r * n;
+    t.fill(0);
+    for (let i = r + 1; i < n; i++) {
+      const vi = w[vo + i]!;
+      const oi = i * k;
+      for (let j = 0; j < k; j++) t[j] += vi * z[oi + j]!;
+    }
+    for (let i = r + 1; i < n; i++) {
+      const bvi = beta * w[vo + i]!;
+      const oi = i * k;
+      for (let j = 0; j < k; j++) z[oi + j] -= bvi * t[j]!;
+    }
+  }
+  tridiagonalQL(d, e, z, k);
+  const order = Array.from({ length: n }, (_, i) => i).sort((x, y) => d[x]! - d[y]!);
+  const values = new Float64Array(n);
+  const projected = matrix(n, k);
+  for (let j = 0; j < n; j++) {
+    const src = order[j]!;
+    values[j] = d[src]!;
+    projected.data.set(z.subarray(src * k, (src + 1) * k), j * k);
+  }
+  return { values, projected };
 }
 
 /** Options of {@link lanczosExtremes}. */
