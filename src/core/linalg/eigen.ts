@@ -114,31 +114,46 @@ function tridiagonaliseUnblockedInPlace(w: Float64Array, n: number, betas: Float
 
 /**
  * p[s0..n) = A v for the symmetric block rows/cols s0..n−1 of `a` (n × n, lower triangle read), with
- * v at vec[vo + i]. Two rows per sweep share the loads of v_j and p_j.
+ * v at vec[vo + i].
  */
 function symmetricLowerMatvec(a: Float64Array, n: number, s0: number, vec: Float64Array, vo: number, p: Float64Array): void {
   for (let i = s0; i < n; i++) p[i] = 0;
   let i = s0;
-  for (; i + 2 <= n; i += 2) {
+  // Four rows per sweep: each v_j and p_j is loaded once for four matrix entries.
+  for (; i + 4 <= n; i += 4) {
     const o0 = i * n;
     const o1 = o0 + n;
+    const o2 = o1 + n;
+    const o3 = o2 + n;
     const v0 = vec[vo + i]!;
     const v1 = vec[vo + i + 1]!;
-    let t0 = 0;
-    let t1 = 0;
+    const v2 = vec[vo + i + 2]!;
+    const v3 = vec[vo + i + 3]!;
+    let t0 = 0, t1 = 0, t2 = 0, t3 = 0;
     for (let j = s0; j < i; j++) {
       const a0 = a[o0 + j]!;
       const a1 = a[o1 + j]!;
+      const a2 = a[o2 + j]!;
+      const a3 = a[o3 + j]!;
       const vj = vec[vo + j]!;
       t0 += a0 * vj;
       t1 += a1 * vj;
-      p[j] += a0 * v0 + a1 * v1;
+      t2 += a2 * vj;
+      t3 += a3 * vj;
+      p[j] += a0 * v0 + a1 * v1 + a2 * v2 + a3 * v3;
     }
-    const a10 = a[o1 + i]!;
-    p[i] += t0 + a[o0 + i]! * v0 + a10 * v1;
-    p[i + 1] += t1 + a10 * v0 + a[o1 + i + 1]! * v1;
+    // The 4 × 4 diagonal block (lower part read, mirrored).
+    for (let r = 0; r < 4; r++) {
+      const or = o0 + r * n;
+      let s = r === 0 ? t0 : r === 1 ? t1 : r === 2 ? t2 : t3;
+      for (let q = 0; q < 4; q++) {
+        const arq = q <= r ? a[or + i + q]! : a[o0 + q * n + i + r]!;
+        s += arq * vec[vo + i + q]!;
+      }
+      p[i + r] += s;
+    }
   }
-  if (i < n) {
+  for (; i < n; i++) {
     const o = i * n;
     const vi = vec[vo + i]!;
     let t = 0;
