@@ -47,10 +47,10 @@ export function cloneMatrix(a: Matrix): Matrix {
   return matrix(a.rows, a.cols, a.data.slice());
 }
 
+/** Aᵀ as a new matrix (cache-blocked in 32 × 32 tiles). */
 export function transpose(a: Matrix): Matrix {
   const out = matrix(a.cols, a.rows);
-  const { rows, cols, data } = a;
-  for (let i = 0; i < rows; i++) for (let j = 0; j < cols; j++) out.data[j * rows + i] = data[i * cols + j]!;
+  transposeBlock(a.rows, a.cols, a.data, 0, a.cols, out.data, 0, a.rows);
   return out;
 }
 

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { fromRows, matrix, type Matrix } from '../../../src/core/linalg/matrix.ts';
+import { fromRows, matrix, transpose, type Matrix } from '../../../src/core/linalg/matrix.ts';
 import {
   columnSumsOfSquares,
   mirrorLowerToUpper,
@@ -73,5 +73,17 @@ describe('dense products', () => {
   it('shape mismatches throw with both shapes', () => {
     expect(() => multiply(matrix(2, 3), matrix(4, 2))).toThrow(/A is 2×3, B is 4×2/);
     expect(() => multiplyNT(matrix(2, 3), matrix(4, 2))).toThrow(/expected 3 columns/);
+  });
+});
+
+describe('transpose', () => {
+  it('matches the definition on shapes around the 32-wide tiles', () => {
+    for (const [r, c] of [[1, 1], [3, 70], [33, 31], [65, 64]] as const) {
+      const a = randomMatrix(r, c, r * 100 + c);
+      const t = transpose(a);
+      expect([t.rows, t.cols]).toEqual([c, r]);
+      for (let i = 0; i < r; i++) for (let j = 0; j < c; j++) expect(t.data[j * r + i]).toBe(a.data[i * c + j]);
+      expect(Array.from(transposeOf(a).data)).toEqual(Array.from(t.data));
+    }
   });
 });
