@@ -282,13 +282,21 @@ function tridiagonaliseInPlace(w: Float64Array, n: number, betas: Float64Array):
  */
 function tridiagonalQL(d: Float64Array, e: Float64Array, z: Float64Array | null, zcols = d.length): void {
   const n = d.length;
+  // Deflate when an off-diagonal is negligible relative to its neighbours OR to ‖T‖: the second,
+  // absolute test keeps clusters of eigenvalues near zero (numerically singular covariances, where
+  // |d| itself is at round-off level) from cycling forever. Eigenvalues are only determined to
+  // O(ε‖T‖) anyway (Golub & Van Loan §8.3, memory), so the absolute test loses nothing.
+  let tnorm = 0;
+  for (let i = 0; i < n; i++) tnorm = Math.max(tnorm, Math.abs(d[i]!) + Math.abs(e[i]!) + (i > 0 ? Math.abs(e[i - 1]!) : 0));
+  const absoluteTol = EPS * tnorm;
   for (let l = 0; l < n; l++) {
     let iter = 0;
     for (;;) {
       let m = l;
       for (; m < n - 1; m++) {
         const dd = Math.abs(d[m]!) + Math.abs(d[m + 1]!);
-        if (Math.abs(e[m]!) <= EPS * dd) break;
+        const em = Math.abs(e[m]!);
+        if (em <= EPS * dd || em <= absoluteTol) break;
       }
       if (m === l) break;
       if (++iter > 60) {
