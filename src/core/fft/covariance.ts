@@ -139,8 +139,7 @@ export class CirculantProduct {
   fromSpectrum(spec: Float64Array, outA: Float64Array, outB: Float64Array | null, offsetA = 0, offsetB = 0): void {
     const { nx, ny, px } = this;
     const w = this.work;
-    w.set(spec);
-    this.fft.columnFilter(w, this.lambdaT, ny, ny);
+    this.fft.columnFilter(spec, this.lambdaT, ny, ny, w);
     this.fft.rows(w, ny, true);
     for (let iy = 0; iy < ny; iy++) {
       const o = 2 * px * iy;

@@ -105,19 +105,30 @@ function lagOffsets(j: number, p: number): number[] {
   return [j, -j];
 }
 
-/** The periodic base c̃ on a px × py torus (see the module comment). */
+/**
+ * The periodic base c̃ on a px × py torus (see the module comment). Evaluated on half the torus
+ * (jy ≤ py/2) and mirrored, c̃(−j) = c̃(j) (indices mod p), which holds exactly because the
+ * kernel is even and the Nyquist lags are averaged.
+ */
 export function circulantBase(grid: Grid, terms: readonly Term[], px: number, py: number): Float64Array {
   const { dx, dy } = gridAxes(grid);
   const cov = stationaryCovariance(terms);
   const base = new Float64Array(px * py);
   const xs = Array.from({ length: px }, (_, j) => lagOffsets(j, px));
-  for (let jy = 0; jy < py; jy++) {
+  const half = Math.floor(py / 2);
+  for (let jy = 0; jy <= half; jy++) {
     const oys = lagOffsets(jy, py);
+    const my = jy === 0 ? 0 : py - jy;
     for (let jx = 0; jx < px; jx++) {
       const oxs = xs[jx]!;
       let s = 0;
-      for (const ox of oxs) for (const oy of oys) s += cov(ox * dx, oy * dy);
-      base[jx + px * jy] = s / (oxs.length * oys.length);
+      if (oxs.length === 1 && oys.length === 1) s = cov(oxs[0]! * dx, oys[0]! * dy);
+      else {
+        for (const ox of oxs) for (const oy of oys) s += cov(ox * dx, oy * dy);
+        s /= oxs.length * oys.length;
+      }
+      base[jx + px * jy] = s;
+      base[(jx === 0 ? 0 : px - jx) + px * my] = s;
     }
   }
   return base;

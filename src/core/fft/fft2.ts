@@ -123,7 +123,7 @@ export class Fft2 {
    * gatherRows, scatterRows ≤ its row count.
    */
   private columns(buf: Float64Array, inverse: boolean, gatherRows = this.py, scatterRows = this.py): void {
-    this.columnPass(buf, gatherRows, scatterRows, (col, out) => {
+    this.columnPass(buf, buf, gatherRows, scatterRows, (col, out) => {
       if (inverse) plan(this.py).inverseTransform(out, col);
       else plan(this.py).transform(out, col);
       return out;
@@ -134,26 +134,25 @@ export class Fft2 {
    * Circulant filtering along y fused with both y-passes: for each column ix,
    * col ← F⁻¹_y (λ[ix, ·] ⊙ F_y col). `lambdaT` is λ transposed (element (kx, ky) at kx·py + ky).
    * After forward x-passes on rows < gatherRows and with inverse x-passes on rows < scatterRows
-   * this gives F⁻¹ (λ ⊙ F x) without a full-size buffer or a second gather.
+   * this gives F⁻¹ (λ ⊙ F x) without a full-size buffer or a second gather. Reads `buf`, writes
+   * `dest` (default: `buf` itself).
    */
-  columnFilter(buf: Float64Array, lambdaT: Float64Array, gatherRows: number, scatterRows: number): void {
+  columnFilter(buf: Float64Array, lambdaT: Float64Array, gatherRows: number, scatterRows: number, dest: Float64Array = buf): void {
     const py = this.py;
     if (py === 1) {
       // No y-axis: a pointwise product along x.
       const px = this.px;
       for (let ix = 0; ix < px; ix++) {
         const l = lambdaT[ix]!;
-        buf[2 * ix] *= l;
-        buf[2 * ix + 1] *= l;
+        dest[2 * ix] = l * buf[2 * ix]!;
+        dest[2 * ix + 1] = l * buf[2 * ix + 1]!;
       }
       return;
     }
     const f = plan(py);
-    let ix = 0;
-    this.columnPass(buf, gatherRows, scatterRows, (col, out, column) => {
-      ix = column;
+    this.columnPass(buf, dest, gatherRows, scatterRows, (col, out, column) => {
       f.transform(out, col);
-      const o = ix * py;
+      const o = column * py;
       for (let k = 0; k < py; k++) {
         const l = lambdaT[o + k]!;
         out[2 * k] *= l;
@@ -166,6 +165,7 @@ export class Fft2 {
 
   private columnPass(
     buf: Float64Array,
+    dest: Float64Array,
     gatherRows: number,
     scatterRows: number,
     apply: (col: Float64Array, out: Float64Array, column: number) => Float64Array,
@@ -194,8 +194,8 @@ export class Fft2 {
         const o = r * w + 2 * c0;
         for (let b = 0; b < nb; b++) {
           const col = this.colIn[b]!;
-          buf[o + 2 * b] = col[2 * r]!;
-          buf[o + 2 * b + 1] = col[2 * r + 1]!;
+          dest[o + 2 * b] = col[2 * r]!;
+          dest[o + 2 * b + 1] = col[2 * r + 1]!;
         }
       }
     }

@@ -23,7 +23,7 @@ import { InputError, NotPositiveDefiniteError } from '../errors.ts';
 import { cellCount } from '../grid/grid.ts';
 import { cholesky, choleskySolve, solveLower, solveLowerMatrix } from '../linalg/cholesky.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
-import { applyOperator, assertNever, operatorRow, type Operator } from '../linalg/operator.ts';
+import { applyOperator, assertNever, type Operator } from '../linalg/operator.ts';
 import { CirculantProduct, nonStationaryReason } from '../fft/covariance.ts';
 import { meanVector, validatePrior } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
@@ -32,8 +32,12 @@ import { chiSquareInterval } from './chisquare.ts';
 import { posteriorSummary, preparePosterior } from './posterior.ts';
 import type { PosteriorSummary } from './types.ts';
 
-/** Default memory budget for cached row spectra (bytes). */
-export const DEFAULT_SPECTRUM_CACHE_BYTES = 128 * 1024 * 1024;
+/**
+ * Default memory budget for cached row spectra (bytes): 2·px·ny·8 bytes per pair of data, so 26 MB
+ * for 64² cells and M = 400, but 105 MB for 128², which is then recomputed per call to keep the
+ * peak memory of that case under 300 MB.
+ */
+export const DEFAULT_SPECTRUM_CACHE_BYTES = 64 * 1024 * 1024;
 
 /** A problem with its cache of row spectra for the FFT path. */
 export interface StructuredProblem {
@@ -110,11 +114,23 @@ function validateProblem(problem: Problem, n: number): number {
   return rows;
 }
 
-/** Rows of G scaled by the std profile: (s ⊙ g_k). */
-function scaledRow(g: Operator, k: number, s: readonly number[] | undefined): Float64Array {
-  const row = operatorRow(g, k);
-  if (s !== undefined) for (let i = 0; i < row.length; i++) row[i] *= s[i]!;
-  return row;
+/** Row k of G scaled by the std profile, s ⊙ g_k, written into `out` (length N). */
+function scaledRow(g: Operator, k: number, s: readonly number[] | undefined, out: Float64Array): Float64Array {
+  switch (g.kind) {
+    case 'dense':
+      out.set(g.matrix.data.subarray(k * g.matrix.cols, (k + 1) * g.matrix.cols));
+      break;
+    case 'sparse': {
+      out.fill(0);
+      const { rowPtr, colIdx, values } = g.matrix;
+      for (let q = rowPtr[k]!; q < rowPtr[k + 1]!; q++) out[colIdx[q]!] += values[q]!;
+      break;
+    }
+    default:
+      assertNever(g);
+  }
+  if (s !== undefined) for (let i = 0; i < out.length; i++) out[i] *= s[i]!;
+  return out;
 }
 
 /**
@@ -154,6 +170,8 @@ export function prepareStructuredPosterior(sp: StructuredProblem | Problem, prio
   const Bt = matrix(m, n);
   const bt = Bt.data;
   const scratch = spectraCached || fits ? null : new Float64Array(cp.spectrumLength);
+  const rowA = new Float64Array(n);
+  const rowB = new Float64Array(n);
   let tProducts = 0;
   for (let p = 0; p < pairs; p++) {
     const a = 2 * p;
@@ -164,7 +182,7 @@ export function prepareStructuredPosterior(sp: StructuredProblem | Problem, prio
     } else {
       const ts = now();
       spec = scratch ?? new Float64Array(cp.spectrumLength);
-      cp.spectrum(scaledRow(g, a, s), b < 0 ? null : scaledRow(g, b, s), spec);
+      cp.spectrum(scaledRow(g, a, s, rowA), b < 0 ? null : scaledRow(g, b, s, rowB), spec);
       if (fits) spectra.push(spec);
       spectraTime += now() - ts;
     }

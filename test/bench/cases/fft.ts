@@ -153,6 +153,8 @@ interface ChildResult {
   readonly median_ms: number;
   readonly times_ms: number[];
   readonly peak_rss_mb: number;
+  /** Median user + system CPU time of this process per run (less sensitive to other load). */
+  readonly median_cpu_ms: number;
 }
 
 function median(xs: number[]): number {
@@ -166,13 +168,20 @@ function runChild(index: number): ChildResult {
   const fn = c.setup();
   for (let i = 0; i < (c.warmup ?? 1); i++) fn();
   const times: number[] = [];
+  const cpu: number[] = [];
   for (let i = 0; i < Math.max(5, c.runs ?? 5); i++) {
+    const c0 = process.cpuUsage();
     const t0 = performance.now();
     const out = fn();
     times.push(performance.now() - t0);
-    if (typeof out === 'number' && c.name.startsWith('fft.js')) times[times.length - 1]! /= out;
+    const du = process.cpuUsage(c0);
+    cpu.push((du.user + du.system) / 1000);
+    if (typeof out === 'number' && c.name.startsWith('fft.js')) {
+      times[times.length - 1]! /= out;
+      cpu[cpu.length - 1]! /= out;
+    }
   }
-  return { name: c.name, median_ms: median(times), times_ms: times, peak_rss_mb: process.resourceUsage().maxRSS / 1024 };
+  return { name: c.name, median_ms: median(times), times_ms: times, peak_rss_mb: process.resourceUsage().maxRSS / 1024, median_cpu_ms: median(cpu) };
 }
 
 function csrJson(s: SparseMatrix) {
