@@ -28,17 +28,9 @@ import {
 } from './traces.ts';
 import type { ProblemView } from '../worker/protocol.ts';
 
-/**
- * Units of the data of the built-in demos (the problem format has no data unit yet; see the report).
- */
-const DATA_UNITS: Record<string, string> = {
-  'borehole-log': '°C',
-  'crosshole-tomography': 'ms',
-  'potential-field': 'mGal',
-};
-
+/** Unit of the data values as the problem states it (`data.unit`), else a neutral label. */
 export function dataUnit(p: ProblemView): string {
-  return (p.demoId && DATA_UNITS[p.demoId]) || 'data units';
+  return p.dataUnit || 'data units';
 }
 
 function qLabel(p: ProblemView): string {

@@ -26,6 +26,7 @@ import {
   type ResultMap,
   type WorkerRequest,
 } from './protocol.ts';
+import { isTuningRequest, runTuning } from './tuning.ts';
 
 /** Largest N for which the dense covariance is sent to the UI as a heat map. */
 export const COVARIANCE_VIEW_LIMIT = 400;
@@ -86,6 +87,7 @@ export function problemView(
     operatorKind: g.kind,
     operatorNonZeros: g.kind === 'dense' ? g.matrix.rows * g.matrix.cols : g.matrix.values.length,
     quantity: { name: problem.quantity?.name ?? 'value', unit: problem.quantity?.unit ?? '' },
+    dataUnit: problem.data.unit ?? '',
     startPrior: extra.startPrior,
     truthPrior: extra.truthPrior,
   };
@@ -127,6 +129,8 @@ export class Engine {
   }
 
   private async run(r: Exclude<WorkerRequest, { kind: 'cancel' }>, progress: ProgressFn): Promise<ResultMap[RequestKind]> {
+    // Prior selection (issue 7): chunked, cancellable runs in ./tuning.ts.
+    if (isTuningRequest(r)) return runTuning(this.requireProblem(r.problemVersion), r, progress);
     switch (r.kind) {
       case 'loadDemo': {
         const demo = DEMOS.find((d) => d.id === r.demoId);

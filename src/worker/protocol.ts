@@ -15,6 +15,7 @@ import type { Problem } from '../core/problems/spec.ts';
 import type { Grid } from '../core/grid/grid.ts';
 import type { Matrix } from '../core/linalg/matrix.ts';
 import type { PosteriorSummary } from '../core/inverse/types.ts';
+import { isTuningKind, TUNING_KINDS, type TuningKind, type TuningRequest, type TuningResultMap } from './tuningProtocol.ts';
 
 /** What the main thread needs to draw a problem (the operator itself stays in the worker). */
 export interface ProblemView {
@@ -34,6 +35,8 @@ export interface ProblemView {
   /** Non-zeros of G (all entries for a dense G). */
   readonly operatorNonZeros: number;
   readonly quantity: { readonly name: string; readonly unit: string };
+  /** Unit of the data values ('' when the problem gives none). */
+  readonly dataUnit: string;
   readonly startPrior: PriorSpec | null;
   readonly truthPrior: PriorSpec | null;
 }
@@ -52,7 +55,7 @@ export interface RequestBase {
 }
 
 /** Requests of one channel supersede each other (latest wins). */
-export type Channel = 'problem' | 'posterior' | 'diagnostics' | 'priorDraws' | 'posteriorDraws' | 'resolution' | 'covariance';
+export type Channel = 'problem' | 'posterior' | 'diagnostics' | 'priorDraws' | 'posteriorDraws' | 'resolution' | 'covariance' | TuningKind;
 
 /** Order in which the worker runs pending channels: the posterior plot first. */
 export const CHANNEL_PRIORITY: readonly Channel[] = [
@@ -63,6 +66,7 @@ export const CHANNEL_PRIORITY: readonly Channel[] = [
   'priorDraws',
   'posteriorDraws',
   'covariance',
+  ...TUNING_KINDS,
 ];
 
 export type WorkerRequest =
@@ -86,13 +90,15 @@ export type WorkerRequest =
     })
   | (RequestBase & { readonly kind: 'resolution'; readonly problemVersion: number; readonly prior: PriorSpec; readonly cell: number })
   | (RequestBase & { readonly kind: 'covariance'; readonly problemVersion: number; readonly prior: PriorSpec })
-  /** Drop a queued request (no reply is sent for it). */
+  /** Prior selection (issue 7): see ./tuningProtocol.ts. */
+  | TuningRequest
+  /** Drop a queued request (no reply is sent for it); a running tuning request is aborted. */
   | (RequestBase & { readonly kind: 'cancel'; readonly target: number });
 
 export type RequestKind = Exclude<WorkerRequest['kind'], 'cancel'>;
 
 /** Result type of each request kind. */
-export interface ResultMap {
+export interface ResultMap extends TuningResultMap {
   loadDemo: ProblemView;
   setProblem: ProblemView;
   posterior: PosteriorResult;
@@ -105,6 +111,7 @@ export interface ResultMap {
 
 /** The channel each request kind belongs to. */
 export function channelOf(kind: RequestKind): Channel {
+  if (isTuningKind(kind)) return kind;
   switch (kind) {
     case 'loadDemo':
     case 'setProblem':

@@ -71,7 +71,8 @@ function readGrid(r: JsonReader, value: unknown): Grid {
 }
 
 function readData(r: JsonReader, value: unknown): DataSpec {
-  const d = r.object(value, 'data', ['values', 'sigma', 'covariance']);
+  const d = r.object(value, 'data', ['values', 'sigma', 'covariance', 'unit']);
+  const unit = d.unit !== undefined ? { unit: r.string(d.unit, 'data.unit') } : {};
   const values = r.vector(r.required(d, 'data', 'values', 'an array of numbers (the data)'), 'data.values');
   const m = values.length;
   if (m === 0) r.fail('data.values', 'a non-empty array of numbers', values);
@@ -81,10 +82,10 @@ function readData(r: JsonReader, value: unknown): DataSpec {
   if (d.covariance !== undefined) {
     const c = r.matrixRows(d.covariance, 'data.covariance', m, m);
     checkDataCovariance(r, c);
-    return { values, covariance: c };
+    return { values, covariance: c, ...unit };
   }
   if (d.sigma === undefined) r.fail('data.sigma', `an array of ${m} numbers > 0 (or give data.covariance)`, undefined);
-  return { values, sigma: r.vector(d.sigma, 'data.sigma', m, { gt: 0 }) };
+  return { values, sigma: r.vector(d.sigma, 'data.sigma', m, { gt: 0 }), ...unit };
 }
 
 /** Symmetric to 1e-12 of the largest |entry|, and positive definite by the Cholesky test. */
@@ -249,6 +250,7 @@ export function problemToJson(problem: Problem, operatorFile?: string): Record<s
     const c = d.covariance;
     data.covariance = Array.from({ length: c.rows }, (_, i) => vec(c.data.subarray(i * c.cols, (i + 1) * c.cols)));
   } else if (d.sigma) data.sigma = vec(d.sigma);
+  if (d.unit !== undefined) data.unit = d.unit;
   const out: Record<string, unknown> = { kind: PROBLEM_KIND, version: PROBLEM_VERSION };
   if (problem.title !== undefined) out.title = problem.title;
   out.grid = grid;

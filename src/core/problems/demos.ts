@@ -99,7 +99,7 @@ const boreholeLog: DemoProblem = {
       title: 'Borehole temperature log',
       grid: BOREHOLE_GRID,
       operator: G,
-      data: { values, sigma },
+      data: { values, sigma, unit: '°C' },
       truth,
       quantity: { name: 'temperature', unit: '°C' },
     };
@@ -146,7 +146,7 @@ const crossholeTomography: DemoProblem = {
       title: 'Crosshole travel-time tomography',
       grid: CROSSHOLE_GRID,
       operator: G,
-      data: { values, sigma },
+      data: { values, sigma, unit: 'ms' },
       truth,
       quantity: { name: 'slowness perturbation', unit: 's/km' },
     };
@@ -188,7 +188,7 @@ const potentialField: DemoProblem = {
       title: 'Gravity profile over a buried basin',
       grid: POTENTIAL_GRID,
       operator: G,
-      data: { values, sigma },
+      data: { values, sigma, unit: 'mGal' },
       truth,
       quantity: { name: 'density contrast', unit: 'kg/m³' },
     };

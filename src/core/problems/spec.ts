@@ -12,6 +12,8 @@ export interface DataSpec {
   readonly sigma?: Float64Array;
   /** Full symmetric positive-definite data covariance (M × M). */
   readonly covariance?: Matrix;
+  /** Unit of the data values, e.g. "ms" or "mGal" (optional, for labels). */
+  readonly unit?: string;
 }
 
 export interface Problem {

@@ -30,8 +30,9 @@ const siblings = (files: Record<string, Uint8Array | string>) => (name: string) 
 
 describe('parseProblemFile', () => {
   it('reads a dense problem with every optional field', () => {
-    const text = problem({ title: 'invented', truth: [1, 2, 3], quantity: { name: 'slowness', unit: 's/m' }, grid: { shape: [3], spacing: [2], origin: [10], unit: 'm' } });
+    const text = problem({ title: 'invented', truth: [1, 2, 3], quantity: { name: 'slowness', unit: 's/m' }, grid: { shape: [3], spacing: [2], origin: [10], unit: 'm' } }, { unit: 'ms' });
     const { problem: p, warnings } = parseProblemFile('p.json', text);
+    expect(p.data.unit).toBe('ms');
     expect(warnings).toEqual([]);
     expect(p.grid).toEqual({ shape: [3], spacing: [2], origin: [10], unit: 'm' });
     expect(p.operator.kind).toBe('dense');
@@ -93,6 +94,7 @@ describe('parseProblemFile', () => {
     ['overflowing number', problem().replace('[1,2]', '[1,1e999]'), 'p.json: data.values[1] must be a finite number, got Infinity'],
     ['NaN string', problem({}, { values: [1, 'NaN'] }), 'p.json: data.values[1] must be a finite number, got "NaN"'],
     ['negative sigma', problem({}, { sigma: [0.1, -1] }), 'p.json: data.sigma[1] must be > 0, got -1'],
+    ['data unit not text', problem({}, { unit: 5 }), 'p.json: data.unit must be a string, got 5'],
     ['both sigma and covariance', problem({}, { covariance: [[1, 0], [0, 1]] }), 'p.json: data must be an object with either sigma or covariance, not both, got "both"'],
     ['non-symmetric covariance', problem({}, { sigma: undefined, covariance: [[1, 0.5], [0.4, 1]] }), 'p.json: data.covariance[1][0] must be equal to data.covariance[0][1] = 0.5 (the covariance must be symmetric), got 0.4'],
     ['non-PD covariance', problem({}, { sigma: undefined, covariance: [[1, 2], [2, 1]] }), 'p.json: data.covariance must be positive definite, got a matrix whose Cholesky factorisation fails at row 1 (pivot -3)'],
