@@ -1,0 +1,344 @@
+/**
+ * The worker side of prior selection (issue 7): runs the tuning requests of ./tuningProtocol.ts on
+ * the numerical core (src/core/tuning) for the problem the engine holds.
+ *
+ * ## Progress and cancellation
+ * The core's calls are synchronous, so a call that runs for seconds would keep the worker's
+ * message loop from seeing a `cancel` or a newer request. Long requests are therefore cut into
+ * units that are separate core calls, and between units the request awaits a macrotask
+ * ({@link yieldToMessages}, a `setTimeout(0)`), during which the worker handles incoming messages;
+ * the queue then sets this request's abort flag (./tuningSignals.ts), which is checked after the
+ * yield. Units:
+ * - evidence map: one row (one length, every variance) per core call — the row's lengths axis is
+ *   {min: ℓ_i, max: ℓ_i, count: 1}, so each value is computed exactly as in the whole-map call
+ *   (same ℓ_i from logSpaced, same 'auto' method choice, which depends on the variance count only);
+ * - ν profile: one ν per call (the core factors per ν anyway); the nugget profile is one call (one
+ *   eigendecomposition serves all values, cheap);
+ * - calibration: chunks of replicates, chunk k seeded with (seed + k) mod 2³² (our own stream
+ *   contract for the UI: {@link calibrationChunks}), merged by {@link mergeCalibration};
+ * - candidates: one candidate per unit; cross-calibration: one (truth, inversion) pair per unit,
+ *   every pair with the same seed (common random numbers, as calibrationTable does).
+ * The type-II fit is one core call (BFGS state cannot be split without changing the optimiser);
+ * it reports progress but can only be cancelled before it starts.
+ */
+import { cellCount } from '../core/grid/grid.ts';
+import { posteriorRealisations, posteriorSummary, preparePosterior } from '../core/inverse/posterior.ts';
+import { diagnosePrior } from '../core/prior/diagnostics.ts';
+import type { PriorSpec } from '../core/prior/spec.ts';
+import type { Problem } from '../core/problems/spec.ts';
+import {
+  calibrate,
+  evidenceMap,
+  evidenceProfile,
+  leaveOneOut,
+  logEvidence,
+  logSpaced,
+  maximiseEvidence,
+  priorCriteria,
+  priorPredictiveCheck,
+  type CalibrationResult,
+  type EvidenceMap,
+  type EvidenceMethod,
+  type EvidenceProfile,
+} from '../core/tuning/index.ts';
+import { InputError } from '../core/errors.ts';
+import { assertNever, type WorkerRequest } from './protocol.ts';
+import type { CandidateScores, CrossCalibration, TuningRequest, TuningResultMap } from './tuningProtocol.ts';
+import { isTuningKind } from './tuningProtocol.ts';
+import { closeSignal, openSignal, type AbortFlag } from './tuningSignals.ts';
+
+export type ProgressFn = (stage: string, fraction: number) => void;
+
+/** Largest number of values on one evidence-map axis accepted from the UI. */
+export const MAX_AXIS_COUNT = 200;
+/** Largest number of calibration replicates per request. */
+export const MAX_REPLICATES = 2000;
+/** Largest number of pinned candidates. */
+export const MAX_CANDIDATES = 4;
+
+export function isTuningRequest(r: WorkerRequest): r is TuningRequest {
+  return isTuningKind(r.kind);
+}
+
+/** Let the worker's message loop run (a macrotask). */
+export function yieldToMessages(): Promise<void> {
+  return new Promise((resolve) => setTimeout(resolve, 0));
+}
+
+/** Run one tuning request; `flag` (tests) replaces the registry's abort flag. */
+export async function runTuning<K extends TuningRequest['kind']>(
+  problem: Problem,
+  req: Extract<TuningRequest, { kind: K }>,
+  progress: ProgressFn = () => {},
+  flag?: AbortFlag,
+): Promise<TuningResultMap[K]> {
+  const r = req as TuningRequest;
+  const signal = flag ?? openSignal(r.id, r.kind);
+  try {
+    return (await dispatch(problem, r, progress, signal)) as TuningResultMap[K];
+  } finally {
+    if (!flag) closeSignal(r.id);
+  }
+}
+
+async function dispatch(problem: Problem, r: TuningRequest, progress: ProgressFn, signal: AbortFlag): Promise<TuningResultMap[TuningRequest['kind']]> {
+  switch (r.kind) {
+    case 'evidenceMap':
+      return mapByRows(problem, r.prior, r.term, r.lengths, r.variances, progress, signal);
+    case 'evidenceProfile':
+      return profile(problem, r, progress, signal);
+    case 'typeII':
+      progress('type-II maximum likelihood', 0);
+      return maximiseEvidence(problem, r.prior, { fixed: r.fixed, signal, onProgress: (f) => progress('type-II maximum likelihood', f) });
+    case 'criteria':
+      return priorCriteria(problem, r.prior);
+    case 'calibration':
+      return calibrationByChunks(problem, r.prior, r, progress, signal);
+    case 'candidates':
+      return scoreCandidates(problem, r.priors, r.draws, r.seed, progress, signal);
+    case 'crossCalibration':
+      return crossCalibration(problem, r.priors, r, progress, signal);
+    default:
+      return assertNever(r);
+  }
+}
+
+function checkAxisCount(field: string, count: number): void {
+  if (!Number.isInteger(count) || count < 1 || count > MAX_AXIS_COUNT) throw new InputError(`${field}.count`, `an integer from 1 to ${MAX_AXIS_COUNT}`, count);
+}
+
+/** The evidence map computed one length (row) per core call, yielding between rows (module comment). */
+export async function mapByRows(
+  problem: Problem,
+  prior: PriorSpec,
+  term: number,
+  lengthAxis: { min: number; max: number; count: number },
+  varianceAxis: { min: number; max: number; count: number },
+  progress: ProgressFn,
+  signal: AbortFlag,
+): Promise<EvidenceMap> {
+  checkAxisCount('lengths', lengthAxis.count);
+  checkAxisCount('variances', varianceAxis.count);
+  const lengths = logSpaced(lengthAxis, 'lengths');
+  const variances = logSpaced(varianceAxis, 'variances');
+  const nl = lengths.length;
+  const nv = variances.length;
+  const out = new Float64Array(nl * nv).fill(Number.NaN);
+  const methods: EvidenceMethod[] = [];
+  let note: string | undefined;
+  let cancelled = false;
+  for (let i = 0; i < nl; i++) {
+    if (i > 0) await yieldToMessages();
+    if (signal.aborted) {
+      cancelled = true;
+      break;
+    }
+    const L = lengths[i]!;
+    const row = evidenceMap(problem, prior, { term, lengths: { min: L, max: L, count: 1 }, variances: varianceAxis });
+    out.set(row.logEvidence, i * nv);
+    methods.push(row.methodByLength[0]!);
+    if (row.note !== undefined) note = row.note;
+    progress(`evidence map: length ${i + 1} of ${nl}`, (i + 1) / nl);
+  }
+  let best: EvidenceMap['best'] = null;
+  for (let k = 0; k < out.length; k++) {
+    const v = out[k]!;
+    if (Number.isFinite(v) && (best === null || v > best.logEvidence)) best = { length: lengths[Math.floor(k / nv)]!, variance: variances[k % nv]!, logEvidence: v, index: k };
+  }
+  const method: EvidenceMethod = methods.length > 0 && methods.every((m) => m === 'eigen') ? 'eigen' : 'cholesky';
+  return { term, lengths, variances, logEvidence: out, method, methodByLength: methods, best, cancelled, ...(note !== undefined ? { note } : {}) };
+}
+
+async function profile(problem: Problem, r: Extract<TuningRequest, { kind: 'evidenceProfile' }>, progress: ProgressFn, signal: AbortFlag): Promise<EvidenceProfile> {
+  if (r.which.parameter === 'nugget') return evidenceProfile(problem, r.prior, r.which, { values: r.values, signal });
+  const values = Float64Array.from(r.values);
+  const out = new Float64Array(values.length).fill(Number.NaN);
+  let cancelled = false;
+  for (let k = 0; k < values.length; k++) {
+    if (k > 0) await yieldToMessages();
+    if (signal.aborted) {
+      cancelled = true;
+      break;
+    }
+    out[k] = evidenceProfile(problem, r.prior, r.which, { values: [values[k]!] }).logEvidence[0]!;
+    progress(`ν profile: value ${k + 1} of ${values.length}`, (k + 1) / values.length);
+  }
+  let best: EvidenceProfile['best'] = null;
+  for (let k = 0; k < out.length; k++) {
+    const v = out[k]!;
+    if (Number.isFinite(v) && (best === null || v > best.logEvidence)) best = { value: values[k]!, logEvidence: v, index: k };
+  }
+  return { parameter: 'nu', values, logEvidence: out, method: 'cholesky', best, cancelled };
+}
+
+/** Replicate counts and seeds of the calibration chunks: at most 10 chunks, chunk k seeded (seed + k) mod 2³². */
+export function calibrationChunks(replicates: number, seed: number): { replicates: number; seed: number }[] {
+  if (!Number.isInteger(replicates) || replicates < 1 || replicates > MAX_REPLICATES) throw new InputError('replicates', `an integer from 1 to ${MAX_REPLICATES}`, replicates);
+  const size = Math.max(1, Math.ceil(replicates / 10));
+  const out: { replicates: number; seed: number }[] = [];
+  for (let done = 0, k = 0; done < replicates; k++) {
+    const n = Math.min(size, replicates - done);
+    out.push({ replicates: n, seed: (seed + k) >>> 0 });
+    done += n;
+  }
+  return out;
+}
+
+/**
+ * Merge calibration results of disjoint replicate sets of one (truth, inversion) pair: coverages
+ * weighted by replicate count, per-replicate coverages concatenated, rank histograms summed.
+ */
+export function mergeCalibration(parts: readonly CalibrationResult[]): CalibrationResult {
+  const used = parts.filter((p) => p.replicates > 0);
+  if (used.length === 0) {
+    const p = parts[0];
+    if (!p) throw new InputError('parts', 'at least one calibration result', parts);
+    return p;
+  }
+  const total = used.reduce((a, p) => a + p.replicates, 0);
+  const n = used[0]!.cellCoverage68.length;
+  const c68 = new Float64Array(n);
+  const c95 = new Float64Array(n);
+  const hist = new Float64Array(used[0]!.rankHistogram.length);
+  let cov68 = 0;
+  let cov95 = 0;
+  for (const p of used) {
+    const w = p.replicates / total;
+    cov68 += w * p.coverage68;
+    cov95 += w * p.coverage95;
+    for (let i = 0; i < n; i++) {
+      c68[i] += w * p.cellCoverage68[i]!;
+      c95[i] += w * p.cellCoverage95[i]!;
+    }
+    for (let b = 0; b < hist.length; b++) hist[b] += p.rankHistogram[b]!;
+  }
+  const cat = (f: (p: CalibrationResult) => Float64Array) => {
+    const out = new Float64Array(total);
+    let o = 0;
+    for (const p of used) {
+      out.set(f(p).subarray(0, p.replicates), o);
+      o += p.replicates;
+    }
+    return out;
+  };
+  return {
+    coverage68: cov68,
+    coverage95: cov95,
+    cellCoverage68: c68,
+    cellCoverage95: c95,
+    replicateCoverage68: cat((p) => p.replicateCoverage68),
+    replicateCoverage95: cat((p) => p.replicateCoverage95),
+    rankHistogram: hist,
+    replicates: total,
+    draws: used[0]!.draws,
+    cancelled: parts.some((p) => p.cancelled),
+  };
+}
+
+async function calibrationByChunks(
+  problem: Problem,
+  prior: PriorSpec,
+  o: { replicates: number; draws: number; seed: number },
+  progress: ProgressFn,
+  signal: AbortFlag,
+): Promise<CalibrationResult> {
+  const chunks = calibrationChunks(o.replicates, o.seed);
+  const parts: CalibrationResult[] = [];
+  let done = 0;
+  for (const [k, c] of chunks.entries()) {
+    if (k > 0) await yieldToMessages();
+    if (signal.aborted) break;
+    parts.push(calibrate(problem, prior, prior, { replicates: c.replicates, draws: o.draws, seed: c.seed }));
+    done += c.replicates;
+    progress(`calibration: ${done} of ${o.replicates} replicates`, done / o.replicates);
+  }
+  if (parts.length === 0) {
+    // Cancelled before the first chunk: an empty, cancelled result of the right shape.
+    const n = cellCount(problem.grid);
+    return {
+      coverage68: Number.NaN,
+      coverage95: Number.NaN,
+      cellCoverage68: new Float64Array(n).fill(Number.NaN),
+      cellCoverage95: new Float64Array(n).fill(Number.NaN),
+      replicateCoverage68: new Float64Array(0),
+      replicateCoverage95: new Float64Array(0),
+      rankHistogram: new Float64Array(o.draws + 1),
+      replicates: 0,
+      draws: o.draws,
+      cancelled: true,
+    };
+  }
+  const merged = mergeCalibration(parts);
+  return done < o.replicates ? { ...merged, cancelled: true } : merged;
+}
+
+function checkCandidates(priors: readonly PriorSpec[]): void {
+  if (priors.length < 1 || priors.length > MAX_CANDIDATES) throw new InputError('candidates', `between 1 and ${MAX_CANDIDATES} pinned priors`, priors.length);
+}
+
+/** Scores, posterior mean/std and posterior draws of each candidate (one candidate per unit). */
+export async function scoreCandidates(
+  problem: Problem,
+  priors: readonly PriorSpec[],
+  draws: number,
+  seed: number,
+  progress: ProgressFn,
+  signal: AbortFlag,
+): Promise<CandidateScores[]> {
+  checkCandidates(priors);
+  const out: CandidateScores[] = [];
+  for (const [k, prior] of priors.entries()) {
+    if (k > 0) await yieldToMessages();
+    if (signal.aborted) break;
+    try {
+      const state = preparePosterior(problem, prior);
+      const s = posteriorSummary(state);
+      const ppc = priorPredictiveCheck(problem, prior);
+      out.push({
+        ok: true,
+        logEvidence: logEvidence(problem, prior),
+        looLogScore: leaveOneOut(problem, prior).logScore,
+        chi2PerDatum: s.chi2 / s.dataCount,
+        predictiveReduced: ppc.reduced,
+        predictiveP: ppc.pTwoSided,
+        conditionNumber: diagnosePrior(problem.grid, prior).conditionNumber,
+        mean: s.mean,
+        std: s.std,
+        draws: posteriorRealisations(state, draws, seed),
+      });
+    } catch (e) {
+      out.push({ ok: false, error: e instanceof Error ? e.message : String(e) });
+    }
+    progress(`scoring candidate ${k + 1} of ${priors.length}`, (k + 1) / priors.length);
+  }
+  return out;
+}
+
+async function crossCalibration(
+  problem: Problem,
+  priors: readonly PriorSpec[],
+  o: { replicates: number; draws: number; seed: number },
+  progress: ProgressFn,
+  signal: AbortFlag,
+): Promise<CrossCalibration> {
+  checkCandidates(priors);
+  calibrationChunks(o.replicates, o.seed); // validates the replicate count
+  const K = priors.length;
+  const c68 = new Float64Array(K * K).fill(Number.NaN);
+  const c95 = new Float64Array(K * K).fill(Number.NaN);
+  let cancelled = false;
+  for (let cell = 0; cell < K * K; cell++) {
+    if (cell > 0) await yieldToMessages();
+    if (signal.aborted) {
+      cancelled = true;
+      break;
+    }
+    const i = Math.floor(cell / K);
+    const j = cell % K;
+    const res = calibrate(problem, priors[i]!, priors[j]!, { replicates: o.replicates, draws: o.draws, seed: o.seed });
+    c68[cell] = res.coverage68;
+    c95[cell] = res.coverage95;
+    progress(`cross-calibration: pair ${cell + 1} of ${K * K}`, (cell + 1) / (K * K));
+  }
+  return { size: K, coverage68: c68, coverage95: c95, replicates: o.replicates, cancelled };
+}

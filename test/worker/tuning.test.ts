@@ -1,0 +1,159 @@
+/**
+ * The worker side of prior selection (src/worker/tuning.ts): the row-by-row evidence map must give
+ * the core's whole-map numbers, cancellation must stop between rows, both through a flag and
+ * through the queue's supersede / cancel path, and merged calibration chunks must keep the
+ * identities that hold for any calibration result. The core itself is checked against scipy and
+ * brute force in test/core/tuning and test/reference.
+ */
+import { describe, expect, it } from 'vitest';
+import { demoById } from '../../src/core/problems/demos.ts';
+import { calibrate, evidenceMap, leaveOneOut, logEvidence, priorPredictiveCheck, termLength } from '../../src/core/tuning/index.ts';
+import { posteriorSummary, preparePosterior } from '../../src/core/inverse/posterior.ts';
+import { calibrationChunks, mapByRows, mergeCalibration, runTuning, scoreCandidates } from '../../src/worker/tuning.ts';
+import { LatestWinsQueue } from '../../src/worker/queue.ts';
+import { runningCount } from '../../src/worker/tuningSignals.ts';
+import type { WorkerRequest } from '../../src/worker/protocol.ts';
+import { Engine } from '../../src/worker/engine.ts';
+
+const { problem, startPrior } = demoById('borehole-log').build();
+const t0 = startPrior.terms[0]!;
+const lengths = { min: 0.2 * termLength(t0), max: 5 * termLength(t0), count: 7 };
+const variances = { min: 0.01 * t0.variance, max: 100 * t0.variance, count: 5 };
+
+describe('evidence map by rows', () => {
+  it('equals the core whole-map call cell by cell, with the same maximum', async () => {
+    const whole = evidenceMap(problem, startPrior, { term: 0, lengths, variances });
+    const rows = await mapByRows(problem, startPrior, 0, lengths, variances, () => {}, { aborted: false });
+    expect(rows.cancelled).toBe(false);
+    expect(Array.from(rows.lengths)).toEqual(Array.from(whole.lengths));
+    // Same arithmetic on the same inputs: identical doubles.
+    expect(Array.from(rows.logEvidence)).toEqual(Array.from(whole.logEvidence));
+    expect(rows.best).toEqual(whole.best);
+    expect(rows.method).toBe(whole.method);
+  });
+
+  it('also with the eigen shortcut (≥ 24 variances) and a prior without nugget', async () => {
+    const prior = { ...startPrior, nugget: 0 };
+    const v = { ...variances, count: 30 };
+    const whole = evidenceMap(problem, prior, { term: 0, lengths, variances: v });
+    const rows = await mapByRows(problem, prior, 0, lengths, v, () => {}, { aborted: false });
+    expect(whole.method).toBe('eigen');
+    expect(rows.method).toBe('eigen');
+    expect(Array.from(rows.logEvidence)).toEqual(Array.from(whole.logEvidence));
+  });
+
+  it('stops between rows when the flag is set, leaving later rows NaN', async () => {
+    const flag = { aborted: false };
+    let reports = 0;
+    const map = await mapByRows(problem, startPrior, 0, lengths, variances, () => {
+      if (++reports === 2) flag.aborted = true;
+    }, flag);
+    expect(map.cancelled).toBe(true);
+    expect(map.methodByLength).toHaveLength(2);
+    expect(Number.isFinite(map.logEvidence[2 * variances.count - 1]!)).toBe(true);
+    expect(map.logEvidence.slice(2 * variances.count).every((x) => Number.isNaN(x))).toBe(true);
+  });
+
+  it('rejects an oversized axis with the field named', async () => {
+    await expect(mapByRows(problem, startPrior, 0, { ...lengths, count: 5000 }, variances, () => {}, { aborted: false })).rejects.toThrow(/lengths\.count/);
+  });
+});
+
+describe('cancellation through the queue', () => {
+  const req = (id: number): Extract<WorkerRequest, { kind: 'evidenceMap' }> => ({ id, kind: 'evidenceMap', problemVersion: 1, prior: startPrior, term: 0, lengths, variances });
+
+  it('a newer request of the same channel aborts the running one; cancel aborts by id', async () => {
+    const queue = new LatestWinsQueue<WorkerRequest & { id: number }>();
+    // Running job 1: the queue supersedes it as soon as it has finished its first row.
+    let pushed = false;
+    const run1 = runTuning(problem, req(1), () => {
+      if (!pushed) {
+        pushed = true;
+        queue.push('evidenceMap', req(2));
+      }
+    });
+    const r1 = await run1;
+    expect(r1.cancelled).toBe(true);
+    expect(r1.methodByLength.length).toBeLessThan(lengths.count);
+    // A push on another channel does not abort it.
+    let other = false;
+    const r3 = await runTuning(problem, req(3), () => {
+      if (!other) {
+        other = true;
+        queue.push('posterior', { id: 9, kind: 'posterior', problemVersion: 1, prior: startPrior });
+      }
+    });
+    expect(r3.cancelled).toBe(false);
+    // cancel of a running (no longer waiting) request.
+    let sent = false;
+    let removed: boolean | null = null;
+    const r4 = await runTuning(problem, req(4), () => {
+      if (!sent) {
+        sent = true;
+        removed = queue.remove(4);
+      }
+    });
+    expect(removed).toBe(true);
+    expect(r4.cancelled).toBe(true);
+    expect(runningCount()).toBe(0);
+  });
+
+  it('runs through the engine for the loaded problem', async () => {
+    const engine = new Engine();
+    await engine.handle({ id: 1, kind: 'loadDemo', version: 3, demoId: 'borehole-log' });
+    const map = await engine.handle({ ...req(2), problemVersion: 3 });
+    expect(map.best).toEqual(evidenceMap(problem, startPrior, { term: 0, lengths, variances }).best);
+    await expect(engine.handle({ ...req(3), problemVersion: 2 })).rejects.toThrow(/problem 2/);
+  });
+});
+
+describe('calibration chunks', () => {
+  it('splits replicates into at most 10 chunks with consecutive seeds', () => {
+    const c = calibrationChunks(25, 4294967295);
+    expect(c.reduce((a, x) => a + x.replicates, 0)).toBe(25);
+    expect(c.length).toBeLessThanOrEqual(10);
+    expect(c[0]!.seed).toBe(4294967295);
+    expect(c[1]!.seed).toBe(0);
+    expect(() => calibrationChunks(0, 1)).toThrow(/replicates/);
+  });
+
+  it('merged chunks keep the identities of a single calibration result', () => {
+    const a = calibrate(problem, startPrior, startPrior, { replicates: 3, draws: 9, seed: 5 });
+    const b = calibrate(problem, startPrior, startPrior, { replicates: 5, draws: 9, seed: 6 });
+    const m = mergeCalibration([a, b]);
+    const n = problem.grid.shape[0]!;
+    const mean = (x: Float64Array) => x.reduce((s, v) => s + v, 0) / x.length;
+    expect(m.replicates).toBe(8);
+    // Each replicate covers N cells, so the pooled fraction is the mean of the per-replicate ones
+    // and of the per-cell ones.
+    expect(m.coverage68).toBeCloseTo(mean(m.replicateCoverage68), 12);
+    expect(m.coverage95).toBeCloseTo(mean(m.cellCoverage95), 12);
+    expect(m.rankHistogram.reduce((s, v) => s + v, 0)).toBe(8 * n);
+    expect(m.coverage68).toBeCloseTo((3 * a.coverage68 + 5 * b.coverage68) / 8, 12);
+    // A single part merges to itself.
+    expect(mergeCalibration([a]).coverage95).toBe(a.coverage95);
+  });
+});
+
+describe('candidate scores', () => {
+  it('are the core numbers of each candidate; a failing candidate says why', async () => {
+    const other = { ...startPrior, terms: [{ ...t0, length: termLength(t0) / 3 }] };
+    const bad = { ...startPrior, terms: [{ ...t0, variance: -1 }] };
+    const s = await scoreCandidates(problem, [startPrior, other, bad], 2, 7, () => {}, { aborted: false });
+    expect(s).toHaveLength(3);
+    for (const [k, prior] of [startPrior, other].entries()) {
+      const c = s[k]!;
+      if (!c.ok) throw new Error(c.error);
+      expect(c.logEvidence).toBe(logEvidence(problem, prior));
+      expect(c.looLogScore).toBe(leaveOneOut(problem, prior).logScore);
+      expect(c.predictiveP).toBe(priorPredictiveCheck(problem, prior).pTwoSided);
+      const post = posteriorSummary(preparePosterior(problem, prior));
+      expect(c.chi2PerDatum).toBe(post.chi2 / post.dataCount);
+      expect(c.draws.rows).toBe(2);
+    }
+    expect(s[0]!.ok && s[1]!.ok && s[0]!.logEvidence !== s[1]!.logEvidence).toBe(true);
+    const b = s[2]!;
+    expect(b.ok).toBe(false);
+    if (!b.ok) expect(b.error).toMatch(/variance/);
+  });
+});
