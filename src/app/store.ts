@@ -11,10 +11,14 @@ import type { Matrix } from '../core/linalg/matrix.ts';
 import { cellCount, gridDimension } from '../core/grid/grid.ts';
 import type { Outcome } from '../worker/client.ts';
 import type { Channel, PosteriorResult, ProblemView } from '../worker/protocol.ts';
+import type { Problem } from '../core/problems/spec.ts';
+import { createSessionSlice, type SessionSlice } from './session/slice.ts';
 
 /** The subset of WorkerClient the store uses (a fake in unit tests). */
 export interface ClientPort {
   loadDemo(demoId: string): Promise<Outcome<ProblemView>>;
+  /** Send the user's own problem to the worker(s) (the session slice; optional for fakes). */
+  setProblem?(problem: Problem): Promise<Outcome<ProblemView>>;
   posterior(prior: PriorSpec): Promise<Outcome<PosteriorResult>>;
   diagnostics(prior: PriorSpec): Promise<Outcome<Diagnostics>>;
   priorDraws(prior: PriorSpec, count: number, seed: number): Promise<Outcome<Matrix>>;
@@ -97,10 +101,10 @@ export interface Actions {
   refresh(): void;
 }
 
-export type WorkbenchState = ProblemSlice & PriorSlice & ResultsSlice & ViewSlice & Actions;
+export type WorkbenchState = ProblemSlice & PriorSlice & ResultsSlice & ViewSlice & Actions & SessionSlice;
 export type WorkbenchStore = StoreApi<WorkbenchState>;
 
-const emptyResults = (): Omit<ResultsSlice, 'progress'> => ({
+export const emptyResults = (): Omit<ResultsSlice, 'progress'> => ({
   posterior: null,
   diagnostics: null,
   priorDraws: null,
@@ -126,7 +130,7 @@ export function nextSeed(seed: number): number {
 }
 
 export function createWorkbenchStore(client: ClientPort, initial: { demoId: string; seed?: number }): WorkbenchStore {
-  const store = createStore<WorkbenchState>()((set, get) => {
+  const store = createStore<WorkbenchState>()((set, get, api) => {
     const editPrior = (f: (p: PriorSpec) => PriorSpec) => {
       const p = get().prior;
       if (!p) return;
@@ -179,6 +183,7 @@ export function createWorkbenchStore(client: ClientPort, initial: { demoId: stri
       seed: initial.seed ?? 20240611,
       selectedCell: null,
       notice: null,
+      ...createSessionSlice(set, get, api, client),
 
       async loadDemo(demoId) {
         set({ demoId, problemStatus: 'loading', problemError: null, ...emptyResults(), selectedCell: null });

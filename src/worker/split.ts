@@ -5,6 +5,7 @@
  * covariance view. Both hold the same problem (each loads it once).
  */
 import type { PriorSpec } from '../core/prior/spec.ts';
+import type { Problem } from '../core/problems/spec.ts';
 import type { Outcome, WorkerClient } from './client.ts';
 import type { ProblemView } from './protocol.ts';
 
@@ -20,6 +21,11 @@ export class SplitClient {
 
   async loadDemo(demoId: string): Promise<Outcome<ProblemView>> {
     const [a, b] = await Promise.all([this.primary.loadDemo(demoId), this.secondary.loadDemo(demoId)]);
+    return b.superseded ? b : a;
+  }
+  /** The user's own problem, to both workers (each copies its buffers). */
+  async setProblem(problem: Problem): Promise<Outcome<ProblemView>> {
+    const [a, b] = await Promise.all([this.primary.setProblem(problem), this.secondary.setProblem(problem)]);
     return b.superseded ? b : a;
   }
   posterior(prior: PriorSpec) {
