@@ -59,7 +59,7 @@ export interface Fft2Options {
 }
 
 /** Columns gathered per sweep of the y-pass (keeps the strided reads cache-friendly). */
-const COLUMN_BLOCK = 8;
+const COLUMN_BLOCK = 16;
 
 /**
  * Reusable workspace for px × py transforms (scratch rows and column blocks). One per thread;
@@ -131,17 +131,27 @@ export class Fft2 {
   }
 
   /**
-   * Circulant filtering along y fused with both y-passes: for each column ix,
-   * col ← F⁻¹_y (λ[ix, ·] ⊙ F_y col). `lambdaT` is λ transposed (element (kx, ky) at kx·py + ky).
-   * After forward x-passes on rows < gatherRows and with inverse x-passes on rows < scatterRows
-   * this gives F⁻¹ (λ ⊙ F x) without a full-size buffer or a second gather. Reads `buf`, writes
-   * `dest` (default: `buf` itself).
+   * Circulant filtering along y fused with both y-passes, with forward transforms only. Uses
+   * F⁻¹ = (1/p) R F, R the index reversal (R v)(j) = v(−j mod p) (from the DFT definition; common
+   * practice, no source): for each column kx, v ← F_y (λ'[kx, ·] ⊙ F_y col), and dest row t takes
+   * v(−t mod py). `lambdaT` is λ' transposed (element (kx, ky) at kx·py + ky); fold the 1/(px·py)
+   * of the inverse into it. Reads rows < gatherRows of `buf` (the rest taken as zero), writes
+   * rows < scatterRows of `dest` (default `buf`). Followed by forward x-passes and reading column
+   * (−ix mod px), this gives C̃ x = F⁻¹ (λ ⊙ F x) with no division pass and no full-size buffer.
    */
-  columnFilter(buf: Float64Array, lambdaT: Float64Array, gatherRows: number, scatterRows: number, dest: Float64Array = buf): void {
+  columnFilter(
+    buf: Float64Array,
+    lambdaT: Float64Array,
+    gatherRows: number,
+    scatterRows: number,
+    dest: Float64Array = buf,
+    save: Float64Array | null = null,
+  ): void {
     const py = this.py;
     if (py === 1) {
-      // No y-axis: a pointwise product along x.
+      // No y-axis: a pointwise product along x (the saved spectrum is the row itself).
       const px = this.px;
+      if (save !== null) save.set(buf.subarray(0, 2 * px));
       for (let ix = 0; ix < px; ix++) {
         const l = lambdaT[ix]!;
         dest[2 * ix] = l * buf[2 * ix]!;
@@ -150,17 +160,58 @@ export class Fft2 {
       return;
     }
     const f = plan(py);
-    this.columnPass(buf, dest, gatherRows, scatterRows, (col, out, column) => {
-      f.transform(out, col);
-      const o = column * py;
-      for (let k = 0; k < py; k++) {
-        const l = lambdaT[o + k]!;
-        out[2 * k] *= l;
-        out[2 * k + 1] *= l;
-      }
-      f.inverseTransform(col, out);
-      return col;
-    });
+    this.columnPass(
+      buf,
+      dest,
+      gatherRows,
+      scatterRows,
+      (col, out, column) => {
+        f.transform(out, col);
+        // The column spectrum F_y col (column-major, 2·py values per column), for callers that
+        // cache it and later run only the second half (columnFilterCached).
+        if (save !== null) save.set(out, 2 * py * column);
+        const o = column * py;
+        for (let k = 0; k < py; k++) {
+          const l = lambdaT[o + k]!;
+          out[2 * k] *= l;
+          out[2 * k + 1] *= l;
+        }
+        f.transform(col, out);
+        return col;
+      },
+      true,
+    );
+  }
+
+  /**
+   * The second half of {@link columnFilter} from saved column spectra S (column-major, as written
+   * by its `save` argument): v ← F_y (λ'[kx, ·] ⊙ S[kx, ·]); dest row t takes v(−t mod py).
+   */
+  columnFilterCached(spectra: Float64Array, lambdaT: Float64Array, scatterRows: number, dest: Float64Array): void {
+    const py = this.py;
+    if (py === 1) {
+      this.columnFilter(spectra, lambdaT, 1, 1, dest);
+      return;
+    }
+    const f = plan(py);
+    this.columnPass(
+      spectra,
+      dest,
+      0,
+      scatterRows,
+      (col, out, column) => {
+        const o = column * py;
+        const so = 2 * o;
+        for (let k = 0; k < py; k++) {
+          const l = lambdaT[o + k]!;
+          out[2 * k] = l * spectra[so + 2 * k]!;
+          out[2 * k + 1] = l * spectra[so + 2 * k + 1]!;
+        }
+        f.transform(col, out);
+        return col;
+      },
+      true,
+    );
   }
 
   private columnPass(
@@ -169,6 +220,7 @@ export class Fft2 {
     gatherRows: number,
     scatterRows: number,
     apply: (col: Float64Array, out: Float64Array, column: number) => Float64Array,
+    reversedRows = false,
   ): void {
     const { px, py } = this;
     if (py === 1) return;
@@ -185,17 +237,18 @@ export class Fft2 {
       }
       for (let b = 0; b < nb; b++) {
         const col = this.colIn[b]!;
-        if (gatherRows < py) col.fill(0, 2 * gatherRows);
+        if (gatherRows > 0 && gatherRows < py) col.fill(0, 2 * gatherRows);
         const res = apply(col, this.colOut[b]!, c0 + b);
         if (res !== col) this.colIn[b] = res;
         if (res !== col) this.colOut[b] = col;
       }
       for (let r = 0; r < scatterRows; r++) {
         const o = r * w + 2 * c0;
+        const src = reversedRows && r > 0 ? 2 * (py - r) : 2 * r;
         for (let b = 0; b < nb; b++) {
           const col = this.colIn[b]!;
-          dest[o + 2 * b] = col[2 * r]!;
-          dest[o + 2 * b + 1] = col[2 * r + 1]!;
+          dest[o + 2 * b] = col[src]!;
+          dest[o + 2 * b + 1] = col[src + 1]!;
         }
       }
     }

@@ -9,7 +9,8 @@
  * Cm g_k = s ⊙ C(s ⊙ g_k) + nugget·g_k, two rows per complex transform. The spectra F pad(s ⊙ g_k)
  * depend on the problem and the std profile only, so they are cached on a {@link StructuredProblem}
  * (within a memory budget): a change of kernel, lengths or variances then costs one pointwise
- * product with λ and one inverse transform per pair of data. No N × N matrix is formed.
+ * product with λ and one (inverse, done as a forward) transform per pair of data. No N × N matrix
+ * is formed.
  *
  * Progressive: {@link prepareStructuredPosterior} factors K and returns the mean at once;
  * {@link structuredPosteriorStd} adds the standard deviations (the M²N/2 triangular solve), column
@@ -33,8 +34,8 @@ import { posteriorSummary, preparePosterior } from './posterior.ts';
 import type { PosteriorSummary } from './types.ts';
 
 /**
- * Default memory budget for cached row spectra (bytes): 2·px·ny·8 bytes per pair of data, so 26 MB
- * for 64² cells and M = 400, but 105 MB for 128², which is then recomputed per call to keep the
+ * Default memory budget for cached spectra (bytes): 2·px·py·8 bytes per pair of data, so 52 MB
+ * for 64² cells and M = 400, but 210 MB for 128², which is then recomputed per call to keep the
  * peak memory of that case under 300 MB.
  */
 export const DEFAULT_SPECTRUM_CACHE_BYTES = 64 * 1024 * 1024;
@@ -52,7 +53,7 @@ interface RowSpectra {
   readonly py: number;
   /** The std profile the spectra were taken with (by value). */
   readonly profile: Float64Array | null;
-  /** One interleaved complex spectrum per pair of data rows (2k, 2k + 1). */
+  /** Full 2-D spectrum F pad(s ⊙ (g_2k + i g_2k+1)) per pair of data rows, column-major. */
   readonly spectra: Float64Array[];
 }
 
@@ -155,7 +156,7 @@ export function prepareStructuredPosterior(sp: StructuredProblem | Problem, prio
   let t0 = now();
   const cp = new CirculantProduct(grid, prior);
   const pairs = Math.ceil(m / 2);
-  const specBytes = cp.spectrumLength * 8;
+  const specBytes = cp.columnSpectrumLength * 8;
   let cache = holder.cache;
   let spectraCached = false;
   if (cache !== null && cache.px === cp.px && cache.py === cp.py && sameProfile(cache.profile, s)) {
@@ -169,27 +170,28 @@ export function prepareStructuredPosterior(sp: StructuredProblem | Problem, prio
   let spectraTime = 0;
   const Bt = matrix(m, n);
   const bt = Bt.data;
-  const scratch = spectraCached || fits ? null : new Float64Array(cp.spectrumLength);
+  const rowSpec = spectraCached ? null : new Float64Array(cp.spectrumLength);
   const rowA = new Float64Array(n);
   const rowB = new Float64Array(n);
   let tProducts = 0;
   for (let p = 0; p < pairs; p++) {
     const a = 2 * p;
     const b = a + 1 < m ? a + 1 : -1;
-    let spec: Float64Array;
+    const offB = b < 0 ? 0 : b * n;
+    const tp = now();
     if (spectraCached) {
-      spec = spectra[p]!;
+      cp.fromColumnSpectrum(spectra[p]!, bt, b < 0 ? null : bt, a * n, offB);
     } else {
       const ts = now();
-      spec = scratch ?? new Float64Array(cp.spectrumLength);
-      cp.spectrum(scaledRow(g, a, s, rowA), b < 0 ? null : scaledRow(g, b, s, rowB), spec);
-      if (fits) spectra.push(spec);
+      cp.spectrum(scaledRow(g, a, s, rowA), b < 0 ? null : scaledRow(g, b, s, rowB), rowSpec!);
       spectraTime += now() - ts;
+      const save = fits ? new Float64Array(cp.columnSpectrumLength) : null;
+      cp.fromSpectrum(rowSpec!, bt, b < 0 ? null : bt, a * n, offB, save);
+      if (save !== null) spectra.push(save);
     }
-    const tp = now();
-    cp.fromSpectrum(spec, bt, b < 0 ? null : bt, a * n, b < 0 ? 0 : b * n);
     tProducts += now() - tp;
   }
+  tProducts -= spectraTime;
   if (!spectraCached && fits) holder.cache = { px: cp.px, py: cp.py, profile: s === undefined ? null : Float64Array.from(s), spectra };
   // Profile and nugget: row k of Bᵀ = s ⊙ C(s ⊙ g_k) + nugget·g_k.
   const tFix = now();

@@ -96,6 +96,19 @@ describe('row-spectrum cache', () => {
     expectSameSummary(structuredPosteriorSummary(withProfile), posteriorSummary(preparePosterior(problem, PRIORS[2]!.prior)));
   });
 
+  it('1-D grid, dense G: cached run equals the dense posterior after a prior change', () => {
+    const g1: Grid = { shape: [40], spacing: [0.5] };
+    const G = matrix(6, 40);
+    for (let k = 0; k < 6; k++) for (let j = 0; j < 40; j++) G.data[k * 40 + j] = Math.exp(-0.5 * ((j - 6 * k - 4) / 3) ** 2);
+    const problem: Problem = { grid: g1, operator: { kind: 'dense', matrix: G }, data: { values: seededVector(6, 3), sigma: new Float64Array(6).fill(0.1) } };
+    const sp = structuredProblem(problem);
+    prepareStructuredPosterior(sp, { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length: 2 }] });
+    const prior: PriorSpec = { mean: { constant: 1 }, terms: [{ kernel: 'matern', nu: 2.5, variance: 2, length: 3 }] };
+    const warm = prepareStructuredPosterior(sp, prior);
+    expect(warm.spectraCached).toBe(true);
+    expectSameSummary(structuredPosteriorSummary(warm), posteriorSummary(preparePosterior(problem, prior)));
+  });
+
   it('with a zero cache budget nothing is kept and results are unchanged', () => {
     const problem = rayProblem(9, 22);
     const sp = structuredProblem(problem, { cacheBytes: 0 });
