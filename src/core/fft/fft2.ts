@@ -188,30 +188,36 @@ export class Fft2 {
    * by its `save` argument): v ← F_y (λ'[kx, ·] ⊙ S[kx, ·]); dest row t takes v(−t mod py).
    */
   columnFilterCached(spectra: Float64Array, lambdaT: Float64Array, scatterRows: number, dest: Float64Array): void {
-    const py = this.py;
+    const { px, py } = this;
     if (py === 1) {
       this.columnFilter(spectra, lambdaT, 1, 1, dest);
       return;
     }
     const f = plan(py);
-    this.columnPass(
-      spectra,
-      dest,
-      0,
-      scatterRows,
-      (col, out, column) => {
-        const o = column * py;
+    const w = 2 * px;
+    for (let c0 = 0; c0 < px; c0 += COLUMN_BLOCK) {
+      const nb = Math.min(COLUMN_BLOCK, px - c0);
+      for (let b = 0; b < nb; b++) {
+        const out = this.colOut[b]!;
+        const o = (c0 + b) * py;
         const so = 2 * o;
         for (let k = 0; k < py; k++) {
           const l = lambdaT[o + k]!;
           out[2 * k] = l * spectra[so + 2 * k]!;
           out[2 * k + 1] = l * spectra[so + 2 * k + 1]!;
         }
-        f.transform(col, out);
-        return col;
-      },
-      true,
-    );
+        f.transform(this.colIn[b]!, out);
+      }
+      for (let r = 0; r < scatterRows; r++) {
+        const o = r * w + 2 * c0;
+        const src = r > 0 ? 2 * (py - r) : 0;
+        for (let b = 0; b < nb; b++) {
+          const col = this.colIn[b]!;
+          dest[o + 2 * b] = col[src]!;
+          dest[o + 2 * b + 1] = col[src + 1]!;
+        }
+      }
+    }
   }
 
   private columnPass(
