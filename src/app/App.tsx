@@ -6,6 +6,7 @@ import { PriorPanel } from './PriorPanel.tsx';
 import { StatusPanel } from './StatusPanel.tsx';
 import { FitScreen, PosteriorScreen, PriorScreen, ProblemScreen, RealisationsScreen } from './screens.tsx';
 import { TABS, type TabId } from './store.ts';
+import { SelectScreen } from './select/SelectScreen.tsx';
 
 /** Shown in the footer at all times. */
 export const CAUTION =
@@ -24,6 +25,8 @@ function Screen({ tab }: { tab: TabId }) {
       return <PosteriorScreen />;
     case 'fit':
       return <FitScreen />;
+    case 'select':
+      return <SelectScreen />;
     default: {
       const never: never = tab;
       throw new Error(`unknown tab ${String(never)}`);

@@ -11,6 +11,7 @@ import type { Matrix } from '../core/linalg/matrix.ts';
 import { cellCount, gridDimension } from '../core/grid/grid.ts';
 import type { Outcome } from '../worker/client.ts';
 import type { Channel, PosteriorResult, ProblemView } from '../worker/protocol.ts';
+import { createSelectSlice, type SelectSlice } from './select/slice.ts';
 import type { Problem } from '../core/problems/spec.ts';
 import { createSessionSlice, type SessionSlice } from './session/slice.ts';
 
@@ -28,13 +29,14 @@ export interface ClientPort {
   onRestart(listener: (reason: string) => void): () => void;
 }
 
-export type TabId = 'problem' | 'prior' | 'realisations' | 'posterior' | 'fit';
+export type TabId = 'problem' | 'prior' | 'realisations' | 'posterior' | 'fit' | 'select';
 export const TABS: readonly { id: TabId; label: string }[] = [
   { id: 'problem', label: 'Problem' },
   { id: 'prior', label: 'Prior' },
   { id: 'realisations', label: 'Realisations' },
   { id: 'posterior', label: 'Posterior' },
   { id: 'fit', label: 'Data fit' },
+  { id: 'select', label: 'Choose prior' },
 ];
 
 /** Largest N for which the covariance heat map is requested. */
@@ -101,7 +103,7 @@ export interface Actions {
   refresh(): void;
 }
 
-export type WorkbenchState = ProblemSlice & PriorSlice & ResultsSlice & ViewSlice & Actions & SessionSlice;
+export type WorkbenchState = ProblemSlice & PriorSlice & ResultsSlice & ViewSlice & Actions & SessionSlice & SelectSlice;
 export type WorkbenchStore = StoreApi<WorkbenchState>;
 
 export const emptyResults = (): Omit<ResultsSlice, 'progress'> => ({
@@ -184,6 +186,8 @@ export function createWorkbenchStore(client: ClientPort, initial: { demoId: stri
       selectedCell: null,
       notice: null,
       ...createSessionSlice(set, get, api, client),
+      // Prior selection (issue 7): src/app/select/slice.ts.
+      ...createSelectSlice(set, get, client),
 
       async loadDemo(demoId) {
         set({ demoId, problemStatus: 'loading', problemError: null, ...emptyResults(), selectedCell: null });

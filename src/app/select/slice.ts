@@ -1,0 +1,242 @@
+/**
+ * The prior-selection slice of the workbench store (issue 7): pinned candidates and the state of
+ * each tuning task (evidence map, profile, type-II fit, criteria, calibration, candidate scores,
+ * cross-calibration). Spread into the store by src/app/store.ts; framework-free.
+ *
+ * `candidates` is plain JSON-able data ({id, name, prior, colour}) so that sessions (issue 5) can
+ * save and restore it. Tuning requests go to the secondary worker of the split client (the
+ * posterior worker stays free); every task keeps the key it was computed for, and the screen
+ * shows a result only while the key still matches.
+ */
+import type { PriorSpec } from '../../core/prior/spec.ts';
+import { setTermLength, withTerm, type LogAxis, type ProfileParameter } from '../../core/tuning/index.ts';
+import type { Outcome } from '../../worker/client.ts';
+import type { TuningKind, TuningRequest, TuningResultMap } from '../../worker/tuningProtocol.ts';
+import { TUNING_KINDS } from '../../worker/tuningProtocol.ts';
+import type { WorkbenchState } from '../store.ts';
+import { CANDIDATE_STYLES, MAX_PINNED, nextCandidateStyle } from './candidates.ts';
+
+export type TuningPayload<K extends TuningKind> = Omit<Extract<TuningRequest, { kind: K }>, 'id' | 'kind' | 'problemVersion'>;
+
+/** The part of a worker client the slice uses (WorkerClient, or a fake in tests). */
+export interface TuningPort {
+  request<K extends TuningKind>(kind: K, payload: TuningPayload<K>): Promise<Outcome<TuningResultMap[K]>>;
+  cancel(channel: TuningKind): void;
+}
+
+/** The tuning port of a client: the secondary worker of a split client, or the client itself. */
+export function tuningPortOf(client: object): TuningPort | null {
+  const c = client as { secondary?: { request?: unknown }; request?: unknown; cancel?: unknown };
+  if (c.secondary && typeof c.secondary.request === 'function') return c.secondary as unknown as TuningPort;
+  if (typeof c.request === 'function' && typeof c.cancel === 'function') return c as unknown as TuningPort;
+  return null;
+}
+
+export interface Candidate {
+  readonly id: string;
+  readonly name: string;
+  readonly prior: PriorSpec;
+  readonly colour: string;
+}
+
+export type TaskStatus = 'idle' | 'running' | 'done' | 'cancelled' | 'error';
+
+export interface Task<T> {
+  readonly status: TaskStatus;
+  readonly value: T | null;
+  readonly error: string | null;
+  /** What the value was computed for (problem version, prior revision, settings). */
+  readonly key: string | null;
+  /** The prior it was computed for. */
+  readonly prior: PriorSpec | null;
+}
+
+export type SelectTasks = { readonly [K in TuningKind]: Task<TuningResultMap[K]> };
+
+export interface MapSettings {
+  readonly term: number;
+  readonly lengths: LogAxis;
+  readonly variances: LogAxis;
+}
+
+export interface SelectSlice {
+  candidates: Candidate[];
+  selectTasks: SelectTasks;
+  runEvidenceMap(settings: MapSettings): void;
+  runProfile(which: ProfileParameter, values: number[]): void;
+  runFit(fixed: string[]): void;
+  refreshCriteria(): void;
+  runCalibration(replicates: number, draws: number): void;
+  refreshCandidates(): void;
+  runCrossCalibration(replicates: number, draws: number): void;
+  cancelTuning(kind: TuningKind): void;
+  /** Apply map cell `index` (row-major over length, variance) of the last map to the prior's term. */
+  applyMapCell(index: number): void;
+  /** Make the prior `prior` (e.g. a fit or a discrepancy scaling) the current prior. */
+  applyTuned(prior: PriorSpec): void;
+  pinPrior(): void;
+  unpin(id: string): void;
+  renameCandidate(id: string, name: string): void;
+  useCandidate(id: string): void;
+  /** Forget every tuning result (a new problem). */
+  resetSelect(): void;
+}
+
+const idleTask = <T>(): Task<T> => ({ status: 'idle', value: null, error: null, key: null, prior: null });
+export function emptyTasks(): SelectTasks {
+  return Object.fromEntries(TUNING_KINDS.map((k) => [k, idleTask()])) as unknown as SelectTasks;
+}
+
+/** Key of the current (problem, prior) pair. */
+export function priorKey(s: Pick<WorkbenchState, 'problem' | 'priorRevision'>): string {
+  return `${s.problem?.version ?? 0}:${s.priorRevision}`;
+}
+
+/** Key of the pinned candidates for the current problem and seed. */
+export function candidatesKey(s: Pick<WorkbenchState, 'problem' | 'candidates' | 'seed'>): string {
+  return `${s.problem?.version ?? 0}:${s.seed}:${JSON.stringify(s.candidates.map((c) => c.prior))}`;
+}
+
+/** Posterior realisations shown per candidate. */
+export const CANDIDATE_DRAWS = 3;
+
+type Set = (partial: Partial<WorkbenchState>) => void;
+type Get = () => WorkbenchState;
+
+export function createSelectSlice(set: Set, get: Get, client: object): SelectSlice {
+  const port = tuningPortOf(client);
+  let nextId = 1;
+
+  const patchTask = <K extends TuningKind>(kind: K, patch: Partial<Task<TuningResultMap[K]>>) => {
+    const tasks = get().selectTasks;
+    set({ selectTasks: { ...tasks, [kind]: { ...tasks[kind], ...patch } } as SelectTasks });
+  };
+
+  /** Send one tuning request and keep its outcome in the task of its kind. */
+  const start = <K extends TuningKind>(kind: K, key: string, prior: PriorSpec | null, payload: TuningPayload<K>) => {
+    if (!port) {
+      patchTask(kind, { status: 'error', error: 'no worker available for prior selection', key, prior });
+      return;
+    }
+    patchTask(kind, { status: 'running', error: null, key, prior });
+    port.request(kind, payload).then(
+      (o) => {
+        if (o.superseded) return;
+        if (get().selectTasks[kind].key !== key) return;
+        const v = o.value as { cancelled?: boolean };
+        patchTask(kind, { status: v.cancelled ? 'cancelled' : 'done', value: o.value, error: null });
+        if (get().progress?.channel === kind) set({ progress: null });
+      },
+      (e: unknown) => {
+        if (get().selectTasks[kind].key !== key) return;
+        patchTask(kind, { status: 'error', error: e instanceof Error ? e.message : String(e), value: null });
+        if (get().progress?.channel === kind) set({ progress: null });
+      },
+    );
+  };
+
+  const current = () => {
+    const s = get();
+    return s.prior && s.problem && s.problemStatus === 'ready' ? { s, prior: s.prior } : null;
+  };
+
+  return {
+    candidates: [],
+    selectTasks: emptyTasks(),
+
+    runEvidenceMap(settings) {
+      const c = current();
+      if (!c) return;
+      start('evidenceMap', `${priorKey(c.s)}:${JSON.stringify(settings)}`, c.prior, { prior: c.prior, ...settings });
+    },
+    runProfile(which, values) {
+      const c = current();
+      if (!c) return;
+      start('evidenceProfile', `${priorKey(c.s)}:${JSON.stringify(which)}:${values.join(',')}`, c.prior, { prior: c.prior, which, values });
+    },
+    runFit(fixed) {
+      const c = current();
+      if (!c) return;
+      start('typeII', `${priorKey(c.s)}:${fixed.join(',')}`, c.prior, { prior: c.prior, fixed });
+    },
+    refreshCriteria() {
+      const c = current();
+      if (!c) return;
+      const key = priorKey(c.s);
+      const t = c.s.selectTasks.criteria;
+      if (t.key === key && t.status !== 'error') return;
+      start('criteria', key, c.prior, { prior: c.prior });
+    },
+    runCalibration(replicates, draws) {
+      const c = current();
+      if (!c) return;
+      const seed = c.s.seed;
+      start('calibration', `${priorKey(c.s)}:${replicates}:${draws}:${seed}`, c.prior, { prior: c.prior, replicates, draws, seed });
+    },
+    refreshCandidates() {
+      const s = get();
+      if (!s.problem || s.problemStatus !== 'ready' || s.candidates.length === 0) return;
+      const key = candidatesKey(s);
+      const t = s.selectTasks.candidates;
+      if (t.key === key && t.status !== 'error') return;
+      start('candidates', key, null, { priors: s.candidates.map((c) => c.prior), draws: CANDIDATE_DRAWS, seed: s.seed });
+    },
+    runCrossCalibration(replicates, draws) {
+      const s = get();
+      if (!s.problem || s.candidates.length === 0) return;
+      start('crossCalibration', `${candidatesKey(s)}:${replicates}:${draws}`, null, {
+        priors: s.candidates.map((c) => c.prior),
+        replicates,
+        draws,
+        seed: s.seed,
+      });
+    },
+    cancelTuning(kind) {
+      const t = get().selectTasks[kind];
+      if (t.status !== 'running') return;
+      port?.cancel(kind);
+      patchTask(kind, { status: 'cancelled' });
+      if (get().progress?.channel === kind) set({ progress: null });
+    },
+    applyMapCell(index) {
+      const s = get();
+      const map = s.selectTasks.evidenceMap.value;
+      if (!map || !s.prior) return;
+      const nv = map.variances.length;
+      const i = Math.floor(index / nv);
+      const j = index % nv;
+      const term = s.prior.terms[map.term];
+      if (!term || i < 0 || i >= map.lengths.length) return;
+      s.setPrior(withTerm(s.prior, map.term, { ...setTermLength(term, map.lengths[i]!), variance: map.variances[j]! }));
+    },
+    applyTuned(prior) {
+      get().setPrior(prior);
+    },
+    pinPrior() {
+      const s = get();
+      if (!s.prior || s.candidates.length >= MAX_PINNED) return;
+      const style = nextCandidateStyle(s.candidates.map((c) => c.colour));
+      set({ candidates: [...s.candidates, { id: `cand-${Date.now().toString(36)}-${nextId++}`, name: style.name, colour: style.colour, prior: s.prior }] });
+      get().refreshCandidates();
+    },
+    unpin(id) {
+      set({ candidates: get().candidates.filter((c) => c.id !== id) });
+      get().refreshCandidates();
+    },
+    renameCandidate(id, name) {
+      const trimmed = name.trim();
+      if (!trimmed) return;
+      set({ candidates: get().candidates.map((c) => (c.id === id ? { ...c, name: trimmed.slice(0, 40) } : c)) });
+    },
+    useCandidate(id) {
+      const c = get().candidates.find((x) => x.id === id);
+      if (c) get().setPrior(c.prior);
+    },
+    resetSelect() {
+      for (const k of TUNING_KINDS) if (get().selectTasks[k].status === 'running') port?.cancel(k);
+      set({ selectTasks: emptyTasks() });
+    },
+  };
+}
+
+export { CANDIDATE_STYLES };
