@@ -7,6 +7,7 @@ import { StatusPanel } from './StatusPanel.tsx';
 import { FitScreen, PosteriorScreen, PriorScreen, ProblemScreen, RealisationsScreen } from './screens.tsx';
 import { TABS, type TabId } from './store.ts';
 import { SelectScreen } from './select/SelectScreen.tsx';
+import { SessionBar } from './session/SessionBar.tsx';
 
 /** Shown in the footer at all times. */
 export const CAUTION =
@@ -75,6 +76,7 @@ export function App() {
         </span>
         <StatusPanel />
       </header>
+      <SessionBar />
       {notice && (
         <div className="notice" role="status">
           {notice}{' '}

@@ -8,6 +8,8 @@ import { StoreContext } from './context.ts';
 import { DEFAULT_DEMO } from './demos.ts';
 import { createWorkbenchStore } from './store.ts';
 import './styles.css';
+import { installShortcuts, startSession } from './session/start.ts';
+import { indexedDbStorage } from './session/autosave.ts';
 
 const makeClient = () =>
   new WorkerClient(
@@ -51,4 +53,11 @@ createRoot(document.getElementById('root')!).render(
     </StoreContext.Provider>
   </StrictMode>,
 );
-void store.getState().loadDemo(store.getState().demoId);
+// Share link, ?demo=, autosave or the default demo (precedence in ./session/start.ts), then autosave and shortcuts.
+void startSession(store, {
+  storage: typeof indexedDB !== 'undefined' ? indexedDbStorage() : null,
+  explicitDemo: params.get('demo'),
+  hash: location.hash,
+  clearHash: () => history.replaceState(null, '', location.pathname + location.search),
+});
+installShortcuts(store, window);
