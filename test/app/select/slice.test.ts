@@ -1,0 +1,96 @@
+/** The select slice in the real store with a fake client: pinning, applying, cancelling, stale replies. */
+import { describe, expect, it } from 'vitest';
+import { createWorkbenchStore, type ClientPort } from '../../../src/app/store.ts';
+import type { Outcome } from '../../../src/worker/client.ts';
+import type { ProblemView } from '../../../src/worker/protocol.ts';
+import type { PriorSpec } from '../../../src/core/prior/spec.ts';
+import { tuningPortOf } from '../../../src/app/select/slice.ts';
+import type { EvidenceMap } from '../../../src/core/tuning/index.ts';
+
+const prior: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 0.25, length: 10 }], nugget: 0.01 };
+const view = { version: 1, demoId: 'x', title: 't', description: '', grid: { shape: [4], spacing: [1] }, dataCount: 2, values: new Float64Array(2), sigma: new Float64Array(2).fill(1), truth: null, coverage: new Float64Array(4), operatorKind: 'dense', operatorNonZeros: 8, quantity: { name: 'T', unit: 'K' }, dataUnit: '', startPrior: prior, truthPrior: null } as unknown as ProblemView;
+
+function fakeClient() {
+  const never = <T>() => new Promise<Outcome<T>>(() => {});
+  const sent: { kind: string; payload: unknown; resolve: (o: Outcome<unknown>) => void }[] = [];
+  const cancelled: string[] = [];
+  const secondary = {
+    request(kind: string, payload: unknown) {
+      return new Promise<Outcome<unknown>>((resolve) => sent.push({ kind, payload, resolve }));
+    },
+    cancel(kind: string) {
+      cancelled.push(kind);
+    },
+  };
+  const client: ClientPort & { secondary: typeof secondary } = {
+    loadDemo: async () => ({ superseded: false, value: view }),
+    posterior: never,
+    diagnostics: never,
+    priorDraws: never,
+    posteriorDraws: never,
+    resolution: never,
+    covariance: never,
+    onRestart: () => () => {},
+    secondary,
+  };
+  return { client, sent, cancelled };
+}
+
+const map: EvidenceMap = {
+  term: 0,
+  lengths: Float64Array.from([2, 20]),
+  variances: Float64Array.from([0.1, 1, 10]),
+  logEvidence: Float64Array.from([1, 2, 3, 4, 5, 6]),
+  method: 'cholesky',
+  methodByLength: ['cholesky', 'cholesky'],
+  best: { length: 20, variance: 10, logEvidence: 6, index: 5 },
+  cancelled: false,
+};
+
+describe('select slice', () => {
+  it('finds the secondary worker of a split client', () => {
+    const { client } = fakeClient();
+    expect(tuningPortOf(client)).toBe(client.secondary);
+    expect(tuningPortOf({})).toBeNull();
+  });
+
+  it('runs a map, applies a clicked cell to the term, ignores a reply for an older request', async () => {
+    const { client, sent } = fakeClient();
+    const store = createWorkbenchStore(client, { demoId: 'x' });
+    await store.getState().loadDemo('x');
+    const settings = { term: 0, lengths: { min: 2, max: 20, count: 2 }, variances: { min: 0.1, max: 10, count: 3 } };
+    store.getState().runEvidenceMap(settings);
+    store.getState().runEvidenceMap({ ...settings, lengths: { ...settings.lengths, count: 3 } });
+    expect(sent.map((s) => s.kind)).toEqual(['evidenceMap', 'evidenceMap']);
+    expect(store.getState().selectTasks.evidenceMap.status).toBe('running');
+    sent[0]!.resolve({ superseded: false, value: { ...map, best: null } });
+    await Promise.resolve();
+    expect(store.getState().selectTasks.evidenceMap.value).toBeNull();
+    sent[1]!.resolve({ superseded: false, value: map });
+    await new Promise((r) => setTimeout(r, 0));
+    expect(store.getState().selectTasks.evidenceMap.status).toBe('done');
+    store.getState().applyMapCell(1 * 3 + 0);
+    expect(store.getState().prior!.terms[0]).toEqual({ kernel: 'exponential', variance: 0.1, length: 20 });
+    expect(store.getState().prior!.nugget).toBe(0.01);
+  });
+
+  it('cancel marks the task and tells the worker; pins up to four candidates and uses one', async () => {
+    const { client, cancelled } = fakeClient();
+    const store = createWorkbenchStore(client, { demoId: 'x' });
+    await store.getState().loadDemo('x');
+    store.getState().runFit(['nugget']);
+    store.getState().cancelTuning('typeII');
+    expect(cancelled).toEqual(['typeII']);
+    expect(store.getState().selectTasks.typeII.status).toBe('cancelled');
+    for (let k = 0; k < 6; k++) store.getState().pinPrior();
+    const c = store.getState().candidates;
+    expect(c).toHaveLength(4);
+    expect(new Set(c.map((x) => x.colour)).size).toBe(4);
+    expect(JSON.parse(JSON.stringify(c))).toEqual(c); // plain data for autosave
+    store.getState().updateTerm(0, { length: 3 });
+    store.getState().useCandidate(c[2]!.id);
+    expect(store.getState().prior).toEqual(prior);
+    store.getState().unpin(c[0]!.id);
+    expect(store.getState().candidates).toHaveLength(3);
+  });
+});
