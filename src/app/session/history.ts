@@ -1,9 +1,10 @@
 /**
  * Undo / redo of prior edits, as pure functions over an immutable history value.
  *
- * Coalescing: an edit that changes the same fields as the previous edit, within
- * {@link COALESCE_MS} of it, extends that step instead of adding one, so a slider drag (dozens of
- * edits of one length) is undone in one step while edits of different fields stay separate
+ * Coalescing: an edit made with a continuous control (a slider being dragged or stepped with the
+ * arrow keys) that changes the same fields as the previous edit, within {@link COALESCE_MS} of
+ * it, extends that step instead of adding one, so a slider drag (dozens of edits of one length)
+ * is undone in one step; typed values, imports and edits of other fields are steps of their own
  * (common practice in editors, no source).
  */
 import type { PriorSpec } from '../../core/prior/spec.ts';
@@ -33,12 +34,12 @@ export function changedPaths(a: unknown, b: unknown, path = ''): string[] {
   return out.sort();
 }
 
-/** Record an edit from `before` to `after` made at time `now` (ms). */
-export function record(h: History, before: PriorSpec, after: PriorSpec, now: number): History {
+/** Record an edit from `before` to `after` made at time `now` (ms); `continuous` for slider edits. */
+export function record(h: History, before: PriorSpec, after: PriorSpec, now: number, continuous = false): History {
   const paths = changedPaths(before, after);
   if (paths.length === 0) return h;
-  const signature = paths.join('|');
-  if (signature === h.lastSignature && now - h.lastTime < COALESCE_MS && h.past.length > 0) {
+  const signature = (continuous ? 'slider:' : 'typed:') + paths.join('|');
+  if (continuous && signature === h.lastSignature && now - h.lastTime < COALESCE_MS && h.past.length > 0) {
     return { ...h, future: [], lastTime: now };
   }
   const past = [...h.past, before];

@@ -61,6 +61,12 @@ export interface SessionSlice {
 type Set = StoreApi<WorkbenchState>['setState'];
 type Get = StoreApi<WorkbenchState>['getState'];
 
+/** A slider has the focus: its edits are one continuous gesture (see ./history.ts). */
+function isContinuousEdit(): boolean {
+  const el = typeof document !== 'undefined' ? (document.activeElement as HTMLInputElement | null) : null;
+  return el?.tagName === 'INPUT' && el.type === 'range';
+}
+
 const message = (e: unknown) => (e instanceof Error ? e.message : String(e));
 
 export function createSessionSlice(set: Set, get: Get, api: StoreApi<WorkbenchState>, client: ClientPort): SessionSlice {
@@ -74,7 +80,7 @@ export function createSessionSlice(set: Set, get: Get, api: StoreApi<WorkbenchSt
       return;
     }
     if (s.prior !== prev.prior && s.prior && prev.prior && !applying) {
-      const h = record(s.history, prev.prior, s.prior, Date.now());
+      const h = record(s.history, prev.prior, s.prior, Date.now(), isContinuousEdit());
       if (h !== s.history) set({ history: h });
     }
   });
