@@ -1,0 +1,47 @@
+/**
+ * The export files read by numpy (np.load, np.loadtxt): shapes, dtype and every value, for a 2-D
+ * grid (x, y columns) — plus the prior export reading back to the same spec through priorFile.ts.
+ */
+import { describe, expect, it } from 'vitest';
+import { drawsCsv, drawsNpy, posteriorCsv, posteriorNpy, priorExport } from '../../src/app/session/exports.ts';
+import { parsePriorFile } from '../../src/core/io/priorFile.ts';
+import { matrix } from '../../src/core/linalg/matrix.ts';
+import type { PosteriorSummary } from '../../src/core/inverse/types.ts';
+import { runPython } from './python.ts';
+
+const grid = { shape: [3, 2], spacing: [2, 0.5], origin: [10, -1] };
+const mean = Float64Array.from([1.25, -2, 3e-7, 4, 5.5, 1 / 3]);
+const std = Float64Array.from([0.1, 0.2, 0.3, 0.4, 0.5, 0.6]);
+const summary = { mean, std } as unknown as PosteriorSummary;
+const draws = matrix(2, 6, Float64Array.from([1, 2, 3, 4, 5, 6, -1, -2, -3, -4, -5, Math.PI]));
+
+describe('exports read by numpy', () => {
+  it('posterior and draws as .npy and .csv', () => {
+    const b64 = (u: Uint8Array) => Buffer.from(u).toString('base64');
+    const txt = (u: Uint8Array) => new TextDecoder().decode(u);
+    const ref = runPython<{
+      npy: Record<string, { shape: number[]; dtype: string; values: number[] }>;
+      csv: Record<string, { header: string[]; shape: number[]; values: number[] }>;
+    }>('exports_reference.py', {
+      npy: { post: b64(posteriorNpy(summary).bytes), draws: b64(drawsNpy(draws, 'prior').bytes) },
+      csv: { post: txt(posteriorCsv(grid, summary).bytes), draws: txt(drawsCsv(grid, draws, 'posterior').bytes) },
+    });
+    // cell k sits at x = 10 + 2·(k mod 3), y = −1 + 0.5·floor(k / 3) (x fastest)
+    const xs = [10, 12, 14, 10, 12, 14];
+    const ys = [-1, -1, -1, -0.5, -0.5, -0.5];
+    expect(ref.npy.post).toEqual({ shape: [6, 2], dtype: 'float64', values: Array.from(mean).flatMap((m, k) => [m, std[k]!]) });
+    expect(ref.npy.draws!.shape).toEqual([6, 2]);
+    expect(ref.npy.draws!.values).toEqual([1, -1, 2, -2, 3, -3, 4, -4, 5, -5, 6, Math.PI]);
+    expect(ref.csv.post!.header).toEqual(['x', 'y', 'mean', 'std']);
+    expect(ref.csv.post!.values).toEqual(xs.flatMap((x, k) => [x, ys[k]!, mean[k]!, std[k]!]));
+    expect(ref.csv.draws!.header).toEqual(['x', 'y', 'draw1', 'draw2']);
+    expect(ref.csv.draws!.values).toEqual(xs.flatMap((x, k) => [x, ys[k]!, draws.data[k]!, draws.data[6 + k]!]));
+  });
+
+  it('the prior file reads back to the same spec', () => {
+    const prior = { mean: { constant: 0.5 }, terms: [{ kernel: 'matern' as const, variance: 2, lengths: [3, 1] as const, angle: 15, nu: 0.5 }], nugget: 1e-6 };
+    const f = priorExport(prior);
+    expect(f.name).toBe('prior.json');
+    expect(parsePriorFile('prior.json', f.bytes).prior).toEqual(prior);
+  });
+});
