@@ -275,3 +275,61 @@ test('if a numerics worker dies, the page says so, restarts it and keeps the use
   // the crash itself is the only page-level error allowed
   expect(w.problems.filter((p) => !p.includes('simulated worker crash'))).toEqual([]);
 });
+
+test('the template problem loads by drag-and-drop; plots, realisations and the report export; no foreign requests', async ({ page }) => {
+  const w = watch(page, ORIGIN);
+  const csp = await cspWatch(page);
+  await open(page);
+  const files = ['problem.json', 'G.mtx'].map((f) => ({ name: f, text: readFileSync(join('public/templates', f), 'utf8') }));
+  // drop both files on the page, as a user dragging them from a file manager would
+  await page.evaluate((fs) => {
+    const dt = new DataTransfer();
+    for (const f of fs) dt.items.add(new File([f.text], f.name));
+    window.dispatchEvent(new DragEvent('dragover', { dataTransfer: dt, cancelable: true }));
+    window.dispatchEvent(new DragEvent('drop', { dataTransfer: dt, cancelable: true }));
+  }, files);
+  await expect(page.getByTestId('problem-source')).toContainText('Template: soil moisture along a trench (invented)');
+  const s = await settle(page);
+  const { parseProblemFile } = await import('../src/core/io/problemFile.ts');
+  const problem = parseProblemFile('problem.json', files[0]!.text, { readSibling: () => new TextEncoder().encode(files[1]!.text) }).problem;
+  const mean = (await traceValues(page, 'plot-posterior', 'posterior mean')) as number[];
+  expect(maxRelDiff(mean, posteriorSummary(preparePosterior(problem, s.prior)).mean)).toBeLessThan(TOL);
+
+  await page.getByTestId('export-menu').click();
+  for (const f of ['png', 'svg'] as const) {
+    const [dl] = await Promise.all([page.waitForEvent('download'), page.getByTestId(`export-plots-${f}`).click()]);
+    expect(dl.suggestedFilename()).toMatch(new RegExp(`\\.${f}$`));
+    const head = readFileSync(await dl.path());
+    if (f === 'png') expect(Array.from(head.subarray(0, 4))).toEqual([0x89, 0x50, 0x4e, 0x47]);
+    else expect(head.toString('utf8')).toContain('<svg');
+  }
+  const [npy] = await Promise.all([page.waitForEvent('download'), page.getByTestId('export-prior-draws-npy').click()]);
+  expect(npy.suggestedFilename()).toBe('prior-draws.npy');
+  const { parseNpy } = await import('../src/core/io/npy.ts');
+  expect(parseNpy('d.npy', new Uint8Array(readFileSync(await npy.path()))).shape).toEqual([20, 6]);
+  const [csv] = await Promise.all([page.waitForEvent('download'), page.getByTestId('export-posterior-draws-csv').click()]);
+  expect(readFileSync(await csv.path(), 'utf8').split('\n')[0]).toBe('x,draw1,draw2,draw3,draw4,draw5,draw6');
+  const [popup] = await Promise.all([page.waitForEvent('popup'), page.getByTestId('report-open').click()]);
+  await expect(popup.locator('h1')).toHaveText('Template: soil moisture along a trench (invented)');
+  await expect(popup.locator('.caution')).toContainText('qualified professional');
+  expect(await popup.locator('figure img').count()).toBeGreaterThanOrEqual(7);
+  expect(await csp()).toEqual([]);
+  expect(w.problems).toEqual([]);
+  expect(w.foreign).toEqual([]);
+});
+
+test('the report prints on one A4 page (1-D and 2-D demos)', async ({ page }) => {
+  for (const demo of ['borehole-log', 'crosshole-tomography']) {
+    await open(page, demo);
+    await page.getByTestId('export-menu').click();
+    const [dl] = await Promise.all([page.waitForEvent('download'), page.getByTestId('report-download').click()]);
+    const html = readFileSync(await dl.path(), 'utf8');
+    const report = await page.context().newPage();
+    await report.setContent(html);
+    const pdf = (await report.pdf({ format: 'A4', preferCSSPageSize: true })).toString('latin1');
+    // one page object (/Type /Page, not /Pages) in the PDF
+    expect((pdf.match(/\/Type\s*\/Page(?!s)/g) ?? []).length, demo).toBe(1);
+    await report.close();
+    await page.keyboard.press('Escape');
+  }
+});
