@@ -134,8 +134,8 @@ function Comparison({ p, candidates, scores }: { p: ProblemView; candidates: rea
   if (!is2D) {
     return (
       <div className="grid-2">
-        <Plot id="plot-candidate-bands" label="Posterior mean and 95% band of each candidate" data={bands!} layout={{ title: { text: 'Posterior mean and 95% band per candidate', font: { size: 12 } }, xaxis: { title: { text: xTitle } }, yaxis: { title: { text: q } } }} height={300} />
-        <Plot id="plot-candidate-draws" label="Posterior realisations of each candidate" data={draws!} layout={{ title: { text: 'Posterior realisations per candidate (same seed)', font: { size: 12 } }, xaxis: { title: { text: xTitle } }, yaxis: { title: { text: q } } }} height={300} />
+        <Plot id="plot-candidate-bands" label="Posterior mean and 95% band of each candidate" data={bands!} layout={{ title: { text: 'Posterior mean and 95% band per candidate', font: { size: 12 } }, xaxis: { title: { text: xTitle, standoff: 4 } }, legend: { orientation: 'h', x: 0, y: -0.2, yanchor: 'top' }, yaxis: { title: { text: q } } }} height={300} />
+        <Plot id="plot-candidate-draws" label="Posterior realisations of each candidate" data={draws!} layout={{ title: { text: 'Posterior realisations per candidate (same seed)', font: { size: 12 } }, xaxis: { title: { text: xTitle, standoff: 4 } }, legend: { orientation: 'h', x: 0, y: -0.2, yanchor: 'top' }, yaxis: { title: { text: q } } }} height={300} />
       </div>
     );
   }

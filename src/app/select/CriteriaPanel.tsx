@@ -169,7 +169,7 @@ function CalibrationPanel() {
                       <Num testId={id} value={cov} text={fmt(cov, 4)} />
                     </td>
                     <td>
-                      [{fmt(lo, 3)}, {fmt(hi, 3)}] {nominal >= lo && nominal <= hi ? '(contains the nominal value)' : '(misses the nominal value)'}
+                      [{fmt(lo, 3)}, {fmt(hi, 3)}] {nominal >= lo && nominal <= hi ? '(contains the nominal value)' : '(nominal value outside; with few replicates this happens 1 time in 20 by chance)'}
                     </td>
                   </tr>
                 );

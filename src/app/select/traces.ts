@@ -76,7 +76,7 @@ export function evidenceMapTraces(map: EvidenceMap, current: { length: number; v
       name: 'current prior',
       x: [Math.log10(current.length)],
       y: [Math.log10(current.variance)],
-      marker: { symbol: 'circle-open', size: 12, color: '#ffffff', line: { width: 2 } },
+      marker: { symbol: 'circle-open', size: 12, color: '#e3a46f', line: { width: 2.5, color: '#e3a46f' } },
       hoverinfo: 'skip',
     });
   }
