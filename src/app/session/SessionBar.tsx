@@ -171,6 +171,7 @@ export function SessionBar() {
             onFocus={(e) => e.currentTarget.select()}
           />
         )}
+        {link && <span className="hint">opening it takes precedence over the autosaved session</span>}
         <button type="button" data-testid="start-over" onClick={() => void s.startOver()} title="Forget the saved session and open the demo">
           Start over with demo
         </button>
