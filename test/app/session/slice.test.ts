@@ -113,6 +113,8 @@ describe('autosave and restore', () => {
     store.getState().updateTerm(0, { length: 0.75 });
     store.getState().setSeed(42);
     store.getState().setTab('fit');
+    const candidates = [{ id: 'cand-a', name: 'A', colour: '#123456', prior: store.getState().prior! }];
+    store.setState({ candidates });
     await tick(20);
     const saved = sessionRecord(store.getState())!;
     expect(saved.source.kind).toBe('user');
@@ -131,6 +133,7 @@ describe('autosave and restore', () => {
     expect(Array.from(b.data.values)).toEqual(Array.from(a.data.values));
     expect(Array.from(s.posterior!.summary.mean)).toEqual(Array.from(store.getState().posterior!.summary.mean));
     expect(s.history.past.length).toBe(0); // restoring is not an edit
+    expect(s.candidates).toEqual(candidates); // the selection screen's pinned priors come back too
   });
 
   it('precedence: a share link beats ?demo= and the autosave; ?demo= beats the autosave', async () => {
