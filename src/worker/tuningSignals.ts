@@ -25,9 +25,12 @@ export function closeSignal(id: number): void {
   running.delete(id);
 }
 
-/** Abort every running request of `channel` (a newer one of that channel arrived). */
+/**
+ * Abort every running request of `channel` (a newer one of that channel arrived). A new problem
+ * (channel 'problem') makes every running tuning request stale, so it aborts them all.
+ */
 export function abortChannel(channel: string): void {
-  for (const r of running.values()) if (r.channel === channel) r.flag.aborted = true;
+  for (const r of running.values()) if (r.channel === channel || channel === 'problem') r.flag.aborted = true;
 }
 
 /** Abort the running request `id`; true when it was running. */

@@ -95,6 +95,15 @@ describe('cancellation through the queue', () => {
     });
     expect(removed).toBe(true);
     expect(r4.cancelled).toBe(true);
+    // Loading a new problem aborts running tuning work of every channel.
+    let loaded = false;
+    const r5 = await runTuning(problem, req(5), () => {
+      if (!loaded) {
+        loaded = true;
+        queue.push('problem', { id: 10, kind: 'loadDemo', version: 2, demoId: 'borehole-log' });
+      }
+    });
+    expect(r5.cancelled).toBe(true);
     expect(runningCount()).toBe(0);
   });
 

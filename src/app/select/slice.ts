@@ -121,8 +121,12 @@ export function createSelectSlice(set: Set, get: Get, client: object): SelectSli
     patchTask(kind, { status: 'running', error: null, key, prior });
     port.request(kind, payload).then(
       (o) => {
-        if (o.superseded) return;
         if (get().selectTasks[kind].key !== key) return;
+        if (o.superseded) {
+          // Superseded by something other than a newer request of this kind (a new problem, a restart).
+          if (get().selectTasks[kind].status === 'running') patchTask(kind, { status: 'cancelled' });
+          return;
+        }
         const v = o.value as { cancelled?: boolean };
         patchTask(kind, { status: v.cancelled ? 'cancelled' : 'done', value: o.value, error: null });
         if (get().progress?.channel === kind) set({ progress: null });
@@ -164,7 +168,7 @@ export function createSelectSlice(set: Set, get: Get, client: object): SelectSli
       if (!c) return;
       const key = priorKey(c.s);
       const t = c.s.selectTasks.criteria;
-      if (t.key === key && t.status !== 'error') return;
+      if (t.key === key && (t.status === 'done' || t.status === 'running')) return;
       start('criteria', key, c.prior, { prior: c.prior });
     },
     runCalibration(replicates, draws) {
@@ -178,7 +182,7 @@ export function createSelectSlice(set: Set, get: Get, client: object): SelectSli
       if (!s.problem || s.problemStatus !== 'ready' || s.candidates.length === 0) return;
       const key = candidatesKey(s);
       const t = s.selectTasks.candidates;
-      if (t.key === key && t.status !== 'error') return;
+      if (t.key === key && (t.status === 'done' || t.status === 'running')) return;
       start('candidates', key, null, { priors: s.candidates.map((c) => c.prior), draws: CANDIDATE_DRAWS, seed: s.seed });
     },
     runCrossCalibration(replicates, draws) {

@@ -94,3 +94,19 @@ describe('select slice', () => {
     expect(store.getState().candidates).toHaveLength(3);
   });
 });
+
+describe('select slice and problem changes', () => {
+  it('a request superseded by a new problem ends as cancelled', async () => {
+    const { client, sent } = fakeClient();
+    const store = createWorkbenchStore(client, { demoId: 'x' });
+    await store.getState().loadDemo('x');
+    store.getState().refreshCriteria();
+    expect(store.getState().selectTasks.criteria.status).toBe('running');
+    sent[0]!.resolve({ superseded: true });
+    await new Promise((r) => setTimeout(r, 0));
+    expect(store.getState().selectTasks.criteria.status).toBe('cancelled');
+    // and a later refresh asks again (the cancelled task is not taken as up to date)
+    store.getState().refreshCriteria();
+    expect(sent).toHaveLength(2);
+  });
+});
