@@ -73,7 +73,7 @@ test('loads a user problem from CSV + Matrix Market pieces and shows its posteri
   const csp = await cspWatch(page);
   await open(page);
   await loadPieces(page);
-  await expect(page.getByTestId('problem-source')).toContainText('Your problem: Trench test (G.mtx + data.csv)');
+  await expect(page.getByTestId('problem-source')).toContainText('Your problem: Trench test (G.mtx + data.csv)', { timeout: 30_000 });
   const s = await settle(page);
   expect(s.demoId).toBe('borehole-log'); // the demo picker is unchanged; the problem is the user's
   const mean = (await traceValues(page, 'plot-posterior', 'posterior mean')) as number[];
@@ -157,26 +157,26 @@ test('a reload restores the session (user problem, prior, tab); start over retur
   const w = watch(page, ORIGIN);
   await open(page);
   await loadPieces(page);
-  await expect(page.getByTestId('problem-source')).toContainText('Trench test');
+  await expect(page.getByTestId('problem-source')).toContainText('Trench test', { timeout: 30_000 });
   await settle(page);
   const edited = await setLength(page, '7.5');
   await page.getByTestId('tab-fit').click();
-  await expect(page.getByTestId('autosave-status')).toHaveText('Saved');
+  await expect(page.getByTestId('autosave-status')).toHaveText('Saved', { timeout: 30_000 });
   const plotted = await traceValues(page, 'plot-fit', 'predicted G m̃');
   await page.reload();
-  await expect(page.getByTestId('problem-source')).toContainText('Your problem: Trench test');
+  await expect(page.getByTestId('problem-source')).toContainText('Your problem: Trench test', { timeout: 30_000 });
   const s = await settle(page);
   expect(s.prior).toEqual(edited.prior);
   expect(s.tab).toBe('fit');
   await expect.poll(async () => traceValues(page, 'plot-fit', 'predicted G m̃')).toEqual(plotted);
 
   await page.getByTestId('start-over').click();
-  await expect(page.getByTestId('problem-source')).toHaveText('');
+  await expect(page.getByTestId('problem-source')).toHaveText('', { timeout: 30_000 });
   const d = await settle(page);
   expect(d.demoId).toBe('borehole-log');
-  await expect(page.getByTestId('autosave-status')).toHaveText('Saved');
+  await expect(page.getByTestId('autosave-status')).toHaveText('Saved', { timeout: 30_000 });
   await page.reload();
-  await expect(page.getByTestId('problem-source')).toHaveText('');
+  await expect(page.getByTestId('problem-source')).toHaveText('', { timeout: 30_000 });
   expect((await settle(page)).prior).toEqual(d.prior);
   expect(w.problems).toEqual([]);
   expect(w.foreign).toEqual([]);
@@ -192,7 +192,7 @@ test('a shared link restores the prior on its built-in problem and takes precede
   // edit further (autosaved), then open the link in the same browser profile
   await page.getByTestId('demo-select').selectOption('borehole-log');
   await settle(page);
-  await expect(page.getByTestId('autosave-status')).toHaveText('Saved');
+  await expect(page.getByTestId('autosave-status')).toHaveText('Saved', { timeout: 30_000 });
   const other = await context.newPage();
   const w = watch(other, ORIGIN);
   await other.goto(link);
@@ -226,7 +226,7 @@ test('hostile text from a problem file is shown as text (page and report)', asyn
     quantity: { name: '<b onmouseover=alert(2)>q</b>', unit: '<script>alert(3)</script>' },
   }));
   await page.getByTestId('load-files-input').setInputFiles(json);
-  await expect(page.getByTestId('problem-source')).toContainText(hostile);
+  await expect(page.getByTestId('problem-source')).toContainText(hostile, { timeout: 30_000 });
   await settle(page);
   await page.getByTestId('tab-problem').click();
   await expect(page.getByTestId('screen-problem').getByRole('heading', { level: 2 })).toHaveText(hostile);
@@ -253,7 +253,7 @@ test('if a numerics worker dies, the page says so, restarts it and keeps the use
   const w = watch(page, ORIGIN);
   await open(page);
   await loadPieces(page);
-  await expect(page.getByTestId('problem-source')).toContainText('Trench test');
+  await expect(page.getByTestId('problem-source')).toContainText('Trench test', { timeout: 30_000 });
   const before = await setLength(page, '5');
   const workers = page.workers().filter((x) => !x.url().includes('parseWorker'));
   expect(workers.length).toBeGreaterThanOrEqual(1);
@@ -268,7 +268,7 @@ test('if a numerics worker dies, the page says so, restarts it and keeps the use
   await setLength(page, '6');
   const s = await settle(page);
   expect(s.prior.terms[0]!.length).toBe(6);
-  await expect(page.getByTestId('problem-source')).toContainText('Trench test');
+  await expect(page.getByTestId('problem-source')).toContainText('Trench test', { timeout: 30_000 });
   const mean = (await traceValues(page, 'plot-posterior', 'posterior mean')) as number[];
   expect(maxRelDiff(mean, posteriorSummary(preparePosterior(P.problem, { ...before.prior, terms: [{ ...before.prior.terms[0]!, length: 6 }] })).mean)).toBeLessThan(TOL);
   expect(w.foreign).toEqual([]);
@@ -288,7 +288,7 @@ test('the template problem loads by drag-and-drop; plots, realisations and the r
     window.dispatchEvent(new DragEvent('dragover', { dataTransfer: dt, cancelable: true }));
     window.dispatchEvent(new DragEvent('drop', { dataTransfer: dt, cancelable: true }));
   }, files);
-  await expect(page.getByTestId('problem-source')).toContainText('Template: soil moisture along a trench (invented)');
+  await expect(page.getByTestId('problem-source')).toContainText('Template: soil moisture along a trench (invented)', { timeout: 30_000 });
   const s = await settle(page);
   const { parseProblemFile } = await import('../src/core/io/problemFile.ts');
   const problem = parseProblemFile('problem.json', files[0]!.text, { readSibling: () => new TextEncoder().encode(files[1]!.text) }).problem;

@@ -240,7 +240,8 @@ export function createSessionSlice(set: Set, get: Get, api: StoreApi<WorkbenchSt
     },
 
     async startOver() {
-      set({ userProblem: null, loadError: null, loadWarnings: [] });
+      // 'pending' at once, so that nobody reads the previous session's "Saved" as this one's.
+      set({ userProblem: null, loadError: null, loadWarnings: [], ...(get().saveStatus !== 'off' ? { saveStatus: 'pending' as const } : {}) });
       await get().openDemo(DEFAULT_DEMO, { tab: 'posterior', selectedCell: null });
     },
 
