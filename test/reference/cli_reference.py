@@ -43,37 +43,11 @@ def read_operator(spec, base, m, n):
         return a.toarray() if hasattr(a, "toarray") else np.asarray(a, dtype=float)
     return np.loadtxt(path, delimiter=",", ndmin=2)
 
-
-def rho(kernel, h, nu):
-    if kernel == "exponential":
-        return np.exp(-h)
-    if kernel == "gaussian":
-        return np.exp(-0.5 * h * h)
-    if kernel == "spherical":
-        return np.where(h < 1, 1 - 1.5 * h + 0.5 * h ** 3, 0.0)
-    if kernel == "matern":
-        z = np.sqrt(2 * nu) * h
-        with np.errstate(invalid="ignore", divide="ignore"):
-            r = 2 ** (1 - nu) / special.gamma(nu) * z ** nu * special.kv(nu, z)
-        return np.where(z == 0, 1.0, r)
-    raise ValueError(kernel)
+from reference_prior import covariance_at  # noqa: E402  (shared independent construction)
 
 
 def prior_covariance(Q, x, y, n):
-    ox = x[None, :] - x[:, None]
-    oy = y[None, :] - y[:, None]
-    C = np.zeros((n, n))
-    for term in Q["terms"]:
-        if "lengths" in term:
-            th = np.deg2rad(term.get("angle", 0.0))
-            u = np.cos(th) * ox + np.sin(th) * oy  # offset rotated by -angle
-            v = -np.sin(th) * ox + np.cos(th) * oy
-            h = np.sqrt((u / term["lengths"][0]) ** 2 + (v / term["lengths"][1]) ** 2)
-        else:
-            h = np.sqrt(ox ** 2 + oy ** 2) / term["length"]
-        C += term["variance"] * rho(term["kernel"], h, term.get("nu", 0.5))
-    s = np.array(Q.get("stdProfile", np.ones(n)), dtype=float)
-    return s[:, None] * C * s[None, :] + Q.get("nugget", 0.0) * np.eye(n)
+    return covariance_at(Q, x, y)
 
 
 def main():

@@ -25,66 +25,7 @@ import sys
 import numpy as np
 from scipy import linalg, special, stats
 
-
-def correlation(kernel, h, nu):
-    if kernel == "exponential":
-        return np.exp(-h)
-    if kernel == "gaussian":
-        return np.exp(-0.5 * h * h)
-    if kernel == "spherical":
-        return np.where(h < 1, 1 - 1.5 * h + 0.5 * h ** 3, 0.0)
-    if kernel == "matern":
-        x = np.sqrt(2 * nu) * h
-        with np.errstate(invalid="ignore", divide="ignore"):
-            v = 2 ** (1 - nu) / special.gamma(nu) * x ** nu * special.kv(nu, x)
-        return np.where(x == 0, 1.0, np.nan_to_num(v, nan=0.0))
-    raise ValueError(kernel)
-
-
-def coordinates(grid):
-    shape = grid["shape"]
-    spacing = grid["spacing"]
-    origin = grid.get("origin") or [0.0] * len(shape)
-    nx = shape[0]
-    ny = shape[1] if len(shape) == 2 else 1
-    idx = np.arange(nx * ny)
-    x = float(origin[0]) + float(spacing[0]) * (idx % nx)
-    y = float(origin[1]) + float(spacing[1]) * (idx // nx) if len(shape) == 2 else np.zeros(nx * ny)
-    return x, y
-
-
-def covariance(grid, prior):
-    x, y = coordinates(grid)
-    dx = x[:, None] - x[None, :]
-    dy = y[:, None] - y[None, :]
-    C = np.zeros_like(dx)
-    for t in prior["terms"]:
-        if "lengths" in t and t["lengths"] is not None:
-            l1, l2 = t["lengths"]
-            th = np.deg2rad(t.get("angle", 0.0) or 0.0)
-            u = (np.cos(th) * dx + np.sin(th) * dy) / l1
-            v = (-np.sin(th) * dx + np.cos(th) * dy) / l2
-            h = np.hypot(u, v)
-        else:
-            h = np.hypot(dx, dy) / t["length"]
-        C += t["variance"] * correlation(t["kernel"], h, t.get("nu", 1.5))
-    if prior.get("stdProfile") is not None:
-        s = np.asarray(prior["stdProfile"], float)
-        C = s[:, None] * C * s[None, :]
-    C += (prior.get("nugget") or 0.0) * np.eye(len(x))
-    return C
-
-
-def mean_vector(grid, prior):
-    x, y = coordinates(grid)
-    m = prior["mean"]
-    if "constant" in m:
-        return np.full(len(x), float(m["constant"]))
-    if "values" in m:
-        return np.asarray(m["values"], float)
-    tr = m["trend"]
-    slope = list(tr["slope"]) + [0.0]
-    return tr["intercept"] + slope[0] * x + slope[1] * y
+from reference_prior import covariance, mean_vector  # noqa: E402  (shared independent construction)
 
 
 def operator(g):

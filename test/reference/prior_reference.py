@@ -18,79 +18,8 @@ import json
 import sys
 
 import numpy as np
-from scipy import special
 
-
-def matern(h, nu):
-    h = np.asarray(h, dtype=float)
-    out = np.ones_like(h)
-    pos = h > 0
-    z = np.sqrt(2.0 * nu) * h[pos]
-    with np.errstate(under="ignore", over="ignore", invalid="ignore"):
-        val = 2.0 ** (1.0 - nu) / special.gamma(nu) * z ** nu * special.kv(nu, z)
-    val[~np.isfinite(val)] = 0.0  # K_nu underflow at very large z
-    out[pos] = val
-    return out
-
-
-def correlation(kernel, h, nu):
-    if kernel == "exponential":
-        return np.exp(-h)
-    if kernel == "gaussian":
-        return np.exp(-0.5 * h * h)
-    if kernel == "spherical":
-        return np.where(h < 1.0, 1.0 - 1.5 * h + 0.5 * h ** 3, 0.0)
-    if kernel == "matern":
-        return matern(h, 1.5 if nu is None else nu)
-    raise ValueError(kernel)
-
-
-def coordinates(grid):
-    shape = grid["shape"]
-    spacing = grid["spacing"]
-    origin = grid.get("origin", [0.0] * len(shape))
-    nx = shape[0]
-    ny = shape[1] if len(shape) == 2 else 1
-    iy, ix = np.meshgrid(np.arange(ny), np.arange(nx), indexing="ij")  # rows iy, x fastest after ravel
-    x = float(origin[0]) + float(spacing[0]) * ix.ravel().astype(float)
-    y = (float(origin[1]) + float(spacing[1]) * iy.ravel().astype(float)) if len(shape) == 2 else np.zeros(nx)
-    return x, y
-
-
-def covariance(grid, prior):
-    x, y = coordinates(grid)
-    dx = x[None, :] - x[:, None]
-    dy = y[None, :] - y[:, None]
-    k = np.zeros_like(dx)
-    for term in prior["terms"]:
-        if "lengths" in term:
-            t = np.deg2rad(term.get("angle", 0.0))
-            rot = np.array([[np.cos(t), np.sin(t)], [-np.sin(t), np.cos(t)]])
-            d = np.stack([dx.ravel(), dy.ravel()])
-            uv = rot @ d
-            l1, l2 = term["lengths"]
-            h = np.sqrt((uv[0] / l1) ** 2 + (uv[1] / l2) ** 2).reshape(dx.shape)
-        else:
-            h = np.hypot(dx, dy) / term["length"]
-        k += term["variance"] * correlation(term["kernel"], h, term.get("nu"))
-    s = np.asarray(prior.get("stdProfile", np.ones(len(x))), dtype=float)
-    c = (s[:, None] * k) * s[None, :]
-    c += prior.get("nugget", 0.0) * np.eye(len(x))
-    return c
-
-
-def mean(grid, prior):
-    x, y = coordinates(grid)
-    m = prior["mean"]
-    if "constant" in m:
-        return np.full(len(x), float(m["constant"]))
-    if "values" in m:
-        return np.asarray(m["values"], dtype=float)
-    slope = m["trend"]["slope"]
-    out = m["trend"]["intercept"] + slope[0] * x
-    if len(slope) > 1:
-        out = out + slope[1] * y
-    return out
+from reference_prior import covariance, mean_vector as mean
 
 
 def main():
