@@ -223,20 +223,26 @@ test('hostile text from a problem file is shown as text (page and report)', asyn
     grid: { shape: [4], spacing: [1] },
     operator: { dense: [[1, 0, 0, 0], [0, 0, 1, 1]] },
     data: { values: [1, 2], sigma: [0.5, 0.5] },
-    quantity: { name: '<b onmouseover=alert(2)>q</b>', unit: '<script>alert(3)</script>' },
+    quantity: { name: '<b onmouseover=alert(2)>q</b>', unit: '<a href="javascript:alert(4)">u</a>' },
   }));
   await page.getByTestId('load-files-input').setInputFiles(json);
   await expect(page.getByTestId('problem-source')).toContainText(hostile, { timeout: 30_000 });
   await settle(page);
   await page.getByTestId('tab-problem').click();
   await expect(page.getByTestId('screen-problem').getByRole('heading', { level: 2 })).toHaveText(hostile);
-  expect(await page.locator('img[src="x"], [onerror], [onmouseover]').count()).toBe(0);
+  expect(await page.locator('img[src="x"], [onerror], [onmouseover], a[href^="javascript"], [*|href^="javascript"]').count()).toBe(0);
+  for (const tab of ['posterior', 'fit', 'prior']) {
+    await page.getByTestId(`tab-${tab}`).click();
+    await page.waitForTimeout(300);
+    expect(await page.locator('img[src="x"], [onerror], [onmouseover], a[href^="javascript"], [*|href^="javascript"]').count(), tab).toBe(0);
+  }
   await page.getByTestId('export-menu').click();
   const [dl] = await Promise.all([page.waitForEvent('download'), page.getByTestId('report-download').click()]);
   const html = readFileSync(await dl.path(), 'utf8');
   expect(html).toContain('&lt;img src=x onerror=alert(1)&gt;');
   expect(html).not.toContain(hostile);
-  expect(html).not.toContain('<script>');
+  expect(html).not.toContain('<script');
+  expect(html).not.toContain('<a href');
   expect(html).toContain('qualified professional');
   const report = await page.context().newPage();
   await report.setContent(html);
