@@ -9,8 +9,13 @@ import { correlation } from '../core/kernels/correlation.ts';
 import type { Matrix } from '../core/linalg/matrix.ts';
 import { assertNever } from '../core/linalg/operator.ts';
 import { diagnosePrior } from '../core/prior/diagnostics.ts';
-import { priorRealisations } from '../core/sampling/realisations.ts';
+import { priorRealisationsWithRoute } from '../core/sampling/realisations.ts';
 import { posteriorRealisations, posteriorSummary, preparePosterior } from '../core/inverse/posterior.ts';
+import { choosePosteriorPath, FFT_MIN_CELLS, PATH_REQUESTS, type PathRequest } from '../core/inverse/auto.ts';
+import { prepareStructuredPosterior, structuredPosteriorStd, structuredPosteriorSummary } from '../core/inverse/structured.ts';
+import { parallelPosteriorStd, worthSplitting } from '../core/parallel/blocks.ts';
+import { defaultThreads, nodeBlockPool } from '../core/parallel/node.ts';
+import type { PosteriorSummary } from '../core/inverse/types.ts';
 import { DEMOS } from '../core/problems/demos.ts';
 import { evidenceMap, type LogAxis } from '../core/tuning/evidenceMap.ts';
 import type { FileWarning } from '../core/io/errors.ts';
@@ -47,7 +52,7 @@ export interface Command {
   /** Longer description printed by `priorscope <command> --help`. */
   readonly details: string;
   readonly options: readonly OptionSpec[];
-  run(args: ParsedArgs, io: Io): number;
+  run(args: ParsedArgs, io: Io): number | Promise<number>;
 }
 
 const OUT: OptionSpec = { name: 'out', value: 'FILE', help: 'write the result to FILE instead of stdout' };
@@ -87,21 +92,76 @@ function noPositionals(args: ParsedArgs): void {
   if (args.positionals.length > 0) throw new UsageError(`unexpected argument ${JSON.stringify(args.positionals[0])}`);
 }
 
+/** Parses --path (default auto). */
+function pathOption(args: ParsedArgs): PathRequest {
+  const text = optionString(args, 'path') ?? 'auto';
+  if (!(PATH_REQUESTS as readonly string[]).includes(text)) {
+    throw new UsageError(`--path must be one of ${PATH_REQUESTS.join(', ')}, got ${JSON.stringify(text)}`);
+  }
+  return text as PathRequest;
+}
+
+/** Parses --threads (default: every core, os.availableParallelism()). */
+function threadsOption(args: ParsedArgs): number {
+  const text = optionString(args, 'threads');
+  return text === undefined ? defaultThreads() : parseNumberOption('threads', text, { integer: true, ge: 1, le: 64 });
+}
+
+/**
+ * The posterior through the path `requested` resolves to (src/core/inverse/auto.ts). On the FFT
+ * path the standard deviations' column blocks go to `threads` worker threads when that is worth it
+ * (src/core/parallel/blocks.ts worthSplitting); the result is bit-identical to one thread.
+ */
+export async function cliPosterior(
+  problem: Parameters<typeof choosePosteriorPath>[0],
+  prior: Parameters<typeof choosePosteriorPath>[1],
+  requested: PathRequest,
+  threads: number,
+): Promise<{ summary: PosteriorSummary; reason: string; threadsUsed: number }> {
+  const decision = choosePosteriorPath(problem, prior, requested, '--path');
+  if (decision.path === 'dense') return { summary: posteriorSummary(preparePosterior(problem, prior)), reason: decision.reason, threadsUsed: 1 };
+  const state = prepareStructuredPosterior(problem, prior);
+  if (!worthSplitting(state.L.rows, state.Bt.cols, threads)) {
+    return { summary: structuredPosteriorSummary(state, structuredPosteriorStd(state)), reason: decision.reason, threadsUsed: 1 };
+  }
+  const pool = nodeBlockPool(threads);
+  try {
+    const std = await parallelPosteriorStd(state, pool);
+    return { summary: structuredPosteriorSummary(state, std), reason: decision.reason, threadsUsed: threads };
+  } finally {
+    await pool.close();
+  }
+}
+
 const posterior: Command = {
   name: 'posterior',
   summary: 'posterior mean, standard deviation, residuals and log-evidence',
-  usage: 'priorscope posterior --problem P.json --prior Q.json [--out FILE]',
+  usage: 'priorscope posterior --problem P.json --prior Q.json [--path auto|dense|fft] [--threads T] [--out FILE]',
   details:
     'Prints {"mean": [N], "std": [N], "priorStd": [N], "predicted": [M], "residuals": [M], "chi2", "logEvidence",\n' +
     '"resolutionTrace", "dataCount", "parameterCount", "path": "dense" | "fft"}. residuals are normalised\n' +
     '((d − G m̃)/σ, or Ld⁻¹ (d − G m̃) for a full data covariance Cd = Ld Ldᵀ) and chi2 is their sum of squares.\n' +
-    'logEvidence is the natural log of N(d; G m0, G Cm Gᵀ + Cd), including −(M/2) log 2π.',
-  options: [PROBLEM, PRIOR, OUT],
-  run(args, io) {
+    'logEvidence is the natural log of N(d; G m0, G Cm Gᵀ + Cd), including −(M/2) log 2π.\n' +
+    '--path auto (default) takes the FFT path (circulant embedding, no N × N matrix) for a stationary prior on a\n' +
+    `regular grid of at least ${FFT_MIN_CELLS} cells and the dense path otherwise; "path" in the output says which ran. Both\n` +
+    'give the same numbers to round-off. --path fft on a problem the FFT path cannot take is an error (exit 2).\n' +
+    '--threads T splits the FFT path\'s standard deviations over T worker threads (default: every core; results\n' +
+    'are identical for every T).',
+  options: [
+    PROBLEM,
+    PRIOR,
+    { name: 'path', value: 'auto|dense|fft', help: 'which posterior path runs (default auto)' },
+    { name: 'threads', value: 'T', help: 'worker threads for the FFT path (default: every core)' },
+    OUT,
+  ],
+  async run(args, io) {
     noPositionals(args);
+    const requested = pathOption(args);
+    const threads = threadsOption(args);
     const { problem, prior } = loadBoth(args, io);
     progress(io, `posterior for ${cellCount(problem.grid)} cells and ${problem.data.values.length} data …`);
-    const s = posteriorSummary(preparePosterior(problem, prior));
+    const { summary: s, reason, threadsUsed } = await cliPosterior(problem, prior, requested, threads);
+    progress(io, `${reason}; ${threadsUsed} thread${threadsUsed === 1 ? '' : 's'}`);
     emit(
       io,
       args,
@@ -202,7 +262,19 @@ const sample: Command = {
     }
     const post = optionFlag(args, 'posterior');
     progress(io, `drawing ${count} ${post ? 'posterior' : 'prior'} realisations on ${n} cells …`);
-    const m: Matrix = post ? posteriorRealisations(preparePosterior(problem, prior), count, seed) : priorRealisations(problem.grid, prior, count, seed);
+    let m: Matrix;
+    if (post) {
+      m = posteriorRealisations(preparePosterior(problem, prior), count, seed);
+      io.stderr('priorscope sample: route dense (posterior realisations on the dense path)');
+    } else {
+      const r = priorRealisationsWithRoute(problem.grid, prior, count, seed);
+      m = r.realisations;
+      io.stderr(
+        r.route === 'fft'
+          ? `priorscope sample: route fft (circulant embedding ${r.padding.join(' × ')}${r.clipped ? `, negative eigenvalues clipped: relative trace ${r.clippedRelativeTrace.toExponential(2)}` : ', exact'})`
+          : `priorscope sample: route dense (Cholesky of Cm, ${n} cells)`,
+      );
+    }
     switch (format) {
       case 'json': {
         const rows = Array.from({ length: m.rows }, (_, i) => m.data.subarray(i * m.cols, (i + 1) * m.cols));

@@ -88,7 +88,7 @@ export async function main(argv: readonly string[], io: Io = processIo()): Promi
   }
   try {
     const args = parseArgs(rest, command.options);
-    return command.run(args, io);
+    return await command.run(args, io);
   } catch (e) {
     if (e instanceof UsageError) {
       io.stderr(`priorscope ${command.name}: ${e.message} (see priorscope ${command.name} --help)`);

@@ -4,6 +4,12 @@
  *
  * Stream layout (part of the "same seed, same numbers" contract): realisation r uses normal
  * variates r·N … r·N + N − 1 of the generator seeded with `seed` (./random.ts), in cell order.
+ *
+ * Route: up to {@link DENSE_REALISATION_LIMIT} cells the dense Cholesky route above (so seeded
+ * outputs of the demos and tests stay as they were); above it, when the prior is stationary on
+ * the grid, circulant embedding (../fft/realisations.ts: Dietrich & Newsam 1997; Wood & Chan
+ * 1994), which needs no N × N matrix and has its own stream layout. {@link priorRealisationsWithRoute}
+ * says which route ran, with the embedding's padding and any clipping.
  */
 import { InputError, NotPositiveDefiniteError } from '../errors.ts';
 import type { Grid } from '../grid/grid.ts';
@@ -13,11 +19,44 @@ import { covarianceMatrix, meanVector } from '../prior/covariance.ts';
 import { diagnoseCovariance } from '../prior/diagnostics.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import { Random, validateSeed } from './random.ts';
+import { cellCount } from '../grid/grid.ts';
+import { nonStationaryReason } from '../fft/covariance.ts';
+import { circulantRealisations } from '../fft/realisations.ts';
 
-/** `count` prior realisations m0 + L z, one per row (count × N); same seed, same numbers everywhere. */
-export function priorRealisations(grid: Grid, prior: PriorSpec, count: number, seed: number): Matrix {
+/** Largest N drawn by dense Cholesky (4096 = 64²: Cm is 128 MB, its factor about a second). */
+export const DENSE_REALISATION_LIMIT = 4096;
+
+export interface RealisationRoute {
+  /** 'dense': Cholesky of Cm; 'fft': circulant embedding. */
+  readonly route: 'dense' | 'fft';
+  /** Embedding sizes per axis on the FFT route; the grid shape on the dense route. */
+  readonly padding: readonly number[];
+  /** FFT route only: negative embedding eigenvalues were set to 0 (an approximation). */
+  readonly clipped: boolean;
+  /** FFT route: Σ_{λ<0} |λ| / Σ λ of the embedding (0 when exact); 0 on the dense route. */
+  readonly clippedRelativeTrace: number;
+}
+
+/** `count` prior realisations with the route that drew them (see the module comment). */
+export function priorRealisationsWithRoute(grid: Grid, prior: PriorSpec, count: number, seed: number): { realisations: Matrix } & RealisationRoute {
   if (!Number.isInteger(count) || count < 0) throw new InputError('count', 'a non-negative integer', count);
   validateSeed(seed);
+  if (cellCount(grid) > DENSE_REALISATION_LIMIT && nonStationaryReason(grid, prior) === null) {
+    const r = circulantRealisations(grid, prior, count, seed);
+    return { realisations: r.realisations, route: r.path, padding: r.padding, clipped: r.clipped, clippedRelativeTrace: r.clippedRelativeTrace };
+  }
+  return { realisations: denseRealisations(grid, prior, count, seed), route: 'dense', padding: grid.shape, clipped: false, clippedRelativeTrace: 0 };
+}
+
+/**
+ * `count` prior realisations, one per row (count × N); same seed, same numbers everywhere. Dense
+ * m0 + L z up to {@link DENSE_REALISATION_LIMIT} cells, circulant embedding above.
+ */
+export function priorRealisations(grid: Grid, prior: PriorSpec, count: number, seed: number): Matrix {
+  return priorRealisationsWithRoute(grid, prior, count, seed).realisations;
+}
+
+function denseRealisations(grid: Grid, prior: PriorSpec, count: number, seed: number): Matrix {
   const m0 = meanVector(grid, prior);
   const c = covarianceMatrix(grid, prior);
   const r = cholesky(c);

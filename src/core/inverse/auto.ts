@@ -1,0 +1,81 @@
+/**
+ * Which posterior path runs: the dense one (./posterior.ts: Cm as an N × N matrix) or the
+ * structured FFT one (./structured.ts: Cm·v by circulant embedding). Both compute the same
+ * data-space formulas (Tarantola 2005, Inverse Problem Theory, §3.2) and agree to round-off, so
+ * the choice is a matter of speed and memory only.
+ *
+ * Rule (`auto`): FFT when the prior is stationary on the grid (../fft/covariance.ts
+ * nonStationaryReason) and N ≥ {@link FFT_MIN_CELLS}; dense otherwise.
+ * Measured on the project machine (2 cores, shared; CPU-time minima of 7 runs, mean + std + χ² +
+ * evidence; Matérn ν = 1.5, length N/8; M ≈ N/8 data):
+ *   - N ≤ 64 (1-D and 2-D): dense 0.06–0.25 ms, FFT 0.1–0.5 ms: dense is faster, both negligible;
+ *   - N = 128 (1-D): dense 0.30–0.37 ms, FFT 0.21–0.32 ms: the crossing;
+ *   - N = 256…576: FFT 1.0–1.9× faster; N = 512 with a dense G: dense 12.1 ms, FFT 4.6 ms;
+ *   - the demos (load average 7–10, wall medians): borehole-log N = 200, M = 50: dense 26 ms, FFT
+ *     9 ms (2 ms with cached spectra); potential-field N = 800, M = 40: 33 / 26 / 10 ms;
+ *     crosshole-tomography N = 1024, M = 256: 443 / 317 / 234 ms; 1-D N = 1000, M = 100: 53 / 50 /
+ *     29 ms; 64 × 64, M = 400: 3.1 s / 1.5 s / 1.3 s. Above that the dense route needs N² doubles
+ *     (2 GB at 128²) and the FFT path is the only one that fits.
+ * The FFT side wins more with a warm spectrum cache (a prior change on the same problem), so the
+ * threshold sits at the measured cold crossing. See test/core/inverse/auto.test.ts.
+ *
+ * PUBLIC API: PathRequest, PATH_REQUESTS, FFT_MIN_CELLS, PathDecision, choosePosteriorPath,
+ * posteriorWithPath.
+ */
+import { InputError } from '../errors.ts';
+import { cellCount } from '../grid/grid.ts';
+import { assertNever } from '../linalg/operator.ts';
+import { nonStationaryReason } from '../fft/covariance.ts';
+import type { PriorSpec } from '../prior/spec.ts';
+import type { Problem } from '../problems/spec.ts';
+import { posteriorSummary, preparePosterior } from './posterior.ts';
+import { prepareStructuredPosterior, structuredPosteriorSummary, type StructuredProblem } from './structured.ts';
+import type { PosteriorSummary } from './types.ts';
+
+export type PathRequest = 'auto' | 'dense' | 'fft';
+export const PATH_REQUESTS: readonly PathRequest[] = ['auto', 'dense', 'fft'];
+
+/** Smallest N for which `auto` picks the FFT path (measured crossing; see the module comment). */
+export const FFT_MIN_CELLS = 128;
+
+export interface PathDecision {
+  readonly path: 'dense' | 'fft';
+  /** One sentence on why (for logs, the CLI's stderr and the UI). */
+  readonly reason: string;
+}
+
+/**
+ * The path for (problem, prior) under `requested`. Throws InputError(field, …) when 'fft' is
+ * requested for a prior the FFT path cannot represent (`field` names where the request came
+ * from, e.g. '--path').
+ */
+export function choosePosteriorPath(problem: Problem, prior: PriorSpec, requested: PathRequest = 'auto', field = 'path'): PathDecision {
+  const why = nonStationaryReason(problem.grid, prior);
+  const n = cellCount(problem.grid);
+  switch (requested) {
+    case 'dense':
+      return { path: 'dense', reason: 'dense path requested' };
+    case 'fft':
+      if (why !== null) throw new InputError(field, `"dense" or "auto" for this problem (the FFT path needs a stationary prior on a regular 1-D or 2-D grid: ${why})`, 'fft');
+      return { path: 'fft', reason: 'FFT path requested' };
+    case 'auto':
+      if (why !== null) return { path: 'dense', reason: `dense: ${why}` };
+      if (n < FFT_MIN_CELLS) return { path: 'dense', reason: `dense: ${n} cells, below ${FFT_MIN_CELLS} the dense path is as fast` };
+      return { path: 'fft', reason: `FFT: stationary prior on a regular grid of ${n} cells (≥ ${FFT_MIN_CELLS})` };
+    default:
+      return assertNever(requested);
+  }
+}
+
+/** The posterior summary through the chosen path; `summary.path` says which ran. */
+export function posteriorWithPath(
+  sp: StructuredProblem | Problem,
+  prior: PriorSpec,
+  requested: PathRequest = 'auto',
+): { summary: PosteriorSummary; decision: PathDecision } {
+  const problem = 'cacheBytes' in sp ? sp.problem : sp;
+  const decision = choosePosteriorPath(problem, prior, requested);
+  const summary =
+    decision.path === 'fft' ? structuredPosteriorSummary(prepareStructuredPosterior(sp, prior)) : posteriorSummary(preparePosterior(problem, prior));
+  return { summary, decision };
+}

@@ -1,0 +1,133 @@
+/**
+ * Splitting the posterior standard deviations across threads (pure: no worker or Node imports;
+ * the pools that run the tasks live in ./node.ts for worker_threads and src/worker/pool.ts for
+ * Web Workers).
+ *
+ * var_j = Cm_jj − Σ_k W_kj², W = L⁻¹ Bᵀ (Tarantola 2005, Inverse Problem Theory, §3.2; see
+ * ../inverse/structured.ts): each column j of W depends on column j of Bᵀ and on L only, so the
+ * columns split into independent tasks. A task carries L, its columns of Bᵀ (copied contiguous,
+ * M × w) and of diag(Cm), and runs ../inverse/structured.ts structuredVarianceBlock over blocks of
+ * VARIANCE_BLOCK columns, the same blocks the single-thread structuredPosteriorStd uses when the
+ * ranges start at multiples of VARIANCE_BLOCK (and each column's arithmetic does not depend on the
+ * blocks anyway), so the split result equals the single-thread one bit for bit.
+ *
+ * PUBLIC API: VarianceTask, BlockPool, columnRanges, varianceTask, runVarianceTask,
+ * parallelPosteriorVariance, parallelPosteriorStd, worthSplitting, MIN_SPLIT_FLOPS.
+ */
+import { InputError } from '../errors.ts';
+import type { Matrix } from '../linalg/matrix.ts';
+import { structuredVarianceBlock, VARIANCE_BLOCK } from '../inverse/structured.ts';
+
+/** One unit of work, plain data (structured-clone safe; the Float64Array buffers may be transferred). */
+export interface VarianceTask {
+  /** M, the number of data. */
+  readonly m: number;
+  /** First and one-past-last global column. */
+  readonly c0: number;
+  readonly c1: number;
+  /** L (M × M, row-major). */
+  readonly L: Float64Array;
+  /** Columns c0 … c1 − 1 of Bᵀ, row-major M × (c1 − c0). */
+  readonly bt: Float64Array;
+  /** diag(Cm)[c0 … c1 − 1]. */
+  readonly priorVariance: Float64Array;
+}
+
+/** Something that runs variance tasks on other threads. */
+export interface BlockPool {
+  /** Number of threads. */
+  readonly size: number;
+  /** Posterior variances of the task's columns (length c1 − c0). */
+  run(task: VarianceTask): Promise<Float64Array>;
+  /** Ends the threads; pending tasks are rejected. */
+  close(): Promise<void>;
+}
+
+/**
+ * [c0, c1) ranges covering 0 … n − 1 in `parts` nearly equal pieces whose starts are multiples of
+ * `align` (fewer pieces when n is small). Pure.
+ */
+export function columnRanges(n: number, parts: number, align = VARIANCE_BLOCK): [number, number][] {
+  if (!Number.isInteger(parts) || parts < 1) throw new InputError('parts', 'an integer ≥ 1', parts);
+  const blocks = Math.ceil(n / align);
+  const k = Math.max(1, Math.min(parts, blocks));
+  const out: [number, number][] = [];
+  let b0 = 0;
+  for (let p = 0; p < k; p++) {
+    const b1 = Math.round(((p + 1) * blocks) / k);
+    if (b1 > b0) out.push([b0 * align, Math.min(n, b1 * align)]);
+    b0 = b1;
+  }
+  return out;
+}
+
+/** The task for columns [c0, c1) (copies its slices of Bᵀ and diag Cm, and L). */
+export function varianceTask(L: Matrix, Bt: Matrix, priorVariance: Float64Array, c0: number, c1: number): VarianceTask {
+  const m = Bt.rows;
+  const n = Bt.cols;
+  const w = c1 - c0;
+  const bt = new Float64Array(m * w);
+  for (let k = 0; k < m; k++) bt.set(Bt.data.subarray(k * n + c0, k * n + c1), k * w);
+  return { m, c0, c1, L: L.data.slice(), bt, priorVariance: priorVariance.slice(c0, c1) };
+}
+
+/** Runs one task on this thread: the function a worker calls. */
+export function runVarianceTask(task: VarianceTask, block = VARIANCE_BLOCK): Float64Array {
+  const w = task.c1 - task.c0;
+  const L: Matrix = { rows: task.m, cols: task.m, data: task.L };
+  const Bt: Matrix = { rows: task.m, cols: w, data: task.bt };
+  const out = new Float64Array(w);
+  for (let j0 = 0; j0 < w; j0 += block) {
+    const j1 = Math.min(w, j0 + block);
+    structuredVarianceBlock(L, Bt, task.priorVariance, j0, j1, out.subarray(j0, j1));
+  }
+  return out;
+}
+
+/** Work of the variance solve, M²N/2 multiply-adds (forward substitution per column). */
+export function varianceFlops(m: number, n: number): number {
+  return (m * m * n) / 2;
+}
+
+/**
+ * Below this many multiply-adds the solve takes a few ms on one core and copying to workers and
+ * starting them costs more than it saves (common practice, no source; 64² with M = 400 is 3.3e8).
+ */
+export const MIN_SPLIT_FLOPS = 2e7;
+
+export function worthSplitting(m: number, n: number, threads: number): boolean {
+  return threads > 1 && varianceFlops(m, n) >= MIN_SPLIT_FLOPS;
+}
+
+/**
+ * Posterior variances (length N) of the structured state split over the pool: 2 tasks per thread
+ * so a thread slowed by other load takes fewer (the order of results does not matter: each task
+ * writes its own columns).
+ */
+export async function parallelPosteriorVariance(
+  state: { readonly L: Matrix; readonly Bt: Matrix; readonly priorVariance: Float64Array },
+  pool: BlockPool,
+  tasksPerThread = 2,
+): Promise<Float64Array> {
+  const n = state.Bt.cols;
+  const out = new Float64Array(n);
+  const ranges = columnRanges(n, pool.size * tasksPerThread);
+  await Promise.all(
+    ranges.map(async ([c0, c1]) => {
+      const v = await pool.run(varianceTask(state.L, state.Bt, state.priorVariance, c0, c1));
+      if (v.length !== c1 - c0) throw new Error(`parallel variance: task [${c0}, ${c1}) returned ${v.length} values`);
+      out.set(v, c0);
+    }),
+  );
+  return out;
+}
+
+/** √ of {@link parallelPosteriorVariance}: equals structuredPosteriorStd(state) bit for bit. */
+export async function parallelPosteriorStd(
+  state: { readonly L: Matrix; readonly Bt: Matrix; readonly priorVariance: Float64Array },
+  pool: BlockPool,
+): Promise<Float64Array> {
+  const v = await parallelPosteriorVariance(state, pool);
+  for (let i = 0; i < v.length; i++) v[i] = Math.sqrt(v[i]!);
+  return v;
+}
