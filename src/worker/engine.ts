@@ -18,6 +18,15 @@ import {
   type PosteriorState,
 } from '../core/inverse/posterior.ts';
 import { InputError } from '../core/errors.ts';
+import { choosePosteriorPath } from '../core/inverse/auto.ts';
+import {
+  prepareStructuredPosterior,
+  structuredPosteriorStd,
+  structuredPosteriorSummary,
+  structuredProblem,
+  type StructuredProblem,
+} from '../core/inverse/structured.ts';
+import { parallelPosteriorStd, worthSplitting, type BlockPool } from '../core/parallel/blocks.ts';
 import { chiSquareQuantile } from '../core/inverse/chisquare.ts';
 import {
   assertNever,
@@ -93,10 +102,19 @@ export function problemView(
   };
 }
 
+/** Optional thread pool for the FFT path's standard deviations (src/worker/pool.ts lazyPool in the browser). */
+export interface EngineOptions {
+  readonly pool?: { get(): BlockPool; readonly threads: number };
+}
+
 export class Engine {
   private problem: Problem | null = null;
   private version = -1;
   private cached: { key: string; state: PosteriorState } | null = null;
+  /** FFT path: the problem with its cached row spectra, so a prior change costs only the inverse transforms. */
+  private structured: StructuredProblem | null = null;
+
+  constructor(private readonly options: EngineOptions = {}) {}
 
   get problemVersion(): number {
     return this.version;
@@ -151,14 +169,28 @@ export class Engine {
         this.setProblemInternal(r.problem, r.version);
         return problemView(r.problem, r.version, { demoId: null, description: '', startPrior: null, truthPrior: null });
       case 'posterior': {
-        const state = this.state(r.problemVersion, r.prior, progress);
-        progress('posterior mean and variance', 0.6);
-        const summary = posteriorSummary(state);
+        // Path by src/core/inverse/auto.ts (FFT for stationary priors on grids of ≥ 128 cells). The
+        // protocol has no partial result, so mean and std arrive together.
+        const problem = this.requireProblem(r.problemVersion);
+        let summary;
+        if (choosePosteriorPath(problem, r.prior).path === 'fft') {
+          progress('posterior mean (FFT path)', 0.1);
+          const st = prepareStructuredPosterior(this.structured ?? (this.structured = structuredProblem(problem)), r.prior);
+          progress('posterior standard deviations', 0.5);
+          const pool = this.options.pool;
+          const std =
+            pool !== undefined && worthSplitting(st.L.rows, st.Bt.cols, pool.threads) ? await parallelPosteriorStd(st, pool.get()) : structuredPosteriorStd(st);
+          summary = structuredPosteriorSummary(st, std);
+        } else {
+          const state = this.state(r.problemVersion, r.prior, progress);
+          progress('posterior mean and variance', 0.6);
+          summary = posteriorSummary(state);
+        }
         // Central 95% interval of χ²_M, divided by M (quantiles from src/core/inverse/chisquare.ts).
         const m = summary.dataCount;
         const chi2Interval: readonly [number, number] | null =
           m > 0 ? [chiSquareQuantile(0.025, m) / m, chiSquareQuantile(0.975, m) / m] : null;
-        return { summary, chi2Interval, priorMean: meanVector(state.problem.grid, r.prior) };
+        return { summary, chi2Interval, priorMean: meanVector(problem.grid, r.prior) };
       }
       case 'diagnostics':
         return diagnosePrior(this.requireProblem(r.problemVersion).grid, r.prior);
@@ -193,6 +225,7 @@ export class Engine {
     this.problem = problem;
     this.version = version;
     this.cached = null;
+    this.structured = structuredProblem(problem);
   }
 }
 
