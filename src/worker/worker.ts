@@ -4,13 +4,15 @@
  * runs them one at a time on the {@link Engine}, and transfers result buffers back.
  */
 import { Engine } from './engine.ts';
+import { lazyPool } from './pool.ts';
 import { LatestWinsQueue } from './queue.ts';
 import { channelOf, serialiseError, transferables, type WorkerReply, type WorkerRequest } from './protocol.ts';
 
 type Job = Exclude<WorkerRequest, { kind: 'cancel' }>;
 
 const scope = self as unknown as DedicatedWorkerGlobalScope;
-const engine = new Engine();
+// Variance blocks of large FFT posteriors go to one Web Worker per core (started on first use).
+const engine = new Engine({ pool: lazyPool() });
 const queue = new LatestWinsQueue<Job>();
 let scheduled = false;
 let running = false;
