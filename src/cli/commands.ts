@@ -101,10 +101,12 @@ function pathOption(args: ParsedArgs): PathRequest {
   return text as PathRequest;
 }
 
-/** Parses --threads (default: every core, os.availableParallelism()). */
-function threadsOption(args: ParsedArgs): number {
+/** Parses --threads: given, it is used as is; absent, every core when worthSplitting says so. */
+function threadsOption(args: ParsedArgs): { threads: number; forced: boolean } {
   const text = optionString(args, 'threads');
-  return text === undefined ? defaultThreads() : parseNumberOption('threads', text, { integer: true, ge: 1, le: 64 });
+  return text === undefined
+    ? { threads: defaultThreads(), forced: false }
+    : { threads: parseNumberOption('threads', text, { integer: true, ge: 1, le: 64 }), forced: true };
 }
 
 /**
@@ -117,11 +119,12 @@ export async function cliPosterior(
   prior: Parameters<typeof choosePosteriorPath>[1],
   requested: PathRequest,
   threads: number,
+  forced = false,
 ): Promise<{ summary: PosteriorSummary; reason: string; threadsUsed: number }> {
   const decision = choosePosteriorPath(problem, prior, requested, '--path');
   if (decision.path === 'dense') return { summary: posteriorSummary(preparePosterior(problem, prior)), reason: decision.reason, threadsUsed: 1 };
   const state = prepareStructuredPosterior(problem, prior);
-  if (!worthSplitting(state.L.rows, state.Bt.cols, threads)) {
+  if (threads < 2 || (!forced && !worthSplitting(state.L.rows, state.Bt.cols, threads))) {
     return { summary: structuredPosteriorSummary(state, structuredPosteriorStd(state)), reason: decision.reason, threadsUsed: 1 };
   }
   const pool = nodeBlockPool(threads);
@@ -145,22 +148,22 @@ const posterior: Command = {
     '--path auto (default) takes the FFT path (circulant embedding, no N × N matrix) for a stationary prior on a\n' +
     `regular grid of at least ${FFT_MIN_CELLS} cells and the dense path otherwise; "path" in the output says which ran. Both\n` +
     'give the same numbers to round-off. --path fft on a problem the FFT path cannot take is an error (exit 2).\n' +
-    '--threads T splits the FFT path\'s standard deviations over T worker threads (default: every core; results\n' +
-    'are identical for every T).',
+    '--threads T splits the FFT path\'s standard deviations over T worker threads (default: every core when the\n' +
+    'solve is large enough to gain, about 128² cells with 400 data; results are identical for every T).',
   options: [
     PROBLEM,
     PRIOR,
     { name: 'path', value: 'auto|dense|fft', help: 'which posterior path runs (default auto)' },
-    { name: 'threads', value: 'T', help: 'worker threads for the FFT path (default: every core)' },
+    { name: 'threads', value: 'T', help: 'worker threads for the FFT path (default: every core on large problems)' },
     OUT,
   ],
   async run(args, io) {
     noPositionals(args);
     const requested = pathOption(args);
-    const threads = threadsOption(args);
+    const { threads, forced } = threadsOption(args);
     const { problem, prior } = loadBoth(args, io);
     progress(io, `posterior for ${cellCount(problem.grid)} cells and ${problem.data.values.length} data …`);
-    const { summary: s, reason, threadsUsed } = await cliPosterior(problem, prior, requested, threads);
+    const { summary: s, reason, threadsUsed } = await cliPosterior(problem, prior, requested, threads, forced);
     progress(io, `${reason}; ${threadsUsed} thread${threadsUsed === 1 ? '' : 's'}`);
     emit(
       io,

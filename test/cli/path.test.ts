@@ -105,7 +105,7 @@ describe('posterior --path', () => {
   });
 
   it('--threads 1 and --threads 2 give byte-identical output on a problem large enough to split', () => {
-    // 40 × 40 cells and 200 data: M²N/2 = 3.2e7 ≥ MIN_SPLIT_FLOPS = 2e7 (src/core/parallel/blocks.ts), so T = 2 really splits.
+    // 40 × 40 cells and 200 data; an explicit --threads 2 splits whatever the size (src/cli/commands.ts cliPosterior).
     const d = tempDir();
     const n = 40;
     const m = 200;

@@ -90,10 +90,12 @@ export function varianceFlops(m: number, n: number): number {
 }
 
 /**
- * Below this many multiply-adds the solve takes a few ms on one core and copying to workers and
- * starting them costs more than it saves (common practice, no source; 64² with M = 400 is 3.3e8).
+ * Below this many multiply-adds splitting does not pay on the project machine (measured, 2 shared
+ * cores, load ≈ 1, 3 runs each; single / two threads incl. copies and worker start):
+ * 64² M = 400 (3.3e8): 231 / 243, 218 / 294, 292 / 291 ms — no gain;
+ * 128² M = 400 (1.3e9): 1275 / 802, 974 / 764, 930 / 1087 ms — 1.2–1.6× in two runs of three.
  */
-export const MIN_SPLIT_FLOPS = 2e7;
+export const MIN_SPLIT_FLOPS = 5e8;
 
 export function worthSplitting(m: number, n: number, threads: number): boolean {
   return threads > 1 && varianceFlops(m, n) >= MIN_SPLIT_FLOPS;

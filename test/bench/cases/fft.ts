@@ -7,7 +7,11 @@
  *
  * Two ways to run:
  *   - the shared harness (`npm run bench`) picks up `cases` (BenchCase shape of test/bench/types.ts,
- *     declared locally); the dense scipy route is not a harness op, so no ratio there;
+ *     declared locally); the cold "mean" and "mean + std" cases name the scipy ops of
+ *     test/bench/cases/fft.py (the dense route of test/bench/dense_route.py on the same problem,
+ *     which setup() writes to bench-results/fft-problem-<n>.json), so the table's ours/scipy column
+ *     is the FFT / dense-route ratio. PRIORSCOPE_BENCH_SKIP_DENSE_128=1 leaves the 128² dense route
+ *     out (the harness's scipy side runs it 5 times: minutes and about 4 GB);
  *   - `npx tsx test/bench/cases/fft.ts [--skip-dense-128] [--no-dense]` runs each case in a child
  *     process (median time and that process's peak RSS), then test/bench/dense_route.py (Debian's
  *     python3-scipy, OPENBLAS_CORETYPE / OPENBLAS_L2_SIZE removed from its environment only) on
@@ -16,7 +20,7 @@
  *     (2 runs): --skip-dense-128 leaves it out.
  */
 import { execFileSync } from 'node:child_process';
-import { existsSync } from 'node:fs';
+import { existsSync, mkdirSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { Fft2 } from '../../../src/core/fft/fft2.ts';
@@ -33,6 +37,7 @@ import { Random } from '../../../src/core/sampling/random.ts';
 export interface BenchCase {
   readonly name: string;
   readonly params?: Readonly<Record<string, number>>;
+  readonly scipyOp?: string;
   readonly setup: () => () => unknown;
   readonly runs?: number;
   readonly warmup?: number;
@@ -71,14 +76,27 @@ export function benchProblem(n: number, m = M): Problem {
   return { grid, operator, data: { values, sigma } };
 }
 
+/** Writes the problem for test/bench/cases/fft.py (the harness's scipy side runs after ours). */
+function writeProblemForScipy(n: number, problem: Problem): void {
+  const dir = join(dirname(fileURLToPath(import.meta.url)), '..', '..', '..', 'bench-results');
+  mkdirSync(dir, { recursive: true });
+  const p = { grid: problem.grid, length: n / 8, g: csrJson(problem.operator.matrix as SparseMatrix), d: Array.from(problem.data.values), sigma: Array.from(problem.data.sigma!) };
+  writeFileSync(join(dir, `fft-problem-${n}.json`), JSON.stringify(p));
+}
+
 function posteriorCases(n: number): BenchCase[] {
   const params = { N: n * n, M, grid: n };
+  const dense = !(n === 128 && process.env.PRIORSCOPE_BENCH_SKIP_DENSE_128 === '1');
+  // At 128² one dense run takes 10–25 s: no warm-up on either side.
+  const warm = n >= 128 ? { warmup: 0 } : {};
   return [
     {
       name: `fft posterior ${n}x${n} M=${M}: mean (cold, spectra computed)`,
       params,
+      ...(dense ? { scipyOp: 'dense_route_mean', ...warm } : {}),
       setup: () => {
         const problem = benchProblem(n);
+        writeProblemForScipy(n, problem);
         const prior = benchPrior(n);
         return () => prepareStructuredPosterior(structuredProblem(problem), prior).mean;
       },
@@ -96,8 +114,10 @@ function posteriorCases(n: number): BenchCase[] {
     {
       name: `fft posterior ${n}x${n} M=${M}: mean + std (cold)`,
       params,
+      ...(dense ? { scipyOp: 'dense_route_mean_std', ...warm } : {}),
       setup: () => {
         const problem = benchProblem(n);
+        writeProblemForScipy(n, problem);
         const prior = benchPrior(n);
         return () => structuredPosteriorStd(prepareStructuredPosterior(structuredProblem(problem), prior));
       },

@@ -74,10 +74,15 @@ describe('split standard deviations', () => {
     for (let i = 0; i < n; i++) expect(Object.is(Math.sqrt(v[i]!), single[i])).toBe(true);
   });
 
-  it('64² with M = 400 (the benchmark problem) splits and matches the dense scipy route to 1e-10', async () => {
+  it('worthSplitting: no at 64² with M = 400 (measured no gain), yes at 128², never on one thread', () => {
+    expect(worthSplitting(400, 64 * 64, 2)).toBe(false);
+    expect(worthSplitting(400, 128 * 128, 2)).toBe(true);
+    expect(worthSplitting(400, 128 * 128, 1)).toBe(false);
+  });
+
+  it('64² with M = 400 (the benchmark problem), split anyway, matches the dense scipy route to 1e-10', async () => {
     const p = benchProblem(64);
     const st = prepareStructuredPosterior(p, prior(64));
-    expect(worthSplitting(st.L.rows, st.Bt.cols, 2)).toBe(true);
     const split = await parallelPosteriorStd(st, pools[0]!);
     const one = structuredPosteriorStd(st);
     expect(Array.from(split).every((v, i) => Object.is(v, one[i]))).toBe(true);
