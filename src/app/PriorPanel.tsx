@@ -4,6 +4,7 @@ import type { MeanSpec } from '../core/prior/spec.ts';
 import { gridDimension } from '../core/grid/grid.ts';
 import { useWb } from './context.ts';
 import { LogSlider, NumberField } from './controls.tsx';
+import { noteInteraction } from './interaction.ts';
 import type { ProblemView } from '../worker/protocol.ts';
 
 /** Kernel labels and the correlation formula each one stands for (h = scaled distance). */
@@ -240,7 +241,10 @@ function TermEditor({ index, term, count, problem, refVar }: { index: number; te
               value={term.angle ?? 0}
               title="θ, degrees counter-clockwise from +x to the first axis"
               data-testid={`${t}-angle-slider`}
-              onChange={(e) => updateTerm(index, { angle: Number(e.target.value) })}
+              onChange={(e) => {
+                noteInteraction();
+                updateTerm(index, { angle: Number(e.target.value) });
+              }}
             />
             <NumberField
               label="Angle θ"

@@ -1,5 +1,6 @@
 /** Form controls: a log-scale slider paired with a typed numeric input, and a plain number field. */
 import { useEffect, useId, useState } from 'react';
+import { noteInteraction } from './interaction.ts';
 
 /** Slider positions per decade-range (integer steps keep keyboard arrows useful). */
 const STEPS = 400;
@@ -121,6 +122,7 @@ export function LogSlider({ label, value, min, max, unit, tip, testId, onChange,
         aria-valuetext={`${value} ${unit}`}
         data-testid={`${testId}-slider`}
         onChange={(e) => {
+          noteInteraction();
           const p = Number(e.target.value);
           onChange(allowZero && p === 0 ? 0 : fromSlider(p, min, max));
         }}

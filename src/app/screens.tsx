@@ -439,9 +439,10 @@ export function PosteriorScreen() {
       mean: [heat(p, s.mean, 'mean')],
       std: [heat(p, s.std, 'std')],
       vr: [heat(p, s.varianceReduction, 'variance reduction', { zmin: 0, zmax: 1 })],
-      truth: p.truth ? [heat(p, p.truth, 'truth')] : null,
     };
   }, [p, post, is2D]);
+  // The truth does not depend on the prior: its own memo, so a new posterior does not redraw it.
+  const truthMap = useMemo(() => (p && is2D && p.truth ? [heat(p, p.truth, 'truth')] : null), [p, is2D]);
   const layouts = useMemo(
     () =>
       p && {
@@ -487,7 +488,7 @@ export function PosteriorScreen() {
           <Plot id="plot-posterior-mean" label="Posterior mean map" data={maps.mean} layout={layouts.mean} height={240} onDrawn={markDrawn} onPointClick={click} />
           <Plot id="plot-posterior-std" label="Posterior standard deviation map" data={maps.std} layout={layouts.std} height={240} onPointClick={click} />
           <Plot id="plot-variance-reduction" label="Variance reduction map" data={maps.vr} layout={layouts.vr} height={240} onPointClick={click} />
-          {maps.truth && <Plot id="plot-truth" label="Truth map" data={maps.truth} layout={layouts.truth} height={240} onPointClick={click} />}
+          {truthMap && <Plot id="plot-truth" label="Truth map" data={truthMap} layout={layouts.truth} height={240} onPointClick={click} />}
           {resolution && selected !== null && <Plot id="plot-kernel" label="Averaging kernel map" data={kernelData} layout={layouts.kernel} height={240} />}
         </div>
       )}

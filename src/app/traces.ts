@@ -188,3 +188,40 @@ export function rowOf(data: Float64Array, cols: number, k: number): Float64Array
 
 /** Number of grid cells (re-exported for components). */
 export { cellCount, gridDimension };
+
+const AXIS_KEY = /^[xy]axis\d*$/;
+const COLORAXIS_KEY = /^coloraxis\d*$/;
+const ALLOW = 'allow';
+
+/** A colour bar with tick-label overflow checks off (kept when the caller set its own). */
+function allowColorbar(cb: unknown): Record<string, unknown> {
+  const c = (cb && typeof cb === 'object' ? cb : {}) as Record<string, unknown>;
+  return 'ticklabeloverflow' in c ? c : { ...c, ticklabeloverflow: ALLOW };
+}
+
+/**
+ * Turn off plotly's tick-label overflow checks (`ticklabeloverflow: 'allow'`) on every cartesian
+ * axis, colour axis and heat-map/contour colour bar, unless a figure sets its own value. With any
+ * other value plotly measures each label against the others with getBoundingClientRect on every
+ * redraw (forced layouts, quadratic in the label count; seen in a CPU profile of a slider drag).
+ * Pure: returns new objects, the inputs are not changed.
+ */
+export const tameOverflow = {
+  layout(layout: Record<string, unknown>): Record<string, unknown> {
+    const out: Record<string, unknown> = { ...layout };
+    for (const [k, v] of Object.entries(layout)) {
+      if (AXIS_KEY.test(k)) {
+        const ax = (v && typeof v === 'object' ? v : {}) as Record<string, unknown>;
+        out[k] = 'ticklabeloverflow' in ax ? ax : { ...ax, ticklabeloverflow: ALLOW };
+      } else if (COLORAXIS_KEY.test(k) && v && typeof v === 'object') {
+        const ca = v as Record<string, unknown>;
+        out[k] = { ...ca, colorbar: allowColorbar(ca.colorbar) };
+      }
+    }
+    for (const k of ['xaxis', 'yaxis']) if (!(k in out)) out[k] = { ticklabeloverflow: ALLOW };
+    return out;
+  },
+  traces(data: readonly Trace[]): Trace[] {
+    return data.map((t) => (t.type === 'heatmap' || t.type === 'contour') && t.showscale !== false && t.coloraxis === undefined ? { ...t, colorbar: allowColorbar(t.colorbar) } : t);
+  },
+};
