@@ -11,25 +11,29 @@
 import type { PriorSpec } from '../../core/prior/spec.ts';
 import { setTermLength, withTerm, type LogAxis, type ProfileParameter } from '../../core/tuning/index.ts';
 import type { Outcome } from '../../worker/client.ts';
-import type { TuningKind, TuningRequest, TuningResultMap } from '../../worker/tuningProtocol.ts';
+import type { TuningKind, TuningResultMap } from '../../worker/tuningProtocol.ts';
+import { SplitClient, type TuningPayload, type TuningPort } from '../../worker/split.ts';
 import { TUNING_KINDS } from '../../worker/tuningProtocol.ts';
 import type { WorkbenchState } from '../store.ts';
 import { CANDIDATE_STYLES, MAX_PINNED, nextCandidateStyle } from './candidates.ts';
 
-export type TuningPayload<K extends TuningKind> = Omit<Extract<TuningRequest, { kind: K }>, 'id' | 'kind' | 'problemVersion'>;
+export type { TuningPayload, TuningPort } from '../../worker/split.ts';
 
-/** The part of a worker client the slice uses (WorkerClient, or a fake in tests). */
-export interface TuningPort {
-  request<K extends TuningKind>(kind: K, payload: TuningPayload<K>): Promise<Outcome<TuningResultMap[K]>>;
-  cancel(channel: TuningKind): void;
+function isPort(x: unknown): x is TuningPort {
+  const c = x as { request?: unknown; cancel?: unknown } | null;
+  return typeof c === 'object' && c !== null && typeof c.request === 'function' && typeof c.cancel === 'function';
 }
 
-/** The tuning port of a client: the secondary worker of a split client, or the client itself. */
+/**
+ * The tuning port of a client: the typed `tuning` accessor of a split client (its secondary
+ * worker), or the client itself when it is a port. Fakes that model a split client by a
+ * `secondary` port (test/app/select/slice.test.ts) are still accepted.
+ */
 export function tuningPortOf(client: object): TuningPort | null {
-  const c = client as { secondary?: { request?: unknown }; request?: unknown; cancel?: unknown };
-  if (c.secondary && typeof c.secondary.request === 'function') return c.secondary as unknown as TuningPort;
-  if (typeof c.request === 'function' && typeof c.cancel === 'function') return c as unknown as TuningPort;
-  return null;
+  if (client instanceof SplitClient) return client.tuning;
+  const c = client as { secondary?: unknown };
+  if (isPort(c.secondary)) return c.secondary;
+  return isPort(client) ? client : null;
 }
 
 export interface Candidate {
