@@ -7,7 +7,6 @@ import { describe, expect, it } from 'vitest';
 import { covarianceApply, covarianceMatrix, meanVector, priorVariance } from '../../src/core/prior/covariance.ts';
 import type { PriorSpec } from '../../src/core/prior/spec.ts';
 import type { Grid } from '../../src/core/grid/grid.ts';
-import { correlationFunction } from '../../src/core/kernels/correlation.ts';
 import { runPython } from './python.ts';
 
 interface Case { name: string; grid: Grid; prior: PriorSpec }
@@ -15,15 +14,6 @@ interface Case { name: string; grid: Grid; prior: PriorSpec }
 const g1: Grid = { shape: [23], spacing: [0.7], origin: [3] };
 const g2: Grid = { shape: [7, 5], spacing: [1, 1.6], origin: [-2, 10] };
 const ramp = (n: number, a: number, b: number) => Array.from({ length: n }, (_, i) => a + (b * i) / n);
-
-const generalNu = (() => {
-  try {
-    correlationFunction('matern', 1.25);
-    return true;
-  } catch {
-    return false;
-  }
-})();
 
 const cases: Case[] = [
   { name: '1-D exponential', grid: g1, prior: { mean: { constant: 4 }, terms: [{ kernel: 'exponential', variance: 2, length: 3 }] } },
@@ -58,11 +48,9 @@ const cases: Case[] = [
     },
   },
   { name: '2-D values mean', grid: g2, prior: { mean: { values: ramp(35, -3, 7) }, terms: [{ kernel: 'gaussian', variance: 1, length: 1 }] } },
-  ...(generalNu
-    ? [0.3, 1.25, 3.7].map((nu): Case => ({
-        name: `2-D matern general ν=${nu}`, grid: g2, prior: { mean: { constant: 0 }, terms: [{ kernel: 'matern', variance: 1, lengths: [3, 2], angle: 40, nu }] },
-      }))
-    : []),
+  ...[0.3, 1.25, 3.7].map((nu): Case => ({
+    name: `2-D matern general ν=${nu}`, grid: g2, prior: { mean: { constant: 0 }, terms: [{ kernel: 'matern', variance: 1, lengths: [3, 2], angle: 40, nu }] },
+  })),
 ];
 
 describe('prior covariance vs numpy/scipy construction', () => {
@@ -96,8 +84,5 @@ describe('prior covariance vs numpy/scipy construction', () => {
       expect(Math.abs(lagProduct[i]! - p)).toBeLessThan(1e-11 * scale * n);
       expect(Math.abs(denseProduct[i]! - p)).toBeLessThan(1e-11 * scale * n);
     });
-  });
-  it.skipIf(generalNu)('general-ν Matérn cases are skipped until the kernel module provides K_ν', () => {
-    expect(generalNu).toBe(false);
   });
 });
