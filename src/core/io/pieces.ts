@@ -18,9 +18,9 @@
  * file as in ./csv.ts), row / column (matrix entries, zero-based as in the problem file) or field.
  */
 import { cellCount, type Grid } from '../grid/grid.ts';
-import { cholesky } from '../linalg/cholesky.ts';
+import { covarianceDefect } from './covarianceCheck.ts';
 import type { Matrix } from '../linalg/matrix.ts';
-import { operatorToDense, type Operator } from '../linalg/operator.ts';
+import { assertNever, operatorToDense, type Operator } from '../linalg/operator.ts';
 import type { DataSpec, Problem } from '../problems/spec.ts';
 import { formatValue } from '../errors.ts';
 import { checkFileSize, FileFormatError } from './errors.ts';
@@ -186,31 +186,26 @@ export function parseCovarianceFile(f: NamedBytes, m: number): Matrix {
   return c;
 }
 
-/** Symmetric to 1e-12 of the largest |entry| and positive definite (Cholesky test, Higham 2002 Thm 10.7). */
+/** Symmetric and positive definite (see ./covarianceCheck.ts), else a FileFormatError naming the entry. */
 export function checkCovariance(file: string, c: Matrix): void {
-  const n = c.rows;
-  let scale = 0;
-  for (const v of c.data) scale = Math.max(scale, Math.abs(v));
-  const tol = 1e-12 * scale;
-  for (let i = 0; i < n; i++) {
-    for (let j = 0; j < i; j++) {
-      const a = c.data[i * n + j]!;
-      const b = c.data[j * n + i]!;
-      if (Math.abs(a - b) > tol) {
-        throw new FileFormatError(
-          file,
-          `entry (row ${i}, column ${j}) must equal entry (row ${j}, column ${i}) = ${formatValue(b)} (a covariance is symmetric), got ${formatValue(a)}`,
-          { field: `[${i}, ${j}]` },
-        );
-      }
+  const defect = covarianceDefect(c);
+  if (defect === null) return;
+  switch (defect.kind) {
+    case 'asymmetric': {
+      const { row: i, col: j } = defect;
+      throw new FileFormatError(
+        file,
+        `entry (row ${i}, column ${j}) must equal entry (row ${j}, column ${i}) = ${formatValue(defect.mirror)} (a covariance is symmetric), got ${formatValue(defect.value)}`,
+        { field: `[${i}, ${j}]` },
+      );
     }
-  }
-  const f = cholesky(c);
-  if (!f.ok) {
-    throw new FileFormatError(
-      file,
-      `must be positive definite, got a matrix whose Cholesky factorisation fails at row ${f.pivot} (pivot ${formatValue(f.value)})`,
-    );
+    case 'not-positive-definite':
+      throw new FileFormatError(
+        file,
+        `must be positive definite, got a matrix whose Cholesky factorisation fails at row ${defect.pivot} (pivot ${formatValue(defect.value)})`,
+      );
+    default:
+      assertNever(defect);
   }
 }
 

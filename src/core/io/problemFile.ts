@@ -18,7 +18,7 @@
  * (Higham 2002, Thm 10.7).
  */
 import { cellCount, type Grid } from '../grid/grid.ts';
-import { cholesky } from '../linalg/cholesky.ts';
+import { covarianceDefect } from './covarianceCheck.ts';
 import type { Matrix } from '../linalg/matrix.ts';
 import { assertNever, type Operator } from '../linalg/operator.ts';
 import { sparseFromCoordinates } from '../linalg/sparse.ts';
@@ -88,28 +88,24 @@ function readData(r: JsonReader, value: unknown): DataSpec {
   return { values, sigma: r.vector(d.sigma, 'data.sigma', m, { gt: 0 }), ...unit };
 }
 
-/** Symmetric to 1e-12 of the largest |entry|, and positive definite by the Cholesky test. */
+/** The data covariance must be symmetric and positive definite (see ./covarianceCheck.ts). */
 function checkDataCovariance(r: JsonReader, c: Matrix): void {
-  const n = c.rows;
-  let scale = 0;
-  for (const v of c.data) scale = Math.max(scale, Math.abs(v));
-  const tol = 1e-12 * scale;
-  for (let i = 0; i < n; i++) {
-    for (let j = 0; j < i; j++) {
-      const a = c.data[i * n + j]!;
-      const b = c.data[j * n + i]!;
-      if (Math.abs(a - b) > tol) {
-        r.fail(`data.covariance[${i}][${j}]`, `equal to data.covariance[${j}][${i}] = ${b} (the covariance must be symmetric)`, a);
-      }
+  const defect = covarianceDefect(c);
+  if (defect === null) return;
+  switch (defect.kind) {
+    case 'asymmetric': {
+      const { row: i, col: j } = defect;
+      r.fail(`data.covariance[${i}][${j}]`, `equal to data.covariance[${j}][${i}] = ${defect.mirror} (the covariance must be symmetric)`, defect.value);
+      break;
     }
-  }
-  const f = cholesky(c);
-  if (!f.ok) {
-    throw new FileFormatError(
-      r.file,
-      `data.covariance must be positive definite, got a matrix whose Cholesky factorisation fails at row ${f.pivot} (pivot ${formatValue(f.value)})`,
-      { field: 'data.covariance' },
-    );
+    case 'not-positive-definite':
+      throw new FileFormatError(
+        r.file,
+        `data.covariance must be positive definite, got a matrix whose Cholesky factorisation fails at row ${defect.pivot} (pivot ${formatValue(defect.value)})`,
+        { field: 'data.covariance' },
+      );
+    default:
+      assertNever(defect);
   }
 }
 
