@@ -1,6 +1,7 @@
 /** The left panel: mean model, covariance terms (add / remove / reorder), nugget. */
 import { KERNEL_NAMES, type KernelName, type Term } from '../core/kernels/spec.ts';
-import type { MeanSpec } from '../core/prior/spec.ts';
+import type { MeanSpec, PriorSpec } from '../core/prior/spec.ts';
+import { MAX_PINNED } from './select/candidates.ts';
 import { gridDimension } from '../core/grid/grid.ts';
 import { useWb } from './context.ts';
 import { LogSlider, NumberField } from './controls.tsx';
@@ -48,6 +49,7 @@ export function PriorPanel() {
         <button type="button" data-testid="reset-prior" onClick={resetPrior} title="Back to the problem's starting prior">
           Reset
         </button>
+        <PinButton />
       </div>
       <fieldset>
         <legend>Nugget</legend>
@@ -65,6 +67,29 @@ export function PriorPanel() {
       </fieldset>
     </aside>
   );
+}
+
+/**
+ * Keep the current prior as a candidate for side-by-side comparison on the Choose prior screen
+ * (the candidates live in the select slice, src/app/select/slice.ts). Disabled when the list is
+ * full or the current prior is already pinned (same spec).
+ */
+function PinButton() {
+  const pin = useWb((s) => s.pinPrior);
+  const count = useWb((s) => s.candidates.length);
+  const pinned = useWb((s) => s.prior !== null && s.candidates.some((c) => samePrior(c.prior, s.prior!)));
+  const full = count >= MAX_PINNED;
+  const title = full ? `At most ${MAX_PINNED} candidates; remove one on the Choose prior screen first` : pinned ? 'This prior is already pinned' : 'Keep this prior as a candidate to compare on the Choose prior screen';
+  return (
+    <button type="button" data-testid="pin-candidate" onClick={pin} disabled={full || pinned} title={title} aria-label={`Pin as candidate (${count} of ${MAX_PINNED} pinned)`}>
+      Pin as candidate <span className="pin-count">{count}/{MAX_PINNED}</span>
+    </button>
+  );
+}
+
+/** Two prior specs are the same when their JSON forms are (specs are plain JSON-able data). */
+export function samePrior(a: PriorSpec, b: PriorSpec): boolean {
+  return a === b || JSON.stringify(a) === JSON.stringify(b);
 }
 
 function MeanEditor({ mean, problem }: { mean: MeanSpec; problem: ProblemView }) {
