@@ -1,5 +1,6 @@
 /** Evidence map over (length, variance) of one term, 1-D profiles over ν and the nugget, and the type-II fit. */
-import { useEffect, useMemo, useState } from 'react';
+import { useEffect, useMemo, useState, type KeyboardEvent } from 'react';
+import { moveMapCursor } from './mapKeys.ts';
 import { useWb } from '../context.ts';
 import { Plot } from '../Plot.tsx';
 import { NumberField } from '../controls.tsx';
@@ -47,7 +48,41 @@ export function EvidencePanel() {
     const t = prior.terms[map?.term ?? settings.term];
     return t ? { length: termLength(t), variance: t.variance } : null;
   }, [prior, map, settings.term]);
-  const traces = useMemo(() => (map ? evidenceMapTraces(map, current) : []), [map, current]);
+  // Keyboard cursor over the map cells (./mapKeys.ts): arrows move it, Enter or Space applies it.
+  const [cursor, setCursor] = useState<number | null>(null);
+  const cursorCell = map && cursor !== null && cursor < map.logEvidence.length ? cursor : null;
+  const traces = useMemo(() => {
+    if (!map) return [];
+    const t = evidenceMapTraces(map, current);
+    if (cursorCell === null) return t;
+    const nv = map.variances.length;
+    const i = Math.floor(cursorCell / nv);
+    return [
+      ...t,
+      {
+        type: 'scatter',
+        mode: 'markers',
+        name: 'keyboard cell',
+        x: [Math.log10(map.lengths[i]!)],
+        y: [Math.log10(map.variances[cursorCell % nv]!)],
+        marker: { symbol: 'square-open', size: 16, color: '#ffffff', line: { width: 2.5, color: '#ffffff' } },
+        hoverinfo: 'skip',
+      },
+    ];
+  }, [map, current, cursorCell]);
+  const onMapKey = (e: KeyboardEvent<HTMLDivElement>) => {
+    if (!map) return;
+    const start = cursorCell ?? map.best?.index ?? 0;
+    if ((e.key === 'Enter' || e.key === ' ') && cursorCell !== null) {
+      e.preventDefault();
+      applyCell(cursorCell);
+      return;
+    }
+    const next = moveMapCursor(cursorCell === null ? start : cursorCell, e.key, map.lengths.length, map.variances.length);
+    if (next === null) return;
+    e.preventDefault();
+    setCursor(cursorCell === null ? start : next);
+  };
   const layout = useMemo(
     () => ({
       title: { text: `Log evidence over term ${(map?.term ?? 0) + 1}'s length and variance (click a cell to apply it)`, font: { size: 12 } },
@@ -93,7 +128,24 @@ export function EvidencePanel() {
       {term.lengths && <p className="note">Anisotropic term: the length axis is the first length; the second keeps its ratio to it.</p>}
       {map && (
         <>
-          <Plot id="plot-evidence-map" label="Evidence map heat map" data={traces} layout={layout} height={360} onPointClick={click} />
+          <div
+            className="map-keys"
+            tabIndex={0}
+            role="group"
+            data-testid="map-keys"
+            aria-label="Evidence map cells: arrow keys move the highlighted cell, Enter applies it to the prior"
+            title="Arrow keys: move the highlighted cell (← → length, ↑ ↓ variance); Enter: apply it"
+            onKeyDown={onMapKey}
+            onBlur={() => setCursor(null)}
+          >
+            <Plot id="plot-evidence-map" label="Evidence map heat map" data={traces} layout={layout} height={360} onPointClick={click} />
+          </div>
+          {cursorCell !== null && (
+            <p className="note" aria-live="polite" data-testid="map-cursor" data-index={cursorCell}>
+              Highlighted: ℓ = {fmt(map.lengths[Math.floor(cursorCell / map.variances.length)]!)} {unit}, σ² = {fmt(map.variances[cursorCell % map.variances.length]!)} {varUnit}, log evidence{' '}
+              {Number.isFinite(map.logEvidence[cursorCell]!) ? map.logEvidence[cursorCell]!.toFixed(3) : 'not computed'} — Enter applies it.
+            </p>
+          )}
           <p className="row" data-testid="map-best">
             {map.best ? (
               <>
