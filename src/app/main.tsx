@@ -41,6 +41,7 @@ window.__priorscope = {
       busy: s.busy,
       computedFor: s.computedFor,
       diagnostics: s.diagnostics,
+      candidates: s.candidates,
       restarts: client.restarts,
     });
   },
