@@ -2,13 +2,14 @@
  * UI benchmark (`npm run bench:ui`): in Chromium, for each demo, the time from a prior parameter
  * change (performance mark `ps:param-change`) to the redrawn posterior plot (`ps:posterior-drawn`),
  * median over 20 changes, and the main-thread long tasks (PerformanceObserver 'longtask') during a
- * slider drag of 30 input events at 60 Hz. Measures a production build (vite build into a
+ * slider drag of 30 input events at 60 Hz, with the number and longest synchronous part of the
+ * Plotly.react calls in that window and the machine's 1-minute load average. Measures a production build (vite build into a
  * temporary directory, served by vite preview) unless PRIORSCOPE_BENCH_URL points at a running
  * server. Prints JSON and writes bench-results/ui.json.
  */
 import { chromium, type Page } from '@playwright/test';
 import { execFileSync, spawn, type ChildProcess } from 'node:child_process';
-import { tmpdir } from 'node:os';
+import { loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { mkdirSync, writeFileSync } from 'node:fs';
 
@@ -64,7 +65,7 @@ async function timedChange(page: Page, pos: number): Promise<number> {
 }
 
 /** 30 input events at 60 Hz (absolute schedule) on the length slider; long tasks until quiet. */
-async function drag(page: Page): Promise<{ longTasks: number[]; dragMs: number }> {
+async function drag(page: Page): Promise<{ longTasks: number[]; dragMs: number; plotCalls: number; longestPlotMs: number }> {
   return page.evaluate(async () => {
     const longTasks: number[] = [];
     const obs = new PerformanceObserver((l) => l.getEntries().forEach((e) => longTasks.push(e.duration)));
@@ -81,7 +82,9 @@ async function drag(page: Page): Promise<{ longTasks: number[]; dragMs: number }
     const dragMs = performance.now() - t0;
     await new Promise((r) => setTimeout(r, 3000));
     obs.disconnect();
-    return { longTasks, dragMs };
+    // Synchronous part of each Plotly.react (measures `ps:plot:<figure>` from src/app/Plot.tsx).
+    const plots = performance.getEntriesByType('measure').filter((m) => m.name.startsWith('ps:plot:') && m.startTime >= t0);
+    return { longTasks, dragMs, plotCalls: plots.length, longestPlotMs: Math.max(0, ...plots.map((m) => m.duration)) };
   });
 }
 
@@ -124,6 +127,9 @@ async function main(): Promise<void> {
         longTaskCount: d.longTasks.length,
         longestTaskMs: d.longTasks.length ? Number(Math.max(...d.longTasks).toFixed(1)) : 0,
         longTaskTargetMs: 50,
+        plotCallsDuringDrag: d.plotCalls,
+        longestPlotCallMs: Number(d.longestPlotMs.toFixed(1)),
+        loadAverage1m: Number(loadavg()[0]!.toFixed(2)),
       };
       results.push(r);
       console.error(`bench:ui ${id}: median ${r.medianMs} ms, longest task ${r.longestTaskMs} ms`);
