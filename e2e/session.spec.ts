@@ -236,6 +236,9 @@ test('hostile text from a problem file is shown as text (page and report)', asyn
     await page.waitForTimeout(300);
     expect(await page.locator('img[src="x"], [onerror], [onmouseover], a[href^="javascript"], [*|href^="javascript"]').count(), tab).toBe(0);
   }
+  // Plotly reads a subset of HTML in labels: the quantity name must show as typed in the axis title.
+  await page.getByTestId('tab-posterior').click();
+  await expect(page.locator('.ytitle').first()).toContainText('<b onmouseover=alert(2)>q</b> (<a href="javascript:alert(4)">u</a>)');
   await page.getByTestId('export-menu').click();
   const [dl] = await Promise.all([page.waitForEvent('download'), page.getByTestId('report-download').click()]);
   const html = readFileSync(await dl.path(), 'utf8');

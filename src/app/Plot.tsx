@@ -18,6 +18,7 @@
 import { useEffect, useLayoutEffect, useRef, useState } from 'react';
 import Plotly, { type PlotlyHTMLElement } from 'plotly.js-dist-min';
 import { tameOverflow, type Trace } from './traces.ts';
+import { plotSafe } from './plotText.ts';
 import { settleWait } from './interaction.ts';
 
 export interface PlotProps {
@@ -141,8 +142,8 @@ export function Plot({ id, label, data, layout, height = 300, onDrawn, onPointCl
       const t0 = performance.now();
       const drawn = Plotly.react(
         el,
-        tameOverflow.traces(data),
-        tameOverflow.layout({
+        plotSafe(tameOverflow.traces(data)),
+        plotSafe(tameOverflow.layout({
           height,
           width,
           autosize: false,
@@ -152,7 +153,7 @@ export function Plot({ id, label, data, layout, height = 300, onDrawn, onPointCl
           plot_bgcolor: '#fbfaf6',
           legend: { orientation: 'h', x: 0, y: -0.22, yanchor: 'top' },
           ...layout,
-        }),
+        })),
         CONFIG,
       ).then((gd: PlotlyHTMLElement) => {
         if (!live) return;
