@@ -12,7 +12,7 @@ import type { PriorSpec } from '../../core/prior/spec.ts';
 import { setTermLength, withTerm, type LogAxis, type ProfileParameter } from '../../core/tuning/index.ts';
 import type { Outcome } from '../../worker/client.ts';
 import type { TuningKind, TuningResultMap } from '../../worker/tuningProtocol.ts';
-import { SplitClient, type TuningPayload, type TuningPort } from '../../worker/split.ts';
+import type { TuningPayload, TuningPort } from '../../worker/split.ts';
 import { TUNING_KINDS } from '../../worker/tuningProtocol.ts';
 import type { WorkbenchState } from '../store.ts';
 import { CANDIDATE_STYLES, MAX_PINNED, nextCandidateStyle } from './candidates.ts';
@@ -25,14 +25,12 @@ function isPort(x: unknown): x is TuningPort {
 }
 
 /**
- * The tuning port of a client: the typed `tuning` accessor of a split client (its secondary
- * worker), or the client itself when it is a port. Fakes that model a split client by a
- * `secondary` port (test/app/select/slice.test.ts) are still accepted.
+ * The tuning port of a client: the `tuning` accessor of a split client (its secondary worker) or of
+ * a fake with the same shape, or the client itself when it is a port.
  */
 export function tuningPortOf(client: object): TuningPort | null {
-  if (client instanceof SplitClient) return client.tuning;
-  const c = client as { secondary?: unknown };
-  if (isPort(c.secondary)) return c.secondary;
+  const tuning = (client as { tuning?: unknown }).tuning;
+  if (isPort(tuning)) return tuning;
   return isPort(client) ? client : null;
 }
 

@@ -14,7 +14,7 @@ function fakeClient() {
   const never = <T>() => new Promise<Outcome<T>>(() => {});
   const sent: { kind: string; payload: unknown; resolve: (o: Outcome<unknown>) => void }[] = [];
   const cancelled: string[] = [];
-  const secondary = {
+  const tuning = {
     request(kind: string, payload: unknown) {
       return new Promise<Outcome<unknown>>((resolve) => sent.push({ kind, payload, resolve }));
     },
@@ -22,7 +22,7 @@ function fakeClient() {
       cancelled.push(kind);
     },
   };
-  const client: ClientPort & { secondary: typeof secondary } = {
+  const client: ClientPort & { tuning: typeof tuning } = {
     loadDemo: async () => ({ superseded: false, value: view }),
     posterior: never,
     diagnostics: never,
@@ -31,7 +31,7 @@ function fakeClient() {
     resolution: never,
     covariance: never,
     onRestart: () => () => {},
-    secondary,
+    tuning,
   };
   return { client, sent, cancelled };
 }
@@ -48,9 +48,9 @@ const map: EvidenceMap = {
 };
 
 describe('select slice', () => {
-  it('finds the secondary worker of a split client', () => {
+  it('finds the tuning port (the secondary worker) of a split client', () => {
     const { client } = fakeClient();
-    expect(tuningPortOf(client)).toBe(client.secondary);
+    expect(tuningPortOf(client)).toBe(client.tuning);
     expect(tuningPortOf({})).toBeNull();
   });
 
