@@ -9,6 +9,8 @@
  */
 import { cellCoordinates, type Grid } from '../../../src/core/grid/grid.ts';
 import { posteriorSummary, preparePosteriorFromCovariance } from '../../../src/core/inverse/posterior.ts';
+import { posteriorWithPath } from '../../../src/core/inverse/auto.ts';
+import { structuredProblem } from '../../../src/core/inverse/structured.ts';
 import { matrix } from '../../../src/core/linalg/matrix.ts';
 import { applyOperator, type Operator } from '../../../src/core/linalg/operator.ts';
 import { denseToSparse } from '../../../src/core/linalg/sparse.ts';
@@ -40,7 +42,7 @@ function setup(kind: 'dense' | 'sparse', n: number, m: number) {
   const op: Operator = kind === 'dense' ? { kind: 'dense', matrix: G } : { kind: 'sparse', matrix: denseToSparse(G) };
   const values = applyOperator(op, x.map((v) => Math.sin(v / 40))).map((v, k) => v + 0.01 * Math.cos(k));
   const problem: Problem = { grid, operator: op, data: { values, sigma: new Float64Array(m).fill(0.01) } };
-  return { problem, Cm: covarianceMatrix(grid, prior), m0: meanVector(grid, prior) };
+  return { problem, prior, Cm: covarianceMatrix(grid, prior), m0: meanVector(grid, prior) };
 }
 
 function posteriorCase(kind: 'dense' | 'sparse', n: number, m: number): BenchCase {
@@ -56,7 +58,31 @@ function posteriorCase(kind: 'dense' | 'sparse', n: number, m: number): BenchCas
   };
 }
 
-export const cases: BenchCase[] = [posteriorCase('dense', 1000, 100), posteriorCase('sparse', 1000, 100)];
+/**
+ * The same problems from the prior spec through the automatic path (the CLI's and the worker's route):
+ * FFT structure for this stationary prior, Cm never built. `cached`: the row spectra of G are kept
+ * between runs, as the worker keeps them across prior changes on one problem.
+ */
+function autoCase(kind: 'dense' | 'sparse', n: number, m: number, cached: boolean): BenchCase {
+  return {
+    name: `posterior ${kind} G, 1-D N=${n} M=${m}, auto path from the prior${cached ? ' (cached row spectra)' : ' (cold)'}`,
+    params: { N: n, M: m },
+    runs: 15,
+    warmup: 3,
+    setup: () => {
+      const s = setup(kind, n, m);
+      const sp = structuredProblem(s.problem);
+      return () => posteriorWithPath(cached ? sp : s.problem, s.prior).summary;
+    },
+  };
+}
+
+export const cases: BenchCase[] = [
+  posteriorCase('dense', 1000, 100),
+  posteriorCase('sparse', 1000, 100),
+  autoCase('dense', 1000, 100, false),
+  autoCase('dense', 1000, 100, true),
+];
 
 function median(a: number[]): number {
   const s = [...a].sort((p, q) => p - q);
