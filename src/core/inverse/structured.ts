@@ -267,8 +267,33 @@ function gTimesBtTransposed(g: Operator, Bt: Matrix): Matrix {
   const bt = Bt.data;
   switch (g.kind) {
     case 'sparse': {
+      // Four rows b … b+3 of Bᵀ per sweep of G's row a: each index and value is loaded once for
+      // four sums (each sum keeps its own order, so the result equals the one-row loop).
       const { rowPtr, colIdx, values } = g.matrix;
-      for (let b = 0; b < m; b++) {
+      let b = 0;
+      for (; b + 4 <= m; b += 4) {
+        const o0 = b * n;
+        const o1 = o0 + n;
+        const o2 = o1 + n;
+        const o3 = o2 + n;
+        for (let a = b; a < m; a++) {
+          let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
+          for (let q = rowPtr[a]!, q1 = rowPtr[a + 1]!; q < q1; q++) {
+            const v = values[q]!;
+            const c = colIdx[q]!;
+            s0 += v * bt[o0 + c]!;
+            s1 += v * bt[o1 + c]!;
+            s2 += v * bt[o2 + c]!;
+            s3 += v * bt[o3 + c]!;
+          }
+          const ka = a * m + b;
+          kd[ka] = s0;
+          if (a >= b + 1) kd[ka + 1] = s1;
+          if (a >= b + 2) kd[ka + 2] = s2;
+          if (a >= b + 3) kd[ka + 3] = s3;
+        }
+      }
+      for (; b < m; b++) {
         const o = b * n;
         for (let a = b; a < m; a++) {
           let sum = 0;
