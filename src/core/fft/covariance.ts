@@ -73,8 +73,9 @@ export function isStationaryOnGrid(grid: Grid, prior: PriorSpec): boolean {
 
 /**
  * The kernel part C of the prior on one grid as a circulant product. A product runs as
- *   forward x-passes on the ny rows that hold data → per column: F_y, × λ/P, F_y (fused, one
- *   gather; ../fft/fft2.ts columnFilter) → forward x-passes on the ny rows that are wanted,
+ *   forward x-passes on the ny rows that hold data → along y for all columns at once: F_y, × λ/P,
+ *   F_y (radix-4 butterflies across whole rows; ../fft/fft2.ts rowFilter) → forward x-passes on
+ *   the ny rows that are wanted,
  * (forward transforms only, F⁻¹ = (1/P) R F with R the index reversal),
  * so buffers hold ny (not py) rows. The "row spectrum" R = F_x pad(a + i b) (ny rows of px complex
  * values) depends only on the vectors, not on the prior: it is what callers cache.
@@ -105,7 +106,7 @@ export class CirculantProduct {
     const { px, py } = this;
     this.eigenvalues = circulantEmbedding(grid, prior.terms, px, py).eigenvalues;
     this.lambdaT = new Float64Array(px * py);
-    // λ' = λ / (px·py): the inverse transform's scale, folded in (see Fft2.columnFilter).
+    // λ' = λ / (px·py): the inverse transform's scale, folded in (see Fft2.rowFilter).
     const scale = 1 / (px * py);
     for (let ky = 0; ky < py; ky++) for (let kx = 0; kx < px; kx++) this.lambdaT[kx * py + ky] = scale * this.eigenvalues[kx + px * ky]!;
     this.variance = stationaryCovariance(prior.terms)(0, 0);
@@ -135,7 +136,7 @@ export class CirculantProduct {
     return out;
   }
 
-  /** Length of one full 2-D spectrum (column-major, px·py complex values). */
+  /** Length of one full 2-D spectrum (px·py complex values, in Fft2.rowFilter's order). */
   get columnSpectrumLength(): number {
     return 2 * this.px * this.py;
   }
@@ -143,18 +144,19 @@ export class CirculantProduct {
   /**
    * From a row spectrum R = F_x pad(a + i b): outA = [C̃ a]_grid, outB = [C̃ b]_grid (outB may be
    * null), written at the given offsets. `spec` is not modified. With `save`, the full 2-D
-   * spectrum F pad(a + i b) is kept there (column-major) for {@link fromColumnSpectrum}.
+   * spectrum F pad(a + i b) is kept there (Fft2.rowFilter's internal row order) for
+   * {@link fromColumnSpectrum}.
    */
   fromSpectrum(spec: Float64Array, outA: Float64Array, outB: Float64Array | null, offsetA = 0, offsetB = 0, save: Float64Array | null = null): void {
     // Forward transforms only: y = (1/P) R F (λ ⊙ F x); rows come back reversed from the column
     // filter, columns are read at −ix mod px in finish().
-    this.fft.columnFilter(spec, this.lambdaT, this.ny, this.ny, this.work, save);
+    this.fft.rowFilter(spec, this.lambdaT, this.ny, this.ny, this.work, save);
     this.finish(outA, outB, offsetA, offsetB);
   }
 
   /** As {@link fromSpectrum}, from a full 2-D spectrum kept by its `save` (one y-pass less). */
   fromColumnSpectrum(spec: Float64Array, outA: Float64Array, outB: Float64Array | null, offsetA = 0, offsetB = 0): void {
-    this.fft.columnFilterCached(spec, this.lambdaT, this.ny, this.work);
+    this.fft.rowFilterCached(spec, this.lambdaT, this.ny, this.work);
     this.finish(outA, outB, offsetA, offsetB);
   }
 

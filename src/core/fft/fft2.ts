@@ -220,6 +220,338 @@ export class Fft2 {
     }
   }
 
+  // ---- y-pass across whole rows ----------------------------------------------------------------
+  //
+  // The y-transform of every column at once: each radix-2 butterfly combines two rows of px
+  // complex values with one twiddle, so inner loops are contiguous and no column is gathered.
+  // Forward transform by decimation in frequency (natural order in, bit-reversed order out), the
+  // pointwise product in bit-reversed order, then a forward transform by decimation in time
+  // (bit-reversed in, natural out): no permutation pass is needed (Cooley–Tukey radix-2 in both
+  // forms; common practice, no source). The first DIF stage skips the known-zero rows ≥ py/2 and
+  // the last DIT stage computes only the rows that are scattered.
+
+  private twR: Float64Array | null = null;
+  private twI: Float64Array | null = null;
+  private yWork: Float64Array | null = null;
+  private permCache = new WeakMap<Float64Array, Float64Array>();
+
+  private rowTwiddles(): void {
+    if (this.twR !== null) return;
+    const py = this.py;
+    const h = py >> 1;
+    this.twR = new Float64Array(h);
+    this.twI = new Float64Array(h);
+    for (let k = 0; k < h; k++) {
+      const a = (-2 * Math.PI * k) / py;
+      this.twR[k] = Math.cos(a);
+      this.twI[k] = Math.sin(a);
+    }
+  }
+
+  /** λ' in the spectrum's row order, row-major: out[2·(p·px + kx)] = out[… + 1] = λ'[kx, order(p)]. */
+  private permutedLambda(lambdaT: Float64Array): Float64Array {
+    let q = this.permCache.get(lambdaT);
+    if (q !== undefined) return q;
+    const { px, py } = this;
+    q = new Float64Array(2 * px * py);
+    const order = this.spectrumOrder();
+    for (let p = 0; p < py; p++) {
+      const r = order[p]!;
+      for (let kx = 0; kx < px; kx++) {
+        const l = lambdaT[kx * py + r]!;
+        q[2 * (p * px + kx)] = l;
+        q[2 * (p * px + kx) + 1] = l;
+      }
+    }
+    this.permCache.set(lambdaT, q);
+    return q;
+  }
+
+
+  /**
+   * Which frequency ky each row of the DIF output holds (a digit reversal for the radix-2/4
+   * stages), found by transforming the impulse at y = 1: row p then holds e^(−2πi ky/py).
+   */
+  private spectrumOrder(): Int32Array {
+    const py = this.py;
+    const one = new Fft2(1, py);
+    one.rowTwiddles();
+    const y = new Float64Array(2 * py);
+    y[2] = 1;
+    // First DIF stage by hand (same butterflies as rowFilter), then the middle stages.
+    const h = py >> 1;
+    const t = new Float64Array(2 * py);
+    for (let j = 0; j < h; j++) {
+      const ar = y[2 * j]!, ai = y[2 * j + 1]!, br = y[2 * (j + h)]!, bi = y[2 * (j + h) + 1]!;
+      t[2 * j] = ar + br;
+      t[2 * j + 1] = ai + bi;
+      const dr = ar - br, di = ai - bi;
+      t[2 * (j + h)] = dr * one.twR![j]! - di * one.twI![j]!;
+      t[2 * (j + h) + 1] = dr * one.twI![j]! + di * one.twR![j]!;
+    }
+    one.difMiddle(t);
+    const order = new Int32Array(py);
+    for (let p = 0; p < py; p++) {
+      const k = Math.round((Math.atan2(-t[2 * p + 1]!, t[2 * p]!) * py) / (2 * Math.PI));
+      order[p] = ((k % py) + py) % py;
+    }
+    return order;
+  }
+
+  /** DIF stages after the first radix-2 one: a radix-2 stage at length py/2 when needed, then radix-4. */
+  private difMiddle(y: Float64Array): void {
+    const { px, py } = this;
+    const twR = this.twR!;
+    const twI = this.twI!;
+    const w = 2 * px;
+    let len = py >> 1;
+    let lg = 0;
+    while (1 << lg < len) lg++;
+    if (lg % 2 === 1) {
+      const half = len >> 1;
+      const tstep = py / len;
+      for (let g = 0; g < py; g += len) {
+        for (let j = 0; j < half; j++) {
+          const o1 = (g + j) * w;
+          const o2 = o1 + half * w;
+          const cr = twR[j * tstep]!;
+          const ci = twI[j * tstep]!;
+          for (let c = 0; c < w; c += 2) {
+            const ar = y[o1 + c]!, ai = y[o1 + c + 1]!, br = y[o2 + c]!, bi = y[o2 + c + 1]!;
+            y[o1 + c] = ar + br;
+            y[o1 + c + 1] = ai + bi;
+            const dr = ar - br, di = ai - bi;
+            y[o2 + c] = dr * cr - di * ci;
+            y[o2 + c + 1] = dr * ci + di * cr;
+          }
+        }
+      }
+      len = half;
+    }
+    for (; len >= 4; len >>= 2) {
+      const q = len >> 2;
+      const tstep = py / len; // W_len^j = W_py^(j·tstep)
+      for (let g = 0; g < py; g += len) {
+        for (let j = 0; j < q; j++) {
+          const oa = (g + j) * w;
+          const ob = oa + q * w;
+          const oc = ob + q * w;
+          const od = oc + q * w;
+          const w1r = twR[j * tstep]!, w1i = twI[j * tstep]!;
+          // W^(2j), W^(3j) from the table (indices < py/2 since 3j·tstep < 3py/4 … reduce by symmetry)
+          const [w2r, w2i] = twiddle(twR, twI, 2 * j * tstep, py);
+          const [w3r, w3i] = twiddle(twR, twI, 3 * j * tstep, py);
+          for (let c = 0; c < w; c += 2) {
+            const ar = y[oa + c]!, ai = y[oa + c + 1]!;
+            const br = y[ob + c]!, bi = y[ob + c + 1]!;
+            const cr = y[oc + c]!, ci = y[oc + c + 1]!;
+            const dr = y[od + c]!, di = y[od + c + 1]!;
+            const t0r = ar + cr, t0i = ai + ci;
+            const t1r = ar - cr, t1i = ai - ci;
+            const t2r = br + dr, t2i = bi + di;
+            // t3 = −i (b − d)
+            const t3r = bi - di, t3i = dr - br;
+            y[oa + c] = t0r + t2r;
+            y[oa + c + 1] = t0i + t2i;
+            const u1r = t1r + t3r, u1i = t1i + t3i;
+            y[ob + c] = u1r * w1r - u1i * w1i;
+            y[ob + c + 1] = u1r * w1i + u1i * w1r;
+            const u2r = t0r - t2r, u2i = t0i - t2i;
+            y[oc + c] = u2r * w2r - u2i * w2i;
+            y[oc + c + 1] = u2r * w2i + u2i * w2r;
+            const u3r = t1r - t3r, u3i = t1i - t3i;
+            y[od + c] = u3r * w3r - u3i * w3i;
+            y[od + c + 1] = u3r * w3i + u3i * w3r;
+          }
+        }
+      }
+    }
+  }
+
+  /** The mirror of {@link difMiddle}: radix-4 DIT stages upwards, then a radix-2 one at py/2 when needed. */
+  private ditMiddle(y: Float64Array): void {
+    const { px, py } = this;
+    const twR = this.twR!;
+    const twI = this.twI!;
+    const w = 2 * px;
+    const h = py >> 1;
+    let lg = 0;
+    while (1 << lg < h) lg++;
+    let len = 4;
+    for (; len <= h && (lg % 2 === 0 || len <= h >> 1); len <<= 2) {
+      const q = len >> 2;
+      const tstep = py / len;
+      for (let g = 0; g < py; g += len) {
+        for (let j = 0; j < q; j++) {
+          const oa = (g + j) * w;
+          const ob = oa + q * w;
+          const oc = ob + q * w;
+          const od = oc + q * w;
+          const w1r = twR[j * tstep]!, w1i = twI[j * tstep]!;
+          const [w2r, w2i] = twiddle(twR, twI, 2 * j * tstep, py);
+          const [w3r, w3i] = twiddle(twR, twI, 3 * j * tstep, py);
+          for (let c = 0; c < w; c += 2) {
+            const ar = y[oa + c]!, ai = y[oa + c + 1]!;
+            const b0r = y[ob + c]!, b0i = y[ob + c + 1]!;
+            const c0r = y[oc + c]!, c0i = y[oc + c + 1]!;
+            const d0r = y[od + c]!, d0i = y[od + c + 1]!;
+            const br = b0r * w1r - b0i * w1i, bi = b0r * w1i + b0i * w1r;
+            const cr = c0r * w2r - c0i * w2i, ci = c0r * w2i + c0i * w2r;
+            const dr = d0r * w3r - d0i * w3i, di = d0r * w3i + d0i * w3r;
+            const t0r = ar + cr, t0i = ai + ci;
+            const t1r = ar - cr, t1i = ai - ci;
+            const t2r = br + dr, t2i = bi + di;
+            const t3r = bi - di, t3i = dr - br;
+            y[oa + c] = t0r + t2r;
+            y[oa + c + 1] = t0i + t2i;
+            y[ob + c] = t1r + t3r;
+            y[ob + c + 1] = t1i + t3i;
+            y[oc + c] = t0r - t2r;
+            y[oc + c + 1] = t0i - t2i;
+            y[od + c] = t1r - t3r;
+            y[od + c + 1] = t1i - t3i;
+          }
+        }
+      }
+    }
+    if (lg % 2 === 1) {
+      // radix-2 DIT at length h
+      const half = h >> 1;
+      const tstep = py / h;
+      for (let g = 0; g < py; g += h) {
+        for (let j = 0; j < half; j++) {
+          const o1 = (g + j) * w;
+          const o2 = o1 + half * w;
+          const cr = twR[j * tstep]!;
+          const ci = twI[j * tstep]!;
+          for (let c = 0; c < w; c += 2) {
+            const br0 = y[o2 + c]!, bi0 = y[o2 + c + 1]!;
+            const br = br0 * cr - bi0 * ci, bi = br0 * ci + bi0 * cr;
+            const ar = y[o1 + c]!, ai = y[o1 + c + 1]!;
+            y[o1 + c] = ar + br;
+            y[o1 + c + 1] = ai + bi;
+            y[o2 + c] = ar - br;
+            y[o2 + c + 1] = ai - bi;
+          }
+        }
+      }
+    }
+  }
+
+  /** Length of a spectrum saved by {@link rowFilter} (2·px·py values, internal order). */
+  get rowSpectrumLength(): number {
+    return 2 * this.px * this.py;
+  }
+
+  /**
+   * Same result as {@link columnFilter} (dest rows t < scatterRows take v(−t mod py) of
+   * v = F_y(λ' ⊙ F_y col) per column), computed across whole rows. With `save`, the spectrum
+   * F_y col is kept there in this method's own (bit-reversed row) order, for {@link rowFilterCached}.
+   * Needs py ≥ 2 or falls back to columnFilter.
+   */
+  rowFilter(
+    buf: Float64Array,
+    lambdaT: Float64Array,
+    gatherRows: number,
+    scatterRows: number,
+    dest: Float64Array,
+    save: Float64Array | null = null,
+  ): void {
+    const { px, py } = this;
+    if (py === 1) {
+      this.columnFilter(buf, lambdaT, gatherRows, scatterRows, dest, save);
+      return;
+    }
+    this.rowTwiddles();
+    const twR = this.twR!;
+    const twI = this.twI!;
+    const w = 2 * px;
+    if (this.yWork === null) this.yWork = new Float64Array(w * py);
+    const y = this.yWork;
+    const h = py >> 1;
+    // First DIF stage (rows j and j + h) straight from buf; rows ≥ gatherRows are zero.
+    for (let j = 0; j < h; j++) {
+      const o1 = j * w;
+      const o2 = (j + h) * w;
+      const hasA = j < gatherRows;
+      const hasB = j + h < gatherRows;
+      const cr = twR[j]!;
+      const ci = twI[j]!;
+      if (!hasA && !hasB) {
+        y.fill(0, o1, o1 + w);
+        y.fill(0, o2, o2 + w);
+      } else if (!hasB) {
+        for (let c = 0; c < w; c += 2) {
+          const ar = buf[o1 + c]!;
+          const ai = buf[o1 + c + 1]!;
+          y[o1 + c] = ar;
+          y[o1 + c + 1] = ai;
+          y[o2 + c] = ar * cr - ai * ci;
+          y[o2 + c + 1] = ar * ci + ai * cr;
+        }
+      } else {
+        for (let c = 0; c < w; c += 2) {
+          const ar = buf[o1 + c]!;
+          const ai = buf[o1 + c + 1]!;
+          const br = buf[o2 + c]!;
+          const bi = buf[o2 + c + 1]!;
+          y[o1 + c] = ar + br;
+          y[o1 + c + 1] = ai + bi;
+          const dr = ar - br;
+          const di = ai - bi;
+          y[o2 + c] = dr * cr - di * ci;
+          y[o2 + c + 1] = dr * ci + di * cr;
+        }
+      }
+    }
+    this.difMiddle(y);
+    if (save !== null) save.set(y);
+    this.multiplyAndFinish(y, this.permutedLambda(lambdaT), scatterRows, dest);
+  }
+
+  /** The second half of {@link rowFilter} from a spectrum kept by its `save`. */
+  rowFilterCached(spectra: Float64Array, lambdaT: Float64Array, scatterRows: number, dest: Float64Array): void {
+    const { px, py } = this;
+    if (py === 1) {
+      this.columnFilter(spectra, lambdaT, 1, 1, dest);
+      return;
+    }
+    this.rowTwiddles();
+    if (this.yWork === null) this.yWork = new Float64Array(2 * px * py);
+    this.yWork.set(spectra);
+    this.multiplyAndFinish(this.yWork, this.permutedLambda(lambdaT), scatterRows, dest);
+  }
+
+  /** y ← λ ⊙ y (bit-reversed rows), DIT forward transform, dest row t ← row (−t mod py). */
+  private multiplyAndFinish(y: Float64Array, lam: Float64Array, scatterRows: number, dest: Float64Array): void {
+    const { px, py } = this;
+    const twR = this.twR!;
+    const twI = this.twI!;
+    const w = 2 * px;
+    const total = w * py;
+    for (let i = 0; i < total; i++) y[i] *= lam[i]!;
+    const h = py >> 1;
+    this.ditMiddle(y);
+    // Last DIT stage, only the rows wanted: dest row t takes output row k = (−t mod py);
+    // k < h is y[k] + w^k y[k + h], k ≥ h is y[k − h] − w^(k−h) y[k].
+    for (let t = 0; t < scatterRows; t++) {
+      const k = t === 0 ? 0 : py - t;
+      const j = k < h ? k : k - h;
+      const sign = k < h ? 1 : -1;
+      const o1 = j * w;
+      const o2 = (j + h) * w;
+      const od = t * w;
+      const cr = sign * twR[j]!;
+      const ci = sign * twI[j]!;
+      for (let c = 0; c < w; c += 2) {
+        const br0 = y[o2 + c]!;
+        const bi0 = y[o2 + c + 1]!;
+        dest[od + c] = y[o1 + c]! + (br0 * cr - bi0 * ci);
+        dest[od + c + 1] = y[o1 + c + 1]! + (br0 * ci + bi0 * cr);
+      }
+    }
+  }
+
   private columnPass(
     buf: Float64Array,
     dest: Float64Array,
@@ -259,6 +591,12 @@ export class Fft2 {
       }
     }
   }
+}
+
+/** W_p^k = e^(−2πik/p) from the half table (k < p): W^(k) = −W^(k − p/2) for k ≥ p/2. */
+function twiddle(twR: Float64Array, twI: Float64Array, k: number, p: number): [number, number] {
+  const h = p >> 1;
+  return k < h ? [twR[k]!, twI[k]!] : [-twR[k - h]!, -twI[k - h]!];
 }
 
 /** Convenience: a new transformed copy of a px × py complex buffer. */
