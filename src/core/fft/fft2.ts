@@ -467,7 +467,9 @@ export class Fft2 {
     const twI = this.twI!;
     const w = 2 * px;
     if (this.yWork === null) this.yWork = new Float64Array(w * py);
-    const y = this.yWork;
+    // The spectrum is built in `save` itself when given (no copy), else in the workspace.
+    const y = save ?? this.yWork;
+    if (y.length < w * py) throw new RangeError(`Fft2.rowFilter: save has length ${y.length}, expected ${w * py}`);
     const h = py >> 1;
     // First DIF stage (rows j and j + h) straight from buf; rows ≥ gatherRows are zero.
     for (let j = 0; j < h; j++) {
@@ -505,7 +507,6 @@ export class Fft2 {
       }
     }
     this.difMiddle(y);
-    if (save !== null) save.set(y);
     this.multiplyAndFinish(y, this.permutedLambda(lambdaT), scatterRows, dest);
   }
 
@@ -518,18 +519,21 @@ export class Fft2 {
     }
     this.rowTwiddles();
     if (this.yWork === null) this.yWork = new Float64Array(2 * px * py);
-    this.yWork.set(spectra);
-    this.multiplyAndFinish(this.yWork, this.permutedLambda(lambdaT), scatterRows, dest);
+    this.multiplyAndFinish(spectra, this.permutedLambda(lambdaT), scatterRows, dest);
   }
 
-  /** y ← λ ⊙ y (bit-reversed rows), DIT forward transform, dest row t ← row (−t mod py). */
-  private multiplyAndFinish(y: Float64Array, lam: Float64Array, scatterRows: number, dest: Float64Array): void {
+  /**
+   * y ← λ ⊙ spec (digit-reversed rows; y is the workspace, spec is not modified unless it is the
+   * workspace), DIT forward transform, dest row t ← row (−t mod py).
+   */
+  private multiplyAndFinish(spec: Float64Array, lam: Float64Array, scatterRows: number, dest: Float64Array): void {
     const { px, py } = this;
     const twR = this.twR!;
     const twI = this.twI!;
     const w = 2 * px;
     const total = w * py;
-    for (let i = 0; i < total; i++) y[i] *= lam[i]!;
+    const y = this.yWork!;
+    for (let i = 0; i < total; i++) y[i] = spec[i]! * lam[i]!;
     const h = py >> 1;
     this.ditMiddle(y);
     // Last DIT stage, only the rows wanted: dest row t takes output row k = (−t mod py);
