@@ -93,6 +93,8 @@ export class CirculantProduct {
   private readonly lambdaT: Float64Array;
   private readonly fft: Fft2;
   private readonly work: Float64Array;
+  private readonly rowIn: Float64Array;
+  private readonly rowOut: Float64Array;
 
   constructor(grid: Grid, prior: PriorSpec, padding?: readonly [number, number]) {
     const { nx, ny } = gridAxes(grid);
@@ -112,6 +114,9 @@ export class CirculantProduct {
     this.variance = stationaryCovariance(prior.terms)(0, 0);
     this.fft = new Fft2(px, py);
     this.work = new Float64Array(2 * px * ny);
+    // One padded input row (its tail beyond nx stays zero) and one transformed output row.
+    this.rowIn = new Float64Array(2 * px);
+    this.rowOut = new Float64Array(2 * px);
   }
 
   /** Length of one row spectrum (interleaved complex, px·ny values). */
@@ -125,14 +130,30 @@ export class CirculantProduct {
    */
   spectrum(a: ArrayLike<number>, b: ArrayLike<number> | null, out: Float64Array): Float64Array {
     const { nx, ny, px } = this;
-    out.fill(0);
+    const row = this.rowIn;
+    const w = 2 * px;
     for (let iy = 0; iy < ny; iy++) {
-      const o = 2 * px * iy;
+      const o = w * iy;
       const g = nx * iy;
-      for (let ix = 0; ix < nx; ix++) out[o + 2 * ix] = a[g + ix]!;
-      if (b !== null) for (let ix = 0; ix < nx; ix++) out[o + 2 * ix + 1] = b[g + ix]!;
+      // A grid row that is zero in both vectors has a zero transform: skipped.
+      let any = false;
+      for (let ix = 0; ix < nx; ix++) {
+        const v = a[g + ix]!;
+        row[2 * ix] = v;
+        if (v !== 0) any = true;
+      }
+      if (b !== null) {
+        for (let ix = 0; ix < nx; ix++) {
+          const v = b[g + ix]!;
+          row[2 * ix + 1] = v;
+          if (v !== 0) any = true;
+        }
+      } else {
+        for (let ix = 0; ix < nx; ix++) row[2 * ix + 1] = 0;
+      }
+      if (any) this.fft.transformRow(row, out.subarray(o, o + w));
+      else out.fill(0, o, o + w);
     }
-    this.fft.rows(out, ny, false);
     return out;
   }
 
@@ -162,16 +183,17 @@ export class CirculantProduct {
 
   private finish(outA: Float64Array, outB: Float64Array | null, offsetA: number, offsetB: number): void {
     const { nx, ny, px } = this;
-    const w = this.work;
-    this.fft.rows(w, ny, false);
+    const work = this.work;
+    const t = this.rowOut;
+    const w = 2 * px;
     for (let iy = 0; iy < ny; iy++) {
-      const o = 2 * px * iy;
+      this.fft.transformRow(work.subarray(w * iy, w * (iy + 1)), t);
       const g = nx * iy;
-      outA[offsetA + g] = w[o]!;
-      for (let ix = 1; ix < nx; ix++) outA[offsetA + g + ix] = w[o + 2 * (px - ix)]!;
+      outA[offsetA + g] = t[0]!;
+      for (let ix = 1; ix < nx; ix++) outA[offsetA + g + ix] = t[2 * (px - ix)]!;
       if (outB !== null) {
-        outB[offsetB + g] = w[o + 1]!;
-        for (let ix = 1; ix < nx; ix++) outB[offsetB + g + ix] = w[o + 2 * (px - ix) + 1]!;
+        outB[offsetB + g] = t[1]!;
+        for (let ix = 1; ix < nx; ix++) outB[offsetB + g + ix] = t[2 * (px - ix) + 1]!;
       }
     }
   }

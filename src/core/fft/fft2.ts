@@ -117,6 +117,19 @@ export class Fft2 {
   }
 
   /**
+   * Forward x-transform of one row: px complex values from `src` into `dst` (both of length ≥ 2·px,
+   * distinct buffers; no copy back as in {@link rows}).
+   */
+  transformRow(src: Float64Array, dst: Float64Array): void {
+    if (this.px === 1) {
+      dst[0] = src[0]!;
+      dst[1] = src[1]!;
+      return;
+    }
+    plan(this.px).transform(dst, src);
+  }
+
+  /**
    * The y-pass: columns gathered COLUMN_BLOCK at a time, transformed with fft.js and scattered
    * back. Only rows < gatherRows are read (the rest are taken as zero) and only rows < scatterRows
    * are written. `buf` has rows of 2·px values; it may hold fewer than py rows when

@@ -174,9 +174,10 @@ export function prepareStructuredPosterior(sp: StructuredProblem | Problem, prio
   const rowA = new Float64Array(n);
   const rowB = new Float64Array(n);
   let tProducts = 0;
+  const order = pairOrder(g, grid.shape[0]!, m);
   for (let p = 0; p < pairs; p++) {
-    const a = 2 * p;
-    const b = a + 1 < m ? a + 1 : -1;
+    const a = order[2 * p]!;
+    const b = 2 * p + 1 < m ? order[2 * p + 1]! : -1;
     const offB = b < 0 ? 0 : b * n;
     const tp = now();
     if (spectraCached) {
@@ -236,6 +237,35 @@ export function prepareStructuredPosterior(sp: StructuredProblem | Problem, prio
   const base = { problem, prior, m0, Bt, L, r, alpha, mean, priorVariance, padding: [cp.px, cp.py] as const, spectraCached };
   const timings = { spectra: spectraTime, products: tProducts, factor: factorTime };
   return Ld === undefined ? { ...base, timings } : { ...base, Ld, timings };
+}
+
+/**
+ * The order in which data rows are paired into complex transforms (rows order[2p], order[2p+1]).
+ * A transform's x-pass skips the grid rows that are zero in both vectors of its pair, so sparse
+ * rows are sorted by the first, then the last grid row they touch: neighbours then cover similar
+ * grid rows (for straight rays across the grid, rays along x pair with rays along x). Dense
+ * operators keep the natural order. Any pairing gives the same products up to round-off; this one
+ * depends on G only, so cached spectra stay matched to their rows.
+ */
+function pairOrder(g: Operator, nx: number, m: number): Int32Array {
+  const order = new Int32Array(m);
+  for (let k = 0; k < m; k++) order[k] = k;
+  if (g.kind !== 'sparse') return order;
+  const { rowPtr, colIdx } = g.matrix;
+  const lo = new Int32Array(m);
+  const hi = new Int32Array(m);
+  for (let k = 0; k < m; k++) {
+    let a = Number.MAX_SAFE_INTEGER;
+    let b = -1;
+    for (let q = rowPtr[k]!; q < rowPtr[k + 1]!; q++) {
+      const iy = Math.floor(colIdx[q]! / nx);
+      if (iy < a) a = iy;
+      if (iy > b) b = iy;
+    }
+    lo[k] = b < 0 ? 0 : a;
+    hi[k] = b;
+  }
+  return order.sort((x, y) => lo[x]! - lo[y]! || hi[x]! - hi[y]! || x - y);
 }
 
 function addScaledRow(g: Operator, k: number, c: number, out: Float64Array, o: number): void {
