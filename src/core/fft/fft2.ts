@@ -381,8 +381,42 @@ export class Fft2 {
     }
   }
 
+  /**
+   * The first radix-4 DIT stage (length 4, no twiddles) fused with the product y = λ ⊙ spec, so
+   * the spectrum is read once. Needs py ≥ 8; spec may be y itself (each group is read before it
+   * is written).
+   */
+  private ditFirstRadix4(spec: Float64Array, lam: Float64Array, y: Float64Array): void {
+    const { px, py } = this;
+    const w = 2 * px;
+    for (let g = 0; g < py; g += 4) {
+      const oa = g * w;
+      const ob = oa + w;
+      const oc = ob + w;
+      const od = oc + w;
+      for (let c = 0; c < w; c += 2) {
+        const ar = spec[oa + c]! * lam[oa + c]!, ai = spec[oa + c + 1]! * lam[oa + c + 1]!;
+        const br = spec[ob + c]! * lam[ob + c]!, bi = spec[ob + c + 1]! * lam[ob + c + 1]!;
+        const cr = spec[oc + c]! * lam[oc + c]!, ci = spec[oc + c + 1]! * lam[oc + c + 1]!;
+        const dr = spec[od + c]! * lam[od + c]!, di = spec[od + c + 1]! * lam[od + c + 1]!;
+        const t0r = ar + cr, t0i = ai + ci;
+        const t1r = ar - cr, t1i = ai - ci;
+        const t2r = br + dr, t2i = bi + di;
+        const t3r = bi - di, t3i = dr - br;
+        y[oa + c] = t0r + t2r;
+        y[oa + c + 1] = t0i + t2i;
+        y[oc + c] = t0r - t2r;
+        y[oc + c + 1] = t0i - t2i;
+        y[ob + c] = t1r + t3r;
+        y[ob + c + 1] = t1i + t3i;
+        y[od + c] = t1r - t3r;
+        y[od + c + 1] = t1i - t3i;
+      }
+    }
+  }
+
   /** The mirror of {@link difMiddle}: radix-4 DIT stages upwards, then a radix-2 one at py/2 when needed. */
-  private ditMiddle(y: Float64Array): void {
+  private ditMiddle(y: Float64Array, firstDone = false): void {
     const { px, py } = this;
     const twR = this.twR!;
     const twI = this.twI!;
@@ -390,7 +424,7 @@ export class Fft2 {
     const h = py >> 1;
     let lg = 0;
     while (1 << lg < h) lg++;
-    let len = 4;
+    let len = firstDone ? 16 : 4;
     for (; len <= h && (lg % 2 === 0 || len <= h >> 1); len <<= 2) {
       const q = len >> 2;
       const tstep = py / len;
@@ -545,10 +579,14 @@ export class Fft2 {
     const twI = this.twI!;
     const w = 2 * px;
     const total = w * py;
-    const y = this.yWork!;
-    for (let i = 0; i < total; i++) y[i] = spec[i]! * lam[i]!;
     const h = py >> 1;
-    this.ditMiddle(y);
+    const y = this.yWork!;
+    if (h >= 4) {
+      this.ditFirstRadix4(spec, lam, y);
+    } else {
+      for (let i = 0; i < total; i++) y[i] = spec[i]! * lam[i]!;
+    }
+    this.ditMiddle(y, h >= 4);
     // Last DIT stage, only the rows wanted: dest row t takes output row k = (−t mod py);
     // k < h is y[k] + w^k y[k + h], k ≥ h is y[k − h] − w^(k−h) y[k].
     for (let t = 0; t < scatterRows; t++) {
