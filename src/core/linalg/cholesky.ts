@@ -6,7 +6,7 @@
  * modifies `a` unless `inPlace`, and returns L with a zeroed strict upper triangle.
  */
 import { matrix, type Matrix } from './matrix.ts';
-import { gemmNT, transposeBlock } from './kernels.ts';
+import { gemmNT, transposeBlock, trsmRowsLowerT } from './kernels.ts';
 
 export type CholeskyResult =
   | { readonly ok: true; readonly factor: Matrix }
@@ -73,38 +73,7 @@ export function cholesky(a: Matrix, options: CholeskyOptions = {}): CholeskyResu
     for (let c0 = 0; c0 < jb; c0 += PANEL_CHUNK) {
       const c1 = Math.min(jb, c0 + PANEL_CHUNK);
       if (c0 > 0 && r0 < n) gemmNT(n - r0, c1 - c0, c0, -1, d, r0 * n + j0, n, d, (j0 + c0) * n + j0, n, d, r0 * n + j0 + c0, n);
-      let i = r0;
-      for (; i + 4 <= n; i += 4) {
-        const o0 = i * n + j0;
-        const o1 = o0 + n;
-        const o2 = o1 + n;
-        const o3 = o2 + n;
-        for (let j = c0; j < c1; j++) {
-          const oj = diagOff + j * n;
-          let s0 = d[o0 + j]!, s1 = d[o1 + j]!, s2 = d[o2 + j]!, s3 = d[o3 + j]!;
-          for (let p = c0; p < j; p++) {
-            const l = d[oj + p]!;
-            s0 -= d[o0 + p]! * l;
-            s1 -= d[o1 + p]! * l;
-            s2 -= d[o2 + p]! * l;
-            s3 -= d[o3 + p]! * l;
-          }
-          const inv = 1 / d[oj + j]!;
-          d[o0 + j] = s0 * inv;
-          d[o1 + j] = s1 * inv;
-          d[o2 + j] = s2 * inv;
-          d[o3 + j] = s3 * inv;
-        }
-      }
-      for (; i < n; i++) {
-        const o = i * n + j0;
-        for (let j = c0; j < c1; j++) {
-          const oj = diagOff + j * n;
-          let s = d[o + j]!;
-          for (let p = c0; p < j; p++) s -= d[o + p]! * d[oj + p]!;
-          d[o + j] = s / d[oj + j]!;
-        }
-      }
+      if (r0 < n) trsmRowsLowerT(d, r0 * n + j0, n, n - r0, d, diagOff, n, c0, c1);
     }
   }
   zeroStrictUpper(d, n);
@@ -200,38 +169,7 @@ export function solveLowerRowsInPlace(L: Matrix, X: Matrix): Matrix {
   for (let i0 = 0; i0 < n; i0 += SOLVE_BLOCK) {
     const ib = Math.min(SOLVE_BLOCK, n - i0);
     if (i0 > 0) gemmNT(k, ib, i0, -1, x, 0, n, l, i0 * n, n, x, i0, n);
-    let r = 0;
-    for (; r + 4 <= k; r += 4) {
-      const o0 = r * n;
-      const o1 = o0 + n;
-      const o2 = o1 + n;
-      const o3 = o2 + n;
-      for (let i = i0; i < i0 + ib; i++) {
-        const oi = i * n;
-        let s0 = x[o0 + i]!, s1 = x[o1 + i]!, s2 = x[o2 + i]!, s3 = x[o3 + i]!;
-        for (let p = i0; p < i; p++) {
-          const lp = l[oi + p]!;
-          s0 -= x[o0 + p]! * lp;
-          s1 -= x[o1 + p]! * lp;
-          s2 -= x[o2 + p]! * lp;
-          s3 -= x[o3 + p]! * lp;
-        }
-        const inv = 1 / l[oi + i]!;
-        x[o0 + i] = s0 * inv;
-        x[o1 + i] = s1 * inv;
-        x[o2 + i] = s2 * inv;
-        x[o3 + i] = s3 * inv;
-      }
-    }
-    for (; r < k; r++) {
-      const o = r * n;
-      for (let i = i0; i < i0 + ib; i++) {
-        const oi = i * n;
-        let s = x[o + i]!;
-        for (let p = i0; p < i; p++) s -= x[o + p]! * l[oi + p]!;
-        x[o + i] = s / l[oi + i]!;
-      }
-    }
+    trsmRowsLowerT(x, 0, n, k, l, 0, n, i0, i0 + ib);
   }
   return X;
 }

@@ -163,3 +163,50 @@ export function transposeBlock(
     }
   }
 }
+
+/**
+ * Triangle solve on a band of rows, in place: for each of `rows` rows r of X (row r starts at
+ * xOff + r·ldx) and each column j in [c0, c1),
+ *   X[r][j] ← (X[r][j] − Σ_{p ∈ [c0, j)} X[r][p] · L[j][p]) / L[j][j],
+ * where L[j][p] = l[lOff + j·ldl + p]. That is X[:, c0:c1] ← X[:, c0:c1] · L[c0:c1, c0:c1]⁻ᵀ, the
+ * diagonal-block step of a blocked forward substitution or Cholesky panel (Golub & Van Loan §3.1,
+ * §4.2, memory). Four rows share each read of L. `x` and `l` may be the same array when the two
+ * regions do not overlap (the Cholesky panel below its diagonal block).
+ */
+export function trsmRowsLowerT(
+  x: Float64Array, xOff: number, ldx: number, rows: number,
+  l: Float64Array, lOff: number, ldl: number, c0: number, c1: number,
+): void {
+  let r = 0;
+  for (; r + 4 <= rows; r += 4) {
+    const o0 = xOff + r * ldx;
+    const o1 = o0 + ldx;
+    const o2 = o1 + ldx;
+    const o3 = o2 + ldx;
+    for (let j = c0; j < c1; j++) {
+      const oj = lOff + j * ldl;
+      let s0 = x[o0 + j]!, s1 = x[o1 + j]!, s2 = x[o2 + j]!, s3 = x[o3 + j]!;
+      for (let p = c0; p < j; p++) {
+        const lp = l[oj + p]!;
+        s0 -= x[o0 + p]! * lp;
+        s1 -= x[o1 + p]! * lp;
+        s2 -= x[o2 + p]! * lp;
+        s3 -= x[o3 + p]! * lp;
+      }
+      const inv = 1 / l[oj + j]!;
+      x[o0 + j] = s0 * inv;
+      x[o1 + j] = s1 * inv;
+      x[o2 + j] = s2 * inv;
+      x[o3 + j] = s3 * inv;
+    }
+  }
+  for (; r < rows; r++) {
+    const o = xOff + r * ldx;
+    for (let j = c0; j < c1; j++) {
+      const oj = lOff + j * ldl;
+      let s = x[o + j]!;
+      for (let p = c0; p < j; p++) s -= x[o + p]! * l[oj + p]!;
+      x[o + j] = s / l[oj + j]!;
+    }
+  }
+}
