@@ -4,7 +4,7 @@
  * PUBLIC API: deriv2, shaw, gravity. Each returns the n × n matrix A, the exact discrete solution x
  * and the exact right-hand side b = A x (no noise).
  *
- * Our re-statement of the definitions (they are the ones in /work/shared/REFERENCES.md); indices
+ * Our re-statement of the definitions (they are the ones in the shared reference notes (REFERENCES.md)); indices
  * below are one-based as in the paper, i, j = 1 … n.
  */
 import { InputError } from '../errors.ts';

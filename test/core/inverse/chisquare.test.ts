@@ -9,7 +9,7 @@ import {
 
 describe('chiSquareQuantile', () => {
   // NIST/SEMATECH e-Handbook of Statistical Methods §1.3.6.7.4, table of χ² critical values
-  // (as listed in /work/shared/REFERENCES.md, 5–6 significant digits).
+  // (as listed in the shared reference notes (REFERENCES.md), 5–6 significant digits).
   it.each([
     [0.025, 1, 0.0009821],
     [0.975, 1, 5.02389],

@@ -5,7 +5,7 @@ import { deriv2, gravity, shaw } from '../../../src/core/problems/hansen.ts';
 describe('deriv2', () => {
   it('n = 3 matches the published matrix, solution and right-hand side', () => {
     // Hansen (1994), Regularization Tools, deriv2 example 1 with n = 3; values as listed (rounded to
-    // 6 significant digits) in /work/shared/REFERENCES.md.
+    // 6 significant digits) in the shared reference notes (REFERENCES.md).
     const A = [
       [-0.0277778, -0.0277778, -0.00925926],
       [-0.0277778, -0.0648148, -0.0277778],

@@ -4,7 +4,7 @@ import { besselK, besselKScaled } from '../../../src/core/special/bessel.ts';
 const rel = (a: number, b: number): number => (a === b ? 0 : Math.abs(a - b) / Math.abs(b));
 
 describe('besselK: published values', () => {
-  // /work/shared/REFERENCES.md, "seen" in test-value tables citing A&S Table 9.8 and a computer-algebra system;
+  // the shared reference notes (REFERENCES.md), "seen" in test-value tables citing A&S Table 9.8 and a computer-algebra system;
   // 16 significant digits, so rounding of the table itself is ≤ 5e-16 relative.
   it.each([
     [0, 0.1, 2.427069024702017],
