@@ -40,6 +40,30 @@ const STAT_CASES: { name: string; grid: Grid; prior: PriorSpec }[] = [
   { name: '1-D exponential with profile and nugget', grid: { shape: [25], spacing: [0.5] }, prior: { mean: { constant: -1 }, nugget: 0.05, stdProfile: Array.from(seededVector(25, 3), (v) => 1 + 0.5 * v), terms: [{ kernel: 'exponential', variance: 1, length: 2 }] } },
 ];
 
+/**
+ * Whitened draws w (count of them, length n) must look like N(0, I): with S = (1/K) Σ w wᵀ,
+ * Σ_i K S_ii = Σ_r ‖w_r‖² ~ χ²(K N) exactly, and √K S_ij (i < j) → N(0, 1), asymptotically
+ * independent, so K Σ_{i<j} S_ij² ≈ χ²(N(N−1)/2). Both inside two-sided limits at ALPHA.
+ */
+function expectWhite(w: readonly Float64Array[], count: number, n: number): void {
+  let diag = 0;
+  for (const v of w) for (let i = 0; i < n; i++) diag += v[i]! * v[i]!;
+  const [dlo, dhi] = chi2Limits(count * n, ALPHA);
+  expect(diag).toBeGreaterThan(dlo);
+  expect(diag).toBeLessThan(dhi);
+  let off = 0;
+  for (let i = 0; i < n; i++) {
+    for (let j = i + 1; j < n; j++) {
+      let sij = 0;
+      for (const v of w) sij += v[i]! * v[j]!;
+      off += (sij * sij) / count;
+    }
+  }
+  const [olo, ohi] = chi2Limits((n * (n - 1)) / 2, ALPHA);
+  expect(off).toBeGreaterThan(olo);
+  expect(off).toBeLessThan(ohi);
+}
+
 describe('sample covariance of circulant-embedding realisations matches Cm', () => {
   for (const { name, grid, prior } of STAT_CASES) {
     it(`${name}: whitened diagonal and off-diagonal sums inside χ² limits (α = ${ALPHA} each)`, () => {
@@ -47,26 +71,7 @@ describe('sample covariance of circulant-embedding realisations matches Cm', () 
       const res = circulantRealisations(grid, prior, count, 12345);
       expect(res.path).toBe('fft');
       expect(res.clipped).toBe(false);
-      const w = whiten(res.realisations, grid, prior);
-      const n = res.realisations.cols;
-      // S = (1/K) Σ w wᵀ should be I. Σ_i K S_ii = Σ_r ‖w_r‖² ~ χ²(K N) exactly.
-      let diag = 0;
-      for (const v of w) for (let i = 0; i < n; i++) diag += v[i]! * v[i]!;
-      const [dlo, dhi] = chi2Limits(count * n, ALPHA);
-      expect(diag).toBeGreaterThan(dlo);
-      expect(diag).toBeLessThan(dhi);
-      // √K S_ij (i < j) → N(0, 1), asymptotically independent: K Σ_{i<j} S_ij² ≈ χ²(N(N−1)/2).
-      let off = 0;
-      for (let i = 0; i < n; i++) {
-        for (let j = i + 1; j < n; j++) {
-          let sij = 0;
-          for (const v of w) sij += v[i]! * v[j]!;
-          off += (sij * sij) / count;
-        }
-      }
-      const [olo, ohi] = chi2Limits((n * (n - 1)) / 2, ALPHA);
-      expect(off).toBeGreaterThan(olo);
-      expect(off).toBeLessThan(ohi);
+      expectWhite(whiten(res.realisations, grid, prior), count, res.realisations.cols);
     });
   }
 
@@ -77,23 +82,7 @@ describe('sample covariance of circulant-embedding realisations matches Cm', () 
     const n = 30;
     const data = new Float64Array(count * n);
     for (let r = 0; r < count; r++) data.set(sampler.draw(1, 5000 + r).data, r * n);
-    const w = whiten({ rows: count, cols: n, data }, grid, prior);
-    let diag = 0;
-    for (const v of w) for (let i = 0; i < n; i++) diag += v[i]! * v[i]!;
-    const [dlo, dhi] = chi2Limits(count * n, ALPHA);
-    expect(diag).toBeGreaterThan(dlo);
-    expect(diag).toBeLessThan(dhi);
-    let off = 0;
-    for (let i = 0; i < n; i++) {
-      for (let j = i + 1; j < n; j++) {
-        let sij = 0;
-        for (const v of w) sij += v[i]! * v[j]!;
-        off += (sij * sij) / count;
-      }
-    }
-    const [olo, ohi] = chi2Limits((n * (n - 1)) / 2, ALPHA);
-    expect(off).toBeGreaterThan(olo);
-    expect(off).toBeLessThan(ohi);
+    expectWhite(whiten({ rows: count, cols: n, data }, grid, prior), count, n);
   });
 
   it('the two fields of one complex draw are uncorrelated: (K/2) Σ_ij X_ij² inside χ²(N²) limits', () => {
