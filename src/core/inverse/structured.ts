@@ -134,12 +134,24 @@ function scaledRow(g: Operator, k: number, s: readonly number[] | undefined, out
   return out;
 }
 
+/** Validated inputs of the FFT path, shared by the single-thread and parallel variants. */
+export interface StructuredSetup {
+  readonly holder: StructuredProblem;
+  readonly problem: Problem;
+  readonly prior: PriorSpec;
+  /** N cells and M data. */
+  readonly n: number;
+  readonly m: number;
+  readonly cp: CirculantProduct;
+  /** Pairing of the data rows into complex transforms ({@link pairOrder}). */
+  readonly order: Int32Array;
+}
+
 /**
- * Factors the posterior through the FFT path and computes the mean. Throws InputError for a bad
- * prior or problem, NotPositiveDefiniteError when K does not factor, and InputError when the prior
- * is not stationary on the grid (use {@link posteriorAuto} to fall back to the dense path).
+ * Validates the prior and problem for the FFT path (InputError for a bad prior or problem, or a
+ * prior that is not stationary on the grid) and builds the circulant product and pair order.
  */
-export function prepareStructuredPosterior(sp: StructuredProblem | Problem, prior: PriorSpec): StructuredPosteriorState {
+export function structuredSetup(sp: StructuredProblem | Problem, prior: PriorSpec): StructuredSetup {
   const holder = 'cacheBytes' in sp ? sp : structuredProblem(sp);
   const problem = holder.problem;
   const grid = problem.grid;
@@ -148,13 +160,88 @@ export function prepareStructuredPosterior(sp: StructuredProblem | Problem, prio
   if (why !== null) throw new InputError('prior', 'stationary on a regular grid for the FFT path', why);
   const n = cellCount(grid);
   const m = validateProblem(problem, n);
+  const cp = new CirculantProduct(grid, prior);
+  return { holder, problem, prior, n, m, cp, order: pairOrder(problem.operator, grid.shape[0]!, m) };
+}
+
+/**
+ * Rows of Bᵀ = G Cm for the pairs of data rows (rows[2p], rows[2p+1]), p = 0 … ⌈rows.length/2⌉ − 1
+ * (the last pair has one row when rows.length is odd): C(s ⊙ g_k) into bt at row slot slots[i]·N
+ * for data row rows[i], before the profile and nugget ({@link finishBtRows}). `cached` holds the
+ * full 2-D spectra of these pairs (index p) from an earlier `save`; with `save`, the spectra are
+ * pushed there. The arithmetic of a pair depends on its two rows only, so any split of the pairs
+ * into ranges gives the same rows bit for bit. Returns milliseconds (spectra, products without
+ * the spectra).
+ */
+export function computeBtPairs(
+  cp: CirculantProduct,
+  g: Operator,
+  s: readonly number[] | undefined,
+  rows: Int32Array,
+  slots: Int32Array,
+  bt: Float64Array,
+  cached: readonly Float64Array[] | null,
+  save: Float64Array[] | null,
+): { spectra: number; products: number } {
+  const n = cp.nx * cp.ny;
+  const m = rows.length;
+  const pairs = Math.ceil(m / 2);
+  let spectraTime = 0;
+  const rowSpec = cached !== null ? null : new Float64Array(cp.spectrumLength);
+  const rowA = new Float64Array(n);
+  const rowB = new Float64Array(n);
+  let tProducts = 0;
+  for (let p = 0; p < pairs; p++) {
+    const a = rows[2 * p]!;
+    const b = 2 * p + 1 < m ? rows[2 * p + 1]! : -1;
+    const offA = slots[2 * p]! * n;
+    const offB = b < 0 ? 0 : slots[2 * p + 1]! * n;
+    const tp = now();
+    if (cached !== null) {
+      cp.fromColumnSpectrum(cached[p]!, bt, b < 0 ? null : bt, offA, offB);
+    } else {
+      const ts = now();
+      cp.spectrum(scaledRow(g, a, s, rowA), b < 0 ? null : scaledRow(g, b, s, rowB), rowSpec!);
+      spectraTime += now() - ts;
+      const keep = save !== null ? new Float64Array(cp.columnSpectrumLength) : null;
+      cp.fromSpectrum(rowSpec!, bt, b < 0 ? null : bt, offA, offB, keep);
+      if (keep !== null) save!.push(keep);
+    }
+    tProducts += now() - tp;
+  }
+  return { spectra: spectraTime, products: tProducts - spectraTime };
+}
+
+/** Profile and nugget of the rows written by {@link computeBtPairs}: row k of Bᵀ = s ⊙ C(s ⊙ g_k) + nugget·g_k. */
+export function finishBtRows(
+  g: Operator,
+  s: readonly number[] | undefined,
+  nugget: number,
+  rows: Int32Array,
+  slots: Int32Array,
+  bt: Float64Array,
+  n: number,
+): void {
+  if (s === undefined && nugget === 0) return;
+  for (let j = 0; j < rows.length; j++) {
+    const o = slots[j]! * n;
+    if (s !== undefined) for (let i = 0; i < n; i++) bt[o + i] *= s[i]!;
+    if (nugget !== 0) addScaledRow(g, rows[j]!, nugget, bt, o);
+  }
+}
+
+/**
+ * Factors the posterior through the FFT path and computes the mean. Throws InputError for a bad
+ * prior or problem, NotPositiveDefiniteError when K does not factor, and InputError when the prior
+ * is not stationary on the grid (use {@link posteriorAuto} to fall back to the dense path).
+ */
+export function prepareStructuredPosterior(sp: StructuredProblem | Problem, prior: PriorSpec): StructuredPosteriorState {
+  const setup = structuredSetup(sp, prior);
+  const { holder, problem, n, m, cp, order } = setup;
   const g = problem.operator;
   const s = prior.stdProfile;
-  const nugget = prior.nugget ?? 0;
 
   // Bᵀ rows by circulant products, two data rows per complex transform.
-  let t0 = now();
-  const cp = new CirculantProduct(grid, prior);
   const pairs = Math.ceil(m / 2);
   const specBytes = cp.columnSpectrumLength * 8;
   let cache = holder.cache;
@@ -167,44 +254,32 @@ export function prepareStructuredPosterior(sp: StructuredProblem | Problem, prio
   }
   const fits = pairs * specBytes <= holder.cacheBytes;
   const spectra: Float64Array[] = spectraCached ? cache!.spectra : [];
-  let spectraTime = 0;
   const Bt = matrix(m, n);
-  const bt = Bt.data;
-  const rowSpec = spectraCached ? null : new Float64Array(cp.spectrumLength);
-  const rowA = new Float64Array(n);
-  const rowB = new Float64Array(n);
-  let tProducts = 0;
-  const order = pairOrder(g, grid.shape[0]!, m);
-  for (let p = 0; p < pairs; p++) {
-    const a = order[2 * p]!;
-    const b = 2 * p + 1 < m ? order[2 * p + 1]! : -1;
-    const offB = b < 0 ? 0 : b * n;
-    const tp = now();
-    if (spectraCached) {
-      cp.fromColumnSpectrum(spectra[p]!, bt, b < 0 ? null : bt, a * n, offB);
-    } else {
-      const ts = now();
-      cp.spectrum(scaledRow(g, a, s, rowA), b < 0 ? null : scaledRow(g, b, s, rowB), rowSpec!);
-      spectraTime += now() - ts;
-      const save = fits ? new Float64Array(cp.columnSpectrumLength) : null;
-      cp.fromSpectrum(rowSpec!, bt, b < 0 ? null : bt, a * n, offB, save);
-      if (save !== null) spectra.push(save);
-    }
-    tProducts += now() - tp;
-  }
-  tProducts -= spectraTime;
+  const t = computeBtPairs(cp, g, s, order, order, Bt.data, spectraCached ? spectra : null, !spectraCached && fits ? spectra : null);
   if (!spectraCached && fits) holder.cache = { px: cp.px, py: cp.py, profile: s === undefined ? null : Float64Array.from(s), spectra };
-  // Profile and nugget: row k of Bᵀ = s ⊙ C(s ⊙ g_k) + nugget·g_k.
   const tFix = now();
-  if (s !== undefined || nugget !== 0) {
-    for (let k = 0; k < m; k++) {
-      const o = k * n;
-      if (s !== undefined) for (let i = 0; i < n; i++) bt[o + i] *= s[i]!;
-      if (nugget !== 0) addScaledRow(g, k, nugget, bt, o);
-    }
-  }
-  tProducts += now() - tFix;
-  t0 = now();
+  finishBtRows(g, s, prior.nugget ?? 0, order, order, Bt.data, n);
+  return completeStructuredPosterior(setup, Bt, spectraCached, { spectra: t.spectra, products: t.products + now() - tFix });
+}
+
+/**
+ * The rest of the FFT path once Bᵀ (M × N, profile and nugget included) is known: K = G Bᵀᵀ + Cd,
+ * its Cholesky factor, α = K⁻¹ r and the mean. Throws NotPositiveDefiniteError when K (or a full
+ * Cd) does not factor.
+ */
+export function completeStructuredPosterior(
+  setup: StructuredSetup,
+  Bt: Matrix,
+  spectraCached: boolean,
+  times: { readonly spectra: number; readonly products: number },
+): StructuredPosteriorState {
+  const { problem, prior, n, m, cp } = setup;
+  const grid = problem.grid;
+  const g = problem.operator;
+  const s = prior.stdProfile;
+  const nugget = prior.nugget ?? 0;
+  const bt = Bt.data;
+  const t0 = now();
 
   // K = G Bᵀᵀ + Cd (symmetrised), its factor, α.
   const K = gTimesBtTransposed(g, Bt);
@@ -235,7 +310,7 @@ export function prepareStructuredPosterior(sp: StructuredProblem | Problem, prio
   for (let i = 0; i < n; i++) priorVariance[i] = (s === undefined ? 1 : s[i]! * s[i]!) * cp.variance + nugget;
   const factorTime = now() - t0;
   const base = { problem, prior, m0, Bt, L, r, alpha, mean, priorVariance, padding: [cp.px, cp.py] as const, spectraCached };
-  const timings = { spectra: spectraTime, products: tProducts, factor: factorTime };
+  const timings = { spectra: times.spectra, products: times.products, factor: factorTime };
   return Ld === undefined ? { ...base, timings } : { ...base, Ld, timings };
 }
 
@@ -247,7 +322,7 @@ export function prepareStructuredPosterior(sp: StructuredProblem | Problem, prio
  * operators keep the natural order. Any pairing gives the same products up to round-off; this one
  * depends on G only, so cached spectra stay matched to their rows.
  */
-function pairOrder(g: Operator, nx: number, m: number): Int32Array {
+export function pairOrder(g: Operator, nx: number, m: number): Int32Array {
   const order = new Int32Array(m);
   for (let k = 0; k < m; k++) order[k] = k;
   if (g.kind !== 'sparse') return order;
