@@ -1,0 +1,150 @@
+/**
+ * Posterior variances of a column block with the WebAssembly SIMD kernel of ./varianceModule.ts:
+ * var_j = Cm_jj − Σ_k W_kj², W = L⁻¹ Bᵀ[:, c0:c1], clamped at 0 — the same contract, arguments and
+ * results (bit for bit) as structuredVarianceBlock in src/core/inverse/structured.ts, which it
+ * falls back to when WebAssembly or its 128-bit SIMD is missing.
+ *
+ * One kernel instance (module, instance, WebAssembly.Memory) per JS realm — each worker has its own —
+ * created on first use. Per call, the block of Bᵀ is copied in (row stride padded to a multiple of
+ * 4 with zero columns, which change no real column) and the w results copied out. L is packed into
+ * the kernel's layout once and kept resident while the same L.data is passed again: the caller must
+ * not modify a factor in place between calls (the core never does; factors are replaced, not mutated).
+ */
+import { structuredVarianceBlock } from '../inverse/structured.ts';
+import type { Matrix } from '../linalg/matrix.ts';
+import { MEMORY_IMPORT, simdProbeBytes, VARIANCE_EXPORT, varianceModuleBytes } from './varianceModule.ts';
+
+type KernelFn = (lt: number, diag: number, x: number, out: number, groups: number, wp: number) => void;
+
+interface Kernel {
+  readonly memory: WebAssembly.Memory;
+  readonly run: KernelFn;
+  /** The L.data whose packed form is at offset 0, and its order. */
+  packedFrom: Float64Array | null;
+  packedRows: number;
+}
+
+const PAGE = 65536;
+let kernel: Kernel | null | undefined; // undefined: not tried yet; null: unavailable
+
+/** Whether this realm compiles WebAssembly with 128-bit SIMD (validates a one-instruction probe). */
+export function wasmAvailable(): boolean {
+  return getKernel() !== null;
+}
+
+function getKernel(): Kernel | null {
+  if (kernel !== undefined) return kernel;
+  kernel = null;
+  try {
+    if (typeof WebAssembly !== 'object' || !WebAssembly.validate(simdProbeBytes())) return null;
+    const memory = new WebAssembly.Memory({ initial: 1 });
+    const module = new WebAssembly.Module(varianceModuleBytes());
+    const instance = new WebAssembly.Instance(module, { [MEMORY_IMPORT.module]: { [MEMORY_IMPORT.name]: memory } });
+    const run = instance.exports[VARIANCE_EXPORT] as KernelFn;
+    kernel = { memory, run, packedFrom: null, packedRows: -1 };
+  } catch {
+    // Compilation refused (e.g. a page CSP without 'wasm-unsafe-eval'): keep the JS kernel.
+    kernel = null;
+  }
+  return kernel;
+}
+
+/** Test hook: pretend WebAssembly is missing (true) or use it again (false). */
+export function disableWasmForTesting(disabled: boolean): void {
+  kernel = disabled ? null : undefined;
+}
+
+/** Byte offsets of the regions in the kernel memory for M rows and padded width wp. */
+function layout(m: number, wp: number) {
+  const groups = m >> 2;
+  const lt = 0;
+  const diag = lt + 64 * groups * Math.max(0, groups - 1);
+  const x = diag + 128 * groups;
+  const out = x + 8 * m * wp;
+  return { groups, lt, diag, x, out, end: out + 8 * wp };
+}
+
+/** Packs the groups of 4 rows of L (see ./varianceModule.ts for the layout). */
+function packLower(f: Float64Array, l: Float64Array, m: number, lt: number, diag: number): void {
+  const groups = m >> 2;
+  for (let g = 0; g < groups; g++) {
+    const i0 = 4 * g;
+    const base = lt / 8 + 8 * g * (g - 1);
+    for (let r = 0; r < 4; r++) {
+      const row = (i0 + r) * m;
+      for (let p = 0; p < i0; p++) f[base + 4 * p + r] = l[row + p]!;
+    }
+    const d = diag / 8 + 16 * g;
+    for (let r = 0; r < 4; r++) f[d + r] = 1 / l[(i0 + r) * m + i0 + r]!;
+    f[d + 4] = l[(i0 + 1) * m + i0]!;
+    f[d + 5] = l[(i0 + 2) * m + i0]!;
+    f[d + 6] = l[(i0 + 2) * m + i0 + 1]!;
+    f[d + 7] = l[(i0 + 3) * m + i0]!;
+    f[d + 8] = l[(i0 + 3) * m + i0 + 1]!;
+    f[d + 9] = l[(i0 + 3) * m + i0 + 2]!;
+  }
+}
+
+/**
+ * Posterior variances of cells [c0, c1) (see structuredVarianceBlock): L the M × M lower Cholesky
+ * factor of G Cm Gᵀ + Cd, Bt = G Cm (M × N), priorVariance = diag(Cm). Writes and returns out.
+ */
+export function wasmVarianceBlock(
+  L: Matrix,
+  Bt: Matrix,
+  priorVariance: Float64Array,
+  c0: number,
+  c1: number,
+  out: Float64Array = new Float64Array(c1 - c0),
+): Float64Array {
+  const k = getKernel();
+  if (k === null) return structuredVarianceBlock(L, Bt, priorVariance, c0, c1, out);
+  const m = L.rows;
+  const n = Bt.cols;
+  const w = c1 - c0;
+  if (w <= 0) return out;
+  const wp = (w + 3) & ~3;
+  const lay = layout(m, wp);
+  const need = Math.ceil(lay.end / PAGE);
+  const have = k.memory.buffer.byteLength / PAGE;
+  if (need > have) {
+    k.memory.grow(need - have);
+    k.packedFrom = null; // growth keeps the contents, but re-pack to keep the rule simple
+  }
+  const f = new Float64Array(k.memory.buffer);
+  const l = L.data;
+  if (k.packedFrom !== l || k.packedRows !== m) {
+    packLower(f, l, m, lay.lt, lay.diag);
+    k.packedFrom = l;
+    k.packedRows = m;
+  }
+  // X = Bᵀ[:, c0:c1] with zero columns up to wp.
+  const bt = Bt.data;
+  const x0 = lay.x / 8;
+  for (let r = 0; r < m; r++) {
+    const o = x0 + r * wp;
+    f.set(bt.subarray(r * n + c0, r * n + c1), o);
+    for (let j = w; j < wp; j++) f[o + j] = 0;
+  }
+  const o0 = lay.out / 8;
+  f.set(priorVariance.subarray(c0, c1), o0);
+  for (let j = w; j < wp; j++) f[o0 + j] = 0;
+  k.run(lay.lt, lay.diag, lay.x, lay.out, lay.groups, wp);
+  // Rows past the last group of 4: the same operations in the same order as the JS kernel.
+  for (let i = 4 * lay.groups; i < m; i++) {
+    const oi = x0 + i * wp;
+    const inv = 1 / l[i * m + i]!;
+    for (let j = 0; j < w; j++) {
+      let s = f[oi + j]!;
+      for (let p = 0; p < i; p++) s -= l[i * m + p]! * f[x0 + p * wp + j]!;
+      s *= inv;
+      f[oi + j] = s;
+      f[o0 + j] -= s * s;
+    }
+  }
+  for (let j = 0; j < w; j++) {
+    const v = f[o0 + j]!;
+    out[j] = v < 0 ? 0 : v;
+  }
+  return out;
+}
