@@ -46,7 +46,7 @@ export interface BenchCase {
 const M = 400;
 
 /** Matérn ν = 1.5 prior, variance 1, length n/8 cells, constant mean 0. */
-function benchPrior(n: number): PriorSpec {
+export function benchPrior(n: number): PriorSpec {
   return { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, length: n / 8 }] };
 }
 
