@@ -39,6 +39,19 @@ function plan(n: number): FFT {
   return p;
 }
 
+/**
+ * The forward 1-D transform of `n` complex values (n a power of two ≥ 1): `dst` ← F `src`, both
+ * interleaved of length ≥ 2n and distinct. Reuses one fft.js plan per size.
+ */
+export function forwardTransform1(n: number, src: Float64Array, dst: Float64Array): void {
+  if (n === 1) {
+    dst[0] = src[0]!;
+    dst[1] = src[1]!;
+    return;
+  }
+  plan(n).transform(dst, src);
+}
+
 /** In-place 1-D transform of `n` complex values starting at complex offset 0 of `buf`. */
 export function fft1(buf: Float64Array, inverse = false): void {
   const n = buf.length / 2;

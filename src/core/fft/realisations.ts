@@ -202,6 +202,12 @@ export function circulantSampler(grid: Grid, prior: PriorSpec, options: SamplerO
  */
 function hermitianSpectrum(rng: Random, root: Float64Array, px: number, py: number, buf: Float64Array): void {
   const h = Math.SQRT1_2;
+  // Exactly P normals are taken, in the order of the loop below (one per self-conjugate k, two per
+  // pair): drawn at once (fillNormal is faster than P single calls and gives the same stream),
+  // then read back in order.
+  const cells = px * py;
+  const z = rng.fillNormal(new Float64Array(cells));
+  let q = 0;
   for (let ky = 0; ky < py; ky++) {
     const my = ky === 0 ? 0 : py - ky;
     for (let kx = 0; kx < px; kx++) {
@@ -209,12 +215,12 @@ function hermitianSpectrum(rng: Random, root: Float64Array, px: number, py: numb
       const k = kx + px * ky;
       const mk = mx + px * my;
       if (mk === k) {
-        buf[2 * k] = root[k]! * rng.nextNormal();
+        buf[2 * k] = root[k]! * z[q++]!;
         buf[2 * k + 1] = 0;
       } else if (k < mk) {
-        const q = root[k]! * h;
-        const a = q * rng.nextNormal();
-        const b = q * rng.nextNormal();
+        const r = root[k]! * h;
+        const a = r * z[q++]!;
+        const b = r * z[q++]!;
         buf[2 * k] = a;
         buf[2 * k + 1] = b;
         buf[2 * mk] = a;
