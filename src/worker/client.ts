@@ -4,6 +4,9 @@
  * - Each request kind belongs to a channel (protocol.ts). A newer request on a channel supersedes
  *   the older one at once: the older promise resolves as `{ superseded: true }` and its reply, if
  *   it ever comes, is ignored. The worker itself only runs the newest waiting request of a channel.
+ * - A posterior request may take an `onPartial` handler: it is called with the mean-only first part
+ *   (protocol.ts PosteriorPartial) when the worker sends one, and only while the request is still
+ *   pending, so a superseded request never delivers a stale partial.
  * - Loading a problem supersedes every pending request of every channel and bumps the problem
  *   version that later requests carry.
  * - If the worker dies (an `error` event), the client terminates it, starts a new one, re-sends the
@@ -15,6 +18,7 @@ import type { Problem } from '../core/problems/spec.ts';
 import {
   channelOf,
   type Channel,
+  type PosteriorPartial,
   type ProblemView,
   type RequestKind,
   type ResultMap,
@@ -58,6 +62,7 @@ type Payload<K extends RequestKind> = Omit<Extract<WorkerRequest, { kind: K }>, 
 interface Pending {
   readonly channel: Channel;
   readonly request: WorkerRequest;
+  readonly onPartial?: ((partial: PosteriorPartial) => void) | undefined;
   readonly resolve: (o: Outcome<unknown>) => void;
   readonly reject: (e: Error) => void;
 }
@@ -108,8 +113,10 @@ export class WorkerClient {
     return this.sendProblem({ id: this.nextId++, kind: 'setProblem', version: ++this.version, problem });
   }
 
-  posterior(prior: PriorSpec) {
-    return this.request('posterior', { prior });
+  /** `onPartial` receives the mean ahead of the bands (FFT path, large problems), at most once, before the promise settles. */
+  posterior(prior: PriorSpec, onPartial?: (partial: PosteriorPartial) => void): Promise<Outcome<ResultMap['posterior']>> {
+    const request: WorkerRequest = { id: this.nextId++, kind: 'posterior', problemVersion: this.version, prior };
+    return this.send(request, onPartial) as Promise<Outcome<ResultMap['posterior']>>;
   }
   diagnostics(prior: PriorSpec) {
     return this.request('diagnostics', { prior });
@@ -152,13 +159,13 @@ export class WorkerClient {
     return this.send(request) as Promise<Outcome<ProblemView>>;
   }
 
-  private send(request: WorkerRequest): Promise<Outcome<unknown>> {
+  private send(request: WorkerRequest, onPartial?: (partial: PosteriorPartial) => void): Promise<Outcome<unknown>> {
     if (request.kind === 'cancel') throw new Error('send: cancel is not a request');
     const channel = channelOf(request.kind);
     const older = this.latest.get(channel);
     if (older !== undefined) this.supersede(older);
     return new Promise((resolve, reject) => {
-      this.pending.set(request.id, { channel, request, resolve, reject });
+      this.pending.set(request.id, { channel, request, resolve, reject, onPartial });
       this.latest.set(channel, request.id);
       this.post(request);
     });
@@ -206,6 +213,10 @@ export class WorkerClient {
         if (p) this.options.onProgress?.(p.channel, reply.stage, reply.fraction);
         return;
       }
+      case 'partial':
+        // Only a request still pending (not superseded, not settled) hears its partial.
+        this.pending.get(reply.id)?.onPartial?.(reply.partial);
+        return;
       case 'superseded':
         this.supersede(reply.id);
         return;

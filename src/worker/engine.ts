@@ -26,10 +26,17 @@ import {
   structuredProblem,
   type StructuredProblem,
 } from '../core/inverse/structured.ts';
-import { parallelPosteriorStd, worthSplitting, type BlockPool } from '../core/parallel/blocks.ts';
+import { parallelPosteriorStd, varianceFlops, worthSplitting, type BlockPool } from '../core/parallel/blocks.ts';
+import { applyOperator } from '../core/linalg/operator.ts';
+import { solveLower } from '../core/linalg/cholesky.ts';
+import type { StructuredPosteriorState } from '../core/inverse/structured.ts';
 import { chiSquareQuantile } from '../core/inverse/chisquare.ts';
 import {
   assertNever,
+  serialiseError,
+  transferables,
+  type PosteriorPartial,
+  type WorkerReply,
   type ProblemView,
   type RequestKind,
   type ResultMap,
@@ -43,6 +50,61 @@ export const COVARIANCE_VIEW_LIMIT = 400;
 export const MAX_DRAWS = 64;
 
 export type ProgressFn = (stage: string, fraction: number) => void;
+/** Receives the first part of a posterior result (see {@link Engine.handle}). */
+export type PartialFn = (partial: PosteriorPartial) => void;
+
+/**
+ * Smallest variance-solve work (multiply-adds, src/core/parallel/blocks.ts varianceFlops = M²N/2)
+ * for which the FFT path sends the mean ahead of the bands. Measured rate on the project machine
+ * (blocks.ts: 64², M = 400, 3.3e8 in 218–292 ms) is about 1.3e9 per second, so 5e7 is ≈ 40 ms of
+ * bands still to come: below that the second draw would follow the first within a frame or two
+ * and only cost main-thread time (crosshole demo, 3.4e7: no partial; 64², M = 400: partial).
+ */
+export const PARTIAL_MIN_FLOPS = 5e7;
+
+/** Central 95% interval of χ²_M, divided by M (quantiles from src/core/inverse/chisquare.ts); null for M = 0. */
+function chi2IntervalOf(m: number): readonly [number, number] | null {
+  return m > 0 ? [chiSquareQuantile(0.025, m) / m, chiSquareQuantile(0.975, m) / m] : null;
+}
+
+/**
+ * The mean-only part of the FFT-path posterior, with fresh arrays (the state keeps its own, which
+ * the final summary reuses). Predicted data and residuals by the same operations, in the same
+ * order, as src/core/inverse/structured.ts structuredPosteriorSummary, so both agree bit for bit
+ * (test/worker/engine.test.ts checks that): predicted = G m̃; residuals (d − G m̃)/σ for a diagonal
+ * Cd, Ld⁻¹ (d − G m̃) for a full Cd = Ld Ldᵀ (Tarantola 2005, §3.2: the misfit in the data norm).
+ */
+export function structuredPartial(st: StructuredPosteriorState): PosteriorPartial {
+  const { problem, Ld, mean, priorVariance } = st;
+  const n = mean.length;
+  const m = problem.data.values.length;
+  const predicted = applyOperator(problem.operator, mean);
+  const misfit = new Float64Array(m);
+  for (let k = 0; k < m; k++) misfit[k] = problem.data.values[k]! - predicted[k]!;
+  let residuals: Float64Array;
+  if (Ld !== undefined) {
+    residuals = solveLower(Ld, misfit);
+  } else {
+    residuals = new Float64Array(m);
+    for (let k = 0; k < m; k++) residuals[k] = misfit[k]! / problem.data.sigma![k]!;
+  }
+  let chi2 = 0;
+  for (let k = 0; k < m; k++) chi2 += residuals[k]! * residuals[k]!;
+  const priorStd = new Float64Array(n);
+  for (let i = 0; i < n; i++) priorStd[i] = Math.sqrt(priorVariance[i]!);
+  return {
+    path: 'fft',
+    mean: mean.slice(),
+    priorMean: st.m0.slice(),
+    priorStd,
+    predicted,
+    residuals,
+    chi2,
+    dataCount: m,
+    parameterCount: n,
+    chi2Interval: chi2IntervalOf(m),
+  };
+}
 
 /** Column sums of |G| (how strongly the data see each cell). */
 export function coverageOf(problem: Problem): Float64Array {
@@ -105,6 +167,8 @@ export function problemView(
 /** Optional thread pool for the FFT path's standard deviations (src/worker/pool.ts lazyPool in the browser). */
 export interface EngineOptions {
   readonly pool?: { get(): BlockPool; readonly threads: number };
+  /** Variance work from which a partial posterior is sent ({@link PARTIAL_MIN_FLOPS} by default; 0: always on the FFT path). */
+  readonly partialMinFlops?: number;
 }
 
 export class Engine {
@@ -138,15 +202,23 @@ export class Engine {
     return state;
   }
 
+  /**
+   * Answer one request. A posterior on the FFT path whose bands take a while (see
+   * {@link PARTIAL_MIN_FLOPS}) calls `partial` once with the mean and the data fit right after the
+   * factorisation, before the standard deviations are computed; the promise then resolves with the
+   * full result as always. Every other request (and the dense path, whose mean and variances come
+   * out of one call, src/core/inverse/posterior.ts posteriorSummary) is single-shot.
+   */
   async handle<K extends RequestKind>(
     req: Extract<WorkerRequest, { kind: K }>,
     progress: ProgressFn = () => {},
+    partial: PartialFn = () => {},
   ): Promise<ResultMap[K]> {
     const r = req as Exclude<WorkerRequest, { kind: 'cancel' }>;
-    return (await this.run(r, progress)) as ResultMap[K];
+    return (await this.run(r, progress, partial)) as ResultMap[K];
   }
 
-  private async run(r: Exclude<WorkerRequest, { kind: 'cancel' }>, progress: ProgressFn): Promise<ResultMap[RequestKind]> {
+  private async run(r: Exclude<WorkerRequest, { kind: 'cancel' }>, progress: ProgressFn, partial: PartialFn): Promise<ResultMap[RequestKind]> {
     // Prior selection (issue 7): chunked, cancellable runs in ./tuning.ts.
     if (isTuningRequest(r)) return runTuning(this.requireProblem(r.problemVersion), r, progress);
     switch (r.kind) {
@@ -169,13 +241,14 @@ export class Engine {
         this.setProblemInternal(r.problem, r.version);
         return problemView(r.problem, r.version, { demoId: null, description: '', startPrior: null, truthPrior: null });
       case 'posterior': {
-        // Path by src/core/inverse/auto.ts (FFT for stationary priors on grids of ≥ 128 cells). The
-        // protocol has no partial result, so mean and std arrive together.
+        // Path by src/core/inverse/auto.ts (FFT for stationary priors on grids of ≥ 128 cells). On
+        // the FFT path the mean goes out first (a `partial`), then the bands with the result.
         const problem = this.requireProblem(r.problemVersion);
         let summary;
         if (choosePosteriorPath(problem, r.prior).path === 'fft') {
           progress('posterior mean (FFT path)', 0.1);
           const st = prepareStructuredPosterior(this.structured ?? (this.structured = structuredProblem(problem)), r.prior);
+          if (varianceFlops(st.L.rows, st.Bt.cols) >= (this.options.partialMinFlops ?? PARTIAL_MIN_FLOPS)) partial(structuredPartial(st));
           progress('posterior standard deviations', 0.5);
           const pool = this.options.pool;
           const std =
@@ -186,11 +259,7 @@ export class Engine {
           progress('posterior mean and variance', 0.6);
           summary = posteriorSummary(state);
         }
-        // Central 95% interval of χ²_M, divided by M (quantiles from src/core/inverse/chisquare.ts).
-        const m = summary.dataCount;
-        const chi2Interval: readonly [number, number] | null =
-          m > 0 ? [chiSquareQuantile(0.025, m) / m, chiSquareQuantile(0.975, m) / m] : null;
-        return { summary, chi2Interval, priorMean: meanVector(problem.grid, r.prior) };
+        return { summary, chi2Interval: chi2IntervalOf(summary.dataCount), priorMean: meanVector(problem.grid, r.prior) };
       }
       case 'diagnostics':
         return diagnosePrior(this.requireProblem(r.problemVersion).grid, r.prior);
@@ -226,6 +295,29 @@ export class Engine {
     this.version = version;
     this.cached = null;
     this.structured = structuredProblem(problem);
+  }
+}
+
+/**
+ * Run one request on the engine and post its replies, in order: progress messages, at most one
+ * `partial` (posterior, FFT path), then the `result` or the `error`, all with the request's id.
+ * Result and partial buffers go in the transfer list (the partial's are its own copies, so moving
+ * them leaves the result intact). The worker entry (./worker.ts) posts through this.
+ */
+export async function answerRequest(
+  engine: Engine,
+  job: Exclude<WorkerRequest, { kind: 'cancel' }>,
+  post: (reply: WorkerReply, transfer?: ArrayBuffer[]) => void,
+): Promise<void> {
+  try {
+    const result = await engine.handle(
+      job,
+      (stage, fraction) => post({ type: 'progress', id: job.id, stage, fraction }),
+      (partial) => post({ type: 'partial', id: job.id, partial }, transferables(partial)),
+    );
+    post({ type: 'result', id: job.id, result }, transferables(result));
+  } catch (e) {
+    post({ type: 'error', id: job.id, error: serialiseError(e) });
   }
 }
 

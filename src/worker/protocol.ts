@@ -3,7 +3,9 @@
  *
  * Every request carries an `id`; every reply names the id it answers and holds either a result or a
  * serialised error. Long work may send `progress` messages first. Float64Array buffers in results are
- * transferred (zero-copy), not cloned. Requests of one `channel` supersede each other: only the
+ * transferred (zero-copy), not cloned. A posterior request on the FFT path also sends one `partial`
+ * reply before its result: the posterior mean and the data fit, which need only the factorised K,
+ * while the standard deviations (the bands) are still being computed. Requests of one `channel` supersede each other: only the
  * newest pending request of a channel is ever run (see ./client.ts and ./worker.ts).
  *
  * The problem is sent once (`loadDemo` or `setProblem`) and kept by the worker; every later request
@@ -47,6 +49,32 @@ export interface PosteriorResult {
   /** Prior mean m0 of the same prior (for the prior band). */
   readonly priorMean: Float64Array;
   /** Central 95% interval of χ²_M / M (from χ² quantiles 0.025 and 0.975), or null if unavailable. */
+  readonly chi2Interval: readonly [number, number] | null;
+}
+
+/**
+ * What the posterior request sends first (FFT path): everything that needs only the mean
+ * m̃ = m0 + Cm Gᵀ K⁻¹ (d − G m0), so the UI can draw the mean and the data fit while the bands
+ * (√diag of the posterior covariance) are computed. Its arrays are copies, never the buffers the
+ * final {@link PosteriorResult} holds, and equal to the final result's bit for bit.
+ */
+export interface PosteriorPartial {
+  readonly path: 'fft' | 'dense';
+  /** Posterior mean m̃ (length N). */
+  readonly mean: Float64Array;
+  /** Prior mean m0 of the same prior. */
+  readonly priorMean: Float64Array;
+  /** Pointwise prior standard deviation √diag(Cm) (for the prior band). */
+  readonly priorStd: Float64Array;
+  /** G m̃. */
+  readonly predicted: Float64Array;
+  /** Normalised residuals, as in PosteriorSummary.residuals. */
+  readonly residuals: Float64Array;
+  /** Σ residuals². */
+  readonly chi2: number;
+  readonly dataCount: number;
+  readonly parameterCount: number;
+  /** As in {@link PosteriorResult.chi2Interval}. */
   readonly chi2Interval: readonly [number, number] | null;
 }
 
@@ -139,6 +167,8 @@ export type WorkerReply =
   | { readonly type: 'result'; readonly id: number; readonly result: ResultMap[RequestKind] }
   | { readonly type: 'error'; readonly id: number; readonly error: SerialisedError }
   | { readonly type: 'progress'; readonly id: number; readonly stage: string; readonly fraction: number }
+  /** The first part of a posterior result (at most one per request, always before its `result`). */
+  | { readonly type: 'partial'; readonly id: number; readonly partial: PosteriorPartial }
   /** Sent for a queued request the worker dropped because a newer one of its channel arrived. */
   | { readonly type: 'superseded'; readonly id: number };
 

@@ -1,12 +1,14 @@
 /// <reference lib="webworker" />
 /**
  * Worker entry: receives requests, keeps only the newest pending one per channel (./queue.ts),
- * runs them one at a time on the {@link Engine}, and transfers result buffers back.
+ * runs them one at a time on the {@link Engine}, and transfers result buffers back. A posterior's
+ * `partial` (the mean ahead of the bands) is posted as soon as the engine has it, with its own
+ * buffers; the client drops it if the request was superseded meanwhile (./client.ts).
  */
-import { Engine } from './engine.ts';
+import { answerRequest, Engine } from './engine.ts';
 import { lazyPool } from './pool.ts';
 import { LatestWinsQueue } from './queue.ts';
-import { channelOf, serialiseError, transferables, type WorkerReply, type WorkerRequest } from './protocol.ts';
+import { channelOf, type WorkerReply, type WorkerRequest } from './protocol.ts';
 
 type Job = Exclude<WorkerRequest, { kind: 'cancel' }>;
 
@@ -34,10 +36,7 @@ async function drain(): Promise<void> {
   if (!job) return;
   running = true;
   try {
-    const result = await engine.handle(job, (stage, fraction) => post({ type: 'progress', id: job.id, stage, fraction }));
-    post({ type: 'result', id: job.id, result }, transferables(result));
-  } catch (e) {
-    post({ type: 'error', id: job.id, error: serialiseError(e) });
+    await answerRequest(engine, job, post);
   } finally {
     running = false;
     if (queue.size > 0) schedule();
