@@ -27,6 +27,7 @@ import {
   type Trace,
 } from './traces.ts';
 import type { ProblemView } from '../worker/protocol.ts';
+import { bandsState, bandsText, shownPosterior } from './posteriorView.ts';
 
 /** Unit of the data values as the problem states it (`data.unit`), else a neutral label. */
 export function dataUnit(p: ProblemView): string {
@@ -399,27 +400,34 @@ const markDrawn = () => performance.mark(MARK_POSTERIOR_DRAWN);
 
 export function PosteriorScreen() {
   const p = useWb((s) => s.problem);
-  const post = useWb((s) => s.posterior);
+  const complete = useWb((s) => s.posterior);
+  const partial = useWb((s) => s.posteriorPartial);
+  const busy = useWb((s) => s.busy.posterior ?? false);
   const error = useWb((s) => s.errors.posterior ?? null);
   const resolution = useWb((s) => s.resolution);
   const resError = useWb((s) => s.errors.resolution ?? null);
   const selectCell = useWb((s) => s.selectCell);
   const selected = useWb((s) => s.selectedCell);
   const is2D = p ? gridDimension(p.grid) === 2 : false;
+  // The newest mean (a partial one while the bands are computed) and its bands when they exist.
+  const post = useMemo(() => shownPosterior(complete, partial), [complete, partial]);
+  const bands = bandsText(bandsState(complete, partial, busy, error));
 
   const oneD = useMemo(() => {
     if (!p || !post || is2D) return null;
     const x = axis1D(p.grid);
     const s = post.summary;
-    const b95 = band(s.mean, s.std, Z95);
-    const b68 = band(s.mean, s.std, Z68);
     const traces: Trace[] = [];
-    const pb = band(post.priorMean, s.priorStd, Z95);
+    const pb = band(post.priorMean, post.priorStd, Z95);
     traces.push(bandTrace(x, pb.lower, pb.upper, 'prior 95%', COLOURS.prior));
-    traces.push(bandTrace(x, b95.lower, b95.upper, 'posterior 95%', COLOURS.band95));
-    traces.push(bandTrace(x, b68.lower, b68.upper, 'posterior 68%', COLOURS.band68));
+    if (s) {
+      const b95 = band(s.mean, s.std, Z95);
+      const b68 = band(s.mean, s.std, Z68);
+      traces.push(bandTrace(x, b95.lower, b95.upper, 'posterior 95%', COLOURS.band95));
+      traces.push(bandTrace(x, b68.lower, b68.upper, 'posterior 68%', COLOURS.band68));
+    }
     if (p.truth) traces.push({ type: 'scatter', mode: 'lines', x, y: p.truth, name: 'truth', line: { color: COLOURS.truth, width: 1.2, dash: 'dot' } });
-    traces.push({ type: 'scatter', mode: 'lines', x, y: s.mean, name: 'posterior mean', line: { color: COLOURS.mean, width: 2.2 } });
+    traces.push({ type: 'scatter', mode: 'lines', x, y: post.mean, name: 'posterior mean', line: { color: COLOURS.mean, width: 2.2 } });
     return traces;
   }, [p, post, is2D]);
   const oneDLayout = useMemo(
@@ -436,9 +444,9 @@ export function PosteriorScreen() {
     if (!p || !post || !is2D) return null;
     const s = post.summary;
     return {
-      mean: [heat(p, s.mean, 'mean')],
-      std: [heat(p, s.std, 'std')],
-      vr: [heat(p, s.varianceReduction, 'variance reduction', { zmin: 0, zmax: 1 })],
+      mean: [heat(p, post.mean, 'mean')],
+      std: s ? [heat(p, s.std, 'std')] : null,
+      vr: s ? [heat(p, s.varianceReduction, 'variance reduction', { zmin: 0, zmax: 1 })] : null,
     };
   }, [p, post, is2D]);
   // The truth does not depend on the prior: its own memo, so a new posterior does not redraw it.
@@ -481,13 +489,26 @@ export function PosteriorScreen() {
   return (
     <div className="screen" data-testid="screen-posterior">
       {error && <p className="error" role="alert" data-testid="posterior-error">Posterior: {error}</p>}
+      {bands && (
+        <p className="bands-status" role="status" aria-live="polite" data-testid="bands-status">
+          {bands}
+        </p>
+      )}
       {!post && !error && <Waiting what="the posterior" />}
       {oneD && <Plot id="plot-posterior" label="Posterior mean and bands" data={oneD} layout={oneDLayout} height={340} onDrawn={markDrawn} onPointClick={click} />}
       {maps && (
         <div className="grid-3">
           <Plot id="plot-posterior-mean" label="Posterior mean map" data={maps.mean} layout={layouts.mean} height={240} onDrawn={markDrawn} onPointClick={click} />
-          <Plot id="plot-posterior-std" label="Posterior standard deviation map" data={maps.std} layout={layouts.std} height={240} onPointClick={click} />
-          <Plot id="plot-variance-reduction" label="Variance reduction map" data={maps.vr} layout={layouts.vr} height={240} onPointClick={click} />
+          {maps.std ? (
+            <Plot id="plot-posterior-std" label="Posterior standard deviation map" data={maps.std} layout={layouts.std} height={240} onPointClick={click} />
+          ) : (
+            <BandsPending what="standard deviation map" text={bands} />
+          )}
+          {maps.vr ? (
+            <Plot id="plot-variance-reduction" label="Variance reduction map" data={maps.vr} layout={layouts.vr} height={240} onPointClick={click} />
+          ) : (
+            <BandsPending what="variance reduction map" text={bands} />
+          )}
           {truthMap && <Plot id="plot-truth" label="Truth map" data={truthMap} layout={layouts.truth} height={240} onPointClick={click} />}
           {resolution && selected !== null && <Plot id="plot-kernel" label="Averaging kernel map" data={kernelData} layout={layouts.kernel} height={240} />}
         </div>
@@ -499,11 +520,23 @@ export function PosteriorScreen() {
   );
 }
 
+/** Stands in for a map that needs the bands while they are computed (or after they failed). */
+function BandsPending({ what, text }: { what: string; text: string | null }) {
+  return (
+    <div className="bands-pending" data-testid="bands-pending" style={{ minHeight: 240 }} aria-label={`Posterior ${what}: ${text ?? 'not available'}`}>
+      <span className="note">{text ?? 'Uncertainty bands: not available.'}</span>
+    </div>
+  );
+}
+
 // ---------------------------------------------------------------------------------------------
 
 export function FitScreen() {
   const p = useWb((s) => s.problem);
-  const post = useWb((s) => s.posterior);
+  const complete = useWb((s) => s.posterior);
+  const partial = useWb((s) => s.posteriorPartial);
+  // The data fit needs only the mean: the partial one is complete for this screen.
+  const post = useMemo(() => shownPosterior(complete, partial), [complete, partial]);
   const error = useWb((s) => s.errors.posterior ?? null);
   const fit = useMemo(() => {
     if (!p || !post) return null;
@@ -511,10 +544,10 @@ export function FitScreen() {
     return {
       obs: [
         { type: 'scatter', mode: 'markers', x: idx, y: p.values, name: 'observed ±1σ', marker: { color: COLOURS.data, size: 5 }, error_y: { type: 'data', array: p.sigma, visible: true, color: COLOURS.data, thickness: 1 } },
-        { type: 'scatter', mode: 'lines+markers', x: idx, y: post.summary.predicted, name: 'predicted G m̃', marker: { color: COLOURS.predicted, size: 4 }, line: { width: 1 } },
+        { type: 'scatter', mode: 'lines+markers', x: idx, y: post.predicted, name: 'predicted G m̃', marker: { color: COLOURS.predicted, size: 4 }, line: { width: 1 } },
       ],
       res: [
-        { type: 'bar', x: idx, y: post.summary.residuals, name: 'normalised residual', marker: { color: COLOURS.accent } },
+        { type: 'bar', x: idx, y: post.residuals, name: 'normalised residual', marker: { color: COLOURS.accent } },
         { type: 'scatter', mode: 'lines', x: [0.5, p.dataCount + 0.5], y: [2, 2], line: { dash: 'dash', color: '#999', width: 1 }, name: '±2', showlegend: false, hoverinfo: 'skip' },
         { type: 'scatter', mode: 'lines', x: [0.5, p.dataCount + 0.5], y: [-2, -2], line: { dash: 'dash', color: '#999', width: 1 }, showlegend: false, hoverinfo: 'skip' },
       ],
@@ -529,7 +562,7 @@ export function FitScreen() {
     [p],
   );
   if (!p || !layouts) return null;
-  const s = post?.summary;
+  const s = post;
   const ratio = s ? s.chi2 / s.dataCount : null;
   const iv = post?.chi2Interval ?? null;
   const inside = ratio !== null && iv !== null ? ratio >= iv[0] && ratio <= iv[1] : null;

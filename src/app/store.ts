@@ -10,7 +10,7 @@ import type { Diagnostics } from '../core/prior/diagnostics.ts';
 import type { Matrix } from '../core/linalg/matrix.ts';
 import { cellCount, gridDimension } from '../core/grid/grid.ts';
 import type { Outcome } from '../worker/client.ts';
-import type { Channel, PosteriorResult, ProblemView } from '../worker/protocol.ts';
+import type { Channel, PosteriorPartial, PosteriorResult, ProblemView } from '../worker/protocol.ts';
 import { createSelectSlice, type SelectSlice } from './select/slice.ts';
 import type { Problem } from '../core/problems/spec.ts';
 import { createSessionSlice, type SessionSlice } from './session/slice.ts';
@@ -20,7 +20,8 @@ export interface ClientPort {
   loadDemo(demoId: string): Promise<Outcome<ProblemView>>;
   /** Send the user's own problem to the worker(s) (the session slice; optional for fakes). */
   setProblem?(problem: Problem): Promise<Outcome<ProblemView>>;
-  posterior(prior: PriorSpec): Promise<Outcome<PosteriorResult>>;
+  /** `onPartial` (optional for fakes) receives the mean ahead of the bands, while the request is current. */
+  posterior(prior: PriorSpec, onPartial?: (partial: PosteriorPartial) => void): Promise<Outcome<PosteriorResult>>;
   diagnostics(prior: PriorSpec): Promise<Outcome<Diagnostics>>;
   priorDraws(prior: PriorSpec, count: number, seed: number): Promise<Outcome<Matrix>>;
   posteriorDraws(prior: PriorSpec, count: number, seed: number): Promise<Outcome<Matrix>>;
@@ -59,7 +60,14 @@ export interface PriorSlice {
 }
 
 export interface ResultsSlice {
+  /** The newest complete posterior (mean and bands of one prior); exports and the report use only this. */
   posterior: PosteriorResult | null;
+  /**
+   * The mean of a newer posterior request whose bands are still being computed (or failed), drawn
+   * instead of `posterior` until the full result replaces it (./posteriorView.ts). Never stored in
+   * the undo history, the autosave or a share link, which hold priors only.
+   */
+  posteriorPartial: PosteriorPartial | null;
   diagnostics: Diagnostics | null;
   priorDraws: Matrix | null;
   posteriorDraws: Matrix | null;
@@ -108,6 +116,7 @@ export type WorkbenchStore = StoreApi<WorkbenchState>;
 
 export const emptyResults = (): Omit<ResultsSlice, 'progress'> => ({
   posterior: null,
+  posteriorPartial: null,
   diagnostics: null,
   priorDraws: null,
   posteriorDraws: null,
@@ -142,12 +151,16 @@ export function createWorkbenchStore(client: ClientPort, initial: { demoId: stri
     };
     const editTerms = (f: (terms: Term[]) => Term[]) => editPrior((p) => ({ ...p, terms: f([...p.terms]) }));
 
-    /** Run one channel's request and store its result (ignoring superseded outcomes). */
+    /**
+     * Run one channel's request and store its result (ignoring superseded outcomes); `describe`
+     * turns a failure into the message shown (default: the error's own).
+     */
     const run = <T>(
       channel: ResultChannel,
       key: string,
       call: () => Promise<Outcome<T>>,
       apply: (value: T) => Partial<ResultsSlice>,
+      describe: (message: string) => string = (m) => m,
     ) => {
       const s = get();
       if (s.computedFor[channel] === key && !s.errors[channel]) return;
@@ -163,7 +176,7 @@ export function createWorkbenchStore(client: ClientPort, initial: { demoId: stri
           const computedFor = { ...get().computedFor };
           delete computedFor[channel];
           set({
-            errors: { ...get().errors, [channel]: e instanceof Error ? e.message : String(e) },
+            errors: { ...get().errors, [channel]: describe(e instanceof Error ? e.message : String(e)) },
             busy: { ...get().busy, [channel]: false },
             computedFor,
             progress: null,
@@ -297,7 +310,22 @@ export function createWorkbenchStore(client: ClientPort, initial: { demoId: stri
         const problem = s.problem;
         if (!prior || !problem || s.problemStatus !== 'ready') return;
         const rev = `${problem.version}:${s.priorRevision}`;
-        run('posterior', rev, () => client.posterior(prior), (posterior) => ({ posterior }));
+        // Mean first, bands later (FFT path, large problems): a partial of the current request is
+        // drawn at once; the full result replaces it. If the bands then fail, the mean stays.
+        let partialShown = false;
+        run(
+          'posterior',
+          rev,
+          () =>
+            client.posterior(prior, (posteriorPartial) => {
+              const now = get();
+              if (now.computedFor.posterior !== rev || now.problem?.version !== problem.version) return;
+              partialShown = true;
+              set({ posteriorPartial });
+            }),
+          (posterior) => ({ posterior, posteriorPartial: null }),
+          (message) => (partialShown ? `the uncertainty bands could not be computed (${message}); the posterior mean is shown without them` : message),
+        );
         run('diagnostics', rev, () => client.diagnostics(prior), (diagnostics) => ({ diagnostics }));
         if (s.tab === 'posterior' && s.selectedCell !== null) {
           const cell = s.selectedCell;

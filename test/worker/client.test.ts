@@ -190,6 +190,68 @@ describe('WorkerClient', () => {
   });
 });
 
+describe('WorkerClient: partial posterior results', () => {
+  const partial = (tag: number) => ({ path: 'fft', mean: new Float64Array([tag]) }) as never;
+  const got = (seen: unknown[]) => seen.map((p) => (p as { mean: Float64Array }).mean[0]);
+
+  it('hands the partial of the pending request to its handler, before the result resolves it', async () => {
+    const { client, w } = setup();
+    const seen: unknown[] = [];
+    let resolved = false;
+    const p = client.posterior(prior(1), (x) => seen.push(x));
+    void p.then(() => (resolved = true));
+    const id = w().last('posterior').id;
+    w().reply({ type: 'partial', id, partial: partial(1) });
+    await settled();
+    expect(got(seen)).toEqual([1]);
+    expect(resolved).toBe(false);
+    w().reply({ type: 'result', id, result: 'full' as never });
+    await expect(p).resolves.toEqual({ superseded: false, value: 'full' });
+  });
+
+  it('drops the partial of a superseded request (a newer posterior, or a new problem) and of a settled one', async () => {
+    const { client, w } = setup();
+    const first: unknown[] = [];
+    const second: unknown[] = [];
+    void client.posterior(prior(1), (x) => first.push(x));
+    const r1 = w().last('posterior').id;
+    const p2 = client.posterior(prior(2), (x) => second.push(x));
+    const r2 = w().last('posterior').id;
+    // the worker was already computing the first one: its partial arrives late
+    w().reply({ type: 'partial', id: r1, partial: partial(1) });
+    expect(first).toEqual([]);
+    expect(second).toEqual([]);
+    w().reply({ type: 'partial', id: r2, partial: partial(2) });
+    w().reply({ type: 'result', id: r2, result: 'r2' as never });
+    await p2;
+    w().reply({ type: 'partial', id: r2, partial: partial(3) });
+    expect(got(second)).toEqual([2]);
+    // a new problem supersedes the pending posterior: its partial is dropped too
+    const third: unknown[] = [];
+    void client.posterior(prior(3), (x) => third.push(x));
+    const r3 = w().last('posterior').id;
+    void client.loadDemo('borehole-log');
+    w().reply({ type: 'partial', id: r3, partial: partial(4) });
+    expect(third).toEqual([]);
+  });
+
+  it('a cancelled posterior hears no partial; one without a handler ignores it', async () => {
+    const { client, w } = setup();
+    const seen: unknown[] = [];
+    const p = client.posterior(prior(1), (x) => seen.push(x));
+    const id = w().last('posterior').id;
+    client.cancel('posterior');
+    await expect(p).resolves.toEqual({ superseded: true });
+    w().reply({ type: 'partial', id, partial: partial(1) });
+    expect(seen).toEqual([]);
+    const q = client.posterior(prior(2));
+    const id2 = w().last('posterior').id;
+    expect(() => w().reply({ type: 'partial', id: id2, partial: partial(2) })).not.toThrow();
+    w().reply({ type: 'result', id: id2, result: 'ok' as never });
+    await expect(q).resolves.toEqual({ superseded: false, value: 'ok' });
+  });
+});
+
 describe('LatestWinsQueue', () => {
   it('keeps only the newest request per channel and hands out by priority', () => {
     const q = new LatestWinsQueue<{ id: number }>();
