@@ -12,7 +12,8 @@
  */
 import { structuredVarianceBlock } from '../inverse/structured.ts';
 import type { Matrix } from '../linalg/matrix.ts';
-import { MEMORY_IMPORT, simdProbeBytes, VARIANCE_EXPORT, varianceModuleBytes } from './varianceModule.ts';
+import { ensureBytes, forceWasmOffForTesting, instantiateKernel, simdSupported } from './runtime.ts';
+import { VARIANCE_EXPORT, varianceModuleBytes } from './varianceModule.ts';
 
 type KernelFn = (lt: number, diag: number, x: number, out: number, groups: number, wp: number) => void;
 
@@ -24,7 +25,6 @@ interface Kernel {
   packedRows: number;
 }
 
-const PAGE = 65536;
 let kernel: Kernel | null | undefined; // undefined: not tried yet; null: unavailable
 
 /** Whether this realm compiles WebAssembly with 128-bit SIMD (validates a one-instruction probe). */
@@ -33,25 +33,17 @@ export function wasmAvailable(): boolean {
 }
 
 function getKernel(): Kernel | null {
-  if (kernel !== undefined) return kernel;
-  kernel = null;
-  try {
-    if (typeof WebAssembly !== 'object' || !WebAssembly.validate(simdProbeBytes())) return null;
-    const memory = new WebAssembly.Memory({ initial: 1 });
-    const module = new WebAssembly.Module(varianceModuleBytes());
-    const instance = new WebAssembly.Instance(module, { [MEMORY_IMPORT.module]: { [MEMORY_IMPORT.name]: memory } });
-    const run = instance.exports[VARIANCE_EXPORT] as KernelFn;
-    kernel = { memory, run, packedFrom: null, packedRows: -1 };
-  } catch {
-    // Compilation refused (e.g. a page CSP without 'wasm-unsafe-eval'): keep the JS kernel.
-    kernel = null;
+  if (kernel === undefined) {
+    const k = simdSupported() ? instantiateKernel<KernelFn>(varianceModuleBytes(), VARIANCE_EXPORT) : null;
+    kernel = k === null ? null : { ...k, packedFrom: null, packedRows: -1 };
   }
   return kernel;
 }
 
-/** Test hook: pretend WebAssembly is missing (true) or use it again (false). */
+/** Test hook: pretend WebAssembly is missing (true) or use it again (false); affects all kernels. */
 export function disableWasmForTesting(disabled: boolean): void {
-  kernel = disabled ? null : undefined;
+  forceWasmOffForTesting(disabled);
+  kernel = undefined;
 }
 
 /** Byte offsets of the regions in the kernel memory for M rows and padded width wp. */
@@ -105,12 +97,7 @@ export function wasmVarianceBlock(
   if (w <= 0) return out;
   const wp = (w + 3) & ~3;
   const lay = layout(m, wp);
-  const need = Math.ceil(lay.end / PAGE);
-  const have = k.memory.buffer.byteLength / PAGE;
-  if (need > have) {
-    k.memory.grow(need - have);
-    k.packedFrom = null; // growth keeps the contents, but re-pack to keep the rule simple
-  }
+  if (ensureBytes(k.memory, lay.end)) k.packedFrom = null; // growth keeps the contents; re-pack to keep the rule simple
   const f = new Float64Array(k.memory.buffer);
   const l = L.data;
   if (k.packedFrom !== l || k.packedRows !== m) {

@@ -22,10 +22,10 @@
  * Rows past the last full group of 4 are left to the caller (src/core/wasm/varianceBlock.ts).
  */
 import { encodeModule, FunctionBuilder, ValType } from './emitter.ts';
+import { MEMORY_IMPORT } from './runtime.ts';
 
-/** Name of the exported kernel and of the imported memory (`env.memory`). */
+/** Name of the exported kernel. */
 export const VARIANCE_EXPORT = 'variance';
-export const MEMORY_IMPORT = { module: 'env', name: 'memory' } as const;
 
 /** Bytes of the kernel module: `variance(lt, diag, x, out, groups, wp)`, all i32, no result. */
 export function varianceModuleBytes(): Uint8Array<ArrayBuffer> {
@@ -129,11 +129,4 @@ export function varianceModuleBytes(): Uint8Array<ArrayBuffer> {
 /** o ← o − w · w. */
 function subProduct4Out(f: FunctionBuilder, o: number, w: number): void {
   f.get(o).get(w).get(w).f64x2Mul().f64x2Sub().set(o);
-}
-
-/** Bytes of a module that uses one SIMD instruction (f64x2.splat); validating it tests for SIMD. */
-export function simdProbeBytes(): Uint8Array<ArrayBuffer> {
-  const f = new FunctionBuilder([]);
-  f.f64Const(1).f64x2Splat().drop();
-  return encodeModule({ functions: [{ name: 'probe', fn: f }] });
 }
