@@ -21,7 +21,7 @@ export function webBlockPool(size = browserThreads()): BlockPool {
       post: (message, transfer) => w.postMessage(message, transfer),
       listen: (onReply, onFailure) => {
         w.onmessage = (ev) => onReply(ev.data);
-        w.onerror = (ev) => onFailure(new Error(`variance worker failed: ${ev.message}`));
+        w.onerror = (ev) => onFailure(new Error(`pool worker failed: ${ev.message}`));
       },
       terminate: () => w.terminate(),
     };

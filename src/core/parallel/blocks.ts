@@ -17,9 +17,11 @@
 import { InputError } from '../errors.ts';
 import type { Matrix } from '../linalg/matrix.ts';
 import { structuredVarianceBlock, VARIANCE_BLOCK } from '../inverse/structured.ts';
+import type { ProductsResult, ProductsTask } from './products.ts';
 
 /** One unit of work, plain data (structured-clone safe; the Float64Array buffers may be transferred). */
 export interface VarianceTask {
+  readonly kind: 'variance';
   /** M, the number of data. */
   readonly m: number;
   /** First and one-past-last global column. */
@@ -33,12 +35,14 @@ export interface VarianceTask {
   readonly priorVariance: Float64Array;
 }
 
-/** Something that runs variance tasks on other threads. */
+/** Something that runs variance and products tasks on other threads (./pool.ts portPool). */
 export interface BlockPool {
   /** Number of threads. */
   readonly size: number;
-  /** Posterior variances of the task's columns (length c1 − c0). */
+  /** Posterior variances of the task's columns (length c1 − c0), on the next free thread. */
   run(task: VarianceTask): Promise<Float64Array>;
+  /** Rows of Bᵀ (./products.ts) on thread `port` (0 … size − 1), which keeps that share's spectra. */
+  runProducts(task: ProductsTask, port: number): Promise<ProductsResult>;
   /** Ends the threads; pending tasks are rejected. */
   close(): Promise<void>;
 }
@@ -68,7 +72,7 @@ export function varianceTask(L: Matrix, Bt: Matrix, priorVariance: Float64Array,
   const w = c1 - c0;
   const bt = new Float64Array(m * w);
   for (let k = 0; k < m; k++) bt.set(Bt.data.subarray(k * n + c0, k * n + c1), k * w);
-  return { m, c0, c1, L: L.data.slice(), bt, priorVariance: priorVariance.slice(c0, c1) };
+  return { kind: 'variance', m, c0, c1, L: L.data.slice(), bt, priorVariance: priorVariance.slice(c0, c1) };
 }
 
 /** Runs one task on this thread: the function a worker calls. */

@@ -1,5 +1,6 @@
-// worker_threads entry of the variance pool (./node.ts): loads the TypeScript sources through
-// tsx's loader, then answers {id, task} messages with ./pool.ts answerTask.
+// worker_threads entry of the thread pool (./node.ts; variance and products tasks): loads the
+// TypeScript sources through tsx's loader, then answers {id, task} messages with ./pool.ts
+// answerTask (which keeps this thread's products spectra between tasks).
 import { parentPort } from 'node:worker_threads';
 import { register } from 'tsx/esm/api';
 

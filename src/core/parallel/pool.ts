@@ -1,19 +1,31 @@
 /**
  * A {@link BlockPool} over message ports of any kind (worker_threads Workers in Node, Web Workers
  * in the browser), pure: the caller adapts its workers to {@link TaskPort}. Each port runs one
- * task at a time; tasks queue and go to the next free port. Messages: {id, task} in,
- * {id, result} or {id, error} out; the task's Bᵀ slice and the result are transferred.
+ * task at a time; tasks queue and go to the next free port, or to their own port when pinned
+ * (products tasks: the thread keeps that share's spectra). Messages: {id, task} in, {id, kind,
+ * result} or {id, error} out; a variance task's Bᵀ slice and all returned arrays are transferred.
  *
- * PUBLIC API: TaskPort, TaskRequest, TaskReply, portPool, answerTask.
+ * PUBLIC API: PoolTask, TaskPort, TaskRequest, TaskReply, portPool, answerTask.
  */
 import { runVarianceTask, type BlockPool, type VarianceTask } from './blocks.ts';
+import { ProductsThreadState, runProductsTask, type ProductsResult, type ProductsTask } from './products.ts';
+import { assertNever } from '../linalg/operator.ts';
+
+/** The task kinds a pool thread answers. */
+export type PoolTask = VarianceTask | ProductsTask;
 
 export interface TaskRequest {
   readonly id: number;
-  readonly task: VarianceTask;
+  readonly task: PoolTask;
 }
 
-export type TaskReply = { readonly id: number; readonly result: Float64Array } | { readonly id: number; readonly error: string };
+export type TaskReply =
+  | { readonly id: number; readonly kind: 'variance'; readonly result: Float64Array }
+  | { readonly id: number; readonly kind: 'products'; readonly result: ProductsResult }
+  | { readonly id: number; readonly error: string };
+
+/** A reply that carries a result (not an error). */
+type ResultReply = Exclude<TaskReply, { readonly error: string }>;
 
 /** The least a worker handle must offer. */
 export interface TaskPort {
@@ -23,35 +35,65 @@ export interface TaskPort {
   terminate(): Promise<void> | void;
 }
 
+/** This thread's products state (each worker thread loads its own copy of this module). */
+const threadState = new ProductsThreadState();
+
 /** What a worker does with one request (both worker entries call this). */
-export function answerTask(request: TaskRequest): { reply: TaskReply; transfer: ArrayBuffer[] } {
+export function answerTask(request: TaskRequest, state: ProductsThreadState = threadState): { reply: TaskReply; transfer: ArrayBuffer[] } {
+  const { id, task } = request;
   try {
-    const result = runVarianceTask(request.task);
-    return { reply: { id: request.id, result }, transfer: [result.buffer as ArrayBuffer] };
+    switch (task.kind) {
+      case 'variance': {
+        const result = runVarianceTask(task);
+        return { reply: { id, kind: 'variance', result }, transfer: [result.buffer as ArrayBuffer] };
+      }
+      case 'products': {
+        const result = runProductsTask(task, state);
+        return { reply: { id, kind: 'products', result }, transfer: result.rows === null ? [] : [result.rows.buffer as ArrayBuffer] };
+      }
+      default:
+        return assertNever(task);
+    }
   } catch (e) {
-    return { reply: { id: request.id, error: e instanceof Error ? e.message : String(e) }, transfer: [] };
+    return { reply: { id, error: e instanceof Error ? e.message : String(e) }, transfer: [] };
   }
 }
 
-interface Pending {
-  readonly task: VarianceTask;
-  readonly resolve: (v: Float64Array) => void;
+interface Job {
+  readonly id: number;
+  readonly task: PoolTask;
+  /** Port index the task must run on; undefined: any. */
+  readonly port: number | undefined;
+  readonly settle: (reply: TaskReply) => void;
   readonly reject: (e: unknown) => void;
+}
+
+function transferOf(task: PoolTask): ArrayBuffer[] {
+  switch (task.kind) {
+    case 'variance':
+      return [task.bt.buffer as ArrayBuffer];
+    case 'products':
+      return [];
+    default:
+      return assertNever(task);
+  }
 }
 
 export function portPool(ports: readonly TaskPort[]): BlockPool {
   let nextId = 0;
   let closed = false;
-  const queue: (Pending & { id: number })[] = [];
-  const busy = new Map<TaskPort, Pending & { id: number }>();
+  const queue: Job[] = [];
+  const busy = new Map<TaskPort, Job>();
 
   const pump = () => {
-    for (const port of ports) {
-      if (busy.has(port) || queue.length === 0) continue;
-      const job = queue.shift()!;
+    ports.forEach((port, i) => {
+      if (busy.has(port)) return;
+      const at = queue.findIndex((j) => j.port === undefined || j.port === i);
+      if (at < 0) return;
+      const job = queue.splice(at, 1)[0]!;
       busy.set(port, job);
-      port.post({ id: job.id, task: job.task }, [job.task.bt.buffer as ArrayBuffer]);
-    }
+      port.post({ id: job.id, task: job.task }, transferOf(job.task));
+    });
   };
   const failAll = (error: unknown) => {
     for (const job of [...busy.values(), ...queue]) job.reject(error);
@@ -64,8 +106,7 @@ export function portPool(ports: readonly TaskPort[]): BlockPool {
         const job = busy.get(port);
         if (!job || job.id !== reply.id) return;
         busy.delete(port);
-        if ('error' in reply) job.reject(new Error(`variance worker: ${reply.error}`));
-        else job.resolve(reply.result);
+        job.settle(reply);
         pump();
       },
       (error) => {
@@ -74,18 +115,34 @@ export function portPool(ports: readonly TaskPort[]): BlockPool {
       },
     );
   }
+  const submit = <R>(task: PoolTask, port: number | undefined, pick: (reply: ResultReply) => R | undefined): Promise<R> => {
+    if (closed) return Promise.reject(new Error('worker pool is closed'));
+    return new Promise<R>((resolve, reject) => {
+      const settle = (reply: TaskReply) => {
+        if ('error' in reply) {
+          reject(new Error(`${task.kind} worker: ${reply.error}`));
+          return;
+        }
+        const r = pick(reply);
+        if (r === undefined) reject(new Error(`${task.kind} worker: replied with a ${reply.kind} result`));
+        else resolve(r);
+      };
+      queue.push({ id: nextId++, task, port, settle, reject });
+      pump();
+    });
+  };
   return {
     size: ports.length,
-    run(task) {
-      if (closed) return Promise.reject(new Error('variance pool is closed'));
-      return new Promise<Float64Array>((resolve, reject) => {
-        queue.push({ id: nextId++, task, resolve, reject });
-        pump();
-      });
+    run: (task) => submit(task, undefined, (r) => (r.kind === 'variance' ? r.result : undefined)),
+    runProducts(task, port) {
+      if (!Number.isInteger(port) || port < 0 || port >= ports.length) {
+        return Promise.reject(new RangeError(`products task: port must be an integer in 0 … ${ports.length - 1}, got ${port}`));
+      }
+      return submit(task, port, (r) => (r.kind === 'products' ? r.result : undefined));
     },
     async close() {
       closed = true;
-      failAll(new Error('variance pool closed'));
+      failAll(new Error('worker pool closed'));
       await Promise.all(ports.map((p) => p.terminate()));
     },
   };

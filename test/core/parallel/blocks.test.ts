@@ -108,6 +108,6 @@ describe('split standard deviations', () => {
   it('a closed pool refuses work', async () => {
     const p = nodeBlockPool(1);
     await p.close();
-    await expect(p.run(varianceTask(state.L, state.Bt, state.priorVariance, 0, 4))).rejects.toThrow('variance pool is closed');
+    await expect(p.run(varianceTask(state.L, state.Bt, state.priorVariance, 0, 4))).rejects.toThrow('worker pool is closed');
   });
 });

@@ -1,0 +1,290 @@
+/**
+ * Bᵀ = G Cm (M × N), the main cost of the FFT-path posterior mean, split across threads (pure: no
+ * worker or Node imports; the pools live in ./node.ts and src/worker/pool.ts).
+ *
+ * Row k of Bᵀ is s ⊙ C(s ⊙ g_k) + nugget·g_k, computed two data rows per complex transform by
+ * circulant embedding (../inverse/structured.ts computeBtPairs; Tarantola 2005, Inverse Problem
+ * Theory, §3.2 for the posterior it feeds). The pairs (in pairOrder) split into contiguous ranges,
+ * one per thread; each range's rows come from the same arithmetic as in the single-thread
+ * prepareStructuredPosterior (a pair depends on its two rows, the grid and the prior only, and every
+ * thread builds the same CirculantProduct from the same plain data), so the result equals the
+ * single-thread one bit for bit. K, its factor and the mean then run on the caller
+ * (completeStructuredPosterior).
+ *
+ * Choices (measured on the 2-core project machine, see test/bench/cases/parallel.ts and
+ * {@link MIN_PRODUCT_SPLIT_WORK}):
+ * - the caller computes one share itself while the pool's other threads compute the rest: on T
+ *   threads the pool's ports 0 … T − 2 get a share each (no thread sits idle, one transfer less);
+ * - each thread keeps the full 2-D spectra of its own pairs (and the problem's G) keyed by a problem
+ *   token, the padding, the std profile and its rows, within its share of the problem's memory
+ *   budget, so a prior change sends only the prior and the row list; tasks are pinned to their port
+ *   so the cache is found again;
+ * - Bᵀ lives in a SharedArrayBuffer when the runtime allows it (Node always; browsers only when
+ *   crossOriginIsolated): the threads write their rows in place. Otherwise each thread returns its
+ *   rows (transferred, not copied) and the caller copies them into Bᵀ.
+ *
+ * PUBLIC API: ProductsTask, ProductsResult, ProductsThreadState, runProductsTask, pairRanges,
+ * sharedMemoryAvailable, productWork, MIN_PRODUCT_SPLIT_WORK, productsWorthSplitting,
+ * prepareStructuredPosteriorParallel.
+ */
+import type { Grid } from '../grid/grid.ts';
+import { CirculantProduct } from '../fft/covariance.ts';
+import { productPadding } from '../fft/embedding.ts';
+import type { Operator } from '../linalg/operator.ts';
+import { matrix, type Matrix } from '../linalg/matrix.ts';
+import {
+  completeStructuredPosterior,
+  computeBtPairs,
+  finishBtRows,
+  structuredProblem,
+  structuredSetup,
+  type StructuredPosteriorState,
+  type StructuredProblem,
+} from '../inverse/structured.ts';
+import type { PriorSpec } from '../prior/spec.ts';
+import type { Problem } from '../problems/spec.ts';
+import type { BlockPool } from './blocks.ts';
+
+/** One share of the Bᵀ rows, plain data (structured-clone safe). */
+export interface ProductsTask {
+  readonly kind: 'products';
+  /** Identifies the problem (G, grid) across calls, so a thread can keep its spectra and G. */
+  readonly token: number;
+  readonly grid: Grid;
+  readonly prior: PriorSpec;
+  /** G; null when the receiving thread already holds it under `token`. */
+  readonly operator: Operator | null;
+  /** Data rows of this share, pair p = (rows[2p], rows[2p+1]), in pairOrder. */
+  readonly rows: Int32Array;
+  /** Bytes this share may keep as cached spectra. */
+  readonly cacheBytes: number;
+  /** M × N Bᵀ to write rows in place (row rows[i] at rows[i]·N); null: return the rows. */
+  readonly out: SharedArrayBuffer | null;
+}
+
+export interface ProductsResult {
+  /** rows.length × N rows of Bᵀ in the task's row order, when the task had no `out`. */
+  readonly rows: Float64Array | null;
+  readonly spectraCached: boolean;
+  /** Milliseconds in this thread (spectra, products without spectra, incl. profile and nugget). */
+  readonly spectra: number;
+  readonly products: number;
+}
+
+interface ThreadCache {
+  readonly token: number;
+  readonly px: number;
+  readonly py: number;
+  readonly profile: Float64Array | null;
+  readonly rows: Int32Array;
+  readonly spectra: Float64Array[];
+}
+
+/** What one thread keeps between products tasks: the latest problem's G and its spectra. */
+export class ProductsThreadState {
+  problem: { readonly token: number; readonly operator: Operator } | null = null;
+  cache: ThreadCache | null = null;
+}
+
+function sameValues(a: ArrayLike<number> | null, b: ArrayLike<number> | null | undefined): boolean {
+  if (a === null || b === null || b === undefined) return a === null && (b === null || b === undefined);
+  if (a.length !== b.length) return false;
+  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return false;
+  return true;
+}
+
+function cellsOf(grid: Grid): number {
+  let n = 1;
+  for (const k of grid.shape) n *= k;
+  return n;
+}
+
+/**
+ * Computes one share into `bt` at row slots `slots` (the worker side; the caller runs its own share
+ * through it too). Throws when the task has no operator and the thread holds none for its token.
+ */
+function productsInto(task: ProductsTask, state: ProductsThreadState, bt: Float64Array, slots: Int32Array): Omit<ProductsResult, 'rows'> {
+  if (task.operator !== null) {
+    if (state.problem?.token !== task.token) state.cache = null;
+    state.problem = { token: task.token, operator: task.operator };
+  }
+  if (state.problem === null || state.problem.token !== task.token) {
+    throw new Error(`products task: this thread holds no operator for problem token ${task.token} (send the operator with the task)`);
+  }
+  const g = state.problem.operator;
+  const cp = new CirculantProduct(task.grid, task.prior);
+  const s = task.prior.stdProfile;
+  const c = state.cache;
+  const hit = c !== null && c.token === task.token && c.px === cp.px && c.py === cp.py && sameValues(c.profile, s) && sameValues(c.rows, task.rows);
+  if (!hit) state.cache = null;
+  const pairs = Math.ceil(task.rows.length / 2);
+  const fits = pairs * cp.columnSpectrumLength * 8 <= task.cacheBytes;
+  const save: Float64Array[] | null = !hit && fits ? [] : null;
+  const t = computeBtPairs(cp, g, s, task.rows, slots, bt, hit ? c.spectra : null, save);
+  if (save !== null) {
+    state.cache = { token: task.token, px: cp.px, py: cp.py, profile: s === undefined ? null : Float64Array.from(s), rows: task.rows.slice(), spectra: save };
+  }
+  const tFix = now();
+  finishBtRows(g, s, task.prior.nugget ?? 0, task.rows, slots, bt, cellsOf(task.grid));
+  return { spectraCached: hit, spectra: t.spectra, products: t.products + now() - tFix };
+}
+
+/** What a pool thread does with a products task (./pool.ts answerTask calls this). */
+export function runProductsTask(task: ProductsTask, state: ProductsThreadState): ProductsResult {
+  const n = cellsOf(task.grid);
+  if (task.out !== null) {
+    const bt = new Float64Array(task.out);
+    return { rows: null, ...productsInto(task, state, bt, task.rows) };
+  }
+  const rows = new Float64Array(task.rows.length * n);
+  const slots = new Int32Array(task.rows.length);
+  for (let i = 0; i < slots.length; i++) slots[i] = i;
+  return { rows, ...productsInto(task, state, rows, slots) };
+}
+
+/** [p0, p1) ranges covering 0 … pairs − 1 in `parts` nearly equal contiguous pieces (fewer when pairs < parts). */
+export function pairRanges(pairs: number, parts: number): [number, number][] {
+  const k = Math.max(1, Math.min(parts, pairs));
+  const out: [number, number][] = [];
+  let p0 = 0;
+  for (let q = 0; q < k; q++) {
+    const p1 = Math.round(((q + 1) * pairs) / k);
+    if (p1 > p0) out.push([p0, p1]);
+    p0 = p1;
+  }
+  return out;
+}
+
+/** Whether Bᵀ can live in a SharedArrayBuffer that workers write (Node: yes; browsers: crossOriginIsolated only). */
+export function sharedMemoryAvailable(): boolean {
+  const g = globalThis as { crossOriginIsolated?: boolean };
+  return typeof SharedArrayBuffer === 'function' && g.crossOriginIsolated !== false;
+}
+
+/**
+ * Work of the products in points transformed: ⌈M/2⌉ pairs × px × py (the embedding size; each
+ * pair costs a few 2-D passes over it).
+ */
+export function productWork(m: number, shape: readonly number[]): number {
+  const px = productPadding(shape[0]!);
+  const py = shape.length > 1 ? productPadding(shape[1]!) : 1;
+  return Math.ceil(m / 2) * px * py;
+}
+
+/**
+ * Below this much {@link productWork} the split does not pay on the project machine (2 cores,
+ * Node 20, warm 2-thread pool, caller + 1 worker, shared Bᵀ; medians of 7 runs, single / split,
+ * mean cold and after a prior change; measured in test/bench/cases/parallel.ts):
+ * see the TSDoc of {@link productsWorthSplitting} for the table.
+ */
+export const MIN_PRODUCT_SPLIT_WORK = 1e6;
+
+/**
+ * Whether splitting the products over `threads` threads (a pool already running) is worth it.
+ * Measured (2 cores, 64² is 200 pairs × 128 × 128 = 3.3e6, 128² 1.3e7, 32² 8.2e5):
+ * filled in from test/bench/cases/parallel.ts.
+ */
+export function productsWorthSplitting(m: number, shape: readonly number[], threads: number): boolean {
+  return threads > 1 && productWork(m, shape) >= MIN_PRODUCT_SPLIT_WORK;
+}
+
+let nextToken = 1;
+const tokens = new WeakMap<StructuredProblem, number>();
+/** Per caller-side problem holder: the caller's own thread state (its share's spectra). */
+const callerStates = new WeakMap<StructuredProblem, ProductsThreadState>();
+/** Per pool: the problem token whose operator each port last received. */
+const sentTokens = new WeakMap<BlockPool, (number | undefined)[]>();
+
+export interface ParallelProductsOptions {
+  /** The caller computes one share (default true); false: all shares go to the pool. */
+  readonly callerShare?: boolean;
+  /** Bᵀ in a SharedArrayBuffer (default {@link sharedMemoryAvailable}); false: rows are transferred back. */
+  readonly shared?: boolean;
+}
+
+/**
+ * As prepareStructuredPosterior (../inverse/structured.ts), with the Bᵀ products split over the
+ * pool (and the caller): the returned state equals the single-thread one bit for bit (Bᵀ, L, α,
+ * mean). Pass the same StructuredProblem on each call so the threads' spectra caches are found
+ * again. Rejects with the same InputError / NotPositiveDefiniteError as the single-thread version,
+ * and with `products worker: …` when a thread fails.
+ */
+export async function prepareStructuredPosteriorParallel(
+  sp: StructuredProblem | Problem,
+  prior: PriorSpec,
+  pool: BlockPool,
+  options: ParallelProductsOptions = {},
+): Promise<StructuredPosteriorState> {
+  const holder = 'cacheBytes' in sp ? sp : structuredProblem(sp);
+  const setup = structuredSetup(holder, prior);
+  const { problem, n, m, order } = setup;
+  const callerShare = options.callerShare ?? true;
+  const shared = options.shared ?? sharedMemoryAvailable();
+  const pairs = Math.ceil(m / 2);
+  const workers = callerShare ? pool.size - 1 : pool.size;
+  const ranges = pairRanges(pairs, workers + (callerShare ? 1 : 0));
+  let token = tokens.get(holder);
+  if (token === undefined) tokens.set(holder, (token = nextToken++));
+  let sent = sentTokens.get(pool);
+  if (sent === undefined) sentTokens.set(pool, (sent = []));
+
+  const t0 = now();
+  const sab = shared ? new SharedArrayBuffer(m * n * 8) : null;
+  const Bt: Matrix = sab !== null ? { rows: m, cols: n, data: new Float64Array(sab) } : matrix(m, n);
+  const rowsOf = ([p0, p1]: [number, number]) => order.slice(2 * p0, Math.min(m, 2 * p1));
+  const share = (rows: Int32Array, out: SharedArrayBuffer | null, operator: Operator | null): ProductsTask => ({
+    kind: 'products',
+    token: token!,
+    grid: problem.grid,
+    prior,
+    operator,
+    rows,
+    cacheBytes: Math.floor((holder.cacheBytes * rows.length) / m),
+    out,
+  });
+  // Worker shares are posted first (the caller's share then runs while they work).
+  const own = callerShare ? ranges[0]! : null;
+  const remote = ranges.slice(callerShare ? 1 : 0);
+  const jobs = remote.map((range, port) => {
+    const rows = rowsOf(range);
+    const known = sent![port] === token;
+    sent![port] = token;
+    return pool
+      .runProducts(share(rows, sab, known ? null : problem.operator), port)
+      .then((result) => ({ rows, result }))
+      .catch((e: unknown) => {
+        sent![port] = undefined;
+        throw e;
+      });
+  });
+  let spectra = 0;
+  let cached = true;
+  if (own !== null) {
+    let state = callerStates.get(holder);
+    if (state === undefined) callerStates.set(holder, (state = new ProductsThreadState()));
+    const rows = rowsOf(own);
+    try {
+      const r = productsInto(share(rows, null, problem.operator), state, Bt.data, rows);
+      spectra = r.spectra;
+      cached = r.spectraCached;
+    } catch (e) {
+      await Promise.allSettled(jobs);
+      throw e;
+    }
+  }
+  const results = await Promise.all(jobs);
+  for (const { rows, result } of results) {
+    spectra = Math.max(spectra, result.spectra);
+    cached &&= result.spectraCached;
+    if (result.rows !== null) {
+      for (let i = 0; i < rows.length; i++) Bt.data.set(result.rows.subarray(i * n, (i + 1) * n), rows[i]! * n);
+    }
+  }
+  // Wall time of the split stage; `spectra` is the longest thread's spectra time.
+  const wall = now() - t0;
+  return completeStructuredPosterior(setup, Bt, cached, { spectra, products: wall - spectra });
+}
+
+function now(): number {
+  return typeof performance !== 'undefined' ? performance.now() : Date.now();
+}
