@@ -28,6 +28,7 @@ export const Op = {
   localGet: 0x20,
   localSet: 0x21,
   localTee: 0x22,
+  i32Load: 0x28,
   f64Load: 0x2b,
   f64Store: 0x39,
   i32Const: 0x41,
@@ -111,6 +112,7 @@ export class FunctionBuilder {
   f64Sub(): this { return this.op(Op.f64Sub); }
   f64Mul(): this { return this.op(Op.f64Mul); }
   drop(): this { return this.op(Op.drop); }
+  i32Load(offset = 0): this { return this.op(Op.i32Load, ...this.memarg(2, offset)); }
   f64Load(offset = 0): this { return this.op(Op.f64Load, ...this.memarg(3, offset)); }
   f64Store(offset = 0): this { return this.op(Op.f64Store, ...this.memarg(3, offset)); }
 

@@ -33,17 +33,17 @@ export function wasmAvailable(): boolean {
 }
 
 function getKernel(): Kernel | null {
+  if (!simdSupported()) return null;
   if (kernel === undefined) {
-    const k = simdSupported() ? instantiateKernel<KernelFn>(varianceModuleBytes(), VARIANCE_EXPORT) : null;
+    const k = instantiateKernel<KernelFn>(varianceModuleBytes(), VARIANCE_EXPORT);
     kernel = k === null ? null : { ...k, packedFrom: null, packedRows: -1 };
   }
   return kernel;
 }
 
-/** Test hook: pretend WebAssembly is missing (true) or use it again (false); affects all kernels. */
+/** Test hook: pretend WebAssembly is missing (true) or probe for it again (false); affects all kernels. */
 export function disableWasmForTesting(disabled: boolean): void {
   forceWasmOffForTesting(disabled);
-  kernel = undefined;
 }
 
 /** Byte offsets of the regions in the kernel memory for M rows and padded width wp. */
