@@ -1,0 +1,126 @@
+/**
+ * Progressive posterior in the browser: for a problem whose bands take a while (a generated 2-D
+ * problem, 40 × 36 cells and 700 segment averages, FFT path: about 0.3 s for the mean and 0.5 s
+ * more for the bands in Node), the posterior mean map is drawn while the status still says the
+ * bands are computing, and the standard-deviation map follows. The drawn partial mean must equal
+ * the final one exactly and match the core's posterior computed here in Node.
+ * 40 × 36 = 1440 cells keeps the positive-definiteness check (dense Cm, all eigenvalues up to
+ * 1500 cells, src/core/prior/diagnostics.ts) within seconds on the second worker.
+ */
+import { expect, test, type Page } from '@playwright/test';
+import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { parseProblemFile } from '../src/core/io/problemFile.ts';
+import { prepareStructuredPosterior } from '../src/core/inverse/structured.ts';
+import { maxRelDiff, open, settle, state, traceValues, watch } from './helpers.ts';
+
+const ORIGIN = 'http://127.0.0.1:' + (process.env.PRIORSCOPE_E2E_PORT ?? 4317);
+const NX = 40;
+const NY = 36;
+const M = 700;
+const SEG = 8;
+const COMPUTING = 'Uncertainty bands: computing…';
+
+/** An invented field seen through M averages over 8-cell segments along x or y (seeded). */
+function writeProblem(dir: string): { json: string; mtx: string } {
+  let seed = 20240611;
+  const rnd = () => (seed = (Math.imul(seed, 1103515245) + 12345) >>> 0) / 2 ** 32;
+  const truth = (i: number, j: number) => Math.sin(i / 5) * Math.cos(j / 7) + 0.3 * Math.sin((i + j) / 3);
+  const lines: string[] = [];
+  const values: number[] = [];
+  for (let k = 0; k < M; k++) {
+    const alongX = k % 2 === 0;
+    const i0 = Math.floor(rnd() * (NX - (alongX ? SEG : 0)));
+    const j0 = Math.floor(rnd() * (NY - (alongX ? 0 : SEG)));
+    let d = 0;
+    for (let t = 0; t < SEG; t++) {
+      const i = alongX ? i0 + t : i0;
+      const j = alongX ? j0 : j0 + t;
+      lines.push(`${k + 1} ${j * NX + i + 1} ${1 / SEG}`);
+      d += truth(i, j) / SEG;
+    }
+    values.push(Number((d + 0.05 * (rnd() - 0.5)).toFixed(6)));
+  }
+  const mtx = join(dir, 'Gseg.mtx');
+  writeFileSync(mtx, `%%MatrixMarket matrix coordinate real general\n% invented segment averages\n${M} ${NX * NY} ${lines.length}\n${lines.join('\n')}\n`);
+  const json = join(dir, 'progressive.json');
+  writeFileSync(
+    json,
+    JSON.stringify({
+      kind: 'priorscope.problem',
+      version: 1,
+      title: 'Segment averages over an invented field',
+      grid: { shape: [NX, NY], spacing: [1, 1], unit: 'm' },
+      operator: { file: 'Gseg.mtx' },
+      data: { values, sigma: values.map(() => 0.05) },
+    }),
+  );
+  return { json, mtx };
+}
+
+/**
+ * Resolves (polling every animation frame) with the mean map's rows once it is drawn, differs
+ * from `previous` and the bands status says "computing" with no standard-deviation map on screen.
+ */
+function meanWhileComputing(page: Page, previous: number[][] | null) {
+  return page.waitForFunction(
+    ([text, prev]) => {
+      const status = document.querySelector('[data-testid="bands-status"]');
+      if (status?.textContent !== text || document.getElementById('plot-posterior-std')) return null;
+      const gd = document.getElementById('plot-posterior-mean') as unknown as { data?: { name?: string; z?: ArrayLike<number>[] }[] } | null;
+      const z = gd?.data?.find((d) => d.name === 'mean')?.z;
+      if (!z || z.length === 0) return null;
+      const rows = Array.from(z, (r) => Array.from(r));
+      if (prev && JSON.stringify(rows) === JSON.stringify(prev)) return null;
+      return rows;
+    },
+    [COMPUTING, previous] as const,
+    { polling: 'raf', timeout: 45_000 },
+  );
+}
+
+test('the posterior mean is drawn while the bands are computing, and the bands follow', async ({ page }) => {
+  test.setTimeout(120_000);
+  const w = watch(page, ORIGIN);
+  const dir = mkdtempSync(join(tmpdir(), 'priorscope-progressive-'));
+  const files = writeProblem(dir);
+  await open(page);
+
+  // 1. A new problem: no earlier result on this grid, so a mean drawn now is the partial one.
+  const seen = meanWhileComputing(page, null);
+  await page.getByTestId('load-files-input').setInputFiles([files.json, files.mtx]);
+  const partialZ = (await (await seen).jsonValue()) as number[][];
+  expect(partialZ).toHaveLength(NY);
+  expect(partialZ[0]).toHaveLength(NX);
+  await expect(page.getByTestId('bands-pending').first()).toContainText(COMPUTING);
+
+  // The bands arrive: the status goes, the std map is drawn, the mean is the one already shown.
+  const done = await settle(page);
+  await expect(page.getByTestId('bands-status')).toHaveCount(0);
+  await expect.poll(async () => (await traceValues(page, 'plot-posterior-std', 'std', 'z')).length, { timeout: 20_000 }).toBe(NY);
+  const finalZ = (await traceValues(page, 'plot-posterior-mean', 'mean', 'z')) as number[][];
+  expect(finalZ).toEqual(partialZ);
+  expect(done.errors).toEqual({});
+
+  // Independent of the worker: the core's FFT-path posterior mean of the same file and prior, in Node.
+  const text = readFileSync(files.json, 'utf8');
+  const problem = parseProblemFile('progressive.json', text, { readSibling: () => readFileSync(files.mtx) }).problem;
+  const mean = prepareStructuredPosterior(problem, done.prior).mean;
+  expect(maxRelDiff(partialZ.flat(), mean)).toBeLessThan(1e-9);
+
+  // 2. A prior edit: the earlier complete result is on screen; the new mean replaces it before its bands.
+  const seen2 = meanWhileComputing(page, finalZ);
+  const input = page.getByTestId('term-0-length-input');
+  await input.fill('2.5');
+  await input.press('Enter');
+  const partialZ2 = (await (await seen2).jsonValue()) as number[][];
+  const after = await settle(page);
+  expect(after.prior.terms[0]!.length).toBe(2.5);
+  await expect(page.getByTestId('bands-status')).toHaveCount(0);
+  await expect.poll(async () => (await traceValues(page, 'plot-posterior-std', 'std', 'z')).length, { timeout: 20_000 }).toBe(NY);
+  expect(await traceValues(page, 'plot-posterior-mean', 'mean', 'z')).toEqual(partialZ2);
+  expect((await state(page)).errors).toEqual({});
+  expect(w.problems).toEqual([]);
+  expect(w.foreign).toEqual([]);
+});
