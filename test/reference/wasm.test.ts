@@ -1,5 +1,7 @@
 /**
- * The WASM posterior-variance block against Debian's scipy (test/reference/wasm_variance_reference.py):
+ * The WebAssembly kernels against Debian's numpy / scipy (test/reference/wasm_reference.py).
+ *
+ * wasmVarianceBlock:
  * var_j = max(Cm_jj − Σ_k W_kj², 0) with W = scipy.linalg.solve_triangular(L, Bᵀ[:, c0:c1], lower=True).
  *
  * Tolerance: forward substitution is backward stable, (L + ΔL) ŵ = b with |ΔL| ≤ M u |L| (Higham,
@@ -10,11 +12,14 @@
  */
 import { describe, expect, it } from 'vitest';
 import { cholesky } from '../../src/core/linalg/cholesky.ts';
+import { wasmGemmAvailable, wasmGemmNT } from '../../src/core/wasm/gemmNT.ts';
 import { wasmAvailable, wasmVarianceBlock } from '../../src/core/wasm/varianceBlock.ts';
 import { randomMatrix, randomSpd, seededUniform, toJson } from '../core/linalg/helpers.ts';
+import { matrix } from '../../src/core/linalg/matrix.ts';
 import { runPython } from './python.ts';
 
-type Ref = { results: { var: number[]; scale: number[] }[] };
+type VarianceRef = { results: { var: number[]; scale: number[] }[] };
+type GemmRef = { results: { c: number[]; scale: number[] }[] };
 
 const TOL = 1e-11;
 
@@ -30,8 +35,8 @@ describe('wasmVarianceBlock against scipy.linalg.solve_triangular', () => {
       const pv = Float64Array.from({ length: n }, () => ((u() + 1) / 2) * m);
       return { L: r.factor, Bt: randomMatrix(m, n, 70 + i), pv, c0: 2 + i, c1: 2 + i + 37 - 2 * i };
     });
-    const ref = runPython<Ref>('wasm_variance_reference.py', {
-      cases: inputs.map(({ L, Bt, pv, c0, c1 }) => ({ l: toJson(L), bt: toJson(Bt), pv: Array.from(pv), c0, c1 })),
+    const ref = runPython<VarianceRef>('wasm_reference.py', {
+      cases: inputs.map(({ L, Bt, pv, c0, c1 }) => ({ op: 'variance', l: toJson(L), bt: toJson(Bt), pv: Array.from(pv), c0, c1 })),
     }).results;
     let clamped = 0;
     inputs.forEach(({ L, Bt, pv, c0, c1 }, i) => {
@@ -46,5 +51,35 @@ describe('wasmVarianceBlock against scipy.linalg.solve_triangular', () => {
     // The cases cover both sides of the clamp.
     expect(clamped).toBeGreaterThan(0);
     expect(clamped).toBeLessThan(ref.reduce((a, r) => a + r.var.length, 0) / 2);
+  });
+});
+
+/**
+ * wasmGemmNT: C + α A Bᵀ against numpy's `c + alpha * (a @ b.T)`. A computed dot product of length k
+ * has |error| ≤ γ_k |a|·|b|, γ_k = k u / (1 − k u) (Higham, 2nd ed., §3.1, memory); both sides
+ * round, and numpy's BLAS sums in another order, so we allow 2 γ_k (|C| + |α| |A| |B|ᵀ) + u |C|.
+ */
+describe('wasmGemmNT against numpy matmul', () => {
+  it.each([
+    [5, 7, 3],
+    [33, 17, 257],
+    [64, 300, 600],
+  ])('m = %d, n = %d, k = %d', (m, n, k) => {
+    expect(wasmGemmAvailable()).toBe(true);
+    const a = randomMatrix(m, k, m + 1);
+    const b = randomMatrix(n, k, n + 2);
+    const c = randomMatrix(m, n, k + 3);
+    const alpha = -0.75;
+    const [ref] = runPython<GemmRef>('wasm_reference.py', {
+      cases: [{ op: 'gemm_nt', alpha, a: toJson(a), b: toJson(b), c: toJson(c) }],
+    }).results;
+    const ours = matrix(m, n, c.data.slice());
+    wasmGemmNT(m, n, k, alpha, a.data, 0, k, b.data, 0, k, ours.data, 0, n);
+    const u = 2 ** -53;
+    const gamma = (k * u) / (1 - k * u);
+    for (let i = 0; i < m * n; i++) {
+      const tol = 2 * gamma * ref!.scale[i]! + u * Math.abs(c.data[i]!);
+      expect(Math.abs(ours.data[i]! - ref!.c[i]!), `entry ${i}`).toBeLessThanOrEqual(tol);
+    }
   });
 });
