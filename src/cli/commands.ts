@@ -15,6 +15,7 @@ import { choosePosteriorPath, FFT_MIN_CELLS, PATH_REQUESTS, type PathRequest } f
 import { prepareStructuredPosterior, structuredPosteriorStd, structuredPosteriorSummary } from '../core/inverse/structured.ts';
 import { parallelPosteriorStd, worthSplitting } from '../core/parallel/blocks.ts';
 import { defaultThreads, nodeBlockPool } from '../core/parallel/node.ts';
+import { prepareStructuredPosteriorParallel, productsWorthSplitting } from '../core/parallel/products.ts';
 import type { PosteriorSummary } from '../core/inverse/types.ts';
 import { DEMOS } from '../core/problems/demos.ts';
 import { evidenceMap, type LogAxis } from '../core/tuning/evidenceMap.ts';
@@ -111,8 +112,14 @@ function threadsOption(args: ParsedArgs): { threads: number; forced: boolean } {
 
 /**
  * The posterior through the path `requested` resolves to (src/core/inverse/auto.ts). On the FFT
- * path the standard deviations' column blocks go to `threads` worker threads when that is worth it
- * (src/core/parallel/blocks.ts worthSplitting); the result is bit-identical to one thread.
+ * path, with `threads` ≥ 2, the standard deviations' column blocks go to `threads` worker threads
+ * when that is worth it (src/core/parallel/blocks.ts worthSplitting), and then the mean's Bᵀ
+ * products use the same pool (src/core/parallel/products.ts: the caller and threads − 1 workers,
+ * when productsWorthSplitting). A pool is not started for the products alone: starting the
+ * workers (tsx's loader in each) costs 300–700 ms here, more than the split saves on any mean
+ * that is not followed by a split std; the pool is started before the mean so the workers boot
+ * while the caller computes its share. `forced` (an explicit --threads) splits both whatever the
+ * size. The result is bit-identical for every thread count.
  */
 export async function cliPosterior(
   problem: Parameters<typeof choosePosteriorPath>[0],
@@ -123,12 +130,18 @@ export async function cliPosterior(
 ): Promise<{ summary: PosteriorSummary; reason: string; threadsUsed: number }> {
   const decision = choosePosteriorPath(problem, prior, requested, '--path');
   if (decision.path === 'dense') return { summary: posteriorSummary(preparePosterior(problem, prior)), reason: decision.reason, threadsUsed: 1 };
-  const state = prepareStructuredPosterior(problem, prior);
-  if (threads < 2 || (!forced && !worthSplitting(state.L.rows, state.Bt.cols, threads))) {
+  const m = problem.data.values.length;
+  const n = cellCount(problem.grid);
+  if (threads < 2 || (!forced && !worthSplitting(m, n, threads))) {
+    const state = prepareStructuredPosterior(problem, prior);
     return { summary: structuredPosteriorSummary(state, structuredPosteriorStd(state)), reason: decision.reason, threadsUsed: 1 };
   }
   const pool = nodeBlockPool(threads);
   try {
+    const state =
+      forced || productsWorthSplitting(m, problem.grid.shape, threads)
+        ? await prepareStructuredPosteriorParallel(problem, prior, pool)
+        : prepareStructuredPosterior(problem, prior);
     const std = await parallelPosteriorStd(state, pool);
     return { summary: structuredPosteriorSummary(state, std), reason: decision.reason, threadsUsed: threads };
   } finally {
@@ -148,8 +161,9 @@ const posterior: Command = {
     '--path auto (default) takes the FFT path (circulant embedding, no N × N matrix) for a stationary prior on a\n' +
     `regular grid of at least ${FFT_MIN_CELLS} cells and the dense path otherwise; "path" in the output says which ran. Both\n` +
     'give the same numbers to round-off. --path fft on a problem the FFT path cannot take is an error (exit 2).\n' +
-    '--threads T splits the FFT path\'s standard deviations over T worker threads (default: every core when the\n' +
-    'solve is large enough to gain, about 128² cells with 400 data; results are identical for every T).',
+    '--threads T splits the FFT path\'s standard deviations and the mean\'s covariance products over T threads\n' +
+    '(default: every core when the solve is large enough to gain, about 128² cells with 400 data; results are\n' +
+    'identical for every T).',
   options: [
     PROBLEM,
     PRIOR,
