@@ -8,10 +8,15 @@
  *
  * "wasm, L re-packed per block" alternates two copies of L so the packed factor is never resident:
  * the price of copying L into the kernel memory on every call.
+ *
+ * The NT product C −= A Bᵀ (2 m n k flops; the lower-triangle case as the Cholesky's left-looking
+ * update uses it, counted in full), JS gemmNT vs wasmGemmNT, with numpy's `a @ b.T` beside the square one.
  */
 import { structuredVarianceBlock, VARIANCE_BLOCK } from '../../../src/core/inverse/structured.ts';
 import { matrix, type Matrix } from '../../../src/core/linalg/matrix.ts';
 import { cholesky } from '../../../src/core/linalg/cholesky.ts';
+import { gemmNT } from '../../../src/core/linalg/kernels.ts';
+import { wasmGemmAvailable, wasmGemmNT } from '../../../src/core/wasm/gemmNT.ts';
 import { wasmAvailable, wasmVarianceBlock } from '../../../src/core/wasm/varianceBlock.ts';
 import { benchSpd } from './linalg.ts';
 import type { BenchCase } from '../types.ts';
@@ -62,6 +67,27 @@ function varianceCase(label: 'js' | 'wasm' | 'wasm-repack', grid: number): Bench
   };
 }
 
-export const cases: BenchCase[] = [64, 128].flatMap((grid) =>
-  (['js', 'wasm', 'wasm-repack'] as const).map((label) => varianceCase(label, grid)),
-);
+function gemmCase(label: 'js' | 'wasm', m: number, n: number, k: number, lower: boolean): BenchCase {
+  const name = label === 'js' ? 'JS gemmNT' : `wasmGemmNT${wasmGemmAvailable() ? '' : ' (unavailable: JS fallback)'}`;
+  return {
+    name: `gemm NT ${name}: m=${m}, n=${n}, k=${k}${lower ? ', lower' : ''}`,
+    params: { m, n, k },
+    flops: 2 * m * n * k,
+    ...(label === 'wasm' && !lower ? { scipyOp: 'matmul_nt' } : {}),
+    runs: 5,
+    setup: () => {
+      const a = randomDense(m, k, 3).data;
+      const b = randomDense(n, k, 4).data;
+      const c = new Float64Array(m * n);
+      const kernel = label === 'js' ? gemmNT : wasmGemmNT;
+      return () => kernel(m, n, k, -1, a, 0, k, b, 0, k, c, 0, n, lower, 0);
+    },
+  };
+}
+
+export const cases: BenchCase[] = [
+  ...[64, 128].flatMap((grid) => (['js', 'wasm', 'wasm-repack'] as const).map((label) => varianceCase(label, grid))),
+  ...([[1000, 1000, 1000, false], [1936, 64, 1000, true]] as const).flatMap(([m, n, k, lower]) =>
+    (['js', 'wasm'] as const).map((label) => gemmCase(label, m, n, k, lower)),
+  ),
+];
