@@ -7,8 +7,10 @@
  * One kernel instance (module, instance, WebAssembly.Memory) per JS realm — each worker has its own —
  * created on first use. Per call, the block of Bᵀ is copied in (row stride padded to a multiple of
  * 4 with zero columns, which change no real column) and the w results copied out. L is packed into
- * the kernel's layout once and kept resident while the same L.data is passed again: the caller must
- * not modify a factor in place between calls (the core never does; factors are replaced, not mutated).
+ * the kernel's layout once and kept resident while the same L.data is passed again (re-packing per
+ * call of 64 columns at M = 400 costs ≈ 25 %, test/bench/cases/wasm.ts). Factors are replaced, not
+ * mutated, in the core; as a guard against an in-place change the diagonal and the last row of L
+ * (O(M) per call) are compared with those packed, and any difference re-packs.
  */
 import { structuredVarianceBlock } from '../inverse/structured.ts';
 import type { Matrix } from '../linalg/matrix.ts';
@@ -20,9 +22,10 @@ type KernelFn = (lt: number, diag: number, x: number, out: number, groups: numbe
 interface Kernel {
   readonly memory: WebAssembly.Memory;
   readonly run: KernelFn;
-  /** The L.data whose packed form is at offset 0, and its order. */
+  /** The L.data whose packed form is at offset 0, its order, and a copy of its diagonal and last row. */
   packedFrom: Float64Array | null;
   packedRows: number;
+  packedCheck: Float64Array;
 }
 
 let kernel: Kernel | null | undefined; // undefined: not tried yet; null: unavailable
@@ -36,7 +39,7 @@ function getKernel(): Kernel | null {
   if (!simdSupported()) return null;
   if (kernel === undefined) {
     const k = instantiateKernel<KernelFn>(varianceModuleBytes(), VARIANCE_EXPORT);
-    kernel = k === null ? null : { ...k, packedFrom: null, packedRows: -1 };
+    kernel = k === null ? null : { ...k, packedFrom: null, packedRows: -1, packedCheck: new Float64Array(0) };
   }
   return kernel;
 }
@@ -77,6 +80,22 @@ function packLower(f: Float64Array, l: Float64Array, m: number, lt: number, diag
   }
 }
 
+/** The diagonal and the last row of the M × M factor (2M values). */
+function checkValues(l: Float64Array, m: number): Float64Array {
+  const c = new Float64Array(2 * m);
+  for (let i = 0; i < m; i++) c[i] = l[i * m + i]!;
+  c.set(l.subarray((m - 1) * m, m * m), m);
+  return c;
+}
+
+function sameCheck(c: Float64Array, l: Float64Array, m: number): boolean {
+  if (c.length !== 2 * m) return false;
+  for (let i = 0; i < m; i++) if (!Object.is(c[i], l[i * m + i])) return false;
+  const o = (m - 1) * m;
+  for (let j = 0; j < m; j++) if (!Object.is(c[m + j], l[o + j])) return false;
+  return true;
+}
+
 /**
  * Posterior variances of cells [c0, c1) (see structuredVarianceBlock): L the M × M lower Cholesky
  * factor of G Cm Gᵀ + Cd, Bt = G Cm (M × N), priorVariance = diag(Cm). Writes and returns out.
@@ -100,10 +119,11 @@ export function wasmVarianceBlock(
   if (ensureBytes(k.memory, lay.end)) k.packedFrom = null; // growth keeps the contents; re-pack to keep the rule simple
   const f = new Float64Array(k.memory.buffer);
   const l = L.data;
-  if (k.packedFrom !== l || k.packedRows !== m) {
+  if (k.packedFrom !== l || k.packedRows !== m || !sameCheck(k.packedCheck, l, m)) {
     packLower(f, l, m, lay.lt, lay.diag);
     k.packedFrom = l;
     k.packedRows = m;
+    k.packedCheck = checkValues(l, m);
   }
   // X = Bᵀ[:, c0:c1] with zero columns up to wp.
   const bt = Bt.data;

@@ -82,6 +82,17 @@ describe('wasmVarianceBlock', () => {
     }
   });
 
+  it('a factor changed in place (same L.data, new values) is packed again', () => {
+    const m = 21;
+    const n = 30;
+    const pv = priorVariances(n, m, 9);
+    const Bt = randomMatrix(m, n, 10);
+    const L = factor(m, 11);
+    wasmVarianceBlock(L, Bt, pv, 0, n);
+    L.data.set(factor(m, 12).data); // a re-factorisation into the same storage
+    expect(bitsEqual(wasmVarianceBlock(L, Bt, pv, 0, n), structuredVarianceBlock(L, Bt, pv, 0, n))).toBe(true);
+  });
+
   it('an empty block returns the given (empty) output', () => {
     const L = factor(5, 1);
     expect(wasmVarianceBlock(L, randomMatrix(5, 9, 1), new Float64Array(9), 4, 4).length).toBe(0);
