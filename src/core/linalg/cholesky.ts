@@ -6,7 +6,8 @@
  * modifies `a` unless `inPlace`, and returns L with a zeroed strict upper triangle.
  */
 import { matrix, type Matrix } from './matrix.ts';
-import { gemmNT, transposeBlock, trsmRowsLowerT } from './kernels.ts';
+import { transposeBlock, trsmRowsLowerT } from './kernels.ts';
+import { gemmNTAuto as gemmNT } from '../wasm/gemmNT.ts'; // kernels.ts gemmNT's contract and bits, WebAssembly SIMD when sizable
 
 export type CholeskyResult =
   | { readonly ok: true; readonly factor: Matrix }

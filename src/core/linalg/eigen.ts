@@ -11,7 +11,8 @@
  * is assumed to mirror it) and never modify `a`.
  */
 import { matrix, type Matrix } from './matrix.ts';
-import { gemmNT, transposeBlock } from './kernels.ts';
+import { transposeBlock } from './kernels.ts';
+import { gemmNTAuto as gemmNT } from '../wasm/gemmNT.ts'; // kernels.ts gemmNT's contract and bits, WebAssembly SIMD when sizable
 
 const EPS = 2 ** -52;
 

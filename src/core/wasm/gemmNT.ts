@@ -107,3 +107,34 @@ export function wasmGemmNT(
     }
   }
 }
+
+/**
+ * Below this depth, or this many multiply-adds, a call stays in JavaScript: the WebAssembly route
+ * copies A's and B's rows and adds α S into C in JavaScript, which costs about as much as the
+ * JavaScript kernel's own work on thin products (a choice, not measured finely: both give the same
+ * bits, so the switch only affects speed).
+ */
+export const WASM_GEMM_MIN_DEPTH = 16;
+export const WASM_GEMM_MIN_WORK = 32768;
+
+/** gemmNT's contract and bits: the WebAssembly kernel for sizable products, gemmNT otherwise. */
+export function gemmNTAuto(
+  m: number,
+  n: number,
+  k: number,
+  alpha: number,
+  a: Float64Array,
+  ao: number,
+  lda: number,
+  b: Float64Array,
+  bo: number,
+  ldb: number,
+  c: Float64Array,
+  co: number,
+  ldc: number,
+  lower = false,
+  diag = 0,
+): void {
+  if (k < WASM_GEMM_MIN_DEPTH || m * n * k < WASM_GEMM_MIN_WORK) return gemmNT(m, n, k, alpha, a, ao, lda, b, bo, ldb, c, co, ldc, lower, diag);
+  wasmGemmNT(m, n, k, alpha, a, ao, lda, b, bo, ldb, c, co, ldc, lower, diag);
+}
