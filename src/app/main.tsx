@@ -3,8 +3,6 @@ import { StrictMode } from 'react';
 import { createRoot } from 'react-dom/client';
 import { WorkerClient, type WorkerLike } from '../worker/client.ts';
 import { SplitClient } from '../worker/split.ts';
-import type { PosteriorPartial } from '../worker/protocol.ts';
-import type { PriorSpec } from '../core/prior/spec.ts';
 import { App } from './App.tsx';
 import { StoreContext } from './context.ts';
 import { DEFAULT_DEMO } from './demos.ts';
@@ -18,16 +16,7 @@ const makeClient = () =>
     () => new Worker(new URL('../worker/worker.ts', import.meta.url), { type: 'module' }) as unknown as WorkerLike,
     { onProgress: (channel, stage, fraction) => store.getState().setProgress({ channel, stage, fraction }) },
   );
-/**
- * SplitClient.posterior takes no partial handler (src/worker/split.ts), so the mean-first reply
- * would be lost: the posterior goes to the primary worker with its handler here.
- */
-class WorkbenchClient extends SplitClient {
-  override posterior(prior: PriorSpec, onPartial?: (partial: PosteriorPartial) => void) {
-    return this.primary.posterior(prior, onPartial);
-  }
-}
-const client = new WorkbenchClient(makeClient(), makeClient());
+const client = new SplitClient(makeClient(), makeClient());
 const params = new URLSearchParams(location.search);
 const store = createWorkbenchStore(client, { demoId: params.get('demo') ?? DEFAULT_DEMO });
 

@@ -8,7 +8,7 @@
 import type { PriorSpec } from '../core/prior/spec.ts';
 import type { Problem } from '../core/problems/spec.ts';
 import type { Outcome, WorkerClient } from './client.ts';
-import type { ProblemView } from './protocol.ts';
+import type { PosteriorPartial, ProblemView } from './protocol.ts';
 import type { TuningKind, TuningRequest, TuningResultMap } from './tuningProtocol.ts';
 
 /** What a tuning request carries besides its id, kind and problem version. */
@@ -48,8 +48,9 @@ export class SplitClient {
     const [a, b] = await Promise.all([this.primary.setProblem(problem), this.secondary.setProblem(problem)]);
     return b.superseded ? b : a;
   }
-  posterior(prior: PriorSpec) {
-    return this.primary.posterior(prior);
+  /** `onPartial` receives the mean-first reply of a large FFT-path posterior (./engine.ts). */
+  posterior(prior: PriorSpec, onPartial?: (partial: PosteriorPartial) => void) {
+    return this.primary.posterior(prior, onPartial);
   }
   resolution(prior: PriorSpec, cell: number) {
     return this.primary.resolution(prior, cell);

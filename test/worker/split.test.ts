@@ -34,3 +34,21 @@ describe('SplitClient.tuning', () => {
     expect(log).toEqual(['secondary.request criteria']);
   });
 });
+
+describe('SplitClient.posterior', () => {
+  it('sends the posterior to the primary worker with its partial handler', async () => {
+    const calls: { name: string; handler: unknown }[] = [];
+    const client = (name: string) =>
+      ({
+        posterior: (_prior: unknown, onPartial?: unknown) => {
+          calls.push({ name, handler: onPartial });
+          return Promise.resolve({ superseded: false, value: { from: name } });
+        },
+      }) as unknown as WorkerClient;
+    const split = new SplitClient(client('primary'), client('secondary'));
+    const onPartial = () => {};
+    const o = await split.posterior({ mean: { constant: 0 }, terms: [] }, onPartial);
+    expect(o).toEqual({ superseded: false, value: { from: 'primary' } });
+    expect(calls).toEqual([{ name: 'primary', handler: onPartial }]);
+  });
+});
