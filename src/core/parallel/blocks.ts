@@ -6,7 +6,8 @@
  * var_j = Cm_jj − Σ_k W_kj², W = L⁻¹ Bᵀ (Tarantola 2005, Inverse Problem Theory, §3.2; see
  * ../inverse/structured.ts): each column j of W depends on column j of Bᵀ and on L only, so the
  * columns split into independent tasks. A task carries L, its columns of Bᵀ (copied contiguous,
- * M × w) and of diag(Cm), and runs ../inverse/structured.ts structuredVarianceBlock over blocks of
+ * M × w) and of diag(Cm), and runs ../wasm/varianceBlock.ts wasmVarianceBlock (the bits of
+ * ../inverse/varianceBlock.ts structuredVarianceBlock) over blocks of
  * VARIANCE_BLOCK columns, the same blocks the single-thread structuredPosteriorStd uses when the
  * ranges start at multiples of VARIANCE_BLOCK (and each column's arithmetic does not depend on the
  * blocks anyway), so the split result equals the single-thread one bit for bit.
@@ -16,7 +17,8 @@
  */
 import { InputError } from '../errors.ts';
 import type { Matrix } from '../linalg/matrix.ts';
-import { structuredVarianceBlock, VARIANCE_BLOCK } from '../inverse/structured.ts';
+import { VARIANCE_BLOCK } from '../inverse/varianceBlock.ts';
+import { wasmVarianceBlock } from '../wasm/varianceBlock.ts';
 import type { ProductsResult, ProductsTask } from './products.ts';
 
 /** One unit of work, plain data (structured-clone safe; the Float64Array buffers may be transferred). */
@@ -83,7 +85,7 @@ export function runVarianceTask(task: VarianceTask, block = VARIANCE_BLOCK): Flo
   const out = new Float64Array(w);
   for (let j0 = 0; j0 < w; j0 += block) {
     const j1 = Math.min(w, j0 + block);
-    structuredVarianceBlock(L, Bt, task.priorVariance, j0, j1, out.subarray(j0, j1));
+    wasmVarianceBlock(L, Bt, task.priorVariance, j0, j1, out.subarray(j0, j1)); // = structuredVarianceBlock's bits
   }
   return out;
 }

@@ -1,7 +1,7 @@
 /**
  * Posterior variances of a column block with the WebAssembly SIMD kernel of ./varianceModule.ts:
  * var_j = Cm_jj − Σ_k W_kj², W = L⁻¹ Bᵀ[:, c0:c1], clamped at 0 — the same contract, arguments and
- * results (bit for bit) as structuredVarianceBlock in src/core/inverse/structured.ts, which it
+ * results (bit for bit) as structuredVarianceBlock in src/core/inverse/varianceBlock.ts, which it
  * falls back to when WebAssembly or its 128-bit SIMD is missing.
  *
  * One kernel instance (module, instance, WebAssembly.Memory) per JS realm — each worker has its own —
@@ -12,7 +12,7 @@
  * mutated, in the core; as a guard against an in-place change the diagonal and the last row of L
  * (O(M) per call) are compared with those packed, and any difference re-packs.
  */
-import { structuredVarianceBlock } from '../inverse/structured.ts';
+import { structuredVarianceBlock } from '../inverse/varianceBlock.ts';
 import type { Matrix } from '../linalg/matrix.ts';
 import { ensureBytes, forceWasmOffForTesting, instantiateKernel, simdSupported } from './runtime.ts';
 import { VARIANCE_EXPORT, varianceModuleBytes } from './varianceModule.ts';
