@@ -44,6 +44,8 @@ export const WARNING_CODES = [
 ] as const;
 export type WarningCode = (typeof WARNING_CODES)[number];
 
+export type EigenvalueMethod = 'exact' | 'lanczos' | 'fft-bounds';
+
 export interface DiagnosticWarning {
   /** Stable machine code, e.g. "gaussian-long-length", "spherical-dimension", "near-singular". */
   readonly code: string;
@@ -59,7 +61,22 @@ export interface Diagnostics {
   readonly maxEigenvalue: number;
   /** λmax / λmin (Infinity when λmin ≤ 0). */
   readonly conditionNumber: number;
-  readonly eigenvalueMethod: 'exact' | 'lanczos';
+  /**
+   * How minEigenvalue / maxEigenvalue were found: 'exact' (all eigenvalues of the dense Cm),
+   * 'lanczos' (Ritz values on the dense Cm), 'fft-bounds' (no dense Cm: a certified bracket from the
+   * circulant embedding plus Ritz values with FFT products; ./structuredDiagnostics.ts).
+   */
+  readonly eigenvalueMethod: EigenvalueMethod;
+  /**
+   * 'fft-bounds' only: certified bracket lower ≤ λmin(Cm) ≤ λmax(Cm) ≤ upper (Cauchy interlacing
+   * in the circulant embedding, FFT round-off margin included); minEigenvalue / maxEigenvalue are
+   * then estimates inside it.
+   */
+  readonly eigenvalueBounds?: { readonly lower: number; readonly upper: number };
+  /** 'fft-bounds' only: certified κ ≤ upper / lower (Infinity when lower ≤ 0). */
+  readonly conditionUpperBound?: number;
+  /** 'fft-bounds' only: the embedding sizes per grid axis whose bracket is reported. */
+  readonly embeddingPadding?: readonly number[];
   /** Smallest diagonal jitter (variance units, to add to the nugget) that makes Cm factor and brings it
    *  below the near-singular threshold; null when none is needed. */
   readonly suggestedJitter: number | null;
