@@ -103,7 +103,13 @@ function cellsOf(grid: Grid): number {
  * Computes one share into `bt` at row slots `slots` (the worker side; the caller runs its own share
  * through it too). Throws when the task has no operator and the thread holds none for its token.
  */
-function productsInto(task: ProductsTask, state: ProductsThreadState, bt: Float64Array, slots: Int32Array): Omit<ProductsResult, 'rows'> {
+function productsInto(
+  task: ProductsTask,
+  state: ProductsThreadState,
+  bt: Float64Array,
+  slots: Int32Array,
+  product?: CirculantProduct,
+): Omit<ProductsResult, 'rows'> {
   if (task.operator !== null) {
     if (state.problem?.token !== task.token) state.cache = null;
     state.problem = { token: task.token, operator: task.operator };
@@ -112,7 +118,8 @@ function productsInto(task: ProductsTask, state: ProductsThreadState, bt: Float6
     throw new Error(`products task: this thread holds no operator for problem token ${task.token} (send the operator with the task)`);
   }
   const g = state.problem.operator;
-  const cp = new CirculantProduct(task.grid, task.prior);
+  // The caller passes the product it already built for the same grid and prior.
+  const cp = product ?? new CirculantProduct(task.grid, task.prior);
   const s = task.prior.stdProfile;
   const c = state.cache;
   const hit = c !== null && c.token === task.token && c.px === cp.px && c.py === cp.py && sameValues(c.profile, s) && sameValues(c.rows, task.rows);
@@ -172,18 +179,32 @@ export function productWork(m: number, shape: readonly number[]): number {
 }
 
 /**
- * Below this much {@link productWork} the split does not pay on the project machine (2 cores,
- * Node 20, warm 2-thread pool, caller + 1 worker, shared Bᵀ; medians of 7 runs, single / split,
- * mean cold and after a prior change; measured in test/bench/cases/parallel.ts):
- * see the TSDoc of {@link productsWorthSplitting} for the table.
+ * Below this much {@link productWork} the split does not pay for a repeated call on the project
+ * machine. Measured with test/bench/cases/parallel.ts (2 shared cores, other developers' jobs
+ * running, Node 20; 2-thread pool already started; caller + 1 worker, shared Bᵀ; interleaved
+ * runs, median / min of 7–11, ms; one thread → split):
+ *
+ *   case (work)                              mean cold                 mean after a prior change
+ *   32² M = 400 (8.2e5)                      50 / 35 → 38 / 30         24 / 23 → 26 / 21 (cached)
+ *   64² M = 100 (8.2e5)                      —                         18 / 16 → 18 / 15 (cached)
+ *   64² M = 400 (3.3e6)                      178 / 139 → 184 / 98      86 / 71 → 88 / 66 (cached)
+ *   128² M = 400 (1.3e7, over the budget)    549 / 519 → 468 / 347     558 / 487 → 344 / 299
+ *   64² M = 800 (6.6e6, over the budget)     —                         312 → 220 (median of 11)
+ *
+ * So the cold products split well from 64² on, but with cached spectra (the interactive case: a
+ * prior change) the split gains nothing at 64²; at 128² (spectra recomputed: over the 64 MB
+ * budget) it is 1.6× on the median. The threshold sits between: 64² M = 400 stays on one thread,
+ * 128² splits. Mean + std with both splits: 64² 367 / 310 → 354 / 236, 128² 1525 / 1286 →
+ * 1099 / 890. Rows transferred back instead of a shared Bᵀ: 64² cached 98 / 69, 128² 370 / 314
+ * (a little slower than shared, 88 / 66 and 344 / 299). The caller idle (2 workers): 64² cold
+ * 139 / 99 against 184 / 98, 128² 451 / 340 against 468 / 347 (no clear difference; the caller
+ * share keeps a worker free for other work and costs no transfer). Starting a 2-thread pool
+ * (worker threads + tsx's loader): 380–670 ms, so a one-shot run (the CLI) starts one only when
+ * the std split needs it anyway.
  */
-export const MIN_PRODUCT_SPLIT_WORK = 1e6;
+export const MIN_PRODUCT_SPLIT_WORK = 5e6;
 
-/**
- * Whether splitting the products over `threads` threads (a pool already running) is worth it.
- * Measured (2 cores, 64² is 200 pairs × 128 × 128 = 3.3e6, 128² 1.3e7, 32² 8.2e5):
- * filled in from test/bench/cases/parallel.ts.
- */
+/** Whether splitting the products over `threads` threads (a pool already running) is worth it ({@link MIN_PRODUCT_SPLIT_WORK}). */
 export function productsWorthSplitting(m: number, shape: readonly number[], threads: number): boolean {
   return threads > 1 && productWork(m, shape) >= MIN_PRODUCT_SPLIT_WORK;
 }
@@ -217,6 +238,8 @@ export async function prepareStructuredPosteriorParallel(
 ): Promise<StructuredPosteriorState> {
   const holder = 'cacheBytes' in sp ? sp : structuredProblem(sp);
   const setup = structuredSetup(holder, prior);
+  // The threads keep this problem's spectra now; the single-thread cache would only hold memory.
+  holder.cache = null;
   const { problem, n, m, order } = setup;
   const callerShare = options.callerShare ?? true;
   const shared = options.shared ?? sharedMemoryAvailable();
@@ -264,7 +287,7 @@ export async function prepareStructuredPosteriorParallel(
     if (state === undefined) callerStates.set(holder, (state = new ProductsThreadState()));
     const rows = rowsOf(own);
     try {
-      const r = productsInto(share(rows, null, problem.operator), state, Bt.data, rows);
+      const r = productsInto(share(rows, null, problem.operator), state, Bt.data, rows, setup.cp);
       spectra = r.spectra;
       cached = r.spectraCached;
     } catch (e) {

@@ -43,14 +43,15 @@ function changed(n: number, k: number): PriorSpec {
   return { ...benchPrior(n), terms: [{ kernel: 'matern', nu: 1.5, variance: 1, length: n / 8 + (k % 2) }] };
 }
 
-function gridCases(n: number): BenchCase[] {
-  const params = { N: n * n, M, grid: n, threads: THREADS };
-  const tag = `${n}x${n} M=${M}`;
+/** All cases on n × n with M data; `full` false: only the single / split pairs the threshold needs. */
+function gridCases(n: number, m = M, full = true): BenchCase[] {
+  const params = { N: n * n, M: m, grid: n, threads: THREADS };
+  const tag = `${n}x${n} M=${m}`;
   const cold = (label: string, fn: (sp: ReturnType<typeof structuredProblem>, prior: PriorSpec) => unknown): BenchCase => ({
     name: `parallel ${tag}: ${label}`,
     params,
     setup: () => {
-      const problem = benchProblem(n);
+      const problem = benchProblem(n, m);
       const prior = benchPrior(n);
       pool();
       return () => fn(structuredProblem(problem), prior);
@@ -60,7 +61,7 @@ function gridCases(n: number): BenchCase[] {
     name: `parallel ${tag}: ${label}`,
     params,
     setup: () => {
-      const sp = structuredProblem(benchProblem(n));
+      const sp = structuredProblem(benchProblem(n, m));
       let k = 0;
       pool();
       return () => fn(sp, changed(n, k++));
@@ -68,20 +69,25 @@ function gridCases(n: number): BenchCase[] {
   });
   const split = (opts: ParallelProductsOptions = {}) => (sp: ReturnType<typeof structuredProblem>, prior: PriorSpec) =>
     prepareStructuredPosteriorParallel(sp, prior, pool(), opts).then((s) => s.mean);
-  return [
+  const threshold = [
     cold('mean cold, 1 thread', (sp, prior) => prepareStructuredPosterior(sp, prior).mean),
     cold('mean cold, split (caller + 1 worker, shared Bᵀ)', split()),
-    cold('mean cold, split (2 workers, caller idle)', split({ callerShare: false })),
-    cold('mean cold, split (caller + 1 worker, rows transferred)', split({ shared: false })),
     warm('mean after a prior change, 1 thread', (sp, prior) => prepareStructuredPosterior(sp, prior).mean),
     warm('mean after a prior change, split (caller + 1 worker, shared Bᵀ)', split()),
+  ];
+  if (!full) return threshold;
+  return [
+    ...threshold,
+    cold('mean cold, split (2 workers, caller idle)', split({ callerShare: false })),
+    cold('mean cold, split (caller + 1 worker, rows transferred)', split({ shared: false })),
     warm('mean after a prior change, split (caller + 1 worker, rows transferred)', split({ shared: false })),
     cold('mean + std cold, 1 thread', (sp, prior) => structuredPosteriorStd(prepareStructuredPosterior(sp, prior))),
     cold('mean + std cold, split products + split std', async (sp, prior) => parallelPosteriorStd(await prepareStructuredPosteriorParallel(sp, prior, pool()), pool())),
   ];
 }
 
-export const cases: BenchCase[] = [...gridCases(64), ...gridCases(128)];
+/** 64² and 128² with M = 400 in full; smaller work (32² M = 400, 64² M = 100) for the split threshold. */
+export const cases: BenchCase[] = [...gridCases(64), ...gridCases(128), ...gridCases(32, 400, false), ...gridCases(64, 100, false)];
 
 function median(xs: number[]): number {
   const s = [...xs].sort((a, b) => a - b);

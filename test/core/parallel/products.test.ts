@@ -239,9 +239,10 @@ describe('pieces', () => {
     expect(bt.reduce((c, v, i) => c + (Object.is(v, one.Bt.data[i]) ? 0 : 1), 0)).toBe(0);
   });
 
-  it('productsWorthSplitting: never on one thread; yes at 64² and 128² with M = 400; no for a tiny problem', () => {
-    expect(productsWorthSplitting(400, [64, 64], 1)).toBe(false);
-    expect(productsWorthSplitting(400, [64, 64], 2)).toBe(true);
+  it('productsWorthSplitting: never on one thread; no at 64² with M = 400 (no gain measured with cached spectra), yes at 128² and at 64² with M = 800', () => {
+    expect(productsWorthSplitting(400, [128, 128], 1)).toBe(false);
+    expect(productsWorthSplitting(400, [64, 64], 2)).toBe(false);
+    expect(productsWorthSplitting(800, [64, 64], 2)).toBe(true);
     expect(productsWorthSplitting(400, [128, 128], 2)).toBe(true);
     expect(productsWorthSplitting(20, [16, 16], 2)).toBe(false);
   });
