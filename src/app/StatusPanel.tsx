@@ -19,6 +19,40 @@ export function pdLevel(d: Pick<Diagnostics, 'positiveDefinite' | 'suggestedJitt
   return 'ok';
 }
 
+/**
+ * How the numbers were found, in the panel's words: the dense route factors Cm; the FFT route
+ * (src/core/prior/structuredDiagnostics.ts) proves or fails to prove positive definiteness from
+ * bounds of its circulant embedding and estimates the extreme eigenvalues inside them.
+ */
+export function eigenvalueMethodText(d: Pick<Diagnostics, 'eigenvalueMethod' | 'eigenvalueBounds' | 'embeddingPadding'>): string {
+  switch (d.eigenvalueMethod) {
+    case 'exact':
+      return 'all eigenvalues of the dense Cm';
+    case 'lanczos':
+      return 'dense Cm, extreme eigenvalues estimated (Lanczos)';
+    case 'fft-bounds': {
+      const b = d.eigenvalueBounds;
+      const pad = d.embeddingPadding ? ` (embedding ${d.embeddingPadding.join(' × ')})` : '';
+      return b
+        ? `bounds from the FFT embedding${pad}: λ in [${fmt(b.lower)}, ${fmt(b.upper)}], estimates inside`
+        : `bounds from the FFT embedding${pad}`;
+    }
+    default: {
+      const never: never = d.eigenvalueMethod;
+      return String(never);
+    }
+  }
+}
+
+/** The headline; on the FFT route Cm is not factored, so the wording says "proven" instead. */
+export function pdText(level: PdLevel, method: Diagnostics['eigenvalueMethod'] | null): string {
+  if (method === 'fft-bounds') {
+    if (level === 'ok') return 'Cm proven positive definite (bounds from the FFT embedding)';
+    if (level === 'not-pd') return 'Cm not proven positive definite';
+  }
+  return TEXT[level];
+}
+
 const TEXT: Record<PdLevel, string> = {
   ok: 'Cm factors (positive definite)',
   'near-singular': 'Cm is near-singular',
@@ -36,7 +70,7 @@ export function StatusPanel() {
   const level: PdLevel = error ? 'error' : pdLevel(d);
   return (
     <section className={`pd-status pd-${level}`} data-testid="pd-status" data-level={level} aria-live="polite" aria-label="Positive-definiteness status">
-      <strong data-testid="pd-text">{TEXT[level]}</strong>
+      <strong data-testid="pd-text">{pdText(level, d && !error ? d.eigenvalueMethod : null)}</strong>
       {busy && <span className="busy-dot" title="recomputing" aria-label="recomputing" />}
       {d && !error && (
         <span className="pd-numbers">
@@ -46,6 +80,14 @@ export function StatusPanel() {
           </span>
           <span title="Condition number κ = λmax/λmin (∞ when λmin ≤ 0)">
             κ = <span data-testid="pd-condition">{fmt(d.conditionNumber)}</span>
+            {d.conditionUpperBound !== undefined && (
+              <span title="Certified upper bound on κ from the FFT embedding">
+                {' '}(≤ <span data-testid="pd-condition-bound">{fmt(d.conditionUpperBound)}</span>)
+              </span>
+            )}
+          </span>
+          <span className="pd-method" data-testid="pd-method" title="How the eigenvalues were found">
+            {eigenvalueMethodText(d)}
           </span>
           {d.suggestedJitter !== null && (
             <>

@@ -8,7 +8,8 @@ import { KERNEL_NAMES, type KernelName } from '../core/kernels/spec.ts';
 import { correlation } from '../core/kernels/correlation.ts';
 import type { Matrix } from '../core/linalg/matrix.ts';
 import { assertNever } from '../core/linalg/operator.ts';
-import { diagnosePrior } from '../core/prior/diagnostics.ts';
+import { diagnosePriorAuto } from '../core/prior/structuredDiagnostics.ts';
+import { structuredPosteriorDraws } from '../core/inverse/structuredDraws.ts';
 import { priorRealisationsWithRoute } from '../core/sampling/realisations.ts';
 import { posteriorRealisations, posteriorSummary, preparePosterior } from '../core/inverse/posterior.ts';
 import { choosePosteriorPath, FFT_MIN_CELLS, PATH_REQUESTS, type PathRequest } from '../core/inverse/auto.ts';
@@ -208,13 +209,17 @@ const check: Command = {
     'Prints {"positiveDefinite", "failedPivot", "minEigenvalue", "maxEigenvalue", "conditionNumber",\n' +
     '"eigenvalueMethod", "suggestedJitter", "suggestedJitterRelative", "warnings": [{"code", "message"}]}.\n' +
     'conditionNumber is null when it is infinite (λmin ≤ 0); suggestedJitter (variance units, to add to the\n' +
-    'nugget) is null when none is needed. Exit code 0 when positive definite, 3 when not.',
+    'nugget) is null when none is needed. Exit code 0 when positive definite, 3 when not.\n' +
+    'eigenvalueMethod "exact" / "lanczos": the dense Cm was factored; "fft-bounds" (stationary priors on grids\n' +
+    'of 1024 cells or more): no dense matrix, "positiveDefinite" means proven by a certified eigenvalue bracket\n' +
+    'from the FFT embedding, given as "eigenvalueBounds": {"lower", "upper"} with "conditionUpperBound" and\n' +
+    '"embeddingPadding"; min/max eigenvalue and conditionNumber are then Lanczos estimates inside it.',
   options: [PROBLEM, PRIOR, OUT],
   run(args, io) {
     noPositionals(args);
     const { problem, prior } = loadBoth(args, io);
     progress(io, `checking the prior on ${cellCount(problem.grid)} cells …`);
-    const d = diagnosePrior(problem.grid, prior);
+    const d = diagnosePriorAuto(problem.grid, prior);
     emit(
       io,
       args,
@@ -227,6 +232,13 @@ const check: Command = {
         eigenvalueMethod: d.eigenvalueMethod,
         suggestedJitter: d.suggestedJitter,
         suggestedJitterRelative: d.suggestedJitterRelative,
+        ...(d.eigenvalueBounds === undefined
+          ? {}
+          : {
+              eigenvalueBounds: d.eigenvalueBounds,
+              conditionUpperBound: Number.isFinite(d.conditionUpperBound!) ? d.conditionUpperBound : null,
+              embeddingPadding: d.embeddingPadding,
+            }),
         warnings: d.warnings,
       }),
     );
@@ -281,8 +293,19 @@ const sample: Command = {
     progress(io, `drawing ${count} ${post ? 'posterior' : 'prior'} realisations on ${n} cells …`);
     let m: Matrix;
     if (post) {
-      m = posteriorRealisations(preparePosterior(problem, prior), count, seed);
-      io.stderr('priorscope sample: route dense (posterior realisations on the dense path)');
+      // Same path rule as `posterior` (src/core/inverse/auto.ts).
+      if (choosePosteriorPath(problem, prior).path === 'fft') {
+        const r = structuredPosteriorDraws(prepareStructuredPosterior(problem, prior), count, seed);
+        m = r.realisations;
+        io.stderr(
+          `priorscope sample: route fft (posterior realisations by the perturbation update, prior draws ${
+            r.priorRoute === 'fft' ? `by circulant embedding ${r.padding.join(' × ')}` : 'by dense Cholesky'
+          }${r.clipped ? `, negative eigenvalues clipped: relative trace ${r.clippedRelativeTrace.toExponential(2)}` : ', exact'})`,
+        );
+      } else {
+        m = posteriorRealisations(preparePosterior(problem, prior), count, seed);
+        io.stderr('priorscope sample: route dense (posterior realisations on the dense path)');
+      }
     } else {
       const r = priorRealisationsWithRoute(problem.grid, prior, count, seed);
       m = r.realisations;

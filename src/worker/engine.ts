@@ -7,7 +7,8 @@ import { DEMOS } from '../core/problems/demos.ts';
 import type { Problem } from '../core/problems/spec.ts';
 import type { PriorSpec } from '../core/prior/spec.ts';
 import { cellCount } from '../core/grid/grid.ts';
-import { diagnosePrior } from '../core/prior/diagnostics.ts';
+import { diagnosePriorAuto } from '../core/prior/structuredDiagnostics.ts';
+import { structuredPosteriorDraws, structuredResolutionRow } from '../core/inverse/structuredDraws.ts';
 import { covarianceMatrix, meanVector } from '../core/prior/covariance.ts';
 import { priorRealisations } from '../core/sampling/realisations.ts';
 import {
@@ -177,6 +178,8 @@ export class Engine {
   private cached: { key: string; state: PosteriorState } | null = null;
   /** FFT path: the problem with its cached row spectra, so a prior change costs only the inverse transforms. */
   private structured: StructuredProblem | null = null;
+  /** FFT path: the factored state of the latest prior asked for draws or resolution rows (no std). */
+  private structuredCached: { key: string; state: StructuredPosteriorState } | null = null;
 
   constructor(private readonly options: EngineOptions = {}) {}
 
@@ -199,6 +202,17 @@ export class Engine {
     progress('factorising G Cm Gᵀ + Cd', 0.1);
     const state = preparePosterior(problem, prior);
     this.cached = { key, state };
+    return state;
+  }
+
+  /** The FFT-path state (Bᵀ, L, mean) for draws and resolution rows, cached per (problem, prior). */
+  private structuredState(problemVersion: number, prior: PriorSpec, progress: ProgressFn): StructuredPosteriorState {
+    const problem = this.requireProblem(problemVersion);
+    const key = `${problemVersion}:${JSON.stringify(prior)}`;
+    if (this.structuredCached?.key === key) return this.structuredCached.state;
+    progress('factorising G Cm Gᵀ + Cd (FFT path)', 0.1);
+    const state = prepareStructuredPosterior(this.structured ?? (this.structured = structuredProblem(problem)), prior);
+    this.structuredCached = { key, state };
     return state;
   }
 
@@ -262,20 +276,32 @@ export class Engine {
         return { summary, chi2Interval: chi2IntervalOf(summary.dataCount), priorMean: meanVector(problem.grid, r.prior) };
       }
       case 'diagnostics':
-        return diagnosePrior(this.requireProblem(r.problemVersion).grid, r.prior);
+        // Dense (Cholesky + eigenvalues) on small grids, certified FFT bounds on large stationary
+        // ones (src/core/prior/structuredDiagnostics.ts); `eigenvalueMethod` says which ran.
+        return diagnosePriorAuto(this.requireProblem(r.problemVersion).grid, r.prior);
       case 'priorDraws':
         checkCount(r.count);
         return priorRealisations(this.requireProblem(r.problemVersion).grid, r.prior, r.count, r.seed);
-      case 'posteriorDraws':
+      case 'posteriorDraws': {
+        // Same path rule as the posterior (src/core/inverse/auto.ts): on the FFT path the draws
+        // come from the perturbation update with circulant prior draws (no N × N matrix).
         checkCount(r.count);
+        const problem = this.requireProblem(r.problemVersion);
+        if (choosePosteriorPath(problem, r.prior).path === 'fft') {
+          return structuredPosteriorDraws(this.structuredState(r.problemVersion, r.prior, progress), r.count, r.seed).realisations;
+        }
         return posteriorRealisations(this.state(r.problemVersion, r.prior, progress), r.count, r.seed);
+      }
       case 'resolution': {
-        const state = this.state(r.problemVersion, r.prior, progress);
-        const n = cellCount(state.problem.grid);
+        const problem = this.requireProblem(r.problemVersion);
+        const n = cellCount(problem.grid);
         if (!Number.isInteger(r.cell) || r.cell < 0 || r.cell >= n) {
           throw new InputError('cell', `an integer cell index from 0 to ${n - 1}`, r.cell);
         }
-        return { cell: r.cell, row: resolutionRow(state, r.cell) };
+        if (choosePosteriorPath(problem, r.prior).path === 'fft') {
+          return { cell: r.cell, row: structuredResolutionRow(this.structuredState(r.problemVersion, r.prior, progress), r.cell) };
+        }
+        return { cell: r.cell, row: resolutionRow(this.state(r.problemVersion, r.prior, progress), r.cell) };
       }
       case 'covariance': {
         const grid = this.requireProblem(r.problemVersion).grid;
@@ -294,6 +320,7 @@ export class Engine {
     this.problem = problem;
     this.version = version;
     this.cached = null;
+    this.structuredCached = null;
     this.structured = structuredProblem(problem);
   }
 }
