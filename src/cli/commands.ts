@@ -14,7 +14,7 @@ import { priorRealisationsWithRoute } from '../core/sampling/realisations.ts';
 import { posteriorRealisations, posteriorSummary, preparePosterior } from '../core/inverse/posterior.ts';
 import { choosePosteriorPath, FFT_MIN_CELLS, PATH_REQUESTS, type PathRequest } from '../core/inverse/auto.ts';
 import { prepareStructuredPosterior, structuredPosteriorStd, structuredPosteriorSummary } from '../core/inverse/structured.ts';
-import { parallelPosteriorStd, worthSplitting } from '../core/parallel/blocks.ts';
+import { parallelPosteriorStd, varianceFlops } from '../core/parallel/blocks.ts';
 import { defaultThreads, nodeBlockPool } from '../core/parallel/node.ts';
 import { prepareStructuredPosteriorParallel, productsWorthSplitting } from '../core/parallel/products.ts';
 import type { PosteriorSummary } from '../core/inverse/types.ts';
@@ -103,7 +103,7 @@ function pathOption(args: ParsedArgs): PathRequest {
   return text as PathRequest;
 }
 
-/** Parses --threads: given, it is used as is; absent, every core when worthSplitting says so. */
+/** Parses --threads: given, it is used as is; absent, every core when {@link CLI_MIN_SPLIT_FLOPS} says so. */
 function threadsOption(args: ParsedArgs): { threads: number; forced: boolean } {
   const text = optionString(args, 'threads');
   return text === undefined
@@ -112,15 +112,25 @@ function threadsOption(args: ParsedArgs): { threads: number; forced: boolean } {
 }
 
 /**
+ * Below this many multiply-adds of the std solve (M²N/2) the one-shot CLI stays on one thread:
+ * starting the pool (worker threads, tsx's loader in each) costs 0.4–0.7 s here, more than the
+ * split saves. Measured `priorscope posterior` wall time on the 2-core project machine (quiet
+ * moments; --threads 1 → 2, the 2-thread run splitting both the products and the std), crosshole
+ * problems of test/bench/cases/fft.ts on 128²: M = 400 (1.3e9) 1.33–1.72 → 1.72–1.90 s; M = 800
+ * (5.2e9) 2.01–2.03 → 1.98–2.09 s (even); M = 1600 (2.1e10) 6.33–6.47 → 5.32–5.88 s. The
+ * threshold sits between the last two. (A long-lived pool, as in the browser engine, pays its
+ * start once: there src/core/parallel/blocks.ts MIN_SPLIT_FLOPS applies.)
+ */
+export const CLI_MIN_SPLIT_FLOPS = 1e10;
+
+/**
  * The posterior through the path `requested` resolves to (src/core/inverse/auto.ts). On the FFT
- * path, with `threads` ≥ 2, the standard deviations' column blocks go to `threads` worker threads
- * when that is worth it (src/core/parallel/blocks.ts worthSplitting), and then the mean's Bᵀ
- * products use the same pool (src/core/parallel/products.ts: the caller and threads − 1 workers,
- * when productsWorthSplitting). A pool is not started for the products alone: starting the
- * workers (tsx's loader in each) costs 300–700 ms here, more than the split saves on any mean
- * that is not followed by a split std; the pool is started before the mean so the workers boot
- * while the caller computes its share. `forced` (an explicit --threads) splits both whatever the
- * size. The result is bit-identical for every thread count.
+ * path, with `threads` ≥ 2 and a std solve of at least {@link CLI_MIN_SPLIT_FLOPS} (or `forced`,
+ * an explicit --threads), a pool of `threads` worker threads is started before the mean, so the
+ * workers boot while the caller computes its share: the mean's Bᵀ products split over the caller
+ * and threads − 1 workers (src/core/parallel/products.ts, when productsWorthSplitting or forced),
+ * then the std's column blocks over all threads (src/core/parallel/blocks.ts). A pool is never
+ * started for the products alone. The result is bit-identical for every thread count.
  */
 export async function cliPosterior(
   problem: Parameters<typeof choosePosteriorPath>[0],
@@ -133,7 +143,7 @@ export async function cliPosterior(
   if (decision.path === 'dense') return { summary: posteriorSummary(preparePosterior(problem, prior)), reason: decision.reason, threadsUsed: 1 };
   const m = problem.data.values.length;
   const n = cellCount(problem.grid);
-  if (threads < 2 || (!forced && !worthSplitting(m, n, threads))) {
+  if (threads < 2 || (!forced && varianceFlops(m, n) < CLI_MIN_SPLIT_FLOPS)) {
     const state = prepareStructuredPosterior(problem, prior);
     return { summary: structuredPosteriorSummary(state, structuredPosteriorStd(state)), reason: decision.reason, threadsUsed: 1 };
   }
@@ -163,8 +173,8 @@ const posterior: Command = {
     `regular grid of at least ${FFT_MIN_CELLS} cells and the dense path otherwise; "path" in the output says which ran. Both\n` +
     'give the same numbers to round-off. --path fft on a problem the FFT path cannot take is an error (exit 2).\n' +
     '--threads T splits the FFT path\'s standard deviations and the mean\'s covariance products over T threads\n' +
-    '(default: every core when the solve is large enough to gain, about 128² cells with 400 data; results are\n' +
-    'identical for every T).',
+    '(default: every core when the solve is large enough to gain over starting the threads, about 128² cells\n' +
+    'with 1600 data; results are identical for every T).',
   options: [
     PROBLEM,
     PRIOR,
