@@ -1,9 +1,13 @@
 /**
- * The browser side of the column split: a BlockPool (src/core/parallel/blocks.ts) of Web Workers
- * running ./poolWorker.ts, one per core (navigator.hardwareConcurrency). Created lazily by the
- * numerics worker the first time a posterior is large enough to split (worthSplitting); results are
- * bit-identical to one thread (test/core/parallel/blocks.test.ts runs the same tasks over
- * worker_threads).
+ * The browser side of the thread split: a BlockPool (src/core/parallel/blocks.ts) of Web Workers
+ * running ./poolWorker.ts, one per core (navigator.hardwareConcurrency). The workers answer both
+ * task kinds of src/core/parallel/pool.ts: the std's column blocks and the mean's Bᵀ products
+ * (src/core/parallel/products.ts prepareStructuredPosteriorParallel; each worker keeps its share's
+ * spectra between prior changes). Bᵀ is shared (SharedArrayBuffer) only when the page is
+ * crossOriginIsolated; otherwise the rows come back transferred. Created lazily by the numerics
+ * worker the first time a posterior is large enough to split (worthSplitting /
+ * productsWorthSplitting); results are bit-identical to one thread (test/core/parallel runs the
+ * same tasks over worker_threads).
  */
 import type { BlockPool } from '../core/parallel/blocks.ts';
 import { portPool, type TaskPort } from '../core/parallel/pool.ts';

@@ -1,5 +1,8 @@
 /// <reference lib="webworker" />
-/** Web Worker entry of the variance pool (./pool.ts): answers {id, task} with src/core/parallel/pool.ts answerTask. */
+/**
+ * Web Worker entry of the thread pool (./pool.ts): answers {id, task} (variance blocks and Bᵀ
+ * products) with src/core/parallel/pool.ts answerTask, which keeps this worker's products spectra.
+ */
 import { answerTask, type TaskRequest } from '../core/parallel/pool.ts';
 
 const scope = self as unknown as DedicatedWorkerGlobalScope;

@@ -23,7 +23,7 @@
  *   crossOriginIsolated): the threads write their rows in place. Otherwise each thread returns its
  *   rows (transferred, not copied) and the caller copies them into Bᵀ.
  *
- * PUBLIC API: ProductsTask, ProductsResult, ProductsThreadState, runProductsTask, pairRanges,
+ * PUBLIC API: ProductsTask, ProductsResult, ProductsThreadState, ParallelProductsOptions, runProductsTask, pairRanges,
  * sharedMemoryAvailable, productWork, MIN_PRODUCT_SPLIT_WORK, productsWorthSplitting,
  * prepareStructuredPosteriorParallel.
  */
