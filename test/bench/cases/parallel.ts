@@ -11,8 +11,7 @@
  *   npx tsx test/bench/cases/parallel.ts [--filter TEXT] [--runs K]
  * prints JSON {cases: [{name, median_ms, min_ms, times_ms}], poolStartMs, load}; the runs are interleaved
  * (each round runs every selected case once) so other load falls on all variants alike. The shared harness
- * (test/bench/run.ts) picks up `cases` too but does not await a returned promise, so its numbers
- * for the split cases only time the synchronous part (see the report of this file's author).
+ * (test/bench/run.ts) picks up `cases` too and awaits each run, but runs the cases one after the other.
  * The pool (one per process, started on first use) does not keep the process alive when idle.
  */
 import { loadavg } from 'node:os';
