@@ -20,6 +20,7 @@ import { covarianceMatrix } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import { circulantEmbedding, gridAxes, productPadding, stationaryCovariance } from './embedding.ts';
 import { Fft2 } from './fft2.ts';
+import { fftEngine, type FftEngine } from '../wasm/fft.ts';
 
 export type CovariancePath = 'fft' | 'dense';
 
@@ -80,6 +81,14 @@ export function isStationaryOnGrid(grid: Grid, prior: PriorSpec): boolean {
  * so buffers hold ny (not py) rows. The "row spectrum" R = F_x pad(a + i b) (ny rows of px complex
  * values) depends only on the vectors, not on the prior: it is what callers cache.
  * Workspace is per instance; not for concurrent use.
+ *
+ * With WebAssembly SIMD (and px, py ≥ 4) the same product runs in the kernel of
+ * ../wasm/fftModule.ts (Stockham radix-4, natural order): x-passes on the rows that hold data
+ * (the zero half px/2 … px − 1 of each padded row is not read), F_y over all columns at once
+ * (rows ≥ py/2 not read), × λ/P, F_y again, x-passes on the rows 0 and py − ny + 1 … py − 1 that
+ * are wanted. Full spectra are saved in Fft2.rowFilter's row order ({@link Fft2.spectrumRowOrder})
+ * so saved spectra work on either route. Which route runs is fixed per instance at construction;
+ * every instance in a realm takes the same one, so split and threaded runs stay bit-identical.
  */
 export class CirculantProduct {
   readonly nx: number;
@@ -95,6 +104,10 @@ export class CirculantProduct {
   private readonly work: Float64Array;
   private readonly rowIn: Float64Array;
   private readonly rowOut: Float64Array;
+  /** The WebAssembly engine, or null for the JavaScript route. */
+  private readonly engine: FftEngine | null;
+  /** λ/(px·py) in the eigenvalues' layout (x fastest), for the WebAssembly route. */
+  private readonly lambdaN: Float64Array | null;
 
   constructor(grid: Grid, prior: PriorSpec, padding?: readonly [number, number]) {
     const { nx, ny } = gridAxes(grid);
@@ -117,6 +130,31 @@ export class CirculantProduct {
     // One padded input row (its tail beyond nx stays zero) and one transformed output row.
     this.rowIn = new Float64Array(2 * px);
     this.rowOut = new Float64Array(2 * px);
+    this.engine = px >= 4 && py >= 4 ? fftEngine() : null;
+    this.lambdaN = this.engine === null ? null : this.eigenvalues.map((v) => v * scale);
+  }
+
+  /** Whether products run in the WebAssembly kernel (else fft.js and Fft2's JavaScript y-pass). */
+  get usesWasm(): boolean {
+    return this.engine !== null;
+  }
+
+  /**
+   * Byte addresses of the kernel regions (after the twiddle tables and the resident λ): Y, Z, T of
+   * px·py complex values (T the kernel's scratch), X of px·ny; and a current view of the memory.
+   */
+  private regions(e: FftEngine) {
+    const { px, py, ny } = this;
+    e.twiddles(px, false);
+    e.twiddles(py, false);
+    const { at: lam, end } = e.resident(this.lambdaN!);
+    const full = 16 * px * py;
+    const y = end;
+    const z = y + full;
+    const t = z + full;
+    const x = t + full;
+    const view = e.reserve(x + 16 * px * ny);
+    return { lam, y, z, t, x, view };
   }
 
   /** Length of one row spectrum (interleaved complex, px·ny values). */
@@ -129,6 +167,7 @@ export class CirculantProduct {
    * imaginary part). a and b are grid vectors of length nx·ny.
    */
   spectrum(a: ArrayLike<number>, b: ArrayLike<number> | null, out: Float64Array): Float64Array {
+    if (this.engine !== null) return this.spectrumWasm(this.engine, a, b, out);
     const { nx, ny, px } = this;
     const row = this.rowIn;
     const w = 2 * px;
@@ -157,6 +196,52 @@ export class CirculantProduct {
     return out;
   }
 
+  private spectrumWasm(e: FftEngine, a: ArrayLike<number>, b: ArrayLike<number> | null, out: Float64Array): Float64Array {
+    const { nx, ny, px } = this;
+    const { x, z, t, view } = this.regions(e);
+    const w = 2 * px;
+    const x0 = x / 8;
+    const z0 = z / 8;
+    const rowBytes = 16 * px;
+    // Runs of rows holding data are transformed in one call each; all-zero rows give zero rows.
+    let start = -1;
+    const flush = (end: number): void => {
+      if (start < 0) return;
+      e.run(x + rowBytes * start, z + rowBytes * start, t, px, 1, end - start, rowBytes, false, true);
+      out.set(view.subarray(z0 + w * start, z0 + w * end), w * start);
+      start = -1;
+    };
+    for (let iy = 0; iy < ny; iy++) {
+      const o = x0 + w * iy;
+      const g = nx * iy;
+      let any = false;
+      for (let ix = 0; ix < nx; ix++) {
+        const v = a[g + ix]!;
+        view[o + 2 * ix] = v;
+        if (v !== 0) any = true;
+      }
+      if (b !== null) {
+        for (let ix = 0; ix < nx; ix++) {
+          const v = b[g + ix]!;
+          view[o + 2 * ix + 1] = v;
+          if (v !== 0) any = true;
+        }
+      } else {
+        for (let ix = 0; ix < nx; ix++) view[o + 2 * ix + 1] = 0;
+      }
+      // The kernel does not read the upper half (px/2 … px − 1); nx … px/2 − 1 must be zero.
+      if (any) {
+        view.fill(0, o + 2 * nx, o + px);
+        if (start < 0) start = iy;
+      } else {
+        flush(iy);
+        out.fill(0, w * iy, w * (iy + 1));
+      }
+    }
+    flush(ny);
+    return out;
+  }
+
   /** Length of one full 2-D spectrum (px·py complex values, in Fft2.rowFilter's order). */
   get columnSpectrumLength(): number {
     return 2 * this.px * this.py;
@@ -169,6 +254,10 @@ export class CirculantProduct {
    * {@link fromColumnSpectrum}.
    */
   fromSpectrum(spec: Float64Array, outA: Float64Array, outB: Float64Array | null, offsetA = 0, offsetB = 0, save: Float64Array | null = null): void {
+    if (this.engine !== null) {
+      this.fromSpectrumWasm(this.engine, spec, outA, outB, offsetA, offsetB, save);
+      return;
+    }
     // Forward transforms only: y = (1/P) R F (λ ⊙ F x); rows come back reversed from the column
     // filter, columns are read at −ix mod px in finish().
     this.fft.rowFilter(spec, this.lambdaT, this.ny, this.ny, this.work, save);
@@ -177,8 +266,78 @@ export class CirculantProduct {
 
   /** As {@link fromSpectrum}, from a full 2-D spectrum kept by its `save` (one y-pass less). */
   fromColumnSpectrum(spec: Float64Array, outA: Float64Array, outB: Float64Array | null, offsetA = 0, offsetB = 0): void {
+    if (this.engine !== null) {
+      const { px, py } = this;
+      const r = this.regions(this.engine);
+      const order = this.fft.spectrumRowOrder();
+      const w = 2 * px;
+      for (let p = 0; p < py; p++) r.view.set(spec.subarray(w * p, w * (p + 1)), r.z / 8 + w * order[p]!);
+      this.filterWasm(this.engine, r, outA, outB, offsetA, offsetB);
+      return;
+    }
     this.fft.rowFilterCached(spec, this.lambdaT, this.ny, this.work);
     this.finish(outA, outB, offsetA, offsetB);
+  }
+
+  private fromSpectrumWasm(
+    e: FftEngine,
+    spec: Float64Array,
+    outA: Float64Array,
+    outB: Float64Array | null,
+    offsetA: number,
+    offsetB: number,
+    save: Float64Array | null,
+  ): void {
+    const { px, py, ny } = this;
+    const r = this.regions(e);
+    const w = 2 * px;
+    const y0 = r.y / 8;
+    r.view.set(spec.subarray(0, w * ny), y0);
+    // Rows ny … py/2 − 1 are zero; rows ≥ py/2 are not read (py ≥ 2 ny).
+    r.view.fill(0, y0 + w * ny, y0 + w * (py >> 1));
+    e.run(r.y, r.z, r.t, py, px, 1, 0, false, true);
+    if (save !== null) {
+      if (save.length < w * py) throw new RangeError(`CirculantProduct.fromSpectrum: save has length ${save.length}, expected ${w * py}`);
+      const order = this.fft.spectrumRowOrder();
+      const z0 = r.z / 8;
+      for (let p = 0; p < py; p++) save.set(r.view.subarray(z0 + w * order[p]!, z0 + w * (order[p]! + 1)), w * p);
+    }
+    this.filterWasm(e, r, outA, outB, offsetA, offsetB);
+  }
+
+  /**
+   * From the full spectrum in region Z (natural order): × λ/P, F_y into Y, x-passes on the rows
+   * t ↦ (−t mod py) that are wanted into X, and out[t][ix] = X[t'][−ix mod px] (re → outA, im → outB).
+   */
+  private filterWasm(
+    e: FftEngine,
+    r: ReturnType<CirculantProduct['regions']>,
+    outA: Float64Array,
+    outB: Float64Array | null,
+    offsetA: number,
+    offsetB: number,
+  ): void {
+    const { nx, ny, px, py } = this;
+    const rowBytes = 16 * px;
+    e.scale(r.z, r.lam, px * py);
+    e.run(r.z, r.y, r.t, py, px, 1, 0, false);
+    // X row 0 ← F_x Y row 0; X rows 1 … ny − 1 ← F_x Y rows py − ny + 1 … py − 1 (t = ny − j).
+    e.run(r.y, r.x, r.t, px, 1, 1, rowBytes, false);
+    if (ny > 1) e.run(r.y + rowBytes * (py - ny + 1), r.x + rowBytes, r.t, px, 1, ny - 1, rowBytes, false);
+    const v = r.view;
+    const w = 2 * px;
+    const x0 = r.x / 8;
+    for (let j = 0; j < ny; j++) {
+      const t = j === 0 ? 0 : ny - j;
+      const o = x0 + w * j;
+      const g = nx * t;
+      outA[offsetA + g] = v[o]!;
+      for (let ix = 1; ix < nx; ix++) outA[offsetA + g + ix] = v[o + 2 * (px - ix)]!;
+      if (outB !== null) {
+        outB[offsetB + g] = v[o + 1]!;
+        for (let ix = 1; ix < nx; ix++) outB[offsetB + g + ix] = v[o + 2 * (px - ix) + 1]!;
+      }
+    }
   }
 
   private finish(outA: Float64Array, outB: Float64Array | null, offsetA: number, offsetB: number): void {

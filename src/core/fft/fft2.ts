@@ -294,6 +294,18 @@ export class Fft2 {
   }
 
 
+  private orderCache: Int32Array | null = null;
+
+  /**
+   * The row order of spectra saved by {@link rowFilter}: row p holds frequency ky = order[p]
+   * (other implementations of the same product, e.g. the WebAssembly route of CirculantProduct,
+   * save and read spectra in this order so that saved spectra stay interchangeable).
+   */
+  spectrumRowOrder(): Int32Array {
+    if (this.orderCache === null) this.orderCache = this.py === 1 ? Int32Array.of(0) : this.spectrumOrder();
+    return this.orderCache;
+  }
+
   /**
    * Which frequency ky each row of the DIF output holds (a digit reversal for the radix-2/4
    * stages), found by transforming the impulse at y = 1: row p then holds e^(−2πi ky/py).

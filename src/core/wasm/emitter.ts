@@ -41,6 +41,9 @@ export const Op = {
   i32Sub: 0x6b,
   i32Mul: 0x6c,
   i32Shl: 0x74,
+  i32ShrU: 0x76,
+  i32And: 0x71,
+  select: 0x1b,
   f64Add: 0xa0,
   f64Sub: 0xa1,
   f64Mul: 0xa2,
@@ -56,6 +59,8 @@ export const SimdOp = {
   f64x2Add: 0xf0,
   f64x2Sub: 0xf1,
   f64x2Mul: 0xf2,
+  /** i8x16.shuffle: 16 lane-index immediates, each < 32 (lanes of the first operand, then the second). */
+  i8x16Shuffle: 0x0d,
 } as const;
 
 /** Block type "no result" (spec §5.4.1). */
@@ -112,6 +117,10 @@ export class FunctionBuilder {
   f64Sub(): this { return this.op(Op.f64Sub); }
   f64Mul(): this { return this.op(Op.f64Mul); }
   drop(): this { return this.op(Op.drop); }
+  i32ShrU(): this { return this.op(Op.i32ShrU); }
+  i32And(): this { return this.op(Op.i32And); }
+  /** `select`: pops c, then b, then a; pushes c ≠ 0 ? a : b. */
+  select(): this { return this.op(Op.select); }
   i32Load(offset = 0): this { return this.op(Op.i32Load, ...this.memarg(2, offset)); }
   f64Load(offset = 0): this { return this.op(Op.f64Load, ...this.memarg(3, offset)); }
   f64Store(offset = 0): this { return this.op(Op.f64Store, ...this.memarg(3, offset)); }
@@ -124,6 +133,20 @@ export class FunctionBuilder {
   f64x2Add(): this { return this.simd(SimdOp.f64x2Add); }
   f64x2Sub(): this { return this.simd(SimdOp.f64x2Sub); }
   f64x2Mul(): this { return this.simd(SimdOp.f64x2Mul); }
+  /** i8x16.shuffle of the two v128 operands by byte lanes (0–15 first operand, 16–31 second). */
+  i8x16Shuffle(lanes: readonly number[]): this {
+    if (lanes.length !== 16 || lanes.some((l) => !Number.isInteger(l) || l < 0 || l > 31)) {
+      throw new RangeError(`i8x16Shuffle: lanes must be 16 integers in [0, 32), got [${lanes.join(', ')}]`);
+    }
+    return this.simd(SimdOp.i8x16Shuffle, ...lanes);
+  }
+  /**
+   * Pushes the v128 local `index` with its two f64 lanes swapped, (x0, x1) → (x1, x0): an
+   * i8x16.shuffle of the local with itself taking bytes 8–15 then 0–7.
+   */
+  swappedLanes(index: number): this {
+    return this.get(index).get(index).i8x16Shuffle([8, 9, 10, 11, 12, 13, 14, 15, 0, 1, 2, 3, 4, 5, 6, 7]);
+  }
 
   /** `block … end`: `br`/`brIf` with depth 0 inside jumps to its end. */
   block(body: (f: this) => void): this {
