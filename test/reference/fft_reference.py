@@ -6,6 +6,8 @@ array of shape (py, px).
 
 ops:
   fft2        {"px", "py", "re", "im", "inverse"} -> numpy.fft.fft2 / numpy.fft.ifft2
+  fft1        {"n", "count", "re", "im", "inverse"} -> numpy.fft.fft / numpy.fft.ifft of each of the
+              count rows of length n (shape (count, n))
   cov_apply   {"grid", "prior", "x": [[...], ...]} -> Cm @ x for each vector, Cm built here from the
               kernel formulas (Matérn through scipy.special.kv, Rasmussen & Williams 2006 eq. 4.14)
   bccb_eigs   {"px", "py", "base"} -> numpy.linalg.eigvalsh of the explicitly formed block-circulant
@@ -33,6 +35,10 @@ def run(case):
     if op == "fft2":
         a = (np.asarray(case["re"]) + 1j * np.asarray(case["im"])).reshape(case["py"], case["px"])
         b = np.fft.ifft2(a) if case.get("inverse") else np.fft.fft2(a)
+        return {"re": b.real.ravel().tolist(), "im": b.imag.ravel().tolist()}
+    if op == "fft1":
+        a = (np.asarray(case["re"]) + 1j * np.asarray(case["im"])).reshape(case["count"], case["n"])
+        b = np.fft.ifft(a, axis=1) if case.get("inverse") else np.fft.fft(a, axis=1)
         return {"re": b.real.ravel().tolist(), "im": b.imag.ravel().tolist()}
     if op == "cov_apply":
         c = covariance(case["grid"], case["prior"])

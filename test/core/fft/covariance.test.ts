@@ -4,7 +4,9 @@
  * outside check in test/reference/fft.test.ts.
  */
 import { describe, expect, it } from 'vitest';
-import { covarianceOperator, isStationaryOnGrid, nonStationaryReason } from '../../../src/core/fft/covariance.ts';
+import { CirculantProduct, covarianceOperator, isStationaryOnGrid, nonStationaryReason } from '../../../src/core/fft/covariance.ts';
+import type { PriorSpec } from '../../../src/core/prior/spec.ts';
+import { forceWasmOffForTesting } from '../../../src/core/wasm/runtime.ts';
 import { cellCount, type Grid } from '../../../src/core/grid/grid.ts';
 import { diagonal, matvec } from '../../../src/core/linalg/matrix.ts';
 import { covarianceMatrix } from '../../../src/core/prior/covariance.ts';
@@ -65,4 +67,64 @@ describe('padding and path', () => {
     const { grid, prior } = COVARIANCE_CASES[0]!;
     expect(() => covarianceOperator(grid, prior).apply(new Float64Array(5))).toThrow(/x must be a vector of length 23/);
   });
+});
+
+describe('CirculantProduct: WebAssembly route vs the JavaScript route (fft.js, Fft2.rowFilter)', () => {
+  // Odd sizes leave zero rows between ny and py/2 and columns between nx and px/2; 64 × 64 is the
+  // benchmark shape (no gap). Each pair of vectors has all-zero grid rows (runs of data rows).
+  const shapes: [number, number][] = [[9, 7], [16, 5], [3, 12], [64, 64]];
+  const prior: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 1.3, lengths: [3, 1.5], angle: 25 }] };
+  for (const [nx, ny] of shapes) {
+    it(`${nx} × ${ny}: products agree to 1e-12, saved spectra are interchangeable, fallback when SIMD is off`, () => {
+      const grid: Grid = { shape: [nx, ny], spacing: [1, 0.8] };
+      const n = nx * ny;
+      const wasm = new CirculantProduct(grid, prior);
+      forceWasmOffForTesting(true);
+      let js: CirculantProduct;
+      try {
+        js = new CirculantProduct(grid, prior);
+      } finally {
+        forceWasmOffForTesting(false);
+      }
+      expect(wasm.usesWasm).toBe(true);
+      expect(js.usesWasm).toBe(false);
+      const a = seededVector(n, 5 + nx);
+      const b = seededVector(n, 6 + ny);
+      a.fill(0, 0, nx); // grid row 0 zero in a only
+      a.fill(0, nx * (ny - 1));
+      b.fill(0, nx * (ny - 1)); // last grid row zero in both
+      const out = (cp: CirculantProduct, spec: Float64Array, cached: boolean) => {
+        const oa = new Float64Array(n);
+        const ob = new Float64Array(n);
+        if (cached) cp.fromColumnSpectrum(spec, oa, ob);
+        else cp.fromSpectrum(spec, oa, ob);
+        return [oa, ob] as const;
+      };
+      const specW = wasm.spectrum(a, b, new Float64Array(wasm.spectrumLength));
+      const specJ = js.spectrum(a, b, new Float64Array(js.spectrumLength));
+      expect(relErr(specW, specJ)).toBeLessThan(1e-14);
+      const saveW = new Float64Array(wasm.columnSpectrumLength);
+      const saveJ = new Float64Array(js.columnSpectrumLength);
+      const ow = new Float64Array(n);
+      const owb = new Float64Array(n);
+      wasm.fromSpectrum(specW, ow, owb, 0, 0, saveW);
+      const [oj, ojb] = out(js, specJ, false);
+      js.fromSpectrum(specJ, new Float64Array(n), null, 0, 0, saveJ);
+      expect(relErr(ow, oj)).toBeLessThan(1e-12);
+      expect(relErr(owb, ojb)).toBeLessThan(1e-12);
+      expect(relErr(saveW, saveJ)).toBeLessThan(1e-13);
+      // Each route reads the other's saved spectrum (same row order), and its own bit for bit.
+      const [cw] = out(wasm, saveJ, true);
+      const [cj] = out(js, saveW, true);
+      expect(relErr(cw, oj)).toBeLessThan(1e-12);
+      expect(relErr(cj, ow)).toBeLessThan(1e-12);
+      const [again, againB] = out(wasm, saveW, true);
+      expect(Array.from(again)).toEqual(Array.from(ow));
+      expect(Array.from(againB)).toEqual(Array.from(owb));
+      // The check can fail: a different prior gives a different product.
+      const other = new CirculantProduct(grid, { ...prior, terms: [{ kernel: 'matern', nu: 1.5, variance: 1.3, length: 2 }] });
+      const [ox] = out(other, saveW, true);
+      expect(relErr(ox, oj)).toBeGreaterThan(1e-6);
+    });
+  }
 });
