@@ -1,0 +1,58 @@
+/**
+ * The engine's diagnostics, posterior draws and resolution rows on large grids: the FFT routes
+ * (no N × N matrix) are chosen by the same rules as the core (src/core/inverse/auto.ts for the
+ * posterior, src/core/prior/structuredDiagnostics.ts for the diagnostics) and give the core's
+ * numbers; on small problems the dense routes are kept.
+ */
+import { describe, expect, it } from 'vitest';
+import { Engine } from '../../src/worker/engine.ts';
+import { prepareStructuredPosterior } from '../../src/core/inverse/structured.ts';
+import { structuredPosteriorDraws } from '../../src/core/inverse/structuredDraws.ts';
+import { posteriorRealisations, preparePosterior, resolutionRow } from '../../src/core/inverse/posterior.ts';
+import { STRUCTURED_DIAGNOSTICS_MIN_CELLS } from '../../src/core/prior/structuredDiagnostics.ts';
+import type { Diagnostics } from '../../src/core/prior/diagnostics.ts';
+import type { Matrix } from '../../src/core/linalg/matrix.ts';
+import type { Problem } from '../../src/core/problems/spec.ts';
+import { relErr } from '../core/fft/cases.ts';
+import { PRIOR, profileProblem, sameBits } from './problems.ts';
+
+async function engineWith(problem: Problem): Promise<Engine> {
+  const engine = new Engine();
+  await engine.handle({ id: 1, kind: 'setProblem', version: 1, problem });
+  return engine;
+}
+
+describe('Engine: FFT routes for draws, resolution and diagnostics', () => {
+  it('160 cells (FFT posterior path): draws equal the core FFT draws bit for bit; resolution rows equal the dense ones', async () => {
+    const problem = profileProblem(160, 'full');
+    const engine = await engineWith(problem);
+    const draws = (await engine.handle({ id: 2, kind: 'posteriorDraws', problemVersion: 1, prior: PRIOR, count: 4, seed: 9 })) as Matrix;
+    const want = structuredPosteriorDraws(prepareStructuredPosterior(problem, PRIOR), 4, 9).realisations;
+    expect(sameBits(draws.data, want.data)).toBe(true);
+    // Not the dense path's stream (so the test tells the routes apart).
+    expect(sameBits(draws.data, posteriorRealisations(preparePosterior(problem, PRIOR), 4, 9).data)).toBe(false);
+    const dense = preparePosterior(problem, PRIOR);
+    for (const cell of [0, 37, 159]) {
+      const r = (await engine.handle({ id: 3, kind: 'resolution', problemVersion: 1, prior: PRIOR, cell })) as { cell: number; row: Float64Array };
+      expect(r.cell).toBe(cell);
+      expect(relErr(r.row, resolutionRow(dense, cell))).toBeLessThan(1e-10);
+    }
+    await expect(engine.handle({ id: 4, kind: 'resolution', problemVersion: 1, prior: PRIOR, cell: 160 })).rejects.toThrow('cell must be an integer cell index from 0 to 159, got 160');
+  });
+
+  it('100 cells (dense posterior path): draws are the dense ones', async () => {
+    const problem = profileProblem(100, 'diagonal');
+    const engine = await engineWith(problem);
+    const draws = (await engine.handle({ id: 2, kind: 'posteriorDraws', problemVersion: 1, prior: PRIOR, count: 3, seed: 9 })) as Matrix;
+    expect(sameBits(draws.data, posteriorRealisations(preparePosterior(problem, PRIOR), 3, 9).data)).toBe(true);
+  });
+
+  it(`diagnostics: exact below ${STRUCTURED_DIAGNOSTICS_MIN_CELLS} cells, FFT bounds from there`, async () => {
+    const small = (await (await engineWith(profileProblem(160, 'diagonal'))).handle({ id: 2, kind: 'diagnostics', problemVersion: 1, prior: PRIOR })) as Diagnostics;
+    expect(small.eigenvalueMethod).toBe('exact');
+    const big = (await (await engineWith(profileProblem(2048, 'diagonal'))).handle({ id: 2, kind: 'diagnostics', problemVersion: 1, prior: PRIOR })) as Diagnostics;
+    expect(big.eigenvalueMethod).toBe('fft-bounds');
+    expect(big.positiveDefinite).toBe(true);
+    expect(big.eigenvalueBounds!.lower).toBeGreaterThan(0);
+  });
+});
