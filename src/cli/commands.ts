@@ -8,7 +8,7 @@ import { KERNEL_NAMES, type KernelName } from '../core/kernels/spec.ts';
 import { correlation } from '../core/kernels/correlation.ts';
 import type { Matrix } from '../core/linalg/matrix.ts';
 import { assertNever } from '../core/linalg/operator.ts';
-import { diagnosePriorAuto } from '../core/prior/structuredDiagnostics.ts';
+import { diagnosePriorAuto, STRUCTURED_DIAGNOSTICS_MIN_CELLS } from '../core/prior/structuredDiagnostics.ts';
 import { structuredPosteriorDraws } from '../core/inverse/structuredDraws.ts';
 import { priorRealisationsWithRoute } from '../core/sampling/realisations.ts';
 import { posteriorRealisations, posteriorSummary, preparePosterior } from '../core/inverse/posterior.ts';
@@ -221,7 +221,7 @@ const check: Command = {
     'conditionNumber is null when it is infinite (λmin ≤ 0); suggestedJitter (variance units, to add to the\n' +
     'nugget) is null when none is needed. Exit code 0 when positive definite, 3 when not.\n' +
     'eigenvalueMethod "exact" / "lanczos": the dense Cm was factored; "fft-bounds" (stationary priors on grids\n' +
-    'of 1024 cells or more): no dense matrix, "positiveDefinite" means proven by a certified eigenvalue bracket\n' +
+    `of ${STRUCTURED_DIAGNOSTICS_MIN_CELLS} cells or more): no dense matrix, "positiveDefinite" means proven by a certified eigenvalue bracket\n` +
     'from the FFT embedding, given as "eigenvalueBounds": {"lower", "upper"} with "conditionUpperBound" and\n' +
     '"embeddingPadding"; min/max eigenvalue and conditionNumber are then Lanczos estimates inside it.',
   options: [PROBLEM, PRIOR, OUT],

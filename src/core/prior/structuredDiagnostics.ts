@@ -68,12 +68,13 @@ import type { PriorSpec } from './spec.ts';
 
 /**
  * Smallest N for which {@link diagnosePriorAuto} takes the FFT route. Measured (Node, this
- * machine, shared, 2 cores; test/bench/structuredDiagnostics.ts): dense diagnostics take 0.06 s at
- * N = 400, 0.45 s at N = 1024 and 2.9 s at 48² = 2304; the FFT route 10–60 ms from N = 400 to 4096.
- * Below 1024 the dense route stays under half a second and gives exact eigenvalues and a
- * Cholesky verdict, so it is kept there.
+ * machine: 2 cores shared with other jobs; test/bench/structuredDiagnostics.ts, Matérn ν = 1.5,
+ * length n/8, nugget 1e-4, medians): dense 66 / 54 / 112 / 462 / 1518 ms at N = 256 / 400 / 576 /
+ * 1024 / 2304; FFT bounds 30 / 23 / 25 / 33 / 59 ms, and 84 ms at 64², 303 ms at 128². Below
+ * 512 cells the dense route stays within about 0.1 s and gives exact eigenvalues and a Cholesky
+ * verdict (it can also confirm priors the bracket cannot prove), so it is kept there.
  */
-export const STRUCTURED_DIAGNOSTICS_MIN_CELLS = 1024;
+export const STRUCTURED_DIAGNOSTICS_MIN_CELLS = 512;
 /** Lanczos steps on the FFT route (each one FFT product and a reorthogonalisation against all earlier vectors). */
 export const STRUCTURED_LANCZOS_STEPS = 60;
 /** Largest Lanczos basis kept (doubles): fewer steps on very large grids. */
