@@ -24,7 +24,7 @@
  * ../fft/embedding.ts evenRealSpectrum; our choice). The kernel values themselves carry a relative
  * error of a few ε, and the dense path evaluates them by a different formula (./lag.ts), so we add
  * δ_kernel = 4ε·Σ|c̃| (a perturbation with |E_ij| ≤ 4ε|C_ij| has ‖E‖₂ ≤ 4ε·max row sum of |C|;
- * Higham Lemma 6.6-style norm bound, derived). The bracket widens by δ = δ_fft + δ_kernel on both
+ * ‖E‖₂ ≤ √(‖E‖₁‖E‖∞), derived). The bracket widens by δ = δ_fft + δ_kernel on both
  * sides before the profile and nugget are applied. A lower end > 0 therefore PROVES Cm positive
  * definite (in the arithmetic sense: the matrix of computed kernel values is).
  *
