@@ -9,6 +9,7 @@ import type { PriorSpec } from '../core/prior/spec.ts';
 import { cellCount } from '../core/grid/grid.ts';
 import { diagnosePriorAuto } from '../core/prior/structuredDiagnostics.ts';
 import { structuredPosteriorDraws, structuredResolutionRow } from '../core/inverse/structuredDraws.ts';
+import { prepareStructuredPosteriorParallel, productsWorthSplitting } from '../core/parallel/products.ts';
 import { covarianceMatrix, meanVector } from '../core/prior/covariance.ts';
 import { priorRealisations } from '../core/sampling/realisations.ts';
 import {
@@ -165,7 +166,7 @@ export function problemView(
   };
 }
 
-/** Optional thread pool for the FFT path's standard deviations (src/worker/pool.ts lazyPool in the browser). */
+/** Optional thread pool for the FFT path's products and standard deviations (src/worker/pool.ts lazyPool in the browser). */
 export interface EngineOptions {
   readonly pool?: { get(): BlockPool; readonly threads: number };
   /** Variance work from which a partial posterior is sent ({@link PARTIAL_MIN_FLOPS} by default; 0: always on the FFT path). */
@@ -205,13 +206,23 @@ export class Engine {
     return state;
   }
 
-  /** The FFT-path state (Bᵀ, L, mean) for draws and resolution rows, cached per (problem, prior). */
-  private structuredState(problemVersion: number, prior: PriorSpec, progress: ProgressFn): StructuredPosteriorState {
+  /**
+   * The FFT-path state (Bᵀ, L, mean) of (problem, prior), cached for the latest prior: the
+   * posterior computes it, draws and resolution rows of the same prior reuse it. The Bᵀ products
+   * are split over the pool when src/core/parallel/products.ts finds it worthwhile (same bits as
+   * one thread); one StructuredProblem per problem, so each thread finds its row spectra again.
+   */
+  private async structuredState(problemVersion: number, prior: PriorSpec, progress: ProgressFn): Promise<StructuredPosteriorState> {
     const problem = this.requireProblem(problemVersion);
     const key = `${problemVersion}:${JSON.stringify(prior)}`;
     if (this.structuredCached?.key === key) return this.structuredCached.state;
-    progress('factorising G Cm Gᵀ + Cd (FFT path)', 0.1);
-    const state = prepareStructuredPosterior(this.structured ?? (this.structured = structuredProblem(problem)), prior);
+    progress('posterior mean (FFT path)', 0.1);
+    const sp = this.structured ?? (this.structured = structuredProblem(problem));
+    const pool = this.options.pool;
+    const state =
+      pool !== undefined && productsWorthSplitting(problem.data.values.length, problem.grid.shape, pool.threads)
+        ? await prepareStructuredPosteriorParallel(sp, prior, pool.get())
+        : prepareStructuredPosterior(sp, prior);
     this.structuredCached = { key, state };
     return state;
   }
@@ -260,14 +271,14 @@ export class Engine {
         const problem = this.requireProblem(r.problemVersion);
         let summary;
         if (choosePosteriorPath(problem, r.prior).path === 'fft') {
-          progress('posterior mean (FFT path)', 0.1);
-          const st = prepareStructuredPosterior(this.structured ?? (this.structured = structuredProblem(problem)), r.prior);
+          const st = await this.structuredState(r.problemVersion, r.prior, progress);
           if (varianceFlops(st.L.rows, st.Bt.cols) >= (this.options.partialMinFlops ?? PARTIAL_MIN_FLOPS)) partial(structuredPartial(st));
           progress('posterior standard deviations', 0.5);
           const pool = this.options.pool;
           const std =
             pool !== undefined && worthSplitting(st.L.rows, st.Bt.cols, pool.threads) ? await parallelPosteriorStd(st, pool.get()) : structuredPosteriorStd(st);
-          summary = structuredPosteriorSummary(st, std);
+          // A copy of the mean: the result's buffers are transferred, and `st` stays cached.
+          summary = structuredPosteriorSummary({ ...st, mean: st.mean.slice() }, std);
         } else {
           const state = this.state(r.problemVersion, r.prior, progress);
           progress('posterior mean and variance', 0.6);
@@ -288,7 +299,7 @@ export class Engine {
         checkCount(r.count);
         const problem = this.requireProblem(r.problemVersion);
         if (choosePosteriorPath(problem, r.prior).path === 'fft') {
-          return structuredPosteriorDraws(this.structuredState(r.problemVersion, r.prior, progress), r.count, r.seed).realisations;
+          return structuredPosteriorDraws(await this.structuredState(r.problemVersion, r.prior, progress), r.count, r.seed).realisations;
         }
         return posteriorRealisations(this.state(r.problemVersion, r.prior, progress), r.count, r.seed);
       }
@@ -299,7 +310,7 @@ export class Engine {
           throw new InputError('cell', `an integer cell index from 0 to ${n - 1}`, r.cell);
         }
         if (choosePosteriorPath(problem, r.prior).path === 'fft') {
-          return { cell: r.cell, row: structuredResolutionRow(this.structuredState(r.problemVersion, r.prior, progress), r.cell) };
+          return { cell: r.cell, row: structuredResolutionRow(await this.structuredState(r.problemVersion, r.prior, progress), r.cell) };
         }
         return { cell: r.cell, row: resolutionRow(this.state(r.problemVersion, r.prior, progress), r.cell) };
       }

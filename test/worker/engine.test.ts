@@ -75,3 +75,53 @@ describe('Engine: posterior mean before the bands (FFT path)', () => {
     expect(e.error.field).toMatch(/length/);
   });
 });
+
+describe('Engine: the cached FFT state survives transferred results', () => {
+  it('the same prior twice, then resolution and draws: identical results, nothing detached', async () => {
+    const engine = new Engine({ partialMinFlops: 0 });
+    await engine.handle({ id: 1, kind: 'setProblem', version: 1, problem: profileProblem(160, 'diagonal') });
+    const ask = async (job: Job) => {
+      const out: WorkerReply[] = [];
+      await answerRequest(engine, job, (reply, transfer = []) => out.push(structuredClone(reply, { transfer })));
+      return out;
+    };
+    const first = resultOf(await ask({ id: 2, kind: 'posterior', prior: PRIOR, problemVersion: 1 }));
+    const second = resultOf(await ask({ id: 3, kind: 'posterior', prior: PRIOR, problemVersion: 1 }));
+    expect(second.summary.mean.length).toBe(160);
+    expect(sameBits(first.summary.mean, second.summary.mean)).toBe(true);
+    expect(sameBits(first.summary.std, second.summary.std)).toBe(true);
+    const res = await ask({ id: 4, kind: 'resolution', prior: PRIOR, cell: 5, problemVersion: 1 });
+    const row = (res.find((r) => r.type === 'result') as Extract<WorkerReply, { type: 'result' }>).result as { row: Float64Array };
+    expect(row.row.length).toBe(160);
+    expect(row.row.some((v) => v !== 0)).toBe(true);
+  });
+});
+
+describe('Engine: FFT-path products over a thread pool', () => {
+  it('a 96² grid with 160 rays splits the Bᵀ products over worker_threads; the result equals the one-thread engine bit for bit', async () => {
+    const { nodeBlockPool } = await import('../../src/core/parallel/node.ts');
+    const { benchProblem } = await import('../bench/cases/fft.ts');
+    const { productsWorthSplitting } = await import('../../src/core/parallel/products.ts');
+    const problem = benchProblem(96, 160);
+    expect(productsWorthSplitting(160, problem.grid.shape, 2)).toBe(true);
+    const pool = nodeBlockPool(2);
+    let productTasks = 0;
+    const counted = { ...pool, size: pool.size, run: pool.run.bind(pool), close: pool.close.bind(pool), runProducts: (t: never, port: number) => (productTasks++, pool.runProducts(t, port)) };
+    const prior = { mean: { constant: 0.2 }, terms: [{ kernel: 'matern' as const, nu: 1.5, variance: 1e-3, length: 12 }] };
+    const run = async (options: EngineOptions) => {
+      const engine = new Engine(options);
+      await engine.handle({ id: 1, kind: 'setProblem', version: 1, problem });
+      return (await engine.handle({ id: 2, kind: 'posterior', prior, problemVersion: 1 })) as PosteriorResult;
+    };
+    try {
+      const split = await run({ pool: { get: () => counted, threads: 2 } });
+      const one = await run({});
+      expect(productTasks).toBeGreaterThan(0);
+      expect(split.summary.path).toBe('fft');
+      expect(sameBits(split.summary.mean, one.summary.mean)).toBe(true);
+      expect(sameBits(split.summary.std, one.summary.std)).toBe(true);
+    } finally {
+      await pool.close();
+    }
+  }, 60_000);
+});
