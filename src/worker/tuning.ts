@@ -23,7 +23,7 @@
  */
 import { cellCount } from '../core/grid/grid.ts';
 import { posteriorRealisations, posteriorSummary, preparePosterior } from '../core/inverse/posterior.ts';
-import { diagnosePrior } from '../core/prior/diagnostics.ts';
+import { diagnosePriorAuto } from '../core/prior/structuredDiagnostics.ts';
 import type { PriorSpec } from '../core/prior/spec.ts';
 import type { Problem } from '../core/problems/spec.ts';
 import {
@@ -301,7 +301,7 @@ export async function scoreCandidates(
         chi2PerDatum: s.chi2 / s.dataCount,
         predictiveReduced: ppc.reduced,
         predictiveP: ppc.pTwoSided,
-        conditionNumber: diagnosePrior(problem.grid, prior).conditionNumber,
+        conditionNumber: diagnosePriorAuto(problem.grid, prior).conditionNumber, // FFT estimate on large stationary grids
         mean: s.mean,
         std: s.std,
         draws: posteriorRealisations(state, draws, seed),
