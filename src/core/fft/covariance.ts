@@ -85,8 +85,8 @@ export function isStationaryOnGrid(grid: Grid, prior: PriorSpec): boolean {
  * With WebAssembly SIMD (and px, py ≥ 4) the same product runs in the kernel of
  * ../wasm/fftModule.ts (Stockham radix-4, natural order): x-passes on the rows that hold data
  * (the zero half px/2 … px − 1 of each padded row is not read), F_y over all columns at once
- * (rows ≥ py/2 not read), × λ/P, F_y again, x-passes on the rows 0 and py − ny + 1 … py − 1 that
- * are wanted. Full spectra are saved in Fft2.rowFilter's row order ({@link Fft2.spectrumRowOrder})
+ * (rows ≥ py/2 not read), × λ/P, then inverse-direction (unnormalised) transforms along y and
+ * along x on the ny rows that are wanted (no index reversal: F⁻¹ = (1/P) R F read backwards). Full spectra are saved in Fft2.rowFilter's row order ({@link Fft2.spectrumRowOrder})
  * so saved spectra work on either route. Which route runs is fixed per instance at construction;
  * every instance in a realm takes the same one, so split and threaded runs stay bit-identical.
  */
@@ -147,6 +147,8 @@ export class CirculantProduct {
     const { px, py, ny } = this;
     e.twiddles(px, false);
     e.twiddles(py, false);
+    e.twiddles(px, true);
+    e.twiddles(py, true);
     const { at: lam, end } = e.resident(this.lambdaN!);
     const full = 16 * px * py;
     const y = end;
@@ -215,23 +217,25 @@ export class CirculantProduct {
       const o = x0 + w * iy;
       const g = nx * iy;
       let any = false;
-      for (let ix = 0; ix < nx; ix++) {
-        const v = a[g + ix]!;
-        view[o + 2 * ix] = v;
-        if (v !== 0) any = true;
-      }
       if (b !== null) {
         for (let ix = 0; ix < nx; ix++) {
+          const u = a[g + ix]!;
           const v = b[g + ix]!;
+          view[o + 2 * ix] = u;
           view[o + 2 * ix + 1] = v;
-          if (v !== 0) any = true;
+          any ||= u !== 0 || v !== 0;
         }
       } else {
-        for (let ix = 0; ix < nx; ix++) view[o + 2 * ix + 1] = 0;
+        for (let ix = 0; ix < nx; ix++) {
+          const u = a[g + ix]!;
+          view[o + 2 * ix] = u;
+          view[o + 2 * ix + 1] = 0;
+          any ||= u !== 0;
+        }
       }
       // The kernel does not read the upper half (px/2 … px − 1); nx … px/2 − 1 must be zero.
       if (any) {
-        view.fill(0, o + 2 * nx, o + px);
+        if (2 * nx < px) view.fill(0, o + 2 * nx, o + px);
         if (start < 0) start = iy;
       } else {
         flush(iy);
@@ -271,8 +275,10 @@ export class CirculantProduct {
       const r = this.regions(this.engine);
       const order = this.fft.spectrumRowOrder();
       const w = 2 * px;
-      for (let p = 0; p < py; p++) r.view.set(spec.subarray(w * p, w * (p + 1)), r.z / 8 + w * order[p]!);
-      this.filterWasm(this.engine, r, outA, outB, offsetA, offsetB);
+      // The saved rows go to T as they are; Z row order[p] ← (λ/P) ⊙ T row p in the kernel.
+      r.view.set(spec.subarray(0, w * py), r.t / 8);
+      for (let p = 0; p < py; p++) this.engine.scaleInto(r.z + 8 * w * order[p]!, r.t + 8 * w * p, r.lam + 8 * px * order[p]!, px);
+      this.filterWasm(this.engine, r, outA, outB, offsetA, offsetB, true);
       return;
     }
     this.fft.rowFilterCached(spec, this.lambdaT, this.ny, this.work);
@@ -306,8 +312,10 @@ export class CirculantProduct {
   }
 
   /**
-   * From the full spectrum in region Z (natural order): × λ/P, F_y into Y, x-passes on the rows
-   * t ↦ (−t mod py) that are wanted into X, and out[t][ix] = X[t'][−ix mod px] (re → outA, im → outB).
+   * From the full spectrum in region Z (natural order): × λ/P (unless `scaled`), then the inverse-direction
+   * (unnormalised, e^(+2πi…)) transforms along y into Y and along x on rows t < ny into X — the
+   * same as the forward transforms read at (−t, −ix) of the JS route, F⁻¹ = (1/P) R F — so
+   * out[t][ix] = X[t][ix] (re → outA, im → outB) with no index reversal.
    */
   private filterWasm(
     e: FftEngine,
@@ -316,26 +324,26 @@ export class CirculantProduct {
     outB: Float64Array | null,
     offsetA: number,
     offsetB: number,
+    scaled = false,
   ): void {
     const { nx, ny, px, py } = this;
     const rowBytes = 16 * px;
-    e.scale(r.z, r.lam, px * py);
-    e.run(r.z, r.y, r.t, py, px, 1, 0, false);
-    // X row 0 ← F_x Y row 0; X rows 1 … ny − 1 ← F_x Y rows py − ny + 1 … py − 1 (t = ny − j).
-    e.run(r.y, r.x, r.t, px, 1, 1, rowBytes, false);
-    if (ny > 1) e.run(r.y + rowBytes * (py - ny + 1), r.x + rowBytes, r.t, px, 1, ny - 1, rowBytes, false);
+    if (!scaled) e.scale(r.z, r.lam, px * py);
+    e.run(r.z, r.y, r.t, py, px, 1, 0, true);
+    e.run(r.y, r.x, r.t, px, 1, ny, rowBytes, true);
     const v = r.view;
     const w = 2 * px;
     const x0 = r.x / 8;
-    for (let j = 0; j < ny; j++) {
-      const t = j === 0 ? 0 : ny - j;
-      const o = x0 + w * j;
+    for (let t = 0; t < ny; t++) {
+      const o = x0 + w * t;
       const g = nx * t;
-      outA[offsetA + g] = v[o]!;
-      for (let ix = 1; ix < nx; ix++) outA[offsetA + g + ix] = v[o + 2 * (px - ix)]!;
       if (outB !== null) {
-        outB[offsetB + g] = v[o + 1]!;
-        for (let ix = 1; ix < nx; ix++) outB[offsetB + g + ix] = v[o + 2 * (px - ix) + 1]!;
+        for (let ix = 0; ix < nx; ix++) {
+          outA[offsetA + g + ix] = v[o + 2 * ix]!;
+          outB[offsetB + g + ix] = v[o + 2 * ix + 1]!;
+        }
+      } else {
+        for (let ix = 0; ix < nx; ix++) outA[offsetA + g + ix] = v[o + 2 * ix]!;
       }
     }
   }

@@ -14,7 +14,7 @@ import { FFT_EXPORT, fftModuleBytes, SCALE_EXPORT, stageCount, twiddleTable } fr
 import { ensureBytes, MEMORY_IMPORT, simdSupported } from './runtime.ts';
 
 type FftFn = (src: number, dst: number, tmp: number, tw: number, n: number, s: number, count: number, bstride: number, flags: number) => void;
-type ScaleFn = (z: number, lam: number, count: number) => void;
+type ScaleFn = (dst: number, src: number, lam: number, count: number) => void;
 
 function align16(bytes: number): number {
   return (bytes + 15) & ~15;
@@ -107,7 +107,12 @@ export class FftEngine {
 
   /** z[i] ← lam[i]·z[i], i < count (complex z at byte address z, doubles lam at byte address lam). */
   scale(z: number, lam: number, count: number): void {
-    this.scaleFn(z, lam, count);
+    this.scaleFn(z, z, lam, count);
+  }
+
+  /** dst[i] ← lam[i]·src[i], i < count (complex dst, src equal or disjoint; doubles lam). */
+  scaleInto(dst: number, src: number, lam: number, count: number): void {
+    this.scaleFn(dst, src, lam, count);
   }
 }
 

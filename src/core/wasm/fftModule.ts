@@ -27,7 +27,8 @@
  *       flags bit 0: the inputs p ≥ n/2 are zero and not read (needs n ≥ 4);
  *       flags bit 1: the first stage writes dst (set when the number of stages is odd).
  *       tw: the table of {@link twiddleTable} for n and the direction.
- *   scaleComplex(z, lam, count)  z[i] ← lam[i]·z[i] for i < count (complex z, real lam; 8-byte lam).
+ *   scaleComplex(dst, src, lam, count)  dst[i] ← lam[i]·src[i] for i < count (complex dst, src — equal
+ *       or disjoint —, real lam with 8-byte elements).
  */
 import { encodeModule, FunctionBuilder, ValType } from './emitter.ts';
 import { MEMORY_IMPORT } from './runtime.ts';
@@ -233,17 +234,18 @@ function fftFunction(): FunctionBuilder {
 
 function scaleFunction(): FunctionBuilder {
   const { i32 } = ValType;
-  const f = new FunctionBuilder([i32, i32, i32]);
-  const [z, lam, count] = [0, 1, 2];
+  const f = new FunctionBuilder([i32, i32, i32, i32]);
+  const [dst, src, lam, count] = [0, 1, 2, 3];
   const end = f.local(i32);
   f.block((f) => {
     f.get(count).i32Eqz().brIf(0);
-    f.get(z).get(count).i32Const(4).i32Shl().i32Add().set(end);
+    f.get(dst).get(count).i32Const(4).i32Shl().i32Add().set(end);
     f.loop((f) => {
-      f.get(z).get(z).v128Load(0).get(lam).v128Load64Splat(0).f64x2Mul().v128Store(0);
-      f.addTo(z, 16);
+      f.get(dst).get(src).v128Load(0).get(lam).v128Load64Splat(0).f64x2Mul().v128Store(0);
+      f.addTo(dst, 16);
+      f.addTo(src, 16);
       f.addTo(lam, 8);
-      f.get(z).get(end).i32Ne().brIf(0);
+      f.get(dst).get(end).i32Ne().brIf(0);
     });
   });
   return f;

@@ -126,7 +126,7 @@ describe('wasm FFT kernel', () => {
     }
   });
 
-  it('scaleComplex multiplies each complex value by its real factor, exactly as JS does', () => {
+  it('scaleComplex multiplies each complex value by its real factor, exactly as JS does, in place or into another region', () => {
     const e = fftEngine()!;
     const m = 37;
     const z = seededVector(2 * m, 30);
@@ -137,6 +137,14 @@ describe('wasm FFT kernel', () => {
     v.set(z, zAt / 8);
     v.set(lam, lAt / 8);
     e.scale(zAt, lAt, m);
+    const back = e.reserve(0).slice(zAt / 8, zAt / 8 + 2 * m);
+    e.reserve(0).set(z, zAt / 8);
+    const dAt = lAt + 8 * m;
+    e.reserve(dAt + 16 * m);
+    e.scaleInto(dAt, zAt, lAt, m);
+    expect(Array.from(e.reserve(0).subarray(dAt / 8, dAt / 8 + 2 * m))).toEqual(Array.from(back));
+    expect(Array.from(e.reserve(0).subarray(zAt / 8, zAt / 8 + 2 * m))).toEqual(Array.from(z));
+    e.reserve(0).set(back, zAt / 8);
     const want = z.map((t, i) => t * lam[i >> 1]!);
     expect(Array.from(e.reserve(0).subarray(zAt / 8, zAt / 8 + 2 * m))).toEqual(Array.from(want));
   });
