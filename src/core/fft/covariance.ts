@@ -329,8 +329,9 @@ export class CirculantProduct {
     const { nx, ny, px, py } = this;
     const rowBytes = 16 * px;
     if (!scaled) e.scale(r.z, r.lam, px * py);
-    e.run(r.z, r.y, r.t, py, px, 1, 0, true);
-    e.run(r.y, r.x, r.t, px, 1, ny, rowBytes, true);
+    // Only rows t < ny ≤ py/2 and columns ix < nx ≤ px/2 are read out.
+    e.run(r.z, r.y, r.t, py, px, 1, 0, true, false, true);
+    e.run(r.y, r.x, r.t, px, 1, ny, rowBytes, true, false, true);
     const v = r.view;
     const w = 2 * px;
     const x0 = r.x / 8;

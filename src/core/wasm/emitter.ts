@@ -43,6 +43,7 @@ export const Op = {
   i32Shl: 0x74,
   i32ShrU: 0x76,
   i32And: 0x71,
+  i32Or: 0x72,
   select: 0x1b,
   f64Add: 0xa0,
   f64Sub: 0xa1,
@@ -119,6 +120,7 @@ export class FunctionBuilder {
   drop(): this { return this.op(Op.drop); }
   i32ShrU(): this { return this.op(Op.i32ShrU); }
   i32And(): this { return this.op(Op.i32And); }
+  i32Or(): this { return this.op(Op.i32Or); }
   /** `select`: pops c, then b, then a; pushes c ≠ 0 ? a : b. */
   select(): this { return this.op(Op.select); }
   i32Load(offset = 0): this { return this.op(Op.i32Load, ...this.memarg(2, offset)); }

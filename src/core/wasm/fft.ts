@@ -91,9 +91,10 @@ export class FftEngine {
    * address src + b·bstride (element p of sequence q at 16(q + s p)) into dst + b·bstride. src is
    * not written; src ≠ dst; tmp holds 16·n·s bytes. `halfZero`: elements p ≥ n/2 are zero (they
    * are not read when n ≥ 4; for n = 2 they must be zero in memory). Unnormalised in both
-   * directions. The twiddle table must exist already ({@link twiddles}) when work regions are live.
+   * directions. `halfOut`: only outputs p < n/2 are wanted (the others are left stale). The
+   * twiddle table must exist already ({@link twiddles}) when work regions are live.
    */
-  run(src: number, dst: number, tmp: number, n: number, s: number, count: number, bstride: number, inverse: boolean, halfZero = false): void {
+  run(src: number, dst: number, tmp: number, n: number, s: number, count: number, bstride: number, inverse: boolean, halfZero = false, halfOut = false): void {
     if (count <= 0) return;
     if (n === 1) {
       const v = this.f64();
@@ -101,7 +102,7 @@ export class FftEngine {
       return;
     }
     const tw = this.twiddles(n, inverse);
-    const flags = (halfZero && n >= 4 ? 1 : 0) | (stageCount(n) % 2 === 1 ? 2 : 0);
+    const flags = (halfZero && n >= 4 ? 1 : 0) | (stageCount(n) % 2 === 1 ? 2 : 0) | (halfOut ? 4 : 0);
     this.fftFn(src, dst, tmp, tw, n, s, count, bstride, flags);
   }
 

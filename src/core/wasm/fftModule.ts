@@ -25,7 +25,9 @@
  *       → their DFTs at dst + b·bstride (same layout). n ≥ 2, s ≥ 1, src ≠ dst; src is not written.
  *       tmp holds 16·n·s bytes (one batch item; the stages ping-pong between dst and tmp).
  *       flags bit 0: the inputs p ≥ n/2 are zero and not read (needs n ≥ 4);
- *       flags bit 1: the first stage writes dst (set when the number of stages is odd).
+ *       flags bit 1: the first stage writes dst (set when the number of stages is odd);
+ *       flags bit 2: only outputs k < n/2 are wanted (the last stage writes no others; they are
+ *       left stale). The last radix-4 stage (L = 4) has unit twiddles and skips the products.
  *       tw: the table of {@link twiddleTable} for n and the direction.
  *   scaleComplex(dst, src, lam, count)  dst[i] ← lam[i]·src[i] for i < count (complex dst, src — equal
  *       or disjoint —, real lam with 8-byte elements).
@@ -94,6 +96,7 @@ function fftFunction(): FunctionBuilder {
   const str = f.local(i32); // 16·stride: bytes between x[q + s p] and x[q + s (p + 1)]
   const twp = f.local(i32);
   const h = f.local(i32);
+  const prune = f.local(i32);
   const Q = f.local(i32);
   const qB = f.local(i32); // bytes between a and b: str·L/4
   const p = f.local(i32);
@@ -145,6 +148,7 @@ function fftFunction(): FunctionBuilder {
       f.get(s).i32Const(4).i32Shl().set(str);
       f.get(tw).i32Const(16).i32Add().set(twp);
       f.get(flags).i32Const(1).i32And().set(h);
+      f.get(flags).i32Const(4).i32And().set(prune);
       f.block((f) => {
         f.loop((f) => {
           f.get(len).i32Const(4).i32LtU().brIf(1);
@@ -153,28 +157,12 @@ function fftFunction(): FunctionBuilder {
           f.i32Const(0).set(p);
           f.get(x).set(ia);
           f.get(y).set(oa);
-          f.loop((f) => {
-            w.forEach((wl, j) => f.get(twp).v128Load(16 * j).set(wl));
-            f.i32Const(0).set(k);
+          f.block((f) => {
             f.block((f) => {
-              f.block((f) => {
-                f.get(h).i32Eqz().brIf(0);
-                // Inputs c = d = 0: y0 = a + b, y1 = W(a − J b), y2 = W²(a − b), y3 = W³(a + J b).
-                f.loop((f) => {
-                  f.get(ia).get(k).i32Add().tee(ad).v128Load(0).set(va);
-                  f.get(ad).get(qB).i32Add().v128Load(0).set(vb);
-                  f.swappedLanes(vb).get(J).f64x2Mul().set(jb);
-                  f.get(oa).get(k).i32Add().tee(od).get(va).get(vb).f64x2Add().v128Store(0);
-                  storeOutputs(
-                    () => f.get(va).get(jb).f64x2Sub(),
-                    () => f.get(va).get(vb).f64x2Sub(),
-                    () => f.get(va).get(jb).f64x2Add(),
-                  );
-                  f.addTo(k, 16);
-                  f.get(k).get(str).i32Ne().brIf(0);
-                });
-                f.br(1);
-              });
+              f.get(len).i32Const(4).i32Ne().get(h).i32Or().brIf(0);
+              // The last radix-4 stage (L = 4, p = 0): every twiddle is 1. With the prune flag only
+              // y0, y1 (outputs k < n/2) are written.
+              f.i32Const(0).set(k);
               f.loop((f) => {
                 f.get(ia).get(k).i32Add().tee(ad).v128Load(0).set(va);
                 f.get(ad).get(qB).i32Add().tee(ad).v128Load(0).set(vb);
@@ -186,20 +174,65 @@ function fftFunction(): FunctionBuilder {
                 f.get(vb).get(vd).f64x2Sub().set(jb);
                 f.swappedLanes(jb).get(J).f64x2Mul().set(jb);
                 f.get(oa).get(k).i32Add().tee(od).get(apc).get(bpd).f64x2Add().v128Store(0);
-                storeOutputs(
-                  () => f.get(amc).get(jb).f64x2Sub(),
-                  () => f.get(apc).get(bpd).f64x2Sub(),
-                  () => f.get(amc).get(jb).f64x2Add(),
-                );
+                f.get(od).get(str).i32Add().tee(od).get(amc).get(jb).f64x2Sub().v128Store(0);
+                f.block((f) => {
+                  f.get(prune).brIf(0);
+                  f.get(od).get(str).i32Add().tee(od).get(apc).get(bpd).f64x2Sub().v128Store(0);
+                  f.get(od).get(str).i32Add().get(amc).get(jb).f64x2Add().v128Store(0);
+                });
                 f.addTo(k, 16);
                 f.get(k).get(str).i32Ne().brIf(0);
               });
+              f.br(1);
             });
-            f.addTo(twp, ENTRY);
-            f.get(ia).get(str).i32Add().set(ia);
-            f.get(oa).get(str).i32Const(2).i32Shl().i32Add().set(oa);
-            f.addTo(p, 1);
-            f.get(p).get(Q).i32Ne().brIf(0);
+            f.loop((f) => {
+              w.forEach((wl, j) => f.get(twp).v128Load(16 * j).set(wl));
+              f.i32Const(0).set(k);
+              f.block((f) => {
+                f.block((f) => {
+                  f.get(h).i32Eqz().brIf(0);
+                  // Inputs c = d = 0: y0 = a + b, y1 = W(a − J b), y2 = W²(a − b), y3 = W³(a + J b).
+                  f.loop((f) => {
+                    f.get(ia).get(k).i32Add().tee(ad).v128Load(0).set(va);
+                    f.get(ad).get(qB).i32Add().v128Load(0).set(vb);
+                    f.swappedLanes(vb).get(J).f64x2Mul().set(jb);
+                    f.get(oa).get(k).i32Add().tee(od).get(va).get(vb).f64x2Add().v128Store(0);
+                    storeOutputs(
+                      () => f.get(va).get(jb).f64x2Sub(),
+                      () => f.get(va).get(vb).f64x2Sub(),
+                      () => f.get(va).get(jb).f64x2Add(),
+                    );
+                    f.addTo(k, 16);
+                    f.get(k).get(str).i32Ne().brIf(0);
+                  });
+                  f.br(1);
+                });
+                f.loop((f) => {
+                  f.get(ia).get(k).i32Add().tee(ad).v128Load(0).set(va);
+                  f.get(ad).get(qB).i32Add().tee(ad).v128Load(0).set(vb);
+                  f.get(ad).get(qB).i32Add().tee(ad).v128Load(0).set(vc);
+                  f.get(ad).get(qB).i32Add().v128Load(0).set(vd);
+                  f.get(va).get(vc).f64x2Add().set(apc);
+                  f.get(va).get(vc).f64x2Sub().set(amc);
+                  f.get(vb).get(vd).f64x2Add().set(bpd);
+                  f.get(vb).get(vd).f64x2Sub().set(jb);
+                  f.swappedLanes(jb).get(J).f64x2Mul().set(jb);
+                  f.get(oa).get(k).i32Add().tee(od).get(apc).get(bpd).f64x2Add().v128Store(0);
+                  storeOutputs(
+                    () => f.get(amc).get(jb).f64x2Sub(),
+                    () => f.get(apc).get(bpd).f64x2Sub(),
+                    () => f.get(amc).get(jb).f64x2Add(),
+                  );
+                  f.addTo(k, 16);
+                  f.get(k).get(str).i32Ne().brIf(0);
+                });
+              });
+              f.addTo(twp, ENTRY);
+              f.get(ia).get(str).i32Add().set(ia);
+              f.get(oa).get(str).i32Const(2).i32Shl().i32Add().set(oa);
+              f.addTo(p, 1);
+              f.get(p).get(Q).i32Ne().brIf(0);
+            });
           });
           f.get(len).i32Const(2).i32ShrU().set(len);
           f.get(str).i32Const(2).i32Shl().set(str);
@@ -218,7 +251,10 @@ function fftFunction(): FunctionBuilder {
           f.get(x).get(k).i32Add().tee(ad).v128Load(0).set(va);
           f.get(ad).get(str).i32Add().v128Load(0).set(vb);
           f.get(y).get(k).i32Add().tee(od).get(va).get(vb).f64x2Add().v128Store(0);
-          f.get(od).get(str).i32Add().get(va).get(vb).f64x2Sub().v128Store(0);
+          f.block((f) => {
+            f.get(prune).brIf(0);
+            f.get(od).get(str).i32Add().get(va).get(vb).f64x2Sub().v128Store(0);
+          });
           f.addTo(k, 16);
           f.get(k).get(str).i32Ne().brIf(0);
         });

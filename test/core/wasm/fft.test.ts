@@ -126,6 +126,36 @@ describe('wasm FFT kernel', () => {
     }
   });
 
+  it('halfOut: outputs k < n/2 equal the full transform bit for bit (n = 2 … 256, s = 1 and 3)', () => {
+    const e = fftEngine()!;
+    for (const n of [2, 4, 8, 16, 64, 128, 256]) {
+      for (const s of [1, 3]) {
+        const x = seededVector(2 * n * s, 60 + n + s);
+        e.twiddles(n, true);
+        const src = e.workBase();
+        const full = src + 16 * n * s;
+        const half = full + 16 * n * s;
+        const tmp = half + 16 * n * s;
+        const v0 = e.reserve(tmp + 16 * n * s);
+        v0.set(x, src / 8);
+        v0.fill(7, half / 8, tmp / 8); // stale values stay where outputs are not wanted
+        e.run(src, full, tmp, n, s, 1, 0, true);
+        e.run(src, half, tmp, n, s, 1, 0, true, false, true);
+        const v = e.reserve(0);
+        const wanted = s * n; // doubles: the s·n/2 complex outputs k < n/2 of all sequences
+        expect(Array.from(v.subarray(half / 8, half / 8 + wanted))).toEqual(Array.from(v.subarray(full / 8, full / 8 + wanted)));
+        // and they are the transform (inverse direction, unnormalised: n × numpy's ifft)
+        const want = directDft(x, n, true, 0, s).map((t) => t * n);
+        const got = new Float64Array(2 * n);
+        for (let k = 0; k < n; k++) {
+          got[2 * k] = v[full / 8 + 2 * s * k]!;
+          got[2 * k + 1] = v[full / 8 + 2 * s * k + 1]!;
+        }
+        expect(relErr(got, want)).toBeLessThan(allowance(n));
+      }
+    }
+  });
+
   it('scaleComplex multiplies each complex value by its real factor, exactly as JS does, in place or into another region', () => {
     const e = fftEngine()!;
     const m = 37;
