@@ -6,6 +6,7 @@ import type { PriorSpec } from '../src/core/prior/spec.ts';
 export interface PageState {
   demoId: string;
   problemVersion: number | null;
+  numericKernels: 'WebAssembly SIMD' | 'JavaScript' | null;
   prior: PriorSpec;
   priorRevision: number;
   seed: number;

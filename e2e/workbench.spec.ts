@@ -27,6 +27,8 @@ test('loads the 1-D demo with posterior mean, bands and data fit; no console err
   const w = watch(page, ORIGIN);
   const s = await open(page);
   expect(s.demoId).toBe('borehole-log');
+  // The worker compiled the WebAssembly SIMD kernels under the page's CSP (a fallback would say 'JavaScript').
+  expect(s.numericKernels).toBe('WebAssembly SIMD');
   await expect(page.getByTestId('demo-select')).toHaveValue('borehole-log');
   const names = await traceNames(page, 'plot-posterior');
   for (const n of ['posterior mean', 'posterior 68%', 'posterior 95%', 'prior 95%', 'truth']) expect(names).toContain(n);

@@ -32,6 +32,7 @@ window.__priorscope = {
     return structuredClone({
       demoId: s.demoId,
       problemVersion: s.problem?.version ?? null,
+      numericKernels: s.problem?.numericKernels ?? null,
       prior: s.prior,
       priorRevision: s.priorRevision,
       seed: s.seed,

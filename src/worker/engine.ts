@@ -10,6 +10,8 @@ import { cellCount } from '../core/grid/grid.ts';
 import { diagnosePriorAuto } from '../core/prior/structuredDiagnostics.ts';
 import { structuredPosteriorDraws, structuredResolutionRow } from '../core/inverse/structuredDraws.ts';
 import { prepareStructuredPosteriorParallel, productsWorthSplitting } from '../core/parallel/products.ts';
+import { wasmGemmAvailable } from '../core/wasm/gemmNT.ts';
+import { wasmAvailable } from '../core/wasm/varianceBlock.ts';
 import { covarianceMatrix, meanVector } from '../core/prior/covariance.ts';
 import { priorRealisations } from '../core/sampling/realisations.ts';
 import {
@@ -163,6 +165,7 @@ export function problemView(
     dataUnit: problem.data.unit ?? '',
     startPrior: extra.startPrior,
     truthPrior: extra.truthPrior,
+    numericKernels: wasmAvailable() && wasmGemmAvailable() ? 'WebAssembly SIMD' : 'JavaScript',
   };
 }
 

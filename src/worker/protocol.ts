@@ -41,6 +41,8 @@ export interface ProblemView {
   readonly dataUnit: string;
   readonly startPrior: PriorSpec | null;
   readonly truthPrior: PriorSpec | null;
+  /** Which dense kernels the worker runs: the WebAssembly SIMD ones, or their JavaScript fallbacks (same results). */
+  readonly numericKernels: 'WebAssembly SIMD' | 'JavaScript';
 }
 
 /** Posterior summary plus the χ² interval of the data fit, when the χ² quantile function exists. */
