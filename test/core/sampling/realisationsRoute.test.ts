@@ -1,5 +1,6 @@
 /**
- * Route of priorRealisations (src/core/sampling/realisations.ts): dense Cholesky up to 4096 cells
+ * Route of priorRealisations (src/core/sampling/realisations.ts): dense Cholesky up to
+ * DENSE_REALISATION_LIMIT cells
  * with the seeded stream unchanged (m0 + L z, z the first N·count normals of the seed, Rasmussen &
  * Williams 2006 App. A.2), circulant embedding above (Dietrich & Newsam 1997), whose per-cell
  * variance is checked against Cm_ii with χ² limits (a sample variance of K draws with known mean
@@ -29,6 +30,8 @@ describe('priorRealisations route', () => {
   it('circulant embedding above the limit: the sampler output, with a variance inside χ² limits', () => {
     const grid = { shape: [65, 64], spacing: [1, 1] };
     expect(65 * 64).toBeGreaterThan(DENSE_REALISATION_LIMIT);
+    expect(priorRealisationsWithRoute({ shape: [33, 32], spacing: [1, 1] }, prior, 1, 5).route).toBe(33 * 32 > DENSE_REALISATION_LIMIT ? 'fft' : 'dense');
+    expect(priorRealisationsWithRoute({ shape: [32, 32], spacing: [1, 1] }, prior, 1, 5).route).toBe('dense');
     const K = 200;
     const r = priorRealisationsWithRoute(grid, prior, K, 5);
     expect(r.route).toBe('fft');
