@@ -143,7 +143,7 @@ describe('posterior --path', () => {
 });
 
 describe('sample reports its route on stderr', () => {
-  it('dense up to 4096 cells, circulant embedding above', () => {
+  it('dense up to DENSE_REALISATION_LIMIT cells, circulant embedding above', () => {
     const small = runCli(['sample', '--problem', 'p.json', '--prior', 'q.json', '--count', '2', '--seed', '3'], dir);
     expect(small.code, small.err).toBe(0);
     expect(small.err).toBe(`priorscope sample: route dense (Cholesky of Cm, ${NX * NY} cells)\n`);
