@@ -23,6 +23,7 @@ import { correlationFunction } from '../kernels/correlation.ts';
 import type { Term } from '../kernels/spec.ts';
 import type { Grid } from '../grid/grid.ts';
 import { forwardTransform1, nextPowerOfTwo } from './fft2.ts';
+import { wasmFftAvailable, wasmFftBatch } from '../wasm/fft.ts';
 
 /** Σ_t variance_t ρ_t(h_t(ox, oy)) at a physical offset (ox, oy); oy ≡ 0 on a 1-D grid. */
 export function stationaryCovariance(terms: readonly Term[]): (ox: number, oy: number) => number {
@@ -168,73 +169,82 @@ export function circulantEmbedding(grid: Grid, terms: readonly Term[], px: numbe
 export function evenRealSpectrum(base: Float64Array, px: number, py: number): Float64Array {
   const hy = py === 1 ? 1 : py / 2 + 1; // rows jy = 0 … py/2
   const hx = px === 1 ? 1 : px / 2 + 1; // kx = 0 … px/2
+  // Pass 1: rows a, a + 1 packed as a + i b, all pairs in one batch.
+  const rowPairs = Math.ceil(hy / 2);
+  const z = new Float64Array(2 * px * rowPairs);
+  for (let p = 0; p < rowPairs; p++) {
+    const a = 2 * p;
+    const b = a + 1 < hy ? a + 1 : -1;
+    const o = 2 * px * p;
+    for (let j = 0; j < px; j++) {
+      z[o + 2 * j] = base[a * px + j]!;
+      z[o + 2 * j + 1] = b < 0 ? 0 : base[b * px + j]!;
+    }
+  }
+  const zf = batchForward(z, px, rowPairs);
   // cols[2(kx·hy + jy)]: R_jy(kx), complex.
   const cols = new Float64Array(2 * hx * hy);
-  const z = new Float64Array(2 * px);
-  const zf = new Float64Array(2 * px);
-  for (let a = 0; a < hy; a += 2) {
-    const b = a + 1 < hy ? a + 1 : -1;
-    const ra = a * px;
-    const rb = b * px;
-    for (let j = 0; j < px; j++) {
-      z[2 * j] = base[ra + j]!;
-      z[2 * j + 1] = b < 0 ? 0 : base[rb + j]!;
-    }
-    forwardTransform1(px, z, zf);
+  for (let p = 0; p < rowPairs; p++) {
+    const a = 2 * p;
+    const two = a + 1 < hy;
+    const o = 2 * px * p;
     for (let k = 0; k < hx; k++) {
       const mk = k === 0 ? 0 : px - k;
-      const zr = zf[2 * k]!;
-      const zi = zf[2 * k + 1]!;
-      const wr = zf[2 * mk]!;
-      const wi = -zf[2 * mk + 1]!; // conj Z(−k)
-      const o = 2 * (k * hy + a);
-      cols[o] = 0.5 * (zr + wr);
-      cols[o + 1] = 0.5 * (zi + wi);
-      if (b >= 0) {
+      const zr = zf[o + 2 * k]!;
+      const zi = zf[o + 2 * k + 1]!;
+      const wr = zf[o + 2 * mk]!;
+      const wi = -zf[o + 2 * mk + 1]!; // conj Z(−k)
+      const c = 2 * (k * hy + a);
+      cols[c] = 0.5 * (zr + wr);
+      cols[c + 1] = 0.5 * (zi + wi);
+      if (two) {
         // (Z − conj Z(−k)) / (2i) = (im, −re) / 2
-        cols[o + 2] = 0.5 * (zi - wi);
-        cols[o + 3] = -0.5 * (zr - wr);
+        cols[c + 2] = 0.5 * (zi - wi);
+        cols[c + 3] = -0.5 * (zr - wr);
       }
     }
   }
-  const lam = new Float64Array(px * py);
-  const w = new Float64Array(2 * py);
-  const wf = new Float64Array(2 * py);
-  // Hermitian column kx: v(jy) for jy ≤ py/2 stored, v(py − jy) = conj v(jy).
-  const column = (kx: number, part: 0 | 1) => {
-    const o = 2 * kx * hy;
-    for (let jy = 0; jy < hy; jy++) {
-      const re = cols[o + 2 * jy]!;
-      const im = cols[o + 2 * jy + 1]!;
-      if (part === 0) {
-        w[2 * jy] = re;
-        w[2 * jy + 1] = im;
-      } else {
-        // i·v adds (−im, re)
-        w[2 * jy] -= im;
-        w[2 * jy + 1] += re;
-      }
-      if (jy > 0 && jy < py - jy) {
+  // Pass 2: Hermitian columns k1, k1 + 1 packed as v₁ + i v₂ (v(py − jy) = conj v(jy)), one batch.
+  const colPairs = Math.ceil(hx / 2);
+  const w = new Float64Array(2 * py * colPairs);
+  for (let q = 0; q < colPairs; q++) {
+    const k1 = 2 * q;
+    const ow = 2 * py * q;
+    for (let part = 0; part < (k1 + 1 < hx ? 2 : 1); part++) {
+      const o = 2 * (k1 + part) * hy;
+      for (let jy = 0; jy < hy; jy++) {
+        const re = cols[o + 2 * jy]!;
+        const im = cols[o + 2 * jy + 1]!;
         const m = py - jy;
+        const mirror = jy > 0 && jy < m;
         if (part === 0) {
-          w[2 * m] = re;
-          w[2 * m + 1] = -im;
+          w[ow + 2 * jy] = re;
+          w[ow + 2 * jy + 1] = im;
+          if (mirror) {
+            w[ow + 2 * m] = re;
+            w[ow + 2 * m + 1] = -im;
+          }
         } else {
-          // i·conj v = (im, re)
-          w[2 * m] += im;
-          w[2 * m + 1] += re;
+          // i·v adds (−im, re); i·conj v adds (im, re)
+          w[ow + 2 * jy] -= im;
+          w[ow + 2 * jy + 1] += re;
+          if (mirror) {
+            w[ow + 2 * m] += im;
+            w[ow + 2 * m + 1] += re;
+          }
         }
       }
     }
-  };
-  for (let k1 = 0; k1 < hx; k1 += 2) {
+  }
+  const wf = batchForward(w, py, colPairs);
+  const lam = new Float64Array(px * py);
+  for (let q = 0; q < colPairs; q++) {
+    const k1 = 2 * q;
     const k2 = k1 + 1 < hx ? k1 + 1 : -1;
-    column(k1, 0);
-    if (k2 >= 0) column(k2, 1);
-    forwardTransform1(py, w, wf);
+    const ow = 2 * py * q;
     for (let ky = 0; ky < py; ky++) {
-      lam[k1 + px * ky] = wf[2 * ky]!;
-      if (k2 >= 0) lam[k2 + px * ky] = wf[2 * ky + 1]!;
+      lam[k1 + px * ky] = wf[ow + 2 * ky]!;
+      if (k2 >= 0) lam[k2 + px * ky] = wf[ow + 2 * ky + 1]!;
     }
   }
   // kx > px/2 from λ(kx, ky) = λ(px − kx, −ky).
@@ -243,4 +253,12 @@ export function evenRealSpectrum(base: Float64Array, px: number, py: number): Fl
     for (let kx = hx; kx < px; kx++) lam[kx + px * ky] = lam[px - kx + px * my]!;
   }
   return lam;
+}
+
+/** `count` forward transforms of length n (contiguous): the WebAssembly batch kernel, else fft.js. */
+function batchForward(src: Float64Array, n: number, count: number): Float64Array {
+  if (n >= 4 && wasmFftAvailable()) return wasmFftBatch(src, n, count);
+  const out = new Float64Array(src.length);
+  for (let b = 0; b < count; b++) forwardTransform1(n, src.subarray(2 * n * b, 2 * n * (b + 1)), out.subarray(2 * n * b, 2 * n * (b + 1)));
+  return out;
 }

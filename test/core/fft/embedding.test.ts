@@ -9,6 +9,8 @@ import { circulantBase, evenRealSpectrum } from '../../../src/core/fft/embedding
 import { Fft2 } from '../../../src/core/fft/fft2.ts';
 import type { Term } from '../../../src/core/kernels/spec.ts';
 import { Random } from '../../../src/core/sampling/random.ts';
+import { forceWasmOffForTesting } from '../../../src/core/wasm/runtime.ts';
+import { wasmFftAvailable } from '../../../src/core/wasm/fft.ts';
 
 /** A random real array with a(−j) = a(j) (indices mod p, both axes at once). */
 function randomEven(px: number, py: number, seed: number): Float64Array {
@@ -71,6 +73,23 @@ describe('evenRealSpectrum', () => {
       let worst = 0;
       for (let i = 0; i < re.length; i++) worst = Math.max(worst, Math.abs(got[i]! - re[i]!));
       expect(worst).toBeLessThanOrEqual(1e-13 * scale);
+    }
+  });
+
+  it('the WebAssembly batch route (used here) and the fft.js fallback agree to 1e-13 of max |λ|', () => {
+    expect(wasmFftAvailable()).toBe(true); // Node 20 has WebAssembly SIMD: the route under test is the kernel one
+    const a = randomEven(64, 32, 3);
+    const fast = evenRealSpectrum(a, 64, 32);
+    forceWasmOffForTesting(true);
+    try {
+      expect(wasmFftAvailable()).toBe(false);
+      const slow = evenRealSpectrum(a, 64, 32);
+      const scale = maxAbs(slow);
+      let worst = 0;
+      for (let i = 0; i < slow.length; i++) worst = Math.max(worst, Math.abs(fast[i]! - slow[i]!));
+      expect(worst).toBeLessThanOrEqual(1e-13 * scale);
+    } finally {
+      forceWasmOffForTesting(false);
     }
   });
 });
