@@ -25,14 +25,13 @@ import { InputError } from '../core/errors.ts';
 import { choosePosteriorPath } from '../core/inverse/auto.ts';
 import {
   prepareStructuredPosterior,
+  structuredDataFit,
   structuredPosteriorStd,
   structuredPosteriorSummary,
   structuredProblem,
   type StructuredProblem,
 } from '../core/inverse/structured.ts';
 import { parallelPosteriorStd, varianceFlops, worthSplitting, type BlockPool } from '../core/parallel/blocks.ts';
-import { applyOperator } from '../core/linalg/operator.ts';
-import { solveLower } from '../core/linalg/cholesky.ts';
 import type { StructuredPosteriorState } from '../core/inverse/structured.ts';
 import { chiSquareQuantile } from '../core/inverse/chisquare.ts';
 import {
@@ -73,27 +72,14 @@ function chi2IntervalOf(m: number): readonly [number, number] | null {
 
 /**
  * The mean-only part of the FFT-path posterior, with fresh arrays (the state keeps its own, which
- * the final summary reuses). Predicted data and residuals by the same operations, in the same
- * order, as src/core/inverse/structured.ts structuredPosteriorSummary, so both agree bit for bit
- * (test/worker/engine.test.ts checks that): predicted = G m̃; residuals (d − G m̃)/σ for a diagonal
- * Cd, Ld⁻¹ (d − G m̃) for a full Cd = Ld Ldᵀ (Tarantola 2005, §3.2: the misfit in the data norm).
+ * the final summary reuses). The data fit is src/core/inverse/structured.ts structuredDataFit, as in
+ * structuredPosteriorSummary, so both agree bit for bit (test/worker/engine.test.ts checks that).
  */
 export function structuredPartial(st: StructuredPosteriorState): PosteriorPartial {
-  const { problem, Ld, mean, priorVariance } = st;
+  const { problem, mean, priorVariance } = st;
   const n = mean.length;
   const m = problem.data.values.length;
-  const predicted = applyOperator(problem.operator, mean);
-  const misfit = new Float64Array(m);
-  for (let k = 0; k < m; k++) misfit[k] = problem.data.values[k]! - predicted[k]!;
-  let residuals: Float64Array;
-  if (Ld !== undefined) {
-    residuals = solveLower(Ld, misfit);
-  } else {
-    residuals = new Float64Array(m);
-    for (let k = 0; k < m; k++) residuals[k] = misfit[k]! / problem.data.sigma![k]!;
-  }
-  let chi2 = 0;
-  for (let k = 0; k < m; k++) chi2 += residuals[k]! * residuals[k]!;
+  const { predicted, residuals, chi2 } = structuredDataFit(st);
   const priorStd = new Float64Array(n);
   for (let i = 0; i < n; i++) priorStd[i] = Math.sqrt(priorVariance[i]!);
   return {

@@ -300,7 +300,7 @@ export function posteriorCovariance(state: PosteriorFactors): Matrix {
  * Row `cell` of the resolution matrix R = Cm Gᵀ K⁻¹ G (the averaging kernel of that cell), length N:
  * R_i· = B_i· K⁻¹ G = (K⁻¹ B_iᵀ)ᵀ G with B_iᵀ column i of Bᵀ = G Cm.
  */
-export function resolutionRow(state: PosteriorFactors, cell: number): Float64Array {
+export function resolutionRow(state: Pick<PosteriorFactors, 'problem' | 'Bt' | 'L'>, cell: number): Float64Array {
   const { Bt, L } = state;
   const n = Bt.cols;
   if (!Number.isInteger(cell) || cell < 0 || cell >= n) throw new InputError('cell', `an integer in [0, ${n - 1}]`, cell);

@@ -455,6 +455,34 @@ export function structuredPosteriorStd(state: StructuredPosteriorState, block = 
   return v;
 }
 
+/**
+ * The data fit of the FFT-path mean (fresh arrays): predicted = G m̃; residuals (d − G m̃)/σ for a
+ * diagonal Cd, Ld⁻¹ (d − G m̃) for a full Cd = Ld Ldᵀ (Tarantola 2005, §3.2: the misfit in the data
+ * norm); χ² = Σ residual². Shared by the summary and the worker's mean-first partial, so both agree
+ * bit for bit.
+ */
+export function structuredDataFit(state: Pick<StructuredPosteriorState, 'problem' | 'Ld' | 'mean'>): {
+  predicted: Float64Array;
+  residuals: Float64Array;
+  chi2: number;
+} {
+  const { problem, Ld, mean } = state;
+  const m = problem.data.values.length;
+  const predicted = applyOperator(problem.operator, mean);
+  const misfit = new Float64Array(m);
+  for (let k = 0; k < m; k++) misfit[k] = problem.data.values[k]! - predicted[k]!;
+  let residuals: Float64Array;
+  if (Ld !== undefined) {
+    residuals = solveLower(Ld, misfit);
+  } else {
+    residuals = new Float64Array(m);
+    for (let k = 0; k < m; k++) residuals[k] = misfit[k]! / problem.data.sigma![k]!;
+  }
+  let chi2 = 0;
+  for (let k = 0; k < m; k++) chi2 += residuals[k]! * residuals[k]!;
+  return { predicted, residuals, chi2 };
+}
+
 /** The full PosteriorSummary (path 'fft'); `std` may be passed when already computed. */
 export function structuredPosteriorSummary(state: StructuredPosteriorState, std?: Float64Array): PosteriorSummary {
   const { problem, L, Ld, r, alpha, mean, priorVariance } = state;
@@ -468,18 +496,7 @@ export function structuredPosteriorSummary(state: StructuredPosteriorState, std?
     priorStd[i] = Math.sqrt(pv);
     varianceReduction[i] = pv > 0 ? 1 - (sd[i]! * sd[i]!) / pv : 0;
   }
-  const predicted = applyOperator(problem.operator, mean);
-  const misfit = new Float64Array(m);
-  for (let k = 0; k < m; k++) misfit[k] = problem.data.values[k]! - predicted[k]!;
-  let residuals: Float64Array;
-  if (Ld !== undefined) {
-    residuals = solveLower(Ld, misfit);
-  } else {
-    residuals = new Float64Array(m);
-    for (let k = 0; k < m; k++) residuals[k] = misfit[k]! / problem.data.sigma![k]!;
-  }
-  let chi2 = 0;
-  for (let k = 0; k < m; k++) chi2 += residuals[k]! * residuals[k]!;
+  const { predicted, residuals, chi2 } = structuredDataFit(state);
   // log N(d; G m0, K) = −½ rᵀα − Σ log L_kk − (M/2) log 2π (Rasmussen & Williams 2006, Alg. 2.1).
   let rAlpha = 0;
   let logDiag = 0;

@@ -26,10 +26,11 @@
 import { InputError } from '../errors.ts';
 import { choleskySolve } from '../linalg/cholesky.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
-import { applyOperator, applyOperatorTranspose } from '../linalg/operator.ts';
+import { applyOperator } from '../linalg/operator.ts';
 import { circulantSampler } from '../fft/realisations.ts';
 import { Random, validateSeed } from '../sampling/random.ts';
 import type { StructuredPosteriorState } from './structured.ts';
+import { resolutionRow } from './posterior.ts';
 
 /** Seed of the data-noise stream for a given draw seed (see the module comment). */
 export function noiseSeed(seed: number): number {
@@ -102,10 +103,6 @@ export function structuredPosteriorDraws(state: StructuredPosteriorState, count:
 
 /** Row `cell` of R = B K⁻¹ G (the averaging kernel of that cell), length N, from the FFT-path state. */
 export function structuredResolutionRow(state: StructuredPosteriorState, cell: number): Float64Array {
-  const { Bt, L } = state;
-  const n = Bt.cols;
-  if (!Number.isInteger(cell) || cell < 0 || cell >= n) throw new InputError('cell', `an integer in [0, ${n - 1}]`, cell);
-  const col = new Float64Array(Bt.rows);
-  for (let k = 0; k < Bt.rows; k++) col[k] = Bt.data[k * n + cell]!;
-  return applyOperatorTranspose(state.problem.operator, choleskySolve(L, col));
+  // The FFT state holds Bᵀ = G Cm and L as the dense one does: the same row formula.
+  return resolutionRow(state, cell);
 }
