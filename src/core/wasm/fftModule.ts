@@ -135,6 +135,22 @@ function fftFunction(): FunctionBuilder {
     });
   };
 
+  /**
+   * The four inputs a, b, c, d of a radix-4 butterfly (at ia + k + r·qB) and its sums: a ± c,
+   * b + d, and J(b − d) (J: the ±i rotation of the direction, a lane swap times the signs in J).
+   */
+  const butterflyInputs = (): void => {
+    f.get(ia).get(k).i32Add().tee(ad).v128Load(0).set(va);
+    f.get(ad).get(qB).i32Add().tee(ad).v128Load(0).set(vb);
+    f.get(ad).get(qB).i32Add().tee(ad).v128Load(0).set(vc);
+    f.get(ad).get(qB).i32Add().v128Load(0).set(vd);
+    f.get(va).get(vc).f64x2Add().set(apc);
+    f.get(va).get(vc).f64x2Sub().set(amc);
+    f.get(vb).get(vd).f64x2Add().set(bpd);
+    f.get(vb).get(vd).f64x2Sub().set(jb);
+    f.swappedLanes(jb).get(J).f64x2Mul().set(jb);
+  };
+
   f.get(src).set(srcB);
   f.get(dst).set(dstB);
   f.i32Const(0).set(bi);
@@ -164,15 +180,7 @@ function fftFunction(): FunctionBuilder {
               // y0, y1 (outputs k < n/2) are written.
               f.i32Const(0).set(k);
               f.loop((f) => {
-                f.get(ia).get(k).i32Add().tee(ad).v128Load(0).set(va);
-                f.get(ad).get(qB).i32Add().tee(ad).v128Load(0).set(vb);
-                f.get(ad).get(qB).i32Add().tee(ad).v128Load(0).set(vc);
-                f.get(ad).get(qB).i32Add().v128Load(0).set(vd);
-                f.get(va).get(vc).f64x2Add().set(apc);
-                f.get(va).get(vc).f64x2Sub().set(amc);
-                f.get(vb).get(vd).f64x2Add().set(bpd);
-                f.get(vb).get(vd).f64x2Sub().set(jb);
-                f.swappedLanes(jb).get(J).f64x2Mul().set(jb);
+                butterflyInputs();
                 f.get(oa).get(k).i32Add().tee(od).get(apc).get(bpd).f64x2Add().v128Store(0);
                 f.get(od).get(str).i32Add().tee(od).get(amc).get(jb).f64x2Sub().v128Store(0);
                 f.block((f) => {
@@ -208,15 +216,7 @@ function fftFunction(): FunctionBuilder {
                   f.br(1);
                 });
                 f.loop((f) => {
-                  f.get(ia).get(k).i32Add().tee(ad).v128Load(0).set(va);
-                  f.get(ad).get(qB).i32Add().tee(ad).v128Load(0).set(vb);
-                  f.get(ad).get(qB).i32Add().tee(ad).v128Load(0).set(vc);
-                  f.get(ad).get(qB).i32Add().v128Load(0).set(vd);
-                  f.get(va).get(vc).f64x2Add().set(apc);
-                  f.get(va).get(vc).f64x2Sub().set(amc);
-                  f.get(vb).get(vd).f64x2Add().set(bpd);
-                  f.get(vb).get(vd).f64x2Sub().set(jb);
-                  f.swappedLanes(jb).get(J).f64x2Mul().set(jb);
+                  butterflyInputs();
                   f.get(oa).get(k).i32Add().tee(od).get(apc).get(bpd).f64x2Add().v128Store(0);
                   storeOutputs(
                     () => f.get(amc).get(jb).f64x2Sub(),
