@@ -4,8 +4,7 @@
  * more for the bands in Node), the posterior mean map is drawn while the status still says the
  * bands are computing, and the standard-deviation map follows. The drawn partial mean must equal
  * the final one exactly and match the core's posterior computed here in Node.
- * 40 × 36 = 1440 cells keeps the positive-definiteness check (dense Cm, all eigenvalues up to
- * 1500 cells, src/core/prior/diagnostics.ts) within seconds on the second worker.
+ * e2e/large-grid.spec.ts runs the whole workbench on a 128 × 128 grid.
  */
 import { expect, test, type Page } from '@playwright/test';
 import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
