@@ -1,5 +1,6 @@
 /**
- * Benchmarks of the FFT path (not timed tests): transforms, the structured posterior on 64² and
+ * Benchmarks of the FFT path (not timed tests): transforms, one Bᵀ pair product on each route
+ * (WebAssembly SIMD and fft.js + JavaScript), the structured posterior on 64² and
  * 128² grids with M = 400 straight-ray data (Matérn ν = 1.5), and one 512² realisation.
  *
  * Targets (issue 6): 64² mean ≤ 150 ms, mean + std ≤ 400 ms; 128² mean + std ≤ 2 s with peak
@@ -23,7 +24,9 @@ import { execFileSync } from 'node:child_process';
 import { existsSync, mkdirSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { CirculantProduct } from '../../../src/core/fft/covariance.ts';
 import { Fft2 } from '../../../src/core/fft/fft2.ts';
+import { forceWasmOffForTesting } from '../../../src/core/wasm/runtime.ts';
 import { circulantSampler } from '../../../src/core/fft/realisations.ts';
 import type { Grid } from '../../../src/core/grid/grid.ts';
 import { prepareStructuredPosterior, structuredPosteriorStd, structuredProblem } from '../../../src/core/inverse/structured.ts';
@@ -144,12 +147,44 @@ function fftCase(px: number, py: number): BenchCase {
   };
 }
 
+/**
+ * One pair product of the posterior's Bᵀ rows (Cm·g for two data rows at once: spectrum of the
+ * padded pair, λ, back), 100 per run, on the WebAssembly SIMD route or the fft.js / JavaScript one.
+ */
+function pairCase(n: number, route: 'wasm' | 'js'): BenchCase {
+  const reps = 100;
+  return {
+    name: `circulant pair product ${n}x${n} (${route === 'wasm' ? 'WebAssembly SIMD' : 'fft.js + JS'}, x${reps} per run)`,
+    params: { grid: n, reps },
+    setup: () => {
+      forceWasmOffForTesting(route === 'js');
+      const cp = new CirculantProduct({ shape: [n, n], spacing: [1, 1] }, benchPrior(n));
+      forceWasmOffForTesting(false);
+      if (cp.usesWasm !== (route === 'wasm')) throw new Error(`pair case: route ${route} not available`);
+      const rng = new Random(3);
+      const a = rng.fillNormal(new Float64Array(n * n));
+      const b = rng.fillNormal(new Float64Array(n * n));
+      const spec = new Float64Array(cp.spectrumLength);
+      const outA = new Float64Array(n * n);
+      const outB = new Float64Array(n * n);
+      return () => {
+        for (let r = 0; r < reps; r++) cp.fromSpectrum(cp.spectrum(a, b, spec), outA, outB);
+        return outA[0];
+      };
+    },
+  };
+}
+
 const realisationPrior: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, length: 20 }] };
 const grid512: Grid = { shape: [512, 512], spacing: [1, 1] };
 
 export const cases: BenchCase[] = [
   fftCase(1024, 1),
   fftCase(1024, 1024),
+  pairCase(64, 'wasm'),
+  pairCase(64, 'js'),
+  pairCase(128, 'wasm'),
+  pairCase(128, 'js'),
   ...posteriorCases(64),
   ...posteriorCases(128),
   {
