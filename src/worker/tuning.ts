@@ -20,9 +20,19 @@
  *   every pair with the same seed (common random numbers, as calibrationTable does).
  * The type-II fit is one core call (BFGS state cannot be split without changing the optimiser);
  * it reports progress but can only be cancelled before it starts.
+ *
+ * ## Large grids
+ * Each request makes one spectrum cache (structuredProblem) and passes it to every core call of
+ * its units, so on the FFT route (stationary prior, N > TUNING_DENSE_LIMIT, src/core/tuning/
+ * projected.ts) the row spectra of G are transformed once per request, not once per row or
+ * candidate. Candidate scoring on that route uses the structured posterior (mean, std, χ², log
+ * evidence, and K's factor for leave-one-out and the predictive check) and its draws
+ * (structuredPosteriorDraws); below the limit it is the dense code as before, number for number.
  */
 import { cellCount } from '../core/grid/grid.ts';
 import { posteriorRealisations, posteriorSummary, preparePosterior } from '../core/inverse/posterior.ts';
+import { prepareStructuredPosterior, structuredPosteriorSummary, structuredProblem, type StructuredProblem } from '../core/inverse/structured.ts';
+import { structuredPosteriorDraws } from '../core/inverse/structuredDraws.ts';
 import { diagnosePriorAuto } from '../core/prior/structuredDiagnostics.ts';
 import type { PriorSpec } from '../core/prior/spec.ts';
 import type { Problem } from '../core/problems/spec.ts';
@@ -36,6 +46,9 @@ import {
   maximiseEvidence,
   priorCriteria,
   priorPredictiveCheck,
+  leaveOneOutFromFactor,
+  predictiveFromStatistic,
+  tuningRoute,
   type CalibrationResult,
   type EvidenceMap,
   type EvidenceMethod,
@@ -82,22 +95,24 @@ export async function runTuning<K extends TuningRequest['kind']>(
 }
 
 async function dispatch(problem: Problem, r: TuningRequest, progress: ProgressFn, signal: AbortFlag): Promise<TuningResultMap[TuningRequest['kind']]> {
+  // One spectrum cache per request, shared by its units (module comment, "Large grids").
+  const structured = structuredProblem(problem);
   switch (r.kind) {
     case 'evidenceMap':
-      return mapByRows(problem, r.prior, r.term, r.lengths, r.variances, progress, signal);
+      return mapByRows(problem, r.prior, r.term, r.lengths, r.variances, progress, signal, structured);
     case 'evidenceProfile':
-      return profile(problem, r, progress, signal);
+      return profile(problem, r, progress, signal, structured);
     case 'typeII':
       progress('type-II maximum likelihood', 0);
-      return maximiseEvidence(problem, r.prior, { fixed: r.fixed, signal, onProgress: (f) => progress('type-II maximum likelihood', f) });
+      return maximiseEvidence(problem, r.prior, { fixed: r.fixed, signal, structured, onProgress: (f) => progress('type-II maximum likelihood', f) });
     case 'criteria':
-      return priorCriteria(problem, r.prior);
+      return priorCriteria(problem, r.prior, { structured });
     case 'calibration':
-      return calibrationByChunks(problem, r.prior, r, progress, signal);
+      return calibrationByChunks(problem, r.prior, r, progress, signal, structured);
     case 'candidates':
-      return scoreCandidates(problem, r.priors, r.draws, r.seed, progress, signal);
+      return scoreCandidates(problem, r.priors, r.draws, r.seed, progress, signal, structured);
     case 'crossCalibration':
-      return crossCalibration(problem, r.priors, r, progress, signal);
+      return crossCalibration(problem, r.priors, r, progress, signal, structured);
     default:
       return assertNever(r);
   }
@@ -116,6 +131,7 @@ export async function mapByRows(
   varianceAxis: { min: number; max: number; count: number },
   progress: ProgressFn,
   signal: AbortFlag,
+  structured: StructuredProblem = structuredProblem(problem),
 ): Promise<EvidenceMap> {
   checkAxisCount('lengths', lengthAxis.count);
   checkAxisCount('variances', varianceAxis.count);
@@ -134,7 +150,7 @@ export async function mapByRows(
       break;
     }
     const L = lengths[i]!;
-    const row = evidenceMap(problem, prior, { term, lengths: { min: L, max: L, count: 1 }, variances: varianceAxis });
+    const row = evidenceMap(problem, prior, { term, lengths: { min: L, max: L, count: 1 }, variances: varianceAxis, structured });
     out.set(row.logEvidence, i * nv);
     methods.push(row.methodByLength[0]!);
     if (row.note !== undefined) note = row.note;
@@ -149,8 +165,14 @@ export async function mapByRows(
   return { term, lengths, variances, logEvidence: out, method, methodByLength: methods, best, cancelled, ...(note !== undefined ? { note } : {}) };
 }
 
-async function profile(problem: Problem, r: Extract<TuningRequest, { kind: 'evidenceProfile' }>, progress: ProgressFn, signal: AbortFlag): Promise<EvidenceProfile> {
-  if (r.which.parameter === 'nugget') return evidenceProfile(problem, r.prior, r.which, { values: r.values, signal });
+async function profile(
+  problem: Problem,
+  r: Extract<TuningRequest, { kind: 'evidenceProfile' }>,
+  progress: ProgressFn,
+  signal: AbortFlag,
+  structured: StructuredProblem,
+): Promise<EvidenceProfile> {
+  if (r.which.parameter === 'nugget') return evidenceProfile(problem, r.prior, r.which, { values: r.values, signal, structured });
   const values = Float64Array.from(r.values);
   const out = new Float64Array(values.length).fill(Number.NaN);
   let cancelled = false;
@@ -160,7 +182,7 @@ async function profile(problem: Problem, r: Extract<TuningRequest, { kind: 'evid
       cancelled = true;
       break;
     }
-    out[k] = evidenceProfile(problem, r.prior, r.which, { values: [values[k]!] }).logEvidence[0]!;
+    out[k] = evidenceProfile(problem, r.prior, r.which, { values: [values[k]!], structured }).logEvidence[0]!;
     progress(`ν profile: value ${k + 1} of ${values.length}`, (k + 1) / values.length);
   }
   let best: EvidenceProfile['best'] = null;
@@ -232,6 +254,8 @@ export function mergeCalibration(parts: readonly CalibrationResult[]): Calibrati
     replicates: total,
     draws: used[0]!.draws,
     cancelled: parts.some((p) => p.cancelled),
+    ...(used[0]!.route !== undefined ? { route: used[0]!.route } : {}),
+    ...(used.some((p) => p.approximateDraws === true) ? { approximateDraws: true } : {}),
   };
 }
 
@@ -241,6 +265,7 @@ async function calibrationByChunks(
   o: { replicates: number; draws: number; seed: number },
   progress: ProgressFn,
   signal: AbortFlag,
+  structured: StructuredProblem,
 ): Promise<CalibrationResult> {
   const chunks = calibrationChunks(o.replicates, o.seed);
   const parts: CalibrationResult[] = [];
@@ -248,7 +273,7 @@ async function calibrationByChunks(
   for (const [k, c] of chunks.entries()) {
     if (k > 0) await yieldToMessages();
     if (signal.aborted) break;
-    parts.push(calibrate(problem, prior, prior, { replicates: c.replicates, draws: o.draws, seed: c.seed }));
+    parts.push(calibrate(problem, prior, prior, { replicates: c.replicates, draws: o.draws, seed: c.seed, structured }));
     done += c.replicates;
     progress(`calibration: ${done} of ${o.replicates} replicates`, done / o.replicates);
   }
@@ -276,7 +301,11 @@ function checkCandidates(priors: readonly PriorSpec[]): void {
   if (priors.length < 1 || priors.length > MAX_CANDIDATES) throw new InputError('candidates', `between 1 and ${MAX_CANDIDATES} pinned priors`, priors.length);
 }
 
-/** Scores, posterior mean/std and posterior draws of each candidate (one candidate per unit). */
+/**
+ * Scores, posterior mean/std and posterior draws of each candidate (one candidate per unit). Dense
+ * route up to TUNING_DENSE_LIMIT cells (or for a non-stationary prior), FFT route above (module
+ * comment, "Large grids").
+ */
 export async function scoreCandidates(
   problem: Problem,
   priors: readonly PriorSpec[],
@@ -284,6 +313,7 @@ export async function scoreCandidates(
   seed: number,
   progress: ProgressFn,
   signal: AbortFlag,
+  structured: StructuredProblem = structuredProblem(problem),
 ): Promise<CandidateScores[]> {
   checkCandidates(priors);
   const out: CandidateScores[] = [];
@@ -291,6 +321,11 @@ export async function scoreCandidates(
     if (k > 0) await yieldToMessages();
     if (signal.aborted) break;
     try {
+      if (tuningRoute(problem, prior) === 'fft') {
+        out.push(scoreStructured(structured, prior, draws, seed));
+        progress(`scoring candidate ${k + 1} of ${priors.length}`, (k + 1) / priors.length);
+        continue;
+      }
       const state = preparePosterior(problem, prior);
       const s = posteriorSummary(state);
       const ppc = priorPredictiveCheck(problem, prior);
@@ -314,12 +349,41 @@ export async function scoreCandidates(
   return out;
 }
 
+/**
+ * One candidate's scores on the FFT route: one structured posterior (Bᵀ by circulant products, K
+ * and its factor) gives the mean, std, χ² and log evidence (structuredPosteriorSummary), the
+ * leave-one-out score from K's factor and r, the predictive check from q = rᵀK⁻¹r = rᵀα, and the
+ * draws (structuredPosteriorDraws). The same formulas as the dense route's separate calls, to
+ * round-off (test/worker/tuning.test.ts).
+ */
+export function scoreStructured(structured: StructuredProblem, prior: PriorSpec, draws: number, seed: number): CandidateScores {
+  const problem = structured.problem;
+  const state = prepareStructuredPosterior(structured, prior);
+  const s = structuredPosteriorSummary(state);
+  let q = 0;
+  for (let k = 0; k < state.r.length; k++) q += state.r[k]! * state.alpha[k]!;
+  const ppc = predictiveFromStatistic(q, s.dataCount);
+  return {
+    ok: true,
+    logEvidence: s.logEvidence,
+    looLogScore: leaveOneOutFromFactor(problem, state.L, state.r).logScore,
+    chi2PerDatum: s.chi2 / s.dataCount,
+    predictiveReduced: ppc.reduced,
+    predictiveP: ppc.pTwoSided,
+    conditionNumber: diagnosePriorAuto(problem.grid, prior).conditionNumber,
+    mean: s.mean,
+    std: s.std,
+    draws: structuredPosteriorDraws(state, draws, seed).realisations,
+  };
+}
+
 async function crossCalibration(
   problem: Problem,
   priors: readonly PriorSpec[],
   o: { replicates: number; draws: number; seed: number },
   progress: ProgressFn,
   signal: AbortFlag,
+  structured: StructuredProblem,
 ): Promise<CrossCalibration> {
   checkCandidates(priors);
   calibrationChunks(o.replicates, o.seed); // validates the replicate count
@@ -335,7 +399,7 @@ async function crossCalibration(
     }
     const i = Math.floor(cell / K);
     const j = cell % K;
-    const res = calibrate(problem, priors[i]!, priors[j]!, { replicates: o.replicates, draws: o.draws, seed: o.seed });
+    const res = calibrate(problem, priors[i]!, priors[j]!, { replicates: o.replicates, draws: o.draws, seed: o.seed, structured });
     c68[cell] = res.coverage68;
     c95[cell] = res.coverage95;
     progress(`cross-calibration: pair ${cell + 1} of ${K * K}`, (cell + 1) / (K * K));

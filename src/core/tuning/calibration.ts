@@ -18,21 +18,33 @@
  * data (the identity derived in src/core/inverse/posterior.ts, posteriorRealisations):
  *   m* = m0 + L_m z,  ε ~ N(0, Cd),  m_s = m* + Cm Gᵀ K⁻¹ (d + ε − G m*).
  *
+ * Routes (./projected.ts tuningRoute, per candidate): dense up to TUNING_DENSE_LIMIT cells or for a
+ * non-stationary prior (Cm as an N × N matrix, its Cholesky factor L_m for the prior draws,
+ * ../inverse/posterior.ts for Bᵀ = G Cm and K); above it, for a stationary prior, no N × N matrix:
+ * Bᵀ and K by circulant products (../inverse/structured.ts prepareStructuredPosterior, std by
+ * structuredPosteriorStd) and prior draws by circulant embedding (../fft/realisations.ts
+ * circulantSampler; exact unless the embedding had to be clipped, reported as `approximateDraws`).
+ *
  * Random stream (part of the "same seed, same numbers" contract): one MT19937 stream seeded with
- * `seed`; per replicate: N normals for the truth, M for the noise, then per draw N for z and M
- * for ε. Every cross-table row uses the same seed, so all inversion candidates see the same
- * truths and data (common random numbers).
+ * `seed`. Dense route, per replicate: N normals for the truth, M for the noise, then per draw N
+ * for z and M for ε. FFT route, per replicate: one 32-bit integer (nextUint32) seeding the
+ * sampler's truth draw, M normals for the noise, one 32-bit integer seeding the sampler's `draws`
+ * prior draws, then per draw M normals for ε (the sampler has its own stream per seed). Every
+ * cross-table row uses the same seed, so all inversion candidates see the same truths and data
+ * (common random numbers) when they share a route.
  */
 import { InputError, NotPositiveDefiniteError } from '../errors.ts';
 import { cholesky, choleskySolve } from '../linalg/cholesky.ts';
 import { type Matrix } from '../linalg/matrix.ts';
 import { applyOperator } from '../linalg/operator.ts';
-import { posteriorSummary, preparePosteriorFromCovariance, type PosteriorFactors } from '../inverse/posterior.ts';
+import { circulantSampler } from '../fft/realisations.ts';
+import { posteriorSummary, preparePosteriorFromCovariance } from '../inverse/posterior.ts';
+import { prepareStructuredPosterior, structuredPosteriorStd, structuredProblem, type StructuredProblem } from '../inverse/structured.ts';
 import { covarianceMatrix, meanVector } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
 import { Random, validateSeed } from '../sampling/random.ts';
-import { aborted, prepareDataSide, type DataSide, type TuningControl } from './dataSpace.ts';
+import { aborted, prepareDataSide, tuningRoute, type DataSide, type RouteOptions, type TuningControl, type TuningRoute } from './dataSpace.ts';
 
 /** Nominal coverages and half-widths in posterior standard deviations: ±1σ (68.27%) and ±1.96σ (95%). */
 export const BAND_LEVELS = {
@@ -40,7 +52,7 @@ export const BAND_LEVELS = {
   outer: { nominal: 0.95, halfWidth: 1.959963984540054 },
 } as const;
 
-export interface CalibrationOptions extends TuningControl {
+export interface CalibrationOptions extends TuningControl, RouteOptions {
   /** Number of independent (truth, data) replicates, ≥ 1. */
   readonly replicates: number;
   /** Posterior draws per replicate for the rank histogram (default 19, giving 20 rank bins). */
@@ -70,30 +82,72 @@ export interface CalibrationResult {
   readonly replicates: number;
   readonly draws: number;
   readonly cancelled: boolean;
+  /** Routes of the truth and the inversion candidates (see the module comment). */
+  readonly route?: { readonly truth: TuningRoute; readonly inversion: TuningRoute };
+  /** True when a circulant embedding had to be clipped, so prior draws were approximate. */
+  readonly approximateDraws?: boolean;
+}
+
+/** Prior draws of one candidate, taking their randomness from the calibration stream. */
+interface PriorDraws {
+  /** One realisation (the truth of a replicate). */
+  one(rng: Random): Float64Array;
+  /** `count` realisations, read one at a time with next() (between which the caller draws ε). */
+  batch(rng: Random, count: number): () => Float64Array;
 }
 
 /** The reusable factorisations of one candidate prior. */
 interface Candidate {
+  readonly route: TuningRoute;
   readonly m0: Float64Array;
-  readonly cmFactor: Matrix;
-  readonly posterior: PosteriorFactors;
+  /** Bᵀ = G Cm (M × N). */
+  readonly Bt: Matrix;
+  /** Lower Cholesky factor of K = G Cm Gᵀ + Cd. */
+  readonly L: Matrix;
   readonly std: Float64Array;
+  readonly draws: PriorDraws;
+  readonly approximate: boolean;
 }
 
-function prepareCandidate(problem: Problem, prior: PriorSpec, field: string): Candidate {
-  let cm: Matrix;
-  let m0: Float64Array;
+function prepareCandidate(problem: Problem, prior: PriorSpec, field: string, holder: StructuredProblem, asked: RouteOptions['route']): Candidate {
+  const route = asked === undefined || asked === 'auto' ? tuningRoute(problem, prior) : asked;
   try {
-    cm = covarianceMatrix(problem.grid, prior);
-    m0 = meanVector(problem.grid, prior);
+    return route === 'fft' ? fftCandidate(holder, prior) : denseCandidate(problem, prior, field);
   } catch (e) {
-    if (e instanceof InputError) throw new InputError(`${field}.${e.field}`, e.expected, e.value);
+    if (e instanceof InputError && !e.field.startsWith(`${field}.`)) throw new InputError(`${field}.${e.field}`, e.expected, e.value);
     throw e;
   }
+}
+
+function denseCandidate(problem: Problem, prior: PriorSpec, field: string): Candidate {
+  const cm = covarianceMatrix(problem.grid, prior);
+  const m0 = meanVector(problem.grid, prior);
   const f = cholesky(cm);
   if (!f.ok) throw new NotPositiveDefiniteError(`${field} prior covariance Cm`, f.pivot, 'calibration draws from it: add a small nugget');
   const posterior = preparePosteriorFromCovariance(problem, cm, m0);
-  return { m0, cmFactor: f.factor, posterior, std: posteriorSummary(posterior).std };
+  const L = f.factor;
+  const n = cm.rows;
+  const z = new Float64Array(n);
+  const draws: PriorDraws = {
+    one: (rng) => draw(L, m0, rng, z),
+    batch: (rng) => () => draw(L, m0, rng, z),
+  };
+  return { route: 'dense', m0, Bt: posterior.Bt, L: posterior.L, std: posteriorSummary(posterior).std, draws, approximate: false };
+}
+
+function fftCandidate(holder: StructuredProblem, prior: PriorSpec): Candidate {
+  const state = prepareStructuredPosterior(holder, prior);
+  const sampler = circulantSampler(holder.problem.grid, prior);
+  const n = state.Bt.cols;
+  const draws: PriorDraws = {
+    one: (rng) => sampler.draw(1, rng.nextUint32()).data,
+    batch: (rng, count) => {
+      const x = sampler.draw(count, rng.nextUint32()).data;
+      let k = 0;
+      return () => x.subarray(n * k, n * ++k);
+    },
+  };
+  return { route: 'fft', m0: state.m0, Bt: state.Bt, L: state.L, std: structuredPosteriorStd(state), draws, approximate: sampler.clipped };
 }
 
 /** m0 + L z with z the next N normals of rng. */
@@ -130,7 +184,7 @@ function noise(side: DataSide, rng: Random, u: Float64Array): Float64Array {
 }
 
 /** base + Cm Gᵀ v = base + Btᵀ v. */
-function addCross(post: PosteriorFactors, base: Float64Array, v: Float64Array): Float64Array {
+function addCross(post: Candidate, base: Float64Array, v: Float64Array): Float64Array {
   const { Bt } = post;
   const n = Bt.cols;
   const out = Float64Array.from(base);
@@ -157,7 +211,6 @@ function run(side: DataSide, truth: Candidate, inv: Candidate, options: Calibrat
   const m = side.dataCount;
   const G = side.problem.operator;
   const rng = new Random(options.seed);
-  const z = new Float64Array(n);
   const u = new Float64Array(m);
   const hit68 = new Float64Array(n);
   const hit95 = new Float64Array(n);
@@ -166,7 +219,7 @@ function run(side: DataSide, truth: Candidate, inv: Candidate, options: Calibrat
   const hist = new Float64Array(draws + 1);
   const ranks = options.keepRanks ? new Uint16Array(R * n) : undefined;
   const rank = new Uint16Array(n);
-  const post = inv.posterior;
+  const post = inv;
   const { inner, outer } = BAND_LEVELS;
   let done = 0;
   let cancelled = false;
@@ -175,7 +228,8 @@ function run(side: DataSide, truth: Candidate, inv: Candidate, options: Calibrat
       cancelled = true;
       break;
     }
-    const mt = draw(truth.cmFactor, truth.m0, rng, z);
+    // Copied: the dense route's draw is a fresh array, the FFT route's a view of the sampler's output.
+    const mt = Float64Array.from(truth.draws.one(rng));
     const d = applyOperator(G, mt);
     const e = noise(side, rng, u);
     for (let k = 0; k < m; k++) d[k] += e[k]!;
@@ -200,8 +254,9 @@ function run(side: DataSide, truth: Candidate, inv: Candidate, options: Calibrat
     rep68[r] = c68 / n;
     rep95[r] = c95 / n;
     rank.fill(0);
+    const next = inv.draws.batch(rng, draws);
     for (let s = 0; s < draws; s++) {
-      const mStar = draw(inv.cmFactor, inv.m0, rng, z);
+      const mStar = next();
       const eps = noise(side, rng, u);
       const gs = applyOperator(G, mStar);
       const rs = new Float64Array(m);
@@ -227,6 +282,8 @@ function run(side: DataSide, truth: Candidate, inv: Candidate, options: Calibrat
     replicates: done,
     draws,
     cancelled,
+    route: { truth: truth.route, inversion: inv.route },
+    ...(truth.approximate || inv.approximate ? { approximateDraws: true } : {}),
   };
 }
 
@@ -237,9 +294,10 @@ function run(side: DataSide, truth: Candidate, inv: Candidate, options: Calibrat
  */
 export function calibrate(problem: Problem, truthPrior: PriorSpec, inversionPrior: PriorSpec, options: CalibrationOptions): CalibrationResult {
   checkOptions(options);
-  const side = prepareDataSide(problem);
-  const a = prepareCandidate(problem, truthPrior, 'truthPrior');
-  const b = truthPrior === inversionPrior ? a : prepareCandidate(problem, inversionPrior, 'inversionPrior');
+  const holder = options.structured ?? structuredProblem(problem);
+  const side = prepareDataSide(problem, { structured: holder });
+  const a = prepareCandidate(problem, truthPrior, 'truthPrior', holder, options.route);
+  const b = truthPrior === inversionPrior ? a : prepareCandidate(problem, inversionPrior, 'inversionPrior', holder, options.route);
   return run(side, a, b, options, (f) => options.onProgress?.(f));
 }
 
@@ -256,8 +314,9 @@ export interface CalibrationTable {
 export function calibrationTable(problem: Problem, candidates: readonly PriorSpec[], options: CalibrationOptions): CalibrationTable {
   checkOptions(options);
   if (candidates.length < 1 || candidates.length > 8) throw new InputError('candidates', 'between 1 and 8 priors', candidates);
-  const side = prepareDataSide(problem);
-  const prepared = candidates.map((c, k) => prepareCandidate(problem, c, `candidates[${k}]`));
+  const holder = options.structured ?? structuredProblem(problem);
+  const side = prepareDataSide(problem, { structured: holder });
+  const prepared = candidates.map((c, k) => prepareCandidate(problem, c, `candidates[${k}]`, holder, options.route));
   const K = candidates.length;
   const results: CalibrationResult[][] = [];
   const c68 = new Float64Array(K * K).fill(Number.NaN);

@@ -10,11 +10,11 @@
 import { InputError } from '../errors.ts';
 import { choleskySolve, solveLower, solveLowerMatrix } from '../linalg/cholesky.ts';
 import { symmetricEigen } from '../linalg/eigen.ts';
-import { identity, matTvec, transpose } from '../linalg/matrix.ts';
+import { identity, matTvec, transpose, type Matrix } from '../linalg/matrix.ts';
 import { chiSquareInterval, regularizedGammaP, regularizedGammaQ } from '../inverse/chisquare.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
-import { LOG_2PI, logEvidenceOf, prepareDataSide, priorDataSpace, symmetrise, type DataSide } from './dataSpace.ts';
+import { LOG_2PI, logEvidenceOf, prepareDataSide, priorDataSpace, symmetrise, type DataSide, type PriorDataSpace, type RouteOptions } from './dataSpace.ts';
 
 /**
  * One line for the UI on why the criteria can disagree: they answer different questions.
@@ -49,12 +49,17 @@ export interface LeaveOneOut {
  * Z = L⁻¹ (one triangular solve with M right-hand sides, M³/3 flops; K⁻¹ itself is never formed).
  * This is the conditional of datum i given the rest, with the full Cd (correlated errors included).
  */
-export function leaveOneOut(problem: Problem, prior: PriorSpec): LeaveOneOut {
-  const side = prepareDataSide(problem);
-  const ev = logEvidenceOf(side, prior);
-  const m = side.dataCount;
-  const L = ev.factor;
-  const r = ev.space.residual;
+export function leaveOneOut(problem: Problem, prior: PriorSpec, options: RouteOptions = {}): LeaveOneOut {
+  const ev = logEvidenceOf(prepareDataSide(problem, options), prior);
+  return leaveOneOutFromFactor(problem, ev.factor, ev.space.residual);
+}
+
+/**
+ * {@link leaveOneOut} from the lower Cholesky factor L of K = G Cm Gᵀ + Cd and r = d − G m0 (e.g.
+ * the factor of a structured posterior, ../inverse/structured.ts, which holds both).
+ */
+export function leaveOneOutFromFactor(problem: Problem, L: Matrix, r: Float64Array): LeaveOneOut {
+  const m = r.length;
   const alpha = choleskySolve(L, r);
   const z = solveLowerMatrix(L, identity(m));
   const kii = new Float64Array(m);
@@ -123,11 +128,19 @@ export function scalePrior(prior: PriorSpec, s: number): PriorSpec {
  * strictly decreasing from Σ b² (s → 0) to Σ_{λ_k = 0} b² (s → ∞) (our derivation). The root is
  * found by bisection on log s (monotone, so bisection cannot fail) to relative precision 1e-13.
  */
-export function discrepancyScale(problem: Problem, prior: PriorSpec, options: { readonly target?: number } = {}): DiscrepancyResult {
-  const side = prepareDataSide(problem);
+export function discrepancyScale(
+  problem: Problem,
+  prior: PriorSpec,
+  options: { readonly target?: number } & RouteOptions = {},
+): DiscrepancyResult {
+  const side = prepareDataSide(problem, options);
   const target = options.target ?? side.dataCount;
   if (!(target > 0) || !Number.isFinite(target)) throw new InputError('target', 'a finite χ² target > 0', target);
-  const { lambda, b } = whitenedByCd(side, prior);
+  return discrepancyFromSpace(side, priorDataSpace(side, prior), prior, target);
+}
+
+function discrepancyFromSpace(side: DataSide, space: PriorDataSpace, prior: PriorSpec, target: number): DiscrepancyResult {
+  const { lambda, b } = whitenedByCd(side, space);
   const top = lambda.reduce((a, v) => Math.max(a, v), 0);
   const chi2 = (s: number): number => {
     let q = 0;
@@ -167,8 +180,8 @@ export function discrepancyScale(problem: Problem, prior: PriorSpec, options: { 
 }
 
 /** Eigenvalues λ of Ld⁻¹ G Cm Gᵀ Ld⁻ᵀ (clamped at 0) and b = Uᵀ Ld⁻¹ r. */
-function whitenedByCd(side: DataSide, prior: PriorSpec): { lambda: Float64Array; b: Float64Array } {
-  const { residual, projected } = priorDataSpace(side, prior);
+function whitenedByCd(side: DataSide, space: PriorDataSpace): { lambda: Float64Array; b: Float64Array } {
+  const { residual, projected } = space;
   const ld = side.cdFactor;
   const x = solveLowerMatrix(ld, projected);
   const a = solveLowerMatrix(ld, transpose(x));
@@ -202,13 +215,14 @@ export interface PriorPredictiveCheck {
  * source). Tail probabilities from the regularised incomplete gamma function (P(χ²_M ≤ q) =
  * P(M/2, q/2), DLMF 8.2.4) in src/core/inverse/chisquare.ts.
  */
-export function priorPredictiveCheck(problem: Problem, prior: PriorSpec): PriorPredictiveCheck {
-  const side = prepareDataSide(problem);
+export function priorPredictiveCheck(problem: Problem, prior: PriorSpec, options: RouteOptions = {}): PriorPredictiveCheck {
+  const side = prepareDataSide(problem, options);
   const ev = logEvidenceOf(side, prior);
   return predictiveFromStatistic(ev.quadratic, side.dataCount);
 }
 
-function predictiveFromStatistic(q: number, m: number): PriorPredictiveCheck {
+/** The prior predictive check from q = rᵀ K⁻¹ r and M (e.g. q = rᵀα of a structured posterior). */
+export function predictiveFromStatistic(q: number, m: number): PriorPredictiveCheck {
   const pUpper = regularizedGammaQ(m / 2, q / 2);
   const pLower = regularizedGammaP(m / 2, q / 2);
   const interval95 = chiSquareInterval(m, 0.95);
@@ -232,14 +246,17 @@ export interface PriorCriteria {
   readonly explanation: string;
 }
 
-/** All closed-form criteria for one prior, for a side-by-side scores table. */
-export function priorCriteria(problem: Problem, prior: PriorSpec): PriorCriteria {
-  const side = prepareDataSide(problem);
+/**
+ * All closed-form criteria for one prior, for a side-by-side scores table. One projection P and one
+ * factorisation of K serve every criterion (the same numbers as the separate calls).
+ */
+export function priorCriteria(problem: Problem, prior: PriorSpec, options: RouteOptions = {}): PriorCriteria {
+  const side = prepareDataSide(problem, options);
   const ev = logEvidenceOf(side, prior);
   return {
     logEvidence: ev.logDensity,
-    leaveOneOut: leaveOneOut(problem, prior),
-    discrepancy: discrepancyScale(problem, prior),
+    leaveOneOut: leaveOneOutFromFactor(problem, ev.factor, ev.space.residual),
+    discrepancy: discrepancyFromSpace(side, ev.space, prior, side.dataCount),
     priorPredictive: predictiveFromStatistic(ev.quadratic, side.dataCount),
     explanation: CRITERIA_DIFFER_EXPLANATION,
   };

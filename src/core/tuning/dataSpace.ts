@@ -5,11 +5,16 @@
  *   r = d − G m0,   P = G Cm Gᵀ (M × M),   K = P + Cd = L Lᵀ (Cholesky),
  *
  * so a criterion costs one projection of Cm and one M × M factorisation, never an N × N solve.
+ * The projection P takes the dense route (Cm as an N × N matrix) or, for a stationary prior on a
+ * grid of more than TUNING_DENSE_LIMIT cells, the FFT route with no N × N matrix
+ * ({@link projectedPriorCovariance}, ./projected.ts).
  * Log density of the data under the prior (Rasmussen & Williams 2006, eq. 2.30 / Algorithm 2.1):
  *
  *   log N(d; G m0, K) = −½ rᵀ K⁻¹ r − Σ log L_ii − (M/2) log 2π.
  */
 import { InputError, NotPositiveDefiniteError } from '../errors.ts';
+import { nonStationaryReason } from '../fft/covariance.ts';
+import { structuredProblem, type StructuredProblem } from '../inverse/structured.ts';
 import { cellCount } from '../grid/grid.ts';
 import { cholesky, logDetFromCholesky, solveLower } from '../linalg/cholesky.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
@@ -18,10 +23,11 @@ import { applyOperator, assertNever, operatorShape, operatorToDense, type Operat
 import { covarianceMatrix, meanVector } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
+import { operatorGramSparse, structuredProjection, TUNING_DENSE_LIMIT, tuningRoute, type TuningRoute } from './projected.ts';
 
 import { LOG_2PI } from '../inverse/evidence.ts';
 
-export { LOG_2PI };
+export { LOG_2PI, TUNING_DENSE_LIMIT, tuningRoute, type TuningRoute };
 
 /** Optional progress report and cancellation flag, shared by every long-running tuning call. */
 export interface TuningControl {
@@ -42,6 +48,18 @@ export interface DataSide {
   readonly cd: Matrix;
   /** True when Cd is diagonal (σ given per datum). */
   readonly diagonalCd: boolean;
+  /** Spectrum cache of the FFT route, shared by every projection made through this side. */
+  readonly structured: StructuredProblem;
+  /** Route of every projection made through this side ('auto': {@link tuningRoute} per prior). */
+  readonly route: 'auto' | TuningRoute;
+}
+
+/** Route and spectrum cache of the projections of one call (tests and benchmarks force the route). */
+export interface RouteOptions {
+  /** 'auto' (default): {@link tuningRoute} per prior; 'dense' / 'fft' force a route. */
+  readonly route?: 'auto' | TuningRoute;
+  /** Made by structuredProblem(problem) for the same problem object; a fresh one per call when absent. */
+  readonly structured?: StructuredProblem;
 }
 
 /**
@@ -49,7 +67,10 @@ export interface DataSide {
  * the operator and the grid disagree or when σ is not positive; NotPositiveDefiniteError when a
  * full Cd does not factor.
  */
-export function prepareDataSide(problem: Problem): DataSide {
+export function prepareDataSide(problem: Problem, options: RouteOptions = {}): DataSide {
+  const structured = options.structured ?? structuredProblem(problem);
+  const route = options.route ?? 'auto';
+  if (structured.problem !== problem) throw new InputError('structured', 'a spectrum cache made for this problem', 'one made for another problem');
   const { rows: m, cols: n } = operatorShape(problem.operator);
   const cells = cellCount(problem.grid);
   if (n !== cells) throw new InputError('problem.operator', `${cells} columns (one per grid cell)`, `${n} columns`);
@@ -69,7 +90,7 @@ export function prepareDataSide(problem: Problem): DataSide {
       f.data[i * m + i] = s;
       cd.data[i * m + i] = s * s;
     }
-    return { problem, dataCount: m, cellCount: cells, cdFactor: f, cd, diagonalCd: true };
+    return { problem, dataCount: m, cellCount: cells, cdFactor: f, cd, diagonalCd: true, structured, route };
   }
   if (d.covariance === undefined) throw new InputError('problem.data', 'one of sigma or covariance', 'neither');
   if (d.covariance.rows !== m || d.covariance.cols !== m) {
@@ -78,7 +99,7 @@ export function prepareDataSide(problem: Problem): DataSide {
   cd.data.set(d.covariance.data);
   const f = cholesky(cd);
   if (!f.ok) throw new NotPositiveDefiniteError('data covariance Cd', f.pivot, 'check problem.data.covariance');
-  return { problem, dataCount: m, cellCount: cells, cdFactor: f.factor, cd, diagonalCd: false };
+  return { problem, dataCount: m, cellCount: cells, cdFactor: f.factor, cd, diagonalCd: false, structured, route };
 }
 
 /** G C (M × N) for a dense N × N matrix C, using the operator's sparsity. */
@@ -160,25 +181,64 @@ export function addMatrices(a: Matrix, b: Matrix): Matrix {
   return out;
 }
 
+/**
+ * P = G Cm Gᵀ (M × M) for the prior on the problem's grid: the dense route (covarianceMatrix, then
+ * {@link projectCovariance}) or the FFT route (./projected.ts structuredProjection), chosen by
+ * {@link tuningRoute} unless `options.route` forces one. Both give the same matrix to round-off
+ * (test/core/tuning/projected.test.ts). Validates the prior (InputError naming the field); a forced
+ * 'fft' for a prior that is not stationary on the grid is an InputError naming `route`.
+ */
+export function projectedPriorCovariance(problem: Problem, prior: PriorSpec, options: RouteOptions = {}): Matrix {
+  const asked = options.route ?? 'auto';
+  let route: TuningRoute;
+  switch (asked) {
+    case 'auto':
+      route = tuningRoute(problem, prior);
+      break;
+    case 'dense':
+    case 'fft':
+      route = asked;
+      break;
+    default:
+      return assertNever(asked);
+  }
+  if (route === 'dense') return projectCovariance(problem.operator, covarianceMatrix(problem.grid, prior));
+  const why = nonStationaryReason(problem.grid, prior);
+  if (why !== null) throw new InputError('route', `"dense" or "auto" for this prior (the FFT route needs a stationary prior on a regular grid: ${why})`, 'fft');
+  const holder = options.structured ?? structuredProblem(problem);
+  if (holder.problem !== problem) throw new InputError('structured', 'a spectrum cache made for this problem', 'one made for another problem');
+  return structuredProjection(holder, prior);
+}
+
+/** P = G Cm Gᵀ by the side's route and spectrum cache. */
+export function sideProjection(side: DataSide, prior: PriorSpec): Matrix {
+  return projectedPriorCovariance(side.problem, prior, { route: side.route, structured: side.structured });
+}
+
 /** The prior-dependent data-space pieces for one prior. */
 export interface PriorDataSpace {
   /** d − G m0. */
   readonly residual: Float64Array;
   /** G Cm Gᵀ. */
   readonly projected: Matrix;
-  /** Dense Cm (N × N), kept for the model-space steps of calibration. */
-  readonly cm: Matrix;
 }
 
-/** r = d − G m0 and P = G Cm Gᵀ for `prior` (validated by covarianceMatrix / meanVector). */
-export function priorDataSpace(side: DataSide, prior: PriorSpec): PriorDataSpace {
+/** r = d − G m0 for `prior` (validates the mean). */
+export function priorResidual(side: DataSide, prior: PriorSpec): Float64Array {
   const { grid, operator, data } = side.problem;
-  const m0 = meanVector(grid, prior);
-  const cm = covarianceMatrix(grid, prior);
-  const gm0 = applyOperator(operator, m0);
+  const gm0 = applyOperator(operator, meanVector(grid, prior));
   const residual = new Float64Array(side.dataCount);
   for (let i = 0; i < residual.length; i++) residual[i] = data.values[i]! - gm0[i]!;
-  return { residual, projected: projectCovariance(operator, cm), cm };
+  return residual;
+}
+
+/**
+ * r = d − G m0 and P = G Cm Gᵀ for `prior` (validated by the projection), P by
+ * {@link projectedPriorCovariance} with the side's spectrum cache.
+ */
+export function priorDataSpace(side: DataSide, prior: PriorSpec): PriorDataSpace {
+  const projected = sideProjection(side, prior);
+  return { residual: priorResidual(side, prior), projected };
 }
 
 /** The Gaussian log density log N(r; 0, K) and the pieces it was made of. */
@@ -238,8 +298,13 @@ export function aborted(control: TuningControl | undefined): boolean {
   return control?.signal?.aborted === true;
 }
 
-/** G Gᵀ (M × M): the projection of the identity covariance (the nugget's shape in data space). */
+/**
+ * G Gᵀ (M × M): the projection of the identity covariance (the nugget's shape in data space). A
+ * sparse G on more than TUNING_DENSE_LIMIT cells is not densified (./projected.ts
+ * operatorGramSparse, same sums up to their order); below, the dense loop as before.
+ */
 export function operatorGram(g: Operator): Matrix {
+  if (g.kind === 'sparse' && g.matrix.cols > TUNING_DENSE_LIMIT) return operatorGramSparse(g);
   const gd = operatorToDense(g);
   const { rows: m, cols: n } = gd;
   const out = matrix(m, m);

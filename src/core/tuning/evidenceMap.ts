@@ -36,7 +36,7 @@ import { cholesky, logDetFromCholesky, solveLower, solveLowerMatrix } from '../l
 import { symmetricEigen } from '../linalg/eigen.ts';
 import { matrix, matTvec, transpose, type Matrix } from '../linalg/matrix.ts';
 import { assertNever } from '../linalg/operator.ts';
-import { covarianceMatrix } from '../prior/covariance.ts';
+import { validatePrior } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
 import {
@@ -47,9 +47,11 @@ import {
   LOG_2PI,
   prepareDataSide,
   priorDataSpace,
-  projectCovariance,
+  priorResidual,
+  sideProjection,
   symmetrise,
   type DataSide,
+  type RouteOptions,
   type TuningControl,
   operatorGram,
 } from './dataSpace.ts';
@@ -104,7 +106,7 @@ export function setTermLength(term: Term, length: number): Term {
   return { ...term, length };
 }
 
-export interface EvidenceMapOptions extends TuningControl {
+export interface EvidenceMapOptions extends TuningControl, RouteOptions {
   /** Index of the term whose length and variance are mapped. */
   readonly term: number;
   readonly lengths: LogAxis;
@@ -159,7 +161,7 @@ function fixedPart(side: DataSide, prior: PriorSpec, skip: number | null, dropNu
     for (let i = 0; i < ggt.data.length; i++) ggt.data[i] *= nugget;
     return addMatrices(ggt, side.cd);
   }
-  return addMatrices(projectCovariance(side.problem.operator, covarianceMatrix(side.problem.grid, rest)), side.cd);
+  return addMatrices(sideProjection(side, rest), side.cd);
 }
 
 function whiten(fixed: Matrix, residual: Float64Array): Whitening | null {
@@ -207,7 +209,8 @@ function choleskyLogEvidence(p: Matrix, s: number, fixed: Matrix, residual: Floa
 
 /**
  * Log evidence over lengths × variances of term `options.term` (see the module comment for the
- * method). Cost per length: one Cm assembly, one projection G C₁ Gᵀ and one M × M
+ * method). Cost per length: one projection G C₁ Gᵀ (dense: one Cm assembly; FFT route above
+ * TUNING_DENSE_LIMIT cells: ⌈M/2⌉ circulant products, no N × N matrix) and one M × M
  * eigendecomposition; per cell O(M) (eigen) or one M × M Cholesky (cholesky).
  */
 export function evidenceMap(problem: Problem, prior: PriorSpec, options: EvidenceMapOptions): EvidenceMap {
@@ -217,11 +220,12 @@ export function evidenceMap(problem: Problem, prior: PriorSpec, options: Evidenc
   const asked = options.method ?? 'auto';
   if (asked !== 'auto' && asked !== 'eigen' && asked !== 'cholesky') throw new InputError('method', '"auto", "eigen" or "cholesky"', asked);
   const requested = asked === 'cholesky' || (asked === 'auto' && variances.length < EIGEN_BREAK_EVEN) ? 'cholesky' : 'auto';
-  const side = prepareDataSide(problem);
+  const side = prepareDataSide(problem, options);
   const term = prior.terms[options.term]!;
   const unit = (len: number): PriorSpec => ({ ...prior, terms: [{ ...setTermLength(term, len), variance: 1 }], nugget: 0 });
-  // Residual r = d − G m0 and validation of the prior as given.
-  const { residual } = priorDataSpace(side, prior);
+  // Validation of the prior as given, and the residual r = d − G m0.
+  validatePrior(prior, problem.grid);
+  const residual = priorResidual(side, prior);
   const fixed = fixedPart(side, prior, options.term, false);
   const w = whiten(fixed, residual);
   const nl = lengths.length;
@@ -236,7 +240,7 @@ export function evidenceMap(problem: Problem, prior: PriorSpec, options: Evidenc
       cancelled = true;
       break;
     }
-    const p = projectCovariance(problem.operator, covarianceMatrix(problem.grid, unit(lengths[i]!)));
+    const p = sideProjection(side, unit(lengths[i]!));
     const spec = requested === 'auto' && w !== null ? whitenedSpectrum(w, p) : null;
     if (requested === 'auto' && w !== null && spec === null) note = `term ${options.term} at length ${lengths[i]} gives an indefinite G C₁ Gᵀ`;
     methods.push(spec !== null ? 'eigen' : 'cholesky');
@@ -265,7 +269,7 @@ export function evidenceMap(problem: Problem, prior: PriorSpec, options: Evidenc
 
 export type ProfileParameter = { readonly parameter: 'nu'; readonly term: number } | { readonly parameter: 'nugget' };
 
-export interface EvidenceProfileOptions extends TuningControl {
+export interface EvidenceProfileOptions extends TuningControl, RouteOptions {
   /** Values of ν (> 0) or of the nugget (≥ 0) at which to evaluate. */
   readonly values: ArrayLike<number>;
   /** Nugget profile only; as in EvidenceMapOptions (ν profiles always factor per value). */
@@ -289,8 +293,9 @@ export interface EvidenceProfile {
 export function evidenceProfile(problem: Problem, prior: PriorSpec, which: ProfileParameter, options: EvidenceProfileOptions): EvidenceProfile {
   const values = Float64Array.from(options.values);
   if (values.length === 0) throw new InputError('values', 'at least one value', options.values);
-  const side = prepareDataSide(problem);
-  const { residual } = priorDataSpace(side, prior);
+  const side = prepareDataSide(problem, options);
+  validatePrior(prior, problem.grid);
+  const residual = priorResidual(side, prior);
   const out = new Float64Array(values.length).fill(Number.NaN);
   let cancelled = false;
   let method: EvidenceMethod = 'cholesky';

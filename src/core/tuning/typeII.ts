@@ -34,7 +34,6 @@ import { InputError, NotPositiveDefiniteError } from '../errors.ts';
 import type { Term } from '../kernels/spec.ts';
 import { cholesky, choleskySolve, solveLowerMatrix } from '../linalg/cholesky.ts';
 import { identity, type Matrix } from '../linalg/matrix.ts';
-import { covarianceMatrix } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
 import {
@@ -46,14 +45,15 @@ import {
   operatorGram,
   prepareDataSide,
   priorDataSpace,
-  projectCovariance,
+  sideProjection,
   type DataSide,
+  type RouteOptions,
   type TuningControl,
 } from './dataSpace.ts';
 
 /** log N(d; G m0, G Cm Gᵀ + Cd) for the prior (NotPositiveDefiniteError if K does not factor). */
-export function logEvidence(problem: Problem, prior: PriorSpec): number {
-  return logEvidenceOf(prepareDataSide(problem), prior).logDensity;
+export function logEvidence(problem: Problem, prior: PriorSpec, options: RouteOptions = {}): number {
+  return logEvidenceOf(prepareDataSide(problem, options), prior).logDensity;
 }
 
 /** One optimisation coordinate. */
@@ -165,10 +165,14 @@ export function applyHyperParameters(prior: PriorSpec, params: readonly HyperPar
 /** Step of the central differences of the kernel in the length, angle and ν coordinates. */
 const KERNEL_STEP = 1e-5;
 
-/** G S R_t S Gᵀ · variance_t for term t alone (the standard-deviation profile included). */
+/**
+ * G S R_t S Gᵀ · variance_t for term t alone (the standard-deviation profile included), by the
+ * route of ./dataSpace.ts projectedPriorCovariance (FFT above TUNING_DENSE_LIMIT cells, with the
+ * side's spectrum cache: every projection of one fit shares the row spectra).
+ */
 function projectedTerm(side: DataSide, prior: PriorSpec, t: number): Matrix {
   const single: PriorSpec = { mean: prior.mean, terms: [prior.terms[t]!], ...(prior.stdProfile ? { stdProfile: prior.stdProfile } : {}) };
-  return projectCovariance(side.problem.operator, covarianceMatrix(side.problem.grid, single));
+  return sideProjection(side, single);
 }
 
 export interface EvidenceAndGradient {
@@ -227,7 +231,7 @@ export function evidenceGradient(problem: Problem, prior: PriorSpec, params: rea
   return { logEvidence: g.logDensity, gradient: grad };
 }
 
-export interface MaximiseOptions extends HyperParameterOptions, TuningControl {
+export interface MaximiseOptions extends HyperParameterOptions, TuningControl, RouteOptions {
   /** Iteration limit (default 200). */
   readonly maxIterations?: number;
   /** Stop when every |∂ log p/∂θ_j| is below this (default 1e-6). */
@@ -274,7 +278,7 @@ const HESSIAN_STEP = 1e-3;
 
 /** Maximise the log evidence over the prior's continuous hyperparameters (see the module comment). */
 export function maximiseEvidence(problem: Problem, start: PriorSpec, options: MaximiseOptions = {}): TypeIIResult {
-  const side = prepareDataSide(problem);
+  const side = prepareDataSide(problem, options);
   const params = hyperParameters(start, options);
   const p = params.length;
   if (p === 0) throw new InputError('fixed', 'to leave at least one hyperparameter free', options.fixed);

@@ -1,0 +1,154 @@
+/**
+ * P = G Cm Gᵀ (M × M), the one prior-dependent matrix that the data-space criteria need (evidence,
+ * leave-one-out, discrepancy, prior predictive check), by one of two routes:
+ *
+ * - dense: Cm as an N × N matrix (../prior/covariance.ts), P = G Cm Gᵀ by the sparse / blocked
+ *   products of ./dataSpace.ts projectCovariance (N² doubles: 134 MB at 64², 2 GB at 128²);
+ * - fft: for a prior stationary on a regular 1-D/2-D grid, row k of Bᵀ = G Cm is
+ *   s ⊙ C(s ⊙ g_k) + η g_k by circulant embedding (../inverse/structured.ts computeBtPairs /
+ *   finishBtRows: C v exact for any padding ≥ 2n − 1, since the embedding holds every lag of the
+ *   grid), then P_ab = g_a · (Bᵀ)_b. Bᵀ is made in blocks of rows, so the memory is
+ *   O(block · N + M²), never N × N. The row spectra F pad(s ⊙ g_k) depend on the problem and the
+ *   std profile only; they are kept on the {@link StructuredProblem} passed in (the same cache the
+ *   structured posterior fills), so a change of length, variance or ν costs one pointwise product
+ *   and one transform per pair of data.
+ *
+ * Route rule (`auto`): fft when the prior is stationary on the grid and N > {@link TUNING_DENSE_LIMIT}.
+ * The limit is not the speed crossing (the FFT route is already faster from a few hundred cells,
+ * see test/core/tuning/scaleBench.ts) but the largest built-in demo (32² = 1024 cells): up to it
+ * every tuning result, seeded calibrations included, stays bit for bit what it was; above it the
+ * dense route's N² memory is the reason to switch (the same limit as
+ * ../sampling/realisations.ts DENSE_REALISATION_LIMIT). Both routes agree to round-off
+ * (test/core/tuning/projected.test.ts: 1e-10 relative).
+ *
+ * The route choice and the dense route live in ./dataSpace.ts (projectedPriorCovariance,
+ * projectCovariance); this file holds the rule and the FFT route.
+ *
+ * PUBLIC API: TUNING_DENSE_LIMIT, TuningRoute, tuningRoute, structuredProjection, operatorGramSparse.
+ */
+import { cellCount } from '../grid/grid.ts';
+import { matrix, type Matrix } from '../linalg/matrix.ts';
+import { multiplyNT } from '../linalg/products.ts';
+import { assertNever, type Operator } from '../linalg/operator.ts';
+import { nonStationaryReason } from '../fft/covariance.ts';
+import { computeBtPairs, finishBtRows, structuredSetup, type StructuredProblem } from '../inverse/structured.ts';
+import type { PriorSpec } from '../prior/spec.ts';
+import type { Problem } from '../problems/spec.ts';
+
+/** Largest N on the dense route under `auto` (the largest built-in demo; see the module comment). */
+export const TUNING_DENSE_LIMIT = 1024;
+
+export type TuningRoute = 'dense' | 'fft';
+
+/** Rows of Bᵀ held at once on the FFT route (even, so blocks split the data pairs exactly). */
+const BT_BLOCK_ROWS = 32;
+
+/** The route prior selection takes for (problem, prior) (see the module comment). */
+export function tuningRoute(problem: Problem, prior: PriorSpec): TuningRoute {
+  if (cellCount(problem.grid) <= TUNING_DENSE_LIMIT) return 'dense';
+  return nonStationaryReason(problem.grid, prior) === null ? 'fft' : 'dense';
+}
+
+/** A ← (A + Aᵀ)/2 in place; returns A. */
+function mirrorAverage(a: Matrix, m: number): Matrix {
+  const d = a.data;
+  for (let i = 0; i < m; i++) {
+    for (let j = 0; j < i; j++) {
+      const v = 0.5 * (d[i * m + j]! + d[j * m + i]!);
+      d[i * m + j] = v;
+      d[j * m + i] = v;
+    }
+  }
+  return a;
+}
+
+function sameProfile(a: Float64Array | null, b: readonly number[] | undefined): boolean {
+  if (a === null || b === undefined) return a === null && b === undefined;
+  if (a.length !== b.length) return false;
+  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return false;
+  return true;
+}
+
+/**
+ * P = G Cm Gᵀ through circulant-embedding products (the FFT route of the module comment). Throws
+ * InputError for a bad or non-stationary prior (../inverse/structured.ts structuredSetup).
+ * Cost: ⌈M/2⌉ complex 2-D transforms (one product each with cached spectra) + M·nnz(G) for
+ * the sparse G·Bᵀ (M²N for a dense G); memory BT_BLOCK_ROWS·N + M² doubles (+ the spectrum cache
+ * within holder.cacheBytes).
+ */
+export function structuredProjection(holder: StructuredProblem, prior: PriorSpec): Matrix {
+  const setup = structuredSetup(holder, prior);
+  const { n, m, cp, order, problem } = setup;
+  const g = problem.operator;
+  const s = prior.stdProfile;
+  const nugget = prior.nugget ?? 0;
+  const cache = holder.cache;
+  const cached = cache !== null && cache.px === cp.px && cache.py === cp.py && sameProfile(cache.profile, s) ? cache.spectra : null;
+  if (cached === null) holder.cache = null;
+  const pairs = Math.ceil(m / 2);
+  const fits = pairs * cp.columnSpectrumLength * 8 <= holder.cacheBytes;
+  const save: Float64Array[] | null = cached === null && fits ? [] : null;
+  const block = Math.min(BT_BLOCK_ROWS, m + (m % 2));
+  const bt = new Float64Array(block * n);
+  const slots = new Int32Array(block);
+  for (let q = 0; q < block; q++) slots[q] = q;
+  const p = matrix(m, m);
+  const pd = p.data;
+  for (let j0 = 0; j0 < m; j0 += block) {
+    const j1 = Math.min(m, j0 + block);
+    const rows = order.subarray(j0, j1);
+    const sl = slots.subarray(0, j1 - j0);
+    const spectra = cached === null ? null : cached.slice(j0 / 2, Math.ceil(j1 / 2));
+    computeBtPairs(cp, g, s, rows, sl, bt, spectra, save);
+    finishBtRows(g, s, nugget, rows, sl, bt, n);
+    // Columns rows[q] of P: P_a,rows[q] = g_a · (Bᵀ)_rows[q].
+    const k = j1 - j0;
+    switch (g.kind) {
+      case 'sparse': {
+        const { rowPtr, colIdx, values } = g.matrix;
+        for (let a = 0; a < m; a++) {
+          const q0 = rowPtr[a]!;
+          const q1 = rowPtr[a + 1]!;
+          const oa = a * m;
+          for (let q = 0; q < k; q++) {
+            const o = q * n;
+            let sum = 0;
+            for (let t = q0; t < q1; t++) sum += values[t]! * bt[o + colIdx[t]!]!;
+            pd[oa + rows[q]!] = sum;
+          }
+        }
+        break;
+      }
+      case 'dense': {
+        const part = multiplyNT(g.matrix, { rows: k, cols: n, data: bt.subarray(0, k * n) });
+        for (let a = 0; a < m; a++) for (let q = 0; q < k; q++) pd[a * m + rows[q]!] = part.data[a * k + q]!;
+        break;
+      }
+      default:
+        assertNever(g);
+    }
+  }
+  if (save !== null) holder.cache = { px: cp.px, py: cp.py, profile: s === undefined ? null : Float64Array.from(s), spectra: save };
+  return mirrorAverage(p, m);
+}
+
+/**
+ * G Gᵀ (M × M) of a sparse G without densifying it: each row of G scattered into a length-N
+ * scratch row, then dotted with every row of G (M·nnz(G) flops, N doubles of memory).
+ */
+export function operatorGramSparse(g: Operator & { kind: 'sparse' }): Matrix {
+  const { rows: m, cols: n, rowPtr, colIdx, values } = g.matrix;
+  const out = matrix(m, m);
+  const row = new Float64Array(n);
+  for (let i = 0; i < m; i++) {
+    for (let q = rowPtr[i]!; q < rowPtr[i + 1]!; q++) row[colIdx[q]!] += values[q]!;
+    for (let k = 0; k <= i; k++) {
+      let s = 0;
+      for (let q = rowPtr[k]!; q < rowPtr[k + 1]!; q++) s += values[q]! * row[colIdx[q]!]!;
+      out.data[i * m + k] = s;
+      out.data[k * m + i] = s;
+    }
+    for (let q = rowPtr[i]!; q < rowPtr[i + 1]!; q++) row[colIdx[q]!] = 0;
+  }
+  return out;
+}
