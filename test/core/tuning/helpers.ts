@@ -8,6 +8,7 @@ import { covarianceMatrix, meanVector } from '../../../src/core/prior/covariance
 import type { PriorSpec } from '../../../src/core/prior/spec.ts';
 import type { Problem } from '../../../src/core/problems/spec.ts';
 import { Random } from '../../../src/core/sampling/random.ts';
+import { rayOperator } from '../../../src/core/problems/rays.ts';
 
 /** Dense M × N operator of local averages: datum i averages `width` cells from a random start. */
 export function averagingOperator(m: number, n: number, width: number, rng: Random): Operator {
@@ -72,4 +73,37 @@ export function withCorrelatedErrors(p: Problem, sigma: number): Problem {
   const cov: Matrix = matrix(m, m);
   for (let i = 0; i < m; i++) for (let j = 0; j < m; j++) cov.data[i * m + j] = sigma * sigma * Math.exp(-Math.abs(i - j) / 2);
   return { ...p, data: { values: p.data.values, covariance: cov } };
+}
+
+/** Smallest k with P(X ≤ k) ≥ q for X ~ Bin(n, p): exact pmf by the ratio recursion in logs. */
+export function binomialQuantile(n: number, p: number, q: number): number {
+  let logPmf = n * Math.log(1 - p);
+  let cdf = 0;
+  for (let k = 0; k <= n; k++) {
+    cdf += Math.exp(logPmf);
+    if (cdf >= q) return k;
+    logPmf += Math.log((n - k) / (k + 1)) + Math.log(p / (1 - p));
+  }
+  return n;
+}
+
+/**
+ * An invented 2-D survey on an nx × ny grid of 1 m cells: m straight rays, alternately from the
+ * left to the right edge and from the bottom to the top, end points from a seeded generator, data
+ * simulated from `truthPrior` (dense draw) with noise σ.
+ */
+export function rayProblem(seed: number, nx: number, ny: number, m: number, truthPrior: PriorSpec, sigma = 0.05): Problem {
+  const rng = new Random(seed);
+  const grid: Grid = { shape: [nx, ny], spacing: [1, 1] };
+  const rays = Array.from({ length: m }, (_, k) => {
+    const a = -0.5 + ny * rng.nextDouble();
+    const b = -0.5 + ny * rng.nextDouble();
+    const c = -0.5 + nx * rng.nextDouble();
+    const e = -0.5 + nx * rng.nextDouble();
+    return k % 2 === 0 ? { from: [-0.5, a] as const, to: [nx - 0.5, b] as const } : { from: [c, -0.5] as const, to: [e, ny - 0.5] as const };
+  });
+  const operator = rayOperator(grid, rays);
+  const truth = drawTruth(grid, truthPrior, rng);
+  const s = new Float64Array(m).fill(sigma);
+  return { grid, operator, data: { values: simulateData(operator, truth, s, rng), sigma: s }, truth };
 }
