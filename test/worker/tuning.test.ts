@@ -7,7 +7,11 @@
  */
 import { describe, expect, it } from 'vitest';
 import { demoById } from '../../src/core/problems/demos.ts';
-import { calibrate, evidenceMap, leaveOneOut, logEvidence, priorPredictiveCheck, termLength } from '../../src/core/tuning/index.ts';
+import { calibrate, evidenceMap, leaveOneOut, logEvidence, priorPredictiveCheck, termLength, tuningRoute } from '../../src/core/tuning/index.ts';
+import { prepareStructuredPosterior } from '../../src/core/inverse/structured.ts';
+import { structuredPosteriorDraws } from '../../src/core/inverse/structuredDraws.ts';
+import type { PriorSpec } from '../../src/core/prior/spec.ts';
+import { rayProblem } from '../core/tuning/helpers.ts';
 import { posteriorSummary, preparePosterior } from '../../src/core/inverse/posterior.ts';
 import { calibrationChunks, mapByRows, mergeCalibration, runTuning, scoreCandidates } from '../../src/worker/tuning.ts';
 import { LatestWinsQueue } from '../../src/worker/queue.ts';
@@ -164,5 +168,61 @@ describe('candidate scores', () => {
     const b = s[2]!;
     expect(b.ok).toBe(false);
     if (!b.ok) expect(b.error).toMatch(/variance/);
+  });
+});
+
+describe('large grids (FFT route above TUNING_DENSE_LIMIT cells)', () => {
+  const prior: PriorSpec = { mean: { constant: 0.1 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 0.4, length: 5 }], nugget: 1e-4 };
+  // 36 × 32 = 1152 cells: above the limit, small enough for the dense route to run as the check.
+  const big = rayProblem(61, 36, 32, 60, prior, 0.05);
+  const rel = (a: number, b: number): number => Math.abs(a - b) / Math.max(1, Math.abs(b));
+  const relDiff = (a: ArrayLike<number>, b: ArrayLike<number>): number => {
+    let d = 0;
+    let s = 0;
+    for (let i = 0; i < b.length; i++) {
+      d = Math.max(d, Math.abs(a[i]! - b[i]!));
+      s = Math.max(s, Math.abs(b[i]!));
+    }
+    return d / s;
+  };
+
+  it('candidate scores take the FFT route and equal the dense numbers to 1e-9', async () => {
+    expect(tuningRoute(big, prior)).toBe('fft');
+    const other: PriorSpec = { ...prior, terms: [{ ...prior.terms[0]!, length: 2 }] };
+    const s = await scoreCandidates(big, [prior, other], 3, 11, () => {}, { aborted: false });
+    for (const [k, p] of [prior, other].entries()) {
+      const c = s[k]!;
+      if (!c.ok) throw new Error(c.error);
+      const dense = { route: 'dense' } as const;
+      expect(rel(c.logEvidence, logEvidence(big, p, dense))).toBeLessThan(1e-9);
+      expect(rel(c.looLogScore, leaveOneOut(big, p, dense).logScore)).toBeLessThan(1e-9);
+      const ppc = priorPredictiveCheck(big, p, dense);
+      expect(rel(c.predictiveReduced, ppc.reduced)).toBeLessThan(1e-9);
+      expect(Math.abs(c.predictiveP - ppc.pTwoSided)).toBeLessThan(1e-9);
+      const post = posteriorSummary(preparePosterior(big, p));
+      expect(rel(c.chi2PerDatum, post.chi2 / post.dataCount)).toBeLessThan(1e-9);
+      expect(relDiff(c.mean, post.mean)).toBeLessThan(1e-9);
+      expect(relDiff(c.std, post.std)).toBeLessThan(1e-9);
+      // The draws are the structured posterior's seeded draws, number for number.
+      const want = structuredPosteriorDraws(prepareStructuredPosterior(big, p), 3, 11).realisations;
+      expect(c.draws.rows).toBe(3);
+      expect(Array.from(c.draws.data)).toEqual(Array.from(want.data));
+    }
+  });
+
+  it('the map by rows (one spectrum cache per request) equals the whole-map core call', async () => {
+    const axis = { lengths: { min: 2, max: 10, count: 3 }, variances: { min: 0.05, max: 3, count: 4 } };
+    const whole = evidenceMap(big, prior, { term: 0, ...axis });
+    const rows = await mapByRows(big, prior, 0, axis.lengths, axis.variances, () => {}, { aborted: false });
+    whole.logEvidence.forEach((v, k) => expect(rows.logEvidence[k]).toBe(v));
+    expect(rows.best!.index).toBe(whole.best!.index);
+    const dense = evidenceMap(big, prior, { term: 0, ...axis, route: 'dense' });
+    dense.logEvidence.forEach((v, k) => expect(rel(rows.logEvidence[k]!, v)).toBeLessThan(1e-9));
+  });
+
+  it('calibration chunks report the FFT route and merge it', async () => {
+    const res = await runTuning<'calibration'>(big, { id: 1, kind: 'calibration', problemVersion: 0, prior, replicates: 4, draws: 3, seed: 9 }, () => {}, { aborted: false });
+    expect(res.route).toEqual({ truth: 'fft', inversion: 'fft' });
+    expect(res.replicates).toBe(4);
   });
 });
