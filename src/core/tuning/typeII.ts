@@ -33,9 +33,10 @@
 import { InputError, NotPositiveDefiniteError } from '../errors.ts';
 import type { Term } from '../kernels/spec.ts';
 import { cholesky, choleskySolve, solveLowerMatrix } from '../linalg/cholesky.ts';
-import { identity, type Matrix } from '../linalg/matrix.ts';
+import { identity, matrix, type Matrix } from '../linalg/matrix.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
+import { validatePrior } from '../prior/covariance.ts';
 import {
   aborted,
   addMatrices,
@@ -45,7 +46,9 @@ import {
   operatorGram,
   prepareDataSide,
   priorDataSpace,
+  priorResidual,
   sideProjection,
+  tuningRoute,
   type DataSide,
   type RouteOptions,
   type TuningControl,
@@ -186,7 +189,28 @@ export interface EvidenceAndGradient {
  * logEvidence −∞ (gradient NaN) when K does not factor.
  */
 export function evidenceGradient(problem: Problem, prior: PriorSpec, params: readonly HyperParameter[], side = prepareDataSide(problem)): EvidenceAndGradient {
-  const space = priorDataSpace(side, prior);
+  // FFT route: P = Σ_t P_t + η G Gᵀ from the per-term projections that the variance derivatives
+  // need anyway (one projection per evaluation fewer; equal to the direct P to round-off). The
+  // dense route keeps its single projection of Cm, so its numbers stay as they were.
+  const fft = side.route === 'fft' || (side.route === 'auto' && tuningRoute(problem, prior) === 'fft');
+  const termP: Matrix[] = [];
+  let gram: Matrix | null = null;
+  let space: { residual: Float64Array; projected: Matrix };
+  if (fft && prior.terms.length > 0) {
+    validatePrior(prior, problem.grid);
+    prior.terms.forEach((_, t) => termP.push(projectedTerm(side, prior, t)));
+    const first = termP[0]!;
+    const projected = matrix(first.rows, first.cols, first.data.slice());
+    for (let t = 1; t < termP.length; t++) for (let i = 0; i < projected.data.length; i++) projected.data[i] += termP[t]!.data[i]!;
+    const eta = prior.nugget ?? 0;
+    if (eta !== 0) {
+      gram = operatorGram(problem.operator);
+      for (let i = 0; i < projected.data.length; i++) projected.data[i] += eta * gram.data[i]!;
+    }
+    space = { residual: priorResidual(side, prior), projected };
+  } else {
+    space = priorDataSpace(side, prior);
+  }
   const g = gaussianLogDensity(addMatrices(space.projected, side.cd), space.residual);
   const p = params.length;
   if (g === null) return { logEvidence: Number.NEGATIVE_INFINITY, gradient: new Float64Array(p).fill(Number.NaN) };
@@ -196,14 +220,13 @@ export function evidenceGradient(problem: Problem, prior: PriorSpec, params: rea
   const z = solveLowerMatrix(L, identity(m));
   const theta = hyperParameterVector(prior, params);
   const grad = new Float64Array(p);
-  let gram: Matrix | null = null;
   params.forEach((h, j) => {
     let dk: Matrix;
     if (h.field === 'nugget') {
       gram ??= operatorGram(problem.operator);
       dk = { rows: m, cols: m, data: gram.data.map((v) => v * prior.nugget!) };
     } else if (h.field === 'variance') {
-      dk = projectedTerm(side, prior, h.term!);
+      dk = termP[h.term!] ?? projectedTerm(side, prior, h.term!);
     } else {
       const step = (sign: number): Matrix => {
         const th = Float64Array.from(theta);
