@@ -26,8 +26,7 @@
  * The route choice and the dense route live in ./dataSpace.ts (projectedPriorCovariance,
  * projectCovariance); this file holds the rule and the FFT route.
  *
- * PUBLIC API: TUNING_DENSE_LIMIT, TuningRoute, tuningRoute, structuredProjection,
- * structuredProjections, operatorGramSparse.
+ * PUBLIC API: TUNING_DENSE_LIMIT, TuningRoute, tuningRoute, structuredProjection, operatorGramSparse.
  */
 import { cellCount } from '../grid/grid.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
@@ -104,111 +103,35 @@ export function structuredProjection(holder: StructuredProblem, prior: PriorSpec
     const spectra = cached === null ? null : cached.slice(j0 / 2, Math.ceil(j1 / 2));
     computeBtPairs(cp, g, s, rows, sl, bt, spectra, save);
     finishBtRows(g, s, nugget, rows, sl, bt, n);
-    fillColumns(g, rows, bt, n, m, pd);
+    // Columns rows[q] of P: P_a,rows[q] = g_a · (Bᵀ)_rows[q].
+    const k = j1 - j0;
+    switch (g.kind) {
+      case 'sparse': {
+        const { rowPtr, colIdx, values } = g.matrix;
+        for (let a = 0; a < m; a++) {
+          const q0 = rowPtr[a]!;
+          const q1 = rowPtr[a + 1]!;
+          const oa = a * m;
+          for (let q = 0; q < k; q++) {
+            const o = q * n;
+            let sum = 0;
+            for (let t = q0; t < q1; t++) sum += values[t]! * bt[o + colIdx[t]!]!;
+            pd[oa + rows[q]!] = sum;
+          }
+        }
+        break;
+      }
+      case 'dense': {
+        const part = multiplyNT(g.matrix, { rows: k, cols: n, data: bt.subarray(0, k * n) });
+        for (let a = 0; a < m; a++) for (let q = 0; q < k; q++) pd[a * m + rows[q]!] = part.data[a * k + q]!;
+        break;
+      }
+      default:
+        assertNever(g);
+    }
   }
   if (save !== null) holder.cache = { px: cp.px, py: cp.py, profile: s === undefined ? null : Float64Array.from(s), spectra: save };
   return mirrorAverage(p, m);
-}
-
-/** Columns rows[q] of P from the block's rows of Bᵀ: P_a,rows[q] = g_a · (Bᵀ)_rows[q]. */
-function fillColumns(g: Operator, rows: Int32Array, bt: Float64Array, n: number, m: number, pd: Float64Array): void {
-  const k = rows.length;
-  switch (g.kind) {
-    case 'sparse': {
-      const { rowPtr, colIdx, values } = g.matrix;
-      for (let a = 0; a < m; a++) {
-        const q0 = rowPtr[a]!;
-        const q1 = rowPtr[a + 1]!;
-        const oa = a * m;
-        for (let q = 0; q < k; q++) {
-          const o = q * n;
-          let sum = 0;
-          for (let t = q0; t < q1; t++) sum += values[t]! * bt[o + colIdx[t]!]!;
-          pd[oa + rows[q]!] = sum;
-        }
-      }
-      break;
-    }
-    case 'dense': {
-      const part = multiplyNT(g.matrix, { rows: k, cols: n, data: bt.subarray(0, k * n) });
-      for (let a = 0; a < m; a++) for (let q = 0; q < k; q++) pd[a * m + rows[q]!] = part.data[a * k + q]!;
-      break;
-    }
-    default:
-      assertNever(g);
-  }
-}
-
-/**
- * P = G Cm Gᵀ for several priors that share the std profile, in one pass over the data pairs: each
- * pair's row spectrum F_x pad(s ⊙ (g_a + i g_b)) is transformed once and then multiplied by every
- * prior's embedding (CirculantProduct.fromSpectrum of each), instead of once per prior. Worth it
- * when the spectra are not cached (holder.cacheBytes too small, e.g. 128² with M = 400); with a
- * valid cache, or priors with different profiles or paddings, it is {@link structuredProjection} per
- * prior. Each result has the arithmetic of {@link structuredProjection} without a cache.
- */
-export function structuredProjections(holder: StructuredProblem, priors: readonly PriorSpec[]): Matrix[] {
-  if (priors.length === 0) return [];
-  const setups = priors.map((p) => structuredSetup(holder, p));
-  const first = setups[0]!;
-  const s = priors[0]!.stdProfile;
-  const cp0 = first.cp;
-  const cache = holder.cache;
-  const cached = cache !== null && cache.px === cp0.px && cache.py === cp0.py && sameProfile(cache.profile, s);
-  const shareable = setups.every((u, q) => u.cp.px === cp0.px && u.cp.py === cp0.py && sameProfile(s === undefined ? null : Float64Array.from(s), priors[q]!.stdProfile));
-  if (priors.length === 1 || cached || !shareable) return priors.map((p) => structuredProjection(holder, p));
-  const { n, m, order, problem } = first;
-  const g = problem.operator;
-  const block = Math.min(BT_BLOCK_ROWS, m + (m % 2));
-  const bts = priors.map(() => new Float64Array(block * n));
-  const ps = priors.map(() => matrix(m, m));
-  const slots = new Int32Array(block);
-  for (let q = 0; q < block; q++) slots[q] = q;
-  const rowSpec = new Float64Array(cp0.spectrumLength);
-  const rowA = new Float64Array(n);
-  const rowB = new Float64Array(n);
-  // The spectra are kept (as structuredProjection keeps them) when they fit the cache budget.
-  holder.cache = null;
-  const save: Float64Array[] | null = Math.ceil(m / 2) * cp0.columnSpectrumLength * 8 <= holder.cacheBytes ? [] : null;
-  for (let j0 = 0; j0 < m; j0 += block) {
-    const j1 = Math.min(m, j0 + block);
-    const rows = order.subarray(j0, j1);
-    const sl = slots.subarray(0, j1 - j0);
-    const k = j1 - j0;
-    for (let t = 0; 2 * t < k; t++) {
-      const a = rows[2 * t]!;
-      const hasB = 2 * t + 1 < k;
-      cp0.spectrum(scaledRow(g, a, s, rowA), hasB ? scaledRow(g, rows[2 * t + 1]!, s, rowB) : null, rowSpec);
-      const keep = save !== null ? new Float64Array(cp0.columnSpectrumLength) : null;
-      setups.forEach((u, q) => u.cp.fromSpectrum(rowSpec, bts[q]!, hasB ? bts[q]! : null, 2 * t * n, hasB ? (2 * t + 1) * n : 0, q === 0 ? keep : null));
-      if (keep !== null) save!.push(keep);
-    }
-    priors.forEach((p, q) => {
-      finishBtRows(g, s, p.nugget ?? 0, rows, sl, bts[q]!, n);
-      fillColumns(g, rows, bts[q]!, n, m, ps[q]!.data);
-    });
-  }
-  if (save !== null) holder.cache = { px: cp0.px, py: cp0.py, profile: s === undefined ? null : Float64Array.from(s), spectra: save };
-  return ps.map((p) => mirrorAverage(p, m));
-}
-
-/** Row k of G scaled by the std profile, s ⊙ g_k, into `out` (length N). */
-function scaledRow(g: Operator, k: number, s: readonly number[] | undefined, out: Float64Array): Float64Array {
-  switch (g.kind) {
-    case 'dense':
-      out.set(g.matrix.data.subarray(k * g.matrix.cols, (k + 1) * g.matrix.cols));
-      break;
-    case 'sparse': {
-      out.fill(0);
-      const { rowPtr, colIdx, values } = g.matrix;
-      for (let q = rowPtr[k]!; q < rowPtr[k + 1]!; q++) out[colIdx[q]!] += values[q]!;
-      break;
-    }
-    default:
-      assertNever(g);
-  }
-  if (s !== undefined) for (let i = 0; i < out.length; i++) out[i] *= s[i]!;
-  return out;
 }
 
 /**

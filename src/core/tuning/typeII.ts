@@ -37,7 +37,6 @@ import { identity, matrix, type Matrix } from '../linalg/matrix.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
 import { validatePrior } from '../prior/covariance.ts';
-import { structuredProjections } from './projected.ts';
 import {
   aborted,
   addMatrices,
@@ -175,12 +174,8 @@ const KERNEL_STEP = 1e-5;
  * side's spectrum cache: every projection of one fit shares the row spectra).
  */
 function projectedTerm(side: DataSide, prior: PriorSpec, t: number): Matrix {
-  return sideProjection(side, singleTerm(prior, t));
-}
-
-/** Term t of the prior alone (mean and std profile kept, no nugget). */
-function singleTerm(prior: PriorSpec, t: number): PriorSpec {
-  return { mean: prior.mean, terms: [prior.terms[t]!], ...(prior.stdProfile ? { stdProfile: prior.stdProfile } : {}) };
+  const single: PriorSpec = { mean: prior.mean, terms: [prior.terms[t]!], ...(prior.stdProfile ? { stdProfile: prior.stdProfile } : {}) };
+  return sideProjection(side, single);
 }
 
 export interface EvidenceAndGradient {
@@ -195,33 +190,15 @@ export interface EvidenceAndGradient {
  */
 export function evidenceGradient(problem: Problem, prior: PriorSpec, params: readonly HyperParameter[], side = prepareDataSide(problem)): EvidenceAndGradient {
   // FFT route: P = Σ_t P_t + η G Gᵀ from the per-term projections that the variance derivatives
-  // need anyway (one projection per evaluation fewer; equal to the direct P to round-off), and
-  // every projection of the evaluation (terms, ± steps) in one pass over the data pairs
-  // (./projected.ts structuredProjections: one row spectrum per pair for all of them). The dense
-  // route keeps its single projection of Cm, so its numbers stay as they were.
+  // need anyway (one projection per evaluation fewer; equal to the direct P to round-off). The
+  // dense route keeps its single projection of Cm, so its numbers stay as they were.
   const fft = side.route === 'fft' || (side.route === 'auto' && tuningRoute(problem, prior) === 'fft');
   const termP: Matrix[] = [];
-  const stepP = new Map<number, readonly [Matrix, Matrix]>();
   let gram: Matrix | null = null;
   let space: { residual: Float64Array; projected: Matrix };
-  const theta = hyperParameterVector(prior, params);
-  const stepped = (j: number, sign: number): PriorSpec => {
-    const th = Float64Array.from(theta);
-    th[j] += sign * KERNEL_STEP;
-    return applyHyperParameters(prior, params, th);
-  };
   if (fft && prior.terms.length > 0) {
     validatePrior(prior, problem.grid);
-    const wanted: PriorSpec[] = prior.terms.map((_, t) => singleTerm(prior, t));
-    const steps: number[] = [];
-    params.forEach((h, j) => {
-      if (h.field === 'nugget' || h.field === 'variance') return;
-      steps.push(j);
-      wanted.push(singleTerm(stepped(j, 1), h.term!), singleTerm(stepped(j, -1), h.term!));
-    });
-    const all = structuredProjections(side.structured, wanted);
-    termP.push(...all.slice(0, prior.terms.length));
-    steps.forEach((j, k) => stepP.set(j, [all[prior.terms.length + 2 * k]!, all[prior.terms.length + 2 * k + 1]!]));
+    prior.terms.forEach((_, t) => termP.push(projectedTerm(side, prior, t)));
     const first = termP[0]!;
     const projected = matrix(first.rows, first.cols, first.data.slice());
     for (let t = 1; t < termP.length; t++) for (let i = 0; i < projected.data.length; i++) projected.data[i] += termP[t]!.data[i]!;
@@ -241,6 +218,7 @@ export function evidenceGradient(problem: Problem, prior: PriorSpec, params: rea
   const m = L.rows;
   const alpha = choleskySolve(L, space.residual);
   const z = solveLowerMatrix(L, identity(m));
+  const theta = hyperParameterVector(prior, params);
   const grad = new Float64Array(p);
   params.forEach((h, j) => {
     let dk: Matrix;
@@ -250,7 +228,13 @@ export function evidenceGradient(problem: Problem, prior: PriorSpec, params: rea
     } else if (h.field === 'variance') {
       dk = termP[h.term!] ?? projectedTerm(side, prior, h.term!);
     } else {
-      const [plus, minus] = stepP.get(j) ?? [projectedTerm(side, stepped(j, 1), h.term!), projectedTerm(side, stepped(j, -1), h.term!)];
+      const step = (sign: number): Matrix => {
+        const th = Float64Array.from(theta);
+        th[j] += sign * KERNEL_STEP;
+        return projectedTerm(side, applyHyperParameters(prior, params, th), h.term!);
+      };
+      const plus = step(1);
+      const minus = step(-1);
       dk = { rows: m, cols: m, data: plus.data.map((v, k) => (v - minus.data[k]!) / (2 * KERNEL_STEP)) };
     }
     // ½ αᵀ D α

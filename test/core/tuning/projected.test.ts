@@ -9,7 +9,6 @@
  */
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../../../src/core/errors.ts';
-import { structuredProjections } from '../../../src/core/tuning/projected.ts';
 import type { Grid } from '../../../src/core/grid/grid.ts';
 import { structuredProblem } from '../../../src/core/inverse/structured.ts';
 import type { Matrix } from '../../../src/core/linalg/matrix.ts';
@@ -169,32 +168,4 @@ it('above the limit, auto takes the FFT route and matches the forced dense route
   expect(rel(logEvidence(big, matern), logEvidence(big, matern, { route: 'dense' }))).toBeLessThan(1e-9);
   const p: Matrix = projectedPriorCovariance(big, matern);
   expect(relDiff(p.data, projectedPriorCovariance(big, matern, { route: 'dense' }).data)).toBeLessThan(1e-10);
-});
-
-describe('several projections in one pass over the data pairs (structuredProjections)', () => {
-  const priors: PriorSpec[] = [
-    { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, length: 3 }] },
-    { mean: { constant: 0 }, terms: [{ kernel: 'gaussian', variance: 0.5, length: 5 }], nugget: 0.01 },
-    { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 2, lengths: [4, 1.5], angle: 20 }] },
-  ];
-  it.each([
-    ['without a cache (budget 0)', 0],
-    ['filling the cache', 1 << 26],
-  ] as const)('each equals its dense projection to 1e-10, %s', (_name, bytes) => {
-    const holder = structuredProblem(ray2, { cacheBytes: bytes });
-    const all = structuredProjections(holder, priors);
-    expect(holder.cache === null).toBe(bytes === 0);
-    priors.forEach((p, k) => expect(relDiff(all[k]!.data, projectedPriorCovariance(ray2, p, { route: 'dense' }).data)).toBeLessThan(1e-10));
-    // A second call (from the cache when it was filled) gives the same matrices.
-    const again = structuredProjections(holder, priors);
-    priors.forEach((_, k) => expect(relDiff(again[k]!.data, all[k]!.data)).toBeLessThan(1e-14));
-  });
-  it('the type-II gradient without a spectrum cache equals the dense one', () => {
-    const prior: PriorSpec = { ...priors[2]!, nugget: 1e-3 };
-    const params = hyperParameters(prior);
-    const a = evidenceGradient(ray2, prior, params, prepareDataSide(ray2, { route: 'fft', structured: structuredProblem(ray2, { cacheBytes: 0 }) }));
-    const b = evidenceGradient(ray2, prior, params, prepareDataSide(ray2, { route: 'dense' }));
-    expect(rel(a.logEvidence, b.logEvidence)).toBeLessThan(1e-9);
-    expect(relDiff(a.gradient, b.gradient)).toBeLessThan(1e-7);
-  });
 });
