@@ -235,6 +235,22 @@ export function finishBtRows(
 }
 
 /**
+ * The holder's cached row spectra when they were taken with this padding and std profile (in
+ * {@link computeBtPairs}' pair order); otherwise null, and a stale cache is dropped.
+ */
+export function matchingSpectra(holder: StructuredProblem, cp: CirculantProduct, s: readonly number[] | undefined): Float64Array[] | null {
+  const cache = holder.cache;
+  if (cache !== null && cache.px === cp.px && cache.py === cp.py && sameProfile(cache.profile, s)) return cache.spectra;
+  holder.cache = null;
+  return null;
+}
+
+/** Keeps `spectra` (every pair's, saved by {@link computeBtPairs}) on the holder for this padding and profile. */
+export function keepSpectra(holder: StructuredProblem, cp: CirculantProduct, s: readonly number[] | undefined, spectra: Float64Array[]): void {
+  holder.cache = { px: cp.px, py: cp.py, profile: s === undefined ? null : Float64Array.from(s), spectra };
+}
+
+/**
  * Factors the posterior through the FFT path and computes the mean. Throws InputError for a bad
  * prior or problem, NotPositiveDefiniteError when K does not factor, and InputError when the prior
  * is not stationary on the grid (use {@link posteriorAuto} to fall back to the dense path).
@@ -248,19 +264,13 @@ export function prepareStructuredPosterior(sp: StructuredProblem | Problem, prio
   // Bᵀ rows by circulant products, two data rows per complex transform.
   const pairs = Math.ceil(m / 2);
   const specBytes = cp.columnSpectrumLength * 8;
-  let cache = holder.cache;
-  let spectraCached = false;
-  if (cache !== null && cache.px === cp.px && cache.py === cp.py && sameProfile(cache.profile, s)) {
-    spectraCached = true;
-  } else {
-    cache = null;
-    holder.cache = null;
-  }
+  const cachedSpectra = matchingSpectra(holder, cp, s);
+  const spectraCached = cachedSpectra !== null;
   const fits = pairs * specBytes <= holder.cacheBytes;
-  const spectra: Float64Array[] = spectraCached ? cache!.spectra : [];
+  const spectra: Float64Array[] = cachedSpectra ?? [];
   const Bt = matrix(m, n);
-  const t = computeBtPairs(cp, g, s, order, order, Bt.data, spectraCached ? spectra : null, !spectraCached && fits ? spectra : null);
-  if (!spectraCached && fits) holder.cache = { px: cp.px, py: cp.py, profile: s === undefined ? null : Float64Array.from(s), spectra };
+  const t = computeBtPairs(cp, g, s, order, order, Bt.data, cachedSpectra, !spectraCached && fits ? spectra : null);
+  if (!spectraCached && fits) keepSpectra(holder, cp, s, spectra);
   const tFix = now();
   finishBtRows(g, s, prior.nugget ?? 0, order, order, Bt.data, n);
   return completeStructuredPosterior(setup, Bt, spectraCached, { spectra: t.spectra, products: t.products + now() - tFix });

@@ -33,7 +33,7 @@ import { matrix, type Matrix } from '../linalg/matrix.ts';
 import { multiplyNT } from '../linalg/products.ts';
 import { assertNever, type Operator } from '../linalg/operator.ts';
 import { nonStationaryReason } from '../fft/covariance.ts';
-import { computeBtPairs, finishBtRows, structuredSetup, type StructuredProblem } from '../inverse/structured.ts';
+import { computeBtPairs, finishBtRows, keepSpectra, matchingSpectra, structuredSetup, type StructuredProblem } from '../inverse/structured.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
 
@@ -64,13 +64,6 @@ function mirrorAverage(a: Matrix, m: number): Matrix {
   return a;
 }
 
-function sameProfile(a: Float64Array | null, b: readonly number[] | undefined): boolean {
-  if (a === null || b === undefined) return a === null && b === undefined;
-  if (a.length !== b.length) return false;
-  for (let i = 0; i < a.length; i++) if (a[i] !== b[i]) return false;
-  return true;
-}
-
 /**
  * P = G Cm Gᵀ through circulant-embedding products (the FFT route of the module comment). Throws
  * InputError for a bad or non-stationary prior (../inverse/structured.ts structuredSetup).
@@ -84,9 +77,7 @@ export function structuredProjection(holder: StructuredProblem, prior: PriorSpec
   const g = problem.operator;
   const s = prior.stdProfile;
   const nugget = prior.nugget ?? 0;
-  const cache = holder.cache;
-  const cached = cache !== null && cache.px === cp.px && cache.py === cp.py && sameProfile(cache.profile, s) ? cache.spectra : null;
-  if (cached === null) holder.cache = null;
+  const cached = matchingSpectra(holder, cp, s);
   const pairs = Math.ceil(m / 2);
   const fits = pairs * cp.columnSpectrumLength * 8 <= holder.cacheBytes;
   const save: Float64Array[] | null = cached === null && fits ? [] : null;
@@ -130,7 +121,7 @@ export function structuredProjection(holder: StructuredProblem, prior: PriorSpec
         assertNever(g);
     }
   }
-  if (save !== null) holder.cache = { px: cp.px, py: cp.py, profile: s === undefined ? null : Float64Array.from(s), spectra: save };
+  if (save !== null) keepSpectra(holder, cp, s, save);
   return mirrorAverage(p, m);
 }
 
