@@ -2,7 +2,8 @@
  * Dense matrices as flat row-major Float64Array storage: element (i, j) sits at data[i * cols + j].
  * One buffer per matrix, so a matrix moves to a worker as one transferable ArrayBuffer.
  */
-import { gemmNT, transposeBlock } from './kernels.ts';
+import { transposeBlock } from './kernels.ts';
+import { gemmNTAuto as gemmNT } from '../wasm/gemmNT.ts'; // kernels.ts gemmNT's contract and bits, WebAssembly SIMD when sizable
 export interface Matrix {
   readonly rows: number;
   readonly cols: number;

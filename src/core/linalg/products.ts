@@ -5,7 +5,8 @@
  * along rows); plain products transpose their right operand once first (O(kn) against O(mkn)).
  */
 import { matrix, type Matrix } from './matrix.ts';
-import { gemmNT, transposeBlock } from './kernels.ts';
+import { transposeBlock } from './kernels.ts';
+import { gemmNTAuto as gemmNT } from '../wasm/gemmNT.ts'; // kernels.ts gemmNT's contract and bits, WebAssembly SIMD when sizable
 
 /** C = A Bᵀ for A m × k and B n × k (row-major). */
 export function multiplyNT(a: Matrix, b: Matrix): Matrix {
