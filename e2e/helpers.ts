@@ -1,6 +1,7 @@
 /** Shared helpers for the workbench end-to-end specs. */
 import { expect, type Page, type TestInfo } from '@playwright/test';
-import { mkdirSync } from 'node:fs';
+import { mkdirSync, writeFileSync } from 'node:fs';
+import { join } from 'node:path';
 import type { PriorSpec } from '../src/core/prior/spec.ts';
 
 export interface PageState {
@@ -100,4 +101,49 @@ export async function screenshot(page: Page, info: TestInfo, name: string): Prom
   const path = `test-results/screens/${name}.png`;
   await page.screenshot({ path });
   await info.attach(name, { path, contentType: 'image/png' });
+}
+
+/**
+ * Writes an invented problem for the file loader: a field `truth(i, j)` on an nx × ny grid of 1 m
+ * cells seen through `m` averages over `seg`-cell segments, alternately along x and y, at seeded
+ * positions, with uniform noise of width `noise` and σ = `sigma`. Returns the JSON file and its
+ * Matrix Market operator (both in `dir`, named after `name`).
+ */
+export function writeSegmentProblem(
+  dir: string,
+  o: { name: string; title: string; nx: number; ny: number; m: number; seg: number; seed: number; noise: number; sigma: number; truth: (i: number, j: number) => number },
+): { json: string; mtx: string } {
+  let seed = o.seed;
+  const rnd = () => (seed = (Math.imul(seed, 1103515245) + 12345) >>> 0) / 2 ** 32;
+  const lines: string[] = [];
+  const values: number[] = [];
+  for (let k = 0; k < o.m; k++) {
+    const alongX = k % 2 === 0;
+    const i0 = Math.floor(rnd() * (o.nx - (alongX ? o.seg : 0)));
+    const j0 = Math.floor(rnd() * (o.ny - (alongX ? 0 : o.seg)));
+    let d = 0;
+    for (let t = 0; t < o.seg; t++) {
+      const i = alongX ? i0 + t : i0;
+      const j = alongX ? j0 : j0 + t;
+      lines.push(`${k + 1} ${j * o.nx + i + 1} ${1 / o.seg}`);
+      d += o.truth(i, j) / o.seg;
+    }
+    values.push(Number((d + o.noise * (rnd() - 0.5)).toFixed(6)));
+  }
+  const mtxName = `${o.name}.mtx`;
+  const mtx = join(dir, mtxName);
+  writeFileSync(mtx, `%%MatrixMarket matrix coordinate real general\n% invented segment averages\n${o.m} ${o.nx * o.ny} ${lines.length}\n${lines.join('\n')}\n`);
+  const json = join(dir, `${o.name}.json`);
+  writeFileSync(
+    json,
+    JSON.stringify({
+      kind: 'priorscope.problem',
+      version: 1,
+      title: o.title,
+      grid: { shape: [o.nx, o.ny], spacing: [1, 1], unit: 'm' },
+      operator: { file: mtxName },
+      data: { values, sigma: values.map(() => o.sigma) },
+    }),
+  );
+  return { json, mtx };
 }

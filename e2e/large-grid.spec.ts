@@ -8,61 +8,36 @@
  * as annotations, not asserted (speed is checked by the benchmarks).
  */
 import { expect, test } from '@playwright/test';
-import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { parseProblemFile } from '../src/core/io/problemFile.ts';
 import { prepareStructuredPosterior, structuredPosteriorStd } from '../src/core/inverse/structured.ts';
 import { structuredResolutionRow } from '../src/core/inverse/structuredDraws.ts';
-import { maxRelDiff, open, settle, state, traceValues, watch } from './helpers.ts';
+import { maxRelDiff, open, settle, state, traceValues, watch, writeSegmentProblem } from './helpers.ts';
 
 const ORIGIN = 'http://127.0.0.1:' + (process.env.PRIORSCOPE_E2E_PORT ?? 4317);
 const N = 128;
 const M = 400;
 const SEG = 32;
 
-/** An invented field seen through M averages over 32-cell segments along x or y (seeded). */
-function writeProblem(dir: string): { json: string; mtx: string } {
-  let seed = 977;
-  const rnd = () => (seed = (Math.imul(seed, 1103515245) + 12345) >>> 0) / 2 ** 32;
-  const truth = (i: number, j: number) => Math.sin(i / 9) * Math.cos(j / 13) + 0.2 * Math.sin((i + 2 * j) / 7);
-  const lines: string[] = [];
-  const values: number[] = [];
-  for (let k = 0; k < M; k++) {
-    const alongX = k % 2 === 0;
-    const i0 = Math.floor(rnd() * (N - (alongX ? SEG : 0)));
-    const j0 = Math.floor(rnd() * (N - (alongX ? 0 : SEG)));
-    let d = 0;
-    for (let t = 0; t < SEG; t++) {
-      const i = alongX ? i0 + t : i0;
-      const j = alongX ? j0 : j0 + t;
-      lines.push(`${k + 1} ${j * N + i + 1} ${1 / SEG}`);
-      d += truth(i, j) / SEG;
-    }
-    values.push(Number((d + 0.02 * (rnd() - 0.5)).toFixed(6)));
-  }
-  const mtx = join(dir, 'Glarge.mtx');
-  writeFileSync(mtx, `%%MatrixMarket matrix coordinate real general\n% invented segment averages\n${M} ${N * N} ${lines.length}\n${lines.join('\n')}\n`);
-  const json = join(dir, 'large.json');
-  writeFileSync(
-    json,
-    JSON.stringify({
-      kind: 'priorscope.problem',
-      version: 1,
-      title: 'Segment averages over an invented 128 × 128 field',
-      grid: { shape: [N, N], spacing: [1, 1], unit: 'm' },
-      operator: { file: 'Glarge.mtx' },
-      data: { values, sigma: values.map(() => 0.02) },
-    }),
-  );
-  return { json, mtx };
-}
 
 test('a 128 × 128 grid stays live: posterior, proven positive definite, realisations and an averaging kernel, all matrix-free', async ({ page }, info) => {
   test.setTimeout(240_000);
   const w = watch(page, ORIGIN);
   const dir = mkdtempSync(join(tmpdir(), 'priorscope-large-'));
-  const files = writeProblem(dir);
+  const files = writeSegmentProblem(dir, {
+    name: 'large',
+    title: 'Segment averages over an invented 128 × 128 field',
+    nx: N,
+    ny: N,
+    m: M,
+    seg: SEG,
+    seed: 977,
+    noise: 0.02,
+    sigma: 0.02,
+    truth: (i, j) => Math.sin(i / 9) * Math.cos(j / 13) + 0.2 * Math.sin((i + 2 * j) / 7),
+  });
   await open(page);
 
   const t0 = Date.now();

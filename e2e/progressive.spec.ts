@@ -7,12 +7,12 @@
  * e2e/large-grid.spec.ts runs the whole workbench on a 128 × 128 grid.
  */
 import { expect, test, type Page } from '@playwright/test';
-import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
+import { mkdtempSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { parseProblemFile } from '../src/core/io/problemFile.ts';
 import { prepareStructuredPosterior } from '../src/core/inverse/structured.ts';
-import { maxRelDiff, open, settle, state, traceValues, watch } from './helpers.ts';
+import { maxRelDiff, open, settle, state, traceValues, watch, writeSegmentProblem } from './helpers.ts';
 
 const ORIGIN = 'http://127.0.0.1:' + (process.env.PRIORSCOPE_E2E_PORT ?? 4317);
 const NX = 40;
@@ -21,42 +21,6 @@ const M = 700;
 const SEG = 8;
 const COMPUTING = 'Uncertainty bands: computing…';
 
-/** An invented field seen through M averages over 8-cell segments along x or y (seeded). */
-function writeProblem(dir: string): { json: string; mtx: string } {
-  let seed = 20240611;
-  const rnd = () => (seed = (Math.imul(seed, 1103515245) + 12345) >>> 0) / 2 ** 32;
-  const truth = (i: number, j: number) => Math.sin(i / 5) * Math.cos(j / 7) + 0.3 * Math.sin((i + j) / 3);
-  const lines: string[] = [];
-  const values: number[] = [];
-  for (let k = 0; k < M; k++) {
-    const alongX = k % 2 === 0;
-    const i0 = Math.floor(rnd() * (NX - (alongX ? SEG : 0)));
-    const j0 = Math.floor(rnd() * (NY - (alongX ? 0 : SEG)));
-    let d = 0;
-    for (let t = 0; t < SEG; t++) {
-      const i = alongX ? i0 + t : i0;
-      const j = alongX ? j0 : j0 + t;
-      lines.push(`${k + 1} ${j * NX + i + 1} ${1 / SEG}`);
-      d += truth(i, j) / SEG;
-    }
-    values.push(Number((d + 0.05 * (rnd() - 0.5)).toFixed(6)));
-  }
-  const mtx = join(dir, 'Gseg.mtx');
-  writeFileSync(mtx, `%%MatrixMarket matrix coordinate real general\n% invented segment averages\n${M} ${NX * NY} ${lines.length}\n${lines.join('\n')}\n`);
-  const json = join(dir, 'progressive.json');
-  writeFileSync(
-    json,
-    JSON.stringify({
-      kind: 'priorscope.problem',
-      version: 1,
-      title: 'Segment averages over an invented field',
-      grid: { shape: [NX, NY], spacing: [1, 1], unit: 'm' },
-      operator: { file: 'Gseg.mtx' },
-      data: { values, sigma: values.map(() => 0.05) },
-    }),
-  );
-  return { json, mtx };
-}
 
 /**
  * Resolves (polling every animation frame) with the mean map's rows once it is drawn, differs
@@ -83,7 +47,18 @@ test('the posterior mean is drawn while the bands are computing, and the bands f
   test.setTimeout(120_000);
   const w = watch(page, ORIGIN);
   const dir = mkdtempSync(join(tmpdir(), 'priorscope-progressive-'));
-  const files = writeProblem(dir);
+  const files = writeSegmentProblem(dir, {
+    name: 'progressive',
+    title: 'Segment averages over an invented field',
+    nx: NX,
+    ny: NY,
+    m: M,
+    seg: SEG,
+    seed: 20240611,
+    noise: 0.05,
+    sigma: 0.05,
+    truth: (i, j) => Math.sin(i / 5) * Math.cos(j / 7) + 0.3 * Math.sin((i + j) / 3),
+  });
   await open(page);
 
   // 1. A new problem: no earlier result on this grid, so a mean drawn now is the partial one.
