@@ -48,4 +48,16 @@ describe('priorRealisations route', () => {
       expect(q).toBeLessThan(chiSquareQuantile(0.9995, K));
     }
   });
+
+  it('the kept circulant sampler gives the same draws as a fresh one, and a changed prior is not served from it', () => {
+    const grid = { shape: [40, 30], spacing: [1, 1] };
+    const a = priorRealisations(grid, prior, 2, 11);
+    const b = priorRealisations(grid, prior, 2, 11); // from the kept sampler
+    expect(Array.from(b.data)).toEqual(Array.from(a.data));
+    expect(Array.from(a.data)).toEqual(Array.from(circulantRealisations(grid, prior, 2, 11).realisations.data));
+    const longer: PriorSpec = { ...prior, terms: [{ ...prior.terms[0]!, length: 6 }] };
+    const c = priorRealisations(grid, longer, 2, 11);
+    expect(Array.from(c.data)).toEqual(Array.from(circulantRealisations(grid, longer, 2, 11).realisations.data));
+    expect(Array.from(c.data)).not.toEqual(Array.from(a.data));
+  });
 });
