@@ -17,7 +17,7 @@
  * The limit is not the speed crossing but the largest built-in demo (32² = 1024 cells). Measured
  * (bench problem of test/bench/cases/fft.ts, M = min(400, N/4), one run each, dense / FFT cold /
  * FFT with cached spectra): 16² 12 / 19 / 11 ms, 24² 21 / 34 / 7 ms, 32² 53 / 21 / 12 ms, 48² 227 /
- * 113 / 50 ms; 64² (M = 400) 500 / 120–180 / 80 ms (test/core/tuning/scaleBench.ts). Up to it
+ * 113 / 50 ms; 64² (M = 400) 500 / 120–180 / 80 ms (test/bench/tuningScale.ts). Up to it
  * every tuning result, seeded calibrations included, stays bit for bit what it was; above it the
  * dense route's N² memory is the reason to switch (the same limit as
  * ../sampling/realisations.ts DENSE_REALISATION_LIMIT). Both routes agree to round-off

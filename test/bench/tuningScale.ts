@@ -1,5 +1,5 @@
 /**
- * Benchmark (not a timed test) of prior selection on large grids: `npx tsx test/core/tuning/scaleBench.ts
+ * Benchmark (not a timed test) of prior selection on large grids: `npx tsx test/bench/tuningScale.ts
  * [n …] [--runs k] [--dense]`. For each n: the bench problem of test/bench/cases/fft.ts
  * (benchProblem(n), M = 400 straight rays; benchPrior(n), Matérn ν = 1.5, length n/8) and
  *   - P = G Cm Gᵀ on both routes (cold and with cached spectra);
@@ -11,17 +11,17 @@
  * Prints JSON with wall-clock medians (ms) of `runs` runs (default 3; 1 for the slow cases). With
  * --dense the dense route is timed too where it fits (n ≤ 64: 134 MB per Cm).
  */
-import { benchPrior, benchProblem } from '../../bench/cases/fft.ts';
-import { structuredProblem } from '../../../src/core/inverse/structured.ts';
-import type { PriorSpec } from '../../../src/core/prior/spec.ts';
-import type { Problem } from '../../../src/core/problems/spec.ts';
-import { calibrate } from '../../../src/core/tuning/calibration.ts';
-import { prepareDataSide, projectedPriorCovariance, type TuningRoute } from '../../../src/core/tuning/dataSpace.ts';
-import { evidenceMap } from '../../../src/core/tuning/evidenceMap.ts';
-import { evidenceGradient, hyperParameters, logEvidence, maximiseEvidence } from '../../../src/core/tuning/typeII.ts';
-import { leaveOneOut, priorPredictiveCheck } from '../../../src/core/tuning/criteria.ts';
-import { posteriorRealisations, posteriorSummary, preparePosterior } from '../../../src/core/inverse/posterior.ts';
-import { scoreCandidates } from '../../../src/worker/tuning.ts';
+import { benchPrior, benchProblem } from './cases/fft.ts';
+import { structuredProblem } from '../../src/core/inverse/structured.ts';
+import type { PriorSpec } from '../../src/core/prior/spec.ts';
+import type { Problem } from '../../src/core/problems/spec.ts';
+import { calibrate } from '../../src/core/tuning/calibration.ts';
+import { prepareDataSide, projectedPriorCovariance, type TuningRoute } from '../../src/core/tuning/dataSpace.ts';
+import { evidenceMap } from '../../src/core/tuning/evidenceMap.ts';
+import { evidenceGradient, hyperParameters, logEvidence, maximiseEvidence } from '../../src/core/tuning/typeII.ts';
+import { leaveOneOut, priorPredictiveCheck } from '../../src/core/tuning/criteria.ts';
+import { posteriorRealisations, posteriorSummary, preparePosterior } from '../../src/core/inverse/posterior.ts';
+import { scoreCandidates } from '../../src/worker/tuning.ts';
 
 /** ν held fixed when the kernel module offers it as a parameter. */
 function fixedNu(prior: PriorSpec): string[] {
