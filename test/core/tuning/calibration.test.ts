@@ -6,21 +6,9 @@
 import { describe, expect, it } from 'vitest';
 import { chiSquareQuantile } from '../../../src/core/inverse/chisquare.ts';
 import type { PriorSpec } from '../../../src/core/prior/spec.ts';
-import { BAND_LEVELS, calibrate, calibrationTable } from '../../../src/core/tuning/calibration.ts';
+import { calibrate, calibrationTable } from '../../../src/core/tuning/calibration.ts';
 import { scalePrior } from '../../../src/core/tuning/criteria.ts';
-import { smallProblem, withCorrelatedErrors } from './helpers.ts';
-
-/** Smallest k with P(X ≤ k) ≥ q for X ~ Bin(n, p): exact pmf by the ratio recursion in logs. */
-function binomialQuantile(n: number, p: number, q: number): number {
-  let logPmf = n * Math.log(1 - p);
-  let cdf = 0;
-  for (let k = 0; k <= n; k++) {
-    cdf += Math.exp(logPmf);
-    if (cdf >= q) return k;
-    logPmf += Math.log((n - k) / (k + 1)) + Math.log(p / (1 - p));
-  }
-  return n;
-}
+import { coverageTests, smallProblem, withCorrelatedErrors } from './helpers.ts';
 
 const prior: PriorSpec = { mean: { constant: 1 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 0.5, length: 4 }], nugget: 1e-4 };
 const problem = smallProblem(41, prior, 30, 15, 0.1);
@@ -28,33 +16,9 @@ const R = 400;
 const res = calibrate(problem, prior, prior, { replicates: R, draws: 9, seed: 2024, keepRanks: true });
 
 describe('calibration with the truth drawn from the inversion prior', () => {
-  // Cells tested for binomial coverage: 5 cells × 2 levels, Bonferroni over 10 two-sided tests at
-  // a total 0.001 (a correct implementation fails this test about once in a thousand seeds).
-  const cells = [0, 7, 14, 21, 29];
-  const a = 0.001 / 10;
-  it.each([
-    ['inner', BAND_LEVELS.inner.nominal, res.cellCoverage68] as const,
-    ['outer', BAND_LEVELS.outer.nominal, res.cellCoverage95] as const,
-  ])('%s band: per-cell hit counts lie within exact binomial limits', (_name, p, cov) => {
-    const lo = binomialQuantile(R, p, a / 2);
-    const hi = binomialQuantile(R, p, 1 - a / 2);
-    for (const c of cells) {
-      const count = Math.round(cov[c]! * R);
-      expect(count).toBeGreaterThanOrEqual(lo);
-      expect(count).toBeLessThanOrEqual(hi);
-    }
-  });
-  it('average coverage is within 4 standard errors of nominal, using the spread of independent replicates', () => {
-    for (const [avg, per, p] of [
-      [res.coverage68, res.replicateCoverage68, BAND_LEVELS.inner.nominal],
-      [res.coverage95, res.replicateCoverage95, BAND_LEVELS.outer.nominal],
-    ] as const) {
-      const mean = per.reduce((x, y) => x + y, 0) / per.length;
-      const sd = Math.sqrt(per.reduce((x, y) => x + (y - mean) ** 2, 0) / (per.length - 1));
-      expect(Math.abs(mean - avg)).toBeLessThan(1e-12);
-      expect(Math.abs(avg - p)).toBeLessThan((4 * sd) / Math.sqrt(per.length));
-    }
-  });
+  // 5 cells × 2 levels, Bonferroni over 10 two-sided tests at a total 0.001 (a correct
+  // implementation fails this test about once in a thousand seeds).
+  coverageTests(res, R, [0, 7, 14, 21, 29]);
   it('ranks of one cell are uniform on 0…9 (χ²₉ below its 0.999 quantile)', () => {
     for (const c of [3, 17]) {
       const counts = new Float64Array(10);

@@ -8,9 +8,9 @@
 import { describe, expect, it } from 'vitest';
 import { chiSquareQuantile } from '../../../src/core/inverse/chisquare.ts';
 import type { PriorSpec } from '../../../src/core/prior/spec.ts';
-import { BAND_LEVELS, calibrate } from '../../../src/core/tuning/calibration.ts';
+import { calibrate } from '../../../src/core/tuning/calibration.ts';
 import { TUNING_DENSE_LIMIT } from '../../../src/core/tuning/dataSpace.ts';
-import { binomialQuantile, rayProblem, smallProblem } from './helpers.ts';
+import { coverageTests, rayProblem, smallProblem } from './helpers.ts';
 
 const prior: PriorSpec = { mean: { constant: 1 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 0.5, length: 4 }], nugget: 1e-4 };
 const R = 300;
@@ -30,29 +30,7 @@ describe.each(cases)('calibration on the FFT route: %s', (_name, problem, route,
     expect(res.replicates).toBe(R);
   });
   // 5 cells × 2 levels, Bonferroni over 10 two-sided tests at a total 0.001 (as the dense test).
-  const a = 0.001 / 10;
-  it.each([
-    ['inner', BAND_LEVELS.inner.nominal, res.cellCoverage68] as const,
-    ['outer', BAND_LEVELS.outer.nominal, res.cellCoverage95] as const,
-  ])('%s band: per-cell hit counts lie within exact binomial limits', (_band, p, cov) => {
-    const lo = binomialQuantile(R, p, a / 2);
-    const hi = binomialQuantile(R, p, 1 - a / 2);
-    for (const c of cells) {
-      const count = Math.round(cov[c]! * R);
-      expect(count).toBeGreaterThanOrEqual(lo);
-      expect(count).toBeLessThanOrEqual(hi);
-    }
-  });
-  it('average coverage is within 4 standard errors of nominal (spread of independent replicates)', () => {
-    for (const [avg, per, p] of [
-      [res.coverage68, res.replicateCoverage68, BAND_LEVELS.inner.nominal],
-      [res.coverage95, res.replicateCoverage95, BAND_LEVELS.outer.nominal],
-    ] as const) {
-      const mean = per.reduce((x, y) => x + y, 0) / per.length;
-      const sd = Math.sqrt(per.reduce((x, y) => x + (y - mean) ** 2, 0) / (per.length - 1));
-      expect(Math.abs(avg - p)).toBeLessThan((4 * sd) / Math.sqrt(per.length));
-    }
-  });
+  coverageTests(res, R, cells);
   it('ranks of two cells are uniform on 0…9 (χ²₉ below its 0.999 quantile, Bonferroni over 2)', () => {
     const limit = chiSquareQuantile(1 - 0.001 / 2, 9);
     for (const c of [cells[1], cells[3]]) {

@@ -1,5 +1,7 @@
 /** Small seeded test problems for the tuning tests (invented; sizes chosen to keep the tests fast). */
+import { expect, it } from 'vitest';
 import { cholesky } from '../../../src/core/linalg/cholesky.ts';
+import { BAND_LEVELS, type CalibrationResult } from '../../../src/core/tuning/calibration.ts';
 import { matrix, type Matrix } from '../../../src/core/linalg/matrix.ts';
 import type { Operator } from '../../../src/core/linalg/operator.ts';
 import { sparseFromCoordinates } from '../../../src/core/linalg/sparse.ts';
@@ -106,4 +108,42 @@ export function rayProblem(seed: number, nx: number, ny: number, m: number, trut
   const truth = drawTruth(grid, truthPrior, rng);
   const s = new Float64Array(m).fill(sigma);
   return { grid, operator, data: { values: simulateData(operator, truth, s, rng), sigma: s }, truth };
+}
+
+/**
+ * The coverage checks of a calibration whose truth is drawn from the inversion prior (Cook,
+ * Gelman & Rubin 2006; Talts et al. 2018): per-cell hit counts of both bands inside exact binomial
+ * limits (Bonferroni over 2·cells.length two-sided tests at a total 0.001), and the average
+ * coverage within 4 standard errors of nominal, from the spread of the independent replicates.
+ * Registers the tests in the calling describe block.
+ */
+export function coverageTests(
+  res: Pick<CalibrationResult, 'cellCoverage68' | 'cellCoverage95' | 'coverage68' | 'coverage95' | 'replicateCoverage68' | 'replicateCoverage95'>,
+  replicates: number,
+  cells: readonly number[],
+): void {
+  const a = 0.001 / (2 * cells.length);
+  it.each([
+    ['inner', BAND_LEVELS.inner.nominal, res.cellCoverage68] as const,
+    ['outer', BAND_LEVELS.outer.nominal, res.cellCoverage95] as const,
+  ])('%s band: per-cell hit counts lie within exact binomial limits', (_band, p, cov) => {
+    const lo = binomialQuantile(replicates, p, a / 2);
+    const hi = binomialQuantile(replicates, p, 1 - a / 2);
+    for (const c of cells) {
+      const count = Math.round(cov[c]! * replicates);
+      expect(count).toBeGreaterThanOrEqual(lo);
+      expect(count).toBeLessThanOrEqual(hi);
+    }
+  });
+  it('average coverage is within 4 standard errors of nominal (spread of independent replicates)', () => {
+    for (const [avg, per, p] of [
+      [res.coverage68, res.replicateCoverage68, BAND_LEVELS.inner.nominal],
+      [res.coverage95, res.replicateCoverage95, BAND_LEVELS.outer.nominal],
+    ] as const) {
+      const mean = per.reduce((x, y) => x + y, 0) / per.length;
+      const sd = Math.sqrt(per.reduce((x, y) => x + (y - mean) ** 2, 0) / (per.length - 1));
+      expect(Math.abs(mean - avg)).toBeLessThan(1e-12);
+      expect(Math.abs(avg - p)).toBeLessThan((4 * sd) / Math.sqrt(per.length));
+    }
+  });
 }
