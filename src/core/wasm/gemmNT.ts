@@ -118,23 +118,8 @@ export const WASM_GEMM_MIN_DEPTH = 16;
 export const WASM_GEMM_MIN_WORK = 32768;
 
 /** gemmNT's contract and bits: the WebAssembly kernel for sizable products, gemmNT otherwise. */
-export function gemmNTAuto(
-  m: number,
-  n: number,
-  k: number,
-  alpha: number,
-  a: Float64Array,
-  ao: number,
-  lda: number,
-  b: Float64Array,
-  bo: number,
-  ldb: number,
-  c: Float64Array,
-  co: number,
-  ldc: number,
-  lower = false,
-  diag = 0,
-): void {
-  if (k < WASM_GEMM_MIN_DEPTH || m * n * k < WASM_GEMM_MIN_WORK) return gemmNT(m, n, k, alpha, a, ao, lda, b, bo, ldb, c, co, ldc, lower, diag);
-  wasmGemmNT(m, n, k, alpha, a, ao, lda, b, bo, ldb, c, co, ldc, lower, diag);
+export function gemmNTAuto(...args: Parameters<typeof gemmNT>): void {
+  const [m, n, k] = args;
+  if (k < WASM_GEMM_MIN_DEPTH || m * n * k < WASM_GEMM_MIN_WORK) return gemmNT(...args);
+  wasmGemmNT(...args);
 }
