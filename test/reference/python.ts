@@ -6,6 +6,8 @@ import { execFileSync } from 'node:child_process';
 import { existsSync } from 'node:fs';
 import { fileURLToPath } from 'node:url';
 import { dirname, join } from 'node:path';
+import type { SparseMatrix } from '../../src/core/linalg/sparse.ts';
+import type { Problem } from '../../src/core/problems/spec.ts';
 
 export const referenceDir = dirname(fileURLToPath(import.meta.url));
 
@@ -33,4 +35,36 @@ export function runPython<T = unknown>(script: string, input: unknown): T {
     );
   }
   return JSON.parse(out) as T;
+}
+
+/**
+ * The dense scipy route of the benchmarks (test/bench/dense_route.py: Cm entry by entry, cho_factor,
+ * solves; Matérn ν = 1.5, variance 1, isotropic `length`, mean 0) on a problem with a sparse G and
+ * diagonal Cd: its posterior mean and standard deviations. OPENBLAS_CORETYPE is removed from the
+ * child's environment, as the benchmarks do.
+ */
+export function denseScipyRoute(problem: Problem, length: number): { mean: number[]; std: number[] } {
+  const csr = problem.operator.matrix as SparseMatrix;
+  const env = { ...process.env };
+  delete env.OPENBLAS_CORETYPE;
+  const input = {
+    problems: [
+      {
+        name: 'reference',
+        grid: problem.grid,
+        length,
+        g: { rows: csr.rows, cols: csr.cols, rowPtr: Array.from(csr.rowPtr), colIdx: Array.from(csr.colIdx), values: Array.from(csr.values) },
+        d: Array.from(problem.data.values),
+        sigma: Array.from(problem.data.sigma!),
+        runs: 1,
+      },
+    ],
+  };
+  const out = execFileSync(pythonPath(), [join(referenceDir, '..', 'bench', 'dense_route.py')], {
+    input: JSON.stringify(input),
+    encoding: 'utf8',
+    env,
+    maxBuffer: 1 << 28,
+  });
+  return (JSON.parse(out) as { problems: { mean: number[]; std: number[] }[] }).problems[0]!;
 }

@@ -5,9 +5,6 @@
  * test/bench/dense_route.py (Debian python3-scipy: Cm entry by entry, cho_factor,
  * solve_triangular; Tarantola 2005 §3.2) to 1e-10 relative.
  */
-import { execFileSync } from 'node:child_process';
-import { dirname, join } from 'node:path';
-import { fileURLToPath } from 'node:url';
 import { afterAll, describe, expect, it } from 'vitest';
 import { prepareStructuredPosterior, structuredPosteriorStd, VARIANCE_BLOCK } from '../../../src/core/inverse/structured.ts';
 import { columnRanges, parallelPosteriorStd, runVarianceTask, varianceTask, worthSplitting } from '../../../src/core/parallel/blocks.ts';
@@ -15,9 +12,8 @@ import { nodeBlockPool } from '../../../src/core/parallel/node.ts';
 import type { SparseMatrix } from '../../../src/core/linalg/sparse.ts';
 import type { PriorSpec } from '../../../src/core/prior/spec.ts';
 import { benchProblem } from '../../bench/cases/fft.ts';
-import { pythonPath } from '../../reference/python.ts';
+import { denseScipyRoute } from '../../reference/python.ts';
 
-const here = dirname(fileURLToPath(import.meta.url));
 const pools = [nodeBlockPool(2), nodeBlockPool(3)];
 afterAll(async () => {
   await Promise.all(pools.map((p) => p.close()));
@@ -86,19 +82,7 @@ describe('split standard deviations', () => {
     const split = await parallelPosteriorStd(st, pools[0]!);
     const one = structuredPosteriorStd(st);
     expect(Array.from(split).every((v, i) => Object.is(v, one[i]))).toBe(true);
-    const csr = p.operator.matrix as SparseMatrix;
-    const env = { ...process.env };
-    delete env.OPENBLAS_CORETYPE;
-    const out = JSON.parse(
-      execFileSync(pythonPath(), [join(here, '../../bench/dense_route.py')], {
-        input: JSON.stringify({
-          problems: [{ name: '64', grid: p.grid, length: 8, g: { rows: csr.rows, cols: csr.cols, rowPtr: Array.from(csr.rowPtr), colIdx: Array.from(csr.colIdx), values: Array.from(csr.values) }, d: Array.from(p.data.values), sigma: Array.from(p.data.sigma!), runs: 1 }],
-        }),
-        encoding: 'utf8',
-        env,
-        maxBuffer: 1 << 28,
-      }),
-    ) as { problems: { mean: number[]; std: number[] }[] };
+    const out = { problems: [denseScipyRoute(p, 8)] };
     const ref = out.problems[0]!;
     let d = 0;
     for (let i = 0; i < split.length; i++) d = Math.max(d, Math.abs(split[i]! - ref.std[i]!));

@@ -7,9 +7,6 @@
  * test/bench/dense_route.py (Debian python3-scipy: Cm entry by entry, cho_factor / cho_solve;
  * Tarantola 2005 §3.2) to 1e-10 relative.
  */
-import { execFileSync } from 'node:child_process';
-import { dirname, join } from 'node:path';
-import { fileURLToPath } from 'node:url';
 import { afterAll, describe, expect, it } from 'vitest';
 import { pairOrder, prepareStructuredPosterior, structuredProblem, type StructuredPosteriorState } from '../../../src/core/inverse/structured.ts';
 import { matrix } from '../../../src/core/linalg/matrix.ts';
@@ -29,9 +26,8 @@ import type { PriorSpec } from '../../../src/core/prior/spec.ts';
 import type { Problem } from '../../../src/core/problems/spec.ts';
 import { Random } from '../../../src/core/sampling/random.ts';
 import { benchProblem } from '../../bench/cases/fft.ts';
-import { pythonPath } from '../../reference/python.ts';
+import { denseScipyRoute } from '../../reference/python.ts';
 
-const here = dirname(fileURLToPath(import.meta.url));
 const pools = [nodeBlockPool(2), nodeBlockPool(3)];
 afterAll(async () => {
   await Promise.all(pools.map((p) => p.close()));
@@ -147,19 +143,7 @@ describe('prepareStructuredPosteriorParallel: bit-identical to one thread', () =
     const prior: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, length: 8 }] };
     const st = await prepareStructuredPosteriorParallel(p, prior, pools[0]!);
     expect(differences(st, prepareStructuredPosterior(p, prior))).toEqual(none);
-    const csr = p.operator.matrix as SparseMatrix;
-    const env = { ...process.env };
-    delete env.OPENBLAS_CORETYPE;
-    const out = JSON.parse(
-      execFileSync(pythonPath(), [join(here, '../../bench/dense_route.py')], {
-        input: JSON.stringify({
-          problems: [{ name: '64', grid: p.grid, length: 8, g: { rows: csr.rows, cols: csr.cols, rowPtr: Array.from(csr.rowPtr), colIdx: Array.from(csr.colIdx), values: Array.from(csr.values) }, d: Array.from(p.data.values), sigma: Array.from(p.data.sigma!), runs: 1 }],
-        }),
-        encoding: 'utf8',
-        env,
-        maxBuffer: 1 << 28,
-      }),
-    ) as { problems: { mean: number[] }[] };
+    const out = { problems: [denseScipyRoute(p, 8)] };
     const ref = out.problems[0]!.mean;
     let d = 0;
     let scale = 0;
