@@ -31,6 +31,8 @@ function meanWhileComputing(page: Page, previous: number[][] | null) {
     ([text, prev]) => {
       const status = document.querySelector('[data-testid="bands-status"]');
       if (status?.textContent !== text || document.getElementById('plot-posterior-std')) return null;
+      // Checked in the same frame as the mean: on a fast machine the bands may follow a frame later.
+      if (!document.querySelector('[data-testid="bands-pending"]')?.textContent?.includes(text)) return null;
       const gd = document.getElementById('plot-posterior-mean') as unknown as { data?: { name?: string; z?: ArrayLike<number>[] }[] } | null;
       const z = gd?.data?.find((d) => d.name === 'mean')?.z;
       if (!z || z.length === 0) return null;
@@ -67,7 +69,6 @@ test('the posterior mean is drawn while the bands are computing, and the bands f
   const partialZ = (await (await seen).jsonValue()) as number[][];
   expect(partialZ).toHaveLength(NY);
   expect(partialZ[0]).toHaveLength(NX);
-  await expect(page.getByTestId('bands-pending').first()).toContainText(COMPUTING);
 
   // The bands arrive: the status goes, the std map is drawn, the mean is the one already shown.
   const done = await settle(page);
