@@ -1,7 +1,8 @@
 /**
- * End-to-end tests of the real binary: each command, each bad-input case of issue 3 (exit code 2,
- * one line on stderr naming file + field + expectation, no stack trace), `check` exit 3, warnings,
- * and byte-identical seeded samples.
+ * Tests of the command line: each command, each bad-input case (exit code 2, one line on stderr
+ * naming file + field + expectation, no stack trace), `check` exit 3, warnings, and byte-identical
+ * seeded samples. Most run main() in this process (runCommand, test/cli/run.ts); the "real binary"
+ * block spawns `node src/cli/bin.mjs` and checks that the process gives the same bytes and exit codes.
  */
 import { execFileSync } from 'node:child_process';
 import { readFileSync, truncateSync } from 'node:fs';
@@ -10,7 +11,7 @@ import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { parseCsv } from '../../src/core/io/csv.ts';
 import { parseNpy } from '../../src/core/io/npy.ts';
-import { repoRoot, runCli, tempDir, writeFiles } from './run.ts';
+import { repoRoot, runCli, runCommand, tempDir, writeFiles, type RunResult } from './run.ts';
 
 // An invented problem: 3 averaging data over a 6-cell line, spacing 1 m.
 const PROBLEM = {
@@ -31,7 +32,7 @@ beforeAll(() => {
 });
 
 /** Exit 2 and exactly one stderr line, without a stack trace. */
-function expectBadInput(r: ReturnType<typeof runCli>, line: string): void {
+function expectBadInput(r: RunResult, line: string): void {
   expect(r.code, r.err).toBe(2);
   expect(r.err).toBe(line + '\n');
   expect(r.err).not.toMatch(/\n\s+at /);
@@ -43,22 +44,22 @@ describe('help', () => {
     const out = execFileSync('npx', ['--no-install', 'priorscope', '--help'], { cwd: repoRoot, encoding: 'utf8' });
     for (const c of ['posterior', 'check', 'sample', 'correlation', 'tune', 'demo']) expect(out).toMatch(new RegExp(`^  ${c} `, 'm'));
   });
-  it.each(['posterior', 'check', 'sample', 'correlation', 'tune', 'demo'])('%s --help describes its usage and options', (c) => {
-    const r = runCli([c, '--help'], dir);
+  it.each(['posterior', 'check', 'sample', 'correlation', 'tune', 'demo'])('%s --help describes its usage and options', async (c) => {
+    const r = await runCommand([c, '--help'], dir);
     expect(r.code).toBe(0);
     expect(r.out).toContain(`Usage: priorscope ${c}`);
     expect(r.out).toContain('--help');
   });
-  it('no command: help on stderr, exit 2; unknown command: exit 2', () => {
-    const r = runCli([], dir);
+  it('no command: help on stderr, exit 2; unknown command: exit 2', async () => {
+    const r = await runCommand([], dir);
     expect(r.code).toBe(2);
     expect(r.err).toContain('Usage: priorscope <command>');
-    expectBadInput(runCli(['posterier'], dir), 'priorscope: unknown command "posterier"; commands: posterior, check, sample, correlation, tune, demo (see priorscope --help)');
+    expectBadInput(await runCommand(['posterier'], dir), 'priorscope: unknown command "posterier"; commands: posterior, check, sample, correlation, tune, demo (see priorscope --help)');
   });
 });
 
 describe('correlation', () => {
-  // Closed forms: exponential e^(−h), Gaussian e^(−h²/2), spherical 1 − 1.5h + 0.5h³ (issue 3);
+  // Closed forms: exponential e^(−h), Gaussian e^(−h²/2), spherical 1 − 1.5h + 0.5h³;
   // Matérn ν = 3/2: (1 + √3 h) e^(−√3 h), ν = 1/2: e^(−h) (Rasmussen & Williams 2006, eq. 4.17).
   const lags = [0, 0.25, 0.5, 1, 2, 3.5];
   it.each([
@@ -67,16 +68,16 @@ describe('correlation', () => {
     ['spherical', [], (h: number) => (h < 1 ? 1 - 1.5 * h + 0.5 * h ** 3 : 0)],
     ['matern', ['--nu', '1.5'], (h: number) => (1 + Math.sqrt(3) * h) * Math.exp(-Math.sqrt(3) * h)],
     ['matern', ['--nu', '0.5'], (h: number) => Math.exp(-h)],
-  ] as const)('%s %s', (kernel, extra, rho) => {
-    const r = runCli(['correlation', '--kernel', kernel, ...extra, '--lags', lags.join(',')], dir);
+  ] as const)('%s %s', async (kernel, extra, rho) => {
+    const r = await runCommand(['correlation', '--kernel', kernel, ...extra, '--lags', lags.join(',')], dir);
     expect(r.code, r.err).toBe(0);
     const j = JSON.parse(r.out) as { lags: number[]; values: number[]; kernel: string };
     expect(j.kernel).toBe(kernel);
     expect(j.lags).toEqual(lags);
     j.values.forEach((v, k) => expect(Math.abs(v - rho(lags[k]!))).toBeLessThanOrEqual(1e-14));
   });
-  it('matern ν = 3/2 at h = 1 is 0.483358 (REFERENCES.md, derived from eq. 4.17)', () => {
-    const j = JSON.parse(runCli(['correlation', '--kernel=matern', '--nu=1.5', '--lags=1'], dir).out) as { values: number[] };
+  it('matern ν = 3/2 at h = 1 is 0.483358 (REFERENCES.md, derived from eq. 4.17)', async () => {
+    const j = JSON.parse((await runCommand(['correlation', '--kernel=matern', '--nu=1.5', '--lags=1'], dir)).out) as { values: number[] };
     expect(j.values[0]).toBeCloseTo(0.483358, 6);
   });
   it.each([
@@ -88,14 +89,14 @@ describe('correlation', () => {
     [['--kernel', 'gaussian', '--lags', '0,NaN'], 'priorscope correlation: --lags item 2 must be a finite number ≥ 0, got "NaN" (see priorscope correlation --help)'],
     [['--kernel', 'gaussian'], 'priorscope correlation: option --lags H1,H2,… is required (see priorscope correlation --help)'],
     [['--kernel', 'gaussian', '--lags', '1', '--bogus'], 'priorscope correlation: unknown option --bogus (see priorscope correlation --help)'],
-  ])('bad input %j', (args, line) => {
-    expectBadInput(runCli(['correlation', ...args], dir), line);
+  ])('bad input %j', async (args, line) => {
+    expectBadInput(await runCommand(['correlation', ...args], dir), line);
   });
 });
 
 describe('posterior and check', () => {
-  it('posterior prints the documented fields, consistent with each other', () => {
-    const r = runCli(['posterior', '--problem', 'p.json', '--prior', 'q.json'], dir);
+  it('posterior prints the documented fields, consistent with each other', async () => {
+    const r = await runCommand(['posterior', '--problem', 'p.json', '--prior', 'q.json'], dir);
     expect(r.code, r.err).toBe(0);
     expect(r.err).toBe('');
     const j = JSON.parse(r.out) as Record<string, unknown>;
@@ -104,26 +105,26 @@ describe('posterior and check', () => {
     expect(j.parameterCount).toBe(6);
     expect((j.mean as number[]).length).toBe(6);
     const res = j.residuals as number[];
-    // residuals are (d − G m̃)/σ and chi2 their sum of squares (definitions in issue 3).
+    // residuals are (d − G m̃)/σ and chi2 their sum of squares.
     const pred = j.predicted as number[];
     res.forEach((v, i) => expect(v).toBeCloseTo((PROBLEM.data.values[i]! - pred[i]!) / PROBLEM.data.sigma[i]!, 12));
     expect(j.chi2 as number).toBeCloseTo(res.reduce((a, b) => a + b * b, 0), 12);
   });
-  it('--out writes the same JSON to a file and nothing to stdout', () => {
-    const r = runCli(['posterior', '--problem', 'p.json', '--prior', 'q.json', '--out', 'post.json'], dir);
+  it('--out writes the same JSON to a file and nothing to stdout', async () => {
+    const r = await runCommand(['posterior', '--problem', 'p.json', '--prior', 'q.json', '--out', 'post.json'], dir);
     expect(r.code).toBe(0);
     expect(r.out).toBe('');
-    expect(readFileSync(join(dir, 'post.json'), 'utf8')).toBe(runCli(['posterior', '--problem', 'p.json', '--prior', 'q.json'], dir).out);
+    expect(readFileSync(join(dir, 'post.json'), 'utf8')).toBe((await runCommand(['posterior', '--problem', 'p.json', '--prior', 'q.json'], dir)).out);
   });
-  it('check: positive definite → exit 0', () => {
-    const r = runCli(['check', '--problem', 'p.json', '--prior', 'q.json'], dir);
+  it('check: positive definite → exit 0', async () => {
+    const r = await runCommand(['check', '--problem', 'p.json', '--prior', 'q.json'], dir);
     expect(r.code, r.err).toBe(0);
     const j = JSON.parse(r.out) as { positiveDefinite: boolean; minEigenvalue: number; maxEigenvalue: number; conditionNumber: number };
     expect(j.positiveDefinite).toBe(true);
     expect(j.minEigenvalue).toBeGreaterThan(0);
     expect(j.conditionNumber).toBeCloseTo(j.maxEigenvalue / j.minEigenvalue, 6);
   });
-  it('check: a Gaussian kernel much longer than a fine grid, no nugget → not positive definite, exit 3', () => {
+  it('check: a Gaussian kernel much longer than a fine grid, no nugget → not positive definite, exit 3', async () => {
     // Ababou et al. (1994): the Gaussian kernel's covariance matrix is the worst conditioned; with
     // length 40 on 120 cells of spacing 1 its eigenvalues fall far below round-off.
     const d = tempDir();
@@ -131,28 +132,28 @@ describe('posterior and check', () => {
       'p.json': with_(PROBLEM, { grid: { shape: [120], spacing: [1] }, operator: { sparse: { rows: [0, 1, 2], cols: [10, 60, 110], values: [1, 1, 1] } } }),
       'q.json': with_(PRIOR, { terms: [{ kernel: 'gaussian', variance: 1, length: 40 }], nugget: 0 }),
     });
-    const r = runCli(['check', '--problem', 'p.json', '--prior', 'q.json'], d);
+    const r = await runCommand(['check', '--problem', 'p.json', '--prior', 'q.json'], d);
     expect(r.code, r.err).toBe(3);
     const j = JSON.parse(r.out) as { positiveDefinite: boolean; suggestedJitter: number | null };
     expect(j.positiveDefinite).toBe(false);
     expect(r.err).toContain('not positive definite');
     // Prior sampling needs the Cholesky factor of Cm itself: exit 3 and one line, no output.
-    const s = runCli(['sample', '--problem', 'p.json', '--prior', 'q.json', '--count', '1', '--seed', '0'], d);
+    const s = await runCommand(['sample', '--problem', 'p.json', '--prior', 'q.json', '--count', '1', '--seed', '0'], d);
     expect(s.code).toBe(3);
     expect(s.out).toBe('');
     expect(s.err.trim().split('\n')).toHaveLength(1);
     expect(s.err).toMatch(/^priorscope sample: .*not positive definite/);
   });
-  it('unknown fields give warnings on stderr, not errors', () => {
+  it('unknown fields give warnings on stderr, not errors', async () => {
     const d = tempDir();
     writeFiles(d, { 'p.json': with_(PROBLEM, { colour: 'blue' }), 'q.json': with_(PRIOR, { author: 'me' }) });
-    const r = runCli(['posterior', '--problem', 'p.json', '--prior', 'q.json'], d);
+    const r = await runCommand(['posterior', '--problem', 'p.json', '--prior', 'q.json'], d);
     expect(r.code).toBe(0);
     expect(r.err.split('\n').filter(Boolean)).toEqual([
       'warning: p.json: unknown field colour ignored (known here: kind, version, title, grid, operator, data, truth, quantity)',
       'warning: q.json: unknown field author ignored (known here: kind, version, mean, terms, nugget, stdProfile)',
     ]);
-    expect(JSON.parse(r.out)).toEqual(JSON.parse(runCli(['posterior', '--problem', 'p.json', '--prior', 'q.json'], dir).out));
+    expect(JSON.parse(r.out)).toEqual(JSON.parse((await runCommand(['posterior', '--problem', 'p.json', '--prior', 'q.json'], dir)).out));
   });
 });
 
@@ -179,65 +180,65 @@ describe('bad input files: exit 2, one line naming file, field and expectation',
     ['prior mean length', { 'q.json': with_(PRIOR, { mean: { values: [1, 2] } }) }, 'q.json: mean.values must be an array of 6 numbers (one per grid cell), got an array of length 2'],
     ['prior not JSON', { 'q.json': 'mean: 0' }, 'q.json: is not valid JSON: line 1, column 1: expected a value (number, string, array, object, true, false or null), got "mean: 0"'],
   ];
-  it.each(cases)('%s', (_name, files, line) => {
+  it.each(cases)('%s', async (_name, files, line) => {
     const d = tempDir();
     writeFiles(d, { 'p.json': PROBLEM, 'q.json': PRIOR, ...files });
     for (const command of [['posterior'], ['check'], ['sample', '--count', '1', '--seed', '0']]) {
-      const r = runCli([...command, '--problem', 'p.json', '--prior', 'q.json'], d);
+      const r = await runCommand([...command, '--problem', 'p.json', '--prior', 'q.json'], d);
       expectBadInput(r, line.replace('DIR', d));
     }
   });
-  it('a file over the 512 MiB limit is refused before it is read', () => {
+  it('a file over the 512 MiB limit is refused before it is read', async () => {
     // A sparse file: truncateSync extends it without writing (or storing) the bytes.
     const d = tempDir();
     writeFiles(d, { 'q.json': PRIOR, 'big.json': '{}' });
     truncateSync(join(d, 'big.json'), MAX_FILE_BYTES + 1);
-    expectBadInput(runCli(['posterior', '--problem', 'big.json', '--prior', 'q.json'], d), 'big.json: file is 512.0 MiB, larger than the limit of 512 MiB');
+    expectBadInput(await runCommand(['posterior', '--problem', 'big.json', '--prior', 'q.json'], d), 'big.json: file is 512.0 MiB, larger than the limit of 512 MiB');
   });
-  it('a missing problem file, a directory, and a missing option', () => {
-    expectBadInput(runCli(['posterior', '--problem', 'none.json', '--prior', 'q.json'], dir), 'none.json: cannot be read: no such file');
-    expectBadInput(runCli(['posterior', '--problem', '.', '--prior', 'q.json'], dir), '.: cannot be read: it is a directory, not a file');
-    expectBadInput(runCli(['posterior', '--problem', 'p.json'], dir), 'priorscope posterior: option --prior Q.json is required (see priorscope posterior --help)');
+  it('a missing problem file, a directory, and a missing option', async () => {
+    expectBadInput(await runCommand(['posterior', '--problem', 'none.json', '--prior', 'q.json'], dir), 'none.json: cannot be read: no such file');
+    expectBadInput(await runCommand(['posterior', '--problem', '.', '--prior', 'q.json'], dir), '.: cannot be read: it is a directory, not a file');
+    expectBadInput(await runCommand(['posterior', '--problem', 'p.json'], dir), 'priorscope posterior: option --prior Q.json is required (see priorscope posterior --help)');
   });
 });
 
 describe('sample', () => {
   const base = ['sample', '--problem', 'p.json', '--prior', 'q.json', '--count', '4', '--seed', '12345'];
-  it('json: K rows of N numbers; the same seed gives byte-identical output, another seed different numbers', () => {
-    const a = runCli(base, dir);
+  it('json: K rows of N numbers; the same seed gives byte-identical output, another seed different numbers', async () => {
+    const a = await runCommand(base, dir);
     expect(a.code, a.err).toBe(0);
     const j = JSON.parse(a.out) as { kind: string; seed: number; count: number; realisations: number[][] };
     expect(j.kind).toBe('prior');
     expect(j.realisations).toHaveLength(4);
     j.realisations.forEach((row) => expect(row).toHaveLength(6));
-    expect(runCli(base, dir).stdout.equals(a.stdout)).toBe(true);
-    const b = JSON.parse(runCli([...base.slice(0, -1), '12346'], dir).out) as { realisations: number[][] };
+    expect((await runCommand(base, dir)).stdout.equals(a.stdout)).toBe(true);
+    const b = JSON.parse((await runCommand([...base.slice(0, -1), '12346'], dir)).out) as { realisations: number[][] };
     expect(b.realisations[0]).not.toEqual(j.realisations[0]);
   });
-  it('csv and npy carry the same numbers as json, and are byte-identical across runs', () => {
-    const j = JSON.parse(runCli(base, dir).out) as { realisations: number[][] };
-    const csv = runCli([...base, '--format', 'csv'], dir);
+  it('csv and npy carry the same numbers as json, and are byte-identical across runs', async () => {
+    const j = JSON.parse((await runCommand(base, dir)).out) as { realisations: number[][] };
+    const csv = await runCommand([...base, '--format', 'csv'], dir);
     expect(csv.code).toBe(0);
     expect(Array.from(parseCsv('s.csv', csv.out).matrix.data)).toEqual(j.realisations.flat());
-    const npy = runCli([...base, '--format', 'npy'], dir);
+    const npy = await runCommand([...base, '--format', 'npy'], dir);
     expect(npy.code).toBe(0);
     const a = parseNpy('s.npy', new Uint8Array(npy.stdout));
     expect(a.shape).toEqual([4, 6]);
     expect(Array.from(a.data)).toEqual(j.realisations.flat());
-    expect(runCli([...base, '--format', 'npy'], dir).stdout.equals(npy.stdout)).toBe(true);
+    expect((await runCommand([...base, '--format', 'npy'], dir)).stdout.equals(npy.stdout)).toBe(true);
     // --out with a .npy name chooses the format.
-    expect(runCli([...base, '--out', 's.npy'], dir).code).toBe(0);
+    expect((await runCommand([...base, '--out', 's.npy'], dir)).code).toBe(0);
     expect(readFileSync(join(dir, 's.npy')).equals(npy.stdout)).toBe(true);
   });
-  it('--posterior samples the posterior (different from the prior draws with the same seed)', () => {
-    const prior = JSON.parse(runCli(base, dir).out) as { realisations: number[][] };
-    const r = runCli([...base, '--posterior'], dir);
+  it('--posterior samples the posterior (different from the prior draws with the same seed)', async () => {
+    const prior = JSON.parse((await runCommand(base, dir)).out) as { realisations: number[][] };
+    const r = await runCommand([...base, '--posterior'], dir);
     expect(r.code, r.err).toBe(0);
     const post = JSON.parse(r.out) as { kind: string; realisations: number[][] };
     expect(post.kind).toBe('posterior');
     expect(post.realisations).toHaveLength(4);
     expect(post.realisations[0]).not.toEqual(prior.realisations[0]);
-    expect(runCli([...base, '--posterior'], dir).stdout.equals(r.stdout)).toBe(true);
+    expect((await runCommand([...base, '--posterior'], dir)).stdout.equals(r.stdout)).toBe(true);
   });
   it.each([
     [['--count', '0', '--seed', '1'], 'priorscope sample: --count must be an integer ≥ 1, got "0" (see priorscope sample --help)'],
@@ -245,14 +246,14 @@ describe('sample', () => {
     [['--count', '2', '--seed', '-1'], 'priorscope sample: --seed must be an integer from 0 to 4294967295, got "-1" (see priorscope sample --help)'],
     [['--count', '2', '--seed', '1', '--format', 'xml'], 'priorscope sample: --format must be one of json, csv, npy, got "xml" (see priorscope sample --help)'],
     [['--count', '2'], 'priorscope sample: option --seed S is required (see priorscope sample --help)'],
-  ])('bad options %j', (args, line) => {
-    expectBadInput(runCli(['sample', '--problem', 'p.json', '--prior', 'q.json', ...args], dir), line);
+  ])('bad options %j', async (args, line) => {
+    expectBadInput(await runCommand(['sample', '--problem', 'p.json', '--prior', 'q.json', ...args], dir), line);
   });
 });
 
 describe('tune and demo', () => {
-  it('tune prints the evidence grid and its maximum', () => {
-    const r = runCli(['tune', '--problem', 'p.json', '--prior', 'q.json', '--term', '0', '--lengths', '0.5:8:4', '--variances', '0.1:10:3'], dir);
+  it('tune prints the evidence grid and its maximum', async () => {
+    const r = await runCommand(['tune', '--problem', 'p.json', '--prior', 'q.json', '--term', '0', '--lengths', '0.5:8:4', '--variances', '0.1:10:3'], dir);
     expect(r.code, r.err).toBe(0);
     const j = JSON.parse(r.out) as { lengths: number[]; variances: number[]; logEvidence: number[][]; best: { logEvidence: number } };
     expect(j.lengths).toHaveLength(4);
@@ -265,30 +266,61 @@ describe('tune and demo', () => {
     [['--term', '0', '--lengths', '2:1:2', '--variances', '1:2:2'], 'priorscope tune: --lengths must be lo:hi:n with 0 < lo ≤ hi and n an integer from 1 to 10000, got "2:1:2" (see priorscope tune --help)'],
     [['--term', '0', '--lengths', '1:2', '--variances', '1:2:2'], 'priorscope tune: --lengths must be lo:hi:n with 0 < lo ≤ hi and n an integer from 1 to 10000, got "1:2" (see priorscope tune --help)'],
     [['--term', '0', '--lengths', '1:2:2', '--variances', '0:2:2'], 'priorscope tune: --variances must be lo:hi:n with 0 < lo ≤ hi and n an integer from 1 to 10000, got "0:2:2" (see priorscope tune --help)'],
-  ])('tune bad options %j', (args, line) => {
-    expectBadInput(runCli(['tune', '--problem', 'p.json', '--prior', 'q.json', ...args], dir), line);
+  ])('tune bad options %j', async (args, line) => {
+    expectBadInput(await runCommand(['tune', '--problem', 'p.json', '--prior', 'q.json', ...args], dir), line);
   });
-  it('demo --list lists the built-in problems', () => {
-    const r = runCli(['demo', '--list'], dir);
+  it('demo --list lists the built-in problems', async () => {
+    const r = await runCommand(['demo', '--list'], dir);
     expect(r.code).toBe(0);
     const list = JSON.parse(r.out) as { id: string; title: string; description: string }[];
     expect(list.map((d) => d.id)).toEqual(['borehole-log', 'crosshole-tomography', 'potential-field']);
     list.forEach((d) => expect(d.title.length).toBeGreaterThan(0));
   });
-  it('demo NAME writes files that the other commands read; a sibling operator file gives the same posterior', () => {
+  it('demo NAME writes files that the other commands read; a sibling operator file gives the same posterior', async () => {
     const d = tempDir();
-    expect(runCli(['demo', 'borehole-log', '--out', 'b.json', '--prior', 'bq.json', '--truth-prior', 'bt.json'], d).code).toBe(0);
-    expect(runCli(['demo', 'borehole-log', '--out', 'b2.json', '--operator-file', 'G.mtx'], d).code).toBe(0);
-    const a = runCli(['posterior', '--problem', 'b.json', '--prior', 'bq.json'], d);
-    const b = runCli(['posterior', '--problem', 'b2.json', '--prior', 'bq.json'], d);
+    expect((await runCommand(['demo', 'borehole-log', '--out', 'b.json', '--prior', 'bq.json', '--truth-prior', 'bt.json'], d)).code).toBe(0);
+    expect((await runCommand(['demo', 'borehole-log', '--out', 'b2.json', '--operator-file', 'G.mtx'], d)).code).toBe(0);
+    const a = await runCommand(['posterior', '--problem', 'b.json', '--prior', 'bq.json'], d);
+    const b = await runCommand(['posterior', '--problem', 'b2.json', '--prior', 'bq.json'], d);
     expect(a.code, a.err).toBe(0);
     expect(b.code, b.err).toBe(0);
     // The Matrix Market sibling holds the same sparse operator, so the output is the same text.
     expect(b.out).toBe(a.out);
-    expect(runCli(['check', '--problem', 'b.json', '--prior', 'bt.json'], d).code).toBe(0);
-    expect(runCli(['demo', 'borehole-log'], d).out).toBe(readFileSync(join(d, 'b.json'), 'utf8'));
+    expect((await runCommand(['check', '--problem', 'b.json', '--prior', 'bt.json'], d)).code).toBe(0);
+    expect((await runCommand(['demo', 'borehole-log'], d)).out).toBe(readFileSync(join(d, 'b.json'), 'utf8'));
   });
-  it('demo with an unknown name is bad input', () => {
-    expectBadInput(runCli(['demo', 'volcano'], dir), 'priorscope demo: demo name must be one of borehole-log, crosshole-tomography, potential-field, got "volcano" (see priorscope demo --help)');
+  it('demo with an unknown name is bad input', async () => {
+    expectBadInput(await runCommand(['demo', 'volcano'], dir), 'priorscope demo: demo name must be one of borehole-log, crosshole-tomography, potential-field, got "volcano" (see priorscope demo --help)');
+  });
+});
+
+describe('the real binary gives the same exit codes and bytes as main() in process', () => {
+  it('posterior: same JSON on stdout, nothing on stderr, exit 0', async () => {
+    const args = ['posterior', '--problem', 'p.json', '--prior', 'q.json'];
+    const bin = runCli(args, dir);
+    expect(bin.code, bin.err).toBe(0);
+    expect(bin.err).toBe('');
+    expect(bin.out).toBe((await runCommand(args, dir)).out);
+    expect(JSON.parse(bin.out)).toHaveProperty('logEvidence');
+  });
+  it('sample --format npy: the same bytes on the process stdout', async () => {
+    const args = ['sample', '--problem', 'p.json', '--prior', 'q.json', '--count', '3', '--seed', '7', '--format', 'npy'];
+    const bin = runCli(args, dir);
+    expect(bin.code, bin.err).toBe(0);
+    expect(bin.stdout.equals((await runCommand(args, dir)).stdout)).toBe(true);
+    expect(parseNpy('s.npy', new Uint8Array(bin.stdout)).shape).toEqual([3, 6]);
+  });
+  it('bad input: exit 2 and one line on stderr, no stack trace', () => {
+    expectBadInput(runCli(['posterior', '--problem', 'none.json', '--prior', 'q.json'], dir), 'none.json: cannot be read: no such file');
+  });
+  it('check on a prior that is not positive definite: exit 3', () => {
+    const d = tempDir();
+    writeFiles(d, {
+      'p.json': with_(PROBLEM, { grid: { shape: [120], spacing: [1] }, operator: { sparse: { rows: [0, 1, 2], cols: [10, 60, 110], values: [1, 1, 1] } } }),
+      'q.json': with_(PRIOR, { terms: [{ kernel: 'gaussian', variance: 1, length: 40 }], nugget: 0 }),
+    });
+    const r = runCli(['check', '--problem', 'p.json', '--prior', 'q.json'], d);
+    expect(r.code, r.err).toBe(3);
+    expect((JSON.parse(r.out) as { positiveDefinite: boolean }).positiveDefinite).toBe(false);
   });
 });

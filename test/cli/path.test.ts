@@ -8,7 +8,7 @@
 import { join } from 'node:path';
 import { beforeAll, describe, expect, it } from 'vitest';
 import { runPython } from '../reference/python.ts';
-import { runCli, tempDir, writeFiles } from './run.ts';
+import { runCommand, tempDir, writeFiles, type RunResult } from './run.ts';
 
 // An invented survey: 12 × 14 cells of 2 m × 1.5 m (N = 168 ≥ 128, so auto takes the FFT path),
 // 11 data: point values and short row averages.
@@ -56,8 +56,8 @@ interface Out {
 }
 
 let dir: string;
-const run = (...extra: string[]) => runCli(['posterior', '--problem', 'p.json', '--prior', 'q.json', ...extra], dir);
-const parse = (r: ReturnType<typeof runCli>): Out => {
+const run = (...extra: string[]) => runCommand(['posterior', '--problem', 'p.json', '--prior', 'q.json', ...extra], dir);
+const parse = (r: RunResult): Out => {
   expect(r.code, r.err).toBe(0);
   return JSON.parse(r.out) as Out;
 };
@@ -76,10 +76,10 @@ beforeAll(() => {
 });
 
 describe('posterior --path', () => {
-  it('auto takes the FFT path here, dense the dense one, and they agree to 1e-10; both match scipy to 1e-8', () => {
-    const auto = parse(run());
-    const fft = parse(run('--path', 'fft'));
-    const dense = parse(run('--path', 'dense'));
+  it('auto takes the FFT path here, dense the dense one, and they agree to 1e-10; both match scipy to 1e-8', async () => {
+    const auto = parse(await run());
+    const fft = parse(await run('--path', 'fft'));
+    const dense = parse(await run('--path', 'dense'));
     expect(auto.path).toBe('fft');
     expect(fft.path).toBe('fft');
     expect(dense.path).toBe('dense');
@@ -93,18 +93,18 @@ describe('posterior --path', () => {
     expect(Math.abs(fft.logEvidence - ref.logEvidence)).toBeLessThanOrEqual(1e-8 * Math.abs(ref.logEvidence));
   });
 
-  it('auto takes the dense path below 128 cells', () => {
+  it('auto takes the dense path below 128 cells', async () => {
     const d = tempDir();
     writeFiles(d, {
       'p.json': { ...PROBLEM, grid: { shape: [8, 8], spacing: [1, 1] }, operator: { dense: [[1, ...Array(62).fill(0), 1]] }, data: { values: [1], sigma: [0.1] } },
       'q.json': PRIOR,
     });
-    const r = runCli(['posterior', '--problem', 'p.json', '--prior', 'q.json'], d);
+    const r = await runCommand(['posterior', '--problem', 'p.json', '--prior', 'q.json'], d);
     expect(r.code, r.err).toBe(0);
     expect((JSON.parse(r.out) as Out).path).toBe('dense');
   });
 
-  it('--threads 1 and --threads 2 give byte-identical output on a problem large enough to split', () => {
+  it('--threads 1 and --threads 2 give byte-identical output on a problem large enough to split', async () => {
     // 40 × 40 cells and 200 data; an explicit --threads 2 splits whatever the size (src/cli/commands.ts cliPosterior).
     const d = tempDir();
     const n = 40;
@@ -121,8 +121,8 @@ describe('posterior --path', () => {
       'p.json': { ...PROBLEM, grid: { shape: [n, n], spacing: [1, 1] }, operator: { sparse: { rows: r, cols: c, values: v } }, data: { values: Array.from({ length: m }, (_, k) => Math.cos(k)), sigma: Array(m).fill(0.1) } },
       'q.json': PRIOR,
     });
-    const one = runCli(['posterior', '--problem', 'p.json', '--prior', 'q.json', '--threads', '1'], d);
-    const two = runCli(['posterior', '--problem', 'p.json', '--prior', 'q.json', '--threads', '2'], d);
+    const one = await runCommand(['posterior', '--problem', 'p.json', '--prior', 'q.json', '--threads', '1'], d);
+    const two = await runCommand(['posterior', '--problem', 'p.json', '--prior', 'q.json', '--threads', '2'], d);
     expect(one.code, one.err).toBe(0);
     expect(two.code, two.err).toBe(0);
     expect(two.stdout.equals(one.stdout)).toBe(true);
@@ -132,8 +132,8 @@ describe('posterior --path', () => {
   it.each([
     [['--path', 'fast'], 'priorscope posterior: --path must be one of auto, dense, fft, got "fast" (see priorscope posterior --help)'],
     [['--threads', '0'], 'priorscope posterior: --threads must be an integer from 1 to 64, got "0" (see priorscope posterior --help)'],
-  ])('bad option %j: exit 2, one line', (args, line) => {
-    const r = run(...args);
+  ])('bad option %j: exit 2, one line', async (args, line) => {
+    const r = await run(...args);
     expect(r.code).toBe(2);
     expect(r.err).toBe(line + '\n');
     expect(r.out).toBe('');
@@ -143,8 +143,8 @@ describe('posterior --path', () => {
 });
 
 describe('sample reports its route on stderr', () => {
-  it('dense up to DENSE_REALISATION_LIMIT cells, circulant embedding above', () => {
-    const small = runCli(['sample', '--problem', 'p.json', '--prior', 'q.json', '--count', '2', '--seed', '3'], dir);
+  it('dense up to DENSE_REALISATION_LIMIT cells, circulant embedding above', async () => {
+    const small = await runCommand(['sample', '--problem', 'p.json', '--prior', 'q.json', '--count', '2', '--seed', '3'], dir);
     expect(small.code, small.err).toBe(0);
     expect(small.err).toBe(`priorscope sample: route dense (Cholesky of Cm, ${NX * NY} cells)\n`);
     const d = tempDir();
@@ -152,7 +152,7 @@ describe('sample reports its route on stderr', () => {
       'p.json': { ...PROBLEM, grid: { shape: [65, 64], spacing: [1, 1] }, operator: { dense: [[1, ...Array(65 * 64 - 1).fill(0)]] }, data: { values: [1], sigma: [0.1] } },
       'q.json': PRIOR,
     });
-    const big = runCli(['sample', '--problem', 'p.json', '--prior', 'q.json', '--count', '2', '--seed', '3', '--format', 'csv'], d);
+    const big = await runCommand(['sample', '--problem', 'p.json', '--prior', 'q.json', '--count', '2', '--seed', '3', '--format', 'csv'], d);
     expect(big.code, big.err).toBe(0);
     expect(big.err).toMatch(/^priorscope sample: route fft \(circulant embedding \d+ × \d+, (exact|negative eigenvalues clipped: relative trace .*)\)\n$/);
     expect(big.out.trim().split('\n')).toHaveLength(2);

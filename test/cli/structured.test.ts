@@ -5,7 +5,7 @@
  * 168 cells (FFT posterior path) reports its route and gives the core's FFT draws.
  */
 import { describe, expect, it } from 'vitest';
-import { runCli, tempDir, writeFiles } from './run.ts';
+import { runCommand, tempDir, writeFiles } from './run.ts';
 import { diagnosePrior } from '../../src/core/prior/diagnostics.ts';
 import type { Grid } from '../../src/core/grid/grid.ts';
 import type { PriorSpec } from '../../src/core/prior/spec.ts';
@@ -25,10 +25,10 @@ const terms: PriorSpec['terms'] = [{ kernel: 'matern', nu: 1.5, variance: 0.8, l
 const priorFile = (nugget: number) => ({ kind: 'priorscope.prior', version: 1, mean: { constant: 0.2 }, terms, nugget });
 
 describe('check on the FFT route', () => {
-  it('reports eigenvalueMethod fft-bounds with the bracket; verdict as the dense route', () => {
+  it('reports eigenvalueMethod fft-bounds with the bracket; verdict as the dense route', async () => {
     const dir = tempDir();
     writeFiles(dir, { 'p.json': problem(NX, NY), 'q.json': priorFile(1e-3) });
-    const r = runCli(['check', '--problem', 'p.json', '--prior', 'q.json'], dir);
+    const r = await runCommand(['check', '--problem', 'p.json', '--prior', 'q.json'], dir);
     expect(r.code).toBe(0);
     const out = JSON.parse(r.out);
     expect(out.eigenvalueMethod).toBe('fft-bounds');
@@ -45,11 +45,11 @@ describe('check on the FFT route', () => {
     expect(out.eigenvalueBounds.upper).toBeGreaterThanOrEqual(dense.maxEigenvalue * (1 - 1e-12));
   });
 
-  it('a prior it cannot prove exits 3 and says so', () => {
+  it('a prior it cannot prove exits 3 and says so', async () => {
     const dir = tempDir();
     const gauss = { kind: 'priorscope.prior', version: 1, mean: { constant: 0 }, terms: [{ kernel: 'gaussian', variance: 1, length: 6 }] };
     writeFiles(dir, { 'p.json': problem(NX, NY), 'q.json': gauss });
-    const r = runCli(['check', '--problem', 'p.json', '--prior', 'q.json'], dir);
+    const r = await runCommand(['check', '--problem', 'p.json', '--prior', 'q.json'], dir);
     expect(r.code).toBe(3);
     const out = JSON.parse(r.out);
     expect(out.positiveDefinite).toBe(false);
@@ -60,14 +60,14 @@ describe('check on the FFT route', () => {
 });
 
 describe('sample --posterior on the FFT path', () => {
-  it('reports the perturbation route; same seed, same bytes', () => {
+  it('reports the perturbation route; same seed, same bytes', async () => {
     const dir = tempDir();
     writeFiles(dir, { 'p.json': problem(12, 14), 'q.json': priorFile(1e-3) });
     const args = ['sample', '--problem', 'p.json', '--prior', 'q.json', '--count', '3', '--seed', '4', '--posterior', '--format', 'csv'];
-    const a = runCli(args, dir);
+    const a = await runCommand(args, dir);
     expect(a.code).toBe(0);
     expect(a.err).toMatch(/^priorscope sample: route fft \(posterior realisations by the perturbation update, prior draws by circulant embedding \d+ × \d+, exact\)\n$/);
     expect(a.out.trim().split('\n')).toHaveLength(3);
-    expect(runCli(args, dir).out).toBe(a.out);
+    expect((await runCommand(args, dir)).out).toBe(a.out);
   });
 });
