@@ -1,8 +1,8 @@
 #!/usr/bin/env node
-// `npm test`: finds or installs what the suites need, then runs the type check, the Vitest suites
+// `npm test`: finds or installs what the suites need, then runs the linter, the type check, the Vitest suites
 // (unit tests and the outside-reference checks against Debian's python3-scipy) and the Playwright
 // suite in Chromium. Prints one closing line "N passed, N failed".
-import { execFileSync, spawnSync } from 'node:child_process';
+import { spawnSync } from 'node:child_process';
 import { existsSync, readdirSync } from 'node:fs';
 import { homedir } from 'node:os';
 import { join } from 'node:path';
@@ -74,6 +74,7 @@ env.PRIORSCOPE_PYTHON = python;
 console.error(`priorscope test: Chromium ${chromium}, Python ${python}`);
 
 const steps = [
+  ['lint (biome lint, rules in biome.json)', 'npx', ['biome', 'lint', '--error-on-warnings', '.']],
   ['type check (tsc --noEmit)', 'npx', ['tsc', '--noEmit', '-p', 'tsconfig.json']],
   ['unit and reference suites (vitest)', 'npx', ['vitest', 'run']],
   ['browser suite (playwright, chromium)', 'npx', ['playwright', 'test']],

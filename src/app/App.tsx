@@ -91,6 +91,7 @@ export function App() {
           <div role="tablist" aria-label="Screens" className="tabs">
             {TABS.map((t, i) => (
               <button
+                type="button"
                 key={t.id}
                 ref={(el) => {
                   tabRefs.current[i] = el;

@@ -1,7 +1,7 @@
 /**
  * One plotly figure: redrawn with Plotly.react whenever its traces, layout or width change.
  *
- * Main-thread budget (issue 4: no task above 50 ms during a slider drag). Profiling a drag on the
+ * Main-thread budget (no task above 50 ms during a slider drag). Profiling a drag on the
  * 2-D demos (Chromium CPU profile) showed three causes, each handled here:
  * 1. plotly's own `responsive` mode re-lays out every figure (a full `relayout`, ~50–130 ms for a
  *    heat map) whenever its box changes by a pixel, e.g. when a scroll bar comes and goes. We turn

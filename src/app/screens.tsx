@@ -1,5 +1,5 @@
 /** The five screens of the main area: problem, prior, realisations, posterior, data fit. */
-import { useMemo, useState } from 'react';
+import { useMemo } from 'react';
 import { useShallow } from 'zustand/react/shallow';
 import { useWb } from './context.ts';
 import { Plot } from './Plot.tsx';

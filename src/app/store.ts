@@ -1,6 +1,6 @@
 /**
  * The workbench store: one zustand store made of four slices (problem, prior, results, view).
- * Framework-free (zustand/vanilla); React reads it through ./useWorkbench.ts. All numerics go
+ * Framework-free (zustand/vanilla); React reads it through ./context.ts (useWb). All numerics go
  * through the worker client; the store only keeps plain specs and the typed-array results.
  */
 import { createStore, type StoreApi } from 'zustand/vanilla';
@@ -8,7 +8,7 @@ import type { PriorSpec, MeanSpec } from '../core/prior/spec.ts';
 import type { Term, KernelName } from '../core/kernels/spec.ts';
 import type { Diagnostics } from '../core/prior/diagnostics.ts';
 import type { Matrix } from '../core/linalg/matrix.ts';
-import { cellCount, gridDimension } from '../core/grid/grid.ts';
+import { cellCount } from '../core/grid/grid.ts';
 import type { Outcome } from '../worker/client.ts';
 import type { Channel, PosteriorPartial, PosteriorResult, ProblemView } from '../worker/protocol.ts';
 import { createSelectSlice, type SelectSlice } from './select/slice.ts';
@@ -199,7 +199,7 @@ export function createWorkbenchStore(client: ClientPort, initial: { demoId: stri
       selectedCell: null,
       notice: null,
       ...createSessionSlice(set, get, api, client),
-      // Prior selection (issue 7): src/app/select/slice.ts.
+      // Prior selection: src/app/select/slice.ts.
       ...createSelectSlice(set, get, client),
 
       async loadDemo(demoId) {
@@ -366,9 +366,7 @@ export function defaultTerm(problem: ProblemView): Term {
   const g = problem.grid;
   const extent = Math.max(...g.shape.map((n, k) => n * g.spacing[k]!));
   const length = roundTo2(extent / 10);
-  return gridDimension(g) === 2
-    ? { kernel: 'exponential', variance: 1, length }
-    : { kernel: 'exponential', variance: 1, length };
+  return { kernel: 'exponential', variance: 1, length };
 }
 
 function roundTo2(x: number): number {

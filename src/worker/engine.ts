@@ -33,6 +33,7 @@ import {
 } from '../core/inverse/structured.ts';
 import { parallelPosteriorStd, varianceFlops, worthSplitting, type BlockPool } from '../core/parallel/blocks.ts';
 import type { StructuredPosteriorState } from '../core/inverse/structured.ts';
+import type { PosteriorSummary } from '../core/inverse/types.ts';
 import { chiSquareQuantile } from '../core/inverse/chisquare.ts';
 import {
   assertNever,
@@ -233,7 +234,7 @@ export class Engine {
   }
 
   private async run(r: Exclude<WorkerRequest, { kind: 'cancel' }>, progress: ProgressFn, partial: PartialFn): Promise<ResultMap[RequestKind]> {
-    // Prior selection (issue 7): chunked, cancellable runs in ./tuning.ts.
+    // Prior selection: chunked, cancellable runs in ./tuning.ts.
     if (isTuningRequest(r)) return runTuning(this.requireProblem(r.problemVersion), r, progress);
     switch (r.kind) {
       case 'loadDemo': {
@@ -258,7 +259,7 @@ export class Engine {
         // Path by src/core/inverse/auto.ts (FFT for stationary priors on grids of ≥ 128 cells). On
         // the FFT path the mean goes out first (a `partial`), then the bands with the result.
         const problem = this.requireProblem(r.problemVersion);
-        let summary;
+        let summary: PosteriorSummary;
         if (choosePosteriorPath(problem, r.prior).path === 'fft') {
           const st = await this.structuredState(r.problemVersion, r.prior, progress);
           if (varianceFlops(st.L.rows, st.Bt.cols) >= (this.options.partialMinFlops ?? PARTIAL_MIN_FLOPS)) partial(structuredPartial(st));

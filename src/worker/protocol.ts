@@ -45,12 +45,12 @@ export interface ProblemView {
   readonly numericKernels: 'WebAssembly SIMD' | 'JavaScript';
 }
 
-/** Posterior summary plus the χ² interval of the data fit, when the χ² quantile function exists. */
+/** Posterior summary plus the χ² interval of the data fit. */
 export interface PosteriorResult {
   readonly summary: PosteriorSummary;
   /** Prior mean m0 of the same prior (for the prior band). */
   readonly priorMean: Float64Array;
-  /** Central 95% interval of χ²_M / M (from χ² quantiles 0.025 and 0.975), or null if unavailable. */
+  /** Central 95% interval of χ²_M / M (from χ² quantiles 0.025 and 0.975), or null when there are no data (M = 0). */
   readonly chi2Interval: readonly [number, number] | null;
 }
 
@@ -120,7 +120,7 @@ export type WorkerRequest =
     })
   | (RequestBase & { readonly kind: 'resolution'; readonly problemVersion: number; readonly prior: PriorSpec; readonly cell: number })
   | (RequestBase & { readonly kind: 'covariance'; readonly problemVersion: number; readonly prior: PriorSpec })
-  /** Prior selection (issue 7): see ./tuningProtocol.ts. */
+  /** Prior selection: see ./tuningProtocol.ts. */
   | TuningRequest
   /** Drop a queued request (no reply is sent for it); a running tuning request is aborted. */
   | (RequestBase & { readonly kind: 'cancel'; readonly target: number });

@@ -1,5 +1,5 @@
 /**
- * The worker side of prior selection (issue 7): runs the tuning requests of ./tuningProtocol.ts on
+ * The worker side of prior selection: runs the tuning requests of ./tuningProtocol.ts on
  * the numerical core (src/core/tuning) for the problem the engine holds.
  *
  * ## Progress and cancellation

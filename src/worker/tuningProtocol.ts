@@ -1,5 +1,5 @@
 /**
- * The prior-selection part of the worker protocol (issue 7): request and result types of the
+ * The prior-selection part of the worker protocol: request and result types of the
  * tuning requests, kept here and spliced into ./protocol.ts's unions. Each kind is its own
  * latest-wins channel (the channel has the kind's name).
  *

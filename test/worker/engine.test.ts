@@ -106,7 +106,10 @@ describe('Engine: FFT-path products over a thread pool', () => {
     expect(productsWorthSplitting(160, problem.grid.shape, 2)).toBe(true);
     const pool = nodeBlockPool(2);
     let productTasks = 0;
-    const counted = { ...pool, size: pool.size, run: pool.run.bind(pool), close: pool.close.bind(pool), runProducts: (t: never, port: number) => (productTasks++, pool.runProducts(t, port)) };
+    const counted = { ...pool, size: pool.size, run: pool.run.bind(pool), close: pool.close.bind(pool), runProducts: (t: never, port: number) => {
+      productTasks++;
+      return pool.runProducts(t, port);
+    } };
     const prior = { mean: { constant: 0.2 }, terms: [{ kernel: 'matern' as const, nu: 1.5, variance: 1e-3, length: 12 }] };
     const run = async (options: EngineOptions) => {
       const engine = new Engine(options);

@@ -1,5 +1,5 @@
 /**
- * The "Choose prior" screen (issue 7): the data's verdict on the prior. Three views — the evidence
+ * The "Choose prior" screen: the data's verdict on the prior. Three views — the evidence
  * map with profiles and the type-II fit, the criteria of the current prior with calibration, and
  * the pinned candidates side by side. The pin button sits in the screen's header next to a
  * summary of the current prior.

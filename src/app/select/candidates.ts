@@ -76,7 +76,7 @@ export function scoreRows(
     const cov68 = coverage && coverage.size === candidates.length ? coverage.coverage68[k * coverage.size + k]! : null;
     const cov95 = coverage && coverage.size === candidates.length ? coverage.coverage95[k * coverage.size + k]! : null;
     const covCell: ScoreCell = { column: 'coverage', value: cov68, text: cov68 === null ? '—' : `${fmt(cov68, 3)} / ${fmt(cov95, 3)}` };
-    if (!s || !s.ok) {
+    if (!s?.ok) {
       return {
         id: c.id,
         name: c.name,

@@ -1,16 +1,15 @@
 /**
- * The prior-selection slice of the workbench store (issue 7): pinned candidates and the state of
+ * The prior-selection slice of the workbench store: pinned candidates and the state of
  * each tuning task (evidence map, profile, type-II fit, criteria, calibration, candidate scores,
  * cross-calibration). Spread into the store by src/app/store.ts; framework-free.
  *
- * `candidates` is plain JSON-able data ({id, name, prior, colour}) so that sessions (issue 5) can
+ * `candidates` is plain JSON-able data ({id, name, prior, colour}) so that sessions can
  * save and restore it. Tuning requests go to the secondary worker of the split client (the
  * posterior worker stays free); every task keeps the key it was computed for, and the screen
  * shows a result only while the key still matches.
  */
 import type { PriorSpec } from '../../core/prior/spec.ts';
 import { setTermLength, withTerm, type LogAxis, type ProfileParameter } from '../../core/tuning/index.ts';
-import type { Outcome } from '../../worker/client.ts';
 import type { TuningKind, TuningResultMap } from '../../worker/tuningProtocol.ts';
 import type { TuningPayload, TuningPort } from '../../worker/split.ts';
 import { TUNING_KINDS } from '../../worker/tuningProtocol.ts';

@@ -21,11 +21,11 @@ export { validatePrior } from './validate.ts';
 /** Dense prior covariance Cm (N × N) on the grid. Validates the prior first (InputError). */
 export function covarianceMatrix(grid: Grid, prior: PriorSpec): Matrix {
   validatePrior(prior, grid);
-  return assembleCovariance(grid, prior, lagTable(grid, prior.terms));
+  return assembleCovariance(prior, lagTable(grid, prior.terms));
 }
 
 /** Dense Cm from an already computed lag table (no validation). */
-export function assembleCovariance(grid: Grid, prior: PriorSpec, table: LagTable): Matrix {
+export function assembleCovariance(prior: PriorSpec, table: LagTable): Matrix {
   const { nx, ny, values } = table;
   const n = nx * ny;
   const c = matrix(n, n);

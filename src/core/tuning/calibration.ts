@@ -35,7 +35,7 @@
  */
 import { InputError, NotPositiveDefiniteError } from '../errors.ts';
 import { cholesky, choleskySolve } from '../linalg/cholesky.ts';
-import { type Matrix } from '../linalg/matrix.ts';
+import type { Matrix } from '../linalg/matrix.ts';
 import { applyOperator } from '../linalg/operator.ts';
 import { circulantSampler } from '../fft/realisations.ts';
 import { posteriorSummary, preparePosteriorFromCovariance } from '../inverse/posterior.ts';
