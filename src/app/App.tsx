@@ -1,4 +1,5 @@
 /** The workbench shell: header with demo picker, prior panel, status, tabbed screens, caution footer. */
+import { assertNever } from '../core/errors.ts';
 import { useRef, type KeyboardEvent } from 'react';
 import { DEMO_CHOICES } from './demos.ts';
 import { useWb } from './context.ts';
@@ -28,10 +29,8 @@ function Screen({ tab }: { tab: TabId }) {
       return <FitScreen />;
     case 'select':
       return <SelectScreen />;
-    default: {
-      const never: never = tab;
-      throw new Error(`unknown tab ${String(never)}`);
-    }
+    default:
+      return assertNever(tab, 'tab');
   }
 }
 

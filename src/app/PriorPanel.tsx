@@ -1,5 +1,5 @@
 /** The left panel: mean model, covariance terms (add / remove / reorder), nugget. */
-import { KERNEL_NAMES, type KernelName, type Term } from '../core/kernels/spec.ts';
+import { DEFAULT_MATERN_NU, KERNEL_NAMES, type KernelName, type Term } from '../core/kernels/spec.ts';
 import type { MeanSpec, PriorSpec } from '../core/prior/spec.ts';
 import { MAX_PINNED } from './select/candidates.ts';
 import { gridDimension } from '../core/grid/grid.ts';
@@ -298,7 +298,7 @@ function TermEditor({ index, term, count, problem, refVar }: { index: number; te
       {term.kernel === 'matern' && (
         <LogSlider
           label="Smoothness ν"
-          value={term.nu ?? 1.5}
+          value={term.nu ?? DEFAULT_MATERN_NU}
           min={0.1}
           max={20}
           unit=""

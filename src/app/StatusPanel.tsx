@@ -1,4 +1,5 @@
 /** Positive-definiteness status of the current prior covariance, always visible. */
+import { assertNever } from '../core/errors.ts';
 import type { Diagnostics } from '../core/prior/diagnostics.ts';
 import { useWb } from './context.ts';
 
@@ -37,10 +38,8 @@ export function eigenvalueMethodText(d: Pick<Diagnostics, 'eigenvalueMethod' | '
         ? `bounds from the FFT embedding${pad}: λ in [${fmt(b.lower)}, ${fmt(b.upper)}], estimates inside`
         : `bounds from the FFT embedding${pad}`;
     }
-    default: {
-      const never: never = d.eigenvalueMethod;
-      return String(never);
-    }
+    default:
+      return assertNever(d.eigenvalueMethod, 'eigenvalue method');
   }
 }
 

@@ -3,6 +3,7 @@
  * (mean-first) one: the newest mean always, the bands only when they belong to that mean. Pure
  * functions, so the screens stay thin and the rules are tested without a DOM.
  */
+import { assertNever } from '../core/errors.ts';
 import type { PosteriorSummary } from '../core/inverse/types.ts';
 import type { PosteriorPartial, PosteriorResult } from '../worker/protocol.ts';
 
@@ -61,9 +62,7 @@ export function bandsText(state: BandsState): string | null {
     case 'shown':
     case 'none':
       return null;
-    default: {
-      const never: never = state;
-      throw new Error(`unexpected bands state ${String(never)}`);
-    }
+    default:
+      return assertNever(state, 'bands state');
   }
 }

@@ -5,7 +5,7 @@
  */
 import { createStore, type StoreApi } from 'zustand/vanilla';
 import type { PriorSpec, MeanSpec } from '../core/prior/spec.ts';
-import type { Term, KernelName } from '../core/kernels/spec.ts';
+import { DEFAULT_MATERN_NU, type Term, type KernelName } from '../core/kernels/spec.ts';
 import type { Diagnostics } from '../core/prior/diagnostics.ts';
 import type { Matrix } from '../core/linalg/matrix.ts';
 import { cellCount } from '../core/grid/grid.ts';
@@ -231,7 +231,7 @@ export function createWorkbenchStore(client: ClientPort, initial: { demoId: stri
           terms.map((t, i) => {
             if (i !== index) return t;
             const { nu: _nu, ...rest } = t;
-            return kernel === 'matern' ? { ...rest, kernel, nu: t.nu ?? 1.5 } : { ...rest, kernel };
+            return kernel === 'matern' ? { ...rest, kernel, nu: t.nu ?? DEFAULT_MATERN_NU } : { ...rest, kernel };
           }),
         );
       },

@@ -3,11 +3,11 @@
  * and writes JSON (or CSV / .npy for samples). Each command returns its exit code:
  * 0 ok, 2 bad input, 3 `check` found the prior not positive definite.
  */
+import { assertNever } from '../core/errors.ts';
 import { dirname, resolve } from 'node:path';
 import { KERNEL_NAMES, type KernelName } from '../core/kernels/spec.ts';
 import { correlation } from '../core/kernels/correlation.ts';
 import type { Matrix } from '../core/linalg/matrix.ts';
-import { assertNever } from '../core/linalg/operator.ts';
 import { diagnosePriorAuto, STRUCTURED_DIAGNOSTICS_MIN_CELLS } from '../core/prior/structuredDiagnostics.ts';
 import { structuredPosteriorDraws } from '../core/inverse/structuredDraws.ts';
 import { priorRealisationsWithRoute } from '../core/sampling/realisations.ts';

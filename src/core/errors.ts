@@ -41,3 +41,11 @@ export function formatValue(value: unknown): string {
   if (ArrayBuffer.isView(value)) return `an array of length ${(value as unknown as ArrayLike<number>).length}`;
   return typeof value;
 }
+
+/**
+ * The `default` of an exhaustive `switch` over a union: the type checker proves it unreachable
+ * (`x` is `never`), and if a value from outside the types gets there anyway it throws, naming `what`.
+ */
+export function assertNever(x: never, what = 'variant'): never {
+  throw new Error(`unexpected ${what}: ${JSON.stringify(x)}`);
+}

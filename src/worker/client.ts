@@ -13,6 +13,7 @@
  *   current problem, rejects the other pending requests with {@link WorkerRestartedError} and
  *   tells its `onRestart` listeners, who re-request what they need.
  */
+import { assertNever } from '../core/errors.ts';
 import type { PriorSpec } from '../core/prior/spec.ts';
 import type { Problem } from '../core/problems/spec.ts';
 import {
@@ -226,10 +227,8 @@ export class WorkerClient {
       case 'error':
         this.settle(reply.id)?.reject(new WorkerTaskError(reply.error));
         return;
-      default: {
-        const never: never = reply;
-        throw new Error(`unexpected reply ${JSON.stringify(never)}`);
-      }
+      default:
+        assertNever(reply, 'reply');
     }
   }
 

@@ -21,7 +21,7 @@ import {
   resolutionRow,
   type PosteriorState,
 } from '../core/inverse/posterior.ts';
-import { InputError } from '../core/errors.ts';
+import { assertNever, InputError } from '../core/errors.ts';
 import { choosePosteriorPath } from '../core/inverse/auto.ts';
 import {
   prepareStructuredPosterior,
@@ -35,17 +35,7 @@ import { parallelPosteriorStd, varianceFlops, worthSplitting, type BlockPool } f
 import type { StructuredPosteriorState } from '../core/inverse/structured.ts';
 import type { PosteriorSummary } from '../core/inverse/types.ts';
 import { chiSquareQuantile } from '../core/inverse/chisquare.ts';
-import {
-  assertNever,
-  serialiseError,
-  transferables,
-  type PosteriorPartial,
-  type WorkerReply,
-  type ProblemView,
-  type RequestKind,
-  type ResultMap,
-  type WorkerRequest,
-} from './protocol.ts';
+import { serialiseError, transferables, type PosteriorPartial, type WorkerReply, type ProblemView, type RequestKind, type ResultMap, type WorkerRequest } from './protocol.ts';
 import { isTuningRequest, runTuning } from './tuning.ts';
 
 /** Largest N for which the dense covariance is sent to the UI as a heat map. */

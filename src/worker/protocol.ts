@@ -11,6 +11,7 @@
  * The problem is sent once (`loadDemo` or `setProblem`) and kept by the worker; every later request
  * names the `problemVersion` it was made for, so work for a replaced problem is refused, not run.
  */
+import { assertNever } from '../core/errors.ts';
 import type { Diagnostics } from '../core/prior/diagnostics.ts';
 import type { PriorSpec } from '../core/prior/spec.ts';
 import type { Problem } from '../core/problems/spec.ts';
@@ -200,8 +201,4 @@ export function transferables(value: unknown, out: ArrayBuffer[] = [], seen = ne
   }
   for (const v of Object.values(value as Record<string, unknown>)) transferables(v, out, seen);
   return out;
-}
-
-export function assertNever(x: never): never {
-  throw new Error(`unexpected variant: ${JSON.stringify(x)}`);
 }

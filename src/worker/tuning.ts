@@ -54,8 +54,8 @@ import {
   type EvidenceMethod,
   type EvidenceProfile,
 } from '../core/tuning/index.ts';
-import { InputError } from '../core/errors.ts';
-import { assertNever, type WorkerRequest } from './protocol.ts';
+import { assertNever, InputError } from '../core/errors.ts';
+import type { WorkerRequest } from './protocol.ts';
 import type { CandidateScores, CrossCalibration, TuningRequest, TuningResultMap } from './tuningProtocol.ts';
 import { isTuningKind } from './tuningProtocol.ts';
 import { closeSignal, openSignal, type AbortFlag } from './tuningSignals.ts';

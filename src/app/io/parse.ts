@@ -3,6 +3,7 @@
  * (src/core/io). Pure and worker-safe: the same function runs in ./parseWorker.ts (large files
  * stay off the main thread) and directly in unit tests.
  */
+import { assertNever } from '../../core/errors.ts';
 import { FileFormatError } from '../../core/io/errors.ts';
 import { parseProblemFile } from '../../core/io/problemFile.ts';
 import { parsePriorFile } from '../../core/io/priorFile.ts';
@@ -71,10 +72,8 @@ export function parseRequest(req: ParseRequest): ParseResult {
       const r = parsePriorFile(req.file.name, req.file.bytes, { grid: req.grid });
       return { kind: 'prior', prior: r.prior, warnings: r.warnings.map((w) => w.message) };
     }
-    default: {
-      const never: never = req;
-      throw new Error(`unknown parse request ${JSON.stringify(never)}`);
-    }
+    default:
+      return assertNever(req, 'parse request');
   }
 }
 

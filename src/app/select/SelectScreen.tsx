@@ -4,6 +4,7 @@
  * the pinned candidates side by side. The pin button sits in the screen's header next to a
  * summary of the current prior.
  */
+import { DEFAULT_MATERN_NU } from '../../core/kernels/spec.ts';
 import { useState } from 'react';
 import { useWb } from '../context.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
@@ -24,7 +25,7 @@ const VIEWS: readonly { id: View; label: string }[] = [
 export function describePrior(prior: PriorSpec): string {
   const terms = prior.terms.map((t) => {
     const l = t.lengths ? `ℓ = ${fmt(t.lengths[0])}×${fmt(t.lengths[1])} at ${fmt(t.angle ?? 0)}°` : `ℓ = ${fmt(t.length ?? Number.NaN)}`;
-    return `${t.kernel}${t.kernel === 'matern' ? ` ν = ${fmt(t.nu ?? 1.5)}` : ''}, ${l}, σ² = ${fmt(t.variance)}`;
+    return `${t.kernel}${t.kernel === 'matern' ? ` ν = ${fmt(t.nu ?? DEFAULT_MATERN_NU)}` : ''}, ${l}, σ² = ${fmt(t.variance)}`;
   });
   return `${terms.join(' + ')}${prior.nugget ? `; nugget ${fmt(prior.nugget)}` : ''}`;
 }

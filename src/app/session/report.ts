@@ -10,7 +10,7 @@
 import type { WorkbenchState } from '../store.ts';
 import { cellCount } from '../../core/grid/grid.ts';
 import { practicalRange } from '../../core/kernels/correlation.ts';
-import type { Term } from '../../core/kernels/spec.ts';
+import { DEFAULT_MATERN_NU, type Term } from '../../core/kernels/spec.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
 import { writePriorFile } from '../../core/io/priorFile.ts';
 
@@ -30,8 +30,8 @@ const g4 = (x: number) => (Number.isFinite(x) ? Number(x.toPrecision(4)).toStrin
 
 /** One sentence per term, with the practical range (distance where ρ = 0.05) of its kernel. */
 export function termInWords(t: Term, lengthUnit: string, valueUnit: string): string {
-  const kernel = t.kernel === 'matern' ? `Matérn (ν = ${g4(t.nu ?? 1.5)})` : t.kernel;
-  const pr = practicalRange(t.kernel, t.nu ?? 1.5);
+  const kernel = t.kernel === 'matern' ? `Matérn (ν = ${g4(t.nu ?? DEFAULT_MATERN_NU)})` : t.kernel;
+  const pr = practicalRange(t.kernel, t.nu ?? DEFAULT_MATERN_NU);
   const sd = `${g4(Math.sqrt(t.variance))}${valueUnit ? ' ' + valueUnit : ''}`;
   const u = lengthUnit ? ` ${lengthUnit}` : '';
   if (t.lengths) {

@@ -12,10 +12,9 @@
  *
  * PUBLIC API: covarianceOperator, isStationaryOnGrid, nonStationaryReason, CirculantProduct.
  */
-import { InputError } from '../errors.ts';
+import { assertNever, InputError } from '../errors.ts';
 import { cellCount, gridDimension, type Grid } from '../grid/grid.ts';
 import { matrix, matvec, type Matrix } from '../linalg/matrix.ts';
-import { assertNever } from '../linalg/operator.ts';
 import { covarianceMatrix } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import { circulantEmbedding, gridAxes, productPadding, stationaryCovariance } from './embedding.ts';
@@ -57,14 +56,10 @@ export function nonStationaryReason(grid: Grid, prior: PriorSpec): string | null
       case 'spherical':
         break;
       default:
-        return `terms[${k}].kernel ${String(assertNeverKernel(t.kernel))} is not known to be stationary`;
+        return `terms[${k}].kernel ${assertNever(t.kernel, 'kernel')} is not known to be stationary`;
     }
   }
   return null;
-}
-
-function assertNeverKernel(k: never): unknown {
-  return k;
 }
 
 /** True when Cm·x can go through circulant embedding (see {@link nonStationaryReason}). */

@@ -22,9 +22,8 @@
  * PUBLIC API: PathRequest, PATH_REQUESTS, FFT_MIN_CELLS, PathDecision, choosePosteriorPath,
  * posteriorWithPath.
  */
-import { InputError } from '../errors.ts';
+import { assertNever, InputError } from '../errors.ts';
 import { cellCount } from '../grid/grid.ts';
-import { assertNever } from '../linalg/operator.ts';
 import { nonStationaryReason } from '../fft/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';

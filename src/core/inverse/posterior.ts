@@ -16,11 +16,11 @@
  * var_i carries an absolute error of a few ε·Cm_ii: posterior std below about √(ε Cm_ii)·10 is
  * rounding noise (use the model-space form if such tiny posterior variances matter).
  */
-import { InputError, NotPositiveDefiniteError } from '../errors.ts';
+import { assertNever, InputError, NotPositiveDefiniteError } from '../errors.ts';
 import { cellCount } from '../grid/grid.ts';
 import { cholesky, choleskySolve, solveLower, solveLowerMatrix } from '../linalg/cholesky.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
-import { applyOperator, applyOperatorTranspose, assertNever, type Operator } from '../linalg/operator.ts';
+import { applyOperator, applyOperatorTranspose, type Operator } from '../linalg/operator.ts';
 import { columnSumsOfSquares, mirrorLowerToUpper, multiplyNT, symmetricProductNT, transposeOf } from '../linalg/products.ts';
 import { covarianceMatrix, meanVector } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';

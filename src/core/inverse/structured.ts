@@ -20,11 +20,11 @@
  * PUBLIC API: structuredProblem, prepareStructuredPosterior, structuredPosteriorStd,
  * structuredVarianceBlock, structuredPosteriorSummary, posteriorAuto.
  */
-import { InputError, NotPositiveDefiniteError } from '../errors.ts';
+import { assertNever, InputError, NotPositiveDefiniteError } from '../errors.ts';
 import { cellCount } from '../grid/grid.ts';
 import { cholesky, choleskySolve, solveLower, solveLowerMatrix } from '../linalg/cholesky.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
-import { applyOperator, assertNever, type Operator } from '../linalg/operator.ts';
+import { applyOperator, type Operator } from '../linalg/operator.ts';
 import { CirculantProduct, nonStationaryReason } from '../fft/covariance.ts';
 import { meanVector, validatePrior } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';

@@ -20,9 +20,9 @@
  * The reader returns the core's Operator union: coordinate → sparse, array → dense.
  */
 import { matrix, type Matrix } from '../linalg/matrix.ts';
-import { assertNever, type Operator } from '../linalg/operator.ts';
+import type { Operator } from '../linalg/operator.ts';
 import { sparseFromCoordinates, type SparseMatrix } from '../linalg/sparse.ts';
-import { formatValue } from '../errors.ts';
+import { assertNever, formatValue } from '../errors.ts';
 import { FileFormatError } from './errors.ts';
 import { decodeText } from './json.ts';
 import { parseNumberCell } from './csv.ts';

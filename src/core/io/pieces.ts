@@ -20,9 +20,9 @@
 import { cellCount, type Grid } from '../grid/grid.ts';
 import { covarianceDefect } from './covarianceCheck.ts';
 import type { Matrix } from '../linalg/matrix.ts';
-import { assertNever, operatorToDense, type Operator } from '../linalg/operator.ts';
+import { operatorToDense, type Operator } from '../linalg/operator.ts';
 import type { DataSpec, Problem } from '../problems/spec.ts';
-import { formatValue } from '../errors.ts';
+import { assertNever, formatValue } from '../errors.ts';
 import { checkFileSize, FileFormatError } from './errors.ts';
 import { parseCsv } from './csv.ts';
 import { decodeText } from './json.ts';
@@ -162,10 +162,8 @@ export function parseOperatorFile(f: NamedBytes): Operator {
       return parseMatrixMarket(f.name, f.bytes);
     case 'npy':
       return { kind: 'dense', matrix: npyToMatrix(f.name, parseNpy(f.name, f.bytes)) };
-    default: {
-      const never: never = format;
-      throw new Error(`unexpected format ${String(never)}`);
-    }
+    default:
+      return assertNever(format, 'format');
   }
 }
 

@@ -14,11 +14,11 @@
  * Unknown fields give warnings (and are dropped); an `angle` on an isotropic term and a `nu` on a
  * non-Matérn term are kept in the spec (for the exact round trip) but warned about: the core ignores them.
  */
+import { assertNever } from '../errors.ts';
 import type { Grid } from '../grid/grid.ts';
 import { cellCount } from '../grid/grid.ts';
 import { KERNEL_NAMES, type KernelName, type Term } from '../kernels/spec.ts';
 import type { MeanSpec, PriorSpec } from '../prior/spec.ts';
-import { assertNever } from '../linalg/operator.ts';
 import { fieldError, FileFormatError, type FileWarning } from './errors.ts';
 import { formatJson, JsonReader, parseJsonText } from './json.ts';
 

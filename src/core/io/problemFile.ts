@@ -20,10 +20,10 @@
 import { cellCount, type Grid } from '../grid/grid.ts';
 import { covarianceDefect } from './covarianceCheck.ts';
 import type { Matrix } from '../linalg/matrix.ts';
-import { assertNever, type Operator } from '../linalg/operator.ts';
+import type { Operator } from '../linalg/operator.ts';
 import { sparseFromCoordinates } from '../linalg/sparse.ts';
 import type { DataSpec, Problem } from '../problems/spec.ts';
-import { formatValue } from '../errors.ts';
+import { assertNever, formatValue } from '../errors.ts';
 import { baseName, FileFormatError, type FileWarning } from './errors.ts';
 import { formatJson, JsonReader, parseJsonText } from './json.ts';
 import { checkKindVersion } from './priorFile.ts';

@@ -8,7 +8,8 @@
  *   matern       2^{1−ν}/Γ(ν) (√(2ν)h)^ν K_ν(√(2ν)h)      ./matern.ts (Rasmussen & Williams 2006 eq. 4.14)
  *   spherical    1 − 1.5h + 0.5h³ for h < 1, else 0       ./spherical.ts
  */
-import type { KernelName } from './spec.ts';
+import { assertNever } from '../errors.ts';
+import { DEFAULT_MATERN_NU, type KernelName } from './spec.ts';
 import { EXPONENTIAL_PRACTICAL_RANGE, exponentialCorrelation } from './exponential.ts';
 import { GAUSSIAN_PRACTICAL_RANGE, gaussianCorrelation } from './gaussian.ts';
 import { maternCorrelationFunction } from './matern.ts';
@@ -21,9 +22,9 @@ export const PRACTICAL_RANGE_LEVEL = 0.05;
 
 /**
  * A fast evaluator ρ(h) for one kernel (constants precomputed; for Matérn the ν-dependent Bessel constants).
- * `nu` is used by 'matern' only (default 1.5); a Matérn ν that is not finite and > 0 throws RangeError.
+ * `nu` is used by 'matern' only (default {@link DEFAULT_MATERN_NU}); a Matérn ν that is not finite and > 0 throws RangeError.
  */
-export function correlationFunction(kernel: KernelName, nu = 1.5): CorrelationFunction {
+export function correlationFunction(kernel: KernelName, nu = DEFAULT_MATERN_NU): CorrelationFunction {
   switch (kernel) {
     case 'exponential':
       return exponentialCorrelation;
@@ -33,10 +34,8 @@ export function correlationFunction(kernel: KernelName, nu = 1.5): CorrelationFu
       return sphericalCorrelation;
     case 'matern':
       return maternCorrelationFunction(nu);
-    default: {
-      const never: never = kernel;
-      throw new RangeError(`correlationFunction: unknown kernel ${String(never)}`);
-    }
+    default:
+      return assertNever(kernel, 'kernel');
   }
 }
 
@@ -50,7 +49,7 @@ export function correlation(kernel: KernelName, h: number, nu?: number): number 
  * Exponential ln 20 and Gaussian √(2 ln 20) analytically, spherical by the cubic formula, Matérn by a
  * bracketed bisection on the monotone ρ_ν, run until the bracket cannot shrink (full double precision).
  */
-export function practicalRange(kernel: KernelName, nu = 1.5): number {
+export function practicalRange(kernel: KernelName, nu = DEFAULT_MATERN_NU): number {
   switch (kernel) {
     case 'exponential':
       return EXPONENTIAL_PRACTICAL_RANGE;
@@ -60,10 +59,8 @@ export function practicalRange(kernel: KernelName, nu = 1.5): number {
       return SPHERICAL_PRACTICAL_RANGE;
     case 'matern':
       return monotoneRoot(maternCorrelationFunction(nu), PRACTICAL_RANGE_LEVEL);
-    default: {
-      const never: never = kernel;
-      throw new RangeError(`practicalRange: unknown kernel ${String(never)}`);
-    }
+    default:
+      return assertNever(kernel, 'kernel');
   }
 }
 
@@ -136,9 +133,7 @@ export function kernelInfo(kernel: KernelName): KernelInfo {
         formula: 'ρ(h) = 1 − 1.5·h + 0.5·h³ for h < 1, 0 for h ≥ 1',
         source: 'Chilès & Delfiner (2012) §2.5',
       };
-    default: {
-      const never: never = kernel;
-      throw new RangeError(`kernelInfo: unknown kernel ${String(never)}`);
-    }
+    default:
+      return assertNever(kernel, 'kernel');
   }
 }

@@ -10,6 +10,9 @@ export type KernelName = 'exponential' | 'gaussian' | 'matern' | 'spherical';
 
 export const KERNEL_NAMES: readonly KernelName[] = ['exponential', 'gaussian', 'matern', 'spherical'];
 
+/** Matérn smoothness ν used when a matern term gives none (ν = 3/2: once mean-square differentiable). */
+export const DEFAULT_MATERN_NU = 1.5;
+
 export interface Term {
   readonly kernel: KernelName;
   /** Variance (sill contribution), > 0, in the quantity's unit squared. */
@@ -20,6 +23,6 @@ export interface Term {
   readonly lengths?: readonly [number, number];
   /** Rotation of the first axis, degrees counter-clockwise from +x (default 0). */
   readonly angle?: number;
-  /** Matérn smoothness ν > 0 (matern only). */
+  /** Matérn smoothness ν > 0 (matern only; {@link DEFAULT_MATERN_NU} when absent). */
   readonly nu?: number;
 }

@@ -1,6 +1,7 @@
 /**
  * The forward operator G (M data × N cells): dense or sparse, behind one set of products.
  */
+import { assertNever } from '../errors.ts';
 import { matrix, type Matrix } from './matrix.ts';
 import { denseTimesSparseTranspose, sparseTimesDense, type SparseMatrix } from './sparse.ts';
 import { multiply, multiplyNT } from './products.ts';
@@ -113,8 +114,4 @@ export function denseTimesOperatorTranspose(a: Matrix, g: Operator): Matrix {
     default:
       return assertNever(g);
   }
-}
-
-export function assertNever(x: never): never {
-  throw new Error(`unexpected variant: ${JSON.stringify(x)}`);
 }

@@ -7,9 +7,9 @@
  *
  * PUBLIC API: PoolTask, TaskPort, TaskRequest, TaskReply, portPool, answerTask.
  */
+import { assertNever } from '../errors.ts';
 import { runVarianceTask, type BlockPool, type VarianceTask } from './blocks.ts';
 import { ProductsThreadState, runProductsTask, type ProductsResult, type ProductsTask } from './products.ts';
-import { assertNever } from '../linalg/operator.ts';
 
 /** The task kinds a pool thread answers. */
 export type PoolTask = VarianceTask | ProductsTask;

@@ -15,6 +15,7 @@
  *   singular": about 10 of the 16 significant digits lost in solves) is common practice, no source.
  * - Plain-language warnings with stable codes (see {@link WARNING_CODES}).
  */
+import { DEFAULT_MATERN_NU } from '../kernels/spec.ts';
 import { cellCount, gridDimension, type Grid } from '../grid/grid.ts';
 import { cholesky } from '../linalg/cholesky.ts';
 import { lanczosExtremes, symmetricEigenvalues } from '../linalg/eigen.ts';
@@ -235,7 +236,7 @@ export function priorWarnings(grid: Grid, prior: PriorSpec): DiagnosticWarning[]
     } else {
       out.push({
         code: 'smooth-matern-long-length',
-        message: `${name}: a Matérn kernel with nu = ${term.nu ?? 1.5} and ${len} on a grid with spacing ${spacing}, without a sufficient nugget, is numerically singular (its eigenvalues span about ${spread}); add a nugget of at least ${fmt(cure)}, lower nu, or shorten the length.`,
+        message: `${name}: a Matérn kernel with nu = ${term.nu ?? DEFAULT_MATERN_NU} and ${len} on a grid with spacing ${spacing}, without a sufficient nugget, is numerically singular (its eigenvalues span about ${spread}); add a nugget of at least ${fmt(cure)}, lower nu, or shorten the length.`,
       });
     }
   });

@@ -5,8 +5,8 @@
  *   trend     m0_i = intercept + slope[0]·x_i (+ slope[1]·y_i in 2-D), absolute cell coordinates
  *             (origin included, see ../grid/grid.ts).
  */
+import { assertNever } from '../errors.ts';
 import { cellCoordinates, cellCount, type Grid } from '../grid/grid.ts';
-import { assertNever } from '../linalg/operator.ts';
 import type { MeanSpec, PriorSpec } from './spec.ts';
 import { validatePrior } from './validate.ts';
 

@@ -21,11 +21,11 @@
  * κ ≈ e^{π²a²/2} / 2, which passes 1e10 at a = √(2 ln(2·10¹⁰))/π ≈ 2.19 cells and 1/ε ≈ 4.5e15 at
  * a ≈ 2.73 cells (derived; checked against numpy eigvalsh in test/reference/prior_diagnostics.test.ts).
  */
+import { assertNever } from '../errors.ts';
 import { gridDimension, type Grid } from '../grid/grid.ts';
-import type { Term } from '../kernels/spec.ts';
+import { DEFAULT_MATERN_NU, type Term } from '../kernels/spec.ts';
 
 /** Default Matérn smoothness when `nu` is absent (the kernel module's default). */
-const DEFAULT_NU = 1.5;
 const ALIASES = 3;
 
 /** Inverse lattice quadratic form B⁻¹ (symmetric 2 × 2, or 1 × 1 stored in b00). */
@@ -66,7 +66,7 @@ export function logLatticeCondition(term: Term, grid: Grid): number | null {
       break;
     case 'matern':
     case 'exponential': {
-      const nu = term.kernel === 'exponential' ? 0.5 : (term.nu ?? DEFAULT_NU);
+      const nu = term.kernel === 'exponential' ? 0.5 : (term.nu ?? DEFAULT_MATERN_NU);
       const p = nu + d / 2;
       logS = (q) => -p * Math.log(2 * nu + q);
       break;
@@ -74,9 +74,7 @@ export function logLatticeCondition(term: Term, grid: Grid): number | null {
     case 'spherical':
       return null;
     default:
-      return ((k: never) => {
-        throw new Error(`unexpected kernel ${String(k)}`);
-      })(term.kernel);
+      return assertNever(term.kernel, 'kernel');
   }
   const { b00, b01, b11 } = latticeForm(term, grid);
   const logSymbol = (w0: number, w1: number): number => {

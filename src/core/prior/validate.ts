@@ -6,7 +6,7 @@
  * Decisions (documented here because they are policy, not mathematics):
  * - `nu` on a kernel other than `matern` is ignored, not an error (a user switching the kernel in
  *   the UI keeps the field); diagnostics report it with the warning code "nu-ignored".
- * - `matern` without `nu` uses the kernel module's default smoothness (1.5).
+ * - `matern` without `nu` uses DEFAULT_MATERN_NU (1.5, src/core/kernels/spec.ts).
  * - `angle` without `lengths` is allowed (it has no effect on an isotropic term) but must be finite.
  * - A term may not have both `length` and `lengths`; in 1-D only `length` is allowed.
  * - No terms and no (or zero) nugget is an error: the covariance would be the zero matrix.

@@ -12,14 +12,14 @@
  *
  *   log N(d; G m0, K) = −½ rᵀ K⁻¹ r − Σ log L_ii − (M/2) log 2π.
  */
-import { InputError, NotPositiveDefiniteError } from '../errors.ts';
+import { assertNever, InputError, NotPositiveDefiniteError } from '../errors.ts';
 import { nonStationaryReason } from '../fft/covariance.ts';
 import { structuredProblem, type StructuredProblem } from '../inverse/structured.ts';
 import { cellCount } from '../grid/grid.ts';
 import { cholesky, logDetFromCholesky, solveLower } from '../linalg/cholesky.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
 import { multiplyNT, symmetricProductNT } from '../linalg/products.ts';
-import { applyOperator, assertNever, operatorShape, operatorToDense, type Operator } from '../linalg/operator.ts';
+import { applyOperator, operatorShape, operatorToDense, type Operator } from '../linalg/operator.ts';
 import { covarianceMatrix, meanVector } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';

@@ -30,12 +30,11 @@
  * M = 256, crosshole demo: ≈ 440 ms against ≈ 17 ms per cell), so below that many variances the
  * factorisations are cheaper. Both paths agree to 1e-10 (test/core/tuning/evidenceMap.test.ts).
  */
-import { InputError } from '../errors.ts';
+import { assertNever, InputError } from '../errors.ts';
 import type { Term } from '../kernels/spec.ts';
 import { cholesky, logDetFromCholesky, solveLower, solveLowerMatrix } from '../linalg/cholesky.ts';
 import { symmetricEigen } from '../linalg/eigen.ts';
 import { matrix, matTvec, transpose, type Matrix } from '../linalg/matrix.ts';
-import { assertNever } from '../linalg/operator.ts';
 import { validatePrior } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';

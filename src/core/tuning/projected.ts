@@ -28,10 +28,11 @@
  *
  * PUBLIC API: TUNING_DENSE_LIMIT, TuningRoute, tuningRoute, structuredProjection, operatorGramSparse.
  */
+import { assertNever } from '../errors.ts';
 import { cellCount } from '../grid/grid.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
 import { multiplyNT } from '../linalg/products.ts';
-import { assertNever, type Operator } from '../linalg/operator.ts';
+import type { Operator } from '../linalg/operator.ts';
 import { nonStationaryReason } from '../fft/covariance.ts';
 import { computeBtPairs, finishBtRows, keepSpectra, matchingSpectra, structuredSetup, type StructuredProblem } from '../inverse/structured.ts';
 import type { PriorSpec } from '../prior/spec.ts';

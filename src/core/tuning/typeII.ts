@@ -31,7 +31,7 @@
  * positive definite the optimum is not a strict maximum (a flat direction) and the errors are NaN.
  */
 import { InputError, NotPositiveDefiniteError } from '../errors.ts';
-import type { Term } from '../kernels/spec.ts';
+import { DEFAULT_MATERN_NU, type Term } from '../kernels/spec.ts';
 import { cholesky, choleskySolve, solveLowerMatrix } from '../linalg/cholesky.ts';
 import { identity, matrix, type Matrix } from '../linalg/matrix.ts';
 import type { PriorSpec } from '../prior/spec.ts';
@@ -116,7 +116,7 @@ function rawValue(prior: PriorSpec, h: HyperParameter): number {
     case 'angle':
       return t.angle ?? 0;
     case 'nu':
-      return t.nu ?? 1.5;
+      return t.nu ?? DEFAULT_MATERN_NU;
     case 'nugget':
       return prior.nugget ?? 0;
   }
