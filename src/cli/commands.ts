@@ -165,9 +165,13 @@ const posterior: Command = {
   summary: 'posterior mean, standard deviation, residuals and log-evidence',
   usage: 'priorscope posterior --problem P.json --prior Q.json [--path auto|dense|fft] [--threads T] [--out FILE]',
   details:
-    'Prints {"mean": [N], "std": [N], "priorStd": [N], "predicted": [M], "residuals": [M], "chi2", "logEvidence",\n' +
+    'Prints {"mean": [N], "std": [N], "priorStd": [N], "predicted": [M], "residuals": [M], "chi2", "chi2Expected",\n' +
+    '"chi2Interval95": [lo, hi], "chi2TailProbability", "logEvidence",\n' +
     '"resolutionTrace", "dataCount", "parameterCount", "path": "dense" | "fft"}. residuals are normalised\n' +
     '((d − G m̃)/σ, or Ld⁻¹ (d − G m̃) for a full data covariance Cd = Ld Ldᵀ) and chi2 is their sum of squares.\n' +
+    'Under the model chi2 is not χ²_M: it is a weighted sum of χ²₁ terms (weights: eigenvalues of L⁻¹ Cd L⁻ᵀ,\n' +
+    'K = G Cm Gᵀ + Cd = L Lᵀ) with mean M − resolutionTrace. "chi2Expected" is that mean, "chi2Interval95" its\n' +
+    'central 95% interval, "chi2TailProbability" P(χ² ≥ chi2) (Imhof 1961 numerical inversion).\n' +
     'logEvidence is the natural log of N(d; G m0, G Cm Gᵀ + Cd), including −(M/2) log 2π.\n' +
     '--path auto (default) takes the FFT path (circulant embedding, no N × N matrix) for a stationary prior on a\n' +
     `regular grid of at least ${FFT_MIN_CELLS} cells and the dense path otherwise; "path" in the output says which ran. Both\n` +
@@ -200,6 +204,9 @@ const posterior: Command = {
         predicted: s.predicted,
         residuals: s.residuals,
         chi2: s.chi2,
+        chi2Expected: s.fitReference?.expected ?? null,
+        chi2Interval95: s.fitReference?.interval95 ?? null,
+        chi2TailProbability: s.fitReference?.upperTail ?? null,
         logEvidence: s.logEvidence,
         resolutionTrace: s.resolutionTrace,
         dataCount: s.dataCount,

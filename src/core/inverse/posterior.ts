@@ -28,6 +28,7 @@ import type { Problem } from '../problems/spec.ts';
 import { Random, validateSeed } from '../sampling/random.ts';
 import { chiSquareInterval } from './chisquare.ts';
 import { logEvidenceFromFactor } from './evidence.ts';
+import { dataFitReference, weightsFromWhitened } from './fitReference.ts';
 import type { PosteriorSummary } from './types.ts';
 
 /** The factorised posterior of one problem with a dense prior covariance. Treat as immutable. */
@@ -208,10 +209,11 @@ function normalisedResiduals(state: PosteriorFactors, predicted: Float64Array): 
 }
 
 /**
- * tr(K⁻¹ Cd) = ‖L⁻¹ S‖_F² with Cd = S Sᵀ (S = diag σ or S = Ld), since
- * tr(L⁻ᵀ L⁻¹ S Sᵀ) = tr((L⁻¹ S)ᵀ (L⁻¹ S)).
+ * X = L⁻¹ S with Cd = S Sᵀ (S = diag σ or S = Ld). tr(K⁻¹ Cd) = ‖X‖_F², since
+ * tr(L⁻ᵀ L⁻¹ S Sᵀ) = tr((L⁻¹ S)ᵀ (L⁻¹ S)); the eigenvalues of X Xᵀ are the weights of the data-fit
+ * reference (./fitReference.ts).
  */
-function traceKinvCd(state: PosteriorFactors): number {
+function whitenedNoise(state: PosteriorFactors): Matrix {
   const m = state.L.rows;
   let S: Matrix;
   if (state.Ld) S = state.Ld;
@@ -220,7 +222,11 @@ function traceKinvCd(state: PosteriorFactors): number {
     const sigma = state.problem.data.sigma!;
     for (let k = 0; k < m; k++) S.data[k * m + k] = sigma[k]!;
   }
-  const X = solveLowerMatrix(state.L, S);
+  return solveLowerMatrix(state.L, S);
+}
+
+/** ‖X‖_F². */
+function squaredNorm(X: Matrix): number {
   let s = 0;
   for (let i = 0; i < X.data.length; i++) s += X.data[i]! * X.data[i]!;
   return s;
@@ -233,8 +239,8 @@ export interface SummaryOptions {
 
 /**
  * Posterior mean, pointwise std, prior std, variance reduction, predicted data G m̃, normalised
- * residuals and χ², log evidence, the prior-predictive misfit rᵀ K⁻¹ r with its χ²_M interval, and
- * tr R.
+ * residuals and χ² with its reference distribution under the model (./fitReference.ts), log
+ * evidence, the prior-predictive misfit rᵀ K⁻¹ r with its χ²_M interval, and tr R.
  *
  * tr R: R = Cm Gᵀ K⁻¹ G, so tr R = tr(K⁻¹ G Cm Gᵀ) = tr(K⁻¹ (K − Cd)) = M − tr(K⁻¹ Cd)
  * (cyclic trace; our derivation).
@@ -263,6 +269,7 @@ export function posteriorSummary(state: PosteriorFactors, options: SummaryOption
   let misfit = 0;
   for (let k = 0; k < m; k++) misfit += r[k]! * alpha[k]!;
   const [lo, hi] = chiSquareInterval(m, 0.95);
+  const X = whitenedNoise(state);
   const summary: PosteriorSummary = {
     mean,
     std,
@@ -272,7 +279,8 @@ export function posteriorSummary(state: PosteriorFactors, options: SummaryOption
     residuals,
     chi2,
     logEvidence: logEvidenceFromFactor(L, r, alpha),
-    resolutionTrace: m - traceKinvCd(state),
+    resolutionTrace: m - squaredNorm(X),
+    fitReference: dataFitReference(weightsFromWhitened(X), chi2),
     dataMisfit: misfit,
     reducedMisfitInterval95: [lo / m, hi / m],
     dataCount: m,

@@ -30,6 +30,7 @@ import { meanVector, validatePrior } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
 import { chiSquareInterval } from './chisquare.ts';
+import { dataFitReference, weightsFromWhitened } from './fitReference.ts';
 import { posteriorSummary, preparePosterior } from './posterior.ts';
 import { VARIANCE_BLOCK } from './varianceBlock.ts';
 import { wasmVarianceBlock } from '../wasm/varianceBlock.ts';
@@ -520,6 +521,8 @@ export function structuredPosteriorSummary(state: StructuredPosteriorState, std?
   const X = solveLowerMatrix(L, ld);
   let fro = 0;
   for (const v of X.data) fro += v * v;
+  // The data-fit reference: weights = eig(X Xᵀ) = eig(L⁻¹ Cd L⁻ᵀ) (./fitReference.ts).
+  const fitReference = dataFitReference(weightsFromWhitened(X), chi2);
   const [lo, hi] = chiSquareInterval(m);
   const summary = {
     mean,
@@ -531,6 +534,7 @@ export function structuredPosteriorSummary(state: StructuredPosteriorState, std?
     chi2,
     logEvidence,
     resolutionTrace: m - fro,
+    fitReference,
     dataMisfit: rAlpha,
     reducedMisfitInterval95: [lo / m, hi / m] as const,
     dataCount: m,

@@ -3,6 +3,7 @@
  * PUBLIC API used by the worker, the CLI and the UI.
  */
 import type { Matrix } from '../linalg/matrix.ts';
+import type { DataFitReference } from './fitReference.ts';
 
 export interface PosteriorSummary {
   /** Posterior mean m̃ = m0 + Cm Gᵀ K⁻¹ (d − G m0), K = G Cm Gᵀ + Cd. */
@@ -19,6 +20,12 @@ export interface PosteriorSummary {
   readonly residuals: Float64Array;
   /** Σ residuals². */
   readonly chi2: number;
+  /**
+   * The distribution of chi2 under the model (a weighted sum of χ²₁ with weights eig(L⁻¹ Cd L⁻ᵀ),
+   * mean M − tr R; ./fitReference.ts): its expected value, central 95% interval and P(χ² ≥ chi2).
+   * Null for M = 0; optional so that other paths may omit it.
+   */
+  readonly fitReference?: DataFitReference | null;
   /** log N(d; G m0, K), natural log, including −(M/2) log 2π. */
   readonly logEvidence: number;
   /** tr R, R = Cm Gᵀ K⁻¹ G (effective number of parameters resolved). */

@@ -2,8 +2,8 @@
  * Closed-form prior-selection criteria for one (problem, prior): leave-one-out predictive log score,
  * the discrepancy principle as a scaling of the prior variance, and the prior predictive check.
  *
- * PUBLIC API: leaveOneOut, discrepancyScale, priorPredictiveCheck, priorCriteria,
- * CRITERIA_DIFFER_EXPLANATION.
+ * PUBLIC API: leaveOneOut, discrepancyScale (classical and expected-value forms), DISCREPANCY_FORM_WORDS,
+ * priorPredictiveCheck, priorCriteria, CRITERIA_DIFFER_EXPLANATION.
  *
  * Notation: r = d − G m0, K = G Cm Gᵀ + Cd = L Lᵀ, α = K⁻¹ r, Cd = Ld Ldᵀ.
  */
@@ -86,7 +86,25 @@ export function leaveOneOutFromFactor(problem: Problem, L: Matrix, r: Float64Arr
   return { logScore, contributions, mean, std, standardised };
 }
 
+/**
+ * Which target the discrepancy rule aims at. 'classical' (Morozov): χ² = M, the value χ² would have
+ * if the posterior mean were the truth; with the true prior it asks for a stiffer prior than the truth,
+ * because the mean also fits part of the noise. 'expected': χ² = its expected value under the scaled
+ * model, M − tr R(s) (M minus the resolved parameters; src/core/inverse/fitReference.ts), which the
+ * true prior meets on average.
+ */
+export type DiscrepancyForm = 'classical' | 'expected';
+
+/** One line per form for the UI: what the rescaling targets, in plain words. */
+export const DISCREPANCY_FORM_WORDS: Readonly<Record<DiscrepancyForm, string>> = {
+  classical:
+    'classical (Morozov): scales the prior until χ² = M, as if the posterior mean were the truth; with a correct prior this asks for a stiffer prior, because the mean also fits part of the noise',
+  expected:
+    'expected value: scales the prior until χ² equals its expected value under the scaled model, M minus the resolved parameters; a correct prior meets it on average',
+};
+
 export interface DiscrepancyResult {
+  readonly form: DiscrepancyForm;
   /**
    * 'found': χ²(s) = target at `scale`; 'mean-fits': even s → 0 gives χ² ≤ target (the prior mean
    * alone fits the data to the noise level, no positive scale is needed); 'unreachable': even s → ∞
@@ -99,6 +117,7 @@ export interface DiscrepancyResult {
   readonly prior: PriorSpec | null;
   /** χ² at the scale (or at the limit that was reached). */
   readonly chi2: number;
+  /** The χ² aimed at: M (classical), or M − tr R at the found scale (expected; at s = 1 otherwise). */
   readonly target: number;
   /** χ² at s → 0 and at s → ∞: the range any scale can give. */
   readonly chi2Range: readonly [number, number];
@@ -127,20 +146,92 @@ export function scalePrior(prior: PriorSpec, s: number): PriorSpec {
  *
  * strictly decreasing from Σ b² (s → 0) to Σ_{λ_k = 0} b² (s → ∞) (our derivation). The root is
  * found by bisection on log s (monotone, so bisection cannot fail) to relative precision 1e-13.
+ *
+ * The expected-value form (`form: 'expected'`): under the model with covariance s Cm, χ²(s) is a
+ * weighted sum of χ²₁ with weights 1/(1 + s λ_k) (the eigenvalues of L⁻¹ Cd L⁻ᵀ in the whitened
+ * frame above; src/core/inverse/fitReference.ts), so E χ²(s) = Σ_k 1/(1 + s λ_k) = M − tr R(s). The
+ * rule solves g(s) = χ²(s) − E χ²(s) = 0; E g(1) = 0 exactly when the data come from the prior as
+ * given, which is why it recovers s ≈ 1 then (checked by simulation). g runs from Σ b² − M (s → 0) to
+ * Σ_{λ=0} b² − #{λ = 0} (s → ∞); it need not be monotone, so the root is bracketed from s = 1 outwards
+ * (the first sign change met, in the direction g(1) points) and then bisected: the found scale is
+ * above 1 exactly when χ²(1) exceeds its expected value.
  */
 export function discrepancyScale(
   problem: Problem,
   prior: PriorSpec,
-  options: { readonly target?: number } & RouteOptions = {},
+  options: { readonly target?: number; readonly form?: DiscrepancyForm } & RouteOptions = {},
 ): DiscrepancyResult {
   const side = prepareDataSide(problem, options);
+  const space = priorDataSpace(side, prior);
+  if (options.form === 'expected') {
+    if (options.target !== undefined) throw new InputError('target', 'left out with the expected-value form (its target is M − tr R)', options.target);
+    return expectedDiscrepancy(whitenedByCd(side, space), prior);
+  }
   const target = options.target ?? side.dataCount;
   if (!(target > 0) || !Number.isFinite(target)) throw new InputError('target', 'a finite χ² target > 0', target);
-  return discrepancyFromSpace(side, priorDataSpace(side, prior), prior, target);
+  return classicalDiscrepancy(whitenedByCd(side, space), prior, target);
 }
 
-function discrepancyFromSpace(side: DataSide, space: PriorDataSpace, prior: PriorSpec, target: number): DiscrepancyResult {
-  const { lambda, b } = whitenedByCd(side, space);
+/** χ²(s) = Σ b²/(1 + sλ)² and E χ²(s) = Σ 1/(1 + sλ) in the whitened frame. */
+function chi2AndExpected(lambda: Float64Array, b: Float64Array, s: number): { chi2: number; expected: number } {
+  let chi2 = 0;
+  let expected = 0;
+  for (let k = 0; k < lambda.length; k++) {
+    const t = 1 + s * lambda[k]!;
+    chi2 += (b[k]! * b[k]!) / (t * t);
+    expected += 1 / t;
+  }
+  return { chi2, expected };
+}
+
+function expectedDiscrepancy(w: { lambda: Float64Array; b: Float64Array }, prior: PriorSpec): DiscrepancyResult {
+  const { lambda, b } = w;
+  const top = lambda.reduce((a, v) => Math.max(a, v), 0);
+  const g = (s: number): number => {
+    const v = chi2AndExpected(lambda, b, s);
+    return v.chi2 - v.expected;
+  };
+  let at0 = 0;
+  let atInf = 0;
+  let nullCount = 0;
+  for (let k = 0; k < lambda.length; k++) {
+    at0 += b[k]! * b[k]!;
+    if (lambda[k]! <= 1e-12 * top) {
+      atInf += b[k]! * b[k]!;
+      nullCount++;
+    }
+  }
+  const range: [number, number] = [at0, atInf];
+  const base = { form: 'expected' as const, chi2Range: range };
+  const at1 = chi2AndExpected(lambda, b, 1);
+  // Search outwards from s = 1 for the first sign change, up to 30 decades each way.
+  let lo = 0;
+  let hi = 0;
+  if (at1.chi2 > at1.expected) {
+    while (g(Math.exp(hi)) > 0) {
+      hi += Math.LN10;
+      if (hi > 30 * Math.LN10) return { ...base, status: 'unreachable', scale: Number.NaN, prior: null, chi2: atInf, target: nullCount };
+    }
+    lo = hi - Math.LN10;
+  } else {
+    while (g(Math.exp(lo)) <= 0) {
+      lo -= Math.LN10;
+      if (lo < -30 * Math.LN10) return { ...base, status: 'mean-fits', scale: Number.NaN, prior: null, chi2: at0, target: lambda.length };
+    }
+    hi = lo + Math.LN10;
+  }
+  for (let it = 0; it < 200 && hi - lo > 1e-13; it++) {
+    const mid = 0.5 * (lo + hi);
+    if (g(Math.exp(mid)) > 0) lo = mid;
+    else hi = mid;
+  }
+  const s = Math.exp(0.5 * (lo + hi));
+  const at = chi2AndExpected(lambda, b, s);
+  return { ...base, status: 'found', scale: s, prior: scalePrior(prior, s), chi2: at.chi2, target: at.expected };
+}
+
+function classicalDiscrepancy(w: { lambda: Float64Array; b: Float64Array }, prior: PriorSpec, target: number): DiscrepancyResult {
+  const { lambda, b } = w;
   const top = lambda.reduce((a, v) => Math.max(a, v), 0);
   const chi2 = (s: number): number => {
     let q = 0;
@@ -158,8 +249,8 @@ function discrepancyFromSpace(side: DataSide, space: PriorDataSpace, prior: Prio
     if (lambda[k]! <= 1e-12 * top) atInf += b[k]! * b[k]!;
   }
   const range: [number, number] = [at0, atInf];
-  if (at0 <= target) return { status: 'mean-fits', scale: Number.NaN, prior: null, chi2: at0, target, chi2Range: range };
-  if (atInf >= target) return { status: 'unreachable', scale: Number.NaN, prior: null, chi2: atInf, target, chi2Range: range };
+  if (at0 <= target) return { form: 'classical', status: 'mean-fits', scale: Number.NaN, prior: null, chi2: at0, target, chi2Range: range };
+  if (atInf >= target) return { form: 'classical', status: 'unreachable', scale: Number.NaN, prior: null, chi2: atInf, target, chi2Range: range };
   // Bracket in log s, starting from s = 1 (the prior as given).
   let lo = 0;
   let hi = 0;
@@ -176,7 +267,7 @@ function discrepancyFromSpace(side: DataSide, space: PriorDataSpace, prior: Prio
     else hi = mid;
   }
   const s = Math.exp(0.5 * (lo + hi));
-  return { status: 'found', scale: s, prior: scalePrior(prior, s), chi2: chi2(s), target, chi2Range: range };
+  return { form: 'classical', status: 'found', scale: s, prior: scalePrior(prior, s), chi2: chi2(s), target, chi2Range: range };
 }
 
 /** Eigenvalues λ of Ld⁻¹ G Cm Gᵀ Ld⁻ᵀ (clamped at 0) and b = Uᵀ Ld⁻¹ r. */
@@ -241,7 +332,10 @@ export function predictiveFromStatistic(q: number, m: number): PriorPredictiveCh
 export interface PriorCriteria {
   readonly logEvidence: number;
   readonly leaveOneOut: LeaveOneOut;
+  /** Classical (Morozov) form: χ² = M. */
   readonly discrepancy: DiscrepancyResult;
+  /** Expected-value form: χ² = M − tr R. */
+  readonly discrepancyExpected: DiscrepancyResult;
   readonly priorPredictive: PriorPredictiveCheck;
   readonly explanation: string;
 }
@@ -253,10 +347,12 @@ export interface PriorCriteria {
 export function priorCriteria(problem: Problem, prior: PriorSpec, options: RouteOptions = {}): PriorCriteria {
   const side = prepareDataSide(problem, options);
   const ev = logEvidenceOf(side, prior);
+  const whitened = whitenedByCd(side, ev.space);
   return {
     logEvidence: ev.logDensity,
     leaveOneOut: leaveOneOutFromFactor(problem, ev.factor, ev.space.residual),
-    discrepancy: discrepancyFromSpace(side, ev.space, prior, side.dataCount),
+    discrepancy: classicalDiscrepancy(whitened, prior, side.dataCount),
+    discrepancyExpected: expectedDiscrepancy(whitened, prior),
     priorPredictive: predictiveFromStatistic(ev.quadratic, side.dataCount),
     explanation: CRITERIA_DIFFER_EXPLANATION,
   };

@@ -11,6 +11,7 @@ export { applyHyperParameters, evidenceGradient, hyperParameters, hyperParameter
 export type { EvidenceAndGradient, FittedParameter, HyperParameter, MaximiseOptions, TypeIIResult } from './typeII.ts';
 export {
   CRITERIA_DIFFER_EXPLANATION,
+  DISCREPANCY_FORM_WORDS,
   discrepancyScale,
   leaveOneOut,
   leaveOneOutFromFactor,
@@ -19,6 +20,6 @@ export {
   priorPredictiveCheck,
   scalePrior,
 } from './criteria.ts';
-export type { DiscrepancyResult, LeaveOneOut, PriorCriteria, PriorPredictiveCheck } from './criteria.ts';
+export type { DiscrepancyForm, DiscrepancyResult, LeaveOneOut, PriorCriteria, PriorPredictiveCheck } from './criteria.ts';
 export { BAND_LEVELS, calibrate, calibrationTable } from './calibration.ts';
 export type { CalibrationOptions, CalibrationResult, CalibrationTable } from './calibration.ts';

@@ -83,6 +83,20 @@ describe('discrepancy principle', () => {
     const chi2 = posteriorSummary(preparePosterior(p, d.prior!)).chi2;
     expect(Math.abs(chi2 - 14)).toBeLessThanOrEqual(1e-8 * 14);
   });
+  it('expected-value form with a full Cd: at the found scale the posterior module’s χ² equals its expected value M − tr R', () => {
+    const rng = new Random(57);
+    const grid: Grid = { shape: [30], spacing: [1] };
+    const operator = pointOperator(Array.from({ length: 14 }, (_, k) => 2 * k + 1), 30);
+    const values = simulateData(operator, drawTruth(grid, prior, rng), new Float64Array(14).fill(0.1), rng);
+    const p = withCorrelatedErrors({ grid, operator, data: { values, sigma: new Float64Array(14).fill(0.1) } }, 0.1);
+    const d = discrepancyScale(p, prior, { form: 'expected' });
+    expect(d.form).toBe('expected');
+    expect(d.status).toBe('found');
+    const s = posteriorSummary(preparePosterior(p, d.prior!));
+    expect(Math.abs(s.chi2 - (14 - s.resolutionTrace))).toBeLessThanOrEqual(1e-8 * 14);
+    expect(Math.abs(d.target - s.fitReference!.expected)).toBeLessThanOrEqual(1e-8 * 14);
+    expect(() => discrepancyScale(p, prior, { form: 'expected', target: 3 })).toThrow(/^target must be left out with the expected-value form/);
+  });
   it('a custom target is met', () => {
     const p = smallProblem(53, prior, 25, 14, 0.1);
     const d = discrepancyScale(p, prior, { target: 8 });
