@@ -9,11 +9,7 @@ import { FitScreen, PosteriorScreen, PriorScreen, ProblemScreen, RealisationsScr
 import { TABS, type TabId } from './store.ts';
 import { SelectScreen } from './select/SelectScreen.tsx';
 import { SessionBar } from './session/SessionBar.tsx';
-
-/** Shown in the footer at all times. */
-export const CAUTION =
-  'Results depend on the forward model, the data errors and the chosen prior. Where they inform decisions about ' +
-  'safety, resources or regulated matters, they need review by a qualified professional under local codes and practice.';
+import { CAUTION } from './caution.ts';
 
 function Screen({ tab }: { tab: TabId }) {
   switch (tab) {

@@ -14,6 +14,7 @@ import type { Channel, PosteriorPartial, PosteriorResult, ProblemView } from '..
 import { createSelectSlice, type SelectSlice } from './select/slice.ts';
 import type { Problem } from '../core/problems/spec.ts';
 import { createSessionSlice, type SessionSlice } from './session/slice.ts';
+import { defaultPrior, defaultTerm, DRAW_COUNT, emptyResults } from './defaults.ts';
 
 /** The subset of WorkerClient the store uses (a fake in unit tests). */
 export interface ClientPort {
@@ -42,7 +43,6 @@ export const TABS: readonly { id: TabId; label: string }[] = [
 
 /** Largest N for which the covariance heat map is requested. */
 export const COVARIANCE_VIEW_CELLS = 400;
-export const DRAW_COUNT = 6;
 
 type ResultChannel = Exclude<Channel, 'problem'>;
 
@@ -113,19 +113,6 @@ export interface Actions {
 
 export type WorkbenchState = ProblemSlice & PriorSlice & ResultsSlice & ViewSlice & Actions & SessionSlice & SelectSlice;
 export type WorkbenchStore = StoreApi<WorkbenchState>;
-
-export const emptyResults = (): Omit<ResultsSlice, 'progress'> => ({
-  posterior: null,
-  posteriorPartial: null,
-  diagnostics: null,
-  priorDraws: null,
-  posteriorDraws: null,
-  resolution: null,
-  covariance: null,
-  errors: {},
-  busy: {},
-  computedFor: {},
-});
 
 /** Performance mark names read by the UI benchmark. */
 export const MARK_PARAM_CHANGE = 'ps:param-change';
@@ -355,21 +342,4 @@ export function createWorkbenchStore(client: ClientPort, initial: { demoId: stri
     store.getState().refresh();
   });
   return store;
-}
-
-/** A prior to start from when a problem brings none: one exponential term, a tenth of the extent. */
-export function defaultPrior(problem: ProblemView): PriorSpec {
-  return { mean: { constant: 0 }, terms: [defaultTerm(problem)], nugget: 0 };
-}
-
-export function defaultTerm(problem: ProblemView): Term {
-  const g = problem.grid;
-  const extent = Math.max(...g.shape.map((n, k) => n * g.spacing[k]!));
-  const length = roundTo2(extent / 10);
-  return { kernel: 'exponential', variance: 1, length };
-}
-
-function roundTo2(x: number): number {
-  const p = 10 ** Math.floor(Math.log10(x));
-  return Math.round((x / p) * 10) / 10 * p;
 }

@@ -18,6 +18,7 @@ import type { Problem } from '../core/problems/spec.ts';
 import type { Grid } from '../core/grid/grid.ts';
 import type { Matrix } from '../core/linalg/matrix.ts';
 import type { PosteriorSummary } from '../core/inverse/types.ts';
+import type { RequestBase } from './requestBase.ts';
 import { isTuningKind, TUNING_KINDS, type TuningKind, type TuningRequest, type TuningResultMap } from './tuningProtocol.ts';
 
 /** What the main thread needs to draw a problem (the operator itself stays in the worker). */
@@ -79,10 +80,6 @@ export interface PosteriorPartial {
   readonly parameterCount: number;
   /** As in {@link PosteriorResult.chi2Interval}. */
   readonly chi2Interval: readonly [number, number] | null;
-}
-
-export interface RequestBase {
-  readonly id: number;
 }
 
 /** Requests of one channel supersede each other (latest wins). */

@@ -17,7 +17,7 @@ import type {
   ProfileParameter,
   TypeIIResult,
 } from '../core/tuning/index.ts';
-import type { RequestBase } from './protocol.ts';
+import type { RequestBase } from './requestBase.ts';
 
 export const TUNING_KINDS = ['evidenceMap', 'evidenceProfile', 'typeII', 'criteria', 'calibration', 'candidates', 'crossCalibration'] as const;
 export type TuningKind = (typeof TUNING_KINDS)[number];

@@ -4,7 +4,7 @@
  */
 import Plotly from 'plotly.js-dist-min';
 import type { WorkbenchStore } from '../store.ts';
-import { CAUTION } from '../App.tsx';
+import { CAUTION } from '../caution.ts';
 import { axes2D, axis1D, band, bandTrace, COLOURS, commonRange, MAP_SCALE, rowOf, toRows2D, Z68, Z95, type Trace } from '../traces.ts';
 import { gridDimension } from '../../core/grid/grid.ts';
 import { download } from './download.ts';

@@ -17,7 +17,8 @@ import { parseOffThread } from '../io/parseClient.ts';
 import type { ParseResult } from '../io/parse.ts';
 import { emptyHistory, record, redo, undo, type History } from './history.ts';
 import { DEMO_CHOICES, DEFAULT_DEMO } from '../demos.ts';
-import { defaultPrior, DRAW_COUNT, emptyResults, type ClientPort, type TabId, type WorkbenchState } from '../store.ts';
+import { defaultPrior, DRAW_COUNT, emptyResults } from '../defaults.ts';
+import type { ClientPort, TabId, WorkbenchState } from '../store.ts';
 
 export interface UserProblem {
   readonly problem: Problem;

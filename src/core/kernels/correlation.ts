@@ -9,13 +9,11 @@
  *   spherical    1 − 1.5h + 0.5h³ for h < 1, else 0       ./spherical.ts
  */
 import { assertNever } from '../errors.ts';
-import { DEFAULT_MATERN_NU, type KernelName } from './spec.ts';
+import { type CorrelationFunction, DEFAULT_MATERN_NU, type KernelName } from './spec.ts';
 import { EXPONENTIAL_PRACTICAL_RANGE, exponentialCorrelation } from './exponential.ts';
 import { GAUSSIAN_PRACTICAL_RANGE, gaussianCorrelation } from './gaussian.ts';
 import { maternCorrelationFunction } from './matern.ts';
 import { SPHERICAL_PRACTICAL_RANGE, sphericalCorrelation } from './spherical.ts';
-
-export type CorrelationFunction = (h: number) => number;
 
 /** The correlation level that defines the practical range. */
 export const PRACTICAL_RANGE_LEVEL = 0.05;

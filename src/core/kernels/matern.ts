@@ -21,7 +21,7 @@
  * at the end, so large z underflows gracefully to 0.
  * ρ(0) = 1 exactly (also when √(2ν)h underflows to 0); results are clamped to [0, 1] (rounding can otherwise give 1 + 1 ulp near h = 0).
  */
-import type { CorrelationFunction } from './correlation.ts';
+import type { CorrelationFunction } from './spec.ts';
 import { besselOrder, temmeContinuedFraction, temmeSeries } from '../special/bessel.ts';
 import { gamma } from '../special/gamma.ts';
 

@@ -10,6 +10,9 @@ export type KernelName = 'exponential' | 'gaussian' | 'matern' | 'spherical';
 
 export const KERNEL_NAMES: readonly KernelName[] = ['exponential', 'gaussian', 'matern', 'spherical'];
 
+/** A correlation ρ(h) at scaled distance h ≥ 0 (ρ(0) = 1). */
+export type CorrelationFunction = (h: number) => number;
+
 /** Matérn smoothness ν used when a matern term gives none (ν = 3/2: once mean-square differentiable). */
 export const DEFAULT_MATERN_NU = 1.5;
 

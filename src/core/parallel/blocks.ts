@@ -19,7 +19,7 @@ import { InputError } from '../errors.ts';
 import type { Matrix } from '../linalg/matrix.ts';
 import { VARIANCE_BLOCK } from '../inverse/varianceBlock.ts';
 import { wasmVarianceBlock } from '../wasm/varianceBlock.ts';
-import type { ProductsResult, ProductsTask } from './products.ts';
+import type { ProductsResult, ProductsTask } from './tasks.ts';
 
 /** One unit of work, plain data (structured-clone safe; the Float64Array buffers may be transferred). */
 export interface VarianceTask {

@@ -9,7 +9,8 @@
  */
 import { assertNever } from '../errors.ts';
 import { runVarianceTask, type BlockPool, type VarianceTask } from './blocks.ts';
-import { ProductsThreadState, runProductsTask, type ProductsResult, type ProductsTask } from './products.ts';
+import { ProductsThreadState, runProductsTask } from './products.ts';
+import type { ProductsResult, ProductsTask } from './tasks.ts';
 
 /** The task kinds a pool thread answers. */
 export type PoolTask = VarianceTask | ProductsTask;

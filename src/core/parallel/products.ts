@@ -44,32 +44,7 @@ import {
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
 import type { BlockPool } from './blocks.ts';
-
-/** One share of the Bᵀ rows, plain data (structured-clone safe). */
-export interface ProductsTask {
-  readonly kind: 'products';
-  /** Identifies the problem (G, grid) across calls, so a thread can keep its spectra and G. */
-  readonly token: number;
-  readonly grid: Grid;
-  readonly prior: PriorSpec;
-  /** G; null when the receiving thread already holds it under `token`. */
-  readonly operator: Operator | null;
-  /** Data rows of this share, pair p = (rows[2p], rows[2p+1]), in pairOrder. */
-  readonly rows: Int32Array;
-  /** Bytes this share may keep as cached spectra. */
-  readonly cacheBytes: number;
-  /** M × N Bᵀ to write rows in place (row rows[i] at rows[i]·N); null: return the rows. */
-  readonly out: SharedArrayBuffer | null;
-}
-
-export interface ProductsResult {
-  /** rows.length × N rows of Bᵀ in the task's row order, when the task had no `out`. */
-  readonly rows: Float64Array | null;
-  readonly spectraCached: boolean;
-  /** Milliseconds in this thread (spectra, products without spectra, incl. profile and nugget). */
-  readonly spectra: number;
-  readonly products: number;
-}
+import type { ProductsResult, ProductsTask } from './tasks.ts';
 
 interface ThreadCache {
   readonly token: number;

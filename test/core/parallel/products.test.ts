@@ -20,8 +20,8 @@ import {
   ProductsThreadState,
   runProductsTask,
   type ParallelProductsOptions,
-  type ProductsTask,
 } from '../../../src/core/parallel/products.ts';
+import type { ProductsTask } from '../../../src/core/parallel/tasks.ts';
 import type { PriorSpec } from '../../../src/core/prior/spec.ts';
 import type { Problem } from '../../../src/core/problems/spec.ts';
 import { Random } from '../../../src/core/sampling/random.ts';

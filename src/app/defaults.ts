@@ -1,0 +1,43 @@
+/**
+ * Starting values of the workbench store (./store.ts) that the session slice (./session/slice.ts)
+ * also needs: a module the store imports and that imports no slice, so store and slices need not
+ * import each other's values.
+ */
+import type { Term } from '../core/kernels/spec.ts';
+import type { PriorSpec } from '../core/prior/spec.ts';
+import type { ProblemView } from '../worker/protocol.ts';
+import type { ResultsSlice } from './store.ts';
+
+/** Realisations drawn per request (prior and posterior). */
+export const DRAW_COUNT = 6;
+
+/** The results slice with nothing computed (progress is kept as it is). */
+export const emptyResults = (): Omit<ResultsSlice, 'progress'> => ({
+  posterior: null,
+  posteriorPartial: null,
+  diagnostics: null,
+  priorDraws: null,
+  posteriorDraws: null,
+  resolution: null,
+  covariance: null,
+  errors: {},
+  busy: {},
+  computedFor: {},
+});
+
+/** A prior to start from when a problem brings none: one exponential term, a tenth of the extent. */
+export function defaultPrior(problem: ProblemView): PriorSpec {
+  return { mean: { constant: 0 }, terms: [defaultTerm(problem)], nugget: 0 };
+}
+
+export function defaultTerm(problem: ProblemView): Term {
+  const g = problem.grid;
+  const extent = Math.max(...g.shape.map((n, k) => n * g.spacing[k]!));
+  const length = roundTo2(extent / 10);
+  return { kernel: 'exponential', variance: 1, length };
+}
+
+function roundTo2(x: number): number {
+  const p = 10 ** Math.floor(Math.log10(x));
+  return Math.round((x / p) * 10) / 10 * p;
+}
