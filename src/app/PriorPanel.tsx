@@ -6,6 +6,7 @@ import { gridDimension } from '../core/grid/grid.ts';
 import { useWb } from './context.ts';
 import { LogSlider, NumberField } from './controls.tsx';
 import { noteInteraction } from './interaction.ts';
+import { axisNames } from './labels.ts';
 import type { ProblemView } from '../worker/protocol.ts';
 
 /** Kernel labels and the correlation formula each one stands for (h = scaled distance). */
@@ -98,6 +99,7 @@ function MeanEditor({ mean, problem }: { mean: MeanSpec; problem: ProblemView })
   const lenUnit = problem.grid.unit ?? '';
   const dim = gridDimension(problem.grid);
   const kind = 'constant' in mean ? 'constant' : 'trend' in mean ? 'trend' : 'values';
+  const axes = axisNames(problem.grid);
   return (
     <fieldset>
       <legend>Mean m₀</legend>
@@ -106,7 +108,7 @@ function MeanEditor({ mean, problem }: { mean: MeanSpec; problem: ProblemView })
         <select
           data-testid="mean-kind"
           value={kind}
-          title="Constant m₀ = c, or linear trend m₀(x, y) = a + b·x (+ c·y)"
+          title={`Constant m₀ = c, or linear trend m₀ = a + b·${axes[0]}${dim === 2 ? ` + c·${axes[1]}` : ''}`}
           onChange={(e) => {
             const v = e.target.value;
             if (v === 'constant') setMean({ constant: 'trend' in mean ? mean.trend.intercept : 0 });
@@ -138,7 +140,7 @@ function MeanEditor({ mean, problem }: { mean: MeanSpec; problem: ProblemView })
             label="Intercept a"
             value={mean.trend.intercept}
             unit={unit}
-            tip="m₀(x, y) = a + b·x + c·y, at absolute coordinates"
+            tip={`m₀ = a + b·${axes[0]}${dim === 2 ? ` + c·${axes[1]}` : ''}, at absolute coordinates`}
             testId="mean-intercept"
             validate={() => null}
             onCommit={(v) => setMean({ trend: { ...mean.trend, intercept: v } })}
@@ -146,9 +148,9 @@ function MeanEditor({ mean, problem }: { mean: MeanSpec; problem: ProblemView })
           {mean.trend.slope.map((b, k) => (
             <NumberField
               key={k}
-              label={k === 0 ? 'Slope b (x)' : 'Slope c (y)'}
+              label={k === 0 ? `Slope b (${axes[0]})` : `Slope c (${axes[1]})`}
               value={b}
-              unit={`${unit}/${lenUnit}`}
+              unit={unit && lenUnit ? `${unit}/${lenUnit}` : unit ? `${unit} per length unit` : lenUnit ? `per ${lenUnit}` : ''}
               tip="Change of m₀ per unit distance"
               testId={`mean-slope-${k}`}
               validate={() => null}
@@ -176,6 +178,8 @@ function TermEditor({ index, term, count, problem, refVar }: { index: number; te
   const lenUnit = problem.grid.unit ?? '';
   const [lo, hi] = lengthRange(problem);
   const dim = gridDimension(problem.grid);
+  const [a0, a1 = 'y'] = axisNames(problem.grid);
+  const angleTip = `θ in degrees, turning from +${a0} towards +${a1} to the first axis of the ellipse. Maps draw ${a1} increasing downwards, so on screen a positive θ tilts the ellipse clockwise (down to the right).`;
   const t = `term-${index}`;
   return (
     <li className="term" data-testid={t} aria-label={`Term ${index + 1}`}>
@@ -254,7 +258,7 @@ function TermEditor({ index, term, count, problem, refVar }: { index: number; te
             onChange={(v) => updateTerm(index, { lengths: [term.lengths![0], v] })}
           />
           <div className="log-slider">
-            <label htmlFor={`${t}-angle`} title="θ, degrees counter-clockwise from +x to the first axis">
+            <label htmlFor={`${t}-angle`} title={angleTip}>
               Angle θ
             </label>
             <input
@@ -264,7 +268,7 @@ function TermEditor({ index, term, count, problem, refVar }: { index: number; te
               max={90}
               step={1}
               value={term.angle ?? 0}
-              title="θ, degrees counter-clockwise from +x to the first axis"
+              title={angleTip}
               data-testid={`${t}-angle-slider`}
               onChange={(e) => {
                 noteInteraction();
@@ -275,7 +279,7 @@ function TermEditor({ index, term, count, problem, refVar }: { index: number; te
               label="Angle θ"
               value={term.angle ?? 0}
               unit="°"
-              tip="θ, degrees counter-clockwise from +x to the first axis"
+              tip={angleTip}
               testId={`${t}-angle-input`}
               compact
               validate={(v) => (v < -180 || v > 180 ? 'Angle must be between −180° and 180°' : null)}

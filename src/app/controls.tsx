@@ -1,6 +1,19 @@
 /** Form controls: a log-scale slider paired with a typed numeric input, and a plain number field. */
 import { useEffect, useId, useState } from 'react';
 import { noteInteraction } from './interaction.ts';
+import { formatNumber } from '../core/format.ts';
+
+/** Significant digits a number field shows (the stored value keeps all of its digits until edited). */
+export const FIELD_DIGITS = 4;
+
+/**
+ * The text a number field shows for `value`: integers below 1e15 in full (seeds, cell indices),
+ * anything else with {@link FIELD_DIGITS} significant digits, the exponent always kept.
+ */
+export function fieldText(value: number): string {
+  if (Number.isInteger(value) && Math.abs(value) < 1e15) return String(value);
+  return formatNumber(value, FIELD_DIGITS);
+}
 
 /** Slider positions per decade-range (integer steps keep keyboard arrows useful). */
 const STEPS = 400;
@@ -39,14 +52,20 @@ interface NumberFieldProps {
 /** A typed numeric input that commits on Enter or when it loses focus; invalid text is explained. */
 export function NumberField({ label, value, unit, tip, testId, validate, onCommit, step, compact }: NumberFieldProps) {
   const id = useId();
-  const [draft, setDraft] = useState(String(value));
+  const shown = fieldText(value);
+  const [draft, setDraft] = useState(shown);
   const [error, setError] = useState<string | null>(null);
   useEffect(() => {
-    setDraft(String(value));
+    setDraft(fieldText(value));
     setError(null);
   }, [value]);
   const commit = () => {
     const text = draft.trim();
+    // Unedited: keep the stored value with all of its digits (the field shows it rounded).
+    if (text === shown) {
+      setError(null);
+      return;
+    }
     const v = Number(text);
     const msg = text === '' || !Number.isFinite(v) ? `${label} must be a number, got "${text}"` : validate(v);
     if (msg) {
@@ -74,7 +93,7 @@ export function NumberField({ label, value, unit, tip, testId, validate, onCommi
         onKeyDown={(e) => {
           if (e.key === 'Enter') commit();
           if (e.key === 'Escape') {
-            setDraft(String(value));
+            setDraft(shown);
             setError(null);
           }
         }}
@@ -119,7 +138,7 @@ export function LogSlider({ label, value, min, max, unit, tip, testId, onChange,
         step={1}
         value={pos}
         title={tip}
-        aria-valuetext={`${value} ${unit}`}
+        aria-valuetext={`${fieldText(value)} ${unit}`.trim()}
         data-testid={`${testId}-slider`}
         onChange={(e) => {
           noteInteraction();

@@ -28,25 +28,30 @@ import {
 } from './traces.ts';
 import type { ProblemView } from '../worker/protocol.ts';
 import { bandsState, bandsText, shownPosterior } from './posteriorView.ts';
+import { axisLabel, axisNames, offsetLabel, orientationNote, withUnit } from './labels.ts';
+import { escapePlotText } from './plotText.ts';
+import { formatNumber } from '../core/format.ts';
 
-/** Unit of the data values as the problem states it (`data.unit`), else a neutral label. */
-export function dataUnit(p: ProblemView): string {
-  return p.dataUnit || 'data units';
+/** "d (ms)", or "d" when the data have no unit. */
+function dLabel(p: ProblemView): string {
+  return withUnit('d', p.dataUnit);
 }
 
 function qLabel(p: ProblemView): string {
-  return `${p.quantity.name}${p.quantity.unit ? ` (${p.quantity.unit})` : ''}`;
+  return withUnit(p.quantity.name, p.quantity.unit);
 }
 
 function xLabel(p: ProblemView, k = 0): string {
-  const names = gridDimension(p.grid) === 2 ? ['x', 'depth'] : ['depth'];
-  return `${names[k]} (${p.grid.unit ?? 'grid units'})`;
+  return axisLabel(p.grid, k);
 }
 
-/** Layout of a 2-D map: equal aspect, depth downwards (both 2-D demos have depth as y). */
-function mapLayout(p: ProblemView, title: string): Record<string, unknown> {
+/**
+ * Layout of a 2-D map: equal aspect, the second axis increasing downwards (one convention on every
+ * 2-D plot, the correlation map included; ./labels.ts orientationNote states it under the title).
+ */
+export function mapLayout(p: ProblemView, title: string): Record<string, unknown> {
   return {
-    title: { text: title, font: { size: 12 } },
+    title: { text: `${title}<br><span style="font-size:10px">${escapePlotText(orientationNote(p.grid))}</span>`, font: { size: 12 } },
     xaxis: { title: { text: xLabel(p, 0) }, constrain: 'domain' },
     yaxis: { title: { text: xLabel(p, 1) }, autorange: 'reversed', scaleanchor: 'x', constrain: 'domain' },
     margin: { l: 56, r: 10, t: 30, b: 42 },
@@ -62,7 +67,7 @@ function heat(p: ProblemView, field: ArrayLike<number>, name: string, extra: Tra
     z: toRows2D(p.grid, field),
     colorscale: MAP_SCALE,
     name,
-    hovertemplate: `x %{x}<br>depth %{y}<br>${name} %{z:.4g}<extra></extra>`,
+    hovertemplate: `${hoverName(axisNames(p.grid)[0]!)} %{x}<br>${hoverName(axisNames(p.grid)[1]!)} %{y}<br>${hoverName(name)} %{z:.4g}<extra></extra>`,
     colorbar: { thickness: 10, len: 0.9 },
     ...extra,
   };
@@ -93,7 +98,7 @@ export function ProblemScreen() {
       p && {
         title: { text: 'Data with ±1σ error bars', font: { size: 12 } },
         xaxis: { title: { text: 'datum number' } },
-        yaxis: { title: { text: `d (${dataUnit(p)})` } },
+        yaxis: { title: { text: dLabel(p) } },
       },
     [p],
   );
@@ -110,7 +115,7 @@ export function ProblemScreen() {
         : {
             title: { text: 'Sensitivity: column sums Σᵢ|Gᵢⱼ|', font: { size: 12 } },
             xaxis: { title: { text: xLabel(p) } },
-            yaxis: { title: { text: `Σ|G| (${dataUnit(p)} per ${p.quantity.unit})` } },
+            yaxis: { title: { text: withUnit('Σ|G|', p.dataUnit && p.quantity.unit ? `${p.dataUnit} per ${p.quantity.unit}` : '') } },
           }),
     [p],
   );
@@ -128,7 +133,7 @@ export function ProblemScreen() {
           </dd>
           <dt>Data</dt>
           <dd>
-            M = {p.dataCount}, σ from {fmtNum(Math.min(...p.sigma))} to {fmtNum(Math.max(...p.sigma))} {dataUnit(p)}
+            M = {p.dataCount}, σ from {fmtNum(Math.min(...p.sigma))} to {fmtNum(Math.max(...p.sigma))} {p.dataUnit || '(no unit given)'}
           </dd>
           <dt>Operator G</dt>
           <dd>
@@ -155,9 +160,12 @@ export function ProblemScreen() {
 }
 
 function fmtNum(x: number): string {
-  if (!Number.isFinite(x)) return String(x);
-  const a = Math.abs(x);
-  return a !== 0 && (a >= 1e4 || a < 1e-3) ? x.toExponential(3) : String(Number(x.toPrecision(4)));
+  return formatNumber(x, 4);
+}
+
+/** A name from a file inside one of our hover templates: escaped, and no %{…} placeholders. */
+function hoverName(s: string): string {
+  return escapePlotText(s).replace(/%/g, '%%');
 }
 
 // ---------------------------------------------------------------------------------------------
@@ -201,7 +209,7 @@ export function PriorScreen() {
     () =>
       p && {
         title: { text: 'Correlation against distance (first axis); dashed: practical range ρ = 0.05', font: { size: 12 } },
-        xaxis: { title: { text: `distance r (${p.grid.unit ?? ''})` } },
+        xaxis: { title: { text: withUnit('distance r', p.grid.unit) } },
         yaxis: { title: { text: 'correlation ρ' }, range: [-0.05, 1.1] },
       },
     [p],
@@ -213,7 +221,7 @@ export function PriorScreen() {
       const range = Math.max(...prior.terms.map((t) => Math.max(...termLengths(t)))) * 3;
       const m = correlationMap(prior, Math.min(range, Math.max(...p.grid.shape.map((n, k) => n * p.grid.spacing[k]!))));
       return [
-        { type: 'heatmap', x: m.offsets, y: m.offsets, z: m.z, colorscale: MAP_SCALE, zmin: 0, zmax: 1, name: 'ρ', colorbar: { thickness: 10 } },
+        { type: 'heatmap', x: m.offsets, y: m.offsets, z: m.z, colorscale: MAP_SCALE, zmin: 0, zmax: 1, name: 'ρ', colorbar: { thickness: 10 }, hovertemplate: `${hoverName(offsetLabel(p.grid, 0))} %{x}<br>${hoverName(offsetLabel(p.grid, 1))} %{y}<br>ρ %{z:.3f}<extra></extra>` },
         {
           type: 'contour',
           x: m.offsets,
@@ -233,9 +241,9 @@ export function PriorScreen() {
   const mapLayoutMemo = useMemo(
     () =>
       p && {
-        title: { text: 'Correlation map around a cell; contour ρ = 0.05', font: { size: 12 } },
-        xaxis: { title: { text: `Δx (${p.grid.unit ?? ''})` } },
-        yaxis: { title: { text: `Δy (${p.grid.unit ?? ''})` }, scaleanchor: 'x' },
+        title: { text: `Correlation map around a cell; contour ρ = 0.05<br><span style="font-size:10px">${escapePlotText(orientationNote(p.grid))}, as on every map</span>`, font: { size: 12 } },
+        xaxis: { title: { text: offsetLabel(p.grid, 0) } },
+        yaxis: { title: { text: offsetLabel(p.grid, 1) }, autorange: 'reversed', scaleanchor: 'x' },
       },
     [p],
   );
@@ -246,7 +254,7 @@ export function PriorScreen() {
   const covLayout = useMemo(
     () =>
       p && {
-        title: { text: `Prior covariance Cm (${p.quantity.unit ? `(${p.quantity.unit})²` : ''})`, font: { size: 12 } },
+        title: { text: withUnit('Prior covariance Cm', p.quantity.unit ? `(${p.quantity.unit})²` : ''), font: { size: 12 } },
         xaxis: { title: { text: 'cell j' } },
         yaxis: { title: { text: 'cell i' }, autorange: 'reversed', scaleanchor: 'x' },
       },
@@ -297,7 +305,7 @@ function Gallery({ id, title, p, draws, range }: { id: string; title: string; p:
   const layout = useMemo(() => {
     const is2D = gridDimension(p.grid) === 2;
     const l: Record<string, unknown> = {
-      title: { text: title, font: { size: 12 } },
+      title: { text: is2D ? `${title}<br><span style="font-size:10px">${escapePlotText(orientationNote(p.grid))}</span>` : title, font: { size: 12 } },
       grid: { rows: 2, columns: 3, pattern: 'independent', xgap: 0.08, ygap: 0.16 },
       margin: { l: 40, r: 10, t: 30, b: 30 },
       showlegend: false,
@@ -456,10 +464,10 @@ export function PosteriorScreen() {
   const layouts = useMemo(
     () =>
       p && {
-        mean: mapLayout(p, `Posterior mean (${p.quantity.unit})`),
-        std: mapLayout(p, `Posterior standard deviation (${p.quantity.unit})`),
+        mean: mapLayout(p, withUnit('Posterior mean', p.quantity.unit)),
+        std: mapLayout(p, withUnit('Posterior standard deviation', p.quantity.unit)),
         vr: mapLayout(p, 'Variance reduction 1 − σ²post/σ²prior'),
-        truth: mapLayout(p, `Truth (${p.quantity.unit})`),
+        truth: mapLayout(p, withUnit('Truth', p.quantity.unit)),
         kernel: is2D
           ? mapLayout(p, 'Averaging kernel of the selected cell')
           : { title: { text: 'Averaging kernel of the selected cell', font: { size: 12 } }, xaxis: { title: { text: xLabel(p) } }, yaxis: { title: { text: 'R row' } } },
@@ -558,7 +566,7 @@ export function FitScreen() {
   const layouts = useMemo(
     () =>
       p && {
-        obs: { title: { text: 'Observed and predicted data', font: { size: 12 } }, xaxis: { title: { text: 'datum number' } }, yaxis: { title: { text: `d (${dataUnit(p)})` } } },
+        obs: { title: { text: 'Observed and predicted data', font: { size: 12 } }, xaxis: { title: { text: 'datum number' } }, yaxis: { title: { text: dLabel(p) } } },
         res: { title: { text: 'Normalised residuals (d − G m̃)/σ', font: { size: 12 } }, xaxis: { title: { text: 'datum number' } }, yaxis: { title: { text: 'residual (σ units, dimensionless)' } } },
       },
     [p],

@@ -10,15 +10,17 @@ import { Num, TaskStatusLine } from './common.tsx';
 import { candidatesKey, type Candidate } from './slice.ts';
 import { candidateBandTraces } from './traces.ts';
 import type { CandidateScores } from '../../worker/tuningProtocol.ts';
+import { axisLabel, withUnit } from '../labels.ts';
 
 function mapTrace(p: ProblemView, field: ArrayLike<number>, name: string, extra: Trace = {}): Trace {
   const { x, y } = axes2D(p.grid);
   return { type: 'heatmap', x, y, z: toRows2D(p.grid, field), colorscale: MAP_SCALE, name, colorbar: { thickness: 8 }, ...extra };
 }
-const mapLayout = (title: string) => ({
+/** Same orientation as every other map (second axis increasing downwards, ../labels.ts), marked ↓ in the axis title. */
+const mapLayout = (p: ProblemView, title: string) => ({
   title: { text: title, font: { size: 11 } },
-  yaxis: { autorange: 'reversed', scaleanchor: 'x', constrain: 'domain' },
-  xaxis: { constrain: 'domain' },
+  yaxis: { autorange: 'reversed', scaleanchor: 'x', constrain: 'domain', title: { text: `${axisLabel(p.grid, 1)} ↓` } },
+  xaxis: { constrain: 'domain', title: { text: axisLabel(p.grid, 0) } },
   margin: { l: 40, r: 8, t: 26, b: 30 },
 });
 
@@ -129,8 +131,8 @@ function Comparison({ p, candidates, scores }: { p: ProblemView; candidates: rea
     }
     return out;
   }, [p, ok, is2D]);
-  const xTitle = `depth (${p.grid.unit ?? ''})`;
-  const q = `${p.quantity.name}${p.quantity.unit ? ` (${p.quantity.unit})` : ''}`;
+  const xTitle = axisLabel(p.grid, 0);
+  const q = withUnit(p.quantity.name, p.quantity.unit);
   if (!is2D) {
     return (
       <div className="grid-2">
@@ -143,9 +145,9 @@ function Comparison({ p, candidates, scores }: { p: ProblemView; candidates: rea
     <div className="sel-maps">
       {ok.map(({ c, s }) => (
         <div key={c.id} className="grid-3" style={{ borderLeft: `4px solid ${c.colour}` }}>
-          <Plot id={`plot-cand-mean-${c.id}`} label={`${c.name}: posterior mean`} data={[mapTrace(p, s.mean, 'mean')]} layout={mapLayout(`${c.name}: posterior mean (${p.quantity.unit})`)} height={220} />
-          <Plot id={`plot-cand-std-${c.id}`} label={`${c.name}: posterior standard deviation`} data={[mapTrace(p, s.std, 'std')]} layout={mapLayout(`${c.name}: posterior std (${p.quantity.unit})`)} height={220} />
-          <Plot id={`plot-cand-draw-${c.id}`} label={`${c.name}: a posterior realisation`} data={[mapTrace(p, rowOf(s.draws.data, s.draws.cols, 0), 'draw 1')]} layout={mapLayout(`${c.name}: posterior realisation 1`)} height={220} />
+          <Plot id={`plot-cand-mean-${c.id}`} label={`${c.name}: posterior mean`} data={[mapTrace(p, s.mean, 'mean')]} layout={mapLayout(p, withUnit(`${c.name}: posterior mean`, p.quantity.unit))} height={220} />
+          <Plot id={`plot-cand-std-${c.id}`} label={`${c.name}: posterior standard deviation`} data={[mapTrace(p, s.std, 'std')]} layout={mapLayout(p, withUnit(`${c.name}: posterior std`, p.quantity.unit))} height={220} />
+          <Plot id={`plot-cand-draw-${c.id}`} label={`${c.name}: a posterior realisation`} data={[mapTrace(p, rowOf(s.draws.data, s.draws.cols, 0), 'draw 1')]} layout={mapLayout(p, `${c.name}: posterior realisation 1`)} height={220} />
         </div>
       ))}
     </div>

@@ -9,6 +9,7 @@ import type { PriorSpec } from '../../core/prior/spec.ts';
 import type { ProfileParameter } from '../../core/tuning/index.ts';
 import { evidenceMapTraces, logValues, mapCellAt, profileTraces } from './traces.ts';
 import { fmt } from './candidates.ts';
+import { parameterLabel, withUnit } from '../labels.ts';
 import { Num, TaskStatusLine } from './common.tsx';
 import type { MapSettings } from './slice.ts';
 
@@ -86,8 +87,8 @@ export function EvidencePanel() {
   const layout = useMemo(
     () => ({
       title: { text: `Log evidence over term ${(map?.term ?? 0) + 1}'s length and variance (click a cell to apply it)`, font: { size: 12 } },
-      xaxis: { title: { text: `log₁₀ length ℓ (${unit})` } },
-      yaxis: { title: { text: `log₁₀ variance σ² (${varUnit || 'quantity units²'})` } },
+      xaxis: { title: { text: withUnit('log₁₀ length ℓ', unit) } },
+      yaxis: { title: { text: withUnit('log₁₀ variance σ²', varUnit) } },
       showlegend: true,
     }),
     [map, unit, varUnit],
@@ -192,7 +193,7 @@ function ProfilePanel() {
     () =>
       value && {
         title: { text: value.parameter === 'nu' ? 'Log evidence against the Matérn smoothness ν' : 'Log evidence against the nugget', font: { size: 12 } },
-        xaxis: { type: 'log', title: { text: value.parameter === 'nu' ? 'ν (dimensionless)' : `nugget (${p.quantity.unit ? `(${p.quantity.unit})²` : 'quantity units²'})` } },
+        xaxis: { type: 'log', title: { text: value.parameter === 'nu' ? 'ν (dimensionless)' : withUnit('nugget', p.quantity.unit ? `(${p.quantity.unit})²` : '') } },
         yaxis: { title: { text: 'log p(d)' } },
       },
     [value, p],
@@ -266,7 +267,7 @@ function FitPanel() {
                 checked={!fixedExtra.includes(n)}
                 onChange={(e) => setFixedExtra(e.target.checked ? fixedExtra.filter((x) => x !== n) : [...fixedExtra, n])}
               />{' '}
-              {n}
+              {parameterLabel(n)}
             </label>
           ),
         )}
@@ -299,7 +300,7 @@ function FitPanel() {
             <tbody>
               {value.parameters.map((q) => (
                 <tr key={q.name}>
-                  <td>{q.name}</td>
+                  <td title={q.name}>{parameterLabel(q.name)}</td>
                   <td>{fmt(q.start)}</td>
                   <td>
                     <Num value={q.value} text={fmt(q.value)} />

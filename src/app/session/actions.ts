@@ -2,6 +2,7 @@
  * Browser-side session actions behind the session bar: exports, plot images, the report and
  * the share link. Pure parts live in ./exports.ts, ./report.ts and ./share.ts.
  */
+import { orientationNote, withUnit } from '../labels.ts';
 import Plotly from 'plotly.js-dist-min';
 import type { WorkbenchStore } from '../store.ts';
 import { CAUTION } from '../caution.ts';
@@ -81,8 +82,9 @@ async function reportImages(store: WorkbenchStore): Promise<{ plots: ReportImage
       const { x, y } = axes2D(p.grid);
       const heat = (z: ArrayLike<number>): Trace => ({ type: 'heatmap', x, y, z: toRows2D(p.grid, z), colorscale: MAP_SCALE, colorbar: { thickness: 8 } });
       const rev = { yaxis: { autorange: 'reversed' } };
-      plots.push({ caption: `Posterior mean${unit ? ` (${unit})` : ''}`, src: await image([heat(sm.mean)], rev, 400, 260) });
-      plots.push({ caption: `Posterior standard deviation${unit ? ` (${unit})` : ''}`, src: await image([heat(sm.std)], rev, 400, 260) });
+      const how = orientationNote(p.grid);
+      plots.push({ caption: `${withUnit('Posterior mean', unit)}; ${how}`, src: await image([heat(sm.mean)], rev, 400, 260) });
+      plots.push({ caption: `${withUnit('Posterior standard deviation', unit)}; ${how}`, src: await image([heat(sm.std)], rev, 400, 260) });
     }
   }
   const draws = await s.fetchDraws('prior').catch(() => null);

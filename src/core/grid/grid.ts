@@ -13,6 +13,8 @@ export interface Grid {
   readonly origin?: readonly number[];
   /** Unit of length, e.g. "m". */
   readonly unit?: string;
+  /** Names of the axes for labels, one per dimension (e.g. ["x", "depth"]); "x" and "depth" when absent. */
+  readonly axes?: readonly string[];
 }
 
 export function gridDimension(g: Grid): 1 | 2 {

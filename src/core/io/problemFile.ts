@@ -2,8 +2,10 @@
  * The problem file: JSON `{"kind": "priorscope.problem", "version": 1, …}` ⇄ core Problem.
  *
  *   title      optional string
- *   grid       {"shape": [nx] | [nx, ny], "spacing": [dx] | [dx, dy] (> 0), "origin"?: [...], "unit"?: "m"}
- *              cell (ix, iy) sits at (x0 + dx·ix, y0 + dy·iy) and has index ix + nx·iy
+ *   grid       {"shape": [nx] | [nx, ny], "spacing": [dx] | [dx, dy] (> 0), "origin"?: [...], "unit"?: "m",
+ *               "axes"?: ["x"] | ["x", "depth"]}
+ *              cell (ix, iy) sits at (x0 + dx·ix, y0 + dy·iy) and has index ix + nx·iy; "axes" names the
+ *              axes in every label (non-empty, distinct, at most 40 characters; default "x" and "y")
  *   operator   {"dense": [[N numbers], … M rows]}
  *              | {"sparse": {"rows": [...], "cols": [...], "values": [...]}}   zero-based, duplicates summed
  *              | {"file": "G.csv" | "G.mtx" | "G.npy"}                         a sibling file, by extension
@@ -36,6 +38,9 @@ import { operatorToDense } from '../linalg/operator.ts';
 export const PROBLEM_KIND = 'priorscope.problem';
 export const PROBLEM_VERSION = 1;
 
+/** Longest axis name accepted in grid.axes (characters). */
+const AXIS_NAME_MAX = 40;
+
 /** Largest grid accepted from a file (cells). Dense covariances beyond this do not fit in memory anyway. */
 export const MAX_CELLS = 4_000_000;
 
@@ -54,7 +59,7 @@ export interface ProblemFileResult {
 const TOP_FIELDS = ['kind', 'version', 'title', 'grid', 'operator', 'data', 'truth', 'quantity'] as const;
 
 function readGrid(r: JsonReader, value: unknown): Grid {
-  const g = r.object(value, 'grid', ['shape', 'spacing', 'origin', 'unit']);
+  const g = r.object(value, 'grid', ['shape', 'spacing', 'origin', 'unit', 'axes']);
   const shapeValue = r.required(g, 'grid', 'shape', '[nx] or [nx, ny]');
   if (!Array.isArray(shapeValue) || (shapeValue.length !== 1 && shapeValue.length !== 2)) {
     r.fail('grid.shape', '[nx] or [nx, ny] (positive integers)', shapeValue);
@@ -67,6 +72,14 @@ function readGrid(r: JsonReader, value: unknown): Grid {
   const grid: { -readonly [K in keyof Grid]: Grid[K] } = { shape, spacing };
   if (g.origin !== undefined) grid.origin = r.numbers(g.origin, 'grid.origin', dim);
   if (g.unit !== undefined) grid.unit = r.string(g.unit, 'grid.unit');
+  if (g.axes !== undefined) {
+    const names = r.array(g.axes, 'grid.axes', dim, dim === 1 ? 'name (a string)' : 'names (strings)').map((a, k) => r.string(a, `grid.axes[${k}]`).trim());
+    names.forEach((a, k) => {
+      if (a === '' || a.length > AXIS_NAME_MAX) r.fail(`grid.axes[${k}]`, `a name of 1 to ${AXIS_NAME_MAX} characters`, a);
+    });
+    if (dim === 2 && names[0] === names[1]) r.fail('grid.axes[1]', 'a name different from grid.axes[0]', names[1]);
+    grid.axes = names;
+  }
   return grid;
 }
 
@@ -219,6 +232,7 @@ export function problemToJson(problem: Problem, operatorFile?: string): Record<s
   const grid: Record<string, unknown> = { shape: vec(g.shape), spacing: vec(g.spacing) };
   if (g.origin !== undefined) grid.origin = vec(g.origin);
   if (g.unit !== undefined) grid.unit = g.unit;
+  if (g.axes !== undefined) grid.axes = [...g.axes];
   let operator: Record<string, unknown>;
   const op = problem.operator;
   if (operatorFile !== undefined) operator = { file: operatorFile };

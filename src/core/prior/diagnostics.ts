@@ -24,6 +24,7 @@ import { covarianceMatrix } from './covariance.ts';
 import { lagTable, meanRowSum } from './lag.ts';
 import { logLatticeCondition } from './spectral.ts';
 import type { PriorSpec } from './spec.ts';
+import { formatSpread } from '../format.ts';
 
 /** Condition number above which Cm counts as near-singular (common practice, no source). */
 export const NEAR_SINGULAR_CONDITION = 1e10;
@@ -211,7 +212,7 @@ export function priorWarnings(grid: Grid, prior: PriorSpec): DiagnosticWarning[]
   const nugget = prior.nugget ?? 0;
   const unit = grid.unit ? ` ${grid.unit}` : '';
   prior.terms.forEach((term, k) => {
-    const name = `terms[${k}]`;
+    const name = `Term ${k + 1}`;
     if (term.nu !== undefined && term.kernel !== 'matern') {
       out.push({ code: 'nu-ignored', message: `${name}: nu = ${term.nu} is ignored because the ${term.kernel} kernel has no smoothness parameter.` });
     }
@@ -227,16 +228,16 @@ export function priorWarnings(grid: Grid, prior: PriorSpec): DiagnosticWarning[]
     if (nugget >= cure) return;
     const len = term.lengths ? `lengths ${term.lengths[0]}${unit} × ${term.lengths[1]}${unit}` : `length ${term.length}${unit}`;
     const spacing = grid.spacing.map((s) => `${s}${unit}`).join(' × ');
-    const spread = `10^${Math.round(logK / Math.LN10)}`;
+    const spread = formatSpread(logK / Math.LN10);
     if (term.kernel === 'gaussian') {
       out.push({
         code: 'gaussian-long-length',
-        message: `${name}: a Gaussian kernel with ${len} on a grid with spacing ${spacing} is numerically singular (its eigenvalues span about ${spread}); add a nugget of at least ${fmt(cure)}, shorten the length (in 1-D the condition number passes 1e10 at about 2.2 cells), or use a Matérn kernel.`,
+        message: `${name}: a Gaussian kernel with ${len} on a grid with spacing ${spacing} is numerically singular (its eigenvalues span ${spread}); add a nugget of at least ${fmt(cure)}, shorten the length (in 1-D the condition number passes 1e10 at about 2.2 cells), or use a Matérn kernel.`,
       });
     } else {
       out.push({
         code: 'smooth-matern-long-length',
-        message: `${name}: a Matérn kernel with nu = ${term.nu ?? DEFAULT_MATERN_NU} and ${len} on a grid with spacing ${spacing}, without a sufficient nugget, is numerically singular (its eigenvalues span about ${spread}); add a nugget of at least ${fmt(cure)}, lower nu, or shorten the length.`,
+        message: `${name}: a Matérn kernel with nu = ${term.nu ?? DEFAULT_MATERN_NU} and ${len} on a grid with spacing ${spacing}, without a sufficient nugget, is numerically singular (its eigenvalues span ${spread}); add a nugget of at least ${fmt(cure)}, lower nu, or shorten the length.`,
       });
     }
   });

@@ -43,7 +43,7 @@ function syntheticData(G: Operator, truth: Float64Array, sigma: Float64Array, se
 // ---------------------------------------------------------------------------------------------
 // borehole-log: 1-D temperature profile, Gaussian-weighted sensor windows.
 
-const BOREHOLE_GRID: Grid = { shape: [200], spacing: [0.5], origin: [0.25], unit: 'm' };
+const BOREHOLE_GRID: Grid = { shape: [200], spacing: [0.5], origin: [0.25], unit: 'm', axes: ['depth'] };
 /** Sensor centres (m) and Gaussian window standard deviation (m); windows cut at ±3 widths. */
 const BOREHOLE_SENSORS = Array.from({ length: 50 }, (_, k) => 1 + 2 * k);
 const BOREHOLE_WINDOW = 1.5;
@@ -111,7 +111,7 @@ const boreholeLog: DemoProblem = {
 // crosshole-tomography: 2-D slowness perturbation between two boreholes 16 m apart.
 
 /** x across (m), y depth (m); cells 0.5 m. */
-const CROSSHOLE_GRID: Grid = { shape: [32, 32], spacing: [0.5, 0.5], origin: [0.25, 0.25], unit: 'm' };
+const CROSSHOLE_GRID: Grid = { shape: [32, 32], spacing: [0.5, 0.5], origin: [0.25, 0.25], unit: 'm', axes: ['x', 'depth'] };
 const CROSSHOLE_DEPTHS = Array.from({ length: 16 }, (_, k) => 0.5 + k);
 
 function crossholeRays(): Ray[] {
@@ -158,7 +158,7 @@ const crossholeTomography: DemoProblem = {
 // potential-field: 2-D vertical section of density contrast under a gravity profile.
 
 /** x along the profile (m), y depth below the surface (m). */
-const POTENTIAL_GRID: Grid = { shape: [40, 20], spacing: [50, 25], origin: [25, 12.5], unit: 'm' };
+const POTENTIAL_GRID: Grid = { shape: [40, 20], spacing: [50, 25], origin: [25, 12.5], unit: 'm', axes: ['x', 'depth'] };
 /** 40 stations 1 m above the surface (depth −1 m), one over every column. */
 const POTENTIAL_STATIONS: [number, number][] = Array.from({ length: 40 }, (_, k) => [25 + 50 * k, -1]);
 
