@@ -62,3 +62,14 @@ export function orientationNote(grid: Grid): string {
   const [a, b] = axisNames(grid);
   return `${a} to the right, ${b} increasing downwards`;
 }
+
+/** The second axis' title on a map, with its direction: "depth (m) ↓" (the axis increases downwards). */
+export function downAxisLabel(grid: Grid, offset = false): string {
+  return `${offset ? offsetLabel(grid, 1) : axisLabel(grid, 1)} ↓`;
+}
+
+/** A short orientation tag for titles of maps without axis titles: "(x →, depth ↓)". */
+export function orientationTag(grid: Grid): string {
+  const [a, b] = axisNames(grid);
+  return `(${a} →, ${b} ↓)`;
+}

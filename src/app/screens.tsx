@@ -28,7 +28,7 @@ import {
 } from './traces.ts';
 import type { ProblemView } from '../worker/protocol.ts';
 import { bandsState, bandsText, shownPosterior } from './posteriorView.ts';
-import { axisLabel, axisNames, offsetLabel, orientationNote, withUnit } from './labels.ts';
+import { axisLabel, axisNames, downAxisLabel, offsetLabel, orientationNote, orientationTag, withUnit } from './labels.ts';
 import { escapePlotText } from './plotText.ts';
 import { formatNumber } from '../core/format.ts';
 
@@ -51,9 +51,9 @@ function xLabel(p: ProblemView, k = 0): string {
  */
 export function mapLayout(p: ProblemView, title: string): Record<string, unknown> {
   return {
-    title: { text: `${title}<br><span style="font-size:10px">${escapePlotText(orientationNote(p.grid))}</span>`, font: { size: 12 } },
+    title: { text: title, font: { size: 12 } },
     xaxis: { title: { text: xLabel(p, 0) }, constrain: 'domain' },
-    yaxis: { title: { text: xLabel(p, 1) }, autorange: 'reversed', scaleanchor: 'x', constrain: 'domain' },
+    yaxis: { title: { text: downAxisLabel(p.grid) }, autorange: 'reversed', scaleanchor: 'x', constrain: 'domain' },
     margin: { l: 56, r: 10, t: 30, b: 42 },
   };
 }
@@ -241,9 +241,9 @@ export function PriorScreen() {
   const mapLayoutMemo = useMemo(
     () =>
       p && {
-        title: { text: `Correlation map around a cell; contour ρ = 0.05<br><span style="font-size:10px">${escapePlotText(orientationNote(p.grid))}, as on every map</span>`, font: { size: 12 } },
+        title: { text: 'Correlation map around a cell; contour ρ = 0.05', font: { size: 12 } },
         xaxis: { title: { text: offsetLabel(p.grid, 0) } },
-        yaxis: { title: { text: offsetLabel(p.grid, 1) }, autorange: 'reversed', scaleanchor: 'x' },
+        yaxis: { title: { text: downAxisLabel(p.grid, true) }, autorange: 'reversed', scaleanchor: 'x' },
       },
     [p],
   );
@@ -273,6 +273,12 @@ export function PriorScreen() {
           <Plot id="plot-covariance" label="Prior covariance heat map" data={covData} layout={covLayout} height={300} />
         ) : null}
       </div>
+      {is2D && (
+        <p className="note" data-testid="orientation-note">
+          Every map here, the correlation map included: {orientationNote(p.grid)}. The angle θ turns from {axisNames(p.grid)[0]} towards {axisNames(p.grid)[1]}, so a positive θ
+          tilts the ellipse clockwise on screen (down to the right).
+        </p>
+      )}
       {!small && <p className="note">The covariance heat map is shown for grids of at most 400 cells (this one has {cellCount(p.grid)}).</p>}
       {covError && <p className="error" role="alert">Covariance: {covError}</p>}
     </div>
@@ -305,7 +311,7 @@ function Gallery({ id, title, p, draws, range }: { id: string; title: string; p:
   const layout = useMemo(() => {
     const is2D = gridDimension(p.grid) === 2;
     const l: Record<string, unknown> = {
-      title: { text: is2D ? `${title}<br><span style="font-size:10px">${escapePlotText(orientationNote(p.grid))}</span>` : title, font: { size: 12 } },
+      title: { text: is2D ? `${title} ${orientationTag(p.grid)}` : title, font: { size: 12 } },
       grid: { rows: 2, columns: 3, pattern: 'independent', xgap: 0.08, ygap: 0.16 },
       margin: { l: 40, r: 10, t: 30, b: 30 },
       showlegend: false,

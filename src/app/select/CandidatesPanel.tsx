@@ -10,7 +10,7 @@ import { Num, TaskStatusLine } from './common.tsx';
 import { candidatesKey, type Candidate } from './slice.ts';
 import { candidateBandTraces } from './traces.ts';
 import type { CandidateScores } from '../../worker/tuningProtocol.ts';
-import { axisLabel, withUnit } from '../labels.ts';
+import { axisLabel, downAxisLabel, withUnit } from '../labels.ts';
 
 function mapTrace(p: ProblemView, field: ArrayLike<number>, name: string, extra: Trace = {}): Trace {
   const { x, y } = axes2D(p.grid);
@@ -19,7 +19,7 @@ function mapTrace(p: ProblemView, field: ArrayLike<number>, name: string, extra:
 /** Same orientation as every other map (second axis increasing downwards, ../labels.ts), marked ↓ in the axis title. */
 const mapLayout = (p: ProblemView, title: string) => ({
   title: { text: title, font: { size: 11 } },
-  yaxis: { autorange: 'reversed', scaleanchor: 'x', constrain: 'domain', title: { text: `${axisLabel(p.grid, 1)} ↓` } },
+  yaxis: { autorange: 'reversed', scaleanchor: 'x', constrain: 'domain', title: { text: downAxisLabel(p.grid) } },
   xaxis: { constrain: 'domain', title: { text: axisLabel(p.grid, 0) } },
   margin: { l: 40, r: 8, t: 26, b: 30 },
 });
