@@ -1,0 +1,149 @@
+/**
+ * The starting prior of a loaded problem (src/core/tuning/startPrior.ts) against an independent
+ * numpy computation of the same rule in its un-whitened form (test/reference/start_prior_reference.py),
+ * and a seeded simulation showing that the moment estimate of the variance is unbiased.
+ */
+import { describe, expect, it } from 'vitest';
+import { runPython } from '../../reference/python.ts';
+import { startLength, startPriorRule } from '../../../src/core/tuning/startPrior.ts';
+import { fromRows, toRows } from '../../../src/core/linalg/matrix.ts';
+import type { Problem } from '../../../src/core/problems/spec.ts';
+import type { Grid } from '../../../src/core/grid/grid.ts';
+import { Random } from '../../../src/core/sampling/random.ts';
+import { priorRealisations } from '../../../src/core/sampling/realisations.ts';
+import { applyOperator } from '../../../src/core/linalg/operator.ts';
+import { DEMOS } from '../../../src/core/problems/demos.ts';
+
+interface Ref {
+  mean: number;
+  momentVariance: number;
+  variance: number;
+  floored: boolean;
+  residualSquares: number;
+  operatorTrace: number;
+  trB2?: number;
+}
+
+/** An invented problem: m averages of random cell sets with positive weights, data in "ms" around `level`. */
+function invented(grid: Grid, m: number, seed: number, o: { level: number; spread: number; sigma: number; fullCd?: boolean }): Problem {
+  const n = grid.shape.reduce((a, b) => a * b, 1);
+  const rng = new Random(seed);
+  const rows: number[][] = [];
+  for (let i = 0; i < m; i++) rows.push(Array.from({ length: n }, () => (rng.nextDouble() < 0.3 ? 0.2 + rng.nextDouble() : 0)));
+  const values = Float64Array.from(rows, (r) => o.level * r.reduce((a, b) => a + b, 0) + o.spread * rng.nextNormal());
+  const sigma = Float64Array.from({ length: m }, () => o.sigma * (0.5 + rng.nextDouble()));
+  let data: Problem['data'] = { values, sigma, unit: 'ms' };
+  if (o.fullCd) {
+    const cov = rows.map((_, i) => rows.map((__, j) => sigma[i]! * sigma[j]! * (i === j ? 1 : 0.3 ** Math.abs(i - j))));
+    data = { values, covariance: fromRows(cov), unit: 'ms' };
+  }
+  return { grid, operator: { kind: 'dense', matrix: fromRows(rows) }, data };
+}
+
+function refOf(p: Problem, length: number, s2true?: number): Ref {
+  const G = toRows(p.operator.kind === 'dense' ? p.operator.matrix : (() => { throw new Error('dense only'); })());
+  return runPython<{ results: Ref[] }>('start_prior_reference.py', {
+    cases: [
+      {
+        grid: p.grid,
+        G,
+        d: Array.from(p.data.values),
+        sigma: p.data.sigma ? Array.from(p.data.sigma) : null,
+        cov: p.data.covariance ? toRows(p.data.covariance) : null,
+        length,
+        s2true: s2true ?? null,
+      },
+    ],
+  }).results[0]!;
+}
+
+const rel = (a: number, b: number) => Math.abs(a - b) / Math.max(Math.abs(b), 1e-300);
+
+describe('startPriorRule against numpy (generalised least squares and method of moments, un-whitened form)', () => {
+  it.each([
+    ['1-D, diagonal Cd, data around 40 ms', { shape: [30], spacing: [2], unit: 'm' } as Grid, 25, { level: 40, spread: 3, sigma: 0.5 }],
+    ['2-D, diagonal Cd, tiny data (6.9e-10 scale)', { shape: [8, 6], spacing: [10, 5], origin: [5, 2.5] } as Grid, 30, { level: 7e-10, spread: 2e-10, sigma: 2e-11 }],
+    ['2-D, full Cd', { shape: [7, 7], spacing: [1, 1] } as Grid, 20, { level: -3, spread: 1, sigma: 0.2, fullCd: true }],
+  ])('%s', (_name, grid, m, o) => {
+    const p = invented(grid, m, 7, o);
+    const rule = startPriorRule(p);
+    const ref = refOf(p, rule.exact.length);
+    // Same formulas in another arrangement and another language: round-off only (1e-9 relative;
+    // the M × M solves lose a few digits to Cd's condition; common practice, no source).
+    expect(rel(rule.exact.mean, ref.mean)).toBeLessThan(1e-9);
+    expect(rel(rule.moments.residualSquares, ref.residualSquares)).toBeLessThan(1e-9);
+    expect(rel(rule.moments.operatorTrace, ref.operatorTrace)).toBeLessThan(1e-9);
+    expect(rel(rule.exact.variance, ref.variance)).toBeLessThan(1e-9);
+    expect(rule.varianceFloored).toBe(ref.floored);
+    // The prior shown is the exact one to 2 significant digits.
+    const t = rule.prior.terms[0]!;
+    expect(t.variance).toBe(Number(rule.exact.variance.toPrecision(2)));
+    expect((rule.prior.mean as { constant: number }).constant).toBe(Number(rule.exact.mean.toPrecision(2)));
+    expect(t.length).toBe(Number(startLength(grid).toPrecision(2)));
+  });
+
+  it('is on the data scale: tiny data give a tiny variance, large data a large one (not mean 0, variance 1)', () => {
+    const g: Grid = { shape: [20], spacing: [1] };
+    const small = startPriorRule(invented(g, 15, 3, { level: 1e-3, spread: 3e-4, sigma: 1e-5 }));
+    const large = startPriorRule(invented(g, 15, 3, { level: 1e3, spread: 3e2, sigma: 1e1 }));
+    expect(small.prior.terms[0]!.variance).toBeLessThan(1e-4);
+    expect(large.prior.terms[0]!.variance).toBeGreaterThan(1e2);
+    // Scaling d and σ by 10⁶ scales the mean by 10⁶ and the variance by 10¹².
+    expect(rel(large.exact.mean / small.exact.mean, 1e6)).toBeLessThan(1e-9);
+    expect(rel(large.exact.variance / small.exact.variance, 1e12)).toBeLessThan(1e-9);
+  });
+
+  it('floors the variance when the data lie within their errors', () => {
+    const p = invented({ shape: [20], spacing: [1] }, 15, 5, { level: 0, spread: 1e-6, sigma: 1 });
+    const rule = startPriorRule(p);
+    expect(rule.varianceFloored).toBe(true);
+    expect(rel(rule.exact.variance, (0.1 * rule.moments.degreesOfFreedom) / rule.moments.operatorTrace)).toBeLessThan(1e-12);
+    expect(rule.explanation).toContain('floor');
+  });
+
+  it('length: a tenth of the largest extent, at least two cells', () => {
+    expect(startLength({ shape: [200], spacing: [0.5] })).toBe(10);
+    expect(startLength({ shape: [40, 20], spacing: [50, 25] })).toBe(200);
+    expect(startLength({ shape: [6], spacing: [1] })).toBe(2);
+  });
+});
+
+describe('the moment estimate of the variance is unbiased (seeded simulation)', () => {
+  it('recovers the variance used to make the data, within 4 standard errors of the mean of 300 replicates', () => {
+    const grid: Grid = { shape: [12, 10], spacing: [1, 1] };
+    const base = invented(grid, 40, 11, { level: 0, spread: 0, sigma: 0.3 });
+    const s2true = 0.8;
+    const mu = 2.5;
+    const prior = { mean: { constant: mu }, terms: [{ kernel: 'exponential' as const, variance: s2true, length: startLength(grid) }], nugget: 0 };
+    const reps = 300;
+    const draws = priorRealisations(grid, prior, reps, 20261204);
+    const rng = new Random(99);
+    const n = 120;
+    let sum = 0;
+    let first: Problem | null = null;
+    for (let k = 0; k < reps; k++) {
+      const gm = applyOperator(base.operator, draws.data.subarray(k * n, (k + 1) * n));
+      const values = Float64Array.from(gm, (v, i) => v + base.data.sigma![i]! * rng.nextNormal());
+      const p: Problem = { ...base, data: { ...base.data, values } };
+      first ??= p;
+      const r = startPriorRule(p);
+      sum += (r.moments.residualSquares - r.moments.degreesOfFreedom) / r.moments.operatorTrace;
+    }
+    const mean = sum / reps;
+    // Var(σ̂²) = 2 tr(B²) / tr(P Ã)² for the Gaussian quadratic form (from numpy, the reference script).
+    const ref = refOf(first!, startLength(grid), s2true);
+    const se = Math.sqrt(2 * ref.trB2!) / ref.operatorTrace / Math.sqrt(reps);
+    expect(Math.abs(mean - s2true)).toBeLessThan(4 * se);
+    // The limit can fail: a bias of a quarter of the variance would be far outside it.
+    expect(4 * se).toBeLessThan(0.25 * s2true);
+  });
+});
+
+describe('the demos keep their own priors; the rule still applies to their data', () => {
+  it('gives a finite prior on every demo problem', () => {
+    for (const d of DEMOS) {
+      const r = startPriorRule(d.build().problem);
+      expect(Number.isFinite(r.exact.variance) && r.exact.variance > 0).toBe(true);
+    }
+  });
+});
