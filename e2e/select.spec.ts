@@ -7,9 +7,9 @@
 import { expect, test, type Page } from '@playwright/test';
 import { DEMOS } from '../src/core/problems/demos.ts';
 import { posteriorSummary, preparePosterior } from '../src/core/inverse/posterior.ts';
-import { evidenceMap, leaveOneOut, logEvidence, priorPredictiveCheck, termLength } from '../src/core/tuning/index.ts';
+import { discrepancyScale, evidenceMap, leaveOneOut, logEvidence, priorPredictiveCheck, termLength } from '../src/core/tuning/index.ts';
 import type { PriorSpec } from '../src/core/prior/spec.ts';
-import { open, settle, state, traceValues, watch } from './helpers.ts';
+import { open, screenshot, settle, state, traceValues, watch } from './helpers.ts';
 
 const ORIGIN = 'http://127.0.0.1:' + (process.env.PRIORSCOPE_E2E_PORT ?? 4317);
 const TOL = 1e-9;
@@ -116,7 +116,7 @@ test('best by evidence applies an optimum whose log evidence is at least the sta
   expect(w.problems).toEqual([]);
 });
 
-test('criteria of the current prior and two pinned candidates match the core; "use this one" restores a candidate', async ({ page }) => {
+test('criteria of the current prior and two pinned candidates match the core; "use this one" restores a candidate', async ({ page }, testInfo) => {
   const w = watch(page, ORIGIN);
   const s0 = await open(page);
   await page.getByTestId('tab-select').click();
@@ -125,6 +125,12 @@ test('criteria of the current prior and two pinned candidates match the core; "u
   expect(rel(await num(page, 'crit-logev'), logEvidence(borehole.problem, s0.prior))).toBeLessThan(TOL);
   expect(rel(await num(page, 'crit-loo'), leaveOneOut(borehole.problem, s0.prior).logScore)).toBeLessThan(TOL);
   await expect(page.getByTestId('criteria-explanation')).toContainText('different questions');
+  // Both forms of the discrepancy rule, each saying what it targets (issue 11 §1), with the core's scales.
+  expect(rel(await num(page, 'crit-discrepancy'), discrepancyScale(borehole.problem, s0.prior).scale)).toBeLessThan(TOL);
+  expect(rel(await num(page, 'crit-discrepancy-expected'), discrepancyScale(borehole.problem, s0.prior, { form: 'expected' }).scale)).toBeLessThan(TOL);
+  await expect(page.getByTestId('crit-discrepancy-row')).toContainText('Targets χ² = M = 50');
+  await expect(page.getByTestId('crit-discrepancy-expected-row')).toContainText('M minus the resolved parameters');
+  await screenshot(page, testInfo, 'select-criteria');
 
   await page.getByTestId('select-pin').click();
   await setField(page, 'term-0-length-input', '2.5');
@@ -138,7 +144,7 @@ test('criteria of the current prior and two pinned candidates match the core; "u
     const post = posteriorSummary(preparePosterior(borehole.problem, prior));
     expect(rel(await num(page, `score-${k}-logEvidence`), logEvidence(borehole.problem, prior))).toBeLessThan(TOL);
     expect(rel(await num(page, `score-${k}-loo`), leaveOneOut(borehole.problem, prior).logScore)).toBeLessThan(TOL);
-    expect(rel(await num(page, `score-${k}-chi2`), post.chi2 / post.dataCount)).toBeLessThan(TOL);
+    expect(rel(await num(page, `score-${k}-chi2`), post.chi2 / post.fitReference!.expected)).toBeLessThan(TOL);
     expect(rel(await num(page, `score-${k}-ppp`), priorPredictiveCheck(borehole.problem, prior).pTwoSided)).toBeLessThan(1e-6);
   }
   // The two candidates differ in the table (so the comparison is not vacuous).

@@ -48,8 +48,15 @@ test('loads the 1-D demo with posterior mean, bands and data fit; no console err
   expect(maxRelDiff(predicted, expected.predicted)).toBeLessThan(TOL);
   const residuals = (await traceValues(page, 'plot-residuals', 'normalised residual')) as number[];
   expect(maxRelDiff(residuals, expected.residuals)).toBeLessThan(TOL);
-  await expect(page.getByTestId('chi2-ratio')).toHaveText((expected.chi2 / expected.dataCount).toFixed(3));
-  await expect(page.getByTestId('chi2-interval')).toBeVisible();
+  // χ² against its reference under the model (issue 11 §1): the borehole demo's χ² = 7.2 with M = 50
+  // lies inside the interval around M − tr R = 9.6 and is not flagged (against χ²_50 it was "over-fitted").
+  const ref = expected.fitReference!;
+  const shown = async (id: string) => Number(await page.getByTestId(id).textContent());
+  expect(Math.abs((await shown('chi2-value')) / expected.chi2 - 1)).toBeLessThan(1e-3);
+  expect(Math.abs((await shown('chi2-expected')) / ref.expected - 1)).toBeLessThan(1e-3);
+  await expect(page.getByTestId('chi2-interval')).toHaveText(`[${Number(ref.interval95[0].toPrecision(4))}, ${Number(ref.interval95[1].toPrecision(4))}]`);
+  await expect(page.getByTestId('chi2-verdict')).toHaveAttribute('data-position', 'inside');
+  await expect(page.getByTestId('chi2-verdict')).not.toContainText('over-fitted');
   await expect(page.getByTestId('caution')).toContainText('qualified professional');
   await expect(page.getByTestId('pd-status')).toBeVisible();
 

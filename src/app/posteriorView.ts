@@ -4,6 +4,7 @@
  * functions, so the screens stay thin and the rules are tested without a DOM.
  */
 import { assertNever } from '../core/errors.ts';
+import type { DataFitReference } from '../core/inverse/fitReference.ts';
 import type { PosteriorSummary } from '../core/inverse/types.ts';
 import type { PosteriorPartial, PosteriorResult } from '../worker/protocol.ts';
 
@@ -15,7 +16,8 @@ export interface ShownPosterior {
   readonly residuals: Float64Array;
   readonly chi2: number;
   readonly dataCount: number;
-  readonly chi2Interval: readonly [number, number] | null;
+  /** χ²'s distribution under the model (src/core/inverse/fitReference.ts); null until the complete result arrives. */
+  readonly fitReference: DataFitReference | null;
   /** The complete summary with the bands, or null while they are computed (or after they failed). */
   readonly summary: PosteriorSummary | null;
 }
@@ -26,8 +28,8 @@ export interface ShownPosterior {
  */
 export function shownPosterior(posterior: PosteriorResult | null, partial: PosteriorPartial | null): ShownPosterior | null {
   if (partial) {
-    const { mean, priorMean, priorStd, predicted, residuals, chi2, dataCount, chi2Interval } = partial;
-    return { mean, priorMean, priorStd, predicted, residuals, chi2, dataCount, chi2Interval, summary: null };
+    const { mean, priorMean, priorStd, predicted, residuals, chi2, dataCount } = partial;
+    return { mean, priorMean, priorStd, predicted, residuals, chi2, dataCount, fitReference: null, summary: null };
   }
   if (!posterior) return null;
   const s = posterior.summary;
@@ -39,7 +41,7 @@ export function shownPosterior(posterior: PosteriorResult | null, partial: Poste
     residuals: s.residuals,
     chi2: s.chi2,
     dataCount: s.dataCount,
-    chi2Interval: posterior.chi2Interval,
+    fitReference: s.fitReference ?? null,
     summary: s,
   };
 }
@@ -65,4 +67,46 @@ export function bandsText(state: BandsState): string | null {
     default:
       return assertNever(state, 'bands state');
   }
+}
+
+/** Where the observed χ² lies against its reference, and what that says (our wording). */
+export interface FitVerdict {
+  readonly position: 'inside' | 'above' | 'below';
+  readonly text: string;
+}
+
+/**
+ * The data-fit verdict: χ² of the posterior mean against the central 95% interval of its own
+ * distribution under the model (expected value M − tr R, not M; src/core/inverse/fitReference.ts).
+ */
+export function fitVerdict(chi2: number, ref: DataFitReference): FitVerdict {
+  if (chi2 > ref.interval95[1]) {
+    return {
+      position: 'above',
+      text: 'above: the data are fitted worse than these errors and this prior lead one to expect (errors understated, or a prior too stiff or of the wrong shape)',
+    };
+  }
+  if (chi2 < ref.interval95[0]) {
+    return {
+      position: 'below',
+      text: 'below: the data are fitted more closely than these errors and this prior lead one to expect (errors overstated, or a prior wider than the data support)',
+    };
+  }
+  return { position: 'inside', text: 'inside: the misfit is what these errors and this prior lead one to expect' };
+}
+
+/** What the reference rests on, for tooltips and the report. */
+export const FIT_REFERENCE_BASIS =
+  'Reference: under the model, χ² of the posterior mean is a weighted sum of χ²₁ terms with weights the eigenvalues of L⁻¹ Cd L⁻ᵀ (K = G Cm Gᵀ + Cd = L Lᵀ), ' +
+  'mean M − tr R (M minus the resolved parameters), not χ²_M: the posterior mean also fits part of the noise. Interval and tail probability by Imhof (1961) numerical inversion.';
+
+/**
+ * A tail probability for display: 3 significant digits; below 1e-8 as "< 1e-8" and above 1 − 1e-8 as
+ * "> 1 − 1e-8" (the quadrature's
+ * absolute accuracy is about 1e-10, so smaller values carry no digits worth showing).
+ */
+export function formatTail(p: number): string {
+  if (p < 1e-8) return '< 1e-8';
+  if (p > 1 - 1e-8) return '> 1 − 1e-8';
+  return p < 1e-3 ? p.toExponential(2) : String(Number(p.toPrecision(3)));
 }

@@ -27,7 +27,7 @@ import {
   type Trace,
 } from './traces.ts';
 import type { ProblemView } from '../worker/protocol.ts';
-import { bandsState, bandsText, shownPosterior } from './posteriorView.ts';
+import { bandsState, bandsText, FIT_REFERENCE_BASIS, fitVerdict, formatTail, shownPosterior } from './posteriorView.ts';
 import { axisLabel, axisNames, downAxisLabel, offsetLabel, orientationNote, orientationTag, withUnit } from './labels.ts';
 import { escapePlotText } from './plotText.ts';
 import { formatNumber } from '../core/format.ts';
@@ -579,23 +579,26 @@ export function FitScreen() {
   );
   if (!p || !layouts) return null;
   const s = post;
-  const ratio = s ? s.chi2 / s.dataCount : null;
-  const iv = post?.chi2Interval ?? null;
-  const inside = ratio !== null && iv !== null ? ratio >= iv[0] && ratio <= iv[1] : null;
+  const ref = post?.fitReference ?? null;
+  const verdict = s && ref ? fitVerdict(s.chi2, ref) : null;
   return (
     <div className="screen" data-testid="screen-fit">
       {error && <p className="error" role="alert">Posterior: {error}</p>}
       {s && (
-        <p className="chi2" data-testid="chi2" title="χ² = Σ residuals²; for a correct model χ² follows a χ² distribution with about M degrees of freedom">
-          χ²/M = <strong data-testid="chi2-ratio">{ratio!.toFixed(3)}</strong> (M = {s.dataCount})
-          {iv ? (
+        <p className="chi2" data-testid="chi2" title={FIT_REFERENCE_BASIS}>
+          χ² = <strong data-testid="chi2-value">{fmtNum(s.chi2)}</strong> (M = {s.dataCount} data)
+          {ref && verdict ? (
             <>
               {' '}
-              — 95% interval of χ²_M/M: <span data-testid="chi2-interval">[{iv[0].toFixed(3)}, {iv[1].toFixed(3)}]</span>{' '}
-              {inside ? '(inside: the fit is consistent with the stated errors)' : ratio! > iv[1] ? '(above: the data are fitted worse than their errors allow)' : '(below: the data may be over-fitted or the errors overstated)'}
+              — expected under the model <span data-testid="chi2-expected">{fmtNum(ref.expected)}</span> = M − {fmtNum(s.dataCount - ref.expected)} resolved
+              parameters; 95% interval <span data-testid="chi2-interval">[{fmtNum(ref.interval95[0])}, {fmtNum(ref.interval95[1])}]</span>, P(χ² ≥ observed) ={' '}
+              <span data-testid="chi2-tail">{formatTail(ref.upperTail)}</span>{' '}
+              <span data-testid="chi2-verdict" data-position={verdict.position}>
+                ({verdict.text})
+              </span>
             </>
           ) : (
-            <> — the 95% interval appears once the χ² quantile function is available.</>
+            <> — the reference distribution of χ² follows with the uncertainty bands.</>
           )}
         </p>
       )}

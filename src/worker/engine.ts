@@ -34,7 +34,6 @@ import {
 import { parallelPosteriorStd, varianceFlops, worthSplitting, type BlockPool } from '../core/parallel/blocks.ts';
 import type { StructuredPosteriorState } from '../core/inverse/structured.ts';
 import type { PosteriorSummary } from '../core/inverse/types.ts';
-import { chiSquareQuantile } from '../core/inverse/chisquare.ts';
 import { serialiseError, transferables, type PosteriorPartial, type WorkerReply, type ProblemView, type RequestKind, type ResultMap, type WorkerRequest } from './protocol.ts';
 import { isTuningRequest, runTuning } from './tuning.ts';
 
@@ -55,11 +54,6 @@ export type PartialFn = (partial: PosteriorPartial) => void;
  * and only cost main-thread time (crosshole demo, 3.4e7: no partial; 64², M = 400: partial).
  */
 export const PARTIAL_MIN_FLOPS = 5e7;
-
-/** Central 95% interval of χ²_M, divided by M (quantiles from src/core/inverse/chisquare.ts); null for M = 0. */
-function chi2IntervalOf(m: number): readonly [number, number] | null {
-  return m > 0 ? [chiSquareQuantile(0.025, m) / m, chiSquareQuantile(0.975, m) / m] : null;
-}
 
 /**
  * The mean-only part of the FFT-path posterior, with fresh arrays (the state keeps its own, which
@@ -83,7 +77,6 @@ export function structuredPartial(st: StructuredPosteriorState): PosteriorPartia
     chi2,
     dataCount: m,
     parameterCount: n,
-    chi2Interval: chi2IntervalOf(m),
   };
 }
 
@@ -264,7 +257,7 @@ export class Engine {
           progress('posterior mean and variance', 0.6);
           summary = posteriorSummary(state);
         }
-        return { summary, chi2Interval: chi2IntervalOf(summary.dataCount), priorMean: meanVector(problem.grid, r.prior) };
+        return { summary, priorMean: meanVector(problem.grid, r.prior) };
       }
       case 'diagnostics':
         // Dense (Cholesky + eigenvalues) on small grids, certified FFT bounds on large stationary

@@ -47,13 +47,11 @@ export interface ProblemView {
   readonly numericKernels: 'WebAssembly SIMD' | 'JavaScript';
 }
 
-/** Posterior summary plus the χ² interval of the data fit. */
+/** Posterior summary (its data-fit reference is summary.fitReference) and the prior mean. */
 export interface PosteriorResult {
   readonly summary: PosteriorSummary;
   /** Prior mean m0 of the same prior (for the prior band). */
   readonly priorMean: Float64Array;
-  /** Central 95% interval of χ²_M / M (from χ² quantiles 0.025 and 0.975), or null when there are no data (M = 0). */
-  readonly chi2Interval: readonly [number, number] | null;
 }
 
 /**
@@ -78,8 +76,6 @@ export interface PosteriorPartial {
   readonly chi2: number;
   readonly dataCount: number;
   readonly parameterCount: number;
-  /** As in {@link PosteriorResult.chi2Interval}. */
-  readonly chi2Interval: readonly [number, number] | null;
 }
 
 /** Requests of one channel supersede each other (latest wins). */

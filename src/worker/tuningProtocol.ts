@@ -56,8 +56,8 @@ export type CandidateScores =
       readonly logEvidence: number;
       /** Leave-one-out predictive log score Σ log p(d_i | d_−i). */
       readonly looLogScore: number;
-      /** χ² of the normalised residuals of the posterior mean, divided by M. */
-      readonly chi2PerDatum: number;
+      /** χ² of the posterior mean divided by its expected value under the model, M − tr R (src/core/inverse/fitReference.ts). */
+      readonly chi2OverExpected: number;
       /** Prior predictive check: q/M and the two-sided p-value. */
       readonly predictiveReduced: number;
       readonly predictiveP: number;

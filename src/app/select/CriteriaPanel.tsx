@@ -3,7 +3,8 @@ import { useEffect, useMemo, useState } from 'react';
 import { useWb } from '../context.ts';
 import { Plot } from '../Plot.tsx';
 import { NumberField } from '../controls.tsx';
-import { BAND_LEVELS, CRITERIA_DIFFER_EXPLANATION } from '../../core/tuning/index.ts';
+import { BAND_LEVELS, CRITERIA_DIFFER_EXPLANATION, DISCREPANCY_FORM_WORDS, type DiscrepancyResult } from '../../core/tuning/index.ts';
+import type { PriorSpec } from '../../core/prior/spec.ts';
 import { fmt } from './candidates.ts';
 import { Num, TaskStatusLine } from './common.tsx';
 import { looTraces, rankTraces } from './traces.ts';
@@ -55,32 +56,8 @@ export function CriteriaPanel() {
                 </td>
                 <td>Higher is better; the bars below show which data are predicted poorly.</td>
               </tr>
-              <tr>
-                <td title="scale s of all variances so that χ² of the posterior residuals equals M">discrepancy principle</td>
-                <td>
-                  {c.discrepancy.status === 'found' ? (
-                    <>
-                      × <Num testId="crit-discrepancy" value={c.discrepancy.scale} text={fmt(c.discrepancy.scale)} />
-                    </>
-                  ) : (
-                    <span data-testid="crit-discrepancy">{c.discrepancy.status === 'mean-fits' ? 'not needed' : 'unreachable'}</span>
-                  )}
-                </td>
-                <td>
-                  {c.discrepancy.status === 'found' ? (
-                    <>
-                      Multiply every variance and the nugget by {fmt(c.discrepancy.scale)} to make χ² = M = {c.discrepancy.target}.{' '}
-                      <button type="button" data-testid="discrepancy-apply" onClick={() => c.discrepancy.prior && apply(c.discrepancy.prior)}>
-                        Apply scaling
-                      </button>
-                    </>
-                  ) : c.discrepancy.status === 'mean-fits' ? (
-                    `The prior mean alone fits the data to χ² = ${fmt(c.discrepancy.chi2)} ≤ M: no scaling reaches χ² = M.`
-                  ) : (
-                    `Even an unbounded variance leaves χ² = ${fmt(c.discrepancy.chi2)} > M: part of the data cannot be fitted by this prior.`
-                  )}
-                </td>
-              </tr>
+              <DiscrepancyRow d={c.discrepancy} apply={apply} />
+              <DiscrepancyRow d={c.discrepancyExpected} apply={apply} />
               <tr>
                 <td title="q = (d − G m0)ᵀ K⁻¹ (d − G m0) against χ²_M">prior predictive check</td>
                 <td>
@@ -103,6 +80,45 @@ export function CriteriaPanel() {
       )}
       <CalibrationPanel />
     </section>
+  );
+}
+
+/**
+ * One form of the discrepancy rule: the scale it asks for, what it targets in plain words, and the
+ * scaling offered as that form's suggestion (never as "the" fix).
+ */
+function DiscrepancyRow({ d, apply }: { d: DiscrepancyResult; apply: (p: PriorSpec) => void }) {
+  const classical = d.form === 'classical';
+  const id = classical ? 'crit-discrepancy' : 'crit-discrepancy-expected';
+  const name = classical ? 'discrepancy rule, classical (χ² = M)' : 'discrepancy rule, expected value (χ² = M − tr R)';
+  const target = classical ? `χ² = M = ${d.target}` : `χ² = its expected value ${fmt(d.target)} (M minus the resolved parameters at that scale)`;
+  return (
+    <tr data-testid={`${id}-row`}>
+      <td title={DISCREPANCY_FORM_WORDS[d.form]}>{name}</td>
+      <td>
+        {d.status === 'found' ? (
+          <>
+            × <Num testId={id} value={d.scale} text={fmt(d.scale)} />
+          </>
+        ) : (
+          <span data-testid={id}>{d.status === 'mean-fits' ? 'not needed' : 'unreachable'}</span>
+        )}
+      </td>
+      <td>
+        {d.status === 'found' ? (
+          <>
+            Targets {target}: multiplying every variance and the nugget by {fmt(d.scale)} gets there. {classical ? 'With a correct prior this rule asks for a stiffer prior, because the posterior mean also fits part of the noise.' : 'A correct prior meets this target on average, but one data set gives a noisy scale.'}{' '}
+            <button type="button" data-testid={classical ? 'discrepancy-apply' : 'discrepancy-expected-apply'} onClick={() => d.prior && apply(d.prior)}>
+              Apply this scaling
+            </button>
+          </>
+        ) : d.status === 'mean-fits' ? (
+          `The prior mean alone fits the data to χ² = ${fmt(d.chi2)}: no scaling reaches ${classical ? 'χ² = M' : 'the expected value'}.`
+        ) : (
+          `Even an unbounded variance leaves χ² = ${fmt(d.chi2)} above ${classical ? 'M' : 'its expected value'}: part of the data cannot be fitted by this prior.`
+        )}
+      </td>
+    </tr>
   );
 }
 

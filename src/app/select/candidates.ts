@@ -41,7 +41,7 @@ export interface ScoreColumn {
 export const SCORE_COLUMNS: readonly ScoreColumn[] = [
   { id: 'logEvidence', label: 'log evidence', tip: 'log N(d; G m0, G Cm Gᵀ + Cd), natural log', better: 'higher' },
   { id: 'loo', label: 'LOO log score', tip: 'Σᵢ log p(dᵢ | d₋ᵢ): how well each datum is predicted from the others', better: 'higher' },
-  { id: 'chi2', label: 'χ²/M', tip: 'χ² of the normalised residuals of the posterior mean, per datum', better: 'closer to 1' },
+  { id: 'chi2', label: 'χ² / expected', tip: 'χ² of the posterior mean divided by its expected value under this candidate, M − tr R (not M: the mean also fits part of the noise); a correct prior gives 1 on average', better: 'closer to 1' },
   { id: 'ppp', label: 'prior predictive p', tip: 'two-sided p-value of q = rᵀK⁻¹r against χ²_M', better: null },
   { id: 'coverage', label: 'coverage 68% / 95%', tip: 'self-calibration: truth drawn from this candidate, inverted with it (run the cross-table)', better: null },
   { id: 'condition', label: 'cond(Cm)', tip: 'condition number of the prior covariance (a lower estimate on large grids)', better: 'lower' },
@@ -88,7 +88,7 @@ export function scoreRows(
     const v: Record<string, number> = {
       logEvidence: s.logEvidence,
       loo: s.looLogScore,
-      chi2: s.chi2PerDatum,
+      chi2: s.chi2OverExpected,
       ppp: s.predictiveP,
       condition: s.conditionNumber,
     };

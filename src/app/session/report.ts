@@ -13,6 +13,8 @@ import { practicalRange } from '../../core/kernels/correlation.ts';
 import { DEFAULT_MATERN_NU, type Term } from '../../core/kernels/spec.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
 import { writePriorFile } from '../../core/io/priorFile.ts';
+import type { DataFitReference } from '../../core/inverse/fitReference.ts';
+import { FIT_REFERENCE_BASIS, fitVerdict, formatTail } from '../posteriorView.ts';
 
 export interface ReportModel {
   readonly title: string;
@@ -24,6 +26,18 @@ export interface ReportModel {
   readonly fit: readonly (readonly [string, string])[];
   readonly caution: string;
   readonly created: string;
+}
+
+/** The data-fit reference rows: expected χ², its 95% interval, the tail probability, the verdict and what it rests on. */
+export function fitReferenceRows(chi2: number, ref: DataFitReference | null): [string, string][] {
+  if (!ref) return [['Reference for χ²', 'not available (no data)']];
+  return [
+    ['Expected χ² under the model (M − tr R)', g4(ref.expected)],
+    ['95% interval of χ²', `${g4(ref.interval95[0])} – ${g4(ref.interval95[1])}`],
+    ['P(χ² ≥ observed)', formatTail(ref.upperTail)],
+    ['Fit', fitVerdict(chi2, ref).text],
+    ['Reference rests on', FIT_REFERENCE_BASIS],
+  ];
 }
 
 const g4 = (x: number) => (Number.isFinite(x) ? Number(x.toPrecision(4)).toString() : String(x));
@@ -78,8 +92,8 @@ export function reportModel(s: WorkbenchState, caution: string, now = new Date()
   const post = s.posterior;
   const fit: [string, string][] = post
     ? [
-        ['χ²/M', g4(post.summary.chi2 / post.summary.dataCount)],
-        ...(post.chi2Interval ? [['95% interval of χ²/M', `${g4(post.chi2Interval[0])} – ${g4(post.chi2Interval[1])}`] as [string, string]] : []),
+        ['χ² of the posterior mean', `${g4(post.summary.chi2)} (M = ${post.summary.dataCount} data)`],
+        ...fitReferenceRows(post.summary.chi2, post.summary.fitReference ?? null),
         ['Resolved parameters (tr R)', g4(post.summary.resolutionTrace)],
         ['log evidence', g4(post.summary.logEvidence)],
       ]

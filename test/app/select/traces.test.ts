@@ -70,7 +70,7 @@ describe('scores table rows', () => {
     ok: true,
     logEvidence,
     looLogScore: logEvidence - 1,
-    chi2PerDatum: chi2,
+    chi2OverExpected: chi2,
     predictiveReduced: 1,
     predictiveP: 0.5,
     conditionNumber: 10 * logEvidence,
