@@ -11,12 +11,14 @@ import type { Matrix } from '../core/linalg/matrix.ts';
 import { diagnosePriorAuto, STRUCTURED_DIAGNOSTICS_MIN_CELLS } from '../core/prior/structuredDiagnostics.ts';
 import { structuredPosteriorDraws } from '../core/inverse/structuredDraws.ts';
 import { priorRealisationsWithRoute } from '../core/sampling/realisations.ts';
-import { posteriorRealisations, posteriorSummary, preparePosterior } from '../core/inverse/posterior.ts';
+import { posteriorRealisations, preparePosterior } from '../core/inverse/posterior.ts';
 import { choosePosteriorPath, FFT_MIN_CELLS, PATH_REQUESTS, type PathRequest } from '../core/inverse/auto.ts';
-import { prepareStructuredPosterior, structuredPosteriorStd, structuredPosteriorSummary } from '../core/inverse/structured.ts';
-import { parallelPosteriorStd, varianceFlops } from '../core/parallel/blocks.ts';
+import { prepareStructuredPosterior } from '../core/inverse/structured.ts';
+import type { BlockPool } from '../core/parallel/blocks.ts';
+import { computePosterior, type PosteriorPool } from '../core/inverse/compute.ts';
+import type { PriorSpec } from '../core/prior/spec.ts';
+import type { Problem } from '../core/problems/spec.ts';
 import { defaultThreads, nodeBlockPool } from '../core/parallel/node.ts';
-import { prepareStructuredPosteriorParallel, productsWorthSplitting } from '../core/parallel/products.ts';
 import type { PosteriorSummary } from '../core/inverse/types.ts';
 import { DEMOS } from '../core/problems/demos.ts';
 import { evidenceMap, type LogAxis } from '../core/tuning/evidenceMap.ts';
@@ -124,39 +126,30 @@ function threadsOption(args: ParsedArgs): { threads: number; forced: boolean } {
 export const CLI_MIN_SPLIT_FLOPS = 1e10;
 
 /**
- * The posterior through the path `requested` resolves to (src/core/inverse/auto.ts). On the FFT
- * path, with `threads` ≥ 2 and a std solve of at least {@link CLI_MIN_SPLIT_FLOPS} (or `forced`,
- * an explicit --threads), a pool of `threads` worker threads is started before the mean, so the
- * workers boot while the caller computes its share: the mean's Bᵀ products split over the caller
- * and threads − 1 workers (src/core/parallel/products.ts, when productsWorthSplitting or forced),
- * then the std's column blocks over all threads (src/core/parallel/blocks.ts). A pool is never
- * started for the products alone. The result is bit-identical for every thread count.
+ * The posterior through src/core/inverse/compute.ts computePosterior, with a pool of `threads`
+ * worker threads that starts only when the std solve is at least {@link CLI_MIN_SPLIT_FLOPS} (or
+ * `forced`, an explicit --threads), and is closed afterwards. The result is bit-identical for every
+ * thread count.
  */
 export async function cliPosterior(
-  problem: Parameters<typeof choosePosteriorPath>[0],
-  prior: Parameters<typeof choosePosteriorPath>[1],
+  problem: Problem,
+  prior: PriorSpec,
   requested: PathRequest,
   threads: number,
   forced = false,
 ): Promise<{ summary: PosteriorSummary; reason: string; threadsUsed: number }> {
-  const decision = choosePosteriorPath(problem, prior, requested, '--path');
-  if (decision.path === 'dense') return { summary: posteriorSummary(preparePosterior(problem, prior)), reason: decision.reason, threadsUsed: 1 };
-  const m = problem.data.values.length;
-  const n = cellCount(problem.grid);
-  if (threads < 2 || (!forced && varianceFlops(m, n) < CLI_MIN_SPLIT_FLOPS)) {
-    const state = prepareStructuredPosterior(problem, prior);
-    return { summary: structuredPosteriorSummary(state, structuredPosteriorStd(state)), reason: decision.reason, threadsUsed: 1 };
-  }
-  const pool = nodeBlockPool(threads);
+  let started: BlockPool | null = null;
+  const pool: PosteriorPool = {
+    get: () => started ?? (started = nodeBlockPool(threads)),
+    threads,
+    minSplitFlops: CLI_MIN_SPLIT_FLOPS,
+    force: forced,
+  };
   try {
-    const state =
-      forced || productsWorthSplitting(m, problem.grid.shape, threads)
-        ? await prepareStructuredPosteriorParallel(problem, prior, pool)
-        : prepareStructuredPosterior(problem, prior);
-    const std = await parallelPosteriorStd(state, pool);
-    return { summary: structuredPosteriorSummary(state, std), reason: decision.reason, threadsUsed: threads };
+    const r = await computePosterior(problem, prior, { path: requested, field: '--path', pool });
+    return { summary: r.summary, reason: r.decision.reason, threadsUsed: r.threadsUsed };
   } finally {
-    await pool.close();
+    if (started !== null) await (started as BlockPool).close();
   }
 }
 

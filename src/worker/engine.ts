@@ -9,14 +9,12 @@ import type { PriorSpec } from '../core/prior/spec.ts';
 import { cellCount } from '../core/grid/grid.ts';
 import { diagnosePriorAuto } from '../core/prior/structuredDiagnostics.ts';
 import { structuredPosteriorDraws, structuredResolutionRow } from '../core/inverse/structuredDraws.ts';
-import { prepareStructuredPosteriorParallel, productsWorthSplitting } from '../core/parallel/products.ts';
 import { wasmGemmAvailable } from '../core/wasm/gemmNT.ts';
 import { wasmAvailable } from '../core/wasm/varianceBlock.ts';
 import { covarianceMatrix, meanVector } from '../core/prior/covariance.ts';
 import { priorRealisations } from '../core/sampling/realisations.ts';
 import {
   posteriorRealisations,
-  posteriorSummary,
   preparePosterior,
   resolutionRow,
   type PosteriorState,
@@ -24,16 +22,13 @@ import {
 import { assertNever, InputError } from '../core/errors.ts';
 import { choosePosteriorPath } from '../core/inverse/auto.ts';
 import {
-  prepareStructuredPosterior,
   structuredDataFit,
-  structuredPosteriorStd,
-  structuredPosteriorSummary,
   structuredProblem,
   type StructuredProblem,
 } from '../core/inverse/structured.ts';
-import { parallelPosteriorStd, varianceFlops, worthSplitting, type BlockPool } from '../core/parallel/blocks.ts';
+import { varianceFlops, type BlockPool } from '../core/parallel/blocks.ts';
+import { computePosterior, prepareStructured } from '../core/inverse/compute.ts';
 import type { StructuredPosteriorState } from '../core/inverse/structured.ts';
-import type { PosteriorSummary } from '../core/inverse/types.ts';
 import { serialiseError, transferables, type PosteriorPartial, type WorkerReply, type ProblemView, type RequestKind, type ResultMap, type WorkerRequest } from './protocol.ts';
 import { isTuningRequest, runTuning } from './tuning.ts';
 
@@ -192,10 +187,7 @@ export class Engine {
     progress('posterior mean (FFT path)', 0.1);
     const sp = this.structured ?? (this.structured = structuredProblem(problem));
     const pool = this.options.pool;
-    const state =
-      pool !== undefined && productsWorthSplitting(problem.data.values.length, problem.grid.shape, pool.threads)
-        ? await prepareStructuredPosteriorParallel(sp, prior, pool.get())
-        : prepareStructuredPosterior(sp, prior);
+    const state = await prepareStructured(sp, prior, pool && { get: () => pool.get(), threads: pool.threads });
     this.structuredCached = { key, state };
     return state;
   }
@@ -239,24 +231,23 @@ export class Engine {
         this.setProblemInternal(r.problem, r.version);
         return problemView(r.problem, r.version, { demoId: null, description: '', startPrior: null, truthPrior: null });
       case 'posterior': {
-        // Path by src/core/inverse/auto.ts (FFT for stationary priors on grids of ≥ 128 cells). On
-        // the FFT path the mean goes out first (a `partial`), then the bands with the result.
+        // Route and threads by src/core/inverse/compute.ts (FFT for stationary priors on grids of
+        // ≥ 128 cells). On the FFT route the mean goes out first (a `partial`), then the bands.
         const problem = this.requireProblem(r.problemVersion);
-        let summary: PosteriorSummary;
-        if (choosePosteriorPath(problem, r.prior).path === 'fft') {
-          const st = await this.structuredState(r.problemVersion, r.prior, progress);
-          if (varianceFlops(st.L.rows, st.Bt.cols) >= (this.options.partialMinFlops ?? PARTIAL_MIN_FLOPS)) partial(structuredPartial(st));
-          progress('posterior standard deviations', 0.5);
-          const pool = this.options.pool;
-          const std =
-            pool !== undefined && worthSplitting(st.L.rows, st.Bt.cols, pool.threads) ? await parallelPosteriorStd(st, pool.get()) : structuredPosteriorStd(st);
-          // A copy of the mean: the result's buffers are transferred, and `st` stays cached.
-          summary = structuredPosteriorSummary({ ...st, mean: st.mean.slice() }, std);
-        } else {
-          const state = this.state(r.problemVersion, r.prior, progress);
-          progress('posterior mean and variance', 0.6);
-          summary = posteriorSummary(state);
-        }
+        const pool = this.options.pool;
+        const { summary } = await computePosterior(problem, r.prior, {
+          pool: pool && { get: () => pool.get(), threads: pool.threads },
+          dense: () => {
+            const state = this.state(r.problemVersion, r.prior, progress);
+            progress('posterior mean and variance', 0.6);
+            return state;
+          },
+          structured: () => this.structuredState(r.problemVersion, r.prior, progress),
+          onPartial: (st) => {
+            if (varianceFlops(st.L.rows, st.Bt.cols) >= (this.options.partialMinFlops ?? PARTIAL_MIN_FLOPS)) partial(structuredPartial(st));
+            progress('posterior standard deviations', 0.5);
+          },
+        });
         return { summary, priorMean: meanVector(problem.grid, r.prior) };
       }
       case 'diagnostics':

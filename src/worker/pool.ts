@@ -5,7 +5,7 @@
  * (src/core/parallel/products.ts prepareStructuredPosteriorParallel; each worker keeps its share's
  * spectra between prior changes). Bᵀ is shared (SharedArrayBuffer) only when the page is
  * crossOriginIsolated; otherwise the rows come back transferred. Created lazily by the numerics
- * worker the first time a posterior is large enough to split (worthSplitting /
+ * worker the first time a posterior is large enough to split (src/core/inverse/compute.ts stdSplits /
  * productsWorthSplitting); results are bit-identical to one thread (test/core/parallel runs the
  * same tasks over worker_threads).
  */

@@ -7,11 +7,11 @@
 import { describe, expect, it } from 'vitest';
 import { fitVerdict, formatTail } from '../../src/app/posteriorView.ts';
 import { fitReferenceRows } from '../../src/app/session/report.ts';
-import { posteriorAuto } from '../../src/core/inverse/structured.ts';
+import { computePosteriorSerial } from '../../src/core/inverse/compute.ts';
 import { demoById } from '../../src/core/problems/demos.ts';
 
 const { problem, startPrior } = demoById('borehole-log').build();
-const s = posteriorAuto(problem, startPrior);
+const s = computePosteriorSerial(problem, startPrior).summary;
 const ref = s.fitReference!;
 
 describe('fit verdict', () => {

@@ -19,17 +19,14 @@
  * The FFT side wins more with a warm spectrum cache (a prior change on the same problem), so the
  * threshold sits at the measured cold crossing. See test/core/inverse/auto.test.ts.
  *
- * PUBLIC API: PathRequest, PATH_REQUESTS, FFT_MIN_CELLS, PathDecision, choosePosteriorPath,
- * posteriorWithPath.
+ * PUBLIC API: PathRequest, PATH_REQUESTS, FFT_MIN_CELLS, PathDecision, choosePosteriorPath. The
+ * posterior itself, on the chosen route, comes from ./compute.ts computePosterior.
  */
 import { assertNever, InputError } from '../errors.ts';
 import { cellCount } from '../grid/grid.ts';
 import { nonStationaryReason } from '../fft/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
-import { posteriorSummary, preparePosterior } from './posterior.ts';
-import { prepareStructuredPosterior, structuredPosteriorSummary, type StructuredProblem } from './structured.ts';
-import type { PosteriorSummary } from './types.ts';
 
 export type PathRequest = 'auto' | 'dense' | 'fft';
 export const PATH_REQUESTS: readonly PathRequest[] = ['auto', 'dense', 'fft'];
@@ -64,17 +61,4 @@ export function choosePosteriorPath(problem: Problem, prior: PriorSpec, requeste
     default:
       return assertNever(requested);
   }
-}
-
-/** The posterior summary through the chosen path; `summary.path` says which ran. */
-export function posteriorWithPath(
-  sp: StructuredProblem | Problem,
-  prior: PriorSpec,
-  requested: PathRequest = 'auto',
-): { summary: PosteriorSummary; decision: PathDecision } {
-  const problem = 'cacheBytes' in sp ? sp.problem : sp;
-  const decision = choosePosteriorPath(problem, prior, requested);
-  const summary =
-    decision.path === 'fft' ? structuredPosteriorSummary(prepareStructuredPosterior(sp, prior)) : posteriorSummary(preparePosterior(problem, prior));
-  return { summary, decision };
 }

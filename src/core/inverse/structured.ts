@@ -18,7 +18,7 @@
  * arithmetic is the same whatever the blocks, so split runs are identical to one run).
  *
  * PUBLIC API: structuredProblem, prepareStructuredPosterior, structuredPosteriorStd,
- * structuredVarianceBlock, structuredPosteriorSummary, posteriorAuto.
+ * structuredVarianceBlock, structuredPosteriorSummary.
  */
 import { assertNever, InputError, NotPositiveDefiniteError } from '../errors.ts';
 import { cellCount } from '../grid/grid.ts';
@@ -31,7 +31,6 @@ import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
 import { chiSquareInterval } from './chisquare.ts';
 import { dataFitReference, weightsFromWhitened } from './fitReference.ts';
-import { posteriorSummary, preparePosterior } from './posterior.ts';
 import { VARIANCE_BLOCK } from './varianceBlock.ts';
 import { wasmVarianceBlock } from '../wasm/varianceBlock.ts';
 
@@ -254,7 +253,7 @@ export function keepSpectra(holder: StructuredProblem, cp: CirculantProduct, s: 
 /**
  * Factors the posterior through the FFT path and computes the mean. Throws InputError for a bad
  * prior or problem, NotPositiveDefiniteError when K does not factor, and InputError when the prior
- * is not stationary on the grid (use {@link posteriorAuto} to fall back to the dense path).
+ * is not stationary on the grid (./compute.ts computePosterior falls back to the dense path).
  */
 export function prepareStructuredPosterior(sp: StructuredProblem | Problem, prior: PriorSpec): StructuredPosteriorState {
   const setup = structuredSetup(sp, prior);
@@ -551,12 +550,3 @@ function diagonalMatrix(v: ArrayLike<number>): Matrix {
   return out;
 }
 
-/**
- * The posterior summary through the FFT path when the prior is stationary on the grid, else the
- * dense path (prior/covariance.ts + inverse/posterior.ts); `summary.path` says which ran.
- */
-export function posteriorAuto(sp: StructuredProblem | Problem, prior: PriorSpec): PosteriorSummary {
-  const problem = 'cacheBytes' in sp ? sp.problem : sp;
-  if (nonStationaryReason(problem.grid, prior) !== null) return posteriorSummary(preparePosterior(problem, prior));
-  return structuredPosteriorSummary(prepareStructuredPosterior(sp, prior));
-}

@@ -13,7 +13,7 @@
  * blocks anyway), so the split result equals the single-thread one bit for bit.
  *
  * PUBLIC API: VarianceTask, BlockPool, columnRanges, varianceTask, runVarianceTask,
- * parallelPosteriorVariance, parallelPosteriorStd, worthSplitting, MIN_SPLIT_FLOPS.
+ * parallelPosteriorVariance, parallelPosteriorStd, MIN_SPLIT_FLOPS (used by ../inverse/compute.ts stdSplits).
  */
 import { InputError } from '../errors.ts';
 import type { Matrix } from '../linalg/matrix.ts';
@@ -102,10 +102,6 @@ export function varianceFlops(m: number, n: number): number {
  * 128² M = 400 (1.3e9): 1275 / 802, 974 / 764, 930 / 1087 ms — 1.2–1.6× in two runs of three.
  */
 export const MIN_SPLIT_FLOPS = 5e8;
-
-export function worthSplitting(m: number, n: number, threads: number): boolean {
-  return threads > 1 && varianceFlops(m, n) >= MIN_SPLIT_FLOPS;
-}
 
 /**
  * Posterior variances (length N) of the structured state split over the pool: 2 tasks per thread

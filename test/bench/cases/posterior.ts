@@ -9,7 +9,7 @@
  */
 import { cellCoordinates, type Grid } from '../../../src/core/grid/grid.ts';
 import { posteriorSummary, preparePosteriorFromCovariance } from '../../../src/core/inverse/posterior.ts';
-import { posteriorWithPath } from '../../../src/core/inverse/auto.ts';
+import { computePosteriorSerial } from '../../../src/core/inverse/compute.ts';
 import { structuredProblem } from '../../../src/core/inverse/structured.ts';
 import { matrix } from '../../../src/core/linalg/matrix.ts';
 import { applyOperator, type Operator } from '../../../src/core/linalg/operator.ts';
@@ -72,7 +72,7 @@ function autoCase(kind: 'dense' | 'sparse', n: number, m: number, cached: boolea
     setup: () => {
       const s = setup(kind, n, m);
       const sp = structuredProblem(s.problem);
-      return () => posteriorWithPath(cached ? sp : s.problem, s.prior).summary;
+      return () => computePosteriorSerial(cached ? sp : s.problem, s.prior).summary;
     },
   };
 }

@@ -1,11 +1,12 @@
 /**
  * Path choice (src/core/inverse/auto.ts): the rule, the refusal of a forced FFT path it cannot
- * take, and that posteriorWithPath's two paths agree to 1e-10 relative on the demos (both are the
+ * take, and that computePosteriorSerial's two paths agree to 1e-10 relative on the demos (both are the
  * data-space form of Tarantola 2005 §3.2; the dense path is itself checked against scipy in
  * test/reference/posterior.test.ts, and the CLI's paths against scipy in test/cli/path.test.ts).
  */
 import { describe, expect, it } from 'vitest';
-import { choosePosteriorPath, FFT_MIN_CELLS, posteriorWithPath } from '../../../src/core/inverse/auto.ts';
+import { choosePosteriorPath, FFT_MIN_CELLS } from '../../../src/core/inverse/auto.ts';
+import { computePosteriorSerial } from '../../../src/core/inverse/compute.ts';
 import { InputError } from '../../../src/core/errors.ts';
 import { matrix } from '../../../src/core/linalg/matrix.ts';
 import { DEMOS } from '../../../src/core/problems/demos.ts';
@@ -36,11 +37,11 @@ describe('choosePosteriorPath', () => {
   });
 });
 
-describe('posteriorWithPath on the demos', () => {
+describe('computePosterior on the demos', () => {
   it.each(DEMOS.map((d) => [d.id, d] as const))('%s: auto runs the FFT path and equals the dense path to 1e-10', (_, demo) => {
     const { problem, startPrior } = demo.build();
-    const auto = posteriorWithPath(problem, startPrior);
-    const dense = posteriorWithPath(problem, startPrior, 'dense');
+    const auto = computePosteriorSerial(problem, startPrior);
+    const dense = computePosteriorSerial(problem, startPrior, 'dense');
     expect(auto.summary.path).toBe('fft');
     expect(dense.summary.path).toBe('dense');
     for (const k of ['mean', 'std'] as const) {

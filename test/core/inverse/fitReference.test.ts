@@ -14,7 +14,7 @@ import { fitWeights, WeightedChiSquare } from '../../../src/core/inverse/fitRefe
 import { matrix } from '../../../src/core/linalg/matrix.ts';
 import type { Operator } from '../../../src/core/linalg/operator.ts';
 import { posteriorSummary, preparePosterior } from '../../../src/core/inverse/posterior.ts';
-import { posteriorAuto } from '../../../src/core/inverse/structured.ts';
+import { computePosteriorSerial } from '../../../src/core/inverse/compute.ts';
 import type { Grid } from '../../../src/core/grid/grid.ts';
 import type { PriorSpec } from '../../../src/core/prior/spec.ts';
 import type { Problem } from '../../../src/core/problems/spec.ts';
@@ -115,7 +115,7 @@ function weightsAtPrior(): WeightedChiSquare {
 describe('the built-in demos are not flagged', () => {
   it('the borehole demo with its starting prior: χ² = 7.2 lies inside the reference interval (it was flagged against χ²_50)', () => {
     const { problem, startPrior } = demoById('borehole-log').build();
-    const s = posteriorAuto(problem, startPrior);
+    const s = computePosteriorSerial(problem, startPrior).summary;
     const r = s.fitReference!;
     expect(s.chi2).toBeGreaterThan(r.interval95[0]);
     expect(s.chi2).toBeLessThan(r.interval95[1]);
@@ -124,14 +124,14 @@ describe('the built-in demos are not flagged', () => {
   for (const d of DEMOS) {
     it(`${d.id}: data drawn from the truth prior lie inside the interval with that prior`, () => {
       const { problem, truthPrior } = d.build();
-      const s = posteriorAuto(problem, truthPrior);
+      const s = computePosteriorSerial(problem, truthPrior).summary;
       expect(s.chi2).toBeGreaterThan(s.fitReference!.interval95[0]);
       expect(s.chi2).toBeLessThan(s.fitReference!.interval95[1]);
     });
   }
   it('dense and FFT routes give the same reference on the borehole demo (1e-9 relative)', () => {
     const { problem, startPrior } = demoById('borehole-log').build();
-    const f = posteriorAuto(problem, startPrior);
+    const f = computePosteriorSerial(problem, startPrior).summary;
     const dn = posteriorSummary(preparePosterior(problem, startPrior));
     expect(f.path).toBe('fft');
     const a = f.fitReference!;

@@ -3,10 +3,12 @@
  * inverse/posterior.ts, written independently by other modules) on small grids; the outside check
  * against scipy is in test/reference/fft_posterior.test.ts.
  */
+import { computePosteriorSerial } from '../../../src/core/inverse/compute.ts';
+import { FFT_MIN_CELLS } from '../../../src/core/inverse/auto.ts';
+import { cellCount } from '../../../src/core/grid/grid.ts';
 import { describe, expect, it } from 'vitest';
 import { posteriorSummary, preparePosterior } from '../../../src/core/inverse/posterior.ts';
 import {
-  posteriorAuto,
   prepareStructuredPosterior,
   structuredPosteriorStd,
   structuredPosteriorSummary,
@@ -131,8 +133,11 @@ describe('progressive std by column blocks', () => {
 });
 
 describe('path choice and bad input', () => {
-  it('posteriorAuto takes the FFT path for a stationary prior', () => {
-    expect(posteriorAuto(rayProblem(5, 40), PRIORS[0]!.prior).path).toBe('fft');
+  it('one route rule (FFT_MIN_CELLS): auto stays dense on this grid below 128 cells, fft on request', () => {
+    const p = rayProblem(5, 40);
+    expect(cellCount(p.grid)).toBeLessThan(FFT_MIN_CELLS);
+    expect(computePosteriorSerial(p, PRIORS[0]!.prior).summary.path).toBe('dense');
+    expect(computePosteriorSerial(p, PRIORS[0]!.prior, 'fft').summary.path).toBe('fft');
   });
 
   it('names the field when the data length does not match the operator', () => {

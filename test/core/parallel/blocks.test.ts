@@ -7,7 +7,7 @@
  */
 import { afterAll, describe, expect, it } from 'vitest';
 import { prepareStructuredPosterior, structuredPosteriorStd, VARIANCE_BLOCK } from '../../../src/core/inverse/structured.ts';
-import { columnRanges, parallelPosteriorStd, runVarianceTask, varianceTask, worthSplitting } from '../../../src/core/parallel/blocks.ts';
+import { columnRanges, parallelPosteriorStd, runVarianceTask, varianceTask } from '../../../src/core/parallel/blocks.ts';
 import { nodeBlockPool } from '../../../src/core/parallel/node.ts';
 import type { SparseMatrix } from '../../../src/core/linalg/sparse.ts';
 import type { PriorSpec } from '../../../src/core/prior/spec.ts';
@@ -68,12 +68,6 @@ describe('split standard deviations', () => {
     const v = new Float64Array(n);
     for (let k = 0; k + 1 < cuts.length; k++) v.set(runVarianceTask(varianceTask(state.L, state.Bt, state.priorVariance, cuts[k]!, cuts[k + 1]!)), cuts[k]!);
     for (let i = 0; i < n; i++) expect(Object.is(Math.sqrt(v[i]!), single[i])).toBe(true);
-  });
-
-  it('worthSplitting: no at 64² with M = 400 (measured no gain), yes at 128², never on one thread', () => {
-    expect(worthSplitting(400, 64 * 64, 2)).toBe(false);
-    expect(worthSplitting(400, 128 * 128, 2)).toBe(true);
-    expect(worthSplitting(400, 128 * 128, 1)).toBe(false);
   });
 
   it('64² with M = 400 (the benchmark problem), split anyway, matches the dense scipy route to 1e-10', async () => {

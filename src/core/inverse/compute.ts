@@ -1,0 +1,111 @@
+/**
+ * The one posterior entry of the core, used by the worker engine (src/worker/engine.ts) and the
+ * command line (src/cli/commands.ts): the route (dense or FFT, ./auto.ts choosePosteriorPath), the
+ * thread split of the FFT route's products and standard deviations, and the FFT route's early
+ * mean (`onPartial`) are decided here once. Every route and thread count gives the same numbers to
+ * round-off (the thread split gives the same bits; test/core/parallel, test/cli/threads.test.ts).
+ */
+import { cellCount } from '../grid/grid.ts';
+import { MIN_SPLIT_FLOPS, parallelPosteriorStd, varianceFlops, type BlockPool } from '../parallel/blocks.ts';
+import { prepareStructuredPosteriorParallel, productsWorthSplitting } from '../parallel/products.ts';
+import type { PriorSpec } from '../prior/spec.ts';
+import type { Problem } from '../problems/spec.ts';
+import { choosePosteriorPath, type PathDecision, type PathRequest } from './auto.ts';
+import { posteriorSummary, preparePosterior, type PosteriorState } from './posterior.ts';
+import {
+  prepareStructuredPosterior,
+  structuredPosteriorStd,
+  structuredPosteriorSummary,
+  type StructuredPosteriorState,
+  type StructuredProblem,
+} from './structured.ts';
+import type { PosteriorSummary } from './types.ts';
+
+/** Threads for the FFT route. */
+export interface PosteriorPool {
+  /** The pool; called only when a split is decided, so a caller may start it on the first call. */
+  get(): BlockPool;
+  readonly threads: number;
+  /**
+   * Smallest std solve (multiply-adds, parallel/blocks.ts varianceFlops) for which the pool is used.
+   * Default MIN_SPLIT_FLOPS, measured for a pool that is already running (the browser's); a caller
+   * that starts a pool per computation (the command line) sets its own, higher break-even.
+   */
+  readonly minSplitFlops?: number;
+  /** Split the products and the std whatever the size (an explicit thread count). */
+  readonly force?: boolean;
+}
+
+export interface PosteriorOptions {
+  /** 'auto' (default), 'dense' or 'fft'. */
+  readonly path?: PathRequest;
+  /** Names where the path request came from in the InputError of an impossible 'fft' (e.g. '--path'). */
+  readonly field?: string;
+  readonly pool?: PosteriorPool;
+  /** FFT route: called with the factored state (mean, predicted data) before the standard deviations. */
+  readonly onPartial?: (state: StructuredPosteriorState) => void;
+  /** The dense route's prepared state, e.g. from a cache (default: prepared here). */
+  readonly dense?: () => PosteriorState;
+  /** The FFT route's prepared state, e.g. from a cache (default: {@link prepareStructured}). */
+  readonly structured?: () => Promise<StructuredPosteriorState>;
+}
+
+export interface ComputedPosterior {
+  readonly summary: PosteriorSummary;
+  readonly decision: PathDecision;
+  /** Threads that computed the standard deviations (1 when not split). */
+  readonly threadsUsed: number;
+}
+
+/** True when the FFT route's std solve of M data on N cells goes over `pool`. */
+export function stdSplits(pool: PosteriorPool | undefined, m: number, n: number): pool is PosteriorPool {
+  if (pool === undefined || pool.threads < 2) return false;
+  return pool.force === true || varianceFlops(m, n) >= (pool.minSplitFlops ?? MIN_SPLIT_FLOPS);
+}
+
+/**
+ * The FFT route's state (Bᵀ, L, mean); the Bᵀ products go over `pool` when forced or when
+ * parallel/products.ts productsWorthSplitting says they gain (same bits as one thread).
+ */
+export async function prepareStructured(sp: StructuredProblem | Problem, prior: PriorSpec, pool?: PosteriorPool): Promise<StructuredPosteriorState> {
+  const problem = 'cacheBytes' in sp ? sp.problem : sp;
+  const split =
+    pool !== undefined && pool.threads > 1 && (pool.force === true || productsWorthSplitting(problem.data.values.length, problem.grid.shape, pool.threads));
+  return split ? prepareStructuredPosteriorParallel(sp, prior, pool.get()) : prepareStructuredPosterior(sp, prior);
+}
+
+/**
+ * Posterior mean, standard deviations, data fit and evidence of (problem, prior) through the route
+ * `options.path` resolves to. On the FFT route, when the std solve is split, the pool is asked for
+ * before the mean (so a pool that starts on demand boots while the mean is computed) and the mean's
+ * products go over it too; a pool is never started for the products alone.
+ */
+export async function computePosterior(sp: StructuredProblem | Problem, prior: PriorSpec, options: PosteriorOptions = {}): Promise<ComputedPosterior> {
+  const problem = 'cacheBytes' in sp ? sp.problem : sp;
+  const decision = choosePosteriorPath(problem, prior, options.path ?? 'auto', options.field);
+  if (decision.path === 'dense') {
+    const state = options.dense ? options.dense() : preparePosterior(problem, prior);
+    return { summary: posteriorSummary(state), decision, threadsUsed: 1 };
+  }
+  const pool = options.pool;
+  const split = stdSplits(pool, problem.data.values.length, cellCount(problem.grid));
+  if (split) pool.get();
+  const state = options.structured ? await options.structured() : await prepareStructured(sp, prior, split ? pool : undefined);
+  options.onPartial?.(state);
+  const std = split ? await parallelPosteriorStd(state, pool.get()) : structuredPosteriorStd(state);
+  // A copy of the mean: a caller may transfer the result's buffers while it keeps `state` cached.
+  const summary = structuredPosteriorSummary({ ...state, mean: state.mean.slice() }, std);
+  return { summary, decision, threadsUsed: split ? pool.threads : 1 };
+}
+
+/**
+ * {@link computePosterior} on one thread without hooks, synchronously: the same route decision and
+ * the same numbers (benchmarks, tests, callers without a pool).
+ */
+export function computePosteriorSerial(sp: StructuredProblem | Problem, prior: PriorSpec, path: PathRequest = 'auto', field?: string): ComputedPosterior {
+  const problem = 'cacheBytes' in sp ? sp.problem : sp;
+  const decision = choosePosteriorPath(problem, prior, path, field);
+  if (decision.path === 'dense') return { summary: posteriorSummary(preparePosterior(problem, prior)), decision, threadsUsed: 1 };
+  const state = prepareStructuredPosterior(sp, prior);
+  return { summary: structuredPosteriorSummary(state, structuredPosteriorStd(state)), decision, threadsUsed: 1 };
+}
