@@ -105,6 +105,8 @@ test('best by evidence applies an optimum whose log evidence is at least the sta
   const opt = await num(page, 'fit-logev');
   expect(rel(start, logEvidence(borehole.problem, s0.prior))).toBeLessThan(TOL);
   expect(opt).toBeGreaterThanOrEqual(start);
+  // The optimum passed the workbench's positive-definiteness check with κ ≤ 1e10 (issue 11 §3).
+  await expect(page.getByTestId('fit-conditioning')).toContainText('positive definite, condition number');
   await page.getByTestId('fit-apply').click();
   const s1 = await settle(page);
   expect(s1.prior).not.toEqual(s0.prior);

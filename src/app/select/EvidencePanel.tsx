@@ -283,10 +283,28 @@ function FitPanel() {
             Log evidence <Num testId="fit-start-logev" value={value.startLogEvidence} text={value.startLogEvidence.toFixed(3)} /> at the start →{' '}
             <Num testId="fit-logev" value={value.logEvidence} text={value.logEvidence.toFixed(3)} /> at the optimum ({value.iterations} iterations,{' '}
             {value.converged ? 'converged' : 'not converged'}){value.note ? `; ${value.note}` : ''}.{' '}
-            <button type="button" className="primary" data-testid="fit-apply" onClick={() => apply(value.prior)}>
+            <button
+              type="button"
+              className="primary"
+              data-testid="fit-apply"
+              onClick={() => apply(value.prior)}
+              disabled={value.conditioning?.usable === false}
+              title={value.conditioning?.usable === false ? 'This optimum fails the positive-definiteness check with condition number ≤ 1e10, so it is not offered' : undefined}
+            >
               Apply optimum
             </button>
           </p>
+          {value.conditioning && (
+            <p className="note" data-testid="fit-conditioning">
+              Prior at the optimum (the workbench&apos;s check):{' '}
+              {value.conditioning.usable
+                ? `positive definite, condition number ${fmt(value.conditioning.conditionNumber, 3)} (within 1e10)`
+                : value.conditioning.positiveDefinite
+                  ? `nearly singular, condition number ${fmt(value.conditioning.conditionNumber, 3)} (above 1e10)`
+                  : 'does not factor'}
+              {value.conditioning.nuggetAtFloor ? '; the nugget sits on the smallest value that guarantees a condition number within 1e10' : ''}.
+            </p>
+          )}
           <table className="sel-table">
             <thead>
               <tr>

@@ -25,6 +25,21 @@
  * gradient is available at the cost of p extra projections, and BFGS needs far fewer evaluations
  * than a simplex method for the 2–7 parameters a prior has.
  *
+ * Conditioning (issue 11 §3): the evidence of a smooth kernel can keep rising as the nugget falls,
+ * towards a prior that no longer factors. With a free nugget η the search is bounded to priors with
+ * κ(Cm) ≤ NEAR_SINGULAR_CONDITION (1e10, the workbench's threshold, ../prior/diagnostics.ts): the
+ * kernel part C₀ = Cm − ηI is positive semi-definite with λmax(C₀) ≤ B, B = max(s)² Σ_offsets |T| (the
+ * absolute lag-table sum bounds every row sum of |C₀|: Gershgorin; s the std profile), so
+ * κ(Cm) = (λmax(C₀) + η)/(λmin(C₀) + η) ≤ (B + η)/η ≤ 1e10 whenever η ≥ B/(1e10 − 1) (our derivation).
+ * That floor is a lower bound on the nugget coordinate; the search is projected BFGS with it as an
+ * active bound (trial points are lifted onto the floor, and while the bound is active and the evidence
+ * still asks for a smaller nugget its gradient component is dropped; Bertsekas 1982, SIAM J. Control
+ * Optim. 20:221, projected Newton/quasi-Newton methods for bounds, memory). The bound is sufficient,
+ * not necessary: on the floor, κ is somewhat below 1e10. Every optimum is then checked with the
+ * workbench's own diagnosis (../prior/structuredDiagnostics.ts diagnosePriorAuto); without a free
+ * nugget nothing bounds the search, and a result that fails the check says so in `conditioning` and
+ * `note`.
+ *
  * Uncertainty: the observed information J = −∇² log p(d) at the optimum, by central differences of
  * the gradient (step 1e-3, symmetrised), and standard errors √diag(J⁻¹) of each coordinate
  * (Laplace approximation of the likelihood surface; common practice, no source). If J is not
@@ -37,6 +52,10 @@ import { identity, matrix, type Matrix } from '../linalg/matrix.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
 import { validatePrior } from '../prior/covariance.ts';
+import { NEAR_SINGULAR_CONDITION } from '../prior/diagnostics.ts';
+import { lagTable } from '../prior/lag.ts';
+import { diagnosePriorAuto } from '../prior/structuredDiagnostics.ts';
+import type { Grid } from '../grid/grid.ts';
 import {
   aborted,
   addMatrices,
@@ -276,6 +295,20 @@ export interface FittedParameter {
   readonly interval95: readonly [number, number];
 }
 
+/** The workbench's positive-definiteness and conditioning check of the optimum. */
+export interface OptimumConditioning {
+  /** The check of ../prior/structuredDiagnostics.ts diagnosePriorAuto: Cm factors. */
+  readonly positiveDefinite: boolean;
+  /** Its condition number (the certified upper bound on the FFT route). */
+  readonly conditionNumber: number;
+  /** positiveDefinite and conditionNumber ≤ NEAR_SINGULAR_CONDITION. */
+  readonly usable: boolean;
+  /** With a free nugget: the nugget sits on its conditioning floor (the evidence asked for less). */
+  readonly nuggetAtFloor: boolean;
+  /** The floor B/(1e10 − 1) at the optimum, or null without a free nugget. */
+  readonly nuggetFloor: number | null;
+}
+
 export interface TypeIIResult {
   readonly prior: PriorSpec;
   readonly start: PriorSpec;
@@ -291,7 +324,28 @@ export interface TypeIIResult {
   readonly evaluations: number;
   readonly converged: boolean;
   readonly cancelled: boolean;
+  /** Whether the optimum passes the workbench's positive-definiteness check with κ ≤ 1e10. */
+  readonly conditioning: OptimumConditioning;
   readonly note?: string;
+}
+
+/**
+ * Upper bound B on λmax of the kernel part of Cm (everything but the nugget): max(s)² Σ |T| over the
+ * whole lag table (each row of C₀ holds each offset at most once, so every absolute row sum is at
+ * most this; Gershgorin).
+ */
+export function kernelEigenvalueBound(grid: Grid, prior: PriorSpec): number {
+  const t = lagTable(grid, prior.terms).values;
+  let sum = 0;
+  for (let i = 0; i < t.length; i++) sum += Math.abs(t[i]!);
+  let smax = 1;
+  if (prior.stdProfile) smax = prior.stdProfile.reduce((a, v) => Math.max(a, Math.abs(v)), 0);
+  return smax * smax * sum;
+}
+
+/** Smallest nugget that guarantees κ(Cm) ≤ NEAR_SINGULAR_CONDITION: B/(1e10 − 1) (see the module comment). */
+export function conditioningNuggetFloor(grid: Grid, prior: PriorSpec): number {
+  return kernelEigenvalueBound(grid, prior) / (NEAR_SINGULAR_CONDITION - 1);
 }
 
 /** Largest step in any coordinate (log units or degrees). */
@@ -319,10 +373,25 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
       throw e;
     }
   };
-  let theta = hyperParameterVector(start, params);
-  let cur = evaluate(theta);
+  // The nugget coordinate and its floor (log), when the nugget is free.
+  const nIdx = params.findIndex((h) => h.field === 'nugget');
+  const logFloor = (th: Float64Array): number => Math.log(conditioningNuggetFloor(problem.grid, applyHyperParameters(start, params, th)));
+  /** θ with the nugget lifted onto its floor (plus a relative 1e-9) where it lies below. */
+  const project = (th: Float64Array): Float64Array => {
+    if (nIdx < 0) return th;
+    const f = logFloor(th) + 1e-9;
+    if (th[nIdx]! < f) th[nIdx] = f;
+    return th;
+  };
+  const startTheta0 = hyperParameterVector(start, params);
+  const startEval = evaluate(startTheta0);
+  if (!Number.isFinite(startEval.logEvidence)) throw new InputError('start prior', 'a prior whose data-space covariance G Cm Gᵀ + Cd factors', 'one that does not');
+  const startLogEvidence = startEval.logEvidence;
+  let theta = project(Float64Array.from(startTheta0));
+  let cur = theta[nIdx] === startTheta0[nIdx] ? startEval : evaluate(theta);
   if (!Number.isFinite(cur.logEvidence)) throw new InputError('start prior', 'a prior whose data-space covariance G Cm Gᵀ + Cd factors', 'one that does not');
-  const startLogEvidence = cur.logEvidence;
+  /** At the floor, with the evidence asking for a smaller nugget (∂φ/∂θ_n > 0). */
+  const atFloor = (th: Float64Array, g: Float64Array): boolean => nIdx >= 0 && th[nIdx]! <= logFloor(th) + 1e-6 && g[nIdx]! > 0;
   // Inverse Hessian approximation of φ = −log p (row-major p × p).
   let H = eye(p);
   let first = true;
@@ -336,16 +405,20 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
       break;
     }
     const g = cur.gradient.map((v) => -v); // ∇φ
-    if (maxAbs(g) < gtol) {
+    // Projected gradient: on an active floor the nugget component is dropped.
+    const active = atFloor(theta, g);
+    const gp = active ? g.map((v, k) => (k === nIdx ? 0 : v)) : g;
+    if (maxAbs(gp) < gtol) {
       converged = true;
       break;
     }
-    let dir = matVec(H, g).map((v) => -v);
-    let slope = dotp(g, dir);
+    let dir = matVec(H, gp).map((v) => -v);
+    if (active) dir[nIdx] = 0;
+    let slope = dotp(gp, dir);
     if (!(slope < 0)) {
       H = eye(p);
-      dir = g.map((v) => -v);
-      slope = dotp(g, dir);
+      dir = gp.map((v) => -v);
+      slope = dotp(gp, dir);
     }
     const big = maxAbs(dir);
     if (big > MAX_STEP) {
@@ -357,7 +430,7 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
     let next: EvidenceAndGradient | null = null;
     let thNext = theta;
     for (let ls = 0; ls < 40; ls++) {
-      thNext = theta.map((v, k) => v + t * dir[k]!);
+      thNext = project(theta.map((v, k) => v + t * dir[k]!));
       const trial = evaluate(thNext);
       if (Number.isFinite(trial.logEvidence) && -trial.logEvidence <= phi0 + 1e-4 * t * slope) {
         next = trial;
@@ -383,22 +456,29 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
     cur = next;
     options.onProgress?.(Math.min(0.9, (iterations + 1) / maxIter));
     if (smallChanges >= 3) {
-      converged = maxAbs(cur.gradient) < 1e3 * gtol;
+      converged = maxAbs(projectedGradient(cur.gradient)) < 1e3 * gtol;
       break;
     }
   }
-  if (!converged && !cancelled && maxAbs(cur.gradient) < gtol) converged = true;
+  function projectedGradient(grad: Float64Array): Float64Array {
+    const g = grad.map((v) => -v);
+    return atFloor(theta, g) ? grad.map((v, k) => (k === nIdx ? 0 : v)) : grad;
+  }
+  if (!converged && !cancelled && maxAbs(projectedGradient(cur.gradient)) < gtol) converged = true;
+  const onFloor = nIdx >= 0 && atFloor(theta, cur.gradient.map((v) => -v));
   // Observed information by central differences of the gradient.
   const info = new Float64Array(p * p);
   if (!cancelled) {
     for (let j = 0; j < p; j++) {
+      // On the floor the nugget is not free: its row and column are left out of the curvature.
+      if (onFloor && j === nIdx) continue;
       const tp = Float64Array.from(theta);
       const tm = Float64Array.from(theta);
       tp[j] += HESSIAN_STEP;
       tm[j] -= HESSIAN_STEP;
       const gp = evaluate(tp).gradient;
       const gm = evaluate(tm).gradient;
-      for (let i = 0; i < p; i++) info[i * p + j] = -(gp[i]! - gm[i]!) / (2 * HESSIAN_STEP);
+      for (let i = 0; i < p; i++) if (!(onFloor && i === nIdx)) info[i * p + j] = -(gp[i]! - gm[i]!) / (2 * HESSIAN_STEP);
     }
     for (let i = 0; i < p; i++) {
       for (let j = 0; j < i; j++) {
@@ -411,18 +491,37 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
   options.onProgress?.(1);
   const cov = new Float64Array(p * p).fill(Number.NaN);
   let note: string | undefined;
-  const f = cholesky({ rows: p, cols: p, data: info.slice() });
+  // The free coordinates of the curvature (all, or all but a nugget on its floor).
+  const free = params.map((_, k) => k).filter((k) => !(onFloor && k === nIdx));
+  const q = free.length;
+  const sub = new Float64Array(q * q);
+  free.forEach((a, i) => free.forEach((b, j) => (sub[i * q + j] = info[a * p + b]!)));
+  const f = cholesky({ rows: q, cols: q, data: sub });
   if (f.ok && !cancelled) {
-    for (let j = 0; j < p; j++) {
-      const e = new Float64Array(p);
+    for (let j = 0; j < q; j++) {
+      const e = new Float64Array(q);
       e[j] = 1;
-      cov.set(choleskySolve(f.factor, e), j * p);
+      const col = choleskySolve(f.factor, e);
+      free.forEach((a, i) => (cov[a * p + free[j]!] = col[i]!));
     }
   } else if (!cancelled) {
     note = 'the curvature at the optimum is not negative definite (a flat or rising direction): standard errors are not available';
   }
   if (!converged && !cancelled) note = (note ? note + '; ' : '') + `not converged after ${iterations} iterations (largest gradient ${maxAbs(cur.gradient).toExponential(2)})`;
   const best = applyHyperParameters(start, params, theta);
+  const conditioning = checkConditioning(problem.grid, best, onFloor, nIdx >= 0 ? Math.exp(logFloor(theta)) : null);
+  if (onFloor) {
+    note =
+      (note ? note + '; ' : '') +
+      `the evidence keeps rising as the nugget falls: the search stopped at the smallest nugget that keeps the prior's condition number within ${THRESHOLD_TEXT} (nugget ${conditioning.nuggetFloor!.toPrecision(3)}); the unconstrained optimum would be a prior that does not factor reliably, and the nugget has no standard error`;
+  }
+  if (!conditioning.usable) {
+    note =
+      (note ? note + '; ' : '') +
+      (conditioning.positiveDefinite
+        ? `the optimum's prior covariance is nearly singular (condition number ${conditioning.conditionNumber.toPrecision(3)}, above ${THRESHOLD_TEXT}): free the nugget so the search can stay within the threshold, or hold the lengths`
+        : `the optimum's prior covariance does not factor: free the nugget so the search can stay within the threshold, or hold the lengths`);
+  }
   const startTheta = hyperParameterVector(start, params);
   const back = (h: HyperParameter, c: number): number => (h.scale === 'log' ? Math.exp(c) : c);
   const parameters: FittedParameter[] = params.map((h, k) => {
@@ -451,8 +550,19 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
     evaluations,
     converged,
     cancelled,
+    conditioning,
     ...(note !== undefined ? { note } : {}),
   };
+}
+
+/** "1e10" for messages. */
+const THRESHOLD_TEXT = NEAR_SINGULAR_CONDITION.toExponential(0).replace('+', '');
+
+/** The workbench's diagnosis of the optimum (dense eigenvalues or certified FFT bounds). */
+function checkConditioning(grid: Grid, prior: PriorSpec, nuggetAtFloor: boolean, nuggetFloor: number | null): OptimumConditioning {
+  const d = diagnosePriorAuto(grid, prior);
+  const kappa = d.conditionUpperBound ?? d.conditionNumber;
+  return { positiveDefinite: d.positiveDefinite, conditionNumber: kappa, usable: d.positiveDefinite && kappa <= NEAR_SINGULAR_CONDITION, nuggetAtFloor, nuggetFloor };
 }
 
 function eye(p: number): Float64Array {
