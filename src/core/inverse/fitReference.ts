@@ -34,7 +34,9 @@
  * case, using any k of the terms since ρ(u) ≥ Π_{j ≤ k} (λ_j u)^½): the integral beyond U is at most
  * T_U = 2 / (π k U^{k/2} Π_{j ≤ k} λ_j^½). We take the k (of the largest weights) that gives the
  * smallest U with T_U ≤ 1e-10. Quadrature: 16-point Gauss–Legendre (nodes by Newton's method on P₁₆)
- * on panels over which the phase θ changes by at most π (|θ′| ≤ ½(Σ λ + x)). When that U would need
+ * on panels over which the phase θ changes by at most π (|θ′| ≤ ½(Σ λ + x)), no wider than 1 near
+ * the origin (weights scaled to λmax = 1) and than u/4 further out (the envelope 1/(u ρ) is a smooth
+ * power-like function of u there), so their widths grow geometrically to π/ω. When that U would need
  * more than MAX_PANELS panels (few weights: the bound decays only like U^(−k/2)), the integral is
  * integrated exactly to U_cap and the rest, an oscillating tail of slowly decaying amplitude, as a sum
  * of half-period pieces of length 2π/x accelerated by repeated averaging of partial sums (Euler's
@@ -95,7 +97,7 @@ const GL = gaussLegendre(16);
 /** Truncation target of Imhof's bound (absolute, on a probability). */
 const TRUNCATION = 1e-10;
 /** Most panels of the table before the tail is summed by acceleration instead. */
-const MAX_PANELS = 20000;
+const MAX_PANELS = 1000;
 /** Half-period pieces of the accelerated tail. */
 const TAIL_PIECES = 40;
 
@@ -224,29 +226,38 @@ export class WeightedChiSquare {
     const sdS = Math.sqrt(this.variance) / this.scale;
     const xmax = Math.max(xs, sum + 12 * sdS + 4) * (this.table ? 2 : 1);
     const omega = 0.5 * (sum + xmax);
-    const h = Math.min(1, Math.PI / omega);
+    // Panel widths: at most half an oscillation (π/ω), at most 1 near the origin (the envelope
+    // varies on the scale 1/λmax = 1 there) and at most u/4 further out, where the envelope varies
+    // on the scale u (a power of u): geometric growth up to π/ω.
+    const hMax = Math.PI / omega;
+    const h0 = Math.min(1, hMax);
+    const edges: number[] = [0];
     let upper = this.upperBound;
-    let panels = Math.ceil(upper / h);
     let truncated = false;
-    if (panels > MAX_PANELS) {
-      panels = MAX_PANELS;
-      upper = panels * h;
-      truncated = true;
+    while (edges[edges.length - 1]! < upper) {
+      if (edges.length > MAX_PANELS) {
+        truncated = true;
+        upper = edges[edges.length - 1]!;
+        break;
+      }
+      const lo = edges[edges.length - 1]!;
+      edges.push(Math.min(upper, lo + Math.min(hMax, Math.max(h0, lo / 4))));
     }
+    const panels = edges.length - 1;
     const n = panels * GL.x.length;
     const u = new Float64Array(n);
     const a = new Float64Array(n);
     const e = new Float64Array(n);
-    const step = upper / panels;
     let idx = 0;
     for (let p = 0; p < panels; p++) {
-      const c = (p + 0.5) * step;
+      const w = edges[p + 1]! - edges[p]!;
+      const c = 0.5 * (edges[p]! + edges[p + 1]!);
       for (let g = 0; g < GL.x.length; g++) {
-        const ui = c + 0.5 * step * GL.x[g]!;
+        const ui = c + 0.5 * w * GL.x[g]!;
         const { phase, logRho } = this.phaseAndLogRho(ui);
         u[idx] = ui;
         a[idx] = phase;
-        e[idx] = (0.5 * step * GL.w[g]!) / (ui * Math.exp(logRho));
+        e[idx] = (0.5 * w * GL.w[g]!) / (ui * Math.exp(logRho));
         idx++;
       }
     }
