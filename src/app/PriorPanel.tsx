@@ -7,6 +7,7 @@ import { useWb } from './context.ts';
 import { LogSlider, NumberField } from './controls.tsx';
 import { noteInteraction } from './interaction.ts';
 import { axisNames } from './labels.ts';
+import { formatNumber } from '../core/format.ts';
 import type { ProblemView } from '../worker/protocol.ts';
 
 /** Kernel labels and the correlation formula each one stands for (h = scaled distance). */
@@ -37,6 +38,7 @@ export function PriorPanel() {
   return (
     <aside className="prior-panel" aria-label="Prior">
       <h2>Prior</h2>
+      <PlausibilityWarning />
       <MeanEditor mean={prior.mean} problem={problem} />
       <ol className="terms" aria-label="Covariance terms">
         {prior.terms.map((t, i) => (
@@ -52,6 +54,12 @@ export function PriorPanel() {
         </button>
         <PinButton />
       </div>
+      {problem.startRule && (
+        <details className="start-rule" data-testid="start-rule">
+          <summary>How the starting prior was chosen</summary>
+          <p className="note">{problem.startRule}</p>
+        </details>
+      )}
       <fieldset>
         <legend>Nugget</legend>
         <LogSlider
@@ -67,6 +75,46 @@ export function PriorPanel() {
         />
       </fieldset>
     </aside>
+  );
+}
+
+/**
+ * Warns when the data are implausible under the current prior: the prior predictive statistic
+ * q = rᵀK⁻¹r (r = d − G m₀, K = G Cm Gᵀ + Cd) of the newest complete posterior lies outside the
+ * central 95 % interval of χ²_M (src/core/inverse/posterior.ts and structured.ts compute both).
+ * Shown only while that posterior belongs to the current prior and problem.
+ */
+export function PlausibilityWarning() {
+  const text = useWb((s) => {
+    const post = s.posterior;
+    const current = s.problem !== null && s.computedFor.posterior === `${s.problem.version}:${s.priorRevision}` && !s.busy.posterior;
+    return current && post ? plausibilityText(post.summary.dataMisfit, post.summary.reducedMisfitInterval95, post.summary.dataCount) : null;
+  });
+  if (!text) return null;
+  return (
+    <div className="plausibility-warning" role="alert" data-testid="plausibility-warning">
+      {text}
+    </div>
+  );
+}
+
+/**
+ * The warning's words, or null when q/M lies inside its interval (or is not available). Pure, for
+ * the unit test (test/app/plausibility.test.ts).
+ */
+export function plausibilityText(q: number | undefined, interval: readonly [number, number] | undefined, m: number): string | null {
+  if (q === undefined || interval === undefined || !Number.isFinite(q)) return null;
+  const ratio = q / m;
+  if (ratio >= interval[0] && ratio <= interval[1]) return null;
+  const high = ratio > interval[1];
+  return (
+    `The data are implausible under this prior: q/M = ${formatNumber(ratio, 3)} with q = rᵀK⁻¹r, ` +
+    `outside the 95 % range [${formatNumber(interval[0], 3)}, ${formatNumber(interval[1], 3)}] of χ²_M/M (M = ${m}). ` +
+    (high
+      ? 'The data vary more than the prior and the errors allow: the variance may be too small, the mean off, or the errors understated. '
+      : 'The data vary less than the prior and the errors predict: the variance may be too large, or the errors overstated. ') +
+    'This rests on the prior predictive check: with r = d − G m₀ and K = G Cm Gᵀ + Cd, q follows χ²_M when the Gaussian prior and the stated data errors are right; ' +
+    'a correct prior lands outside this range 1 time in 20.'
   );
 }
 

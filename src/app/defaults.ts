@@ -25,7 +25,7 @@ export const emptyResults = (): Omit<ResultsSlice, 'progress'> => ({
   computedFor: {},
 });
 
-/** A prior to start from when a problem brings none: one exponential term, a tenth of the extent. */
+/** The generic prior, used only when a problem brings none and the starting-prior rule failed: one exponential term, a tenth of the extent. */
 export function defaultPrior(problem: ProblemView): PriorSpec {
   return { mean: { constant: 0 }, terms: [defaultTerm(problem)], nugget: 0 };
 }
@@ -35,6 +35,19 @@ export function defaultTerm(problem: ProblemView): Term {
   const extent = Math.max(...g.shape.map((n, k) => n * g.spacing[k]!));
   const length = roundTo2(extent / 10);
   return { kernel: 'exponential', variance: 1, length };
+}
+
+/**
+ * The term "+ Add term" adds: an exponential of a tenth of the grid extent (as {@link defaultTerm})
+ * whose variance is on the scale of the prior being edited: the mean of the existing terms'
+ * variances, or with no terms the problem's starting variance (1 only when neither exists), so a new
+ * term never arrives with variance 1 beside terms of 0.001. Rounded to 2 significant digits.
+ */
+export function addedTerm(terms: readonly Term[], problem: ProblemView): Term {
+  const base = defaultTerm(problem);
+  const start = problem.startPrior?.terms[0]?.variance;
+  const variance = terms.length > 0 ? terms.reduce((a, t) => a + t.variance, 0) / terms.length : (start ?? base.variance);
+  return { ...base, variance: Number(variance.toPrecision(2)) };
 }
 
 function roundTo2(x: number): number {

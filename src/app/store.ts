@@ -14,7 +14,7 @@ import type { Channel, PosteriorPartial, PosteriorResult, ProblemView } from '..
 import { createSelectSlice, type SelectSlice } from './select/slice.ts';
 import type { Problem } from '../core/problems/spec.ts';
 import { createSessionSlice, type SessionSlice } from './session/slice.ts';
-import { defaultPrior, defaultTerm, DRAW_COUNT, emptyResults } from './defaults.ts';
+import { addedTerm, defaultPrior, DRAW_COUNT, emptyResults } from './defaults.ts';
 
 /** The subset of WorkerClient the store uses (a fake in unit tests). */
 export interface ClientPort {
@@ -238,7 +238,7 @@ export function createWorkbenchStore(client: ClientPort, initial: { demoId: stri
       addTerm() {
         const problem = get().problem;
         if (!problem) return;
-        editTerms((terms) => [...terms, defaultTerm(problem)]);
+        editTerms((terms) => [...terms, addedTerm(terms, problem)]);
       },
       removeTerm(index) {
         editTerms((terms) => terms.filter((_, i) => i !== index));

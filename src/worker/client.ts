@@ -283,6 +283,8 @@ function copyProblem(problem: Problem): { problem: Problem; transfer: ArrayBuffe
     values: c(d.values),
     ...(d.sigma ? { sigma: c(d.sigma) } : {}),
     ...(d.covariance ? { covariance: { ...d.covariance, data: c(d.covariance.data) } } : {}),
+    // The unit too: without it a loaded problem's data.unit never reached the labels.
+    ...(d.unit !== undefined ? { unit: d.unit } : {}),
   };
   return {
     problem: { ...problem, operator, data, ...(problem.truth ? { truth: c(problem.truth) } : {}) },

@@ -3,6 +3,7 @@
  * keeps the current problem and the factorised posterior of the latest prior, and answers one
  * request at a time by calling the numerical core.
  */
+import { START_PRIOR_RULE_TEXT, startPriorRule } from '../core/tuning/startPrior.ts';
 import { DEMOS } from '../core/problems/demos.ts';
 import type { Problem } from '../core/problems/spec.ts';
 import type { PriorSpec } from '../core/prior/spec.ts';
@@ -110,7 +111,7 @@ function sigmaOf(problem: Problem): Float64Array {
 export function problemView(
   problem: Problem,
   version: number,
-  extra: { demoId: string | null; description: string; startPrior: PriorSpec | null; truthPrior: PriorSpec | null },
+  extra: { demoId: string | null; description: string; startPrior: PriorSpec | null; truthPrior: PriorSpec | null; startRule?: string | null },
 ): ProblemView {
   const g = problem.operator;
   return {
@@ -129,6 +130,7 @@ export function problemView(
     quantity: { name: problem.quantity?.name ?? 'value', unit: problem.quantity?.unit ?? '' },
     dataUnit: problem.data.unit ?? '',
     startPrior: extra.startPrior,
+    startRule: extra.startRule ?? null,
     truthPrior: extra.truthPrior,
     numericKernels: wasmAvailable() && wasmGemmAvailable() ? 'WebAssembly SIMD' : 'JavaScript',
   };
@@ -227,9 +229,20 @@ export class Engine {
           truthPrior: built.truthPrior,
         });
       }
-      case 'setProblem':
+      case 'setProblem': {
         this.setProblemInternal(r.problem, r.version);
-        return problemView(r.problem, r.version, { demoId: null, description: '', startPrior: null, truthPrior: null });
+        // A starting prior on the problem's own scale (src/core/tuning/startPrior.ts); if the rule
+        // cannot be applied the workbench falls back to its generic prior and says why.
+        progress('fitting a starting prior to the data', 0.5);
+        let start: { startPrior: PriorSpec | null; startRule: string | null };
+        try {
+          const rule = startPriorRule(r.problem, { structured: this.structured! });
+          start = { startPrior: rule.prior, startRule: `${START_PRIOR_RULE_TEXT} Here: ${rule.explanation}` };
+        } catch (e) {
+          start = { startPrior: null, startRule: `The starting-prior rule could not be applied (${e instanceof Error ? e.message : String(e)}); the generic prior (mean 0, variance 1) is used.` };
+        }
+        return problemView(r.problem, r.version, { demoId: null, description: '', truthPrior: null, ...start });
+      }
       case 'posterior': {
         // Route and threads by src/core/inverse/compute.ts (FFT for stationary priors on grids of
         // ≥ 128 cells). On the FFT route the mean goes out first (a `partial`), then the bands.

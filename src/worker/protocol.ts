@@ -41,7 +41,10 @@ export interface ProblemView {
   readonly quantity: { readonly name: string; readonly unit: string };
   /** Unit of the data values ('' when the problem gives none). */
   readonly dataUnit: string;
+  /** The prior to start from: a demo's own, or for a loaded problem the rule of src/core/tuning/startPrior.ts. */
   readonly startPrior: PriorSpec | null;
+  /** For a loaded problem: how its starting prior was made, in words with the numbers (null for demos). */
+  readonly startRule: string | null;
   readonly truthPrior: PriorSpec | null;
   /** Which dense kernels the worker runs: the WebAssembly SIMD ones, or their JavaScript fallbacks (same results). */
   readonly numericKernels: 'WebAssembly SIMD' | 'JavaScript';

@@ -1,21 +1,20 @@
-"""Reference for the starting-prior rule (../../src/core/tuning/startPrior.ts) with numpy only.
+"""Reference for the starting-prior rule (../../src/core/tuning/startPrior.ts) with numpy and scipy.
 
 Written from the rule's statement in the un-whitened form, with none of the project's code:
-  R  exponential correlation exp(-r/l) built cell pair by cell pair (reference_prior.py),
-  A  = G R G^T,  W = Cd^-1 (numpy.linalg.solve),  g = G 1,
-  c  = g^T W d / g^T W g                    (generalised least squares through G),
-  r  = d - c g,  rr = r^T W r,  p = 1,
-  t  = tr(W A) - g^T W A W g / g^T W g      (= tr(P A~) in the whitened form),
-  s2 = (rr - (M - p)) / t, floored at 0.1 (M - p) / t.
-Also returns tr(B^2) with B = P (s2 A~ + I) P in the whitened form, B = Cd^-1/2 ... computed as
-tr((W S)^2) with S = (I - g g^T W / g^T W g)(s2 A + Cd)(I - W g g^T / g^T W g), the variance
-of rr being 2 tr(B^2) (a Gaussian quadratic form; Mathai & Provost 1992, Thm 3.2b.2, memory).
-Input: {"cases": [{"grid", "G": rows, "d", "sigma"? , "cov"?, "length", "s2true"?}]}.
+  R  exponential correlation exp(-r/l), cell pair by cell pair (reference_prior.py),
+  A  = G R G^T, g = G 1, K(s) = s A + Cd (numpy.linalg.solve for every K^-1 product),
+  c(s) = g^T K^-1 d / g^T K^-1 g,   q(s) = (d - c g)^T K^-1 (d - c g),
+  s solves q(s) = M - 1 (scipy.optimize.brentq on log s), floored at
+  0.1 (M - 1) / t with t = tr(W A) - g^T W A W g / g^T W g, W = Cd^-1.
+Also P(chi2_{M-1} <= M - 1) from scipy.stats.chi2 for the simulation check, and q at a given
+variance for the replicates ("qAt").
+Input: {"cases": [{"grid", "G": rows, "d", "sigma"?, "cov"?, "length", "qAt"?}]}.
 """
 import json
 import sys
 
 import numpy as np
+from scipy import optimize, stats
 
 from reference_prior import covariance
 
@@ -31,25 +30,34 @@ def one(case):
     prior = {"terms": [{"kernel": "exponential", "variance": 1.0, "length": case["length"]}]}
     R = covariance(case["grid"], prior)
     A = G @ R @ G.T
-    W = np.linalg.solve(Cd, np.eye(m))
-    W = 0.5 * (W + W.T)
     g = G @ np.ones(G.shape[1])
-    gWg = g @ W @ g
-    c = (g @ W @ d) / gWg
-    r = d - c * g
-    rr = r @ W @ r
+
+    def at(s):
+        K = s * A + Cd
+        Kd = np.linalg.solve(K, d)
+        Kg = np.linalg.solve(K, g)
+        c = (g @ Kd) / (g @ Kg)
+        r = d - c * g
+        return c, r @ np.linalg.solve(K, r)
+
+    W = np.linalg.solve(Cd, np.eye(m))
     Wg = W @ g
-    t = np.trace(W @ A) - (Wg @ A @ Wg) / gWg
+    t = np.trace(W @ A) - (Wg @ A @ Wg) / (g @ Wg)
     dof = m - 1
-    s2 = (rr - dof) / t
     floor = 0.1 * dof / t
-    out = {"mean": c, "momentVariance": s2, "variance": max(s2, floor), "floored": bool(not s2 > floor),
-           "residualSquares": rr, "operatorTrace": t}
-    if case.get("s2true") is not None:
-        Pl = np.eye(m) - np.outer(g, Wg) / gWg
-        S = Pl @ (case["s2true"] * A + Cd) @ Pl.T
-        WS = W @ S
-        out["trB2"] = float(np.trace(WS @ WS))
+    out = {"floor": floor, "chi2CdfAtDof": float(stats.chi2.cdf(dof, dof))}
+    if at(floor)[1] <= dof:
+        out.update({"variance": floor, "floored": True})
+    else:
+        hi = floor * 10
+        while at(hi)[1] > dof:
+            hi *= 10
+        x = optimize.brentq(lambda u: at(np.exp(u))[1] - dof, np.log(floor), np.log(hi), xtol=1e-14, rtol=1e-14)
+        out.update({"variance": float(np.exp(x)), "floored": False})
+    c, q = at(out["variance"])
+    out.update({"mean": c, "statistic": q})
+    if case.get("qAt") is not None:
+        out["qAtGiven"] = at(case["qAt"])[1]
     return out
 
 

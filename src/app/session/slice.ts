@@ -157,7 +157,8 @@ export function createSessionSlice(set: Set, get: Get, api: StoreApi<WorkbenchSt
           return false;
         }
         const pv = o.value;
-        let prior = defaultPrior(pv);
+        // The problem's own starting prior (the rule of src/core/tuning/startPrior.ts), else the generic one.
+        let prior = pv.startPrior ?? defaultPrior(pv);
         if (view.prior) {
           checkPriorForGrid('saved prior', view.prior, pv.grid);
           prior = view.prior;

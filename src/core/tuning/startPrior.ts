@@ -9,22 +9,25 @@
  *    short enough that about ten independent lengths fit in the domain, so the data can tell the
  *    structure apart (common practice, no source). R is its unit-variance correlation matrix.
  * 2. Whitening: Cd = Ld Ldᵀ, d̃ = Ld⁻¹ d, g = G·1 (the data a constant model of 1 gives), g̃ = Ld⁻¹ g.
- * 3. Constant mean c by generalised least squares through G with weight Cd⁻¹:
- *        c = g̃ᵀ d̃ / g̃ᵀ g̃ = gᵀ Cd⁻¹ d / gᵀ Cd⁻¹ g.
- *    (The prior part of the data covariance is left out of the weight: it depends on the variance
- *    being estimated.) When G maps constants to (numerically) zero, gᵀCd⁻¹g ≤ 1e-12·‖G‖²_F-scale,
- *    the data cannot see a constant and c = 0.
- * 4. Variance σ² by the method of moments on the residual r̃ = d̃ − c g̃ = P d̃, with
- *    P = I − g̃ g̃ᵀ / g̃ᵀg̃ (P = I when c = 0), rank M − p (p = 1 with a fitted mean, else 0).
- *    Under the model d ~ N(μ g, σ² G R Gᵀ + Cd) for any μ, P g̃ = 0 and
- *        E[r̃ᵀ r̃] = tr(P (σ² Ã + I)) = σ² tr(P Ã) + (M − p),   Ã = Ld⁻¹ G R Gᵀ Ld⁻ᵀ,
- *        tr(P Ã) = tr(Ã) − g̃ᵀ Ã g̃ / g̃ᵀ g̃,
- *    so σ̂² = (r̃ᵀ r̃ − (M − p)) / tr(P Ã) is unbiased: the data's spread beyond their errors,
- *    divided by how strongly the operator passes a unit-variance field of that length into the data.
- * 5. Floor: when the data are within their errors (σ̂² below σ²_min), σ² = σ²_min, the variance at
- *    which the prior's signal in the data is a tenth of the noise: σ²_min = 0.1 (M − p) / tr(P Ã)
- *    (a choice, stated; the plausibility warning then tells whether the data agree).
- * 6. Display: c, σ² and ℓ rounded to 2 significant digits (the exact values are returned too).
+ * 3. Variance σ² and constant mean c together: with K(σ²) = σ² G R Gᵀ + Cd, the mean is the
+ *    generalised least squares constant through G,  c(σ²) = gᵀK⁻¹d / gᵀK⁻¹g,  and σ² is the value at
+ *    which the data are exactly typical under the prior: the prior predictive statistic with that
+ *    mean, q(σ²) = (d − c g)ᵀ K⁻¹ (d − c g), equals its expectation M − p (p = 1 with a fitted mean).
+ *    Why: under the model with the true σ², q ~ χ²_{M−p} (the fitted constant removes one degree
+ *    of freedom; a restricted-likelihood identity, memory), so this is an unbiased estimating
+ *    equation, and q is non-increasing in σ² (a minimum over c of sums with weights 1/(σ²λ + 1)),
+ *    so the root is unique and P(σ̂² ≤ σ²_true) = P(χ²_{M−p} ≤ M − p) exactly (checked by simulation
+ *    in test/core/tuning/startPrior.test.ts). The start therefore never trips the plausibility warning.
+ *    Computed in whitened form: Ã = Ld⁻¹ G R Gᵀ Ld⁻ᵀ = V Λ Vᵀ, a = Vᵀd̃, b = Vᵀg̃, w = 1/(σ²λ + 1),
+ *    c = Σ w a b / Σ w b², q = Σ w (a − c b)²; the root by bisection on log σ².
+ *    When G maps constants to (numerically) zero (‖g̃‖² ≤ 1e-12 tr Ã) the data cannot see a constant:
+ *    c = 0, p = 0.
+ * 4. Floor: when the data are within their errors (q(0) ≤ M − p, no σ² > 0 reaches the target),
+ *    σ² = σ²_min, the variance at which the prior's signal in the data is a tenth of the noise:
+ *    σ²_min = 0.1 (M − p) / tr(P Ã), P = I − g̃g̃ᵀ/g̃ᵀg̃ (a choice, stated). When even an unbounded
+ *    variance leaves q above M − p (data in directions G R Gᵀ cannot produce), σ² is the largest
+ *    value searched (10¹² σ²_min) and the rule says so.
+ * 5. Display: c, σ² and ℓ rounded to 2 significant digits (the exact values are returned too).
  *
  * Cost: one projection G R Gᵀ (M × M) by ./dataSpace.ts projectedPriorCovariance (FFT route on
  * large grids) and, for a full Cd, two M × M triangular solves.
@@ -37,6 +40,7 @@ import { cholesky, solveLower, solveLowerRows } from '../linalg/cholesky.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
 import { applyOperator, operatorShape } from '../linalg/operator.ts';
 import { transposeOf } from '../linalg/products.ts';
+import { symmetricEigenProjected } from '../linalg/eigen.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
 import type { StructuredProblem } from '../inverse/structured.ts';
@@ -44,10 +48,10 @@ import { projectedPriorCovariance } from './dataSpace.ts';
 
 /** The rule in one sentence, for the UI (the numbers follow in {@link StartPriorRule.explanation}). */
 export const START_PRIOR_RULE_TEXT =
-  'Starting prior fitted to this problem: constant mean by generalised least squares through G (weights Cd⁻¹); ' +
-  'one exponential term with length a tenth of the largest grid extent (at least two cells); its variance ' +
-  'by the method of moments, so that the data spread beyond their errors is what the prior predicts ' +
-  '(floor: prior signal a tenth of the noise); rounded to 2 significant digits.';
+  'Starting prior fitted to this problem: one exponential term with length a tenth of the largest grid extent ' +
+  '(at least two cells); its variance chosen so that the data are exactly typical under the prior ' +
+  '(rᵀK⁻¹r = M − 1, its expected value), with the constant mean fitted by generalised least squares through G; ' +
+  'a floor where the data lie within their errors (prior signal a tenth of the noise); rounded to 2 significant digits.';
 
 /** Fraction of the largest grid extent used as the correlation length. */
 export const START_LENGTH_FRACTION = 0.1;
@@ -63,8 +67,8 @@ export interface StartPriorRule {
   readonly meanFitted: boolean;
   /** Whether the variance is the floor (the data are within their errors under the rule's length). */
   readonly varianceFloored: boolean;
-  /** r̃ᵀ r̃, M − p and tr(P Ã) of the moment equation. */
-  readonly moments: { readonly residualSquares: number; readonly degreesOfFreedom: number; readonly operatorTrace: number };
+  /** q at the chosen variance, its target M − p, tr(P Ã) (of the floor), and which case of the rule applied. */
+  readonly fit: { readonly statistic: number; readonly degreesOfFreedom: number; readonly operatorTrace: number; readonly outcome: 'fitted' | 'floor' | 'unreached' };
   /** One paragraph in words with the numbers. */
   readonly explanation: string;
 }
@@ -116,16 +120,13 @@ export function startPriorRule(problem: Problem, options: { structured?: Structu
   }
 
   let gg = 0;
-  let gd = 0;
   let trA = 0;
   for (let i = 0; i < m; i++) {
     gg += gw[i]! * gw[i]!;
-    gd += gw[i]! * dw[i]!;
     trA += Aw.data[i * m + i]!;
   }
   // A constant is visible when its whitened data are not negligible next to the operator's scale.
-  const meanFitted = gg > 1e-12 * Math.max(trA, Number.MIN_VALUE) && gg > 0;
-  const c = meanFitted ? gd / gg : 0;
+  const meanFitted = gg > 0 && gg > 1e-12 * trA;
   let gAg = 0;
   if (meanFitted) {
     for (let i = 0; i < m; i++) {
@@ -136,16 +137,64 @@ export function startPriorRule(problem: Problem, options: { structured?: Structu
   }
   const trPA = trA - (meanFitted ? gAg / gg : 0);
   if (!(trPA > 0)) throw new InputError('problem.operator', 'an operator that passes a correlated field into the data (G R Gᵀ has zero trace)', 0);
-  let rr = 0;
+
+  const B = matrix(m, 2);
   for (let i = 0; i < m; i++) {
-    const r = dw[i]! - c * gw[i]!;
-    rr += r * r;
+    B.data[2 * i] = dw[i]!;
+    B.data[2 * i + 1] = gw[i]!;
   }
+  const eig = symmetricEigenProjected(Aw, B);
+  const lam = Float64Array.from(eig.values, (v) => Math.max(v, 0));
+  const a = Float64Array.from({ length: m }, (_, j) => eig.projected.data[2 * j]!);
+  const b = Float64Array.from({ length: m }, (_, j) => eig.projected.data[2 * j + 1]!);
+  /** The GLS mean and q at variance v (module comment, step 3). */
+  const at = (v: number): { c: number; q: number } => {
+    let wab = 0;
+    let wbb = 0;
+    for (let j = 0; j < m; j++) {
+      const w = 1 / (v * lam[j]! + 1);
+      wab += w * a[j]! * b[j]!;
+      wbb += w * b[j]! * b[j]!;
+    }
+    const c = meanFitted && wbb > 0 ? wab / wbb : 0;
+    let q = 0;
+    for (let j = 0; j < m; j++) {
+      const r = a[j]! - c * b[j]!;
+      q += r * r / (v * lam[j]! + 1);
+    }
+    return { c, q };
+  };
   const dof = m - (meanFitted ? 1 : 0);
-  const moment = (rr - dof) / trPA;
   const floor = (START_VARIANCE_FLOOR_SNR * Math.max(dof, 1)) / trPA;
-  const varianceFloored = !(moment > floor);
-  const variance = varianceFloored ? floor : moment;
+  let variance: number;
+  let outcome: 'fitted' | 'floor' | 'unreached';
+  if (at(0).q <= dof || at(floor).q <= dof) {
+    variance = floor;
+    outcome = 'floor';
+  } else {
+    let lo = floor;
+    let hi = floor * 10;
+    const cap = floor * 1e12;
+    while (at(hi).q > dof && hi < cap) {
+      lo = hi;
+      hi *= 10;
+    }
+    if (at(hi).q > dof) {
+      variance = hi;
+      outcome = 'unreached';
+    } else {
+      // Bisection on log σ²: q(lo) > dof ≥ q(hi).
+      for (let k = 0; k < 200 && hi / lo - 1 > 1e-13; k++) {
+        const mid = Math.sqrt(lo * hi);
+        if (at(mid).q > dof) lo = mid;
+        else hi = mid;
+      }
+      variance = Math.sqrt(lo * hi);
+      outcome = 'fitted';
+    }
+  }
+  const { c, q } = at(variance);
+  const varianceFloored = outcome === 'floor';
 
   const prior: PriorSpec = {
     mean: { constant: round(c) },
@@ -156,18 +205,20 @@ export function startPriorRule(problem: Problem, options: { structured?: Structu
   const dims = gridDimension(grid) === 2 ? 'the larger grid extent' : 'the grid extent';
   const explanation =
     `Mean ${round(c)}` +
-    (meanFitted ? ' (generalised least squares through G with weights Cd⁻¹)' : ' (G maps a constant to zero: the data cannot see a constant mean)') +
+    (meanFitted ? ' (generalised least squares through G with this prior)' : ' (G maps a constant to zero: the data cannot see a constant mean)') +
     `; exponential term with length ${round(length)}${lu} (a tenth of ${dims}) and variance ${round(variance)}` +
-    (varianceFloored
+    (outcome === 'floor'
       ? ' (the floor: the data lie within their errors, so the prior signal is set to a tenth of the noise)'
-      : ` (method of moments: whitened residual sum of squares ${round(rr, 4)} against ${dof} expected from the errors alone, per ${round(trPA, 4)} for unit variance)`) +
+      : outcome === 'unreached'
+        ? ` (the largest searched: even so rᵀK⁻¹r = ${round(q, 3)} stays above ${dof}, so part of the data cannot come from this kind of prior)`
+        : ` (at which rᵀK⁻¹r = ${dof} = M − ${meanFitted ? 1 : 0}, its expected value: the data are exactly typical for this prior)`) +
     '.';
   return {
     prior,
     exact: { mean: c, variance, length },
     meanFitted,
     varianceFloored,
-    moments: { residualSquares: rr, degreesOfFreedom: dof, operatorTrace: trPA },
+    fit: { statistic: q, degreesOfFreedom: dof, operatorTrace: trPA, outcome },
     explanation,
   };
 }
