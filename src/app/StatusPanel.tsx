@@ -10,12 +10,16 @@ function fmt(x: number): string {
   return a >= 1e4 || a < 1e-3 ? x.toExponential(2) : x.toPrecision(3);
 }
 
-export type PdLevel = 'ok' | 'near-singular' | 'not-pd' | 'pending' | 'error';
+export type PdLevel = 'ok' | 'near-singular' | 'not-pd' | 'not-decided' | 'pending' | 'error';
 
-/** Level shown for a diagnosis: the core decides what is near-singular (it then suggests a jitter). */
-export function pdLevel(d: Pick<Diagnostics, 'positiveDefinite' | 'suggestedJitter' | 'warnings'> | null): PdLevel {
+/**
+ * Level shown for a diagnosis: the core's verdict (proven, proven not, not decided) and, for a
+ * proven one, whether it is near-singular (the core then suggests a jitter).
+ */
+export function pdLevel(d: Pick<Diagnostics, 'verdict' | 'suggestedJitter' | 'warnings'> | null): PdLevel {
   if (!d) return 'pending';
-  if (!d.positiveDefinite) return 'not-pd';
+  if (d.verdict === 'not-positive-definite') return 'not-pd';
+  if (d.verdict === 'not-decided') return 'not-decided';
   if (d.suggestedJitter !== null || d.warnings.some((w) => w.code === 'near-singular')) return 'near-singular';
   return 'ok';
 }
@@ -43,19 +47,22 @@ export function eigenvalueMethodText(d: Pick<Diagnostics, 'eigenvalueMethod' | '
   }
 }
 
-/** The headline; on the FFT route Cm is not factored, so the wording says "proven" instead. */
-export function pdText(level: PdLevel, method: Diagnostics['eigenvalueMethod'] | null): string {
-  if (method === 'fft-bounds') {
-    if (level === 'ok') return 'Cm proven positive definite (bounds from the FFT embedding)';
-    if (level === 'not-pd') return 'Cm not proven positive definite';
-  }
-  return TEXT[level];
+/** The headline: the verdict and, when proven, the route that proved it. */
+export function pdText(level: PdLevel, decidedBy: Diagnostics['decidedBy'] | null): string {
+  const by = decidedBy === null ? '' : ROUTE[level === 'not-pd' ? 'not' : 'yes'][decidedBy];
+  return by ? `${TEXT[level]} (${by})` : TEXT[level];
 }
 
+const ROUTE: Record<'yes' | 'not', Record<Diagnostics['decidedBy'], string>> = {
+  yes: { cholesky: 'Cholesky factorisation', 'fft-bracket': 'bound from the FFT embedding', 'lanczos-ritz': '', none: '' },
+  not: { cholesky: 'Cholesky factorisation fails', 'fft-bracket': '', 'lanczos-ritz': 'a direction of negative variance', none: '' },
+};
+
 const TEXT: Record<PdLevel, string> = {
-  ok: 'Cm factors (positive definite)',
+  ok: 'Cm proven positive definite',
   'near-singular': 'Cm is near-singular',
-  'not-pd': 'Cm does not factor (not positive definite)',
+  'not-pd': 'Cm is not positive definite',
+  'not-decided': 'Positive definiteness not decided',
   pending: 'Checking Cm …',
   error: 'Check failed',
 };
@@ -69,7 +76,7 @@ export function StatusPanel() {
   const level: PdLevel = error ? 'error' : pdLevel(d);
   return (
     <section className={`pd-status pd-${level}`} data-testid="pd-status" data-level={level} aria-live="polite" aria-label="Positive-definiteness status">
-      <strong data-testid="pd-text">{pdText(level, d && !error ? d.eigenvalueMethod : null)}</strong>
+      <strong data-testid="pd-text">{pdText(level, d && !error ? d.decidedBy : null)}</strong>
       {busy && <span className="busy-dot" title="recomputing" aria-label="recomputing" />}
       {d && !error && (
         <span className="pd-numbers">
@@ -87,6 +94,10 @@ export function StatusPanel() {
           </span>
           <span className="pd-method" data-testid="pd-method" title="How the eigenvalues were found">
             {eigenvalueMethodText(d)}
+          </span>
+          <span className="pd-basis" data-testid="pd-basis" title="What the verdict rests on">
+            {d.basis}
+            {d.nextStep ? ` Next step: ${d.nextStep}` : ''}
           </span>
           {d.suggestedJitter !== null && (
             <>

@@ -8,7 +8,8 @@ import { dirname, resolve } from 'node:path';
 import { KERNEL_NAMES, type KernelName } from '../core/kernels/spec.ts';
 import { correlation } from '../core/kernels/correlation.ts';
 import type { Matrix } from '../core/linalg/matrix.ts';
-import { diagnosePriorAuto, STRUCTURED_DIAGNOSTICS_MIN_CELLS } from '../core/prior/structuredDiagnostics.ts';
+import { DENSE_DECISION_LIMIT, diagnosePriorAuto, STRUCTURED_DIAGNOSTICS_MIN_CELLS } from '../core/prior/structuredDiagnostics.ts';
+import type { Diagnostics } from '../core/prior/diagnostics.ts';
 import { structuredPosteriorDraws } from '../core/inverse/structuredDraws.ts';
 import { priorRealisationsWithRoute } from '../core/sampling/realisations.ts';
 import { posteriorRealisations, preparePosterior } from '../core/inverse/posterior.ts';
@@ -211,19 +212,43 @@ const posterior: Command = {
   },
 };
 
+/** Exit code of a verdict (0 proven, 3 proven not, 4 not decided), with one line on stderr when not 0. */
+function checkExit(io: Io, d: Diagnostics): number {
+  switch (d.verdict) {
+    case 'positive-definite':
+      return 0;
+    case 'not-positive-definite':
+      io.stderr(`priorscope check: the prior covariance is not positive definite on this grid. ${d.basis}`);
+      return 3;
+    case 'not-decided':
+      io.stderr(`priorscope check: positive definiteness not decided. ${d.nextStep ?? ''}`.trimEnd());
+      return 4;
+    default:
+      return assertNever(d.verdict, 'verdict');
+  }
+}
+
 const check: Command = {
   name: 'check',
   summary: 'is the prior covariance positive definite on the problem grid? (exit 3 if not)',
   usage: 'priorscope check --problem P.json --prior Q.json [--out FILE]',
   details:
-    'Prints {"positiveDefinite", "failedPivot", "minEigenvalue", "maxEigenvalue", "conditionNumber",\n' +
-    '"eigenvalueMethod", "suggestedJitter", "suggestedJitterRelative", "warnings": [{"code", "message"}]}.\n' +
+    'Prints {"verdict", "positiveDefinite", "decidedBy", "basis", ["nextStep"], "failedPivot", "minEigenvalue",\n' +
+    '"maxEigenvalue", "conditionNumber", "eigenvalueMethod", "suggestedJitter", "suggestedJitterRelative",\n' +
+    '"warnings": [{"code", "message"}]}.\n' +
+    'Three outcomes: "verdict" "positive-definite" (positiveDefinite true, exit 0), "not-positive-definite"\n' +
+    '(false, exit 3: a failed Cholesky factorisation or a certified negative eigenvalue) and "not-decided"\n' +
+    '(null, exit 4: no route could prove either sign; "nextStep" says what to do). "decidedBy" names the route:\n' +
+    '"cholesky" (dense factorisation), "fft-bracket" (certified bound from the circulant embedding),\n' +
+    '"lanczos-ritz" (a negative Rayleigh quotient) or "none"; "basis" says it in one sentence.\n' +
     'conditionNumber is null when it is infinite (λmin ≤ 0); suggestedJitter (variance units, to add to the\n' +
-    'nugget) is null when none is needed. Exit code 0 when positive definite, 3 when not.\n' +
+    'nugget) is null when none is needed.\n' +
     'eigenvalueMethod "exact" / "lanczos": the dense Cm was factored; "fft-bounds" (stationary priors on grids\n' +
     `of ${STRUCTURED_DIAGNOSTICS_MIN_CELLS} cells or more): no dense matrix, "positiveDefinite" means proven by a certified eigenvalue bracket\n` +
     'from the FFT embedding, given as "eigenvalueBounds": {"lower", "upper"} with "conditionUpperBound" and\n' +
-    '"embeddingPadding"; min/max eigenvalue and conditionNumber are then Lanczos estimates inside it.',
+    '"embeddingPadding"; min/max eigenvalue and conditionNumber are then Lanczos estimates inside it. When the\n' +
+    `bracket cannot decide, grids of up to ${DENSE_DECISION_LIMIT} cells are decided by the dense Cholesky factorisation, larger\n` +
+    'ones by an enlarged embedding where that proves it.',
   options: [PROBLEM, PRIOR, OUT],
   run(args, io) {
     noPositionals(args);
@@ -234,7 +259,11 @@ const check: Command = {
       io,
       args,
       toJson({
+        verdict: d.verdict,
         positiveDefinite: d.positiveDefinite,
+        decidedBy: d.decidedBy,
+        basis: d.basis,
+        ...(d.nextStep === undefined ? {} : { nextStep: d.nextStep }),
         failedPivot: d.failedPivot,
         minEigenvalue: d.minEigenvalue,
         maxEigenvalue: d.maxEigenvalue,
@@ -252,8 +281,7 @@ const check: Command = {
         warnings: d.warnings,
       }),
     );
-    if (!d.positiveDefinite) io.stderr('priorscope check: the prior covariance is not positive definite on this grid');
-    return d.positiveDefinite ? 0 : 3;
+    return checkExit(io, d);
   },
 };
 

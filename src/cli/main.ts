@@ -3,7 +3,8 @@
  *
  * Exit codes: 0 ok; 1 internal error (a bug: please report it); 2 bad input (one line on stderr
  * naming the file, the field and what was expected); 3 `check` found the prior not positive
- * definite (also when a posterior or sample fails because a covariance does not factor).
+ * definite (also when a posterior or sample fails because a covariance does not factor); 4 `check`
+ * could not decide positive definiteness (neither sign proven at this size; "nextStep" says what to do).
  * JSON goes to stdout unless --out FILE; warnings and progress (on a terminal) go to stderr.
  * Set PRIORSCOPE_DEBUG=1 to see stack traces of internal errors.
  */
@@ -30,7 +31,8 @@ export function mainHelp(): string {
     'An operator may live in a sibling .csv, .mtx (Matrix Market) or .npy file. Files up to 512 MiB.',
     '',
     'Output: JSON on stdout unless --out FILE. Exit codes: 0 ok, 2 bad input (one line on stderr naming the',
-    'file, the field and what was expected), 3 prior not positive definite, 1 internal error.',
+    'file, the field and what was expected), 3 prior proven not positive definite, 4 positive definiteness not',
+    'decided (check only), 1 internal error.',
     '',
   ];
   return lines.join('\n');

@@ -45,7 +45,7 @@ describe('check on the FFT route', () => {
     expect(out.eigenvalueBounds.upper).toBeGreaterThanOrEqual(dense.maxEigenvalue * (1 - 1e-12));
   });
 
-  it('a prior it cannot prove exits 3 and says so', async () => {
+  it('a numerically singular prior the bracket cannot prove is decided by the dense Cholesky: exit 3', async () => {
     const dir = tempDir();
     const gauss = { kind: 'priorscope.prior', version: 1, mean: { constant: 0 }, terms: [{ kernel: 'gaussian', variance: 1, length: 6 }] };
     writeFiles(dir, { 'p.json': problem(NX, NY), 'q.json': gauss });
@@ -53,9 +53,35 @@ describe('check on the FFT route', () => {
     expect(r.code).toBe(3);
     const out = JSON.parse(r.out);
     expect(out.positiveDefinite).toBe(false);
+    expect(out.verdict).toBe('not-positive-definite');
+    expect(out.decidedBy).toBe('cholesky');
     expect(out.eigenvalueBounds.lower).toBeLessThanOrEqual(0);
-    expect(out.warnings.find((w: { code: string }) => w.code === 'not-positive-definite').message).toMatch(/cannot be proven positive definite/);
+    expect(out.warnings.find((w: { code: string }) => w.code === 'not-positive-definite').message).toMatch(/Cholesky factorisation of the dense Cm .*failed at row/);
     expect(out.suggestedJitter).toBeGreaterThan(0);
+  });
+});
+
+describe('check: correlation lengths longer than the domain (the bracket cannot decide)', () => {
+  // Both were reported "not positive definite" (exit 3) before the three-outcome verdict; numpy's
+  // eigvalsh finds λmin > 0 for both (test/reference/pd_verdict.test.ts).
+  const cases = [
+    { grid: { shape: [30, 20], spacing: [1, 1] }, prior: { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1.0157e-3, lengths: [99.92, 26.02], angle: 14.67 }], nugget: 1e-6 } },
+    { grid: { shape: [24, 24], spacing: [1, 1] }, prior: { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length: 200 }] } },
+  ];
+  it.each(cases.map((c) => [c.grid.shape.join(' × '), c] as const))('%s: exit 0, positive definite, decided by the dense Cholesky', async (_n, c) => {
+    const dir = tempDir();
+    const [nx, ny] = c.grid.shape as [number, number];
+    writeFiles(dir, { 'p.json': problem(nx, ny), 'q.json': { kind: 'priorscope.prior', version: 1, ...c.prior } });
+    const r = await runCommand(['check', '--problem', 'p.json', '--prior', 'q.json'], dir);
+    expect(r.code).toBe(0);
+    const out = JSON.parse(r.out);
+    expect(out.positiveDefinite).toBe(true);
+    expect(out.verdict).toBe('positive-definite');
+    expect(out.decidedBy).toBe('cholesky');
+    expect(out.basis).toMatch(/Cholesky/);
+    // … and sample agrees: it draws from the same prior without complaint.
+    const s = await runCommand(['sample', '--problem', 'p.json', '--prior', 'q.json', '--count', '2', '--seed', '1', '--format', 'csv'], dir);
+    expect(s.code).toBe(0);
   });
 });
 

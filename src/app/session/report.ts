@@ -12,6 +12,7 @@ import { cellCount } from '../../core/grid/grid.ts';
 import { practicalRange } from '../../core/kernels/correlation.ts';
 import { DEFAULT_MATERN_NU, type Term } from '../../core/kernels/spec.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
+import type { Diagnostics } from '../../core/prior/diagnostics.ts';
 import { writePriorFile } from '../../core/io/priorFile.ts';
 import type { DataFitReference } from '../../core/inverse/fitReference.ts';
 import { FIT_REFERENCE_BASIS, fitVerdict, formatTail } from '../posteriorView.ts';
@@ -69,6 +70,12 @@ export function priorInWords(prior: PriorSpec, lengthUnit: string, valueUnit: st
   return out;
 }
 
+const VERDICT_TEXT: Record<Diagnostics['verdict'], string> = {
+  'positive-definite': 'yes, proven',
+  'not-positive-definite': 'no, proven',
+  'not-decided': 'not decided',
+};
+
 export function reportModel(s: WorkbenchState, caution: string, now = new Date()): ReportModel | null {
   const p = s.problem;
   if (!p || !s.prior) return null;
@@ -82,7 +89,7 @@ export function reportModel(s: WorkbenchState, caution: string, now = new Date()
   const d = s.diagnostics;
   const pd: [string, string][] = d
     ? [
-        ['Positive definite', d.positiveDefinite ? 'yes (Cholesky factorisation succeeds)' : `no (fails at row ${d.failedPivot})`],
+        ['Positive definite', `${VERDICT_TEXT[d.verdict]}: ${d.basis}${d.nextStep ? ` Next step: ${d.nextStep}` : ''}`],
         ['Smallest eigenvalue', g4(d.minEigenvalue)],
         ['Condition number', g4(d.conditionNumber)],
         ...(d.suggestedJitter !== null ? [['Suggested jitter', g4(d.suggestedJitter)] as [string, string]] : []),

@@ -37,6 +37,7 @@ export const SPHERICAL_MAX_DIMENSION: number = 3;
 
 export const WARNING_CODES = [
   'not-positive-definite',
+  'not-decided',
   'near-singular',
   'no-jitter-found',
   'gaussian-long-length',
@@ -48,6 +49,29 @@ export type WarningCode = (typeof WARNING_CODES)[number];
 
 export type EigenvalueMethod = 'exact' | 'lanczos' | 'fft-bounds';
 
+/**
+ * The three outcomes of the positive-definiteness check. "Not decided" is never reported as "not
+ * positive definite": it means no route available at this size could prove either.
+ */
+export type PdVerdict = 'positive-definite' | 'not-positive-definite' | 'not-decided';
+
+/**
+ * What decided the verdict:
+ * - 'cholesky': the Cholesky factorisation of the dense Cm succeeded (positive definite in floating
+ *   point: Higham 2002, Thm 10.7) or failed at a pivot (not positive definite in floating point);
+ * - 'fft-bracket': the certified lower bound of the spectrum from the circulant embedding is > 0
+ *   (./structuredDiagnostics.ts), possibly after enlarging the embedding;
+ * - 'lanczos-ritz': a Ritz value (a Rayleigh quotient of Cm) below zero beyond round-off proves a
+ *   negative eigenvalue;
+ * - 'none': not decided (see {@link Diagnostics.nextStep}).
+ */
+export type PdDecidedBy = 'cholesky' | 'fft-bracket' | 'lanczos-ritz' | 'none';
+
+/** `positiveDefinite` of a verdict: true / false when proven, null when not decided. */
+export function verdictValue(v: PdVerdict): boolean | null {
+  return v === 'positive-definite' ? true : v === 'not-positive-definite' ? false : null;
+}
+
 export interface DiagnosticWarning {
   /** Stable machine code, e.g. "gaussian-long-length", "spherical-dimension", "near-singular". */
   readonly code: string;
@@ -56,7 +80,16 @@ export interface DiagnosticWarning {
 }
 
 export interface Diagnostics {
-  readonly positiveDefinite: boolean;
+  /** The verdict: proven positive definite, proven not positive definite, or not decided. */
+  readonly verdict: PdVerdict;
+  /** true / false when proven (see {@link verdict}), null when not decided. */
+  readonly positiveDefinite: boolean | null;
+  /** The route that decided the verdict. */
+  readonly decidedBy: PdDecidedBy;
+  /** One plain sentence: what the verdict rests on. */
+  readonly basis: string;
+  /** Not decided only: what the user can do to get a decision. */
+  readonly nextStep?: string;
   /** Zero-based row where the Cholesky factorisation failed, null when it factors. */
   readonly failedPivot: number | null;
   readonly minEigenvalue: number;
@@ -100,9 +133,17 @@ export const LANCZOS_STEPS = 100;
  */
 function extremeEigenvalues(c: Matrix): { min: number; max: number; method: 'exact' | 'lanczos' } {
   const n = c.rows;
+  // Eigenvalues of c·A are c times those of A: the solver runs on Cm scaled to a unit largest
+  // diagonal entry, so that tiny or huge variances (1e-300, 1e300) neither underflow nor overflow
+  // in its Householder reflections (without it a variance of 1e-300 gave λmin = −4.2e-301 beside a
+  // successful Cholesky factorisation).
+  let scale = 0;
+  for (let i = 0; i < n; i++) scale = Math.max(scale, Math.abs(c.data[i * n + i]!));
+  if (!(scale > 0) || !Number.isFinite(scale)) scale = 1;
   if (n <= EXACT_EIGEN_LIMIT) {
-    const ev = symmetricEigenvalues(c);
-    return { min: ev[0]!, max: ev[ev.length - 1]!, method: 'exact' };
+    const scaled = { rows: n, cols: n, data: c.data.map((v) => v / scale) };
+    const ev = symmetricEigenvalues(scaled);
+    return { min: ev[0]! * scale, max: ev[ev.length - 1]! * scale, method: 'exact' };
   }
   const d = c.data;
   const y = new Float64Array(n);
@@ -110,23 +151,33 @@ function extremeEigenvalues(c: Matrix): { min: number; max: number; method: 'exa
     for (let i = 0; i < n; i++) {
       let s = 0;
       const oi = i * n;
-      for (let j = 0; j < n; j++) s += d[oi + j]! * x[j]!;
+      for (let j = 0; j < n; j++) s += (d[oi + j]! / scale) * x[j]!;
       y[i] = s;
     }
     return y;
   };
   const r = lanczosExtremes(apply, n, { iterations: LANCZOS_STEPS });
-  return { min: r.min, max: r.max, method: 'lanczos' };
+  return { min: r.min * scale, max: r.max * scale, method: 'lanczos' };
 }
 
 /** Diagnostics of a symmetric matrix; with `context`, prior-specific warnings are added. */
 export function diagnoseCovariance(c: Matrix, context?: { grid: Grid; prior: PriorSpec }): Diagnostics {
   const n = c.rows;
   const chol = cholesky(c);
-  const positiveDefinite = chol.ok;
   const failedPivot = chol.ok ? null : chol.pivot;
   const { min, max, method } = extremeEigenvalues(c);
   const conditionNumber = min > 0 ? max / min : Infinity;
+  // The verdict and the numbers must agree: a factorisation that succeeds beside a computed
+  // eigenvalue ≤ 0 means λmin lies within round-off of zero (both are backward stable, so each
+  // describes a matrix within a few ε‖Cm‖ of Cm): neither proves a sign, so it is not decided.
+  const verdict: PdVerdict = !chol.ok ? 'not-positive-definite' : method === 'exact' && !(min > 0) ? 'not-decided' : 'positive-definite';
+  const positiveDefinite = verdict === 'positive-definite';
+  const basis =
+    verdict === 'not-positive-definite'
+      ? `The Cholesky factorisation of the dense Cm failed at row ${failedPivot}.`
+      : verdict === 'positive-definite'
+        ? 'The Cholesky factorisation of the dense Cm succeeds (positive definite in floating point).'
+        : `The Cholesky factorisation of the dense Cm succeeds, but its smallest eigenvalue (${fmt(min)}) is zero within round-off, so neither sign can be proven.`;
 
   let meanVariance = 0;
   for (let i = 0; i < n; i++) meanVariance += c.data[i * n + i]!;
@@ -153,11 +204,13 @@ export function diagnoseCovariance(c: Matrix, context?: { grid: Grid; prior: Pri
     suggestedJitter !== null
       ? ` Adding a nugget of ${fmt(suggestedJitter)} (${suggestedJitterRelative!.toExponential(0)} of the mean variance) fixes this.`
       : '';
-  if (!positiveDefinite) {
+  if (verdict === 'not-positive-definite') {
     warnings.push({
       code: 'not-positive-definite',
       message: `The prior covariance is not positive definite: its Cholesky factorisation failed at row ${failedPivot}${cellLabel(failedPivot!, context?.grid)}, so it cannot be used for sampling or inversion.${fix}`,
     });
+  } else if (verdict === 'not-decided') {
+    warnings.push({ code: 'not-decided', message: `Positive definiteness not decided: ${basis} The matrix is numerically singular.${fix}` });
   } else if (!(conditionNumber <= NEAR_SINGULAR_CONDITION)) {
     warnings.push({
       code: 'near-singular',
@@ -172,7 +225,11 @@ export function diagnoseCovariance(c: Matrix, context?: { grid: Grid; prior: Pri
   }
   if (context) warnings.push(...priorWarnings(context.grid, context.prior));
   return {
-    positiveDefinite,
+    verdict,
+    positiveDefinite: verdictValue(verdict),
+    decidedBy: 'cholesky',
+    basis,
+    ...(verdict === 'not-decided' ? { nextStep: suggestedJitter !== null ? `Add a nugget of ${fmt(suggestedJitter)}.` : 'Check the covariance terms and their variances.' } : {}),
     failedPivot,
     minEigenvalue: min,
     maxEigenvalue: max,

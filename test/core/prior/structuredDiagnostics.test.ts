@@ -70,7 +70,8 @@ describe('diagnoseStructured agrees with the dense route', () => {
     expect(d.eigenvalueMethod).toBe('exact');
     expect(s.positiveDefinite).toBe(d.positiveDefinite);
     expect(codes(s)).toEqual(codes(d));
-    expect(s.failedPivot).toBeNull();
+    // A failed pivot only when the dense Cholesky decided (the bracket could not), the same row.
+    expect(s.failedPivot).toBe(s.decidedBy === 'cholesky' ? d.failedPivot : null);
     // Exact eigenvalues inside the bracket, estimates inside the exact range (Ritz values).
     const b = s.eigenvalueBounds!;
     const slack = 1e-12 * d.maxEigenvalue;
@@ -81,14 +82,17 @@ describe('diagnoseStructured agrees with the dense route', () => {
     if (s.positiveDefinite) expect(s.conditionUpperBound!).toBeGreaterThanOrEqual(d.conditionNumber * (1 - 1e-9));
   });
 
-  it('a prior it cannot prove: the message says so, and its jitter makes the dense route clean', () => {
+  it('a prior no route can decide (dense limit 0): "not decided", never "not positive definite"; its jitter makes the dense route clean', () => {
     const grid: Grid = { shape: [200], spacing: [1] };
     const prior: PriorSpec = { mean: zero, terms: [{ kernel: 'gaussian', variance: 1, length: 10 }] };
-    const s = diagnoseStructured(grid, prior);
-    expect(s.positiveDefinite).toBe(false);
+    const s = diagnoseStructured(grid, prior, { denseLimit: 0 });
+    expect(s.verdict).toBe('not-decided');
+    expect(s.positiveDefinite).toBeNull();
     expect(s.eigenvalueBounds!.lower).toBeLessThanOrEqual(0);
-    const w = s.warnings.find((x) => x.code === 'not-positive-definite')!;
-    expect(w.message).toMatch(/cannot be proven positive definite.*λmin ≥ .*estimated λmin/);
+    const w = s.warnings.find((x) => x.code === 'not-decided')!;
+    expect(w.message).toMatch(/not decided.*λmin ≥ .*Lanczos estimates λmin/);
+    // With the dense Cholesky allowed (200 cells), the same prior is decided: it does not factor.
+    expect(diagnoseStructured(grid, prior).verdict).toBe('not-positive-definite');
     expect(s.suggestedJitter).not.toBeNull();
     // The jitter rule on the certified bracket (decades of the mean variance, κ ≤ 1e10).
     const { lower, upper } = s.eigenvalueBounds!;
