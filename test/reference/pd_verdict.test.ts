@@ -17,7 +17,7 @@ type Ref = { min: number; max: number; n: number; cond: number | null };
 const zero = { constant: 0 } as const;
 
 /** Correlation lengths longer than the domain: the embedding's bound is negative, Cm is positive definite. */
-export const LONG_LENGTH_CASES: { name: string; grid: Grid; prior: PriorSpec }[] = [
+const LONG_LENGTH_CASES: { name: string; grid: Grid; prior: PriorSpec }[] = [
   {
     name: '30 × 20, rotated exponential, lengths [99.92, 26.02], nugget 1e-6',
     grid: { shape: [30, 20], spacing: [1, 1] },
@@ -55,7 +55,7 @@ describe('priors whose correlation length exceeds the domain', () => {
     expect(d.failedPivot).toBeNull();
     expect(d.warnings.map((w) => w.code)).toContain('not-decided');
     expect(d.warnings.map((w) => w.code)).not.toContain('not-positive-definite');
-    expect(d.nextStep).toMatch(new RegExp(`nugget of .*at most 0 cells`));
+    expect(d.nextStep).toMatch(/nugget of .*at most 0 cells/);
     // The suggested nugget is sufficient: with it, the bracket proves positive definiteness.
     const fixed = diagnoseStructured(grid, { ...prior, nugget: d.suggestedJitter! }, { denseLimit: 0 });
     expect(fixed.verdict).toBe('positive-definite');

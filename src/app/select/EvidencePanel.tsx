@@ -301,7 +301,9 @@ function FitPanel() {
                 ? `positive definite, condition number ${fmt(value.conditioning.conditionNumber, 3)} (within 1e10)`
                 : value.conditioning.positiveDefinite
                   ? `nearly singular, condition number ${fmt(value.conditioning.conditionNumber, 3)} (above 1e10)`
-                  : 'does not factor'}
+                  : value.conditioning.verdict === 'not-decided'
+                    ? 'positive definiteness not decided'
+                    : 'not positive definite'}
               {value.conditioning.nuggetAtFloor ? '; the nugget sits on the smallest value that guarantees a condition number within 1e10' : ''}.
             </p>
           )}

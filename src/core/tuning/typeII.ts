@@ -52,7 +52,7 @@ import { identity, matrix, type Matrix } from '../linalg/matrix.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
 import { validatePrior } from '../prior/covariance.ts';
-import { NEAR_SINGULAR_CONDITION } from '../prior/diagnostics.ts';
+import { NEAR_SINGULAR_CONDITION, type PdVerdict } from '../prior/diagnostics.ts';
 import { lagTable } from '../prior/lag.ts';
 import { diagnosePriorAuto } from '../prior/structuredDiagnostics.ts';
 import type { Grid } from '../grid/grid.ts';
@@ -297,7 +297,9 @@ export interface FittedParameter {
 
 /** The workbench's positive-definiteness and conditioning check of the optimum. */
 export interface OptimumConditioning {
-  /** The check of ../prior/structuredDiagnostics.ts diagnosePriorAuto: Cm factors. */
+  /** The verdict of ../prior/structuredDiagnostics.ts diagnosePriorAuto (proven, proven not, not decided). */
+  readonly verdict: PdVerdict;
+  /** verdict === 'positive-definite'. */
   readonly positiveDefinite: boolean;
   /** Its condition number (the certified upper bound on the FFT route). */
   readonly conditionNumber: number;
@@ -520,7 +522,9 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
       (note ? note + '; ' : '') +
       (conditioning.positiveDefinite
         ? `the optimum's prior covariance is nearly singular (condition number ${conditioning.conditionNumber.toPrecision(3)}, above ${THRESHOLD_TEXT}): free the nugget so the search can stay within the threshold, or hold the lengths`
-        : `the optimum's prior covariance does not factor: free the nugget so the search can stay within the threshold, or hold the lengths`);
+        : conditioning.verdict === 'not-decided'
+          ? `the positive definiteness of the optimum's prior covariance could not be decided: free the nugget`
+          : `the optimum's prior covariance is not positive definite: free the nugget so the search can stay within the threshold, or hold the lengths`);
   }
   const startTheta = hyperParameterVector(start, params);
   const back = (h: HyperParameter, c: number): number => (h.scale === 'log' ? Math.exp(c) : c);
@@ -561,8 +565,10 @@ const THRESHOLD_TEXT = NEAR_SINGULAR_CONDITION.toExponential(0).replace('+', '')
 /** The workbench's diagnosis of the optimum (dense eigenvalues or certified FFT bounds). */
 function checkConditioning(grid: Grid, prior: PriorSpec, nuggetAtFloor: boolean, nuggetFloor: number | null): OptimumConditioning {
   const d = diagnosePriorAuto(grid, prior);
-  const kappa = d.conditionUpperBound ?? d.conditionNumber;
-  return { positiveDefinite: d.positiveDefinite, conditionNumber: kappa, usable: d.positiveDefinite && kappa <= NEAR_SINGULAR_CONDITION, nuggetAtFloor, nuggetFloor };
+  // κ: the certified bound when the FFT bracket proved the verdict, else the dense or Lanczos value.
+  const kappa = d.decidedBy === 'fft-bracket' && d.conditionUpperBound !== undefined ? d.conditionUpperBound : d.conditionNumber;
+  const proven = d.verdict === 'positive-definite';
+  return { verdict: d.verdict, positiveDefinite: proven, conditionNumber: kappa, usable: proven && kappa <= NEAR_SINGULAR_CONDITION, nuggetAtFloor, nuggetFloor };
 }
 
 function eye(p: number): Float64Array {
