@@ -15,28 +15,14 @@ import { CholeskyDecomposition, EigenvalueDecomposition, Matrix as MlMatrix } fr
 import { describe, expect, it } from 'vitest';
 import { cholesky } from '../../../src/core/linalg/cholesky.ts';
 import { symmetricEigen, symmetricEigenvalues } from '../../../src/core/linalg/eigen.ts';
-import { matrix, type Matrix } from '../../../src/core/linalg/matrix.ts';
-import { randomMatrix, randomSymmetric } from './helpers.ts';
+import type { Matrix } from '../../../src/core/linalg/matrix.ts';
+import { randomSpd, randomSymmetric } from './helpers.ts';
 
 const EPS = 2 ** -52;
 const C = 10;
 
 function toMl(a: Matrix): MlMatrix {
   return new MlMatrix(Array.from({ length: a.rows }, (_, i) => Array.from(a.data.subarray(i * a.cols, (i + 1) * a.cols))));
-}
-
-/** B Bᵀ / n + I: symmetric positive definite with eigenvalues in [1, about 1 + n/3]. */
-function spd(n: number, seed: number): Matrix {
-  const b = randomMatrix(n, n, seed);
-  const a = matrix(n, n);
-  for (let i = 0; i < n; i++) {
-    for (let j = 0; j <= i; j++) {
-      let s = 0;
-      for (let k = 0; k < n; k++) s += b.data[i * n + k]! * b.data[j * n + k]!;
-      a.data[i * n + j] = a.data[j * n + i] = s / n + (i === j ? 1 : 0);
-    }
-  }
-  return a;
 }
 
 /** ml-matrix's eigenvalues ascending, with the eigenvector of each as a column array. */
@@ -48,7 +34,7 @@ function mlEigen(a: Matrix): { values: number[]; vectors: number[][] } {
 
 describe('Cholesky against ml-matrix', () => {
   it.each([1, 7, 63, 64, 65, 130, 200])('n = %i: the same factor within κ·n·ε', (n) => {
-    const a = spd(n, 1000 + n);
+    const a = randomSpd(n, 1000 + n);
     const ours = cholesky(a);
     expect(ours.ok).toBe(true);
     if (!ours.ok) return;
