@@ -1,5 +1,5 @@
 /**
- * Benchmark (not a timed test): the FFT routes of issue 6 against the dense ones.
+ * Benchmark (not a timed test): the FFT routes against the dense ones.
  *   - diagnostics: dense (src/core/prior/diagnostics.ts diagnosePrior: Cholesky + eigenvalues +
  *     jitter search) vs FFT bounds (src/core/prior/structuredDiagnostics.ts) from N = 256 up;
  *   - one posterior draw and one resolution row on the FFT path (src/core/inverse/structuredDraws.ts)

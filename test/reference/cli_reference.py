@@ -8,7 +8,7 @@ With "tune": {"term": k, "lengths": [...], "variances": [...]} added to stdin, s
 in proportion for an anisotropic term) and variance replaced.
 
 Deliberately a different route from the core's data-space form:
-- covariance built entry by entry from the file's definitions (issue 3; kernels/spec.ts): offset rotated
+- covariance built entry by entry from the file's definitions (kernels/spec.ts): offset rotated
   by -angle, h = sqrt((u/l1)^2 + (v/l2)^2); Matern via scipy.special.kv per Rasmussen & Williams (2006)
   eq. 4.14: 2^(1-nu)/Gamma(nu) (sqrt(2 nu) h)^nu K_nu(sqrt(2 nu) h);
   Cm_ij = s_i s_j sum_t var_t rho_t(h_ij) + nugget delta_ij;

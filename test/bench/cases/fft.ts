@@ -3,7 +3,7 @@
  * (WebAssembly SIMD and fft.js + JavaScript), the structured posterior on 64² and
  * 128² grids with M = 400 straight-ray data (Matérn ν = 1.5), and one 512² realisation.
  *
- * Targets (issue 6): 64² mean ≤ 150 ms, mean + std ≤ 400 ms; 128² mean + std ≤ 2 s with peak
+ * Targets: 64² mean ≤ 150 ms, mean + std ≤ 400 ms; 128² mean + std ≤ 2 s with peak
  * memory ≤ 300 MB; 512² realisation ≤ 150 ms; ours / dense scipy ≤ 0.5 at 64², ≤ 0.1 at 128².
  *
  * Two ways to run:

@@ -1,5 +1,5 @@
 /**
- * Benchmark cases for src/core/tuning (not timed tests). Targets (issue 7): a 16 × 16 evidence map
+ * Benchmark cases for src/core/tuning (not timed tests). Targets: a 16 × 16 evidence map
  * (term 0 of the demo's start prior, lengths ×0.2 … ×5, variances ×0.01 … ×100) ≤ 2 s on the 1-D
  * demo and ≤ 20 s on the 2-D demos, medians on the project machine. Also one type-II maximum
  * likelihood fit on the 1-D demo (reported, no target). No scipy counterpart: the shortcut has none.

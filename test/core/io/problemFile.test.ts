@@ -73,7 +73,7 @@ describe('parseProblemFile', () => {
     expect(warnings[0]!.message).toBe('p.json: unknown field author ignored (known here: kind, version, title, grid, operator, data, truth, quantity)');
   });
 
-  // The error cases of issue 3, one line each: file, field, expectation.
+  // The bad-input cases, one line each: file, field, expectation.
   it.each([
     ['not JSON', 'kind: problem', 'p.json: is not valid JSON: line 1, column 1: expected a value (number, string, array, object, true, false or null), got "kind: proble"'],
     ['wrong kind', problem({ kind: 'priorscope.prior' }), 'p.json: kind must be "priorscope.problem" (this is a prior file), got "priorscope.prior"'],
