@@ -5,17 +5,17 @@
  */
 import { beforeAll, expect, it } from 'vitest';
 import { WeightedChiSquare } from '../../src/core/inverse/fitReference.ts';
-import { runCli, tempDir } from './run.ts';
+import { runCommand, tempDir } from './run.ts';
 
 let dir: string;
-beforeAll(() => {
+beforeAll(async () => {
   dir = tempDir();
-  const r = runCli(['demo', 'borehole-log', '--out', 'p.json', '--prior', 'q.json'], dir);
+  const r = await runCommand(['demo', 'borehole-log', '--out', 'p.json', '--prior', 'q.json'], dir);
   expect(r.code, r.err).toBe(0);
 });
 
-it('posterior prints chi2Expected, chi2Interval95 and chi2TailProbability, consistent with each other and with tr R', () => {
-  const r = runCli(['posterior', '--problem', 'p.json', '--prior', 'q.json'], dir);
+it('posterior prints chi2Expected, chi2Interval95 and chi2TailProbability, consistent with each other and with tr R', async () => {
+  const r = await runCommand(['posterior', '--problem', 'p.json', '--prior', 'q.json'], dir);
   expect(r.code, r.err).toBe(0);
   const j = JSON.parse(r.out) as { chi2: number; chi2Expected: number; chi2Interval95: [number, number]; chi2TailProbability: number; dataCount: number; resolutionTrace: number };
   expect(Math.abs(j.chi2Expected - (j.dataCount - j.resolutionTrace))).toBeLessThanOrEqual(1e-9 * j.dataCount);
