@@ -10,6 +10,14 @@ import { TABS, type TabId } from './store.ts';
 import { SelectScreen } from './select/SelectScreen.tsx';
 import { SessionBar } from './session/SessionBar.tsx';
 import { CAUTION } from './caution.ts';
+import { indexedDbStorage } from './session/autosave.ts';
+import { restorePreviousSession } from './session/start.ts';
+
+/** Puts the session kept aside by a link or a ?demo= address back, and reopens the page on it. */
+async function restorePrevious(): Promise<void> {
+  if (typeof indexedDB === 'undefined') return;
+  if (await restorePreviousSession(indexedDbStorage())) location.assign(location.pathname);
+}
 
 function Screen({ tab }: { tab: TabId }) {
   switch (tab) {
@@ -38,6 +46,7 @@ export function App() {
   const tab = useWb((s) => s.tab);
   const setTab = useWb((s) => s.setTab);
   const notice = useWb((s) => s.notice);
+  const previousKept = useWb((s) => s.previousSessionKept);
   const dismiss = useWb((s) => s.dismissNotice);
   const progress = useWb((s) => s.progress);
   const busy = useWb((s) => Object.values(s.busy).some(Boolean));
@@ -75,6 +84,11 @@ export function App() {
       {notice && (
         <div className="notice" role="status">
           {notice}{' '}
+          {previousKept && (
+            <button type="button" data-testid="restore-previous" onClick={() => void restorePrevious()}>
+              Restore the earlier session
+            </button>
+          )}{' '}
           <button type="button" onClick={dismiss}>
             OK
           </button>

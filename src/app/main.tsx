@@ -10,6 +10,16 @@ import { createWorkbenchStore } from './store.ts';
 import './styles.css';
 import { installShortcuts, startSession } from './session/start.ts';
 import { indexedDbStorage } from './session/autosave.ts';
+import { ErrorBoundary } from './ErrorBoundary.tsx';
+
+/** Removes the autosaved session (and its problem), then reopens the page on the default demo. */
+async function clearSavedSession(): Promise<void> {
+  if (typeof indexedDB !== 'undefined') {
+    const storage = indexedDbStorage();
+    for (const key of ['session', 'problem']) await storage.remove(key).catch(() => undefined);
+  }
+  location.assign(location.pathname);
+}
 
 const makeClient = () =>
   new WorkerClient(
@@ -51,7 +61,9 @@ window.__priorscope = {
 createRoot(document.getElementById('root')!).render(
   <StrictMode>
     <StoreContext.Provider value={store}>
-      <App />
+      <ErrorBoundary startOver={() => store.getState().startOver()} clearSaved={clearSavedSession}>
+        <App />
+      </ErrorBoundary>
     </StoreContext.Provider>
   </StrictMode>,
 );
@@ -61,5 +73,6 @@ void startSession(store, {
   explicitDemo: params.get('demo'),
   hash: location.hash,
   clearHash: () => history.replaceState(null, '', location.pathname + location.search),
+  lifecycle: window,
 });
 installShortcuts(store, window);

@@ -86,7 +86,12 @@ export interface ViewSlice {
   seed: number;
   selectedCell: number | null;
   notice: string | null;
+  /** A share link or a ?demo= address replaced the autosaved session; a copy was kept (./session/start.ts). */
+  previousSessionKept: boolean;
 }
+
+/** The seed of a new session. */
+export const DEFAULT_SEED = 20240611;
 
 export interface Actions {
   loadDemo(demoId: string): Promise<void>;
@@ -182,7 +187,8 @@ export function createWorkbenchStore(client: ClientPort, initial: { demoId: stri
       ...emptyResults(),
       progress: null,
       tab: 'posterior',
-      seed: initial.seed ?? 20240611,
+      seed: initial.seed ?? DEFAULT_SEED,
+      previousSessionKept: false,
       selectedCell: null,
       notice: null,
       ...createSessionSlice(set, get, api, client),

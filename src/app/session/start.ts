@@ -14,7 +14,9 @@
  */
 import type { WorkbenchState, WorkbenchStore } from '../store.ts';
 import { DEFAULT_DEMO } from '../demos.ts';
-import { AUTOSAVE_DEBOUNCE_MS, isSavedSession, SESSION_FORMAT, type SavedProblem, type SavedSession, type SessionStorage } from './autosave.ts';
+import { AUTOSAVE_DEBOUNCE_MS, SESSION_FORMAT, type SavedProblem, type SavedSession, type SessionStorage } from './autosave.ts';
+import { checkPriorForGrid } from '../../core/io/priorFile.ts';
+import { sanitizeSavedSession, validateSavedProblem } from './restore.ts';
 import { decodeShare } from './share.ts';
 
 export interface StartOptions {
@@ -23,35 +25,117 @@ export interface StartOptions {
   readonly hash: string;
   /** Removes the share code from the address bar once applied. */
   readonly clearHash?: () => void;
+  /** The page, for saving at once when it is hidden or closed (pagehide, visibilitychange). */
+  readonly lifecycle?: Pick<Window, 'addEventListener'> & { readonly document?: { readonly visibilityState: string } };
 }
 
 export const SHARED_NOTICE = 'Opened the prior from the shared link (a link takes precedence over the autosaved session).';
 
-async function readSaved(storage: SessionStorage | null): Promise<{ session: SavedSession; problem: SavedProblem | null } | null> {
+interface Saved {
+  readonly session: SavedSession;
+  readonly problem: SavedProblem | null;
+  /** What could not be restored, in plain words. */
+  readonly notes: string[];
+}
+
+/** The autosaved session, every part checked (./restore.ts); null when there is none or nothing usable. */
+async function readSaved(storage: SessionStorage | null): Promise<Saved | null> {
   if (!storage) return null;
+  let raw: unknown;
   try {
-    const session = await storage.get<unknown>('session');
-    if (!isSavedSession(session)) return null;
-    const problem = session.source.kind === 'user' ? ((await storage.get<SavedProblem>('problem')) ?? null) : null;
-    if (session.source.kind === 'user' && problem?.key !== session.source.problemKey) return null;
-    return { session, problem };
+    raw = await storage.get<unknown>('session');
   } catch {
     return null;
   }
+  const r = sanitizeSavedSession(raw);
+  if (!r) return null;
+  const notes = [...r.notes];
+  const { session } = r;
+  if (session.source.kind !== 'user') return { session, problem: null, notes };
+  try {
+    const stored = await storage.get<unknown>('problem');
+    const key = (stored as { key?: unknown } | undefined)?.key;
+    if (key !== session.source.problemKey) return null;
+    const problem = validateSavedProblem((stored as { problem?: unknown }).problem);
+    return { session, problem: { key: session.source.problemKey, problem }, notes };
+  } catch (e) {
+    // The problem is unusable: keep nothing of the session that belongs to it, say why.
+    notes.push(e instanceof Error ? e.message : 'The saved problem could not be restored.');
+    return { session: { ...session, source: { kind: 'demo', demoId: DEFAULT_DEMO }, extra: {} }, problem: null, notes: [...notes, 'the default demo is shown instead'] };
+  }
 }
 
-async function restoreSaved(store: WorkbenchStore, saved: { session: SavedSession; problem: SavedProblem | null }, override?: SavedSession['prior']) {
+/** Restores the saved view; candidates whose prior does not fit the problem's grid are dropped. */
+async function restoreSaved(store: WorkbenchStore, saved: Saved, override?: SavedSession['prior']) {
   const s = store.getState();
   const { session } = saved;
   const view = { prior: override ?? session.prior, seed: session.seed, tab: session.tab, selectedCell: session.selectedCell };
-  if (session.source.kind === 'user' && saved.problem) {
-    const ok = await s.adoptProblem(saved.problem.problem, session.source.label, view, saved.problem.key);
-    if (ok && session.extra) store.setState(session.extra as Partial<WorkbenchState>);
-    return ok;
+  const ok =
+    session.source.kind === 'user' && saved.problem
+      ? await s.adoptProblem(saved.problem.problem, session.source.label, view, saved.problem.key)
+      : await s.openDemo(session.source.kind === 'demo' ? session.source.demoId : DEFAULT_DEMO, view);
+  const problem = store.getState().problem;
+  if (ok && problem && session.extra && Array.isArray(session.extra.candidates)) {
+    const all = session.extra.candidates as { prior: SavedSession['prior'] }[];
+    const fits = all.filter((c) => {
+      try {
+        checkPriorForGrid('candidate prior', c.prior, problem.grid);
+        return true;
+      } catch {
+        return false;
+      }
+    });
+    if (fits.length !== all.length) saved.notes.push('saved candidate priors that do not fit this problem were dropped');
+    store.setState({ candidates: fits } as unknown as Partial<WorkbenchState>);
   }
-  const ok = await s.openDemo(session.source.kind === 'demo' ? session.source.demoId : DEFAULT_DEMO, view);
-  if (ok && session.extra) store.setState(session.extra as Partial<WorkbenchState>);
+  if (problem && store.getState().selectedCell !== null && store.getState().selectedCell! >= cellCountOf(problem)) {
+    store.setState({ selectedCell: null });
+  }
   return ok;
+}
+
+const cellCountOf = (p: { grid: { shape: readonly number[] } }) => p.grid.shape.reduce((a, b) => a * b, 1);
+
+/** One line for the notices of a restore (null when nothing was dropped). */
+export function restoreNotice(notes: readonly string[]): string | null {
+  if (notes.length === 0) return null;
+  const text = notes.join('; ');
+  return `Restored the saved session, but ${text}.`;
+}
+
+const PREVIOUS_SESSION = 'previous-session';
+const PREVIOUS_PROBLEM = 'previous-problem';
+
+/**
+ * Before a share link or a ?demo= address replaces what is on screen, the autosaved session (and
+ * the user's problem) are copied aside, so the autosave that follows cannot lose them. True when
+ * there was a session to keep.
+ */
+async function keepPrevious(storage: SessionStorage | null): Promise<boolean> {
+  if (!storage) return false;
+  try {
+    const session = await storage.get<unknown>('session');
+    if (session === undefined) return false;
+    const problem = await storage.get<unknown>('problem');
+    await storage.put(PREVIOUS_SESSION, session);
+    if (problem !== undefined) await storage.put(PREVIOUS_PROBLEM, problem);
+    else await storage.remove(PREVIOUS_PROBLEM);
+    return true;
+  } catch {
+    return false;
+  }
+}
+
+/** Puts the kept session back as the autosaved one (the caller then reloads the page without ?demo= or a link). */
+export async function restorePreviousSession(storage: SessionStorage): Promise<boolean> {
+  const session = await storage.get<unknown>(PREVIOUS_SESSION);
+  if (session === undefined) return false;
+  const problem = await storage.get<unknown>(PREVIOUS_PROBLEM);
+  await storage.put('session', session);
+  if (problem !== undefined) await storage.put('problem', problem);
+  await storage.remove(PREVIOUS_SESSION);
+  await storage.remove(PREVIOUS_PROBLEM);
+  return true;
 }
 
 /** Decide what to open, open it, then start autosaving. */
@@ -64,26 +148,46 @@ export async function startSession(store: WorkbenchStore, o: StartOptions): Prom
   } catch (e) {
     shareError = e instanceof Error ? e.message : String(e);
   }
-  if (shared) {
-    o.clearHash?.();
-    if (shared.problem !== null) {
-      await s.openDemo(shared.problem, { prior: shared.prior, tab: 'posterior' });
-    } else {
-      const saved = await readSaved(o.storage);
-      if (saved) await restoreSaved(store, saved, shared.prior);
-      else await s.openDemo(DEFAULT_DEMO);
-    }
-    if (!store.getState().loadError) store.setState({ notice: SHARED_NOTICE });
-  } else if (o.explicitDemo) {
-    await s.openDemo(o.explicitDemo);
-  } else {
+  const openSaved = async () => {
     const saved = await readSaved(o.storage);
     if (!saved || !(await restoreSaved(store, saved))) {
       if (store.getState().problemStatus !== 'ready') await s.openDemo(DEFAULT_DEMO);
     }
+    return saved?.notes ?? [];
+  };
+  let notes: string[] = [];
+  let kept = false;
+  if (shared) {
+    o.clearHash?.();
+    kept = await keepPrevious(o.storage);
+    let ok: boolean;
+    if (shared.problem !== null) {
+      ok = await s.openDemo(shared.problem, { prior: shared.prior, tab: 'posterior' });
+    } else {
+      const saved = await readSaved(o.storage);
+      ok = saved !== null && saved.problem !== null && (await restoreSaved(store, saved, shared.prior));
+      if (!ok) shareError = 'this link carries a prior made for a problem loaded from files, and that problem is not the one saved in this browser';
+    }
+    if (ok) store.setState({ notice: SHARED_NOTICE, previousSessionKept: kept });
+    else {
+      // A link that cannot be applied changes nothing: the saved session is shown as it was.
+      const why = store.getState().loadError ?? shareError;
+      store.setState({ loadError: null });
+      notes = await openSaved();
+      shareError = `The shared link could not be opened: ${why}`;
+      kept = false;
+    }
+  } else if (o.explicitDemo) {
+    kept = await keepPrevious(o.storage);
+    await s.openDemo(o.explicitDemo);
+    if (kept) store.setState({ notice: 'Opened the demo named in the address. Your earlier session was kept and can be restored.', previousSessionKept: true });
+  } else {
+    notes = await openSaved();
   }
+  const notice = restoreNotice(notes);
+  if (notice) store.setState({ notice });
   if (shareError) store.setState({ loadError: shareError });
-  if (o.storage) installAutosave(store, o.storage);
+  if (o.storage) installAutosave(store, o.storage, AUTOSAVE_DEBOUNCE_MS, o.lifecycle);
 }
 
 /** The record written for the current state (null while no problem is shown). */
@@ -106,7 +210,7 @@ export function sessionRecord(s: WorkbenchState, now = Date.now()): SavedSession
   };
 }
 
-export function installAutosave(store: WorkbenchStore, storage: SessionStorage, delay = AUTOSAVE_DEBOUNCE_MS): () => void {
+export function installAutosave(store: WorkbenchStore, storage: SessionStorage, delay = AUTOSAVE_DEBOUNCE_MS, lifecycle?: StartOptions['lifecycle']): () => void {
   let timer: ReturnType<typeof setTimeout> | null = null;
   let savedProblemKey: string | null = null;
   const write = async () => {
@@ -148,6 +252,17 @@ export function installAutosave(store: WorkbenchStore, storage: SessionStorage, 
     }
   });
   schedule();
+  // A pending write goes out at once when the page is hidden or closed (a reload right after an
+  // edit must not lose it).
+  const flush = () => {
+    if (!timer) return;
+    clearTimeout(timer);
+    void write();
+  };
+  lifecycle?.addEventListener('pagehide', flush);
+  lifecycle?.addEventListener('visibilitychange', () => {
+    if (lifecycle.document?.visibilityState === 'hidden') flush();
+  });
   return () => {
     unsubscribe();
     if (timer) clearTimeout(timer);
