@@ -15,7 +15,7 @@ import type { PriorSpec } from '../../core/prior/spec.ts';
 import type { Diagnostics } from '../../core/prior/diagnostics.ts';
 import { writePriorFile } from '../../core/io/priorFile.ts';
 import type { DataFitReference } from '../../core/inverse/fitReference.ts';
-import { FIT_REFERENCE_BASIS, fitVerdict, formatTail } from '../posteriorView.ts';
+import { fitVerdict, formatTail } from '../posteriorView.ts';
 
 export interface ReportModel {
   readonly title: string;
@@ -33,11 +33,11 @@ export interface ReportModel {
 export function fitReferenceRows(chi2: number, ref: DataFitReference | null): [string, string][] {
   if (!ref) return [['Reference for χ²', 'not available (no data)']];
   return [
-    ['Expected χ² under the model (M − tr R)', g4(ref.expected)],
-    ['95% interval of χ²', `${g4(ref.interval95[0])} – ${g4(ref.interval95[1])}`],
-    ['P(χ² ≥ observed)', formatTail(ref.upperTail)],
+    [
+      'Reference for χ²',
+      `expected ${g4(ref.expected)} (M − tr R, tr R = resolved parameters), 95% interval ${g4(ref.interval95[0])} – ${g4(ref.interval95[1])}, P(χ² ≥ observed) = ${formatTail(ref.upperTail)}; weighted sum of χ²₁, weights eig(L⁻¹ Cd L⁻ᵀ), not χ²_M; Imhof (1961)`,
+    ],
     ['Fit', fitVerdict(chi2, ref).text],
-    ['Reference rests on', FIT_REFERENCE_BASIS],
   ];
 }
 
@@ -76,6 +76,13 @@ const VERDICT_TEXT: Record<Diagnostics['verdict'], string> = {
   'not-decided': 'not decided',
 };
 
+const DECIDED_BY_TEXT: Record<Diagnostics['decidedBy'], string> = {
+  cholesky: 'Cholesky factorisation of the dense Cm',
+  'fft-bracket': 'certified eigenvalue bound from the FFT embedding',
+  'lanczos-ritz': 'a direction of negative variance (Lanczos)',
+  none: 'no route could decide at this size',
+};
+
 export function reportModel(s: WorkbenchState, caution: string, now = new Date()): ReportModel | null {
   const p = s.problem;
   if (!p || !s.prior) return null;
@@ -89,7 +96,7 @@ export function reportModel(s: WorkbenchState, caution: string, now = new Date()
   const d = s.diagnostics;
   const pd: [string, string][] = d
     ? [
-        ['Positive definite', `${VERDICT_TEXT[d.verdict]}: ${d.basis}${d.nextStep ? ` Next step: ${d.nextStep}` : ''}`],
+        ['Positive definite', `${VERDICT_TEXT[d.verdict]} (${DECIDED_BY_TEXT[d.decidedBy]})${d.nextStep ? `; next step: ${d.nextStep}` : ''}`],
         ['Smallest eigenvalue', g4(d.minEigenvalue)],
         ['Condition number', g4(d.conditionNumber)],
         ...(d.suggestedJitter !== null ? [['Suggested jitter', g4(d.suggestedJitter)] as [string, string]] : []),
@@ -101,7 +108,6 @@ export function reportModel(s: WorkbenchState, caution: string, now = new Date()
     ? [
         ['χ² of the posterior mean', `${g4(post.summary.chi2)} (M = ${post.summary.dataCount} data)`],
         ...fitReferenceRows(post.summary.chi2, post.summary.fitReference ?? null),
-        ['Resolved parameters (tr R)', g4(post.summary.resolutionTrace)],
         ['log evidence', g4(post.summary.logEvidence)],
       ]
     : [['Fit', 'not computed yet']];
@@ -128,8 +134,8 @@ const STYLE = `
 body{font:10pt/1.35 system-ui,sans-serif;color:#222;margin:16px auto;max-width:190mm}
 h1{font-size:15pt;margin:0 0 2px} h2{font-size:11pt;margin:8px 0 3px;border-bottom:1px solid #ccc}
 .meta{color:#555;font-size:9pt} table{border-collapse:collapse;font-size:9pt} td{padding:1px 8px 1px 0;vertical-align:top}
-.cols{display:flex;gap:12px} .cols>section{flex:1} figure{margin:0;text-align:center;font-size:8pt}
-.gallery{display:grid;grid-template-columns:repeat(3,1fr);gap:4px} .gallery img,.plots img{width:100%}
+.cols{display:flex;gap:12px} .cols>section{flex:1} .cols>section:first-child{flex:1.4} td:first-child{white-space:nowrap} figure{margin:0;text-align:center;font-size:8pt}
+.gallery{display:grid;grid-template-columns:repeat(3,1fr);gap:4px} .gallery img,.plots img{width:100%;object-fit:contain} .plots img{max-height:46mm} .gallery img{max-height:30mm}
 .plots{display:grid;grid-template-columns:repeat(2,1fr);gap:6px} pre{font-size:7pt;white-space:pre-wrap;margin:0}
 .caution{border:1px solid #b55;padding:4px 6px;font-size:8.5pt;margin-top:6px}
 @page{size:A4 portrait;margin:10mm} @media print{body{margin:0;max-width:none;font-size:8.5pt} h2{margin-top:5px} pre{font-size:6pt}}
