@@ -11,8 +11,11 @@ import type { StoreApi } from 'zustand/vanilla';
 import type { Problem } from '../../core/problems/spec.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
 import type { Matrix } from '../../core/linalg/matrix.ts';
+import type { Grid } from '../../core/grid/grid.ts';
 import type { NamedBytes, PiecesInput } from '../../core/io/pieces.ts';
 import { checkPriorForGrid } from '../../core/io/priorFile.ts';
+import { validatePrior } from '../../core/prior/validate.ts';
+import { InputError } from '../../core/errors.ts';
 import { parseOffThread } from '../io/parseClient.ts';
 import type { ParseResult } from '../io/parse.ts';
 import { emptyHistory, record, redo, undo, type History } from './history.ts';
@@ -66,6 +69,17 @@ type Get = StoreApi<WorkbenchState>['getState'];
 function isContinuousEdit(): boolean {
   const el = typeof document !== 'undefined' ? (document.activeElement as HTMLInputElement | null) : null;
   return el?.tagName === 'INPUT' && el.type === 'range';
+}
+
+/** A prior from storage or a link: every field (the core's validator), then its fit to the grid. */
+export function checkSavedPrior(prior: PriorSpec, grid: Grid): void {
+  try {
+    validatePrior(prior, grid);
+  } catch (e) {
+    if (e instanceof InputError) throw new Error(`the saved prior could not be used: ${e.message}`);
+    throw new Error('the saved prior could not be used: it is damaged');
+  }
+  checkPriorForGrid('saved prior', prior, grid);
 }
 
 const message = (e: unknown) => (e instanceof Error ? e.message : String(e));
@@ -160,7 +174,7 @@ export function createSessionSlice(set: Set, get: Get, api: StoreApi<WorkbenchSt
         // The problem's own starting prior (the rule of src/core/tuning/startPrior.ts), else the generic one.
         let prior = pv.startPrior ?? defaultPrior(pv);
         if (view.prior) {
-          checkPriorForGrid('saved prior', view.prior, pv.grid);
+          checkSavedPrior(view.prior, pv.grid);
           prior = view.prior;
         }
         set({
@@ -197,7 +211,7 @@ export function createSessionSlice(set: Set, get: Get, api: StoreApi<WorkbenchSt
       if (get().problemStatus !== 'ready') return false;
       if (view.prior) {
         try {
-          checkPriorForGrid('saved prior', view.prior, get().problem!.grid);
+          checkSavedPrior(view.prior, get().problem!.grid);
         } catch (e) {
           set({ loadError: message(e) });
           return false;

@@ -15,7 +15,7 @@
 import type { WorkbenchState, WorkbenchStore } from '../store.ts';
 import { DEFAULT_DEMO } from '../demos.ts';
 import { AUTOSAVE_DEBOUNCE_MS, SESSION_FORMAT, type SavedProblem, type SavedSession, type SessionStorage } from './autosave.ts';
-import { checkPriorForGrid } from '../../core/io/priorFile.ts';
+import { checkSavedPrior } from './slice.ts';
 import { sanitizeSavedSession, validateSavedProblem } from './restore.ts';
 import { decodeShare } from './share.ts';
 
@@ -26,7 +26,7 @@ export interface StartOptions {
   /** Removes the share code from the address bar once applied. */
   readonly clearHash?: () => void;
   /** The page, for saving at once when it is hidden or closed (pagehide, visibilitychange). */
-  readonly lifecycle?: Pick<Window, 'addEventListener'> & { readonly document?: { readonly visibilityState: string } };
+  readonly lifecycle?: Lifecycle;
 }
 
 export const SHARED_NOTICE = 'Opened the prior from the shared link (a link takes precedence over the autosaved session).';
@@ -39,11 +39,11 @@ interface Saved {
 }
 
 /** The autosaved session, every part checked (./restore.ts); null when there is none or nothing usable. */
-async function readSaved(storage: SessionStorage | null): Promise<Saved | null> {
+async function readSaved(storage: SessionStorage | null, lifecycle?: Lifecycle): Promise<Saved | null> {
   if (!storage) return null;
   let raw: unknown;
   try {
-    raw = await storage.get<unknown>('session');
+    raw = pendingNewer(lifecycle, await storage.get<unknown>('session'));
   } catch {
     return null;
   }
@@ -79,7 +79,7 @@ async function restoreSaved(store: WorkbenchStore, saved: Saved, override?: Save
     const all = session.extra.candidates as { prior: SavedSession['prior'] }[];
     const fits = all.filter((c) => {
       try {
-        checkPriorForGrid('candidate prior', c.prior, problem.grid);
+        checkSavedPrior(c.prior, problem.grid);
         return true;
       } catch {
         return false;
@@ -101,6 +101,33 @@ export function restoreNotice(notes: readonly string[]): string | null {
   if (notes.length === 0) return null;
   const text = notes.join('; ');
   return `Restored the saved session, but ${text}.`;
+}
+
+/**
+ * The page's lifecycle for the autosave. IndexedDB writes are asynchronous and may not finish while a
+ * page unloads, so on pagehide the (small) session record is also written synchronously to
+ * `localStorage` under {@link PENDING_KEY}; the next start prefers it when it is newer than the
+ * IndexedDB record of the same problem.
+ */
+export type Lifecycle = Pick<Window, 'addEventListener'> & {
+  readonly document?: { readonly visibilityState: string };
+  readonly localStorage?: Pick<Storage, 'getItem' | 'setItem' | 'removeItem'>;
+};
+export const PENDING_KEY = 'priorscope.pending-session';
+
+/** The pending record written on pagehide, when it is newer than `session` and of the same problem. */
+function pendingNewer(lifecycle: Lifecycle | undefined, session: unknown): unknown {
+  try {
+    const text = lifecycle?.localStorage?.getItem(PENDING_KEY);
+    if (!text) return session;
+    const pending = JSON.parse(text) as SavedSession;
+    const saved = session as Partial<SavedSession> | undefined;
+    if (!saved || !saved.source || typeof saved.savedAt !== 'number') return pending.source?.kind === 'demo' ? pending : session;
+    const same = JSON.stringify(pending.source) === JSON.stringify(saved.source);
+    return same && pending.savedAt > saved.savedAt ? pending : session;
+  } catch {
+    return session;
+  }
 }
 
 const PREVIOUS_SESSION = 'previous-session';
@@ -149,7 +176,7 @@ export async function startSession(store: WorkbenchStore, o: StartOptions): Prom
     shareError = e instanceof Error ? e.message : String(e);
   }
   const openSaved = async () => {
-    const saved = await readSaved(o.storage);
+    const saved = await readSaved(o.storage, o.lifecycle);
     if (!saved || !(await restoreSaved(store, saved))) {
       if (store.getState().problemStatus !== 'ready') await s.openDemo(DEFAULT_DEMO);
     }
@@ -227,6 +254,11 @@ export function installAutosave(store: WorkbenchStore, storage: SessionStorage, 
         savedProblemKey = '';
       }
       await storage.put('session', rec);
+      try {
+        lifecycle?.localStorage?.removeItem(PENDING_KEY);
+      } catch {
+        // Nothing to clear.
+      }
       if (!timer) store.setState({ saveStatus: 'saved' });
     } catch {
       store.setState({ saveStatus: 'failed' });
@@ -257,6 +289,12 @@ export function installAutosave(store: WorkbenchStore, storage: SessionStorage, 
   const flush = () => {
     if (!timer) return;
     clearTimeout(timer);
+    const rec = sessionRecord(store.getState());
+    try {
+      if (rec) lifecycle?.localStorage?.setItem(PENDING_KEY, JSON.stringify(rec));
+    } catch {
+      // Storage full or blocked: the IndexedDB write below is still attempted.
+    }
     void write();
   };
   lifecycle?.addEventListener('pagehide', flush);

@@ -12,6 +12,7 @@ import { sanitizeSavedSession, validateSavedProblem } from '../../../src/app/ses
 import { encodeShare } from '../../../src/app/session/share.ts';
 import { demoById } from '../../../src/core/problems/demos.ts';
 import { inProcessClient, tick } from './inProcessClient.ts';
+import { KERNEL_NAMES } from '../../../src/core/kernels/spec.ts';
 
 const prior = { mean: { constant: 0 }, terms: [{ kernel: 'exponential' as const, variance: 1, length: 5 }], nugget: 0.01 };
 const record = (over: Record<string, unknown> = {}) => ({
@@ -111,6 +112,9 @@ describe('startSession with a damaged autosave', () => {
     await settled(store);
     const s = store.getState();
     expect(s.prior).not.toBeNull();
+    // Every restored prior passed the core validator (an unknown kernel crashed the Prior panel).
+    for (const t of s.prior!.terms) expect(KERNEL_NAMES).toContain(t.kernel);
+    expect(Number.isFinite(s.prior!.nugget ?? 0)).toBe(true);
     expect(['fit', 'posterior']).toContain(s.tab);
     for (const text of [s.loadError, s.notice]) if (text) expect(text).not.toMatch(RAW_JS);
     expect(Array.isArray((s as unknown as { candidates: unknown[] }).candidates)).toBe(true);
