@@ -4,7 +4,7 @@
  * stay off the main thread) and directly in unit tests.
  */
 import { assertNever } from '../../core/errors.ts';
-import { FileFormatError } from '../../core/io/errors.ts';
+import { FileFormatError, type FileWarning } from '../../core/io/errors.ts';
 import { parseProblemFile } from '../../core/io/problemFile.ts';
 import { parsePriorFile } from '../../core/io/priorFile.ts';
 import { assembleProblem, type NamedBytes, type PiecesInput } from '../../core/io/pieces.ts';
@@ -65,8 +65,9 @@ export function parseRequest(req: ParseRequest): ParseResult {
       return { kind: 'problem', problem: r.problem, label: main.name, warnings: r.warnings.map((w) => w.message) };
     }
     case 'pieces': {
-      const problem = assembleProblem(req.input);
-      return { kind: 'problem', problem, label: `${req.input.operator.name} + ${req.input.data.name}`, warnings: [] };
+      const warnings: FileWarning[] = [];
+      const problem = assembleProblem(req.input, warnings);
+      return { kind: 'problem', problem, label: `${req.input.operator.name} + ${req.input.data.name}`, warnings: warnings.map((w) => w.message) };
     }
     case 'prior': {
       const r = parsePriorFile(req.file.name, req.file.bytes, { grid: req.grid });

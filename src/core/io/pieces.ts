@@ -6,7 +6,9 @@
  * Data CSV: the header is optional (decided as in ./csv.ts). With a header, the value column is
  * the one named `value` (or `values`, `data`, `d`) and the standard deviation column the one named
  * `sigma` (or `std`, `stdev`, `error`), names compared case-insensitively; other columns are
- * ignored. Without a header, one column holds the values, two columns hold value and sigma.
+ * ignored. Without a header, one column holds the values, two columns hold value and sigma; a
+ * comma-separated file of two whole-number columns with no decimal point anywhere (`1,25`) is
+ * refused with a hint, since it may be one column written with decimal commas.
  * Data .npy: shape (M,) values only, or (M, 2) value and sigma columns.
  * Sigma must be > 0. A data file without sigma needs a covariance file, and a data file with sigma
  * must not come with one (exactly one description of the errors, as in the problem file).
@@ -23,8 +25,8 @@ import type { Matrix } from '../linalg/matrix.ts';
 import { operatorToDense, type Operator } from '../linalg/operator.ts';
 import type { DataSpec, Problem } from '../problems/spec.ts';
 import { assertNever, formatValue } from '../errors.ts';
-import { checkFileSize, FileFormatError } from './errors.ts';
-import { parseCsv } from './csv.ts';
+import { checkFileSize, FileFormatError, type FileWarning } from './errors.ts';
+import { csvContentLines, headerNote, parseCsv } from './csv.ts';
 import { decodeText } from './json.ts';
 import { parseMatrixMarket } from './matrixMarket.ts';
 import { npyToMatrix, parseNpy } from './npy.ts';
@@ -40,6 +42,8 @@ export interface DataFileResult {
   readonly values: Float64Array;
   /** Null when the file has no sigma column. */
   readonly sigma: Float64Array | null;
+  /** Remarks about the file (a first row read as a header). */
+  readonly warnings: readonly FileWarning[];
 }
 
 const VALUE_NAMES = ['value', 'values', 'data', 'd'];
@@ -57,32 +61,27 @@ function formatOf(name: string, allowed: readonly Format[], what: string): Forma
   return f;
 }
 
-/** 1-based line numbers of the rows that ./csv.ts reads (blank and '#' lines skipped). */
-function contentLines(text: string): number[] {
-  const out: number[] = [];
-  const lines = text.split('\n');
-  for (let k = 0; k < lines.length; k++) {
-    const t = lines[k]!.trim();
-    if (t !== '' && !t.startsWith('#')) out.push(k + 1);
-  }
-  return out;
-}
+/** A two-integer-column row such as `1,25`: with no decimal point anywhere, possibly a decimal comma. */
+const INTEGER_PAIR = /^\s*"?\s*[+-]?\d+\s*"?\s*,\s*"?\s*\d+\s*"?\s*$/;
 
 /** A data CSV (see the module comment). */
 export function parseDataCsv(file: string, input: string | Uint8Array): DataFileResult {
   const text = decodeText(file, input);
   const table = parseCsv(file, text, { header: 'auto' });
   const { rows, cols, data } = table.matrix;
-  const lines = contentLines(text);
-  const firstRowLine = table.header ? 1 : 0;
+  const lines = table.rowLines;
+  const warnings: FileWarning[] = [];
+  const note = headerNote(file, table);
+  if (note) warnings.push({ file, message: note });
   let vc: number;
   let sc: number | null;
   if (table.header) {
+    const headerLine = table.headerLine!;
     const lower = table.header.map((h) => h.toLowerCase());
     const find = (names: string[]) => {
       const hits = lower.flatMap((h, c) => (names.includes(h) ? [c] : []));
       if (hits.length > 1) {
-        throw new FileFormatError(file, `line ${lines[0]} names ${hits.length} columns ${names.join('/')}, expected one`, { line: lines[0]! });
+        throw new FileFormatError(file, `line ${headerLine} names ${hits.length} columns ${names.join('/')}, expected one`, { line: headerLine });
       }
       return hits[0] ?? null;
     };
@@ -90,8 +89,8 @@ export function parseDataCsv(file: string, input: string | Uint8Array): DataFile
     if (v === null) {
       throw new FileFormatError(
         file,
-        `header (line ${lines[0]}) must name a value column (${VALUE_NAMES.join(', ')}), got ${formatValue(table.header.join(','))}`,
-        { line: lines[0]! },
+        `header (line ${headerLine}) must name a value column (${VALUE_NAMES.join(', ')}), got ${formatValue(table.header.join(','))}`,
+        { line: headerLine },
       );
     }
     vc = v;
@@ -99,6 +98,20 @@ export function parseDataCsv(file: string, input: string | Uint8Array): DataFile
   } else {
     if (cols > 2) {
       throw new FileFormatError(file, `without a header must have 1 column (value) or 2 columns (value, sigma), got ${cols} columns`, { line: lines[0]! });
+    }
+    if (cols === 2 && table.delimiter === ',') {
+      // "1,25" with no decimal point anywhere: value 1, sigma 25, or 1.25 with a decimal comma?
+      // Refused rather than guessed (a header line value,sigma or one decimal point settles it).
+      const content = csvContentLines(text);
+      if (content.every((row) => INTEGER_PAIR.test(row.text))) {
+        const row = content[0]!;
+        throw new FileFormatError(
+          file,
+          `line ${row.line} ${formatValue(row.text.trim())} could be value, sigma or one number with a decimal comma; ` +
+            'write decimals with a dot (1.25), or add the header line value,sigma if these are whole-number values and sigmas',
+          { line: row.line },
+        );
+      }
     }
     vc = 0;
     sc = cols === 2 ? 1 : null;
@@ -110,13 +123,13 @@ export function parseDataCsv(file: string, input: string | Uint8Array): DataFile
     if (sigma && sc !== null) {
       const s = data[i * cols + sc]!;
       if (!(s > 0)) {
-        const line = lines[i + firstRowLine]!;
+        const line = lines[i]!;
         throw new FileFormatError(file, `line ${line}, column ${sc + 1} (sigma) must be > 0, got ${formatValue(s)}`, { line, column: sc + 1 });
       }
       sigma[i] = s;
     }
   }
-  return { values, sigma };
+  return { values, sigma, warnings };
 }
 
 /** A data .npy: (M,) values or (M, 2) value and sigma columns. */
@@ -124,7 +137,7 @@ export function parseDataNpy(file: string, bytes: Uint8Array): DataFileResult {
   const a = parseNpy(file, bytes);
   if (a.shape.length === 1) {
     if (a.shape[0] === 0) throw new FileFormatError(file, 'must hold at least one datum, got shape (0,)', { field: 'shape' });
-    return { values: a.data.slice(), sigma: null };
+    return { values: a.data.slice(), sigma: null, warnings: [] };
   }
   if (a.shape.length === 2 && a.shape[1] === 2 && a.shape[0]! > 0) {
     const m = a.shape[0]!;
@@ -136,7 +149,7 @@ export function parseDataNpy(file: string, bytes: Uint8Array): DataFileResult {
       if (!(s > 0)) throw new FileFormatError(file, `row ${i}, column 1 (sigma) must be > 0, got ${formatValue(s)}`, { field: `[${i}, 1]` });
       sigma[i] = s;
     }
-    return { values, sigma };
+    return { values, sigma, warnings: [] };
   }
   throw new FileFormatError(
     file,
@@ -151,13 +164,20 @@ export function parseDataFile(f: NamedBytes): DataFileResult {
   return format === 'npy' ? parseDataNpy(f.name, f.bytes) : parseDataCsv(f.name, f.bytes);
 }
 
-/** The operator G from a .csv, .mtx or .npy file (no shape check here; see {@link assembleProblem}). */
-export function parseOperatorFile(f: NamedBytes): Operator {
+/**
+ * The operator G from a .csv, .mtx or .npy file (no shape check here; see {@link assembleProblem}).
+ * A CSV first row read as column names is reported in `warnings`.
+ */
+export function parseOperatorFile(f: NamedBytes, warnings?: FileWarning[]): Operator {
   const format = formatOf(f.name, ['csv', 'mtx', 'npy'], 'the operator G');
   checkFileSize(f.name, f.bytes.byteLength);
   switch (format) {
-    case 'csv':
-      return { kind: 'dense', matrix: parseCsv(f.name, f.bytes, { header: 'auto' }).matrix };
+    case 'csv': {
+      const table = parseCsv(f.name, f.bytes, { header: 'auto' });
+      const note = headerNote(f.name, table);
+      if (note && warnings) warnings.push({ file: f.name, message: note });
+      return { kind: 'dense', matrix: table.matrix };
+    }
     case 'mtx':
       return parseMatrixMarket(f.name, f.bytes);
     case 'npy':
@@ -259,12 +279,13 @@ export interface PiecesInput {
  * Read and cross-check the pieces: G must be M × N with M the number of data and N the grid's
  * cell count; the errors come from exactly one of the sigma column and the covariance file.
  */
-export function assembleProblem(input: PiecesInput): Problem {
+export function assembleProblem(input: PiecesInput, warnings?: FileWarning[]): Problem {
   const grid = checkGridForm(input.grid);
   const n = cellCount(grid);
   const d = parseDataFile(input.data);
+  warnings?.push(...d.warnings);
   const m = d.values.length;
-  const operator = parseOperatorFile(input.operator);
+  const operator = parseOperatorFile(input.operator, warnings);
   const g = operator.matrix;
   if (g.cols !== n) {
     throw new FileFormatError(

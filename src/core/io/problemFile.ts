@@ -29,7 +29,7 @@ import { assertNever, formatValue } from '../errors.ts';
 import { baseName, FileFormatError, type FileWarning } from './errors.ts';
 import { formatJson, JsonReader, parseJsonText } from './json.ts';
 import { checkKindVersion } from './priorFile.ts';
-import { parseCsv } from './csv.ts';
+import { headerNote, parseCsv } from './csv.ts';
 import { parseMatrixMarket, writeMatrixMarket } from './matrixMarket.ts';
 import { npyToMatrix, parseNpy, writeNpyMatrix } from './npy.ts';
 import { writeCsv } from './csv.ts';
@@ -170,9 +170,13 @@ function readOperator(r: JsonReader, value: unknown, m: number, n: number, optio
   const sibling = baseName(name);
   let g: Operator;
   switch (format!) {
-    case 'csv':
-      g = { kind: 'dense', matrix: parseCsv(sibling, bytes, { header: 'auto' }).matrix };
+    case 'csv': {
+      const table = parseCsv(sibling, bytes, { header: 'auto' });
+      const note = headerNote(sibling, table);
+      if (note) r.warn('operator.file', `operator.file ${note}`);
+      g = { kind: 'dense', matrix: table.matrix };
       break;
+    }
     case 'mtx':
       g = parseMatrixMarket(sibling, bytes);
       break;

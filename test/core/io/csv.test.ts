@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { csvColumns, parseCsv, writeCsv } from '../../../src/core/io/csv.ts';
+import { csvColumns, headerNote, looksNumeric, parseCsv, writeCsv } from '../../../src/core/io/csv.ts';
 import { FileFormatError } from '../../../src/core/io/errors.ts';
 import { matrix } from '../../../src/core/linalg/matrix.ts';
 import { mutateText, randInt, rng } from './random.ts';
@@ -15,7 +15,7 @@ describe('parseCsv', () => {
     ['tabs', '1\t2\n3\t4', null, [[1, 2], [3, 4]]],
     ['semicolons', '1;2\n3;4', null, [[1, 2], [3, 4]]],
     ['blank and comment lines, spaces', '# made up\n\n 1 , 2 \n\n3,4\n', null, [[1, 2], [3, 4]]],
-    ['quoted header with numeric and comma names', '"1","x,y"\n5,6\n', ['1', 'x,y'], [[5, 6]]],
+    ['quoted header with comma names', '"a","x,y"\n5,6\n', ['a', 'x,y'], [[5, 6]]],
     ['single column', '7\n8\n', null, [[7], [8]]],
   ])('%s', (_name, text, header, expected) => {
     const t = parseCsv('t.csv', text);
@@ -34,7 +34,7 @@ describe('parseCsv', () => {
     ['1,2,3\n4,5\n', 't.csv: line 2 has 2 columns, expected 3 (as in line 1)'],
     ['"a,b\n1\n', 't.csv: line 1 has an unterminated or misplaced double quote'],
     ['\n# only a comment\n', 't.csv: contains no rows of numbers'],
-    ['a,b\n', 't.csv: has a header line but no rows of numbers'],
+    ['a,b\n', 't.csv: has a header line (line 1) but no rows of numbers'],
   ])('rejects %j', (text, message) => {
     expectFileError(() => parseCsv('t.csv', text), message);
   });
@@ -72,7 +72,7 @@ describe('writeCsv', () => {
     for (let trial = 0; trial < 20; trial++) {
       const m = matrix(1 + randInt(r, 5), 1 + randInt(r, 5));
       for (let k = 0; k < m.data.length; k++) m.data[k] = (r() - 0.5) * 10 ** (randInt(r, 40) - 20);
-      const header = trial % 2 ? Array.from({ length: m.cols }, (_, j) => (j === 0 ? '2' : `c "${j}"`)) : undefined;
+      const header = trial % 2 ? Array.from({ length: m.cols }, (_, j) => (j === 0 ? 'a;b' : `c "${j}"`)) : undefined;
       const back = parseCsv('w.csv', writeCsv(m, header));
       expect(back.header).toEqual(header ?? null);
       expect(Array.from(back.matrix.data)).toEqual(Array.from(m.data));
@@ -104,5 +104,87 @@ describe('parseCsv on mutated input (seeded)', () => {
     // Both outcomes must occur, or the mutations are not exercising the parser.
     expect(parsed).toBeGreaterThan(50);
     expect(refused).toBeGreaterThan(50);
+  });
+});
+
+/**
+ * The battery's CSV cases (issue 16 part 1): each was read wrongly or blamed on the size before.
+ * Expected messages are written by hand from the file text.
+ */
+describe('parseCsv never guesses (seeded corpus of the battery cases)', () => {
+  it.each([
+    ['bad first row: text beside a number', 'abc,1\n2,3\n', 't.csv: line 1, column 1 must be a finite number, got "abc"'],
+    ['first row NaN', 'NaN,1\n2,3\n', 't.csv: line 1, column 1 must be a finite number, got "NaN"'],
+    ['first row NaN, one column', 'NaN\n2\n', 't.csv: line 1, column 1 must be a finite number, got "NaN"'],
+    ['first row 1e400', '1e400,1\n2,3\n', 't.csv: line 1, column 1 must be a finite number, got "1e400"'],
+    ['first row Infinity alone', '-Infinity\n2\n', 't.csv: line 1, column 1 must be a finite number, got "-Infinity"'],
+    ['first row hexadecimal', '0x10,1\n2,3\n', 't.csv: line 1, column 1 must be a finite number, got "0x10"'],
+    ['quoted NaN first', '"NaN","1"\n2,3\n', 't.csv: line 1, column 1 must be a finite number, got "NaN"'],
+    ['bare CR line ends', '1,2\r3,x\r', 't.csv: line 2, column 2 must be a finite number, got "x"'],
+    [
+      'decimal commas with semicolons',
+      '1,25;0,1\n2,5;0,2\n',
+      't.csv: line 1, column 1 must be a finite number, got "1,25" (a decimal comma? write numbers with a dot, e.g. 1.25)',
+    ],
+    [
+      'decimal commas under a header',
+      'value,sigma\n1,25,0,1\n',
+      't.csv: line 2 has 4 columns, expected 2 (as in line 1); if the file uses decimal commas, write numbers with a dot or separate columns by semicolons',
+    ],
+  ])('%s', (_name, text, message) => {
+    expectFileError(() => parseCsv('t.csv', text), message);
+  });
+
+  it.each([
+    ['quoted numbers (RFC 4180) are numbers, not a header', '"1","2.5"\n3,"4"\n', null, [[1, 2.5], [3, 4]]],
+    ['bare CR line ends', '1,2\r3,4\r', null, [[1, 2], [3, 4]]],
+    ['bare CR with a header', 'a,b\r1,2\r', ['a', 'b'], [[1, 2]]],
+    ['mixed line ends', '1,2\r\n3,4\r5,6\n7,8', null, [[1, 2], [3, 4], [5, 6], [7, 8]]],
+  ])('%s', (_name, text, header, expected) => {
+    const t = parseCsv('t.csv', text);
+    expect(t.header).toEqual(header);
+    expect(rows(t)).toEqual(expected);
+  });
+
+  it('keeps the file line of every row, and of the header (bare CR counts as a line end)', () => {
+    const t = parseCsv('t.csv', '# c\rx,y\r\r1,2\r3,4\n');
+    expect(t.headerLine).toBe(2);
+    expect(t.rowLines).toEqual([4, 5]);
+    expect(headerNote('t.csv', t)).toBe('t.csv: line 2 read as a header (column names "x,y"), not as numbers');
+    expect(headerNote('t.csv', parseCsv('t.csv', '1,2\n'))).toBeNull();
+  });
+
+  it('writeCsv refuses header names that would read back as numbers', () => {
+    expect(() => writeCsv(matrix(1, 1, Float64Array.of(1)), ['2'])).toThrow(RangeError);
+    expect(() => writeCsv(matrix(1, 1, Float64Array.of(1)), ['NaN'])).toThrow(RangeError);
+  });
+});
+
+describe('parseCsv properties on mutated input (seeded)', () => {
+  it('a header has no number-like cell, every value is the number its cell spells, rows keep their lines', () => {
+    const r = rng(4403);
+    const bases = ['a,b,c\n1,2,3\n4.5,-6e2,7\n"8",9,10\n', '1;2\r3;4\r', '"1",2\r\n3,4\r\n# x\n5,6\n'];
+    let parsed = 0;
+    for (let trial = 0; trial < 1500; trial++) {
+      const text = mutateText(r, bases[trial % bases.length]!);
+      let t: ReturnType<typeof parseCsv>;
+      try {
+        t = parseCsv('m.csv', text);
+      } catch (e) {
+        if (!(e instanceof FileFormatError)) throw e;
+        continue;
+      }
+      parsed++;
+      if (t.header) expect(t.header.some(looksNumeric)).toBe(false);
+      const lines = text.split(/\r\n|\r|\n/);
+      expect(t.rowLines.length).toBe(t.matrix.rows);
+      for (let i = 0; i < t.matrix.rows; i++) {
+        const raw = lines[t.rowLines[i]! - 1]!;
+        if (raw.includes('"')) continue;
+        const cells = raw.split(t.delimiter).map((c) => Number(c.trim()));
+        expect(cells).toEqual(Array.from(t.matrix.data.subarray(i * t.matrix.cols, (i + 1) * t.matrix.cols)));
+      }
+    }
+    expect(parsed).toBeGreaterThan(100);
   });
 });

@@ -53,6 +53,43 @@ describe('parseDataCsv', () => {
   });
 });
 
+describe('parseDataCsv never guesses (battery cases, issue 16 part 1)', () => {
+  it('refuses two whole-number columns with no decimal point anywhere (maybe decimal commas), with a hint', () => {
+    expectFileError(
+      () => parseDataCsv('d.csv', '1,25\n2,5\n0,75\n'),
+      'd.csv: line 1 "1,25" could be value, sigma or one number with a decimal comma; write decimals with a dot (1.25), or add the header line value,sigma if these are whole-number values and sigmas',
+    );
+    expectFileError(() => parseDataCsv('d.csv', '# x\r"3","2"\r'), 'd.csv: line 2 "\\"3\\",\\"2\\"" could be value, sigma or one number with a decimal comma; write decimals with a dot (1.25), or add the header line value,sigma if these are whole-number values and sigmas');
+  });
+
+  it('reads the same numbers once a decimal point or a header settles it', () => {
+    expect(Array.from(parseDataCsv('d.csv', '1,25\n2.5,5\n').sigma!)).toEqual([25, 5]);
+    expect(Array.from(parseDataCsv('d.csv', 'value,sigma\n1,25\n').sigma!)).toEqual([25]);
+    expect(Array.from(parseDataCsv('d.csv', '1.25\n2.5\n').values)).toEqual([1.25, 2.5]);
+  });
+
+  it('says when the first row was read as a header, and names bad first-row cells otherwise', () => {
+    expect(parseDataCsv('d.csv', 'value,sigma\n1.5,0.1\n').warnings.map((w) => w.message)).toEqual([
+      'd.csv: line 1 read as a header (column names "value,sigma"), not as numbers',
+    ]);
+    expect(parseDataCsv('d.csv', '1.5,0.1\n').warnings).toEqual([]);
+    expectFileError(() => parseDataCsv('d.csv', '1.5,abc\n2,0.1\n3,0.1\n'), 'd.csv: line 1, column 2 must be a finite number, got "abc"');
+  });
+
+  it('names the sigma line by the file line with bare CR line ends', () => {
+    expectFileError(() => parseDataCsv('d.csv', 'value,sigma\r\r1.5,0.1\r2,-1\r'), 'd.csv: line 4, column 2 (sigma) must be > 0, got -1');
+  });
+
+  it('assembleProblem passes the header note of the operator CSV on', () => {
+    const warnings: import('../../../src/core/io/errors.ts').FileWarning[] = [];
+    assembleProblem(
+      { grid: { shape: [2], spacing: [1] }, operator: file('G.csv', 'c1,c2\n1,0\n'), data: file('d.csv', '1.5,0.5\n') },
+      warnings,
+    );
+    expect(warnings.map((w) => w.message)).toEqual(['G.csv: line 1 read as a header (column names "c1,c2"), not as numbers']);
+  });
+});
+
 describe('parseDataNpy', () => {
   it('reads (M,) values and (M, 2) value/sigma', () => {
     expect(Array.from(parseDataNpy('d.npy', writeNpy([3], [1, 2, 3])).values)).toEqual([1, 2, 3]);
@@ -136,7 +173,7 @@ describe('assembleProblem', () => {
     [{ shape: [4], spacing: [1] }, 'value,sigma\n1,1\n2,1\n', undefined, 'G.mtx: must have 4 columns (one per grid cell, 4 in the grid form), got 3'],
     [{ shape: [3], spacing: [1] }, 'value,sigma\n1,1\n', undefined, 'G.mtx: must have 1 rows (one per datum in d.csv), got 2'],
     [{ shape: [3], spacing: [1] }, '1\n2\n', undefined, 'd.csv: must have a sigma column (value, sigma), or give a data covariance file'],
-    [{ shape: [3], spacing: [1] }, '1,1\n2,1\n', file('C.csv', '1,0\n0,1\n'), 'd.csv: has a sigma column and a covariance file (C.csv) was given too; give exactly one of them'],
+    [{ shape: [3], spacing: [1] }, '1,1\n2,1.5\n', file('C.csv', '1,0\n0,1\n'), 'd.csv: has a sigma column and a covariance file (C.csv) was given too; give exactly one of them'],
   ])('refuses mismatched pieces (%#)', (grid, data, covariance, message) => {
     expectFileError(() => assembleProblem({ grid, operator: file('G.mtx', G), data: file('d.csv', data), ...(covariance ? { covariance } : {}) }), message);
   });

@@ -67,6 +67,13 @@ describe('parseProblemFile', () => {
     expect(toRows(operatorToDense(p.operator))).toEqual(G);
   });
 
+  it('says when the operator CSV\'s first row was read as a header (issue 16 part 1)', () => {
+    const { warnings } = parseProblemFile('p.json', problem({ operator: { file: 'G.csv' } }), {
+      readSibling: siblings({ 'G.csv': writeCsv(fromRows(G), ['a', 'b', 'c']) }),
+    });
+    expect(warnings.map((w) => w.message)).toEqual(['p.json: operator.file G.csv: line 1 read as a header (column names "a,b,c"), not as numbers']);
+  });
+
   it('warns about unknown fields and keeps going', () => {
     const { warnings } = parseProblemFile('p.json', problem({ author: 'x', grid: { shape: [3], spacing: [2], colour: 1 } }, { weights: [1] }));
     expect(warnings.map((w) => w.field)).toEqual(['author', 'grid.colour', 'data.weights']);
