@@ -33,7 +33,8 @@ describe('FFT-route diagnostics vs numpy eigvalsh', () => {
     const r = ref[k]!;
     const d = diagnoseStructured(grid, prior);
     expect(d.eigenvalueMethod).toBe('fft-bounds');
-    expect(d.failedPivot).toBeNull();
+    // A failed pivot exactly when the dense Cholesky decided "not positive definite".
+    expect(d.failedPivot !== null).toBe(d.decidedBy === 'cholesky' && d.verdict === 'not-positive-definite');
     const b = d.eigenvalueBounds!;
     // numpy's eigenvalues carry an error of about N·ε·λmax (backward stable; Golub & Van Loan §8.3,
     // memory): 1e-12·λmax of slack for that, far below any real violation.
@@ -47,6 +48,9 @@ describe('FFT-route diagnostics vs numpy eigvalsh', () => {
     expect(Math.abs(d.maxEigenvalue / r.max - 1)).toBeLessThan(1e-6);
     // Proven positive definite only when it is.
     if (d.positiveDefinite) expect(r.min).toBeGreaterThan(0);
+    // … and proven not positive definite only when numpy's λmin is zero within round-off or below
+    // (Cholesky in floating point fails from about N·ε·λmax; 1e-10·λmax bounds that here).
+    if (d.verdict === 'not-positive-definite') expect(r.min).toBeLessThan(1e-10 * r.max);
     // The certified condition bound is an upper bound on numpy's condition number.
     if (d.positiveDefinite && r.cond !== null) expect(d.conditionUpperBound!).toBeGreaterThanOrEqual(r.cond * (1 - 1e-9));
   });

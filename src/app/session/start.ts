@@ -122,7 +122,7 @@ function pendingNewer(lifecycle: Lifecycle | undefined, session: unknown): unkno
     if (!text) return session;
     const pending = JSON.parse(text) as SavedSession;
     const saved = session as Partial<SavedSession> | undefined;
-    if (!saved || !saved.source || typeof saved.savedAt !== 'number') return pending.source?.kind === 'demo' ? pending : session;
+    if (!saved?.source || typeof saved.savedAt !== 'number') return pending.source?.kind === 'demo' ? pending : session;
     const same = JSON.stringify(pending.source) === JSON.stringify(saved.source);
     return same && pending.savedAt > saved.savedAt ? pending : session;
   } catch {
