@@ -427,6 +427,14 @@ function parseAxis(name: string, text: string): LogAxis {
   return axis;
 }
 
+/** "low" / "high" when `value` is the first / last point of an axis of more than one point, else null. */
+function edgeOf(axis: ArrayLike<number>, value: number): 'low' | 'high' | null {
+  if (axis.length < 2) return null;
+  if (value === axis[0]) return 'low';
+  if (value === axis[axis.length - 1]) return 'high';
+  return null;
+}
+
 const tune: Command = {
   name: 'tune',
   summary: 'log-evidence grid over one term’s length and variance, and its maximum',
@@ -435,8 +443,10 @@ const tune: Command = {
     'Evaluates log N(d; G m0, G Cm Gᵀ + Cd) on n log-spaced lengths × n log-spaced variances of term K\n' +
     '(for an anisotropic term the length axis is l1, with l2 scaled in proportion), everything else in the\n' +
     'prior fixed. Prints {"term", "lengths": [...], "variances": [...], "logEvidence": [[one row per length]],\n' +
-    '"best": {"length", "variance", "logEvidence"} | null, "method": "eigen" | "cholesky"}; cells where the\n' +
-    'covariance did not factor are null.',
+    '"best": {"length", "variance", "logEvidence"} | null, "bestOnEdge": {"length", "variance"},\n' +
+    '"warnings": [...], "method": "eigen" | "cholesky"}; cells where the covariance did not factor are null.\n' +
+    'bestOnEdge says, per axis, "low" or "high" when the maximum lies on that end of the grid (the true maximum\n' +
+    'may lie beyond it: widen that axis), else null; the same warning goes to stderr.',
   options: [
     PROBLEM,
     PRIOR,
@@ -452,6 +462,7 @@ const tune: Command = {
     const termText = optionString(args, 'term')!;
     const { problem, prior } = loadBoth(args, io);
     const term = parseNumberOption('term', termText, { integer: true, ge: 0 });
+    if (prior.terms.length === 0) throw new UsageError('the prior has no covariance term to tune (its "terms" list is empty)');
     if (term >= prior.terms.length) {
       throw new UsageError(`--term must be an integer from 0 to ${prior.terms.length - 1} (the prior has ${prior.terms.length} term${prior.terms.length === 1 ? '' : 's'}), got ${JSON.stringify(termText)}`);
     }
@@ -459,6 +470,15 @@ const tune: Command = {
     const map = evidenceMap(problem, prior, { term, lengths, variances });
     const nv = map.variances.length;
     const rows = Array.from(map.lengths, (_, i) => map.logEvidence.subarray(i * nv, (i + 1) * nv));
+    const bestOnEdge = map.best
+      ? { length: edgeOf(map.lengths, map.best.length), variance: edgeOf(map.variances, map.best.variance) }
+      : { length: null, variance: null };
+    const warnings: string[] = [];
+    for (const axis of ['length', 'variance'] as const) {
+      const e = bestOnEdge[axis];
+      if (e) warnings.push(`the maximum lies at the ${e === 'low' ? 'lower' : 'upper'} end of the ${axis} axis: the true maximum may lie beyond it; widen --${axis === 'length' ? 'lengths' : 'variances'}`);
+    }
+    for (const w of warnings) io.stderr(`priorscope tune: ${w}`);
     emit(
       io,
       args,
@@ -468,6 +488,8 @@ const tune: Command = {
         variances: map.variances,
         logEvidence: rows,
         best: map.best ? { length: map.best.length, variance: map.best.variance, logEvidence: map.best.logEvidence } : null,
+        bestOnEdge,
+        warnings,
         method: map.method,
       }),
     );
