@@ -35,11 +35,16 @@ export function lineColumn(text: string, pos: number): { line: number; column: n
   return { line, column: pos - start + 1 };
 }
 
-/** JSON.parse, with a failure reported as a FileFormatError naming the line, column and the reason. */
+/**
+ * JSON.parse, with a failure reported as a FileFormatError naming the line, column and the reason.
+ * A field name that appears twice in one object is refused, naming the field and its line: JSON
+ * parsers silently keep the last one (RFC 8259 §4 leaves it open), so a file could say two things.
+ */
 export function parseJsonText(file: string, input: string | Uint8Array): unknown {
   const text = decodeText(file, input);
+  let value: unknown;
   try {
-    return JSON.parse(text) as unknown;
+    value = JSON.parse(text) as unknown;
   } catch (e) {
     const found = locateJsonError(text);
     if (found) {
@@ -48,6 +53,74 @@ export function parseJsonText(file: string, input: string | Uint8Array): unknown
     }
     throw new FileFormatError(file, `is not valid JSON: ${(e as Error).message}`);
   }
+  const dup = findDuplicateKey(text);
+  if (dup) {
+    const { line } = lineColumn(text, dup.pos);
+    throw new FileFormatError(
+      file,
+      `field ${dup.field} appears twice (line ${line}); each field may appear once in an object, remove one of them`,
+      { field: dup.field, line },
+    );
+  }
+  return value;
+}
+
+/**
+ * The first field name repeated within one object of valid JSON `text`, with its dotted path and
+ * the position of the repeat, or null. One pass over the characters, no parse tree.
+ */
+export function findDuplicateKey(text: string): { field: string; pos: number } | null {
+  interface Frame {
+    readonly keys: Set<string> | null; // null: an array
+    readonly path: string;
+    index: number;
+    key: string;
+  }
+  const stack: Frame[] = [];
+  const n = text.length;
+  let expectKey = false;
+  const here = (f: Frame | undefined): string => (f === undefined ? '' : f.keys ? joinField(f.path, f.key) : `${f.path}[${f.index}]`);
+  for (let p = 0; p < n; p++) {
+    const c = text.charCodeAt(p);
+    if (c === 34) {
+      const start = p;
+      let escaped = false;
+      p++;
+      while (p < n) {
+        const d = text.charCodeAt(p);
+        if (d === 92) {
+          escaped = true;
+          p += 2;
+          continue;
+        }
+        if (d === 34) break;
+        p++;
+      }
+      if (expectKey) {
+        const top = stack[stack.length - 1]!;
+        const raw = text.slice(start + 1, p);
+        const key = escaped ? (JSON.parse(text.slice(start, p + 1)) as string) : raw;
+        if (top.keys!.has(key)) return { field: joinField(top.path, key), pos: start };
+        top.keys!.add(key);
+        top.key = key;
+        expectKey = false;
+      }
+    } else if (c === 123) {
+      stack.push({ keys: new Set(), path: here(stack[stack.length - 1]), index: 0, key: '' });
+      expectKey = true;
+    } else if (c === 91) {
+      stack.push({ keys: null, path: here(stack[stack.length - 1]), index: 0, key: '' });
+      expectKey = false;
+    } else if (c === 125 || c === 93) {
+      stack.pop();
+      expectKey = false;
+    } else if (c === 44) {
+      const top = stack[stack.length - 1];
+      if (top && top.keys) expectKey = true;
+      else if (top) top.index++;
+    }
+  }
+  return null;
 }
 
 /**
@@ -213,6 +286,56 @@ function ruleText(rule: NumberRule, value: unknown): string {
   return isNumber && (!rule.integer || Number.isInteger(value)) ? bound : `${kind} ${bound}`;
 }
 
+/** Words of the trade users write for our field names (common practice, no source). */
+const FIELD_SYNONYMS: Readonly<Record<string, string>> = {
+  range: 'length',
+  ranges: 'lengths',
+  scale: 'length',
+  sill: 'variance',
+  std: 'sigma',
+  sd: 'sigma',
+  stdev: 'sigma',
+  error: 'sigma',
+  errors: 'sigma',
+  data: 'values',
+  model: 'kernel',
+  type: 'kernel',
+  rotation: 'angle',
+  smoothness: 'nu',
+};
+
+/** Levenshtein distance (common practice, no source). */
+function editDistance(a: string, b: string): number {
+  const row = Array.from({ length: b.length + 1 }, (_, j) => j);
+  for (let i = 1; i <= a.length; i++) {
+    let diag = row[0]!;
+    row[0] = i;
+    for (let j = 1; j <= b.length; j++) {
+      const up = row[j]!;
+      row[j] = Math.min(up + 1, row[j - 1]! + 1, diag + (a[i - 1] === b[j - 1] ? 0 : 1));
+      diag = up;
+    }
+  }
+  return row[b.length]!;
+}
+
+/** The known field a mistyped or synonymous `key` most likely means, or null. */
+export function suggestField(key: string, known: readonly string[]): string | null {
+  const lower = key.toLowerCase();
+  const synonym = FIELD_SYNONYMS[lower];
+  if (synonym !== undefined && known.includes(synonym)) return synonym;
+  let best: string | null = null;
+  let bestD = Infinity;
+  for (const k of known) {
+    const d = editDistance(lower, k.toLowerCase());
+    if (d < bestD) {
+      bestD = d;
+      best = k;
+    }
+  }
+  return best !== null && bestD <= Math.min(2, Math.ceil(best.length / 3)) ? best : null;
+}
+
 /**
  * Typed access to a parsed JSON document of one file. Every check throws a FileFormatError naming
  * the file and the dotted field; unknown fields are collected in `warnings`.
@@ -224,8 +347,27 @@ export class JsonReader {
     this.file = file;
   }
 
+  /** Unknown keys seen in each object, by the object's dotted path (for "did you mean" on a missing field). */
+  private readonly unknownKeys = new Map<string, string[]>();
+
   fail(field: string, expected: string, value: unknown): never {
-    throw fieldError(this.file, field || '(top level)', expected, value);
+    const e = fieldError(this.file, field || '(top level)', expected, value);
+    if (value === undefined && field) {
+      const dot = field.lastIndexOf('.');
+      const parent = dot < 0 ? '' : field.slice(0, dot);
+      const key = field.slice(dot + 1);
+      const unknown = this.unknownKeys.get(parent) ?? [];
+      if (unknown.length > 0) {
+        const hit = unknown.find((u) => suggestField(u, [key]) === key);
+        const names = (hit ? [hit] : unknown).map((u) => joinField(parent, u)).join(', ');
+        throw new FileFormatError(
+          this.file,
+          `${e.detail}; unknown field${hit || unknown.length === 1 ? '' : 's'} ${names} given${hit ? ` (did you mean ${key}?)` : ''}`,
+          { field },
+        );
+      }
+    }
+    throw e;
   }
 
   warn(field: string, message: string): void {
@@ -236,11 +378,18 @@ export class JsonReader {
   object(value: unknown, field: string, known: readonly string[]): Record<string, unknown> {
     if (typeof value !== 'object' || value === null || Array.isArray(value)) this.fail(field, 'an object', value);
     const obj = value as Record<string, unknown>;
+    const unknown: string[] = [];
     for (const key of Object.keys(obj)) {
       if (!known.includes(key)) {
-        this.warn(joinField(field, key), `unknown field ${joinField(field, key)} ignored (known here: ${known.join(', ')})`);
+        unknown.push(key);
+        const guess = suggestField(key, known.filter((k) => obj[k] === undefined));
+        this.warn(
+          joinField(field, key),
+          `unknown field ${joinField(field, key)} ignored (${guess ? `did you mean ${guess}? ` : ''}known here: ${known.join(', ')})`,
+        );
       }
     }
+    this.unknownKeys.set(field, unknown);
     return obj;
   }
 

@@ -63,6 +63,16 @@ function readMean(r: JsonReader, value: unknown): MeanSpec {
   return { trend: { intercept, slope } };
 }
 
+/**
+ * An angle in degrees within [-360, 360]: larger values are no rotation a user means, and
+ * cos/sin of 1e308 degrees carry no digits (the radians lose every bit of the angle).
+ */
+function readAngle(r: JsonReader, value: unknown, field: string): number {
+  const a = r.number(value, field);
+  if (Math.abs(a) > 360) r.fail(field, 'an angle in degrees from -360 to 360', a);
+  return a;
+}
+
 function readTerm(r: JsonReader, value: unknown, k: number): Term {
   const f = `terms[${k}]`;
   const obj = r.object(value, f, TERM_FIELDS);
@@ -79,12 +89,12 @@ function readTerm(r: JsonReader, value: unknown, k: number): Term {
   if (obj.lengths !== undefined) {
     const l = r.numbers(obj.lengths, `${f}.lengths`, 2, { gt: 0 });
     term.lengths = [l[0]!, l[1]!];
-    if (obj.angle !== undefined) term.angle = r.number(obj.angle, `${f}.angle`);
+    if (obj.angle !== undefined) term.angle = readAngle(r, obj.angle, `${f}.angle`);
   } else {
     if (obj.length === undefined) r.fail(`${f}.length`, 'a finite number > 0 (or give lengths [l1, l2] in 2-D)', undefined);
     term.length = r.number(obj.length, `${f}.length`, { gt: 0 });
     if (obj.angle !== undefined) {
-      term.angle = r.number(obj.angle, `${f}.angle`);
+      term.angle = readAngle(r, obj.angle, `${f}.angle`);
       r.warn(`${f}.angle`, `${f}.angle is ignored for an isotropic term (it rotates the two axes of lengths [l1, l2])`);
     }
   }

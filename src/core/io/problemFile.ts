@@ -83,7 +83,11 @@ function readGrid(r: JsonReader, value: unknown): Grid {
   return grid;
 }
 
-function readData(r: JsonReader, value: unknown): DataSpec {
+/**
+ * The data fields; `operatorRows` is the row count of an inline dense operator, so that when
+ * data.values alone disagrees with data.sigma and the operator, data.values is the field named.
+ */
+function readData(r: JsonReader, value: unknown, operatorRows?: number): DataSpec {
   const d = r.object(value, 'data', ['values', 'sigma', 'covariance', 'unit']);
   const unit = d.unit !== undefined ? { unit: r.string(d.unit, 'data.unit') } : {};
   const values = r.vector(r.required(d, 'data', 'values', 'an array of numbers (the data)'), 'data.values');
@@ -98,6 +102,9 @@ function readData(r: JsonReader, value: unknown): DataSpec {
     return { values, covariance: c, ...unit };
   }
   if (d.sigma === undefined) r.fail('data.sigma', `an array of ${m} numbers > 0 (or give data.covariance)`, undefined);
+  if (Array.isArray(d.sigma) && d.sigma.length !== m && d.sigma.length === operatorRows) {
+    r.fail('data.values', `an array of ${operatorRows} numbers (as data.sigma and operator.dense have ${operatorRows})`, values);
+  }
   return { values, sigma: r.vector(d.sigma, 'data.sigma', m, { gt: 0 }), ...unit };
 }
 
@@ -203,7 +210,9 @@ export function parseProblemFile(file: string, input: string | Uint8Array, optio
   checkKindVersion(r, obj, PROBLEM_KIND, PROBLEM_VERSION);
   const grid = readGrid(r, r.required(obj, '', 'grid', 'an object with shape and spacing'));
   const n = cellCount(grid);
-  const data = readData(r, r.required(obj, '', 'data', 'an object with values and sigma or covariance'));
+  const op = obj.operator as { dense?: unknown } | undefined;
+  const operatorRows = op !== null && typeof op === 'object' && Array.isArray(op.dense) ? op.dense.length : undefined;
+  const data = readData(r, r.required(obj, '', 'data', 'an object with values and sigma or covariance'), operatorRows);
   const operator = readOperator(r, r.required(obj, '', 'operator', 'an object with dense, sparse or file'), data.values.length, n, options);
   const problem: { -readonly [K in keyof Problem]: Problem[K] } = { grid, operator, data };
   if (obj.title !== undefined) problem.title = r.string(obj.title, 'title');
