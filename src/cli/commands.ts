@@ -62,6 +62,11 @@ export interface Command {
 
 const OUT: OptionSpec = { name: 'out', value: 'FILE', help: 'write the result to FILE instead of stdout' };
 const PROBLEM: OptionSpec = { name: 'problem', value: 'P.json', help: 'problem file (kind "priorscope.problem", version 1)', required: true };
+const READ_FROM: OptionSpec = {
+  name: 'read-from',
+  value: 'FOLDERS',
+  help: "also read files named in the problem file (operator.file) from these folders (comma-separated); by default only from the problem file's folder",
+};
 const PRIOR: OptionSpec = { name: 'prior', value: 'Q.json', help: 'prior file (kind "priorscope.prior", version 1)', required: true };
 
 /** JSON text of a result (see formatJson: NaN and ±Infinity become null). */
@@ -86,7 +91,8 @@ function progress(io: Io, line: string): void {
 function loadBoth(args: ParsedArgs, io: Io) {
   const problemPath = optionString(args, 'problem')!;
   const priorPath = optionString(args, 'prior')!;
-  const p = loadProblem(problemPath);
+  const readFrom = optionString(args, 'read-from');
+  const p = loadProblem(problemPath, { readFrom: readFrom === undefined ? [] : readFrom.split(',').filter((d) => d !== '') });
   const q = loadPrior(priorPath, p.problem.grid);
   reportWarnings(io, p.warnings);
   reportWarnings(io, q.warnings);
@@ -175,6 +181,7 @@ const posterior: Command = {
     'with 1600 data; results are identical for every T).',
   options: [
     PROBLEM,
+    READ_FROM,
     PRIOR,
     { name: 'path', value: 'auto|dense|fft', help: 'which posterior path runs (default auto)' },
     { name: 'threads', value: 'T', help: 'worker threads for the FFT path (default: every core on large problems)' },
@@ -249,7 +256,7 @@ const check: Command = {
     '"embeddingPadding"; min/max eigenvalue and conditionNumber are then Lanczos estimates inside it. When the\n' +
     `bracket cannot decide, grids of up to ${DENSE_DECISION_LIMIT} cells are decided by the dense Cholesky factorisation, larger\n` +
     'ones by an enlarged embedding where that proves it.',
-  options: [PROBLEM, PRIOR, OUT],
+  options: [PROBLEM, READ_FROM, PRIOR, OUT],
   run(args, io) {
     noPositionals(args);
     const { problem, prior } = loadBoth(args, io);
@@ -302,6 +309,7 @@ const sample: Command = {
     'Without --format, an --out name ending in .csv or .npy chooses that format.',
   options: [
     PROBLEM,
+    READ_FROM,
     PRIOR,
     { name: 'count', value: 'K', help: 'number of realisations (positive integer)', required: true },
     { name: 'seed', value: 'S', help: 'seed, an integer from 0 to 4294967295', required: true },
@@ -449,6 +457,7 @@ const tune: Command = {
     'may lie beyond it: widen that axis), else null; the same warning goes to stderr.',
   options: [
     PROBLEM,
+    READ_FROM,
     PRIOR,
     { name: 'term', value: 'K', help: 'zero-based index of the term in the prior file', required: true },
     { name: 'lengths', value: 'lo:hi:n', help: 'log-spaced length axis', required: true },

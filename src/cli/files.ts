@@ -2,8 +2,8 @@
  * The command line's file access (node:fs lives here and nowhere in src/core): reading problem and
  * prior files with their sibling operator files, and writing outputs.
  */
-import { readFileSync, statSync, writeFileSync } from 'node:fs';
-import { dirname, isAbsolute, resolve } from 'node:path';
+import { closeSync, constants as fsConstants, fstatSync, openSync, readSync, realpathSync, writeFileSync } from 'node:fs';
+import { dirname, isAbsolute, relative, resolve } from 'node:path';
 import type { Grid } from '../core/grid/grid.ts';
 import { InputError } from '../core/errors.ts';
 import { validatePrior } from '../core/prior/covariance.ts';
@@ -30,43 +30,104 @@ function describeFsError(e: unknown): string {
 }
 
 /**
- * Bytes of a file; a missing, unreadable or too large file is a FileFormatError naming `label`
- * (the path as the user wrote it).
+ * Bytes of a regular file, reading at most {@link MAX_FILE_BYTES} (the limit is enforced while
+ * reading, so a file that grows or lies about its size cannot exhaust memory). FIFOs, devices
+ * (/dev/zero), sockets and directories are refused without reading: the file is opened
+ * non-blocking, so a FIFO without a writer cannot hang the open. Failures are FileFormatErrors
+ * naming `label` (the path as the user wrote it).
  */
 export function readInputFile(path: string, label = path): Uint8Array {
-  let size: number;
+  let fd: number;
   try {
-    const st = statSync(path);
+    fd = openSync(path, fsConstants.O_RDONLY | (fsConstants.O_NONBLOCK ?? 0));
+  } catch (e) {
+    throw new FileFormatError(label, `cannot be read: ${describeFsError(e)}`);
+  }
+  try {
+    const st = fstatSync(fd);
     if (st.isDirectory()) throw new FileFormatError(label, 'cannot be read: it is a directory, not a file');
-    size = st.size;
+    if (!st.isFile()) throw new FileFormatError(label, 'cannot be read: it is not a regular file (a pipe, device or socket)');
+    if (st.size > MAX_FILE_BYTES) {
+      throw new FileFormatError(label, `file is ${(st.size / 1024 / 1024).toFixed(1)} MiB, larger than the limit of ${MAX_FILE_BYTES / 1024 / 1024} MiB`);
+    }
+    const chunks: Uint8Array[] = [];
+    let total = 0;
+    for (;;) {
+      const chunk = new Uint8Array(Math.min(1 << 20, MAX_FILE_BYTES + 1 - total) || 1);
+      const got = readSync(fd, chunk, 0, chunk.length, null);
+      if (got === 0) break;
+      total += got;
+      if (total > MAX_FILE_BYTES) throw tooLarge(label, total);
+      chunks.push(got === chunk.length ? chunk : chunk.subarray(0, got));
+    }
+    if (chunks.length === 1) return chunks[0]!;
+    const out = new Uint8Array(total);
+    let o = 0;
+    for (const c of chunks) {
+      out.set(c, o);
+      o += c.length;
+    }
+    return out;
   } catch (e) {
     if (e instanceof FileFormatError) throw e;
     throw new FileFormatError(label, `cannot be read: ${describeFsError(e)}`);
-  }
-  if (size > MAX_FILE_BYTES) {
-    throw new FileFormatError(label, `file is ${(size / 1024 / 1024).toFixed(1)} MiB, larger than the limit of ${MAX_FILE_BYTES / 1024 / 1024} MiB`);
-  }
-  try {
-    return readFileSync(path);
-  } catch (e) {
-    throw new FileFormatError(label, `cannot be read: ${describeFsError(e)}`);
+  } finally {
+    closeSync(fd);
   }
 }
 
-/** Read a problem file and its sibling operator file (resolved against the problem file's directory). */
-export function loadProblem(path: string): { problem: Problem; warnings: readonly FileWarning[] } {
+function tooLarge(label: string, bytes: number): FileFormatError {
+  return new FileFormatError(label, `file grew past the limit of ${MAX_FILE_BYTES / 1024 / 1024} MiB while being read (${(bytes / 1024 / 1024).toFixed(1)} MiB read)`);
+}
+
+/** Options of the file access. */
+export interface FileAccess {
+  /**
+   * Folders (besides the problem file's own) from which files named inside a problem file may be
+   * read: the command line's --read-from. Symbolic links are resolved before the check.
+   */
+  readonly readFrom?: readonly string[];
+}
+
+function realOrNull(p: string): string | null {
+  try {
+    return realpathSync(p);
+  } catch {
+    return null;
+  }
+}
+
+function inside(folder: string, file: string): boolean {
+  const rel = relative(folder, file);
+  return rel === '' ? false : !rel.startsWith('..') && !isAbsolute(rel);
+}
+
+/**
+ * Read a problem file and its sibling operator file. A sibling is read only when its real path
+ * (symbolic links resolved) lies inside the problem file's real folder, or inside a folder given
+ * in `access.readFrom`; only regular files, within the size limit. Messages name the sibling as
+ * written in the problem file and never echo its contents.
+ */
+export function loadProblem(path: string, access: FileAccess = {}): { problem: Problem; warnings: readonly FileWarning[] } {
   const bytes = readInputFile(path);
   const dir = dirname(resolve(path));
+  const allowed = [dir, ...(access.readFrom ?? [])].map((d) => realOrNull(resolve(d))).filter((d): d is string => d !== null);
   return parseProblemFile(path, bytes, {
     readSibling: (name) => {
       const full = isAbsolute(name) ? name : resolve(dir, name);
+      const real = realOrNull(full);
+      if (real === null) throw new Error(`no such file (${full})`);
+      if (!allowed.some((d) => inside(d, real))) {
+        throw new Error(
+          `it lies outside the problem file's folder ${dir}${real !== full ? ` (it resolves to ${real})` : ''}; ` +
+            'files named inside a problem file are read only from its folder, unless --read-from FOLDER allows another',
+        );
+      }
       try {
-        const st = statSync(full);
-        if (st.size > MAX_FILE_BYTES) throw new Error(`${full} is larger than the limit of ${MAX_FILE_BYTES / 1024 / 1024} MiB`);
-        return readFileSync(full);
+        return readInputFile(real, name);
       } catch (e) {
-        if ((e as { code?: string }).code === undefined) throw e;
-        throw new Error(`${describeFsError(e)} (${full})`);
+        if (e instanceof FileFormatError) throw new Error(e.detail);
+        throw e;
       }
     },
   });
