@@ -13,6 +13,9 @@ import { CAUTION } from './caution.ts';
 import { indexedDbStorage } from './session/autosave.ts';
 import { restorePreviousSession } from './session/start.ts';
 
+/** Value of the selector's entry for the user's own problem (not a demo id). */
+const USER_OPTION = '__user-problem__';
+
 /** Puts the session kept aside by a link or a ?demo= address back, and reopens the page on it. */
 async function restorePrevious(): Promise<void> {
   if (typeof indexedDB === 'undefined') return;
@@ -46,6 +49,8 @@ export function App() {
   const tab = useWb((s) => s.tab);
   const setTab = useWb((s) => s.setTab);
   const notice = useWb((s) => s.notice);
+  // The selector names what is loaded: the user's problem (title, else file names) or the demo.
+  const userTitle = useWb((s) => (s.userProblem ? (s.problem?.title ?? s.userProblem.label) : null));
   const previousKept = useWb((s) => s.previousSessionKept);
   const dismiss = useWb((s) => s.dismissNotice);
   const progress = useWb((s) => s.progress);
@@ -67,7 +72,17 @@ export function App() {
         <h1>Priorscope</h1>
         <label className="inline demo-picker">
           Problem{' '}
-          <select data-testid="demo-select" value={demoId} onChange={(e) => void loadDemo(e.target.value)} title="Built-in invented example problems">
+          <select
+            data-testid="demo-select"
+            value={userTitle !== null ? USER_OPTION : demoId}
+            onChange={(e) => e.target.value !== USER_OPTION && void loadDemo(e.target.value)}
+            title={userTitle !== null ? 'Your own problem is loaded; choose a built-in example to switch' : 'Built-in invented example problems'}
+          >
+            {userTitle !== null && (
+              <option value={USER_OPTION} disabled>
+                Your problem: {userTitle}
+              </option>
+            )}
             {DEMO_CHOICES.map((d) => (
               <option key={d.id} value={d.id}>
                 {d.title}

@@ -11,7 +11,7 @@ import type { Matrix } from '../core/linalg/matrix.ts';
 import { cellCount } from '../core/grid/grid.ts';
 import type { Outcome } from '../worker/client.ts';
 import type { Channel, PosteriorPartial, PosteriorResult, ProblemView } from '../worker/protocol.ts';
-import { createSelectSlice, type SelectSlice } from './select/slice.ts';
+import { createSelectSlice, problemIdentity, type SelectSlice } from './select/slice.ts';
 import type { Problem } from '../core/problems/spec.ts';
 import { createSessionSlice, type SessionSlice } from './session/slice.ts';
 import { addedTerm, defaultPrior, DRAW_COUNT, emptyResults } from './defaults.ts';
@@ -346,6 +346,12 @@ export function createWorkbenchStore(client: ClientPort, initial: { demoId: stri
       busy: {},
     });
     store.getState().refresh();
+  });
+  // Results and pinned candidates belong to their problem (src/app/select/slice.ts problemShown).
+  store.subscribe((s, prev) => {
+    if (s.problem === prev.problem && s.userProblem === prev.userProblem) return;
+    const id = problemIdentity(s);
+    if (id !== null && id !== problemIdentity(prev)) s.problemShown(id);
   });
   return store;
 }

@@ -2,6 +2,7 @@
 import { useEffect, useMemo, useState, type KeyboardEvent } from 'react';
 import { moveMapCursor } from './mapKeys.ts';
 import { useWb } from '../context.ts';
+import { freshness, freshnessText } from './slice.ts';
 import { Plot } from '../Plot.tsx';
 import { NumberField } from '../controls.tsx';
 import { hyperParameters, termLength } from '../../core/tuning/index.ts';
@@ -40,6 +41,8 @@ export function EvidencePanel() {
   const task = useWb((s) => s.selectTasks.evidenceMap);
   const run = useWb((s) => s.runEvidenceMap);
   const applyCell = useWb((s) => s.applyMapCell);
+  const mapFresh = useWb((s) => freshness(s.selectTasks.evidenceMap, s));
+  const mapApplicable = mapFresh === 'current' || mapFresh === 'earlier-prior';
   const [settings, setSettings] = useState<MapSettings>(() => defaultMapSettings(prior, 0));
   const term = prior.terms[settings.term] ?? prior.terms[0]!;
   const unit = p.grid.unit ?? '';
@@ -128,7 +131,12 @@ export function EvidencePanel() {
       </div>
       {term.lengths && <p className="note">Anisotropic term: the length axis is the first length; the second keeps its ratio to it.</p>}
       {map && (
-        <>
+        <div className={mapFresh === 'current' ? undefined : 'stale'} data-testid="map-result" data-freshness={mapFresh}>
+          {freshnessText(mapFresh) && (
+            <p className="stale-note" role="status" data-testid="map-stale">
+              {freshnessText(mapFresh)}
+            </p>
+          )}
           <div
             className="map-keys"
             tabIndex={0}
@@ -153,7 +161,13 @@ export function EvidencePanel() {
                 Maximum: ℓ = <Num testId="map-best-length" value={map.best.length} text={fmt(map.best.length)} /> {unit}, σ² ={' '}
                 <Num testId="map-best-variance" value={map.best.variance} text={fmt(map.best.variance)} /> {varUnit}, log evidence{' '}
                 <Num testId="map-best-value" value={map.best.logEvidence} text={map.best.logEvidence.toFixed(3)} />
-                <button type="button" data-testid="map-apply-best" onClick={() => applyCell(map.best!.index)}>
+                <button
+                  type="button"
+                  data-testid="map-apply-best"
+                  onClick={() => applyCell(map.best!.index)}
+                  disabled={!mapApplicable}
+                  title={mapApplicable ? undefined : (freshnessText(mapFresh) ?? undefined)}
+                >
                   Apply maximum
                 </button>
               </>
@@ -166,7 +180,7 @@ export function EvidencePanel() {
               {task.status === 'cancelled' ? ' Cancelled: some rows are missing.' : ''}
             </span>
           </p>
-        </>
+        </div>
       )}
       <ProfilePanel />
       <FitPanel />
@@ -238,6 +252,8 @@ function FitPanel() {
   const task = useWb((s) => s.selectTasks.typeII);
   const run = useWb((s) => s.runFit);
   const apply = useWb((s) => s.applyTuned);
+  const fitFresh = useWb((s) => freshness(s.selectTasks.typeII, s));
+  const fitApplicable = fitFresh === 'current' || fitFresh === 'earlier-prior';
   const names = useMemo(() => {
     try {
       return hyperParameters(prior).map((h) => h.name);
@@ -278,7 +294,12 @@ function FitPanel() {
         <TaskStatusLine kind="typeII" task={task} label="Fit" />
       </div>
       {value && (
-        <div data-testid="fit-result">
+        <div data-testid="fit-result" className={fitFresh === 'current' ? undefined : 'stale'} data-freshness={fitFresh}>
+          {freshnessText(fitFresh) && (
+            <p className="stale-note" role="status" data-testid="fit-stale">
+              {freshnessText(fitFresh)}
+            </p>
+          )}
           <p>
             Log evidence <Num testId="fit-start-logev" value={value.startLogEvidence} text={value.startLogEvidence.toFixed(3)} /> at the start →{' '}
             <Num testId="fit-logev" value={value.logEvidence} text={value.logEvidence.toFixed(3)} /> at the optimum ({value.iterations} iterations,{' '}
@@ -288,8 +309,14 @@ function FitPanel() {
               className="primary"
               data-testid="fit-apply"
               onClick={() => apply(value.prior)}
-              disabled={value.conditioning?.usable === false}
-              title={value.conditioning?.usable === false ? 'This optimum fails the positive-definiteness check with condition number ≤ 1e10, so it is not offered' : undefined}
+              disabled={value.conditioning?.usable === false || !fitApplicable}
+              title={
+                !fitApplicable
+                  ? (freshnessText(fitFresh) ?? undefined)
+                  : value.conditioning?.usable === false
+                    ? 'This optimum fails the positive-definiteness check with condition number ≤ 1e10, so it is not offered'
+                    : undefined
+              }
             >
               Apply optimum
             </button>

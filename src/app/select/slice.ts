@@ -8,6 +8,7 @@
  * posterior worker stays free); every task keeps the key it was computed for, and the screen
  * shows a result only while the key still matches.
  */
+import { assertNever } from '../../core/errors.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
 import { setTermLength, withTerm, type LogAxis, type ProfileParameter } from '../../core/tuning/index.ts';
 import type { TuningKind, TuningResultMap } from '../../worker/tuningProtocol.ts';
@@ -81,6 +82,52 @@ export interface SelectSlice {
   useCandidate(id: string): void;
   /** Forget every tuning result (a new problem). */
   resetSelect(): void;
+  /**
+   * A different problem is shown: its tuning results are forgotten, the pinned candidates of the
+   * problem left are set aside and those of the problem shown (if it was open before) come back.
+   */
+  problemShown(identity: string): void;
+}
+
+/** Which problem is shown: a built-in one by id, or the user's own by its saved key. */
+export function problemIdentity(s: Pick<WorkbenchState, 'problem' | 'userProblem' | 'demoId'>): string | null {
+  if (!s.problem) return null;
+  return s.problem.demoId != null ? `demo:${s.problem.demoId}` : `user:${s.userProblem?.key ?? s.problem.title ?? ''}`;
+}
+
+/** What a result can be applied to: the kernels, their smoothness, isotropy and the number of terms. */
+export function priorStructure(p: PriorSpec): string {
+  return JSON.stringify(p.terms.map((t) => [t.kernel, t.kernel === 'matern' ? (t.nu ?? null) : null, t.lengths ? 'anisotropic' : 'isotropic']));
+}
+
+/**
+ * How a task's result relates to what is on screen now: computed for the current prior; for an
+ * earlier prior of the same structure (shown as out of date, still applicable); for a prior of
+ * another structure (out of date, cannot be applied); or for another problem.
+ */
+export type Freshness = 'current' | 'earlier-prior' | 'other-structure' | 'other-problem';
+
+export function freshness(task: Pick<Task<unknown>, 'key' | 'prior'>, s: Pick<WorkbenchState, 'problem' | 'priorRevision' | 'prior'>): Freshness {
+  const [version, revision] = (task.key ?? '').split(':');
+  if (!s.problem || version !== String(s.problem.version)) return 'other-problem';
+  if (task.prior && s.prior && priorStructure(task.prior) !== priorStructure(s.prior)) return 'other-structure';
+  return revision === String(s.priorRevision) ? 'current' : 'earlier-prior';
+}
+
+/** One plain sentence for a result that is not current (null when it is). */
+export function freshnessText(f: Freshness): string | null {
+  switch (f) {
+    case 'current':
+      return null;
+    case 'earlier-prior':
+      return 'Out of date: computed for an earlier prior of the same structure. Recompute to update it.';
+    case 'other-structure':
+      return 'Out of date: computed for a prior with other kernels or terms, so it cannot be applied to the current prior. Recompute it.';
+    case 'other-problem':
+      return 'Out of date: computed for another problem. Recompute it.';
+    default:
+      return assertNever(f, 'freshness');
+  }
 }
 
 const idleTask = <T>(): Task<T> => ({ status: 'idle', value: null, error: null, key: null, prior: null });
@@ -107,6 +154,9 @@ type Get = () => WorkbenchState;
 export function createSelectSlice(set: Set, get: Get, client: object): SelectSlice {
   const port = tuningPortOf(client);
   let nextId = 1;
+  /** Pinned candidates of the problems shown earlier in this session, by problem identity. */
+  const setAside = new Map<string, Candidate[]>();
+  let shown: string | null = null;
 
   const patchTask = <K extends TuningKind>(kind: K, patch: Partial<Task<TuningResultMap[K]>>) => {
     const tasks = get().selectTasks;
@@ -207,6 +257,11 @@ export function createSelectSlice(set: Set, get: Get, client: object): SelectSli
       const s = get();
       const map = s.selectTasks.evidenceMap.value;
       if (!map || !s.prior) return;
+      const f = freshness(s.selectTasks.evidenceMap, s);
+      if (f === 'other-structure' || f === 'other-problem') {
+        set({ notice: `The evidence map was not applied. ${freshnessText(f)}` });
+        return;
+      }
       const nv = map.variances.length;
       const i = Math.floor(index / nv);
       const j = index % nv;
@@ -215,7 +270,12 @@ export function createSelectSlice(set: Set, get: Get, client: object): SelectSli
       s.setPrior(withTerm(s.prior, map.term, { ...setTermLength(term, map.lengths[i]!), variance: map.variances[j]! }));
     },
     applyTuned(prior) {
-      get().setPrior(prior);
+      const s = get();
+      if (s.prior && priorStructure(prior) !== priorStructure(s.prior)) {
+        set({ notice: `The result was not applied. ${freshnessText('other-structure')}` });
+        return;
+      }
+      s.setPrior(prior);
     },
     pinPrior() {
       const s = get();
@@ -240,6 +300,13 @@ export function createSelectSlice(set: Set, get: Get, client: object): SelectSli
     resetSelect() {
       for (const k of TUNING_KINDS) if (get().selectTasks[k].status === 'running') port?.cancel(k);
       set({ selectTasks: emptyTasks() });
+    },
+    problemShown(identity) {
+      if (identity === shown) return;
+      if (shown !== null) setAside.set(shown, get().candidates);
+      shown = identity;
+      get().resetSelect();
+      set({ candidates: setAside.get(identity) ?? [] });
     },
   };
 }

@@ -116,7 +116,7 @@ export function findDuplicateKey(text: string): { field: string; pos: number } |
       expectKey = false;
     } else if (c === 44) {
       const top = stack[stack.length - 1];
-      if (top && top.keys) expectKey = true;
+      if (top?.keys) expectKey = true;
       else if (top) top.index++;
     }
   }

@@ -4,7 +4,7 @@ import { createWorkbenchStore, type ClientPort } from '../../../src/app/store.ts
 import type { Outcome } from '../../../src/worker/client.ts';
 import type { ProblemView } from '../../../src/worker/protocol.ts';
 import type { PriorSpec } from '../../../src/core/prior/spec.ts';
-import { tuningPortOf } from '../../../src/app/select/slice.ts';
+import { freshness, problemIdentity, tuningPortOf } from '../../../src/app/select/slice.ts';
 import type { EvidenceMap } from '../../../src/core/tuning/index.ts';
 
 const prior: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 0.25, length: 10 }], nugget: 0.01 };
@@ -109,4 +109,51 @@ describe('select slice and problem changes', () => {
     store.getState().refreshCriteria();
     expect(sent).toHaveLength(2);
   });
+
+  it('results belong to their prior: after a kernel change the old map and optimum are out of date and cannot be applied', async () => {
+    const { client, sent } = fakeClient();
+    const store = createWorkbenchStore(client, { demoId: 'x' });
+    await store.getState().loadDemo('x');
+    store.getState().runEvidenceMap({ term: 0, lengths: { min: 2, max: 20, count: 2 }, variances: { min: 0.1, max: 10, count: 3 } });
+    store.getState().runFit(['nugget']);
+    const fitted: PriorSpec = { ...prior, terms: [{ kernel: 'exponential', variance: 0.5, length: 12 }] };
+    sent[0]!.resolve({ superseded: false, value: map });
+    sent[1]!.resolve({ superseded: false, value: { prior: fitted } });
+    await new Promise((r) => setTimeout(r, 0));
+    const s0 = store.getState();
+    expect(freshness(s0.selectTasks.evidenceMap, s0)).toBe('current');
+    // A change of the same structure: out of date but still applicable.
+    s0.updateTerm(0, { length: 11 });
+    const s1 = store.getState();
+    expect(freshness(s1.selectTasks.evidenceMap, s1)).toBe('earlier-prior');
+    // A kernel change: neither the map nor the optimum may be applied (before, applying the optimum brought the exponential back).
+    s1.setKernel(0, 'gaussian');
+    const s2 = store.getState();
+    expect(freshness(s2.selectTasks.evidenceMap, s2)).toBe('other-structure');
+    expect(freshness(s2.selectTasks.typeII, s2)).toBe('other-structure');
+    s2.applyTuned(fitted);
+    expect(store.getState().prior!.terms[0]!.kernel).toBe('gaussian');
+    s2.applyMapCell(5);
+    expect(store.getState().prior!.terms[0]!.kernel).toBe('gaussian');
+    expect(store.getState().prior!.terms[0]!.length).toBe(11);
+    expect(store.getState().notice).toMatch(/other kernels or terms/);
+  });
+
+  it('pinned candidates belong to their problem: set aside on a switch, back when the problem returns', async () => {
+    const { client } = fakeClient();
+    const store = createWorkbenchStore(client, { demoId: 'x' });
+    await store.getState().loadDemo('x');
+    store.getState().pinPrior();
+    expect(store.getState().candidates).toHaveLength(1);
+    // Another problem (another demo id): no candidates carried over, no results.
+    (client as { loadDemo: unknown }).loadDemo = async () => ({ superseded: false, value: { ...view, version: 2, demoId: 'y' } });
+    await store.getState().loadDemo('y');
+    expect(problemIdentity(store.getState())).toBe('demo:y');
+    expect(store.getState().candidates).toEqual([]);
+    // Back to the first: its candidate returns.
+    (client as { loadDemo: unknown }).loadDemo = async () => ({ superseded: false, value: { ...view, version: 3 } });
+    await store.getState().loadDemo('x');
+    expect(store.getState().candidates).toHaveLength(1);
+  });
 });
+
