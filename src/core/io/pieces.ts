@@ -30,7 +30,7 @@ import { csvContentLines, headerNote, parseCsv } from './csv.ts';
 import { decodeText } from './json.ts';
 import { parseMatrixMarket } from './matrixMarket.ts';
 import { npyToMatrix, parseNpy } from './npy.ts';
-import { MAX_CELLS } from './problemFile.ts';
+import { checkProblemScales, MAX_CELLS } from './problemFile.ts';
 
 /** One file as picked by the user: its name and its bytes. */
 export interface NamedBytes {
@@ -317,6 +317,7 @@ export function assembleProblem(input: PiecesInput, warnings?: FileWarning[]): P
   const problem: { -readonly [K in keyof Problem]: Problem[K] } = { grid, operator, data };
   if (input.title !== undefined && input.title !== '') problem.title = input.title;
   if (input.quantity !== undefined && input.quantity.name !== '') problem.quantity = input.quantity;
+  checkProblemScales(input.data.name, problem, input.operator.name);
   return problem;
 }
 

@@ -26,6 +26,7 @@ import type { Operator } from '../linalg/operator.ts';
 import { sparseFromCoordinates } from '../linalg/sparse.ts';
 import type { DataSpec, Problem } from '../problems/spec.ts';
 import { assertNever, formatValue } from '../errors.ts';
+import { SCALE_LIMIT, SCALE_MIN } from '../prior/validate.ts';
 import { baseName, FileFormatError, type FileWarning } from './errors.ts';
 import { formatJson, JsonReader, parseJsonText } from './json.ts';
 import { checkKindVersion } from './priorFile.ts';
@@ -203,6 +204,28 @@ function readOperator(r: JsonReader, value: unknown, m: number, n: number, optio
   return g;
 }
 
+/**
+ * The scale rule of src/core/prior/validate.ts (SCALE_LIMIT) for the problem: |data| and |G| entries
+ * ≤ 1e50, sigma from 1e-50 to 1e50 (σ = 1e-300 used to overflow 1/σ² into null results). Throws a
+ * FileFormatError of `file` naming the field.
+ */
+export function checkProblemScales(file: string, problem: Problem, operatorField = 'operator'): void {
+  const fail = (field: string, expected: string, v: number): never => {
+    throw new FileFormatError(file, `${field} must be ${expected} (results at this scale cannot be computed in double precision; change the unit), got ${formatValue(v)}`, { field });
+  };
+  const d = problem.data;
+  d.values.forEach((v, i) => {
+    if (Math.abs(v) > SCALE_LIMIT) fail(`data.values[${i}]`, `of magnitude ≤ ${SCALE_LIMIT}`, v);
+  });
+  d.sigma?.forEach((v, i) => {
+    if (v > SCALE_LIMIT || v < SCALE_MIN) fail(`data.sigma[${i}]`, `from ${SCALE_MIN} to ${SCALE_LIMIT}`, v);
+  });
+  const entries = problem.operator.kind === 'dense' ? problem.operator.matrix.data : problem.operator.matrix.values;
+  for (let k = 0; k < entries.length; k++) {
+    if (Math.abs(entries[k]!) > SCALE_LIMIT) fail(operatorField, `a matrix with entries of magnitude ≤ ${SCALE_LIMIT}`, entries[k]!);
+  }
+}
+
 /** Parse a problem file (text or UTF-8 bytes). */
 export function parseProblemFile(file: string, input: string | Uint8Array, options: ProblemReadOptions = {}): ProblemFileResult {
   const r = new JsonReader(file);
@@ -222,6 +245,7 @@ export function parseProblemFile(file: string, input: string | Uint8Array, optio
     const name = r.string(r.required(q, 'quantity', 'name', 'a string'), 'quantity.name');
     problem.quantity = q.unit !== undefined ? { name, unit: r.string(q.unit, 'quantity.unit') } : { name };
   }
+  checkProblemScales(file, problem);
   return { problem, warnings: r.warnings };
 }
 

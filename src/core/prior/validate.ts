@@ -10,6 +10,11 @@
  * - `angle` without `lengths` is allowed (it has no effect on an isotropic term) but must be finite.
  * - A term may not have both `length` and `lengths`; in 1-D only `length` is allowed.
  * - No terms and no (or zero) nugget is an error: the covariance would be the zero matrix.
+ * - Scale: every magnitude must be computable in double precision with room for the products the
+ *   posterior forms (G Cm Gᵀ over up to 4·10⁶ cells, 1/σ²): |mean| ≤ 1e50, standard deviations
+ *   (√variance, √nugget, stdProfile) from 1e-50 to 1e50 (a prior mean of 1e308 or a profile of 1e300
+ *   used to overflow into null results). Our choice, no source: doubles reach 1.8e308, and 1e50 leaves
+ *   (4e6 · 1e50 · 1e50)² ≈ 1.6e213 for the data-space products.
  */
 import { InputError } from '../errors.ts';
 import { cellCount, gridDimension, validateGrid, type Grid } from '../grid/grid.ts';
@@ -21,6 +26,22 @@ const isFiniteNumber = (v: unknown): v is number => typeof v === 'number' && Num
 const isPositive = (v: unknown): v is number => isFiniteNumber(v) && v > 0;
 const isObject = (v: unknown): v is Record<string, unknown> => typeof v === 'object' && v !== null && !Array.isArray(v);
 const isArrayLike = (v: unknown): v is ArrayLike<unknown> => Array.isArray(v) || ArrayBuffer.isView(v);
+
+/** Largest magnitude of a mean, datum, operator entry or standard deviation (see the module comment). */
+export const SCALE_LIMIT = 1e50;
+/** Smallest non-zero standard deviation (σ, √variance, profile), see the module comment. */
+export const SCALE_MIN = 1e-50;
+
+function checkScale(field: string, v: number, what: string, positive: boolean, shown: number = v): void {
+  const a = Math.abs(v);
+  if (a > SCALE_LIMIT || (positive && a > 0 && a < SCALE_MIN)) {
+    throw new InputError(
+      field,
+      `${what} ${positive ? `from ${SCALE_MIN} to ${SCALE_LIMIT}` : `of magnitude ≤ ${SCALE_LIMIT}`} (results at this scale cannot be computed in double precision; change the unit)`,
+      shown,
+    );
+  }
+}
 
 /** Throws InputError (field path + value) unless the prior is valid for this grid. */
 export function validatePrior(prior: PriorSpec, grid: Grid): void {
@@ -47,8 +68,23 @@ export function validatePrior(prior: PriorSpec, grid: Grid): void {
     }
     for (let i = 0; i < n; i++) {
       if (!isPositive(s[i])) throw new InputError(`stdProfile[${i}]`, 'a finite number > 0', s[i]);
+      checkScale(`stdProfile[${i}]`, s[i] as number, 'a standard-deviation multiplier', true);
     }
   }
+  validateScales(prior, n);
+}
+
+/** The scale rule of the module comment, after the shape checks. */
+function validateScales(prior: PriorSpec, n: number): void {
+  const m = prior.mean;
+  if ('constant' in m) checkScale('mean.constant', m.constant, 'a mean', false);
+  else if ('values' in m) for (let i = 0; i < n; i++) checkScale(`mean.values[${i}]`, m.values[i]!, 'a mean', false);
+  else {
+    checkScale('mean.trend.intercept', m.trend.intercept, 'an intercept', false);
+    m.trend.slope.forEach((v, k) => checkScale(`mean.trend.slope[${k}]`, v, 'a slope', false));
+  }
+  prior.terms.forEach((t, k) => checkScale(`terms[${k}].variance`, Math.sqrt(t.variance), 'a variance whose square root is', true, t.variance));
+  if (prior.nugget !== undefined && prior.nugget > 0) checkScale('nugget', Math.sqrt(prior.nugget), 'a nugget whose square root is', true, prior.nugget);
 }
 
 function validateMean(mean: unknown, n: number, dim: 1 | 2): void {
