@@ -97,3 +97,24 @@ describe('only regular files, size limit enforced while reading', () => {
     expect(r.err).toContain('p.json: cannot be read: it is not a regular file');
   });
 });
+
+describe('cost decided before computing (issue 14 part 5, issue 16 part 4)', () => {
+  it('--path dense on 100,000 cells says the dense route cannot hold it and which route can (exit 2, no internal error)', async () => {
+    const dir = tempDir();
+    // 1000 × 100 cells, one datum reading cell 0 (sparse, so the file stays small).
+    const problem = {
+      kind: 'priorscope.problem',
+      version: 1,
+      grid: { shape: [1000, 100], spacing: [1, 1] },
+      operator: { sparse: { rows: [0], cols: [0], values: [1] } },
+      data: { values: [1], sigma: [0.1] },
+    };
+    writeFileSync(join(dir, 'p.json'), JSON.stringify(problem));
+    writeFileSync(join(dir, 'q.json'), JSON.stringify(PRIOR));
+    const r = await runCommand(['posterior', '--problem', 'p.json', '--prior', 'q.json', '--path', 'dense'], dir);
+    expect(r.code).toBe(2);
+    expect(r.err.trim()).toBe(
+      'priorscope posterior: --path must be "fft" or "auto" (the FFT route holds no N × N matrix) for 100000 cells: the dense route holds Cm as an N × N matrix (75 GiB here) and is limited to 16384 cells, got "dense"',
+    );
+  });
+});

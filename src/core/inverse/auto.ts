@@ -34,6 +34,22 @@ export const PATH_REQUESTS: readonly PathRequest[] = ['auto', 'dense', 'fft'];
 /** Smallest N for which `auto` picks the FFT path (measured crossing; see the module comment). */
 export const FFT_MIN_CELLS = 128;
 
+/**
+ * Largest N the dense route accepts: it holds Cm as N × N doubles (8 N² bytes, 2 GiB at 16 384
+ * cells) plus a factor of the same size, beyond what a laptop or a browser tab holds, and past
+ * 46 341 cells N² exceeds the largest typed array ("Invalid typed array length" before this limit).
+ */
+export const DENSE_MAX_CELLS = 16_384;
+
+function denseTooLarge(n: number, field: string, requested: PathRequest, alternative: string): InputError {
+  const gib = ((8 * n * n) / 2 ** 30).toFixed(n * n * 8 < 2 ** 31 ? 2 : 0);
+  return new InputError(
+    field,
+    `${alternative} for ${n} cells: the dense route holds Cm as an N × N matrix (${gib} GiB here) and is limited to ${DENSE_MAX_CELLS} cells`,
+    requested,
+  );
+}
+
 export interface PathDecision {
   readonly path: 'dense' | 'fft';
   /** One sentence on why (for logs, the CLI's stderr and the UI). */
@@ -50,12 +66,18 @@ export function choosePosteriorPath(problem: Problem, prior: PriorSpec, requeste
   const n = cellCount(problem.grid);
   switch (requested) {
     case 'dense':
+      if (n > DENSE_MAX_CELLS) {
+        throw denseTooLarge(n, field, requested, why === null ? '"fft" or "auto" (the FFT route holds no N × N matrix)' : `a problem of at most ${DENSE_MAX_CELLS} cells (the FFT route cannot run either: ${why})`);
+      }
       return { path: 'dense', reason: 'dense path requested' };
     case 'fft':
       if (why !== null) throw new InputError(field, `"dense" or "auto" for this problem (the FFT path needs a stationary prior on a regular 1-D or 2-D grid: ${why})`, 'fft');
       return { path: 'fft', reason: 'FFT path requested' };
     case 'auto':
-      if (why !== null) return { path: 'dense', reason: `dense: ${why}` };
+      if (why !== null) {
+        if (n > DENSE_MAX_CELLS) throw denseTooLarge(n, field, requested, `a problem of at most ${DENSE_MAX_CELLS} cells (the FFT route cannot run: ${why})`);
+        return { path: 'dense', reason: `dense: ${why}` };
+      }
       if (n < FFT_MIN_CELLS) return { path: 'dense', reason: `dense: ${n} cells, below ${FFT_MIN_CELLS} the dense path is as fast` };
       return { path: 'fft', reason: `FFT: stationary prior on a regular grid of ${n} cells (≥ ${FFT_MIN_CELLS})` };
     default:
