@@ -9,7 +9,7 @@ import { KERNEL_NAMES, type KernelName } from '../core/kernels/spec.ts';
 import { correlation } from '../core/kernels/correlation.ts';
 import type { Matrix } from '../core/linalg/matrix.ts';
 import { DENSE_DECISION_LIMIT, diagnosePriorAuto, STRUCTURED_DIAGNOSTICS_MIN_CELLS } from '../core/prior/structuredDiagnostics.ts';
-import type { Diagnostics } from '../core/prior/diagnostics.ts';
+import { diagnoseCovariance, type Diagnostics } from '../core/prior/diagnostics.ts';
 import { structuredPosteriorDraws } from '../core/inverse/structuredDraws.ts';
 import { priorRealisationsWithRoute } from '../core/sampling/realisations.ts';
 import { posteriorRealisations, preparePosterior } from '../core/inverse/posterior.ts';
@@ -39,7 +39,7 @@ import {
   type OptionSpec,
   type ParsedArgs,
 } from './args.ts';
-import { loadPrior, loadProblem, writeOutputFile } from './files.ts';
+import { loadPrior, loadProblem, loadSymmetricMatrix, MAX_CHECK_MATRIX, writeOutputFile } from './files.ts';
 
 /** Where a command writes: stdout / stderr of the process, replaceable in tests. */
 export interface Io {
@@ -237,9 +237,11 @@ function checkExit(io: Io, d: Diagnostics): number {
 
 const check: Command = {
   name: 'check',
-  summary: 'is the prior covariance positive definite on the problem grid? (exit 3 if not)',
-  usage: 'priorscope check --problem P.json --prior Q.json [--out FILE]',
+  summary: 'is the prior covariance (or a covariance matrix you have) positive definite? (exit 3 if not)',
+  usage: 'priorscope check --problem P.json --prior Q.json [--out FILE] | priorscope check --covariance C.npy|C.mtx|C.csv [--out FILE]',
   details:
+    `--covariance FILE checks a symmetric matrix you already have (.npy, Matrix Market .mtx or numeric .csv; square,\n` +
+    `at most ${MAX_CHECK_MATRIX} rows, symmetric to 1e-12 of its largest entry): the dense route below, same fields and exit codes.\n` +
     'Prints {"verdict", "positiveDefinite", "decidedBy", "basis", ["nextStep"], "failedPivot", "minEigenvalue",\n' +
     '"maxEigenvalue", "conditionNumber", "eigenvalueMethod", "suggestedJitter", "suggestedJitterRelative",\n' +
     '"warnings": [{"code", "message"}]}.\n' +
@@ -256,12 +258,30 @@ const check: Command = {
     '"embeddingPadding"; min/max eigenvalue and conditionNumber are then Lanczos estimates inside it. When the\n' +
     `bracket cannot decide, grids of up to ${DENSE_DECISION_LIMIT} cells are decided by the dense Cholesky factorisation, larger\n` +
     'ones by an enlarged embedding where that proves it.',
-  options: [PROBLEM, READ_FROM, PRIOR, OUT],
+  options: [
+    { ...PROBLEM, required: false },
+    READ_FROM,
+    { ...PRIOR, required: false },
+    { name: 'covariance', value: 'C.npy|C.mtx|C.csv', help: 'check this symmetric matrix instead of a prior (no --problem, --prior)' },
+    OUT,
+  ],
   run(args, io) {
     noPositionals(args);
-    const { problem, prior } = loadBoth(args, io);
-    progress(io, `checking the prior on ${cellCount(problem.grid)} cells …`);
-    const d = diagnosePriorAuto(problem.grid, prior);
+    const covariance = optionString(args, 'covariance');
+    const hasProblem = optionString(args, 'problem') !== undefined;
+    const hasPrior = optionString(args, 'prior') !== undefined;
+    if (covariance !== undefined && (hasProblem || hasPrior)) throw new UsageError('give either --covariance FILE or --problem and --prior, not both');
+    if (covariance === undefined && !(hasProblem && hasPrior)) throw new UsageError('option --problem P.json and --prior Q.json are required (or --covariance FILE)');
+    let d: Diagnostics;
+    if (covariance !== undefined) {
+      const c = loadSymmetricMatrix(covariance);
+      progress(io, `checking a ${c.rows} × ${c.rows} covariance matrix …`);
+      d = diagnoseCovariance(c);
+    } else {
+      const { problem, prior } = loadBoth(args, io);
+      progress(io, `checking the prior on ${cellCount(problem.grid)} cells …`);
+      d = diagnosePriorAuto(problem.grid, prior);
+    }
     emit(
       io,
       args,

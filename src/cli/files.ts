@@ -12,6 +12,12 @@ import type { Problem } from '../core/problems/spec.ts';
 import { FileFormatError, MAX_FILE_BYTES, type FileWarning } from '../core/io/errors.ts';
 import { parsePriorFile } from '../core/io/priorFile.ts';
 import { parseProblemFile } from '../core/io/problemFile.ts';
+import { parseCsv } from '../core/io/csv.ts';
+import { parseMatrixMarket } from '../core/io/matrixMarket.ts';
+import { npyToMatrix, parseNpy } from '../core/io/npy.ts';
+import { asymmetry } from '../core/io/covarianceCheck.ts';
+import { operatorToDense } from '../core/linalg/operator.ts';
+import type { Matrix } from '../core/linalg/matrix.ts';
 
 /** Why a file could not be read, in words (from a Node.js error code). */
 function describeFsError(e: unknown): string {
@@ -155,4 +161,32 @@ export function writeOutputFile(path: string, content: string | Uint8Array): voi
   } catch (e) {
     throw new FileFormatError(path, `cannot be written: ${describeFsError(e)}`);
   }
+}
+
+/** Largest N of a matrix given to `check --covariance` (8·N² bytes: 288 MB at 6000; its Cholesky takes seconds). */
+export const MAX_CHECK_MATRIX = 6000;
+
+/**
+ * A symmetric matrix from a .npy, .mtx (Matrix Market) or .csv file, for `check --covariance`:
+ * square, at most {@link MAX_CHECK_MATRIX} rows, symmetric to 1e-12 of its largest |entry|
+ * (../core/io/covarianceCheck.ts asymmetry). Errors name the file and what was expected.
+ */
+export function loadSymmetricMatrix(path: string): Matrix {
+  const lower = path.toLowerCase();
+  if (!/\.(npy|mtx|csv)$/.test(lower)) throw new FileFormatError(path, '--covariance must name a .npy, .mtx (Matrix Market) or .csv file');
+  const bytes = readInputFile(path);
+  let m: Matrix;
+  if (lower.endsWith('.npy')) m = npyToMatrix(path, parseNpy(path, bytes));
+  else if (lower.endsWith('.mtx')) m = operatorToDense(parseMatrixMarket(path, bytes));
+  else if (lower.endsWith('.csv')) m = parseCsv(path, bytes, { header: 'auto' }).matrix;
+  else throw new FileFormatError(path, `--covariance must name a .npy, .mtx (Matrix Market) or .csv file`);
+  if (m.rows !== m.cols) throw new FileFormatError(path, `must hold a square matrix, got ${m.rows} × ${m.cols}`);
+  if (m.rows > MAX_CHECK_MATRIX) {
+    throw new FileFormatError(path, `must hold at most ${MAX_CHECK_MATRIX} rows for the dense check, got ${m.rows}; for a prior on a regular grid, check the prior file instead (check --problem P --prior Q, which needs no dense matrix)`);
+  }
+  const a = asymmetry(m);
+  if (a) {
+    throw new FileFormatError(path, `must hold a symmetric matrix, but entry (${a.row + 1}, ${a.col + 1}) is ${a.value} and (${a.col + 1}, ${a.row + 1}) is ${a.mirror} (rows and columns from 1)`);
+  }
+  return m;
 }

@@ -10,8 +10,8 @@ export type CovarianceDefect =
   | { readonly kind: 'asymmetric'; readonly row: number; readonly col: number; readonly value: number; readonly mirror: number }
   | { readonly kind: 'not-positive-definite'; readonly pivot: number; readonly value: number };
 
-/** The first defect of the square matrix `c`, or null when it is a valid covariance. */
-export function covarianceDefect(c: Matrix): CovarianceDefect | null {
+/** The first pair (i, j) of the square matrix `c` whose entries differ by more than 1e-12 of its largest |entry|, or null. */
+export function asymmetry(c: Matrix): Extract<CovarianceDefect, { kind: 'asymmetric' }> | null {
   const n = c.rows;
   let scale = 0;
   for (const v of c.data) scale = Math.max(scale, Math.abs(v));
@@ -23,6 +23,13 @@ export function covarianceDefect(c: Matrix): CovarianceDefect | null {
       if (Math.abs(a - b) > tol) return { kind: 'asymmetric', row: i, col: j, value: a, mirror: b };
     }
   }
+  return null;
+}
+
+/** The first defect of the square matrix `c`, or null when it is a valid covariance. */
+export function covarianceDefect(c: Matrix): CovarianceDefect | null {
+  const a = asymmetry(c);
+  if (a) return a;
   const f = cholesky(c);
   return f.ok ? null : { kind: 'not-positive-definite', pivot: f.pivot, value: f.value };
 }
