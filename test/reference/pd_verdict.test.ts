@@ -7,7 +7,8 @@
  * with a negative lower end was read as a proof of failure) although numpy finds λmin > 0.
  */
 import { describe, expect, it } from 'vitest';
-import { diagnosePrior } from '../../src/core/prior/diagnostics.ts';
+import { diagnoseCovariance, diagnosePrior } from '../../src/core/prior/diagnostics.ts';
+import { covarianceMatrix } from '../../src/core/prior/covariance.ts';
 import { DENSE_DECISION_LIMIT, diagnosePriorAuto, diagnoseStructured } from '../../src/core/prior/structuredDiagnostics.ts';
 import type { Grid } from '../../src/core/grid/grid.ts';
 import type { PriorSpec } from '../../src/core/prior/spec.ts';
@@ -79,12 +80,17 @@ describe('tiny variances: the verdict and the numbers agree', () => {
   const unit: PriorSpec = { mean: zero, terms: [{ kernel: 'exponential', variance: 1, length: 3 }] };
   const tiny: PriorSpec = { mean: zero, terms: [{ kernel: 'exponential', variance: 1e-300, length: 3 }] };
   const [ref] = runPython<{ cases: Ref[] }>('structured_diagnostics_reference.py', { cases: [{ grid, prior: unit }] }).cases;
-  it('variance 1e-300 on the dense route', () => {
-    const d = diagnosePrior(grid, tiny);
+  it('a matrix at 1e-300 (check --covariance): eigenvalues 1e-300 times numpy\'s, proven positive definite', () => {
+    const c = covarianceMatrix(grid, unit);
+    const scaled = { rows: c.rows, cols: c.cols, data: c.data.map((v) => v * 1e-300) };
+    const d = diagnoseCovariance(scaled);
     expect(d.verdict).toBe('positive-definite');
     expect(d.minEigenvalue).toBeGreaterThan(0);
     expect(Math.abs(d.minEigenvalue / 1e-300 - ref!.min) / ref!.min).toBeLessThan(1e-9);
     expect(Math.abs(d.conditionNumber - ref!.cond!) / ref!.cond!).toBeLessThan(1e-9);
     expect(d.suggestedJitter).toBeNull();
+  });
+  it('a prior variance of 1e-300 is refused at its field before any computation', () => {
+    expect(() => diagnosePrior(grid, tiny)).toThrow(/terms\[0\]\.variance/);
   });
 });
