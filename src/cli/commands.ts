@@ -436,6 +436,9 @@ const correlationCommand: Command = {
   },
 };
 
+/** Largest evidence map `tune` computes (lengths × variances), decided before loading anything. */
+export const MAX_MAP_CELLS = 1_000_000;
+
 /** "lo:hi:n" → a log-spaced axis (0 < lo ≤ hi, 1 ≤ n ≤ 10000). */
 function parseAxis(name: string, text: string): LogAxis {
   const parts = text.split(':');
@@ -488,6 +491,11 @@ const tune: Command = {
     noPositionals(args);
     const lengths = parseAxis('lengths', optionString(args, 'lengths')!);
     const variances = parseAxis('variances', optionString(args, 'variances')!);
+    if (lengths.count * variances.count > MAX_MAP_CELLS) {
+      throw new UsageError(
+        `the evidence map would have ${lengths.count} × ${variances.count} = ${lengths.count * variances.count} cells, more than the limit of ${MAX_MAP_CELLS}; use fewer points on --lengths or --variances`,
+      );
+    }
     const termText = optionString(args, 'term')!;
     const { problem, prior } = loadBoth(args, io);
     const term = parseNumberOption('term', termText, { integer: true, ge: 0 });

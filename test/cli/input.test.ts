@@ -118,3 +118,31 @@ describe('cost decided before computing (issue 14 part 5, issue 16 part 4)', () 
     );
   });
 });
+
+describe('data × cells and map size limits', () => {
+  it('1,000 data on 10⁶ cells is refused before computing, with the limit (exit 2)', async () => {
+    const dir = tempDir();
+    const m = 1000;
+    const problem = {
+      kind: 'priorscope.problem',
+      version: 1,
+      grid: { shape: [1000, 1000], spacing: [1, 1] },
+      operator: { sparse: { rows: Array.from({ length: m }, (_, i) => i), cols: Array.from({ length: m }, (_, i) => i * 7), values: Array(m).fill(1) } },
+      data: { values: Array(m).fill(1), sigma: Array(m).fill(0.1) },
+    };
+    writeFileSync(join(dir, 'p.json'), JSON.stringify(problem));
+    writeFileSync(join(dir, 'q.json'), JSON.stringify(PRIOR));
+    const r = await runCommand(['posterior', '--problem', 'p.json', '--prior', 'q.json'], dir);
+    expect(r.code).toBe(2);
+    expect(r.err.trim()).toBe(
+      'priorscope posterior: data must be at most 268435456 data × cells (G Cm is held as M × N doubles, 2 GiB at the limit; here 1000 data × 1000000 cells, 7.5 GiB; use fewer data or a coarser grid), got 1000000000',
+    );
+  });
+
+  it('tune refuses a map beyond 10⁶ cells before loading the files', async () => {
+    const dir = tempDir();
+    const r = await runCommand(['tune', '--problem', 'missing.json', '--prior', 'q.json', '--term', '0', '--lengths', '1:10:2000', '--variances', '1:10:1000'], dir);
+    expect(r.code).toBe(2);
+    expect(r.err).toContain('the evidence map would have 2000 × 1000 = 2000000 cells, more than the limit of 1000000');
+  });
+});

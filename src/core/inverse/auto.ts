@@ -50,6 +50,12 @@ function denseTooLarge(n: number, field: string, requested: PathRequest, alterna
   );
 }
 
+/**
+ * Largest data × cells product on any route: both hold Bᵀ = G Cm (or its rows) as M × N doubles,
+ * 2 GiB at 2²⁸ (1,000 data on 10⁶ cells, 8 GB, used to grow without limit).
+ */
+export const MAX_DATA_CELLS = 2 ** 28;
+
 export interface PathDecision {
   readonly path: 'dense' | 'fft';
   /** One sentence on why (for logs, the CLI's stderr and the UI). */
@@ -64,6 +70,14 @@ export interface PathDecision {
 export function choosePosteriorPath(problem: Problem, prior: PriorSpec, requested: PathRequest = 'auto', field = 'path'): PathDecision {
   const why = nonStationaryReason(problem.grid, prior);
   const n = cellCount(problem.grid);
+  const m = problem.data.values.length;
+  if (m * n > MAX_DATA_CELLS) {
+    throw new InputError(
+      'data',
+      `at most ${MAX_DATA_CELLS} data × cells (G Cm is held as M × N doubles, 2 GiB at the limit; here ${m} data × ${n} cells, ${((8 * m * n) / 2 ** 30).toFixed(1)} GiB; use fewer data or a coarser grid)`,
+      m * n,
+    );
+  }
   switch (requested) {
     case 'dense':
       if (n > DENSE_MAX_CELLS) {
