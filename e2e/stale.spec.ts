@@ -20,8 +20,11 @@ test('after a kernel change the earlier optimum and map are out of date and cann
   await page.getByTestId('map-run').click();
   await expect(page.getByTestId('evidenceMap-status')).toHaveAttribute('data-status', 'done', { timeout: 45_000 });
   await expect(page.getByTestId('fit-apply')).toBeEnabled();
+  await page.getByTestId('profile-run').click();
+  await expect(page.getByTestId('evidenceProfile-status')).toHaveAttribute('data-status', 'done', { timeout: 45_000 });
   await expect(page.getByTestId('map-apply-best')).toBeEnabled();
   await expect(page.getByTestId('fit-stale')).toHaveCount(0);
+  await expect(page.getByTestId('profile-stale')).toHaveCount(0);
 
   const kernel = s0.prior.terms[0]!.kernel === 'gaussian' ? 'exponential' : 'gaussian';
   await page.getByTestId('term-0-kernel').selectOption(kernel);
@@ -33,6 +36,9 @@ test('after a kernel change the earlier optimum and map are out of date and cann
   await expect(page.getByTestId('fit-apply')).toHaveAttribute('title', /other kernels or terms/);
   await expect(page.getByTestId('map-stale')).toContainText('cannot be applied');
   await expect(page.getByTestId('map-apply-best')).toBeDisabled();
+  // The nugget profile was computed with the earlier kernel held fixed: shown as out of date.
+  await expect(page.getByTestId('profile-result')).toHaveAttribute('data-freshness', 'other-structure');
+  await expect(page.getByTestId('profile-stale')).toContainText('Out of date');
   await page.getByTestId('fit-result').scrollIntoViewIfNeeded();
   await screenshot(page, info, 'stale-fit-after-kernel-change');
   // Even a forced click does not bring the old kernel back.

@@ -202,6 +202,7 @@ function ProfilePanel() {
     // eslint-disable-next-line react-hooks/exhaustive-deps
   }, [kind]);
   const value = task.value && task.key?.startsWith(`${p.version}:`) ? task.value : null;
+  const profileFresh = useWb((s) => freshness(s.selectTasks.evidenceProfile, s));
   const traces = useMemo(() => (value ? profileTraces(value) : []), [value]);
   const layout = useMemo(
     () =>
@@ -236,11 +237,20 @@ function ProfilePanel() {
         </button>
         <TaskStatusLine kind="evidenceProfile" task={task} label="Profile" />
       </div>
-      {value && layout && <Plot id="plot-evidence-profile" label="Evidence profile" data={traces} layout={layout} height={260} />}
-      {value?.best && (
-        <p className="note" data-testid="profile-best">
-          Largest at {value.parameter === 'nu' ? 'ν' : 'nugget'} = {fmt(value.best.value)} (log evidence {value.best.logEvidence.toFixed(3)}); the rest of the prior held fixed.
-        </p>
+      {value && (
+        <div data-testid="profile-result" className={profileFresh === 'current' ? undefined : 'stale'} data-freshness={profileFresh}>
+          {freshnessText(profileFresh) && (
+            <p className="stale-note" role="status" data-testid="profile-stale">
+              {freshnessText(profileFresh)}
+            </p>
+          )}
+          {layout && <Plot id="plot-evidence-profile" label="Evidence profile" data={traces} layout={layout} height={260} />}
+          {value.best && (
+            <p className="note" data-testid="profile-best">
+              Largest at {value.parameter === 'nu' ? 'ν' : 'nugget'} = {fmt(value.best.value)} (log evidence {value.best.logEvidence.toFixed(3)}); the rest of the prior held fixed.
+            </p>
+          )}
+        </div>
       )}
     </div>
   );
