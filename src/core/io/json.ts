@@ -428,7 +428,13 @@ export class JsonReader {
   numbers(value: unknown, field: string, length?: number, rule: NumberRule = {}): number[] {
     const arr = this.array(value, field, length);
     const out = new Array<number>(arr.length);
-    for (let k = 0; k < arr.length; k++) out[k] = this.number(arr[k], joinField(field, k), rule);
+    const plain = !rule.integer && rule.gt === undefined && rule.ge === undefined;
+    for (let k = 0; k < arr.length; k++) {
+      const v = arr[k];
+      // The field name is built only for a failure (10⁶ entries: 5.6 s → see the commit).
+      if (plain && typeof v === 'number' && Number.isFinite(v)) out[k] = v;
+      else out[k] = this.number(v, joinField(field, k), rule);
+    }
     return out;
   }
 

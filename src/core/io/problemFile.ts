@@ -130,9 +130,9 @@ function checkDataCovariance(r: JsonReader, c: Matrix): void {
   }
 }
 
-function readIndex(r: JsonReader, value: unknown, field: string, limit: number, what: string): number {
+function readIndex(r: JsonReader, value: unknown, array: string, p: number, limit: number, what: string): number {
   if (typeof value !== 'number' || !Number.isInteger(value) || value < 0 || value >= limit) {
-    r.fail(field, `an integer from 0 to ${limit - 1} (zero-based ${what})`, value);
+    r.fail(`${array}[${p}]`, `an integer from 0 to ${limit - 1} (zero-based ${what})`, value);
   }
   return value as number;
 }
@@ -158,8 +158,8 @@ function readOperator(r: JsonReader, value: unknown, m: number, n: number, optio
     const k = values.length;
     const ri = r.array(r.required(s, 'operator.sparse', 'rows', `an array of ${k} row indices`), 'operator.sparse.rows', k, 'row indices');
     const ci = r.array(r.required(s, 'operator.sparse', 'cols', `an array of ${k} column indices`), 'operator.sparse.cols', k, 'column indices');
-    const rows = ri.map((v, p) => readIndex(r, v, `operator.sparse.rows[${p}]`, m, 'datum index'));
-    const cols = ci.map((v, p) => readIndex(r, v, `operator.sparse.cols[${p}]`, n, 'cell index'));
+    const rows = ri.map((v, p) => readIndex(r, v, 'operator.sparse.rows', p, m, 'datum index'));
+    const cols = ci.map((v, p) => readIndex(r, v, 'operator.sparse.cols', p, n, 'cell index'));
     return { kind: 'sparse', matrix: sparseFromCoordinates(m, n, rows, cols, values) };
   }
   const name = r.string(o.file, 'operator.file');
