@@ -34,6 +34,7 @@ test('after a kernel change the earlier optimum and map are out of date and cann
   await expect(page.getByTestId('fit-stale')).toContainText('Out of date');
   await expect(page.getByTestId('fit-apply')).toBeDisabled();
   await expect(page.getByTestId('fit-apply')).toHaveAttribute('title', /other kernels or terms/);
+  await expect(page.getByTestId('fit-stale')).toContainText(`other kernels or terms (1 term: ${s0.prior.terms[0]!.kernel}; the current prior has 1 term: ${kernel}`);
   await expect(page.getByTestId('map-stale')).toContainText('cannot be applied');
   await expect(page.getByTestId('map-apply-best')).toBeDisabled();
   // The nugget profile was computed with the earlier kernel held fixed: shown as out of date.
@@ -82,6 +83,7 @@ test('candidates stay with their problem; the selector names the loaded problem'
   await settle(page);
   expect(await candidates()).toBe(0);
   await expect(page.getByTestId('select-pin')).toContainText('(0/');
+  await expect(page.getByTestId('candidates-note')).toContainText('The 2 pinned candidates of “Borehole temperature log” are kept for that problem');
   const select = page.getByTestId('demo-select');
   await expect(select.locator('option:checked')).toHaveText(/Your problem: Pond bed temperatures/);
   await screenshot(page, info, 'stale-selector-user-problem');
@@ -90,5 +92,6 @@ test('candidates stay with their problem; the selector names the loaded problem'
   await select.selectOption('borehole-log');
   await expect.poll(candidates, { timeout: 30_000 }).toBe(2);
   await expect(select.locator('option:checked')).not.toHaveText(/Your problem/);
+  await expect(page.getByTestId('candidates-note')).toContainText('The 2 pinned candidates of this problem are back.');
   expect(w.problems).toEqual([]);
 });

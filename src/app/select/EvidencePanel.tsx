@@ -132,9 +132,9 @@ export function EvidencePanel() {
       {term.lengths && <p className="note">Anisotropic term: the length axis is the first length; the second keeps its ratio to it.</p>}
       {map && (
         <div className={mapFresh === 'current' ? undefined : 'stale'} data-testid="map-result" data-freshness={mapFresh}>
-          {freshnessText(mapFresh) && (
+          {freshnessText(mapFresh, task.prior, prior) && (
             <p className="stale-note" role="status" data-testid="map-stale">
-              {freshnessText(mapFresh)}
+              {freshnessText(mapFresh, task.prior, prior)}
             </p>
           )}
           <div
@@ -166,7 +166,7 @@ export function EvidencePanel() {
                   data-testid="map-apply-best"
                   onClick={() => applyCell(map.best!.index)}
                   disabled={!mapApplicable}
-                  title={mapApplicable ? undefined : (freshnessText(mapFresh) ?? undefined)}
+                  title={mapApplicable ? undefined : (freshnessText(mapFresh, task.prior, prior) ?? undefined)}
                 >
                   Apply maximum
                 </button>
@@ -241,7 +241,7 @@ function ProfilePanel() {
         <div data-testid="profile-result" className={profileFresh === 'current' ? undefined : 'stale'} data-freshness={profileFresh}>
           {freshnessText(profileFresh) && (
             <p className="stale-note" role="status" data-testid="profile-stale">
-              {freshnessText(profileFresh)}
+              {freshnessText(profileFresh, task.prior, prior)}
             </p>
           )}
           {layout && <Plot id="plot-evidence-profile" label="Evidence profile" data={traces} layout={layout} height={260} />}
@@ -305,9 +305,9 @@ function FitPanel() {
       </div>
       {value && (
         <div data-testid="fit-result" className={fitFresh === 'current' ? undefined : 'stale'} data-freshness={fitFresh}>
-          {freshnessText(fitFresh) && (
+          {freshnessText(fitFresh, task.prior, prior) && (
             <p className="stale-note" role="status" data-testid="fit-stale">
-              {freshnessText(fitFresh)}
+              {freshnessText(fitFresh, task.prior, prior)}
             </p>
           )}
           <p>
@@ -322,7 +322,7 @@ function FitPanel() {
               disabled={value.conditioning?.usable === false || !fitApplicable}
               title={
                 !fitApplicable
-                  ? (freshnessText(fitFresh) ?? undefined)
+                  ? (freshnessText(fitFresh, task.prior, prior) ?? undefined)
                   : value.conditioning?.usable === false
                     ? 'This optimum fails the positive-definiteness check with condition number ≤ 1e10, so it is not offered'
                     : undefined

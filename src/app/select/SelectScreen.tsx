@@ -35,6 +35,7 @@ export function SelectScreen() {
   const problem = useWb((s) => s.problem);
   const count = useWb((s) => s.candidates.length);
   const pin = useWb((s) => s.pinPrior);
+  const candidatesNote = useWb((s) => s.candidatesNote);
   const [view, setView] = useState<View>('evidence');
   if (!prior || !problem) return null;
   return (
@@ -53,6 +54,11 @@ export function SelectScreen() {
           ))}
         </span>
       </div>
+      {candidatesNote && (
+        <p className="note" role="status" data-testid="candidates-note">
+          {candidatesNote}
+        </p>
+      )}
       {view === 'evidence' && <EvidencePanel />}
       {view === 'criteria' && <CriteriaPanel />}
       {view === 'candidates' && <CandidatesPanel />}

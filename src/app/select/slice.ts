@@ -87,6 +87,8 @@ export interface SelectSlice {
    * problem left are set aside and those of the problem shown (if it was open before) come back.
    */
   problemShown(identity: string): void;
+  /** Where the pinned candidates went on the last change of problem (null: nothing to say). */
+  candidatesNote: string | null;
 }
 
 /** Which problem is shown: a built-in one by id, or the user's own by its saved key. */
@@ -114,15 +116,26 @@ export function freshness(task: Pick<Task<unknown>, 'key' | 'prior'>, s: Pick<Wo
   return revision === String(s.priorRevision) ? 'current' : 'earlier-prior';
 }
 
-/** One plain sentence for a result that is not current (null when it is). */
-export function freshnessText(f: Freshness): string | null {
+/** The structure of a prior in words: its terms' kernels (with ν for Matérn) and isotropy. */
+export function structureWords(p: PriorSpec): string {
+  const terms = p.terms.map((t) => `${t.kernel}${t.kernel === 'matern' ? ` ν = ${t.nu ?? 'default'}` : ''}${t.lengths ? ' (anisotropic)' : ''}`);
+  return terms.length === 0 ? 'no terms' : `${terms.length} term${terms.length === 1 ? '' : 's'}: ${terms.join(' + ')}`;
+}
+
+/**
+ * One plain sentence for a result that is not current (null when it is). With the prior the result
+ * was computed for (`was`) and the current prior (`now`), a change of structure is named.
+ */
+export function freshnessText(f: Freshness, was?: PriorSpec | null, now?: PriorSpec | null): string | null {
   switch (f) {
     case 'current':
       return null;
     case 'earlier-prior':
       return 'Out of date: computed for an earlier prior of the same structure. Recompute to update it.';
-    case 'other-structure':
-      return 'Out of date: computed for a prior with other kernels or terms, so it cannot be applied to the current prior. Recompute it.';
+    case 'other-structure': {
+      const why = was && now ? ` (${structureWords(was)}; the current prior has ${structureWords(now)})` : '';
+      return `Out of date: computed for a prior with other kernels or terms${why}, so it cannot be applied to the current prior. Recompute it.`;
+    }
     case 'other-problem':
       return 'Out of date: computed for another problem. Recompute it.';
     default:
@@ -157,6 +170,7 @@ export function createSelectSlice(set: Set, get: Get, client: object): SelectSli
   /** Pinned candidates of the problems shown earlier in this session, by problem identity. */
   const setAside = new Map<string, Candidate[]>();
   let shown: string | null = null;
+  let shownTitle = '';
 
   const patchTask = <K extends TuningKind>(kind: K, patch: Partial<Task<TuningResultMap[K]>>) => {
     const tasks = get().selectTasks;
@@ -198,6 +212,7 @@ export function createSelectSlice(set: Set, get: Get, client: object): SelectSli
   return {
     candidates: [],
     selectTasks: emptyTasks(),
+    candidatesNote: null,
 
     runEvidenceMap(settings) {
       const c = current();
@@ -259,7 +274,7 @@ export function createSelectSlice(set: Set, get: Get, client: object): SelectSli
       if (!map || !s.prior) return;
       const f = freshness(s.selectTasks.evidenceMap, s);
       if (f === 'other-structure' || f === 'other-problem') {
-        set({ notice: `The evidence map was not applied. ${freshnessText(f)}` });
+        set({ notice: `The evidence map was not applied. ${freshnessText(f, s.selectTasks.evidenceMap.prior, s.prior)}` });
         return;
       }
       const nv = map.variances.length;
@@ -272,7 +287,7 @@ export function createSelectSlice(set: Set, get: Get, client: object): SelectSli
     applyTuned(prior) {
       const s = get();
       if (s.prior && priorStructure(prior) !== priorStructure(s.prior)) {
-        set({ notice: `The result was not applied. ${freshnessText('other-structure')}` });
+        set({ notice: `The result was not applied. ${freshnessText('other-structure', prior, s.prior)}` });
         return;
       }
       s.setPrior(prior);
@@ -281,11 +296,11 @@ export function createSelectSlice(set: Set, get: Get, client: object): SelectSli
       const s = get();
       if (!s.prior || s.candidates.length >= MAX_PINNED) return;
       const style = nextCandidateStyle(s.candidates.map((c) => c.colour));
-      set({ candidates: [...s.candidates, { id: `cand-${Date.now().toString(36)}-${nextId++}`, name: style.name, colour: style.colour, prior: s.prior }] });
+      set({ candidates: [...s.candidates, { id: `cand-${Date.now().toString(36)}-${nextId++}`, name: style.name, colour: style.colour, prior: s.prior }], candidatesNote: null });
       get().refreshCandidates();
     },
     unpin(id) {
-      set({ candidates: get().candidates.filter((c) => c.id !== id) });
+      set({ candidates: get().candidates.filter((c) => c.id !== id), candidatesNote: null });
       get().refreshCandidates();
     },
     renameCandidate(id, name) {
@@ -303,10 +318,18 @@ export function createSelectSlice(set: Set, get: Get, client: object): SelectSli
     },
     problemShown(identity) {
       if (identity === shown) return;
-      if (shown !== null) setAside.set(shown, get().candidates);
+      const left = get().candidates;
+      if (shown !== null) setAside.set(shown, left);
+      const leftTitle = shownTitle;
       shown = identity;
+      shownTitle = get().problem?.title ?? '';
       get().resetSelect();
-      set({ candidates: setAside.get(identity) ?? [] });
+      const back = setAside.get(identity) ?? [];
+      const count = (n: number) => `${n} pinned candidate${n === 1 ? '' : 's'}`;
+      const parts: string[] = [];
+      if (left.length > 0) parts.push(`The ${count(left.length)} of “${leftTitle}” ${left.length === 1 ? 'is' : 'are'} kept for that problem and come${left.length === 1 ? 's' : ''} back when it is shown again.`);
+      if (back.length > 0) parts.push(`The ${count(back.length)} of this problem ${back.length === 1 ? 'is' : 'are'} back.`);
+      set({ candidates: back, candidatesNote: parts.length > 0 ? parts.join(' ') : null });
     },
   };
 }

@@ -4,7 +4,7 @@ import { createWorkbenchStore, type ClientPort } from '../../../src/app/store.ts
 import type { Outcome } from '../../../src/worker/client.ts';
 import type { ProblemView } from '../../../src/worker/protocol.ts';
 import type { PriorSpec } from '../../../src/core/prior/spec.ts';
-import { freshness, problemIdentity, tuningPortOf } from '../../../src/app/select/slice.ts';
+import { freshness, freshnessText, problemIdentity, tuningPortOf } from '../../../src/app/select/slice.ts';
 import type { EvidenceMap } from '../../../src/core/tuning/index.ts';
 
 const prior: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 0.25, length: 10 }], nugget: 0.01 };
@@ -137,6 +137,9 @@ describe('select slice and problem changes', () => {
     expect(store.getState().prior!.terms[0]!.kernel).toBe('gaussian');
     expect(store.getState().prior!.terms[0]!.length).toBe(11);
     expect(store.getState().notice).toMatch(/other kernels or terms/);
+    // The reason names both structures.
+    expect(store.getState().notice).toContain('other kernels or terms (1 term: exponential; the current prior has 1 term: gaussian)');
+    expect(freshnessText('other-structure', s2.selectTasks.typeII.prior, s2.prior)).toContain('1 term: exponential; the current prior has 1 term: gaussian');
   });
 
   it('pinned candidates belong to their problem: set aside on a switch, back when the problem returns', async () => {
@@ -150,10 +153,13 @@ describe('select slice and problem changes', () => {
     await store.getState().loadDemo('y');
     expect(problemIdentity(store.getState())).toBe('demo:y');
     expect(store.getState().candidates).toEqual([]);
-    // Back to the first: its candidate returns.
+    expect(store.getState().candidatesNote).toBe('The 1 pinned candidate of “t” is kept for that problem and comes back when it is shown again.');
     (client as { loadDemo: unknown }).loadDemo = async () => ({ superseded: false, value: { ...view, version: 3 } });
     await store.getState().loadDemo('x');
     expect(store.getState().candidates).toHaveLength(1);
+    expect(store.getState().candidatesNote).toBe('The 1 pinned candidate of this problem is back.');
+    store.getState().pinPrior();
+    expect(store.getState().candidatesNote).toBeNull();
   });
 });
 
