@@ -9,6 +9,7 @@ import { noteInteraction } from './interaction.ts';
 import { axisNames } from './labels.ts';
 import { formatNumber } from '../core/format.ts';
 import type { ProblemView } from '../worker/protocol.ts';
+import { MAX_TERMS } from '../core/prior/validate.ts';
 
 /** Kernel labels and the correlation formula each one stands for (h = scaled distance). */
 export const KERNEL_INFO: Record<KernelName, { label: string; formula: string }> = {
@@ -46,7 +47,13 @@ export function PriorPanel() {
         ))}
       </ol>
       <div className="row">
-        <button type="button" data-testid="add-term" onClick={addTerm} title="Add a covariance term: Cm += σ² ρ(h)">
+        <button
+          type="button"
+          data-testid="add-term"
+          onClick={addTerm}
+          disabled={prior.terms.length >= MAX_TERMS}
+          title={prior.terms.length >= MAX_TERMS ? `A prior has at most ${MAX_TERMS} covariance terms` : 'Add a covariance term: Cm += σ² ρ(h)'}
+        >
           + Add term
         </button>
         <button type="button" data-testid="reset-prior" onClick={resetPrior} title="Back to the problem's starting prior">

@@ -9,6 +9,7 @@ import { DEFAULT_MATERN_NU, type Term, type KernelName } from '../core/kernels/s
 import type { Diagnostics } from '../core/prior/diagnostics.ts';
 import type { Matrix } from '../core/linalg/matrix.ts';
 import { cellCount } from '../core/grid/grid.ts';
+import { MAX_TERMS } from '../core/prior/validate.ts';
 import type { Outcome } from '../worker/client.ts';
 import type { Channel, PosteriorPartial, PosteriorResult, ProblemView } from '../worker/protocol.ts';
 import { createSelectSlice, problemIdentity, type SelectSlice } from './select/slice.ts';
@@ -243,7 +244,7 @@ export function createWorkbenchStore(client: ClientPort, initial: { demoId: stri
       },
       addTerm() {
         const problem = get().problem;
-        if (!problem) return;
+        if (!problem || (get().prior?.terms.length ?? 0) >= MAX_TERMS) return;
         editTerms((terms) => [...terms, addedTerm(terms, problem)]);
       },
       removeTerm(index) {

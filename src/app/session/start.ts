@@ -13,10 +13,9 @@
  * AUTOSAVE_DEBOUNCE_MS; the user's problem itself is written only when it changes.
  */
 import type { WorkbenchState, WorkbenchStore } from '../store.ts';
-import { DEFAULT_DEMO } from '../demos.ts';
+import { DEFAULT_DEMO, DEMO_CHOICES } from '../demos.ts';
 import { AUTOSAVE_DEBOUNCE_MS, SESSION_FORMAT, type SavedProblem, type SavedSession, type SessionStorage } from './autosave.ts';
-import { checkSavedPrior } from './slice.ts';
-import { sanitizeSavedSession, validateSavedProblem } from './restore.ts';
+import { damagedPrior, readStoredPrior, sanitizeSavedSession, validateSavedProblem } from './restore.ts';
 import { decodeShare } from './share.ts';
 
 export interface StartOptions {
@@ -32,7 +31,8 @@ export interface StartOptions {
 export const SHARED_NOTICE = 'Opened the prior from the shared link (a link takes precedence over the autosaved session).';
 
 interface Saved {
-  readonly session: SavedSession;
+  /** Null when nothing of the record could be used (the notes say so). */
+  readonly session: SavedSession | null;
   readonly problem: SavedProblem | null;
   /** What could not be restored, in plain words. */
   readonly notes: string[];
@@ -47,15 +47,19 @@ async function readSaved(storage: SessionStorage | null, lifecycle?: Lifecycle):
   } catch {
     return null;
   }
+  if (raw === undefined) return null;
   const r = sanitizeSavedSession(raw);
-  if (!r) return null;
+  if (!r) {
+    // Unusable as a whole (foreign format, unknown source or problem): say so rather than dropping it silently.
+    return { session: null, problem: null, notes: ['the saved session could not be read (it is damaged or from another version), so the demo is shown'] };
+  }
   const notes = [...r.notes];
   const { session } = r;
   if (session.source.kind !== 'user') return { session, problem: null, notes };
   try {
     const stored = await storage.get<unknown>('problem');
     const key = (stored as { key?: unknown } | undefined)?.key;
-    if (key !== session.source.problemKey) return null;
+    if (key !== session.source.problemKey) throw new Error('The saved problem is missing or belongs to another session.');
     const problem = validateSavedProblem((stored as { problem?: unknown }).problem);
     return { session, problem: { key: session.source.problemKey, problem }, notes };
   } catch (e) {
@@ -69,17 +73,46 @@ async function readSaved(storage: SessionStorage | null, lifecycle?: Lifecycle):
 async function restoreSaved(store: WorkbenchStore, saved: Saved, override?: SavedSession['prior']) {
   const s = store.getState();
   const { session } = saved;
-  const view = { prior: override ?? session.prior, seed: session.seed, tab: session.tab, selectedCell: session.selectedCell };
-  const ok =
-    session.source.kind === 'user' && saved.problem
-      ? await s.adoptProblem(saved.problem.problem, session.source.label, view, saved.problem.key)
-      : await s.openDemo(session.source.kind === 'demo' ? session.source.demoId : DEFAULT_DEMO, view);
+  if (!session) return false;
+  const userGrid = session.source.kind === 'user' && saved.problem ? saved.problem.problem.grid : null;
+  let prior: SavedSession['prior'] | undefined = override ?? session.prior;
+  if (prior && userGrid && !override) {
+    try {
+      readStoredPrior('saved prior', prior, userGrid);
+    } catch (e) {
+      saved.notes.push(damagedPrior(e));
+      prior = undefined;
+    }
+  }
+  const cellOk = (n: number) => session.selectedCell !== null && session.selectedCell < n;
+  const view = {
+    ...(prior ? { prior } : {}),
+    seed: session.seed,
+    tab: session.tab,
+    selectedCell: userGrid && cellOk(cellCountOf({ grid: userGrid })) ? session.selectedCell : null,
+  };
+  let ok: boolean;
+  if (session.source.kind === 'user' && saved.problem) ok = await s.adoptProblem(saved.problem.problem, session.source.label, view, saved.problem.key);
+  else {
+    const demo = session.source.kind === 'demo' ? session.source.demoId : DEFAULT_DEMO;
+    ok = await s.openDemo(demo, view);
+    if (!ok && view.prior && !override && store.getState().problemStatus === 'ready') {
+      // The saved prior does not fit the built-in problem: keep the problem, drop the prior.
+      saved.notes.push(damagedPrior(new Error(store.getState().loadError ?? 'it does not fit the problem')));
+      store.setState({ loadError: null });
+      const { prior: _dropped, ...rest } = view;
+      ok = await s.openDemo(demo, rest);
+    }
+    const p = store.getState().problem;
+    if (ok && p && cellOk(cellCountOf(p))) s.selectCell(session.selectedCell);
+  }
+  if (session.selectedCell !== null && store.getState().selectedCell === null) saved.notes.push('the saved selected cell is not on the grid and was cleared');
   const problem = store.getState().problem;
   if (ok && problem && session.extra && Array.isArray(session.extra.candidates)) {
     const all = session.extra.candidates as { prior: SavedSession['prior'] }[];
     const fits = all.filter((c) => {
       try {
-        checkSavedPrior(c.prior, problem.grid);
+        readStoredPrior('candidate prior', c.prior, problem.grid);
         return true;
       } catch {
         return false;
@@ -189,7 +222,9 @@ export async function startSession(store: WorkbenchStore, o: StartOptions): Prom
     kept = await keepPrevious(o.storage);
     let ok: boolean;
     if (shared.problem !== null) {
-      ok = await s.openDemo(shared.problem, { prior: shared.prior, tab: 'posterior' });
+      // openDemo falls back to the default demo for an unknown id: that would report a success that did not happen.
+      ok = DEMO_CHOICES.some((d) => d.id === shared.problem) && (await s.openDemo(shared.problem, { prior: shared.prior, tab: 'posterior' }));
+      if (!ok && !store.getState().loadError) shareError = `problem ${JSON.stringify(shared.problem.slice(0, 40))} is not one of the built-in problems`;
     } else {
       const saved = await readSaved(o.storage);
       ok = saved !== null && saved.problem !== null && (await restoreSaved(store, saved, shared.prior));

@@ -19,6 +19,7 @@ import type { Grid } from '../grid/grid.ts';
 import { cellCount } from '../grid/grid.ts';
 import { KERNEL_NAMES, type KernelName, type Term } from '../kernels/spec.ts';
 import type { MeanSpec, PriorSpec } from '../prior/spec.ts';
+import { MAX_TERMS } from '../prior/validate.ts';
 import { fieldError, FileFormatError, type FileWarning } from './errors.ts';
 import { formatJson, JsonReader, parseJsonText } from './json.ts';
 
@@ -122,6 +123,7 @@ export function readPriorObject(r: JsonReader, value: unknown, options: PriorRea
   checkKindVersion(r, obj, PRIOR_KIND, PRIOR_VERSION);
   const mean = readMean(r, r.required(obj, '', 'mean', 'an object with constant, values or trend'));
   const termsValue = r.array(r.required(obj, '', 'terms', 'an array of covariance terms'), 'terms', undefined, 'terms');
+  if (termsValue.length > MAX_TERMS) r.fail('terms', `at most ${MAX_TERMS} covariance terms`, termsValue.length);
   const terms = termsValue.map((t, k) => readTerm(r, t, k));
   const prior: { -readonly [K in keyof PriorSpec]: PriorSpec[K] } = { mean, terms };
   if (obj.nugget !== undefined) prior.nugget = r.number(obj.nugget, 'nugget', { ge: 0 });

@@ -15,6 +15,7 @@
  *   (√variance, √nugget, stdProfile) from 1e-50 to 1e50 (a prior mean of 1e308 or a profile of 1e300
  *   used to overflow into null results). Our choice, no source: doubles reach 1.8e308, and 1e50 leaves
  *   (4e6 · 1e50 · 1e50)² ≈ 1.6e213 for the data-space products.
+ * - At most {@link MAX_TERMS} covariance terms (see there).
  */
 import { InputError } from '../errors.ts';
 import { cellCount, gridDimension, validateGrid, type Grid } from '../grid/grid.ts';
@@ -42,6 +43,15 @@ function checkScale(field: string, v: number, what: string, positive: boolean, s
     );
   }
 }
+/**
+ * Largest number of covariance terms a prior may have: 16. A prior is a sum of a few nested
+ * structures (a short-range, a long-range, perhaps an anisotropic one and a nugget); practice rarely
+ * uses more than three or four (common practice, no source), so 16 leaves room for experiments while
+ * every cost that grows with the term count (covariance assembly, the term list on screen, the
+ * autosave and share link) stays bounded. Files, the command line, share links, the autosave and the
+ * "Add term" button all refuse more, with this number in the message.
+ */
+export const MAX_TERMS = 16;
 
 /** Throws InputError (field path + value) unless the prior is valid for this grid. */
 export function validatePrior(prior: PriorSpec, grid: Grid): void {
@@ -52,6 +62,7 @@ export function validatePrior(prior: PriorSpec, grid: Grid): void {
   validateMean(prior.mean, n, dim);
 
   if (!Array.isArray(prior.terms)) throw new InputError('terms', 'an array of covariance terms', prior.terms);
+  if (prior.terms.length > MAX_TERMS) throw new InputError('terms', `at most ${MAX_TERMS} covariance terms`, prior.terms.length);
   prior.terms.forEach((t, k) => validateTerm(t, `terms[${k}]`, dim));
 
   if (prior.nugget !== undefined && !(isFiniteNumber(prior.nugget) && prior.nugget >= 0)) {

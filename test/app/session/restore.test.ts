@@ -48,9 +48,13 @@ describe('sanitizeSavedSession: only known, well-formed keys', () => {
   it.each([
     ['another format', { format: 99 }],
     ['no source', { source: null }],
-    ['a prior that is not an object', { prior: 'x' }],
   ])('%s: not usable at all', (_n, over) => {
     expect(sanitizeSavedSession(record(over))).toBeNull();
+  });
+  it('a prior that is not an object keeps the problem and says the prior was damaged', () => {
+    const r = sanitizeSavedSession(record({ prior: 'x' }))!;
+    expect(r.session.prior).toBeUndefined();
+    expect(r.notes.join(' ')).toMatch(/^the saved prior was damaged \(saved prior: prior must be an object with mean and terms, got "x"\)/);
   });
   it('seeded mutations of a good record never throw', () => {
     let s = 12345;
