@@ -5,6 +5,7 @@
  */
 import { expect, test, type Page } from '@playwright/test';
 import { open, settle, state } from './helpers.ts';
+import { encodeShare } from '../src/app/session/share.ts';
 
 /** Writes a record into the page's IndexedDB store "session" (as a damaged database would hold it). */
 async function putRecord(page: Page, key: string, value: unknown) {
@@ -92,4 +93,22 @@ test('a link that cannot be applied changes nothing and says why', async ({ page
   await expect(page.getByTestId('activity')).toHaveText('Up to date', { timeout: 45_000 });
   await expect(page.getByText(/Nothing was changed/)).toBeVisible();
   expect((await settle(page)).prior.terms[0]!.length).toBe(5.75);
+});
+
+test('a share link with 20,000 terms is refused at once and the saved session is kept', async ({ page }) => {
+  await open(page);
+  await setLength(page, '4.5');
+  await expect(page.getByTestId('autosave-status')).toHaveText('Saved', { timeout: 30_000 });
+  const term = { kernel: 'exponential' as const, variance: 1, length: 2 };
+  const hash = await encodeShare({ problem: 'borehole-log', prior: { mean: { constant: 0 }, terms: Array.from({ length: 20_000 }, () => term) } });
+  // Before the cap such a link froze the page for about two minutes and then persisted in the autosave.
+  await page.goto(`/${hash}`);
+  await page.reload();
+  const t0 = Date.now();
+  await expect(page.getByTestId('load-error')).toContainText(/at most 16/, { timeout: 10_000 });
+  // Page load, the demo and the refusal together; the refusal itself takes about 0.15 s in Node.
+  expect(Date.now() - t0).toBeLessThan(5_000);
+  await expect(page.getByTestId('activity')).toHaveText('Up to date', { timeout: 45_000 });
+  expect((await settle(page)).prior.terms).toHaveLength(1);
+  expect((await state(page)).prior.terms[0]!.length).toBe(4.5);
 });
