@@ -12,6 +12,7 @@ import { download } from './download.ts';
 import { drawsCsv, drawsNpy, posteriorCsv, posteriorNpy, priorExport } from './exports.ts';
 import { renderReport, reportModel, type ReportImage } from './report.ts';
 import { encodeShare } from './share.ts';
+import { problemFingerprint } from '../../core/io/fingerprint.ts';
 
 export type Format = 'csv' | 'npy';
 
@@ -131,6 +132,11 @@ export async function openReport(store: WorkbenchStore, mode: 'open' | 'download
 export async function shareLink(store: WorkbenchStore): Promise<string | null> {
   const s = store.getState();
   if (!s.prior) return null;
-  const hash = await encodeShare({ problem: s.userProblem ? null : (s.problem?.demoId ?? s.demoId), prior: s.prior });
+  const user = s.userProblem;
+  const hash = await encodeShare({
+    problem: user ? null : (s.problem?.demoId ?? s.demoId),
+    prior: s.prior,
+    ...(user ? { madeFor: { title: user.problem.title ?? user.label, fingerprint: problemFingerprint(user.problem) } } : {}),
+  });
   return `${location.origin}${location.pathname}${hash}`;
 }

@@ -1,7 +1,8 @@
 /**
  * Share links: the prior (and the built-in problem id, when the problem is a demo) in the URL
  * hash as `#share=<base64url>` of the deflate-compressed JSON {"problem": id | null, "prior":
- * <prior file object>}. The prior goes through src/core/io/priorFile.ts, so opening a link
+ * <prior file object>, "madeFor"?: {"title", "fingerprint"}}; madeFor names the user's own problem
+ * the prior was made for, so that the link is applied only to that problem (./start.ts). The prior goes through src/core/io/priorFile.ts, so opening a link
  * validates it like a file (field-named errors) and restores it exactly.
  * Base64url: RFC 4648 §5 (the "-" and "_" alphabet, no padding). Deflate: RFC 1951 through the
  * platform's CompressionStream('deflate-raw').
@@ -15,6 +16,8 @@ const SHARE_FILE = 'shared link';
 export interface SharedSession {
   readonly problem: string | null;
   readonly prior: PriorSpec;
+  /** For a prior made on the user's own problem: that problem's title and fingerprint (src/core/io/fingerprint.ts). */
+  readonly madeFor?: { readonly title: string; readonly fingerprint: string };
 }
 
 export function toBase64Url(bytes: Uint8Array): string {
@@ -42,7 +45,7 @@ async function pipe(bytes: Uint8Array, stream: CompressionStream | Decompression
 
 /** The hash fragment (starting with #share=) for a prior and an optional demo id. */
 export async function encodeShare(s: SharedSession): Promise<string> {
-  const json = JSON.stringify({ problem: s.problem, prior: priorToJson(s.prior) });
+  const json = JSON.stringify({ problem: s.problem, prior: priorToJson(s.prior), ...(s.madeFor ? { madeFor: s.madeFor } : {}) });
   const packed = await pipe(new TextEncoder().encode(json), new CompressionStream('deflate-raw'));
   return SHARE_PREFIX + toBase64Url(packed);
 }
@@ -64,10 +67,15 @@ export async function decodeShare(hash: string): Promise<SharedSession | null> {
     throw new Error(`${SHARE_FILE}: the code does not hold JSON`);
   }
   if (typeof obj !== 'object' || obj === null || !('prior' in obj)) throw new Error(`${SHARE_FILE}: must hold an object with a prior`);
-  const o = obj as { problem?: unknown; prior: unknown };
+  const o = obj as { problem?: unknown; prior: unknown; madeFor?: unknown };
   if (o.problem !== null && o.problem !== undefined && typeof o.problem !== 'string') {
     throw new Error(`${SHARE_FILE}: problem must be a built-in problem id or null`);
   }
   const prior = parsePriorFile(SHARE_FILE, JSON.stringify(o.prior)).prior;
-  return { problem: typeof o.problem === 'string' ? o.problem : null, prior };
+  const m = o.madeFor as { title?: unknown; fingerprint?: unknown } | undefined;
+  const madeFor =
+    m && typeof m === 'object' && typeof m.title === 'string' && typeof m.fingerprint === 'string' && /^[0-9a-f]{16}$/.test(m.fingerprint)
+      ? { title: m.title.slice(0, 200), fingerprint: m.fingerprint }
+      : undefined;
+  return { problem: typeof o.problem === 'string' ? o.problem : null, prior, ...(madeFor ? { madeFor } : {}) };
 }

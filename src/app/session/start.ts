@@ -17,6 +17,8 @@ import { DEFAULT_DEMO, DEMO_CHOICES } from '../demos.ts';
 import { AUTOSAVE_DEBOUNCE_MS, SESSION_FORMAT, type SavedProblem, type SavedSession, type SessionStorage } from './autosave.ts';
 import { damagedPrior, readStoredPrior, sanitizeSavedSession, validateSavedProblem } from './restore.ts';
 import { decodeShare } from './share.ts';
+import { problemFingerprint } from '../../core/io/fingerprint.ts';
+import { checkSavedPrior } from './slice.ts';
 
 export interface StartOptions {
   readonly storage: SessionStorage | null;
@@ -198,6 +200,26 @@ export async function restorePreviousSession(storage: SessionStorage): Promise<b
   return true;
 }
 
+/**
+ * A shared prior waiting for its problem: when the user loads a problem with the link's
+ * fingerprint, the prior is applied (checked like a saved prior) and the page says so.
+ */
+function awaitProblem(store: WorkbenchStore, prior: SavedSession['prior'], madeFor: { title: string; fingerprint: string }): void {
+  const stop = store.subscribe((s, prev) => {
+    if (!s.userProblem || s.userProblem === prev.userProblem || !s.problem || s.problemStatus !== 'ready') return;
+    if (problemFingerprint(s.userProblem.problem) !== madeFor.fingerprint) return;
+    stop();
+    try {
+      checkSavedPrior(prior, s.problem.grid);
+    } catch (e) {
+      store.setState({ loadError: `The shared link's prior could not be applied: ${e instanceof Error ? e.message : String(e)}` });
+      return;
+    }
+    s.setPrior(prior);
+    store.setState({ notice: `Applied the prior from the shared link: this is the problem it was made for (${madeFor.title}).`, loadError: null });
+  });
+}
+
 /** Decide what to open, open it, then start autosaving. */
 export async function startSession(store: WorkbenchStore, o: StartOptions): Promise<void> {
   const s = store.getState();
@@ -227,8 +249,15 @@ export async function startSession(store: WorkbenchStore, o: StartOptions): Prom
       if (!ok && !store.getState().loadError) shareError = `problem ${JSON.stringify(shared.problem.slice(0, 40))} is not one of the built-in problems`;
     } else {
       const saved = await readSaved(o.storage);
-      ok = saved !== null && saved.problem !== null && (await restoreSaved(store, saved, shared.prior));
-      if (!ok) shareError = 'this link carries a prior made for a problem loaded from files, and that problem is not the one saved in this browser';
+      const madeFor = shared.madeFor;
+      const matches = saved?.problem && (!madeFor || problemFingerprint(saved.problem.problem) === madeFor.fingerprint);
+      ok = !!matches && (await restoreSaved(store, saved!, shared.prior));
+      if (!ok) {
+        shareError = madeFor
+          ? `this prior was made for the problem titled ${JSON.stringify(madeFor.title)} (fingerprint ${madeFor.fingerprint}), which is not open in this browser; load that problem and the prior will be applied`
+          : 'this link carries a prior made for a problem loaded from files, and that problem is not the one saved in this browser';
+        if (madeFor) awaitProblem(store, shared.prior, madeFor);
+      }
     }
     if (ok) store.setState({ notice: SHARED_NOTICE, previousSessionKept: kept });
     else {

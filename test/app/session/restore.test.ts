@@ -10,6 +10,7 @@ import { memoryStorage, SESSION_FORMAT } from '../../../src/app/session/autosave
 import { installAutosave, restorePreviousSession, type sessionRecord, startSession } from '../../../src/app/session/start.ts';
 import { sanitizeSavedSession, validateSavedProblem } from '../../../src/app/session/restore.ts';
 import { encodeShare } from '../../../src/app/session/share.ts';
+import { problemFingerprint } from '../../../src/core/io/fingerprint.ts';
 import { demoById } from '../../../src/core/problems/demos.ts';
 import { inProcessClient, tick } from './inProcessClient.ts';
 import { KERNEL_NAMES } from '../../../src/core/kernels/spec.ts';
@@ -173,5 +174,42 @@ describe('nothing lost when something replaces the session', () => {
     await tick(5);
     const saved = (await storage.get<ReturnType<typeof sessionRecord>>('session'))!;
     expect(saved.prior.terms[0]!.length).toBe(0.77);
+  });
+});
+
+describe('a link made on a loaded problem', () => {
+  const enc = (s: string) => new TextEncoder().encode(s);
+  const G = '%%MatrixMarket matrix coordinate real general\n3 5 5\n1 1 0.5\n1 2 0.5\n2 3 1\n3 4 0.5\n3 5 0.5\n';
+  const pieces = () => ({
+    grid: { shape: [5], spacing: [1], unit: 'm' },
+    operator: { name: 'G.mtx', bytes: enc(G) },
+    data: { name: 'd.csv', bytes: enc('value,sigma\n1.5,0.1\n2,0.1\n3,0.2\n') },
+    title: 'Five cells',
+  });
+  it('names the problem it was made for when that problem is not open, and applies itself once it is loaded', async () => {
+    // The sender: the problem loaded from files, a prior of their own, the link.
+    const sender = createWorkbenchStore(inProcessClient(), { demoId: 'borehole-log' });
+    await sender.getState().openDemo('borehole-log');
+    expect(await sender.getState().loadPieces(pieces())).toBe(true);
+    await settled(sender);
+    const sent = { mean: { constant: 0.5 }, terms: [{ kernel: 'gaussian' as const, variance: 0.3, length: 1.5 }], nugget: 0.01 };
+    const fingerprint = problemFingerprint(sender.getState().userProblem!.problem);
+    expect(fingerprint).toMatch(/^[0-9a-f]{16}$/);
+    const hash = await encodeShare({ problem: null, prior: sent, madeFor: { title: 'Five cells', fingerprint } });
+
+    // The receiver: a fresh browser on the demo. Nothing is changed; the message says what is missing.
+    const storage = memoryStorage();
+    const receiver = createWorkbenchStore(inProcessClient(), { demoId: 'borehole-log' });
+    await startSession(receiver, { storage, explicitDemo: null, hash });
+    await settled(receiver);
+    expect(receiver.getState().loadError).toMatch(/made for the problem titled "Five cells" \(fingerprint [0-9a-f]{16}\).*load that problem/);
+    expect(receiver.getState().prior).not.toEqual(sent);
+    // Loading another problem does not apply it; loading that problem does.
+    expect(await receiver.getState().loadPieces({ ...pieces(), data: { name: 'd.csv', bytes: enc('value,sigma\n1,0.1\n2,0.1\n3,0.2\n') } })).toBe(true);
+    expect(receiver.getState().prior).not.toEqual(sent);
+    expect(await receiver.getState().loadPieces(pieces())).toBe(true);
+    await tick(5);
+    expect(receiver.getState().prior).toEqual(sent);
+    expect(receiver.getState().notice).toMatch(/Applied the prior from the shared link/);
   });
 });
