@@ -4,7 +4,10 @@
  * saved session recoverable or untouched; an edit followed at once by a reload survives.
  */
 import { expect, test, type Page } from '@playwright/test';
-import { open, settle, state } from './helpers.ts';
+import { mkdtempSync } from 'node:fs';
+import { tmpdir } from 'node:os';
+import { join } from 'node:path';
+import { open, settle, state, writeSegmentProblem } from './helpers.ts';
 import { encodeShare } from '../src/app/session/share.ts';
 
 /** Writes a record into the page's IndexedDB store "session" (as a damaged database would hold it). */
@@ -111,4 +114,29 @@ test('a share link with 20,000 terms is refused at once and the saved session is
   await expect(page.getByTestId('activity')).toHaveText('Up to date', { timeout: 45_000 });
   expect((await settle(page)).prior.terms).toHaveLength(1);
   expect((await state(page)).prior.terms[0]!.length).toBe(4.5);
+});
+
+test('a share link made on a loaded problem, opened in a fresh browser, names what is missing and applies once it is loaded', async ({ page, browser }) => {
+  const dir = mkdtempSync(join(tmpdir(), 'priorscope-share-'));
+  const files = writeSegmentProblem(dir, { name: 'share', title: 'Invented pond section', nx: 12, ny: 8, m: 30, seg: 4, seed: 7, noise: 0.05, sigma: 0.05, truth: (i, j) => Math.sin(i / 3) + Math.cos(j / 2) });
+  await open(page);
+  await page.getByTestId('load-files-input').setInputFiles([files.json, files.mtx]);
+  await expect(page.getByTestId('demo-select')).toContainText('Invented pond section', { timeout: 30_000 });
+  await settle(page);
+  await setLength(page, '3.25');
+  const sent = await settle(page);
+  await page.getByTestId('share').click();
+  const link = await page.getByTestId('share-link').inputValue();
+
+  // A fresh browser context (no saved session): the demo opens, the message names the problem.
+  const fresh = await browser.newContext();
+  const other = await fresh.newPage();
+  await other.goto(link);
+  await expect(other.getByTestId('load-error')).toContainText(/made for the problem titled "Invented pond section" \(fingerprint [0-9a-f]{16}\)/, { timeout: 45_000 });
+  expect((await state(other)).prior).not.toEqual(sent.prior);
+  // Loading that problem applies the shared prior.
+  await other.getByTestId('load-files-input').setInputFiles([files.json, files.mtx]);
+  await expect(other.getByRole('status').filter({ hasText: 'Applied the prior from the shared link' })).toBeVisible({ timeout: 45_000 });
+  expect((await settle(other)).prior).toEqual(sent.prior);
+  await fresh.close();
 });
