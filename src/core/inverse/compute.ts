@@ -5,6 +5,7 @@
  * mean (`onPartial`) are decided here once. Every route and thread count gives the same numbers to
  * round-off (the thread split gives the same bits; test/core/parallel, test/cli/threads.test.ts).
  */
+import { InputError } from '../errors.ts';
 import { cellCount } from '../grid/grid.ts';
 import { MIN_SPLIT_FLOPS, parallelPosteriorStd, varianceFlops, type BlockPool } from '../parallel/blocks.ts';
 import { prepareStructuredPosteriorParallel, productsWorthSplitting } from '../parallel/products.ts';
@@ -85,7 +86,7 @@ export async function computePosterior(sp: StructuredProblem | Problem, prior: P
   const decision = choosePosteriorPath(problem, prior, options.path ?? 'auto', options.field);
   if (decision.path === 'dense') {
     const state = options.dense ? options.dense() : preparePosterior(problem, prior);
-    return { summary: posteriorSummary(state), decision, threadsUsed: 1 };
+    return { summary: checkedFinite(posteriorSummary(state)), decision, threadsUsed: 1 };
   }
   const pool = options.pool;
   const split = stdSplits(pool, problem.data.values.length, cellCount(problem.grid));
@@ -95,7 +96,40 @@ export async function computePosterior(sp: StructuredProblem | Problem, prior: P
   const std = split ? await parallelPosteriorStd(state, pool.get()) : structuredPosteriorStd(state);
   // A copy of the mean: a caller may transfer the result's buffers while it keeps `state` cached.
   const summary = structuredPosteriorSummary({ ...state, mean: state.mean.slice() }, std);
-  return { summary, decision, threadsUsed: split ? pool.threads : 1 };
+  return { summary: checkedFinite(summary), decision, threadsUsed: split ? pool.threads : 1 };
+}
+
+/**
+ * The last guard before a result leaves the core: every number of the summary must be finite.
+ * The input scale limits (../prior/validate.ts, the problem readers) keep results in range; if a
+ * combination of inputs still overflows, the caller gets a message instead of NaN, ±∞ or JSON nulls.
+ */
+export function checkedFinite<T extends PosteriorSummary>(summary: T): T {
+  const arrays: [string, ArrayLike<number> | undefined][] = [
+    ['mean', summary.mean],
+    ['std', summary.std],
+    ['predicted', summary.predicted],
+    ['residuals', summary.residuals],
+  ];
+  for (const [name, a] of arrays) {
+    if (!a) continue;
+    for (let i = 0; i < a.length; i++) {
+      if (!Number.isFinite(a[i]!)) throw nonFinite(`${name}[${i}]`, a[i]!);
+    }
+  }
+  for (const name of ['chi2', 'logEvidence', 'resolutionTrace'] as const) {
+    const v = summary[name];
+    if (typeof v === 'number' && !Number.isFinite(v)) throw nonFinite(name, v);
+  }
+  return summary;
+}
+
+function nonFinite(where: string, v: number): InputError {
+  return new InputError(
+    'posterior',
+    `finite numbers; ${where} came out ${v} because the scales of the inputs cannot be combined in double precision (check the units of the prior variance and mean, the data and their errors, and the operator)`,
+    v,
+  );
 }
 
 /**
@@ -105,7 +139,7 @@ export async function computePosterior(sp: StructuredProblem | Problem, prior: P
 export function computePosteriorSerial(sp: StructuredProblem | Problem, prior: PriorSpec, path: PathRequest = 'auto', field?: string): ComputedPosterior {
   const problem = 'cacheBytes' in sp ? sp.problem : sp;
   const decision = choosePosteriorPath(problem, prior, path, field);
-  if (decision.path === 'dense') return { summary: posteriorSummary(preparePosterior(problem, prior)), decision, threadsUsed: 1 };
+  if (decision.path === 'dense') return { summary: checkedFinite(posteriorSummary(preparePosterior(problem, prior))), decision, threadsUsed: 1 };
   const state = prepareStructuredPosterior(sp, prior);
-  return { summary: structuredPosteriorSummary(state, structuredPosteriorStd(state)), decision, threadsUsed: 1 };
+  return { summary: checkedFinite(structuredPosteriorSummary(state, structuredPosteriorStd(state))), decision, threadsUsed: 1 };
 }
