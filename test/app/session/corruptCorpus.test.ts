@@ -11,16 +11,10 @@ import { encodeShare } from '../../../src/app/session/share.ts';
 import { MAX_TERMS, validatePrior } from '../../../src/core/prior/validate.ts';
 import { parsePriorFile } from '../../../src/core/io/priorFile.ts';
 import { Random } from '../../../src/core/sampling/random.ts';
+import { enc, fiveCells } from './fixtures.ts';
 import { inProcessClient, tick } from './inProcessClient.ts';
 
-const enc = (s: string) => new TextEncoder().encode(s);
-const G = '%%MatrixMarket matrix coordinate real general\n3 5 5\n1 1 0.5\n1 2 0.5\n2 3 1\n3 4 0.5\n3 5 0.5\n';
-const pieces = () => ({
-  grid: { shape: [5], spacing: [1], unit: 'm' },
-  operator: { name: 'G.mtx', bytes: enc(G) },
-  data: { name: 'd.csv', bytes: enc('value,sigma\n1,0.1\n2,0.1\n3,0.2\n') },
-  title: 'Five cells',
-});
+const pieces = () => fiveCells();
 
 /** A store whose autosave holds the user's 5-cell problem with an edited prior. */
 async function savedUserSession() {

@@ -12,6 +12,7 @@ import { sanitizeSavedSession, validateSavedProblem } from '../../../src/app/ses
 import { encodeShare } from '../../../src/app/session/share.ts';
 import { problemFingerprint } from '../../../src/core/io/fingerprint.ts';
 import { demoById } from '../../../src/core/problems/demos.ts';
+import { enc, fiveCells } from './fixtures.ts';
 import { inProcessClient, tick } from './inProcessClient.ts';
 import { KERNEL_NAMES } from '../../../src/core/kernels/spec.ts';
 
@@ -178,14 +179,7 @@ describe('nothing lost when something replaces the session', () => {
 });
 
 describe('a link made on a loaded problem', () => {
-  const enc = (s: string) => new TextEncoder().encode(s);
-  const G = '%%MatrixMarket matrix coordinate real general\n3 5 5\n1 1 0.5\n1 2 0.5\n2 3 1\n3 4 0.5\n3 5 0.5\n';
-  const pieces = () => ({
-    grid: { shape: [5], spacing: [1], unit: 'm' },
-    operator: { name: 'G.mtx', bytes: enc(G) },
-    data: { name: 'd.csv', bytes: enc('value,sigma\n1.5,0.1\n2,0.1\n3,0.2\n') },
-    title: 'Five cells',
-  });
+  const pieces = () => fiveCells('value,sigma\n1.5,0.1\n2,0.1\n3,0.2\n');
   it('names the problem it was made for when that problem is not open, and applies itself once it is loaded', async () => {
     // The sender: the problem loaded from files, a prior of their own, the link.
     const sender = createWorkbenchStore(inProcessClient(), { demoId: 'borehole-log' });

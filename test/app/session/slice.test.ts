@@ -8,16 +8,10 @@ import { createWorkbenchStore, type WorkbenchState, type WorkbenchStore } from '
 import { memoryStorage } from '../../../src/app/session/autosave.ts';
 import { installAutosave, sessionRecord, SHARED_NOTICE, startSession } from '../../../src/app/session/start.ts';
 import { encodeShare } from '../../../src/app/session/share.ts';
+import { enc, fiveCells } from './fixtures.ts';
 import { inProcessClient, tick } from './inProcessClient.ts';
 
-const enc = (s: string) => new TextEncoder().encode(s);
-const G = '%%MatrixMarket matrix coordinate real general\n3 5 5\n1 1 0.5\n1 2 0.5\n2 3 1\n3 4 0.5\n3 5 0.5\n';
-const good = () => ({
-  grid: { shape: [5], spacing: [1], unit: 'm' },
-  operator: { name: 'G.mtx', bytes: enc(G) },
-  data: { name: 'd.csv', bytes: enc('value,sigma\n1,0.1\n2,0.1\n3,0.2\n') },
-  title: 'Five cells',
-});
+const good = () => fiveCells();
 
 /** Plain parts of the state that a failed load must leave exactly as they were. */
 function snapshot(s: WorkbenchState) {
