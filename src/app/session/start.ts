@@ -17,6 +17,7 @@ import { DEFAULT_DEMO, DEMO_CHOICES } from '../demos.ts';
 import { AUTOSAVE_DEBOUNCE_MS, SESSION_FORMAT, type SavedProblem, type SavedSession, type SessionStorage } from './autosave.ts';
 import { damagedPrior, readStoredPrior, sanitizeSavedSession, validateSavedProblem } from './restore.ts';
 import { decodeShare } from './share.ts';
+import { cellCount } from '../../core/grid/grid.ts';
 import { problemFingerprint } from '../../core/io/fingerprint.ts';
 import { checkSavedPrior } from './slice.ts';
 
@@ -91,7 +92,7 @@ async function restoreSaved(store: WorkbenchStore, saved: Saved, override?: Save
     ...(prior ? { prior } : {}),
     seed: session.seed,
     tab: session.tab,
-    selectedCell: userGrid && cellOk(cellCountOf({ grid: userGrid })) ? session.selectedCell : null,
+    selectedCell: userGrid && cellOk(cellCount(userGrid)) ? session.selectedCell : null,
   };
   let ok: boolean;
   if (session.source.kind === 'user' && saved.problem) ok = await s.adoptProblem(saved.problem.problem, session.source.label, view, saved.problem.key);
@@ -106,7 +107,7 @@ async function restoreSaved(store: WorkbenchStore, saved: Saved, override?: Save
       ok = await s.openDemo(demo, rest);
     }
     const p = store.getState().problem;
-    if (ok && p && cellOk(cellCountOf(p))) s.selectCell(session.selectedCell);
+    if (ok && p && cellOk(cellCount(p.grid))) s.selectCell(session.selectedCell);
   }
   if (session.selectedCell !== null && store.getState().selectedCell === null) saved.notes.push('the saved selected cell is not on the grid and was cleared');
   const problem = store.getState().problem;
@@ -123,13 +124,12 @@ async function restoreSaved(store: WorkbenchStore, saved: Saved, override?: Save
     if (fits.length !== all.length) saved.notes.push('saved candidate priors that do not fit this problem were dropped');
     store.setState({ candidates: fits } as unknown as Partial<WorkbenchState>);
   }
-  if (problem && store.getState().selectedCell !== null && store.getState().selectedCell! >= cellCountOf(problem)) {
+  if (problem && store.getState().selectedCell !== null && store.getState().selectedCell! >= cellCount(problem.grid)) {
     store.setState({ selectedCell: null });
   }
   return ok;
 }
 
-const cellCountOf = (p: { grid: { shape: readonly number[] } }) => p.grid.shape.reduce((a, b) => a * b, 1);
 
 /** One line for the notices of a restore (null when nothing was dropped). */
 export function restoreNotice(notes: readonly string[]): string | null {
