@@ -53,7 +53,7 @@ function findChromium() {
 }
 
 function pythonHasScipy(python) {
-  return spawnSync(python, ['-c', 'import numpy, scipy.special, scipy.linalg, scipy.stats'], { stdio: 'ignore' }).status === 0;
+  return spawnSync(python, ['-c', 'import numpy, scipy.special, scipy.linalg, scipy.stats, sklearn.gaussian_process'], { stdio: 'ignore' }).status === 0;
 }
 
 // Chromium for the Playwright suite.
@@ -65,12 +65,16 @@ env.CHROMIUM_PATH = chromium;
 // Debian's python3 with numpy and scipy for the outside-reference checks.
 let python = env.PRIORSCOPE_PYTHON || (existsSync('/usr/bin/python3') ? '/usr/bin/python3' : commandPath('python3'));
 if (!python || !pythonHasScipy(python)) {
-  if (aptInstall(['python3', 'python3-numpy', 'python3-scipy'])) python = '/usr/bin/python3';
+  if (aptInstall(['python3', 'python3-numpy', 'python3-scipy', 'python3-sklearn'])) python = '/usr/bin/python3';
 }
 if (!python || !pythonHasScipy(python)) {
-  fail('python3 with numpy and scipy not found: install Debian\'s python3-numpy python3-scipy (or set PRIORSCOPE_PYTHON)');
+  fail('python3 with numpy, scipy and sklearn not found: install Debian\'s python3-numpy python3-scipy python3-sklearn (or set PRIORSCOPE_PYTHON)');
 }
 env.PRIORSCOPE_PYTHON = python;
+
+// GNU parallel for the sharded-calibration test (test/cli/shard.test.ts runs shards through it).
+if (!commandPath('parallel')) aptInstall(['parallel']);
+if (!commandPath('parallel')) fail("GNU parallel not found: install Debian's parallel (apt-get install -y parallel)");
 console.error(`priorscope test: Chromium ${chromium}, Python ${python}`);
 
 const steps = [

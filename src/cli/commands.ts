@@ -60,35 +60,35 @@ export interface Command {
   run(args: ParsedArgs, io: Io): number | Promise<number>;
 }
 
-const OUT: OptionSpec = { name: 'out', value: 'FILE', help: 'write the result to FILE instead of stdout' };
-const PROBLEM: OptionSpec = { name: 'problem', value: 'P.json', help: 'problem file (kind "priorscope.problem", version 1)', required: true };
-const READ_FROM: OptionSpec = {
+export const OUT: OptionSpec = { name: 'out', value: 'FILE', help: 'write the result to FILE instead of stdout' };
+export const PROBLEM: OptionSpec = { name: 'problem', value: 'P.json', help: 'problem file (kind "priorscope.problem", version 1)', required: true };
+export const READ_FROM: OptionSpec = {
   name: 'read-from',
   value: 'FOLDERS',
   help: "also read files named in the problem file (operator.file) from these folders (comma-separated); by default only from the problem file's folder",
 };
-const PRIOR: OptionSpec = { name: 'prior', value: 'Q.json', help: 'prior file (kind "priorscope.prior", version 1)', required: true };
+export const PRIOR: OptionSpec = { name: 'prior', value: 'Q.json', help: 'prior file (kind "priorscope.prior", version 1)', required: true };
 
 /** JSON text of a result (see formatJson: NaN and ±Infinity become null). */
 export function toJson(value: unknown): string {
   return formatJson(value);
 }
 
-function emit(io: Io, args: ParsedArgs, content: string | Uint8Array): void {
+export function emit(io: Io, args: ParsedArgs, content: string | Uint8Array): void {
   const out = optionString(args, 'out');
   if (out !== undefined) writeOutputFile(out, content);
   else io.stdout(content);
 }
 
-function reportWarnings(io: Io, warnings: readonly FileWarning[]): void {
+export function reportWarnings(io: Io, warnings: readonly FileWarning[]): void {
   for (const w of warnings) io.stderr(`warning: ${w.message}`);
 }
 
-function progress(io: Io, line: string): void {
+export function progress(io: Io, line: string): void {
   if (io.stderrIsTTY) io.stderr(`priorscope: ${line}`);
 }
 
-function loadBoth(args: ParsedArgs, io: Io) {
+export function loadBoth(args: ParsedArgs, io: Io) {
   const problemPath = optionString(args, 'problem')!;
   const priorPath = optionString(args, 'prior')!;
   const readFrom = optionString(args, 'read-from');
@@ -99,7 +99,7 @@ function loadBoth(args: ParsedArgs, io: Io) {
   return { problem: p.problem, prior: q.prior };
 }
 
-function noPositionals(args: ParsedArgs): void {
+export function noPositionals(args: ParsedArgs): void {
   if (args.positionals.length > 0) throw new UsageError(`unexpected argument ${JSON.stringify(args.positionals[0])}`);
 }
 

@@ -11,7 +11,11 @@
 import { InputError, NotPositiveDefiniteError } from '../core/errors.ts';
 import { FileFormatError } from '../core/io/errors.ts';
 import { parseArgs, UsageError } from './args.ts';
-import { COMMANDS, type Command, type Io } from './commands.ts';
+import { COMMANDS as CORE_COMMANDS, type Command, type Io } from './commands.ts';
+import { STUDY_COMMANDS } from './study/index.ts';
+
+/** Every command, in the order of the help. */
+const COMMANDS: readonly Command[] = [...CORE_COMMANDS, ...STUDY_COMMANDS];
 
 function pad(s: string, n: number): string {
   return s.length >= n ? s + '  ' : s.padEnd(n);

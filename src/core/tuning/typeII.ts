@@ -39,6 +39,9 @@
  * workbench's own diagnosis (../prior/structuredDiagnostics.ts diagnosePriorAuto); without a free
  * nugget nothing bounds the search, and a result that fails the check says so in `conditioning` and
  * `note`.
+ * Box bounds given by the caller (`bounds`, natural units) are handled the same way: trial points are
+ * clamped into the box, and a coordinate resting on a bound with the evidence pushing past it is
+ * held (its gradient component and its row of the curvature dropped; it has no standard error).
  *
  * Uncertainty: the observed information J = −∇² log p(d) at the optimum, by central differences of
  * the gradient (step 1e-3, symmetrised), and standard errors √diag(J⁻¹) of each coordinate
@@ -278,6 +281,12 @@ export interface MaximiseOptions extends HyperParameterOptions, TuningControl, R
   readonly maxIterations?: number;
   /** Stop when every |∂ log p/∂θ_j| is below this (default 1e-6). */
   readonly gradientTolerance?: number;
+  /**
+   * Box bounds [lo, hi] in natural units (degrees for an angle), keyed by HyperParameter.name; a
+   * bound on a held parameter is an InputError. Enforced like the nugget floor (projected BFGS with
+   * active bounds); the nugget's effective lower bound is the larger of its bound and the floor.
+   */
+  readonly bounds?: Readonly<Record<string, readonly [number, number]>>;
 }
 
 export interface FittedParameter {
@@ -289,10 +298,12 @@ export interface FittedParameter {
   readonly start: number;
   /** Optimum in the optimisation coordinate (log value, or degrees). */
   readonly coordinate: number;
-  /** Curvature-based standard error of the coordinate (NaN when the curvature is not negative definite). */
+  /** Curvature-based standard error of the coordinate (NaN when the curvature is not negative definite, or the parameter ends on a bound). */
   readonly standardError: number;
   /** coordinate ± 1.96 standard errors, mapped back to natural units. */
   readonly interval95: readonly [number, number];
+  /** 'low' / 'high' when the optimum rests on that bound (given in `bounds`, or the nugget floor) with the evidence pushing past it. */
+  readonly atBound: 'low' | 'high' | null;
 }
 
 /** The workbench's positive-definiteness and conditioning check of the optimum. */
@@ -378,10 +389,17 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
   // The nugget coordinate and its floor (log), when the nugget is free.
   const nIdx = params.findIndex((h) => h.field === 'nugget');
   const logFloor = (th: Float64Array): number => Math.log(conditioningNuggetFloor(problem.grid, applyHyperParameters(start, params, th)));
-  /** θ with the nugget lifted onto its floor (plus a relative 1e-9) where it lies below. */
+  const { lower, upper } = coordinateBounds(params, options.bounds);
+  /** Lower bound of coordinate k at θ: the given bound, for the nugget at least its floor. */
+  const lowerAt = (th: Float64Array, k: number): number => (k === nIdx ? Math.max(lower[k]!, logFloor(th) + 1e-9) : lower[k]!);
+  /** θ clamped into the bounds, the nugget lifted onto its floor (plus a relative 1e-9) where it lies below. */
   const project = (th: Float64Array): Float64Array => {
+    for (let k = 0; k < p; k++) {
+      if (th[k]! > upper[k]!) th[k] = upper[k]!;
+      if (k !== nIdx && th[k]! < lower[k]!) th[k] = lower[k]!;
+    }
     if (nIdx < 0) return th;
-    const f = logFloor(th) + 1e-9;
+    const f = lowerAt(th, nIdx);
     if (th[nIdx]! < f) th[nIdx] = f;
     return th;
   };
@@ -390,8 +408,14 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
   if (!Number.isFinite(startEval.logEvidence)) throw new InputError('start prior', 'a prior whose data-space covariance G Cm Gᵀ + Cd factors', 'one that does not');
   const startLogEvidence = startEval.logEvidence;
   let theta = project(Float64Array.from(startTheta0));
-  let cur = theta[nIdx] === startTheta0[nIdx] ? startEval : evaluate(theta);
+  let cur = theta.every((v, k) => v === startTheta0[k]) ? startEval : evaluate(theta);
   if (!Number.isFinite(cur.logEvidence)) throw new InputError('start prior', 'a prior whose data-space covariance G Cm Gᵀ + Cd factors', 'one that does not');
+  /**
+   * Per coordinate, the bound it rests on with the evidence pushing past it (∇φ = −∇ log p points
+   * outwards): 'low' at a lower bound with ∂φ/∂θ_k > 0, 'high' at an upper bound with ∂φ/∂θ_k < 0.
+   */
+  const activeBounds = (th: Float64Array, g: Float64Array): ('low' | 'high' | null)[] =>
+    params.map((_, k) => (th[k]! <= lowerAt(th, k) + 1e-6 && g[k]! > 0 ? 'low' : th[k]! >= upper[k]! - 1e-6 && g[k]! < 0 ? 'high' : null));
   /** At the floor, with the evidence asking for a smaller nugget (∂φ/∂θ_n > 0). */
   const atFloor = (th: Float64Array, g: Float64Array): boolean => nIdx >= 0 && th[nIdx]! <= logFloor(th) + 1e-6 && g[nIdx]! > 0;
   // Inverse Hessian approximation of φ = −log p (row-major p × p).
@@ -407,15 +431,17 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
       break;
     }
     const g = cur.gradient.map((v) => -v); // ∇φ
-    // Projected gradient: on an active floor the nugget component is dropped.
-    const active = atFloor(theta, g);
-    const gp = active ? g.map((v, k) => (k === nIdx ? 0 : v)) : g;
+    // Projected gradient: on an active bound (the nugget floor among them) the component is dropped.
+    const active = activeBounds(theta, g);
+    const gp = g.map((v, k) => (active[k] === null ? v : 0));
     if (maxAbs(gp) < gtol) {
       converged = true;
       break;
     }
     let dir = matVec(H, gp).map((v) => -v);
-    if (active) dir[nIdx] = 0;
+    active.forEach((a, k) => {
+      if (a !== null) dir[k] = 0;
+    });
     let slope = dotp(gp, dir);
     if (!(slope < 0)) {
       H = eye(p);
@@ -463,24 +489,26 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
     }
   }
   function projectedGradient(grad: Float64Array): Float64Array {
-    const g = grad.map((v) => -v);
-    return atFloor(theta, g) ? grad.map((v, k) => (k === nIdx ? 0 : v)) : grad;
+    const active = activeBounds(theta, grad.map((v) => -v));
+    return grad.map((v, k) => (active[k] === null ? v : 0));
   }
   if (!converged && !cancelled && maxAbs(projectedGradient(cur.gradient)) < gtol) converged = true;
   const onFloor = nIdx >= 0 && atFloor(theta, cur.gradient.map((v) => -v));
+  const finalActive = activeBounds(theta, cur.gradient.map((v) => -v));
+  const held = (k: number): boolean => finalActive[k] !== null;
   // Observed information by central differences of the gradient.
   const info = new Float64Array(p * p);
   if (!cancelled) {
     for (let j = 0; j < p; j++) {
-      // On the floor the nugget is not free: its row and column are left out of the curvature.
-      if (onFloor && j === nIdx) continue;
+      // On an active bound (the nugget on its floor) a coordinate is not free: its row and column are left out of the curvature.
+      if (held(j)) continue;
       const tp = Float64Array.from(theta);
       const tm = Float64Array.from(theta);
       tp[j] += HESSIAN_STEP;
       tm[j] -= HESSIAN_STEP;
       const gp = evaluate(tp).gradient;
       const gm = evaluate(tm).gradient;
-      for (let i = 0; i < p; i++) if (!(onFloor && i === nIdx)) info[i * p + j] = -(gp[i]! - gm[i]!) / (2 * HESSIAN_STEP);
+      for (let i = 0; i < p; i++) if (!held(i)) info[i * p + j] = -(gp[i]! - gm[i]!) / (2 * HESSIAN_STEP);
     }
     for (let i = 0; i < p; i++) {
       for (let j = 0; j < i; j++) {
@@ -493,8 +521,8 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
   options.onProgress?.(1);
   const cov = new Float64Array(p * p).fill(Number.NaN);
   let note: string | undefined;
-  // The free coordinates of the curvature (all, or all but a nugget on its floor).
-  const free = params.map((_, k) => k).filter((k) => !(onFloor && k === nIdx));
+  // The free coordinates of the curvature (all but those resting on a bound).
+  const free = params.map((_, k) => k).filter((k) => !held(k));
   const q = free.length;
   const sub = new Float64Array(q * q);
   free.forEach((a, i) => free.forEach((b, j) => (sub[i * q + j] = info[a * p + b]!)));
@@ -539,6 +567,7 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
       coordinate: c,
       standardError: se,
       interval95: [back(h, c - 1.96 * se), back(h, c + 1.96 * se)],
+      atBound: finalActive[k]!,
     };
   });
   return {
@@ -557,6 +586,28 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
     conditioning,
     ...(note !== undefined ? { note } : {}),
   };
+}
+
+/**
+ * Bounds of every coordinate (logs where the scale is log) from `bounds` in natural units; ±∞ where
+ * none is given. Names must be free parameters; lo ≤ hi, and > 0 on a log scale.
+ */
+function coordinateBounds(params: readonly HyperParameter[], bounds: MaximiseOptions['bounds']): { lower: Float64Array; upper: Float64Array } {
+  const lower = new Float64Array(params.length).fill(Number.NEGATIVE_INFINITY);
+  const upper = new Float64Array(params.length).fill(Number.POSITIVE_INFINITY);
+  for (const [name, range] of Object.entries(bounds ?? {})) {
+    const k = params.findIndex((h) => h.name === name);
+    if (k < 0) throw new InputError(`bounds.${name}`, `the name of a free parameter (${params.map((h) => h.name).join(', ')})`, name);
+    const h = params[k]!;
+    const [lo, hi] = range;
+    const positive = h.scale === 'log';
+    if (!(lo <= hi) || Number.isNaN(lo) || Number.isNaN(hi) || (positive && !(lo > 0))) {
+      throw new InputError(`bounds.${name}`, `[lo, hi] with lo ≤ hi${positive ? ' and lo > 0' : ''}`, range);
+    }
+    lower[k] = positive ? Math.log(lo) : lo;
+    upper[k] = positive ? Math.log(hi) : hi;
+  }
+  return { lower, upper };
 }
 
 /** "1e10" for messages. */
