@@ -5,7 +5,7 @@ import { DEMO_CHOICES } from './demos.ts';
 import { useWb } from './context.ts';
 import { PriorPanel } from './PriorPanel.tsx';
 import { StatusPanel } from './StatusPanel.tsx';
-import { FitScreen, PosteriorScreen, PriorScreen, ProblemScreen, RealisationsScreen } from './screens.tsx';
+import { FitScreen, PosteriorScreen, PriorScreen, ProblemScreen, RealisationsScreen } from './screens/index.ts';
 import { TABS, type TabId } from './store.ts';
 import { SelectScreen } from './select/SelectScreen.tsx';
 import { SessionBar } from './session/SessionBar.tsx';
