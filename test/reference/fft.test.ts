@@ -41,7 +41,7 @@ describe('Fft2 vs numpy.fft.fft2 / ifft2 (Debian python3-numpy)', () => {
 });
 
 /**
- * The WebAssembly SIMD kernel (src/core/wasm/fftModule.ts) against numpy.fft.fft / ifft. Allowance
+ * The WebAssembly SIMD kernel (src/core/wasm/wat/fft.wat) against numpy.fft.fft / ifft. Allowance
  * for ‖ours − numpy‖₂ / ‖numpy‖₂: twice the bound of Higham 2002, Accuracy and Stability of
  * Numerical Algorithms, Thm 24.2 (memory) — log2(n) η / (1 − log2(n) η), η = μ + γ₄(√2 + μ),
  * μ = 4u our twiddle error (a judgement: one rounding in the argument and one in cos/sin) — once

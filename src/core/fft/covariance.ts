@@ -78,7 +78,7 @@ export function isStationaryOnGrid(grid: Grid, prior: PriorSpec): boolean {
  * Workspace is per instance; not for concurrent use.
  *
  * With WebAssembly SIMD (and px, py ≥ 4) the same product runs in the kernel of
- * ../wasm/fftModule.ts (Stockham radix-4, natural order): x-passes on the rows that hold data
+ * ../wasm/wat/fft.wat (Stockham radix-4, natural order): x-passes on the rows that hold data
  * (the zero half px/2 … px − 1 of each padded row is not read), F_y over all columns at once
  * (rows ≥ py/2 not read), × λ/P, then inverse-direction (unnormalised) transforms along y and
  * along x on the ny rows that are wanted (no index reversal: F⁻¹ = (1/P) R F read backwards). Full spectra are saved in Fft2.rowFilter's row order ({@link Fft2.spectrumRowOrder})

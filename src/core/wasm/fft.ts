@@ -1,5 +1,5 @@
 /**
- * The WebAssembly SIMD complex FFT (./fftModule.ts) as a per-realm engine: its memory, twiddle
+ * The WebAssembly SIMD complex FFT (./wat/fft.wat) as a per-realm engine: its memory, twiddle
  * tables kept resident per (size, direction), one resident real array (e.g. eigenvalues), and a
  * heap for per-call work regions. Plus {@link wasmFftBatch}, a checked convenience on JS arrays
  * (numpy.fft.fft / ifft conventions: forward unnormalised, inverse scaled by 1/n).
@@ -10,7 +10,8 @@
  * Absent WebAssembly SIMD (or compilation refused), {@link fftEngine} returns null and callers keep
  * their JavaScript transforms.
  */
-import { FFT_EXPORT, fftModuleBytes, SCALE_EXPORT, stageCount, twiddleTable } from './fftModule.ts';
+import { FFT_EXPORT, SCALE_EXPORT, stageCount, twiddleTable } from './fftModule.ts';
+import { FFT_WASM } from './modules.ts';
 import { ensureBytes, MEMORY_IMPORT, simdSupported } from './runtime.ts';
 
 type FftFn = (src: number, dst: number, tmp: number, tw: number, n: number, s: number, count: number, bstride: number, flags: number) => void;
@@ -125,7 +126,7 @@ export function fftEngine(): FftEngine | null {
   if (engine === undefined) {
     try {
       const memory = new WebAssembly.Memory({ initial: 1 });
-      const instance = new WebAssembly.Instance(new WebAssembly.Module(fftModuleBytes()), {
+      const instance = new WebAssembly.Instance(new WebAssembly.Module(FFT_WASM), {
         [MEMORY_IMPORT.module]: { [MEMORY_IMPORT.name]: memory },
       });
       engine = new FftEngine(memory, instance.exports[FFT_EXPORT] as FftFn, instance.exports[SCALE_EXPORT] as ScaleFn);

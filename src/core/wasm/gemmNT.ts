@@ -1,5 +1,5 @@
 /**
- * C += α A Bᵀ with the WebAssembly SIMD kernel of ./gemmModule.ts: the same arguments, contract
+ * C += α A Bᵀ with the WebAssembly SIMD kernel of ./wat/gemm.wat: the same arguments, contract
  * (including `lower` / `diag`) and results, bit for bit, as gemmNT in src/core/linalg/kernels.ts,
  * which it falls back to when WebAssembly SIMD is missing. Sums are cut at the same depth KC as
  * gemmNT (the cut decides the rounding; the column chunking does not).
@@ -9,7 +9,7 @@
  * Everything is copied per call; nothing stays resident.
  */
 import { gemmNT, KC, NC } from '../linalg/kernels.ts';
-import { GEMM_EXPORT, gemmModuleBytes } from './gemmModule.ts';
+import { GEMM_WASM } from './modules.ts';
 import { ensureBytes, instantiateKernel, simdSupported, type KernelInstance } from './runtime.ts';
 
 type GemmFn = (ap: number, bp: number, s: number, tcount: number, groups: number, kk: number, tiles: number) => void;
@@ -18,7 +18,7 @@ let kernel: KernelInstance<GemmFn> | null | undefined;
 
 function getKernel(): KernelInstance<GemmFn> | null {
   if (!simdSupported()) return null;
-  if (kernel === undefined) kernel = instantiateKernel<GemmFn>(gemmModuleBytes(), GEMM_EXPORT);
+  if (kernel === undefined) kernel = instantiateKernel<GemmFn>(GEMM_WASM, 'gemmPass');
   return kernel;
 }
 

@@ -1,9 +1,9 @@
 /**
- * Shared plumbing of the WebAssembly kernels: the SIMD probe, compiling a generated module against
- * its own WebAssembly.Memory, and growing that memory. One instance per kernel per JS realm (each
- * worker has its own), created on first use.
+ * Shared plumbing of the WebAssembly kernels: the SIMD probe, compiling a kernel module (its bytes
+ * from ./modules.ts, assembled from ./wat/*.wat) against its own WebAssembly.Memory, and growing that
+ * memory. One instance per kernel per JS realm (each worker has its own), created on first use.
  */
-import { encodeModule, FunctionBuilder } from './emitter.ts';
+import { SIMD_PROBE_WASM } from './modules.ts';
 
 /** Every kernel module imports its memory as `env.memory`. */
 export const MEMORY_IMPORT = { module: 'env', name: 'memory' } as const;
@@ -19,19 +19,12 @@ export interface KernelInstance<F> {
 let forcedOff = false;
 let simd: boolean | undefined;
 
-/** Bytes of a module that uses one SIMD instruction (f64x2.splat); validating it tests for SIMD. */
-export function simdProbeBytes(): Uint8Array<ArrayBuffer> {
-  const f = new FunctionBuilder([]);
-  f.f64Const(1).f64x2Splat().drop();
-  return encodeModule({ functions: [{ name: 'probe', fn: f }] });
-}
-
 /** Whether this realm has WebAssembly with 128-bit SIMD. */
 export function simdSupported(): boolean {
   if (forcedOff) return false;
   if (simd === undefined) {
     try {
-      simd = typeof WebAssembly === 'object' && WebAssembly.validate(simdProbeBytes());
+      simd = typeof WebAssembly === 'object' && WebAssembly.validate(SIMD_PROBE_WASM);
     } catch {
       simd = false;
     }

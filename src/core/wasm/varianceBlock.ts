@@ -1,5 +1,5 @@
 /**
- * Posterior variances of a column block with the WebAssembly SIMD kernel of ./varianceModule.ts:
+ * Posterior variances of a column block with the WebAssembly SIMD kernel of ./wat/variance.wat:
  * var_j = Cm_jj − Σ_k W_kj², W = L⁻¹ Bᵀ[:, c0:c1], clamped at 0 — the same contract, arguments and
  * results (bit for bit) as structuredVarianceBlock in src/core/inverse/varianceBlock.ts, which it
  * falls back to when WebAssembly or its 128-bit SIMD is missing.
@@ -15,7 +15,7 @@
 import { structuredVarianceBlock } from '../inverse/varianceBlock.ts';
 import type { Matrix } from '../linalg/matrix.ts';
 import { ensureBytes, forceWasmOffForTesting, instantiateKernel, simdSupported } from './runtime.ts';
-import { VARIANCE_EXPORT, varianceModuleBytes } from './varianceModule.ts';
+import { VARIANCE_WASM } from './modules.ts';
 
 type KernelFn = (lt: number, diag: number, x: number, out: number, groups: number, wp: number) => void;
 
@@ -38,7 +38,7 @@ export function wasmAvailable(): boolean {
 function getKernel(): Kernel | null {
   if (!simdSupported()) return null;
   if (kernel === undefined) {
-    const k = instantiateKernel<KernelFn>(varianceModuleBytes(), VARIANCE_EXPORT);
+    const k = instantiateKernel<KernelFn>(VARIANCE_WASM, 'variance');
     kernel = k === null ? null : { ...k, packedFrom: null, packedRows: -1, packedCheck: new Float64Array(0) };
   }
   return kernel;
@@ -59,7 +59,7 @@ function layout(m: number, wp: number) {
   return { groups, lt, diag, x, out, end: out + 8 * wp };
 }
 
-/** Packs the groups of 4 rows of L (see ./varianceModule.ts for the layout). */
+/** Packs the groups of 4 rows of L (see ./wat/variance.wat for the layout). */
 function packLower(f: Float64Array, l: Float64Array, m: number, lt: number, diag: number): void {
   const groups = m >> 2;
   for (let g = 0; g < groups; g++) {

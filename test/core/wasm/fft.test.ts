@@ -1,5 +1,5 @@
 /**
- * The WebAssembly SIMD FFT kernel (src/core/wasm/fftModule.ts, fft.ts) against the DFT definition
+ * The WebAssembly SIMD FFT kernel (src/core/wasm/wat/fft.wat, fft.ts) against the DFT definition
  * X(k) = Σ_j x(j) e^(∓2πi jk/n) summed directly (O(n²), no fast algorithm), the twiddle table
  * against its formula, and the engine's layouts (strided columns, batches, the zero-half flag).
  * numpy.fft is the outside check in test/reference/fft.test.ts.
@@ -7,7 +7,6 @@
 import { describe, expect, it } from 'vitest';
 import { fftEngine, wasmFftAvailable, wasmFftBatch } from '../../../src/core/wasm/fft.ts';
 import { stageCount, twiddleTable, twiddleTableLength } from '../../../src/core/wasm/fftModule.ts';
-import { encodeModule, FunctionBuilder, ValType } from '../../../src/core/wasm/emitter.ts';
 import { relErr, seededVector } from '../fft/cases.ts';
 
 /** Direct DFT of one interleaved sequence (x[j] at stride `stride` complex values from `offset`). */
@@ -212,28 +211,5 @@ describe('twiddle table', () => {
       expect(o).toBe(t.length);
     }
     expect([1, 2, 4, 8, 16, 1024, 2048].map(stageCount)).toEqual([0, 1, 1, 2, 2, 5, 6]);
-  });
-});
-
-describe('emitter additions', () => {
-  it('i8x16.shuffle lane swap, select, i32.and / shr_u run as the spec says (checked against JS)', () => {
-    const { i32, v128 } = ValType;
-    const f = new FunctionBuilder([i32, i32], [i32]);
-    const v = f.local(v128);
-    f.i32Const(0).v128Load(0).set(v);
-    f.i32Const(16).swappedLanes(v).v128Store(0);
-    f.get(0).get(1).get(1).i32Const(5).i32And().select(); // (a, b, c) → c ≠ 0 ? a : b with c = b & 5
-    f.get(0).i32Const(2).i32ShrU().i32Add();
-    const memory = new WebAssembly.Memory({ initial: 1 });
-    const bytes = encodeModule({ memory: { module: 'env', name: 'memory', minPages: 1 }, functions: [{ name: 'run', fn: f }] });
-    expect(WebAssembly.validate(bytes)).toBe(true);
-    const run = new WebAssembly.Instance(new WebAssembly.Module(bytes), { env: { memory } }).exports.run as (a: number, b: number) => number;
-    const m = new Float64Array(memory.buffer);
-    m[0] = Math.PI;
-    m[1] = -1e-300;
-    expect(run(40, 2)).toBe(2 + 10); // 2 & 5 = 0 → b
-    expect(run(40, 4)).toBe(40 + 10); // 4 & 5 ≠ 0 → a
-    expect([m[2], m[3]]).toEqual([-1e-300, Math.PI]);
-    expect(() => new FunctionBuilder([]).i8x16Shuffle([0, 1])).toThrow(/16 integers/);
   });
 });
