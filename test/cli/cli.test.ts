@@ -41,7 +41,7 @@ function expectBadInput(r: RunResult, line: string): void {
 
 describe('help', () => {
   it('npx priorscope --help lists every command (through package.json "bin")', () => {
-    const out = execFileSync('npx', ['--no-install', 'priorscope', '--help'], { cwd: repoRoot, encoding: 'utf8' });
+    const out = execFileSync('npx', ['--no-install', 'priorscope', '--help'], { cwd: repoRoot, encoding: 'utf8', env: { ...process.env, PRIORSCOPE_CLI_SOURCE: '1' } });
     for (const c of ['posterior', 'check', 'sample', 'correlation', 'tune', 'demo']) expect(out).toMatch(new RegExp(`^  ${c} `, 'm'));
   });
   it.each(['posterior', 'check', 'sample', 'correlation', 'tune', 'demo'])('%s --help describes its usage and options', async (c) => {

@@ -1,7 +1,7 @@
 /**
  * Runs `priorscope` for the command-line tests, two ways with one result shape: `runCommand` calls
  * main() in this process through an injected Io (fast: no process start, no tsx load; most tests), and
- * `runCli` spawns the real binary (node src/cli/bin.mjs) for the few tests that check the process
+ * `runCli` spawns the real binary (node src/cli/bin.mjs, on the sources) for the few tests that check the process
  * itself (the bin entry, exit codes and bytes on the real stdout/stderr).
  */
 import { spawnSync } from 'node:child_process';
@@ -22,8 +22,13 @@ export interface RunResult {
   readonly err: string;
 }
 
+/** The binary on the TypeScript sources (PRIORSCOPE_CLI_SOURCE=1: never a stale dist-cli bundle); test/cli/install.test.ts runs the built one. */
 export function runCli(args: readonly string[], cwd: string): RunResult {
-  const r = spawnSync(process.execPath, [binPath, ...args], { cwd, maxBuffer: 256 * 1024 * 1024, env: { ...process.env, PRIORSCOPE_DEBUG: '' } });
+  const r = spawnSync(process.execPath, [binPath, ...args], {
+    cwd,
+    maxBuffer: 256 * 1024 * 1024,
+    env: { ...process.env, PRIORSCOPE_DEBUG: '', PRIORSCOPE_CLI_SOURCE: '1' },
+  });
   return { code: r.status, stdout: r.stdout, out: r.stdout.toString('utf8'), err: r.stderr.toString('utf8') };
 }
 
