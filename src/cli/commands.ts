@@ -6,6 +6,7 @@
 import { assertNever } from '../core/errors.ts';
 import { dirname, resolve } from 'node:path';
 import { KERNEL_NAMES, type KernelName } from '../core/kernels/spec.ts';
+import { kernelsTaking, kernelTakes } from '../core/kernels/table.ts';
 import { correlation } from '../core/kernels/correlation.ts';
 import type { Matrix } from '../core/linalg/matrix.ts';
 import { DENSE_DECISION_LIMIT, diagnosePriorAuto, STRUCTURED_DIAGNOSTICS_MIN_CELLS } from '../core/prior/structuredDiagnostics.ts';
@@ -423,11 +424,11 @@ const correlationCommand: Command = {
     const kernel = kernelText as KernelName;
     const nuText = optionString(args, 'nu');
     let nu: number | undefined;
-    if (kernel === 'matern') {
-      if (nuText === undefined) throw new UsageError('--nu V is required for the matern kernel (smoothness ν > 0)');
+    if (kernelTakes(kernel, 'nu')) {
+      if (nuText === undefined) throw new UsageError(`--nu V is required for the ${kernel} kernel (smoothness ν > 0)`);
       nu = parseNumberOption('nu', nuText, { gt: 0 });
     } else if (nuText !== undefined) {
-      io.stderr(`warning: --nu is ignored for the ${kernel} kernel (only matern has a smoothness)`);
+      io.stderr(`warning: --nu is ignored for the ${kernel} kernel (only ${kernelsTaking('nu').join(', ')} has a smoothness)`);
     }
     const lags = parseNumberListOption('lags', optionString(args, 'lags')!, { ge: 0 });
     const values = lags.map((h) => correlation(kernel, h, nu));

@@ -17,6 +17,7 @@ import { cellCount, gridDimension, type Grid } from '../grid/grid.ts';
 import { matrix, matvec, type Matrix } from '../linalg/matrix.ts';
 import { covarianceMatrix } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
+import { kernelDefinition } from '../kernels/table.ts';
 import { circulantEmbedding, gridAxes, productPadding, stationaryCovariance } from './embedding.ts';
 import { Fft2 } from './fft2.ts';
 import { fftEngine, type FftEngine } from '../wasm/fft.ts';
@@ -41,23 +42,15 @@ export interface CovarianceOperator {
 
 /**
  * Why the FFT path cannot represent this prior on this grid, or null when it can.
- * Today every term of a valid prior is stationary (its covariance depends on the offset only) and
- * the std profile and nugget are diagonal corrections, so only grids other than 1-D/2-D regular
- * ones are refused; new non-stationary term kinds must be declared here (exhaustive switch).
+ * Today every kernel is stationary (its covariance depends on the offset only; the kernel table's
+ * `stationary`, ../kernels/table.ts) and the std profile and nugget are diagonal corrections, so only
+ * grids other than 1-D/2-D regular ones are refused.
  */
 export function nonStationaryReason(grid: Grid, prior: PriorSpec): string | null {
   const dim = grid.shape.length;
   if (dim !== 1 && dim !== 2) return `grid has ${dim} axes; the FFT path handles 1-D and 2-D grids`;
   for (const [k, t] of prior.terms.entries()) {
-    switch (t.kernel) {
-      case 'exponential':
-      case 'gaussian':
-      case 'matern':
-      case 'spherical':
-        break;
-      default:
-        return `terms[${k}].kernel ${assertNever(t.kernel, 'kernel')} is not known to be stationary`;
-    }
+    if (!kernelDefinition(t.kernel).stationary) return `terms[${k}].kernel ${t.kernel} is not stationary`;
   }
   return null;
 }

@@ -14,10 +14,10 @@
  * Unknown fields give warnings (and are dropped); an `angle` on an isotropic term and a `nu` on a
  * non-Matérn term are kept in the spec (for the exact round trip) but warned about: the core ignores them.
  */
-import { assertNever } from '../errors.ts';
 import type { Grid } from '../grid/grid.ts';
 import { cellCount } from '../grid/grid.ts';
 import { KERNEL_NAMES, type KernelName, type Term } from '../kernels/spec.ts';
+import { kernelsTaking, kernelTakes } from '../kernels/table.ts';
 import type { MeanSpec, PriorSpec } from '../prior/spec.ts';
 import { MAX_TERMS } from '../prior/validate.ts';
 import { fieldError, FileFormatError, type FileWarning } from './errors.ts';
@@ -99,20 +99,12 @@ function readTerm(r: JsonReader, value: unknown, k: number): Term {
       r.warn(`${f}.angle`, `${f}.angle is ignored for an isotropic term (it rotates the two axes of lengths [l1, l2])`);
     }
   }
-  switch (kernel) {
-    case 'matern':
-      term.nu = r.number(r.required(obj, f, 'nu', 'a finite number > 0 for the matern kernel'), `${f}.nu`, { gt: 0 });
-      break;
-    case 'exponential':
-    case 'gaussian':
-    case 'spherical':
-      if (obj.nu !== undefined) {
-        term.nu = r.number(obj.nu, `${f}.nu`, { gt: 0 });
-        r.warn(`${f}.nu`, `${f}.nu is ignored for the ${kernel} kernel (only matern has a smoothness)`);
-      }
-      break;
-    default:
-      assertNever(kernel);
+  // Kernel-specific fields (the kernel table): required where the kernel takes them, else kept and warned about.
+  if (kernelTakes(kernel, 'nu')) {
+    term.nu = r.number(r.required(obj, f, 'nu', `a finite number > 0 for the ${kernel} kernel`), `${f}.nu`, { gt: 0 });
+  } else if (obj.nu !== undefined) {
+    term.nu = r.number(obj.nu, `${f}.nu`, { gt: 0 });
+    r.warn(`${f}.nu`, `${f}.nu is ignored for the ${kernel} kernel (only ${kernelsTaking('nu').join(', ')} has a smoothness)`);
   }
   return term;
 }

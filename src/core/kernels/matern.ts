@@ -21,9 +21,14 @@
  * at the end, so large z underflows gracefully to 0.
  * ρ(0) = 1 exactly (also when √(2ν)h underflows to 0); results are clamped to [0, 1] (rounding can otherwise give 1 + 1 ulp near h = 0).
  */
-import type { CorrelationFunction } from './spec.ts';
 import { besselOrder, temmeContinuedFraction, temmeSeries } from '../special/bessel.ts';
 import { gamma } from '../special/gamma.ts';
+
+/** A correlation ρ(h) at scaled distance h (the table's CorrelationFunction, written out: the table imports this file). */
+type CorrelationFunction = (h: number) => number;
+
+/** Matérn smoothness ν used when a matern term gives none (ν = 3/2: once mean-square differentiable). */
+export const DEFAULT_MATERN_NU = 1.5;
 
 const SQRT3 = Math.sqrt(3);
 const SQRT5 = Math.sqrt(5);

@@ -5,16 +5,13 @@
  * Isotropic: h = r / length. Anisotropic (2-D): the offset (dx, dy) is rotated by −angle
  * (angle in degrees, counter-clockwise from +x to the first axis) into (u, v) and
  * h = √((u/l1)² + (v/l2)²).
+ *
+ * The kernels themselves (names, correlations, ranges, fields) are defined in one table, ./table.ts.
  */
-export type KernelName = 'exponential' | 'gaussian' | 'matern' | 'spherical';
+import type { KernelName } from './table.ts';
 
-export const KERNEL_NAMES: readonly KernelName[] = ['exponential', 'gaussian', 'matern', 'spherical'];
-
-/** A correlation ρ(h) at scaled distance h ≥ 0 (ρ(0) = 1). */
-export type CorrelationFunction = (h: number) => number;
-
-/** Matérn smoothness ν used when a matern term gives none (ν = 3/2: once mean-square differentiable). */
-export const DEFAULT_MATERN_NU = 1.5;
+export { type CorrelationFunction, KERNEL_NAMES, type KernelName } from './table.ts';
+export { DEFAULT_MATERN_NU } from './matern.ts';
 
 export interface Term {
   readonly kernel: KernelName;

@@ -15,7 +15,8 @@
  *   singular": about 10 of the 16 significant digits lost in solves) is common practice, no source.
  * - Plain-language warnings with stable codes (see {@link WARNING_CODES}).
  */
-import { DEFAULT_MATERN_NU } from '../kernels/spec.ts';
+import { DEFAULT_MATERN_NU, KERNEL_NAMES } from '../kernels/spec.ts';
+import { kernelDefinition, KERNELS, kernelTakes } from '../kernels/table.ts';
 import { cellCount, gridDimension, type Grid } from '../grid/grid.ts';
 import { cholesky } from '../linalg/cholesky.ts';
 import { lanczosExtremes, symmetricEigenvalues } from '../linalg/eigen.ts';
@@ -33,19 +34,20 @@ export const EXACT_EIGEN_LIMIT = 1500;
 /** Decades tried for the suggested jitter, relative to the mean prior variance. */
 export const JITTER_DECADES: readonly number[] = Array.from({ length: 13 }, (_, k) => 10 ** (k - 12));
 /** The spherical correlation is positive definite only up to three dimensions. */
-export const SPHERICAL_MAX_DIMENSION: number = 3;
+export const SPHERICAL_MAX_DIMENSION: number = KERNELS.spherical.maxDimension;
 
-export const WARNING_CODES = [
+/** The warning codes: general ones, then the kernel table's (long-length and dimension warnings). */
+export const WARNING_CODES: readonly string[] = [
   'not-positive-definite',
   'not-decided',
   'near-singular',
   'no-jitter-found',
-  'gaussian-long-length',
-  'smooth-matern-long-length',
-  'spherical-dimension',
   'nu-ignored',
-] as const;
-export type WarningCode = (typeof WARNING_CODES)[number];
+  ...KERNEL_NAMES.flatMap((k) => {
+    const def = kernelDefinition(k);
+    return [...(def.longLengthWarning ? [def.longLengthWarning.code] : []), ...(def.maxDimension < Infinity ? [`${k}-dimension`] : [])];
+  }),
+];
 
 export type EigenvalueMethod = 'exact' | 'lanczos' | 'fft-bounds';
 
@@ -270,33 +272,28 @@ export function priorWarnings(grid: Grid, prior: PriorSpec): DiagnosticWarning[]
   const unit = grid.unit ? ` ${grid.unit}` : '';
   prior.terms.forEach((term, k) => {
     const name = `Term ${k + 1}`;
-    if (term.nu !== undefined && term.kernel !== 'matern') {
+    const def = kernelDefinition(term.kernel);
+    if (term.nu !== undefined && !kernelTakes(term.kernel, 'nu')) {
       out.push({ code: 'nu-ignored', message: `${name}: nu = ${term.nu} is ignored because the ${term.kernel} kernel has no smoothness parameter.` });
     }
-    if (term.kernel === 'spherical' && dim > SPHERICAL_MAX_DIMENSION) {
+    if (dim > def.maxDimension) {
       // Cannot happen with 1-D and 2-D grids; kept so the rule is stated where kernels are checked.
-      out.push({ code: 'spherical-dimension', message: `${name}: the spherical kernel is only valid up to 3 dimensions, and this grid has ${dim}.` });
+      out.push({
+        code: `${term.kernel}-dimension`,
+        message: `${name}: the ${term.kernel} kernel is only valid up to ${def.maxDimension} dimensions, and this grid has ${dim}.`,
+      });
     }
-    if (term.kernel !== 'gaussian' && term.kernel !== 'matern') return;
+    const warning = def.longLengthWarning;
+    if (warning === null) return;
     const logK = logLatticeCondition(term, grid);
     if (logK === null || logK <= Math.log(NEAR_SINGULAR_CONDITION)) return;
     const rowSum = meanRowSum(lagTable(grid, [{ ...term, variance: 1 }]));
     const cure = (term.variance * rowSum) / NEAR_SINGULAR_CONDITION;
     if (nugget >= cure) return;
-    const len = term.lengths ? `lengths ${term.lengths[0]}${unit} × ${term.lengths[1]}${unit}` : `length ${term.length}${unit}`;
+    const lengths = term.lengths ? `lengths ${term.lengths[0]}${unit} × ${term.lengths[1]}${unit}` : `length ${term.length}${unit}`;
     const spacing = grid.spacing.map((s) => `${s}${unit}`).join(' × ');
     const spread = formatSpread(logK / Math.LN10);
-    if (term.kernel === 'gaussian') {
-      out.push({
-        code: 'gaussian-long-length',
-        message: `${name}: a Gaussian kernel with ${len} on a grid with spacing ${spacing} is numerically singular (its eigenvalues span ${spread}); add a nugget of at least ${fmt(cure)}, shorten the length (in 1-D the condition number passes 1e10 at about 2.2 cells), or use a Matérn kernel.`,
-      });
-    } else {
-      out.push({
-        code: 'smooth-matern-long-length',
-        message: `${name}: a Matérn kernel with nu = ${term.nu ?? DEFAULT_MATERN_NU} and ${len} on a grid with spacing ${spacing}, without a sufficient nugget, is numerically singular (its eigenvalues span ${spread}); add a nugget of at least ${fmt(cure)}, lower nu, or shorten the length.`,
-      });
-    }
+    out.push({ code: warning.code, message: warning.message({ name, lengths, spacing, spread, cure: fmt(cure), nu: term.nu ?? DEFAULT_MATERN_NU }) });
   });
   return out;
 }

@@ -15,17 +15,17 @@
  *   Gaussian ρ = e^{−h²/2}:   S ∝ exp(−q/2)                      (R&W 2006 eq. 4.9 / its transform)
  *   Matérn ν (R&W eq. 4.14):  S ∝ (2ν + q)^{−(ν + d/2)}          (R&W eq. 4.15)
  * The exponential kernel is Matérn ν = ½. The spherical kernel has no simple closed-form spectrum
- * here and gets no estimate.
+ * here and gets no estimate. Each kernel's log S(q) is its table entry's `logSpectralDensity` (../kernels/table.ts).
  *
  * Worked 1-D Gaussian case (a = l/Δ): f(0) ≈ √(2π) a, f(π) ≈ 2√(2π) a e^{−π²a²/2}, so
  * κ ≈ e^{π²a²/2} / 2, which passes 1e10 at a = √(2 ln(2·10¹⁰))/π ≈ 2.19 cells and 1/ε ≈ 4.5e15 at
  * a ≈ 2.73 cells (derived; checked against numpy eigvalsh in test/reference/prior_diagnostics.test.ts).
  */
-import { assertNever } from '../errors.ts';
 import { gridDimension, type Grid } from '../grid/grid.ts';
-import { DEFAULT_MATERN_NU, type Term } from '../kernels/spec.ts';
+import type { Term } from '../kernels/spec.ts';
+import { kernelDefinition } from '../kernels/table.ts';
 
-/** Default Matérn smoothness when `nu` is absent (the kernel module's default). */
+/** Aliases summed on each side of the base period in the Poisson sum. */
 const ALIASES = 3;
 
 /** Inverse lattice quadratic form B⁻¹ (symmetric 2 × 2, or 1 × 1 stored in b00). */
@@ -59,23 +59,9 @@ function latticeForm(term: Term, grid: Grid): { b00: number; b01: number; b11: n
  */
 export function logLatticeCondition(term: Term, grid: Grid): number | null {
   const d = gridDimension(grid);
-  let logS: (q: number) => number;
-  switch (term.kernel) {
-    case 'gaussian':
-      logS = (q) => -0.5 * q;
-      break;
-    case 'matern':
-    case 'exponential': {
-      const nu = term.kernel === 'exponential' ? 0.5 : (term.nu ?? DEFAULT_MATERN_NU);
-      const p = nu + d / 2;
-      logS = (q) => -p * Math.log(2 * nu + q);
-      break;
-    }
-    case 'spherical':
-      return null;
-    default:
-      return assertNever(term.kernel, 'kernel');
-  }
+  // The kernel's spectral density from the table; null (spherical) means no closed form, so no estimate.
+  const logS = kernelDefinition(term.kernel).logSpectralDensity(term.nu, d);
+  if (logS === null) return null;
   const { b00, b01, b11 } = latticeForm(term, grid);
   const logSymbol = (w0: number, w1: number): number => {
     // log Σ_m S(ω + 2πm), by log-sum-exp so that e^{−500} does not underflow.

@@ -20,6 +20,7 @@
 import { InputError } from '../errors.ts';
 import { cellCount, gridDimension, validateGrid, type Grid } from '../grid/grid.ts';
 import { correlationFunction } from '../kernels/correlation.ts';
+import { kernelTakes } from '../kernels/table.ts';
 import { KERNEL_NAMES, type Term } from '../kernels/spec.ts';
 import type { PriorSpec } from './spec.ts';
 
@@ -152,12 +153,12 @@ function validateTerm(term: Term, f: string, dim: 1 | 2): void {
   if (term.angle !== undefined && !isFiniteNumber(term.angle)) {
     throw new InputError(`${f}.angle`, 'a finite number of degrees', term.angle);
   }
-  if (term.kernel === 'matern' && term.nu !== undefined) {
+  if (term.nu !== undefined && kernelTakes(term.kernel, 'nu')) {
     if (!isPositive(term.nu)) throw new InputError(`${f}.nu`, 'a finite number > 0', term.nu);
     try {
-      correlationFunction('matern', term.nu);
+      correlationFunction(term.kernel, term.nu);
     } catch (e) {
-      throw new InputError(`${f}.nu`, `a smoothness the Matérn kernel supports (${(e as Error).message})`, term.nu);
+      throw new InputError(`${f}.nu`, `a smoothness the ${term.kernel} kernel supports (${(e as Error).message})`, term.nu);
     }
   }
 }

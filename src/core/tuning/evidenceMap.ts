@@ -32,6 +32,7 @@
  */
 import { assertNever, InputError } from '../errors.ts';
 import type { Term } from '../kernels/spec.ts';
+import { kernelsTaking, kernelTakes } from '../kernels/table.ts';
 import { cholesky, logDetFromCholesky, solveLower, solveLowerMatrix } from '../linalg/cholesky.ts';
 import { symmetricEigen } from '../linalg/eigen.ts';
 import { matrix, matTvec, transpose, type Matrix } from '../linalg/matrix.ts';
@@ -303,8 +304,9 @@ export function evidenceProfile(problem: Problem, prior: PriorSpec, which: Profi
     case 'nu': {
       const w = which as { parameter: 'nu'; term: number };
       checkTermIndex(prior, w.term, 'term');
-      if (prior.terms[w.term]!.kernel !== 'matern') {
-        throw new InputError(`terms[${w.term}].kernel`, '"matern" for a ν profile', prior.terms[w.term]!.kernel);
+      if (!kernelTakes(prior.terms[w.term]!.kernel, 'nu')) {
+        const takers = kernelsTaking('nu').map((k) => `"${k}"`);
+        throw new InputError(`terms[${w.term}].kernel`, `${takers.join(' or ')} for a ν profile`, prior.terms[w.term]!.kernel);
       }
       values.forEach((v, k) => {
         if (!(v > 0) || !Number.isFinite(v)) throw new InputError(`values[${k}]`, 'a finite ν > 0', v);

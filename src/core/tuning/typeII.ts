@@ -50,6 +50,7 @@
  */
 import { InputError, NotPositiveDefiniteError } from '../errors.ts';
 import { DEFAULT_MATERN_NU, type Term } from '../kernels/spec.ts';
+import { kernelTakes } from '../kernels/table.ts';
 import { cholesky, choleskySolve, solveLowerMatrix } from '../linalg/cholesky.ts';
 import { identity, matrix, type Matrix } from '../linalg/matrix.ts';
 import type { PriorSpec } from '../prior/spec.ts';
@@ -100,7 +101,7 @@ export interface HyperParameterOptions {
 /** The continuous hyperparameters of a prior, in a fixed order (term by term, then the nugget). */
 export function hyperParameters(prior: PriorSpec, options: HyperParameterOptions = {}): HyperParameter[] {
   const out: HyperParameter[] = [];
-  const general = prior.terms.some((t) => t.kernel === 'matern') && generalMaternAvailable();
+  const general = prior.terms.some((t) => kernelTakes(t.kernel, 'nu')) && generalMaternAvailable();
   prior.terms.forEach((t, k) => {
     const p = `terms[${k}]`;
     out.push({ name: `${p}.variance`, scale: 'log', term: k, field: 'variance' });
@@ -111,7 +112,7 @@ export function hyperParameters(prior: PriorSpec, options: HyperParameterOptions
     } else {
       out.push({ name: `${p}.length`, scale: 'log', term: k, field: 'length' });
     }
-    if (t.kernel === 'matern' && general) out.push({ name: `${p}.nu`, scale: 'log', term: k, field: 'nu' });
+    if (kernelTakes(t.kernel, 'nu') && general) out.push({ name: `${p}.nu`, scale: 'log', term: k, field: 'nu' });
   });
   if ((prior.nugget ?? 0) > 0) out.push({ name: 'nugget', scale: 'log', term: null, field: 'nugget' });
   const fixed = options.fixed ?? [];
