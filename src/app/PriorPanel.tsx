@@ -1,5 +1,6 @@
 /** The left panel: mean model, covariance terms (add / remove / reorder), nugget. */
 import { DEFAULT_MATERN_NU, KERNEL_NAMES, type KernelName, type Term } from '../core/kernels/spec.ts';
+import { kernelTakes } from '../core/kernels/table.ts';
 import type { MeanSpec, PriorSpec } from '../core/prior/spec.ts';
 import { MAX_PINNED } from './select/candidates.ts';
 import { gridDimension } from '../core/grid/grid.ts';
@@ -354,7 +355,7 @@ function TermEditor({ index, term, count, problem, refVar }: { index: number; te
           onChange={(v) => updateTerm(index, { length: v })}
         />
       )}
-      {term.kernel === 'matern' && (
+      {kernelTakes(term.kernel, 'nu') && (
         <LogSlider
           label="Smoothness ν"
           value={term.nu ?? DEFAULT_MATERN_NU}

@@ -6,6 +6,7 @@
 import { createStore, type StoreApi } from 'zustand/vanilla';
 import type { PriorSpec, MeanSpec } from '../core/prior/spec.ts';
 import { DEFAULT_MATERN_NU, type Term, type KernelName } from '../core/kernels/spec.ts';
+import { kernelTakes } from '../core/kernels/table.ts';
 import type { Diagnostics } from '../core/prior/diagnostics.ts';
 import type { Matrix } from '../core/linalg/matrix.ts';
 import { cellCount } from '../core/grid/grid.ts';
@@ -225,7 +226,7 @@ export function createWorkbenchStore(client: ClientPort, initial: { demoId: stri
           terms.map((t, i) => {
             if (i !== index) return t;
             const { nu: _nu, ...rest } = t;
-            return kernel === 'matern' ? { ...rest, kernel, nu: t.nu ?? DEFAULT_MATERN_NU } : { ...rest, kernel };
+            return kernelTakes(kernel, 'nu') ? { ...rest, kernel, nu: t.nu ?? DEFAULT_MATERN_NU } : { ...rest, kernel };
           }),
         );
       },

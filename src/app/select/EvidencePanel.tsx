@@ -13,6 +13,7 @@ import { fmt } from './candidates.ts';
 import { parameterLabel, withUnit } from '../labels.ts';
 import { Num, TaskStatusLine } from './common.tsx';
 import type { MapSettings } from './slice.ts';
+import { kernelTakes } from '../../core/kernels/table.ts';
 
 /** Default ranges around the term: lengths ×1/5 … ×5, variances ×1/100 … ×100, 16 × 16. */
 export function defaultMapSettings(prior: PriorSpec, term: number): MapSettings {
@@ -193,7 +194,7 @@ function ProfilePanel() {
   const p = useWb((s) => s.problem)!;
   const task = useWb((s) => s.selectTasks.evidenceProfile);
   const run = useWb((s) => s.runProfile);
-  const maternTerm = prior.terms.findIndex((t) => t.kernel === 'matern');
+  const maternTerm = prior.terms.findIndex((t) => kernelTakes(t.kernel, 'nu'));
   const [kind, setKind] = useState<'nu' | 'nugget'>('nugget');
   const sill = prior.terms.reduce((a, t) => a + t.variance, 0) || 1;
   const [range, setRange] = useState({ min: 1e-6 * sill, max: sill, count: 25 });

@@ -5,6 +5,7 @@
  * summary of the current prior.
  */
 import { DEFAULT_MATERN_NU } from '../../core/kernels/spec.ts';
+import { kernelTakes } from '../../core/kernels/table.ts';
 import { useState } from 'react';
 import { useWb } from '../context.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
@@ -25,7 +26,7 @@ const VIEWS: readonly { id: View; label: string }[] = [
 export function describePrior(prior: PriorSpec): string {
   const terms = prior.terms.map((t) => {
     const l = t.lengths ? `ℓ = ${fmt(t.lengths[0])}×${fmt(t.lengths[1])} at ${fmt(t.angle ?? 0)}°` : `ℓ = ${fmt(t.length ?? Number.NaN)}`;
-    return `${t.kernel}${t.kernel === 'matern' ? ` ν = ${fmt(t.nu ?? DEFAULT_MATERN_NU)}` : ''}, ${l}, σ² = ${fmt(t.variance)}`;
+    return `${t.kernel}${kernelTakes(t.kernel, 'nu') ? ` ν = ${fmt(t.nu ?? DEFAULT_MATERN_NU)}` : ''}, ${l}, σ² = ${fmt(t.variance)}`;
   });
   return `${terms.join(' + ')}${prior.nugget ? `; nugget ${fmt(prior.nugget)}` : ''}`;
 }

@@ -11,6 +11,7 @@ import type { WorkbenchState } from '../store.ts';
 import { cellCount } from '../../core/grid/grid.ts';
 import { practicalRange } from '../../core/kernels/correlation.ts';
 import { DEFAULT_MATERN_NU, type Term } from '../../core/kernels/spec.ts';
+import { kernelTakes } from '../../core/kernels/table.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
 import type { Diagnostics } from '../../core/prior/diagnostics.ts';
 import { writePriorFile } from '../../core/io/priorFile.ts';
@@ -45,7 +46,7 @@ const g4 = (x: number) => (Number.isFinite(x) ? Number(x.toPrecision(4)).toStrin
 
 /** One sentence per term, with the practical range (distance where ρ = 0.05) of its kernel. */
 export function termInWords(t: Term, lengthUnit: string, valueUnit: string): string {
-  const kernel = t.kernel === 'matern' ? `Matérn (ν = ${g4(t.nu ?? DEFAULT_MATERN_NU)})` : t.kernel;
+  const kernel = kernelTakes(t.kernel, 'nu') ? `Matérn (ν = ${g4(t.nu ?? DEFAULT_MATERN_NU)})` : t.kernel;
   const pr = practicalRange(t.kernel, t.nu ?? DEFAULT_MATERN_NU);
   const sd = `${g4(Math.sqrt(t.variance))}${valueUnit ? ' ' + valueUnit : ''}`;
   const u = lengthUnit ? ` ${lengthUnit}` : '';

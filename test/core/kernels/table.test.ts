@@ -14,7 +14,8 @@ import {
 
 // Every kernel in the table goes through the same checks; a kernel that takes a smoothness ν is checked at several.
 const NUS = [0.3, 0.5, 0.8, 1.5, 2.5, 3.7, 20];
-const CASES: { name: string; kernel: KernelName; nu: number | undefined }[] = KERNEL_NAMES.flatMap((kernel) =>
+type Case = { name: string; kernel: KernelName; nu: number | undefined };
+const CASES: Case[] = KERNEL_NAMES.flatMap<Case>((kernel) =>
   kernelTakes(kernel, 'nu') ? NUS.map((nu) => ({ name: `${kernel} ν = ${nu}`, kernel, nu })) : [{ name: kernel, kernel, nu: undefined }],
 );
 
