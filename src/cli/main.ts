@@ -16,6 +16,7 @@ import { STUDY_COMMANDS } from './study/index.ts';
 
 /** Every command, in the order of the help. */
 const COMMANDS: readonly Command[] = [...CORE_COMMANDS, ...STUDY_COMMANDS];
+import { FORMATS_HELP } from './formats.ts';
 
 function pad(s: string, n: number): string {
   return s.length >= n ? s + '  ' : s.padEnd(n);
@@ -30,7 +31,8 @@ export function mainHelp(): string {
     'Commands:',
     ...COMMANDS.map((c) => `  ${pad(c.name, 13)}${c.summary}`),
     '',
-    'Files: problem files are JSON {"kind": "priorscope.problem", "version": 1, "grid", "operator", "data", …};',
+    'Files (all fields, cell order, origin, units, geometry: priorscope --help formats):',
+    'problem files are JSON {"kind": "priorscope.problem", "version": 1, "grid", "operator", "data", …};',
     'prior files are JSON {"kind": "priorscope.prior", "version": 1, "mean", "terms", "nugget"?, "stdProfile"?}.',
     'An operator may live in a sibling .csv, .mtx (Matrix Market) or .npy file, read only from the problem',
     "file's folder (symbolic links resolved) unless --read-from FOLDERS allows others; regular files only, up to 512 MiB.",
@@ -71,6 +73,10 @@ export function processIo(): Io {
 export async function main(argv: readonly string[], io: Io = processIo()): Promise<number> {
   const [first, ...rest] = argv;
   if (first === undefined || first === '--help' || first === '-h' || first === 'help') {
+    if (rest[0] === 'formats') {
+      io.stdout(FORMATS_HELP);
+      return 0;
+    }
     const topic = first === 'help' ? rest[0] : undefined;
     const c = topic ? COMMANDS.find((x) => x.name === topic) : undefined;
     if (topic && !c) {

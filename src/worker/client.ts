@@ -285,6 +285,8 @@ function copyProblem(problem: Problem): { problem: Problem; transfer: ArrayBuffe
     ...(d.covariance ? { covariance: { ...d.covariance, data: c(d.covariance.data) } } : {}),
     // The unit too: without it a loaded problem's data.unit never reached the labels.
     ...(d.unit !== undefined ? { unit: d.unit } : {}),
+    // The geometry is small (M × 2 at most per end); it is copied by the structured clone.
+    ...(d.geometry ? { geometry: d.geometry } : {}),
   };
   return {
     problem: { ...problem, operator, data, ...(problem.truth ? { truth: c(problem.truth) } : {}) },

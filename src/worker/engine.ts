@@ -129,6 +129,7 @@ export function problemView(
     operatorNonZeros: g.kind === 'dense' ? g.matrix.rows * g.matrix.cols : g.matrix.values.length,
     quantity: { name: problem.quantity?.name ?? 'value', unit: problem.quantity?.unit ?? '' },
     dataUnit: problem.data.unit ?? '',
+    geometry: problem.data.geometry ?? null,
     startPrior: extra.startPrior,
     startRule: extra.startRule ?? null,
     truthPrior: extra.truthPrior,

@@ -14,7 +14,7 @@
 import { assertNever } from '../core/errors.ts';
 import type { Diagnostics } from '../core/prior/diagnostics.ts';
 import type { PriorSpec } from '../core/prior/spec.ts';
-import type { Problem } from '../core/problems/spec.ts';
+import type { DataGeometry, Problem } from '../core/problems/spec.ts';
 import type { Grid } from '../core/grid/grid.ts';
 import type { Matrix } from '../core/linalg/matrix.ts';
 import type { PosteriorSummary } from '../core/inverse/types.ts';
@@ -41,6 +41,8 @@ export interface ProblemView {
   readonly quantity: { readonly name: string; readonly unit: string };
   /** Unit of the data values ('' when the problem gives none). */
   readonly dataUnit: string;
+  /** Where the data were measured (positions, or path ends), null when the problem does not say. */
+  readonly geometry: DataGeometry | null;
   /** The prior to start from: a demo's own, or for a loaded problem the rule of src/core/tuning/startPrior.ts. */
   readonly startPrior: PriorSpec | null;
   /** For a loaded problem: how its starting prior was made, in words with the numbers (null for demos). */

@@ -173,6 +173,19 @@ describe('WorkerClient', () => {
     expect(Array.from(m.problem.data.values)).toEqual([1, 2, 3]);
   });
 
+  it('setProblem sends the data geometry with the problem', () => {
+    const { client, w } = setup();
+    const positions = { rows: 3, cols: 1, data: new Float64Array([0.5, 1.5, 9]) };
+    const problem = {
+      grid: { shape: [3], spacing: [1] },
+      operator: { kind: 'dense' as const, matrix: { rows: 3, cols: 3, data: new Float64Array(9) } },
+      data: { values: new Float64Array(3), sigma: new Float64Array([1, 1, 1]), geometry: { kind: 'points' as const, positions } },
+    };
+    void client.setProblem(problem);
+    const m = w().sent[0]!.message as unknown as { problem: typeof problem };
+    expect(m.problem.data.geometry).toEqual({ kind: 'points', positions });
+  });
+
   it('reports progress on the request channel', () => {
     const seen: string[] = [];
     const workers: FakeWorker[] = [];

@@ -1,6 +1,6 @@
 /**
  * "From pieces": G (.csv / .mtx / .npy), data (.csv value,sigma or .npy), an optional data
- * covariance, and the grid typed in. Checked by src/core/io/pieces.ts (in the parse worker);
+ * covariance, an optional geometry CSV (src/core/io/geometryCsv.ts), the data unit and the grid typed in. Checked by src/core/io/pieces.ts (in the parse worker);
  * a bad field or file is reported with its name and nothing changes.
  */
 import { useRef, useState, type FormEvent } from 'react';
@@ -30,6 +30,7 @@ export function PiecesForm() {
     const g = file('operator');
     const d = file('data');
     const c = file('covariance');
+    const geo = file('geometry');
     if (!g || !d) {
       store.setState({ loadError: `from pieces: choose ${!g ? 'the operator G file' : 'the data file'}` });
       return;
@@ -42,12 +43,16 @@ export function PiecesForm() {
       ...(str('unit') ? { unit: str('unit') } : {}),
     };
     try {
-      const [operator, data, covariance] = await readFiles([g, d, ...(c ? [c] : [])]);
+      const [operator, data, ...rest] = await readFiles([g, d, ...(c ? [c] : []), ...(geo ? [geo] : [])]);
+      const covariance = c ? rest[0] : undefined;
+      const geometry = geo ? rest[c ? 1 : 0] : undefined;
       const ok = await store.getState().loadPieces({
         grid,
         operator: operator!,
         data: data!,
         ...(covariance ? { covariance } : {}),
+        ...(geometry ? { geometry } : {}),
+        ...(str('dunit') ? { dataUnit: str('dunit') } : {}),
         ...(str('title') ? { title: str('title') } : {}),
         ...(str('quantity') ? { quantity: { name: str('quantity'), ...(str('qunit') ? { unit: str('qunit') } : {}) } } : {}),
       });
@@ -70,6 +75,10 @@ export function PiecesForm() {
           <input id="pf-d" name="data" type="file" accept=".csv,.txt,.npy" data-testid="pieces-data" />
           <label htmlFor="pf-c">Data covariance (optional)</label>
           <input id="pf-c" name="covariance" type="file" accept=".csv,.txt,.mtx,.npy" data-testid="pieces-covariance" />
+          <label htmlFor="pf-geo">Geometry (optional .csv: x[,y] or sx,sy,rx,ry)</label>
+          <input id="pf-geo" name="geometry" type="file" accept=".csv,.txt" data-testid="pieces-geometry" />
+          <label htmlFor="pf-du">Data unit</label>
+          <input id="pf-du" name="dunit" placeholder="ms" data-testid="pieces-data-unit" />
           <span>Cells nx, ny</span>
           <span className="dims">
             <input name="nx" aria-label="nx (cells along x)" data-testid="pieces-nx" inputMode="numeric" />

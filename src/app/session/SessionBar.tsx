@@ -103,9 +103,9 @@ export function SessionBar() {
           }}
         />
         <PiecesForm />
-        <span className="template" title="A small invented problem to start from: the .json names G.mtx; data.csv is for “From pieces”">
+        <span className="template" title="A small invented problem to start from: the .json names G.mtx; data.csv and geometry.csv are for “From pieces”">
           templates:{' '}
-          {['problem.json', 'G.mtx', 'data.csv'].map((f) => (
+          {['problem.json', 'G.mtx', 'data.csv', 'geometry.csv'].map((f) => (
             <a key={f} href={`templates/${f}`} download={f} data-testid={`template-${f}`}>
               {f}{' '}
             </a>

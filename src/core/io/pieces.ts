@@ -16,6 +16,8 @@
  * test of positive definiteness (Higham 2002, "Accuracy and Stability of Numerical Algorithms",
  * Thm 10.7; the same rule as ./problemFile.ts).
  *
+ * Geometry (optional): a CSV of positions or path ends, one row per datum (./geometryCsv.ts).
+ *
  * Errors are FileFormatErrors naming the file and the line / column (CSV, 1-based lines of the
  * file as in ./csv.ts), row / column (matrix entries, zero-based as in the problem file) or field.
  */
@@ -31,6 +33,7 @@ import { decodeText } from './json.ts';
 import { parseMatrixMarket } from './matrixMarket.ts';
 import { npyToMatrix, parseNpy } from './npy.ts';
 import { checkProblemScales, MAX_CELLS } from './problemFile.ts';
+import { parseGeometryCsv } from './geometryCsv.ts';
 
 /** One file as picked by the user: its name and its bytes. */
 export interface NamedBytes {
@@ -271,6 +274,10 @@ export interface PiecesInput {
   readonly operator: NamedBytes;
   readonly data: NamedBytes;
   readonly covariance?: NamedBytes;
+  /** Where the data were measured: a CSV with header x[,y] or sx,sy,rx,ry (./geometryCsv.ts). */
+  readonly geometry?: NamedBytes;
+  /** Unit of the data values. */
+  readonly dataUnit?: string;
   readonly title?: string;
   readonly quantity?: { readonly name: string; readonly unit?: string };
 }
@@ -314,6 +321,13 @@ export function assembleProblem(input: PiecesInput, warnings?: FileWarning[]): P
     }
     data = { values: d.values, sigma: d.sigma };
   }
+  if (input.geometry) {
+    formatOf(input.geometry.name, ['csv'], 'the data geometry');
+    const geo = parseGeometryCsv(input.geometry.name, input.geometry.bytes, grid, m, input.data.name);
+    warnings?.push(...geo.warnings);
+    data = { ...data, geometry: geo.geometry };
+  }
+  if (input.dataUnit !== undefined && input.dataUnit.trim() !== '') data = { ...data, unit: input.dataUnit.trim() };
   const problem: { -readonly [K in keyof Problem]: Problem[K] } = { grid, operator, data };
   if (input.title !== undefined && input.title !== '') problem.title = input.title;
   if (input.quantity !== undefined && input.quantity.name !== '') problem.quantity = input.quantity;

@@ -10,6 +10,10 @@
  *              | {"sparse": {"rows": [...], "cols": [...], "values": [...]}}   zero-based, duplicates summed
  *              | {"file": "G.csv" | "G.mtx" | "G.npy"}                         a sibling file, by extension
  *   data       {"values": [M numbers], "sigma": [M numbers > 0]}  or  {"values": [...], "covariance": M×M SPD}
+ *              optional "unit": "ms"; optional geometry, M rows in the grid's unit and axes, for plots only:
+ *              "positions": [[x], …] (1-D) or [[x, y], …] (2-D), where each point datum was measured
+ *              (may lie outside the grid), or "sources" and "receivers": [[x, y], …] (2-D), the ends of
+ *              each path datum (a path that misses the grid entirely is warned about)
  *   truth      optional, N numbers
  *   quantity   optional {"name": "...", "unit"?: "..."}
  *
@@ -24,7 +28,9 @@ import { covarianceDefect } from './covarianceCheck.ts';
 import type { Matrix } from '../linalg/matrix.ts';
 import type { Operator } from '../linalg/operator.ts';
 import { sparseFromCoordinates } from '../linalg/sparse.ts';
-import type { DataSpec, Problem } from '../problems/spec.ts';
+import type { DataGeometry, DataSpec, Problem } from '../problems/spec.ts';
+import { gridBounds, pathsMissingGrid, rowList } from '../problems/geometry.ts';
+import { formatNumber } from '../format.ts';
 import { assertNever, formatValue } from '../errors.ts';
 import { SCALE_LIMIT, SCALE_MIN } from '../prior/validate.ts';
 import { baseName, FileFormatError, type FileWarning } from './errors.ts';
@@ -57,10 +63,14 @@ export interface ProblemFileResult {
   readonly warnings: readonly FileWarning[];
 }
 
-const TOP_FIELDS = ['kind', 'version', 'title', 'grid', 'operator', 'data', 'truth', 'quantity'] as const;
+/** The fields each object of a problem file may hold (the `--help formats` test checks that every one is documented). */
+export const TOP_FIELDS = ['kind', 'version', 'title', 'grid', 'operator', 'data', 'truth', 'quantity'] as const;
+export const GRID_FIELDS = ['shape', 'spacing', 'origin', 'unit', 'axes'] as const;
+export const OPERATOR_FIELDS = ['dense', 'sparse', 'file'] as const;
+export const DATA_FIELDS = ['values', 'sigma', 'covariance', 'unit', 'positions', 'sources', 'receivers'] as const;
 
 function readGrid(r: JsonReader, value: unknown): Grid {
-  const g = r.object(value, 'grid', ['shape', 'spacing', 'origin', 'unit', 'axes']);
+  const g = r.object(value, 'grid', GRID_FIELDS);
   const shapeValue = r.required(g, 'grid', 'shape', '[nx] or [nx, ny]');
   if (!Array.isArray(shapeValue) || (shapeValue.length !== 1 && shapeValue.length !== 2)) {
     r.fail('grid.shape', '[nx] or [nx, ny] (positive integers)', shapeValue);
@@ -88,12 +98,16 @@ function readGrid(r: JsonReader, value: unknown): Grid {
  * The data fields; `operatorRows` is the row count of an inline dense operator, so that when
  * data.values alone disagrees with data.sigma and the operator, data.values is the field named.
  */
-function readData(r: JsonReader, value: unknown, operatorRows?: number): DataSpec {
-  const d = r.object(value, 'data', ['values', 'sigma', 'covariance', 'unit']);
-  const unit = d.unit !== undefined ? { unit: r.string(d.unit, 'data.unit') } : {};
+function readData(r: JsonReader, value: unknown, grid: Grid, operatorRows?: number): DataSpec {
+  const d = r.object(value, 'data', DATA_FIELDS);
   const values = r.vector(r.required(d, 'data', 'values', 'an array of numbers (the data)'), 'data.values');
   const m = values.length;
   if (m === 0) r.fail('data.values', 'a non-empty array of numbers', values);
+  const geometry = readGeometry(r, d, grid, m);
+  const unit = {
+    ...(d.unit !== undefined ? { unit: r.string(d.unit, 'data.unit') } : {}),
+    ...(geometry ? { geometry } : {}),
+  };
   if (d.sigma !== undefined && d.covariance !== undefined) {
     r.fail('data', 'an object with either sigma or covariance, not both', 'both');
   }
@@ -107,6 +121,69 @@ function readData(r: JsonReader, value: unknown, operatorRows?: number): DataSpe
     r.fail('data.values', `an array of ${operatorRows} numbers (as data.sigma and operator.dense have ${operatorRows})`, values);
   }
   return { values, sigma: r.vector(d.sigma, 'data.sigma', m, { gt: 0 }), ...unit };
+}
+
+/** "[x, depth]": one row of coordinates named by the grid's axes. */
+function coordinateWords(grid: Grid, dim: number): string {
+  const names = grid.axes ?? ['x', 'y'];
+  return `[${names.slice(0, dim).join(', ')}]`;
+}
+
+/** M rows of `dim` finite numbers each. */
+function readCoordinates(r: JsonReader, value: unknown, field: string, m: number, dim: number, words: string) {
+  const rows = r.array(value, field, undefined, 'rows');
+  if (rows.length !== m) r.fail(field, `an array of ${m} rows ${words} (one per datum in data.values)`, rows);
+  for (let k = 0; k < m; k++) {
+    const row = rows[k];
+    if (!Array.isArray(row) || row.length !== dim) r.fail(`${field}[${k}]`, `${words}: an array of ${dim} number${dim === 1 ? '' : 's'}`, row);
+  }
+  return r.matrixRows(rows, field, m, dim);
+}
+
+/** The optional geometry fields of `data` (see the module comment); warns about paths that miss the grid. */
+function readGeometry(r: JsonReader, d: Record<string, unknown>, grid: Grid, m: number): DataGeometry | null {
+  const dim = grid.shape.length;
+  const paths = d.sources !== undefined || d.receivers !== undefined;
+  if (d.positions !== undefined && paths) {
+    r.fail('data', 'an object with either positions (point data) or sources and receivers (path data), not both', 'both');
+  }
+  if (d.positions !== undefined) {
+    return { kind: 'points', positions: readCoordinates(r, d.positions, 'data.positions', m, dim, coordinateWords(grid, dim)) };
+  }
+  if (!paths) return null;
+  if (dim !== 2) {
+    const field = d.sources !== undefined ? 'data.sources' : 'data.receivers';
+    r.fail(field, 'absent on a 1-D grid (paths need a 2-D grid; give data.positions [[x], …] for point data)', d.sources ?? d.receivers);
+  }
+  const words = coordinateWords(grid, 2);
+  for (const [k, other] of [['sources', 'receivers'], ['receivers', 'sources']] as const) {
+    if (d[k] === undefined) r.fail(`data.${k}`, `an array of ${m} rows ${words} (given with data.${other}: each path has both ends)`, undefined);
+  }
+  const geometry: DataGeometry = {
+    kind: 'paths',
+    sources: readCoordinates(r, d.sources, 'data.sources', m, 2, words),
+    receivers: readCoordinates(r, d.receivers, 'data.receivers', m, 2, words),
+  };
+  const missing = pathsMissingGrid(grid, geometry);
+  if (missing.length > 0) r.warn('data.sources', pathsMissWarning(grid, missing, m));
+  return geometry;
+}
+
+/** The warning about paths outside the grid, with the grid's outline so a wrong origin or swapped shape shows. */
+export function pathsMissWarning(
+  grid: Grid,
+  missing: readonly number[],
+  m: number,
+  words = { ends: 'data.sources → data.receivers', origin: 'grid.origin', shape: 'grid.shape [nx, ny]' },
+): string {
+  const b = gridBounds(grid);
+  const [ax, ay] = grid.axes ?? ['x', 'y'];
+  const u = grid.unit ? ` ${grid.unit}` : '';
+  const span = `${ax} ${formatNumber(b.x[0])} to ${formatNumber(b.x[1])}${u}, ${ay} ${formatNumber(b.y[0])} to ${formatNumber(b.y[1])}${u}`;
+  return (
+    `${missing.length} of ${m} path${m === 1 ? '' : 's'} (${words.ends}, ${rowList(missing)}) miss the grid entirely ` +
+    `(it spans ${span}); check ${words.origin} (the first cell centre) and the order of ${words.shape}`
+  );
 }
 
 /** The data covariance must be symmetric and positive definite (see ./covarianceCheck.ts). */
@@ -138,7 +215,7 @@ function readIndex(r: JsonReader, value: unknown, array: string, p: number, limi
 }
 
 function readOperator(r: JsonReader, value: unknown, m: number, n: number, options: ProblemReadOptions): Operator {
-  const o = r.object(value, 'operator', ['dense', 'sparse', 'file']);
+  const o = r.object(value, 'operator', OPERATOR_FIELDS);
   const forms = ['dense', 'sparse', 'file'].filter((k) => o[k] !== undefined);
   if (forms.length !== 1) {
     r.fail('operator', 'an object with exactly one of dense, sparse, file', forms.length === 0 ? 'none of them' : forms.join(' and '));
@@ -235,7 +312,7 @@ export function parseProblemFile(file: string, input: string | Uint8Array, optio
   const n = cellCount(grid);
   const op = obj.operator as { dense?: unknown } | undefined;
   const operatorRows = op !== null && typeof op === 'object' && Array.isArray(op.dense) ? op.dense.length : undefined;
-  const data = readData(r, r.required(obj, '', 'data', 'an object with values and sigma or covariance'), operatorRows);
+  const data = readData(r, r.required(obj, '', 'data', 'an object with values and sigma or covariance'), grid, operatorRows);
   const operator = readOperator(r, r.required(obj, '', 'operator', 'an object with dense, sparse or file'), data.values.length, n, options);
   const problem: { -readonly [K in keyof Problem]: Problem[K] } = { grid, operator, data };
   if (obj.title !== undefined) problem.title = r.string(obj.title, 'title');
@@ -298,6 +375,12 @@ export function problemToJson(problem: Problem, operatorFile?: string): Record<s
     data.covariance = Array.from({ length: c.rows }, (_, i) => vec(c.data.subarray(i * c.cols, (i + 1) * c.cols)));
   } else if (d.sigma) data.sigma = vec(d.sigma);
   if (d.unit !== undefined) data.unit = d.unit;
+  const geo = d.geometry;
+  if (geo?.kind === 'points') data.positions = matrixRowsJson(geo.positions);
+  else if (geo?.kind === 'paths') {
+    data.sources = matrixRowsJson(geo.sources);
+    data.receivers = matrixRowsJson(geo.receivers);
+  }
   const out: Record<string, unknown> = { kind: PROBLEM_KIND, version: PROBLEM_VERSION };
   if (problem.title !== undefined) out.title = problem.title;
   out.grid = grid;

@@ -7,6 +7,7 @@
  */
 import { InputError } from '../errors.ts';
 import { cellCoordinates, type Grid } from '../grid/grid.ts';
+import { fromRows } from '../linalg/matrix.ts';
 import type { Operator } from '../linalg/operator.ts';
 import { applyOperator } from '../linalg/operator.ts';
 import { sparseFromCoordinates } from '../linalg/sparse.ts';
@@ -99,7 +100,7 @@ const boreholeLog: DemoProblem = {
       title: 'Borehole temperature log',
       grid: BOREHOLE_GRID,
       operator: G,
-      data: { values, sigma, unit: '°C' },
+      data: { values, sigma, unit: '°C', geometry: { kind: 'points', positions: fromRows(BOREHOLE_SENSORS.map((c) => [c])) } },
       truth,
       quantity: { name: 'temperature', unit: '°C' },
     };
@@ -138,7 +139,8 @@ const crossholeTomography: DemoProblem = {
       terms: [{ kernel: 'exponential', variance: 1e-3, length: 3 }],
       nugget: 1e-7,
     };
-    const G = rayOperator(CROSSHOLE_GRID, crossholeRays());
+    const rays = crossholeRays();
+    const G = rayOperator(CROSSHOLE_GRID, rays);
     const truth = drawFromPrior(CROSSHOLE_GRID, truthPrior, 31337);
     const sigma = new Float64Array(G.matrix.rows).fill(0.01);
     const values = syntheticData(G, truth, sigma, 4242);
@@ -146,7 +148,12 @@ const crossholeTomography: DemoProblem = {
       title: 'Crosshole travel-time tomography',
       grid: CROSSHOLE_GRID,
       operator: G,
-      data: { values, sigma, unit: 'ms' },
+      data: {
+        values,
+        sigma,
+        unit: 'ms',
+        geometry: { kind: 'paths', sources: fromRows(rays.map((r) => r.from)), receivers: fromRows(rays.map((r) => r.to)) },
+      },
       truth,
       quantity: { name: 'slowness perturbation', unit: 's/km' },
     };
@@ -188,7 +195,7 @@ const potentialField: DemoProblem = {
       title: 'Gravity profile over a buried basin',
       grid: POTENTIAL_GRID,
       operator: G,
-      data: { values, sigma, unit: 'mGal' },
+      data: { values, sigma, unit: 'mGal', geometry: { kind: 'points', positions: fromRows(POTENTIAL_STATIONS) } },
       truth,
       quantity: { name: 'density contrast', unit: 'kg/m³' },
     };

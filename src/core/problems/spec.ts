@@ -6,6 +6,16 @@ import type { Grid } from '../grid/grid.ts';
 import type { Matrix } from '../linalg/matrix.ts';
 import type { Operator } from '../linalg/operator.ts';
 
+/**
+ * Where each datum was measured, in the grid's unit and along its axes (row k belongs to datum k):
+ * a point datum at a position (a station, a sample; [x] in 1-D, [x, y] in 2-D), or a path datum
+ * between a source and a receiver (2-D only, [x, y] each). Positions may lie outside the grid
+ * (stations above a section). Used for plots only; G alone defines the forward model.
+ */
+export type DataGeometry =
+  | { readonly kind: 'points'; /** M × dim, row-major. */ readonly positions: Matrix }
+  | { readonly kind: 'paths'; /** M × 2. */ readonly sources: Matrix; /** M × 2. */ readonly receivers: Matrix };
+
 export interface DataSpec {
   readonly values: Float64Array;
   /** Per-datum standard deviations (> 0): Cd = diag(σ²). Exactly one of sigma / covariance. */
@@ -14,6 +24,8 @@ export interface DataSpec {
   readonly covariance?: Matrix;
   /** Unit of the data values, e.g. "ms" or "mGal" (optional, for labels). */
   readonly unit?: string;
+  /** Where the data were measured (optional). */
+  readonly geometry?: DataGeometry;
 }
 
 export interface Problem {

@@ -77,6 +77,7 @@ describe('validateSavedProblem: the problem-file validators', () => {
     const p = validateSavedProblem(good);
     expect(Array.from(p.data.values)).toEqual(Array.from(good.data.values));
     expect(p.grid.shape).toEqual(good.grid.shape);
+    expect(p.data.geometry).toEqual(good.data.geometry);
   });
   const broken: [string, unknown, RegExp][] = [
     ['a short G', { ...good, operator: { kind: 'dense', matrix: { rows: 2, cols: good.grid.shape[0], data: new Float64Array(2 * good.grid.shape[0]!) } } }, /operator/],

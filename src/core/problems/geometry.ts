@@ -1,0 +1,85 @@
+/**
+ * Data geometry (see DataGeometry in ./spec.ts): the grid's outline and which paths miss it.
+ * PUBLIC API: gridBounds, segmentMeetsBox, pathsMissingGrid, geometryRows.
+ */
+import { gridDimension, type Grid } from '../grid/grid.ts';
+import type { DataGeometry } from './spec.ts';
+
+/** Axis-aligned box: the grid's outer cell edges. */
+export interface Bounds {
+  readonly x: readonly [number, number];
+  /** [0, 0] for a 1-D grid. */
+  readonly y: readonly [number, number];
+}
+
+/**
+ * Outer edges of the grid: cell k along an axis is centred at origin + k·spacing and spans half a
+ * spacing either side, so the grid covers [x0 − dx/2, x0 + (nx − ½)·dx] (and the same along y).
+ */
+export function gridBounds(grid: Grid): Bounds {
+  const edge = (k: number): [number, number] => {
+    const o = grid.origin?.[k] ?? 0;
+    const d = grid.spacing[k]!;
+    return [o - d / 2, o + (grid.shape[k]! - 0.5) * d];
+  };
+  return { x: edge(0), y: gridDimension(grid) === 2 ? edge(1) : [0, 0] };
+}
+
+/**
+ * Whether the closed segment from p to q meets the closed box, by Liang–Barsky clipping
+ * (Liang & Barsky 1984, ACM Trans. Graph. 3:1; from memory): the parameter interval
+ * t ∈ [0, 1] is narrowed by each of the four edges and the segment meets the box when it stays non-empty.
+ */
+export function segmentMeetsBox(p: readonly [number, number], q: readonly [number, number], box: Bounds): boolean {
+  let t0 = 0;
+  let t1 = 1;
+  const dx = q[0] - p[0];
+  const dy = q[1] - p[1];
+  const clip = (den: number, num: number): boolean => {
+    // Inside half-plane: den·t ≤ num.
+    if (den === 0) return num >= 0;
+    const t = num / den;
+    if (den > 0) {
+      if (t < t0) return false;
+      if (t < t1) t1 = t;
+    } else {
+      if (t > t1) return false;
+      if (t > t0) t0 = t;
+    }
+    return true;
+  };
+  return (
+    clip(-dx, p[0] - box.x[0]) &&
+    clip(dx, box.x[1] - p[0]) &&
+    clip(-dy, p[1] - box.y[0]) &&
+    clip(dy, box.y[1] - p[1]) &&
+    t0 <= t1
+  );
+}
+
+/** Zero-based indices of the path data whose source–receiver segment does not touch the grid (points: none). */
+export function pathsMissingGrid(grid: Grid, geometry: DataGeometry): number[] {
+  if (geometry.kind !== 'paths') return [];
+  const box = gridBounds(grid);
+  const s = geometry.sources.data;
+  const r = geometry.receivers.data;
+  const out: number[] = [];
+  for (let k = 0; k < geometry.sources.rows; k++) {
+    if (!segmentMeetsBox([s[2 * k]!, s[2 * k + 1]!], [r[2 * k]!, r[2 * k + 1]!], box)) out.push(k);
+  }
+  return out;
+}
+
+/** Number of data the geometry describes. */
+export function geometryRows(geometry: DataGeometry): number {
+  return geometry.kind === 'points' ? geometry.positions.rows : geometry.sources.rows;
+}
+
+/** "rows 3, 7 and 9" (zero-based), the first `max` listed. */
+export function rowList(rows: readonly number[], max = 5): string {
+  const shown = rows.slice(0, max).map(String);
+  const more = rows.length > max ? ` and ${rows.length - max} more` : '';
+  if (rows.length === 1) return `row ${shown[0]}`;
+  if (more) return `rows ${shown.join(', ')}${more}`;
+  return `rows ${shown.slice(0, -1).join(', ')} and ${shown[shown.length - 1]}`;
+}
