@@ -54,7 +54,7 @@ describe('help', () => {
     const r = await runCommand([], dir);
     expect(r.code).toBe(2);
     expect(r.err).toContain('Usage: priorscope <command>');
-    expectBadInput(await runCommand(['posterier'], dir), 'priorscope: unknown command "posterier"; commands: posterior, check, sample, correlation, tune, demo, fit (see priorscope --help)');
+    expectBadInput(await runCommand(['posterier'], dir), 'priorscope: unknown command "posterier"; commands: posterior, check, sample, correlation, tune, demo, fit, profile, score, calibrate, merge (see priorscope --help)');
   });
 });
 

@@ -16,7 +16,7 @@ import { cliParameterName, loadProblemOption, priorObject, ROUTE, routeOption } 
 const FIELD_WORDS = ['variance', 'length', 'lengths', 'angle', 'nu'] as const;
 
 /** Core names (terms[k].…) selected by one word of --free among `all` (the prior's parameters). */
-function select(word: string, all: readonly HyperParameter[], prior: PriorSpec, option: string): string[] {
+export function select(word: string, all: readonly HyperParameter[], prior: PriorSpec, option: string): string[] {
   const m = /^(?:term(\d+)\.)?(variance|length|lengths|lengths\[0\]|lengths\[1\]|angle|nu|nugget)$/.exec(word);
   if (!m || (m[1] !== undefined && m[2] === 'nugget')) {
     throw new UsageError(

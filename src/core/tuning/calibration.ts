@@ -26,7 +26,7 @@
  * circulantSampler; exact unless the embedding had to be clipped, reported as `approximateDraws`).
  *
  * Random stream (part of the "same seed, same numbers" contract): one MT19937 stream seeded with
- * `seed`. Dense route, per replicate: N normals for the truth, M for the noise, then per draw N
+ * `seed` (or, with `streamSeed`, one stream per replicate, read in the same order). Dense route, per replicate: N normals for the truth, M for the noise, then per draw N
  * for z and M for ε. FFT route, per replicate: one 32-bit integer (nextUint32) seeding the
  * sampler's truth draw, M normals for the noise, one 32-bit integer seeding the sampler's `draws`
  * prior draws, then per draw M normals for ε (the sampler has its own stream per seed). Every
@@ -61,6 +61,30 @@ export interface CalibrationOptions extends TuningControl, RouteOptions {
   readonly seed: number;
   /** Also return every rank (replicates × N); off by default to keep results small. */
   readonly keepRanks?: boolean;
+  /**
+   * When given, replicate r (0-based within this call) draws from its own MT19937 stream seeded
+   * with `streamSeed(r)` instead of one stream for the whole call, so that a replicate's numbers
+   * do not depend on which others run with it (the command line's shards: {@link replicateSeed}).
+   */
+  readonly streamSeed?: (replicate: number) => number;
+}
+
+/**
+ * Seed of replicate `index` of a calibration seeded with `seed` (our own contract, part of "same
+ * seed, same numbers" for sharded runs): MurmurHash3's 32-bit finaliser (fmix32; Appleby, public
+ * domain) of seed ⊕ (index + 1)·0x9E3779B9, so neighbouring replicates and seeds get unrelated
+ * streams. Depends only on (seed, index).
+ */
+export function replicateSeed(seed: number, index: number): number {
+  validateSeed(seed, 'seed');
+  if (!Number.isInteger(index) || index < 0) throw new InputError('replicate', 'an integer ≥ 0', index);
+  let h = (seed ^ Math.imul(index + 1, 0x9e3779b9)) >>> 0;
+  h ^= h >>> 16;
+  h = Math.imul(h, 0x85ebca6b);
+  h ^= h >>> 13;
+  h = Math.imul(h, 0xc2b2ae35);
+  h ^= h >>> 16;
+  return h >>> 0;
 }
 
 export interface CalibrationResult {
@@ -210,7 +234,7 @@ function run(side: DataSide, truth: Candidate, inv: Candidate, options: Calibrat
   const n = side.cellCount;
   const m = side.dataCount;
   const G = side.problem.operator;
-  const rng = new Random(options.seed);
+  const shared = options.streamSeed === undefined ? new Random(options.seed) : null;
   const u = new Float64Array(m);
   const hit68 = new Float64Array(n);
   const hit95 = new Float64Array(n);
@@ -228,6 +252,7 @@ function run(side: DataSide, truth: Candidate, inv: Candidate, options: Calibrat
       cancelled = true;
       break;
     }
+    const rng = shared ?? new Random(options.streamSeed!(r));
     // Copied: the dense route's draw is a fresh array, the FFT route's a view of the sampler's output.
     const mt = Float64Array.from(truth.draws.one(rng));
     const d = applyOperator(G, mt);

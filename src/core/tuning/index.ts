@@ -21,5 +21,5 @@ export {
   scalePrior,
 } from './criteria.ts';
 export type { DiscrepancyForm, DiscrepancyResult, LeaveOneOut, PriorCriteria, PriorPredictiveCheck } from './criteria.ts';
-export { BAND_LEVELS, calibrate, calibrationTable } from './calibration.ts';
+export { BAND_LEVELS, calibrate, calibrationTable, replicateSeed } from './calibration.ts';
 export type { CalibrationOptions, CalibrationResult, CalibrationTable } from './calibration.ts';
