@@ -14,6 +14,7 @@
  *   tells its `onRestart` listeners, who re-request what they need.
  */
 import { assertNever } from '../core/errors.ts';
+import { matchOperator, type Operator } from '../core/linalg/operator.ts';
 import type { PriorSpec } from '../core/prior/spec.ts';
 import type { Problem } from '../core/problems/spec.ts';
 import {
@@ -271,13 +272,10 @@ function copyProblem(problem: Problem): { problem: Problem; transfer: ArrayBuffe
     return b;
   };
   const g = problem.operator;
-  const operator =
-    g.kind === 'dense'
-      ? { kind: 'dense' as const, matrix: { ...g.matrix, data: c(g.matrix.data) } }
-      : {
-          kind: 'sparse' as const,
-          matrix: { ...g.matrix, rowPtr: c(g.matrix.rowPtr), colIdx: c(g.matrix.colIdx), values: c(g.matrix.values) },
-        };
+  const operator = matchOperator<Operator>(g, {
+    dense: (a) => ({ kind: 'dense', matrix: { ...a, data: c(a.data) } }),
+    sparse: (s) => ({ kind: 'sparse', matrix: { ...s, rowPtr: c(s.rowPtr), colIdx: c(s.colIdx), values: c(s.values) } }),
+  });
   const d = problem.data;
   const data = {
     values: c(d.values),

@@ -8,6 +8,7 @@ import { DEMOS } from '../core/problems/demos.ts';
 import type { Problem } from '../core/problems/spec.ts';
 import type { PriorSpec } from '../core/prior/spec.ts';
 import { cellCount } from '../core/grid/grid.ts';
+import { operatorColumnAbsSums, operatorEntries } from '../core/linalg/operator.ts';
 import { diagnosePriorAuto } from '../core/prior/structuredDiagnostics.ts';
 import { structuredPosteriorDraws, structuredResolutionRow } from '../core/inverse/structuredDraws.ts';
 import { wasmGemmAvailable } from '../core/wasm/gemmNT.ts';
@@ -76,26 +77,6 @@ export function structuredPartial(st: StructuredPosteriorState): PosteriorPartia
   };
 }
 
-/** Column sums of |G| (how strongly the data see each cell). */
-export function coverageOf(problem: Problem): Float64Array {
-  const g = problem.operator;
-  const out = new Float64Array(g.matrix.cols);
-  switch (g.kind) {
-    case 'dense': {
-      const { rows, cols, data } = g.matrix;
-      for (let i = 0; i < rows; i++) for (let j = 0; j < cols; j++) out[j] += Math.abs(data[i * cols + j]!);
-      return out;
-    }
-    case 'sparse': {
-      const { rowPtr, colIdx, values, rows } = g.matrix;
-      for (let i = 0; i < rows; i++) for (let p = rowPtr[i]!; p < rowPtr[i + 1]!; p++) out[colIdx[p]!] += Math.abs(values[p]!);
-      return out;
-    }
-    default:
-      return assertNever(g);
-  }
-}
-
 function sigmaOf(problem: Problem): Float64Array {
   const { sigma, covariance } = problem.data;
   if (sigma) return sigma.slice();
@@ -124,9 +105,9 @@ export function problemView(
     values: problem.data.values.slice(),
     sigma: sigmaOf(problem),
     truth: problem.truth ? problem.truth.slice() : null,
-    coverage: coverageOf(problem),
+    coverage: operatorColumnAbsSums(g),
     operatorKind: g.kind,
-    operatorNonZeros: g.kind === 'dense' ? g.matrix.rows * g.matrix.cols : g.matrix.values.length,
+    operatorNonZeros: operatorEntries(g).length,
     quantity: { name: problem.quantity?.name ?? 'value', unit: problem.quantity?.unit ?? '' },
     dataUnit: problem.data.unit ?? '',
     geometry: problem.data.geometry ?? null,

@@ -14,6 +14,10 @@ ops:
   leading_minor_det {"a", "k"}       -> numpy.linalg.det(a[:k, :k]) for k = 1..k (sign pattern of minors)
   matmul            {"a", "b"}       -> a @ b
   colsumsq          {"a"}            -> (a ** 2).sum(axis=0)
+  operator          {"g", "v", "u", "x", "c", "a", "b"}
+                                     -> every product of src/core/linalg/operator.ts with G built densely
+                                        from coordinates by numpy.add.at (duplicates summed): G v, Gᵀ u,
+                                        G X, G C, A Gᵀ, G Bᵀ, G C Gᵀ, G Gᵀ, Σ_i |G_ij|, and G itself
 """
 import json
 import sys
@@ -58,6 +62,24 @@ def run(case):
         return [float(np.linalg.det(a[:k, :k])) for k in range(1, case["k"] + 1)]
     if op == "colsumsq":
         return (to_np(case["a"]) ** 2).sum(axis=0).tolist()
+    if op == "operator":
+        g = case["g"]
+        G = np.zeros((g["rows"], g["cols"]))
+        np.add.at(G, (np.array(g["ri"], dtype=int), np.array(g["ci"], dtype=int)), np.array(g["v"], dtype=np.float64))
+        C = to_np(case["c"])
+        B = to_np(case["b"])
+        return {
+            "dense": from_np(G),
+            "gv": (G @ np.array(case["v"])).tolist(),
+            "gtu": (G.T @ np.array(case["u"])).tolist(),
+            "gx": from_np(G @ to_np(case["x"])),
+            "gc": from_np(G @ C),
+            "agt": from_np(to_np(case["a"]) @ G.T),
+            "gbt": from_np(G @ B.T),
+            "gcgt": from_np(G @ C @ G.T),
+            "ggt": from_np(G @ G.T),
+            "abscolsums": np.abs(G).sum(axis=0).tolist(),
+        }
     if op == "matmul":
         return from_np(to_np(case["a"]) @ to_np(case["b"]))
     raise ValueError(f"linalg_reference.py: unknown op {op!r}")

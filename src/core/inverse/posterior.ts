@@ -16,12 +16,12 @@
  * var_i carries an absolute error of a few ε·Cm_ii: posterior std below about √(ε Cm_ii)·10 is
  * rounding noise (use the model-space form if such tiny posterior variances matter).
  */
-import { assertNever, InputError, NotPositiveDefiniteError } from '../errors.ts';
+import { InputError, NotPositiveDefiniteError } from '../errors.ts';
 import { cellCount } from '../grid/grid.ts';
 import { cholesky, choleskySolve, solveLower, solveLowerMatrix } from '../linalg/cholesky.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
-import { applyOperator, applyOperatorTranspose, type Operator } from '../linalg/operator.ts';
-import { columnSumsOfSquares, mirrorLowerToUpper, multiplyNT, symmetricProductNT, transposeOf } from '../linalg/products.ts';
+import { applyOperator, applyOperatorTranspose, operatorTimesSymmetric, operatorTimesTransposedSymmetric } from '../linalg/operator.ts';
+import { columnSumsOfSquares, symmetricProductNT, transposeOf } from '../linalg/products.ts';
 import { covarianceMatrix, meanVector } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
@@ -87,61 +87,6 @@ function checkProblem(problem: Problem, Cm: Matrix, m0: ArrayLike<number>): void
   }
 }
 
-/** Bᵀ = G Cm, using Cm = Cmᵀ so that row k of Bᵀ is Σ_j G_kj (row j of Cm). */
-function operatorTimesCovariance(G: Operator, Cm: Matrix): Matrix {
-  const n = Cm.cols;
-  const m = G.matrix.rows;
-  switch (G.kind) {
-    case 'sparse': {
-      const out = matrix(m, n);
-      const o = out.data;
-      const c = Cm.data;
-      const { rowPtr, colIdx, values } = G.matrix;
-      for (let k = 0; k < m; k++) {
-        const ok = k * n;
-        for (let p = rowPtr[k]!; p < rowPtr[k + 1]!; p++) {
-          const g = values[p]!;
-          const oj = colIdx[p]! * n;
-          for (let i = 0; i < n; i++) o[ok + i] += g * c[oj + i]!;
-        }
-      }
-      return out;
-    }
-    case 'dense':
-      // G Cmᵀ = G Cm: the register-blocked NT product reads both along rows.
-      return multiplyNT(G.matrix, Cm);
-    default:
-      return assertNever(G);
-  }
-}
-
-/** K = G (Bᵀ)ᵀ = G Cm Gᵀ (M × M), exactly symmetric (lower triangle computed, then mirrored). */
-function dataSpaceCovariance(G: Operator, Bt: Matrix): Matrix {
-  const m = Bt.rows;
-  const n = Bt.cols;
-  switch (G.kind) {
-    case 'sparse': {
-      const K = matrix(m, m);
-      const kd = K.data;
-      const b = Bt.data;
-      const { rowPtr, colIdx, values } = G.matrix;
-      for (let k = 0; k < m; k++) {
-        for (let l = 0; l <= k; l++) {
-          const ol = l * n;
-          let s = 0;
-          for (let p = rowPtr[k]!; p < rowPtr[k + 1]!; p++) s += values[p]! * b[ol + colIdx[p]!]!;
-          kd[k * m + l] = s;
-        }
-      }
-      return mirrorLowerToUpper(K);
-    }
-    case 'dense':
-      return symmetricProductNT(G.matrix, Bt);
-    default:
-      return assertNever(G);
-  }
-}
-
 const K_HINT =
   'K = G Cm Gᵀ + Cd must be positive definite: check that every data σ is > 0 and a full data covariance ' +
   'is symmetric positive definite; if the data errors are tiny compared with G Cm Gᵀ, increase σ or add a nugget to the prior';
@@ -156,8 +101,8 @@ export function preparePosteriorFromCovariance(problem: Problem, Cm: Matrix, m0:
   const G = problem.operator;
   const m = G.matrix.rows;
   const mean0 = Float64Array.from(m0);
-  const Bt = operatorTimesCovariance(G, Cm);
-  const K = dataSpaceCovariance(G, Bt);
+  const Bt = operatorTimesSymmetric(G, Cm);
+  const K = operatorTimesTransposedSymmetric(G, Bt);
   const { sigma, covariance } = problem.data;
   let Ld: Matrix | undefined;
   if (sigma !== undefined) {

@@ -20,11 +20,11 @@
  * PUBLIC API: structuredProblem, prepareStructuredPosterior, structuredPosteriorStd,
  * structuredVarianceBlock, structuredPosteriorSummary.
  */
-import { assertNever, InputError, NotPositiveDefiniteError } from '../errors.ts';
+import { InputError, NotPositiveDefiniteError } from '../errors.ts';
 import { cellCount } from '../grid/grid.ts';
 import { cholesky, choleskySolve, solveLower, solveLowerMatrix } from '../linalg/cholesky.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
-import { applyOperator, type Operator } from '../linalg/operator.ts';
+import { addOperatorRow, applyOperator, operatorRowExtents, operatorRowInto, operatorTimesTransposedSymmetric, type Operator } from '../linalg/operator.ts';
 import { CirculantProduct, nonStationaryReason } from '../fft/covariance.ts';
 import { meanVector, validatePrior } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
@@ -121,19 +121,7 @@ function validateProblem(problem: Problem, n: number): number {
 
 /** Row k of G scaled by the std profile, s ⊙ g_k, written into `out` (length N). */
 function scaledRow(g: Operator, k: number, s: readonly number[] | undefined, out: Float64Array): Float64Array {
-  switch (g.kind) {
-    case 'dense':
-      out.set(g.matrix.data.subarray(k * g.matrix.cols, (k + 1) * g.matrix.cols));
-      break;
-    case 'sparse': {
-      out.fill(0);
-      const { rowPtr, colIdx, values } = g.matrix;
-      for (let q = rowPtr[k]!; q < rowPtr[k + 1]!; q++) out[colIdx[q]!] += values[q]!;
-      break;
-    }
-    default:
-      assertNever(g);
-  }
+  operatorRowInto(g, k, out);
   if (s !== undefined) for (let i = 0; i < out.length; i++) out[i] *= s[i]!;
   return out;
 }
@@ -230,7 +218,7 @@ export function finishBtRows(
   for (let j = 0; j < rows.length; j++) {
     const o = slots[j]! * n;
     if (s !== undefined) for (let i = 0; i < n; i++) bt[o + i] *= s[i]!;
-    if (nugget !== 0) addScaledRow(g, rows[j]!, nugget, bt, o);
+    if (nugget !== 0) addOperatorRow(g, rows[j]!, nugget, bt, o);
   }
 }
 
@@ -296,7 +284,7 @@ export function completeStructuredPosterior(
   const t0 = now();
 
   // K = G Bᵀᵀ + Cd (symmetrised), its factor, α.
-  const K = gTimesBtTransposed(g, Bt);
+  const K = operatorTimesTransposedSymmetric(g, Bt);
   addDataCovariance(K, problem);
   const f = cholesky(K, { inPlace: true });
   if (!f.ok) {
@@ -333,113 +321,21 @@ export function completeStructuredPosterior(
  * A transform's x-pass skips the grid rows that are zero in both vectors of its pair, so sparse
  * rows are sorted by the first, then the last grid row they touch: neighbours then cover similar
  * grid rows (for straight rays across the grid, rays along x pair with rays along x). Dense
- * operators keep the natural order. Any pairing gives the same products up to round-off; this one
+ * operators (every row touches every grid row) keep the natural order. Any pairing gives the same products up to round-off; this one
  * depends on G only, so cached spectra stay matched to their rows.
  */
 export function pairOrder(g: Operator, nx: number, m: number): Int32Array {
   const order = new Int32Array(m);
   for (let k = 0; k < m; k++) order[k] = k;
-  if (g.kind !== 'sparse') return order;
-  const { rowPtr, colIdx } = g.matrix;
+  const { first, last } = operatorRowExtents(g);
   const lo = new Int32Array(m);
   const hi = new Int32Array(m);
   for (let k = 0; k < m; k++) {
-    let a = Number.MAX_SAFE_INTEGER;
-    let b = -1;
-    for (let q = rowPtr[k]!; q < rowPtr[k + 1]!; q++) {
-      const iy = Math.floor(colIdx[q]! / nx);
-      if (iy < a) a = iy;
-      if (iy > b) b = iy;
-    }
-    lo[k] = b < 0 ? 0 : a;
-    hi[k] = b;
+    // Columns grow with the row index iy of the grid, so the extreme columns give the extreme rows.
+    lo[k] = last[k]! < 0 ? 0 : Math.floor(first[k]! / nx);
+    hi[k] = last[k]! < 0 ? -1 : Math.floor(last[k]! / nx);
   }
   return order.sort((x, y) => lo[x]! - lo[y]! || hi[x]! - hi[y]! || x - y);
-}
-
-function addScaledRow(g: Operator, k: number, c: number, out: Float64Array, o: number): void {
-  switch (g.kind) {
-    case 'dense': {
-      const { cols, data } = g.matrix;
-      for (let i = 0; i < cols; i++) out[o + i] += c * data[k * cols + i]!;
-      return;
-    }
-    case 'sparse': {
-      const { rowPtr, colIdx, values } = g.matrix;
-      for (let q = rowPtr[k]!; q < rowPtr[k + 1]!; q++) out[o + colIdx[q]!] += c * values[q]!;
-      return;
-    }
-    default:
-      assertNever(g);
-  }
-}
-
-/**
- * K = G Bᵀᵀ (M × M): K[a][b] = g_a · (Cm g_b). Only a ≥ b is computed, with row b of Bᵀ held in
- * cache while G streams past, and the upper triangle is mirrored (K is symmetric).
- */
-function gTimesBtTransposed(g: Operator, Bt: Matrix): Matrix {
-  const m = Bt.rows;
-  const n = Bt.cols;
-  const K = matrix(m, m);
-  const kd = K.data;
-  const bt = Bt.data;
-  switch (g.kind) {
-    case 'sparse': {
-      // Four rows b … b+3 of Bᵀ per sweep of G's row a: each index and value is loaded once for
-      // four sums (each sum keeps its own order, so the result equals the one-row loop).
-      const { rowPtr, colIdx, values } = g.matrix;
-      let b = 0;
-      for (; b + 4 <= m; b += 4) {
-        const o0 = b * n;
-        const o1 = o0 + n;
-        const o2 = o1 + n;
-        const o3 = o2 + n;
-        for (let a = b; a < m; a++) {
-          let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
-          for (let q = rowPtr[a]!, q1 = rowPtr[a + 1]!; q < q1; q++) {
-            const v = values[q]!;
-            const c = colIdx[q]!;
-            s0 += v * bt[o0 + c]!;
-            s1 += v * bt[o1 + c]!;
-            s2 += v * bt[o2 + c]!;
-            s3 += v * bt[o3 + c]!;
-          }
-          const ka = a * m + b;
-          kd[ka] = s0;
-          if (a >= b + 1) kd[ka + 1] = s1;
-          if (a >= b + 2) kd[ka + 2] = s2;
-          if (a >= b + 3) kd[ka + 3] = s3;
-        }
-      }
-      for (; b < m; b++) {
-        const o = b * n;
-        for (let a = b; a < m; a++) {
-          let sum = 0;
-          for (let q = rowPtr[a]!, q1 = rowPtr[a + 1]!; q < q1; q++) sum += values[q]! * bt[o + colIdx[q]!]!;
-          kd[a * m + b] = sum;
-        }
-      }
-      break;
-    }
-    case 'dense': {
-      const gd = g.matrix.data;
-      for (let b = 0; b < m; b++) {
-        const ob = b * n;
-        for (let a = b; a < m; a++) {
-          let sum = 0;
-          const oa = a * n;
-          for (let i = 0; i < n; i++) sum += gd[oa + i]! * bt[ob + i]!;
-          kd[a * m + b] = sum;
-        }
-      }
-      break;
-    }
-    default:
-      assertNever(g);
-  }
-  for (let a = 0; a < m; a++) for (let b = 0; b < a; b++) kd[b * m + a] = kd[a * m + b]!;
-  return K;
 }
 
 function addDataCovariance(K: Matrix, problem: Problem): void {

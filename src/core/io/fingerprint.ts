@@ -6,6 +6,7 @@
  * different problems; the hash is cyrb53-style mixing of 32-bit words, common practice, no source,
  * and is not meant to resist deliberate collisions).
  */
+import { matchOperator } from '../linalg/operator.ts';
 import type { Problem } from '../problems/spec.ts';
 
 function mix(h: [number, number], words: Uint32Array): void {
@@ -33,13 +34,8 @@ export function problemFingerprint(p: Problem): string {
   if (p.data.covariance) mix(h, words(p.data.covariance.data));
   const g = p.operator;
   mix(h, numbers([g.matrix.rows, g.matrix.cols]));
-  if (g.kind === 'dense') mix(h, words(g.matrix.data));
-  else {
-    const m = g.matrix as unknown as Record<string, unknown>;
-    for (const key of Object.keys(m).sort()) {
-      const v = m[key];
-      if (v instanceof Float64Array || v instanceof Int32Array || v instanceof Uint32Array) mix(h, words(v));
-    }
-  }
+  // A sparse operator's arrays in the order of their sorted names (the order of earlier fingerprints).
+  const arrays = matchOperator(g, { dense: (a) => [a.data], sparse: (s) => [s.colIdx, s.rowPtr, s.values] });
+  for (const a of arrays) mix(h, words(a));
   return h[0].toString(16).padStart(8, '0') + h[1].toString(16).padStart(8, '0');
 }

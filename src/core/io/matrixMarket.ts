@@ -20,9 +20,9 @@
  * The reader returns the core's Operator union: coordinate → sparse, array → dense.
  */
 import { matrix, type Matrix } from '../linalg/matrix.ts';
-import type { Operator } from '../linalg/operator.ts';
+import { matchOperator, type Operator } from '../linalg/operator.ts';
 import { sparseFromCoordinates, type SparseMatrix } from '../linalg/sparse.ts';
-import { assertNever, formatValue } from '../errors.ts';
+import { formatValue } from '../errors.ts';
 import { FileFormatError } from './errors.ts';
 import { decodeText } from './json.ts';
 import { parseNumberCell } from './csv.ts';
@@ -180,12 +180,8 @@ export function writeMatrixMarketCoordinate(s: SparseMatrix, comment?: string): 
 
 /** An operator in the Matrix Market form matching its kind. */
 export function writeMatrixMarket(g: Operator, comment?: string): string {
-  switch (g.kind) {
-    case 'dense':
-      return writeMatrixMarketArray(g.matrix, comment);
-    case 'sparse':
-      return writeMatrixMarketCoordinate(g.matrix, comment);
-    default:
-      return assertNever(g);
-  }
+  return matchOperator(g, {
+    dense: (a) => writeMatrixMarketArray(a, comment),
+    sparse: (s) => writeMatrixMarketCoordinate(s, comment),
+  });
 }

@@ -24,7 +24,7 @@
 import { cellCount, type Grid } from '../grid/grid.ts';
 import { covarianceDefect } from './covarianceCheck.ts';
 import type { Matrix } from '../linalg/matrix.ts';
-import { operatorToDense, type Operator } from '../linalg/operator.ts';
+import { operatorAsDense, type Operator } from '../linalg/operator.ts';
 import type { DataSpec, Problem } from '../problems/spec.ts';
 import { assertNever, formatValue } from '../errors.ts';
 import { checkFileSize, FileFormatError, type FileWarning } from './errors.ts';
@@ -198,7 +198,7 @@ export function parseCovarianceFile(f: NamedBytes, m: number): Matrix {
   else if (format === 'npy') c = npyToMatrix(f.name, parseNpy(f.name, f.bytes));
   else {
     const g = parseMatrixMarket(f.name, f.bytes);
-    c = g.kind === 'dense' ? g.matrix : operatorToDense(g);
+    c = operatorAsDense(g);
   }
   if (c.rows !== m || c.cols !== m) {
     throw new FileFormatError(f.name, `must hold a ${m} × ${m} matrix (one row and column per datum), got ${c.rows} × ${c.cols}`);

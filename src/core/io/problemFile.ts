@@ -26,7 +26,7 @@
 import { cellCount, type Grid } from '../grid/grid.ts';
 import { covarianceDefect } from './covarianceCheck.ts';
 import type { Matrix } from '../linalg/matrix.ts';
-import type { Operator } from '../linalg/operator.ts';
+import { matchOperator, operatorAsDense, operatorEntries, type Operator } from '../linalg/operator.ts';
 import { sparseFromCoordinates } from '../linalg/sparse.ts';
 import type { DataGeometry, DataSpec, Problem } from '../problems/spec.ts';
 import { gridBounds, pathsMissingGrid, rowList } from '../problems/geometry.ts';
@@ -40,7 +40,6 @@ import { headerNote, parseCsv } from './csv.ts';
 import { parseMatrixMarket, writeMatrixMarket } from './matrixMarket.ts';
 import { npyToMatrix, parseNpy, writeNpyMatrix } from './npy.ts';
 import { writeCsv } from './csv.ts';
-import { operatorToDense } from '../linalg/operator.ts';
 
 export const PROBLEM_KIND = 'priorscope.problem';
 export const PROBLEM_VERSION = 1;
@@ -297,7 +296,7 @@ export function checkProblemScales(file: string, problem: Problem, operatorField
   d.sigma?.forEach((v, i) => {
     if (v > SCALE_LIMIT || v < SCALE_MIN) fail(`data.sigma[${i}]`, `from ${SCALE_MIN} to ${SCALE_LIMIT}`, v);
   });
-  const entries = problem.operator.kind === 'dense' ? problem.operator.matrix.data : problem.operator.matrix.values;
+  const entries = operatorEntries(problem.operator);
   for (let k = 0; k < entries.length; k++) {
     if (Math.abs(entries[k]!) > SCALE_LIMIT) fail(operatorField, `a matrix with entries of magnitude ≤ ${SCALE_LIMIT}`, entries[k]!);
   }
@@ -348,25 +347,16 @@ export function problemToJson(problem: Problem, operatorFile?: string): Record<s
   if (g.unit !== undefined) grid.unit = g.unit;
   if (g.axes !== undefined) grid.axes = [...g.axes];
   let operator: Record<string, unknown>;
-  const op = problem.operator;
   if (operatorFile !== undefined) operator = { file: operatorFile };
   else {
-    switch (op.kind) {
-      case 'dense': {
-        const { rows, cols, data } = op.matrix;
-        operator = { dense: Array.from({ length: rows }, (_, i) => vec(data.subarray(i * cols, (i + 1) * cols))) };
-        break;
-      }
-      case 'sparse': {
-        const s = op.matrix;
+    operator = matchOperator<Record<string, unknown>>(problem.operator, {
+      dense: ({ rows, cols, data }) => ({ dense: Array.from({ length: rows }, (_, i) => vec(data.subarray(i * cols, (i + 1) * cols))) }),
+      sparse: (s) => {
         const rows: number[] = [];
         for (let i = 0; i < s.rows; i++) for (let p = s.rowPtr[i]!; p < s.rowPtr[i + 1]!; p++) rows.push(i);
-        operator = { sparse: { rows, cols: vec(s.colIdx), values: vec(s.values) } };
-        break;
-      }
-      default:
-        return assertNever(op);
-    }
+        return { sparse: { rows, cols: vec(s.colIdx), values: vec(s.values) } };
+      },
+    });
   }
   const d = problem.data;
   const data: Record<string, unknown> = { values: vec(d.values) };
@@ -394,9 +384,9 @@ export function problemToJson(problem: Problem, operatorFile?: string): Record<s
 /** Bytes of an operator in the sibling format chosen by the file name's extension. */
 export function encodeOperatorFile(name: string, g: Operator): Uint8Array {
   const lower = name.toLowerCase();
-  if (lower.endsWith('.npy')) return writeNpyMatrix(g.kind === 'dense' ? g.matrix : operatorToDense(g));
+  if (lower.endsWith('.npy')) return writeNpyMatrix(operatorAsDense(g));
   if (lower.endsWith('.mtx')) return new TextEncoder().encode(writeMatrixMarket(g));
-  if (lower.endsWith('.csv')) return new TextEncoder().encode(writeCsv(g.kind === 'dense' ? g.matrix : operatorToDense(g)));
+  if (lower.endsWith('.csv')) return new TextEncoder().encode(writeCsv(operatorAsDense(g)));
   throw new RangeError(`operator file name must end in .npy, .mtx or .csv, got ${JSON.stringify(name)}`);
 }
 

@@ -1,10 +1,18 @@
 /**
- * The forward operator G (M data × N cells): dense or sparse, behind one set of products.
+ * The forward operator G (M data × N cells), dense or sparse, and every product with it: G v, Gᵀ v,
+ * G X, G C for a symmetric C, A Gᵀ, G Bᵀ, G C Gᵀ, G Gᵀ, rows, column sums. This is the one module that
+ * looks at how G is stored; code that needs the storage itself (file writers, copies for transfer)
+ * goes through {@link matchOperator}, so a new kind of operator is added here and wherever tsc's
+ * exhaustiveness checks point.
+ *
+ * Each product keeps the loop order it had where it was written first, so results are unchanged bit for
+ * bit: sparse products sum each row's stored entries in storage order, dense ones use the
+ * register-blocked kernels of ./products.ts.
  */
 import { assertNever } from '../errors.ts';
 import { matrix, type Matrix } from './matrix.ts';
 import { denseTimesSparseTranspose, sparseTimesDense, type SparseMatrix } from './sparse.ts';
-import { multiply, multiplyNT } from './products.ts';
+import { mirrorLowerToUpper, multiply, multiplyNT, symmetricProductNT, symmetrise } from './products.ts';
 
 export type Operator =
   | { readonly kind: 'dense'; readonly matrix: Matrix }
@@ -12,6 +20,23 @@ export type Operator =
 
 export function operatorShape(g: Operator): { rows: number; cols: number } {
   return { rows: g.matrix.rows, cols: g.matrix.cols };
+}
+
+/** The storage of G by kind (file writers, copies for transfer): `cases[g.kind](g.matrix)`. */
+export function matchOperator<T>(g: Operator, cases: { readonly dense: (a: Matrix) => T; readonly sparse: (s: SparseMatrix) => T }): T {
+  switch (g.kind) {
+    case 'dense':
+      return cases.dense(g.matrix);
+    case 'sparse':
+      return cases.sparse(g.matrix);
+    default:
+      return assertNever(g);
+  }
+}
+
+/** The stored numbers of G (shared, do not write): all M·N entries when dense, the stored non-zeros when sparse. */
+export function operatorEntries(g: Operator): Float64Array {
+  return matchOperator(g, { dense: (a) => a.data, sparse: (s) => s.values });
 }
 
 /** y = G x. */
@@ -68,13 +93,14 @@ export function applyOperatorTranspose(g: Operator, x: ArrayLike<number>): Float
   }
 }
 
-/** Row i of G as a dense vector of length N. */
-export function operatorRow(g: Operator, i: number): Float64Array {
+/** Row i of G written into `out` (length N), which is returned. */
+export function operatorRowInto(g: Operator, i: number, out: Float64Array): Float64Array {
   switch (g.kind) {
     case 'dense':
-      return g.matrix.data.slice(i * g.matrix.cols, (i + 1) * g.matrix.cols);
+      out.set(g.matrix.data.subarray(i * g.matrix.cols, (i + 1) * g.matrix.cols));
+      return out;
     case 'sparse': {
-      const out = new Float64Array(g.matrix.cols);
+      out.fill(0);
       const { rowPtr, colIdx, values } = g.matrix;
       for (let p = rowPtr[i]!; p < rowPtr[i + 1]!; p++) out[colIdx[p]!] += values[p]!;
       return out;
@@ -84,12 +110,93 @@ export function operatorRow(g: Operator, i: number): Float64Array {
   }
 }
 
+/** Row i of G as a new dense vector of length N. */
+export function operatorRow(g: Operator, i: number): Float64Array {
+  return operatorRowInto(g, i, new Float64Array(g.matrix.cols));
+}
+
+/** out[offset + j] += c G_ij for every column j (dense) or every stored entry of row i (sparse). */
+export function addOperatorRow(g: Operator, i: number, c: number, out: Float64Array, offset = 0): void {
+  switch (g.kind) {
+    case 'dense': {
+      const { cols, data } = g.matrix;
+      for (let j = 0; j < cols; j++) out[offset + j] += c * data[i * cols + j]!;
+      return;
+    }
+    case 'sparse': {
+      const { rowPtr, colIdx, values } = g.matrix;
+      for (let p = rowPtr[i]!; p < rowPtr[i + 1]!; p++) out[offset + colIdx[p]!] += c * values[p]!;
+      return;
+    }
+    default:
+      assertNever(g);
+  }
+}
+
+/** Column sums of |G|, Σ_i |G_ij| (length N): how strongly the data see each cell. */
+export function operatorColumnAbsSums(g: Operator): Float64Array {
+  const out = new Float64Array(g.matrix.cols);
+  switch (g.kind) {
+    case 'dense': {
+      const { rows, cols, data } = g.matrix;
+      for (let i = 0; i < rows; i++) for (let j = 0; j < cols; j++) out[j] += Math.abs(data[i * cols + j]!);
+      return out;
+    }
+    case 'sparse': {
+      const { rowPtr, colIdx, values, rows } = g.matrix;
+      for (let i = 0; i < rows; i++) for (let p = rowPtr[i]!; p < rowPtr[i + 1]!; p++) out[colIdx[p]!] += Math.abs(values[p]!);
+      return out;
+    }
+    default:
+      return assertNever(g);
+  }
+}
+
+/**
+ * For each row of G, the smallest and largest column holding a stored entry (last = −1 for a sparse
+ * row with none). A dense row stores every column: 0 and N − 1.
+ */
+export function operatorRowExtents(g: Operator): { readonly first: Int32Array; readonly last: Int32Array } {
+  const { rows, cols } = g.matrix;
+  const first = new Int32Array(rows);
+  const last = new Int32Array(rows);
+  switch (g.kind) {
+    case 'dense':
+      last.fill(cols - 1);
+      break;
+    case 'sparse': {
+      const { rowPtr, colIdx } = g.matrix;
+      for (let i = 0; i < rows; i++) {
+        let a = cols;
+        let b = -1;
+        for (let p = rowPtr[i]!; p < rowPtr[i + 1]!; p++) {
+          const c = colIdx[p]!;
+          if (c < a) a = c;
+          if (c > b) b = c;
+        }
+        first[i] = b < 0 ? 0 : a;
+        last[i] = b;
+      }
+      break;
+    }
+    default:
+      assertNever(g);
+  }
+  return { first, last };
+}
+
 /** G as a dense M × N matrix (a copy). */
 export function operatorToDense(g: Operator): Matrix {
   const { rows, cols } = g.matrix;
   const out = matrix(rows, cols);
-  for (let i = 0; i < rows; i++) out.data.set(operatorRow(g, i), i * cols);
+  const row = new Float64Array(cols);
+  for (let i = 0; i < rows; i++) out.data.set(operatorRowInto(g, i, row), i * cols);
   return out;
+}
+
+/** G as a dense M × N matrix: G's own storage when it is dense (do not write to it), else a copy. */
+export function operatorAsDense(g: Operator): Matrix {
+  return g.kind === 'dense' ? g.matrix : operatorToDense(g);
 }
 
 /** G X for X dense N × k (M × k result). */
@@ -104,6 +211,21 @@ export function operatorTimesDense(g: Operator, x: Matrix): Matrix {
   }
 }
 
+/**
+ * G C (M × N) for a symmetric N × N matrix C, e.g. Bᵀ = G Cm. Dense G: G Cᵀ by the NT kernel, which
+ * reads both operands along rows and needs no transpose of C; sparse G: row k is Σ_j G_kj (row j of C).
+ */
+export function operatorTimesSymmetric(g: Operator, c: Matrix): Matrix {
+  switch (g.kind) {
+    case 'dense':
+      return multiplyNT(g.matrix, c);
+    case 'sparse':
+      return sparseTimesDense(g.matrix, c);
+    default:
+      return assertNever(g);
+  }
+}
+
 /** A Gᵀ for A dense r × N (r × M result), e.g. B = Cm Gᵀ. */
 export function denseTimesOperatorTranspose(a: Matrix, g: Operator): Matrix {
   switch (g.kind) {
@@ -111,6 +233,155 @@ export function denseTimesOperatorTranspose(a: Matrix, g: Operator): Matrix {
       return multiplyNT(a, g.matrix);
     case 'sparse':
       return denseTimesSparseTranspose(a, g.matrix);
+    default:
+      return assertNever(g);
+  }
+}
+
+/** G Bᵀ (M × k) for B dense k × N: entry (a, q) = g_a · b_q. */
+export function operatorTimesTransposed(g: Operator, b: Matrix): Matrix {
+  const { rows: m, cols: n } = g.matrix;
+  if (b.cols !== n) throw new RangeError(`operatorTimesTransposed: G is ${m}×${n}, B is ${b.rows}×${b.cols} (expected ${n} columns)`);
+  switch (g.kind) {
+    case 'dense':
+      return multiplyNT(g.matrix, b);
+    case 'sparse': {
+      const k = b.rows;
+      const out = matrix(m, k);
+      const od = out.data;
+      const bd = b.data;
+      const { rowPtr, colIdx, values } = g.matrix;
+      for (let a = 0; a < m; a++) {
+        const p0 = rowPtr[a]!;
+        const p1 = rowPtr[a + 1]!;
+        for (let q = 0; q < k; q++) {
+          const o = q * n;
+          let sum = 0;
+          for (let p = p0; p < p1; p++) sum += values[p]! * bd[o + colIdx[p]!]!;
+          od[a * k + q] = sum;
+        }
+      }
+      return out;
+    }
+    default:
+      return assertNever(g);
+  }
+}
+
+/**
+ * K = G Bᵀ (M × M) when the caller knows K is symmetric, as for B = G Cm with Cm symmetric
+ * (K = G Cm Gᵀ): the lower triangle is computed and mirrored onto the upper one. Dense G: the
+ * register-blocked NT kernel. Sparse G: four rows b … b+3 of B per sweep of G's row a, so each
+ * stored index and value is loaded once for four sums (each sum keeps its own order, so the result
+ * equals the one-row loop).
+ */
+export function operatorTimesTransposedSymmetric(g: Operator, b: Matrix): Matrix {
+  const { rows: m, cols: n } = g.matrix;
+  if (b.rows !== m || b.cols !== n) {
+    throw new RangeError(`operatorTimesTransposedSymmetric: G is ${m}×${n}, B is ${b.rows}×${b.cols} (expected equal shapes)`);
+  }
+  switch (g.kind) {
+    case 'dense':
+      return symmetricProductNT(g.matrix, b);
+    case 'sparse': {
+      const K = matrix(m, m);
+      const kd = K.data;
+      const bd = b.data;
+      const { rowPtr, colIdx, values } = g.matrix;
+      let c = 0;
+      for (; c + 4 <= m; c += 4) {
+        const o0 = c * n;
+        const o1 = o0 + n;
+        const o2 = o1 + n;
+        const o3 = o2 + n;
+        for (let a = c; a < m; a++) {
+          let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
+          for (let p = rowPtr[a]!, p1 = rowPtr[a + 1]!; p < p1; p++) {
+            const v = values[p]!;
+            const j = colIdx[p]!;
+            s0 += v * bd[o0 + j]!;
+            s1 += v * bd[o1 + j]!;
+            s2 += v * bd[o2 + j]!;
+            s3 += v * bd[o3 + j]!;
+          }
+          const ka = a * m + c;
+          kd[ka] = s0;
+          if (a >= c + 1) kd[ka + 1] = s1;
+          if (a >= c + 2) kd[ka + 2] = s2;
+          if (a >= c + 3) kd[ka + 3] = s3;
+        }
+      }
+      for (; c < m; c++) {
+        const o = c * n;
+        for (let a = c; a < m; a++) {
+          let sum = 0;
+          for (let p = rowPtr[a]!, p1 = rowPtr[a + 1]!; p < p1; p++) sum += values[p]! * bd[o + colIdx[p]!]!;
+          kd[a * m + c] = sum;
+        }
+      }
+      return mirrorLowerToUpper(K);
+    }
+    default:
+      return assertNever(g);
+  }
+}
+
+/**
+ * P = G C Gᵀ (M × M) for a symmetric N × N matrix C. Dense G: the blocked NT kernels, G C = G Cᵀ, then
+ * P = (G C) Gᵀ with the lower half mirrored. Sparse G: G C by sparse row sums, then row i of P is
+ * G (G C)_i·ᵀ (C symmetric), symmetrised by averaging so that round-off does not leave P
+ * unsymmetric; nnz(G)·N + M·nnz(G) flops.
+ */
+export function projectCovariance(g: Operator, c: Matrix): Matrix {
+  const n = g.matrix.cols;
+  if (c.rows !== n || c.cols !== n) throw new RangeError(`projectCovariance: G has ${n} columns, C is ${c.rows}×${c.cols}`);
+  if (g.kind === 'dense') return symmetricProductNT(multiplyNT(g.matrix, c), g.matrix);
+  const gc = sparseTimesDense(g.matrix, c);
+  const m = gc.rows;
+  const p = matrix(m, m);
+  for (let i = 0; i < m; i++) p.data.set(applyOperator(g, gc.data.subarray(i * n, (i + 1) * n)), i * m);
+  symmetrise(p);
+  return p;
+}
+
+/**
+ * G Gᵀ (M × M), the projection of the identity covariance (the nugget's shape in data space). A sparse
+ * G is never densified: each row is scattered into a length-N scratch row, then dotted with the stored
+ * entries of every earlier row (M·nnz(G) flops, N doubles of memory); with columns sorted and unique in
+ * each row (as ./sparse.ts builds them) the sums are those of the dense loop.
+ */
+export function operatorGram(g: Operator): Matrix {
+  const { rows: m, cols: n } = g.matrix;
+  const out = matrix(m, m);
+  const od = out.data;
+  switch (g.kind) {
+    case 'dense': {
+      const gd = g.matrix.data;
+      for (let i = 0; i < m; i++) {
+        for (let k = 0; k <= i; k++) {
+          let s = 0;
+          for (let j = 0; j < n; j++) s += gd[i * n + j]! * gd[k * n + j]!;
+          od[i * m + k] = s;
+          od[k * m + i] = s;
+        }
+      }
+      return out;
+    }
+    case 'sparse': {
+      const { rowPtr, colIdx, values } = g.matrix;
+      const row = new Float64Array(n);
+      for (let i = 0; i < m; i++) {
+        for (let p = rowPtr[i]!; p < rowPtr[i + 1]!; p++) row[colIdx[p]!] += values[p]!;
+        for (let k = 0; k <= i; k++) {
+          let s = 0;
+          for (let p = rowPtr[k]!; p < rowPtr[k + 1]!; p++) s += values[p]! * row[colIdx[p]!]!;
+          od[i * m + k] = s;
+          od[k * m + i] = s;
+        }
+        for (let p = rowPtr[i]!; p < rowPtr[i + 1]!; p++) row[colIdx[p]!] = 0;
+      }
+      return out;
+    }
     default:
       return assertNever(g);
   }

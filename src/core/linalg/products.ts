@@ -81,6 +81,19 @@ export function transposeOf(a: Matrix): Matrix {
   return t;
 }
 
+/** A ← (A + Aᵀ)/2 in place (square A). */
+export function symmetrise(a: Matrix): void {
+  const n = a.rows;
+  const d = a.data;
+  for (let i = 0; i < n; i++) {
+    for (let j = 0; j < i; j++) {
+      const v = 0.5 * (d[i * n + j]! + d[j * n + i]!);
+      d[i * n + j] = v;
+      d[j * n + i] = v;
+    }
+  }
+}
+
 /** Copy the strict lower triangle of a square matrix onto its upper triangle (in place). */
 export function mirrorLowerToUpper(a: Matrix): Matrix {
   const n = a.rows;

@@ -11,10 +11,11 @@ import { InputError } from '../errors.ts';
 import { choleskySolve, solveLower, solveLowerMatrix } from '../linalg/cholesky.ts';
 import { symmetricEigen } from '../linalg/eigen.ts';
 import { identity, matTvec, transpose, type Matrix } from '../linalg/matrix.ts';
+import { symmetrise } from '../linalg/products.ts';
 import { chiSquareInterval, regularizedGammaP, regularizedGammaQ } from '../inverse/chisquare.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
-import { LOG_2PI, logEvidenceOf, prepareDataSide, priorDataSpace, symmetrise, type DataSide, type PriorDataSpace, type RouteOptions } from './dataSpace.ts';
+import { LOG_2PI, logEvidenceOf, prepareDataSide, priorDataSpace, type DataSide, type PriorDataSpace, type RouteOptions } from './dataSpace.ts';
 
 /**
  * One line for the UI on why the criteria can disagree: they answer different questions.

@@ -18,12 +18,11 @@ import { structuredProblem, type StructuredProblem } from '../inverse/structured
 import { cellCount } from '../grid/grid.ts';
 import { cholesky, logDetFromCholesky, solveLower } from '../linalg/cholesky.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
-import { multiplyNT, symmetricProductNT } from '../linalg/products.ts';
-import { applyOperator, operatorShape, operatorToDense, type Operator } from '../linalg/operator.ts';
+import { applyOperator, operatorShape, projectCovariance } from '../linalg/operator.ts';
 import { covarianceMatrix, meanVector } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
-import { operatorGramSparse, structuredProjection, TUNING_DENSE_LIMIT, tuningRoute, type TuningRoute } from './projected.ts';
+import { structuredProjection, TUNING_DENSE_LIMIT, tuningRoute, type TuningRoute } from './projected.ts';
 
 import { LOG_2PI } from '../inverse/evidence.ts';
 
@@ -102,78 +101,6 @@ export function prepareDataSide(problem: Problem, options: RouteOptions = {}): D
   return { problem, dataCount: m, cellCount: cells, cdFactor: f.factor, cd, diagonalCd: false, structured, route };
 }
 
-/** G C (M × N) for a dense N × N matrix C, using the operator's sparsity. */
-export function operatorTimes(g: Operator, c: Matrix): Matrix {
-  const { rows: m, cols: n } = operatorShape(g);
-  if (c.rows !== n) throw new RangeError(`operatorTimes: G has ${n} columns, C has ${c.rows} rows`);
-  const k = c.cols;
-  const out = matrix(m, k);
-  const o = out.data;
-  const cd = c.data;
-  switch (g.kind) {
-    case 'dense': {
-      const gd = g.matrix.data;
-      for (let i = 0; i < m; i++) {
-        const oi = i * k;
-        for (let j = 0; j < n; j++) {
-          const gij = gd[i * n + j]!;
-          if (gij === 0) continue;
-          const oj = j * k;
-          for (let q = 0; q < k; q++) o[oi + q] += gij * cd[oj + q]!;
-        }
-      }
-      return out;
-    }
-    case 'sparse': {
-      const { rowPtr, colIdx, values } = g.matrix;
-      for (let i = 0; i < m; i++) {
-        const oi = i * k;
-        for (let p = rowPtr[i]!; p < rowPtr[i + 1]!; p++) {
-          const gij = values[p]!;
-          const oj = colIdx[p]! * k;
-          for (let q = 0; q < k; q++) o[oi + q] += gij * cd[oj + q]!;
-        }
-      }
-      return out;
-    }
-    default:
-      return assertNever(g);
-  }
-}
-
-/**
- * P = G C Gᵀ (M × M) for a symmetric N × N matrix C: G C by {@link operatorTimes}, then each row
- * of P is G applied to a row of G C (C symmetric ⇒ (G C Gᵀ)_i· = G (G C)_i·ᵀ). Symmetrised by
- * averaging so that round-off does not leave P unsymmetric. Cost: nnz(G)·N + M·nnz(G) flops.
- * A dense G goes through the register-blocked products of ../linalg/products.ts instead.
- */
-export function projectCovariance(g: Operator, c: Matrix): Matrix {
-  if (g.kind === 'dense') {
-    // Dense G: the blocked NT kernels; G C = G Cᵀ (C symmetric), then P = (G C) Gᵀ, lower half mirrored.
-    return symmetricProductNT(multiplyNT(g.matrix, c), g.matrix);
-  }
-  const gc = operatorTimes(g, c);
-  const m = gc.rows;
-  const n = gc.cols;
-  const p = matrix(m, m);
-  for (let i = 0; i < m; i++) p.data.set(applyOperator(g, gc.data.subarray(i * n, (i + 1) * n)), i * m);
-  symmetrise(p);
-  return p;
-}
-
-/** A ← (A + Aᵀ)/2 in place. */
-export function symmetrise(a: Matrix): void {
-  const n = a.rows;
-  const d = a.data;
-  for (let i = 0; i < n; i++) {
-    for (let j = 0; j < i; j++) {
-      const v = 0.5 * (d[i * n + j]! + d[j * n + i]!);
-      d[i * n + j] = v;
-      d[j * n + i] = v;
-    }
-  }
-}
-
 /** a + b (new matrix). */
 export function addMatrices(a: Matrix, b: Matrix): Matrix {
   const out = matrix(a.rows, a.cols, a.data.slice());
@@ -183,7 +110,7 @@ export function addMatrices(a: Matrix, b: Matrix): Matrix {
 
 /**
  * P = G Cm Gᵀ (M × M) for the prior on the problem's grid: the dense route (covarianceMatrix, then
- * {@link projectCovariance}) or the FFT route (./projected.ts structuredProjection), chosen by
+ * ../linalg/operator.ts projectCovariance) or the FFT route (./projected.ts structuredProjection), chosen by
  * {@link tuningRoute} unless `options.route` forces one. Both give the same matrix to round-off
  * (test/core/tuning/projected.test.ts). Validates the prior (InputError naming the field); a forced
  * 'fft' for a prior that is not stationary on the grid is an InputError naming `route`.
@@ -296,25 +223,4 @@ export function generalMaternAvailable(): boolean {
 /** Check the control's abort flag. */
 export function aborted(control: TuningControl | undefined): boolean {
   return control?.signal?.aborted === true;
-}
-
-/**
- * G Gᵀ (M × M): the projection of the identity covariance (the nugget's shape in data space). A
- * sparse G on more than TUNING_DENSE_LIMIT cells is not densified (./projected.ts
- * operatorGramSparse, same sums up to their order); below, the dense loop as before.
- */
-export function operatorGram(g: Operator): Matrix {
-  if (g.kind === 'sparse' && g.matrix.cols > TUNING_DENSE_LIMIT) return operatorGramSparse(g);
-  const gd = operatorToDense(g);
-  const { rows: m, cols: n } = gd;
-  const out = matrix(m, m);
-  for (let i = 0; i < m; i++) {
-    for (let k = 0; k <= i; k++) {
-      let s = 0;
-      for (let j = 0; j < n; j++) s += gd.data[i * n + j]! * gd.data[k * n + j]!;
-      out.data[i * m + k] = s;
-      out.data[k * m + i] = s;
-    }
-  }
-  return out;
 }

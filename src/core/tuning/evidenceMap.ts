@@ -36,6 +36,8 @@ import { kernelsTaking, kernelTakes } from '../kernels/table.ts';
 import { cholesky, logDetFromCholesky, solveLower, solveLowerMatrix } from '../linalg/cholesky.ts';
 import { symmetricEigen } from '../linalg/eigen.ts';
 import { matrix, matTvec, transpose, type Matrix } from '../linalg/matrix.ts';
+import { operatorGram } from '../linalg/operator.ts';
+import { symmetrise } from '../linalg/products.ts';
 import { validatePrior } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
@@ -49,11 +51,9 @@ import {
   priorDataSpace,
   priorResidual,
   sideProjection,
-  symmetrise,
   type DataSide,
   type RouteOptions,
   type TuningControl,
-  operatorGram,
 } from './dataSpace.ts';
 
 /** A log-spaced axis: `count` values from `min` to `max` inclusive (count = 1 gives [min]). */

@@ -26,13 +26,12 @@
  * The route choice and the dense route live in ./dataSpace.ts (projectedPriorCovariance,
  * projectCovariance); this file holds the rule and the FFT route.
  *
- * PUBLIC API: TUNING_DENSE_LIMIT, TuningRoute, tuningRoute, structuredProjection, operatorGramSparse.
+ * PUBLIC API: TUNING_DENSE_LIMIT, TuningRoute, tuningRoute, structuredProjection.
  */
-import { assertNever } from '../errors.ts';
 import { cellCount } from '../grid/grid.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
-import { multiplyNT } from '../linalg/products.ts';
-import type { Operator } from '../linalg/operator.ts';
+import { symmetrise } from '../linalg/products.ts';
+import { operatorTimesTransposed } from '../linalg/operator.ts';
 import { nonStationaryReason } from '../fft/covariance.ts';
 import { computeBtPairs, finishBtRows, keepSpectra, matchingSpectra, structuredSetup, type StructuredProblem } from '../inverse/structured.ts';
 import type { PriorSpec } from '../prior/spec.ts';
@@ -50,19 +49,6 @@ const BT_BLOCK_ROWS = 32;
 export function tuningRoute(problem: Problem, prior: PriorSpec): TuningRoute {
   if (cellCount(problem.grid) <= TUNING_DENSE_LIMIT) return 'dense';
   return nonStationaryReason(problem.grid, prior) === null ? 'fft' : 'dense';
-}
-
-/** A ← (A + Aᵀ)/2 in place; returns A. */
-function mirrorAverage(a: Matrix, m: number): Matrix {
-  const d = a.data;
-  for (let i = 0; i < m; i++) {
-    for (let j = 0; j < i; j++) {
-      const v = 0.5 * (d[i * m + j]! + d[j * m + i]!);
-      d[i * m + j] = v;
-      d[j * m + i] = v;
-    }
-  }
-  return a;
 }
 
 /**
@@ -97,52 +83,10 @@ export function structuredProjection(holder: StructuredProblem, prior: PriorSpec
     finishBtRows(g, s, nugget, rows, sl, bt, n);
     // Columns rows[q] of P: P_a,rows[q] = g_a · (Bᵀ)_rows[q].
     const k = j1 - j0;
-    switch (g.kind) {
-      case 'sparse': {
-        const { rowPtr, colIdx, values } = g.matrix;
-        for (let a = 0; a < m; a++) {
-          const q0 = rowPtr[a]!;
-          const q1 = rowPtr[a + 1]!;
-          const oa = a * m;
-          for (let q = 0; q < k; q++) {
-            const o = q * n;
-            let sum = 0;
-            for (let t = q0; t < q1; t++) sum += values[t]! * bt[o + colIdx[t]!]!;
-            pd[oa + rows[q]!] = sum;
-          }
-        }
-        break;
-      }
-      case 'dense': {
-        const part = multiplyNT(g.matrix, { rows: k, cols: n, data: bt.subarray(0, k * n) });
-        for (let a = 0; a < m; a++) for (let q = 0; q < k; q++) pd[a * m + rows[q]!] = part.data[a * k + q]!;
-        break;
-      }
-      default:
-        assertNever(g);
-    }
+    const part = operatorTimesTransposed(g, { rows: k, cols: n, data: bt.subarray(0, k * n) });
+    for (let a = 0; a < m; a++) for (let q = 0; q < k; q++) pd[a * m + rows[q]!] = part.data[a * k + q]!;
   }
   if (save !== null) keepSpectra(holder, cp, s, save);
-  return mirrorAverage(p, m);
-}
-
-/**
- * G Gᵀ (M × M) of a sparse G without densifying it: each row of G scattered into a length-N
- * scratch row, then dotted with every row of G (M·nnz(G) flops, N doubles of memory).
- */
-export function operatorGramSparse(g: Operator & { kind: 'sparse' }): Matrix {
-  const { rows: m, cols: n, rowPtr, colIdx, values } = g.matrix;
-  const out = matrix(m, m);
-  const row = new Float64Array(n);
-  for (let i = 0; i < m; i++) {
-    for (let q = rowPtr[i]!; q < rowPtr[i + 1]!; q++) row[colIdx[q]!] += values[q]!;
-    for (let k = 0; k <= i; k++) {
-      let s = 0;
-      for (let q = rowPtr[k]!; q < rowPtr[k + 1]!; q++) s += values[q]! * row[colIdx[q]!]!;
-      out.data[i * m + k] = s;
-      out.data[k * m + i] = s;
-    }
-    for (let q = rowPtr[i]!; q < rowPtr[i + 1]!; q++) row[colIdx[q]!] = 0;
-  }
-  return out;
+  symmetrise(p);
+  return p;
 }

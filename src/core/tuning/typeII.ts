@@ -53,6 +53,7 @@ import { DEFAULT_MATERN_NU, type Term } from '../kernels/spec.ts';
 import { kernelTakes } from '../kernels/table.ts';
 import { cholesky, choleskySolve, solveLowerMatrix } from '../linalg/cholesky.ts';
 import { identity, matrix, type Matrix } from '../linalg/matrix.ts';
+import { operatorGram } from '../linalg/operator.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
 import { validatePrior } from '../prior/covariance.ts';
@@ -66,7 +67,6 @@ import {
   gaussianLogDensity,
   generalMaternAvailable,
   logEvidenceOf,
-  operatorGram,
   prepareDataSide,
   priorDataSpace,
   priorResidual,
