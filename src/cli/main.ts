@@ -2,8 +2,10 @@
  * `priorscope <command> [options]`: the headless command line over the same core as the browser.
  *
  * Exit codes: 0 ok; 1 internal error (a bug: please report it); 2 bad input (one line on stderr
- * naming the file, the field and what was expected); 3 `check` found the prior not positive
- * definite (also when a posterior or sample fails because a covariance does not factor); 4 `check`
+ * naming the file, the field and what was expected); 3 a negative verdict: `check` found the prior
+ * not positive definite (also when a posterior or sample fails because a covariance does not
+ * factor), `fit` did not converge to a usable optimum, `score` found no plausible prior, `profile`
+ * no value that factors; 4 `check`
  * could not decide positive definiteness (neither sign proven at this size; "nextStep" says what to do).
  * JSON goes to stdout unless --out FILE; warnings and progress (on a terminal) go to stderr.
  * Set PRIORSCOPE_DEBUG=1 to see stack traces of internal errors.
@@ -38,8 +40,9 @@ export function mainHelp(): string {
     "file's folder (symbolic links resolved) unless --read-from FOLDERS allows others; regular files only, up to 512 MiB.",
     '',
     'Output: JSON on stdout unless --out FILE. Exit codes: 0 ok, 2 bad input (one line on stderr naming the',
-    'file, the field and what was expected), 3 prior proven not positive definite, 4 positive definiteness not',
-    'decided (check only), 1 internal error.',
+    'file, the field and what was expected), 3 a negative verdict (check: prior proven not positive definite;',
+    'fit: not converged or optimum not usable; score: no prior plausible; profile: no value factors), 4 positive',
+    'definiteness not decided (check only), 1 internal error. Heavy studies: --shard K/N, then merge.',
     '',
   ];
   return lines.join('\n');
