@@ -63,7 +63,7 @@ export function structuredPartial(st: StructuredPosteriorState): PosteriorPartia
   const m = problem.data.values.length;
   const { predicted, residuals, chi2 } = structuredDataFit(st);
   const priorStd = new Float64Array(n);
-  for (let i = 0; i < n; i++) priorStd[i] = Math.sqrt(priorVariance[i]!);
+  for (let i = 0; i < n; i++) priorStd[i] = Math.sqrt(priorVariance[i]);
   return {
     path: 'fft',
     mean: mean.slice(),
@@ -83,7 +83,7 @@ function sigmaOf(problem: Problem): Float64Array {
   if (covariance) {
     const m = covariance.rows;
     const out = new Float64Array(m);
-    for (let i = 0; i < m; i++) out[i] = Math.sqrt(covariance.data[i * m + i]!);
+    for (let i = 0; i < m; i++) out[i] = Math.sqrt(covariance.data[i * m + i]);
     return out;
   }
   throw new InputError('problem.data', 'sigma or covariance', undefined);

@@ -149,17 +149,17 @@ export async function mapByRows(
       cancelled = true;
       break;
     }
-    const L = lengths[i]!;
+    const L = lengths[i];
     const row = evidenceMap(problem, prior, { term, lengths: { min: L, max: L, count: 1 }, variances: varianceAxis, structured });
     out.set(row.logEvidence, i * nv);
-    methods.push(row.methodByLength[0]!);
+    methods.push(row.methodByLength[0]);
     if (row.note !== undefined) note = row.note;
     progress(`evidence map: length ${i + 1} of ${nl}`, (i + 1) / nl);
   }
   let best: EvidenceMap['best'] = null;
   for (let k = 0; k < out.length; k++) {
-    const v = out[k]!;
-    if (Number.isFinite(v) && (best === null || v > best.logEvidence)) best = { length: lengths[Math.floor(k / nv)]!, variance: variances[k % nv]!, logEvidence: v, index: k };
+    const v = out[k];
+    if (Number.isFinite(v) && (best === null || v > best.logEvidence)) best = { length: lengths[Math.floor(k / nv)], variance: variances[k % nv], logEvidence: v, index: k };
   }
   const method: EvidenceMethod = methods.length > 0 && methods.every((m) => m === 'eigen') ? 'eigen' : 'cholesky';
   return { term, lengths, variances, logEvidence: out, method, methodByLength: methods, best, cancelled, ...(note !== undefined ? { note } : {}) };
@@ -182,13 +182,13 @@ async function profile(
       cancelled = true;
       break;
     }
-    out[k] = evidenceProfile(problem, r.prior, r.which, { values: [values[k]!], structured }).logEvidence[0]!;
+    out[k] = evidenceProfile(problem, r.prior, r.which, { values: [values[k]], structured }).logEvidence[0];
     progress(`ν profile: value ${k + 1} of ${values.length}`, (k + 1) / values.length);
   }
   let best: EvidenceProfile['best'] = null;
   for (let k = 0; k < out.length; k++) {
-    const v = out[k]!;
-    if (Number.isFinite(v) && (best === null || v > best.logEvidence)) best = { value: values[k]!, logEvidence: v, index: k };
+    const v = out[k];
+    if (Number.isFinite(v) && (best === null || v > best.logEvidence)) best = { value: values[k], logEvidence: v, index: k };
   }
   return { parameter: 'nu', values, logEvidence: out, method: 'cholesky', best, cancelled };
 }
@@ -218,10 +218,10 @@ export function mergeCalibration(parts: readonly CalibrationResult[]): Calibrati
     return p;
   }
   const total = used.reduce((a, p) => a + p.replicates, 0);
-  const n = used[0]!.cellCoverage68.length;
+  const n = used[0].cellCoverage68.length;
   const c68 = new Float64Array(n);
   const c95 = new Float64Array(n);
-  const hist = new Float64Array(used[0]!.rankHistogram.length);
+  const hist = new Float64Array(used[0].rankHistogram.length);
   let cov68 = 0;
   let cov95 = 0;
   for (const p of used) {
@@ -229,10 +229,10 @@ export function mergeCalibration(parts: readonly CalibrationResult[]): Calibrati
     cov68 += w * p.coverage68;
     cov95 += w * p.coverage95;
     for (let i = 0; i < n; i++) {
-      c68[i] += w * p.cellCoverage68[i]!;
-      c95[i] += w * p.cellCoverage95[i]!;
+      c68[i] += w * p.cellCoverage68[i];
+      c95[i] += w * p.cellCoverage95[i];
     }
-    for (let b = 0; b < hist.length; b++) hist[b] += p.rankHistogram[b]!;
+    for (let b = 0; b < hist.length; b++) hist[b] += p.rankHistogram[b];
   }
   const cat = (f: (p: CalibrationResult) => Float64Array) => {
     const out = new Float64Array(total);
@@ -252,9 +252,9 @@ export function mergeCalibration(parts: readonly CalibrationResult[]): Calibrati
     replicateCoverage95: cat((p) => p.replicateCoverage95),
     rankHistogram: hist,
     replicates: total,
-    draws: used[0]!.draws,
+    draws: used[0].draws,
     cancelled: parts.some((p) => p.cancelled),
-    ...(used[0]!.route !== undefined ? { route: used[0]!.route } : {}),
+    ...(used[0].route !== undefined ? { route: used[0].route } : {}),
     ...(used.some((p) => p.approximateDraws === true) ? { approximateDraws: true } : {}),
   };
 }
@@ -361,7 +361,7 @@ export function scoreStructured(structured: StructuredProblem, prior: PriorSpec,
   const state = prepareStructuredPosterior(structured, prior);
   const s = structuredPosteriorSummary(state);
   let q = 0;
-  for (let k = 0; k < state.r.length; k++) q += state.r[k]! * state.alpha[k]!;
+  for (let k = 0; k < state.r.length; k++) q += state.r[k] * state.alpha[k];
   const ppc = predictiveFromStatistic(q, s.dataCount);
   return {
     ok: true,
@@ -399,7 +399,7 @@ async function crossCalibration(
     }
     const i = Math.floor(cell / K);
     const j = cell % K;
-    const res = calibrate(problem, priors[i]!, priors[j]!, { replicates: o.replicates, draws: o.draws, seed: o.seed, structured });
+    const res = calibrate(problem, priors[i], priors[j], { replicates: o.replicates, draws: o.draws, seed: o.seed, structured });
     c68[cell] = res.coverage68;
     c95[cell] = res.coverage95;
     progress(`cross-calibration: pair ${cell + 1} of ${K * K}`, (cell + 1) / (K * K));

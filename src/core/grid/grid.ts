@@ -30,9 +30,9 @@ export function cellCoordinates(g: Grid): { x: Float64Array; y: Float64Array } {
   const n = cellCount(g);
   const x = new Float64Array(n);
   const y = new Float64Array(n);
-  const nx = g.shape[0]!;
+  const nx = g.shape[0];
   const [x0 = 0, y0 = 0] = g.origin ?? [];
-  const dx = g.spacing[0]!;
+  const dx = g.spacing[0];
   const dy = g.spacing[1] ?? 0;
   for (let i = 0; i < n; i++) {
     x[i] = x0 + dx * (i % nx);

@@ -19,8 +19,8 @@ export function logGamma(x: number): number {
   if (x < 0.5) return Math.log(Math.PI / Math.abs(Math.sin(Math.PI * x))) - logGamma(1 - x);
   const c = LANCZOS;
   const z = x - 1;
-  let s = c[0]!;
-  for (let i = 1; i < c.length; i++) s += c[i]! / (z + i);
+  let s = c[0];
+  for (let i = 1; i < c.length; i++) s += c[i] / (z + i);
   const t = z + 7.5;
   return 0.5 * Math.log(2 * Math.PI) + (z + 0.5) * Math.log(t) - t + Math.log(s);
 }

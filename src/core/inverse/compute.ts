@@ -114,7 +114,7 @@ export function checkedFinite<T extends PosteriorSummary>(summary: T): T {
   for (const [name, a] of arrays) {
     if (!a) continue;
     for (let i = 0; i < a.length; i++) {
-      if (!Number.isFinite(a[i]!)) throw nonFinite(`${name}[${i}]`, a[i]!);
+      if (!Number.isFinite(a[i])) throw nonFinite(`${name}[${i}]`, a[i]);
     }
   }
   for (const name of ['chi2', 'logEvidence', 'resolutionTrace'] as const) {

@@ -14,8 +14,8 @@ export const LOG_2PI = Math.log(2 * Math.PI);
 export function logEvidenceFromFactor(L: Matrix, r: ArrayLike<number>, alpha: ArrayLike<number>): number {
   const m = L.rows;
   let quad = 0;
-  for (let k = 0; k < m; k++) quad += r[k]! * alpha[k]!;
+  for (let k = 0; k < m; k++) quad += r[k] * alpha[k];
   let logDetHalf = 0;
-  for (let k = 0; k < m; k++) logDetHalf += Math.log(L.data[k * m + k]!);
+  for (let k = 0; k < m; k++) logDetHalf += Math.log(L.data[k * m + k]);
   return -0.5 * quad - logDetHalf - 0.5 * m * LOG_2PI;
 }

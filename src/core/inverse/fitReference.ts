@@ -63,7 +63,7 @@ export function fitWeights(L: Matrix, S: Matrix): Float64Array {
 export function weightsFromWhitened(X: Matrix): Float64Array {
   const A = symmetricProductNT(X, X);
   const w = symmetricEigenvalues(A);
-  for (let i = 0; i < w.length; i++) if (w[i]! < 0) w[i] = 0;
+  for (let i = 0; i < w.length; i++) if (w[i] < 0) w[i] = 0;
   return w;
 }
 
@@ -131,12 +131,12 @@ export class WeightedChiSquare {
   constructor(weights: ArrayLike<number>) {
     const pos: number[] = [];
     for (let i = 0; i < weights.length; i++) {
-      const v = weights[i]!;
+      const v = weights[i];
       if (!(v >= 0) || !Number.isFinite(v)) throw new InputError(`weights[${i}]`, 'a finite number ≥ 0', v);
       if (v > 0) pos.push(v);
     }
     pos.sort((p, q) => q - p);
-    this.scale = pos.length > 0 ? pos[0]! : 0;
+    this.scale = pos.length > 0 ? pos[0] : 0;
     this.lam = Float64Array.from(pos, (v) => v / this.scale);
     this.terms = pos.length;
     let s = 0;
@@ -147,12 +147,12 @@ export class WeightedChiSquare {
     }
     this.mean = s;
     this.variance = 2 * s2;
-    this.equal = pos.length > 0 && this.lam[pos.length - 1]! > 1 - 1e-12;
+    this.equal = pos.length > 0 && this.lam[pos.length - 1] > 1 - 1e-12;
     // U from Imhof's bound: min over k of (2 / (π k ε Π_{j≤k} √λ_j))^(2/k), in logs.
     let best = Infinity;
     let logProd = 0;
     for (let k = 1; k <= this.lam.length; k++) {
-      logProd += 0.5 * Math.log(this.lam[k - 1]!);
+      logProd += 0.5 * Math.log(this.lam[k - 1]);
       const logU = (2 / k) * (Math.log(2 / (Math.PI * k * TRUNCATION)) - logProd);
       best = Math.min(best, logU);
     }
@@ -168,7 +168,7 @@ export class WeightedChiSquare {
     const xs = x / this.scale;
     const t = this.tableFor(xs);
     let s = 0;
-    for (let i = 0; i < t.u.length; i++) s += t.e[i]! * Math.sin(t.a[i]! - 0.5 * xs * t.u[i]!);
+    for (let i = 0; i < t.u.length; i++) s += t.e[i] * Math.sin(t.a[i] - 0.5 * xs * t.u[i]);
     if (t.truncated) s += this.tail(xs, t.upper);
     return Math.min(1, Math.max(0, 0.5 + s / Math.PI));
   }
@@ -234,13 +234,13 @@ export class WeightedChiSquare {
     const edges: number[] = [0];
     let upper = this.upperBound;
     let truncated = false;
-    while (edges[edges.length - 1]! < upper) {
+    while (edges[edges.length - 1] < upper) {
       if (edges.length > MAX_PANELS) {
         truncated = true;
-        upper = edges[edges.length - 1]!;
+        upper = edges[edges.length - 1];
         break;
       }
-      const lo = edges[edges.length - 1]!;
+      const lo = edges[edges.length - 1];
       edges.push(Math.min(upper, lo + Math.min(hMax, Math.max(h0, lo / 4))));
     }
     const panels = edges.length - 1;
@@ -250,14 +250,14 @@ export class WeightedChiSquare {
     const e = new Float64Array(n);
     let idx = 0;
     for (let p = 0; p < panels; p++) {
-      const w = edges[p + 1]! - edges[p]!;
-      const c = 0.5 * (edges[p]! + edges[p + 1]!);
+      const w = edges[p + 1] - edges[p];
+      const c = 0.5 * (edges[p] + edges[p + 1]);
       for (let g = 0; g < GL.x.length; g++) {
-        const ui = c + 0.5 * w * GL.x[g]!;
+        const ui = c + 0.5 * w * GL.x[g];
         const { phase, logRho } = this.phaseAndLogRho(ui);
         u[idx] = ui;
         a[idx] = phase;
-        e[idx] = (0.5 * w * GL.w[g]!) / (ui * Math.exp(logRho));
+        e[idx] = (0.5 * w * GL.w[g]) / (ui * Math.exp(logRho));
         idx++;
       }
     }
@@ -269,7 +269,7 @@ export class WeightedChiSquare {
     let phase = 0;
     let logRho = 0;
     for (let j = 0; j < this.lam.length; j++) {
-      const t = this.lam[j]! * u;
+      const t = this.lam[j] * u;
       phase += Math.atan(t);
       logRho += Math.log1p(t * t);
     }
@@ -289,9 +289,9 @@ export class WeightedChiSquare {
       for (let q = 0; q < sub; q++) {
         const c = lo + (q + 0.5) * w;
         for (let g = 0; g < GL.x.length; g++) {
-          const ui = c + 0.5 * w * GL.x[g]!;
+          const ui = c + 0.5 * w * GL.x[g];
           const { phase, logRho } = this.phaseAndLogRho(ui);
-          s += ((0.5 * w * GL.w[g]!) / (ui * Math.exp(logRho))) * Math.sin(phase - 0.5 * xs * ui);
+          s += ((0.5 * w * GL.w[g]) / (ui * Math.exp(logRho))) * Math.sin(phase - 0.5 * xs * ui);
         }
       }
       partial.push(s);
@@ -299,15 +299,15 @@ export class WeightedChiSquare {
     }
     // Repeated averaging of neighbouring partial sums (Euler's transformation).
     let row = partial;
-    let prevEstimate = row[row.length - 1]!;
+    let prevEstimate = row[row.length - 1];
     while (row.length > 1) {
-      prevEstimate = row[row.length - 1]!;
+      prevEstimate = row[row.length - 1];
       const next: number[] = [];
-      for (let i = 0; i + 1 < row.length; i++) next.push(0.5 * (row[i]! + row[i + 1]!));
+      for (let i = 0; i + 1 < row.length; i++) next.push(0.5 * (row[i] + row[i + 1]));
       row = next;
     }
-    this.tailError = Math.max(this.tailError, Math.abs(row[0]! - prevEstimate) / Math.PI);
-    return row[0]!;
+    this.tailError = Math.max(this.tailError, Math.abs(row[0] - prevEstimate) / Math.PI);
+    return row[0];
   }
 }
 

@@ -72,7 +72,7 @@ function checkProblem(problem: Problem, Cm: Matrix, m0: ArrayLike<number>): void
   const { values, sigma, covariance } = problem.data;
   if (values.length !== m) throw new InputError('problem.data.values', `${m} numbers (one per operator row)`, values);
   for (let k = 0; k < m; k++) {
-    if (!Number.isFinite(values[k]!)) throw new InputError(`problem.data.values[${k}]`, 'a finite number', values[k]);
+    if (!Number.isFinite(values[k])) throw new InputError(`problem.data.values[${k}]`, 'a finite number', values[k]);
   }
   if ((sigma === undefined) === (covariance === undefined)) {
     throw new InputError('problem.data', 'exactly one of sigma or covariance', sigma ? 'both' : 'neither');
@@ -80,7 +80,7 @@ function checkProblem(problem: Problem, Cm: Matrix, m0: ArrayLike<number>): void
   if (sigma !== undefined) {
     if (sigma.length !== m) throw new InputError('problem.data.sigma', `${m} numbers (one per datum)`, sigma);
     for (let k = 0; k < m; k++) {
-      if (!(sigma[k]! > 0) || !Number.isFinite(sigma[k]!)) throw new InputError(`problem.data.sigma[${k}]`, 'a finite number > 0', sigma[k]);
+      if (!(sigma[k] > 0) || !Number.isFinite(sigma[k])) throw new InputError(`problem.data.sigma[${k}]`, 'a finite number > 0', sigma[k]);
     }
   } else if (covariance!.rows !== m || covariance!.cols !== m) {
     throw new InputError('problem.data.covariance', `a ${m}×${m} matrix`, `${covariance!.rows}×${covariance!.cols}`);
@@ -106,7 +106,7 @@ export function preparePosteriorFromCovariance(problem: Problem, Cm: Matrix, m0:
   const { sigma, covariance } = problem.data;
   let Ld: Matrix | undefined;
   if (sigma !== undefined) {
-    for (let k = 0; k < m; k++) K.data[k * m + k] += sigma[k]! * sigma[k]!;
+    for (let k = 0; k < m; k++) K.data[k * m + k] += sigma[k] * sigma[k];
   } else {
     const fd = cholesky(covariance!);
     if (!fd.ok) {
@@ -117,8 +117,8 @@ export function preparePosteriorFromCovariance(problem: Problem, Cm: Matrix, m0:
     // Only the lower triangle of Cd is read (the factor's convention); mirror it.
     for (let k = 0; k < m; k++) {
       for (let l = 0; l <= k; l++) {
-        K.data[k * m + l] += cd[k * m + l]!;
-        if (l !== k) K.data[l * m + k] += cd[k * m + l]!;
+        K.data[k * m + l] += cd[k * m + l];
+        if (l !== k) K.data[l * m + k] += cd[k * m + l];
       }
     }
   }
@@ -126,7 +126,7 @@ export function preparePosteriorFromCovariance(problem: Problem, Cm: Matrix, m0:
   if (!f.ok) throw new NotPositiveDefiniteError('data-space covariance K', f.pivot, K_HINT);
   const L = f.factor;
   const r = applyOperator(G, mean0);
-  for (let k = 0; k < m; k++) r[k] = problem.data.values[k]! - r[k]!;
+  for (let k = 0; k < m; k++) r[k] = problem.data.values[k] - r[k];
   const alpha = choleskySolve(L, r);
   return Ld ? { problem, m0: mean0, Cm, Bt, L, Ld, r, alpha } : { problem, m0: mean0, Cm, Bt, L, r, alpha };
 }
@@ -137,10 +137,10 @@ function addCrossCovariance(state: PosteriorFactors, base: ArrayLike<number>, v:
   const n = Bt.cols;
   const out = Float64Array.from(base);
   for (let k = 0; k < Bt.rows; k++) {
-    const vk = v[k]!;
+    const vk = v[k];
     if (vk === 0) continue;
     const ok = k * n;
-    for (let i = 0; i < n; i++) out[i] += Bt.data[ok + i]! * vk;
+    for (let i = 0; i < n; i++) out[i] += Bt.data[ok + i] * vk;
   }
   return out;
 }
@@ -148,9 +148,9 @@ function addCrossCovariance(state: PosteriorFactors, base: ArrayLike<number>, v:
 /** Normalised residuals: (d − p)/σ for a diagonal Cd, Ld⁻¹ (d − p) for a full one. */
 function normalisedResiduals(state: PosteriorFactors, predicted: Float64Array): Float64Array {
   const { values, sigma } = state.problem.data;
-  const raw = values.map((v, k) => v - predicted[k]!);
+  const raw = values.map((v, k) => v - predicted[k]);
   if (state.Ld) return solveLower(state.Ld, raw);
-  return raw.map((v, k) => v / sigma![k]!);
+  return raw.map((v, k) => v / sigma![k]);
 }
 
 /**
@@ -165,7 +165,7 @@ function whitenedNoise(state: PosteriorFactors): Matrix {
   else {
     S = matrix(m, m);
     const sigma = state.problem.data.sigma!;
-    for (let k = 0; k < m; k++) S.data[k * m + k] = sigma[k]!;
+    for (let k = 0; k < m; k++) S.data[k * m + k] = sigma[k];
   }
   return solveLowerMatrix(state.L, S);
 }
@@ -173,7 +173,7 @@ function whitenedNoise(state: PosteriorFactors): Matrix {
 /** ‖X‖_F². */
 function squaredNorm(X: Matrix): number {
   let s = 0;
-  for (let i = 0; i < X.data.length; i++) s += X.data[i]! * X.data[i]!;
+  for (let i = 0; i < X.data.length; i++) s += X.data[i] * X.data[i];
   return s;
 }
 
@@ -201,8 +201,8 @@ export function posteriorSummary(state: PosteriorFactors, options: SummaryOption
   const priorStd = new Float64Array(n);
   const varianceReduction = new Float64Array(n);
   for (let i = 0; i < n; i++) {
-    const pv = Cm.data[i * n + i]!;
-    const v = Math.max(0, pv - colSq[i]!);
+    const pv = Cm.data[i * n + i];
+    const v = Math.max(0, pv - colSq[i]);
     std[i] = Math.sqrt(v);
     priorStd[i] = Math.sqrt(Math.max(0, pv));
     varianceReduction[i] = pv > 0 ? 1 - v / pv : 0;
@@ -210,9 +210,9 @@ export function posteriorSummary(state: PosteriorFactors, options: SummaryOption
   const predicted = applyOperator(problem.operator, mean);
   const residuals = normalisedResiduals(state, predicted);
   let chi2 = 0;
-  for (let k = 0; k < m; k++) chi2 += residuals[k]! * residuals[k]!;
+  for (let k = 0; k < m; k++) chi2 += residuals[k] * residuals[k];
   let misfit = 0;
-  for (let k = 0; k < m; k++) misfit += r[k]! * alpha[k]!;
+  for (let k = 0; k < m; k++) misfit += r[k] * alpha[k];
   const [lo, hi] = chiSquareInterval(m, 0.95);
   const X = whitenedNoise(state);
   const summary: PosteriorSummary = {
@@ -240,7 +240,7 @@ function covarianceFromW(Cm: Matrix, W: Matrix): Matrix {
   const Wt = transposeOf(W);
   const C = symmetricProductNT(Wt, Wt);
   const c = C.data;
-  for (let i = 0; i < c.length; i++) c[i] = Cm.data[i]! - c[i]!;
+  for (let i = 0; i < c.length; i++) c[i] = Cm.data[i] - c[i];
   return C;
 }
 
@@ -258,7 +258,7 @@ export function resolutionRow(state: Pick<PosteriorFactors, 'problem' | 'Bt' | '
   const n = Bt.cols;
   if (!Number.isInteger(cell) || cell < 0 || cell >= n) throw new InputError('cell', `an integer in [0, ${n - 1}]`, cell);
   const col = new Float64Array(Bt.rows);
-  for (let k = 0; k < Bt.rows; k++) col[k] = Bt.data[k * n + cell]!;
+  for (let k = 0; k < Bt.rows; k++) col[k] = Bt.data[k * n + cell];
   return applyOperatorTranspose(state.problem.operator, choleskySolve(L, col));
 }
 
@@ -296,7 +296,7 @@ export function posteriorRealisations(state: PosteriorFactors, count: number, se
     for (let i = 0; i < n; i++) {
       let acc = 0;
       const oi = i * n;
-      for (let k = 0; k <= i; k++) acc += Lm[oi + k]! * z[k]!;
+      for (let k = 0; k <= i; k++) acc += Lm[oi + k] * z[k];
       mStar[i] += acc;
     }
     let eps: Float64Array;
@@ -305,13 +305,13 @@ export function posteriorRealisations(state: PosteriorFactors, count: number, se
       const ld = state.Ld.data;
       for (let k = 0; k < m; k++) {
         let acc = 0;
-        for (let l = 0; l <= k; l++) acc += ld[k * m + l]! * e[l]!;
+        for (let l = 0; l <= k; l++) acc += ld[k * m + l] * e[l];
         eps[k] = acc;
       }
-    } else eps = e.map((v, k) => v * sigma![k]!);
+    } else eps = e.map((v, k) => v * sigma![k]);
     const gm = applyOperator(problem.operator, mStar);
     const rs = new Float64Array(m);
-    for (let k = 0; k < m; k++) rs[k] = problem.data.values[k]! + eps[k]! - gm[k]!;
+    for (let k = 0; k < m; k++) rs[k] = problem.data.values[k] + eps[k] - gm[k];
     out.data.set(addCrossCovariance(state, mStar, choleskySolve(L, rs)), s * n);
   }
   return out;

@@ -122,7 +122,7 @@ function validateProblem(problem: Problem, n: number): number {
 /** Row k of G scaled by the std profile, s ⊙ g_k, written into `out` (length N). */
 function scaledRow(g: Operator, k: number, s: readonly number[] | undefined, out: Float64Array): Float64Array {
   operatorRowInto(g, k, out);
-  if (s !== undefined) for (let i = 0; i < out.length; i++) out[i] *= s[i]!;
+  if (s !== undefined) for (let i = 0; i < out.length; i++) out[i] *= s[i];
   return out;
 }
 
@@ -153,7 +153,7 @@ export function structuredSetup(sp: StructuredProblem | Problem, prior: PriorSpe
   const n = cellCount(grid);
   const m = validateProblem(problem, n);
   const cp = new CirculantProduct(grid, prior);
-  return { holder, problem, prior, n, m, cp, order: pairOrder(problem.operator, grid.shape[0]!, m) };
+  return { holder, problem, prior, n, m, cp, order: pairOrder(problem.operator, grid.shape[0], m) };
 }
 
 /**
@@ -184,13 +184,13 @@ export function computeBtPairs(
   const rowB = new Float64Array(n);
   let tProducts = 0;
   for (let p = 0; p < pairs; p++) {
-    const a = rows[2 * p]!;
-    const b = 2 * p + 1 < m ? rows[2 * p + 1]! : -1;
-    const offA = slots[2 * p]! * n;
-    const offB = b < 0 ? 0 : slots[2 * p + 1]! * n;
+    const a = rows[2 * p];
+    const b = 2 * p + 1 < m ? rows[2 * p + 1] : -1;
+    const offA = slots[2 * p] * n;
+    const offB = b < 0 ? 0 : slots[2 * p + 1] * n;
     const tp = now();
     if (cached !== null) {
-      cp.fromColumnSpectrum(cached[p]!, bt, b < 0 ? null : bt, offA, offB);
+      cp.fromColumnSpectrum(cached[p], bt, b < 0 ? null : bt, offA, offB);
     } else {
       const ts = now();
       cp.spectrum(scaledRow(g, a, s, rowA), b < 0 ? null : scaledRow(g, b, s, rowB), rowSpec!);
@@ -216,9 +216,9 @@ export function finishBtRows(
 ): void {
   if (s === undefined && nugget === 0) return;
   for (let j = 0; j < rows.length; j++) {
-    const o = slots[j]! * n;
-    if (s !== undefined) for (let i = 0; i < n; i++) bt[o + i] *= s[i]!;
-    if (nugget !== 0) addOperatorRow(g, rows[j]!, nugget, bt, o);
+    const o = slots[j] * n;
+    if (s !== undefined) for (let i = 0; i < n; i++) bt[o + i] *= s[i];
+    if (nugget !== 0) addOperatorRow(g, rows[j], nugget, bt, o);
   }
 }
 
@@ -300,16 +300,16 @@ export function completeStructuredPosterior(
   const m0 = meanVector(grid, prior);
   const gm0 = applyOperator(g, m0);
   const r = new Float64Array(m);
-  for (let k = 0; k < m; k++) r[k] = problem.data.values[k]! - gm0[k]!;
+  for (let k = 0; k < m; k++) r[k] = problem.data.values[k] - gm0[k];
   const alpha = choleskySolve(L, r);
   const mean = m0.slice();
   for (let k = 0; k < m; k++) {
-    const ak = alpha[k]!;
+    const ak = alpha[k];
     const o = k * n;
-    for (let i = 0; i < n; i++) mean[i] += ak * bt[o + i]!;
+    for (let i = 0; i < n; i++) mean[i] += ak * bt[o + i];
   }
   const priorVariance = new Float64Array(n);
-  for (let i = 0; i < n; i++) priorVariance[i] = (s === undefined ? 1 : s[i]! * s[i]!) * cp.variance + nugget;
+  for (let i = 0; i < n; i++) priorVariance[i] = (s === undefined ? 1 : s[i] * s[i]) * cp.variance + nugget;
   const factorTime = now() - t0;
   const base = { problem, prior, m0, Bt, L, r, alpha, mean, priorVariance, padding: [cp.px, cp.py] as const, spectraCached };
   const timings = { spectra: times.spectra, products: times.products, factor: factorTime };
@@ -332,19 +332,19 @@ export function pairOrder(g: Operator, nx: number, m: number): Int32Array {
   const hi = new Int32Array(m);
   for (let k = 0; k < m; k++) {
     // Columns grow with the row index iy of the grid, so the extreme columns give the extreme rows.
-    lo[k] = last[k]! < 0 ? 0 : Math.floor(first[k]! / nx);
-    hi[k] = last[k]! < 0 ? -1 : Math.floor(last[k]! / nx);
+    lo[k] = last[k] < 0 ? 0 : Math.floor(first[k] / nx);
+    hi[k] = last[k] < 0 ? -1 : Math.floor(last[k] / nx);
   }
-  return order.sort((x, y) => lo[x]! - lo[y]! || hi[x]! - hi[y]! || x - y);
+  return order.sort((x, y) => lo[x] - lo[y] || hi[x] - hi[y] || x - y);
 }
 
 function addDataCovariance(K: Matrix, problem: Problem): void {
   const m = K.rows;
   const { sigma, covariance } = problem.data;
   if (sigma !== undefined) {
-    for (let k = 0; k < m; k++) K.data[k * m + k] += sigma[k]! * sigma[k]!;
+    for (let k = 0; k < m; k++) K.data[k * m + k] += sigma[k] * sigma[k];
   } else {
-    for (let i = 0; i < m * m; i++) K.data[i] += covariance!.data[i]!;
+    for (let i = 0; i < m * m; i++) K.data[i] += covariance!.data[i];
   }
 }
 
@@ -357,7 +357,7 @@ export function structuredPosteriorStd(state: StructuredPosteriorState, block = 
     // The WebAssembly SIMD kernel (same bits as structuredVarianceBlock, which it falls back to).
     wasmVarianceBlock(state.L, state.Bt, state.priorVariance, c0, c1, v.subarray(c0, c1));
   }
-  for (let i = 0; i < n; i++) v[i] = Math.sqrt(v[i]!);
+  for (let i = 0; i < n; i++) v[i] = Math.sqrt(v[i]);
   return v;
 }
 
@@ -376,16 +376,16 @@ export function structuredDataFit(state: Pick<StructuredPosteriorState, 'problem
   const m = problem.data.values.length;
   const predicted = applyOperator(problem.operator, mean);
   const misfit = new Float64Array(m);
-  for (let k = 0; k < m; k++) misfit[k] = problem.data.values[k]! - predicted[k]!;
+  for (let k = 0; k < m; k++) misfit[k] = problem.data.values[k] - predicted[k];
   let residuals: Float64Array;
   if (Ld !== undefined) {
     residuals = solveLower(Ld, misfit);
   } else {
     residuals = new Float64Array(m);
-    for (let k = 0; k < m; k++) residuals[k] = misfit[k]! / problem.data.sigma![k]!;
+    for (let k = 0; k < m; k++) residuals[k] = misfit[k] / problem.data.sigma![k];
   }
   let chi2 = 0;
-  for (let k = 0; k < m; k++) chi2 += residuals[k]! * residuals[k]!;
+  for (let k = 0; k < m; k++) chi2 += residuals[k] * residuals[k];
   return { predicted, residuals, chi2 };
 }
 
@@ -398,17 +398,17 @@ export function structuredPosteriorSummary(state: StructuredPosteriorState, std?
   const priorStd = new Float64Array(n);
   const varianceReduction = new Float64Array(n);
   for (let i = 0; i < n; i++) {
-    const pv = priorVariance[i]!;
+    const pv = priorVariance[i];
     priorStd[i] = Math.sqrt(pv);
-    varianceReduction[i] = pv > 0 ? 1 - (sd[i]! * sd[i]!) / pv : 0;
+    varianceReduction[i] = pv > 0 ? 1 - (sd[i] * sd[i]) / pv : 0;
   }
   const { predicted, residuals, chi2 } = structuredDataFit(state);
   // log N(d; G m0, K) = −½ rᵀα − Σ log L_kk − (M/2) log 2π (Rasmussen & Williams 2006, Alg. 2.1).
   let rAlpha = 0;
   let logDiag = 0;
   for (let k = 0; k < m; k++) {
-    rAlpha += r[k]! * alpha[k]!;
-    logDiag += Math.log(L.data[k * m + k]!);
+    rAlpha += r[k] * alpha[k];
+    logDiag += Math.log(L.data[k * m + k]);
   }
   const logEvidence = -0.5 * rAlpha - logDiag - 0.5 * m * Math.log(2 * Math.PI);
   // tr R = tr(L⁻¹ (K − Cd) L⁻ᵀ) = M − ‖L⁻¹ Ld‖_F² (derived; Ld = diag σ for a diagonal Cd).
@@ -442,7 +442,7 @@ export function structuredPosteriorSummary(state: StructuredPosteriorState, std?
 function diagonalMatrix(v: ArrayLike<number>): Matrix {
   const k = v.length;
   const out = matrix(k, k);
-  for (let i = 0; i < k; i++) out.data[i * k + i] = v[i]!;
+  for (let i = 0; i < k; i++) out.data[i * k + i] = v[i];
   return out;
 }
 

@@ -78,18 +78,18 @@ export function structuredPosteriorDraws(state: StructuredPosteriorState, count:
       if (Ld !== undefined) {
         e = 0;
         const ld = Ld.data;
-        for (let l = 0; l <= k; l++) e += ld[k * m + l]! * z[l]!;
-      } else e = sigma![k]! * z[k]!;
-      rs[k] = d[k]! + e - gx[k]!;
+        for (let l = 0; l <= k; l++) e += ld[k * m + l] * z[l];
+      } else e = sigma![k] * z[k];
+      rs[k] = d[k] + e - gx[k];
     }
     const v = choleskySolve(L, rs);
     const o = out.data.subarray(s * n, (s + 1) * n);
     o.set(xs);
     for (let k = 0; k < m; k++) {
-      const vk = v[k]!;
+      const vk = v[k];
       if (vk === 0) continue;
       const ok = k * n;
-      for (let i = 0; i < n; i++) o[i] += bt[ok + i]! * vk;
+      for (let i = 0; i < n; i++) o[i] += bt[ok + i] * vk;
     }
   }
   return {

@@ -37,20 +37,20 @@ export function structuredVarianceBlock(
   const w4 = w - (w % 4);
   for (let i0 = 0; i0 < m; i0 += 4) {
     const rows = Math.min(4, m - i0);
-    for (let p = 0; p < i0; p++) for (let r = 0; r < 4; r++) lt[4 * p + r] = r < rows ? l[(i0 + r) * m + p]! : 0;
+    for (let p = 0; p < i0; p++) for (let r = 0; r < 4; r++) lt[4 * p + r] = r < rows ? l[(i0 + r) * m + p] : 0;
     if (rows === 4 && i0 > 0) {
       const o0 = i0 * w;
       const o1 = o0 + w;
       const o2 = o1 + w;
       const o3 = o2 + w;
       for (let j = 0; j < w4; j += 4) {
-        let a00 = x[o0 + j]!, a01 = x[o0 + j + 1]!, a02 = x[o0 + j + 2]!, a03 = x[o0 + j + 3]!;
-        let a10 = x[o1 + j]!, a11 = x[o1 + j + 1]!, a12 = x[o1 + j + 2]!, a13 = x[o1 + j + 3]!;
-        let a20 = x[o2 + j]!, a21 = x[o2 + j + 1]!, a22 = x[o2 + j + 2]!, a23 = x[o2 + j + 3]!;
-        let a30 = x[o3 + j]!, a31 = x[o3 + j + 1]!, a32 = x[o3 + j + 2]!, a33 = x[o3 + j + 3]!;
+        let a00 = x[o0 + j], a01 = x[o0 + j + 1], a02 = x[o0 + j + 2], a03 = x[o0 + j + 3];
+        let a10 = x[o1 + j], a11 = x[o1 + j + 1], a12 = x[o1 + j + 2], a13 = x[o1 + j + 3];
+        let a20 = x[o2 + j], a21 = x[o2 + j + 1], a22 = x[o2 + j + 2], a23 = x[o2 + j + 3];
+        let a30 = x[o3 + j], a31 = x[o3 + j + 1], a32 = x[o3 + j + 2], a33 = x[o3 + j + 3];
         for (let p = 0, op = j; p < i0; p++, op += w) {
-          const y0 = x[op]!, y1 = x[op + 1]!, y2 = x[op + 2]!, y3 = x[op + 3]!;
-          const l0 = lt[4 * p]!, l1 = lt[4 * p + 1]!, l2 = lt[4 * p + 2]!, l3 = lt[4 * p + 3]!;
+          const y0 = x[op], y1 = x[op + 1], y2 = x[op + 2], y3 = x[op + 3];
+          const l0 = lt[4 * p], l1 = lt[4 * p + 1], l2 = lt[4 * p + 2], l3 = lt[4 * p + 3];
           a00 -= l0 * y0; a01 -= l0 * y1; a02 -= l0 * y2; a03 -= l0 * y3;
           a10 -= l1 * y0; a11 -= l1 * y1; a12 -= l1 * y2; a13 -= l1 * y3;
           a20 -= l2 * y0; a21 -= l2 * y1; a22 -= l2 * y2; a23 -= l2 * y3;
@@ -63,8 +63,8 @@ export function structuredVarianceBlock(
       }
       for (let j = w4; j < w; j++) {
         for (let r = 0; r < 4; r++) {
-          let a0 = x[(i0 + r) * w + j]!;
-          for (let p = 0; p < i0; p++) a0 -= lt[4 * p + r]! * x[p * w + j]!;
+          let a0 = x[(i0 + r) * w + j];
+          for (let p = 0; p < i0; p++) a0 -= lt[4 * p + r] * x[p * w + j];
           x[(i0 + r) * w + j] = a0;
         }
       }
@@ -72,8 +72,8 @@ export function structuredVarianceBlock(
       for (let r = 0; r < rows; r++) {
         const oi = (i0 + r) * w;
         for (let j = 0; j < w; j++) {
-          let a0 = x[oi + j]!;
-          for (let p = 0; p < i0; p++) a0 -= lt[4 * p + r]! * x[p * w + j]!;
+          let a0 = x[oi + j];
+          for (let p = 0; p < i0; p++) a0 -= lt[4 * p + r] * x[p * w + j];
           x[oi + j] = a0;
         }
       }
@@ -83,20 +83,20 @@ export function structuredVarianceBlock(
       const i = i0 + r;
       const oi = i * w;
       for (let q = 0; q < r; q++) {
-        const liq = l[i * m + i0 + q]!;
+        const liq = l[i * m + i0 + q];
         const oq = (i0 + q) * w;
-        for (let j = 0; j < w; j++) x[oi + j] -= liq * x[oq + j]!;
+        for (let j = 0; j < w; j++) x[oi + j] -= liq * x[oq + j];
       }
-      const inv = 1 / l[i * m + i]!;
+      const inv = 1 / l[i * m + i];
       for (let j = 0; j < w; j++) x[oi + j] *= inv;
     }
   }
-  for (let j = 0; j < w; j++) out[j] = priorVariance[c0 + j]!;
+  for (let j = 0; j < w; j++) out[j] = priorVariance[c0 + j];
   for (let k = 0; k < m; k++) {
     const o = k * w;
-    for (let j = 0; j < w; j++) out[j] -= x[o + j]! * x[o + j]!;
+    for (let j = 0; j < w; j++) out[j] -= x[o + j] * x[o + j];
   }
   // Round-off can leave a tiny negative where the data fix a cell almost exactly: clamp to 0.
-  for (let j = 0; j < w; j++) if (out[j]! < 0) out[j] = 0;
+  for (let j = 0; j < w; j++) if (out[j] < 0) out[j] = 0;
   return out;
 }

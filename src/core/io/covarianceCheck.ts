@@ -18,8 +18,8 @@ export function asymmetry(c: Matrix): Extract<CovarianceDefect, { kind: 'asymmet
   const tol = 1e-12 * scale;
   for (let i = 0; i < n; i++) {
     for (let j = 0; j < i; j++) {
-      const a = c.data[i * n + j]!;
-      const b = c.data[j * n + i]!;
+      const a = c.data[i * n + j];
+      const b = c.data[j * n + i];
       if (Math.abs(a - b) > tol) return { kind: 'asymmetric', row: i, col: j, value: a, mirror: b };
     }
   }

@@ -80,7 +80,7 @@ function splitLine(line: string, delimiter: string): string[] | null {
           k++;
           break;
         }
-        s += line[k]!;
+        s += line[k];
         k++;
       }
       // Only spaces may follow the closing quote before the delimiter.
@@ -108,7 +108,7 @@ export function csvContentLines(text: string): { line: number; text: string }[] 
   const lines = text.split(/\r\n|\r|\n/);
   const content: { line: number; text: string }[] = [];
   for (let k = 0; k < lines.length; k++) {
-    const t = lines[k]!;
+    const t = lines[k];
     const trimmed = t.trim();
     if (trimmed === '' || trimmed.startsWith('#')) continue;
     content.push({ line: k + 1, text: t });
@@ -129,7 +129,7 @@ export function parseCsv(file: string, input: string | Uint8Array, options: CsvO
   const text = decodeText(file, input);
   const content = csvContentLines(text);
   if (content.length === 0) throw new FileFormatError(file, 'contains no rows of numbers');
-  const first = content[0]!.text.replace(/"([^"]|"")*"/g, ''); // delimiters inside quotes do not count
+  const first = content[0].text.replace(/"([^"]|"")*"/g, ''); // delimiters inside quotes do not count
   const delimiter = first.includes(';') && first.includes(',') ? ';' : first.includes(',') ? ',' : first.includes('\t') ? '\t' : first.includes(';') ? ';' : ',';
 
   const split = (row: { line: number; text: string }) => {
@@ -140,19 +140,19 @@ export function parseCsv(file: string, input: string | Uint8Array, options: CsvO
 
   let start = 0;
   let header: string[] | null = null;
-  const firstCells = split(content[0]!);
+  const firstCells = split(content[0]);
   const wantHeader = options.header ?? 'auto';
   if (wantHeader === true || (wantHeader === 'auto' && !firstCells.some(looksNumeric))) {
     header = firstCells.map((c) => c.trim());
     start = 1;
   }
-  if (start >= content.length) throw new FileFormatError(file, `has a header line (line ${content[0]!.line}) but no rows of numbers`, { line: content[0]!.line });
+  if (start >= content.length) throw new FileFormatError(file, `has a header line (line ${content[0].line}) but no rows of numbers`, { line: content[0].line });
   const cols = header ? header.length : firstCells.length;
-  const widthLine = content[0]!.line;
+  const widthLine = content[0].line;
   const out = matrix(content.length - start, cols);
   const rowLines = new Array<number>(content.length - start);
   for (let r = start; r < content.length; r++) {
-    const row = content[r]!;
+    const row = content[r];
     const cells = r === 0 ? firstCells : split(row);
     if (cells.length !== cols) {
       const hint =
@@ -167,13 +167,13 @@ export function parseCsv(file: string, input: string | Uint8Array, options: CsvO
     }
     const o = (r - start) * cols;
     for (let c = 0; c < cols; c++) {
-      const v = parseNumberCell(cells[c]!);
-      if (v === null) throw badCell(file, row.line, c + 1, cells[c]!);
+      const v = parseNumberCell(cells[c]);
+      if (v === null) throw badCell(file, row.line, c + 1, cells[c]);
       out.data[o + c] = v;
     }
     rowLines[r - start] = row.line;
   }
-  return { header, headerLine: header ? content[0]!.line : null, rowLines, delimiter, matrix: out };
+  return { header, headerLine: header ? content[0].line : null, rowLines, delimiter, matrix: out };
 }
 
 /** The one-line note that a first row was read as column names (for a file's warnings). */
@@ -193,7 +193,7 @@ export function csvColumns(file: string, table: CsvTable): Map<string, Float64Ar
   names.forEach((name, c) => {
     if (out.has(name)) throw new FileFormatError(file, `column name ${JSON.stringify(name)} appears twice in the header`, { line: 1, column: c + 1 });
     const col = new Float64Array(rows);
-    for (let r = 0; r < rows; r++) col[r] = data[r * cols + c]!;
+    for (let r = 0; r < rows; r++) col[r] = data[r * cols + c];
     out.set(name, col);
   });
   return out;
@@ -213,7 +213,7 @@ export function writeCsv(m: Matrix, header?: readonly string[]): string {
   for (let i = 0; i < rows; i++) {
     const cells = new Array<string>(cols);
     for (let j = 0; j < cols; j++) {
-      const v = data[i * cols + j]!;
+      const v = data[i * cols + j];
       if (!Number.isFinite(v)) throw new RangeError(`writeCsv: value at row ${i}, column ${j} is ${v}`);
       cells[j] = String(v);
     }

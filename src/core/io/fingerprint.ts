@@ -12,7 +12,7 @@ import type { Problem } from '../problems/spec.ts';
 function mix(h: [number, number], words: Uint32Array): void {
   let [h1, h2] = h;
   for (let i = 0; i < words.length; i++) {
-    const w = words[i]!;
+    const w = words[i];
     h1 = Math.imul(h1 ^ w, 2654435761);
     h2 = Math.imul(h2 ^ w, 1597334677);
   }

@@ -97,7 +97,7 @@ export function findDuplicateKey(text: string): { field: string; pos: number } |
         p++;
       }
       if (expectKey) {
-        const top = stack[stack.length - 1]!;
+        const top = stack[stack.length - 1];
         const raw = text.slice(start + 1, p);
         const key = escaped ? (JSON.parse(text.slice(start, p + 1)) as string) : raw;
         if (top.keys!.has(key)) return { field: joinField(top.path, key), pos: start };
@@ -149,7 +149,7 @@ export function locateJsonError(text: string): { pos: number; reason: string } |
     if (depth > 1000) fail('nesting deeper than 1000 levels');
     ws();
     if (p >= n) fail('expected a value, got the end of the file');
-    const c = text[p]!;
+    const c = text[p];
     if (c === '{') {
       p++;
       ws();
@@ -308,15 +308,15 @@ const FIELD_SYNONYMS: Readonly<Record<string, string>> = {
 function editDistance(a: string, b: string): number {
   const row = Array.from({ length: b.length + 1 }, (_, j) => j);
   for (let i = 1; i <= a.length; i++) {
-    let diag = row[0]!;
+    let diag = row[0];
     row[0] = i;
     for (let j = 1; j <= b.length; j++) {
-      const up = row[j]!;
-      row[j] = Math.min(up + 1, row[j - 1]! + 1, diag + (a[i - 1] === b[j - 1] ? 0 : 1));
+      const up = row[j];
+      row[j] = Math.min(up + 1, row[j - 1] + 1, diag + (a[i - 1] === b[j - 1] ? 0 : 1));
       diag = up;
     }
   }
-  return row[b.length]!;
+  return row[b.length];
 }
 
 /** The known field a mistyped or synonymous `key` most likely means, or null. */
@@ -452,7 +452,7 @@ export class JsonReader {
     const out = matrix(arr.length, c);
     for (let i = 0; i < arr.length; i++) {
       const row = this.numbers(arr[i], joinField(field, i), c);
-      for (let j = 0; j < c; j++) out.data[i * c + j] = row[j]!;
+      for (let j = 0; j < c; j++) out.data[i * c + j] = row[j];
     }
     return out;
   }

@@ -61,7 +61,7 @@ export function parseMatrixMarket(file: string, input: string | Uint8Array): Ope
   let k = 1;
   const next = (): { line: number; tokens: string[] } | null => {
     while (k < lines.length) {
-      const t = lines[k]!.trim();
+      const t = lines[k].trim();
       k++;
       if (t === '' || t.startsWith('%')) continue;
       return { line: k, tokens: t.split(/\s+/) };
@@ -144,7 +144,7 @@ export function parseMatrixMarket(file: string, input: string | Uint8Array): Ope
   let p = 0;
   for (let j = 0; j < cols; j++) {
     for (let i = symmetric ? j : 0; i < rows; i++) {
-      const a = values[p++]!;
+      const a = values[p++];
       out.data[i * cols + j] = a;
       if (symmetric) out.data[j * cols + i] = a;
     }
@@ -163,7 +163,7 @@ export function writeMatrixMarketArray(m: Matrix, comment?: string): string {
   const parts = ['%%MatrixMarket matrix array real general\n'];
   if (comment) for (const c of comment.split('\n')) parts.push(`% ${c}\n`);
   parts.push(`${m.rows} ${m.cols}\n`);
-  for (let j = 0; j < m.cols; j++) for (let i = 0; i < m.rows; i++) parts.push(num(m.data[i * m.cols + j]!) + '\n');
+  for (let j = 0; j < m.cols; j++) for (let i = 0; i < m.rows; i++) parts.push(num(m.data[i * m.cols + j]) + '\n');
   return parts.join('');
 }
 
@@ -173,7 +173,7 @@ export function writeMatrixMarketCoordinate(s: SparseMatrix, comment?: string): 
   if (comment) for (const c of comment.split('\n')) parts.push(`% ${c}\n`);
   parts.push(`${s.rows} ${s.cols} ${s.values.length}\n`);
   for (let i = 0; i < s.rows; i++) {
-    for (let p = s.rowPtr[i]!; p < s.rowPtr[i + 1]!; p++) parts.push(`${i + 1} ${s.colIdx[p]! + 1} ${num(s.values[p]!)}\n`);
+    for (let p = s.rowPtr[i]; p < s.rowPtr[i + 1]; p++) parts.push(`${i + 1} ${s.colIdx[p] + 1} ${num(s.values[p])}\n`);
   }
   return parts.join('');
 }

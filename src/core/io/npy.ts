@@ -41,7 +41,7 @@ function parseHeaderDict(file: string, header: string): Map<string, PyValue> {
     throw new FileFormatError(file, `header is not a valid .npy header dict: ${what} at character ${p + 1} of ${JSON.stringify(header.trim().slice(0, 200))}`);
   };
   const ws = () => {
-    while (p < n && /\s/.test(header[p]!)) p++;
+    while (p < n && /\s/.test(header[p])) p++;
   };
   const str = (): string => {
     const q = header[p];
@@ -130,8 +130,8 @@ export function parseNpy(file: string, bytes: Uint8Array, options: NpyReadOption
   if (bytes.byteLength < 10 || MAGIC.some((b, k) => bytes[k] !== b)) {
     throw new FileFormatError(file, 'is not a NumPy .npy file (it does not start with the bytes "\\x93NUMPY")', { offset: 0 });
   }
-  const major = bytes[6]!;
-  const minor = bytes[7]!;
+  const major = bytes[6];
+  const minor = bytes[7];
   if (!((major === 1 || major === 2 || major === 3) && minor === 0)) {
     throw new FileFormatError(file, `.npy version must be 1.0, 2.0 or 3.0, got ${major}.${minor}`, { offset: 6 });
   }
@@ -201,12 +201,12 @@ export function parseNpy(file: string, bytes: Uint8Array, options: NpyReadOption
   if (fortran && shape.length === 2) {
     const [r, c] = shape as [number, number];
     data = new Float64Array(count);
-    for (let j = 0; j < c; j++) for (let i = 0; i < r; i++) data[i * c + j] = raw[j * r + i]!;
+    for (let j = 0; j < c; j++) for (let i = 0; i < r; i++) data[i * c + j] = raw[j * r + i];
   }
   if (options.finite ?? true) {
-    const cols = shape.length === 2 ? shape[1]! : 0;
+    const cols = shape.length === 2 ? shape[1] : 0;
     for (let k = 0; k < count; k++) {
-      if (!Number.isFinite(data[k]!)) {
+      if (!Number.isFinite(data[k])) {
         const at = shape.length === 2 ? `[${Math.floor(k / cols)}, ${k % cols}]` : shape.length === 1 ? `[${k}]` : '';
         throw new FileFormatError(file, `element${at ? ' ' + at : ''} must be finite, got ${formatValue(data[k])}`, { field: at });
       }
@@ -220,7 +220,7 @@ export function npyToMatrix(file: string, a: NpyArray): Matrix {
   if (a.shape.length !== 2) {
     throw new FileFormatError(file, `must hold a 2-dimensional array, got shape (${a.shape.join(', ')}${a.shape.length === 1 ? ',' : ''})`, { field: 'shape' });
   }
-  return matrix(a.shape[0]!, a.shape[1]!, a.data);
+  return matrix(a.shape[0], a.shape[1], a.data);
 }
 
 /** The .npy header dict as NumPy writes it, e.g. "{'descr': '<f8', 'fortran_order': False, 'shape': (3,), }". */
@@ -252,7 +252,7 @@ export function writeNpy(shape: readonly number[], data: ArrayLike<number>): Uin
   else view.setUint32(8, headerLength, true);
   const padded = dict.padEnd(headerLength - 1, ' ') + '\n';
   for (let k = 0; k < padded.length; k++) out[prefix + k] = padded.charCodeAt(k);
-  for (let k = 0; k < count; k++) view.setFloat64(total + k * 8, data[k]!, true);
+  for (let k = 0; k < count; k++) view.setFloat64(total + k * 8, data[k], true);
   return out;
 }
 

@@ -54,8 +54,8 @@ export function cholesky(a: Matrix, options: CholeskyOptions = {}): CholeskyResu
       const oi = diagOff + i * n;
       for (let j = 0; j <= i; j++) {
         const oj = diagOff + j * n;
-        let s = d[oi + j]!;
-        for (let p = 0; p < j; p++) s -= d[oi + p]! * d[oj + p]!;
+        let s = d[oi + j];
+        for (let p = 0; p < j; p++) s -= d[oi + p] * d[oj + p];
         if (i === j) {
           if (!(s > 0)) {
             zeroStrictUpper(d, n);
@@ -63,7 +63,7 @@ export function cholesky(a: Matrix, options: CholeskyOptions = {}): CholeskyResu
           }
           d[oi + i] = Math.sqrt(s);
         } else {
-          d[oi + j] = s / d[oj + j]!;
+          d[oi + j] = s / d[oj + j];
         }
       }
     }
@@ -99,8 +99,8 @@ export function choleskyUnblocked(a: Matrix, options: CholeskyOptions = {}): Cho
     const oi = i * n;
     for (let j = 0; j <= i; j++) {
       const oj = j * n;
-      let s = d[oi + j]! + (i === j ? jitter : 0);
-      for (let k = 0; k < j; k++) s -= d[oi + k]! * d[oj + k]!;
+      let s = d[oi + j] + (i === j ? jitter : 0);
+      for (let k = 0; k < j; k++) s -= d[oi + k] * d[oj + k];
       if (i === j) {
         if (!(s > 0)) {
           zeroStrictUpper(d, n);
@@ -108,7 +108,7 @@ export function choleskyUnblocked(a: Matrix, options: CholeskyOptions = {}): Cho
         }
         d[oi + i] = Math.sqrt(s);
       } else {
-        d[oi + j] = s / d[oj + j]!;
+        d[oi + j] = s / d[oj + j];
       }
     }
     for (let j = i + 1; j < n; j++) d[oi + j] = 0;
@@ -122,10 +122,10 @@ export function solveLower(L: Matrix, b: ArrayLike<number>): Float64Array {
   const x = Float64Array.from(b);
   const d = L.data;
   for (let i = 0; i < n; i++) {
-    let s = x[i]!;
+    let s = x[i];
     const oi = i * n;
-    for (let k = 0; k < i; k++) s -= d[oi + k]! * x[k]!;
-    x[i] = s / d[oi + i]!;
+    for (let k = 0; k < i; k++) s -= d[oi + k] * x[k];
+    x[i] = s / d[oi + i];
   }
   return x;
 }
@@ -136,9 +136,9 @@ export function solveLowerTranspose(L: Matrix, b: ArrayLike<number>): Float64Arr
   const x = Float64Array.from(b);
   const d = L.data;
   for (let i = n - 1; i >= 0; i--) {
-    const xi = x[i]! / d[i * n + i]!;
+    const xi = x[i] / d[i * n + i];
     x[i] = xi;
-    for (let k = 0; k < i; k++) x[k] -= d[i * n + k]! * xi;
+    for (let k = 0; k < i; k++) x[k] -= d[i * n + k] * xi;
   }
   return x;
 }
@@ -203,15 +203,15 @@ export function solveLowerTransposeRowsInPlace(L: Matrix, X: Matrix): Matrix {
       const o3 = o2 + n;
       for (let i = i1 - 1; i >= i0; i--) {
         const pi = (i - i0) * w - i0;
-        let s0 = x[o0 + i]!, s1 = x[o1 + i]!, s2 = x[o2 + i]!, s3 = x[o3 + i]!;
+        let s0 = x[o0 + i], s1 = x[o1 + i], s2 = x[o2 + i], s3 = x[o3 + i];
         for (let p = i + 1; p < i1; p++) {
-          const lp = pack[pi + p]!;
-          s0 -= x[o0 + p]! * lp;
-          s1 -= x[o1 + p]! * lp;
-          s2 -= x[o2 + p]! * lp;
-          s3 -= x[o3 + p]! * lp;
+          const lp = pack[pi + p];
+          s0 -= x[o0 + p] * lp;
+          s1 -= x[o1 + p] * lp;
+          s2 -= x[o2 + p] * lp;
+          s3 -= x[o3 + p] * lp;
         }
-        const inv = 1 / pack[pi + i]!;
+        const inv = 1 / pack[pi + i];
         x[o0 + i] = s0 * inv;
         x[o1 + i] = s1 * inv;
         x[o2 + i] = s2 * inv;
@@ -222,9 +222,9 @@ export function solveLowerTransposeRowsInPlace(L: Matrix, X: Matrix): Matrix {
       const o = r * n;
       for (let i = i1 - 1; i >= i0; i--) {
         const pi = (i - i0) * w - i0;
-        let s = x[o + i]!;
-        for (let p = i + 1; p < i1; p++) s -= x[o + p]! * pack[pi + p]!;
-        x[o + i] = s / pack[pi + i]!;
+        let s = x[o + i];
+        for (let p = i + 1; p < i1; p++) s -= x[o + p] * pack[pi + p];
+        x[o + i] = s / pack[pi + i];
       }
     }
   }
@@ -295,6 +295,6 @@ export function choleskySolveMatrix(L: Matrix, B: Matrix): Matrix {
 /** log det A = 2 Σ log L_ii. */
 export function logDetFromCholesky(L: Matrix): number {
   let s = 0;
-  for (let i = 0; i < L.rows; i++) s += Math.log(L.data[i * L.rows + i]!);
+  for (let i = 0; i < L.rows; i++) s += Math.log(L.data[i * L.rows + i]);
   return 2 * s;
 }

@@ -34,7 +34,7 @@ function checkSymmetricInput(a: Matrix, who: string): number {
   for (let i = 0; i < n; i++) {
     const o = i * n;
     for (let j = 0; j <= i; j++) {
-      if (!Number.isFinite(d[o + j]!)) throw new RangeError(`${who}: entry (${i}, ${j}) must be finite, got ${d[o + j]}`);
+      if (!Number.isFinite(d[o + j])) throw new RangeError(`${who}: entry (${i}, ${j}) must be finite, got ${d[o + j]}`);
     }
   }
   return n;
@@ -53,16 +53,16 @@ function tridiagonaliseUnblockedInPlace(w: Float64Array, n: number, betas: Float
   const e = new Float64Array(n);
   const p = new Float64Array(n);
   for (let k = 0; k < n - 2; k++) {
-    d[k] = w[k * n + k]!;
+    d[k] = w[k * n + k];
     // x = A[k+1:n, k] (column k under the diagonal, lower triangle); v goes to row k, cols k+1..n-1.
     const vo = k * n;
     let sigma2 = 0;
     for (let i = k + 1; i < n; i++) {
-      const xi = w[i * n + k]!;
+      const xi = w[i * n + k];
       w[vo + i] = xi;
       sigma2 += xi * xi;
     }
-    const x0 = w[vo + k + 1]!;
+    const x0 = w[vo + k + 1];
     const tail2 = sigma2 - x0 * x0;
     if (tail2 === 0) {
       // Already reduced in this column: no reflection needed.
@@ -82,34 +82,34 @@ function tridiagonaliseUnblockedInPlace(w: Float64Array, n: number, betas: Float
     for (let i = s0; i < n; i++) p[i] = 0;
     for (let i = s0; i < n; i++) {
       const oi = i * n;
-      const vi = w[vo + i]!;
+      const vi = w[vo + i];
       let s = 0;
       for (let j = s0; j < i; j++) {
-        const aij = w[oi + j]!;
-        s += aij * w[vo + j]!;
+        const aij = w[oi + j];
+        s += aij * w[vo + j];
         p[j] += aij * vi;
       }
-      p[i] += s + w[oi + i]! * vi;
+      p[i] += s + w[oi + i] * vi;
     }
     let pv = 0;
     for (let i = s0; i < n; i++) {
       p[i] *= beta;
-      pv += p[i]! * w[vo + i]!;
+      pv += p[i] * w[vo + i];
     }
     const half = 0.5 * beta * pv;
-    for (let i = s0; i < n; i++) p[i] -= half * w[vo + i]!; // p is now w of the formula
+    for (let i = s0; i < n; i++) p[i] -= half * w[vo + i]; // p is now w of the formula
     for (let i = s0; i < n; i++) {
       const oi = i * n;
-      const vi = w[vo + i]!;
-      const wi = p[i]!;
-      for (let j = s0; j <= i; j++) w[oi + j] -= vi * p[j]! + wi * w[vo + j]!;
+      const vi = w[vo + i];
+      const wi = p[i];
+      for (let j = s0; j <= i; j++) w[oi + j] -= vi * p[j] + wi * w[vo + j];
     }
   }
   if (n >= 2) {
-    d[n - 2] = w[(n - 2) * n + n - 2]!;
-    e[n - 2] = w[(n - 1) * n + n - 2]!;
+    d[n - 2] = w[(n - 2) * n + n - 2];
+    e[n - 2] = w[(n - 1) * n + n - 2];
   }
-  if (n >= 1) d[n - 1] = w[(n - 1) * n + n - 1]!;
+  if (n >= 1) d[n - 1] = w[(n - 1) * n + n - 1];
   return { d, e };
 }
 
@@ -126,17 +126,17 @@ function symmetricLowerMatvec(a: Float64Array, n: number, s0: number, vec: Float
     const o1 = o0 + n;
     const o2 = o1 + n;
     const o3 = o2 + n;
-    const v0 = vec[vo + i]!;
-    const v1 = vec[vo + i + 1]!;
-    const v2 = vec[vo + i + 2]!;
-    const v3 = vec[vo + i + 3]!;
+    const v0 = vec[vo + i];
+    const v1 = vec[vo + i + 1];
+    const v2 = vec[vo + i + 2];
+    const v3 = vec[vo + i + 3];
     let t0 = 0, t1 = 0, t2 = 0, t3 = 0;
     for (let j = s0; j < i; j++) {
-      const a0 = a[o0 + j]!;
-      const a1 = a[o1 + j]!;
-      const a2 = a[o2 + j]!;
-      const a3 = a[o3 + j]!;
-      const vj = vec[vo + j]!;
+      const a0 = a[o0 + j];
+      const a1 = a[o1 + j];
+      const a2 = a[o2 + j];
+      const a3 = a[o3 + j];
+      const vj = vec[vo + j];
       t0 += a0 * vj;
       t1 += a1 * vj;
       t2 += a2 * vj;
@@ -148,22 +148,22 @@ function symmetricLowerMatvec(a: Float64Array, n: number, s0: number, vec: Float
       const or = o0 + r * n;
       let s = r === 0 ? t0 : r === 1 ? t1 : r === 2 ? t2 : t3;
       for (let q = 0; q < 4; q++) {
-        const arq = q <= r ? a[or + i + q]! : a[o0 + q * n + i + r]!;
-        s += arq * vec[vo + i + q]!;
+        const arq = q <= r ? a[or + i + q] : a[o0 + q * n + i + r];
+        s += arq * vec[vo + i + q];
       }
       p[i + r] += s;
     }
   }
   for (; i < n; i++) {
     const o = i * n;
-    const vi = vec[vo + i]!;
+    const vi = vec[vo + i];
     let t = 0;
     for (let j = s0; j < i; j++) {
-      const aij = a[o + j]!;
-      t += aij * vec[vo + j]!;
+      const aij = a[o + j];
+      t += aij * vec[vo + j];
       p[j] += aij * vi;
     }
-    p[i] += t + a[o + i]! * vi;
+    p[i] += t + a[o + i] * vi;
   }
 }
 
@@ -200,17 +200,17 @@ function tridiagonaliseInPlace(w: Float64Array, n: number, betas: Float64Array):
       // (1) Column k (rows k..n−1) of the current matrix: original minus the pending panel updates.
       const bk = (k - k0) * ld;
       for (let i = k; i < n; i++) {
-        let s = w[i * n + k]!;
+        let s = w[i * n + k];
         const bi = (i - k0) * ld;
-        for (let q = 0; q < j; q++) s -= buf[bi + q]! * buf[bk + nb + q]! + buf[bi + nb + q]! * buf[bk + q]!;
+        for (let q = 0; q < j; q++) s -= buf[bi + q] * buf[bk + nb + q] + buf[bi + nb + q] * buf[bk + q];
         x[i] = s;
       }
-      d[k] = x[k]!;
+      d[k] = x[k];
       // (2) Reflector for x[k+1..n−1]; v is kept in row k, columns k+1..n−1 (unused upper triangle).
       const vo = k * n;
       let sigma2 = 0;
-      for (let i = k + 1; i < n; i++) sigma2 += x[i]! * x[i]!;
-      const x0 = x[k + 1]!;
+      for (let i = k + 1; i < n; i++) sigma2 += x[i] * x[i];
+      const x0 = x[k + 1];
       const tail2 = sigma2 - x0 * x0;
       if (tail2 === 0) {
         e[k] = x0;
@@ -224,11 +224,11 @@ function tridiagonaliseInPlace(w: Float64Array, n: number, betas: Float64Array):
       betas[k] = beta;
       e[k] = alpha;
       w[vo + k + 1] = x0 - alpha;
-      for (let i = k + 2; i < n; i++) w[vo + i] = x[i]!;
+      for (let i = k + 2; i < n; i++) w[vo + i] = x[i];
       for (let i = k + 1; i < n; i++) {
         const bi = (i - k0) * ld;
-        buf[bi + j] = w[vo + i]!;
-        buf[bi + 2 * nb + j] = w[vo + i]!;
+        buf[bi + j] = w[vo + i];
+        buf[bi + 2 * nb + j] = w[vo + i];
       }
       // (3) p = A₂₂ v with A₂₂ = rows/cols k+1.. as at the panel start (lower triangle only) …
       const s0 = k + 1;
@@ -239,16 +239,16 @@ function tridiagonaliseInPlace(w: Float64Array, n: number, betas: Float64Array):
         vtv.fill(0);
         for (let i = s0; i < n; i++) {
           const bi = (i - k0) * ld;
-          const vi = w[vo + i]!;
+          const vi = w[vo + i];
           for (let q = 0; q < j; q++) {
-            vtv[q] += buf[bi + q]! * vi;
-            wtv[q] += buf[bi + nb + q]! * vi;
+            vtv[q] += buf[bi + q] * vi;
+            wtv[q] += buf[bi + nb + q] * vi;
           }
         }
         for (let i = s0; i < n; i++) {
           const bi = (i - k0) * ld;
           let s = 0;
-          for (let q = 0; q < j; q++) s += buf[bi + q]! * wtv[q]! + buf[bi + nb + q]! * vtv[q]!;
+          for (let q = 0; q < j; q++) s += buf[bi + q] * wtv[q] + buf[bi + nb + q] * vtv[q];
           p[i] -= s;
         }
       }
@@ -256,10 +256,10 @@ function tridiagonaliseInPlace(w: Float64Array, n: number, betas: Float64Array):
       let pv = 0;
       for (let i = s0; i < n; i++) {
         p[i] *= beta;
-        pv += p[i]! * w[vo + i]!;
+        pv += p[i] * w[vo + i];
       }
       const half = 0.5 * beta * pv;
-      for (let i = s0; i < n; i++) buf[(i - k0) * ld + nb + j] = p[i]! - half * w[vo + i]!;
+      for (let i = s0; i < n; i++) buf[(i - k0) * ld + nb + j] = p[i] - half * w[vo + i];
     }
     // (5) Trailing update of rows/cols k1.. (lower triangle): A −= [V W] [W V]ᵀ.
     const k1 = k0 + jb;
@@ -267,9 +267,9 @@ function tridiagonaliseInPlace(w: Float64Array, n: number, betas: Float64Array):
     const r1 = (k1 - k0) * ld;
     gemmNT(m, m, 2 * nb, -1, buf, r1, ld, buf, r1 + nb, ld, w, k1 * n + k1, n, true, 0);
   }
-  d[n - 2] = w[(n - 2) * n + n - 2]!;
-  e[n - 2] = w[(n - 1) * n + n - 2]!;
-  d[n - 1] = w[(n - 1) * n + n - 1]!;
+  d[n - 2] = w[(n - 2) * n + n - 2];
+  e[n - 2] = w[(n - 1) * n + n - 2];
+  d[n - 1] = w[(n - 1) * n + n - 1];
   return { d, e };
 }
 
@@ -288,15 +288,15 @@ function tridiagonalQL(d: Float64Array, e: Float64Array, z: Float64Array | null,
   // |d| itself is at round-off level) from cycling forever. Eigenvalues are only determined to
   // O(ε‖T‖) anyway (Golub & Van Loan §8.3, memory), so the absolute test loses nothing.
   let tnorm = 0;
-  for (let i = 0; i < n; i++) tnorm = Math.max(tnorm, Math.abs(d[i]!) + Math.abs(e[i]!) + (i > 0 ? Math.abs(e[i - 1]!) : 0));
+  for (let i = 0; i < n; i++) tnorm = Math.max(tnorm, Math.abs(d[i]) + Math.abs(e[i]) + (i > 0 ? Math.abs(e[i - 1]) : 0));
   const absoluteTol = EPS * tnorm;
   for (let l = 0; l < n; l++) {
     let iter = 0;
     for (;;) {
       let m = l;
       for (; m < n - 1; m++) {
-        const dd = Math.abs(d[m]!) + Math.abs(d[m + 1]!);
-        const em = Math.abs(e[m]!);
+        const dd = Math.abs(d[m]) + Math.abs(d[m + 1]);
+        const em = Math.abs(e[m]);
         if (em <= EPS * dd || em <= absoluteTol) break;
       }
       if (m === l) break;
@@ -304,17 +304,17 @@ function tridiagonalQL(d: Float64Array, e: Float64Array, z: Float64Array | null,
         throw new Error(`symmetric eigenvalues: QL iteration did not converge at index ${l} after 60 sweeps`);
       }
       // Shift from the 2×2 block at l.
-      let g = (d[l + 1]! - d[l]!) / (2 * e[l]!);
+      let g = (d[l + 1] - d[l]) / (2 * e[l]);
       let r = Math.hypot(g, 1);
-      g = d[m]! - d[l]! + e[l]! / (g + (g >= 0 ? r : -r));
+      g = d[m] - d[l] + e[l] / (g + (g >= 0 ? r : -r));
       let s = 1;
       let c = 1;
       let p = 0;
       let i = m - 1;
       let underflow = false;
       for (; i >= l; i--) {
-        const f = s * e[i]!;
-        const b = c * e[i]!;
+        const f = s * e[i];
+        const b = c * e[i];
         r = Math.hypot(f, g);
         e[i + 1] = r;
         if (r === 0) {
@@ -326,8 +326,8 @@ function tridiagonalQL(d: Float64Array, e: Float64Array, z: Float64Array | null,
         }
         s = f / r;
         c = g / r;
-        g = d[i + 1]! - p;
-        r = (d[i]! - g) * s + 2 * c * b;
+        g = d[i + 1] - p;
+        r = (d[i] - g) * s + 2 * c * b;
         p = s * r;
         d[i + 1] = g + p;
         g = c * r - b;
@@ -336,8 +336,8 @@ function tridiagonalQL(d: Float64Array, e: Float64Array, z: Float64Array | null,
           const oa = i * zcols;
           const ob = oa + zcols;
           for (let k = 0; k < zcols; k++) {
-            const zf = z[ob + k]!;
-            const zi = z[oa + k]!;
+            const zf = z[ob + k];
+            const zi = z[oa + k];
             z[ob + k] = s * zi + c * zf;
             z[oa + k] = c * zi - s * zf;
           }
@@ -368,7 +368,7 @@ export function tridiagonalEigenvalues(d: ArrayLike<number>, e: ArrayLike<number
   const n = d.length;
   const dd = Float64Array.from(d);
   const ee = new Float64Array(n);
-  for (let i = 0; i < n - 1; i++) ee[i] = e[i]!;
+  for (let i = 0; i < n - 1; i++) ee[i] = e[i];
   tridiagonalQL(dd, ee, null);
   return dd.sort();
 }
@@ -406,33 +406,33 @@ export function symmetricEigen(a: Matrix): SymmetricEigen {
   for (let i = 0; i < n; i++) q[i * n + i] = 1;
   const t = new Float64Array(n);
   for (let k = n - 3; k >= 0; k--) {
-    const beta = betas[k]!;
+    const beta = betas[k];
     if (beta === 0) continue;
     const vo = k * n;
     const s0 = k + 1;
     // t = vᵀ Q (row vector over columns s0..n-1), then Q -= β v t.
     for (let j = s0; j < n; j++) t[j] = 0;
     for (let i = s0; i < n; i++) {
-      const vi = w[vo + i]!;
+      const vi = w[vo + i];
       const oi = i * n;
-      for (let j = s0; j < n; j++) t[j] += vi * q[oi + j]!;
+      for (let j = s0; j < n; j++) t[j] += vi * q[oi + j];
     }
     for (let i = s0; i < n; i++) {
-      const bvi = beta * w[vo + i]!;
+      const bvi = beta * w[vo + i];
       const oi = i * n;
-      for (let j = s0; j < n; j++) q[oi + j] -= bvi * t[j]!;
+      for (let j = s0; j < n; j++) q[oi + j] -= bvi * t[j];
     }
   }
   const zt = new Float64Array(n * n);
   transposeBlock(n, n, q, 0, n, zt, 0, n);
   tridiagonalQL(d, e, zt);
-  const order = Array.from({ length: n }, (_, i) => i).sort((x, y) => d[x]! - d[y]!);
+  const order = Array.from({ length: n }, (_, i) => i).sort((x, y) => d[x] - d[y]);
   const values = new Float64Array(n);
   const vectors = matrix(n, n);
   for (let j = 0; j < n; j++) {
-    const src = order[j]!;
-    values[j] = d[src]!;
-    for (let i = 0; i < n; i++) vectors.data[i * n + j] = zt[src * n + i]!;
+    const src = order[j];
+    values[j] = d[src];
+    for (let i = 0; i < n; i++) vectors.data[i * n + j] = zt[src * n + i];
   }
   return { values, vectors };
 }
@@ -461,28 +461,28 @@ export function symmetricEigenProjected(a: Matrix, b: Matrix): SymmetricEigenPro
   const z = b.data.slice();
   const t = new Float64Array(k);
   for (let r = 0; r < n - 2; r++) {
-    const beta = betas[r]!;
+    const beta = betas[r];
     if (beta === 0) continue;
     const vo = r * n;
     t.fill(0);
     for (let i = r + 1; i < n; i++) {
-      const vi = w[vo + i]!;
+      const vi = w[vo + i];
       const oi = i * k;
-      for (let j = 0; j < k; j++) t[j] += vi * z[oi + j]!;
+      for (let j = 0; j < k; j++) t[j] += vi * z[oi + j];
     }
     for (let i = r + 1; i < n; i++) {
-      const bvi = beta * w[vo + i]!;
+      const bvi = beta * w[vo + i];
       const oi = i * k;
-      for (let j = 0; j < k; j++) z[oi + j] -= bvi * t[j]!;
+      for (let j = 0; j < k; j++) z[oi + j] -= bvi * t[j];
     }
   }
   tridiagonalQL(d, e, z, k);
-  const order = Array.from({ length: n }, (_, i) => i).sort((x, y) => d[x]! - d[y]!);
+  const order = Array.from({ length: n }, (_, i) => i).sort((x, y) => d[x] - d[y]);
   const values = new Float64Array(n);
   const projected = matrix(n, k);
   for (let j = 0; j < n; j++) {
-    const src = order[j]!;
-    values[j] = d[src]!;
+    const src = order[j];
+    values[j] = d[src];
     projected.data.set(z.subarray(src * k, (src + 1) * k), j * k);
   }
   return { values, projected };
@@ -550,8 +550,8 @@ export function lanczosExtremes(
     if (aq.length !== n) throw new RangeError(`lanczosExtremes: applyA returned length ${aq.length}, expected ${n}`);
     let a = 0;
     for (let i = 0; i < n; i++) {
-      w[i] = aq[i]!;
-      a += w[i]! * qj[i]!;
+      w[i] = aq[i];
+      a += w[i] * qj[i];
     }
     if (!Number.isFinite(a)) throw new RangeError(`lanczosExtremes: applyA gave a non-finite product at step ${j}`);
     alpha[j] = a;
@@ -561,35 +561,35 @@ export function lanczosExtremes(
       for (let p = 0; p <= j; p++) {
         const o = p * n;
         let h = 0;
-        for (let i = 0; i < n; i++) h += q[o + i]! * w[i]!;
-        for (let i = 0; i < n; i++) w[i] -= h * q[o + i]!;
+        for (let i = 0; i < n; i++) h += q[o + i] * w[i];
+        for (let i = 0; i < n; i++) w[i] -= h * q[o + i];
       }
     }
     let b2 = 0;
-    for (let i = 0; i < n; i++) b2 += w[i]! * w[i]!;
+    for (let i = 0; i < n; i++) b2 += w[i] * w[i];
     const b = Math.sqrt(b2);
     lastBeta = b;
     // Invariant subspace: T's eigenvalues are exact eigenvalues of A.
-    const scale = Math.abs(a) + (j > 0 ? beta[j - 1]! : 0);
+    const scale = Math.abs(a) + (j > 0 ? beta[j - 1] : 0);
     if (j === steps - 1 || b <= 1e-14 * Math.max(scale, Number.MIN_VALUE)) break;
     beta[j] = b;
     const o = (j + 1) * n;
-    for (let i = 0; i < n; i++) q[o + i] = w[i]! / b;
+    for (let i = 0; i < n; i++) q[o + i] = w[i] / b;
   }
   // Eigen-decomposition of the m × m tridiagonal T (dense; m is small).
   const T = matrix(m, m);
   for (let i = 0; i < m; i++) {
-    T.data[i * m + i] = alpha[i]!;
+    T.data[i * m + i] = alpha[i];
     if (i + 1 < m) {
-      T.data[(i + 1) * m + i] = beta[i]!;
-      T.data[i * m + i + 1] = beta[i]!;
+      T.data[(i + 1) * m + i] = beta[i];
+      T.data[i * m + i + 1] = beta[i];
     }
   }
   const { values, vectors } = symmetricEigen(T);
-  const last = (col: number) => Math.abs(lastBeta * vectors.data[(m - 1) * m + col]!);
+  const last = (col: number) => Math.abs(lastBeta * vectors.data[(m - 1) * m + col]);
   return {
-    min: values[0]!,
-    max: values[m - 1]!,
+    min: values[0],
+    max: values[m - 1],
     minResidual: last(0),
     maxResidual: last(m - 1),
     iterations: m,

@@ -81,18 +81,18 @@ function gemmNTPanel(
         const pb1 = pb0 + ldb;
         let s00 = 0, s01 = 0, s10 = 0, s11 = 0, s20 = 0, s21 = 0, s30 = 0, s31 = 0;
         for (let p = 0; p < kk; p++) {
-          const b0 = b[pb0 + p]!;
-          const b1 = b[pb1 + p]!;
-          const a0 = a[pa0 + p]!;
+          const b0 = b[pb0 + p];
+          const b1 = b[pb1 + p];
+          const a0 = a[pa0 + p];
           s00 += a0 * b0;
           s01 += a0 * b1;
-          const a1 = a[pa1 + p]!;
+          const a1 = a[pa1 + p];
           s10 += a1 * b0;
           s11 += a1 * b1;
-          const a2 = a[pa2 + p]!;
+          const a2 = a[pa2 + p];
           s20 += a2 * b0;
           s21 += a2 * b1;
-          const a3 = a[pa3 + p]!;
+          const a3 = a[pa3 + p];
           s30 += a3 * b0;
           s31 += a3 * b1;
         }
@@ -110,7 +110,7 @@ function gemmNTPanel(
           // Tile straddles the diagonal: write only j ≤ i + diag.
           const s = [s00, s01, s10, s11, s20, s21, s30, s31];
           for (let r = 0; r < 4; r++) {
-            for (let q = 0; q < 2; q++) if (j + q <= i + r + diag) c[c0 + r * ldc + q] += alpha * s[2 * r + q]!;
+            for (let q = 0; q < 2; q++) if (j + q <= i + r + diag) c[c0 + r * ldc + q] += alpha * s[2 * r + q];
           }
         }
       }
@@ -121,7 +121,7 @@ function gemmNTPanel(
           if (lower && j > i + r + diag) continue;
           const pa = pa0 + r * lda;
           let s = 0;
-          for (let p = 0; p < kk; p++) s += a[pa + p]! * b[pb + p]!;
+          for (let p = 0; p < kk; p++) s += a[pa + p] * b[pb + p];
           c[co + (i + r) * ldc + j] += alpha * s;
         }
       }
@@ -133,7 +133,7 @@ function gemmNTPanel(
       for (let j = jc; j < jEnd; j++) {
         const pb = bo + j * ldb + pc;
         let s = 0;
-        for (let p = 0; p < kk; p++) s += a[pa + p]! * b[pb + p]!;
+        for (let p = 0; p < kk; p++) s += a[pa + p] * b[pb + p];
         c[co + i * ldc + j] += alpha * s;
       }
     }
@@ -158,7 +158,7 @@ export function transposeBlock(
       const j1 = Math.min(n, j0 + T);
       for (let i = i0; i < i1; i++) {
         const si = so + i * lds;
-        for (let j = j0; j < j1; j++) dst[do_ + j * ldd + i] = src[si + j]!;
+        for (let j = j0; j < j1; j++) dst[do_ + j * ldd + i] = src[si + j];
       }
     }
   }
@@ -185,15 +185,15 @@ export function trsmRowsLowerT(
     const o3 = o2 + ldx;
     for (let j = c0; j < c1; j++) {
       const oj = lOff + j * ldl;
-      let s0 = x[o0 + j]!, s1 = x[o1 + j]!, s2 = x[o2 + j]!, s3 = x[o3 + j]!;
+      let s0 = x[o0 + j], s1 = x[o1 + j], s2 = x[o2 + j], s3 = x[o3 + j];
       for (let p = c0; p < j; p++) {
-        const lp = l[oj + p]!;
-        s0 -= x[o0 + p]! * lp;
-        s1 -= x[o1 + p]! * lp;
-        s2 -= x[o2 + p]! * lp;
-        s3 -= x[o3 + p]! * lp;
+        const lp = l[oj + p];
+        s0 -= x[o0 + p] * lp;
+        s1 -= x[o1 + p] * lp;
+        s2 -= x[o2 + p] * lp;
+        s3 -= x[o3 + p] * lp;
       }
-      const inv = 1 / l[oj + j]!;
+      const inv = 1 / l[oj + j];
       x[o0 + j] = s0 * inv;
       x[o1 + j] = s1 * inv;
       x[o2 + j] = s2 * inv;
@@ -204,9 +204,9 @@ export function trsmRowsLowerT(
     const o = xOff + r * ldx;
     for (let j = c0; j < c1; j++) {
       const oj = lOff + j * ldl;
-      let s = x[o + j]!;
-      for (let p = c0; p < j; p++) s -= x[o + p]! * l[oj + p]!;
-      x[o + j] = s / l[oj + j]!;
+      let s = x[o + j];
+      for (let p = c0; p < j; p++) s -= x[o + p] * l[oj + p];
+      x[o + j] = s / l[oj + j];
     }
   }
 }

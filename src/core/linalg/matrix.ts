@@ -21,12 +21,12 @@ export function matrix(rows: number, cols: number, data?: Float64Array): Matrix 
 /** Copy of nested row arrays into a Matrix. Rows must all have the same length. */
 export function fromRows(rows: ArrayLike<ArrayLike<number>>): Matrix {
   const r = rows.length;
-  const c = r === 0 ? 0 : rows[0]!.length;
+  const c = r === 0 ? 0 : rows[0].length;
   const out = matrix(r, c);
   for (let i = 0; i < r; i++) {
-    const row = rows[i]!;
+    const row = rows[i];
     if (row.length !== c) throw new RangeError(`fromRows: row ${i} has length ${row.length}, expected ${c}`);
-    for (let j = 0; j < c; j++) out.data[i * c + j] = row[j]!;
+    for (let j = 0; j < c; j++) out.data[i * c + j] = row[j];
   }
   return out;
 }
@@ -57,14 +57,14 @@ export function transpose(a: Matrix): Matrix {
 
 /** Element (i, j). For tests and cold paths; hot loops index `data` directly. */
 export function at(a: Matrix, i: number, j: number): number {
-  return a.data[i * a.cols + j]!;
+  return a.data[i * a.cols + j];
 }
 
 /** Diagonal of a square matrix. */
 export function diagonal(a: Matrix): Float64Array {
   const n = Math.min(a.rows, a.cols);
   const out = new Float64Array(n);
-  for (let i = 0; i < n; i++) out[i] = a.data[i * a.cols + i]!;
+  for (let i = 0; i < n; i++) out[i] = a.data[i * a.cols + i];
   return out;
 }
 
@@ -74,7 +74,7 @@ export function matvec(a: Matrix, x: ArrayLike<number>, out = new Float64Array(a
   for (let i = 0; i < rows; i++) {
     let s = 0;
     const o = i * cols;
-    for (let j = 0; j < cols; j++) s += data[o + j]! * x[j]!;
+    for (let j = 0; j < cols; j++) s += data[o + j] * x[j];
     out[i] = s;
   }
   return out;
@@ -85,10 +85,10 @@ export function matTvec(a: Matrix, x: ArrayLike<number>, out = new Float64Array(
   const { rows, cols, data } = a;
   out.fill(0);
   for (let i = 0; i < rows; i++) {
-    const xi = x[i]!;
+    const xi = x[i];
     if (xi === 0) continue;
     const o = i * cols;
-    for (let j = 0; j < cols; j++) out[j] += data[o + j]! * xi;
+    for (let j = 0; j < cols; j++) out[j] += data[o + j] * xi;
   }
   return out;
 }
@@ -110,10 +110,10 @@ export function matmul(a: Matrix, b: Matrix): Matrix {
   for (let i = 0; i < a.rows; i++) {
     const oi = i * n;
     for (let k = 0; k < a.cols; k++) {
-      const aik = a.data[i * a.cols + k]!;
+      const aik = a.data[i * a.cols + k];
       if (aik === 0) continue;
       const ok = k * n;
-      for (let j = 0; j < n; j++) out.data[oi + j] += aik * b.data[ok + j]!;
+      for (let j = 0; j < n; j++) out.data[oi + j] += aik * b.data[ok + j];
     }
   }
   return out;
@@ -121,6 +121,6 @@ export function matmul(a: Matrix, b: Matrix): Matrix {
 
 export function dot(x: ArrayLike<number>, y: ArrayLike<number>): number {
   let s = 0;
-  for (let i = 0; i < x.length; i++) s += x[i]! * y[i]!;
+  for (let i = 0; i < x.length; i++) s += x[i] * y[i];
   return s;
 }

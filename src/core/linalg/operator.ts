@@ -48,7 +48,7 @@ export function applyOperator(g: Operator, x: ArrayLike<number>): Float64Array {
       for (let i = 0; i < rows; i++) {
         let s = 0;
         const o = i * cols;
-        for (let j = 0; j < cols; j++) s += data[o + j]! * x[j]!;
+        for (let j = 0; j < cols; j++) s += data[o + j] * x[j];
         out[i] = s;
       }
       return out;
@@ -57,7 +57,7 @@ export function applyOperator(g: Operator, x: ArrayLike<number>): Float64Array {
       const { rows, rowPtr, colIdx, values } = g.matrix;
       for (let i = 0; i < rows; i++) {
         let s = 0;
-        for (let p = rowPtr[i]!; p < rowPtr[i + 1]!; p++) s += values[p]! * x[colIdx[p]!]!;
+        for (let p = rowPtr[i]; p < rowPtr[i + 1]; p++) s += values[p] * x[colIdx[p]];
         out[i] = s;
       }
       return out;
@@ -74,17 +74,17 @@ export function applyOperatorTranspose(g: Operator, x: ArrayLike<number>): Float
     case 'dense': {
       const { rows, cols, data } = g.matrix;
       for (let i = 0; i < rows; i++) {
-        const xi = x[i]!;
+        const xi = x[i];
         const o = i * cols;
-        for (let j = 0; j < cols; j++) out[j] += data[o + j]! * xi;
+        for (let j = 0; j < cols; j++) out[j] += data[o + j] * xi;
       }
       return out;
     }
     case 'sparse': {
       const { rows, rowPtr, colIdx, values } = g.matrix;
       for (let i = 0; i < rows; i++) {
-        const xi = x[i]!;
-        for (let p = rowPtr[i]!; p < rowPtr[i + 1]!; p++) out[colIdx[p]!] += values[p]! * xi;
+        const xi = x[i];
+        for (let p = rowPtr[i]; p < rowPtr[i + 1]; p++) out[colIdx[p]] += values[p] * xi;
       }
       return out;
     }
@@ -102,7 +102,7 @@ export function operatorRowInto(g: Operator, i: number, out: Float64Array): Floa
     case 'sparse': {
       out.fill(0);
       const { rowPtr, colIdx, values } = g.matrix;
-      for (let p = rowPtr[i]!; p < rowPtr[i + 1]!; p++) out[colIdx[p]!] += values[p]!;
+      for (let p = rowPtr[i]; p < rowPtr[i + 1]; p++) out[colIdx[p]] += values[p];
       return out;
     }
     default:
@@ -120,12 +120,12 @@ export function addOperatorRow(g: Operator, i: number, c: number, out: Float64Ar
   switch (g.kind) {
     case 'dense': {
       const { cols, data } = g.matrix;
-      for (let j = 0; j < cols; j++) out[offset + j] += c * data[i * cols + j]!;
+      for (let j = 0; j < cols; j++) out[offset + j] += c * data[i * cols + j];
       return;
     }
     case 'sparse': {
       const { rowPtr, colIdx, values } = g.matrix;
-      for (let p = rowPtr[i]!; p < rowPtr[i + 1]!; p++) out[offset + colIdx[p]!] += c * values[p]!;
+      for (let p = rowPtr[i]; p < rowPtr[i + 1]; p++) out[offset + colIdx[p]] += c * values[p];
       return;
     }
     default:
@@ -139,12 +139,12 @@ export function operatorColumnAbsSums(g: Operator): Float64Array {
   switch (g.kind) {
     case 'dense': {
       const { rows, cols, data } = g.matrix;
-      for (let i = 0; i < rows; i++) for (let j = 0; j < cols; j++) out[j] += Math.abs(data[i * cols + j]!);
+      for (let i = 0; i < rows; i++) for (let j = 0; j < cols; j++) out[j] += Math.abs(data[i * cols + j]);
       return out;
     }
     case 'sparse': {
       const { rowPtr, colIdx, values, rows } = g.matrix;
-      for (let i = 0; i < rows; i++) for (let p = rowPtr[i]!; p < rowPtr[i + 1]!; p++) out[colIdx[p]!] += Math.abs(values[p]!);
+      for (let i = 0; i < rows; i++) for (let p = rowPtr[i]; p < rowPtr[i + 1]; p++) out[colIdx[p]] += Math.abs(values[p]);
       return out;
     }
     default:
@@ -169,8 +169,8 @@ export function operatorRowExtents(g: Operator): { readonly first: Int32Array; r
       for (let i = 0; i < rows; i++) {
         let a = cols;
         let b = -1;
-        for (let p = rowPtr[i]!; p < rowPtr[i + 1]!; p++) {
-          const c = colIdx[p]!;
+        for (let p = rowPtr[i]; p < rowPtr[i + 1]; p++) {
+          const c = colIdx[p];
           if (c < a) a = c;
           if (c > b) b = c;
         }
@@ -252,12 +252,12 @@ export function operatorTimesTransposed(g: Operator, b: Matrix): Matrix {
       const bd = b.data;
       const { rowPtr, colIdx, values } = g.matrix;
       for (let a = 0; a < m; a++) {
-        const p0 = rowPtr[a]!;
-        const p1 = rowPtr[a + 1]!;
+        const p0 = rowPtr[a];
+        const p1 = rowPtr[a + 1];
         for (let q = 0; q < k; q++) {
           const o = q * n;
           let sum = 0;
-          for (let p = p0; p < p1; p++) sum += values[p]! * bd[o + colIdx[p]!]!;
+          for (let p = p0; p < p1; p++) sum += values[p] * bd[o + colIdx[p]];
           od[a * k + q] = sum;
         }
       }
@@ -296,13 +296,13 @@ export function operatorTimesTransposedSymmetric(g: Operator, b: Matrix): Matrix
         const o3 = o2 + n;
         for (let a = c; a < m; a++) {
           let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
-          for (let p = rowPtr[a]!, p1 = rowPtr[a + 1]!; p < p1; p++) {
-            const v = values[p]!;
-            const j = colIdx[p]!;
-            s0 += v * bd[o0 + j]!;
-            s1 += v * bd[o1 + j]!;
-            s2 += v * bd[o2 + j]!;
-            s3 += v * bd[o3 + j]!;
+          for (let p = rowPtr[a], p1 = rowPtr[a + 1]; p < p1; p++) {
+            const v = values[p];
+            const j = colIdx[p];
+            s0 += v * bd[o0 + j];
+            s1 += v * bd[o1 + j];
+            s2 += v * bd[o2 + j];
+            s3 += v * bd[o3 + j];
           }
           const ka = a * m + c;
           kd[ka] = s0;
@@ -315,7 +315,7 @@ export function operatorTimesTransposedSymmetric(g: Operator, b: Matrix): Matrix
         const o = c * n;
         for (let a = c; a < m; a++) {
           let sum = 0;
-          for (let p = rowPtr[a]!, p1 = rowPtr[a + 1]!; p < p1; p++) sum += values[p]! * bd[o + colIdx[p]!]!;
+          for (let p = rowPtr[a], p1 = rowPtr[a + 1]; p < p1; p++) sum += values[p] * bd[o + colIdx[p]];
           kd[a * m + c] = sum;
         }
       }
@@ -360,7 +360,7 @@ export function operatorGram(g: Operator): Matrix {
       for (let i = 0; i < m; i++) {
         for (let k = 0; k <= i; k++) {
           let s = 0;
-          for (let j = 0; j < n; j++) s += gd[i * n + j]! * gd[k * n + j]!;
+          for (let j = 0; j < n; j++) s += gd[i * n + j] * gd[k * n + j];
           od[i * m + k] = s;
           od[k * m + i] = s;
         }
@@ -371,14 +371,14 @@ export function operatorGram(g: Operator): Matrix {
       const { rowPtr, colIdx, values } = g.matrix;
       const row = new Float64Array(n);
       for (let i = 0; i < m; i++) {
-        for (let p = rowPtr[i]!; p < rowPtr[i + 1]!; p++) row[colIdx[p]!] += values[p]!;
+        for (let p = rowPtr[i]; p < rowPtr[i + 1]; p++) row[colIdx[p]] += values[p];
         for (let k = 0; k <= i; k++) {
           let s = 0;
-          for (let p = rowPtr[k]!; p < rowPtr[k + 1]!; p++) s += values[p]! * row[colIdx[p]!]!;
+          for (let p = rowPtr[k]; p < rowPtr[k + 1]; p++) s += values[p] * row[colIdx[p]];
           od[i * m + k] = s;
           od[k * m + i] = s;
         }
-        for (let p = rowPtr[i]!; p < rowPtr[i + 1]!; p++) row[colIdx[p]!] = 0;
+        for (let p = rowPtr[i]; p < rowPtr[i + 1]; p++) row[colIdx[p]] = 0;
       }
       return out;
     }

@@ -55,7 +55,7 @@ export function columnSumsOfSquares(w: Matrix, out = new Float64Array(w.cols)): 
   for (let i = 0; i < rows; i++) {
     const o = i * cols;
     for (let j = 0; j < cols; j++) {
-      const v = data[o + j]!;
+      const v = data[o + j];
       out[j] += v * v;
     }
   }
@@ -68,7 +68,7 @@ export function rowSumsOfSquares(w: Matrix, out = new Float64Array(w.rows)): Flo
   for (let i = 0; i < rows; i++) {
     const o = i * cols;
     let s = 0;
-    for (let j = 0; j < cols; j++) s += data[o + j]! * data[o + j]!;
+    for (let j = 0; j < cols; j++) s += data[o + j] * data[o + j];
     out[i] = s;
   }
   return out;
@@ -87,7 +87,7 @@ export function symmetrise(a: Matrix): void {
   const d = a.data;
   for (let i = 0; i < n; i++) {
     for (let j = 0; j < i; j++) {
-      const v = 0.5 * (d[i * n + j]! + d[j * n + i]!);
+      const v = 0.5 * (d[i * n + j] + d[j * n + i]);
       d[i * n + j] = v;
       d[j * n + i] = v;
     }
@@ -105,7 +105,7 @@ export function mirrorLowerToUpper(a: Matrix): Matrix {
       const i1 = Math.min(n, i0 + T);
       for (let i = i0; i < i1; i++) {
         const j1 = Math.min(i, j0 + T);
-        for (let j = j0; j < j1; j++) d[j * n + i] = d[i * n + j]!;
+        for (let j = j0; j < j1; j++) d[j * n + i] = d[i * n + j];
       }
     }
   }

@@ -22,33 +22,33 @@ export function sparseFromCoordinates(
 ): SparseMatrix {
   const nnz = v.length;
   const order = Array.from({ length: nnz }, (_, k) => k);
-  order.sort((a, b) => ri[a]! - ri[b]! || ci[a]! - ci[b]!);
+  order.sort((a, b) => ri[a] - ri[b] || ci[a] - ci[b]);
   const rowPtr = new Int32Array(rows + 1);
   const colIdx: number[] = [];
   const values: number[] = [];
   let lastR = -1;
   let lastC = -1;
   for (const k of order) {
-    const r = ri[k]!;
-    const c = ci[k]!;
+    const r = ri[k];
+    const c = ci[k];
     if (r === lastR && c === lastC) {
-      values[values.length - 1]! += v[k]!;
+      values[values.length - 1] += v[k];
       continue;
     }
     colIdx.push(c);
-    values.push(v[k]!);
-    rowPtr[r + 1]!++;
+    values.push(v[k]);
+    rowPtr[r + 1]++;
     lastR = r;
     lastC = c;
   }
-  for (let i = 0; i < rows; i++) rowPtr[i + 1]! += rowPtr[i]!;
+  for (let i = 0; i < rows; i++) rowPtr[i + 1] += rowPtr[i];
   return { rows, cols, rowPtr, colIdx: Int32Array.from(colIdx), values: Float64Array.from(values) };
 }
 
 export function sparseToDense(s: SparseMatrix): Matrix {
   const out = matrix(s.rows, s.cols);
   for (let i = 0; i < s.rows; i++) {
-    for (let p = s.rowPtr[i]!; p < s.rowPtr[i + 1]!; p++) out.data[i * s.cols + s.colIdx[p]!] += s.values[p]!;
+    for (let p = s.rowPtr[i]; p < s.rowPtr[i + 1]; p++) out.data[i * s.cols + s.colIdx[p]] += s.values[p];
   }
   return out;
 }
@@ -59,7 +59,7 @@ export function denseToSparse(a: Matrix): SparseMatrix {
   const v: number[] = [];
   for (let i = 0; i < a.rows; i++) {
     for (let j = 0; j < a.cols; j++) {
-      const x = a.data[i * a.cols + j]!;
+      const x = a.data[i * a.cols + j];
       if (x !== 0) {
         ri.push(i);
         ci.push(j);
@@ -80,10 +80,10 @@ export function sparseTimesDense(s: SparseMatrix, x: Matrix): Matrix {
   const { rowPtr, colIdx, values } = s;
   for (let i = 0; i < s.rows; i++) {
     const oi = i * k;
-    for (let p = rowPtr[i]!; p < rowPtr[i + 1]!; p++) {
-      const v = values[p]!;
-      const ox = colIdx[p]! * k;
-      for (let j = 0; j < k; j++) c[oi + j] += v * xd[ox + j]!;
+    for (let p = rowPtr[i]; p < rowPtr[i + 1]; p++) {
+      const v = values[p];
+      const ox = colIdx[p] * k;
+      for (let j = 0; j < k; j++) c[oi + j] += v * xd[ox + j];
     }
   }
   return out;
@@ -106,7 +106,7 @@ export function denseTimesSparseTranspose(a: Matrix, s: SparseMatrix): Matrix {
     const oc = i * m;
     for (let r = 0; r < m; r++) {
       let acc = 0;
-      for (let p = rowPtr[r]!; p < rowPtr[r + 1]!; p++) acc += ad[oa + colIdx[p]!]! * values[p]!;
+      for (let p = rowPtr[r]; p < rowPtr[r + 1]; p++) acc += ad[oa + colIdx[p]] * values[p];
       c[oc + r] = acc;
     }
   }

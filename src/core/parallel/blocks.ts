@@ -132,6 +132,6 @@ export async function parallelPosteriorStd(
   pool: BlockPool,
 ): Promise<Float64Array> {
   const v = await parallelPosteriorVariance(state, pool);
-  for (let i = 0; i < v.length; i++) v[i] = Math.sqrt(v[i]!);
+  for (let i = 0; i < v.length; i++) v[i] = Math.sqrt(v[i]);
   return v;
 }

@@ -91,7 +91,7 @@ export function portPool(ports: readonly TaskPort[]): BlockPool {
       if (busy.has(port)) return;
       const at = queue.findIndex((j) => j.port === undefined || j.port === i);
       if (at < 0) return;
-      const job = queue.splice(at, 1)[0]!;
+      const job = queue.splice(at, 1)[0];
       busy.set(port, job);
       port.post({ id: job.id, task: job.task }, transferOf(job.task));
     });

@@ -148,8 +148,8 @@ export function sharedMemoryAvailable(): boolean {
  * pair costs a few 2-D passes over it).
  */
 export function productWork(m: number, shape: readonly number[]): number {
-  const px = productPadding(shape[0]!);
-  const py = shape.length > 1 ? productPadding(shape[1]!) : 1;
+  const px = productPadding(shape[0]);
+  const py = shape.length > 1 ? productPadding(shape[1]) : 1;
   return Math.ceil(m / 2) * px * py;
 }
 
@@ -241,7 +241,7 @@ export async function prepareStructuredPosteriorParallel(
     out,
   });
   // Worker shares are posted first (the caller's share then runs while they work).
-  const own = callerShare ? ranges[0]! : null;
+  const own = callerShare ? ranges[0] : null;
   const remote = ranges.slice(callerShare ? 1 : 0);
   const jobs = remote.map((range, port) => {
     const rows = rowsOf(range);
@@ -275,7 +275,7 @@ export async function prepareStructuredPosteriorParallel(
     spectra = Math.max(spectra, result.spectra);
     cached &&= result.spectraCached;
     if (result.rows !== null) {
-      for (let i = 0; i < rows.length; i++) Bt.data.set(result.rows.subarray(i * n, (i + 1) * n), rows[i]! * n);
+      for (let i = 0; i < rows.length; i++) Bt.data.set(result.rows.subarray(i * n, (i + 1) * n), rows[i] * n);
     }
   }
   // Wall time of the split stage; `spectra` is the longest thread's spectra time.

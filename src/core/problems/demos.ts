@@ -37,7 +37,7 @@ function drawFromPrior(grid: Grid, prior: PriorSpec, seed: number): Float64Array
 function syntheticData(G: Operator, truth: Float64Array, sigma: Float64Array, seed: number): Float64Array {
   const d = applyOperator(G, truth);
   const e = new Random(seed).fillNormal(new Float64Array(d.length));
-  for (let k = 0; k < d.length; k++) d[k] += sigma[k]! * e[k]!;
+  for (let k = 0; k < d.length; k++) d[k] += sigma[k] * e[k];
   return d;
 }
 
@@ -58,7 +58,7 @@ function boreholeOperator(): Operator {
     const cells: number[] = [];
     const w: number[] = [];
     for (let j = 0; j < x.length; j++) {
-      const u = (x[j]! - c) / BOREHOLE_WINDOW;
+      const u = (x[j] - c) / BOREHOLE_WINDOW;
       if (Math.abs(u) <= 3) {
         cells.push(j);
         w.push(Math.exp(-0.5 * u * u));
@@ -68,7 +68,7 @@ function boreholeOperator(): Operator {
     cells.forEach((j, q) => {
       ri.push(k);
       ci.push(j);
-      v.push(w[q]! / sum);
+      v.push(w[q] / sum);
     });
   });
   return { kind: 'sparse', matrix: sparseFromCoordinates(BOREHOLE_SENSORS.length, x.length, ri, ci, v) };

@@ -66,23 +66,23 @@ export function shaw(n: number): TestProblem {
   const si = new Float64Array(n);
   for (let i = 0; i < n; i++) {
     t[i] = -Math.PI / 2 + (i + 0.5) * h;
-    co[i] = Math.cos(t[i]!);
-    si[i] = Math.sin(t[i]!);
+    co[i] = Math.cos(t[i]);
+    si[i] = Math.sin(t[i]);
   }
   const A = matrix(n, n);
   for (let i = 0; i < n; i++) {
     for (let j = i; j < n; j++) {
       // Mirror pairs sin t_i = −sin t_j: force u = 0 exactly instead of a rounding residue.
-      const u = i + j === n - 1 ? 0 : Math.PI * (si[i]! + si[j]!);
+      const u = i + j === n - 1 ? 0 : Math.PI * (si[i] + si[j]);
       const sinc = u === 0 ? 1 : Math.sin(u) / u;
-      const c = co[i]! + co[j]!;
+      const c = co[i] + co[j];
       const v = h * c * c * sinc * sinc;
       A.data[i * n + j] = v;
       A.data[j * n + i] = v;
     }
   }
   const x = new Float64Array(n);
-  for (let i = 0; i < n; i++) x[i] = 2 * Math.exp(-6 * (t[i]! - 0.8) ** 2) + Math.exp(-2 * (t[i]! + 0.5) ** 2);
+  for (let i = 0; i < n; i++) x[i] = 2 * Math.exp(-6 * (t[i] - 0.8) ** 2) + Math.exp(-2 * (t[i] + 0.5) ** 2);
   return { A, x, b: matvec(A, x) };
 }
 
@@ -100,11 +100,11 @@ export function gravity(n: number, depth = 0.25): TestProblem {
   const A = matrix(n, n);
   for (let i = 0; i < n; i++) {
     for (let j = 0; j < n; j++) {
-      const e = t[i]! - t[j]!;
+      const e = t[i] - t[j];
       A.data[i * n + j] = (h * depth) / Math.pow(depth * depth + e * e, 1.5);
     }
   }
   const x = new Float64Array(n);
-  for (let i = 0; i < n; i++) x[i] = Math.sin(Math.PI * t[i]!) + 0.5 * Math.sin(2 * Math.PI * t[i]!);
+  for (let i = 0; i < n; i++) x[i] = Math.sin(Math.PI * t[i]) + 0.5 * Math.sin(2 * Math.PI * t[i]);
   return { A, x, b: matvec(A, x) };
 }

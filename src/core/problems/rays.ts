@@ -49,13 +49,13 @@ export function rayPathLengths(grid: Grid, ray: Ray): RaySegment[] {
   if (vx !== 0) for (const e of ex) { const t = (e - x0) / vx; if (t > 0 && t < 1) ts.push(t); }
   if (vy !== 0) for (const e of ey) { const t = (e - y0) / vy; if (t > 0 && t < 1) ts.push(t); }
   ts.sort((a, b) => a - b);
-  const xmin = ex[0]!;
-  const ymin = ey[0]!;
+  const xmin = ex[0];
+  const ymin = ey[0];
   const out = new Map<number, number>();
   for (let k = 0; k + 1 < ts.length; k++) {
-    const dt = ts[k + 1]! - ts[k]!;
+    const dt = ts[k + 1] - ts[k];
     if (dt <= 0) continue;
-    const tm = 0.5 * (ts[k]! + ts[k + 1]!);
+    const tm = 0.5 * (ts[k] + ts[k + 1]);
     const ix = Math.floor((x0 + tm * vx - xmin) / dx);
     const iy = Math.floor((y0 + tm * vy - ymin) / dy);
     if (ix < 0 || ix >= nx || iy < 0 || iy >= ny) continue;

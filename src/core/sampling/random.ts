@@ -56,7 +56,7 @@ export class Random {
     const mt = this.mt;
     mt[0] = seed >>> 0;
     for (let i = 1; i < N; i++) {
-      const p = mt[i - 1]!;
+      const p = mt[i - 1];
       mt[i] = (Math.imul(1812433253, p ^ (p >>> 30)) + i) >>> 0;
     }
   }
@@ -68,20 +68,20 @@ export class Random {
       let kk = 0;
       let y: number;
       for (; kk < N - M; kk++) {
-        y = (mt[kk]! & UPPER) | (mt[kk + 1]! & LOWER);
+        y = (mt[kk] & UPPER) | (mt[kk + 1] & LOWER);
         // −(y & 1) & MATRIX_A is the reference code's (y & 1 ? MATRIX_A : 0) without a branch (the
         // low bit is random, so the branch mispredicts half the time).
-        mt[kk] = mt[kk + M]! ^ (y >>> 1) ^ (-(y & 1) & MATRIX_A);
+        mt[kk] = mt[kk + M] ^ (y >>> 1) ^ (-(y & 1) & MATRIX_A);
       }
       for (; kk < N - 1; kk++) {
-        y = (mt[kk]! & UPPER) | (mt[kk + 1]! & LOWER);
-        mt[kk] = mt[kk + (M - N)]! ^ (y >>> 1) ^ (-(y & 1) & MATRIX_A);
+        y = (mt[kk] & UPPER) | (mt[kk + 1] & LOWER);
+        mt[kk] = mt[kk + (M - N)] ^ (y >>> 1) ^ (-(y & 1) & MATRIX_A);
       }
-      y = (mt[N - 1]! & UPPER) | (mt[0]! & LOWER);
-      mt[N - 1] = mt[M - 1]! ^ (y >>> 1) ^ (-(y & 1) & MATRIX_A);
+      y = (mt[N - 1] & UPPER) | (mt[0] & LOWER);
+      mt[N - 1] = mt[M - 1] ^ (y >>> 1) ^ (-(y & 1) & MATRIX_A);
       this.mti = 0;
     }
-    return temper(mt[this.mti++]!);
+    return temper(mt[this.mti++]);
   }
 
   /** Uniform double in [0, 1) with 53 random bits (`genrand_res53`). */
@@ -133,10 +133,10 @@ export class Random {
         let a1: number, b1: number, a2: number, b2: number;
         const k = this.mti;
         if (k + 4 <= N) {
-          a1 = temper(mt[k]!) >>> 5;
-          b1 = temper(mt[k + 1]!) >>> 6;
-          a2 = temper(mt[k + 2]!) >>> 5;
-          b2 = temper(mt[k + 3]!) >>> 6;
+          a1 = temper(mt[k]) >>> 5;
+          b1 = temper(mt[k + 1]) >>> 6;
+          a2 = temper(mt[k + 2]) >>> 5;
+          b2 = temper(mt[k + 3]) >>> 6;
           this.mti = k + 4;
         } else {
           a1 = this.nextUint32() >>> 5;
@@ -210,16 +210,16 @@ const POW2_BIAS = 1074;
 const POW2 = (() => {
   const t = new Float64Array(POW2_BIAS + 1024);
   t[POW2_BIAS] = 1;
-  for (let e = 1; e <= 1023; e++) t[POW2_BIAS + e] = 2 * t[POW2_BIAS + e - 1]!;
-  for (let e = 1; e <= POW2_BIAS; e++) t[POW2_BIAS - e] = 0.5 * t[POW2_BIAS - e + 1]!;
+  for (let e = 1; e <= 1023; e++) t[POW2_BIAS + e] = 2 * t[POW2_BIAS + e - 1];
+  for (let e = 1; e <= POW2_BIAS; e++) t[POW2_BIAS - e] = 0.5 * t[POW2_BIAS - e + 1];
   return t;
 })();
 
 /** Natural logarithm with the same bits on every engine (fdlibm e_log.c port). */
 export function ieeeLog(x: number): number {
   f64[0] = x;
-  let hx = i32[HI]!;
-  const lx = i32[LO]!;
+  let hx = i32[HI];
+  const lx = i32[LO];
   let k = 0;
   let scaled = 0;
   if (hx < 0x00100000) {
@@ -230,7 +230,7 @@ export function ieeeLog(x: number): number {
     scaled = 54;
     x *= TWO54; // subnormal: scale up
     f64[0] = x;
-    hx = i32[HI]!;
+    hx = i32[HI];
   }
   if (hx >= 0x7ff00000) return x + x; // Inf or NaN
   k += (hx >> 20) - 1023;
@@ -240,7 +240,7 @@ export function ieeeLog(x: number): number {
   // Normalise x or x/2 into [√2/2, √2): fdlibm rewrites the exponent bits; multiplying by the
   // power of two 2^−k is the same exact operation (the result is a normal number) and avoids a
   // second store and load through the typed-array view.
-  x *= POW2[POW2_BIAS - k - scaled]!;
+  x *= POW2[POW2_BIAS - k - scaled];
   const f = x - 1.0;
   const dk = k;
   if ((0x000fffff & (2 + hx)) < 3) {

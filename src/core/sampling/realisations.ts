@@ -100,8 +100,8 @@ export function realisationsFromFactor(L: Matrix, m0: ArrayLike<number>, count: 
     for (let i = 0; i < n; i++) {
       const oi = i * n;
       let s = 0;
-      for (let k = 0; k <= i; k++) s += l[oi + k]! * z[k]!;
-      out.data[o + i] = m0[i]! + s;
+      for (let k = 0; k <= i; k++) s += l[oi + k] * z[k];
+      out.data[o + i] = m0[i] + s;
     }
   }
   return out;

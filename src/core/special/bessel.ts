@@ -152,10 +152,10 @@ export function temmeSeries(order: BesselOrder, x: number, out: Float64Array): v
   let sum = f;
   let sum1 = p; // h_0 = p_0
   for (let k = 1; k <= MAX_SERIES_TERMS; k++) {
-    f = (k * f + p + q) * invK2MinusMu2[k]!;
-    c *= d * invK[k]!;
-    p *= invKMinusMu[k]!;
-    q *= invKPlusMu[k]!;
+    f = (k * f + p + q) * invK2MinusMu2[k];
+    c *= d * invK[k];
+    p *= invKMinusMu[k];
+    q *= invKPlusMu[k];
     const del = c * f;
     sum += del;
     const del1 = c * (p - k * f);
@@ -191,11 +191,11 @@ export function temmeContinuedFraction(order: BesselOrder, x: number, out: Float
   let s = 1 + q * delh;
   let i = 1;
   for (; i < CF_TABLE; i++) {
-    const a = cfA[i]!;
-    const qnew = (q1 - b * q2) * cfInvA[i]!;
+    const a = cfA[i];
+    const qnew = (q1 - b * q2) * cfInvA[i];
     q1 = q2;
     q2 = qnew;
-    q += cfC[i]! * qnew;
+    q += cfC[i] * qnew;
     b += 2;
     d = 1 / (b + a * d);
     delh = (b * d - 1) * delh;
@@ -206,8 +206,8 @@ export function temmeContinuedFraction(order: BesselOrder, x: number, out: Float
   }
   if (i === CF_TABLE) {
     // Not reached for x ≥ 2 (measured ≤ 76 steps); continue with coefficients computed on the fly.
-    let a = cfA[CF_TABLE - 1]!;
-    let c = cfC[CF_TABLE - 1]!;
+    let a = cfA[CF_TABLE - 1];
+    let c = cfC[CF_TABLE - 1];
     for (; i < MAX_CF_ITERATIONS; i++) {
       a -= 2 * i;
       c = (-a * c) / (i + 1);
@@ -238,12 +238,12 @@ export function besselKWithOrder(order: BesselOrder, x: number, scaled: boolean,
   const isSeries = x < SERIES_LIMIT;
   if (isSeries) temmeSeries(order, x, scratch);
   else temmeContinuedFraction(order, x, scratch);
-  let k0 = scratch[0]!;
+  let k0 = scratch[0];
   let result = k0;
   if (order.n > 0) {
     const mu = order.mu;
     const invX = 1 / x;
-    let k1 = scratch[1]! * invX;
+    let k1 = scratch[1] * invX;
     for (let j = 1; j < order.n; j++) {
       const k2 = k0 + 2 * (mu + j) * invX * k1;
       k0 = k1;

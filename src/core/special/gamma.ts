@@ -41,7 +41,7 @@ export function zetaMinusOne(s: number): number {
   let rising = s; // (s)_{2j−1}, starting with (s)_1 = s
   let power = Math.pow(N, -s - 1); // N^{1−s−2j} for j = 1
   for (let j = 0; j < bernoulliOverFactorial.length; j++) {
-    tail += bernoulliOverFactorial[j]! * rising * power;
+    tail += bernoulliOverFactorial[j] * rising * power;
     rising *= (s + 2 * j + 1) * (s + 2 * j + 2);
     power /= N * N;
   }
@@ -79,10 +79,10 @@ export function lnGamma1pParts(mu: number): LnGamma1pParts {
   if (!(Math.abs(mu) <= 0.5)) throw new RangeError(`lnGamma1pParts: |mu| must be ≤ 1/2, got ${mu}`);
   const m2 = mu * mu;
   let even = 0;
-  for (let j = EVEN_COEF.length - 1; j >= 0; j--) even = even * m2 + EVEN_COEF[j]!;
+  for (let j = EVEN_COEF.length - 1; j >= 0; j--) even = even * m2 + EVEN_COEF[j];
   even = even * m2 - 0.5 * Math.log1p(-m2);
   let odd = 0; // Σ_{k odd ≥ 3} ζ(k) μ^{k−1} / k
-  for (let j = ODD_COEF.length - 1; j >= 0; j--) odd = odd * m2 + ODD_COEF[j]!;
+  for (let j = ODD_COEF.length - 1; j >= 0; j--) odd = odd * m2 + ODD_COEF[j];
   const oddOverMu = -EULER_GAMMA - odd * m2;
   return { even, oddOverMu };
 }

@@ -183,7 +183,7 @@ function draw(L: Matrix, m0: Float64Array, rng: Random, z: Float64Array): Float6
   for (let i = 0; i < n; i++) {
     const oi = i * n;
     let s = 0;
-    for (let k = 0; k <= i; k++) s += l[oi + k]! * z[k]!;
+    for (let k = 0; k <= i; k++) s += l[oi + k] * z[k];
     out[i] += s;
   }
   return out;
@@ -196,12 +196,12 @@ function noise(side: DataSide, rng: Random, u: Float64Array): Float64Array {
   const l = side.cdFactor.data;
   const out = new Float64Array(m);
   if (side.diagonalCd) {
-    for (let k = 0; k < m; k++) out[k] = l[k * m + k]! * u[k]!;
+    for (let k = 0; k < m; k++) out[k] = l[k * m + k] * u[k];
     return out;
   }
   for (let k = 0; k < m; k++) {
     let s = 0;
-    for (let q = 0; q <= k; q++) s += l[k * m + q]! * u[q]!;
+    for (let q = 0; q <= k; q++) s += l[k * m + q] * u[q];
     out[k] = s;
   }
   return out;
@@ -213,9 +213,9 @@ function addCross(post: Candidate, base: Float64Array, v: Float64Array): Float64
   const n = Bt.cols;
   const out = Float64Array.from(base);
   for (let k = 0; k < Bt.rows; k++) {
-    const vk = v[k]!;
+    const vk = v[k];
     const ok = k * n;
-    for (let i = 0; i < n; i++) out[i] += Bt.data[ok + i]! * vk;
+    for (let i = 0; i < n; i++) out[i] += Bt.data[ok + i] * vk;
   }
   return out;
 }
@@ -257,16 +257,16 @@ function run(side: DataSide, truth: Candidate, inv: Candidate, options: Calibrat
     const mt = Float64Array.from(truth.draws.one(rng));
     const d = applyOperator(G, mt);
     const e = noise(side, rng, u);
-    for (let k = 0; k < m; k++) d[k] += e[k]!;
+    for (let k = 0; k < m; k++) d[k] += e[k];
     // Posterior mean with prior B: m̃ = m0 + Cm Gᵀ K⁻¹ (d − G m0).
     const gm0 = applyOperator(G, inv.m0);
-    const res = d.map((v, k) => v - gm0[k]!);
+    const res = d.map((v, k) => v - gm0[k]);
     const mean = addCross(post, inv.m0, choleskySolve(post.L, res));
     let c68 = 0;
     let c95 = 0;
     for (let i = 0; i < n; i++) {
-      const dev = Math.abs(mt[i]! - mean[i]!);
-      const s = inv.std[i]!;
+      const dev = Math.abs(mt[i] - mean[i]);
+      const s = inv.std[i];
       if (dev <= inner.halfWidth * s) {
         hit68[i]++;
         c68++;
@@ -285,11 +285,11 @@ function run(side: DataSide, truth: Candidate, inv: Candidate, options: Calibrat
       const eps = noise(side, rng, u);
       const gs = applyOperator(G, mStar);
       const rs = new Float64Array(m);
-      for (let k = 0; k < m; k++) rs[k] = d[k]! + eps[k]! - gs[k]!;
+      for (let k = 0; k < m; k++) rs[k] = d[k] + eps[k] - gs[k];
       const ms = addCross(post, mStar, choleskySolve(post.L, rs));
-      for (let i = 0; i < n; i++) if (ms[i]! < mt[i]!) rank[i]++;
+      for (let i = 0; i < n; i++) if (ms[i] < mt[i]) rank[i]++;
     }
-    for (let i = 0; i < n; i++) hist[rank[i]!]++;
+    for (let i = 0; i < n; i++) hist[rank[i]]++;
     if (ranks) ranks.set(rank, r * n);
     done++;
     progress(done / R);
@@ -351,7 +351,7 @@ export function calibrationTable(problem: Problem, candidates: readonly PriorSpe
     const row: CalibrationResult[] = [];
     for (let j = 0; j < K; j++) {
       const cell = i * K + j;
-      const res = run(side, prepared[i]!, prepared[j]!, options, (f) => options.onProgress?.((cell + f) / (K * K)));
+      const res = run(side, prepared[i], prepared[j], options, (f) => options.onProgress?.((cell + f) / (K * K)));
       row.push(res);
       c68[cell] = res.coverage68;
       c95[cell] = res.coverage95;

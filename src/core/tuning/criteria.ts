@@ -67,7 +67,7 @@ export function leaveOneOutFromFactor(problem: Problem, L: Matrix, r: Float64Arr
   for (let k = 0; k < m; k++) {
     const ok = k * m;
     // Z is lower triangular: column i has entries in rows k ≥ i only.
-    for (let i = 0; i <= k; i++) kii[i] += z.data[ok + i]! * z.data[ok + i]!;
+    for (let i = 0; i <= k; i++) kii[i] += z.data[ok + i] * z.data[ok + i];
   }
   const contributions = new Float64Array(m);
   const mean = new Float64Array(m);
@@ -75,14 +75,14 @@ export function leaveOneOutFromFactor(problem: Problem, L: Matrix, r: Float64Arr
   const standardised = new Float64Array(m);
   let logScore = 0;
   for (let i = 0; i < m; i++) {
-    const s2 = 1 / kii[i]!;
-    const mu = r[i]! - alpha[i]! * s2;
-    const c = -0.5 * Math.log(s2) - (0.5 * alpha[i]! * alpha[i]!) / kii[i]! - 0.5 * LOG_2PI;
+    const s2 = 1 / kii[i];
+    const mu = r[i] - alpha[i] * s2;
+    const c = -0.5 * Math.log(s2) - (0.5 * alpha[i] * alpha[i]) / kii[i] - 0.5 * LOG_2PI;
     contributions[i] = c;
     logScore += c;
-    mean[i] = problem.data.values[i]! - r[i]! + mu;
+    mean[i] = problem.data.values[i] - r[i] + mu;
     std[i] = Math.sqrt(s2);
-    standardised[i] = alpha[i]! / Math.sqrt(kii[i]!);
+    standardised[i] = alpha[i] / Math.sqrt(kii[i]);
   }
   return { logScore, contributions, mean, std, standardised };
 }
@@ -178,8 +178,8 @@ function chi2AndExpected(lambda: Float64Array, b: Float64Array, s: number): { ch
   let chi2 = 0;
   let expected = 0;
   for (let k = 0; k < lambda.length; k++) {
-    const t = 1 + s * lambda[k]!;
-    chi2 += (b[k]! * b[k]!) / (t * t);
+    const t = 1 + s * lambda[k];
+    chi2 += (b[k] * b[k]) / (t * t);
     expected += 1 / t;
   }
   return { chi2, expected };
@@ -196,9 +196,9 @@ function expectedDiscrepancy(w: { lambda: Float64Array; b: Float64Array }, prior
   let atInf = 0;
   let nullCount = 0;
   for (let k = 0; k < lambda.length; k++) {
-    at0 += b[k]! * b[k]!;
-    if (lambda[k]! <= 1e-12 * top) {
-      atInf += b[k]! * b[k]!;
+    at0 += b[k] * b[k];
+    if (lambda[k] <= 1e-12 * top) {
+      atInf += b[k] * b[k];
       nullCount++;
     }
   }
@@ -237,17 +237,17 @@ function classicalDiscrepancy(w: { lambda: Float64Array; b: Float64Array }, prio
   const chi2 = (s: number): number => {
     let q = 0;
     for (let k = 0; k < lambda.length; k++) {
-      const t = 1 + s * lambda[k]!;
-      q += (b[k]! * b[k]!) / (t * t);
+      const t = 1 + s * lambda[k];
+      q += (b[k] * b[k]) / (t * t);
     }
     return q;
   };
   let at0 = 0;
   let atInf = 0;
   for (let k = 0; k < lambda.length; k++) {
-    at0 += b[k]! * b[k]!;
+    at0 += b[k] * b[k];
     // Eigenvalues at the round-off level of the largest count as zero (null space of G Cm Gᵀ).
-    if (lambda[k]! <= 1e-12 * top) atInf += b[k]! * b[k]!;
+    if (lambda[k] <= 1e-12 * top) atInf += b[k] * b[k];
   }
   const range: [number, number] = [at0, atInf];
   if (at0 <= target) return { form: 'classical', status: 'mean-fits', scale: Number.NaN, prior: null, chi2: at0, target, chi2Range: range };

@@ -76,7 +76,7 @@ export function prepareDataSide(problem: Problem, options: RouteOptions = {}): D
   const d = problem.data;
   if (d.values.length !== m) throw new InputError('problem.data.values', `${m} values (one per operator row)`, d.values);
   for (let i = 0; i < m; i++) {
-    if (!Number.isFinite(d.values[i]!)) throw new InputError(`problem.data.values[${i}]`, 'a finite number', d.values[i]);
+    if (!Number.isFinite(d.values[i])) throw new InputError(`problem.data.values[${i}]`, 'a finite number', d.values[i]);
   }
   const cd = matrix(m, m);
   if (d.sigma !== undefined) {
@@ -84,7 +84,7 @@ export function prepareDataSide(problem: Problem, options: RouteOptions = {}): D
     if (d.sigma.length !== m) throw new InputError('problem.data.sigma', `${m} standard deviations`, d.sigma);
     const f = matrix(m, m);
     for (let i = 0; i < m; i++) {
-      const s = d.sigma[i]!;
+      const s = d.sigma[i];
       if (!(s > 0) || !Number.isFinite(s)) throw new InputError(`problem.data.sigma[${i}]`, 'a finite number > 0', s);
       f.data[i * m + i] = s;
       cd.data[i * m + i] = s * s;
@@ -104,7 +104,7 @@ export function prepareDataSide(problem: Problem, options: RouteOptions = {}): D
 /** a + b (new matrix). */
 export function addMatrices(a: Matrix, b: Matrix): Matrix {
   const out = matrix(a.rows, a.cols, a.data.slice());
-  for (let i = 0; i < out.data.length; i++) out.data[i] += b.data[i]!;
+  for (let i = 0; i < out.data.length; i++) out.data[i] += b.data[i];
   return out;
 }
 
@@ -155,7 +155,7 @@ export function priorResidual(side: DataSide, prior: PriorSpec): Float64Array {
   const { grid, operator, data } = side.problem;
   const gm0 = applyOperator(operator, meanVector(grid, prior));
   const residual = new Float64Array(side.dataCount);
-  for (let i = 0; i < residual.length; i++) residual[i] = data.values[i]! - gm0[i]!;
+  for (let i = 0; i < residual.length; i++) residual[i] = data.values[i] - gm0[i];
   return residual;
 }
 
@@ -190,7 +190,7 @@ export function gaussianLogDensity(k: Matrix, r: ArrayLike<number>): GaussianLog
   if (!f.ok) return null;
   const w = solveLower(f.factor, r);
   let q = 0;
-  for (let i = 0; i < w.length; i++) q += w[i]! * w[i]!;
+  for (let i = 0; i < w.length; i++) q += w[i] * w[i];
   const logDet = logDetFromCholesky(f.factor);
   return { logDensity: -0.5 * q - 0.5 * logDet - 0.5 * r.length * LOG_2PI, quadratic: q, logDet, factor: f.factor, whitened: w };
 }
@@ -214,7 +214,7 @@ export function checkTermIndex(prior: PriorSpec, index: number, field = 'term'):
 export function generalMaternAvailable(): boolean {
   try {
     // The probe ν = 1.3 is arbitrary; any non-closed-form order would do.
-    return Number.isFinite(covarianceMatrix({ shape: [2], spacing: [1] }, { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.3, variance: 1, length: 1 }] }).data[1]!);
+    return Number.isFinite(covarianceMatrix({ shape: [2], spacing: [1] }, { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.3, variance: 1, length: 1 }] }).data[1]);
   } catch {
     return false;
   }

@@ -176,10 +176,10 @@ function whitenedSpectrum(w: Whitening, p: Matrix): { lambda: Float64Array; b: F
   const a = solveLowerMatrix(w.factor, transpose(x)); // L_B⁻¹ (L_B⁻¹ P)ᵀ = L_B⁻¹ P L_B⁻ᵀ
   symmetrise(a);
   const { values, vectors } = symmetricEigen(a);
-  const top = Math.max(Math.abs(values[0]!), Math.abs(values[values.length - 1]!));
+  const top = Math.max(Math.abs(values[0]), Math.abs(values[values.length - 1]));
   const lambda = new Float64Array(values.length);
   for (let k = 0; k < values.length; k++) {
-    const v = values[k]!;
+    const v = values[k];
     if (v < -NEGATIVE_EIGEN_TOLERANCE * top) return null;
     lambda[k] = Math.max(v, 0);
   }
@@ -192,9 +192,9 @@ function shortcutLogEvidence(w: Whitening, spec: { lambda: Float64Array; b: Floa
   let logDet = w.logDet;
   let q = 0;
   for (let k = 0; k < lambda.length; k++) {
-    const t = 1 + s * lambda[k]!;
+    const t = 1 + s * lambda[k];
     logDet += Math.log(t);
-    q += (b[k]! * b[k]!) / t;
+    q += (b[k] * b[k]) / t;
   }
   return -0.5 * q - 0.5 * logDet - 0.5 * lambda.length * LOG_2PI;
 }
@@ -202,7 +202,7 @@ function shortcutLogEvidence(w: Whitening, spec: { lambda: Float64Array; b: Floa
 /** Log evidence of K = s P + B by one Cholesky (NaN when it does not factor). */
 function choleskyLogEvidence(p: Matrix, s: number, fixed: Matrix, residual: Float64Array): number {
   const k = matrix(p.rows, p.cols);
-  for (let i = 0; i < k.data.length; i++) k.data[i] = s * p.data[i]! + fixed.data[i]!;
+  for (let i = 0; i < k.data.length; i++) k.data[i] = s * p.data[i] + fixed.data[i];
   const g = gaussianLogDensity(k, residual);
   return g === null ? Number.NaN : g.logDensity;
 }
@@ -221,7 +221,7 @@ export function evidenceMap(problem: Problem, prior: PriorSpec, options: Evidenc
   if (asked !== 'auto' && asked !== 'eigen' && asked !== 'cholesky') throw new InputError('method', '"auto", "eigen" or "cholesky"', asked);
   const requested = asked === 'cholesky' || (asked === 'auto' && variances.length < EIGEN_BREAK_EVEN) ? 'cholesky' : 'auto';
   const side = prepareDataSide(problem, options);
-  const term = prior.terms[options.term]!;
+  const term = prior.terms[options.term];
   const unit = (len: number): PriorSpec => ({ ...prior, terms: [{ ...setTermLength(term, len), variance: 1 }], nugget: 0 });
   // Validation of the prior as given, and the residual r = d − G m0.
   validatePrior(prior, problem.grid);
@@ -240,7 +240,7 @@ export function evidenceMap(problem: Problem, prior: PriorSpec, options: Evidenc
       cancelled = true;
       break;
     }
-    const p = sideProjection(side, unit(lengths[i]!));
+    const p = sideProjection(side, unit(lengths[i]));
     const spec = requested === 'auto' && w !== null ? whitenedSpectrum(w, p) : null;
     if (requested === 'auto' && w !== null && spec === null) note = `term ${options.term} at length ${lengths[i]} gives an indefinite G C₁ Gᵀ`;
     methods.push(spec !== null ? 'eigen' : 'cholesky');
@@ -249,7 +249,7 @@ export function evidenceMap(problem: Problem, prior: PriorSpec, options: Evidenc
         cancelled = true;
         break;
       }
-      out[i * nv + j] = spec !== null ? shortcutLogEvidence(w!, spec, variances[j]!) : choleskyLogEvidence(p, variances[j]!, fixed, residual);
+      out[i * nv + j] = spec !== null ? shortcutLogEvidence(w!, spec, variances[j]) : choleskyLogEvidence(p, variances[j], fixed, residual);
       if (spec === null) options.onProgress?.((i * nv + j + 1) / total);
     }
     if (spec !== null) options.onProgress?.(((i + 1) * nv) / total);
@@ -258,9 +258,9 @@ export function evidenceMap(problem: Problem, prior: PriorSpec, options: Evidenc
   else if (requested === 'cholesky') note = `Cholesky per cell: fewer than ${EIGEN_BREAK_EVEN} variances, where it is cheaper than an eigendecomposition per length`;
   let best: EvidenceMap['best'] = null;
   for (let k = 0; k < out.length; k++) {
-    const v = out[k]!;
+    const v = out[k];
     if (Number.isFinite(v) && (best === null || v > best.logEvidence)) {
-      best = { length: lengths[Math.floor(k / nv)]!, variance: variances[k % nv]!, logEvidence: v, index: k };
+      best = { length: lengths[Math.floor(k / nv)], variance: variances[k % nv], logEvidence: v, index: k };
     }
   }
   const method: EvidenceMethod = methods.length > 0 && methods.every((m) => m === 'eigen') ? 'eigen' : 'cholesky';
@@ -304,9 +304,9 @@ export function evidenceProfile(problem: Problem, prior: PriorSpec, which: Profi
     case 'nu': {
       const w = which as { parameter: 'nu'; term: number };
       checkTermIndex(prior, w.term, 'term');
-      if (!kernelTakes(prior.terms[w.term]!.kernel, 'nu')) {
+      if (!kernelTakes(prior.terms[w.term].kernel, 'nu')) {
         const takers = kernelsTaking('nu').map((k) => `"${k}"`);
-        throw new InputError(`terms[${w.term}].kernel`, `${takers.join(' or ')} for a ν profile`, prior.terms[w.term]!.kernel);
+        throw new InputError(`terms[${w.term}].kernel`, `${takers.join(' or ')} for a ν profile`, prior.terms[w.term].kernel);
       }
       values.forEach((v, k) => {
         if (!(v > 0) || !Number.isFinite(v)) throw new InputError(`values[${k}]`, 'a finite ν > 0', v);
@@ -316,7 +316,7 @@ export function evidenceProfile(problem: Problem, prior: PriorSpec, which: Profi
           cancelled = true;
           break;
         }
-        const p = priorDataSpace(side, withTerm(prior, w.term, { nu: values[k]! }));
+        const p = priorDataSpace(side, withTerm(prior, w.term, { nu: values[k] }));
         const g = gaussianLogDensity(addMatrices(p.projected, side.cd), residual);
         out[k] = g === null ? Number.NaN : g.logDensity;
         options.onProgress?.((k + 1) / values.length);
@@ -338,7 +338,7 @@ export function evidenceProfile(problem: Problem, prior: PriorSpec, which: Profi
           cancelled = true;
           break;
         }
-        out[k] = spec !== null ? shortcutLogEvidence(wh!, spec, values[k]!) : choleskyLogEvidence(ggt, values[k]!, fixed, residual);
+        out[k] = spec !== null ? shortcutLogEvidence(wh!, spec, values[k]) : choleskyLogEvidence(ggt, values[k], fixed, residual);
         options.onProgress?.((k + 1) / values.length);
       }
       break;
@@ -348,7 +348,7 @@ export function evidenceProfile(problem: Problem, prior: PriorSpec, which: Profi
   }
   let best: EvidenceProfile['best'] = null;
   out.forEach((v, k) => {
-    if (Number.isFinite(v) && (best === null || v > best.logEvidence)) best = { value: values[k]!, logEvidence: v, index: k };
+    if (Number.isFinite(v) && (best === null || v > best.logEvidence)) best = { value: values[k], logEvidence: v, index: k };
   });
   return { parameter: kind, values, logEvidence: out, method, best, cancelled };
 }

@@ -84,7 +84,7 @@ export function structuredProjection(holder: StructuredProblem, prior: PriorSpec
     // Columns rows[q] of P: P_a,rows[q] = g_a · (Bᵀ)_rows[q].
     const k = j1 - j0;
     const part = operatorTimesTransposed(g, { rows: k, cols: n, data: bt.subarray(0, k * n) });
-    for (let a = 0; a < m; a++) for (let q = 0; q < k; q++) pd[a * m + rows[q]!] = part.data[a * k + q]!;
+    for (let a = 0; a < m; a++) for (let q = 0; q < k; q++) pd[a * m + rows[q]] = part.data[a * k + q];
   }
   if (save !== null) keepSpectra(holder, cp, s, save);
   symmetrise(p);
