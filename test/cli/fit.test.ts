@@ -84,6 +84,28 @@ describe('fit', () => {
     expect(r.err).toMatch(/^priorscope fit: not converged: .*not converged after 1 iterations/m);
   });
 
+  it.each([
+    ['nugget', 'nugget', prior([{ kernel: 'exponential', variance: 0.1, length: 5 }], 1e-2)],
+    ['term0.variance', 'term0.variance', prior([{ kernel: 'gaussian', variance: 0.1, length: 3 }], 1e-3)],
+  ])('--free %s: the fitted value is the top of the profile around it (profile computes each evidence on its own)', async (word, name, q) => {
+    writeFiles(dir, { 'one.json': q });
+    const r = await runCommand(['fit', '--problem', 'p.json', '--prior', 'one.json', '--free', word, '--prior-out', 'one-fit.json'], dir);
+    expect([0, 3], r.err).toContain(r.code);
+    const j = JSON.parse(r.out) as Fit;
+    const v = j.parameters.find((p) => p.name === name)!.value;
+    expect(j.parameters.find((p) => p.name === name)!.atBound).toBeNull();
+    const values = [v * 0.97, v, v * 1.03];
+    const prof = await runCommand(['profile', '--problem', 'p.json', '--prior', 'one-fit.json', '--parameter', name, '--values', values.join(',')], dir);
+    expect(prof.code, prof.err).toBe(0);
+    const e = (JSON.parse(prof.out) as { logEvidence: number[] }).logEvidence;
+    expect(e[1]).toBeCloseTo(j.logEvidence, 9);
+    // At a stationary point within the optimiser's gradient tolerance g (1e-6 in the log coordinate), a step δ = log 1.03
+    // can raise the evidence by at most g·δ (less the curvature term): the fitted value is the top up to that.
+    const slack = 1e-6 * Math.log(1.03);
+    expect(e[1]! - e[0]!).toBeGreaterThan(-slack);
+    expect(e[1]! - e[2]!).toBeGreaterThan(-slack);
+  });
+
   it('--help names the output fields and exit codes', async () => {
     const r = await runCommand(['fit', '--help'], dir);
     expect(r.code).toBe(0);

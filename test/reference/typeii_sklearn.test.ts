@@ -6,7 +6,9 @@
  * - the start prior's log evidence equals sklearn's log_marginal_likelihood (same constants, −M/2 log 2π included);
  * - our optimum's log evidence agrees with sklearn's optimum to 1e-6 (and sklearn, evaluated at our
  *   optimum, gives the same value);
- * - the fitted hyperparameters agree to 1e-3 relative.
+ * - the fitted hyperparameters agree to 1e-3 relative;
+ * - the standard errors (curvature of the log evidence at the optimum, log parameters) agree to 1e-3 relative
+ *   with those from central differences of sklearn's analytic gradient.
  */
 import { describe, expect, it } from 'vitest';
 import { cellCoordinates, type Grid } from '../../src/core/grid/grid.ts';
@@ -82,13 +84,14 @@ interface Fit {
   logEvidence: number;
   startLogEvidence: number;
   converged: boolean;
-  parameters: { name: string; value: number }[];
+  parameters: { name: string; value: number; standardError: number }[];
 }
 interface Ref {
   lml_start: number;
   lml_opt: number;
   theta_opt: number[];
   lml_at_ours: number;
+  se_at_ours: number[];
 }
 
 describe('fit: type-II maximum likelihood against sklearn GaussianProcessRegressor (python3-sklearn)', () => {
@@ -121,7 +124,7 @@ describe('fit: type-II maximum likelihood against sklearn GaussianProcessRegress
     }
   }, 120_000);
 
-  it('agrees with sklearn: start evidence to 1e-9, optimum to 1e-6 in log evidence, parameters to 1e-3', () => {
+  it('agrees with sklearn: start evidence to 1e-9, optimum to 1e-6 in log evidence, parameters and standard errors to 1e-3', () => {
     expect(runs.length).toBe(cases.length);
     const refs = runPython<Ref[]>('typeii_sklearn.py', {
       cases: runs.map(({ c, fit, X, y }) => {
@@ -146,7 +149,15 @@ describe('fit: type-II maximum likelihood against sklearn GaussianProcessRegress
       // Parameter order: variance, then the length(s), as in sklearn's ConstantKernel * Matern theta.
       expect(fit.parameters.map((p) => p.name)).toEqual(c.start.terms[0]!.lengths ? ['term0.variance', 'term0.lengths[0]', 'term0.lengths[1]'] : ['term0.variance', 'term0.length']);
       fit.parameters.forEach((p, i) => expect(Math.abs(p.value / ref.theta_opt[i]! - 1), `${where}, ${p.name}`).toBeLessThan(1e-3));
+      fit.parameters.forEach((p, i) => expect(Math.abs(p.standardError / ref.se_at_ours[i]! - 1), `${c.name}: standard error of ${p.name}: ours ${p.standardError}, sklearn ${ref.se_at_ours[i]}`).toBeLessThan(1e-3));
     });
-    console.log(refs.map((r, k) => `${cases[k]!.name}: Δ log evidence ${(runs[k]!.fit.logEvidence - r.lml_opt).toExponential(2)}`).join('\n'));
+    console.log(
+      refs
+        .map((r, k) => {
+          const se = runs[k]!.fit.parameters.map((p, i) => Math.abs(p.standardError / r.se_at_ours[i]! - 1));
+          return `${cases[k]!.name}: Δ log evidence ${(runs[k]!.fit.logEvidence - r.lml_opt).toExponential(2)}, largest relative Δ standard error ${Math.max(...se).toExponential(2)}`;
+        })
+        .join('\n'),
+    );
   }, 120_000);
 });
