@@ -23,7 +23,7 @@ import type { Problem } from '../core/problems/spec.ts';
 import { defaultThreads, nodeBlockPool } from '../core/parallel/node.ts';
 import type { PosteriorSummary } from '../core/inverse/types.ts';
 import { DEMOS } from '../core/problems/demos.ts';
-import { evidenceMap, type LogAxis } from '../core/tuning/evidenceMap.ts';
+import { evidenceMap, LENGTH_AXES, setTermLength, type LengthAxis, type LogAxis } from '../core/tuning/evidenceMap.ts';
 import type { FileWarning } from '../core/io/errors.ts';
 import { writeCsv } from '../core/io/csv.ts';
 import { formatJson } from '../core/io/json.ts';
@@ -470,12 +470,14 @@ function edgeOf(axis: ArrayLike<number>, value: number): 'low' | 'high' | null {
 const tune: Command = {
   name: 'tune',
   summary: 'log-evidence grid over one term’s length and variance, and its maximum',
-  usage: 'priorscope tune --problem P.json --prior Q.json --term 0 --lengths lo:hi:n --variances lo:hi:n [--out FILE]',
+  usage: 'priorscope tune --problem P.json --prior Q.json --term 0 --lengths lo:hi:n --variances lo:hi:n [--axis both|l1|l2] [--out FILE]',
   details:
-    'Evaluates log N(d; G m0, G Cm Gᵀ + Cd) on n log-spaced lengths × n log-spaced variances of term K\n' +
-    '(for an anisotropic term the length axis is l1, with l2 scaled in proportion), everything else in the\n' +
-    'prior fixed. Prints {"term", "lengths": [...], "variances": [...], "logEvidence": [[one row per length]],\n' +
-    '"best": {"length", "variance", "logEvidence"} | null, "bestOnEdge": {"length", "variance"},\n' +
+    'Evaluates log N(d; G m0, G Cm Gᵀ + Cd) on n log-spaced lengths × n log-spaced variances of term K,\n' +
+    'everything else in the prior fixed. For an anisotropic term (lengths [l1, l2]) --axis says what the length\n' +
+    'axis sets: both (default) l1 with l2 scaled in proportion, l1 or l2 that length alone (the other and the\n' +
+    'angle kept); run it once per axis to tune l1 and l2 separately. Prints {"term", "axis", "lengths": [...],\n' +
+    '"variances": [...], "logEvidence": [[one row per length]], "best": {"length", "variance", "logEvidence",\n' +
+    '"lengths": [l1, l2] (anisotropic terms: both lengths at the maximum)} | null, "bestOnEdge": {"length", "variance"},\n' +
     '"warnings": [...], "method": "eigen" | "cholesky"}; cells where the covariance did not factor are null.\n' +
     'bestOnEdge says, per axis, "low" or "high" when the maximum lies on that end of the grid (the true maximum\n' +
     'may lie beyond it: widen that axis), else null; the same warning goes to stderr.',
@@ -486,10 +488,14 @@ const tune: Command = {
     { name: 'term', value: 'K', help: 'zero-based index of the term in the prior file', required: true },
     { name: 'lengths', value: 'lo:hi:n', help: 'log-spaced length axis', required: true },
     { name: 'variances', value: 'lo:hi:n', help: 'log-spaced variance axis', required: true },
+    { name: 'axis', value: 'both|l1|l2', help: 'anisotropic term: which length the length axis sets (default both: l1, l2 in proportion)' },
     OUT,
   ],
   run(args, io) {
     noPositionals(args);
+    const axisText = optionString(args, 'axis') ?? 'both';
+    if (!(LENGTH_AXES as readonly string[]).includes(axisText)) throw new UsageError(`--axis must be one of ${LENGTH_AXES.join(', ')}, got ${JSON.stringify(axisText)}`);
+    const axis = axisText as LengthAxis;
     const lengths = parseAxis('lengths', optionString(args, 'lengths')!);
     const variances = parseAxis('variances', optionString(args, 'variances')!);
     if (lengths.count * variances.count > MAX_MAP_CELLS) {
@@ -504,17 +510,22 @@ const tune: Command = {
     if (term >= prior.terms.length) {
       throw new UsageError(`--term must be an integer from 0 to ${prior.terms.length - 1} (the prior has ${prior.terms.length} term${prior.terms.length === 1 ? '' : 's'}), got ${JSON.stringify(termText)}`);
     }
+    const tuned = prior.terms[term]!;
+    if (axis !== 'both' && tuned.lengths === undefined) {
+      throw new UsageError(`--axis ${axis} needs an anisotropic term ("lengths": [l1, l2]); term ${term} has one length: leave --axis out`);
+    }
     progress(io, `evidence on ${lengths.count} × ${variances.count} cells …`);
-    const map = evidenceMap(problem, prior, { term, lengths, variances });
+    const map = evidenceMap(problem, prior, { term, lengths, variances, axis });
     const nv = map.variances.length;
     const rows = Array.from(map.lengths, (_, i) => map.logEvidence.subarray(i * nv, (i + 1) * nv));
     const bestOnEdge = map.best
       ? { length: edgeOf(map.lengths, map.best.length), variance: edgeOf(map.variances, map.best.variance) }
       : { length: null, variance: null };
     const warnings: string[] = [];
-    for (const axis of ['length', 'variance'] as const) {
-      const e = bestOnEdge[axis];
-      if (e) warnings.push(`the maximum lies at the ${e === 'low' ? 'lower' : 'upper'} end of the ${axis} axis: the true maximum may lie beyond it; widen --${axis === 'length' ? 'lengths' : 'variances'}`);
+    const lengthName = axis === 'both' ? 'length' : axis;
+    for (const which of ['length', 'variance'] as const) {
+      const e = bestOnEdge[which];
+      if (e) warnings.push(`the maximum lies at the ${e === 'low' ? 'lower' : 'upper'} end of the ${which === 'length' ? lengthName : which} axis: the true maximum may lie beyond it; widen --${which === 'length' ? 'lengths' : 'variances'}`);
     }
     for (const w of warnings) io.stderr(`priorscope tune: ${w}`);
     emit(
@@ -522,10 +533,18 @@ const tune: Command = {
       args,
       toJson({
         term,
+        axis,
         lengths: map.lengths,
         variances: map.variances,
         logEvidence: rows,
-        best: map.best ? { length: map.best.length, variance: map.best.variance, logEvidence: map.best.logEvidence } : null,
+        best: map.best
+          ? {
+              length: map.best.length,
+              variance: map.best.variance,
+              logEvidence: map.best.logEvidence,
+              ...(tuned.lengths === undefined ? {} : { lengths: setTermLength(tuned, map.best.length, axis).lengths }),
+            }
+          : null,
         bestOnEdge,
         warnings,
         method: map.method,

@@ -57,3 +57,63 @@ describe('tune: a maximum on the edge of the grid', () => {
     expect(r.err).toMatch(/no covariance term to tune/);
   });
 });
+
+describe('tune --axis: one length of an anisotropic term at a time', () => {
+  const dir = tempDir();
+  // An invented 2-D survey: 12 × 10 cells of 1 m, 30 point data at seeded-looking fixed cells.
+  const cells = Array.from({ length: 30 }, (_, k) => (k * 37 + 11) % 120);
+  const values = cells.map((c) => Math.sin((c % 12) / 3) + 0.3 * Math.cos(Math.floor(c / 12) / 1.5));
+  writeFiles(dir, {
+    'p2.json': {
+      kind: 'priorscope.problem',
+      version: 1,
+      grid: { shape: [12, 10], spacing: [1, 1] },
+      operator: { sparse: { rows: cells.map((_, k) => k), cols: cells, values: cells.map(() => 1) } },
+      data: { values, sigma: cells.map(() => 0.1) },
+    },
+    'aniso.json': prior([{ kernel: 'matern', nu: 1.5, variance: 0.5, lengths: [4, 1.5], angle: 20 }]),
+  });
+  const tune = (extra: string[]) => runCommand(['tune', '--problem', 'p2.json', '--prior', 'aniso.json', '--term', '0', '--variances', '0.05:5:5', ...extra], dir);
+  type AxisOut = Out & { axis: string; best: { length: number; variance: number; logEvidence: number; lengths: [number, number] } };
+
+  it.each([
+    ['l1', (len: number) => [len, 1.5]],
+    ['l2', (len: number) => [4, len]],
+    ['both', (len: number) => [len, (1.5 * len) / 4]],
+  ] as const)('--axis %s: the best cell is the prior with those lengths, and `posterior` gives it the same log evidence', async (axis, lengthsAt) => {
+    const r = await tune(['--lengths', '0.5:12:6', '--axis', axis]);
+    expect(r.code, r.err).toBe(0);
+    const j = JSON.parse(r.out) as AxisOut;
+    expect(j.axis).toBe(axis);
+    const expected = lengthsAt(j.best.length);
+    j.best.lengths.forEach((l, k) => expect(l).toBeCloseTo(expected[k]!, 12));
+    writeFiles(dir, { [`best-${axis}.json`]: prior([{ kernel: 'matern', nu: 1.5, variance: j.best.variance, lengths: j.best.lengths, angle: 20 }]) });
+    const p = await runCommand(['posterior', '--problem', 'p2.json', '--prior', `best-${axis}.json`], dir);
+    expect(p.code, p.err).toBe(0);
+    const logEvidence = (JSON.parse(p.out) as { logEvidence: number }).logEvidence;
+    expect(Math.abs(logEvidence - j.best.logEvidence)).toBeLessThanOrEqual(1e-8 * Math.max(1, Math.abs(logEvidence)));
+  });
+  it('l1 and l2 maps differ (each moves its own length)', async () => {
+    const a = JSON.parse((await tune(['--lengths', '0.5:12:6', '--axis', 'l1'])).out) as AxisOut;
+    const b = JSON.parse((await tune(['--lengths', '0.5:12:6', '--axis', 'l2'])).out) as AxisOut;
+    const diff = a.logEvidence.flatMap((row, i) => row.map((v, k) => Math.abs(v! - b.logEvidence[i]![k]!)));
+    expect(Math.max(...diff)).toBeGreaterThan(1e-3);
+  });
+  it('a maximum on the edge of the l2 axis is named as such (two lengths: the maximum is on one end)', async () => {
+    const r = await tune(['--lengths', '0.5:12:2', '--axis', 'l2']);
+    expect(r.code, r.err).toBe(0);
+    const j = JSON.parse(r.out) as AxisOut;
+    expect(j.bestOnEdge.length).toBe(j.best.length === j.lengths[0] ? 'low' : 'high');
+    expect(j.warnings[0]).toMatch(/^the maximum lies at the (lower|upper) end of the l2 axis: the true maximum may lie beyond it; widen --lengths$/);
+    expect(r.err).toContain(`priorscope tune: ${j.warnings[0]}`);
+  });
+  it('refuses --axis l1 on an isotropic term and an unknown axis, in one line (exit 2)', async () => {
+    writeFiles(dir, { 'iso.json': prior([{ kernel: 'exponential', variance: 0.1, length: 5 }]) });
+    const r = await runCommand(['tune', '--problem', 'p2.json', '--prior', 'iso.json', '--term', '0', '--lengths', '1:2:2', '--variances', '1:2:2', '--axis', 'l1'], dir);
+    expect(r.code).toBe(2);
+    expect(r.err).toBe('priorscope tune: --axis l1 needs an anisotropic term ("lengths": [l1, l2]); term 0 has one length: leave --axis out (see priorscope tune --help)\n');
+    const u = await tune(['--lengths', '1:2:2', '--axis', 'l3']);
+    expect(u.code).toBe(2);
+    expect(u.err).toBe('priorscope tune: --axis must be one of both, l1, l2, got "l3" (see priorscope tune --help)\n');
+  });
+});

@@ -3,7 +3,7 @@
  * (length, variance) of one covariance term, everything else in the prior held fixed; and 1-D
  * evidence profiles over the Matérn smoothness ν and over the nugget.
  *
- * PUBLIC API: logSpaced, evidenceMap, evidenceProfile, withTerm, setTermLength, termLength.
+ * PUBLIC API: logSpaced, evidenceMap, evidenceProfile, withTerm, setTermLength, termLength, LengthAxis, LENGTH_AXES.
  *
  * ## The eigendecomposition shortcut (derivation)
  * Write the prior covariance as Cm = σ² C₁ + C_f, with C₁ the chosen term at unit variance (the
@@ -89,19 +89,37 @@ export function withTerm(prior: PriorSpec, index: number, patch: Partial<Term>):
   return { ...prior, terms: prior.terms.map((t, k) => (k === index ? { ...t, ...patch } : t)) };
 }
 
-/** The length that the map's length axis stands for: `length`, or `lengths[0]` for an anisotropic term. */
-export function termLength(term: Term): number {
-  return term.lengths !== undefined ? term.lengths[0] : term.length!;
+/**
+ * Which length of a term a map's length axis sets. "both": the term's one length, or for an anisotropic
+ * term l1 with l2 scaled in proportion (axis ratio and angle kept); "l1" / "l2": that length of an
+ * anisotropic term alone, the other and the angle kept (an isotropic term has only "both").
+ */
+export type LengthAxis = 'both' | 'l1' | 'l2';
+export const LENGTH_AXES: readonly LengthAxis[] = ['both', 'l1', 'l2'];
+
+/** The length that the map's length axis stands for: `length`, or `lengths[0]` (`lengths[1]` for "l2") of an anisotropic term. */
+export function termLength(term: Term, axis: LengthAxis = 'both'): number {
+  return term.lengths !== undefined ? term.lengths[axis === 'l2' ? 1 : 0] : term.length!;
 }
 
 /**
- * The term with its length set to `length`. An anisotropic term keeps its axis ratio l2/l1 (both
- * lengths are scaled by length/l1) and its angle.
+ * The term with its length along `axis` set to `length` (see {@link LengthAxis}; "both" keeps an
+ * anisotropic term's axis ratio l2/l1 by scaling both lengths by length/l1). An isotropic term
+ * takes `length` whatever the axis: {@link evidenceMap} refuses "l1" / "l2" for it.
  */
-export function setTermLength(term: Term, length: number): Term {
+export function setTermLength(term: Term, length: number, axis: LengthAxis = 'both'): Term {
   if (term.lengths !== undefined) {
     const [l1, l2] = term.lengths;
-    return { ...term, lengths: [length, (l2 * length) / l1] };
+    switch (axis) {
+      case 'both':
+        return { ...term, lengths: [length, (l2 * length) / l1] };
+      case 'l1':
+        return { ...term, lengths: [length, l2] };
+      case 'l2':
+        return { ...term, lengths: [l1, length] };
+      default:
+        return assertNever(axis, 'length axis');
+    }
   }
   return { ...term, length };
 }
@@ -111,6 +129,8 @@ export interface EvidenceMapOptions extends TuningControl, RouteOptions {
   readonly term: number;
   readonly lengths: LogAxis;
   readonly variances: LogAxis;
+  /** Which length the length axis sets (default "both"; "l1" / "l2" only for an anisotropic term). */
+  readonly axis?: LengthAxis;
   /**
    * 'auto' (default): the eigen shortcut when the variance axis has at least EIGEN_BREAK_EVEN
    * values, else a Cholesky per cell; 'eigen': the shortcut wherever it applies; 'cholesky': one
@@ -222,7 +242,12 @@ export function evidenceMap(problem: Problem, prior: PriorSpec, options: Evidenc
   const requested = asked === 'cholesky' || (asked === 'auto' && variances.length < EIGEN_BREAK_EVEN) ? 'cholesky' : 'auto';
   const side = prepareDataSide(problem, options);
   const term = prior.terms[options.term];
-  const unit = (len: number): PriorSpec => ({ ...prior, terms: [{ ...setTermLength(term, len), variance: 1 }], nugget: 0 });
+  const axis = options.axis ?? 'both';
+  if (!LENGTH_AXES.includes(axis)) throw new InputError('axis', '"both", "l1" or "l2"', axis);
+  if (axis !== 'both' && term.lengths === undefined) {
+    throw new InputError('axis', `"both" for term ${options.term}, which has one length (l1 and l2 need an anisotropic term, "lengths": [l1, l2])`, axis);
+  }
+  const unit = (len: number): PriorSpec => ({ ...prior, terms: [{ ...setTermLength(term, len, axis), variance: 1 }], nugget: 0 });
   // Validation of the prior as given, and the residual r = d − G m0.
   validatePrior(prior, problem.grid);
   const residual = priorResidual(side, prior);

@@ -67,6 +67,35 @@ describe.each(cases)('evidence map: %s', (_name, problem, prior, term) => {
   });
 });
 
+describe('evidence map of one length of an anisotropic term (axis l1 / l2)', () => {
+  const { problem, prior } = twoDProblem(); // lengths [3, 1], angle 30°
+  const opts = { term: 0, lengths: { min: 0.5, max: 8, count: 4 }, variances: { min: 0.1, max: 10, count: 3 }, method: 'eigen' as const };
+  it.each([
+    ['l1', (len: number) => [len, 1] as const],
+    ['l2', (len: number) => [3, len] as const],
+  ] as const)('axis %s moves that length alone: every cell equals the direct evaluation of the prior with those lengths', (axis, lengthsAt) => {
+    const map = evidenceMap(problem, prior, { ...opts, axis });
+    const t = prior.terms[0]!;
+    map.lengths.forEach((len, i) =>
+      map.variances.forEach((v, j) => {
+        const direct = logEvidence(problem, { ...prior, terms: [{ ...t, lengths: lengthsAt(len), variance: v }] });
+        expect(Math.abs(map.logEvidence[i * map.variances.length + j]! - direct)).toBeLessThanOrEqual(1e-10 * Math.max(1, Math.abs(direct)));
+      }),
+    );
+  });
+  it('the l2 map differs from the l1 and the proportional ("both") maps', () => {
+    const l1 = evidenceMap(problem, prior, { ...opts, axis: 'l1' });
+    const l2 = evidenceMap(problem, prior, { ...opts, axis: 'l2' });
+    const both = evidenceMap(problem, prior, opts);
+    expect(Math.max(...l2.logEvidence.map((v, k) => Math.abs(v - l1.logEvidence[k]!)))).toBeGreaterThan(1e-3);
+    expect(Math.max(...l1.logEvidence.map((v, k) => Math.abs(v - both.logEvidence[k]!)))).toBeGreaterThan(1e-3);
+  });
+  it('an isotropic term has one length: axis l1 / l2 is refused naming the field', () => {
+    expect(() => evidenceMap(smallProblem(3, single), single, { ...opts, axis: 'l2' })).toThrow(InputError);
+    expect(() => evidenceMap(smallProblem(3, single), single, { ...opts, axis: 'l2' })).toThrow(/^axis must be "both" for term 0, which has one length/);
+  });
+});
+
 describe('profiles', () => {
   const problem = smallProblem(8, withNuggetAndSecond);
   it('nugget profile: eigen shortcut (C₁ = I) equals direct evaluation to 1e-10', () => {
