@@ -38,6 +38,8 @@ interface CaseResult {
   readonly ratio: number | null;
   readonly gflops_ours: number | null;
   readonly gflops_scipy: number | null;
+  /** The case's own figures (BenchCase.report), or null. */
+  readonly extra: Readonly<Record<string, number>> | null;
 }
 
 interface Args {
@@ -138,7 +140,7 @@ function fmt(x: number | null, digits: number): string {
 }
 
 function printTable(rows: CaseResult[]): void {
-  const header = ['case', 'ours ms', 'ours cpu ms', 'scipy ms', 'ours/scipy', 'GFLOP/s ours', 'GFLOP/s scipy'];
+  const header = ['case', 'ours ms', 'ours cpu ms', 'scipy ms', 'ours/scipy', 'GFLOP/s ours', 'GFLOP/s scipy', 'other'];
   const body = rows.map((r) => [
     r.name,
     fmt(r.ours.median_s * 1000, 1),
@@ -147,9 +149,10 @@ function printTable(rows: CaseResult[]): void {
     fmt(r.ratio, 2),
     fmt(r.gflops_ours, 2),
     fmt(r.gflops_scipy, 2),
+    r.extra ? Object.entries(r.extra).map(([k, v]) => `${k} ${Number.isInteger(v) ? v : v.toPrecision(4)}`).join(', ') : '',
   ]);
   const widths = header.map((h, k) => Math.max(h.length, ...body.map((b) => b[k]!.length)));
-  const line = (cells: string[]) => cells.map((c, k) => (k === 0 ? c.padEnd(widths[k]!) : c.padStart(widths[k]!))).join('  ');
+  const line = (cells: string[]) => cells.map((c, k) => (k === 0 || k === cells.length - 1 ? c.padEnd(widths[k]!) : c.padStart(widths[k]!))).join('  ');
   console.log(line(header));
   console.log(widths.map((w) => '-'.repeat(w)).join('  '));
   for (const b of body) console.log(line(b));
@@ -162,9 +165,11 @@ async function main(): Promise<void> {
   if (list.length === 0) throw new Error(`bench: no case matches ${JSON.stringify(args.filter)}`);
   const loadBefore = loadavg();
   const ours = new Map<string, Timing>();
+  const extras = new Map<string, Readonly<Record<string, number>>>();
   for (const { c } of list) {
     process.stderr.write(`bench: ${c.name} …\n`);
     ours.set(c.name, await timeOurs(c));
+    if (c.report) extras.set(c.name, c.report());
   }
   let blas: unknown = null;
   let scipyResults = new Map<string, Timing>();
@@ -191,6 +196,7 @@ async function main(): Promise<void> {
       ratio: s ? o.median_s / s.median_s : null,
       gflops_ours: c.flops ? c.flops / o.median_s / 1e9 : null,
       gflops_scipy: c.flops && s ? c.flops / s.median_s / 1e9 : null,
+      extra: extras.get(c.name) ?? null,
     };
   });
   const report = {

@@ -20,4 +20,6 @@ export interface BenchCase {
   readonly runs?: number;
   /** Untimed warm-up runs; default 1. */
   readonly warmup?: number;
+  /** Other figures of the case, read after its timed runs (for example a child process's peak RSS); printed and kept in the JSON. */
+  readonly report?: () => Readonly<Record<string, number>>;
 }

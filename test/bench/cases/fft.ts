@@ -80,7 +80,7 @@ export function benchProblem(n: number, m = M): Problem {
 }
 
 /** Writes the problem for test/bench/cases/fft.py (the harness's scipy side runs after ours). */
-function writeProblemForScipy(n: number, problem: Problem): void {
+export function writeProblemForScipy(n: number, problem: Problem): void {
   const dir = join(dirname(fileURLToPath(import.meta.url)), '..', '..', '..', 'bench-results');
   mkdirSync(dir, { recursive: true });
   const p = { grid: problem.grid, length: n / 8, g: csrJson(problem.operator.matrix as SparseMatrix), d: Array.from(problem.data.values), sigma: Array.from(problem.data.sigma!) };
