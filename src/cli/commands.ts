@@ -58,6 +58,8 @@ export interface Command {
   /** Longer description printed by `priorscope <command> --help`. */
   readonly details: string;
   readonly options: readonly OptionSpec[];
+  /** Exit codes beyond the common 0 / 1 / 2 / 3 (printed by `--help` after them), e.g. check's 4. */
+  readonly exitCodes?: string;
   run(args: ParsedArgs, io: Io): number | Promise<number>;
 }
 
@@ -266,6 +268,7 @@ const check: Command = {
     { name: 'covariance', value: 'C.npy|C.mtx|C.csv', help: 'check this symmetric matrix instead of a prior (no --problem, --prior)' },
     OUT,
   ],
+  exitCodes: '4 positive definiteness not decided (neither sign proven at this size; "nextStep" says what to do)',
   run(args, io) {
     noPositionals(args);
     const covariance = optionString(args, 'covariance');

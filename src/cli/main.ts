@@ -48,13 +48,19 @@ export function mainHelp(): string {
   return lines.join('\n');
 }
 
+/** The exit codes every command shares (`priorscope COMMAND --help` prints them, with the command's own after them). */
+const EXIT_CODES =
+  'Exit codes: 0 ok, 1 internal error (a bug: please report it), 2 bad input (one line on stderr naming the file,\n' +
+  'the field and what was expected), 3 a negative verdict (a covariance proven not positive definite, or this command\'s own\n' +
+  'negative result described above)';
+
 export function commandHelp(c: Command): string {
   const lines = [`priorscope ${c.name}: ${c.summary}`, '', `Usage: ${c.usage}`, '', c.details, '', 'Options:'];
   for (const o of c.options) {
     const left = `--${o.name}${o.value ? ' ' + o.value : ''}`;
     lines.push(`  ${pad(left, 24)}${o.help}${o.required ? ' (required)' : ''}`);
   }
-  lines.push(`  ${pad('--help', 24)}this help`, '');
+  lines.push(`  ${pad('--help', 24)}this help`, '', `${EXIT_CODES}${c.exitCodes ? `, ${c.exitCodes}` : ''}.`, '');
   return lines.join('\n');
 }
 
