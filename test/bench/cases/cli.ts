@@ -1,11 +1,12 @@
 /**
  * The command line as a user runs it: whole processes of the built `priorscope` (dist-cli/, built
- * here first when a source is newer; src/cli/bin.mjs), timed from spawn to exit. Targets (issue
+ * here first; src/cli/bin.mjs), timed from spawn to exit. Targets (issue
  * "command line for pipelines"): `priorscope --help` ≤ 0.25 s; `priorscope posterior` on the 64 × 64,
  * M = 400 benchmark problem of ./fft.ts ≤ 0.25 × the dense numpy/scipy script (test/bench/dense_posterior.py:
  * build Cm, factor, solve, standard deviations; its own python3 process per run, ./cli.py); a
  * 10⁶-entry sparse operator in a JSON problem file and in a Matrix Market file: `posterior` peak
- * RSS ≤ 1.5 GB (measured by /usr/bin/time -f %M; reported in the table's last column).
+ * RSS ≤ 1.5 GB. Each child runs under /usr/bin/time: the "other" column gives its CPU time (user + system, less
+ * sensitive to other load than the wall time; the dense script is also run here for its CPU time) and peak RSS.
  * `node -e 0` is timed as the floor any Node.js command starts from.
  */
 import { spawnSync } from 'node:child_process';
@@ -34,19 +35,58 @@ function ensureBundle(): void {
   built = true;
 }
 
-/** Runs the built command; throws unless it exits 0 with nothing on stderr (so the bundle, not tsx, ran). */
-function priorscope(args: readonly string[]): void {
-  const r = spawnSync(process.execPath, [bin, ...args], { cwd: workDir, encoding: 'utf8', env: { ...process.env, PRIORSCOPE_CLI_SOURCE: '' }, maxBuffer: 1 << 28 });
-  if (r.status !== 0 || r.stderr !== '') throw new Error(`bench cli: priorscope ${args.join(' ')} → exit ${r.status}: ${r.stderr}`);
+/** One child's figures from /usr/bin/time: CPU seconds (user + system; less sensitive to other load than the wall time) and peak RSS. */
+interface ChildUsage {
+  readonly cpuS: number;
+  readonly peakMb: number;
 }
 
-/** Peak resident memory (MB) of one `priorscope` process, by /usr/bin/time. */
-function peakRssMb(args: readonly string[]): number {
-  if (!existsSync('/usr/bin/time')) throw new Error('bench cli: /usr/bin/time is needed for the memory figure (Debian package "time")');
-  const r = spawnSync('/usr/bin/time', ['-f', 'peak-kb %M', process.execPath, bin, ...args], { cwd: workDir, encoding: 'utf8', maxBuffer: 1 << 28 });
-  const m = /peak-kb (\d+)/.exec(r.stderr);
-  if (r.status !== 0 || !m) throw new Error(`bench cli: priorscope ${args.join(' ')} → exit ${r.status}: ${r.stderr}`);
-  return Number(m[1]) / 1024;
+/**
+ * Runs `command args` under /usr/bin/time (its overhead, one fork and exec, is within the noise); throws
+ * unless it exits 0 with nothing else on stderr (so for priorscope the bundle ran, not the sources through tsx).
+ */
+function timed(command: string, args: readonly string[], env: NodeJS.ProcessEnv = process.env): ChildUsage {
+  if (!existsSync('/usr/bin/time')) throw new Error('bench cli: /usr/bin/time is needed (Debian package "time")');
+  const r = spawnSync('/usr/bin/time', ['-f', 'usage %U %S %M', command, ...args], { cwd: workDir, encoding: 'utf8', env, maxBuffer: 1 << 28 });
+  const lines = r.stderr.trimEnd().split('\n');
+  const m = /^usage ([\d.]+) ([\d.]+) (\d+)$/.exec(lines[lines.length - 1] ?? '');
+  if (r.status !== 0 || !m || lines.length !== 1) throw new Error(`bench cli: ${command} ${args.join(' ')} → exit ${r.status}: ${r.stderr}`);
+  return { cpuS: Number(m[1]) + Number(m[2]), peakMb: Number(m[3]) / 1024 };
+}
+
+const priorscopeEnv = { ...process.env, PRIORSCOPE_CLI_SOURCE: '' };
+
+/** Child figures per case, filled by its runs; the harness reads them through `report`. */
+const usage = new Map<string, ChildUsage[]>();
+function record(name: string, u: ChildUsage): void {
+  if (!usage.has(name)) usage.set(name, []);
+  usage.get(name)!.push(u);
+}
+function median(xs: number[]): number {
+  const s = [...xs].sort((a, b) => a - b);
+  const k = s.length >> 1;
+  return s.length % 2 ? s[k]! : (s[k - 1]! + s[k]!) / 2;
+}
+function usageReport(name: string, memory = false): Readonly<Record<string, number>> {
+  const u = usage.get(name) ?? [];
+  const cpu = { child_cpu_s_median: median(u.map((x) => x.cpuS)) };
+  return memory ? { ...cpu, peak_rss_mb_median: median(u.map((x) => x.peakMb)), peak_rss_mb_max: Math.max(...u.map((x) => x.peakMb)) } : cpu;
+}
+
+/** A case that runs one process per timed run and reports the children's CPU time (and peak RSS). */
+function processCase(c: Omit<BenchCase, 'setup' | 'run' | 'report'> & { prepare?: () => void; command: () => [string, string[], NodeJS.ProcessEnv?] }, memory = false): BenchCase {
+  const { prepare, command, ...rest } = c;
+  return {
+    ...rest,
+    setup: () => {
+      mkdirSync(workDir, { recursive: true });
+      prepare?.();
+      usage.set(c.name, []);
+      const [cmd, args, env] = command();
+      return () => record(c.name, timed(cmd, args, env));
+    },
+    report: () => usageReport(c.name, memory),
+  };
 }
 
 /**
@@ -95,62 +135,65 @@ function writeMillionEntryProblem(): void {
   writeFileSync(join(workDir, 'million-prior.json'), writePriorFile(benchPrior(128), 'million-prior.json'));
 }
 
-/** Peak RSS (MB) of each memory case, filled by its run; the harness reports it through `report`. */
-const peaks = new Map<string, number[]>();
 function memoryCase(form: 'inline' | 'mtx'): BenchCase {
-  const name = `cli process: posterior, 10^6-entry sparse operator ${form === 'inline' ? 'inline in the JSON problem file' : 'in a Matrix Market file'} (128x128, M=500)`;
-  return {
-    name,
-    params: { N: 128 * 128, M: 500, nnz: 1_000_000 },
-    runs: 5,
-    warmup: 0,
-    setup: () => {
-      ensureBundle();
-      mkdirSync(workDir, { recursive: true });
-      if (!existsSync(join(workDir, 'million-G.mtx'))) writeMillionEntryProblem();
-      peaks.set(name, []);
-      return () => peaks.get(name)!.push(peakRssMb(['posterior', '--problem', `million-${form}.json`, '--prior', 'million-prior.json', '--out', `million-${form}-posterior.json`]));
+  return processCase(
+    {
+      name: `cli process: posterior, 10^6-entry sparse operator ${form === 'inline' ? 'inline in the JSON problem file' : 'in a Matrix Market file'} (128x128, M=500)`,
+      params: { N: 128 * 128, M: 500, nnz: 1_000_000 },
+      runs: 5,
+      warmup: 0,
+      prepare: () => {
+        ensureBundle();
+        if (!existsSync(join(workDir, 'million-G.mtx'))) writeMillionEntryProblem();
+      },
+      command: () => [process.execPath, [bin, 'posterior', '--problem', `million-${form}.json`, '--prior', 'million-prior.json', '--out', `million-${form}-posterior.json`], priorscopeEnv],
     },
-    report: () => {
-      const p = [...peaks.get(name)!].sort((a, b) => a - b);
-      return { peak_rss_mb_median: p[p.length >> 1]!, peak_rss_mb_max: p[p.length - 1]! };
-    },
-  };
+    true,
+  );
 }
 
 export const cases: BenchCase[] = [
-  {
+  processCase({
     name: 'cli process: node -e 0 (the floor of any Node.js command)',
     runs: 11,
-    run: () => {
-      const r = spawnSync(process.execPath, ['-e', '0']);
-      if (r.status !== 0) throw new Error('bench cli: node -e 0 failed');
-    },
-  },
-  {
+    command: () => [process.execPath, ['-e', '0']],
+  }),
+  processCase({
     name: 'cli process: priorscope --help (target 0.25 s)',
     runs: 11,
-    setup: () => {
-      ensureBundle();
-      mkdirSync(workDir, { recursive: true });
-      return () => priorscope(['--help']);
-    },
-  },
-  {
+    prepare: ensureBundle,
+    command: () => [process.execPath, [bin, '--help'], priorscopeEnv],
+  }),
+  processCase({
     name: 'cli process: priorscope posterior 64x64 M=400 (target ≤ 0.25 × the dense scipy script)',
     params: { N: 64 * 64, M: 400, grid: 64 },
     scipyOp: 'dense_posterior_process',
     runs: 7,
-    setup: () => {
+    prepare: () => {
       ensureBundle();
-      mkdirSync(workDir, { recursive: true });
       const problem = benchProblem(64);
       writeProblemForScipy(64, problem);
       writeFileSync(join(workDir, 'p64.json'), writeProblemFile(problem, 'inline').json);
       writeFileSync(join(workDir, 'q64.json'), writePriorFile(benchPrior(64), 'q64.json'));
-      return () => priorscope(['posterior', '--problem', 'p64.json', '--prior', 'q64.json', '--out', 'posterior64.json']);
     },
-  },
+    command: () => [process.execPath, [bin, 'posterior', '--problem', 'p64.json', '--prior', 'q64.json', '--out', 'posterior64.json'], priorscopeEnv],
+  }),
+  processCase({
+    name: 'cli process: the dense scipy script 64x64 M=400 (test/bench/dense_posterior.py), for its CPU time',
+    params: { grid: 64 },
+    runs: 5,
+    prepare: () => writeProblemForScipy(64, benchProblem(64)),
+    command: () => [
+      process.env.PRIORSCOPE_PYTHON ?? '/usr/bin/python3',
+      [join(repoRoot, 'test', 'bench', 'dense_posterior.py'), join(repoRoot, 'bench-results', 'fft-problem-64.json'), join(workDir, 'dense-posterior-64.json')],
+      (() => {
+        const env = { ...process.env };
+        delete env.OPENBLAS_CORETYPE;
+        delete env.OPENBLAS_L2_SIZE;
+        return env;
+      })(),
+    ],
+  }),
   memoryCase('inline'),
   memoryCase('mtx'),
 ];
