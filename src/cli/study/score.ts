@@ -84,7 +84,12 @@ export const score: Command = {
       combine: (k, parts) => combineScores(k, parts).output,
     });
     if (out !== null && (out as { plausibleCount: number }).plausibleCount === 0) {
-      io.stderr('priorscope score: no prior passes the prior predictive check (q = rᵀK⁻¹r outside the central 95% of χ²_M for every one)');
+      const failed = (out as { scores: { error?: string }[] }).scores.filter((s) => s.error !== undefined).length;
+      io.stderr(
+        failed === priors.length
+          ? 'priorscope score: no prior could be scored (see "error" of each)'
+          : `priorscope score: no prior passes the prior predictive check (q = rᵀK⁻¹r outside the central 95% of χ²_M for every one${failed > 0 ? `; ${failed} could not be scored` : ''})`,
+      );
       return 3;
     }
     return 0;
