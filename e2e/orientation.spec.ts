@@ -1,5 +1,5 @@
 /**
- * One orientation on every 2-D plot (issue 11, part 7): a rotated anisotropic prior must tilt the
+ * One orientation on every 2-D plot: a rotated anisotropic prior must tilt the
  * same way on screen in the correlation map as in its realisations.
  *
  * Tilt as drawn: with X the offset to the right and U the offset upwards on screen (U = −Δy when

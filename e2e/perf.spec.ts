@@ -1,5 +1,5 @@
 /**
- * Main-thread responsiveness during a slider drag on the 2-D demos (issue 4): no long task
+ * Main-thread responsiveness during a slider drag on the 2-D demos: no long task
  * (PerformanceObserver 'longtask', Chromium) above BOUND_MS while 30 input events arrive at 60 Hz
  * and the results settle. The product target is 50 ms per task and is measured by the benchmark
  * (`npm run bench:ui`); this test uses a generous bound because test machines are shared and noisy

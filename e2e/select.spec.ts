@@ -1,5 +1,5 @@
 /**
- * Acceptance of the "Choose prior" screen (issue 7) in Chromium. Expected numbers are computed
+ * Acceptance of the "Choose prior" screen in Chromium. Expected numbers are computed
  * here, in Node, with the same numerical core the worker runs (src/core/tuning), for the prior and
  * ranges the page used. Tolerance 1e-9 relative for page-against-Node (same code, IEEE doubles on
  * two V8 builds; common practice, no source); the differences we detect are far larger.
@@ -105,7 +105,7 @@ test('best by evidence applies an optimum whose log evidence is at least the sta
   const opt = await num(page, 'fit-logev');
   expect(rel(start, logEvidence(borehole.problem, s0.prior))).toBeLessThan(TOL);
   expect(opt).toBeGreaterThanOrEqual(start);
-  // The optimum passed the workbench's positive-definiteness check with κ ≤ 1e10 (issue 11 §3).
+  // The optimum passed the workbench's positive-definiteness check with κ ≤ 1e10.
   await expect(page.getByTestId('fit-conditioning')).toContainText('positive definite, condition number');
   await page.getByTestId('fit-apply').click();
   const s1 = await settle(page);
@@ -127,7 +127,7 @@ test('criteria of the current prior and two pinned candidates match the core; "u
   expect(rel(await num(page, 'crit-logev'), logEvidence(borehole.problem, s0.prior))).toBeLessThan(TOL);
   expect(rel(await num(page, 'crit-loo'), leaveOneOut(borehole.problem, s0.prior).logScore)).toBeLessThan(TOL);
   await expect(page.getByTestId('criteria-explanation')).toContainText('different questions');
-  // Both forms of the discrepancy rule, each saying what it targets (issue 11 §1), with the core's scales.
+  // Both forms of the discrepancy rule, each saying what it targets, with the core's scales.
   expect(rel(await num(page, 'crit-discrepancy'), discrepancyScale(borehole.problem, s0.prior).scale)).toBeLessThan(TOL);
   expect(rel(await num(page, 'crit-discrepancy-expected'), discrepancyScale(borehole.problem, s0.prior, { form: 'expected' }).scale)).toBeLessThan(TOL);
   await expect(page.getByTestId('crit-discrepancy-row')).toContainText('Targets χ² = M = 50');

@@ -1,5 +1,5 @@
 /**
- * Issue 5 acceptance in Chromium: the user's own problem from CSV + Matrix Market pieces, a broken
+ * Acceptance in Chromium: the user's own problem from CSV + Matrix Market pieces, a broken
  * file leaving the session exactly as it was, prior export / re-import, reload restoring the
  * session, undo / redo, the share link, hostile text, worker death, CSP and no foreign requests.
  * Expected numbers come from the core run here in Node on the same inputs (see workbench.spec.ts

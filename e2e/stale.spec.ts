@@ -1,5 +1,5 @@
 /**
- * Results belong to the prior and problem they were computed for (issue 11, part 4), in Chromium:
+ * Results belong to the prior and problem they were computed for, in Chromium:
  * after a kernel change the earlier fit and evidence map are marked out of date and cannot be
  * applied; pinned candidates stay with their problem; the Problem selector names what is loaded.
  */

@@ -1,7 +1,7 @@
 /**
  * A loaded problem starts from the prior fitted to its data (src/core/tuning/startPrior.ts), names
- * its axes and units as its file says, and warns when the data are implausible under the prior
- * (issue 11, parts 6 and 7). The expected prior is computed here in Node from the same file.
+ * its axes and units as its file says, and warns when the data are implausible under the prior.
+ * The expected prior is computed here in Node from the same file.
  */
 import { expect, test } from '@playwright/test';
 import { mkdtempSync, writeFileSync } from 'node:fs';

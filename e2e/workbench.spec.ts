@@ -1,5 +1,5 @@
 /**
- * Acceptance of the workbench (issue 4) in Chromium. Expected numbers are computed here, in Node,
+ * Acceptance of the workbench in Chromium. Expected numbers are computed here, in Node,
  * with the same numerical core the worker runs, for the prior the page reports it used.
  *
  * Tolerance for page-against-Node comparisons: the same code in IEEE double arithmetic on two V8
@@ -48,7 +48,7 @@ test('loads the 1-D demo with posterior mean, bands and data fit; no console err
   expect(maxRelDiff(predicted, expected.predicted)).toBeLessThan(TOL);
   const residuals = (await traceValues(page, 'plot-residuals', 'normalised residual')) as number[];
   expect(maxRelDiff(residuals, expected.residuals)).toBeLessThan(TOL);
-  // χ² against its reference under the model (issue 11 §1): the borehole demo's χ² = 7.2 with M = 50
+  // χ² against its reference under the model: the borehole demo's χ² = 7.2 with M = 50
   // lies inside the interval around M − tr R = 9.6 and is not flagged (against χ²_50 it was "over-fitted").
   const ref = expected.fitReference!;
   const shown = async (id: string) => Number(await page.getByTestId(id).textContent());

@@ -1,5 +1,5 @@
 /**
- * The data-fit verdict of the fit screen and the report (issue 11 §1): χ² against the central 95%
+ * The data-fit verdict of the fit screen and the report: χ² against the central 95%
  * interval of its own distribution under the model (src/core/inverse/fitReference.ts), not against
  * χ²_M. The borehole demo's χ² = 7.2 with M = 50 was called "over-fitted or errors overstated"
  * before; it is as expected (9.6 = M − 40.4 resolved parameters).

@@ -1,5 +1,5 @@
 /**
- * `priorscope posterior` reports the data-fit reference (issue 11 §1): chi2Expected = M − tr R,
+ * `priorscope posterior` reports the data-fit reference: chi2Expected = M − tr R,
  * chi2Interval95 the central 95% interval of χ² itself, chi2TailProbability = P(χ² ≥ chi2), on the
  * borehole demo written by `priorscope demo` (its χ² = 7.2 with M = 50 was flagged against χ²_50).
  */

@@ -1,5 +1,5 @@
 /**
- * Files only where the user put them (issue 16 part 2, issue 14 part 5): sibling files named in a
+ * Files only where the user put them: sibling files named in a
  * problem file are read only inside its folder (symbolic links resolved) unless --read-from allows
  * another; FIFOs and devices are refused without hanging; a file's contents are never echoed.
  * Runs in process through the injectable Io (test/cli/run.ts).
@@ -98,7 +98,7 @@ describe('only regular files, size limit enforced while reading', () => {
   });
 });
 
-describe('cost decided before computing (issue 14 part 5, issue 16 part 4)', () => {
+describe('cost decided before computing', () => {
   it('--path dense on 100,000 cells says the dense route cannot hold it and which route can (exit 2, no internal error)', async () => {
     const dir = tempDir();
     // 1000 × 100 cells, one datum reading cell 0 (sparse, so the file stays small).

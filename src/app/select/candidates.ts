@@ -1,6 +1,6 @@
 /**
  * Names and colours of pinned candidates (our own set), and the pure table rows of the candidate
- * comparison. Unit-tested in test/app/select/candidates.test.ts.
+ * comparison. Unit-tested in test/app/select/traces.test.ts.
  */
 import type { CandidateScores } from '../../worker/tuningProtocol.ts';
 

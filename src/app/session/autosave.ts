@@ -86,10 +86,3 @@ export function memoryStorage(): SessionStorage & { readonly map: Map<string, un
     },
   };
 }
-
-/** A saved session read back, checked just enough to refuse foreign or older records. */
-export function isSavedSession(v: unknown): v is SavedSession {
-  if (typeof v !== 'object' || v === null) return false;
-  const s = v as Partial<SavedSession>;
-  return s.format === SESSION_FORMAT && typeof s.source === 'object' && s.source !== null && typeof s.prior === 'object' && typeof s.seed === 'number';
-}

@@ -28,7 +28,7 @@ export interface PosteriorPool {
   get(): BlockPool;
   readonly threads: number;
   /**
-   * Smallest std solve (multiply-adds, parallel/blocks.ts varianceFlops) for which the pool is used.
+   * Smallest std solve (multiply-adds, ../parallel/blocks.ts varianceFlops) for which the pool is used.
    * Default MIN_SPLIT_FLOPS, measured for a pool that is already running (the browser's); a caller
    * that starts a pool per computation (the command line) sets its own, higher break-even.
    */
@@ -66,7 +66,7 @@ export function stdSplits(pool: PosteriorPool | undefined, m: number, n: number)
 
 /**
  * The FFT route's state (Bᵀ, L, mean); the Bᵀ products go over `pool` when forced or when
- * parallel/products.ts productsWorthSplitting says they gain (same bits as one thread).
+ * ../parallel/products.ts productsWorthSplitting says they gain (same bits as one thread).
  */
 export async function prepareStructured(sp: StructuredProblem | Problem, prior: PriorSpec, pool?: PosteriorPool): Promise<StructuredPosteriorState> {
   const problem = 'cacheBytes' in sp ? sp.problem : sp;

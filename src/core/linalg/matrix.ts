@@ -44,10 +44,6 @@ export function identity(n: number): Matrix {
   return out;
 }
 
-export function cloneMatrix(a: Matrix): Matrix {
-  return matrix(a.rows, a.cols, a.data.slice());
-}
-
 /** Aᵀ as a new matrix (cache-blocked in 32 × 32 tiles). */
 export function transpose(a: Matrix): Matrix {
   const out = matrix(a.cols, a.rows);

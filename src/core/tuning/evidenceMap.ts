@@ -18,9 +18,8 @@
  *   rᵀ K⁻¹ r   = (L_B⁻¹r)ᵀ U (σ²Λ + I)⁻¹ Uᵀ (L_B⁻¹r) = Σ_k b_k² / (1 + σ² λ_k),   b = Uᵀ L_B⁻¹ r,
  *
  * so after one eigendecomposition per length (O(M³)) every variance costs O(M). With a single term
- * and no nugget, B = Cd (the case written in the issue); other terms and a nugget only change B, so
- * the same algebra covers them — that is an extension of the issue's wording, stated here so it can
- * be checked (test/core/tuning/evidenceMap.test.ts compares both paths on priors with a nugget and
+ * and no nugget, B = Cd; other terms and a nugget only change B, so the same algebra covers them,
+ * stated here so it can be checked (test/core/tuning/evidenceMap.test.ts compares both paths on priors with a nugget and
  * a second term). The nugget profile uses the same identity with C₁ = I (K(η) = η G Gᵀ + B).
  * The per-cell Cholesky path (K = σ² P₁ + B factored for every cell, M³/3 flops each) is used when
  * asked for, when the whitened matrix has a clearly negative eigenvalue (an indefinite term, e.g. a

@@ -1,5 +1,5 @@
 /**
- * A starting prior fitted to a loaded problem's data and grid (issue 11, part 6), so that a user's
+ * A starting prior fitted to a loaded problem's data and grid, so that a user's
  * own problem does not open with mean 0 and variance 1 whatever its units.
  *
  * The rule (stated in the UI; derivation ours):

@@ -25,7 +25,7 @@
  * gradient is available at the cost of p extra projections, and BFGS needs far fewer evaluations
  * than a simplex method for the 2–7 parameters a prior has.
  *
- * Conditioning (issue 11 §3): the evidence of a smooth kernel can keep rising as the nugget falls,
+ * Conditioning: the evidence of a smooth kernel can keep rising as the nugget falls,
  * towards a prior that no longer factors. With a free nugget η the search is bounded to priors with
  * κ(Cm) ≤ NEAR_SINGULAR_CONDITION (1e10, the workbench's threshold, ../prior/diagnostics.ts): the
  * kernel part C₀ = Cm − ηI is positive semi-definite with λmax(C₀) ≤ B, B = max(s)² Σ_offsets |T| (the

@@ -1,5 +1,5 @@
 /**
- * Issue 16 §3–4: the autosave and share links are read through the same checks as files. A seeded
+ * The autosave and share links are read through the same checks as files. A seeded
  * corpus of damaged saved sessions must each open to a working page (a problem shown, a valid prior,
  * no raw JavaScript message), and a failed share link must leave the saved session as it was.
  */

@@ -108,7 +108,7 @@ describe('parseCsv on mutated input (seeded)', () => {
 });
 
 /**
- * The battery's CSV cases (issue 16 part 1): each was read wrongly or blamed on the size before.
+ * The battery's CSV cases: each was read wrongly or blamed on the size before.
  * Expected messages are written by hand from the file text.
  */
 describe('parseCsv never guesses (seeded corpus of the battery cases)', () => {

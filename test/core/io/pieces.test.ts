@@ -53,7 +53,7 @@ describe('parseDataCsv', () => {
   });
 });
 
-describe('parseDataCsv never guesses (battery cases, issue 16 part 1)', () => {
+describe('parseDataCsv never guesses (battery cases)', () => {
   it('refuses two whole-number columns with no decimal point anywhere (maybe decimal commas), with a hint', () => {
     expectFileError(
       () => parseDataCsv('d.csv', '1,25\n2,5\n0,75\n'),

@@ -67,7 +67,7 @@ describe('parseProblemFile', () => {
     expect(toRows(operatorToDense(p.operator))).toEqual(G);
   });
 
-  it('says when the operator CSV\'s first row was read as a header (issue 16 part 1)', () => {
+  it('says when the operator CSV\'s first row was read as a header', () => {
     const { warnings } = parseProblemFile('p.json', problem({ operator: { file: 'G.csv' } }), {
       readSibling: siblings({ 'G.csv': writeCsv(fromRows(G), ['a', 'b', 'c']) }),
     });

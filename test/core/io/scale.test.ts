@@ -1,8 +1,8 @@
 /**
- * Inputs whose scale cannot be computed in double precision are refused at the field (issue 16
- * part 1, issue 14 part 5): a prior mean of 1e308, σ of 1e-300 and a std profile of 1e300 used to
- * give null results with exit 0. validatePrior runs in every core computation (CLI and worker), the
- * problem rules in both problem readers.
+ * Inputs whose scale cannot be computed in double precision are refused at the field: a prior mean
+ * of 1e308, σ of 1e-300 and a std profile of 1e300 used to give null results with exit 0.
+ * validatePrior runs in every core computation (CLI and worker), the problem rules in both problem
+ * readers.
  */
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../../../src/core/errors.ts';

@@ -1,5 +1,5 @@
 /**
- * Best by evidence stays where priors are usable (issue 11 §3). Reproduction: the borehole demo with
+ * Best by evidence stays where priors are usable. Reproduction: the borehole demo with
  * its truth prior's linear-trend mean and a Gaussian kernel with a free nugget: the unbounded search
  * drove the nugget to about 1e-13 and a condition number of 5e12 (above the workbench's 1e10). The
  * optimum must now pass the workbench's own check (diagnosePrior: Cholesky + all eigenvalues,

@@ -2,7 +2,7 @@
  * The WASM variance block against the JS kernel structuredVarianceBlock (same operations in the
  * same order, so equal bit for bit; the brief's bar is relative 1e-13), split-vs-whole bit
  * equality, the resident-factor cache, memory growth, clamping and the fallback path. The check
- * against scipy.linalg.solve_triangular is test/reference/wasm_variance.test.ts.
+ * against scipy.linalg.solve_triangular is test/reference/wasm.test.ts.
  */
 import { afterEach, describe, expect, it } from 'vitest';
 import { structuredVarianceBlock } from '../../../src/core/inverse/structured.ts';
