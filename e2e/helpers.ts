@@ -56,9 +56,17 @@ export async function settle(page: Page): Promise<PageState> {
   return state(page);
 }
 
-export async function open(page: Page, demo?: string): Promise<PageState> {
+/**
+ * Open the page (a demo when given) and wait until it is up to date. The page opens on the
+ * overview; the specs written for one screen go to `tab` (the posterior screen unless told).
+ */
+export async function open(page: Page, demo?: string, tab = 'posterior'): Promise<PageState> {
   await page.goto(demo ? `/?demo=${demo}` : '/');
   await expect(page.getByTestId('activity')).toHaveText('Up to date', { timeout: 45_000 });
+  if (tab !== 'overview') {
+    await settle(page);
+    await page.getByTestId(`tab-${tab}`).click();
+  }
   return settle(page);
 }
 

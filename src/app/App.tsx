@@ -8,6 +8,7 @@ import { StatusPanel } from './StatusPanel.tsx';
 import { FitScreen, PosteriorScreen, PriorScreen, ProblemScreen, RealisationsScreen } from './screens/index.ts';
 import { TABS, type TabId } from './store.ts';
 import { SelectScreen } from './select/SelectScreen.tsx';
+import { OverviewScreen } from './overview/OverviewScreen.tsx';
 import { SessionBar } from './session/SessionBar.tsx';
 import { CAUTION } from './caution.ts';
 import { indexedDbStorage } from './session/autosave.ts';
@@ -24,6 +25,8 @@ async function restorePrevious(): Promise<void> {
 
 function Screen({ tab }: { tab: TabId }) {
   switch (tab) {
+    case 'overview':
+      return <OverviewScreen />;
     case 'problem':
       return <ProblemScreen />;
     case 'prior':

@@ -33,8 +33,9 @@ export interface ClientPort {
   onRestart(listener: (reason: string) => void): () => void;
 }
 
-export type TabId = 'problem' | 'prior' | 'realisations' | 'posterior' | 'fit' | 'select';
+export type TabId = 'overview' | 'problem' | 'prior' | 'realisations' | 'posterior' | 'fit' | 'select';
 export const TABS: readonly { id: TabId; label: string }[] = [
+  { id: 'overview', label: 'Overview' },
   { id: 'problem', label: 'Problem' },
   { id: 'prior', label: 'Prior' },
   { id: 'realisations', label: 'Realisations' },
@@ -188,7 +189,7 @@ export function createWorkbenchStore(client: ClientPort, initial: { demoId: stri
       priorRevision: 0,
       ...emptyResults(),
       progress: null,
-      tab: 'posterior',
+      tab: 'overview',
       seed: initial.seed ?? DEFAULT_SEED,
       previousSessionKept: false,
       selectedCell: null,
@@ -321,15 +322,20 @@ export function createWorkbenchStore(client: ClientPort, initial: { demoId: stri
           (posterior) => ({ posterior, posteriorPartial: null }),
           (message) => (partialShown ? `the uncertainty bands could not be computed (${message}); the posterior mean is shown without them` : message),
         );
-        run('diagnostics', rev, () => client.diagnostics(prior), (diagnostics) => ({ diagnostics }));
         if (s.tab === 'posterior' && s.selectedCell !== null) {
           const cell = s.selectedCell;
           run('resolution', `${rev}:${cell}`, () => client.resolution(prior, cell), (resolution) => ({ resolution }));
         }
-        if (s.tab === 'realisations') {
+        // Prior draws before the diagnostics: both go to the same worker, and the overview waits for the draws.
+        if (s.tab === 'realisations' || s.tab === 'overview') {
           const key = `${rev}:${s.seed}`;
           const seed = s.seed;
           run('priorDraws', key, () => client.priorDraws(prior, DRAW_COUNT, seed), (priorDraws) => ({ priorDraws }));
+        }
+        run('diagnostics', rev, () => client.diagnostics(prior), (diagnostics) => ({ diagnostics }));
+        if (s.tab === 'realisations') {
+          const key = `${rev}:${s.seed}`;
+          const seed = s.seed;
           run('posteriorDraws', key, () => client.posteriorDraws(prior, DRAW_COUNT, seed), (posteriorDraws) => ({
             posteriorDraws,
           }));

@@ -1,7 +1,7 @@
 /**
  * Two workers behind one client interface, so that the posterior is never queued behind slower
  * side work on a 2-core machine: the primary worker runs the posterior, averaging kernels and
- * posterior draws; the secondary runs the positive-definiteness diagnostics, prior draws and the
+ * prior and posterior draws; the secondary runs the positive-definiteness diagnostics and the
  * covariance view, and the prior-selection requests ({@link SplitClient.tuning}). Both hold the
  * same problem (each loads it once).
  */
@@ -61,8 +61,9 @@ export class SplitClient {
   diagnostics(prior: PriorSpec) {
     return this.secondary.diagnostics(prior);
   }
+  /** On the posterior's worker: the overview waits for both, and the secondary may be busy with a long diagnosis. */
   priorDraws(prior: PriorSpec, count: number, seed: number) {
-    return this.secondary.priorDraws(prior, count, seed);
+    return this.primary.priorDraws(prior, count, seed);
   }
   covariance(prior: PriorSpec) {
     return this.secondary.covariance(prior);

@@ -1,7 +1,9 @@
 /**
- * UI benchmark (`npm run bench:ui`): in Chromium, for each demo, the time from a prior parameter
- * change (performance mark `ps:param-change`) to the redrawn posterior plot (`ps:posterior-drawn`),
- * median over 20 changes, and the main-thread long tasks (PerformanceObserver 'longtask') during a
+ * UI benchmark (`npm run bench:ui`): in Chromium, for each demo and each of two screens, the time
+ * from a prior parameter change (performance mark `ps:param-change`) to the screen redrawn: on the
+ * overview (the first screen) every panel showing the new prior's results (`ps:overview-drawn`,
+ * src/app/overview/OverviewScreen.tsx), on the posterior screen the posterior plot
+ * (`ps:posterior-drawn`); median over 20 changes, and the main-thread long tasks (PerformanceObserver 'longtask') during a
  * slider drag of 30 input events at 60 Hz, with the number and longest synchronous part of the
  * Plotly.react calls in that window and the machine's 1-minute load average. Measures a production build (vite build into a
  * temporary directory, served by vite preview) unless PRIORSCOPE_BENCH_URL points at a running
@@ -37,16 +39,22 @@ async function waitForServer(url: string, ms = 60_000): Promise<void> {
   throw new Error(`bench: no server at ${url} after ${ms} ms`);
 }
 
-/** Set the first term's length slider to `pos`; resolve with param-change → posterior-drawn in ms. */
-async function timedChange(page: Page, pos: number): Promise<number> {
+/** Screens measured: the tab and the mark that says it has drawn the new prior's results. */
+const SCREENS = [
+  { tab: 'overview', mark: 'ps:overview-drawn' },
+  { tab: 'posterior', mark: 'ps:posterior-drawn' },
+] as const;
+
+/** Set the first term's length slider to `pos`; resolve with param-change → `mark` in ms. */
+async function timedChange(page: Page, pos: number, mark: string): Promise<number> {
   return page.evaluate(
-    (p) =>
+    ([p, markName]) =>
       new Promise<number>((resolve, reject) => {
         const start = performance.now();
-        const timer = setTimeout(() => reject(new Error('no ps:posterior-drawn within 60 s')), 60_000);
+        const timer = setTimeout(() => reject(new Error(`no ${markName} within 60 s`)), 60_000);
         const obs = new PerformanceObserver((list) => {
           for (const e of list.getEntries()) {
-            if (e.name !== 'ps:posterior-drawn' || e.startTime < start) continue;
+            if (e.name !== markName || e.startTime < start) continue;
             const change = performance.getEntriesByName('ps:param-change').filter((m) => m.startTime >= start)[0];
             if (!change) continue;
             obs.disconnect();
@@ -60,7 +68,7 @@ async function timedChange(page: Page, pos: number): Promise<number> {
         Object.getOwnPropertyDescriptor(HTMLInputElement.prototype, 'value')!.set!.call(el, String(p));
         el.dispatchEvent(new Event('input', { bubbles: true }));
       }),
-    pos,
+    [pos, mark] as const,
   );
 }
 
@@ -112,27 +120,33 @@ async function main(): Promise<void> {
       await page.goto(`${base}/?demo=${id}`);
       await page.getByTestId('activity').filter({ hasText: 'Up to date' }).waitFor({ timeout: 120_000 });
       await page.waitForSelector('[data-testid=term-0-length-slider]');
-      const t: number[] = [];
-      for (let k = 0; k < CHANGES; k++) t.push(await timedChange(page, k % 2 ? 180 : 220 - k));
-      const d = await drag(page);
-      const r = {
-        demo: id,
-        changes: t.length,
-        medianMs: Number(median(t).toFixed(1)),
-        minMs: Number(Math.min(...t).toFixed(1)),
-        maxMs: Number(Math.max(...t).toFixed(1)),
-        targetMs: id === 'borehole-log' ? 100 : 500,
-        dragEvents: 30,
-        dragMs: Number(d.dragMs.toFixed(1)),
-        longTaskCount: d.longTasks.length,
-        longestTaskMs: d.longTasks.length ? Number(Math.max(...d.longTasks).toFixed(1)) : 0,
-        longTaskTargetMs: 50,
-        plotCallsDuringDrag: d.plotCalls,
-        longestPlotCallMs: Number(d.longestPlotMs.toFixed(1)),
-        loadAverage1m: Number(loadavg()[0]!.toFixed(2)),
-      };
-      results.push(r);
-      console.error(`bench:ui ${id}: median ${r.medianMs} ms, longest task ${r.longestTaskMs} ms`);
+      for (const screen of SCREENS) {
+        await page.getByTestId(`tab-${screen.tab}`).click();
+        await page.getByTestId('activity').filter({ hasText: 'Up to date' }).waitFor({ timeout: 120_000 });
+        await page.waitForTimeout(500);
+        const t: number[] = [];
+        for (let k = 0; k < CHANGES; k++) t.push(await timedChange(page, k % 2 ? 180 : 220 - k, screen.mark));
+        const d = await drag(page);
+        const r = {
+          demo: id,
+          screen: screen.tab,
+          changes: t.length,
+          medianMs: Number(median(t).toFixed(1)),
+          minMs: Number(Math.min(...t).toFixed(1)),
+          maxMs: Number(Math.max(...t).toFixed(1)),
+          targetMs: id === 'borehole-log' ? 100 : 500,
+          dragEvents: 30,
+          dragMs: Number(d.dragMs.toFixed(1)),
+          longTaskCount: d.longTasks.length,
+          longestTaskMs: d.longTasks.length ? Number(Math.max(...d.longTasks).toFixed(1)) : 0,
+          longTaskTargetMs: 50,
+          plotCallsDuringDrag: d.plotCalls,
+          longestPlotCallMs: Number(d.longestPlotMs.toFixed(1)),
+          loadAverage1m: Number(loadavg()[0]!.toFixed(2)),
+        };
+        results.push(r);
+        console.error(`bench:ui ${id} ${screen.tab}: median ${r.medianMs} ms, longest task ${r.longestTaskMs} ms`);
+      }
       await page.close();
     }
   } finally {

@@ -4,7 +4,7 @@
  * no raw JavaScript message), and a failed share link must leave the saved session as it was.
  */
 import { describe, expect, it } from 'vitest';
-import { createWorkbenchStore, type WorkbenchStore } from '../../../src/app/store.ts';
+import { createWorkbenchStore, TABS, type WorkbenchStore } from '../../../src/app/store.ts';
 import { memoryStorage } from '../../../src/app/session/autosave.ts';
 import { installAutosave, startSession } from '../../../src/app/session/start.ts';
 import { encodeShare } from '../../../src/app/session/share.ts';
@@ -97,7 +97,7 @@ describe('a damaged autosave opens to a working page with our own message', () =
       expect(s.prior).not.toBeNull();
       expect(() => validatePrior(s.prior!, s.problem!.grid)).not.toThrow();
       expect(s.prior!.terms.length).toBeLessThanOrEqual(MAX_TERMS);
-      expect(['problem', 'prior', 'realisations', 'posterior', 'fit', 'select']).toContain(s.tab);
+      expect(TABS.map((t) => t.id)).toContain(s.tab);
       expect(Number.isInteger(s.seed)).toBe(true);
       for (const c of s.candidates) expect(() => validatePrior(c.prior, s.problem!.grid)).not.toThrow();
       expect(shown(store)).toMatch(/saved/i);
