@@ -150,7 +150,7 @@ export const calibrateCommand: Command = {
     '[N], "cellCoverage95" [N], "replicateCoverage68" [R], "replicateCoverage95" [R], "rankHistogram" [L + 1 counts],\n' +
     '"route": {"truth", "inversion"}, "approximateDraws"}], "coverage68Table" [[K × K], truth-major], "coverage95Table"}.\n' +
     'With --shard K/N only replicates ⌊(K−1)R/N⌋ … ⌊KR/N⌋ − 1 run and a partial result is written; `priorscope merge`\n' +
-    'combines the N parts into exactly this output. No verdict: exit 0 ok, 2 bad input, 1 internal error.',
+    'combines the N parts into exactly this output. No verdict of its own: 3 only when a prior covariance does not factor.',
   options: [
     PROBLEM,
     READ_FROM,

@@ -112,9 +112,8 @@ export const fit: Command = {
     '"converged", "iterations", "evaluations", "conditioning": {"verdict", "positiveDefinite", "conditionNumber",\n' +
     '"usable", "nuggetAtFloor", "nuggetFloor"}, "note"?}. standardError is that of the fitted coordinate (of the\n' +
     'natural log for log-scale parameters: a relative error), from the curvature of the log evidence at the optimum\n' +
-    '(Laplace approximation); null where the curvature is not negative definite or the parameter rests on a bound.\n' +
-    'Exit 0 when converged to a usable optimum (proven positive definite, κ ≤ 1e10); 3 when not converged or not\n' +
-    'usable (the result is still printed; "note" says why); 2 bad input; 1 internal error.',
+    '(Laplace approximation); null where the curvature is not negative definite or the parameter rests on a bound.',
+  exitCodes: '3 here: not converged, or the optimum not proven positive definite with κ ≤ 1e10 (the result is still printed; "note" says why)',
   options: [
     PROBLEM,
     READ_FROM,

@@ -22,7 +22,7 @@ export const merge: Command = {
     `Reads the N partial files written by one command run with --shard 1/N … N/N (${Object.keys(COMBINE).join(', ')}), in any order,\n` +
     'checks that they come from the same run (same command, problem, priors and options: their "key") and that every\n' +
     'shard is present exactly once, and writes the output the command gives without --shard, byte for byte.\n' +
-    'Exit 0 ok, 2 a missing, repeated or foreign part (the message names the file), 1 internal error.',
+    'A missing, repeated or foreign part is bad input (exit 2; the message names the file).',
   options: [OUT],
   run(args, io) {
     const parts = readPartials(args.positionals);

@@ -86,8 +86,9 @@ export const profile: Command = {
     'one such parameter (e.g. nu). --range lo:hi:n gives n log-spaced values (0 < lo ≤ hi).\n' +
     'Prints {"parameter", "values": [...], "logEvidence": [... null where K does not factor], "best": {"value",\n' +
     '"logEvidence", "index"} | null, "bestOnEdge": "low" | "high" | null (for increasing values: the maximum is at an\n' +
-    'end, the true one may lie beyond it)}. Exit 0; 3 when no value gives a finite evidence; 2 bad input.\n' +
+    'end, the true one may lie beyond it)}.\n' +
     'With --shard K/N only values ⌊(K−1)T/N⌋ … ⌊KT/N⌋ − 1 are computed into a partial result for `priorscope merge`.',
+  exitCodes: '3 here: no value gives a data-space covariance that factors',
   options: [
     PROBLEM,
     READ_FROM,

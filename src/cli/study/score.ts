@@ -67,8 +67,8 @@ export const score: Command = {
     '                   "pLower", "pTwoSided", "interval95", "plausible"}.\n' +
     'A prior whose K does not factor gets {"prior", "error"}. Prints {"priors", "scores": [one per prior, with "prior"],\n' +
     '"bestByEvidence", "bestByLeaveOneOut" (indices or null), "plausibleCount", "explanation"}.\n' +
-    'Exit 0; 3 when no prior passes the predictive check (the data are implausible under every one); 2 bad input.\n' +
     'With --shard K/N only prior files ⌊(K−1)T/N⌋ … ⌊KT/N⌋ − 1 are scored into a partial result for `priorscope merge`.',
+  exitCodes: '3 here: no prior passes the predictive check (the data are implausible under every one; the scores are still printed)',
   options: [PROBLEM, READ_FROM, { ...PRIOR, required: false, help: 'prior file; more prior files may follow as arguments' }, ROUTE, SHARD, OUT],
   run(args, io) {
     const paths = priorPaths(args);
