@@ -29,7 +29,7 @@ export function parseArgs(argv: readonly string[], specs: readonly OptionSpec[])
   const options = new Map<string, string | true>();
   const positionals: string[] = [];
   for (let k = 0; k < argv.length; k++) {
-    const a = argv[k]!;
+    const a = argv[k];
     if (a === '--') {
       positionals.push(...argv.slice(k + 1));
       break;

@@ -66,7 +66,7 @@ export function readInputFile(path: string, label = path): Uint8Array {
       if (total > MAX_FILE_BYTES) throw tooLarge(label, total);
       chunks.push(got === chunk.length ? chunk : chunk.subarray(0, got));
     }
-    if (chunks.length === 1) return chunks[0]!;
+    if (chunks.length === 1) return chunks[0];
     const out = new Uint8Array(total);
     let o = 0;
     for (const c of chunks) {

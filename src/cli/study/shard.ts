@@ -115,7 +115,7 @@ export function readPartials(paths: readonly string[]): PartialFile[] {
     }
     return { path, part: v as PartialFile };
   });
-  const first = parts[0]!;
+  const first = parts[0];
   const keyText = formatJson(first.part.key);
   for (const { path, part } of parts.slice(1)) {
     if (part.command !== first.part.command) throw new FileFormatError(path, `is a partial of \`${part.command}\`, but ${first.path} is one of \`${first.part.command}\``, { field: 'command' });

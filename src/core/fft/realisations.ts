@@ -132,9 +132,9 @@ export function circulantSampler(grid: Grid, prior: PriorSpec, options: SamplerO
           rng.fillNormal(z);
           const o = r * n;
           for (let i = 0; i < n; i++) {
-            let v = m0[i]!;
+            let v = m0[i];
             const oi = i * n;
-            for (let k = 0; k <= i; k++) v += L.data[oi + k]! * z[k]!;
+            for (let k = 0; k <= i; k++) v += L.data[oi + k] * z[k];
             out.data[o + i] = v;
           }
         }
@@ -147,7 +147,7 @@ export function circulantSampler(grid: Grid, prior: PriorSpec, options: SamplerO
   const cells = px * py;
   // √(λ⁺ / P), negatives (round-off or clipped) set to 0.
   const root = new Float64Array(cells);
-  for (let k = 0; k < cells; k++) root[k] = Math.sqrt(Math.max(0, e.eigenvalues[k]!) / cells);
+  for (let k = 0; k < cells; k++) root[k] = Math.sqrt(Math.max(0, e.eigenvalues[k]) / cells);
   const nuggetSd = Math.sqrt(nugget);
   return {
     path: 'fft',
@@ -168,7 +168,7 @@ export function circulantSampler(grid: Grid, prior: PriorSpec, options: SamplerO
         else {
           rng.fillNormal(buf);
           for (let k = 0; k < cells; k++) {
-            const q = root[k]!;
+            const q = root[k];
             buf[2 * k] *= q;
             buf[2 * k + 1] *= q;
           }
@@ -179,14 +179,14 @@ export function circulantSampler(grid: Grid, prior: PriorSpec, options: SamplerO
           for (let iy = 0; iy < ny; iy++) {
             const b = 2 * px * iy + part;
             const g = o + nx * iy;
-            for (let ix = 0; ix < nx; ix++) out.data[g + ix] = buf[b + 2 * ix]!;
+            for (let ix = 0; ix < nx; ix++) out.data[g + ix] = buf[b + 2 * ix];
           }
-          if (s !== undefined) for (let i = 0; i < n; i++) out.data[o + i] *= s[i]!;
+          if (s !== undefined) for (let i = 0; i < n; i++) out.data[o + i] *= s[i];
           if (eps !== null) {
             rng.fillNormal(eps);
-            for (let i = 0; i < n; i++) out.data[o + i] += nuggetSd * eps[i]!;
+            for (let i = 0; i < n; i++) out.data[o + i] += nuggetSd * eps[i];
           }
-          for (let i = 0; i < n; i++) out.data[o + i] += m0[i]!;
+          for (let i = 0; i < n; i++) out.data[o + i] += m0[i];
         }
       }
       return out;
@@ -215,12 +215,12 @@ function hermitianSpectrum(rng: Random, root: Float64Array, px: number, py: numb
       const k = kx + px * ky;
       const mk = mx + px * my;
       if (mk === k) {
-        buf[2 * k] = root[k]! * z[q++]!;
+        buf[2 * k] = root[k] * z[q++];
         buf[2 * k + 1] = 0;
       } else if (k < mk) {
-        const r = root[k]! * h;
-        const a = r * z[q++]!;
-        const b = r * z[q++]!;
+        const r = root[k] * h;
+        const a = r * z[q++];
+        const b = r * z[q++];
         buf[2 * k] = a;
         buf[2 * k + 1] = b;
         buf[2 * mk] = a;

@@ -30,9 +30,9 @@ const LAYOUTS = {
 } as const;
 
 function columnsMatrix(cols: readonly Float64Array[]): Matrix {
-  const m = cols[0]!.length;
+  const m = cols[0].length;
   const out = matrix(m, cols.length);
-  for (let i = 0; i < m; i++) for (let j = 0; j < cols.length; j++) out.data[i * cols.length + j] = cols[j]![i]!;
+  for (let i = 0; i < m; i++) for (let j = 0; j < cols.length; j++) out.data[i * cols.length + j] = cols[j][i];
   return out;
 }
 

@@ -100,14 +100,14 @@ export function parseDataCsv(file: string, input: string | Uint8Array): DataFile
     sc = find(SIGMA_NAMES);
   } else {
     if (cols > 2) {
-      throw new FileFormatError(file, `without a header must have 1 column (value) or 2 columns (value, sigma), got ${cols} columns`, { line: lines[0]! });
+      throw new FileFormatError(file, `without a header must have 1 column (value) or 2 columns (value, sigma), got ${cols} columns`, { line: lines[0] });
     }
     if (cols === 2 && table.delimiter === ',') {
       // "1,25" with no decimal point anywhere: value 1, sigma 25, or 1.25 with a decimal comma?
       // Refused rather than guessed (a header line value,sigma or one decimal point settles it).
       const content = csvContentLines(text);
       if (content.every((row) => INTEGER_PAIR.test(row.text))) {
-        const row = content[0]!;
+        const row = content[0];
         throw new FileFormatError(
           file,
           `line ${row.line} ${formatValue(row.text.trim())} could be value, sigma or one number with a decimal comma; ` +
@@ -122,11 +122,11 @@ export function parseDataCsv(file: string, input: string | Uint8Array): DataFile
   const values = new Float64Array(rows);
   const sigma = sc === null ? null : new Float64Array(rows);
   for (let i = 0; i < rows; i++) {
-    values[i] = data[i * cols + vc]!;
+    values[i] = data[i * cols + vc];
     if (sigma && sc !== null) {
-      const s = data[i * cols + sc]!;
+      const s = data[i * cols + sc];
       if (!(s > 0)) {
-        const line = lines[i]!;
+        const line = lines[i];
         throw new FileFormatError(file, `line ${line}, column ${sc + 1} (sigma) must be > 0, got ${formatValue(s)}`, { line, column: sc + 1 });
       }
       sigma[i] = s;
@@ -142,13 +142,13 @@ export function parseDataNpy(file: string, bytes: Uint8Array): DataFileResult {
     if (a.shape[0] === 0) throw new FileFormatError(file, 'must hold at least one datum, got shape (0,)', { field: 'shape' });
     return { values: a.data.slice(), sigma: null, warnings: [] };
   }
-  if (a.shape.length === 2 && a.shape[1] === 2 && a.shape[0]! > 0) {
-    const m = a.shape[0]!;
+  if (a.shape.length === 2 && a.shape[1] === 2 && a.shape[0] > 0) {
+    const m = a.shape[0];
     const values = new Float64Array(m);
     const sigma = new Float64Array(m);
     for (let i = 0; i < m; i++) {
-      values[i] = a.data[2 * i]!;
-      const s = a.data[2 * i + 1]!;
+      values[i] = a.data[2 * i];
+      const s = a.data[2 * i + 1];
       if (!(s > 0)) throw new FileFormatError(file, `row ${i}, column 1 (sigma) must be > 0, got ${formatValue(s)}`, { field: `[${i}, 1]` });
       sigma[i] = s;
     }
@@ -249,19 +249,19 @@ export function checkGridForm(g: GridForm): Grid {
   if (dim !== 1 && dim !== 2) fail('shape', '[nx] or [nx, ny]', g.shape as unknown[]);
   const names = ['nx', 'ny'];
   g.shape.forEach((s, k) => {
-    if (!Number.isInteger(s) || s < 1) fail(names[k]!, 'a positive integer', s);
+    if (!Number.isInteger(s) || s < 1) fail(names[k], 'a positive integer', s);
   });
   const cells = g.shape.reduce((a, b) => a * b, 1);
   if (cells > MAX_CELLS) fail('shape', `at most ${MAX_CELLS} cells in all`, `${g.shape.join(' × ')} = ${cells}`);
   if (g.spacing.length !== dim) fail('spacing', `${dim} number${dim === 1 ? '' : 's'}`, g.spacing as unknown[]);
   g.spacing.forEach((s, k) => {
-    if (!Number.isFinite(s) || !(s > 0)) fail(['dx', 'dy'][k]!, 'a finite number > 0', s);
+    if (!Number.isFinite(s) || !(s > 0)) fail(['dx', 'dy'][k], 'a finite number > 0', s);
   });
   const grid: { -readonly [K in keyof Grid]: Grid[K] } = { shape: [...g.shape], spacing: [...g.spacing] };
   if (g.origin !== undefined) {
     if (g.origin.length !== dim) fail('origin', `${dim} number${dim === 1 ? '' : 's'}`, g.origin as unknown[]);
     g.origin.forEach((s, k) => {
-      if (!Number.isFinite(s)) fail(['x0', 'y0'][k]!, 'a finite number', s);
+      if (!Number.isFinite(s)) fail(['x0', 'y0'][k], 'a finite number', s);
     });
     grid.origin = [...g.origin];
   }

@@ -298,7 +298,7 @@ export function checkProblemScales(file: string, problem: Problem, operatorField
   });
   const entries = operatorEntries(problem.operator);
   for (let k = 0; k < entries.length; k++) {
-    if (Math.abs(entries[k]!) > SCALE_LIMIT) fail(operatorField, `a matrix with entries of magnitude ≤ ${SCALE_LIMIT}`, entries[k]!);
+    if (Math.abs(entries[k]) > SCALE_LIMIT) fail(operatorField, `a matrix with entries of magnitude ≤ ${SCALE_LIMIT}`, entries[k]);
   }
 }
 
@@ -353,7 +353,7 @@ export function problemToJson(problem: Problem, operatorFile?: string): Record<s
       dense: ({ rows, cols, data }) => ({ dense: Array.from({ length: rows }, (_, i) => vec(data.subarray(i * cols, (i + 1) * cols))) }),
       sparse: (s) => {
         const rows: number[] = [];
-        for (let i = 0; i < s.rows; i++) for (let p = s.rowPtr[i]!; p < s.rowPtr[i + 1]!; p++) rows.push(i);
+        for (let i = 0; i < s.rows; i++) for (let p = s.rowPtr[i]; p < s.rowPtr[i + 1]; p++) rows.push(i);
         return { sparse: { rows, cols: vec(s.colIdx), values: vec(s.values) } };
       },
     });

@@ -89,9 +89,9 @@ export function maternBessel(nu: number): CorrelationFunction {
     if (series) temmeSeries(order, z, scratch);
     else temmeContinuedFraction(order, z, scratch);
     // scratch: [K_μ, z K_{μ+1}, z^μ] (times e^z when !series).
-    const zmu = scratch[2]!;
-    const g0 = zmu * scratch[0]!; // z^μ K_μ
-    const g1 = zmu * scratch[1]!; // z^{μ+1} K_{μ+1}
+    const zmu = scratch[2];
+    const g0 = zmu * scratch[0]; // z^μ K_μ
+    const g1 = zmu * scratch[1]; // z^{μ+1} K_{μ+1}
     let r: number;
     let logScale = 0;
     if (n === 0) r = g0 * norm0;
@@ -101,7 +101,7 @@ export function maternBessel(nu: number): CorrelationFunction {
       let r1 = g1 * norm1;
       let r2 = (z2 * g0 + twoMuPlus1 * g1) * norm2;
       for (let k = 2; k < n; k++) {
-        const r3 = r2 + z2 * r1 * coef[k]!;
+        const r3 = r2 + z2 * r1 * coef[k];
         r1 = r2;
         r2 = r3;
         if (r2 > RESCALE_ABOVE) {

@@ -44,9 +44,9 @@ export function assembleCovariance(prior: PriorSpec, table: LagTable): Matrix {
   const s = prior.stdProfile;
   if (s !== undefined) {
     for (let i = 0; i < n; i++) {
-      const si = s[i]!;
+      const si = s[i];
       const oi = i * n;
-      for (let j = 0; j < n; j++) d[oi + j] = si * s[j]! * d[oi + j]!;
+      for (let j = 0; j < n; j++) d[oi + j] = si * s[j] * d[oi + j];
     }
   }
   const nugget = prior.nugget ?? 0;
@@ -60,13 +60,13 @@ export function assembleCovariance(prior: PriorSpec, table: LagTable): Matrix {
  */
 export function priorVariance(grid: Grid, prior: PriorSpec): Float64Array {
   validatePrior(prior, grid);
-  const t = lagTable({ shape: [1], spacing: [1] }, prior.terms).values[0]!;
+  const t = lagTable({ shape: [1], spacing: [1] }, prior.terms).values[0];
   const n = cellCount(grid);
   const out = new Float64Array(n);
   const s = prior.stdProfile;
   const nugget = prior.nugget ?? 0;
   for (let i = 0; i < n; i++) {
-    const si = s === undefined ? 1 : s[i]!;
+    const si = s === undefined ? 1 : s[i];
     out[i] = si * si * t + nugget;
   }
   return out;
@@ -92,7 +92,7 @@ export function covarianceApply(grid: Grid, prior: PriorSpec, dense?: Matrix): C
       for (let i = 0; i < n; i++) {
         let acc = 0;
         const oi = i * n;
-        for (let j = 0; j < n; j++) acc += d[oi + j]! * x[j]!;
+        for (let j = 0; j < n; j++) acc += d[oi + j] * x[j];
         out[i] = acc;
       }
       return out;
@@ -104,7 +104,7 @@ export function covarianceApply(grid: Grid, prior: PriorSpec, dense?: Matrix): C
   const nugget = prior.nugget ?? 0;
   const sx = new Float64Array(n);
   return (x, out = new Float64Array(n)) => {
-    for (let j = 0; j < n; j++) sx[j] = (s === undefined ? 1 : s[j]!) * x[j]!;
+    for (let j = 0; j < n; j++) sx[j] = (s === undefined ? 1 : s[j]) * x[j];
     for (let iy = 0; iy < ny; iy++) {
       for (let ix = 0; ix < nx; ix++) {
         const i = ix + nx * iy;
@@ -112,9 +112,9 @@ export function covarianceApply(grid: Grid, prior: PriorSpec, dense?: Matrix): C
         for (let jy = 0; jy < ny; jy++) {
           const a = lagIndex(table, -ix, jy - iy);
           const o = jy * nx;
-          for (let jx = 0; jx < nx; jx++) acc += values[a + jx]! * sx[o + jx]!;
+          for (let jx = 0; jx < nx; jx++) acc += values[a + jx] * sx[o + jx];
         }
-        out[i] = (s === undefined ? 1 : s[i]!) * acc + nugget * x[i]!;
+        out[i] = (s === undefined ? 1 : s[i]) * acc + nugget * x[i];
       }
     }
     return out;

@@ -264,7 +264,7 @@ export function diagnoseStructured(grid: Grid, prior: PriorSpec, options: Struct
 
   const diag = op.diagonal();
   let meanVariance = 0;
-  for (let i = 0; i < n; i++) meanVariance += diag[i]!;
+  for (let i = 0; i < n; i++) meanVariance += diag[i];
   meanVariance /= n;
 
   let suggestedJitter: number | null = null;
@@ -314,7 +314,7 @@ export function diagnoseStructured(grid: Grid, prior: PriorSpec, options: Struct
     });
   }
   warnings.push(...priorWarnings(grid, prior));
-  const last = tried[tried.length - 1]!;
+  const last = tried[tried.length - 1];
   const nextStep =
     verdict !== 'not-decided'
       ? undefined

@@ -90,7 +90,7 @@ export function validatePrior(prior: PriorSpec, grid: Grid): void {
 function validateScales(prior: PriorSpec, n: number): void {
   const m = prior.mean;
   if ('constant' in m) checkScale('mean.constant', m.constant, 'a mean', false);
-  else if ('values' in m) for (let i = 0; i < n; i++) checkScale(`mean.values[${i}]`, m.values[i]!, 'a mean', false);
+  else if ('values' in m) for (let i = 0; i < n; i++) checkScale(`mean.values[${i}]`, m.values[i], 'a mean', false);
   else {
     checkScale('mean.trend.intercept', m.trend.intercept, 'an intercept', false);
     m.trend.slope.forEach((v, k) => checkScale(`mean.trend.slope[${k}]`, v, 'a slope', false));

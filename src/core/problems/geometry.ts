@@ -19,8 +19,8 @@ export interface Bounds {
 export function gridBounds(grid: Grid): Bounds {
   const edge = (k: number): [number, number] => {
     const o = grid.origin?.[k] ?? 0;
-    const d = grid.spacing[k]!;
-    return [o - d / 2, o + (grid.shape[k]! - 0.5) * d];
+    const d = grid.spacing[k];
+    return [o - d / 2, o + (grid.shape[k] - 0.5) * d];
   };
   return { x: edge(0), y: gridDimension(grid) === 2 ? edge(1) : [0, 0] };
 }
@@ -65,7 +65,7 @@ export function pathsMissingGrid(grid: Grid, geometry: DataGeometry): number[] {
   const r = geometry.receivers.data;
   const out: number[] = [];
   for (let k = 0; k < geometry.sources.rows; k++) {
-    if (!segmentMeetsBox([s[2 * k]!, s[2 * k + 1]!], [r[2 * k]!, r[2 * k + 1]!], box)) out.push(k);
+    if (!segmentMeetsBox([s[2 * k], s[2 * k + 1]], [r[2 * k], r[2 * k + 1]], box)) out.push(k);
   }
   return out;
 }

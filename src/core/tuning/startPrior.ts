@@ -80,7 +80,7 @@ function round(x: number, digits = 2): number {
 
 /** The rule's correlation length for a grid (step 1 of the module comment). */
 export function startLength(grid: Grid): number {
-  const extent = Math.max(...grid.shape.map((n, k) => n * grid.spacing[k]!));
+  const extent = Math.max(...grid.shape.map((n, k) => n * grid.spacing[k]));
   return Math.max(START_LENGTH_FRACTION * extent, 2 * Math.max(...grid.spacing));
 }
 
@@ -103,10 +103,10 @@ export function startPriorRule(problem: Problem, options: { structured?: Structu
   let Aw: Matrix;
   if (data.sigma) {
     const s = data.sigma;
-    dw = Float64Array.from(data.values, (v, i) => v / s[i]!);
-    gw = Float64Array.from(g, (v, i) => v / s[i]!);
+    dw = Float64Array.from(data.values, (v, i) => v / s[i]);
+    gw = Float64Array.from(g, (v, i) => v / s[i]);
     Aw = matrix(m, m);
-    for (let i = 0; i < m; i++) for (let j = 0; j < m; j++) Aw.data[i * m + j] = A.data[i * m + j]! / (s[i]! * s[j]!);
+    for (let i = 0; i < m; i++) for (let j = 0; j < m; j++) Aw.data[i * m + j] = A.data[i * m + j] / (s[i] * s[j]);
   } else if (data.covariance) {
     const f = cholesky(data.covariance);
     if (!f.ok) throw new InputError('problem.data.covariance', 'a positive-definite matrix (Cholesky failed)', `pivot ${f.pivot}`);
@@ -122,8 +122,8 @@ export function startPriorRule(problem: Problem, options: { structured?: Structu
   let gg = 0;
   let trA = 0;
   for (let i = 0; i < m; i++) {
-    gg += gw[i]! * gw[i]!;
-    trA += Aw.data[i * m + i]!;
+    gg += gw[i] * gw[i];
+    trA += Aw.data[i * m + i];
   }
   // A constant is visible when its whitened data are not negligible next to the operator's scale.
   const meanFitted = gg > 0 && gg > 1e-12 * trA;
@@ -131,8 +131,8 @@ export function startPriorRule(problem: Problem, options: { structured?: Structu
   if (meanFitted) {
     for (let i = 0; i < m; i++) {
       let row = 0;
-      for (let j = 0; j < m; j++) row += Aw.data[i * m + j]! * gw[j]!;
-      gAg += gw[i]! * row;
+      for (let j = 0; j < m; j++) row += Aw.data[i * m + j] * gw[j];
+      gAg += gw[i] * row;
     }
   }
   const trPA = trA - (meanFitted ? gAg / gg : 0);
@@ -140,27 +140,27 @@ export function startPriorRule(problem: Problem, options: { structured?: Structu
 
   const B = matrix(m, 2);
   for (let i = 0; i < m; i++) {
-    B.data[2 * i] = dw[i]!;
-    B.data[2 * i + 1] = gw[i]!;
+    B.data[2 * i] = dw[i];
+    B.data[2 * i + 1] = gw[i];
   }
   const eig = symmetricEigenProjected(Aw, B);
   const lam = Float64Array.from(eig.values, (v) => Math.max(v, 0));
-  const a = Float64Array.from({ length: m }, (_, j) => eig.projected.data[2 * j]!);
-  const b = Float64Array.from({ length: m }, (_, j) => eig.projected.data[2 * j + 1]!);
+  const a = Float64Array.from({ length: m }, (_, j) => eig.projected.data[2 * j]);
+  const b = Float64Array.from({ length: m }, (_, j) => eig.projected.data[2 * j + 1]);
   /** The GLS mean and q at variance v (module comment, step 3). */
   const at = (v: number): { c: number; q: number } => {
     let wab = 0;
     let wbb = 0;
     for (let j = 0; j < m; j++) {
-      const w = 1 / (v * lam[j]! + 1);
-      wab += w * a[j]! * b[j]!;
-      wbb += w * b[j]! * b[j]!;
+      const w = 1 / (v * lam[j] + 1);
+      wab += w * a[j] * b[j];
+      wbb += w * b[j] * b[j];
     }
     const c = meanFitted && wbb > 0 ? wab / wbb : 0;
     let q = 0;
     for (let j = 0; j < m; j++) {
-      const r = a[j]! - c * b[j]!;
-      q += r * r / (v * lam[j]! + 1);
+      const r = a[j] - c * b[j];
+      q += r * r / (v * lam[j] + 1);
     }
     return { c, q };
   };

@@ -68,7 +68,7 @@ export function wasmGemmNT(
         const i = 4 * g + r;
         if (i < m) {
           const src = ao + i * lda + pc;
-          for (let p = 0; p < kk; p++) f[base + 4 * p + r] = a[src + p]!;
+          for (let p = 0; p < kk; p++) f[base + 4 * p + r] = a[src + p];
         } else {
           for (let p = 0; p < kk; p++) f[base + 4 * p + r] = 0;
         }
@@ -85,7 +85,7 @@ export function wasmGemmNT(
           const j = jc + 4 * t + q;
           if (j < jcEnd) {
             const src = bo + j * ldb + pc;
-            for (let p = 0; p < kk; p++) f[base + 4 * p + q] = b[src + p]!;
+            for (let p = 0; p < kk; p++) f[base + 4 * p + q] = b[src + p];
           } else {
             for (let p = 0; p < kk; p++) f[base + 4 * p + q] = 0;
           }
@@ -102,7 +102,7 @@ export function wasmGemmNT(
         const jEnd = lower ? Math.min(jcEnd, i + 1 + diag) : jcEnd;
         const ci = co + i * ldc;
         const si = s0 + i * sw - jc;
-        for (let j = jc; j < jEnd; j++) c[ci + j] += alpha * f[si + j]!;
+        for (let j = jc; j < jEnd; j++) c[ci + j] += alpha * f[si + j];
       }
     }
   }

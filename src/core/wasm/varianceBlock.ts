@@ -67,23 +67,23 @@ function packLower(f: Float64Array, l: Float64Array, m: number, lt: number, diag
     const base = lt / 8 + 8 * g * (g - 1);
     for (let r = 0; r < 4; r++) {
       const row = (i0 + r) * m;
-      for (let p = 0; p < i0; p++) f[base + 4 * p + r] = l[row + p]!;
+      for (let p = 0; p < i0; p++) f[base + 4 * p + r] = l[row + p];
     }
     const d = diag / 8 + 16 * g;
-    for (let r = 0; r < 4; r++) f[d + r] = 1 / l[(i0 + r) * m + i0 + r]!;
-    f[d + 4] = l[(i0 + 1) * m + i0]!;
-    f[d + 5] = l[(i0 + 2) * m + i0]!;
-    f[d + 6] = l[(i0 + 2) * m + i0 + 1]!;
-    f[d + 7] = l[(i0 + 3) * m + i0]!;
-    f[d + 8] = l[(i0 + 3) * m + i0 + 1]!;
-    f[d + 9] = l[(i0 + 3) * m + i0 + 2]!;
+    for (let r = 0; r < 4; r++) f[d + r] = 1 / l[(i0 + r) * m + i0 + r];
+    f[d + 4] = l[(i0 + 1) * m + i0];
+    f[d + 5] = l[(i0 + 2) * m + i0];
+    f[d + 6] = l[(i0 + 2) * m + i0 + 1];
+    f[d + 7] = l[(i0 + 3) * m + i0];
+    f[d + 8] = l[(i0 + 3) * m + i0 + 1];
+    f[d + 9] = l[(i0 + 3) * m + i0 + 2];
   }
 }
 
 /** The diagonal and the last row of the M × M factor (2M values). */
 function checkValues(l: Float64Array, m: number): Float64Array {
   const c = new Float64Array(2 * m);
-  for (let i = 0; i < m; i++) c[i] = l[i * m + i]!;
+  for (let i = 0; i < m; i++) c[i] = l[i * m + i];
   c.set(l.subarray((m - 1) * m, m * m), m);
   return c;
 }
@@ -140,17 +140,17 @@ export function wasmVarianceBlock(
   // Rows past the last group of 4: the same operations in the same order as the JS kernel.
   for (let i = 4 * lay.groups; i < m; i++) {
     const oi = x0 + i * wp;
-    const inv = 1 / l[i * m + i]!;
+    const inv = 1 / l[i * m + i];
     for (let j = 0; j < w; j++) {
-      let s = f[oi + j]!;
-      for (let p = 0; p < i; p++) s -= l[i * m + p]! * f[x0 + p * wp + j]!;
+      let s = f[oi + j];
+      for (let p = 0; p < i; p++) s -= l[i * m + p] * f[x0 + p * wp + j];
       s *= inv;
       f[oi + j] = s;
       f[o0 + j] -= s * s;
     }
   }
   for (let j = 0; j < w; j++) {
-    const v = f[o0 + j]!;
+    const v = f[o0 + j];
     out[j] = v < 0 ? 0 : v;
   }
   return out;
