@@ -3,7 +3,7 @@
  * leave-one-out, discrepancy, prior predictive check), by one of two routes:
  *
  * - dense: Cm as an N × N matrix (../prior/covariance.ts), P = G Cm Gᵀ by the sparse / blocked
- *   products of ./dataSpace.ts projectCovariance (N² doubles: 134 MB at 64², 2 GB at 128²);
+ *   products of ../linalg/operator.ts projectCovariance (N² doubles: 134 MB at 64², 2 GB at 128²);
  * - fft: for a prior stationary on a regular 1-D/2-D grid, row k of Bᵀ = G Cm is
  *   s ⊙ C(s ⊙ g_k) + η g_k by circulant embedding (../inverse/structured.ts computeBtPairs /
  *   finishBtRows: C v exact for any padding ≥ 2n − 1, since the embedding holds every lag of the
@@ -23,8 +23,8 @@
  * ../sampling/realisations.ts DENSE_REALISATION_LIMIT). Both routes agree to round-off
  * (test/core/tuning/projected.test.ts: 1e-10 relative).
  *
- * The route choice and the dense route live in ./dataSpace.ts (projectedPriorCovariance,
- * projectCovariance); this file holds the rule and the FFT route.
+ * The route choice lives in ./dataSpace.ts (projectedPriorCovariance), the dense product in
+ * ../linalg/operator.ts (projectCovariance); this file holds the rule and the FFT route.
  *
  * PUBLIC API: TUNING_DENSE_LIMIT, TuningRoute, tuningRoute, structuredProjection.
  */
