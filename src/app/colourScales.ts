@@ -134,3 +134,33 @@ export function trueAspectHeight(
   const h = (plotW * extent[1]) / extent[0] + margins.t + margins.b;
   return Math.round(Math.min(maxH, Math.max(minH, h)));
 }
+
+/**
+ * Shared ranges for pinned candidates' maps: one diverging range for their signed fields (posterior
+ * means, realisations) centred on the prior mean when every candidate has the same constant mean
+ * (else on the midpoint of all values), or that centre ± the half-width fixed by hand; one
+ * sequential range [0, max] for their standard deviations.
+ */
+export function candidateRanges(
+  items: readonly { prior: { mean: object }; signed: readonly ArrayLike<number>[]; std: ArrayLike<number> }[],
+  manual: ManualLimits,
+): { signed: Range; std: Range; centre: number } {
+  const means = items.map((i) => ('constant' in i.prior.mean ? (i.prior.mean as { constant: number }).constant : null));
+  const fields = items.flatMap((i) => i.signed);
+  let centre: number;
+  if (means.length > 0 && means.every((m) => m !== null && m === means[0])) centre = means[0]!;
+  else {
+    let lo = Infinity;
+    let hi = -Infinity;
+    for (const f of fields) {
+      for (let k = 0; k < f.length; k++) {
+        const v = f[k]!;
+        if (!Number.isFinite(v)) continue;
+        if (v < lo) lo = v;
+        if (v > hi) hi = v;
+      }
+    }
+    centre = Number.isFinite(lo) ? (lo + hi) / 2 : 0;
+  }
+  return { signed: effectiveRange(divergingRange(fields, centre), centre, manual), std: sequentialRange(items.map((i) => i.std)), centre };
+}

@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { clippedFraction, constantValue, DIVERGING, divergingRange, effectiveRange, SEQUENTIAL, sequentialRange, signedView, trueAspectHeight } from '../../src/app/colourScales.ts';
+import { candidateRanges, clippedFraction, constantValue, DIVERGING, divergingRange, effectiveRange, SEQUENTIAL, sequentialRange, signedView, trueAspectHeight } from '../../src/app/colourScales.ts';
 
 describe('colour ranges', () => {
   it('a diverging range is symmetric about the prior mean and covers the largest departure of any field', () => {
@@ -53,6 +53,17 @@ describe('colour ranges', () => {
     for (const [, c] of DIVERGING) expect(lum(c)).toBeLessThanOrEqual(lum(mid));
     const ls = SEQUENTIAL.map(([, c]) => lum(c));
     for (let i = 1; i < ls.length; i++) expect(ls[i]).toBeLessThan(ls[i - 1]!);
+  });
+
+  it('pinned candidates share one signed range about their common constant mean and one std range', () => {
+    const a = { prior: { mean: { constant: 5 } }, signed: [[4, 6], [5, 8]], std: [0.5, 1] };
+    const b = { prior: { mean: { constant: 5 } }, signed: [[1, 5]], std: [2, 0.1] };
+    const r = candidateRanges([a, b], { half: null });
+    expect(r.signed).toEqual([1, 9]);
+    expect(r.std).toEqual([0, 2]);
+    expect(candidateRanges([a, b], { half: 2 }).signed).toEqual([3, 7]);
+    // different means: centred on the midpoint of all values (1 … 8)
+    expect(candidateRanges([a, { ...b, prior: { mean: { constant: 0 } } }], { half: null }).centre).toBe(4.5);
   });
 
   it('a 2 km × 0.5 km section gets a plot area four times wider than high', () => {

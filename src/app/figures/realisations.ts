@@ -2,7 +2,8 @@
 import { gridDimension, type Grid } from '../../core/grid/grid.ts';
 import type { Matrix } from '../../core/linalg/matrix.ts';
 import { orientationTag } from '../labels.ts';
-import { axis1D, COLOURS, MAP_SCALE, rowOf, type Trace } from '../traces.ts';
+import { axis1D, COLOURS, rowOf, type Trace } from '../traces.ts';
+import { DIVERGING } from '../colourScales.ts';
 import { heatTrace, type Layout, title as titleOf } from './common.ts';
 
 /** Axis suffix of panel k in plotly's subplot grid: '' for the first, then '2', '3', … */
@@ -29,7 +30,8 @@ export function galleryTraces(grid: Grid, draws: Matrix): Trace[] {
 
 /**
  * A 2 × 3 grid of panels. `range` is the colour range (2-D) or the value axis (1-D) shared by both
- * galleries, so prior and posterior draws compare on one scale.
+ * galleries, so prior and posterior draws compare on one scale; in 2-D on the diverging scale (the
+ * caller centres the range on the prior mean, ../colourScales.ts) with each panel at true aspect.
  */
 export function galleryLayout(grid: Grid, quantityUnit: string, panels: number, range: [number, number], title: string): Layout {
   const is2D = gridDimension(grid) === 2;
@@ -39,11 +41,11 @@ export function galleryLayout(grid: Grid, quantityUnit: string, panels: number, 
     margin: { l: 40, r: 10, t: 30, b: 30 },
     showlegend: false,
   };
-  if (is2D) l.coloraxis = { colorscale: MAP_SCALE, cmin: range[0], cmax: range[1], colorbar: { thickness: 10, title: { text: quantityUnit } } };
+  if (is2D) l.coloraxis = { colorscale: DIVERGING, cmin: range[0], cmax: range[1], colorbar: { thickness: 10, title: { text: quantityUnit } } };
   for (let k = 0; k < panels; k++) {
     const ax = axisSuffix(k);
-    l[`yaxis${ax}`] = is2D ? { autorange: 'reversed', showticklabels: false } : { range };
-    l[`xaxis${ax}`] = is2D ? { showticklabels: false } : {};
+    l[`yaxis${ax}`] = is2D ? { autorange: 'reversed', showticklabels: false, scaleanchor: `x${ax}`, constrain: 'domain' } : { range };
+    l[`xaxis${ax}`] = is2D ? { showticklabels: false, constrain: 'domain' } : {};
   }
   return l;
 }

@@ -8,6 +8,8 @@ import { NumberField } from '../controls.tsx';
 import { galleryLayout, galleryTraces } from '../figures/realisations.ts';
 import { Plot } from '../Plot.tsx';
 import { commonRange } from '../traces.ts';
+import { divergingRange, effectiveRange } from '../colourScales.ts';
+import { useColourLimits } from '../overview/colourLimits.ts';
 import { Waiting } from './Waiting.tsx';
 
 function Gallery({ id, title, p, draws, range }: { id: string; title: string; p: ProblemView; draws: Matrix; range: [number, number] }) {
@@ -22,10 +24,16 @@ export function RealisationsScreen() {
   const priorDraws = useWb((s) => s.priorDraws);
   const postDraws = useWb((s) => s.posteriorDraws);
   const errors = useWb(useShallow((s) => [s.errors.priorDraws, s.errors.posteriorDraws] as const));
-  const range = useMemo(
-    () => commonRange([priorDraws?.data ?? new Float64Array(), postDraws?.data ?? new Float64Array()]),
-    [priorDraws, postDraws],
-  );
+  const priorMean = useWb((s) => s.prior?.mean);
+  const limits = useColourLimits();
+  // One range for both galleries, symmetric about a constant prior mean (else about the middle of the values), or fixed by hand on the overview.
+  const range = useMemo((): [number, number] => {
+    const fields = [priorDraws?.data ?? new Float64Array(), postDraws?.data ?? new Float64Array()];
+    const [lo, hi] = commonRange(fields);
+    const centre = priorMean && 'constant' in priorMean ? priorMean.constant : (lo + hi) / 2;
+    const r = effectiveRange(divergingRange(fields, centre), centre, limits);
+    return [r[0], r[1]];
+  }, [priorDraws, postDraws, priorMean, limits.half]);
   if (!p) return null;
   return (
     <div className="screen" data-testid="screen-realisations">
@@ -42,7 +50,7 @@ export function RealisationsScreen() {
         <button type="button" data-testid="redraw" onClick={newSeed} title="Draw again with a new seed">
           Redraw (new seed)
         </button>
-        <span className="note">Six draws m = m₀ + L z (prior) and from the posterior, same seed, one colour scale.</span>
+        <span className="note">Six draws m = m₀ + L z (prior) and from the posterior, same seed, one colour scale centred on the prior mean (limits fixed by hand on the Overview apply here too).</span>
       </div>
       {errors.map((e, k) => e && <p key={k} className="error" role="alert">{e}</p>)}
       <div className="grid-2">

@@ -9,12 +9,20 @@ import { bestRow, fmt, SCORE_COLUMNS, scoreRows } from './candidates.ts';
 import { Num, TaskStatusLine } from './common.tsx';
 import { candidatesKey, type Candidate } from './slice.ts';
 import { candidateBandTraces } from './traces.ts';
+import { evidenceReadings, priorLine } from './evidenceScale.ts';
 import type { CandidateScores } from '../../worker/tuningProtocol.ts';
 import { axisLabel, downAxisLabel, withUnit } from '../labels.ts';
+import { candidateRanges, DIVERGING, SEQUENTIAL } from '../colourScales.ts';
+import { useColourLimits } from '../overview/colourLimits.ts';
 
 function mapTrace(p: ProblemView, field: ArrayLike<number>, name: string, extra: Trace = {}): Trace {
   const { x, y } = axes2D(p.grid);
   return { type: 'heatmap', x, y, z: toRows2D(p.grid, field), colorscale: MAP_SCALE, name, colorbar: { thickness: 8 }, ...extra };
+}
+
+/** One colour range for every pinned candidate's maps (src/app/colourScales.ts candidateRanges). */
+function rangeExtra(scale: [number, string][], r: readonly [number, number]): Trace {
+  return { colorscale: scale, zmin: r[0], zmax: r[1] };
 }
 /** Same orientation as every other map (second axis increasing downwards, ../labels.ts), marked ↓ in the axis title. */
 const mapLayout = (p: ProblemView, title: string) => ({
@@ -36,6 +44,10 @@ export function CandidatesPanel() {
   const scores = task.key === key ? task.value : null;
   const crossValue = cross.value && cross.key?.startsWith(`${key}:`) ? cross.value : null;
   const rows = useMemo(() => scoreRows(candidates, scores, crossValue), [candidates, scores, crossValue]);
+  const evidence = useMemo(
+    () => evidenceReadings(candidates.map((c, k) => ({ prior: c.prior, logEvidence: scores?.[k]?.ok ? scores[k].logEvidence : null })), p.grid),
+    [candidates, scores, p.grid],
+  );
   if (candidates.length === 0) {
     return (
       <section className="sel-card">
@@ -59,6 +71,9 @@ export function CandidatesPanel() {
                 {c.label}
               </th>
             ))}
+            <th title="Against the candidate of highest log evidence: 2 ln B with B the ratio of evidences, read on the scale of Kass & Raftery (1995, J. Am. Stat. Assoc. 90:773)">
+              evidence against the best
+            </th>
             <th />
           </tr>
         </thead>
@@ -74,6 +89,9 @@ export function CandidatesPanel() {
                   defaultValue={r.name}
                   onBlur={(e) => rename(r.id, e.target.value)}
                 />
+                <div className="note cand-prior" data-testid={`candidate-prior-${k}`}>
+                  {priorLine(candidates[k]!.prior, p.grid.unit ?? '', p.quantity.unit)}
+                </div>
                 {r.error && (
                   <span className="error" role="alert">
                     {r.error}
@@ -89,6 +107,7 @@ export function CandidatesPanel() {
                   </td>
                 );
               })}
+              <td data-testid={`candidate-kr-${k}`}>{evidence.readings[k]?.text ?? '—'}</td>
               <td>
                 <button type="button" data-testid={`candidate-use-${k}`} onClick={() => use(r.id)} title="Make this candidate the current prior">
                   Use this one
@@ -101,6 +120,11 @@ export function CandidatesPanel() {
           ))}
         </tbody>
       </table>
+      {evidence.caution && (
+        <p className="note caution-note" data-testid="parameter-count-caution">
+          {evidence.caution}
+        </p>
+      )}
       {scores && <Comparison p={p} candidates={candidates} scores={scores} />}
       <CrossTable candidates={candidates} />
     </section>
@@ -133,6 +157,11 @@ function Comparison({ p, candidates, scores }: { p: ProblemView; candidates: rea
   }, [p, ok, is2D]);
   const xTitle = axisLabel(p.grid, 0);
   const q = withUnit(p.quantity.name, p.quantity.unit);
+  const limits = useColourLimits();
+  const ranges = useMemo(
+    () => candidateRanges(ok.map(({ c, s }) => ({ prior: c.prior, signed: [s.mean, rowOf(s.draws.data, s.draws.cols, 0)], std: s.std })), limits),
+    [ok, limits.half],
+  );
   if (!is2D) {
     return (
       <div className="grid-2">
@@ -145,9 +174,9 @@ function Comparison({ p, candidates, scores }: { p: ProblemView; candidates: rea
     <div className="sel-maps">
       {ok.map(({ c, s }) => (
         <div key={c.id} className="grid-3" style={{ borderLeft: `4px solid ${c.colour}` }}>
-          <Plot id={`plot-cand-mean-${c.id}`} label={`${c.name}: posterior mean`} data={[mapTrace(p, s.mean, 'mean')]} layout={mapLayout(p, withUnit(`${c.name}: posterior mean`, p.quantity.unit))} height={220} />
-          <Plot id={`plot-cand-std-${c.id}`} label={`${c.name}: posterior standard deviation`} data={[mapTrace(p, s.std, 'std')]} layout={mapLayout(p, withUnit(`${c.name}: posterior std`, p.quantity.unit))} height={220} />
-          <Plot id={`plot-cand-draw-${c.id}`} label={`${c.name}: a posterior realisation`} data={[mapTrace(p, rowOf(s.draws.data, s.draws.cols, 0), 'draw 1')]} layout={mapLayout(p, `${c.name}: posterior realisation 1`)} height={220} />
+          <Plot id={`plot-cand-mean-${c.id}`} label={`${c.name}: posterior mean`} data={[mapTrace(p, s.mean, 'mean', rangeExtra(DIVERGING, ranges.signed))]} layout={mapLayout(p, withUnit(`${c.name}: posterior mean`, p.quantity.unit))} height={220} />
+          <Plot id={`plot-cand-std-${c.id}`} label={`${c.name}: posterior standard deviation`} data={[mapTrace(p, s.std, 'std', rangeExtra(SEQUENTIAL, ranges.std))]} layout={mapLayout(p, withUnit(`${c.name}: posterior std`, p.quantity.unit))} height={220} />
+          <Plot id={`plot-cand-draw-${c.id}`} label={`${c.name}: a posterior realisation`} data={[mapTrace(p, rowOf(s.draws.data, s.draws.cols, 0), 'draw 1', rangeExtra(DIVERGING, ranges.signed))]} layout={mapLayout(p, `${c.name}: posterior realisation 1`)} height={220} />
         </div>
       ))}
     </div>
