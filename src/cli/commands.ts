@@ -23,12 +23,14 @@ import type { Problem } from '../core/problems/spec.ts';
 import { defaultThreads, nodeBlockPool } from '../core/parallel/node.ts';
 import type { PosteriorSummary } from '../core/inverse/types.ts';
 import { DEMOS } from '../core/problems/demos.ts';
-import { evidenceMap, LENGTH_AXES, setTermLength, type LengthAxis, type LogAxis } from '../core/tuning/evidenceMap.ts';
+import { LENGTH_AXES, type LengthAxis, type LogAxis } from '../core/tuning/evidenceMap.ts';
 import type { FileWarning } from '../core/io/errors.ts';
 import { writeCsv } from '../core/io/csv.ts';
 import { formatJson } from '../core/io/json.ts';
 import { writeNpyMatrix } from '../core/io/npy.ts';
-import { writePriorFile } from '../core/io/priorFile.ts';
+import { priorToJson, writePriorFile } from '../core/io/priorFile.ts';
+import { problemKey, runShardable, SHARD } from './study/shard.ts';
+import { combineTune, tuneRows, type TuneKey, type TunePartial } from './study/tuneShard.ts';
 import { writeProblemFile } from '../core/io/problemFile.ts';
 import { cellCount } from '../core/grid/grid.ts';
 import {
@@ -462,18 +464,10 @@ function parseAxis(name: string, text: string): LogAxis {
   return axis;
 }
 
-/** "low" / "high" when `value` is the first / last point of an axis of more than one point, else null. */
-function edgeOf(axis: ArrayLike<number>, value: number): 'low' | 'high' | null {
-  if (axis.length < 2) return null;
-  if (value === axis[0]) return 'low';
-  if (value === axis[axis.length - 1]) return 'high';
-  return null;
-}
-
 const tune: Command = {
   name: 'tune',
   summary: 'log-evidence grid over one term’s length and variance, and its maximum',
-  usage: 'priorscope tune --problem P.json --prior Q.json --term 0 --lengths lo:hi:n --variances lo:hi:n [--axis both|l1|l2] [--out FILE]',
+  usage: 'priorscope tune --problem P.json --prior Q.json --term 0 --lengths lo:hi:n --variances lo:hi:n [--axis both|l1|l2] [--shard K/N] [--out FILE]',
   details:
     'Evaluates log N(d; G m0, G Cm Gᵀ + Cd) on n log-spaced lengths × n log-spaced variances of term K,\n' +
     'everything else in the prior fixed. For an anisotropic term (lengths [l1, l2]) --axis says what the length\n' +
@@ -483,7 +477,9 @@ const tune: Command = {
     '"lengths": [l1, l2] (anisotropic terms: both lengths at the maximum)} | null, "bestOnEdge": {"length", "variance"},\n' +
     '"warnings": [...], "method": "eigen" | "cholesky"}; cells where the covariance did not factor are null.\n' +
     'bestOnEdge says, per axis, "low" or "high" when the maximum lies on that end of the grid (the true maximum\n' +
-    'may lie beyond it: widen that axis), else null; the same warning goes to stderr.',
+    'may lie beyond it: widen that axis), else null; the same warning goes to stderr.\n' +
+    'With --shard K/N only lengths ⌊(K−1)n/N⌋ … ⌊Kn/N⌋ − 1 (rows) are computed into a partial result; `priorscope merge`\n' +
+    'combines the N parts into exactly this output.',
   options: [
     PROBLEM,
     READ_FROM,
@@ -492,6 +488,7 @@ const tune: Command = {
     { name: 'lengths', value: 'lo:hi:n', help: 'log-spaced length axis', required: true },
     { name: 'variances', value: 'lo:hi:n', help: 'log-spaced variance axis', required: true },
     { name: 'axis', value: 'both|l1|l2', help: 'anisotropic term: which length the length axis sets (default both: l1, l2 in proportion)' },
+    SHARD,
     OUT,
   ],
   run(args, io) {
@@ -518,41 +515,15 @@ const tune: Command = {
       throw new UsageError(`--axis ${axis} needs an anisotropic term ("lengths": [l1, l2]); term ${term} has one length: leave --axis out`);
     }
     progress(io, `evidence on ${lengths.count} × ${variances.count} cells …`);
-    const map = evidenceMap(problem, prior, { term, lengths, variances, axis });
-    const nv = map.variances.length;
-    const rows = Array.from(map.lengths, (_, i) => map.logEvidence.subarray(i * nv, (i + 1) * nv));
-    const bestOnEdge = map.best
-      ? { length: edgeOf(map.lengths, map.best.length), variance: edgeOf(map.variances, map.best.variance) }
-      : { length: null, variance: null };
-    const warnings: string[] = [];
-    const lengthName = axis === 'both' ? 'length' : axis;
-    for (const which of ['length', 'variance'] as const) {
-      const e = bestOnEdge[which];
-      if (e) warnings.push(`the maximum lies at the ${e === 'low' ? 'lower' : 'upper'} end of the ${which === 'length' ? lengthName : which} axis: the true maximum may lie beyond it; widen --${which === 'length' ? 'lengths' : 'variances'}`);
-    }
-    for (const w of warnings) io.stderr(`priorscope tune: ${w}`);
-    emit(
-      io,
-      args,
-      toJson({
-        term,
-        axis,
-        lengths: map.lengths,
-        variances: map.variances,
-        logEvidence: rows,
-        best: map.best
-          ? {
-              length: map.best.length,
-              variance: map.best.variance,
-              logEvidence: map.best.logEvidence,
-              ...(tuned.lengths === undefined ? {} : { lengths: setTermLength(tuned, map.best.length, axis).lengths }),
-            }
-          : null,
-        bestOnEdge,
-        warnings,
-        method: map.method,
-      }),
-    );
+    const key: TuneKey = { problem: problemKey(problem), prior: priorToJson(prior), term, axis, lengths, variances, tuned: (priorToJson(prior).terms as TuneKey['tuned'][])[term]! };
+    const out = runShardable<TunePartial>((t) => emit(io, args, t), args, {
+      command: 'tune',
+      total: lengths.count,
+      key,
+      compute: (first, end) => tuneRows(problem, prior, key, first, end),
+      combine: (k, parts) => combineTune(k, parts).output,
+    });
+    for (const w of ((out as { warnings?: string[] } | null)?.warnings ?? [])) io.stderr(`priorscope tune: ${w}`);
     return 0;
   },
 };

@@ -54,12 +54,15 @@ describe('shards and merge', () => {
     expect(out.results[0]!.rankHistogram.reduce((a, b) => a + b, 0)).toBe(10 * 24);
   }, 120_000);
 
-  it('a calibration cross-table, a score of three priors and a profile: sharded and merged equal the unsharded output', async () => {
+  it('a calibration cross-table, a score of three priors, a profile and tune maps: sharded and merged equal the unsharded output', async () => {
     const cases: [string[], number][] = [
       [['calibrate', '--problem', 'p.json', '--prior', 'a.json', 'c.json', '--replicates', '5', '--seed', '9', '--draws', '4'], 2],
       [['score', '--problem', 'p.json', '--prior', 'a.json', 'b.json', 'c.json'], 2],
       [['score', '--problem', 'p.json', '--prior', 'a.json', 'b.json', 'c.json'], 5], // more shards than priors: empty shards
       [['profile', '--problem', 'p.json', '--prior', 'a.json', '--parameter', 'term0.length', '--range', '1:50:7'], 3],
+      // Few variances: a Cholesky per cell; many: the eigen shortcut per length.
+      [['tune', '--problem', 'p.json', '--prior', 'a.json', '--term', '0', '--lengths', '1:50:5', '--variances', '0.01:1:4'], 2],
+      [['tune', '--problem', 'p.json', '--prior', 'a.json', '--term', '0', '--lengths', '1:50:5', '--variances', '0.01:1:30'], 3],
     ];
     for (const [k, [args, n]] of cases.entries()) {
       const whole = await run([...args, '--out', `w${k}.json`]);

@@ -8,7 +8,7 @@ import { cellCount } from '../../core/grid/grid.ts';
 import { structuredProblem } from '../../core/inverse/structured.ts';
 import { BAND_LEVELS, calibrate, calibrationTable, replicateSeed, type CalibrationResult } from '../../core/tuning/index.ts';
 import { optionString, parseNumberOption, UsageError } from '../args.ts';
-import { OUT, PRIOR, PROBLEM, progress, READ_FROM, type Command } from '../commands.ts';
+import { emit, OUT, PRIOR, PROBLEM, progress, READ_FROM, type Command } from '../commands.ts';
 import { loadPriors, loadProblemOption, priorObject, priorPaths, ROUTE, routeOption } from './common.ts';
 import { problemKey, runShardable, SHARD } from './shard.ts';
 
@@ -174,7 +174,7 @@ export const calibrateCommand: Command = {
     const priors = loadPriors(paths, problem, io);
     const n = cellCount(problem.grid);
     const key: CalibrationKey = { problem: problemKey(problem), priors: paths, priorObjects: priors.map(priorObject), replicates, seed, draws, route };
-    runShardable<CalibrationPartial>(io, args, {
+    runShardable<CalibrationPartial>((t) => emit(io, args, t), args, {
       command: 'calibrate',
       total: replicates,
       key,

@@ -6,12 +6,14 @@ import { combineCalibration, type CalibrationPartial } from './calibrate.ts';
 import { combineProfile, type ProfilePartial } from './profile.ts';
 import { combineScores, type ScorePartial } from './score.ts';
 import { readPartials } from './shard.ts';
+import { combineTune, type TunePartial } from './tuneShard.ts';
 
 /** How each shardable command combines its parts (the same function its unsharded run uses). */
 const COMBINE: Readonly<Record<string, (key: unknown, parts: readonly never[]) => unknown>> = {
   calibrate: (key, parts) => combineCalibration(key, parts as readonly CalibrationPartial[]),
   score: (key, parts) => combineScores(key, parts as readonly ScorePartial[]).output,
   profile: (key, parts) => combineProfile(key, parts as readonly ProfilePartial[]),
+  tune: (key, parts) => combineTune(key, parts as readonly TunePartial[]).output,
 };
 
 export const merge: Command = {

@@ -9,7 +9,7 @@ import { structuredProblem } from '../../core/inverse/structured.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
 import { hyperParameters, logEvidence, logSpaced, type HyperParameter } from '../../core/tuning/index.ts';
 import { optionString, parseNumberListOption, parseNumberOption, UsageError } from '../args.ts';
-import { noPositionals, OUT, PRIOR, PROBLEM, progress, READ_FROM, reportWarnings, type Command } from '../commands.ts';
+import { emit, noPositionals, OUT, PRIOR, PROBLEM, progress, READ_FROM, reportWarnings, type Command } from '../commands.ts';
 import { loadPrior } from '../files.ts';
 import { cliParameterName, loadProblemOption, priorObject, ROUTE, routeOption } from './common.ts';
 import { select } from './fit.ts';
@@ -129,7 +129,7 @@ export const profile: Command = {
     });
     const structured = structuredProblem(problem);
     const key: ProfileKey = { problem: problemKey(problem), prior: priorObject(prior), parameter: name, values, route };
-    const out = runShardable<ProfilePartial>(io, args, {
+    const out = runShardable<ProfilePartial>((t) => emit(io, args, t), args, {
       command: 'profile',
       total: values.length,
       key,

@@ -6,7 +6,7 @@
 import { NotPositiveDefiniteError, InputError } from '../../core/errors.ts';
 import { structuredProblem } from '../../core/inverse/structured.ts';
 import { CRITERIA_DIFFER_EXPLANATION, priorCriteria, type DiscrepancyResult } from '../../core/tuning/index.ts';
-import { OUT, PRIOR, PROBLEM, progress, READ_FROM, type Command, type Io } from '../commands.ts';
+import { emit, OUT, PRIOR, PROBLEM, progress, READ_FROM, type Command, type Io } from '../commands.ts';
 import { loadPriors, loadProblemOption, priorObject, priorPaths, ROUTE, routeOption } from './common.ts';
 import { problemKey, runShardable, SHARD } from './shard.ts';
 
@@ -76,7 +76,7 @@ export const score: Command = {
     const problem = loadProblemOption(args, io);
     const priors = loadPriors(paths, problem, io);
     const key: ScoreKey = { problem: problemKey(problem), priors: paths, priorObjects: priors.map(priorObject), route };
-    const out = runShardable<ScorePartial>(io, args, {
+    const out = runShardable<ScorePartial>((t) => emit(io, args, t), args, {
       command: 'score',
       total: priors.length,
       key,

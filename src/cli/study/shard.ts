@@ -19,7 +19,6 @@ import { formatJson, parseJsonText } from '../../core/io/json.ts';
 import { FileFormatError } from '../../core/io/errors.ts';
 import type { Problem } from '../../core/problems/spec.ts';
 import { optionString, UsageError, type OptionSpec, type ParsedArgs } from '../args.ts';
-import { emit, type Io } from '../commands.ts';
 import { readInputFile } from '../files.ts';
 
 export const PARTIAL_KIND = 'priorscope.partial';
@@ -78,12 +77,12 @@ function roundTrip<T>(value: T): T {
 }
 
 /**
- * Runs a shardable command: with --shard, computes its items and writes the partial; without,
- * computes every item and writes `combine(key, [data])` (the data read back from JSON text, as
+ * Runs a shardable command: with --shard, computes its items and writes (`write`: the command's
+ * stdout or --out) the partial; without, computes every item and writes `combine(key, [data])` (the data read back from JSON text, as
  * merge would read it). Returns what `combine` returned (null for a partial).
  */
 export function runShardable<D>(
-  io: Io,
+  write: (text: string) => void,
   args: ParsedArgs,
   spec: { command: string; total: number; key: unknown; compute: (first: number, end: number) => D; combine: (key: unknown, parts: readonly D[]) => unknown },
 ): unknown {
@@ -92,11 +91,11 @@ export function runShardable<D>(
   const data = spec.compute(first, end);
   if (shard !== null) {
     const partial: PartialFile = { kind: PARTIAL_KIND, version: PARTIAL_VERSION, command: spec.command, shard, items: [first, end], key: spec.key, data };
-    emit(io, args, formatJson(partial));
+    write(formatJson(partial));
     return null;
   }
   const out = spec.combine(roundTrip(spec.key), [roundTrip(data)]);
-  emit(io, args, formatJson(out));
+  write(formatJson(out));
   return out;
 }
 
