@@ -9,6 +9,7 @@ import { expect, test, type Page } from '@playwright/test';
 import { mkdtempSync, readFileSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
+import { patchTerm } from '../src/core/kernels/spec.ts';
 import { posteriorSummary, preparePosterior } from '../src/core/inverse/posterior.ts';
 import { assembleProblem } from '../src/core/io/pieces.ts';
 import { parsePriorFile } from '../src/core/io/priorFile.ts';
@@ -279,7 +280,7 @@ test('if a numerics worker dies, the page says so, restarts it and keeps the use
   expect(s.prior.terms[0]!.length).toBe(6);
   await expect(page.getByTestId('problem-source')).toContainText('Trench test', { timeout: 30_000 });
   const mean = (await traceValues(page, 'plot-posterior', 'posterior mean')) as number[];
-  expect(maxRelDiff(mean, posteriorSummary(preparePosterior(P.problem, { ...before.prior, terms: [{ ...before.prior.terms[0]!, length: 6 }] })).mean)).toBeLessThan(TOL);
+  expect(maxRelDiff(mean, posteriorSummary(preparePosterior(P.problem, { ...before.prior, terms: [patchTerm(before.prior.terms[0]!, { length: 6 })] })).mean)).toBeLessThan(TOL);
   expect(w.foreign).toEqual([]);
   // the crash itself is the only page-level error allowed
   expect(w.problems.filter((p) => !p.includes('simulated worker crash'))).toEqual([]);

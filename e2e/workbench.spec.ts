@@ -7,6 +7,7 @@
  * changes we detect are many orders of magnitude larger (asserted in each test).
  */
 import { expect, test } from '@playwright/test';
+import { patchTerm } from '../src/core/kernels/spec.ts';
 import { DEMOS } from '../src/core/problems/demos.ts';
 import { posteriorSummary, preparePosterior, resolutionRow } from '../src/core/inverse/posterior.ts';
 import { priorRealisations } from '../src/core/sampling/realisations.ts';
@@ -75,7 +76,7 @@ test('changing a correlation length changes the posterior to the core numbers fo
   expect(s.prior.terms[0]!.length).toBe(2.5);
   await expect.poll(async () => maxRelDiff((await traceValues(page, 'plot-posterior', 'posterior mean')) as number[], before)).toBeGreaterThan(1e-4);
   const after = (await traceValues(page, 'plot-posterior', 'posterior mean')) as number[];
-  const expected = posteriorSummary(preparePosterior(borehole.problem, { ...borehole.startPrior, terms: [{ ...borehole.startPrior.terms[0]!, length: 2.5 }] }));
+  const expected = posteriorSummary(preparePosterior(borehole.problem, { ...borehole.startPrior, terms: [patchTerm(borehole.startPrior.terms[0]!, { length: 2.5 })] }));
   expect(maxRelDiff(after, expected.mean)).toBeLessThan(TOL);
   const std = ((await traceValues(page, 'plot-posterior', 'posterior 68%')) as number[]).slice(0, 200);
   expect(maxRelDiff(std, Array.from(expected.mean, (m, i) => m + expected.std[i]!))).toBeLessThan(TOL);

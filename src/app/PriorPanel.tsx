@@ -1,6 +1,6 @@
 /** The left panel: mean model, covariance terms (add / remove / reorder), nugget. */
-import { DEFAULT_MATERN_NU, KERNEL_NAMES, type KernelName, type Term } from '../core/kernels/spec.ts';
-import { kernelTakes } from '../core/kernels/table.ts';
+import { KERNEL_NAMES, type KernelName, type Term } from '../core/kernels/spec.ts';
+import { termSmoothness } from '../core/kernels/table.ts';
 import type { MeanSpec, PriorSpec } from '../core/prior/spec.ts';
 import { MAX_PINNED } from './select/candidates.ts';
 import { gridDimension } from '../core/grid/grid.ts';
@@ -229,6 +229,7 @@ function TermEditor({ index, term, count, problem, refVar }: { index: number; te
   const setAnisotropic = useWb((s) => s.setAnisotropic);
   const removeTerm = useWb((s) => s.removeTerm);
   const moveTerm = useWb((s) => s.moveTerm);
+  const nu = termSmoothness(term);
   const unit = problem.quantity.unit;
   const varUnit = unit ? `(${unit})²` : '';
   const lenUnit = problem.grid.unit ?? '';
@@ -301,7 +302,7 @@ function TermEditor({ index, term, count, problem, refVar }: { index: number; te
             unit={lenUnit}
             tip="Length along the first (rotated) axis: u = cos θ·dx + sin θ·dy, h = √((u/ℓ₁)² + (v/ℓ₂)²)"
             testId={`${t}-length1`}
-            onChange={(v) => updateTerm(index, { lengths: [v, term.lengths![1]] })}
+            onChange={(v) => updateTerm(index, { lengths: [v, term.lengths[1]] })}
           />
           <LogSlider
             label="Length ℓ₂"
@@ -311,7 +312,7 @@ function TermEditor({ index, term, count, problem, refVar }: { index: number; te
             unit={lenUnit}
             tip="Length across the first axis: v = −sin θ·dx + cos θ·dy"
             testId={`${t}-length2`}
-            onChange={(v) => updateTerm(index, { lengths: [term.lengths![0], v] })}
+            onChange={(v) => updateTerm(index, { lengths: [term.lengths[0], v] })}
           />
           <div className="log-slider">
             <label htmlFor={`${t}-angle`} title={angleTip}>
@@ -355,10 +356,10 @@ function TermEditor({ index, term, count, problem, refVar }: { index: number; te
           onChange={(v) => updateTerm(index, { length: v })}
         />
       )}
-      {kernelTakes(term.kernel, 'nu') && (
+      {nu !== undefined && (
         <LogSlider
           label="Smoothness ν"
-          value={term.nu ?? DEFAULT_MATERN_NU}
+          value={nu}
           min={0.1}
           max={20}
           unit=""

@@ -5,8 +5,8 @@
  */
 import { createStore, type StoreApi } from 'zustand/vanilla';
 import type { PriorSpec, MeanSpec } from '../core/prior/spec.ts';
-import { DEFAULT_MATERN_NU, type Term, type KernelName } from '../core/kernels/spec.ts';
-import { kernelTakes } from '../core/kernels/table.ts';
+import { patchTerm, type Term, type TermPatch, type KernelName } from '../core/kernels/spec.ts';
+import { termSmoothness } from '../core/kernels/table.ts';
 import type { Diagnostics } from '../core/prior/diagnostics.ts';
 import type { Matrix } from '../core/linalg/matrix.ts';
 import { cellCount } from '../core/grid/grid.ts';
@@ -99,7 +99,7 @@ export const DEFAULT_SEED = 20240611;
 export interface Actions {
   loadDemo(demoId: string): Promise<void>;
   setPrior(prior: PriorSpec): void;
-  updateTerm(index: number, patch: Partial<Term>): void;
+  updateTerm(index: number, patch: TermPatch): void;
   setKernel(index: number, kernel: KernelName): void;
   setAnisotropic(index: number, on: boolean): void;
   addTerm(): void;
@@ -220,14 +220,15 @@ export function createWorkbenchStore(client: ClientPort, initial: { demoId: stri
         editPrior(() => prior);
       },
       updateTerm(index, patch) {
-        editTerms((terms) => terms.map((t, i) => (i === index ? { ...t, ...patch } : t)));
+        editTerms((terms) => terms.map((t, i) => (i === index ? patchTerm(t, patch) : t)));
       },
       setKernel(index, kernel) {
         editTerms((terms) =>
           terms.map((t, i) => {
             if (i !== index) return t;
             const { nu: _nu, ...rest } = t;
-            return kernelTakes(kernel, 'nu') ? { ...rest, kernel, nu: t.nu ?? DEFAULT_MATERN_NU } : { ...rest, kernel };
+            const nu = termSmoothness({ kernel, nu: t.nu });
+            return nu !== undefined ? { ...rest, kernel, nu } : { ...rest, kernel };
           }),
         );
       },

@@ -12,6 +12,7 @@
  * --dense the dense route is timed too where it fits (n ≤ 64: 134 MB per Cm).
  */
 import { benchPrior, benchProblem } from './cases/fft.ts';
+import { patchTerm } from '../../src/core/kernels/spec.ts';
 import { structuredProblem } from '../../src/core/inverse/structured.ts';
 import type { PriorSpec } from '../../src/core/prior/spec.ts';
 import type { Problem } from '../../src/core/problems/spec.ts';
@@ -71,7 +72,7 @@ async function measure(n: number, runs: number, routes: TuningRoute[]): Promise<
     });
     if (fit !== '') r.typeIIDetail = fit;
     process.stderr.write(`${n} ${route}: map and type-II done\n`);
-    const other: PriorSpec = { ...prior, terms: [{ ...prior.terms[0]!, length: l / 2 }] };
+    const other: PriorSpec = { ...prior, terms: [patchTerm(prior.terms[0]!, { length: l / 2 })] };
     if (route === 'fft') {
       r.candidates2x6draws = await time(1, () => scoreCandidates(problem, [prior, other], 6, 1, () => {}, { aborted: false }));
     } else {

@@ -6,6 +6,7 @@
  * brute force in test/core/tuning and test/reference.
  */
 import { describe, expect, it } from 'vitest';
+import { patchTerm } from '../../src/core/kernels/spec.ts';
 import { demoById } from '../../src/core/problems/demos.ts';
 import { calibrate, evidenceMap, leaveOneOut, logEvidence, priorPredictiveCheck, termLength, tuningRoute } from '../../src/core/tuning/index.ts';
 import { prepareStructuredPosterior } from '../../src/core/inverse/structured.ts';
@@ -150,7 +151,7 @@ describe('calibration chunks', () => {
 
 describe('candidate scores', () => {
   it('are the core numbers of each candidate; a failing candidate says why', async () => {
-    const other = { ...startPrior, terms: [{ ...t0, length: termLength(t0) / 3 }] };
+    const other = { ...startPrior, terms: [patchTerm(t0, { length: termLength(t0) / 3 })] };
     const bad = { ...startPrior, terms: [{ ...t0, variance: -1 }] };
     const s = await scoreCandidates(problem, [startPrior, other, bad], 2, 7, () => {}, { aborted: false });
     expect(s).toHaveLength(3);
@@ -188,7 +189,7 @@ describe('large grids (FFT route above TUNING_DENSE_LIMIT cells)', () => {
 
   it('candidate scores take the FFT route and equal the dense numbers to 1e-9', async () => {
     expect(tuningRoute(big, prior)).toBe('fft');
-    const other: PriorSpec = { ...prior, terms: [{ ...prior.terms[0]!, length: 2 }] };
+    const other: PriorSpec = { ...prior, terms: [patchTerm(prior.terms[0]!, { length: 2 })] };
     const s = await scoreCandidates(big, [prior, other], 3, 11, () => {}, { aborted: false });
     for (const [k, p] of [prior, other].entries()) {
       const c = s[k]!;

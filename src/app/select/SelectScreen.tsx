@@ -4,8 +4,7 @@
  * the pinned candidates side by side. The pin button sits in the screen's header next to a
  * summary of the current prior.
  */
-import { DEFAULT_MATERN_NU } from '../../core/kernels/spec.ts';
-import { kernelTakes } from '../../core/kernels/table.ts';
+import { termSmoothness } from '../../core/kernels/table.ts';
 import { useState } from 'react';
 import { useWb } from '../context.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
@@ -25,8 +24,9 @@ const VIEWS: readonly { id: View; label: string }[] = [
 /** One line describing a prior: its terms (kernel, ℓ, σ²) and the nugget. */
 export function describePrior(prior: PriorSpec): string {
   const terms = prior.terms.map((t) => {
-    const l = t.lengths ? `ℓ = ${fmt(t.lengths[0])}×${fmt(t.lengths[1])} at ${fmt(t.angle ?? 0)}°` : `ℓ = ${fmt(t.length ?? Number.NaN)}`;
-    return `${t.kernel}${kernelTakes(t.kernel, 'nu') ? ` ν = ${fmt(t.nu ?? DEFAULT_MATERN_NU)}` : ''}, ${l}, σ² = ${fmt(t.variance)}`;
+    const l = t.lengths ? `ℓ = ${fmt(t.lengths[0])}×${fmt(t.lengths[1])} at ${fmt(t.angle ?? 0)}°` : `ℓ = ${fmt(t.length)}`;
+    const nu = termSmoothness(t);
+    return `${t.kernel}${nu !== undefined ? ` ν = ${fmt(nu)}` : ''}, ${l}, σ² = ${fmt(t.variance)}`;
   });
   return `${terms.join(' + ')}${prior.nugget ? `; nugget ${fmt(prior.nugget)}` : ''}`;
 }

@@ -16,7 +16,7 @@ import type { TuningPayload, TuningPort } from '../../worker/split.ts';
 import { TUNING_KINDS } from '../../worker/tuningProtocol.ts';
 import type { WorkbenchState } from '../store.ts';
 import { CANDIDATE_STYLES, MAX_PINNED, nextCandidateStyle } from './candidates.ts';
-import { kernelTakes } from '../../core/kernels/table.ts';
+import { termSmoothness } from '../../core/kernels/table.ts';
 
 export type { TuningPayload, TuningPort } from '../../worker/split.ts';
 
@@ -100,7 +100,7 @@ export function problemIdentity(s: Pick<WorkbenchState, 'problem' | 'userProblem
 
 /** What a result can be applied to: the kernels, their smoothness, isotropy and the number of terms. */
 export function priorStructure(p: PriorSpec): string {
-  return JSON.stringify(p.terms.map((t) => [t.kernel, kernelTakes(t.kernel, 'nu') ? (t.nu ?? null) : null, t.lengths ? 'anisotropic' : 'isotropic']));
+  return JSON.stringify(p.terms.map((t) => [t.kernel, termSmoothness(t) ?? null, t.lengths ? 'anisotropic' : 'isotropic']));
 }
 
 /**
@@ -119,7 +119,10 @@ export function freshness(task: Pick<Task<unknown>, 'key' | 'prior'>, s: Pick<Wo
 
 /** The structure of a prior in words: its terms' kernels (with ν for Matérn) and isotropy. */
 export function structureWords(p: PriorSpec): string {
-  const terms = p.terms.map((t) => `${t.kernel}${kernelTakes(t.kernel, 'nu') ? ` ν = ${t.nu ?? 'default'}` : ''}${t.lengths ? ' (anisotropic)' : ''}`);
+  const terms = p.terms.map((t) => {
+    const nu = termSmoothness(t);
+    return `${t.kernel}${nu !== undefined ? ` ν = ${nu}` : ''}${t.lengths ? ' (anisotropic)' : ''}`;
+  });
   return terms.length === 0 ? 'no terms' : `${terms.length} term${terms.length === 1 ? '' : 's'}: ${terms.join(' + ')}`;
 }
 

@@ -9,9 +9,9 @@
  */
 import type { WorkbenchState } from '../store.ts';
 import { cellCount } from '../../core/grid/grid.ts';
-import { practicalRange } from '../../core/kernels/correlation.ts';
-import { DEFAULT_MATERN_NU, type Term } from '../../core/kernels/spec.ts';
-import { kernelTakes } from '../../core/kernels/table.ts';
+import { kernelInfo, practicalRange } from '../../core/kernels/correlation.ts';
+import type { Term } from '../../core/kernels/spec.ts';
+import { termSmoothness } from '../../core/kernels/table.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
 import type { Diagnostics } from '../../core/prior/diagnostics.ts';
 import { writePriorFile } from '../../core/io/priorFile.ts';
@@ -46,8 +46,9 @@ const g4 = (x: number) => (Number.isFinite(x) ? Number(x.toPrecision(4)).toStrin
 
 /** One sentence per term, with the practical range (distance where ρ = 0.05) of its kernel. */
 export function termInWords(t: Term, lengthUnit: string, valueUnit: string): string {
-  const kernel = kernelTakes(t.kernel, 'nu') ? `Matérn (ν = ${g4(t.nu ?? DEFAULT_MATERN_NU)})` : t.kernel;
-  const pr = practicalRange(t.kernel, t.nu ?? DEFAULT_MATERN_NU);
+  const nu = termSmoothness(t);
+  const kernel = nu !== undefined ? `${kernelInfo(t.kernel).label.split(' (')[0]} (ν = ${g4(nu)})` : t.kernel;
+  const pr = practicalRange(t.kernel, nu);
   const sd = `${g4(Math.sqrt(t.variance))}${valueUnit ? ' ' + valueUnit : ''}`;
   const u = lengthUnit ? ` ${lengthUnit}` : '';
   if (t.lengths) {

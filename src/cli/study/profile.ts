@@ -7,7 +7,7 @@
 import { NotPositiveDefiniteError } from '../../core/errors.ts';
 import { structuredProblem } from '../../core/inverse/structured.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
-import { hyperParameters, logEvidence, logSpaced, type HyperParameter } from '../../core/tuning/index.ts';
+import { hyperParameters, logEvidence, logSpaced, setHyperParameter, type HyperParameter } from '../../core/tuning/index.ts';
 import { optionString, parseNumberListOption, parseNumberOption, UsageError } from '../args.ts';
 import { emit, noPositionals, OUT, PRIOR, PROBLEM, progress, READ_FROM, reportWarnings, type Command } from '../commands.ts';
 import { loadPrior } from '../files.ts';
@@ -31,21 +31,7 @@ type Target = Pick<HyperParameter, 'term' | 'field' | 'name'>;
 
 /** The prior with one parameter set to v (natural units). */
 export function setParameter(prior: PriorSpec, h: Target, v: number): PriorSpec {
-  if (h.field === 'nugget') return { ...prior, nugget: v };
-  return {
-    ...prior,
-    terms: prior.terms.map((t, k) => {
-      if (k !== h.term) return t;
-      switch (h.field) {
-        case 'lengths0':
-          return { ...t, lengths: [v, t.lengths![1]] as const };
-        case 'lengths1':
-          return { ...t, lengths: [t.lengths![0], v] as const };
-        default:
-          return { ...t, [h.field]: v };
-      }
-    }),
-  };
+  return setHyperParameter(prior, h, v);
 }
 
 /** The one parameter that --parameter names. */

@@ -42,7 +42,7 @@ export function stationaryCovariance(terms: readonly Term[]): (ox: number, oy: n
         return v * rho(Math.sqrt(u * u + w * w));
       };
     }
-    const l = t.length!;
+    const l = t.length;
     return (ox: number, oy: number) => v * rho(Math.sqrt(ox * ox + oy * oy) / l);
   });
   if (parts.length === 1) return parts[0]!;

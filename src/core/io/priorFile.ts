@@ -83,30 +83,35 @@ function readTerm(r: JsonReader, value: unknown, k: number): Term {
   }
   const kernel = kernelValue as KernelName;
   const variance = r.number(obj.variance, `${f}.variance`, { gt: 0 });
-  const term: { -readonly [K in keyof Term]: Term[K] } = { kernel, variance };
   if (obj.length !== undefined && obj.lengths !== undefined) {
     r.fail(f, 'a term with either length (isotropic) or lengths (anisotropic 2-D), not both', 'both');
   }
+  let lengths: readonly [number, number] | undefined;
+  let length = 0;
+  let angle: number | undefined;
   if (obj.lengths !== undefined) {
     const l = r.numbers(obj.lengths, `${f}.lengths`, 2, { gt: 0 });
-    term.lengths = [l[0]!, l[1]!];
-    if (obj.angle !== undefined) term.angle = readAngle(r, obj.angle, `${f}.angle`);
+    lengths = [l[0]!, l[1]!];
+    if (obj.angle !== undefined) angle = readAngle(r, obj.angle, `${f}.angle`);
   } else {
     if (obj.length === undefined) r.fail(`${f}.length`, 'a finite number > 0 (or give lengths [l1, l2] in 2-D)', undefined);
-    term.length = r.number(obj.length, `${f}.length`, { gt: 0 });
+    length = r.number(obj.length, `${f}.length`, { gt: 0 });
     if (obj.angle !== undefined) {
-      term.angle = readAngle(r, obj.angle, `${f}.angle`);
+      angle = readAngle(r, obj.angle, `${f}.angle`);
       r.warn(`${f}.angle`, `${f}.angle is ignored for an isotropic term (it rotates the two axes of lengths [l1, l2])`);
     }
   }
   // Kernel-specific fields (the kernel table): required where the kernel takes them, else kept and warned about.
+  let nu: number | undefined;
   if (kernelTakes(kernel, 'nu')) {
-    term.nu = r.number(r.required(obj, f, 'nu', `a finite number > 0 for the ${kernel} kernel`), `${f}.nu`, { gt: 0 });
+    nu = r.number(r.required(obj, f, 'nu', `a finite number > 0 for the ${kernel} kernel`), `${f}.nu`, { gt: 0 });
   } else if (obj.nu !== undefined) {
-    term.nu = r.number(obj.nu, `${f}.nu`, { gt: 0 });
+    nu = r.number(obj.nu, `${f}.nu`, { gt: 0 });
     r.warn(`${f}.nu`, `${f}.nu is ignored for the ${kernel} kernel (only ${kernelsTaking('nu').join(', ')} has a smoothness)`);
   }
-  return term;
+  // Only the fields present (no defaults filled in), so that the file round-trips exactly.
+  const optional = { ...(angle !== undefined && { angle }), ...(nu !== undefined && { nu }) };
+  return lengths !== undefined ? { kernel, variance, lengths, ...optional } : { kernel, variance, length, ...optional };
 }
 
 /** A parsed prior object (already JSON-decoded) → PriorSpec; `r` collects the warnings. */

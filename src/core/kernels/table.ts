@@ -47,7 +47,7 @@ export interface LongLengthContext {
   /** The nugget that would cure it, formatted. */
   readonly cure: string;
   /** The term's smoothness ν when the kernel takes one (the default filled in). */
-  readonly nu: number;
+  readonly nu: number | undefined;
 }
 
 export interface KernelDefinition {
@@ -59,8 +59,8 @@ export interface KernelDefinition {
   readonly formula: string;
   /** Where the formula comes from. */
   readonly source: string;
-  /** Term fields this kernel takes (see {@link KernelField}). */
-  readonly fields: readonly KernelField[];
+  /** Term fields this kernel takes (see {@link KernelField}), each with the value used when a term omits it. */
+  readonly fields: { readonly [F in KernelField]?: { readonly default: number } };
   /**
    * A fast evaluator ρ(h) with its constants precomputed. `nu` is the term's smoothness (undefined when absent;
    * kernels without `nu` ignore it). Throws RangeError for a smoothness the kernel cannot evaluate.
@@ -120,7 +120,7 @@ export const KERNELS = {
     description: 'Rough fields: continuous, but jagged at every scale. Correlation drops fast near zero.',
     formula: 'ρ(h) = exp(−h)',
     source: 'Rasmussen & Williams (2006) §4.2.1; Matérn with ν = 1/2',
-    fields: [],
+    fields: {},
     correlation: () => exponentialCorrelation,
     practicalRange: () => EXPONENTIAL_PRACTICAL_RANGE,
     // Matérn ν = 1/2.
@@ -134,7 +134,7 @@ export const KERNELS = {
     description: 'Very smooth fields with no small-scale detail. Covariance matrices on fine grids are badly conditioned.',
     formula: 'ρ(h) = exp(−h²/2)',
     source: 'Rasmussen & Williams (2006) eq. 4.9; the Matérn limit ν → ∞',
-    fields: [],
+    fields: {},
     correlation: () => gaussianCorrelation,
     practicalRange: () => GAUSSIAN_PRACTICAL_RANGE,
     // S ∝ exp(−q/2) (the transform of R&W eq. 4.9).
@@ -154,7 +154,7 @@ export const KERNELS = {
       'fields, large ν approaches the Gaussian.',
     formula: 'ρ(h) = 2^(1−ν)/Γ(ν) · (√(2ν)·h)^ν · K_ν(√(2ν)·h)',
     source: 'Rasmussen & Williams (2006) eq. 4.14',
-    fields: ['nu'],
+    fields: { nu: { default: DEFAULT_MATERN_NU } },
     correlation: (nu = DEFAULT_MATERN_NU) => maternCorrelationFunction(nu),
     practicalRange: (nu = DEFAULT_MATERN_NU) => monotoneRoot(maternCorrelationFunction(nu), PRACTICAL_RANGE_LEVEL),
     logSpectralDensity: (nu = DEFAULT_MATERN_NU, dim) => maternLogSpectrum(nu, dim),
@@ -171,7 +171,7 @@ export const KERNELS = {
     description: 'Rough fields whose correlation reaches exactly zero at one length (compact support). Valid up to 3-D.',
     formula: 'ρ(h) = 1 − 1.5·h + 0.5·h³ for h < 1, 0 for h ≥ 1',
     source: 'Chilès & Delfiner (2012) §2.5',
-    fields: [],
+    fields: {},
     correlation: () => sphericalCorrelation,
     practicalRange: () => SPHERICAL_PRACTICAL_RANGE,
     // No simple closed-form spectrum here.
@@ -193,7 +193,16 @@ export function kernelDefinition(kernel: KernelName): KernelDefinition {
 
 /** True when the kernel takes the field (e.g. `nu` for matern). */
 export function kernelTakes(kernel: KernelName, field: KernelField): boolean {
-  return kernelDefinition(kernel).fields.includes(field);
+  return kernelDefinition(kernel).fields[field] !== undefined;
+}
+
+/**
+ * The smoothness ν a term is evaluated with: its `nu`, or the kernel's default when it omits it; undefined for kernels
+ * that take no smoothness (their `nu`, if any, is ignored). The one place where the default is filled in.
+ */
+export function termSmoothness(term: { readonly kernel: KernelName; readonly nu?: number }): number | undefined {
+  const rule = kernelDefinition(term.kernel).fields.nu;
+  return rule === undefined ? undefined : (term.nu ?? rule.default);
 }
 
 /** The kernels that take a field, for messages ("only matern has a smoothness"). */

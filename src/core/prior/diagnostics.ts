@@ -15,8 +15,8 @@
  *   singular": about 10 of the 16 significant digits lost in solves) is common practice, no source.
  * - Plain-language warnings with stable codes (see {@link WARNING_CODES}).
  */
-import { DEFAULT_MATERN_NU, KERNEL_NAMES } from '../kernels/spec.ts';
-import { kernelDefinition, KERNELS, kernelTakes } from '../kernels/table.ts';
+import { KERNEL_NAMES } from '../kernels/spec.ts';
+import { kernelDefinition, KERNELS, kernelTakes, termSmoothness } from '../kernels/table.ts';
 import { cellCount, gridDimension, type Grid } from '../grid/grid.ts';
 import { cholesky } from '../linalg/cholesky.ts';
 import { lanczosExtremes, symmetricEigenvalues } from '../linalg/eigen.ts';
@@ -293,7 +293,7 @@ export function priorWarnings(grid: Grid, prior: PriorSpec): DiagnosticWarning[]
     const lengths = term.lengths ? `lengths ${term.lengths[0]}${unit} × ${term.lengths[1]}${unit}` : `length ${term.length}${unit}`;
     const spacing = grid.spacing.map((s) => `${s}${unit}`).join(' × ');
     const spread = formatSpread(logK / Math.LN10);
-    out.push({ code: warning.code, message: warning.message({ name, lengths, spacing, spread, cure: fmt(cure), nu: term.nu ?? DEFAULT_MATERN_NU }) });
+    out.push({ code: warning.code, message: warning.message({ name, lengths, spacing, spread, cure: fmt(cure), nu: termSmoothness(term) }) });
   });
   return out;
 }

@@ -46,7 +46,7 @@ export function scaledDistance(term: Term): (ox: number, oy: number) => number {
       return Math.sqrt(u * u + v * v);
     };
   }
-  const l = term.length!;
+  const l = term.length;
   return (ox, oy) => Math.sqrt(ox * ox + oy * oy) / l;
 }
 

@@ -5,9 +5,8 @@
  *   trend     m0_i = intercept + slope[0]·x_i (+ slope[1]·y_i in 2-D), absolute cell coordinates
  *             (origin included, see ../grid/grid.ts).
  */
-import { assertNever } from '../errors.ts';
 import { cellCoordinates, cellCount, type Grid } from '../grid/grid.ts';
-import type { MeanSpec, PriorSpec } from './spec.ts';
+import type { MeanKind, MeanSpec, PriorSpec } from './spec.ts';
 import { validatePrior } from './validate.ts';
 
 /** Mean model m0 (length N). Validates the prior first (InputError). */
@@ -17,7 +16,7 @@ export function meanVector(grid: Grid, prior: PriorSpec): Float64Array {
 }
 
 /** Which of the three mean forms a (validated) MeanSpec is. */
-export function meanKind(mean: MeanSpec): 'constant' | 'values' | 'trend' {
+export function meanKind(mean: MeanSpec): MeanKind {
   if ('constant' in mean) return 'constant';
   if ('values' in mean) return 'values';
   return 'trend';
@@ -26,22 +25,13 @@ export function meanKind(mean: MeanSpec): 'constant' | 'values' | 'trend' {
 /** m0 for a validated mean spec. */
 export function evaluateMean(grid: Grid, mean: MeanSpec): Float64Array {
   const n = cellCount(grid);
-  const kind = meanKind(mean);
-  switch (kind) {
-    case 'constant':
-      return new Float64Array(n).fill((mean as { constant: number }).constant);
-    case 'values':
-      return Float64Array.from((mean as { values: readonly number[] }).values);
-    case 'trend': {
-      const { intercept, slope } = (mean as { trend: { intercept: number; slope: readonly number[] } }).trend;
-      const { x, y } = cellCoordinates(grid);
-      const a = slope[0]!;
-      const b = slope[1] ?? 0;
-      const out = new Float64Array(n);
-      for (let i = 0; i < n; i++) out[i] = intercept + a * x[i]! + b * y[i]!;
-      return out;
-    }
-    default:
-      return assertNever(kind);
-  }
+  if ('constant' in mean) return new Float64Array(n).fill(mean.constant);
+  if ('values' in mean) return Float64Array.from(mean.values);
+  const { intercept, slope } = mean.trend;
+  const { x, y } = cellCoordinates(grid);
+  const a = slope[0]!;
+  const b = slope[1] ?? 0;
+  const out = new Float64Array(n);
+  for (let i = 0; i < n; i++) out[i] = intercept + a * x[i]! + b * y[i]!;
+  return out;
 }

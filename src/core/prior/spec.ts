@@ -9,11 +9,28 @@
  */
 import type { Term } from '../kernels/spec.ts';
 
-export type MeanSpec =
-  | { readonly constant: number }
-  | { readonly values: readonly number[] }
-  /** m0(x, y) = intercept + slope[0]·x (+ slope[1]·y in 2-D), absolute coordinates. */
-  | { readonly trend: { readonly intercept: number; readonly slope: readonly number[] } };
+/** m0 = c in every cell. */
+export interface ConstantMean {
+  readonly constant: number;
+}
+
+/** m0 given cell by cell (N numbers). */
+export interface ValuesMean {
+  readonly values: readonly number[];
+}
+
+/** m0(x, y) = intercept + slope[0]·x (+ slope[1]·y in 2-D), absolute coordinates. */
+export interface TrendMean {
+  readonly trend: { readonly intercept: number; readonly slope: readonly number[] };
+}
+
+/**
+ * The mean model, discriminated by its one field (the prior file's own shape, so files, saved sessions and share
+ * links keep it): `'constant' in m`, `'values' in m` and `'trend' in m` narrow; {@link MeanKind} names the form.
+ */
+export type MeanSpec = ConstantMean | ValuesMean | TrendMean;
+
+export type MeanKind = 'constant' | 'values' | 'trend';
 
 export interface PriorSpec {
   readonly mean: MeanSpec;

@@ -45,7 +45,7 @@ function latticeForm(term: Term, grid: Grid): { b00: number; b01: number; b11: n
     m01 = c * s * (l1 * l1 - l2 * l2);
     m11 = s * s * l1 * l1 + c * c * l2 * l2;
   } else {
-    const l = term.length!;
+    const l = term.length;
     m00 = l * l;
     m01 = 0;
     m11 = l * l;

@@ -30,7 +30,7 @@
  * factorisations are cheaper. Both paths agree to 1e-10 (test/core/tuning/evidenceMap.test.ts).
  */
 import { assertNever, InputError } from '../errors.ts';
-import type { Term } from '../kernels/spec.ts';
+import { patchTerm, type Term, type TermPatch } from '../kernels/spec.ts';
 import { kernelsTaking, kernelTakes } from '../kernels/table.ts';
 import { cholesky, logDetFromCholesky, solveLower, solveLowerMatrix } from '../linalg/cholesky.ts';
 import { symmetricEigen } from '../linalg/eigen.ts';
@@ -84,8 +84,8 @@ export function logSpaced(axis: LogAxis, field = 'axis'): Float64Array {
 }
 
 /** The prior with term `index` replaced by `patch` applied to it. */
-export function withTerm(prior: PriorSpec, index: number, patch: Partial<Term>): PriorSpec {
-  return { ...prior, terms: prior.terms.map((t, k) => (k === index ? { ...t, ...patch } : t)) };
+export function withTerm(prior: PriorSpec, index: number, patch: TermPatch): PriorSpec {
+  return { ...prior, terms: prior.terms.map((t, k) => (k === index ? patchTerm(t, patch) : t)) };
 }
 
 /**
@@ -98,7 +98,7 @@ export const LENGTH_AXES: readonly LengthAxis[] = ['both', 'l1', 'l2'];
 
 /** The length that the map's length axis stands for: `length`, or `lengths[0]` (`lengths[1]` for "l2") of an anisotropic term. */
 export function termLength(term: Term, axis: LengthAxis = 'both'): number {
-  return term.lengths !== undefined ? term.lengths[axis === 'l2' ? 1 : 0] : term.length!;
+  return term.lengths !== undefined ? term.lengths[axis === 'l2' ? 1 : 0] : term.length;
 }
 
 /**

@@ -48,9 +48,9 @@
  * (Laplace approximation of the likelihood surface; common practice, no source). If J is not
  * positive definite the optimum is not a strict maximum (a flat direction) and the errors are NaN.
  */
-import { InputError, NotPositiveDefiniteError } from '../errors.ts';
-import { DEFAULT_MATERN_NU, type Term } from '../kernels/spec.ts';
-import { kernelTakes } from '../kernels/table.ts';
+import { assertNever, InputError, NotPositiveDefiniteError } from '../errors.ts';
+import { patchTerm, type Term, type TermPatch } from '../kernels/spec.ts';
+import { kernelTakes, termSmoothness } from '../kernels/table.ts';
 import { cholesky, choleskySolve, solveLowerMatrix } from '../linalg/cholesky.ts';
 import { identity, matrix, type Matrix } from '../linalg/matrix.ts';
 import { operatorGram } from '../linalg/operator.ts';
@@ -131,17 +131,45 @@ function rawValue(prior: PriorSpec, h: HyperParameter): number {
     case 'variance':
       return t.variance;
     case 'length':
-      return t.length!;
     case 'lengths0':
-      return t.lengths![0];
+      return t.lengths === undefined ? t.length : t.lengths[0];
     case 'lengths1':
-      return t.lengths![1];
+      return t.lengths === undefined ? t.length : t.lengths[1];
     case 'angle':
       return t.angle ?? 0;
     case 'nu':
-      return t.nu ?? DEFAULT_MATERN_NU;
+      return smoothnessOf(t, h.term);
     case 'nugget':
       return prior.nugget ?? 0;
+  }
+}
+
+/** The term's smoothness ν (its kernel's default filled in); only kernels that take one have a ν parameter. */
+function smoothnessOf(t: Term, k: number): number {
+  const nu = termSmoothness(t);
+  if (nu === undefined) throw new InputError(`terms[${k}].kernel`, 'a kernel with a smoothness ν', t.kernel);
+  return nu;
+}
+
+/** The change of one term that sets one hyperparameter to v. */
+function termPatch(t: Term, field: HyperParameter['field'], v: number): TermPatch {
+  switch (field) {
+    case 'variance':
+      return { variance: v };
+    case 'length':
+      return { length: v };
+    case 'lengths0':
+      return { lengths: [v, t.lengths === undefined ? t.length : t.lengths[1]] };
+    case 'lengths1':
+      return { lengths: [t.lengths === undefined ? t.length : t.lengths[0], v] };
+    case 'angle':
+      return { angle: v };
+    case 'nu':
+      return { nu: v };
+    case 'nugget':
+      return {};
+    default:
+      return assertNever(field, 'hyperparameter field');
   }
 }
 
@@ -152,7 +180,7 @@ export function hyperParameterVector(prior: PriorSpec, params: readonly HyperPar
 
 /** The prior with the coordinates θ put in. */
 export function applyHyperParameters(prior: PriorSpec, params: readonly HyperParameter[], theta: ArrayLike<number>): PriorSpec {
-  const terms: Term[] = prior.terms.map((t) => ({ ...t }));
+  const terms: Term[] = [...prior.terms];
   let nugget = prior.nugget;
   params.forEach((h, k) => {
     const v = h.scale === 'log' ? Math.exp(theta[k]!) : theta[k]!;
@@ -160,32 +188,17 @@ export function applyHyperParameters(prior: PriorSpec, params: readonly HyperPar
       nugget = v;
       return;
     }
-    const t = terms[h.term]! as { -readonly [K in keyof Term]: Term[K] };
-    switch (h.field) {
-      case 'variance':
-        t.variance = v;
-        break;
-      case 'length':
-        t.length = v;
-        break;
-      case 'lengths0':
-        t.lengths = [v, t.lengths![1]];
-        break;
-      case 'lengths1':
-        t.lengths = [t.lengths![0], v];
-        break;
-      case 'angle':
-        t.angle = v;
-        break;
-      case 'nu':
-        t.nu = v;
-        break;
-      case 'nugget':
-        nugget = v;
-        break;
-    }
+    const t = terms[h.term]!;
+    terms[h.term] = patchTerm(t, termPatch(t, h.field, v));
   });
   return { ...prior, terms, ...(nugget !== undefined ? { nugget } : {}) };
+}
+
+/** The prior with one hyperparameter set to v (natural units, not the log coordinate). */
+export function setHyperParameter(prior: PriorSpec, h: Pick<HyperParameter, 'term' | 'field'>, v: number): PriorSpec {
+  if (h.term === null || h.field === 'nugget') return { ...prior, nugget: v };
+  const k = h.term;
+  return { ...prior, terms: prior.terms.map((t, i) => (i === k ? patchTerm(t, termPatch(t, h.field, v)) : t)) };
 }
 
 /** Step of the central differences of the kernel in the length, angle and ν coordinates. */

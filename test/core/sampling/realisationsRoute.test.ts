@@ -8,6 +8,7 @@
  * in test/core/inverse).
  */
 import { describe, expect, it } from 'vitest';
+import { patchTerm } from '../../../src/core/kernels/spec.ts';
 import { circulantRealisations } from '../../../src/core/fft/realisations.ts';
 import { chiSquareQuantile } from '../../../src/core/inverse/chisquare.ts';
 import { cholesky } from '../../../src/core/linalg/cholesky.ts';
@@ -55,7 +56,7 @@ describe('priorRealisations route', () => {
     const b = priorRealisations(grid, prior, 2, 11); // from the kept sampler
     expect(Array.from(b.data)).toEqual(Array.from(a.data));
     expect(Array.from(a.data)).toEqual(Array.from(circulantRealisations(grid, prior, 2, 11).realisations.data));
-    const longer: PriorSpec = { ...prior, terms: [{ ...prior.terms[0]!, length: 6 }] };
+    const longer: PriorSpec = { ...prior, terms: [patchTerm(prior.terms[0]!, { length: 6 })] };
     const c = priorRealisations(grid, longer, 2, 11);
     expect(Array.from(c.data)).toEqual(Array.from(circulantRealisations(grid, longer, 2, 11).realisations.data));
     expect(Array.from(c.data)).not.toEqual(Array.from(a.data));

@@ -7,6 +7,7 @@
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../../../src/core/errors.ts';
 import type { Grid } from '../../../src/core/grid/grid.ts';
+import { patchTerm } from '../../../src/core/kernels/spec.ts';
 import type { PriorSpec } from '../../../src/core/prior/spec.ts';
 import type { Problem } from '../../../src/core/problems/spec.ts';
 import { Random } from '../../../src/core/sampling/random.ts';
@@ -78,7 +79,7 @@ describe('evidence map of one length of an anisotropic term (axis l1 / l2)', () 
     const t = prior.terms[0]!;
     map.lengths.forEach((len, i) =>
       map.variances.forEach((v, j) => {
-        const direct = logEvidence(problem, { ...prior, terms: [{ ...t, lengths: lengthsAt(len), variance: v }] });
+        const direct = logEvidence(problem, { ...prior, terms: [patchTerm(t, { lengths: lengthsAt(len), variance: v })] });
         expect(Math.abs(map.logEvidence[i * map.variances.length + j]! - direct)).toBeLessThanOrEqual(1e-10 * Math.max(1, Math.abs(direct)));
       }),
     );
