@@ -64,7 +64,7 @@ describe('fit', () => {
   it.each([
     [['--free', 'range'], /--free items must be one of variance, length, lengths, angle, nu, nugget or termK\.NAME.*got "range"/],
     [['--free', 'nugget'], /--free nugget: the prior's nugget is 0; give a starting nugget > 0/],
-    [['--free', 'nu'], /no term of the prior has a nu to fit \(only matern terms have a smoothness ν\)/],
+    [['--free', 'nu'], /--free item "nu": no term of the prior has a nu \(only matern terms have a smoothness ν\)/],
     [['--free', 'term3.length'], /the prior has 1 term \(term0 … term0\)/],
     [['--free', 'lengths'], /only anisotropic 2-D terms have "lengths"/],
     [['--free', 'variance', '--bounds', 'length=1:2'], /--bounds length: term0\.length is not free/],

@@ -123,6 +123,24 @@ describe('score, profile and calibrate against numpy/scipy', () => {
     expect(bad.err).toMatch(/value 2 of term0\.variance must be > 0, got -2/);
   });
 
+  it.each([
+    [['calibrate', '--problem', 'p.json', '--prior', 'exp.json', '--replicates', '0', '--seed', '1'], /^priorscope calibrate: --replicates must be an integer from 1 to 1000000, got "0"/],
+    [['calibrate', '--problem', 'p.json', '--replicates', '3', '--seed', '1'], /^priorscope calibrate: give a prior file: --prior Q\.json, or several prior files as arguments/],
+    [['calibrate', '--problem', 'p.json', '--prior', 'exp.json', '--replicates', '3', '--seed', '1', '--draws', '0'], /--draws must be an integer from 1 to 65534/],
+    [['calibrate', '--problem', 'p.json', '--prior', ...new Array<string>(9).fill('exp.json'), '--replicates', '1', '--seed', '1'], /give at most 8 prior files for a cross-table, got 9/],
+    [['profile', '--problem', 'p.json', '--prior', 'exp.json', '--parameter', 'nugget'], /give either --values V1,V2,… or --range lo:hi:n/],
+    [['profile', '--problem', 'p.json', '--prior', 'exp.json', '--parameter', 'term0.angle', '--values', '1'], /--parameter item "term0\.angle": term 0 has no angle \(only anisotropic 2-D terms/],
+    [['profile', '--problem', 'p.json', '--prior', 'exp.json', '--parameter', 'term0.length', '--range', '5:1:3'], /--range must have lo ≤ hi/],
+    [['score', '--problem', 'p.json', '--prior', 'missing.json'], /^missing\.json: cannot be read: no such file/],
+    [['merge', '.'], /^\.: cannot be read: it is a directory, not a file/],
+  ])('bad input %j: exit 2, one line', async (args, message) => {
+    const r = await runCommand(args, dir);
+    expect(r.code).toBe(2);
+    expect(r.err).toMatch(message);
+    expect(r.err.trim().split('\n')).toHaveLength(1);
+    expect(r.out).toBe('');
+  });
+
   it('calibrate: self-calibration is nominal within 4 standard errors; the same seed gives the same bytes', async () => {
     const args = ['calibrate', '--problem', 'p.json', '--prior', 'exp.json', '--replicates', '120', '--seed', '2024', '--draws', '9'];
     const r = await runCommand(args, dir);

@@ -43,7 +43,7 @@ export function select(word: string, all: readonly HyperParameter[], prior: Prio
   };
   const out = all.filter((h) => h.term !== null && (term === null || h.term === term) && fields[what]!.includes(h.field)).map((h) => h.name);
   if (out.length === 0) {
-    const where = term === null ? 'no term of the prior has' : `term ${term} has no`;
+    const where = term === null ? `no term of the prior has a ${what}` : `term ${term} has no ${what}`;
     const why: Record<string, string> = {
       variance: '',
       length: ' (an anisotropic term has "lengths": free them with lengths)',
@@ -53,7 +53,7 @@ export function select(word: string, all: readonly HyperParameter[], prior: Prio
       angle: ' (only anisotropic 2-D terms, with "lengths", have an angle)',
       nu: ' (only matern terms have a smoothness ν)',
     };
-    throw new UsageError(`${option} item ${JSON.stringify(word)}: ${where} a ${what} to fit${why[what]}`);
+    throw new UsageError(`${option} item ${JSON.stringify(word)}: ${where}${why[what]}`);
   }
   return out;
 }
