@@ -19,8 +19,8 @@ import { covarianceMatrix } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import { kernelDefinition } from '../kernels/table.ts';
 import { circulantEmbedding, gridAxes, productPadding, stationaryCovariance } from './embedding.ts';
-import { Fft2 } from './fft2.ts';
-import { fftEngine, type FftEngine } from '../wasm/fft.ts';
+import type { FftEngine, FftImplementation } from './engine.ts';
+import { fftEngine } from './transform.ts';
 
 export type CovariancePath = 'fft' | 'dense';
 
@@ -61,22 +61,16 @@ export function isStationaryOnGrid(grid: Grid, prior: PriorSpec): boolean {
 }
 
 /**
- * The kernel part C of the prior on one grid as a circulant product. A product runs as
- *   forward x-passes on the ny rows that hold data → along y for all columns at once: F_y, × λ/P,
- *   F_y (radix-4 butterflies across whole rows; ../fft/fft2.ts rowFilter) → forward x-passes on
- *   the ny rows that are wanted,
- * (forward transforms only, F⁻¹ = (1/P) R F with R the index reversal),
- * so buffers hold ny (not py) rows. The "row spectrum" R = F_x pad(a + i b) (ny rows of px complex
- * values) depends only on the vectors, not on the prior: it is what callers cache.
- * Workspace is per instance; not for concurrent use.
- *
- * With WebAssembly SIMD (and px, py ≥ 4) the same product runs in the kernel of
- * ../wasm/wat/fft.wat (Stockham radix-4, natural order): x-passes on the rows that hold data
- * (the zero half px/2 … px − 1 of each padded row is not read), F_y over all columns at once
- * (rows ≥ py/2 not read), × λ/P, then inverse-direction (unnormalised) transforms along y and
- * along x on the ny rows that are wanted (no index reversal: F⁻¹ = (1/P) R F read backwards). Full spectra are saved in Fft2.rowFilter's row order ({@link Fft2.spectrumRowOrder})
- * so saved spectra work on either route. Which route runs is fixed per instance at construction;
- * every instance in a realm takes the same one, so split and threaded runs stay bit-identical.
+ * The kernel part C of the prior on one grid as a circulant product, on the realm's FFT engine
+ * (./transform.ts: WebAssembly SIMD or its bit-identical JavaScript twin, Stockham radix-4, natural
+ * order). A product C̃ x = F⁻¹(λ ⊙ F pad x) of two real vectors at once (a + i b) runs as
+ *   x-passes on the ny rows that hold data (the zero half px/2 … px − 1 of each padded row is not
+ *   read) → F_y over all columns at once (rows ≥ py/2 not read) → × λ/P → inverse-direction
+ *   (unnormalised) transforms along y and along x on the ny rows and nx columns that are wanted,
+ * so no work is spent on the padding that is known to be zero or thrown away. The "row spectrum"
+ * R = F_x pad(a + i b) (ny rows of px complex values) depends only on the vectors, not on the prior;
+ * the full spectrum F pad(a + i b) (natural order) is what callers cache across priors.
+ * Workspace is the engine's memory; not for concurrent use within a realm.
  */
 export class CirculantProduct {
   readonly nx: number;
@@ -87,17 +81,11 @@ export class CirculantProduct {
   readonly eigenvalues: Float64Array;
   /** c(0, 0), the kernel variance Σ_t variance_t. */
   readonly variance: number;
-  private readonly lambdaT: Float64Array;
-  private readonly fft: Fft2;
-  private readonly work: Float64Array;
-  private readonly rowIn: Float64Array;
-  private readonly rowOut: Float64Array;
-  /** The WebAssembly engine, or null for the JavaScript route. */
-  private readonly engine: FftEngine | null;
-  /** λ/(px·py) in the eigenvalues' layout (x fastest), for the WebAssembly route. */
-  private readonly lambdaN: Float64Array | null;
+  private readonly engine: FftEngine;
+  /** λ/(px·py) in the eigenvalues' layout (x fastest): the inverse transform's scale, folded in. */
+  private readonly lambdaN: Float64Array;
 
-  constructor(grid: Grid, prior: PriorSpec, padding?: readonly [number, number]) {
+  constructor(grid: Grid, prior: PriorSpec, padding?: readonly [number, number], engine: FftEngine = fftEngine()) {
     const { nx, ny } = gridAxes(grid);
     this.nx = nx;
     this.ny = ny;
@@ -108,36 +96,31 @@ export class CirculantProduct {
     }
     const { px, py } = this;
     this.eigenvalues = circulantEmbedding(grid, prior.terms, px, py).eigenvalues;
-    this.lambdaT = new Float64Array(px * py);
-    // λ' = λ / (px·py): the inverse transform's scale, folded in (see Fft2.rowFilter).
-    const scale = 1 / (px * py);
-    for (let ky = 0; ky < py; ky++) for (let kx = 0; kx < px; kx++) this.lambdaT[kx * py + ky] = scale * this.eigenvalues[kx + px * ky]!;
     this.variance = stationaryCovariance(prior.terms)(0, 0);
-    this.fft = new Fft2(px, py);
-    this.work = new Float64Array(2 * px * ny);
-    // One padded input row (its tail beyond nx stays zero) and one transformed output row.
-    this.rowIn = new Float64Array(2 * px);
-    this.rowOut = new Float64Array(2 * px);
-    this.engine = px >= 4 && py >= 4 ? fftEngine() : null;
-    this.lambdaN = this.engine === null ? null : this.eigenvalues.map((v) => v * scale);
+    this.engine = engine;
+    const scale = 1 / (px * py);
+    this.lambdaN = this.eigenvalues.map((v) => v * scale);
   }
 
-  /** Whether products run in the WebAssembly kernel (else fft.js and Fft2's JavaScript y-pass). */
-  get usesWasm(): boolean {
-    return this.engine !== null;
+  /** Which FFT implementation runs the products. */
+  get implementation(): FftImplementation {
+    return this.engine.implementation;
   }
 
   /**
-   * Byte addresses of the kernel regions (after the twiddle tables and the resident λ): Y, Z, T of
+   * Byte addresses of the work regions (after the twiddle tables and the resident λ): Y, Z, T of
    * px·py complex values (T the kernel's scratch), X of px·ny; and a current view of the memory.
    */
-  private regions(e: FftEngine) {
+  private regions() {
+    const e = this.engine;
     const { px, py, ny } = this;
-    e.twiddles(px, false);
-    e.twiddles(py, false);
-    e.twiddles(px, true);
-    e.twiddles(py, true);
-    const { at: lam, end } = e.resident(this.lambdaN!);
+    for (const n of [px, py]) {
+      if (n > 1) {
+        e.twiddles(n, false);
+        e.twiddles(n, true);
+      }
+    }
+    const { at: lam, end } = e.resident(this.lambdaN);
     const full = 16 * px * py;
     const y = end;
     const z = y + full;
@@ -157,42 +140,15 @@ export class CirculantProduct {
    * imaginary part). a and b are grid vectors of length nx·ny.
    */
   spectrum(a: ArrayLike<number>, b: ArrayLike<number> | null, out: Float64Array): Float64Array {
-    if (this.engine !== null) return this.spectrumWasm(this.engine, a, b, out);
+    const e = this.engine;
     const { nx, ny, px } = this;
-    const row = this.rowIn;
-    const w = 2 * px;
-    for (let iy = 0; iy < ny; iy++) {
-      const o = w * iy;
-      const g = nx * iy;
-      // A grid row that is zero in both vectors has a zero transform: skipped.
-      let any = false;
-      for (let ix = 0; ix < nx; ix++) {
-        const v = a[g + ix]!;
-        row[2 * ix] = v;
-        if (v !== 0) any = true;
-      }
-      if (b !== null) {
-        for (let ix = 0; ix < nx; ix++) {
-          const v = b[g + ix]!;
-          row[2 * ix + 1] = v;
-          if (v !== 0) any = true;
-        }
-      } else {
-        for (let ix = 0; ix < nx; ix++) row[2 * ix + 1] = 0;
-      }
-      if (any) this.fft.transformRow(row, out.subarray(o, o + w));
-      else out.fill(0, o, o + w);
-    }
-    return out;
-  }
-
-  private spectrumWasm(e: FftEngine, a: ArrayLike<number>, b: ArrayLike<number> | null, out: Float64Array): Float64Array {
-    const { nx, ny, px } = this;
-    const { x, z, t, view } = this.regions(e);
+    const { x, z, t, view } = this.regions();
     const w = 2 * px;
     const x0 = x / 8;
     const z0 = z / 8;
     const rowBytes = 16 * px;
+    // Doubles of a padded row that must be zero: up to the half the kernel reads (px ≥ 4), else all.
+    const readEnd = px >= 4 ? px : w;
     // Runs of rows holding data are transformed in one call each; all-zero rows give zero rows.
     let start = -1;
     const flush = (end: number): void => {
@@ -221,9 +177,8 @@ export class CirculantProduct {
           any ||= u !== 0;
         }
       }
-      // The kernel does not read the upper half (px/2 … px − 1); nx … px/2 − 1 must be zero.
       if (any) {
-        if (2 * nx < px) view.fill(0, o + 2 * nx, o + px);
+        if (2 * nx < readEnd) view.fill(0, o + 2 * nx, o + readEnd);
         if (start < 0) start = iy;
       } else {
         flush(iy);
@@ -234,7 +189,7 @@ export class CirculantProduct {
     return out;
   }
 
-  /** Length of one full 2-D spectrum (px·py complex values, in Fft2.rowFilter's order). */
+  /** Length of one full 2-D spectrum (px·py complex values, natural order). */
   get columnSpectrumLength(): number {
     return 2 * this.px * this.py;
   }
@@ -242,85 +197,49 @@ export class CirculantProduct {
   /**
    * From a row spectrum R = F_x pad(a + i b): outA = [C̃ a]_grid, outB = [C̃ b]_grid (outB may be
    * null), written at the given offsets. `spec` is not modified. With `save`, the full 2-D
-   * spectrum F pad(a + i b) is kept there (Fft2.rowFilter's internal row order) for
-   * {@link fromColumnSpectrum}.
+   * spectrum F pad(a + i b) is kept there for {@link fromColumnSpectrum}.
    */
   fromSpectrum(spec: Float64Array, outA: Float64Array, outB: Float64Array | null, offsetA = 0, offsetB = 0, save: Float64Array | null = null): void {
-    if (this.engine !== null) {
-      this.fromSpectrumWasm(this.engine, spec, outA, outB, offsetA, offsetB, save);
-      return;
+    const { px, py, ny } = this;
+    const r = this.regions();
+    const w = 2 * px;
+    const y0 = r.y / 8;
+    r.view.set(spec.subarray(0, w * ny), y0);
+    // Rows ny … py/2 − 1 are zero; rows ≥ py/2 are not read (py ≥ 4), else all rows are read.
+    r.view.fill(0, y0 + w * ny, y0 + w * (py >= 4 ? py >> 1 : py));
+    this.engine.run(r.y, r.z, r.t, py, px, 1, 0, false, true);
+    if (save !== null) {
+      if (save.length < w * py) throw new RangeError(`CirculantProduct.fromSpectrum: save has length ${save.length}, expected ${w * py}`);
+      const z0 = r.z / 8;
+      save.set(this.engine.f64().subarray(z0, z0 + w * py));
     }
-    // Forward transforms only: y = (1/P) R F (λ ⊙ F x); rows come back reversed from the column
-    // filter, columns are read at −ix mod px in finish().
-    this.fft.rowFilter(spec, this.lambdaT, this.ny, this.ny, this.work, save);
-    this.finish(outA, outB, offsetA, offsetB);
+    this.filter(r, outA, outB, offsetA, offsetB, false);
   }
 
   /** As {@link fromSpectrum}, from a full 2-D spectrum kept by its `save` (one y-pass less). */
   fromColumnSpectrum(spec: Float64Array, outA: Float64Array, outB: Float64Array | null, offsetA = 0, offsetB = 0): void {
-    if (this.engine !== null) {
-      const { px, py } = this;
-      const r = this.regions(this.engine);
-      const order = this.fft.spectrumRowOrder();
-      const w = 2 * px;
-      // The saved rows go to T as they are; Z row order[p] ← (λ/P) ⊙ T row p in the kernel.
-      r.view.set(spec.subarray(0, w * py), r.t / 8);
-      for (let p = 0; p < py; p++) this.engine.scaleInto(r.z + 8 * w * order[p]!, r.t + 8 * w * p, r.lam + 8 * px * order[p]!, px);
-      this.filterWasm(this.engine, r, outA, outB, offsetA, offsetB, true);
-      return;
-    }
-    this.fft.rowFilterCached(spec, this.lambdaT, this.ny, this.work);
-    this.finish(outA, outB, offsetA, offsetB);
-  }
-
-  private fromSpectrumWasm(
-    e: FftEngine,
-    spec: Float64Array,
-    outA: Float64Array,
-    outB: Float64Array | null,
-    offsetA: number,
-    offsetB: number,
-    save: Float64Array | null,
-  ): void {
-    const { px, py, ny } = this;
-    const r = this.regions(e);
-    const w = 2 * px;
-    const y0 = r.y / 8;
-    r.view.set(spec.subarray(0, w * ny), y0);
-    // Rows ny … py/2 − 1 are zero; rows ≥ py/2 are not read (py ≥ 2 ny).
-    r.view.fill(0, y0 + w * ny, y0 + w * (py >> 1));
-    e.run(r.y, r.z, r.t, py, px, 1, 0, false, true);
-    if (save !== null) {
-      if (save.length < w * py) throw new RangeError(`CirculantProduct.fromSpectrum: save has length ${save.length}, expected ${w * py}`);
-      const order = this.fft.spectrumRowOrder();
-      const z0 = r.z / 8;
-      for (let p = 0; p < py; p++) save.set(r.view.subarray(z0 + w * order[p]!, z0 + w * (order[p]! + 1)), w * p);
-    }
-    this.filterWasm(e, r, outA, outB, offsetA, offsetB);
+    const { px, py } = this;
+    const r = this.regions();
+    // The saved spectrum goes to T; Z ← (λ/P) ⊙ T in the kernel.
+    r.view.set(spec.subarray(0, 2 * px * py), r.t / 8);
+    this.engine.scaleInto(r.z, r.t, r.lam, px * py);
+    this.filter(r, outA, outB, offsetA, offsetB, true);
   }
 
   /**
    * From the full spectrum in region Z (natural order): × λ/P (unless `scaled`), then the inverse-direction
-   * (unnormalised, e^(+2πi…)) transforms along y into Y and along x on rows t < ny into X — the
-   * same as the forward transforms read at (−t, −ix) of the JS route, F⁻¹ = (1/P) R F — so
-   * out[t][ix] = X[t][ix] (re → outA, im → outB) with no index reversal.
+   * (unnormalised, e^(+2πi…)) transforms along y into Y and along x on rows t < ny into X, so
+   * out[t][ix] = X[t][ix] (re → outA, im → outB).
    */
-  private filterWasm(
-    e: FftEngine,
-    r: ReturnType<CirculantProduct['regions']>,
-    outA: Float64Array,
-    outB: Float64Array | null,
-    offsetA: number,
-    offsetB: number,
-    scaled = false,
-  ): void {
+  private filter(r: ReturnType<CirculantProduct['regions']>, outA: Float64Array, outB: Float64Array | null, offsetA: number, offsetB: number, scaled: boolean): void {
+    const e = this.engine;
     const { nx, ny, px, py } = this;
     const rowBytes = 16 * px;
     if (!scaled) e.scale(r.z, r.lam, px * py);
     // Only rows t < ny ≤ py/2 and columns ix < nx ≤ px/2 are read out.
     e.run(r.z, r.y, r.t, py, px, 1, 0, true, false, true);
     e.run(r.y, r.x, r.t, px, 1, ny, rowBytes, true, false, true);
-    const v = r.view;
+    const v = e.f64();
     const w = 2 * px;
     const x0 = r.x / 8;
     for (let t = 0; t < ny; t++) {
@@ -333,23 +252,6 @@ export class CirculantProduct {
         }
       } else {
         for (let ix = 0; ix < nx; ix++) outA[offsetA + g + ix] = v[o + 2 * ix]!;
-      }
-    }
-  }
-
-  private finish(outA: Float64Array, outB: Float64Array | null, offsetA: number, offsetB: number): void {
-    const { nx, ny, px } = this;
-    const work = this.work;
-    const t = this.rowOut;
-    const w = 2 * px;
-    for (let iy = 0; iy < ny; iy++) {
-      this.fft.transformRow(work.subarray(w * iy, w * (iy + 1)), t);
-      const g = nx * iy;
-      outA[offsetA + g] = t[0]!;
-      for (let ix = 1; ix < nx; ix++) outA[offsetA + g + ix] = t[2 * (px - ix)]!;
-      if (outB !== null) {
-        outB[offsetB + g] = t[1]!;
-        for (let ix = 1; ix < nx; ix++) outB[offsetB + g + ix] = t[2 * (px - ix) + 1]!;
       }
     }
   }

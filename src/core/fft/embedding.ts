@@ -22,8 +22,7 @@
 import { correlationFunction } from '../kernels/correlation.ts';
 import type { Term } from '../kernels/spec.ts';
 import type { Grid } from '../grid/grid.ts';
-import { forwardTransform1, nextPowerOfTwo } from './fft2.ts';
-import { wasmFftAvailable, wasmFftBatch } from '../wasm/fft.ts';
+import { fftBatch, nextPowerOfTwo } from './transform.ts';
 
 /** Σ_t variance_t ρ_t(h_t(ox, oy)) at a physical offset (ox, oy); oy ≡ 0 on a 1-D grid. */
 export function stationaryCovariance(terms: readonly Term[]): (ox: number, oy: number) => number {
@@ -181,7 +180,7 @@ export function evenRealSpectrum(base: Float64Array, px: number, py: number): Fl
       z[o + 2 * j + 1] = b < 0 ? 0 : base[b * px + j]!;
     }
   }
-  const zf = batchForward(z, px, rowPairs);
+  const zf = fftBatch(z, px, rowPairs);
   // cols[2(kx·hy + jy)]: R_jy(kx), complex.
   const cols = new Float64Array(2 * hx * hy);
   for (let p = 0; p < rowPairs; p++) {
@@ -236,7 +235,7 @@ export function evenRealSpectrum(base: Float64Array, px: number, py: number): Fl
       }
     }
   }
-  const wf = batchForward(w, py, colPairs);
+  const wf = fftBatch(w, py, colPairs);
   const lam = new Float64Array(px * py);
   for (let q = 0; q < colPairs; q++) {
     const k1 = 2 * q;
@@ -253,12 +252,4 @@ export function evenRealSpectrum(base: Float64Array, px: number, py: number): Fl
     for (let kx = hx; kx < px; kx++) lam[kx + px * ky] = lam[px - kx + px * my]!;
   }
   return lam;
-}
-
-/** `count` forward transforms of length n (contiguous): the WebAssembly batch kernel, else fft.js. */
-function batchForward(src: Float64Array, n: number, count: number): Float64Array {
-  if (n >= 4 && wasmFftAvailable()) return wasmFftBatch(src, n, count);
-  const out = new Float64Array(src.length);
-  for (let b = 0; b < count; b++) forwardTransform1(n, src.subarray(2 * n * b, 2 * n * (b + 1)), out.subarray(2 * n * b, 2 * n * (b + 1)));
-  return out;
 }

@@ -1,6 +1,6 @@
 /**
- * Benchmarks of the FFT path (not timed tests): transforms, one Bᵀ pair product on each route
- * (WebAssembly SIMD and fft.js + JavaScript), the structured posterior on 64² and
+ * Benchmarks of the FFT path (not timed tests): transforms, one Bᵀ pair product on each FFT engine
+ * (WebAssembly SIMD and its JavaScript twin), the structured posterior on 64² and
  * 128² grids with M = 400 straight-ray data (Matérn ν = 1.5), and one 512² realisation.
  *
  * Targets: 64² mean ≤ 150 ms, mean + std ≤ 400 ms; 128² mean + std ≤ 2 s with peak
@@ -26,7 +26,7 @@ import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { CirculantProduct } from '../../../src/core/fft/covariance.ts';
 import { Fft2 } from '../../../src/core/fft/fft2.ts';
-import { forceWasmOffForTesting } from '../../../src/core/wasm/runtime.ts';
+import { javascriptFftEngine, wasmFftEngine } from '../../../src/core/fft/transform.ts';
 import { circulantSampler } from '../../../src/core/fft/realisations.ts';
 import type { Grid } from '../../../src/core/grid/grid.ts';
 import { prepareStructuredPosterior, structuredPosteriorStd, structuredProblem } from '../../../src/core/inverse/structured.ts';
@@ -128,11 +128,11 @@ function posteriorCases(n: number): BenchCase[] {
   ];
 }
 
-/** One 2-D transform, or 1000 1-D transforms (a single one is too short to time). */
+/** One 2-D transform, or 1000 1-D transforms (a single one is too short to time), on the realm's engine. */
 function fftCase(px: number, py: number): BenchCase {
   const reps = py === 1 ? 1000 : 1;
   return {
-    name: `fft.js ${py === 1 ? `1-D ${px}` : `2-D ${px}x${py}`} complex${reps > 1 ? ` (x${reps} per run)` : ' (rows, then columns)'}`,
+    name: `Fft2 ${py === 1 ? `1-D ${px}` : `2-D ${px}x${py}`} complex${reps > 1 ? ` (x${reps} per run)` : ' (rows, then columns)'}`,
     params: { px, py, reps },
     runs: 9,
     setup: () => {
@@ -149,18 +149,17 @@ function fftCase(px: number, py: number): BenchCase {
 
 /**
  * One pair product of the posterior's Bᵀ rows (Cm·g for two data rows at once: spectrum of the
- * padded pair, λ, back), 100 per run, on the WebAssembly SIMD route or the fft.js / JavaScript one.
+ * padded pair, λ, back), 100 per run, on the WebAssembly SIMD engine or the JavaScript one.
  */
 function pairCase(n: number, route: 'wasm' | 'js'): BenchCase {
   const reps = 100;
   return {
-    name: `circulant pair product ${n}x${n} (${route === 'wasm' ? 'WebAssembly SIMD' : 'fft.js + JS'}, x${reps} per run)`,
+    name: `circulant pair product ${n}x${n} (${route === 'wasm' ? 'WebAssembly SIMD' : 'JavaScript'}, x${reps} per run)`,
     params: { grid: n, reps },
     setup: () => {
-      forceWasmOffForTesting(route === 'js');
-      const cp = new CirculantProduct({ shape: [n, n], spacing: [1, 1] }, benchPrior(n));
-      forceWasmOffForTesting(false);
-      if (cp.usesWasm !== (route === 'wasm')) throw new Error(`pair case: route ${route} not available`);
+      const engine = route === 'wasm' ? wasmFftEngine() : javascriptFftEngine();
+      if (engine === null) throw new Error('pair case: WebAssembly SIMD not available');
+      const cp = new CirculantProduct({ shape: [n, n], spacing: [1, 1] }, benchPrior(n), undefined, engine);
       const rng = new Random(3);
       const a = rng.fillNormal(new Float64Array(n * n));
       const b = rng.fillNormal(new Float64Array(n * n));
@@ -233,7 +232,7 @@ function runChild(index: number): ChildResult {
     times.push(performance.now() - t0);
     const du = process.cpuUsage(c0);
     cpu.push((du.user + du.system) / 1000);
-    if (typeof out === 'number' && c.name.startsWith('fft.js')) {
+    if (typeof out === 'number' && c.name.startsWith('Fft2')) {
       times[times.length - 1]! /= out;
       cpu[cpu.length - 1]! /= out;
     }

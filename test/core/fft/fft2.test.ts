@@ -1,6 +1,7 @@
 /** Properties of the 2-D transform (numpy.fft is the outside check in test/reference/fft.test.ts). */
 import { describe, expect, it } from 'vitest';
-import { Fft2, fft1, nextPowerOfTwo } from '../../../src/core/fft/fft2.ts';
+import { Fft2 } from '../../../src/core/fft/fft2.ts';
+import { fftBatch, nextPowerOfTwo } from '../../../src/core/fft/transform.ts';
 import { relErr, seededVector } from './cases.ts';
 
 describe('Fft2', () => {
@@ -42,10 +43,10 @@ describe('Fft2', () => {
     expect(Math.abs(e(y) - 512 * e(x)) / e(y)).toBeLessThan(1e-13);
   });
 
-  it('fft1 of an impulse is all ones; sizes that are not powers of two are refused', () => {
-    const x = new Float64Array(16);
-    x[0] = 1;
-    fft1(x);
+  it('the transform of an impulse is all ones; sizes that are not powers of two are refused', () => {
+    const i = new Float64Array(16);
+    i[0] = 1;
+    const x = fftBatch(i, 8, 1);
     for (let k = 0; k < 8; k++) expect([x[2 * k], x[2 * k + 1]]).toEqual([1, 0]);
     expect(() => new Fft2(12, 4)).toThrow(/powers of two/);
     expect(nextPowerOfTwo(127)).toBe(128);
@@ -54,76 +55,51 @@ describe('Fft2', () => {
 });
 
 /**
- * Direct DFT along y from the definition X(k) = Σ_j x(j) e^(−2πi jk/p) (the convention of the
- * header of src/core/fft/fft2.ts, numpy.fft's; O(p²), independent of any fast algorithm).
+ * Direct 2-D DFT from the definition X(k) = Σ_j x(j) e^(∓2πi (kx jx / px + ky jy / py)) (the
+ * convention of the header of src/core/fft/fft2.ts, numpy.fft's; O(P²), no fast algorithm).
  */
-function directColumnFilter(buf: Float64Array, lambdaT: Float64Array, px: number, py: number, gatherRows: number, scatterRows: number): Float64Array {
-  const out = new Float64Array(2 * px * scatterRows);
-  const dft = (re: Float64Array, im: Float64Array): [Float64Array, Float64Array] => {
-    const R = new Float64Array(py);
-    const I = new Float64Array(py);
-    for (let k = 0; k < py; k++) {
-      for (let j = 0; j < py; j++) {
-        const a = (-2 * Math.PI * ((j * k) % py)) / py;
-        R[k] += re[j]! * Math.cos(a) - im[j]! * Math.sin(a);
-        I[k] += re[j]! * Math.sin(a) + im[j]! * Math.cos(a);
+function directDft2(x: Float64Array, px: number, py: number, inverse: boolean): Float64Array {
+  const out = new Float64Array(2 * px * py);
+  const sign = inverse ? 1 : -1;
+  for (let ky = 0; ky < py; ky++) {
+    for (let kx = 0; kx < px; kx++) {
+      let re = 0;
+      let im = 0;
+      for (let jy = 0; jy < py; jy++) {
+        for (let jx = 0; jx < px; jx++) {
+          const a = sign * 2 * Math.PI * (((kx * jx) % px) / px + ((ky * jy) % py) / py);
+          const xr = x[2 * (jx + px * jy)]!;
+          const xi = x[2 * (jx + px * jy) + 1]!;
+          re += xr * Math.cos(a) - xi * Math.sin(a);
+          im += xr * Math.sin(a) + xi * Math.cos(a);
+        }
       }
-    }
-    return [R, I];
-  };
-  for (let kx = 0; kx < px; kx++) {
-    const re = new Float64Array(py);
-    const im = new Float64Array(py);
-    for (let r = 0; r < gatherRows; r++) {
-      re[r] = buf[2 * (r * px + kx)]!;
-      im[r] = buf[2 * (r * px + kx) + 1]!;
-    }
-    const [R, I] = dft(re, im);
-    for (let k = 0; k < py; k++) {
-      R[k] *= lambdaT[kx * py + k]!;
-      I[k] *= lambdaT[kx * py + k]!;
-    }
-    const [V, W] = dft(R, I);
-    for (let t = 0; t < scatterRows; t++) {
-      const s = (py - t) % py;
-      out[2 * (t * px + kx)] = V[s]!;
-      out[2 * (t * px + kx) + 1] = W[s]!;
+      const o = 2 * (kx + px * ky);
+      out[o] = inverse ? re / (px * py) : re;
+      out[o + 1] = inverse ? im / (px * py) : im;
     }
   }
   return out;
 }
 
-describe('Fft2.rowFilter (y-pass across whole rows, radix-2/4)', () => {
-  // py = 2 … 128 covers the pure radix-2 case and both parities of log2(py/2); gatherRows above
-  // py/2 takes the full first stage, scatterRows above py/2 the second half of the last stage.
-  const cases: [number, number, number, number][] = [
-    [1, 2, 1, 1], [2, 4, 2, 2], [4, 8, 3, 3], [4, 8, 7, 8], [8, 16, 8, 8], [4, 32, 9, 12], [2, 64, 32, 32], [2, 128, 64, 64],
-  ];
-  for (const [px, py, g, s] of cases) {
-    it(`equals the direct DFT filter for ${px} × ${py}, ${g} input rows, ${s} output rows`, () => {
-      const f = new Fft2(px, py);
-      const buf = seededVector(2 * px * py, 40 + py);
-      buf.fill(0, 2 * px * g);
-      const lam = seededVector(px * py, 50 + py).map((v) => 1 + Math.abs(v));
-      const want = directColumnFilter(buf, lam, px, py, g, s);
-      const dest = new Float64Array(2 * px * py);
-      const save = new Float64Array(f.rowSpectrumLength);
-      f.rowFilter(buf, lam, g, s, dest, save);
-      expect(relErr(dest.subarray(0, 2 * px * s), want)).toBeLessThan(1e-12);
-      // Without `save` the spectrum is built in the workspace (read in place by the λ product).
-      const plain = new Float64Array(2 * px * py);
-      f.rowFilter(buf, lam, g, s, plain);
-      expect(relErr(plain.subarray(0, 2 * px * s), want)).toBeLessThan(1e-12);
-      // The saved spectrum reproduces the same rows bit for bit.
-      const again = new Float64Array(2 * px * py);
-      f.rowFilterCached(save, lam, s, again);
-      expect(Array.from(again.subarray(0, 2 * px * s))).toEqual(Array.from(dest.subarray(0, 2 * px * s)));
-      // A wrong λ must be detected (the check can fail).
-      const off = lam.slice();
-      off[px * py - 1] = off[px * py - 1]! + 1;
-      const bad = new Float64Array(2 * px * py);
-      f.rowFilter(buf, off, g, s, bad);
-      expect(relErr(bad.subarray(0, 2 * px * s), want)).toBeGreaterThan(1e-8);
+describe('Fft2 on small and degenerate sizes (sizes 1 and 2 take the copy and radix-2 paths)', () => {
+  const shapes: [number, number][] = [[1, 1], [1, 2], [2, 1], [2, 2], [4, 2], [2, 8], [8, 4], [16, 1], [1, 16]];
+  for (const [px, py] of shapes) {
+    it(`${px} × ${py}: full, inputRows and outputRows transforms equal the direct DFT`, () => {
+      for (const inverse of [false, true]) {
+        for (const rows of [1, Math.max(1, py >> 1), py]) {
+          const x = seededVector(2 * px * py, 70 + px + 3 * py + rows);
+          const zeroed = x.slice().fill(0, 2 * px * rows);
+          const want = directDft2(zeroed, px, py, inverse);
+          const a = zeroed.slice();
+          new Fft2(px, py).transform(a, { inverse, inputRows: rows });
+          expect(relErr(a, want)).toBeLessThan(1e-14);
+          const full = directDft2(x, px, py, inverse);
+          const b = x.slice();
+          new Fft2(px, py).transform(b, { inverse, outputRows: rows });
+          expect(relErr(b.subarray(0, 2 * px * rows), full.subarray(0, 2 * px * rows))).toBeLessThan(1e-14);
+        }
+      }
     });
   }
 });

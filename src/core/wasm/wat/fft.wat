@@ -1,6 +1,7 @@
 ;; The complex FFT kernel (assembled by test/tooling/wasm.ts into ../modules.ts): batches of
 ;; power-of-two DFTs X(k) = Σ_j x(j) e^(∓2πi jk/n) on interleaved complex f64 data, one complex
-;; number per v128 (f64x2 lanes re, im).
+;; number per v128 (f64x2 lanes re, im). Its JavaScript twin, with the same operations in the same
+;; order, is src/core/fft/stockham.ts (the engine both serve: src/core/fft/engine.ts).
 ;;
 ;; Algorithm: Stockham autosort, radix-4 stages then one radix-2 stage when log2 n is odd (Van Loan,
 ;; Computational Frameworks for the Fast Fourier Transform, SIAM 1992, §1.7, memory; the loop
@@ -24,7 +25,7 @@
 ;;   flags bit 1: the first stage writes dst (set when the number of stages is odd);
 ;;   flags bit 2: only outputs k < n/2 are wanted (the last stage writes no others; they are
 ;;   left stale). The last radix-4 stage (L = 4) has unit twiddles and skips the products.
-;;   tw: the twiddle table of twiddleTable (src/core/wasm/fftModule.ts) for n and the direction: J as (∓1, ±1), then
+;;   tw: the twiddle table of twiddleTable (src/core/fft/twiddles.ts) for n and the direction: J as (∓1, ±1), then
 ;;   per radix-4 stage and p < L/4 the entry (W^p, W^2p, W^3p), each as (wr, wr), (−wi, wi).
 ;; scaleComplex(dst, src, lam, count): dst[i] ← lam[i]·src[i] for i < count (complex dst, src — equal
 ;;   or disjoint —, real lam with 8-byte elements).

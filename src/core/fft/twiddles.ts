@@ -1,13 +1,10 @@
 /**
- * The twiddle tables of the complex FFT kernel ./wat/fft.wat (see its header for the algorithm and
- * the exports) and the names of its exports.
+ * The twiddle tables of the Stockham FFT, shared by both implementations: the WebAssembly kernel
+ * src/core/wasm/wat/fft.wat (its header gives the algorithm) and its JavaScript twin ./stockham.ts.
  */
 
-export const FFT_EXPORT = 'fft';
-export const SCALE_EXPORT = 'scaleComplex';
-
 /** Bytes per twiddle entry: (W^p, W^2p, W^3p) as (wr, wr), (−wi, wi) pairs of v128. */
-const ENTRY = 96;
+export const TWIDDLE_ENTRY_BYTES = 96;
 
 /** Number of stages of an n-point transform (radix-4 stages, then radix-2 when log2 n is odd). */
 export function stageCount(n: number): number {
@@ -19,7 +16,7 @@ export function stageCount(n: number): number {
 export function twiddleTableLength(n: number): number {
   let entries = 0;
   for (let len = n; len >= 4; len >>= 2) entries += len >> 2;
-  return 2 + (ENTRY / 8) * entries;
+  return 2 + (TWIDDLE_ENTRY_BYTES / 8) * entries;
 }
 
 /**

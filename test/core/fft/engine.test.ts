@@ -1,13 +1,17 @@
 /**
- * The WebAssembly SIMD FFT kernel (src/core/wasm/wat/fft.wat, fft.ts) against the DFT definition
- * X(k) = Σ_j x(j) e^(∓2πi jk/n) summed directly (O(n²), no fast algorithm), the twiddle table
- * against its formula, and the engine's layouts (strided columns, batches, the zero-half flag).
- * numpy.fft is the outside check in test/reference/fft.test.ts.
+ * Both implementations of the FFT engine (src/core/fft/engine.ts) — the WebAssembly SIMD kernel
+ * (src/core/wasm/wat/fft.wat) and its JavaScript twin (src/core/fft/stockham.ts) — against the DFT
+ * definition X(k) = Σ_j x(j) e^(∓2πi jk/n) summed directly (O(n²), no fast algorithm), and against
+ * each other bit for bit; the twiddle table against its formula; the engine's layouts (strided
+ * columns, batches, the zero-half and half-output flags). numpy.fft is the outside check in
+ * test/reference/fft.test.ts.
  */
 import { describe, expect, it } from 'vitest';
-import { fftEngine, wasmFftAvailable, wasmFftBatch } from '../../../src/core/wasm/fft.ts';
-import { stageCount, twiddleTable, twiddleTableLength } from '../../../src/core/wasm/fftModule.ts';
-import { relErr, seededVector } from '../fft/cases.ts';
+import type { FftEngine } from '../../../src/core/fft/engine.ts';
+import { fftBatch, fftEngine, javascriptFftEngine, wasmFftEngine } from '../../../src/core/fft/transform.ts';
+import { stageCount, twiddleTable, twiddleTableLength } from '../../../src/core/fft/twiddles.ts';
+import { forceWasmOffForTesting } from '../../../src/core/wasm/runtime.ts';
+import { relErr, seededVector } from './cases.ts';
 
 /** Direct DFT of one interleaved sequence (x[j] at stride `stride` complex values from `offset`). */
 function directDft(x: Float64Array, n: number, inverse: boolean, offset = 0, stride = 1): Float64Array {
@@ -47,10 +51,24 @@ function allowance(n: number): number {
   return (lg * eta) / (1 - lg * eta) + 2 * n * u;
 }
 
-describe('wasm FFT kernel', () => {
-  it('is available here (otherwise these tests would only see the fallback)', () => {
-    expect(wasmFftAvailable()).toBe(true);
-  });
+it('WebAssembly SIMD is available here (otherwise the tests below would see JavaScript twice)', () => {
+  expect(wasmFftEngine()?.implementation).toBe('webassembly');
+  expect(fftEngine().implementation).toBe('webassembly');
+  forceWasmOffForTesting(true);
+  try {
+    expect(fftEngine().implementation).toBe('javascript');
+  } finally {
+    forceWasmOffForTesting(false);
+  }
+});
+
+const ENGINES: [string, () => FftEngine][] = [
+  ['webassembly', () => wasmFftEngine()!],
+  ['javascript', javascriptFftEngine],
+];
+
+describe.each(ENGINES)('FFT engine: %s', (_, engine) => {
+  const batch = (x: Float64Array, n: number, count: number, inverse = false) => fftBatch(x, n, count, inverse, engine());
 
   const sizes = [1, 2, 4, 8, 16, 32, 64, 128, 256, 512];
   for (const n of sizes) {
@@ -59,7 +77,7 @@ describe('wasm FFT kernel', () => {
         const count = 3;
         const x = seededVector(2 * n * count, n + (inverse ? 7 : 0));
         const keep = x.slice();
-        const y = wasmFftBatch(x, n, count, inverse);
+        const y = batch(x, n, count, inverse);
         expect(Array.from(x)).toEqual(Array.from(keep)); // the input is not touched
         for (let b = 0; b < count; b++) {
           const want = directDft(x, n, inverse, b * n);
@@ -73,18 +91,18 @@ describe('wasm FFT kernel', () => {
   it('a batch gives each item the bits of its transform alone (items are independent)', () => {
     const n = 64;
     const x = seededVector(2 * n * 5, 3);
-    const all = wasmFftBatch(x, n, 5);
-    const third = wasmFftBatch(x.slice(2 * n * 2, 2 * n * 3), n, 1);
+    const all = batch(x, n, 5);
+    const third = batch(x.slice(2 * n * 2, 2 * n * 3), n, 1);
     expect(Array.from(all.subarray(2 * n * 2, 2 * n * 3))).toEqual(Array.from(third));
   });
 
   it('inverse(forward(x)) = x to 1e-15 relative (n = 2048)', () => {
     const x = seededVector(2 * 2048, 4);
-    expect(relErr(wasmFftBatch(wasmFftBatch(x, 2048, 1), 2048, 1, true), x)).toBeLessThan(1e-15);
+    expect(relErr(batch(batch(x, 2048, 1), 2048, 1, true), x)).toBeLessThan(1e-15);
   });
 
   it('strided sequences (s = 6 interleaved, as the y-pass uses them) and the zero-half flag', () => {
-    const e = fftEngine()!;
+    const e = engine();
     for (const n of [2, 4, 8, 32, 64]) {
       const s = 6;
       const x = seededVector(2 * n * s, 20 + n);
@@ -126,7 +144,7 @@ describe('wasm FFT kernel', () => {
   });
 
   it('halfOut: outputs k < n/2 equal the full transform bit for bit (n = 2 … 256, s = 1 and 3)', () => {
-    const e = fftEngine()!;
+    const e = engine();
     for (const n of [2, 4, 8, 16, 64, 128, 256]) {
       for (const s of [1, 3]) {
         const x = seededVector(2 * n * s, 60 + n + s);
@@ -156,7 +174,7 @@ describe('wasm FFT kernel', () => {
   });
 
   it('scaleComplex multiplies each complex value by its real factor, exactly as JS does, in place or into another region', () => {
-    const e = fftEngine()!;
+    const e = engine();
     const m = 37;
     const z = seededVector(2 * m, 30);
     const lam = seededVector(m, 31);
@@ -179,8 +197,8 @@ describe('wasm FFT kernel', () => {
   });
 
   it('refuses sizes that are not powers of two and inputs of the wrong length, naming them', () => {
-    expect(() => wasmFftBatch(new Float64Array(12), 6, 1)).toThrow(/n must be a power of two ≥ 1, got 6/);
-    expect(() => wasmFftBatch(new Float64Array(10), 4, 1)).toThrow(/src must have 2·n·count = 8 values, got 10/);
+    expect(() => batch(new Float64Array(12), 6, 1)).toThrow(/n must be a power of two ≥ 1, got 6/);
+    expect(() => batch(new Float64Array(10), 4, 1)).toThrow(/src must have 2·n·count = 8 values, got 10/);
   });
 });
 
