@@ -127,8 +127,9 @@ function threadsOption(args: ParsedArgs): { threads: number; forced: boolean } {
 
 /**
  * Below this many multiply-adds of the std solve (M²N/2) the one-shot CLI stays on one thread:
- * starting the pool (worker threads, tsx's loader in each) costs 0.4–0.7 s here, more than the
- * split saves. Measured `priorscope posterior` wall time on the 2-core project machine (quiet
+ * starting the pool costs more than the split saves. Measured when each thread still loaded the
+ * sources through tsx (0.4–0.7 s per pool); the built command line's threads load the bundled
+ * dist-cli/pool-worker.mjs instead, so the threshold is now on the safe side until re-measured. Measured `priorscope posterior` wall time on the 2-core project machine (quiet
  * moments; --threads 1 → 2, the 2-thread run splitting both the products and the std), crosshole
  * problems of test/bench/cases/fft.ts on 128²: M = 400 (1.3e9) 1.33–1.72 → 1.72–1.90 s; M = 800
  * (5.2e9) 2.01–2.03 → 1.98–2.09 s (even); M = 1600 (2.1e10) 6.33–6.47 → 5.32–5.88 s. The

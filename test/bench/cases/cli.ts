@@ -6,7 +6,8 @@
  * build Cm, factor, solve, standard deviations; its own python3 process per run, ./cli.py); a
  * 10⁶-entry sparse operator in a JSON problem file and in a Matrix Market file: `posterior` peak
  * RSS ≤ 1.5 GB. Each child runs under /usr/bin/time: the "other" column gives its CPU time (user + system, less
- * sensitive to other load than the wall time; the dense script is also run here for its CPU time) and peak RSS.
+ * sensitive to other load than the wall time) and peak RSS; a paired case alternates the posterior and the dense
+ * script so that both see the same load.
  * `node -e 0` is timed as the floor any Node.js command starts from.
  */
 import { spawnSync } from 'node:child_process';
@@ -37,6 +38,7 @@ function ensureBundle(): void {
 
 /** One child's figures from /usr/bin/time: CPU seconds (user + system; less sensitive to other load than the wall time) and peak RSS. */
 interface ChildUsage {
+  readonly wallS: number;
   readonly cpuS: number;
   readonly peakMb: number;
 }
@@ -47,11 +49,13 @@ interface ChildUsage {
  */
 function timed(command: string, args: readonly string[], env: NodeJS.ProcessEnv = process.env): ChildUsage {
   if (!existsSync('/usr/bin/time')) throw new Error('bench cli: /usr/bin/time is needed (Debian package "time")');
+  const t0 = performance.now();
   const r = spawnSync('/usr/bin/time', ['-f', 'usage %U %S %M', command, ...args], { cwd: workDir, encoding: 'utf8', env, maxBuffer: 1 << 28 });
+  const wallS = (performance.now() - t0) / 1000;
   const lines = r.stderr.trimEnd().split('\n');
   const m = /^usage ([\d.]+) ([\d.]+) (\d+)$/.exec(lines[lines.length - 1] ?? '');
   if (r.status !== 0 || !m || lines.length !== 1) throw new Error(`bench cli: ${command} ${args.join(' ')} → exit ${r.status}: ${r.stderr}`);
-  return { cpuS: Number(m[1]) + Number(m[2]), peakMb: Number(m[3]) / 1024 };
+  return { wallS, cpuS: Number(m[1]) + Number(m[2]), peakMb: Number(m[3]) / 1024 };
 }
 
 const priorscopeEnv = { ...process.env, PRIORSCOPE_CLI_SOURCE: '' };
@@ -152,6 +156,50 @@ function memoryCase(form: 'inline' | 'mtx'): BenchCase {
   );
 }
 
+/** The dense scipy script's environment: OpenBLAS left to choose its core and threads, as in the harness. */
+function pythonEnv(): NodeJS.ProcessEnv {
+  const env = { ...process.env };
+  delete env.OPENBLAS_CORETYPE;
+  delete env.OPENBLAS_L2_SIZE;
+  return env;
+}
+
+/**
+ * `priorscope posterior` 64 × 64 and the dense scipy script run in alternation, one pair after another, so
+ * both see the same load: the per-pair ratio's median is the figure to quote when the machine is shared
+ * (the harness's own ours/scipy ratio compares runs made minutes apart).
+ */
+function pairedCase(): BenchCase {
+  const pairs: { ours: ChildUsage; scipy: ChildUsage }[] = [];
+  return {
+    name: 'cli process: posterior 64x64 M=400 and the dense scipy script in alternating pairs',
+    params: { N: 64 * 64, M: 400, grid: 64 },
+    runs: 7,
+    setup: () => {
+      ensureBundle();
+      mkdirSync(workDir, { recursive: true });
+      const problem = benchProblem(64);
+      writeProblemForScipy(64, problem);
+      writeFileSync(join(workDir, 'p64.json'), writeProblemFile(problem, 'inline').json);
+      writeFileSync(join(workDir, 'q64.json'), writePriorFile(benchPrior(64), 'q64.json'));
+      const python = process.env.PRIORSCOPE_PYTHON ?? '/usr/bin/python3';
+      const script = [join(repoRoot, 'test', 'bench', 'dense_posterior.py'), join(repoRoot, 'bench-results', 'fft-problem-64.json'), join(workDir, 'dense-posterior-64.json')];
+      pairs.length = 0;
+      return () => {
+        const ours = timed(process.execPath, [bin, 'posterior', '--problem', 'p64.json', '--prior', 'q64.json', '--out', 'posterior64.json'], priorscopeEnv);
+        pairs.push({ ours, scipy: timed(python, script, pythonEnv()) });
+      };
+    },
+    report: () => ({
+      ours_wall_s_median: median(pairs.map((p) => p.ours.wallS)),
+      scipy_wall_s_median: median(pairs.map((p) => p.scipy.wallS)),
+      wall_ratio_median_of_pairs: median(pairs.map((p) => p.ours.wallS / p.scipy.wallS)),
+      ours_cpu_s_median: median(pairs.map((p) => p.ours.cpuS)),
+      scipy_cpu_s_median: median(pairs.map((p) => p.scipy.cpuS)),
+    }),
+  };
+}
+
 export const cases: BenchCase[] = [
   processCase({
     name: 'cli process: node -e 0 (the floor of any Node.js command)',
@@ -178,22 +226,7 @@ export const cases: BenchCase[] = [
     },
     command: () => [process.execPath, [bin, 'posterior', '--problem', 'p64.json', '--prior', 'q64.json', '--out', 'posterior64.json'], priorscopeEnv],
   }),
-  processCase({
-    name: 'cli process: the dense scipy script 64x64 M=400 (test/bench/dense_posterior.py), for its CPU time',
-    params: { grid: 64 },
-    runs: 5,
-    prepare: () => writeProblemForScipy(64, benchProblem(64)),
-    command: () => [
-      process.env.PRIORSCOPE_PYTHON ?? '/usr/bin/python3',
-      [join(repoRoot, 'test', 'bench', 'dense_posterior.py'), join(repoRoot, 'bench-results', 'fft-problem-64.json'), join(workDir, 'dense-posterior-64.json')],
-      (() => {
-        const env = { ...process.env };
-        delete env.OPENBLAS_CORETYPE;
-        delete env.OPENBLAS_L2_SIZE;
-        return env;
-      })(),
-    ],
-  }),
+  pairedCase(),
   memoryCase('inline'),
   memoryCase('mtx'),
 ];
