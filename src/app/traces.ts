@@ -22,7 +22,7 @@ export function axis1D(grid: Grid): Float64Array {
 
 /** Cell-centre coordinates of each axis of a 2-D grid. */
 export function axes2D(grid: Grid): { x: number[]; y: number[] } {
-  const [nx, ny] = [grid.shape[0]!, grid.shape[1] ?? 1];
+  const [nx, ny] = [grid.shape[0], grid.shape[1] ?? 1];
   const [x0 = 0, y0 = 0] = grid.origin ?? [];
   const [dx, dy = 1] = grid.spacing;
   return {
@@ -33,13 +33,13 @@ export function axes2D(grid: Grid): { x: number[]; y: number[] } {
 
 /** A flat field (x fastest) as the rows-of-y array a plotly heat map expects. */
 export function toRows2D(grid: Grid, field: ArrayLike<number>): number[][] {
-  const nx = grid.shape[0]!;
+  const nx = grid.shape[0];
   const ny = grid.shape[1] ?? 1;
   if (field.length !== nx * ny) throw new RangeError(`toRows2D: field has ${field.length} values, grid has ${nx * ny} cells`);
   const out: number[][] = [];
   for (let j = 0; j < ny; j++) {
     const row = new Array<number>(nx);
-    for (let i = 0; i < nx; i++) row[i] = field[i + nx * j]!;
+    for (let i = 0; i < nx; i++) row[i] = field[i + nx * j];
     out.push(row);
   }
   return out;
@@ -47,7 +47,7 @@ export function toRows2D(grid: Grid, field: ArrayLike<number>): number[][] {
 
 /** Flat cell index of the heat-map cell nearest to (x, y), or null outside the grid. */
 export function cellAt(grid: Grid, x: number, y: number): number | null {
-  const nx = grid.shape[0]!;
+  const nx = grid.shape[0];
   const ny = grid.shape[1] ?? 1;
   const [x0 = 0, y0 = 0] = grid.origin ?? [];
   const [dx, dy = 1] = grid.spacing;
@@ -63,8 +63,8 @@ export function band(mean: ArrayLike<number>, std: ArrayLike<number>, z: number)
   const lower = new Float64Array(n);
   const upper = new Float64Array(n);
   for (let i = 0; i < n; i++) {
-    lower[i] = mean[i]! - z * std[i]!;
-    upper[i] = mean[i]! + z * std[i]!;
+    lower[i] = mean[i] - z * std[i];
+    upper[i] = mean[i] + z * std[i];
   }
   return { lower, upper };
 }
@@ -78,10 +78,10 @@ export function bandTrace(x: ArrayLike<number>, lower: ArrayLike<number>, upper:
   const xs = new Float64Array(2 * n);
   const ys = new Float64Array(2 * n);
   for (let i = 0; i < n; i++) {
-    xs[i] = x[i]!;
-    ys[i] = upper[i]!;
-    xs[2 * n - 1 - i] = x[i]!;
-    ys[2 * n - 1 - i] = lower[i]!;
+    xs[i] = x[i];
+    ys[i] = upper[i];
+    xs[2 * n - 1 - i] = x[i];
+    ys[2 * n - 1 - i] = lower[i];
   }
   return { x: xs, y: ys, type: 'scatter', mode: 'lines', line: { width: 0 }, fill: 'toself', fillcolor: fill, name, hoverinfo: 'skip' };
 }
@@ -158,7 +158,7 @@ export function correlationMap(prior: PriorSpec, extent: number, points = 61) {
   const z = off.map((dy) =>
     off.map((dx) => {
       let s = 0;
-      prior.terms.forEach((t, k) => (s += t.variance * rhos[k]!(scaledDistance(t, dx, dy))));
+      prior.terms.forEach((t, k) => (s += t.variance * rhos[k](scaledDistance(t, dx, dy))));
       return sill > 0 ? s / sill : 0;
     }),
   );
@@ -171,7 +171,7 @@ export function commonRange(fields: ArrayLike<number>[]): [number, number] {
   let hi = -Infinity;
   for (const f of fields) {
     for (let i = 0; i < f.length; i++) {
-      const v = f[i]!;
+      const v = f[i];
       if (v < lo) lo = v;
       if (v > hi) hi = v;
     }

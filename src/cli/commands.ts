@@ -454,9 +454,9 @@ function parseAxis(name: string, text: string): LogAxis {
   let axis: LogAxis;
   try {
     axis = {
-      min: parseNumberOption(name, parts[0]!, { gt: 0 }),
-      max: parseNumberOption(name, parts[1]!, { gt: 0 }),
-      count: parseNumberOption(name, parts[2]!, { integer: true, ge: 1, le: 10000 }),
+      min: parseNumberOption(name, parts[0], { gt: 0 }),
+      max: parseNumberOption(name, parts[1], { gt: 0 }),
+      count: parseNumberOption(name, parts[2], { integer: true, ge: 1, le: 10000 }),
     };
   } catch {
     throw bad();
@@ -511,12 +511,12 @@ const tune: Command = {
     if (term >= prior.terms.length) {
       throw new UsageError(`--term must be an integer from 0 to ${prior.terms.length - 1} (the prior has ${prior.terms.length} term${prior.terms.length === 1 ? '' : 's'}), got ${JSON.stringify(termText)}`);
     }
-    const tuned = prior.terms[term]!;
+    const tuned = prior.terms[term];
     if (axis !== 'both' && tuned.lengths === undefined) {
       throw new UsageError(`--axis ${axis} needs an anisotropic term ("lengths": [l1, l2]); term ${term} has one length: leave --axis out`);
     }
     progress(io, `evidence on ${lengths.count} × ${variances.count} cells …`);
-    const key: TuneKey = { problem: problemKey(problem), prior: priorToJson(prior), term, axis, lengths, variances, tuned: (priorToJson(prior).terms as TuneKey['tuned'][])[term]! };
+    const key: TuneKey = { problem: problemKey(problem), prior: priorToJson(prior), term, axis, lengths, variances, tuned: (priorToJson(prior).terms as TuneKey['tuned'][])[term] };
     const out = runShardable<TunePartial>((t) => emit(io, args, t), args, {
       command: 'tune',
       total: lengths.count,
@@ -554,7 +554,7 @@ const demo: Command = {
     if (args.positionals.length !== 1) {
       throw new UsageError(`give one demo name (${DEMOS.map((d) => d.id).join(', ')}) or --list`);
     }
-    const name = args.positionals[0]!;
+    const name = args.positionals[0];
     const d = DEMOS.find((x) => x.id === name);
     if (!d) throw new UsageError(`demo name must be one of ${DEMOS.map((x) => x.id).join(', ')}, got ${JSON.stringify(name)}`);
     const opFile = optionString(args, 'operator-file');

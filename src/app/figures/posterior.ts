@@ -79,7 +79,7 @@ export function kernelTraces(grid: Grid, resolution: { readonly cell: number; re
   if (gridDimension(grid) === 2) {
     const a = row.reduce((m, v) => Math.max(m, Math.abs(v)), 0) || 1;
     const { x, y } = axes2D(grid);
-    const nx = grid.shape[0]!;
+    const nx = grid.shape[0];
     return [
       heatTrace(grid, row, 'R row', { colorscale: DIVERGING_SCALE, zmin: -a, zmax: a }),
       { type: 'scatter', mode: 'markers', x: [x[cell % nx]], y: [y[Math.floor(cell / nx)]], marker: { symbol: 'x-thin', size: 12, line: { width: 2, color: '#222' } }, name: 'cell', showlegend: false },

@@ -8,7 +8,7 @@ import { fmtNum, hoverName, type Layout, title } from './common.ts';
 
 /** Largest extent of the grid over its axes (cells × spacing). */
 export function gridExtent(grid: Grid): number {
-  return Math.max(...grid.shape.map((n, k) => n * grid.spacing[k]!));
+  return Math.max(...grid.shape.map((n, k) => n * grid.spacing[k]));
 }
 
 /** Longest correlation length over the prior's terms and both axes of anisotropic ones. */

@@ -48,7 +48,7 @@ function pickProblemFile(files: readonly NamedBytes[]): NamedBytes {
   if (json.length > 1) {
     throw new FileFormatError(json.map((f) => f.name).join(', '), 'choose exactly one problem .json file (with the files it names)');
   }
-  return json[0]!;
+  return json[0];
 }
 
 export function parseRequest(req: ParseRequest): ParseResult {

@@ -124,7 +124,7 @@ export function OverviewScreen() {
   const ref = post?.fitReference ?? null;
   const verdict = post && ref ? fitVerdict(post.chi2, ref) : null;
   // 2-D: the figure height that shows the section at true scale in a third of the screen's width.
-  const extent: [number, number] = [p.grid.shape[0]! * p.grid.spacing[0]!, (p.grid.shape[1] ?? 1) * (p.grid.spacing[1] ?? 1)];
+  const extent: [number, number] = [p.grid.shape[0] * p.grid.spacing[0], (p.grid.shape[1] ?? 1) * (p.grid.spacing[1] ?? 1)];
   const h = is2D ? trueAspectHeight(extent, 430, { l: 52, r: 78, t: 28, b: 40 }, 170, 360) : 270;
   const wait = (what: string) => <div className="waiting" style={{ minHeight: h }}>Computing {what} …</div>;
   return (

@@ -90,7 +90,7 @@ export function CandidatesPanel() {
                   onBlur={(e) => rename(r.id, e.target.value)}
                 />
                 <div className="note cand-prior" data-testid={`candidate-prior-${k}`}>
-                  {priorLine(candidates[k]!.prior, p.grid.unit ?? '', p.quantity.unit)}
+                  {priorLine(candidates[k].prior, p.grid.unit ?? '', p.quantity.unit)}
                 </div>
                 {r.error && (
                   <span className="error" role="alert">
@@ -222,7 +222,7 @@ function CrossTable({ candidates }: { candidates: readonly Candidate[] }) {
                 </th>
                 {candidates.map((b, j) => (
                   <td key={b.id} className={i === j ? 'diag' : undefined}>
-                    <Num testId={`cross-${i}-${j}`} value={v.coverage95[i * K + j]!} text={`${fmt(v.coverage68[i * K + j]!, 3)} / ${fmt(v.coverage95[i * K + j]!, 3)}`} />
+                    <Num testId={`cross-${i}-${j}`} value={v.coverage95[i * K + j]} text={`${fmt(v.coverage68[i * K + j], 3)} / ${fmt(v.coverage95[i * K + j], 3)}`} />
                   </td>
                 ))}
               </tr>

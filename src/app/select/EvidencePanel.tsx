@@ -17,7 +17,7 @@ import { kernelTakes } from '../../core/kernels/table.ts';
 
 /** Default ranges around the term: lengths ×1/5 … ×5, variances ×1/100 … ×100, 16 × 16. */
 export function defaultMapSettings(prior: PriorSpec, term: number): MapSettings {
-  const t = prior.terms[term] ?? prior.terms[0]!;
+  const t = prior.terms[term] ?? prior.terms[0];
   const l = termLength(t);
   return { term, lengths: { min: l / 5, max: l * 5, count: 16 }, variances: { min: t.variance / 100, max: t.variance * 100, count: 16 } };
 }
@@ -45,7 +45,7 @@ export function EvidencePanel() {
   const mapFresh = useWb((s) => freshness(s.selectTasks.evidenceMap, s));
   const mapApplicable = mapFresh === 'current' || mapFresh === 'earlier-prior';
   const [settings, setSettings] = useState<MapSettings>(() => defaultMapSettings(prior, 0));
-  const term = prior.terms[settings.term] ?? prior.terms[0]!;
+  const term = prior.terms[settings.term] ?? prior.terms[0];
   const unit = p.grid.unit ?? '';
   const varUnit = p.quantity.unit ? `(${p.quantity.unit})²` : '';
   const map = task.value && task.key?.startsWith(`${p.version}:`) ? task.value : null;
@@ -68,8 +68,8 @@ export function EvidencePanel() {
         type: 'scatter',
         mode: 'markers',
         name: 'keyboard cell',
-        x: [Math.log10(map.lengths[i]!)],
-        y: [Math.log10(map.variances[cursorCell % nv]!)],
+        x: [Math.log10(map.lengths[i])],
+        y: [Math.log10(map.variances[cursorCell % nv])],
         marker: { symbol: 'square-open', size: 16, color: '#ffffff', line: { width: 2.5, color: '#ffffff' } },
         hoverinfo: 'skip',
       },
@@ -152,8 +152,8 @@ export function EvidencePanel() {
           </div>
           {cursorCell !== null && (
             <p className="note" aria-live="polite" data-testid="map-cursor" data-index={cursorCell}>
-              Highlighted: ℓ = {fmt(map.lengths[Math.floor(cursorCell / map.variances.length)]!)} {unit}, σ² = {fmt(map.variances[cursorCell % map.variances.length]!)} {varUnit}, log evidence{' '}
-              {Number.isFinite(map.logEvidence[cursorCell]!) ? map.logEvidence[cursorCell]!.toFixed(3) : 'not computed'} — Enter applies it.
+              Highlighted: ℓ = {fmt(map.lengths[Math.floor(cursorCell / map.variances.length)])} {unit}, σ² = {fmt(map.variances[cursorCell % map.variances.length])} {varUnit}, log evidence{' '}
+              {Number.isFinite(map.logEvidence[cursorCell]) ? map.logEvidence[cursorCell].toFixed(3) : 'not computed'} — Enter applies it.
             </p>
           )}
           <p className="row" data-testid="map-best">

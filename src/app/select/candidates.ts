@@ -16,7 +16,7 @@ export const CANDIDATE_STYLES: readonly { readonly name: string; readonly colour
 
 /** The first style whose colour is not taken (cycling if all are). */
 export function nextCandidateStyle(taken: readonly string[]): { name: string; colour: string } {
-  return CANDIDATE_STYLES.find((s) => !taken.includes(s.colour)) ?? CANDIDATE_STYLES[taken.length % CANDIDATE_STYLES.length]!;
+  return CANDIDATE_STYLES.find((s) => !taken.includes(s.colour)) ?? CANDIDATE_STYLES[taken.length % CANDIDATE_STYLES.length];
 }
 
 /** Number formatting shared by the tables: 4 significant digits, exponent outside [1e-3, 1e5). */
@@ -73,8 +73,8 @@ export function scoreRows(
 ): ScoreRow[] {
   return candidates.map((c, k) => {
     const s = scores?.[k];
-    const cov68 = coverage && coverage.size === candidates.length ? coverage.coverage68[k * coverage.size + k]! : null;
-    const cov95 = coverage && coverage.size === candidates.length ? coverage.coverage95[k * coverage.size + k]! : null;
+    const cov68 = coverage && coverage.size === candidates.length ? coverage.coverage68[k * coverage.size + k] : null;
+    const cov95 = coverage && coverage.size === candidates.length ? coverage.coverage95[k * coverage.size + k] : null;
     const covCell: ScoreCell = { column: 'coverage', value: cov68, text: cov68 === null ? '—' : `${fmt(cov68, 3)} / ${fmt(cov95, 3)}` };
     if (!s?.ok) {
       return {
@@ -97,7 +97,7 @@ export function scoreRows(
       name: c.name,
       colour: c.colour,
       error: null,
-      cells: SCORE_COLUMNS.map((col) => (col.id === 'coverage' ? covCell : { column: col.id, value: v[col.id]!, text: fmt(v[col.id]!) })),
+      cells: SCORE_COLUMNS.map((col) => (col.id === 'coverage' ? covCell : { column: col.id, value: v[col.id], text: fmt(v[col.id]) })),
     };
   });
 }

@@ -35,9 +35,9 @@ export function evidenceMapTraces(map: EvidenceMap, current: { length: number; v
     const row: (number | null)[] = new Array(nl);
     const trow: string[] = new Array(nl);
     for (let i = 0; i < nl; i++) {
-      const v = map.logEvidence[i * nv + j]!;
+      const v = map.logEvidence[i * nv + j];
       row[i] = Number.isFinite(v) ? v : null;
-      trow[i] = `ℓ = ${map.lengths[i]!.toPrecision(4)}, σ² = ${map.variances[j]!.toPrecision(4)}`;
+      trow[i] = `ℓ = ${map.lengths[i].toPrecision(4)}, σ² = ${map.variances[j].toPrecision(4)}`;
     }
     z.push(row);
     text.push(trow);
@@ -88,10 +88,10 @@ export function mapCellAt(map: Pick<EvidenceMap, 'lengths' | 'variances'>, x: nu
   const near = (axis: Float64Array, v: number): number | null => {
     const n = axis.length;
     const logs = Array.from(axis, Math.log10);
-    const half = n > 1 ? (logs[n - 1]! - logs[0]!) / (n - 1) / 2 : 0.5;
-    if (v < logs[0]! - half || v > logs[n - 1]! + half) return null;
+    const half = n > 1 ? (logs[n - 1] - logs[0]) / (n - 1) / 2 : 0.5;
+    if (v < logs[0] - half || v > logs[n - 1] + half) return null;
     let best = 0;
-    for (let k = 1; k < n; k++) if (Math.abs(logs[k]! - v) < Math.abs(logs[best]! - v)) best = k;
+    for (let k = 1; k < n; k++) if (Math.abs(logs[k] - v) < Math.abs(logs[best] - v)) best = k;
     return best;
   };
   const i = near(map.lengths, x);
@@ -134,7 +134,7 @@ export function rankTraces(hist: ArrayLike<number>): Trace[] {
 export function withAlpha(hex: string, alpha: number): string {
   const m = /^#([0-9a-f]{2})([0-9a-f]{2})([0-9a-f]{2})$/i.exec(hex);
   if (!m) throw new RangeError(`withAlpha: expected a colour '#rrggbb', got ${JSON.stringify(hex)}`);
-  return `rgba(${parseInt(m[1]!, 16)}, ${parseInt(m[2]!, 16)}, ${parseInt(m[3]!, 16)}, ${alpha})`;
+  return `rgba(${parseInt(m[1], 16)}, ${parseInt(m[2], 16)}, ${parseInt(m[3], 16)}, ${alpha})`;
 }
 
 /** Overlaid 95% band (mean ± 1.96 σ) and mean line of each candidate (1-D). */
@@ -146,10 +146,10 @@ export function candidateBandTraces(x: ArrayLike<number>, items: readonly { name
     const xs = new Array<number>(2 * n);
     const ys = new Array<number>(2 * n);
     for (let i = 0; i < n; i++) {
-      xs[i] = x[i]!;
-      ys[i] = it.mean[i]! + z * it.std[i]!;
-      xs[2 * n - 1 - i] = x[i]!;
-      ys[2 * n - 1 - i] = it.mean[i]! - z * it.std[i]!;
+      xs[i] = x[i];
+      ys[i] = it.mean[i] + z * it.std[i];
+      xs[2 * n - 1 - i] = x[i];
+      ys[2 * n - 1 - i] = it.mean[i] - z * it.std[i];
     }
     out.push({ type: 'scatter', mode: 'lines', name: `${it.name} 95%`, x: xs, y: ys, fill: 'toself', fillcolor: withAlpha(it.colour, 0.14), line: { width: 0.5, color: withAlpha(it.colour, 0.5) }, hoverinfo: 'skip' });
     out.push({ type: 'scatter', mode: 'lines', name: `${it.name} mean`, x: Array.from(x), y: Array.from(it.mean), line: { color: it.colour, width: 2 } });

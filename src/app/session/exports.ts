@@ -33,9 +33,9 @@ function coordinateColumns(grid: Grid): { names: string[]; cols: Float64Array[] 
 }
 
 function columns(cols: readonly ArrayLike<number>[]): Matrix {
-  const n = cols[0]!.length;
+  const n = cols[0].length;
   const m = matrix(n, cols.length);
-  for (let i = 0; i < n; i++) for (let j = 0; j < cols.length; j++) m.data[i * cols.length + j] = cols[j]![i]!;
+  for (let i = 0; i < n; i++) for (let j = 0; j < cols.length; j++) m.data[i * cols.length + j] = cols[j][i];
   return m;
 }
 

@@ -74,7 +74,7 @@ export function combineCalibration(keyValue: unknown, parts: readonly Calibratio
   const key = keyValue as CalibrationKey;
   const k = key.priors.length;
   const pairs = Array.from({ length: k * k }, (_, p) => {
-    const first = parts.find((x) => x.pairs[p]!.replicateHits68.length > 0)?.pairs[p] ?? parts[0]!.pairs[p]!;
+    const first = parts.find((x) => x.pairs[p].replicateHits68.length > 0)?.pairs[p] ?? parts[0].pairs[p];
     const n = first.cellHits68.length;
     const cell68 = new Array<number>(n).fill(0);
     const cell95 = new Array<number>(n).fill(0);
@@ -83,10 +83,10 @@ export function combineCalibration(keyValue: unknown, parts: readonly Calibratio
     const rep95: number[] = [];
     let approximate = false;
     for (const part of parts) {
-      const c = part.pairs[p]!;
+      const c = part.pairs[p];
       for (let i = 0; i < n; i++) {
-        cell68[i] += c.cellHits68[i]!;
-        cell95[i] += c.cellHits95[i]!;
+        cell68[i] += c.cellHits68[i];
+        cell95[i] += c.cellHits95[i];
       }
       c.rankHistogram.forEach((v, b) => (hist[b] += v));
       rep68.push(...c.replicateHits68);
@@ -104,8 +104,8 @@ export function combineCalibration(keyValue: unknown, parts: readonly Calibratio
     return {
       truth: Math.floor(p / k),
       inversion: p % k,
-      truthPrior: key.priors[Math.floor(p / k)]!,
-      inversionPrior: key.priors[p % k]!,
+      truthPrior: key.priors[Math.floor(p / k)],
+      inversionPrior: key.priors[p % k],
       coverage68: sum(cell68) / total,
       coverage95: sum(cell95) / total,
       coverage68StdError: s68.stdError,
@@ -183,7 +183,7 @@ export const calibrateCommand: Command = {
         if (count === 0) return { pairs: priors.flatMap(() => priors.map(() => emptyCounts(n, draws))) };
         progress(io, `calibration: replicates ${first + 1} to ${end} of ${replicates}, ${priors.length * priors.length} pair(s) …`);
         const options = { replicates: count, draws, seed, streamSeed: (r: number) => replicateSeed(seed, first + r), route, structured: structuredProblem(problem) };
-        if (priors.length === 1) return { pairs: [counts(calibrate(problem, priors[0]!, priors[0]!, options), n)] };
+        if (priors.length === 1) return { pairs: [counts(calibrate(problem, priors[0], priors[0], options), n)] };
         const t = calibrationTable(problem, priors, options);
         return { pairs: t.results.flatMap((row) => row.map((r) => counts(r, n))) };
       },

@@ -24,7 +24,7 @@ export function select(word: string, all: readonly HyperParameter[], prior: Prio
     );
   }
   const term = m[1] === undefined ? null : Number(m[1]);
-  const what = m[2]!;
+  const what = m[2];
   if (term !== null && term >= prior.terms.length) {
     throw new UsageError(`${option} item ${JSON.stringify(word)}: the prior has ${prior.terms.length} term${prior.terms.length === 1 ? '' : 's'} (term0 … term${prior.terms.length - 1})`);
   }
@@ -41,7 +41,7 @@ export function select(word: string, all: readonly HyperParameter[], prior: Prio
     angle: ['angle'],
     nu: ['nu'],
   };
-  const out = all.filter((h) => h.term !== null && (term === null || h.term === term) && fields[what]!.includes(h.field)).map((h) => h.name);
+  const out = all.filter((h) => h.term !== null && (term === null || h.term === term) && fields[what].includes(h.field)).map((h) => h.name);
   if (out.length === 0) {
     const where = term === null ? `no term of the prior has a ${what}` : `term ${term} has no ${what}`;
     const why: Record<string, string> = {
@@ -74,8 +74,8 @@ export function boundsOption(text: string, prior: PriorSpec, all: readonly Hyper
     const eq = item.indexOf('=');
     const range = item.slice(eq + 1).split(':');
     if (eq < 0 || range.length !== 2) throw new UsageError(`--bounds items must be NAME=LO:HI (e.g. length=1:100), got ${JSON.stringify(item)}`);
-    const lo = parseNumberOption('bounds', range[0]!);
-    const hi = parseNumberOption('bounds', range[1]!);
+    const lo = parseNumberOption('bounds', range[0]);
+    const hi = parseNumberOption('bounds', range[1]);
     const word = item.slice(0, eq).trim();
     for (const name of select(word, all, prior, '--bounds')) {
       if (!free.includes(name)) throw new UsageError(`--bounds ${word}: ${cliParameterName(name)} is not free (name it in --free)`);

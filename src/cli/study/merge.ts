@@ -28,10 +28,10 @@ export const merge: Command = {
   options: [OUT],
   run(args, io) {
     const parts = readPartials(args.positionals);
-    const command = parts[0]!.command;
+    const command = parts[0].command;
     const combine = COMBINE[command];
     if (!combine) throw new UsageError(`partial results of \`${command}\` cannot be merged (mergeable: ${Object.keys(COMBINE).join(', ')})`);
-    emit(io, args, formatJson(combine(parts[0]!.key, parts.map((p) => p.data) as never[])));
+    emit(io, args, formatJson(combine(parts[0].key, parts.map((p) => p.data) as never[])));
     return 0;
   },
 };

@@ -53,10 +53,10 @@ export function combineProfile(keyValue: unknown, parts: readonly ProfilePartial
   if (ev.length !== values.length) throw new UsageError(`the parts hold ${ev.length} values, expected ${values.length}`);
   let best: { value: number; logEvidence: number; index: number } | null = null;
   ev.forEach((v, k) => {
-    if (v !== null && (best === null || v > best.logEvidence)) best = { value: values[k]!, logEvidence: v, index: k };
+    if (v !== null && (best === null || v > best.logEvidence)) best = { value: values[k], logEvidence: v, index: k };
   });
   const b = best as { index: number } | null;
-  const sorted = values.every((v, k) => k === 0 || v > values[k - 1]!);
+  const sorted = values.every((v, k) => k === 0 || v > values[k - 1]);
   const edge = b === null || !sorted || values.length < 2 ? null : b.index === 0 ? 'low' : b.index === values.length - 1 ? 'high' : null;
   return { parameter: key.parameter, values, logEvidence: ev, best, bestOnEdge: edge };
 }
@@ -97,9 +97,9 @@ export const profile: Command = {
     else {
       const parts = rangeText!.split(':');
       if (parts.length !== 3) throw new UsageError(`--range must be lo:hi:n with 0 < lo ≤ hi and n an integer from 1 to 10000, got ${JSON.stringify(rangeText)}`);
-      const lo = parseNumberOption('range', parts[0]!, { gt: 0 });
-      const hi = parseNumberOption('range', parts[1]!, { gt: 0 });
-      const n = parseNumberOption('range', parts[2]!, { integer: true, ge: 1, le: 10000 });
+      const lo = parseNumberOption('range', parts[0], { gt: 0 });
+      const hi = parseNumberOption('range', parts[1], { gt: 0 });
+      const n = parseNumberOption('range', parts[2], { integer: true, ge: 1, le: 10000 });
       if (hi < lo) throw new UsageError(`--range must have lo ≤ hi, got ${JSON.stringify(rangeText)}`);
       values = Array.from(logSpaced({ min: lo, max: hi, count: n }, 'range'));
     }

@@ -35,13 +35,13 @@ export function combineScores(keyValue: unknown, parts: readonly ScorePartial[])
   const bestOf = (f: (s: ScoreItem) => number): number | null => {
     let best: number | null = null;
     scores.forEach((s, k) => {
-      if (typeof s.logEvidence === 'number' && (best === null || f(s) > f(scores[best]!))) best = k;
+      if (typeof s.logEvidence === 'number' && (best === null || f(s) > f(scores[best]))) best = k;
     });
     return best;
   };
   const byEvidence = bestOf((s) => s.logEvidence as number);
   const byLoo = bestOf((s) => (s.leaveOneOut as { logScore: number }).logScore);
-  const top = byEvidence === null ? Number.NaN : (scores[byEvidence]!.logEvidence as number);
+  const top = byEvidence === null ? Number.NaN : (scores[byEvidence].logEvidence as number);
   const rows = scores.map((s) => (typeof s.logEvidence === 'number' ? { ...s, logEvidenceToBest: (s.logEvidence as number) - top } : s));
   const plausible = ok.filter((s) => (s.predictive as { plausible: boolean }).plausible).length;
   return {
@@ -80,7 +80,7 @@ export const score: Command = {
       command: 'score',
       total: priors.length,
       key,
-      compute: (first, end) => ({ scores: priors.slice(first, end).map((p, k) => scoreOne(io, problem, p, paths[first + k]!, route, priors.length)) }),
+      compute: (first, end) => ({ scores: priors.slice(first, end).map((p, k) => scoreOne(io, problem, p, paths[first + k], route, priors.length)) }),
       combine: (k, parts) => combineScores(k, parts).output,
     });
     if (out !== null && (out as { plausibleCount: number }).plausibleCount === 0) {

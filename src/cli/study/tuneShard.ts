@@ -43,10 +43,10 @@ export function tuneRows(problem: Problem, prior: PriorSpec, key: TuneKey, first
   const rows: (number | null)[][] = [];
   const methods: string[] = [];
   for (let i = first; i < end; i++) {
-    const L = all[i]!;
+    const L = all[i];
     const map = evidenceMap(problem, prior, { term, lengths: { min: L, max: L, count: 1 }, variances, axis });
     rows.push(...toRows(map));
-    methods.push(map.methodByLength[0]!);
+    methods.push(map.methodByLength[0]);
   }
   return { rows, methods };
 }
@@ -69,7 +69,7 @@ export function combineTune(keyValue: unknown, parts: readonly TunePartial[]): {
   let best: { length: number; variance: number; logEvidence: number } | null = null;
   rows.forEach((row, i) =>
     row.forEach((v, j) => {
-      if (v !== null && (best === null || v > best.logEvidence)) best = { length: lengths[i]!, variance: variances[j]!, logEvidence: v };
+      if (v !== null && (best === null || v > best.logEvidence)) best = { length: lengths[i], variance: variances[j], logEvidence: v };
     }),
   );
   const b = best as { length: number; variance: number; logEvidence: number } | null;

@@ -163,15 +163,15 @@ export class CirculantProduct {
       let any = false;
       if (b !== null) {
         for (let ix = 0; ix < nx; ix++) {
-          const u = a[g + ix]!;
-          const v = b[g + ix]!;
+          const u = a[g + ix];
+          const v = b[g + ix];
           view[o + 2 * ix] = u;
           view[o + 2 * ix + 1] = v;
           any ||= u !== 0 || v !== 0;
         }
       } else {
         for (let ix = 0; ix < nx; ix++) {
-          const u = a[g + ix]!;
+          const u = a[g + ix];
           view[o + 2 * ix] = u;
           view[o + 2 * ix + 1] = 0;
           any ||= u !== 0;
@@ -247,11 +247,11 @@ export class CirculantProduct {
       const g = nx * t;
       if (outB !== null) {
         for (let ix = 0; ix < nx; ix++) {
-          outA[offsetA + g + ix] = v[o + 2 * ix]!;
-          outB[offsetB + g + ix] = v[o + 2 * ix + 1]!;
+          outA[offsetA + g + ix] = v[o + 2 * ix];
+          outB[offsetB + g + ix] = v[o + 2 * ix + 1];
         }
       } else {
-        for (let ix = 0; ix < nx; ix++) outA[offsetA + g + ix] = v[o + 2 * ix]!;
+        for (let ix = 0; ix < nx; ix++) outA[offsetA + g + ix] = v[o + 2 * ix];
       }
     }
   }
@@ -299,7 +299,7 @@ export function covarianceOperator(grid: Grid, prior: PriorSpec, options: Covari
         },
         diagonal: () => {
           const d = new Float64Array(n);
-          for (let i = 0; i < n; i++) d[i] = cm.data[i * n + i]!;
+          for (let i = 0; i < n; i++) d[i] = cm.data[i * n + i];
           return d;
         },
       };
@@ -310,12 +310,12 @@ export function covarianceOperator(grid: Grid, prior: PriorSpec, options: Covari
       const scaled = (x: ArrayLike<number>): ArrayLike<number> => {
         if (s === undefined) return x;
         const y = new Float64Array(n);
-        for (let i = 0; i < n; i++) y[i] = s[i]! * x[i]!;
+        for (let i = 0; i < n; i++) y[i] = s[i] * x[i];
         return y;
       };
       const finish = (x: ArrayLike<number>, y: Float64Array, off: number): void => {
-        if (s !== undefined) for (let i = 0; i < n; i++) y[off + i] *= s[i]!;
-        if (nugget !== 0) for (let i = 0; i < n; i++) y[off + i] += nugget * x[i]!;
+        if (s !== undefined) for (let i = 0; i < n; i++) y[off + i] *= s[i];
+        if (nugget !== 0) for (let i = 0; i < n; i++) y[off + i] += nugget * x[i];
       };
       return {
         path,
@@ -344,7 +344,7 @@ export function covarianceOperator(grid: Grid, prior: PriorSpec, options: Covari
         },
         diagonal: () => {
           const d = new Float64Array(n);
-          for (let i = 0; i < n; i++) d[i] = (s === undefined ? 1 : s[i]! * s[i]!) * cp.variance + nugget;
+          for (let i = 0; i < n; i++) d[i] = (s === undefined ? 1 : s[i] * s[i]) * cp.variance + nugget;
           return d;
         },
       };

@@ -44,7 +44,7 @@ export function stationaryCovariance(terms: readonly Term[]): (ox: number, oy: n
     const l = t.length;
     return (ox: number, oy: number) => v * rho(Math.sqrt(ox * ox + oy * oy) / l);
   });
-  if (parts.length === 1) return parts[0]!;
+  if (parts.length === 1) return parts[0];
   return (ox, oy) => {
     let s = 0;
     for (const p of parts) s += p(ox, oy);
@@ -63,9 +63,9 @@ export function isAxisSymmetric(terms: readonly Term[]): boolean {
 /** Grid axes as [n, spacing] pairs, 1-D grids as ny = 1. */
 export function gridAxes(grid: Grid): { nx: number; ny: number; dx: number; dy: number } {
   return {
-    nx: grid.shape[0]!,
+    nx: grid.shape[0],
     ny: grid.shape[1] ?? 1,
-    dx: grid.spacing[0]!,
+    dx: grid.spacing[0],
     dy: grid.spacing[1] ?? 1,
   };
 }
@@ -120,9 +120,9 @@ export function circulantBase(grid: Grid, terms: readonly Term[], px: number, py
     const oys = lagOffsets(jy, py);
     const my = jy === 0 ? 0 : py - jy;
     for (let jx = 0; jx < px; jx++) {
-      const oxs = xs[jx]!;
+      const oxs = xs[jx];
       let s = 0;
-      if (oxs.length === 1 && oys.length === 1) s = cov(oxs[0]! * dx, oys[0]! * dy);
+      if (oxs.length === 1 && oys.length === 1) s = cov(oxs[0] * dx, oys[0] * dy);
       else {
         for (const ox of oxs) for (const oy of oys) s += cov(ox * dx, oy * dy);
         s /= oxs.length * oys.length;
@@ -142,7 +142,7 @@ export function circulantEmbedding(grid: Grid, terms: readonly Term[], px: numbe
   let lo = Infinity;
   let hi = -Infinity;
   for (let i = 0; i < eigenvalues.length; i++) {
-    const v = eigenvalues[i]!;
+    const v = eigenvalues[i];
     if (v < lo) lo = v;
     if (v > hi) hi = v;
   }
@@ -176,8 +176,8 @@ export function evenRealSpectrum(base: Float64Array, px: number, py: number): Fl
     const b = a + 1 < hy ? a + 1 : -1;
     const o = 2 * px * p;
     for (let j = 0; j < px; j++) {
-      z[o + 2 * j] = base[a * px + j]!;
-      z[o + 2 * j + 1] = b < 0 ? 0 : base[b * px + j]!;
+      z[o + 2 * j] = base[a * px + j];
+      z[o + 2 * j + 1] = b < 0 ? 0 : base[b * px + j];
     }
   }
   const zf = fftBatch(z, px, rowPairs);
@@ -189,10 +189,10 @@ export function evenRealSpectrum(base: Float64Array, px: number, py: number): Fl
     const o = 2 * px * p;
     for (let k = 0; k < hx; k++) {
       const mk = k === 0 ? 0 : px - k;
-      const zr = zf[o + 2 * k]!;
-      const zi = zf[o + 2 * k + 1]!;
-      const wr = zf[o + 2 * mk]!;
-      const wi = -zf[o + 2 * mk + 1]!; // conj Z(−k)
+      const zr = zf[o + 2 * k];
+      const zi = zf[o + 2 * k + 1];
+      const wr = zf[o + 2 * mk];
+      const wi = -zf[o + 2 * mk + 1]; // conj Z(−k)
       const c = 2 * (k * hy + a);
       cols[c] = 0.5 * (zr + wr);
       cols[c + 1] = 0.5 * (zi + wi);
@@ -212,8 +212,8 @@ export function evenRealSpectrum(base: Float64Array, px: number, py: number): Fl
     for (let part = 0; part < (k1 + 1 < hx ? 2 : 1); part++) {
       const o = 2 * (k1 + part) * hy;
       for (let jy = 0; jy < hy; jy++) {
-        const re = cols[o + 2 * jy]!;
-        const im = cols[o + 2 * jy + 1]!;
+        const re = cols[o + 2 * jy];
+        const im = cols[o + 2 * jy + 1];
         const m = py - jy;
         const mirror = jy > 0 && jy < m;
         if (part === 0) {
@@ -242,14 +242,14 @@ export function evenRealSpectrum(base: Float64Array, px: number, py: number): Fl
     const k2 = k1 + 1 < hx ? k1 + 1 : -1;
     const ow = 2 * py * q;
     for (let ky = 0; ky < py; ky++) {
-      lam[k1 + px * ky] = wf[ow + 2 * ky]!;
-      if (k2 >= 0) lam[k2 + px * ky] = wf[ow + 2 * ky + 1]!;
+      lam[k1 + px * ky] = wf[ow + 2 * ky];
+      if (k2 >= 0) lam[k2 + px * ky] = wf[ow + 2 * ky + 1];
     }
   }
   // kx > px/2 from λ(kx, ky) = λ(px − kx, −ky).
   for (let ky = 0; ky < py; ky++) {
     const my = ky === 0 ? 0 : py - ky;
-    for (let kx = hx; kx < px; kx++) lam[kx + px * ky] = lam[px - kx + px * my]!;
+    for (let kx = hx; kx < px; kx++) lam[kx + px * ky] = lam[px - kx + px * my];
   }
   return lam;
 }

@@ -82,7 +82,7 @@ export class Fft2 {
     const out = v.subarray(a0, a0 + 2 * px * rows);
     if (inverse) {
       const scale = 1 / (px * py);
-      for (let i = 0; i < out.length; i++) buf[i] = out[i]! * scale;
+      for (let i = 0; i < out.length; i++) buf[i] = out[i] * scale;
     } else {
       buf.set(out);
     }

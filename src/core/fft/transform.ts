@@ -61,6 +61,6 @@ export function fftBatch(src: Float64Array, n: number, count: number, inverse = 
   v.set(src, a / 8);
   engine.run(a, b, t, n, 1, count, 16 * n, inverse);
   const out = v.slice(b / 8, b / 8 + 2 * n * count);
-  if (inverse) for (let i = 0; i < out.length; i++) out[i] = out[i]! / n;
+  if (inverse) for (let i = 0; i < out.length; i++) out[i] = out[i] / n;
   return out;
 }

@@ -91,7 +91,7 @@ function readTerm(r: JsonReader, value: unknown, k: number): Term {
   let angle: number | undefined;
   if (obj.lengths !== undefined) {
     const l = r.numbers(obj.lengths, `${f}.lengths`, 2, { gt: 0 });
-    lengths = [l[0]!, l[1]!];
+    lengths = [l[0], l[1]];
     if (obj.angle !== undefined) angle = readAngle(r, obj.angle, `${f}.angle`);
   } else {
     if (obj.length === undefined) r.fail(`${f}.length`, 'a finite number > 0 (or give lengths [l1, l2] in 2-D)', undefined);

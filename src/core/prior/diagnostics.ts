@@ -140,12 +140,12 @@ function extremeEigenvalues(c: Matrix): { min: number; max: number; method: 'exa
   // in its Householder reflections (without it a variance of 1e-300 gave λmin = −4.2e-301 beside a
   // successful Cholesky factorisation).
   let scale = 0;
-  for (let i = 0; i < n; i++) scale = Math.max(scale, Math.abs(c.data[i * n + i]!));
+  for (let i = 0; i < n; i++) scale = Math.max(scale, Math.abs(c.data[i * n + i]));
   if (!(scale > 0) || !Number.isFinite(scale)) scale = 1;
   if (n <= EXACT_EIGEN_LIMIT) {
     const scaled = { rows: n, cols: n, data: c.data.map((v) => v / scale) };
     const ev = symmetricEigenvalues(scaled);
-    return { min: ev[0]! * scale, max: ev[ev.length - 1]! * scale, method: 'exact' };
+    return { min: ev[0] * scale, max: ev[ev.length - 1] * scale, method: 'exact' };
   }
   const d = c.data;
   const y = new Float64Array(n);
@@ -153,7 +153,7 @@ function extremeEigenvalues(c: Matrix): { min: number; max: number; method: 'exa
     for (let i = 0; i < n; i++) {
       let s = 0;
       const oi = i * n;
-      for (let j = 0; j < n; j++) s += (d[oi + j]! / scale) * x[j]!;
+      for (let j = 0; j < n; j++) s += (d[oi + j] / scale) * x[j];
       y[i] = s;
     }
     return y;
@@ -182,7 +182,7 @@ export function diagnoseCovariance(c: Matrix, context?: { grid: Grid; prior: Pri
         : `The Cholesky factorisation of the dense Cm succeeds, but its smallest eigenvalue (${fmt(min)}) is zero within round-off, so neither sign can be proven.`;
 
   let meanVariance = 0;
-  for (let i = 0; i < n; i++) meanVariance += c.data[i * n + i]!;
+  for (let i = 0; i < n; i++) meanVariance += c.data[i * n + i];
   meanVariance /= n;
 
   let suggestedJitter: number | null = null;
@@ -245,7 +245,7 @@ export function diagnoseCovariance(c: Matrix, context?: { grid: Grid; prior: Pri
 
 function cellLabel(i: number, grid?: Grid): string {
   if (!grid || gridDimension(grid) === 1) return '';
-  const nx = grid.shape[0]!;
+  const nx = grid.shape[0];
   return ` (cell ix = ${i % nx}, iy = ${Math.floor(i / nx)})`;
 }
 

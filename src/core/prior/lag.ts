@@ -52,9 +52,9 @@ export function scaledDistance(term: Term): (ox: number, oy: number) => number {
 
 /** Kernel-part covariance Σ_t variance_t ρ_t(h_t) for every distinct grid offset. */
 export function lagTable(grid: Grid, terms: readonly Term[]): LagTable {
-  const nx = grid.shape[0]!;
+  const nx = grid.shape[0];
   const ny = grid.shape[1] ?? 1;
-  const dx = grid.spacing[0]!;
+  const dx = grid.spacing[0];
   const dy = grid.spacing[1] ?? 0;
   const w = 2 * nx - 1;
   const values = new Float64Array(w * (2 * ny - 1));
@@ -73,7 +73,7 @@ export function lagTable(grid: Grid, terms: readonly Term[]): LagTable {
   }
   // Mirror: T(−Δix, −Δiy) = T(Δix, Δiy).
   const centre = lagIndex(table, 0, 0);
-  for (let k = 1; k <= centre; k++) values[centre - k] = values[centre + k]!;
+  for (let k = 1; k <= centre; k++) values[centre - k] = values[centre + k];
   return table;
 }
 
@@ -87,7 +87,7 @@ export function meanRowSum(t: LagTable): number {
   for (let diy = -(t.ny - 1); diy < t.ny; diy++) {
     const my = t.ny - Math.abs(diy);
     for (let dix = -(t.nx - 1); dix < t.nx; dix++) {
-      s += (t.nx - Math.abs(dix)) * my * t.values[lagIndex(t, dix, diy)]!;
+      s += (t.nx - Math.abs(dix)) * my * t.values[lagIndex(t, dix, diy)];
     }
   }
   return s / (t.nx * t.ny);

@@ -29,9 +29,9 @@ export function evaluateMean(grid: Grid, mean: MeanSpec): Float64Array {
   if ('values' in mean) return Float64Array.from(mean.values);
   const { intercept, slope } = mean.trend;
   const { x, y } = cellCoordinates(grid);
-  const a = slope[0]!;
+  const a = slope[0];
   const b = slope[1] ?? 0;
   const out = new Float64Array(n);
-  for (let i = 0; i < n; i++) out[i] = intercept + a * x[i]! + b * y[i]!;
+  for (let i = 0; i < n; i++) out[i] = intercept + a * x[i] + b * y[i];
   return out;
 }

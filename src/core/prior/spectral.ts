@@ -30,7 +30,7 @@ const ALIASES = 3;
 
 /** Inverse lattice quadratic form B⁻¹ (symmetric 2 × 2, or 1 × 1 stored in b00). */
 function latticeForm(term: Term, grid: Grid): { b00: number; b01: number; b11: number } {
-  const dx = grid.spacing[0]!;
+  const dx = grid.spacing[0];
   const dy = grid.spacing[1] ?? 1;
   let m00: number;
   let m01: number;

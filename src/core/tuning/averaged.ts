@@ -45,17 +45,17 @@ export function averagingWeights(map: Pick<EvidenceMap, 'lengths' | 'variances' 
   const logw = new Float64Array(n);
   let top = -Infinity;
   for (let k = 0; k < n; k++) {
-    const z = map.logEvidence[k]!;
+    const z = map.logEvidence[k];
     const i = Math.floor(k / nv);
     const j = k % nv;
-    logw[k] = Number.isFinite(z) ? z + (hyper === 'uniform' ? Math.log(map.lengths[i]!) + Math.log(map.variances[j]!) : 0) : -Infinity;
-    if (logw[k]! > top) top = logw[k]!;
+    logw[k] = Number.isFinite(z) ? z + (hyper === 'uniform' ? Math.log(map.lengths[i]) + Math.log(map.variances[j]) : 0) : -Infinity;
+    if (logw[k] > top) top = logw[k];
   }
   const w = new Float64Array(n);
   if (!Number.isFinite(top)) return w;
   let sum = 0;
-  for (let k = 0; k < n; k++) sum += w[k] = Math.exp(logw[k]! - top);
-  for (let k = 0; k < n; k++) w[k]! /= sum;
+  for (let k = 0; k < n; k++) sum += w[k] = Math.exp(logw[k] - top);
+  for (let k = 0; k < n; k++) w[k] /= sum;
   return w;
 }
 
@@ -108,32 +108,32 @@ export function averagedPosterior(problem: Problem, prior: PriorSpec, map: Evide
   let meanVariance = 0;
   const cells: { k: number; mean: Float64Array; std: Float64Array }[] = [];
   for (let k = 0; k < w.length; k++) {
-    const wk = w[k]!;
+    const wk = w[k];
     const i = Math.floor(k / nv);
     const j = k % nv;
     if ((i === 0 || i === nl - 1 || j === 0 || j === nv - 1) && (nl > 1 || nv > 1)) edge += wk;
     sumSq += wk * wk;
-    meanLength += wk * map.lengths[i]!;
-    meanVariance += wk * map.variances[j]!;
+    meanLength += wk * map.lengths[i];
+    meanVariance += wk * map.variances[j];
     if (!(wk >= minWeight)) continue;
-    const s = computePosteriorSerial(problem, priorOfCell(prior, map.term, map.lengths[i]!, map.variances[j]!, options.axis)).summary;
+    const s = computePosteriorSerial(problem, priorOfCell(prior, map.term, map.lengths[i], map.variances[j], options.axis)).summary;
     cells.push({ k, mean: s.mean, std: s.std });
     used++;
     usedWeight += wk;
   }
   if (used === 0) throw new InputError('evidence map', 'at least one cell with a finite log evidence', 'none');
-  const n = cells[0]!.mean.length;
+  const n = cells[0].mean.length;
   const mean = new Float64Array(n);
   for (const c of cells) {
-    const a = w[c.k]! / usedWeight;
-    for (let q = 0; q < n; q++) mean[q]! += a * c.mean[q]!;
+    const a = w[c.k] / usedWeight;
+    for (let q = 0; q < n; q++) mean[q] += a * c.mean[q];
   }
   const variance = new Float64Array(n);
   for (const c of cells) {
-    const a = w[c.k]! / usedWeight;
+    const a = w[c.k] / usedWeight;
     for (let q = 0; q < n; q++) {
-      const dm = c.mean[q]! - mean[q]!;
-      variance[q]! += a * (c.std[q]! * c.std[q]! + dm * dm);
+      const dm = c.mean[q] - mean[q];
+      variance[q] += a * (c.std[q] * c.std[q] + dm * dm);
     }
   }
   return {

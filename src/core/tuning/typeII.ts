@@ -126,7 +126,7 @@ export function hyperParameters(prior: PriorSpec, options: HyperParameterOptions
 
 function rawValue(prior: PriorSpec, h: HyperParameter): number {
   if (h.term === null) return prior.nugget ?? 0;
-  const t = prior.terms[h.term]!;
+  const t = prior.terms[h.term];
   switch (h.field) {
     case 'variance':
       return t.variance;
@@ -183,12 +183,12 @@ export function applyHyperParameters(prior: PriorSpec, params: readonly HyperPar
   const terms: Term[] = [...prior.terms];
   let nugget = prior.nugget;
   params.forEach((h, k) => {
-    const v = h.scale === 'log' ? Math.exp(theta[k]!) : theta[k]!;
+    const v = h.scale === 'log' ? Math.exp(theta[k]) : theta[k];
     if (h.term === null) {
       nugget = v;
       return;
     }
-    const t = terms[h.term]!;
+    const t = terms[h.term];
     terms[h.term] = patchTerm(t, termPatch(t, h.field, v));
   });
   return { ...prior, terms, ...(nugget !== undefined ? { nugget } : {}) };
@@ -210,7 +210,7 @@ const KERNEL_STEP = 1e-5;
  * side's spectrum cache: every projection of one fit shares the row spectra).
  */
 function projectedTerm(side: DataSide, prior: PriorSpec, t: number): Matrix {
-  const single: PriorSpec = { mean: prior.mean, terms: [prior.terms[t]!], ...(prior.stdProfile ? { stdProfile: prior.stdProfile } : {}) };
+  const single: PriorSpec = { mean: prior.mean, terms: [prior.terms[t]], ...(prior.stdProfile ? { stdProfile: prior.stdProfile } : {}) };
   return sideProjection(side, single);
 }
 
@@ -235,13 +235,13 @@ export function evidenceGradient(problem: Problem, prior: PriorSpec, params: rea
   if (fft && prior.terms.length > 0) {
     validatePrior(prior, problem.grid);
     prior.terms.forEach((_, t) => termP.push(projectedTerm(side, prior, t)));
-    const first = termP[0]!;
+    const first = termP[0];
     const projected = matrix(first.rows, first.cols, first.data.slice());
-    for (let t = 1; t < termP.length; t++) for (let i = 0; i < projected.data.length; i++) projected.data[i] += termP[t]!.data[i]!;
+    for (let t = 1; t < termP.length; t++) for (let i = 0; i < projected.data.length; i++) projected.data[i] += termP[t].data[i];
     const eta = prior.nugget ?? 0;
     if (eta !== 0) {
       gram = operatorGram(problem.operator);
-      for (let i = 0; i < projected.data.length; i++) projected.data[i] += eta * gram.data[i]!;
+      for (let i = 0; i < projected.data.length; i++) projected.data[i] += eta * gram.data[i];
     }
     space = { residual: priorResidual(side, prior), projected };
   } else {
@@ -271,20 +271,20 @@ export function evidenceGradient(problem: Problem, prior: PriorSpec, params: rea
       };
       const plus = step(1);
       const minus = step(-1);
-      dk = { rows: m, cols: m, data: plus.data.map((v, k) => (v - minus.data[k]!) / (2 * KERNEL_STEP)) };
+      dk = { rows: m, cols: m, data: plus.data.map((v, k) => (v - minus.data[k]) / (2 * KERNEL_STEP)) };
     }
     // ½ αᵀ D α
     let quad = 0;
     for (let a = 0; a < m; a++) {
       let s = 0;
       const oa = a * m;
-      for (let b = 0; b < m; b++) s += dk.data[oa + b]! * alpha[b]!;
-      quad += alpha[a]! * s;
+      for (let b = 0; b < m; b++) s += dk.data[oa + b] * alpha[b];
+      quad += alpha[a] * s;
     }
     // tr(K⁻¹ D) = ⟨L⁻¹ D, L⁻¹⟩
     const x = solveLowerMatrix(L, dk);
     let tr = 0;
-    for (let k = 0; k < x.data.length; k++) tr += x.data[k]! * z.data[k]!;
+    for (let k = 0; k < x.data.length; k++) tr += x.data[k] * z.data[k];
     grad[j] = 0.5 * quad - 0.5 * tr;
   });
   return { logEvidence: g.logDensity, gradient: grad };
@@ -364,7 +364,7 @@ export interface TypeIIResult {
 export function kernelEigenvalueBound(grid: Grid, prior: PriorSpec): number {
   const t = lagTable(grid, prior.terms).values;
   let sum = 0;
-  for (let i = 0; i < t.length; i++) sum += Math.abs(t[i]!);
+  for (let i = 0; i < t.length; i++) sum += Math.abs(t[i]);
   let smax = 1;
   if (prior.stdProfile) smax = prior.stdProfile.reduce((a, v) => Math.max(a, Math.abs(v)), 0);
   return smax * smax * sum;
@@ -405,16 +405,16 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
   const logFloor = (th: Float64Array): number => Math.log(conditioningNuggetFloor(problem.grid, applyHyperParameters(start, params, th)));
   const { lower, upper } = coordinateBounds(params, options.bounds);
   /** Lower bound of coordinate k at θ: the given bound, for the nugget at least its floor. */
-  const lowerAt = (th: Float64Array, k: number): number => (k === nIdx ? Math.max(lower[k]!, logFloor(th) + 1e-9) : lower[k]!);
+  const lowerAt = (th: Float64Array, k: number): number => (k === nIdx ? Math.max(lower[k], logFloor(th) + 1e-9) : lower[k]);
   /** θ clamped into the bounds, the nugget lifted onto its floor (plus a relative 1e-9) where it lies below. */
   const project = (th: Float64Array): Float64Array => {
     for (let k = 0; k < p; k++) {
-      if (th[k]! > upper[k]!) th[k] = upper[k]!;
-      if (k !== nIdx && th[k]! < lower[k]!) th[k] = lower[k]!;
+      if (th[k] > upper[k]) th[k] = upper[k];
+      if (k !== nIdx && th[k] < lower[k]) th[k] = lower[k];
     }
     if (nIdx < 0) return th;
     const f = lowerAt(th, nIdx);
-    if (th[nIdx]! < f) th[nIdx] = f;
+    if (th[nIdx] < f) th[nIdx] = f;
     return th;
   };
   const startTheta0 = hyperParameterVector(start, params);
@@ -429,9 +429,9 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
    * outwards): 'low' at a lower bound with ∂φ/∂θ_k > 0, 'high' at an upper bound with ∂φ/∂θ_k < 0.
    */
   const activeBounds = (th: Float64Array, g: Float64Array): ('low' | 'high' | null)[] =>
-    params.map((_, k) => (th[k]! <= lowerAt(th, k) + 1e-6 && g[k]! > 0 ? 'low' : th[k]! >= upper[k]! - 1e-6 && g[k]! < 0 ? 'high' : null));
+    params.map((_, k) => (th[k] <= lowerAt(th, k) + 1e-6 && g[k] > 0 ? 'low' : th[k] >= upper[k] - 1e-6 && g[k] < 0 ? 'high' : null));
   /** At the floor, with the evidence asking for a smaller nugget (∂φ/∂θ_n > 0). */
-  const atFloor = (th: Float64Array, g: Float64Array): boolean => nIdx >= 0 && th[nIdx]! <= logFloor(th) + 1e-6 && g[nIdx]! > 0;
+  const atFloor = (th: Float64Array, g: Float64Array): boolean => nIdx >= 0 && th[nIdx] <= logFloor(th) + 1e-6 && g[nIdx] > 0;
   // Inverse Hessian approximation of φ = −log p (row-major p × p).
   let H = eye(p);
   let first = true;
@@ -472,7 +472,7 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
     let next: EvidenceAndGradient | null = null;
     let thNext = theta;
     for (let ls = 0; ls < 40; ls++) {
-      thNext = project(theta.map((v, k) => v + t * dir[k]!));
+      thNext = project(theta.map((v, k) => v + t * dir[k]));
       const trial = evaluate(thNext);
       if (Number.isFinite(trial.logEvidence) && -trial.logEvidence <= phi0 + 1e-4 * t * slope) {
         next = trial;
@@ -481,8 +481,8 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
       t *= 0.5;
     }
     if (next === null) break; // no descent possible along the search direction: at the optimum to round-off
-    const s = thNext.map((v, k) => v - theta[k]!);
-    const y = next.gradient.map((v, k) => -v - g[k]!);
+    const s = thNext.map((v, k) => v - theta[k]);
+    const y = next.gradient.map((v, k) => -v - g[k]);
     const sy = dotp(s, y);
     if (sy > 1e-12 * Math.sqrt(dotp(s, s) * dotp(y, y))) {
       if (first) {
@@ -522,11 +522,11 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
       tm[j] -= HESSIAN_STEP;
       const gp = evaluate(tp).gradient;
       const gm = evaluate(tm).gradient;
-      for (let i = 0; i < p; i++) if (!held(i)) info[i * p + j] = -(gp[i]! - gm[i]!) / (2 * HESSIAN_STEP);
+      for (let i = 0; i < p; i++) if (!held(i)) info[i * p + j] = -(gp[i] - gm[i]) / (2 * HESSIAN_STEP);
     }
     for (let i = 0; i < p; i++) {
       for (let j = 0; j < i; j++) {
-        const v = 0.5 * (info[i * p + j]! + info[j * p + i]!);
+        const v = 0.5 * (info[i * p + j] + info[j * p + i]);
         info[i * p + j] = v;
         info[j * p + i] = v;
       }
@@ -539,14 +539,14 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
   const free = params.map((_, k) => k).filter((k) => !held(k));
   const q = free.length;
   const sub = new Float64Array(q * q);
-  free.forEach((a, i) => free.forEach((b, j) => (sub[i * q + j] = info[a * p + b]!)));
+  free.forEach((a, i) => free.forEach((b, j) => (sub[i * q + j] = info[a * p + b])));
   const f = cholesky({ rows: q, cols: q, data: sub });
   if (f.ok && !cancelled) {
     for (let j = 0; j < q; j++) {
       const e = new Float64Array(q);
       e[j] = 1;
       const col = choleskySolve(f.factor, e);
-      free.forEach((a, i) => (cov[a * p + free[j]!] = col[i]!));
+      free.forEach((a, i) => (cov[a * p + free[j]] = col[i]));
     }
   } else if (!cancelled) {
     note = 'the curvature at the optimum is not negative definite (a flat or rising direction): standard errors are not available';
@@ -571,17 +571,17 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
   const startTheta = hyperParameterVector(start, params);
   const back = (h: HyperParameter, c: number): number => (h.scale === 'log' ? Math.exp(c) : c);
   const parameters: FittedParameter[] = params.map((h, k) => {
-    const se = Math.sqrt(cov[k * p + k]!);
-    const c = theta[k]!;
+    const se = Math.sqrt(cov[k * p + k]);
+    const c = theta[k];
     return {
       name: h.name,
       scale: h.scale,
       value: back(h, c),
-      start: back(h, startTheta[k]!),
+      start: back(h, startTheta[k]),
       coordinate: c,
       standardError: se,
       interval95: [back(h, c - 1.96 * se), back(h, c + 1.96 * se)],
-      atBound: finalActive[k]!,
+      atBound: finalActive[k],
     };
   });
   return {
@@ -612,7 +612,7 @@ function coordinateBounds(params: readonly HyperParameter[], bounds: MaximiseOpt
   for (const [name, range] of Object.entries(bounds ?? {})) {
     const k = params.findIndex((h) => h.name === name);
     if (k < 0) throw new InputError(`bounds.${name}`, `the name of a free parameter (${params.map((h) => h.name).join(', ')})`, name);
-    const h = params[k]!;
+    const h = params[k];
     const [lo, hi] = range;
     const positive = h.scale === 'log';
     if (!(lo <= hi) || Number.isNaN(lo) || Number.isNaN(hi) || (positive && !(lo > 0))) {
@@ -647,7 +647,7 @@ function matVec(a: Float64Array, x: Float64Array): Float64Array {
   const out = new Float64Array(p);
   for (let i = 0; i < p; i++) {
     let s = 0;
-    for (let j = 0; j < p; j++) s += a[i * p + j]! * x[j]!;
+    for (let j = 0; j < p; j++) s += a[i * p + j] * x[j];
     out[i] = s;
   }
   return out;
@@ -655,13 +655,13 @@ function matVec(a: Float64Array, x: Float64Array): Float64Array {
 
 function dotp(a: ArrayLike<number>, b: ArrayLike<number>): number {
   let s = 0;
-  for (let i = 0; i < a.length; i++) s += a[i]! * b[i]!;
+  for (let i = 0; i < a.length; i++) s += a[i] * b[i];
   return s;
 }
 
 function maxAbs(a: ArrayLike<number>): number {
   let m = 0;
-  for (let i = 0; i < a.length; i++) m = Math.max(m, Math.abs(a[i]!));
+  for (let i = 0; i < a.length; i++) m = Math.max(m, Math.abs(a[i]));
   return m;
 }
 
@@ -678,7 +678,7 @@ function bfgsUpdate(H: Float64Array, s: Float64Array, y: Float64Array, sy: numbe
   const out = new Float64Array(p * p);
   for (let i = 0; i < p; i++) {
     for (let j = 0; j < p; j++) {
-      out[i * p + j] = H[i * p + j]! - rho * (s[i]! * hy[j]! + hy[i]! * s[j]!) + (rho * rho * yhy + rho) * s[i]! * s[j]!;
+      out[i * p + j] = H[i * p + j] - rho * (s[i] * hy[j] + hy[i] * s[j]) + (rho * rho * yhy + rho) * s[i] * s[j];
     }
   }
   return out;
