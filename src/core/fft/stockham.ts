@@ -85,17 +85,9 @@ export function stockhamFft(
               const o = oa + k;
               f[o] = ar + br;
               f[o + 1] = ai + bi;
-              let tr = ar - jbR, ti = ai - jbI;
-              f[o + str] = tr * w1r + ti * w1a;
-              f[o + str + 1] = ti * w1r2 + tr * w1b;
-              tr = ar - br;
-              ti = ai - bi;
-              f[o + 2 * str] = tr * w2r + ti * w2a;
-              f[o + 2 * str + 1] = ti * w2r2 + tr * w2b;
-              tr = ar + jbR;
-              ti = ai + jbI;
-              f[o + 3 * str] = tr * w3r + ti * w3a;
-              f[o + 3 * str + 1] = ti * w3r2 + tr * w3b;
+              rotateStore(f, o + str, ar - jbR, ai - jbI, w1r, w1r2, w1a, w1b);
+              rotateStore(f, o + 2 * str, ar - br, ai - bi, w2r, w2r2, w2a, w2b);
+              rotateStore(f, o + 3 * str, ar + jbR, ai + jbI, w3r, w3r2, w3a, w3b);
             }
           } else {
             for (let k = 0; k < str; k += 2) {
@@ -112,17 +104,9 @@ export function stockhamFft(
               const o = oa + k;
               f[o] = apcR + bpdR;
               f[o + 1] = apcI + bpdI;
-              let tr = amcR - jbR, ti = amcI - jbI;
-              f[o + str] = tr * w1r + ti * w1a;
-              f[o + str + 1] = ti * w1r2 + tr * w1b;
-              tr = apcR - bpdR;
-              ti = apcI - bpdI;
-              f[o + 2 * str] = tr * w2r + ti * w2a;
-              f[o + 2 * str + 1] = ti * w2r2 + tr * w2b;
-              tr = amcR + jbR;
-              ti = amcI + jbI;
-              f[o + 3 * str] = tr * w3r + ti * w3a;
-              f[o + 3 * str + 1] = ti * w3r2 + tr * w3b;
+              rotateStore(f, o + str, amcR - jbR, amcI - jbI, w1r, w1r2, w1a, w1b);
+              rotateStore(f, o + 2 * str, apcR - bpdR, apcI - bpdI, w2r, w2r2, w2a, w2b);
+              rotateStore(f, o + 3 * str, amcR + jbR, amcI + jbI, w3r, w3r2, w3a, w3b);
             }
           }
           twp += 12;
@@ -153,6 +137,12 @@ export function stockhamFft(
       }
     }
   }
+}
+
+/** f[o], f[o + 1] ← t·w for the table's pair (wr, wr2) = (wr, wr), (wa, wb) = (−wi, wi): the f64x2 product of the .wat. */
+function rotateStore(f: Float64Array, o: number, tr: number, ti: number, wr: number, wr2: number, wa: number, wb: number): void {
+  f[o] = tr * wr + ti * wa;
+  f[o + 1] = ti * wr2 + tr * wb;
 }
 
 /** scaleComplex(dst, src, lam, count) of src/core/wasm/wat/fft.wat: dst[i] ← lam[i]·src[i]. */
