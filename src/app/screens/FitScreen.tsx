@@ -4,6 +4,7 @@ import { useWb } from '../context.ts';
 import { fmtNum } from '../figures/common.ts';
 import { fitLayouts, fitTraces } from '../figures/fit.ts';
 import { Plot } from '../Plot.tsx';
+import { SurveyFitPlots } from '../survey/SurveyPlots.tsx';
 import { FIT_REFERENCE_BASIS, fitVerdict, formatTail, shownPosterior } from '../posteriorView.ts';
 import { Waiting } from './Waiting.tsx';
 
@@ -41,6 +42,7 @@ export function FitScreen() {
           )}
         </p>
       )}
+      {fit && post && <SurveyFitPlots p={p} fit={post} />}
       {fit ? (
         <div className="grid-2">
           <Plot id="plot-fit" label="Observed against predicted data" data={fit.obs} layout={layouts.obs} height={300} />

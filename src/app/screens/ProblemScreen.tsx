@@ -6,14 +6,18 @@ import { coverageLayout, coverageTraces, dataLayout, observedTrace } from '../fi
 import { fmtNum } from '../figures/common.ts';
 import { withUnit } from '../labels.ts';
 import { Plot } from '../Plot.tsx';
+import { gridOverlayTraces, overlayLegend, surveyDataFigure } from '../survey/figures.ts';
 
 export function ProblemScreen() {
   const p = useWb((s) => s.problem);
   const posterior = useWb((s) => s.posterior);
-  const data = useMemo(() => (p ? [observedTrace(p.values, p.sigma)] : []), [p]);
-  const layout = useMemo(() => p && dataLayout(p.dataUnit), [p]);
-  const coverage = useMemo(() => (p ? coverageTraces(p.grid, p.coverage) : []), [p]);
-  const covLayout = useMemo(() => p && coverageLayout(p.grid, p.dataUnit, p.quantity.unit), [p]);
+  // Against position when the data say where they were measured (src/app/survey/figures.ts).
+  const profile = useMemo(() => p && surveyDataFigure(p), [p]);
+  const data = useMemo(() => profile?.data ?? (p ? [observedTrace(p.values, p.sigma)] : []), [p, profile]);
+  const layout = useMemo(() => profile?.layout ?? (p && dataLayout(p.dataUnit)), [p, profile]);
+  // The grid's outline, first cell centre, cell size and the geometry over the sensitivity map.
+  const coverage = useMemo(() => (p ? [...coverageTraces(p.grid, p.coverage), ...gridOverlayTraces(p.grid, p.geometry)] : []), [p]);
+  const covLayout = useMemo(() => p && { ...coverageLayout(p.grid, p.dataUnit, p.quantity.unit), ...overlayLegend() }, [p]);
   if (!p || !layout || !covLayout) return null;
   const g = p.grid;
   return (
@@ -47,8 +51,8 @@ export function ProblemScreen() {
         </dl>
       </div>
       <div className="grid-2">
-        <Plot id="plot-data" label="Observed data with error bars" data={data} layout={layout} height={280} />
-        <Plot id="plot-coverage" label="Sensitivity map of the forward operator" data={coverage} layout={covLayout} height={280} />
+        <Plot id="plot-data" label="Observed data with error bars" data={data} layout={layout} height={380} />
+        <Plot id="plot-coverage" label="Sensitivity map of the forward operator" data={coverage} layout={covLayout} height={380} />
       </div>
     </div>
   );
