@@ -14,10 +14,11 @@
  *   (same ℓ_i from logSpaced, same 'auto' method choice, which depends on the variance count only);
  * - ν profile: one ν per call (the core factors per ν anyway); the nugget profile is one call (one
  *   eigendecomposition serves all values, cheap);
- * - calibration: chunks of replicates, chunk k seeded with (seed + k) mod 2³² (our own stream
- *   contract for the UI: {@link calibrationChunks}), merged by {@link mergeCalibration};
+ * - calibration: chunks of replicates ({@link calibrationChunks}), merged by {@link mergeCalibration};
+ *   replicate r draws from its own stream seeded replicateSeed(seed, r) (src/core/tuning/calibration.ts),
+ *   the command line's streams, so `priorscope calibrate --seed S` gives the workbench's replicates;
  * - candidates: one candidate per unit; cross-calibration: one (truth, inversion) pair per unit,
- *   every pair with the same seed (common random numbers, as calibrationTable does).
+ *   every pair with the same replicate streams (common random numbers, as calibrationTable does).
  * The type-II fit is one core call (BFGS state cannot be split without changing the optimiser);
  * it reports progress but can only be cancelled before it starts.
  *
@@ -38,6 +39,7 @@ import type { PriorSpec } from '../core/prior/spec.ts';
 import type { Problem } from '../core/problems/spec.ts';
 import {
   calibrate,
+  replicateSeed,
   evidenceMap,
   evidenceProfile,
   leaveOneOut,
@@ -193,7 +195,7 @@ async function profile(
   return { parameter: 'nu', values, logEvidence: out, method: 'cholesky', best, cancelled };
 }
 
-/** Replicate counts and seeds of the calibration chunks: at most 10 chunks, chunk k seeded (seed + k) mod 2³². */
+/** Replicate counts of the calibration chunks (at most 10 chunks), each with a seed (seed + k) mod 2³² that only checks the seed: replicates draw from replicateSeed streams. */
 export function calibrationChunks(replicates: number, seed: number): { replicates: number; seed: number }[] {
   if (!Number.isInteger(replicates) || replicates < 1 || replicates > MAX_REPLICATES) throw new InputError('replicates', `an integer from 1 to ${MAX_REPLICATES}`, replicates);
   const size = Math.max(1, Math.ceil(replicates / 10));
@@ -273,7 +275,8 @@ async function calibrationByChunks(
   for (const [k, c] of chunks.entries()) {
     if (k > 0) await yieldToMessages();
     if (signal.aborted) break;
-    parts.push(calibrate(problem, prior, prior, { replicates: c.replicates, draws: o.draws, seed: c.seed, structured }));
+    const first = done;
+    parts.push(calibrate(problem, prior, prior, { replicates: c.replicates, draws: o.draws, seed: c.seed, streamSeed: (r) => replicateSeed(o.seed, first + r), structured }));
     done += c.replicates;
     progress(`calibration: ${done} of ${o.replicates} replicates`, done / o.replicates);
   }
@@ -399,7 +402,7 @@ async function crossCalibration(
     }
     const i = Math.floor(cell / K);
     const j = cell % K;
-    const res = calibrate(problem, priors[i], priors[j], { replicates: o.replicates, draws: o.draws, seed: o.seed, structured });
+    const res = calibrate(problem, priors[i], priors[j], { replicates: o.replicates, draws: o.draws, seed: o.seed, streamSeed: (r) => replicateSeed(o.seed, r), structured });
     c68[cell] = res.coverage68;
     c95[cell] = res.coverage95;
     progress(`cross-calibration: pair ${cell + 1} of ${K * K}`, (cell + 1) / (K * K));
