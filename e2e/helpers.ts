@@ -98,8 +98,8 @@ export function maxRelDiff(a: ArrayLike<number>, b: ArrayLike<number>): number {
   let scale = 0;
   let d = 0;
   for (let i = 0; i < b.length; i++) {
-    scale = Math.max(scale, Math.abs(b[i]!));
-    d = Math.max(d, Math.abs(a[i]! - b[i]!));
+    scale = Math.max(scale, Math.abs(b[i]));
+    d = Math.max(d, Math.abs(a[i] - b[i]));
   }
   return d / (scale || 1);
 }

@@ -19,7 +19,7 @@ async function reversedY(page: import('@playwright/test').Page, plotId: string):
     return gd?._fullLayout?.yaxis?.range ?? null;
   }, plotId);
   expect(range, `${plotId} has a y range`).not.toBeNull();
-  return range![0]! > range![1]!;
+  return range![0] > range![1];
 }
 
 async function axisValues(page: import('@playwright/test').Page, plotId: string, name: string, key: 'x' | 'y'): Promise<number[]> {
@@ -53,7 +53,7 @@ test('the correlation map tilts the same way as a rotated realisation, and says 
   const ys = await axisValues(page, 'plot-correlation-map', 'ρ', 'y');
   const mapUp = (await reversedY(page, 'plot-correlation-map')) ? -1 : 1;
   let mapMoment = 0;
-  z.forEach((row, j) => row.forEach((rho, i) => (mapMoment += rho * xs[i]! * mapUp * ys[j]!)));
+  z.forEach((row, j) => row.forEach((rho, i) => (mapMoment += rho * xs[i] * mapUp * ys[j])));
   expect(Math.abs(mapMoment)).toBeGreaterThan(0);
   await screenshot(page, info, 'orientation-prior');
 
@@ -64,9 +64,9 @@ test('the correlation map tilts the same way as a rotated realisation, and says 
   for (let k = 1; k <= 6; k++) {
     const f = (await traceValues(page, 'plot-prior-draws', `draw ${k}`, 'z')) as number[][];
     for (let j = 1; j + 1 < f.length; j++) {
-      for (let i = 0; i + 1 < f[j]!.length; i++) {
-        along += f[j]![i]! * f[j + 1]![i + 1]!; // step (+1, +1) in (x, y)
-        across += f[j]![i]! * f[j - 1]![i + 1]!; // step (+1, −1)
+      for (let i = 0; i + 1 < f[j].length; i++) {
+        along += f[j][i] * f[j + 1][i + 1]; // step (+1, +1) in (x, y)
+        across += f[j][i] * f[j - 1][i + 1]; // step (+1, −1)
       }
     }
   }

@@ -32,7 +32,7 @@ test('2-D overview: realisations and posterior mean on one diverging range about
     ['ov-draw-1', 'ov-draw-2', 'ov-mean', 'ov-std'].map((id) => {
       const gd = document.getElementById(id) as unknown as { data: { zmin: number; zmax: number }[]; _fullLayout: { xaxis: { _length: number; range: number[] }; yaxis: { _length: number; range: number[] } } };
       const fl = gd._fullLayout;
-      return { zmin: gd.data[0]!.zmin, zmax: gd.data[0]!.zmax, w: fl.xaxis._length, h: fl.yaxis._length, xr: fl.xaxis.range, yr: fl.yaxis.range };
+      return { zmin: gd.data[0].zmin, zmax: gd.data[0].zmax, w: fl.xaxis._length, h: fl.yaxis._length, xr: fl.xaxis.range, yr: fl.yaxis.range };
     }),
   );
   const [d1, d2, mean, std] = info2 as { zmin: number; zmax: number; w: number; h: number; xr: number[]; yr: number[] }[];
@@ -42,13 +42,13 @@ test('2-D overview: realisations and posterior mean on one diverging range about
   expect(std!.zmin).toBe(0);
   // true aspect: pixels per metre equal on both axes (the section is 2000 m × 500 m)
   for (const m of [d1!, mean!]) {
-    const sx = m.w / Math.abs(m.xr[1]! - m.xr[0]!);
-    const sy = m.h / Math.abs(m.yr[1]! - m.yr[0]!);
+    const sx = m.w / Math.abs(m.xr[1] - m.xr[0]);
+    const sy = m.h / Math.abs(m.yr[1] - m.yr[0]);
     expect(sy / sx).toBeCloseTo(1, 2);
   }
   // limits by hand
   await page.getByTestId('colour-limit').fill('100');
   await page.getByTestId('colour-limit').press('Enter');
-  await expect.poll(() => page.evaluate(() => (document.getElementById('ov-draw-1') as unknown as { data: { zmax: number }[] }).data[0]!.zmax)).toBeCloseTo(c + 100, 9);
+  await expect.poll(() => page.evaluate(() => (document.getElementById('ov-draw-1') as unknown as { data: { zmax: number }[] }).data[0].zmax)).toBeCloseTo(c + 100, 9);
   await page.screenshot({ path: info.outputPath('overview-2d.png'), fullPage: true });
 });

@@ -71,7 +71,7 @@ for (const id of ['crosshole-tomography', 'potential-field']) {
     const s1 = await settle(page);
     await expect(slider).toHaveValue(String(positions[positions.length - 1]));
     expect(s1.priorRevision).toBeGreaterThan(s0.priorRevision);
-    expect(s1.prior.terms[0]!.length).not.toBe(s0.prior.terms[0]!.length);
+    expect(s1.prior.terms[0].length).not.toBe(s0.prior.terms[0].length);
     expect(s1.computedFor.posterior).toBe(`${s1.problemVersion}:${s1.priorRevision}`);
     // The deferred figures were redrawn for the final prior: the std map equals the core's
     // posterior std for it (relative 1e-9 for round-off between two V8 builds; common practice, no source).

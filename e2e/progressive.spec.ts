@@ -91,7 +91,7 @@ test('the posterior mean is drawn while the bands are computing, and the bands f
   await input.press('Enter');
   const partialZ2 = (await (await seen2).jsonValue()) as number[][];
   const after = await settle(page);
-  expect(after.prior.terms[0]!.length).toBe(2.5);
+  expect(after.prior.terms[0].length).toBe(2.5);
   await expect(page.getByTestId('bands-status')).toHaveCount(0);
   await expect.poll(async () => (await traceValues(page, 'plot-posterior-std', 'std', 'z')).length, { timeout: 20_000 }).toBe(NY);
   expect(await traceValues(page, 'plot-posterior-mean', 'mean', 'z')).toEqual(partialZ2);

@@ -54,7 +54,7 @@ test('a damaged autosave opens to a usable page, in our words', async ({ page })
   await expect(page.getByTestId('activity')).toHaveText('Up to date', { timeout: 45_000 });
   await expect(page.getByTestId('recover')).toHaveCount(0);
   const s = await settle(page);
-  expect(s.prior.terms[0]!.kernel).not.toBe('wobbly');
+  expect(s.prior.terms[0].kernel).not.toBe('wobbly');
   const text = await page.locator('body').textContent();
   expect(text ?? '').not.toMatch(RAW_JS);
   // A second reload opens as well (nothing damaged persists).
@@ -67,7 +67,7 @@ test('an edit followed at once by a reload survives', async ({ page }) => {
   await setLength(page, '7.25');
   await page.reload(); // no wait for the debounced save: pagehide writes it
   await expect(page.getByTestId('activity')).toHaveText('Up to date', { timeout: 45_000 });
-  expect((await state(page)).prior.terms[0]!.length).toBe(7.25);
+  expect((await state(page)).prior.terms[0].length).toBe(7.25);
 });
 
 test('a ?demo= address keeps the earlier session, and it can be restored', async ({ page }) => {
@@ -83,7 +83,7 @@ test('a ?demo= address keeps the earlier session, and it can be restored', async
   await expect(page.getByTestId('activity')).toHaveText('Up to date', { timeout: 45_000 });
   const s = await settle(page);
   expect(s.demoId).toBe('borehole-log');
-  expect(s.prior.terms[0]!.length).toBe(6.5);
+  expect(s.prior.terms[0].length).toBe(6.5);
 });
 
 test('a link that cannot be applied changes nothing and says why', async ({ page }) => {
@@ -95,7 +95,7 @@ test('a link that cannot be applied changes nothing and says why', async ({ page
   await page.reload(); // a hash change alone does not reopen the page
   await expect(page.getByTestId('activity')).toHaveText('Up to date', { timeout: 45_000 });
   await expect(page.getByText(/Nothing was changed/)).toBeVisible();
-  expect((await settle(page)).prior.terms[0]!.length).toBe(5.75);
+  expect((await settle(page)).prior.terms[0].length).toBe(5.75);
 });
 
 test('a share link with 20,000 terms is refused at once and the saved session is kept', async ({ page }) => {
@@ -113,7 +113,7 @@ test('a share link with 20,000 terms is refused at once and the saved session is
   expect(Date.now() - t0).toBeLessThan(5_000);
   await expect(page.getByTestId('activity')).toHaveText('Up to date', { timeout: 45_000 });
   expect((await settle(page)).prior.terms).toHaveLength(1);
-  expect((await state(page)).prior.terms[0]!.length).toBe(4.5);
+  expect((await state(page)).prior.terms[0].length).toBe(4.5);
 });
 
 test('a share link made on a loaded problem, opened in a fresh browser, names what is missing and applies once it is loaded', async ({ page, browser }) => {

@@ -29,7 +29,7 @@ test('headers on the page and the worker scripts; the policy holds inside a work
 
   const workers = page.workers();
   expect(workers.length).toBeGreaterThan(0);
-  const probe = await workers[0]!.evaluate(async () => {
+  const probe = await workers[0].evaluate(async () => {
     const violations: string[] = [];
     self.addEventListener('securitypolicyviolation', (e) => violations.push((e as SecurityPolicyViolationEvent).effectiveDirective));
     let fetchResult = 'ran';

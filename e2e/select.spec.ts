@@ -37,7 +37,7 @@ async function waitStatus(page: Page, kind: string, status: string, timeout = 45
 
 /** The default map of the screen: lengths ×1/5 … ×5, variances ×1/100 … ×100, 16 × 16. */
 function defaultAxes(prior: PriorSpec) {
-  const t = prior.terms[0]!;
+  const t = prior.terms[0];
   const l = termLength(t);
   return { lengths: { min: l / 5, max: l * 5, count: 16 }, variances: { min: t.variance / 100, max: t.variance * 100, count: 16 } };
 }
@@ -82,14 +82,14 @@ test('evidence map on the 1-D demo: maximum equals the core; clicking a cell app
       const L = gd._fullLayout;
       return { x: r.left + L.xaxis._offset + L.xaxis.l2p(x!), y: r.top + L.yaxis._offset + L.yaxis.l2p(y!) };
     },
-    [Math.log10(expected.lengths[i]!), Math.log10(expected.variances[j]!)] as const,
+    [Math.log10(expected.lengths[i]), Math.log10(expected.variances[j])] as const,
   );
   await page.mouse.move(pos.x, pos.y);
   await page.mouse.click(pos.x, pos.y);
-  await expect.poll(async () => (await state(page)).prior.terms[0]!.length).toBe(expected.lengths[i]);
+  await expect.poll(async () => (await state(page)).prior.terms[0].length).toBe(expected.lengths[i]);
   const s1 = await settle(page);
-  expect(s1.prior.terms[0]!.variance).toBe(expected.variances[j]);
-  expect(s1.prior.terms[0]!.kernel).toBe(s0.prior.terms[0]!.kernel);
+  expect(s1.prior.terms[0].variance).toBe(expected.variances[j]);
+  expect(s1.prior.terms[0].kernel).toBe(s0.prior.terms[0].kernel);
   expect(w.problems).toEqual([]);
   expect(w.foreign).toEqual([]);
 });
@@ -137,7 +137,7 @@ test('criteria of the current prior and two pinned candidates match the core; "u
   await page.getByTestId('select-pin').click();
   await setField(page, 'term-0-length-input', '2.5');
   const s1 = await settle(page);
-  expect(s1.prior.terms[0]!.length).toBe(2.5);
+  expect(s1.prior.terms[0].length).toBe(2.5);
   await page.getByTestId('select-pin').click();
   await page.getByTestId('select-view-candidates').click();
   await waitStatus(page, 'candidates', 'done');

@@ -131,23 +131,23 @@ test('the exported prior re-imports identically; undo and redo (buttons and keys
 
   // undo the import, then the 1.5, then the 4.25 edit: back at the start
   await page.getByTestId('undo').click();
-  await expect.poll(async () => (await state(page)).prior.terms[0]!.length).toBe(1.5);
+  await expect.poll(async () => (await state(page)).prior.terms[0].length).toBe(1.5);
   await page.locator('body').press('Control+z');
-  await expect.poll(async () => (await state(page)).prior.terms[0]!.length).toBe(4.25);
+  await expect.poll(async () => (await state(page)).prior.terms[0].length).toBe(4.25);
   await page.locator('body').press('Control+z');
   await expect.poll(async () => (await state(page)).prior).toEqual(start.prior);
   await expect(page.getByTestId('undo')).toBeDisabled();
   await page.locator('body').press('Control+Shift+z');
-  await expect.poll(async () => (await state(page)).prior.terms[0]!.length).toBe(4.25);
+  await expect.poll(async () => (await state(page)).prior.terms[0].length).toBe(4.25);
   await page.getByTestId('redo').click();
-  await expect.poll(async () => (await state(page)).prior.terms[0]!.length).toBe(1.5);
+  await expect.poll(async () => (await state(page)).prior.terms[0].length).toBe(1.5);
 
   // a drag of the variance slider (many edits of one field) undoes in one step
   const beforeDrag = (await settle(page)).prior;
   const slider = page.getByTestId('term-0-variance-slider');
   await slider.focus();
   for (let k = 0; k < 12; k++) await slider.press('ArrowRight');
-  await expect.poll(async () => (await state(page)).prior.terms[0]!.variance).not.toBe(beforeDrag.terms[0]!.variance);
+  await expect.poll(async () => (await state(page)).prior.terms[0].variance).not.toBe(beforeDrag.terms[0].variance);
   await page.getByTestId('undo').click();
   await expect.poll(async () => (await state(page)).prior).toEqual(beforeDrag);
   await settle(page);
@@ -268,7 +268,7 @@ test('if a numerics worker dies, the page says so, restarts it and keeps the use
   const workers = page.workers().filter((x) => !x.url().includes('parseWorker'));
   expect(workers.length).toBeGreaterThanOrEqual(1);
   // test-only: an uncaught error inside the worker, as an out-of-memory abort would give
-  await workers[0]!.evaluate(() => {
+  await workers[0].evaluate(() => {
     setTimeout(() => {
       throw new Error('simulated worker crash');
     }, 0);
@@ -277,10 +277,10 @@ test('if a numerics worker dies, the page says so, restarts it and keeps the use
   await expect.poll(async () => (await state(page)).restarts).toBeGreaterThanOrEqual(1);
   await setLength(page, '6');
   const s = await settle(page);
-  expect(s.prior.terms[0]!.length).toBe(6);
+  expect(s.prior.terms[0].length).toBe(6);
   await expect(page.getByTestId('problem-source')).toContainText('Trench test', { timeout: 30_000 });
   const mean = (await traceValues(page, 'plot-posterior', 'posterior mean')) as number[];
-  expect(maxRelDiff(mean, posteriorSummary(preparePosterior(P.problem, { ...before.prior, terms: [patchTerm(before.prior.terms[0]!, { length: 6 })] })).mean)).toBeLessThan(TOL);
+  expect(maxRelDiff(mean, posteriorSummary(preparePosterior(P.problem, { ...before.prior, terms: [patchTerm(before.prior.terms[0], { length: 6 })] })).mean)).toBeLessThan(TOL);
   expect(w.foreign).toEqual([]);
   // the crash itself is the only page-level error allowed
   expect(w.problems.filter((p) => !p.includes('simulated worker crash'))).toEqual([]);
@@ -301,7 +301,7 @@ test('the template problem loads by drag-and-drop; plots, realisations and the r
   await expect(page.getByTestId('problem-source')).toContainText('Template: soil moisture along a trench (invented)', { timeout: 30_000 });
   const s = await settle(page);
   const { parseProblemFile } = await import('../src/core/io/problemFile.ts');
-  const problem = parseProblemFile('problem.json', files[0]!.text, { readSibling: () => new TextEncoder().encode(files[1]!.text) }).problem;
+  const problem = parseProblemFile('problem.json', files[0].text, { readSibling: () => new TextEncoder().encode(files[1].text) }).problem;
   const mean = (await traceValues(page, 'plot-posterior', 'posterior mean')) as number[];
   expect(maxRelDiff(mean, posteriorSummary(preparePosterior(problem, s.prior)).mean)).toBeLessThan(TOL);
 

@@ -26,15 +26,15 @@ test('after a kernel change the earlier optimum and map are out of date and cann
   await expect(page.getByTestId('fit-stale')).toHaveCount(0);
   await expect(page.getByTestId('profile-stale')).toHaveCount(0);
 
-  const kernel = s0.prior.terms[0]!.kernel === 'gaussian' ? 'exponential' : 'gaussian';
+  const kernel = s0.prior.terms[0].kernel === 'gaussian' ? 'exponential' : 'gaussian';
   await page.getByTestId('term-0-kernel').selectOption(kernel);
   const s1 = await settle(page);
-  expect(s1.prior.terms[0]!.kernel).toBe(kernel);
+  expect(s1.prior.terms[0].kernel).toBe(kernel);
   await expect(page.getByTestId('fit-result')).toHaveAttribute('data-freshness', 'other-structure');
   await expect(page.getByTestId('fit-stale')).toContainText('Out of date');
   await expect(page.getByTestId('fit-apply')).toBeDisabled();
   await expect(page.getByTestId('fit-apply')).toHaveAttribute('title', /other kernels or terms/);
-  await expect(page.getByTestId('fit-stale')).toContainText(`other kernels or terms (1 term: ${s0.prior.terms[0]!.kernel}; the current prior has 1 term: ${kernel}`);
+  await expect(page.getByTestId('fit-stale')).toContainText(`other kernels or terms (1 term: ${s0.prior.terms[0].kernel}; the current prior has 1 term: ${kernel}`);
   await expect(page.getByTestId('map-stale')).toContainText('cannot be applied');
   await expect(page.getByTestId('map-apply-best')).toBeDisabled();
   // The nugget profile was computed with the earlier kernel held fixed: shown as out of date.
@@ -45,10 +45,10 @@ test('after a kernel change the earlier optimum and map are out of date and cann
   // Even a forced click does not bring the old kernel back.
   await page.getByTestId('fit-apply').click({ force: true });
   await page.getByTestId('map-apply-best').click({ force: true });
-  expect((await state(page)).prior.terms[0]!.kernel).toBe(kernel);
+  expect((await state(page)).prior.terms[0].kernel).toBe(kernel);
 
   // Back to the kernel it was computed for, with another length: out of date but applicable.
-  await page.getByTestId('term-0-kernel').selectOption(s0.prior.terms[0]!.kernel);
+  await page.getByTestId('term-0-kernel').selectOption(s0.prior.terms[0].kernel);
   await settle(page);
   await expect(page.getByTestId('fit-result')).toHaveAttribute('data-freshness', 'earlier-prior');
   await expect(page.getByTestId('fit-apply')).toBeEnabled();

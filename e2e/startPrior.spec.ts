@@ -51,7 +51,7 @@ test('a loaded problem starts from the fitted prior, uses its axis names and uni
   const expected = startPriorRule(parseProblemFile('trench.json', text).problem).prior;
   expect(s.prior).toEqual(expected);
   // On the data's scale: not mean 0 and variance 1.
-  expect(s.prior.terms[0]!.variance).not.toBe(1);
+  expect(s.prior.terms[0].variance).not.toBe(1);
   expect((s.prior.mean as { constant: number }).constant).not.toBe(0);
   await expect(page.getByTestId('plausibility-warning')).toHaveCount(0);
 
@@ -68,7 +68,7 @@ test('a loaded problem starts from the fitted prior, uses its axis names and uni
 
   // A prior a thousand times too narrow: the data are implausible, and the panel says so.
   const v = page.getByTestId('term-0-variance-input');
-  await v.fill(String(expected.terms[0]!.variance / 1000));
+  await v.fill(String(expected.terms[0].variance / 1000));
   await v.press('Enter');
   await settle(page);
   await expect(page.getByTestId('plausibility-warning')).toContainText('vary more than the prior');

@@ -41,7 +41,7 @@ test('loads the 1-D demo with posterior mean, bands and data fit; no console err
   expect(maxRelDiff(mean, expected.mean)).toBeLessThan(TOL);
   // the 95% band is mean ± 1.96 σ of the core's posterior std
   const upper95 = ((await traceValues(page, 'plot-posterior', 'posterior 95%')) as number[]).slice(0, 200);
-  expect(maxRelDiff(upper95, Array.from(expected.mean, (m, i) => m + 1.959963984540054 * expected.std[i]!))).toBeLessThan(TOL);
+  expect(maxRelDiff(upper95, Array.from(expected.mean, (m, i) => m + 1.959963984540054 * expected.std[i]))).toBeLessThan(TOL);
 
   await page.getByTestId('tab-fit').click();
   await expect(page.getByTestId('plot-fit')).toBeVisible();
@@ -73,13 +73,13 @@ test('changing a correlation length changes the posterior to the core numbers fo
   await input.fill('2.5');
   await input.press('Enter');
   const s = await settle(page);
-  expect(s.prior.terms[0]!.length).toBe(2.5);
+  expect(s.prior.terms[0].length).toBe(2.5);
   await expect.poll(async () => maxRelDiff((await traceValues(page, 'plot-posterior', 'posterior mean')) as number[], before)).toBeGreaterThan(1e-4);
   const after = (await traceValues(page, 'plot-posterior', 'posterior mean')) as number[];
-  const expected = posteriorSummary(preparePosterior(borehole.problem, { ...borehole.startPrior, terms: [patchTerm(borehole.startPrior.terms[0]!, { length: 2.5 })] }));
+  const expected = posteriorSummary(preparePosterior(borehole.problem, { ...borehole.startPrior, terms: [patchTerm(borehole.startPrior.terms[0], { length: 2.5 })] }));
   expect(maxRelDiff(after, expected.mean)).toBeLessThan(TOL);
   const std = ((await traceValues(page, 'plot-posterior', 'posterior 68%')) as number[]).slice(0, 200);
-  expect(maxRelDiff(std, Array.from(expected.mean, (m, i) => m + expected.std[i]!))).toBeLessThan(TOL);
+  expect(maxRelDiff(std, Array.from(expected.mean, (m, i) => m + expected.std[i]))).toBeLessThan(TOL);
   expect(w.problems).toEqual([]);
 });
 
@@ -203,10 +203,10 @@ test('20 rapid slider changes in a second end in the last value, with no errors'
   const s = await settle(page);
   await expect(slider).toHaveValue(String(positions[positions.length - 1]));
   const shown = Number(await page.getByTestId('term-0-length-input').inputValue());
-  expect(s.prior.terms[0]!.length).toBe(shown);
+  expect(s.prior.terms[0].length).toBe(shown);
   // the last value, not an earlier one: slider positions map monotonically to lengths
   const max = Number(await slider.getAttribute('max'));
-  expect(max).toBeGreaterThan(positions[positions.length - 1]!);
+  expect(max).toBeGreaterThan(positions[positions.length - 1]);
   await expect.poll(async () => {
     const mean = (await traceValues(page, 'plot-posterior', 'posterior mean')) as number[];
     const expected = posteriorSummary(preparePosterior(borehole.problem, s.prior)).mean;
@@ -227,10 +227,10 @@ test('every control is reachable and usable from the keyboard', async ({ page })
   await page.keyboard.press('ArrowLeft');
   await expect(page.getByTestId('tab-realisations')).toHaveAttribute('aria-selected', 'true');
   // a slider moves with the arrow keys and updates the prior
-  const before = (await state(page)).prior.terms[0]!.variance;
+  const before = (await state(page)).prior.terms[0].variance;
   await page.getByTestId('term-0-variance-slider').focus();
   await page.keyboard.press('ArrowRight');
-  await expect.poll(async () => (await state(page)).prior.terms[0]!.variance).toBeGreaterThan(before);
+  await expect.poll(async () => (await state(page)).prior.terms[0].variance).toBeGreaterThan(before);
   // add a term with Enter, remove it again
   await page.getByTestId('add-term').focus();
   await page.keyboard.press('Enter');
@@ -239,11 +239,11 @@ test('every control is reachable and usable from the keyboard', async ({ page })
   await page.keyboard.press('Enter');
   await expect(page.getByTestId('term-1')).toHaveCount(0);
   // bad typed input gets a precise message and leaves the prior alone
-  const len = (await state(page)).prior.terms[0]!.length;
+  const len = (await state(page)).prior.terms[0].length;
   await page.getByTestId('term-0-length-input').fill('-3');
   await page.getByTestId('term-0-length-input').press('Enter');
   await expect(page.getByRole('alert').first()).toContainText('Length ℓ must be > 0');
-  expect((await state(page)).prior.terms[0]!.length).toBe(len);
+  expect((await state(page)).prior.terms[0].length).toBe(len);
   // every control has a tooltip with its formula or meaning
   const untitled = await page.evaluate(
     () => [...document.querySelectorAll('.prior-panel input, .prior-panel select')].filter((e) => !e.getAttribute('title')).length,
@@ -274,7 +274,7 @@ test('"Pin as candidate" in the prior panel pins the current prior once and list
   await pin.click();
   await expect.poll(async () => ((await state(page)) as unknown as { candidates: { prior: unknown }[] }).candidates.length).toBe(1);
   const s1 = (await state(page)) as unknown as { candidates: { prior: unknown }[] };
-  expect(s1.candidates[0]!.prior).toEqual(s0.prior);
+  expect(s1.candidates[0].prior).toEqual(s0.prior);
   // The same prior cannot be pinned twice; a changed prior can.
   await expect(pin).toBeDisabled();
   await page.getByTestId('term-0-variance-slider').focus();
@@ -317,7 +317,7 @@ test('evidence map cells are reachable from the keyboard: arrows move the highli
   await expect.poll(async () => (await state(page)).priorRevision).toBeGreaterThan(s0.priorRevision);
   const s1 = await settle(page);
   // Values travel through log10 and back in the test only; the prior holds the map's own numbers.
-  expect(Math.abs(s1.prior.terms[0]!.length! / axes.lengths[i]! - 1)).toBeLessThan(1e-12);
-  expect(Math.abs(s1.prior.terms[0]!.variance / axes.variances[j]! - 1)).toBeLessThan(1e-12);
+  expect(Math.abs(s1.prior.terms[0].length! / axes.lengths[i] - 1)).toBeLessThan(1e-12);
+  expect(Math.abs(s1.prior.terms[0].variance / axes.variances[j] - 1)).toBeLessThan(1e-12);
   expect(w.problems).toEqual([]);
 });

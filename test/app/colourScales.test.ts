@@ -52,7 +52,7 @@ describe('colour ranges', () => {
     const mid = DIVERGING.find(([t]) => t === 0.5)![1];
     for (const [, c] of DIVERGING) expect(lum(c)).toBeLessThanOrEqual(lum(mid));
     const ls = SEQUENTIAL.map(([, c]) => lum(c));
-    for (let i = 1; i < ls.length; i++) expect(ls[i]).toBeLessThan(ls[i - 1]!);
+    for (let i = 1; i < ls.length; i++) expect(ls[i]).toBeLessThan(ls[i - 1]);
   });
 
   it('pinned candidates share one signed range about their common constant mean and one std range', () => {

@@ -28,7 +28,7 @@ describe('fit verdict', () => {
   });
   it('the report rows carry the expected χ², the interval, the tail probability, the verdict and its basis', () => {
     const rows = Object.fromEntries(fitReferenceRows(s.chi2, ref));
-    const line = rows['Reference for χ²']!;
+    const line = rows['Reference for χ²'];
     expect(Number(/^expected ([^ ]+) \(M − tr R/.exec(line)![1])).toBeCloseTo(50 - s.resolutionTrace, 2);
     expect(line).toContain(`95% interval ${Number(ref.interval95[0].toPrecision(4))} – ${Number(ref.interval95[1].toPrecision(4))}`);
     expect(line).toContain(`P(χ² ≥ observed) = ${formatTail(ref.upperTail)}`);

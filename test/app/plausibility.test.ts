@@ -58,7 +58,7 @@ describe('the check it rests on, by simulation', () => {
   });
 
   it('warns on nearly every dataset when the prior variance is 100 times too small', () => {
-    const k = warnings({ ...truth, terms: [{ ...truth.terms[0]!, variance: 0.005 }] });
+    const k = warnings({ ...truth, terms: [{ ...truth.terms[0], variance: 0.005 }] });
     expect(k).toBeGreaterThanOrEqual(190);
   });
 });

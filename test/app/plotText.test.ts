@@ -14,7 +14,7 @@ describe('plot text from files is escaped for plotly', () => {
     const layout = { title: { text: '<i>t</i>' }, xaxis: { title: { text: 'x <u>' }, ticktext: ['<a>'] }, height: 3 };
     const trace = { name: '<b>n</b>', z, hovertemplate: 'x %{x}<br>y<extra></extra>' };
     expect(plotSafe(layout)).toEqual({ title: { text: '&lt;i&gt;t&lt;/i&gt;' }, xaxis: { title: { text: 'x &lt;u&gt;' }, ticktext: ['&lt;a&gt;'] }, height: 3 });
-    const safe = plotSafe([trace])[0]!;
+    const safe = plotSafe([trace])[0];
     expect(safe.name).toBe('&lt;b&gt;n&lt;/b&gt;');
     expect(safe.hovertemplate).toBe(trace.hovertemplate);
     expect(safe.z).toBe(z);

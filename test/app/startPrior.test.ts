@@ -29,7 +29,7 @@ describe('a loaded problem starts from a prior fitted to its data', () => {
     const s = store.getState();
     const expected = startPriorRule(assembleProblem(pieces())).prior;
     expect(s.prior).toEqual(expected);
-    expect(s.prior!.terms[0]!.variance).toBeLessThan(1e-3); // not the generic variance 1
+    expect(s.prior!.terms[0].variance).toBeLessThan(1e-3); // not the generic variance 1
     expect((s.prior!.mean as { constant: number }).constant).toBeGreaterThan(0.01);
     expect(s.problem!.startRule).toMatch(/generalised least squares through G/);
 
@@ -37,7 +37,7 @@ describe('a loaded problem starts from a prior fitted to its data', () => {
     store.getState().addTerm();
     const terms = store.getState().prior!.terms;
     expect(terms).toHaveLength(2);
-    expect(terms[1]!.variance).toBe(0.002);
+    expect(terms[1].variance).toBe(0.002);
 
     store.getState().resetPrior();
     expect(store.getState().prior).toEqual(expected);

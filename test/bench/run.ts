@@ -55,7 +55,7 @@ function parseArgs(argv: string[]): Args {
   let scipy = true;
   let out = join(repoRoot, 'bench-results', 'bench.json');
   for (let i = 0; i < argv.length; i++) {
-    const a = argv[i]!;
+    const a = argv[i];
     if (a === '--file') file = (argv[++i] ?? '').replace(/\.ts$/, '');
     else if (a === '--filter') filter = argv[++i] ?? '';
     else if (a === '--no-scipy') scipy = false;
@@ -91,7 +91,7 @@ async function loadCases(only: string | null): Promise<{ file: string; c: BenchC
 function median(xs: number[]): number {
   const s = [...xs].sort((a, b) => a - b);
   const m = s.length >> 1;
-  return s.length % 2 ? s[m]! : (s[m - 1]! + s[m]!) / 2;
+  return s.length % 2 ? s[m] : (s[m - 1] + s[m]) / 2;
 }
 
 /** Times a case; a run that returns a promise (the thread-pool cases) is awaited inside the timing. */
@@ -151,8 +151,8 @@ function printTable(rows: CaseResult[]): void {
     fmt(r.gflops_scipy, 2),
     r.extra ? Object.entries(r.extra).map(([k, v]) => `${k} ${Number.isInteger(v) ? v : v.toPrecision(4)}`).join(', ') : '',
   ]);
-  const widths = header.map((h, k) => Math.max(h.length, ...body.map((b) => b[k]!.length)));
-  const line = (cells: string[]) => cells.map((c, k) => (k === 0 || k === cells.length - 1 ? c.padEnd(widths[k]!) : c.padStart(widths[k]!))).join('  ');
+  const widths = header.map((h, k) => Math.max(h.length, ...body.map((b) => b[k].length)));
+  const line = (cells: string[]) => cells.map((c, k) => (k === 0 || k === cells.length - 1 ? c.padEnd(widths[k]) : c.padStart(widths[k]))).join('  ');
   console.log(line(header));
   console.log(widths.map((w) => '-'.repeat(w)).join('  '));
   for (const b of body) console.log(line(b));

@@ -23,7 +23,7 @@ function median(f: () => void, reps: number): number {
     t.push(performance.now() - t0);
   }
   t.sort((a, b) => a - b);
-  return t[Math.floor(t.length / 2)]!;
+  return t[Math.floor(t.length / 2)];
 }
 
 const noDense = process.argv.includes('--no-dense');

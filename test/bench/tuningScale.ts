@@ -31,7 +31,7 @@ function fixedNu(prior: PriorSpec): string[] {
 
 function median(xs: number[]): number {
   const s = [...xs].sort((a, b) => a - b);
-  return s[Math.floor(s.length / 2)]!;
+  return s[Math.floor(s.length / 2)];
 }
 
 async function time(runs: number, f: () => unknown): Promise<number> {
@@ -72,7 +72,7 @@ async function measure(n: number, runs: number, routes: TuningRoute[]): Promise<
     });
     if (fit !== '') r.typeIIDetail = fit;
     process.stderr.write(`${n} ${route}: map and type-II done\n`);
-    const other: PriorSpec = { ...prior, terms: [patchTerm(prior.terms[0]!, { length: l / 2 })] };
+    const other: PriorSpec = { ...prior, terms: [patchTerm(prior.terms[0], { length: l / 2 })] };
     if (route === 'fft') {
       r.candidates2x6draws = await time(1, () => scoreCandidates(problem, [prior, other], 6, 1, () => {}, { aborted: false }));
     } else {

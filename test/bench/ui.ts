@@ -22,7 +22,7 @@ const PORT = Number(process.env.PRIORSCOPE_BENCH_PORT ?? 4319);
 function median(xs: number[]): number {
   const s = [...xs].sort((a, b) => a - b);
   const n = s.length;
-  return n === 0 ? NaN : n % 2 ? s[(n - 1) / 2]! : 0.5 * (s[n / 2 - 1]! + s[n / 2]!);
+  return n === 0 ? NaN : n % 2 ? s[(n - 1) / 2] : 0.5 * (s[n / 2 - 1] + s[n / 2]);
 }
 
 async function waitForServer(url: string, ms = 60_000): Promise<void> {
@@ -142,7 +142,7 @@ async function main(): Promise<void> {
           longTaskTargetMs: 50,
           plotCallsDuringDrag: d.plotCalls,
           longestPlotCallMs: Number(d.longestPlotMs.toFixed(1)),
-          loadAverage1m: Number(loadavg()[0]!.toFixed(2)),
+          loadAverage1m: Number(loadavg()[0].toFixed(2)),
         };
         results.push(r);
         console.error(`bench:ui ${id} ${screen.tab}: median ${r.medianMs} ms, longest task ${r.longestTaskMs} ms`);

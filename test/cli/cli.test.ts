@@ -74,7 +74,7 @@ describe('correlation', () => {
     const j = JSON.parse(r.out) as { lags: number[]; values: number[]; kernel: string };
     expect(j.kernel).toBe(kernel);
     expect(j.lags).toEqual(lags);
-    j.values.forEach((v, k) => expect(Math.abs(v - rho(lags[k]!))).toBeLessThanOrEqual(1e-14));
+    j.values.forEach((v, k) => expect(Math.abs(v - rho(lags[k]))).toBeLessThanOrEqual(1e-14));
   });
   it('matern ν = 3/2 at h = 1 is 0.483358 (REFERENCES.md, derived from eq. 4.17)', async () => {
     const j = JSON.parse((await runCommand(['correlation', '--kernel=matern', '--nu=1.5', '--lags=1'], dir)).out) as { values: number[] };
@@ -107,7 +107,7 @@ describe('posterior and check', () => {
     const res = j.residuals as number[];
     // residuals are (d − G m̃)/σ and chi2 their sum of squares.
     const pred = j.predicted as number[];
-    res.forEach((v, i) => expect(v).toBeCloseTo((PROBLEM.data.values[i]! - pred[i]!) / PROBLEM.data.sigma[i]!, 12));
+    res.forEach((v, i) => expect(v).toBeCloseTo((PROBLEM.data.values[i] - pred[i]) / PROBLEM.data.sigma[i], 12));
     expect(j.chi2 as number).toBeCloseTo(res.reduce((a, b) => a + b * b, 0), 12);
   });
   it('--out writes the same JSON to a file and nothing to stdout', async () => {

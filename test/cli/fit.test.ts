@@ -36,7 +36,7 @@ describe('fit', () => {
     const j = JSON.parse(r.out) as Fit;
     expect(j.parameters.map((p) => p.name)).toEqual(['term0.length']);
     expect(j.prior.kind).toBe('priorscope.prior');
-    expect(j.prior.terms[0]!.variance).toBe(0.1);
+    expect(j.prior.terms[0].variance).toBe(0.1);
     expect(j.prior.nugget).toBe(1e-3);
     expect(j.logEvidence).toBeGreaterThan(j.startLogEvidence);
     // Started at its own optimum the fit stays there (gradient already below tolerance).
@@ -102,8 +102,8 @@ describe('fit', () => {
     // At a stationary point within the optimiser's gradient tolerance g (1e-6 in the log coordinate), a step δ = log 1.03
     // can raise the evidence by at most g·δ (less the curvature term): the fitted value is the top up to that.
     const slack = 1e-6 * Math.log(1.03);
-    expect(e[1]! - e[0]!).toBeGreaterThan(-slack);
-    expect(e[1]! - e[2]!).toBeGreaterThan(-slack);
+    expect(e[1] - e[0]).toBeGreaterThan(-slack);
+    expect(e[1] - e[2]).toBeGreaterThan(-slack);
   });
 
   it('--help names the output fields and exit codes', async () => {

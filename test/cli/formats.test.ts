@@ -39,11 +39,11 @@ describe('the downloadable templates are in step with the format', () => {
     for (let k = 0; k < rows.length; k++) {
       let sum = 0;
       let w = 0;
-      for (let p = g.matrix.rowPtr[k]!; p < g.matrix.rowPtr[k + 1]!; p++) {
-        sum += g.matrix.values[p]! * g.matrix.colIdx[p]!;
-        w += g.matrix.values[p]!;
+      for (let p = g.matrix.rowPtr[k]; p < g.matrix.rowPtr[k + 1]; p++) {
+        sum += g.matrix.values[p] * g.matrix.colIdx[p];
+        w += g.matrix.values[p];
       }
-      expect(rows[k]![0]).toBeCloseTo(sum / w, 12);
+      expect(rows[k][0]).toBeCloseTo(sum / w, 12);
     }
   });
 

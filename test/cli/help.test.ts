@@ -27,8 +27,8 @@ writeFiles(dir, {
 
 async function commandNames(): Promise<string[]> {
   const r = await runCommand(['--help'], dir);
-  const block = r.out.split('Commands:\n')[1]!.split('\n\n')[0]!;
-  return block.split('\n').map((l) => l.trim().split(/\s+/)[0]!);
+  const block = r.out.split('Commands:\n')[1].split('\n\n')[0];
+  return block.split('\n').map((l) => l.trim().split(/\s+/)[0]);
 }
 
 describe('every command: --help, documented output, exit codes', async () => {

@@ -66,7 +66,7 @@ function maxRelDiff(a: number[], b: number[]): number {
   expect(a.length).toBe(b.length);
   const scale = Math.max(...b.map(Math.abs));
   let d = 0;
-  for (let i = 0; i < a.length; i++) d = Math.max(d, Math.abs(a[i]! - b[i]!));
+  for (let i = 0; i < a.length; i++) d = Math.max(d, Math.abs(a[i] - b[i]));
   return d / scale;
 }
 

@@ -50,8 +50,8 @@ describe('shards and merge', () => {
     expect(merged.code, merged.err).toBe(0);
     expect(text('merged.json')).toBe(text('whole.json'));
     const out = JSON.parse(text('whole.json')) as { results: { replicateCoverage68: number[]; rankHistogram: number[] }[] };
-    expect(out.results[0]!.replicateCoverage68).toHaveLength(10);
-    expect(out.results[0]!.rankHistogram.reduce((a, b) => a + b, 0)).toBe(10 * 24);
+    expect(out.results[0].replicateCoverage68).toHaveLength(10);
+    expect(out.results[0].rankHistogram.reduce((a, b) => a + b, 0)).toBe(10 * 24);
   }, 120_000);
 
   it('a calibration cross-table, a score of three priors, a profile and tune maps: sharded and merged equal the unsharded output', async () => {

@@ -71,18 +71,18 @@ describe('score, profile and calibrate against numpy/scipy', () => {
       cases: [pyCase(0.1, 'exponential', 0.3, 4, 1e-3, a.discrepancy.classical.scale), pyCase(0, 'matern32', 0.5, 6, 0, b.discrepancy.classical.scale)],
     }).results;
     [a, b].forEach((s, k) => {
-      const ref = refs[k]!;
+      const ref = refs[k];
       close(s.logEvidence, ref.logpdf, 1e-9);
       close(s.predictive.pUpper, ref.sf, 1e-8);
-      s.leaveOneOut.contributions.forEach((c, i) => close(c, ref.loo[i]!, 1e-8));
+      s.leaveOneOut.contributions.forEach((c, i) => close(c, ref.loo[i], 1e-8));
       close(s.leaveOneOut.logScore, ref.loo.reduce((x, y) => x + y, 0), 1e-8);
       expect(s.discrepancy.classical.status).toBe('found');
       close(ref.chi2_scaled!, m, 1e-6);
     });
     const best = a.logEvidence >= b.logEvidence ? 0 : 1;
     expect(j.bestByEvidence).toBe(best);
-    expect(j.scores[best]!.logEvidenceToBest).toBe(0);
-    expect(j.scores[1 - best]!.logEvidenceToBest).toBeCloseTo(j.scores[1 - best]!.logEvidence - j.scores[best]!.logEvidence, 12);
+    expect(j.scores[best].logEvidenceToBest).toBe(0);
+    expect(j.scores[1 - best].logEvidenceToBest).toBeCloseTo(j.scores[1 - best].logEvidence - j.scores[best].logEvidence, 12);
   });
 
   it('score: data implausible under every prior (four times as large): exit 3, scores still printed', async () => {
@@ -107,8 +107,8 @@ describe('score, profile and calibrate against numpy/scipy', () => {
       cases: [...lengths.map((l) => pyCase(0.1, 'exponential', 0.3, l, 1e-3)), ...nuggets.map((g) => pyCase(0.1, 'exponential', 0.3, 4, g))],
     }).results;
     expect(j.parameter).toBe('term0.length');
-    j.logEvidence.forEach((v, k) => close(v, refs[k]!.logpdf, 1e-9));
-    jn.logEvidence.forEach((v, k) => close(v, refs[3 + k]!.logpdf, 1e-9));
+    j.logEvidence.forEach((v, k) => close(v, refs[k].logpdf, 1e-9));
+    jn.logEvidence.forEach((v, k) => close(v, refs[3 + k].logpdf, 1e-9));
     const top = Math.max(...j.logEvidence);
     expect(j.logEvidence[j.best.index]).toBe(top);
   });
@@ -149,7 +149,7 @@ describe('score, profile and calibrate against numpy/scipy', () => {
       nominal: { coverage68: number; coverage95: number };
       results: { coverage68: number; coverage95: number; coverage68StdError: number; coverage95StdError: number; rankHistogram: number[] }[];
     };
-    const c = j.results[0]!;
+    const c = j.results[0];
     expect(Math.abs(c.coverage68 - j.nominal.coverage68)).toBeLessThan(4 * c.coverage68StdError);
     expect(Math.abs(c.coverage95 - j.nominal.coverage95)).toBeLessThan(4 * c.coverage95StdError);
     expect(c.rankHistogram).toHaveLength(10);
@@ -165,6 +165,6 @@ describe('score, profile and calibrate against numpy/scipy', () => {
     expect(r.code, r.err).toBe(0);
     const j = JSON.parse(r.out) as { results: { truth: number; inversion: number; coverage68: number }[]; coverage68Table: number[][] };
     expect(j.results.map((x) => [x.truth, x.inversion])).toEqual([[0, 0], [0, 1], [1, 0], [1, 1]]);
-    expect(j.coverage68Table).toEqual([[j.results[0]!.coverage68, j.results[1]!.coverage68], [j.results[2]!.coverage68, j.results[3]!.coverage68]]);
+    expect(j.coverage68Table).toEqual([[j.results[0].coverage68, j.results[1].coverage68], [j.results[2].coverage68, j.results[3].coverage68]]);
   }, 60_000);
 });

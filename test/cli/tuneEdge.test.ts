@@ -86,7 +86,7 @@ describe('tune --axis: one length of an anisotropic term at a time', () => {
     const j = JSON.parse(r.out) as AxisOut;
     expect(j.axis).toBe(axis);
     const expected = lengthsAt(j.best.length);
-    j.best.lengths.forEach((l, k) => expect(l).toBeCloseTo(expected[k]!, 12));
+    j.best.lengths.forEach((l, k) => expect(l).toBeCloseTo(expected[k], 12));
     writeFiles(dir, { [`best-${axis}.json`]: prior([{ kernel: 'matern', nu: 1.5, variance: j.best.variance, lengths: j.best.lengths, angle: 20 }]) });
     const p = await runCommand(['posterior', '--problem', 'p2.json', '--prior', `best-${axis}.json`], dir);
     expect(p.code, p.err).toBe(0);

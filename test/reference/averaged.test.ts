@@ -45,7 +45,7 @@ const refs = Object.fromEntries(
 
 const maxAbs = (a: ArrayLike<number>, b: ArrayLike<number>) => {
   let m = 0;
-  for (let i = 0; i < a.length; i++) m = Math.max(m, Math.abs(a[i]! - b[i]!));
+  for (let i = 0; i < a.length; i++) m = Math.max(m, Math.abs(a[i] - b[i]));
   return m;
 };
 

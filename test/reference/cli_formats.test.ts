@@ -37,7 +37,7 @@ describe('files written by numpy / scipy, read by src/core/io', () => {
       let rows: number[][] | number[];
       if (name.endsWith('.npy')) {
         const arr = parseNpy(name, bytes);
-        rows = arr.shape.length === 1 ? Array.from(arr.data) : toRows(matrix(arr.shape[0]!, arr.shape[1]!, arr.data));
+        rows = arr.shape.length === 1 ? Array.from(arr.data) : toRows(matrix(arr.shape[0], arr.shape[1], arr.data));
       } else if (name.endsWith('.mtx')) {
         rows = toRows(operatorToDense(parseMatrixMarket(name, bytes)));
       } else {
@@ -58,7 +58,7 @@ describe('files written by src/core/io, read by numpy / scipy', () => {
     const paths: Record<string, string> = {};
     const put = (name: string, content: string | Uint8Array) => {
       paths[name] = join(dir, name);
-      writeFileSync(paths[name]!, content);
+      writeFileSync(paths[name], content);
     };
     put('ours.npy', writeNpyMatrix(a));
     put('vec.npy', writeNpy([3], vec));
@@ -67,11 +67,11 @@ describe('files written by src/core/io, read by numpy / scipy', () => {
     put('plain.csv', writeCsv(a));
     const back = runPython<Record<string, { shape: number[]; dtype: string; values: number[][] | number[] }>>('cli_formats.py', { mode: 'read', files: paths });
     for (const name of ['ours.npy', 'dense.mtx', 'sparse.mtx', 'plain.csv']) {
-      expect(back[name]!.shape, name).toEqual([6, 3]);
-      expect(back[name]!.values, name).toEqual(toRows(a));
+      expect(back[name].shape, name).toEqual([6, 3]);
+      expect(back[name].values, name).toEqual(toRows(a));
     }
-    expect(back['ours.npy']!.dtype).toBe('float64');
-    expect(back['vec.npy']!.shape).toEqual([3]);
-    expect(back['vec.npy']!.values).toEqual(Array.from(vec));
+    expect(back['ours.npy'].dtype).toBe('float64');
+    expect(back['vec.npy'].shape).toEqual([3]);
+    expect(back['vec.npy'].values).toEqual(Array.from(vec));
   });
 });

@@ -26,7 +26,7 @@ interface Result {
 function expectClose(ours: number[], ref: number[], what: string, rel = 1e-8): void {
   expect(ours.length, what).toBe(ref.length);
   const scale = Math.max(...ref.map(Math.abs));
-  const worst = Math.max(...ours.map((v, k) => Math.abs(v - ref[k]!)));
+  const worst = Math.max(...ours.map((v, k) => Math.abs(v - ref[k])));
   expect(worst, `${what}: max |Δ| ${worst} vs scale ${scale}`).toBeLessThanOrEqual(rel * scale);
 }
 
@@ -89,7 +89,7 @@ describe('priorscope posterior against numpy/scipy (through the binary)', () => 
     }
     // Data covariance: σ² on the diagonal with 0.3 correlation between consecutive data.
     const sigma = Array.from({ length: m }, () => 0.1 + 0.05 * r());
-    const cov = Array.from({ length: m }, (_, i) => Array.from({ length: m }, (_, j) => (i === j ? sigma[i]! ** 2 : Math.abs(i - j) === 1 ? 0.3 * sigma[i]! * sigma[j]! : 0)));
+    const cov = Array.from({ length: m }, (_, i) => Array.from({ length: m }, (_, j) => (i === j ? sigma[i] ** 2 : Math.abs(i - j) === 1 ? 0.3 * sigma[i] * sigma[j] : 0)));
     const d = tempDir();
     writeFiles(d, {
       'G.npy': writeNpyMatrix(G),
@@ -135,7 +135,7 @@ function tuneCompare(dir: string, term: number, lengths: string, variances: stri
     prior: join(dir, 'q.json'),
     tune: { term, lengths: ours.lengths, variances: ours.variances },
   });
-  ours.logEvidence.forEach((row, i) => expectClose(row, ref.logEvidence[i]!, `logEvidence row ${i}`));
+  ours.logEvidence.forEach((row, i) => expectClose(row, ref.logEvidence[i], `logEvidence row ${i}`));
   const flat = ref.logEvidence.flat();
   const k = flat.indexOf(Math.max(...flat));
   expect(ours.best.length).toBe(ours.lengths[Math.floor(k / ours.variances.length)]);

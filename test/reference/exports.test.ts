@@ -29,13 +29,13 @@ describe('exports read by numpy', () => {
     // cell k sits at x = 10 + 2·(k mod 3), y = −1 + 0.5·floor(k / 3) (x fastest)
     const xs = [10, 12, 14, 10, 12, 14];
     const ys = [-1, -1, -1, -0.5, -0.5, -0.5];
-    expect(ref.npy.post).toEqual({ shape: [6, 2], dtype: 'float64', values: Array.from(mean).flatMap((m, k) => [m, std[k]!]) });
+    expect(ref.npy.post).toEqual({ shape: [6, 2], dtype: 'float64', values: Array.from(mean).flatMap((m, k) => [m, std[k]]) });
     expect(ref.npy.draws!.shape).toEqual([6, 2]);
     expect(ref.npy.draws!.values).toEqual([1, -1, 2, -2, 3, -3, 4, -4, 5, -5, 6, Math.PI]);
     expect(ref.csv.post!.header).toEqual(['x', 'y', 'mean', 'std']);
-    expect(ref.csv.post!.values).toEqual(xs.flatMap((x, k) => [x, ys[k]!, mean[k]!, std[k]!]));
+    expect(ref.csv.post!.values).toEqual(xs.flatMap((x, k) => [x, ys[k], mean[k], std[k]]));
     expect(ref.csv.draws!.header).toEqual(['x', 'y', 'draw1', 'draw2']);
-    expect(ref.csv.draws!.values).toEqual(xs.flatMap((x, k) => [x, ys[k]!, draws.data[k]!, draws.data[6 + k]!]));
+    expect(ref.csv.draws!.values).toEqual(xs.flatMap((x, k) => [x, ys[k], draws.data[k], draws.data[6 + k]]));
   });
 
   it('the prior file reads back to the same spec', () => {

@@ -33,8 +33,8 @@ describe('Fft2 vs numpy.fft.fft2 / ifft2 (Debian python3-numpy)', () => {
       const ours = buf.slice();
       new Fft2(px, py).transform(ours, { inverse });
       const want = new Float64Array(2 * px * py);
-      ref[k]!.re.forEach((v, i) => (want[2 * i] = v));
-      ref[k]!.im.forEach((v, i) => (want[2 * i + 1] = v));
+      ref[k].re.forEach((v, i) => (want[2 * i] = v));
+      ref[k].im.forEach((v, i) => (want[2 * i + 1] = v));
       expect(relErr(ours, want)).toBeLessThan(1e-12);
     });
   });
@@ -80,8 +80,8 @@ describe('FFT engine vs numpy.fft.fft / ifft (Debian python3-numpy)', () => {
       for (let b = 0; b < count; b++) {
         const want = new Float64Array(2 * n);
         for (let i = 0; i < n; i++) {
-          want[2 * i] = ref[k]!.re[b * n + i]!;
-          want[2 * i + 1] = ref[k]!.im[b * n + i]!;
+          want[2 * i] = ref[k].re[b * n + i];
+          want[2 * i + 1] = ref[k].im[b * n + i];
         }
         expect(relErr(ours.subarray(2 * n * b, 2 * n * (b + 1)), want)).toBeLessThan(higham(n));
       }
@@ -105,11 +105,11 @@ describe('covarianceOperator (FFT path) vs Cm @ x from numpy / scipy.special.kv'
       expect(op.path).toBe('fft');
       const n = cellCountOf(grid);
       const xs = [0, 1, 2].map((r) => seededVector(n, 100 * k + r));
-      xs.forEach((x, r) => expect(relErr(op.apply(x), ref[k]![r]!)).toBeLessThan(1e-10));
+      xs.forEach((x, r) => expect(relErr(op.apply(x), ref[k][r])).toBeLessThan(1e-10));
       const many = new Float64Array(3 * n);
       xs.forEach((x, r) => many.set(x, r * n));
       const out = op.applyMany({ rows: 3, cols: n, data: many });
-      xs.forEach((_, r) => expect(relErr(out.data.subarray(r * n, (r + 1) * n), ref[k]![r]!)).toBeLessThan(1e-10));
+      xs.forEach((_, r) => expect(relErr(out.data.subarray(r * n, (r + 1) * n), ref[k][r])).toBeLessThan(1e-10));
     });
   });
 });
@@ -129,10 +129,10 @@ describe('embedding eigenvalues vs numpy.linalg.eigvalsh of the explicit block-c
     it(`${grid.shape.join('×')} in ${px}×${py}: sorted λ equal to 1e-10 of max |λ|`, () => {
       const e = circulantEmbedding(grid, prior.terms, px, py);
       const ours = Array.from(e.eigenvalues).sort((a, b) => a - b);
-      const want = ref[k]!;
+      const want = ref[k];
       const scale = Math.max(...want.map(Math.abs));
-      ours.forEach((v, i) => expect(Math.abs(v - want[i]!)).toBeLessThan(1e-10 * scale));
-      expect(e.minEigenvalue).toBeCloseTo(want[0]!, 10);
+      ours.forEach((v, i) => expect(Math.abs(v - want[i])).toBeLessThan(1e-10 * scale));
+      expect(e.minEigenvalue).toBeCloseTo(want[0], 10);
     });
   });
 });
@@ -149,17 +149,17 @@ describe('padding growth decisions vs numpy.linalg.eigvalsh of the explicit circ
   const grid: Grid = { shape: [32], spacing: [1] };
   const lengths = [6, 12];
   const searches = lengths.map((length) => nonNegativeEmbedding(grid, [{ kernel: 'gaussian', variance: 1, length }]));
-  const cases = searches.flatMap((s, k) => s.tried.map(([px]) => ({ k, px, base: Array.from(circulantEmbedding(grid, [{ kernel: 'gaussian', variance: 1, length: lengths[k]! }], px, 1).base) })));
+  const cases = searches.flatMap((s, k) => s.tried.map(([px]) => ({ k, px, base: Array.from(circulantEmbedding(grid, [{ kernel: 'gaussian', variance: 1, length: lengths[k] }], px, 1).base) })));
   const ref = runPython<{ results: number[][] }>('fft_reference.py', { cases: cases.map(({ px, base }) => ({ op: 'bccb_eigs', px, py: 1, base })) }).results;
   lengths.forEach((length, k) => {
     it(`length ${length}: every rejected size has min λ < −1e-10·max λ in numpy, the chosen one does not`, () => {
-      const tried = searches[k]!.tried;
+      const tried = searches[k].tried;
       expect(tried.length).toBeGreaterThan(1);
       cases.forEach((c, q) => {
         if (c.k !== k) return;
-        const eig = ref[q]!;
-        const ok = eig[0]! >= -1e-10 * eig[eig.length - 1]!;
-        expect(ok).toBe(c.px === searches[k]!.embedding.px);
+        const eig = ref[q];
+        const ok = eig[0] >= -1e-10 * eig[eig.length - 1];
+        expect(ok).toBe(c.px === searches[k].embedding.px);
       });
     });
   });

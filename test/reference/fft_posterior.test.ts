@@ -30,14 +30,14 @@ describe('structured posterior vs scipy cho_factor/cho_solve (Debian python3-sci
   }));
   const ref = runPython<{ results: Ref[] }>('fft_reference.py', {
     cases: CASES.map(({ prior }, k) => {
-      const g = sparseToDense(problems[k]!.operator.matrix as never);
-      return { op: 'posterior', grid, prior, g: { rows: g.rows, cols: g.cols, data: Array.from(g.data) }, d: Array.from(problems[k]!.data.values), sigma: Array.from(problems[k]!.data.sigma!) };
+      const g = sparseToDense(problems[k].operator.matrix as never);
+      return { op: 'posterior', grid, prior, g: { rows: g.rows, cols: g.cols, data: Array.from(g.data) }, d: Array.from(problems[k].data.values), sigma: Array.from(problems[k].data.sigma!) };
     }),
   }).results;
   CASES.forEach(({ name, prior }, k) => {
     it(`${name}: mean, std, log evidence, tr R, χ² within 1e-10 relative`, () => {
-      const s = structuredPosteriorSummary(prepareStructuredPosterior(problems[k]!, prior));
-      const r = ref[k]!;
+      const s = structuredPosteriorSummary(prepareStructuredPosterior(problems[k], prior));
+      const r = ref[k];
       expect(relErr(s.mean, r.mean)).toBeLessThan(1e-10);
       expect(relErr(s.std, r.std)).toBeLessThan(1e-10);
       expect(Math.abs(s.logEvidence - r.logEvidence)).toBeLessThan(1e-10 * Math.abs(r.logEvidence));

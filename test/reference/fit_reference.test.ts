@@ -53,9 +53,9 @@ const ref = runPython<{ cases: { cdf: number[]; quantiles: number[]; mcCdf: numb
 
 describe('data-fit reference against scipy and numpy', () => {
   it('weights eig(L⁻¹ Cd L⁻ᵀ) equal scipy.linalg.eigh(Cd, K) on the borehole demo to 1e-10, and sum to M − tr R', () => {
-    const want = ref.weights[0]!;
+    const want = ref.weights[0];
     expect(want.length).toBe(m);
-    want.forEach((w, k) => expect(Math.abs(demoWeights[k]! - w)).toBeLessThanOrEqual(1e-10));
+    want.forEach((w, k) => expect(Math.abs(demoWeights[k] - w)).toBeLessThanOrEqual(1e-10));
     const s = posteriorSummary(state);
     const sum = demoWeights.reduce((a, b) => a + b, 0);
     expect(Math.abs(sum - (m - s.resolutionTrace))).toBeLessThanOrEqual(1e-10 * m);
@@ -64,9 +64,9 @@ describe('data-fit reference against scipy and numpy', () => {
   cases.forEach((c, k) => {
     it(`CDF and quantiles of case ${k + 1} (${c.weights.length} weights) agree with Imhof by QUADPACK (CDF 1e-8 absolute, quantiles 1e-7 relative)`, () => {
       const q = new WeightedChiSquare(c.weights);
-      c.x.forEach((x, j) => expect(Math.abs(q.cdf(x) - ref.cases[k]!.cdf[j]!)).toBeLessThanOrEqual(1e-8));
+      c.x.forEach((x, j) => expect(Math.abs(q.cdf(x) - ref.cases[k].cdf[j])).toBeLessThanOrEqual(1e-8));
       c.p.forEach((p, j) => {
-        const want = ref.cases[k]!.quantiles[j]!;
+        const want = ref.cases[k].quantiles[j];
         expect(Math.abs(q.quantile(p) - want)).toBeLessThanOrEqual(1e-7 * want);
       });
     });
@@ -75,7 +75,7 @@ describe('data-fit reference against scipy and numpy', () => {
       c.x.forEach((x, j) => {
         const f = q.cdf(x);
         const se = Math.sqrt(Math.max(f * (1 - f), 1 / DRAWS) / DRAWS);
-        expect(Math.abs(ref.cases[k]!.mcCdf[j]! - f)).toBeLessThanOrEqual(4.5 * se);
+        expect(Math.abs(ref.cases[k].mcCdf[j] - f)).toBeLessThanOrEqual(4.5 * se);
       });
     });
   });

@@ -20,7 +20,7 @@ const ref = runPython<Reply>('hansen_reference.py', { sizes: SIZES, integrals: [
 
 function maxAbs(a: ArrayLike<number>): number {
   let m = 0;
-  for (let i = 0; i < a.length; i++) m = Math.max(m, Math.abs(a[i]!));
+  for (let i = 0; i < a.length; i++) m = Math.max(m, Math.abs(a[i]));
   return m;
 }
 
@@ -28,17 +28,17 @@ function compare(ours: TestProblem, theirs: Packed, tol: number): void {
   const n = ours.x.length;
   const flat = theirs.A.flat();
   const scale = maxAbs(flat);
-  for (let k = 0; k < n * n; k++) expect(Math.abs(ours.A.data[k]! - flat[k]!)).toBeLessThanOrEqual(tol * scale);
+  for (let k = 0; k < n * n; k++) expect(Math.abs(ours.A.data[k] - flat[k])).toBeLessThanOrEqual(tol * scale);
   const xs = maxAbs(theirs.x);
-  ours.x.forEach((v, i) => expect(Math.abs(v - theirs.x[i]!)).toBeLessThanOrEqual(tol * xs));
+  ours.x.forEach((v, i) => expect(Math.abs(v - theirs.x[i])).toBeLessThanOrEqual(tol * xs));
   const bs = maxAbs(theirs.b);
-  ours.b.forEach((v, i) => expect(Math.abs(v - theirs.b[i]!)).toBeLessThanOrEqual(tol * bs));
+  ours.b.forEach((v, i) => expect(Math.abs(v - theirs.b[i])).toBeLessThanOrEqual(tol * bs));
 }
 
 describe.each(SIZES)('Hansen problems, n = %i, against the numpy/scipy re-implementation', (n) => {
-  it('deriv2 (Galerkin quadrature of K(s,t) in scipy)', () => compare(deriv2(n), ref.deriv2[String(n)]!, 1e-11));
-  it('shaw (numpy midpoint rule, np.sinc)', () => compare(shaw(n), ref.shaw[String(n)]!, 1e-13));
-  it('gravity (numpy midpoint rule)', () => compare(gravity(n), ref.gravity[String(n)]!, 1e-13));
+  it('deriv2 (Galerkin quadrature of K(s,t) in scipy)', () => compare(deriv2(n), ref.deriv2[String(n)], 1e-11));
+  it('shaw (numpy midpoint rule, np.sinc)', () => compare(shaw(n), ref.shaw[String(n)], 1e-13));
+  it('gravity (numpy midpoint rule)', () => compare(gravity(n), ref.gravity[String(n)], 1e-13));
 });
 
 describe('midpoint-rule right-hand sides converge to the continuous integrals at O(h²)', () => {
@@ -47,12 +47,12 @@ describe('midpoint-rule right-hand sides converge to the continuous integrals at
   for (const [name, make] of [['shaw', shaw], ['gravity', gravity]] as const) {
     it(name, () => {
       const errs = [16, 32, 64].map((n) => {
-        const g = ref.continuous[name][String(n)]!;
+        const g = ref.continuous[name][String(n)];
         const b = make(n).b;
-        return maxAbs(b.map((v, i) => v - g[i]!));
+        return maxAbs(b.map((v, i) => v - g[i]));
       });
       for (let k = 0; k + 1 < errs.length; k++) {
-        const ratio = errs[k]! / errs[k + 1]!;
+        const ratio = errs[k] / errs[k + 1];
         expect(ratio).toBeGreaterThan(3);
         expect(ratio).toBeLessThan(5);
       }

@@ -48,8 +48,8 @@ describe('cholesky vs numpy.linalg.cholesky (Debian python3-numpy)', () => {
       const r = cholesky(poisonUpper(a));
       expect(r.ok).toBe(true);
       if (!r.ok) return;
-      expect(ref[k]!.failed).toBe(false);
-      expect(relError(r.factor.data, ref[k]!.factor.data)).toBeLessThan(1e-10);
+      expect(ref[k].failed).toBe(false);
+      expect(relError(r.factor.data, ref[k].factor.data)).toBeLessThan(1e-10);
       const n = a.rows;
       let upperNonZero = 0;
       for (let i = 0; i < n; i++) for (let j = i + 1; j < n; j++) if (r.factor.data[i * n + j] !== 0) upperNonZero++;
@@ -93,23 +93,23 @@ describe('cholesky failure: pivot of the first indefinite leading minor (Sylvest
   const refs = py(
     broken.flatMap((a, c) => [
       { op: 'cholesky', a: toJson(a) },
-      { op: 'leading_minor_det', a: toJson(a), k: cases[c]![1] + 1 },
+      { op: 'leading_minor_det', a: toJson(a), k: cases[c][1] + 1 },
     ]),
   );
   cases.forEach(([n, k], c) => {
     it(`n = ${n}, broken at row ${k}: pivot ${k}, value = det(A_{k+1}) / det(A_k)`, () => {
-      const a = broken[c]!;
+      const a = broken[c];
       const chol = refs[2 * c] as { failed: boolean };
       const dets = refs[2 * c + 1] as number[];
       expect(chol.failed).toBe(true);
-      for (let i = 0; i < k; i++) expect(dets[i]!).toBeGreaterThan(0);
-      expect(dets[k]!).toBeLessThan(0);
+      for (let i = 0; i < k; i++) expect(dets[i]).toBeGreaterThan(0);
+      expect(dets[k]).toBeLessThan(0);
       const r = cholesky(poisonUpper(a));
       expect(r.ok).toBe(false);
       if (r.ok) return;
       expect(r.pivot).toBe(k);
       // The failing pivot is the Schur complement det(A_{k+1}) / det(A_k) (Golub & Van Loan §4.2, memory).
-      const expected = k === 0 ? dets[0]! : dets[k]! / dets[k - 1]!;
+      const expected = k === 0 ? dets[0] : dets[k] / dets[k - 1];
       expect(Math.abs(r.value - expected)).toBeLessThan(1e-8 * Math.max(1, Math.abs(expected)));
     });
   });
@@ -150,9 +150,9 @@ describe('triangular solves with many right-hand sides vs scipy.linalg.solve_tri
   ) as JsonMatrix[];
   shapes.forEach(([n, k], c) => {
     it(`n = ${n}, k = ${k}: L X = B, Lᵀ X = B, A X = B, L X = Bᵀ`, () => {
-      const { L, B } = problems[c]!;
+      const { L, B } = problems[c];
       const Bt = transposeOf(B);
-      const [x1, x2, x3] = [refs[3 * c]!, refs[3 * c + 1]!, refs[3 * c + 2]!];
+      const [x1, x2, x3] = [refs[3 * c], refs[3 * c + 1], refs[3 * c + 2]];
       expect(relError(solveLowerMatrix(L, B).data, x1.data)).toBeLessThan(1e-10);
       expect(relError(solveLowerTransposeMatrix(L, B).data, x2.data)).toBeLessThan(1e-10);
       expect(relError(choleskySolveMatrix(L, B).data, x3.data)).toBeLessThan(1e-10);
@@ -174,8 +174,8 @@ describe('products vs numpy matmul (Debian python3-numpy)', () => {
   const refs = py(pairs.map(([A, B]) => ({ op: 'matmul', a: toJson(A), b: toJson(B) }))) as JsonMatrix[];
   shapes.forEach(([m, k, n], c) => {
     it(`${m}×${k} times ${k}×${n}: multiply, multiplyNT, matmul`, () => {
-      const [A, B] = pairs[c]!;
-      const ref = refs[c]!;
+      const [A, B] = pairs[c];
+      const ref = refs[c];
       expect(relError(multiply(A, B).data, ref.data)).toBeLessThan(1e-12);
       expect(relError(multiplyNT(A, transposeOf(B)).data, ref.data)).toBeLessThan(1e-12);
       expect(relError(matmul(A, B).data, ref.data)).toBeLessThan(1e-12);

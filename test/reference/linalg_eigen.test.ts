@@ -21,8 +21,8 @@ describe('symmetricEigenvalues vs numpy.linalg.eigvalsh (Debian python3-numpy)',
       // Reads the lower triangle only: the NaN upper triangle must not leak in.
       const ours = symmetricEigenvalues(poisonUpper(a));
       expect(ours.length).toBe(a.rows);
-      expect(relError(ours, ref[k]!)).toBeLessThan(1e-10);
-      for (let i = 1; i < ours.length; i++) expect(ours[i]!).toBeGreaterThanOrEqual(ours[i - 1]!);
+      expect(relError(ours, ref[k])).toBeLessThan(1e-10);
+      for (let i = 1; i < ours.length; i++) expect(ours[i]).toBeGreaterThanOrEqual(ours[i - 1]);
     });
   });
 });
@@ -36,15 +36,15 @@ describe('symmetricEigen vs numpy.linalg.eigh (Debian python3-numpy)', () => {
     it(`n = ${a.rows}: values match and vectors match up to sign`, () => {
       const n = a.rows;
       const { values, vectors } = symmetricEigen(poisonUpper(a));
-      expect(relError(values, ref[k]!.values)).toBeLessThan(1e-10);
-      const rv = ref[k]!.vectors.data;
+      expect(relError(values, ref[k].values)).toBeLessThan(1e-10);
+      const rv = ref[k].vectors.data;
       for (let j = 0; j < n; j++) {
         // Random matrices have well-separated eigenvalues, so each vector is unique up to sign.
         let dotp = 0;
-        for (let i = 0; i < n; i++) dotp += vectors.data[i * n + j]! * rv[i * n + j]!;
+        for (let i = 0; i < n; i++) dotp += vectors.data[i * n + j] * rv[i * n + j];
         const sign = dotp >= 0 ? 1 : -1;
         let err = 0;
-        for (let i = 0; i < n; i++) err = Math.max(err, Math.abs(sign * vectors.data[i * n + j]! - rv[i * n + j]!));
+        for (let i = 0; i < n; i++) err = Math.max(err, Math.abs(sign * vectors.data[i * n + j] - rv[i * n + j]));
         expect(err).toBeLessThan(1e-8);
       }
     });
@@ -59,15 +59,15 @@ describe('symmetricEigenProjected vs numpy.linalg.eigh: Vᵀ B (Debian python3-n
   }).results;
   shapes.forEach(([n, k], c) => {
     it(`n = ${n}, k = ${k}: values to 1e-10, each row of Vᵀ B to 1e-8 up to the eigenvector's sign`, () => {
-      const { a, b } = inputs[c]!;
+      const { a, b } = inputs[c];
       const r = symmetricEigenProjected(poisonUpper(a), b);
-      expect(relError(r.values, ref[c]!.values)).toBeLessThan(1e-10);
-      const rp = ref[c]!.projected.data;
+      expect(relError(r.values, ref[c].values)).toBeLessThan(1e-10);
+      const rp = ref[c].projected.data;
       for (let j = 0; j < n; j++) {
         const ours = Array.from(r.projected.data.subarray(j * k, (j + 1) * k));
         const theirs = rp.slice(j * k, (j + 1) * k);
-        const same = Math.max(...ours.map((v, q) => Math.abs(v - theirs[q]!)));
-        const flipped = Math.max(...ours.map((v, q) => Math.abs(v + theirs[q]!)));
+        const same = Math.max(...ours.map((v, q) => Math.abs(v - theirs[q])));
+        const flipped = Math.max(...ours.map((v, q) => Math.abs(v + theirs[q])));
         expect(Math.min(same, flipped)).toBeLessThan(1e-8);
       }
     });
@@ -89,9 +89,9 @@ describe('lanczosExtremes vs numpy.linalg.eigvalsh (Debian python3-numpy)', () =
   cases.forEach(({ n, iterations, a, converged }, c) => {
     it(`n = ${n}, ${iterations} steps: extremes within the residual bound and inside the spectrum`, () => {
       const r = lanczosExtremes((x) => matvec(a, x), n, { iterations, seed: 5 });
-      const lam = ref[c]!;
-      const lo = lam[0]!;
-      const hi = lam[n - 1]!;
+      const lam = ref[c];
+      const lo = lam[0];
+      const hi = lam[n - 1];
       const tol = 1e-10 * hi;
       // Ritz values interlace, so they lie inside [λ_min, λ_max] (Cauchy interlacing, memory).
       expect(r.min).toBeGreaterThanOrEqual(lo - tol);
@@ -114,13 +114,13 @@ function plantedSpectrum(n: number, seed: number): Matrix {
   for (const s of [seed, seed + 1]) {
     const u = randomMatrix(1, n, s).data;
     const nu = Math.sqrt(u.reduce((acc, v) => acc + v * v, 0));
-    for (let i = 0; i < n; i++) u[i]! /= nu;
+    for (let i = 0; i < n; i++) u[i] /= nu;
     // A ← H A H = A − 2u(uᵀA) − 2(Au)uᵀ + 4(uᵀAu) u uᵀ
     const au = matvec(a, u);
-    const uau = au.reduce((acc, v, i) => acc + v * u[i]!, 0);
+    const uau = au.reduce((acc, v, i) => acc + v * u[i], 0);
     for (let i = 0; i < n; i++) {
       for (let j = 0; j < n; j++) {
-        a.data[i * n + j] += -2 * u[i]! * au[j]! - 2 * au[i]! * u[j]! + 4 * uau * u[i]! * u[j]!;
+        a.data[i * n + j] += -2 * u[i] * au[j] - 2 * au[i] * u[j] + 4 * uau * u[i] * u[j];
       }
     }
   }
@@ -142,9 +142,9 @@ describe('numerically singular covariances (regression: QL used to cycle on eige
   cases.forEach((a, k) => {
     it(`length ${[40, 80][k]} spacings: converges and matches numpy.linalg.eigvalsh to 1e-12·‖A‖`, () => {
       const ours = symmetricEigenvalues(a);
-      const ref_ = ref[k]!;
+      const ref_ = ref[k];
       const norm = Math.max(...ref_.map(Math.abs));
-      for (let i = 0; i < ours.length; i++) expect(Math.abs(ours[i]! - ref_[i]!)).toBeLessThan(1e-12 * norm);
+      for (let i = 0; i < ours.length; i++) expect(Math.abs(ours[i] - ref_[i])).toBeLessThan(1e-12 * norm);
     });
   });
 });

@@ -31,8 +31,8 @@ describe('priors whose correlation length exceeds the domain', () => {
   const ref = runPython<{ cases: Ref[] }>('structured_diagnostics_reference.py', { cases: LONG_LENGTH_CASES.map(({ grid, prior }) => ({ grid, prior })) }).cases;
 
   it.each(LONG_LENGTH_CASES.map((c, k) => [c.name, k] as const))('%s: proven positive definite, as numpy finds', (_n, k) => {
-    const { grid, prior } = LONG_LENGTH_CASES[k]!;
-    const r = ref[k]!;
+    const { grid, prior } = LONG_LENGTH_CASES[k];
+    const r = ref[k];
     expect(r.min).toBeGreaterThan(0); // the outside reference: numpy's smallest eigenvalue
     const d = diagnosePriorAuto(grid, prior);
     expect(d.eigenvalueMethod).toBe('fft-bounds');
@@ -48,7 +48,7 @@ describe('priors whose correlation length exceeds the domain', () => {
   });
 
   it('above the dense limit and unproven by any embedding: not decided (never "not positive definite"), with a next step', () => {
-    const { grid, prior } = LONG_LENGTH_CASES[1]!;
+    const { grid, prior } = LONG_LENGTH_CASES[1];
     const d = diagnoseStructured(grid, prior, { denseLimit: 0 });
     expect(d.verdict).toBe('not-decided');
     expect(d.positiveDefinite).toBeNull();

@@ -29,14 +29,14 @@ function serialiseOperator(g: Operator): object {
   if (g.kind === 'dense') return { rows: g.matrix.rows, cols: g.matrix.cols, dense: Array.from(g.matrix.data) };
   const { rows, cols, rowPtr, colIdx, values } = g.matrix;
   const i: number[] = [];
-  for (let r = 0; r < rows; r++) for (let p = rowPtr[r]!; p < rowPtr[r + 1]!; p++) i.push(r);
+  for (let r = 0; r < rows; r++) for (let p = rowPtr[r]; p < rowPtr[r + 1]; p++) i.push(r);
   return { rows, cols, i, j: Array.from(colIdx), v: Array.from(values) };
 }
 
 /** Deterministic "observed" data: G applied to a smooth made-up model plus a fixed wiggle. */
 function makeData(grid: Grid, G: Operator, scale: number): Float64Array {
   const { x, y } = cellCoordinates(grid);
-  const model = x.map((xi, k) => scale * (Math.sin(0.37 * xi + 0.2) + 0.5 * Math.cos(0.23 * y[k]! - 0.4 * xi)));
+  const model = x.map((xi, k) => scale * (Math.sin(0.37 * xi + 0.2) + 0.5 * Math.cos(0.23 * y[k] - 0.4 * xi)));
   const d = applyOperator(G, model);
   return d.map((v, k) => v + 0.05 * scale * Math.sin(1.7 * k + 0.3));
 }
@@ -54,7 +54,7 @@ function windowOperator(grid: Grid, centres: number[], width: number, sparse: bo
   const G = matrix(centres.length, n);
   centres.forEach((c, k) => {
     for (let j = 0; j < n; j++) {
-      const u = (x[j]! - c) / width;
+      const u = (x[j] - c) / width;
       if (Math.abs(u) <= 2.5) G.data[k * n + j] = Math.exp(-0.5 * u * u);
     }
   });
@@ -143,7 +143,7 @@ const CASES: Case[] = [
   const A = hansen.A;
   const op: Operator = { kind: 'sparse', matrix: denseToSparse(A) };
   const values = hansen.b.map((v, k) => v + 0.01 * Math.sin(3.1 * k));
-  CASES[5] = { ...CASES[5]!, problem: { grid: gH, operator: op, data: { values, sigma: new Float64Array(32).fill(0.01) } } };
+  CASES[5] = { ...CASES[5], problem: { grid: gH, operator: op, data: { values, sigma: new Float64Array(32).fill(0.01) } } };
 }
 
 const payload = {
@@ -162,13 +162,13 @@ function expectClose(ours: ArrayLike<number>, theirs: readonly number[], rel: nu
   let scale = 0;
   for (const v of theirs) scale = Math.max(scale, Math.abs(v));
   let worst = 0;
-  for (let k = 0; k < theirs.length; k++) worst = Math.max(worst, Math.abs(ours[k]! - theirs[k]!));
+  for (let k = 0; k < theirs.length; k++) worst = Math.max(worst, Math.abs(ours[k] - theirs[k]));
   expect(worst, `${what}: max abs difference ${worst} vs scale ${scale}`).toBeLessThanOrEqual(rel * scale);
 }
 
 describe.each(CASES.map((c, k) => [c.name, k] as const))('posterior vs scipy model-space form: %s', (_name, k) => {
-  const { problem, prior } = CASES[k]!;
-  const want = ref[k]!;
+  const { problem, prior } = CASES[k];
+  const want = ref[k];
   const state = preparePosterior(problem, prior);
   const s = posteriorSummary(state, { fullCovariance: true });
   const n = cellCount(problem.grid);

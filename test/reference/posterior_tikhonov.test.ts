@@ -24,10 +24,10 @@ describe.each([
   const mean = posteriorSummary(preparePosteriorFromCovariance(problem, Cm, new Float64Array(n))).mean;
   it('posterior mean equals the regularised normal-equations solution to 1e-8', () => {
     const scale = Math.max(...ref.normal.map(Math.abs));
-    mean.forEach((v, i) => expect(Math.abs(v - ref.normal[i]!)).toBeLessThanOrEqual(1e-8 * scale));
+    mean.forEach((v, i) => expect(Math.abs(v - ref.normal[i])).toBeLessThanOrEqual(1e-8 * scale));
   });
   it('and the stacked least-squares solution', () => {
     const scale = Math.max(...ref.stacked.map(Math.abs));
-    mean.forEach((v, i) => expect(Math.abs(v - ref.stacked[i]!)).toBeLessThanOrEqual(1e-8 * scale));
+    mean.forEach((v, i) => expect(Math.abs(v - ref.stacked[i])).toBeLessThanOrEqual(1e-8 * scale));
   });
 });

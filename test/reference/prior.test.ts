@@ -60,29 +60,29 @@ describe('prior covariance vs numpy/scipy construction', () => {
   }).cases;
 
   it.each(cases.map((c, k) => [c.name, k] as const))('%s: Cm, m0, Cm x, diag', (_name, k) => {
-    const { grid, prior } = cases[k]!;
-    const want = ref[k]!;
+    const { grid, prior } = cases[k];
+    const want = ref[k];
     const c = covarianceMatrix(grid, prior);
     const n = c.rows;
-    const scale = Math.max(...want.covariance.map((r, i) => r[i]!));
+    const scale = Math.max(...want.covariance.map((r, i) => r[i]));
     let worst = 0;
     for (let i = 0; i < n; i++) {
       for (let j = 0; j < n; j++) {
-        const b = want.covariance[i]![j]!;
+        const b = want.covariance[i][j];
         // 1e-12 relative to the entry, with a floor of 1e-14 of the matrix scale for entries near 0.
-        worst = Math.max(worst, Math.abs(c.data[i * n + j]! - b) / (Math.abs(b) + 1e-2 * scale));
+        worst = Math.max(worst, Math.abs(c.data[i * n + j] - b) / (Math.abs(b) + 1e-2 * scale));
       }
     }
     expect(worst).toBeLessThan(1e-12);
     const m = meanVector(grid, prior);
     want.mean.forEach((v, i) => expect(m[i]).toBeCloseTo(v, 12));
     const v = priorVariance(grid, prior);
-    want.covariance.forEach((r, i) => expect(Math.abs(v[i]! - r[i]!)).toBeLessThan(1e-12 * scale));
+    want.covariance.forEach((r, i) => expect(Math.abs(v[i] - r[i])).toBeLessThan(1e-12 * scale));
     const lagProduct = covarianceApply(grid, prior)(x(n));
     const denseProduct = covarianceApply(grid, prior, c)(x(n));
     want.product.forEach((p, i) => {
-      expect(Math.abs(lagProduct[i]! - p)).toBeLessThan(1e-11 * scale * n);
-      expect(Math.abs(denseProduct[i]! - p)).toBeLessThan(1e-11 * scale * n);
+      expect(Math.abs(lagProduct[i] - p)).toBeLessThan(1e-11 * scale * n);
+      expect(Math.abs(denseProduct[i] - p)).toBeLessThan(1e-11 * scale * n);
     });
   });
 });

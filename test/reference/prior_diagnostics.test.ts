@@ -32,8 +32,8 @@ describe('diagnostics vs numpy eigvalsh', () => {
   const ref = runPython<{ cases: Ref[] }>('prior_diagnostics_reference.py', { cases: [...eigCases, ...condCases] }).cases;
 
   it.each(eigCases.map((c, k) => [c.name, k] as const))('%s: extreme eigenvalues and condition number', (_n, k) => {
-    const d = diagnosePrior(eigCases[k]!.grid, eigCases[k]!.prior);
-    const r = ref[k]!;
+    const d = diagnosePrior(eigCases[k].grid, eigCases[k].prior);
+    const r = ref[k];
     expect(d.eigenvalueMethod).toBe('exact');
     // Backward-stable eigenvalues: |error| ≲ c·N·ε·λmax (Golub & Van Loan §8.3, memory); 1e-12·λmax is generous.
     expect(Math.abs(d.maxEigenvalue - r.max)).toBeLessThan(1e-12 * r.max);
@@ -56,10 +56,10 @@ describe('diagnostics vs numpy eigvalsh', () => {
   });
 
   it.each(condCases.map((c, k) => [c.name, k] as const))('%s: lattice condition estimate ≈ numpy cond', (_n, k) => {
-    const { grid, prior, factor } = condCases[k]!;
-    const r = ref[eigCases.length + k]!;
+    const { grid, prior, factor } = condCases[k];
+    const r = ref[eigCases.length + k];
     const actual = r.max / r.min;
-    const estimate = Math.exp(logLatticeCondition(prior.terms[0]!, grid)!);
+    const estimate = Math.exp(logLatticeCondition(prior.terms[0], grid)!);
     // Grenander–Szegő: a finite section's spectrum lies inside [min f, max f], so the estimate is an
     // upper bound (up to the ω-grid resolution of the minimum search), approached as N grows.
     expect(actual).toBeLessThan(estimate * 1.001);

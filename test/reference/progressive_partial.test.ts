@@ -19,8 +19,8 @@ function relErr(a: ArrayLike<number>, b: ArrayLike<number>): number {
   let d = 0;
   let s = 0;
   for (let i = 0; i < b.length; i++) {
-    d = Math.max(d, Math.abs(a[i]! - b[i]!));
-    s = Math.max(s, Math.abs(b[i]!));
+    d = Math.max(d, Math.abs(a[i] - b[i]));
+    s = Math.max(s, Math.abs(b[i]));
   }
   return d / (s || 1);
 }
@@ -49,13 +49,13 @@ describe('partial posterior vs scipy (posterior_reference.py)', () => {
       await engine.handle({ id: 2, kind: 'posterior', problemVersion: 1, prior: PRIOR }, undefined, (p) => (partial = p));
       const p = partial as PosteriorPartial | null;
       expect(p).not.toBeNull();
-      const r = ref[k]!;
+      const r = ref[k];
       const n = p!.mean.length;
       expect(relErr(p!.mean, r.mean)).toBeLessThan(1e-9);
       expect(relErr(p!.predicted, r.predicted)).toBeLessThan(1e-9);
       expect(relErr(p!.residuals, r.residuals)).toBeLessThan(1e-9);
       expect(Math.abs(p!.chi2 - r.chi2)).toBeLessThan(1e-9 * r.chi2);
-      expect(relErr(p!.priorStd, Array.from({ length: n }, (_, i) => Math.sqrt(r.Cm[i * n + i]!)))).toBeLessThan(1e-12);
+      expect(relErr(p!.priorStd, Array.from({ length: n }, (_, i) => Math.sqrt(r.Cm[i * n + i])))).toBeLessThan(1e-12);
     });
   });
 });

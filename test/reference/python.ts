@@ -66,5 +66,5 @@ export function denseScipyRoute(problem: Problem, length: number): { mean: numbe
     env,
     maxBuffer: 1 << 28,
   });
-  return (JSON.parse(out) as { problems: { mean: number[]; std: number[] }[] }).problems[0]!;
+  return (JSON.parse(out) as { problems: { mean: number[]; std: number[] }[] }).problems[0];
 }

@@ -24,7 +24,7 @@ describe('share link codec against Python base64 + zlib', () => {
     const codes = await Promise.all(priors.map((p, k) => encodeShare({ problem: k === 0 ? 'borehole-log' : null, prior: p })));
     const ref = runPython<{ decoded: unknown[]; encoded: string }>('share_reference.py', {
       codes: codes.map((c) => c.slice('#share='.length)),
-      encode: { problem: 'crosshole-tomography', prior: priorToJson(priors[1]!) },
+      encode: { problem: 'crosshole-tomography', prior: priorToJson(priors[1]) },
     });
     expect(ref.decoded).toEqual(priors.map((p, k) => ({ problem: k === 0 ? 'borehole-log' : null, prior: priorToJson(p) })));
     expect(await decodeShare(ref.encoded)).toEqual({ problem: 'crosshole-tomography', prior: priors[1] });
@@ -35,10 +35,10 @@ describe('share link codec against Python base64 + zlib', () => {
     expect(await decodeShare('#other')).toBeNull();
     await expect(decodeShare('#share=ab$')).rejects.toThrow('shared link: the code after #share= must be base64url');
     await expect(decodeShare('#share=AAAA')).rejects.toThrow('shared link: the code is damaged');
-    const bad = await encodeShare({ problem: null, prior: priors[0]! });
+    const bad = await encodeShare({ problem: null, prior: priors[0] });
     // a prior that fails the prior file's checks is refused with the field named
     const { deflateRawSync } = await import('node:zlib');
-    const wrong = '#share=' + toBase64Url(deflateRawSync(JSON.stringify({ problem: null, prior: { ...priorToJson(priors[0]!), nugget: -1 } })));
+    const wrong = '#share=' + toBase64Url(deflateRawSync(JSON.stringify({ problem: null, prior: { ...priorToJson(priors[0]), nugget: -1 } })));
     await expect(decodeShare(wrong)).rejects.toThrow('shared link: nugget must be');
     expect(Array.from(fromBase64Url(toBase64Url(Uint8Array.from([0, 255, 251, 62, 63]))))).toEqual([0, 255, 251, 62, 63]);
     expect(bad.length).toBeLessThan(200);

@@ -29,8 +29,8 @@ describe('FFT-route diagnostics vs numpy eigvalsh', () => {
   const ref = runPython<{ cases: Ref[] }>('structured_diagnostics_reference.py', { cases: CASES.map(({ grid, prior }) => ({ grid, prior })) }).cases;
 
   it.each(CASES.map((c, k) => [c.name, k] as const))('%s: bracket contains the spectrum, Ritz values inside', (_name, k) => {
-    const { grid, prior } = CASES[k]!;
-    const r = ref[k]!;
+    const { grid, prior } = CASES[k];
+    const r = ref[k];
     const d = diagnoseStructured(grid, prior);
     expect(d.eigenvalueMethod).toBe('fft-bounds');
     // A failed pivot exactly when the dense Cholesky decided "not positive definite".
@@ -57,7 +57,7 @@ describe('FFT-route diagnostics vs numpy eigvalsh', () => {
 
   it('the bracket proves positive definiteness on the well-conditioned cases (not vacuous)', () => {
     // Every case whose exact λmin is above 1e-6·λmax is proven by the bracket.
-    const proven = CASES.map((c, k) => [c, ref[k]!] as const).filter(([, r]) => r.min > 1e-6 * r.max);
+    const proven = CASES.map((c, k) => [c, ref[k]] as const).filter(([, r]) => r.min > 1e-6 * r.max);
     expect(proven.length).toBeGreaterThan(10);
     for (const [c] of proven) expect(diagnoseStructured(c.grid, c.prior).positiveDefinite, c.name).toBe(true);
   });

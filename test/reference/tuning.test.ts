@@ -53,12 +53,12 @@ const candidates: { name: string; problemSeed: number; prior: PriorSpec; py: { k
 ];
 
 const problems: Problem[] = candidates.map((c) => smallProblem(c.problemSeed, truth, 30, 18, 0.15));
-const scales = candidates.map((c, k) => discrepancyScale(problems[k]!, c.prior));
+const scales = candidates.map((c, k) => discrepancyScale(problems[k], c.prior));
 
 const ref = runPython<{ results: Ref[] }>('tuning_reference.py', {
   cases: candidates.map((c, k) => {
-    const p = problems[k]!;
-    const d = scales[k]!;
+    const p = problems[k];
+    const d = scales[k];
     return {
       x: Array.from(cellCoordinates(p.grid).x),
       G: toRows(p.operator.matrix as Parameters<typeof toRows>[0]),
@@ -73,9 +73,9 @@ const ref = runPython<{ results: Ref[] }>('tuning_reference.py', {
 }).results;
 
 describe.each(candidates.map((c, k) => [c.name, k] as const))('%s', (_name, k) => {
-  const p = problems[k]!;
-  const prior = candidates[k]!.prior;
-  const r = ref[k]!;
+  const p = problems[k];
+  const prior = candidates[k].prior;
+  const r = ref[k];
   it('log evidence equals scipy multivariate_normal.logpdf to 1e-10 relative', () => {
     expect(Math.abs(logEvidence(p, prior) - r.logpdf)).toBeLessThanOrEqual(1e-10 * Math.max(1, Math.abs(r.logpdf)));
   });
@@ -86,12 +86,12 @@ describe.each(candidates.map((c, k) => [c.name, k] as const))('%s', (_name, k) =
   });
   it('closed-form leave-one-out equals brute-force refits with one datum removed', () => {
     const loo = leaveOneOut(p, prior);
-    r.loo.forEach((want, i) => expect(Math.abs(loo.contributions[i]! - want)).toBeLessThanOrEqual(1e-8 * Math.max(1, Math.abs(want))));
+    r.loo.forEach((want, i) => expect(Math.abs(loo.contributions[i] - want)).toBeLessThanOrEqual(1e-8 * Math.max(1, Math.abs(want))));
     const sum = r.loo.reduce((a, b) => a + b, 0);
     expect(Math.abs(loo.logScore - sum)).toBeLessThanOrEqual(1e-8 * Math.max(1, Math.abs(sum)));
   });
   it('discrepancy scale makes the model-space posterior χ² equal M (or says why not)', () => {
-    const d = scales[k]!;
+    const d = scales[k];
     if (d.status === 'found') {
       expect(Math.abs(r.chi2_scaled! - d.target)).toBeLessThanOrEqual(1e-7 * d.target);
     } else {

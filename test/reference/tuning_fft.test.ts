@@ -64,13 +64,13 @@ const ref = runPython<{ results: Ref[] }>('tuning_reference.py', {
     m0: Array.from(meanVector(problem.grid, c.prior)),
     terms: c.py,
     nugget: c.prior.nugget,
-    ...(scales[k]!.status === 'found' ? { scale: scales[k]!.scale } : {}),
+    ...(scales[k].status === 'found' ? { scale: scales[k].scale } : {}),
   })),
 }).results;
 
 describe.each(candidates.map((c, k) => [c.name, k] as const))(`FFT route, ${N} cells: %s`, (_name, k) => {
-  const prior = candidates[k]!.prior;
-  const r = ref[k]!;
+  const prior = candidates[k].prior;
+  const r = ref[k];
   it('auto takes the FFT route here', () => expect(tuningRoute(problem, prior)).toBe('fft'));
   it('log evidence equals scipy multivariate_normal.logpdf to 1e-10 relative', () => {
     expect(Math.abs(logEvidence(problem, prior) - r.logpdf)).toBeLessThanOrEqual(1e-10 * Math.max(1, Math.abs(r.logpdf)));
@@ -82,10 +82,10 @@ describe.each(candidates.map((c, k) => [c.name, k] as const))(`FFT route, ${N} c
   });
   it('closed-form leave-one-out equals brute-force refits with one datum removed', () => {
     const loo = leaveOneOut(problem, prior);
-    r.loo.forEach((want, i) => expect(Math.abs(loo.contributions[i]! - want)).toBeLessThanOrEqual(1e-7 * Math.max(1, Math.abs(want))));
+    r.loo.forEach((want, i) => expect(Math.abs(loo.contributions[i] - want)).toBeLessThanOrEqual(1e-7 * Math.max(1, Math.abs(want))));
   });
   it('the discrepancy scale makes the model-space posterior χ² equal M (or says why not)', () => {
-    const d = scales[k]!;
+    const d = scales[k];
     if (d.status === 'found') expect(Math.abs(r.chi2_scaled! - d.target)).toBeLessThanOrEqual(1e-6 * d.target);
     else expect(d.status === 'mean-fits' ? d.chi2Range[0] <= d.target : d.chi2Range[1] >= d.target).toBe(true);
   });

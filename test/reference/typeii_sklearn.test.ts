@@ -71,7 +71,7 @@ function pick(n: number, k: number, rng: Random): number[] {
   const idx = Array.from({ length: n }, (_, i) => i);
   for (let i = 0; i < k; i++) {
     const j = i + Math.floor(rng.nextDouble() * (n - i));
-    [idx[i], idx[j]] = [idx[j]!, idx[i]!];
+    [idx[i], idx[j]] = [idx[j], idx[i]];
   }
   return idx.slice(0, k).sort((a, b) => a - b);
 }
@@ -103,9 +103,9 @@ describe('fit: type-II maximum likelihood against sklearn GaussianProcessRegress
       const n = c.grid.shape.reduce((a, b) => a * b, 1);
       const cells = pick(n, c.observed, rng);
       const truth = drawTruth(c.grid, c.truth, rng);
-      const y = cells.map((i) => truth[i]! + c.sigma * rng.nextNormal());
+      const y = cells.map((i) => truth[i] + c.sigma * rng.nextNormal());
       const { x, y: yc } = cellCoordinates(c.grid);
-      const X = cells.map((i) => (c.grid.shape.length === 2 ? [x[i]!, yc[i]!] : [x[i]!]));
+      const X = cells.map((i) => (c.grid.shape.length === 2 ? [x[i], yc[i]] : [x[i]]));
       writeFiles(dir, {
         [`p${k}.json`]: {
           kind: 'priorscope.problem',
@@ -128,7 +128,7 @@ describe('fit: type-II maximum likelihood against sklearn GaussianProcessRegress
     expect(runs.length).toBe(cases.length);
     const refs = runPython<Ref[]>('typeii_sklearn.py', {
       cases: runs.map(({ c, fit, X, y }) => {
-        const t = c.start.terms[0]!;
+        const t = c.start.terms[0];
         return {
           X,
           y,
@@ -141,21 +141,21 @@ describe('fit: type-II maximum likelihood against sklearn GaussianProcessRegress
       }),
     });
     runs.forEach(({ c, fit }, k) => {
-      const ref = refs[k]!;
+      const ref = refs[k];
       const where = `${c.name}: ours ${fit.logEvidence}, sklearn ${ref.lml_opt}`;
       expect(Math.abs(fit.startLogEvidence - ref.lml_start), where).toBeLessThan(1e-9 * Math.max(1, Math.abs(ref.lml_start)));
       expect(Math.abs(fit.logEvidence - ref.lml_opt), where).toBeLessThan(1e-6);
       expect(Math.abs(fit.logEvidence - ref.lml_at_ours), where).toBeLessThan(1e-9 * Math.max(1, Math.abs(ref.lml_at_ours)));
       // Parameter order: variance, then the length(s), as in sklearn's ConstantKernel * Matern theta.
-      expect(fit.parameters.map((p) => p.name)).toEqual(c.start.terms[0]!.lengths ? ['term0.variance', 'term0.lengths[0]', 'term0.lengths[1]'] : ['term0.variance', 'term0.length']);
-      fit.parameters.forEach((p, i) => expect(Math.abs(p.value / ref.theta_opt[i]! - 1), `${where}, ${p.name}`).toBeLessThan(1e-3));
-      fit.parameters.forEach((p, i) => expect(Math.abs(p.standardError / ref.se_at_ours[i]! - 1), `${c.name}: standard error of ${p.name}: ours ${p.standardError}, sklearn ${ref.se_at_ours[i]}`).toBeLessThan(1e-3));
+      expect(fit.parameters.map((p) => p.name)).toEqual(c.start.terms[0].lengths ? ['term0.variance', 'term0.lengths[0]', 'term0.lengths[1]'] : ['term0.variance', 'term0.length']);
+      fit.parameters.forEach((p, i) => expect(Math.abs(p.value / ref.theta_opt[i] - 1), `${where}, ${p.name}`).toBeLessThan(1e-3));
+      fit.parameters.forEach((p, i) => expect(Math.abs(p.standardError / ref.se_at_ours[i] - 1), `${c.name}: standard error of ${p.name}: ours ${p.standardError}, sklearn ${ref.se_at_ours[i]}`).toBeLessThan(1e-3));
     });
     console.log(
       refs
         .map((r, k) => {
-          const se = runs[k]!.fit.parameters.map((p, i) => Math.abs(p.standardError / r.se_at_ours[i]! - 1));
-          return `${cases[k]!.name}: Δ log evidence ${(runs[k]!.fit.logEvidence - r.lml_opt).toExponential(2)}, largest relative Δ standard error ${Math.max(...se).toExponential(2)}`;
+          const se = runs[k].fit.parameters.map((p, i) => Math.abs(p.standardError / r.se_at_ours[i] - 1));
+          return `${cases[k].name}: Δ log evidence ${(runs[k].fit.logEvidence - r.lml_opt).toExponential(2)}, largest relative Δ standard error ${Math.max(...se).toExponential(2)}`;
         })
         .join('\n'),
     );

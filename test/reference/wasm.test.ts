@@ -41,10 +41,10 @@ describe('wasmVarianceBlock against scipy.linalg.solve_triangular', () => {
     let clamped = 0;
     inputs.forEach(({ L, Bt, pv, c0, c1 }, i) => {
       const ours = wasmVarianceBlock(L, Bt, pv, c0, c1);
-      const { var: v, scale } = ref[i]!;
+      const { var: v, scale } = ref[i];
       expect(ours.length).toBe(v.length);
       for (let j = 0; j < v.length; j++) {
-        expect(Math.abs(ours[j]! - v[j]!), `M = ${L.rows}, column ${c0 + j}`).toBeLessThanOrEqual(TOL * scale[j]!);
+        expect(Math.abs(ours[j] - v[j]), `M = ${L.rows}, column ${c0 + j}`).toBeLessThanOrEqual(TOL * scale[j]);
         if (v[j] === 0) clamped++;
       }
     });
@@ -78,8 +78,8 @@ describe('wasmGemmNT against numpy matmul', () => {
     const u = 2 ** -53;
     const gamma = (k * u) / (1 - k * u);
     for (let i = 0; i < m * n; i++) {
-      const tol = 2 * gamma * ref!.scale[i]! + u * Math.abs(c.data[i]!);
-      expect(Math.abs(ours.data[i]! - ref!.c[i]!), `entry ${i}`).toBeLessThanOrEqual(tol);
+      const tol = 2 * gamma * ref!.scale[i] + u * Math.abs(c.data[i]);
+      expect(Math.abs(ours.data[i] - ref!.c[i]), `entry ${i}`).toBeLessThanOrEqual(tol);
     }
   });
 });

@@ -36,7 +36,7 @@ const DYNAMIC = /\bimport\(\s*['"]([^'"]+)['"]\s*\)/g;
 function allNamesTypeOnly(clause: string): boolean {
   const m = /^\{([\s\S]*)\}$/.exec(clause.trim());
   if (!m) return false;
-  const names = m[1]!.split(',').map((s) => s.trim()).filter(Boolean);
+  const names = m[1].split(',').map((s) => s.trim()).filter(Boolean);
   return names.length > 0 && names.every((n) => n.startsWith('type '));
 }
 
@@ -51,9 +51,9 @@ export function importEdges(root: string): ImportEdge[] {
       const to = relative(root, resolve(dirname(file), spec)).split('\\').join('/');
       edges.push({ from, to, typeOnly });
     };
-    for (const m of text.matchAll(STATIC)) add(m[5]!, Boolean(m[3]) || allNamesTypeOnly(m[4]!));
-    for (const m of text.matchAll(BARE)) add(m[2]!, false);
-    for (const m of text.matchAll(DYNAMIC)) add(m[1]!, false);
+    for (const m of text.matchAll(STATIC)) add(m[5], Boolean(m[3]) || allNamesTypeOnly(m[4]));
+    for (const m of text.matchAll(BARE)) add(m[2], false);
+    for (const m of text.matchAll(DYNAMIC)) add(m[1], false);
   }
   return edges;
 }
@@ -103,7 +103,7 @@ export function importCycles(edges: readonly ImportEdge[]): string[][] {
   // One concrete cycle per component: breadth-first from its first module back to itself.
   return components.map((c) => {
     const members = new Set(c);
-    const start = [...c].sort()[0]!;
+    const start = [...c].sort()[0];
     const prev = new Map<string, string>();
     const queue = [start];
     while (queue.length > 0) {

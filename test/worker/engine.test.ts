@@ -47,7 +47,7 @@ describe('Engine: posterior mean before the bands (FFT path)', () => {
       expect(summary.fitReference!.expected).toBeGreaterThan(0);
       expect([p.dataCount, p.parameterCount]).toEqual([M, 160]);
       // The mean moved away from the prior mean (the data say something), so equal bits are not trivial.
-      expect(p.mean.some((v, i) => Math.abs(v - p.priorMean[i]!) > 1e-3)).toBe(true);
+      expect(p.mean.some((v, i) => Math.abs(v - p.priorMean[i]) > 1e-3)).toBe(true);
     });
   }
 

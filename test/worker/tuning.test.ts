@@ -21,7 +21,7 @@ import type { WorkerRequest } from '../../src/worker/protocol.ts';
 import { Engine } from '../../src/worker/engine.ts';
 
 const { problem, startPrior } = demoById('borehole-log').build();
-const t0 = startPrior.terms[0]!;
+const t0 = startPrior.terms[0];
 const lengths = { min: 0.2 * termLength(t0), max: 5 * termLength(t0), count: 7 };
 const variances = { min: 0.01 * t0.variance, max: 100 * t0.variance, count: 5 };
 
@@ -55,7 +55,7 @@ describe('evidence map by rows', () => {
     }, flag);
     expect(map.cancelled).toBe(true);
     expect(map.methodByLength).toHaveLength(2);
-    expect(Number.isFinite(map.logEvidence[2 * variances.count - 1]!)).toBe(true);
+    expect(Number.isFinite(map.logEvidence[2 * variances.count - 1])).toBe(true);
     expect(map.logEvidence.slice(2 * variances.count).every((x) => Number.isNaN(x))).toBe(true);
   });
 
@@ -126,8 +126,8 @@ describe('calibration chunks', () => {
     const c = calibrationChunks(25, 4294967295);
     expect(c.reduce((a, x) => a + x.replicates, 0)).toBe(25);
     expect(c.length).toBeLessThanOrEqual(10);
-    expect(c[0]!.seed).toBe(4294967295);
-    expect(c[1]!.seed).toBe(0);
+    expect(c[0].seed).toBe(4294967295);
+    expect(c[1].seed).toBe(0);
     expect(() => calibrationChunks(0, 1)).toThrow(/replicates/);
   });
 
@@ -135,7 +135,7 @@ describe('calibration chunks', () => {
     const a = calibrate(problem, startPrior, startPrior, { replicates: 3, draws: 9, seed: 5 });
     const b = calibrate(problem, startPrior, startPrior, { replicates: 5, draws: 9, seed: 6 });
     const m = mergeCalibration([a, b]);
-    const n = problem.grid.shape[0]!;
+    const n = problem.grid.shape[0];
     const mean = (x: Float64Array) => x.reduce((s, v) => s + v, 0) / x.length;
     expect(m.replicates).toBe(8);
     // Each replicate covers N cells, so the pooled fraction is the mean of the per-replicate ones
@@ -156,7 +156,7 @@ describe('candidate scores', () => {
     const s = await scoreCandidates(problem, [startPrior, other, bad], 2, 7, () => {}, { aborted: false });
     expect(s).toHaveLength(3);
     for (const [k, prior] of [startPrior, other].entries()) {
-      const c = s[k]!;
+      const c = s[k];
       if (!c.ok) throw new Error(c.error);
       expect(c.logEvidence).toBe(logEvidence(problem, prior));
       expect(c.looLogScore).toBe(leaveOneOut(problem, prior).logScore);
@@ -165,8 +165,8 @@ describe('candidate scores', () => {
       expect(c.chi2OverExpected).toBe(post.chi2 / post.fitReference!.expected);
       expect(c.draws.rows).toBe(2);
     }
-    expect(s[0]!.ok && s[1]!.ok && s[0]!.logEvidence !== s[1]!.logEvidence).toBe(true);
-    const b = s[2]!;
+    expect(s[0].ok && s[1].ok && s[0].logEvidence !== s[1].logEvidence).toBe(true);
+    const b = s[2];
     expect(b.ok).toBe(false);
     if (!b.ok) expect(b.error).toMatch(/variance/);
   });
@@ -181,18 +181,18 @@ describe('large grids (FFT route above TUNING_DENSE_LIMIT cells)', () => {
     let d = 0;
     let s = 0;
     for (let i = 0; i < b.length; i++) {
-      d = Math.max(d, Math.abs(a[i]! - b[i]!));
-      s = Math.max(s, Math.abs(b[i]!));
+      d = Math.max(d, Math.abs(a[i] - b[i]));
+      s = Math.max(s, Math.abs(b[i]));
     }
     return d / s;
   };
 
   it('candidate scores take the FFT route and equal the dense numbers to 1e-9', async () => {
     expect(tuningRoute(big, prior)).toBe('fft');
-    const other: PriorSpec = { ...prior, terms: [patchTerm(prior.terms[0]!, { length: 2 })] };
+    const other: PriorSpec = { ...prior, terms: [patchTerm(prior.terms[0], { length: 2 })] };
     const s = await scoreCandidates(big, [prior, other], 3, 11, () => {}, { aborted: false });
     for (const [k, p] of [prior, other].entries()) {
-      const c = s[k]!;
+      const c = s[k];
       if (!c.ok) throw new Error(c.error);
       const dense = { route: 'dense' } as const;
       expect(rel(c.logEvidence, logEvidence(big, p, dense))).toBeLessThan(1e-9);
@@ -218,7 +218,7 @@ describe('large grids (FFT route above TUNING_DENSE_LIMIT cells)', () => {
     whole.logEvidence.forEach((v, k) => expect(rows.logEvidence[k]).toBe(v));
     expect(rows.best!.index).toBe(whole.best!.index);
     const dense = evidenceMap(big, prior, { term: 0, ...axis, route: 'dense' });
-    dense.logEvidence.forEach((v, k) => expect(rel(rows.logEvidence[k]!, v)).toBeLessThan(1e-9));
+    dense.logEvidence.forEach((v, k) => expect(rel(rows.logEvidence[k], v)).toBeLessThan(1e-9));
   });
 
   it('calibration chunks report the FFT route and merge it', async () => {

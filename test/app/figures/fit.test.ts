@@ -6,8 +6,8 @@ describe('data-fit figures', () => {
   it('plots observed and predicted data at the datum numbers and the residuals with guides at ±2', () => {
     const f = fitTraces({ values: [1, 2, 3], sigma: [0.1, 0.1, 0.2] }, { predicted: [1.1, 1.9, 3.4], residuals: [1, -1, 2] });
     expect(f.obs.map((t) => t.name)).toEqual(['observed ±1σ', 'predicted G m̃']);
-    expect(f.obs[1]!.x).toEqual([1, 2, 3]);
-    expect(f.obs[1]!.y).toEqual([1.1, 1.9, 3.4]);
+    expect(f.obs[1].x).toEqual([1, 2, 3]);
+    expect(f.obs[1].y).toEqual([1.1, 1.9, 3.4]);
     expect(f.res[0]).toMatchObject({ type: 'bar', x: [1, 2, 3], y: [1, -1, 2] });
     // guides span the whole datum range, half a datum beyond each end
     expect(f.res[1]).toMatchObject({ x: [0.5, 3.5], y: [2, 2], name: '±2' });

@@ -8,36 +8,36 @@ describe('posterior figures', () => {
   it('draws only the prior band and the mean while the bands are computed', () => {
     const t = posteriorBandTraces(grid1, shown([1, 2, 3]), null);
     expect(t.map((x) => x.name)).toEqual(['prior 95%', 'posterior mean']);
-    expect(Array.from(t[1]!.y as Float64Array)).toEqual([1, 2, 3]);
+    expect(Array.from(t[1].y as Float64Array)).toEqual([1, 2, 3]);
   });
 
   it('adds the 95% and 68% bands m ± z·σ and the truth once they exist', () => {
     const t = posteriorBandTraces(grid1, shown([1, 2, 3], [0.5, 1, 2]), [0, 0, 0]);
     expect(t.map((x) => x.name)).toEqual(['prior 95%', 'posterior 95%', 'posterior 68%', 'truth', 'posterior mean']);
     // band polygon: upper edge forward, then lower edge back (src/app/traces.ts bandTrace)
-    const y95 = Array.from(t[1]!.y as Float64Array);
+    const y95 = Array.from(t[1].y as Float64Array);
     expect(y95[0]).toBeCloseTo(1 + Z95 * 0.5, 12);
     expect(y95[5]).toBeCloseTo(1 - Z95 * 0.5, 12);
-    const y68 = Array.from(t[2]!.y as Float64Array);
+    const y68 = Array.from(t[2].y as Float64Array);
     expect(y68[2]).toBeCloseTo(3 + Z68 * 2, 12);
     // the prior band: m0 = 0, σ = 1
-    expect((t[0]!.y as Float64Array)[0]).toBeCloseTo(Z95, 12);
+    expect((t[0].y as Float64Array)[0]).toBeCloseTo(Z95, 12);
   });
 
   it('maps the mean at once and the standard deviation and variance reduction with the bands', () => {
     const partial = posteriorMapTraces(grid2, shown([1, 2, 3, 4, 5, 6]));
-    expect(partial.mean[0]!.z).toEqual([
+    expect(partial.mean[0].z).toEqual([
       [1, 2, 3],
       [4, 5, 6],
     ]);
     expect(partial.std).toBeNull();
     expect(partial.vr).toBeNull();
     const full = posteriorMapTraces(grid2, shown([1, 2, 3, 4, 5, 6], [0, 0.5, 1, 0, 0.5, 1]));
-    expect(full.std![0]!.z).toEqual([
+    expect(full.std![0].z).toEqual([
       [0, 0.5, 1],
       [0, 0.5, 1],
     ]);
-    expect(full.vr![0]!.z).toEqual([
+    expect(full.vr![0].z).toEqual([
       [1, 0.75, 0],
       [1, 0.75, 0],
     ]);

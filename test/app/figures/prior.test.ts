@@ -22,11 +22,11 @@ describe('prior figures', () => {
 
   it('runs the curves to four correlation lengths, or to the grid’s end when that is nearer', () => {
     const near = correlationCurveTraces(exponential(5), line);
-    const r = near[0]!.x as number[];
+    const r = near[0].x as number[];
     expect(r[0]).toBe(0);
     expect(r[r.length - 1]).toBeCloseTo(20, 12);
     const far = correlationCurveTraces(exponential(50), line);
-    const rf = far[0]!.x as number[];
+    const rf = far[0].x as number[];
     expect(rf[rf.length - 1]).toBeCloseTo(100, 12);
   });
 
@@ -34,14 +34,14 @@ describe('prior figures', () => {
     const t = correlationCurveTraces(exponential(5, 1), line);
     expect(t.map((x) => x.name)).toEqual(['total (with nugget)', 'term 1: exponential', 'practical range 1']);
     // total = σ² e^(−r/ℓ) / (σ² + nugget) away from zero lag, 1 at zero lag
-    const r = t[0]!.x as number[];
-    const total = t[0]!.y as number[];
+    const r = t[0].x as number[];
+    const total = t[0].y as number[];
     expect(total[0]).toBe(1);
-    expect(total[10]).toBeCloseTo(Math.exp(-r[10]! / 5) / 2, 12);
-    const range = t[2]!.x as number[];
+    expect(total[10]).toBeCloseTo(Math.exp(-r[10] / 5) / 2, 12);
+    const range = t[2].x as number[];
     expect(range[0]).toBeCloseTo(5 * Math.log(20), 8);
     expect(range[1]).toBe(range[0]);
-    expect((t[2]!.text as string[])[1]).toBe('ρ = 0.05 at 14.98');
+    expect((t[2].text as string[])[1]).toBe('ρ = 0.05 at 14.98');
   });
 
   it('maps correlation over offsets up to three correlation lengths with the ρ = 0.05 contour', () => {
@@ -51,9 +51,9 @@ describe('prior figures', () => {
     expect(off[off.length - 1]).toBeCloseTo(3, 12);
     const z = heat!.z as number[][];
     const mid = (off.length - 1) / 2;
-    expect(z[mid]![mid]).toBe(1);
+    expect(z[mid][mid]).toBe(1);
     // offset (3, 0) at ℓ = 1: e^(−3)
-    expect(z[mid]![off.length - 1]).toBeCloseTo(Math.exp(-3), 12);
+    expect(z[mid][off.length - 1]).toBeCloseTo(Math.exp(-3), 12);
     expect(contour!.type).toBe('contour');
     expect((contour!.contours as { start: number }).start).toBe(0.05);
     expect((correlationMapLayout(grid2).yaxis as Record<string, unknown>).autorange).toBe('reversed');

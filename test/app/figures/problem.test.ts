@@ -18,11 +18,11 @@ describe('problem figures', () => {
   it('draws the sensitivity as a line over the cell centres in 1-D and as a map in 2-D', () => {
     const line = coverageTraces(grid1, [1, 2, 3]);
     expect(line).toHaveLength(1);
-    expect(line[0]!.type).toBe('scatter');
-    expect(Array.from(line[0]!.x as Float64Array)).toEqual([10, 12, 14]);
+    expect(line[0].type).toBe('scatter');
+    expect(Array.from(line[0].x as Float64Array)).toEqual([10, 12, 14]);
     const map = coverageTraces(grid2, [1, 2, 3, 4, 5, 6]);
-    expect(map[0]!.type).toBe('heatmap');
-    expect(map[0]!.z).toEqual([
+    expect(map[0].type).toBe('heatmap');
+    expect(map[0].z).toEqual([
       [1, 2, 3],
       [4, 5, 6],
     ]);

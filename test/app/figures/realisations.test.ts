@@ -11,7 +11,7 @@ describe('realisation gallery', () => {
       ['x', 'y', 'draw 1'],
       ['x2', 'y2', 'draw 2'],
     ]);
-    expect(t[1]!.z).toEqual([
+    expect(t[1].z).toEqual([
       [6, 7, 8],
       [9, 10, 11],
     ]);
@@ -20,9 +20,9 @@ describe('realisation gallery', () => {
 
   it('draws 1-D realisations as lines over the cell centres', () => {
     const t = galleryTraces(grid1, { rows: 1, cols: 3, data: Float64Array.from([1, 2, 3]) });
-    expect(t[0]!.type).toBe('scatter');
-    expect(Array.from(t[0]!.x as Float64Array)).toEqual([10, 12, 14]);
-    expect(Array.from(t[0]!.y as Float64Array)).toEqual([1, 2, 3]);
+    expect(t[0].type).toBe('scatter');
+    expect(Array.from(t[0].x as Float64Array)).toEqual([10, 12, 14]);
+    expect(Array.from(t[0].y as Float64Array)).toEqual([1, 2, 3]);
   });
 
   it('shares the range: the colour limits in 2-D (second axis down), the value axis in 1-D', () => {

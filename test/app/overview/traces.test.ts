@@ -9,9 +9,9 @@ describe('overview traces', () => {
     const draws = { data: Float64Array.from([1, 2, 3, 4, 5, 6, 7, 8]), rows: 4, cols: 2 };
     const t = priorTraces1D([0, 1], draws, [0, 0], [1, 2]);
     expect(t.map((x) => x.name)).toEqual(['prior 95%', 'prior mean', 'realisation 1', 'realisation 2', 'realisation 3']);
-    expect(Array.from(t[3]!.y as Float64Array)).toEqual([3, 4]);
+    expect(Array.from(t[3].y as Float64Array)).toEqual([3, 4]);
     // band upper edge = mean + 1.96 σ
-    expect((t[0]!.y as Float64Array)[1]).toBeCloseTo(1.959963984540054 * 2, 12);
+    expect((t[0].y as Float64Array)[1]).toBeCloseTo(1.959963984540054 * 2, 12);
   });
 
   it('1-D posterior panel: bands only when the standard deviation is known; truth when given', () => {
@@ -22,9 +22,9 @@ describe('overview traces', () => {
 
   it('data fit: observed with its σ as error bars and the prediction, against datum number from 1', () => {
     const t = fitTraces([5, 6], [0.5, 0.7], [5.1, 5.8]);
-    expect(t[0]!.x).toEqual([1, 2]);
-    expect((t[0]!.error_y as { array: number[] }).array).toEqual([0.5, 0.7]);
-    expect(t[1]!.y).toEqual([5.1, 5.8]);
+    expect(t[0].x).toEqual([1, 2]);
+    expect((t[0].error_y as { array: number[] }).array).toEqual([0.5, 0.7]);
+    expect(t[1].y).toEqual([5.1, 5.8]);
   });
 
   it('2-D maps: realisations and posterior mean share one diverging range centred on the constant prior mean', () => {
@@ -38,12 +38,12 @@ describe('overview traces', () => {
       expect([t.zmin, t.zmax]).toEqual([4, 16]);
       expect(t.colorscale).toBe(DIVERGING);
     }
-    expect(m.std![0]!.colorscale).toBe(SEQUENTIAL);
-    expect([m.std![0]!.zmin, m.std![0]!.zmax]).toEqual([0, 3]);
-    expect(m.std![0]!.z).toEqual([[1, 1, 1], [1, 1, 1]]);
+    expect(m.std![0].colorscale).toBe(SEQUENTIAL);
+    expect([m.std![0].zmin, m.std![0].zmax]).toEqual([0, 3]);
+    expect(m.std![0].z).toEqual([[1, 1, 1], [1, 1, 1]]);
     // limits by hand
     const fixed = overviewMaps(grid, 'kg/m³', mean0, draws, post, { half: 2 });
-    expect([fixed.draws[0]![0]!.zmin, fixed.draws[0]![0]!.zmax]).toEqual([8, 12]);
+    expect([fixed.draws[0][0].zmin, fixed.draws[0][0].zmax]).toEqual([8, 12]);
     expect(fixed.perturbation).toBe(false);
   });
 
@@ -52,7 +52,7 @@ describe('overview traces', () => {
     const draws = { data: Float64Array.from([1, 1, 1, 1, 1, 1]), rows: 1, cols: 6 };
     const m = overviewMaps(grid, 'm/s', mean0, draws, null, { half: null });
     expect(m.perturbation).toBe(true);
-    expect(m.draws[0]![0]!.z).toEqual([[1, 0, -1], [1, 0, -1]]);
+    expect(m.draws[0][0].z).toEqual([[1, 0, -1], [1, 0, -1]]);
     expect(m.signedRange).toEqual([-1, 1]);
     expect(m.mean).toBeNull();
   });

@@ -17,17 +17,17 @@ function fakeMap(): EvidenceMap {
 describe('evidence map traces', () => {
   it('puts variances on rows and lengths on columns, NaN as gaps, maximum and current prior marked', () => {
     const t = evidenceMapTraces(fakeMap(), { length: 10, variance: 0.1 });
-    const heat = t[0]!;
+    const heat = t[0];
     expect(heat.x).toEqual([0, 1, 2]);
     expect((heat.y as number[])[0]).toBeCloseTo(-1, 15);
     const z = heat.z as (number | null)[][];
     expect(z).toHaveLength(2);
     expect(z[0]).toEqual([0, 10, 20]);
     expect(z[1]).toEqual([null, 11, 21]);
-    expect(t[1]!.name).toBe('maximum');
-    expect(t[1]!.x).toEqual([2]);
-    expect(t[1]!.y).toEqual([0]);
-    expect(t[2]!.name).toBe('current prior');
+    expect(t[1].name).toBe('maximum');
+    expect(t[1].x).toEqual([2]);
+    expect(t[1].y).toEqual([0]);
+    expect(t[2].name).toBe('current prior');
     expect(heat.zmax).toBe(21);
   });
 
@@ -43,7 +43,7 @@ describe('evidence map traces', () => {
     const v = logValues(1e-4, 1, 5);
     expect(v[0]).toBe(1e-4);
     expect(v[4]).toBeCloseTo(1, 14);
-    for (let k = 1; k < 5; k++) expect(v[k]! / v[k - 1]!).toBeCloseTo(10, 12);
+    for (let k = 1; k < 5; k++) expect(v[k] / v[k - 1]).toBeCloseTo(10, 12);
   });
 });
 
@@ -51,17 +51,17 @@ describe('candidate pictures', () => {
   it('a band is mean ± 1.96 σ drawn as one closed polygon per candidate', () => {
     const t = candidateBandTraces([0, 1], [{ name: 'A', colour: '#102030', mean: [1, 2], std: [0.5, 1] }]);
     expect(t).toHaveLength(2);
-    expect(t[0]!.x).toEqual([0, 1, 1, 0]);
-    const y = t[0]!.y as number[];
+    expect(t[0].x).toEqual([0, 1, 1, 0]);
+    const y = t[0].y as number[];
     expect(y[0]).toBeCloseTo(1 + 1.959963984540054 * 0.5, 14);
     expect(y[2]).toBeCloseTo(2 - 1.959963984540054, 14);
-    expect(t[0]!.fillcolor).toBe('rgba(16, 32, 48, 0.14)');
+    expect(t[0].fillcolor).toBe('rgba(16, 32, 48, 0.14)');
     expect(() => withAlpha('teal', 1)).toThrow(/#rrggbb/);
   });
 
   it('rank histogram has the flat reference at total / bins', () => {
     const t = rankTraces([2, 4, 6]);
-    expect(t[1]!.y).toEqual([4, 4]);
+    expect(t[1].y).toEqual([4, 4]);
   });
 });
 
@@ -87,10 +87,10 @@ describe('scores table rows', () => {
   it('one row per candidate with full-precision values; errors and missing scores shown as dashes', () => {
     const rows = scoreRows(cands, [ok(3, 1.4), ok(5, 0.9), { ok: false, error: 'terms[0].variance must be > 0' }], null);
     expect(rows).toHaveLength(3);
-    expect(rows[0]!.cells.map((c) => c.column)).toEqual(SCORE_COLUMNS.map((c) => c.id));
-    expect(rows[1]!.cells.find((c) => c.column === 'logEvidence')!.value).toBe(5);
-    expect(rows[2]!.error).toMatch(/variance/);
-    expect(rows[2]!.cells.every((c) => c.text === '—')).toBe(true);
+    expect(rows[0].cells.map((c) => c.column)).toEqual(SCORE_COLUMNS.map((c) => c.id));
+    expect(rows[1].cells.find((c) => c.column === 'logEvidence')!.value).toBe(5);
+    expect(rows[2].error).toMatch(/variance/);
+    expect(rows[2].cells.every((c) => c.text === '—')).toBe(true);
     const col = (id: string) => SCORE_COLUMNS.find((c) => c.id === id)!;
     expect(bestRow(rows, col('logEvidence'))).toBe(1);
     expect(bestRow(rows, col('chi2'))).toBe(1); // |0.9 − 1| < |1.4 − 1|
@@ -101,15 +101,15 @@ describe('scores table rows', () => {
   it('coverage comes from the diagonal of the cross-table of the same candidates', () => {
     const cross = { size: 2, coverage68: [0.7, 0.1, 0.2, 0.6], coverage95: [0.95, 0.3, 0.4, 0.9] };
     const rows = scoreRows(cands.slice(0, 2), [ok(1, 1), ok(2, 1)], cross);
-    expect(rows[0]!.cells.find((c) => c.column === 'coverage')!.value).toBe(0.7);
-    expect(rows[1]!.cells.find((c) => c.column === 'coverage')!.text).toBe('0.6 / 0.9');
+    expect(rows[0].cells.find((c) => c.column === 'coverage')!.value).toBe(0.7);
+    expect(rows[1].cells.find((c) => c.column === 'coverage')!.text).toBe('0.6 / 0.9');
     // A table for a different candidate list is not used.
-    expect(scoreRows(cands, null, cross)[0]!.cells.find((c) => c.column === 'coverage')!.value).toBeNull();
+    expect(scoreRows(cands, null, cross)[0].cells.find((c) => c.column === 'coverage')!.value).toBeNull();
   });
 
   it('styles are handed out in order, skipping colours already taken; numbers format readably', () => {
-    expect(nextCandidateStyle([]).name).toBe(CANDIDATE_STYLES[0]!.name);
-    expect(nextCandidateStyle([CANDIDATE_STYLES[0]!.colour]).name).toBe(CANDIDATE_STYLES[1]!.name);
+    expect(nextCandidateStyle([]).name).toBe(CANDIDATE_STYLES[0].name);
+    expect(nextCandidateStyle([CANDIDATE_STYLES[0].colour]).name).toBe(CANDIDATE_STYLES[1].name);
     expect(fmt(123456)).toBe('1.235e+5');
     expect(fmt(0.5)).toBe('0.5');
     expect(fmt(Number.POSITIVE_INFINITY)).toBe('∞');

@@ -20,9 +20,9 @@ describe('undo history', () => {
   it('undoes and redoes typed edits one by one, even when they come fast', () => {
     let h = emptyHistory;
     const p = [prior(1), prior(2), prior(3)];
-    h = record(h, p[0]!, p[1]!, 0);
-    h = record(h, p[1]!, p[2]!, 10); // 10 ms later, same field: still its own step
-    const u1 = undo(h, p[2]!)!;
+    h = record(h, p[0], p[1], 0);
+    h = record(h, p[1], p[2], 10); // 10 ms later, same field: still its own step
+    const u1 = undo(h, p[2])!;
     expect(u1.prior).toEqual(p[1]);
     const u2 = undo(u1.history, u1.prior)!;
     expect(u2.prior).toEqual(p[0]);

@@ -69,7 +69,7 @@ function record(name: string, u: ChildUsage): void {
 function median(xs: number[]): number {
   const s = [...xs].sort((a, b) => a - b);
   const k = s.length >> 1;
-  return s.length % 2 ? s[k]! : (s[k - 1]! + s[k]!) / 2;
+  return s.length % 2 ? s[k] : (s[k - 1] + s[k]) / 2;
 }
 function usageReport(name: string, memory = false): Readonly<Record<string, number>> {
   const u = usage.get(name) ?? [];
@@ -111,11 +111,11 @@ export function millionEntryProblem(): Problem {
     // Partial Fisher–Yates shuffle: the first perRow cells are a random subset.
     for (let k = 0; k < perRow; k++) {
       const j = k + Math.floor(rng.nextDouble() * (n * n - k));
-      const t = cells[k]!;
-      cells[k] = cells[j]!;
+      const t = cells[k];
+      cells[k] = cells[j];
       cells[j] = t;
       ri[i * perRow + k] = i;
-      ci[i * perRow + k] = cells[k]!;
+      ci[i * perRow + k] = cells[k];
       v[i * perRow + k] = rng.nextDouble();
     }
   }
@@ -124,7 +124,7 @@ export function millionEntryProblem(): Problem {
   for (let k = 0; k < n * n; k++) truth[k] = 0.2 + 0.05 * Math.sin((k % n) / 7) * Math.cos(Math.floor(k / n) / 11);
   const clean = applyOperator(operator, truth);
   const sigma = clean.map((x) => 0.01 * Math.abs(x) + 1e-6);
-  const values = clean.map((x, k) => x + sigma[k]! * rng.nextNormal());
+  const values = clean.map((x, k) => x + sigma[k] * rng.nextNormal());
   return { grid: { shape: [n, n], spacing: [1, 1] }, operator, data: { values, sigma } };
 }
 

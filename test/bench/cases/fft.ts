@@ -75,7 +75,7 @@ export function benchProblem(n: number, m = M): Problem {
   for (let i = 0; i < n * n; i++) truth[i] = 0.2 + 0.05 * Math.sin((i % n) / 7) * Math.cos(Math.floor(i / n) / 11);
   const clean = applyOperator(operator, truth);
   const sigma = clean.map((v) => 0.01 * Math.abs(v) + 1e-6);
-  const values = clean.map((v, k) => v + sigma[k]! * rng.nextNormal());
+  const values = clean.map((v, k) => v + sigma[k] * rng.nextNormal());
   return { grid, operator, data: { values, sigma } };
 }
 
@@ -216,11 +216,11 @@ interface ChildResult {
 function median(xs: number[]): number {
   const s = [...xs].sort((a, b) => a - b);
   const h = s.length >> 1;
-  return s.length % 2 ? s[h]! : (s[h - 1]! + s[h]!) / 2;
+  return s.length % 2 ? s[h] : (s[h - 1] + s[h]) / 2;
 }
 
 function runChild(index: number): ChildResult {
-  const c = cases[index]!;
+  const c = cases[index];
   const fn = c.setup();
   for (let i = 0; i < (c.warmup ?? 1); i++) fn();
   const times: number[] = [];
@@ -233,8 +233,8 @@ function runChild(index: number): ChildResult {
     const du = process.cpuUsage(c0);
     cpu.push((du.user + du.system) / 1000);
     if (typeof out === 'number' && c.name.startsWith('Fft2')) {
-      times[times.length - 1]! /= out;
-      cpu[cpu.length - 1]! /= out;
+      times[times.length - 1] /= out;
+      cpu[cpu.length - 1] /= out;
     }
   }
   return { name: c.name, median_ms: median(times), times_ms: times, peak_rss_mb: process.resourceUsage().maxRSS / 1024, median_cpu_ms: median(cpu) };
@@ -246,7 +246,7 @@ function csrJson(s: SparseMatrix) {
 
 function maxAbsDiff(a: ArrayLike<number>, b: ArrayLike<number>): number {
   let d = 0;
-  for (let i = 0; i < a.length; i++) d = Math.max(d, Math.abs(a[i]! - b[i]!));
+  for (let i = 0; i < a.length; i++) d = Math.max(d, Math.abs(a[i] - b[i]));
   return d;
 }
 
@@ -285,7 +285,7 @@ function main(): void {
       const problem = benchProblem(n);
       const r = callDense({
         problems: [{ name: `${n}x${n}`, grid: problem.grid, length: n / 8, g: csrJson(problem.operator.matrix as SparseMatrix), d: Array.from(problem.data.values), sigma: Array.from(problem.data.sigma!), runs: n === 64 ? 5 : 2 }],
-      }).problems[0]!;
+      }).problems[0];
       const st = prepareStructuredPosterior(problem, benchPrior(n));
       const std = structuredPosteriorStd(st);
       const find = (part: string) => ours.find((o) => o.name.startsWith(`fft posterior ${n}x${n}`) && o.name.includes(part))!;

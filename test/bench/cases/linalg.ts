@@ -31,7 +31,7 @@ export function benchSpd(n: number, seed = 1): Matrix {
   const a = matrix(n, n);
   for (let i = 0; i < n; i++) {
     for (let j = 0; j <= i; j++) {
-      const v = Math.exp(-Math.abs(x[i]! - x[j]!) / 0.1) + (i === j ? 0.1 : 0);
+      const v = Math.exp(-Math.abs(x[i] - x[j]) / 0.1) + (i === j ? 0.1 : 0);
       a.data[i * n + j] = v;
       a.data[j * n + i] = v;
     }

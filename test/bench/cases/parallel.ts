@@ -91,16 +91,16 @@ export const cases: BenchCase[] = [...gridCases(64), ...gridCases(128), ...gridC
 function median(xs: number[]): number {
   const s = [...xs].sort((a, b) => a - b);
   const h = s.length >> 1;
-  return s.length % 2 ? s[h]! : (s[h - 1]! + s[h]!) / 2;
+  return s.length % 2 ? s[h] : (s[h - 1] + s[h]) / 2;
 }
 
 async function main(): Promise<void> {
   const args = process.argv.slice(2);
   const at = args.indexOf('--filter');
-  const filter = at >= 0 ? args[at + 1]! : '';
+  const filter = at >= 0 ? args[at + 1] : '';
   const r = args.indexOf('--runs');
   const runs = r >= 0 ? Number(args[r + 1]) : 7;
-  const load0 = loadavg()[0]!;
+  const load0 = loadavg()[0];
   // Pool start: worker threads up and tsx's loader registered, measured by a first tiny task.
   const t0 = performance.now();
   const p = pool();
@@ -121,11 +121,11 @@ async function main(): Promise<void> {
   for (let i = 0; i < Math.max(5, runs); i++) {
     for (let k = 0; k < chosen.length; k++) {
       const ts = performance.now();
-      await fns[k]!();
-      times[k]!.push(performance.now() - ts);
+      await fns[k]();
+      times[k].push(performance.now() - ts);
     }
   }
-  const out = chosen.map((c, k) => ({ name: c.name, median_ms: median(times[k]!), min_ms: Math.min(...times[k]!), times_ms: times[k]!.map((t) => Math.round(t * 10) / 10) }));
+  const out = chosen.map((c, k) => ({ name: c.name, median_ms: median(times[k]), min_ms: Math.min(...times[k]), times_ms: times[k].map((t) => Math.round(t * 10) / 10) }));
   await p.close();
   console.log(JSON.stringify({ date: new Date().toISOString(), node: process.version, poolStartMs, load: [load0, loadavg()[0]], cases: out }, null, 2));
 }

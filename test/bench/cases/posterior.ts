@@ -35,7 +35,7 @@ function setup(kind: 'dense' | 'sparse', n: number, m: number) {
   for (let k = 0; k < m; k++) {
     const c = ((k + 0.5) * n) / m;
     for (let j = 0; j < n; j++) {
-      const u = (x[j]! - c) / width;
+      const u = (x[j] - c) / width;
       if (kind === 'dense' || Math.abs(u) < 3) G.data[k * n + j] = Math.exp(-0.5 * u * u);
     }
   }
@@ -86,7 +86,7 @@ export const cases: BenchCase[] = [
 
 function median(a: number[]): number {
   const s = [...a].sort((p, q) => p - q);
-  return s[Math.floor(s.length / 2)]!;
+  return s[Math.floor(s.length / 2)];
 }
 
 if (import.meta.url === `file://${process.argv[1]}`) {

@@ -21,7 +21,7 @@ function mapCase(id: string, method: 'auto' | 'eigen' = 'auto'): BenchCase {
     warmup: 0,
     setup: () => {
       const { problem, startPrior } = demoById(id).build();
-      const t = startPrior.terms[0]!;
+      const t = startPrior.terms[0];
       const l = termLength(t);
       return () =>
         evidenceMap(problem, startPrior, {

@@ -22,8 +22,8 @@ export function relErr(a: ArrayLike<number>, b: ArrayLike<number>): number {
   let num = 0;
   let den = 0;
   for (let i = 0; i < a.length; i++) {
-    num += (a[i]! - b[i]!) ** 2;
-    den += b[i]! ** 2;
+    num += (a[i] - b[i]) ** 2;
+    den += b[i] ** 2;
   }
   return Math.sqrt(num / den);
 }
@@ -78,14 +78,14 @@ export const COVARIANCE_CASES: readonly CovarianceCase[] = [
 
 /** `count` straight rays between seeded points on the left/right and top/bottom edges of a 2-D grid. */
 export function rayFan(grid: Grid, count: number, seed: number): { from: [number, number]; to: [number, number] }[] {
-  const [nx, ny] = [grid.shape[0]!, grid.shape[1]!];
-  const [dx, dy] = [grid.spacing[0]!, grid.spacing[1]!];
+  const [nx, ny] = [grid.shape[0], grid.shape[1]];
+  const [dx, dy] = [grid.spacing[0], grid.spacing[1]];
   const [x0, y0] = [-dx / 2, -dy / 2];
   const [w, h] = [nx * dx, ny * dy];
   const u = seededVector(2 * count, seed);
   return Array.from({ length: count }, (_, k) => {
-    const a = 0.5 + 0.5 * u[2 * k]!;
-    const b = 0.5 + 0.5 * u[2 * k + 1]!;
+    const a = 0.5 + 0.5 * u[2 * k];
+    const b = 0.5 + 0.5 * u[2 * k + 1];
     return k % 2 === 0
       ? { from: [x0, y0 + a * h] as [number, number], to: [x0 + w, y0 + b * h] as [number, number] }
       : { from: [x0 + a * w, y0] as [number, number], to: [x0 + b * w, y0 + h] as [number, number] };

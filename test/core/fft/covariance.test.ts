@@ -36,13 +36,13 @@ describe('FFT-path Cm·x equals dense Cm·x to 1e-10 relative', () => {
 describe('padding and path', () => {
   it('reports power-of-two padding ≥ 2n − 1 per axis', () => {
     const grid: Grid = { shape: [9, 7], spacing: [1, 1] };
-    const op = covarianceOperator(grid, COVARIANCE_CASES[6]!.prior);
+    const op = covarianceOperator(grid, COVARIANCE_CASES[6].prior);
     expect(op.padding).toEqual([32, 16]);
-    expect(covarianceOperator({ shape: [64], spacing: [1] }, COVARIANCE_CASES[0]!.prior).padding).toEqual([128]);
+    expect(covarianceOperator({ shape: [64], spacing: [1] }, COVARIANCE_CASES[0].prior).padding).toEqual([128]);
   });
 
   it('the dense path can be requested and agrees with the FFT path', () => {
-    const { grid, prior } = COVARIANCE_CASES[12]!;
+    const { grid, prior } = COVARIANCE_CASES[12];
     const dense = covarianceOperator(grid, prior, { path: 'dense' });
     expect(dense.path).toBe('dense');
     expect(dense.reason).toMatch(/requested/);
@@ -51,7 +51,7 @@ describe('padding and path', () => {
   });
 
   it('applyMany on an odd number of rows matches apply row by row', () => {
-    const { grid, prior } = COVARIANCE_CASES[9]!;
+    const { grid, prior } = COVARIANCE_CASES[9];
     const n = cellCount(grid);
     const op = covarianceOperator(grid, prior);
     const data = seededVector(3 * n, 8);
@@ -60,11 +60,11 @@ describe('padding and path', () => {
   });
 
   it('a 3-axis grid is not FFT-able and the reason says why', () => {
-    expect(nonStationaryReason({ shape: [2, 2, 2], spacing: [1, 1, 1] }, COVARIANCE_CASES[0]!.prior)).toMatch(/3 axes/);
+    expect(nonStationaryReason({ shape: [2, 2, 2], spacing: [1, 1, 1] }, COVARIANCE_CASES[0].prior)).toMatch(/3 axes/);
   });
 
   it('names the field for a vector of the wrong length', () => {
-    const { grid, prior } = COVARIANCE_CASES[0]!;
+    const { grid, prior } = COVARIANCE_CASES[0];
     expect(() => covarianceOperator(grid, prior).apply(new Float64Array(5))).toThrow(/x must be a vector of length 23/);
   });
 });

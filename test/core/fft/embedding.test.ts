@@ -28,20 +28,20 @@ function randomEven(px: number, py: number, seed: number): Float64Array {
 
 function fullSpectrum(a: Float64Array, px: number, py: number): { re: Float64Array; maxIm: number } {
   const buf = new Float64Array(2 * px * py);
-  for (let i = 0; i < a.length; i++) buf[2 * i] = a[i]!;
+  for (let i = 0; i < a.length; i++) buf[2 * i] = a[i];
   new Fft2(px, py).transform(buf);
   const re = new Float64Array(px * py);
   let maxIm = 0;
   for (let i = 0; i < re.length; i++) {
-    re[i] = buf[2 * i]!;
-    maxIm = Math.max(maxIm, Math.abs(buf[2 * i + 1]!));
+    re[i] = buf[2 * i];
+    maxIm = Math.max(maxIm, Math.abs(buf[2 * i + 1]));
   }
   return { re, maxIm };
 }
 
 function maxAbs(a: ArrayLike<number>): number {
   let m = 0;
-  for (let i = 0; i < a.length; i++) m = Math.max(m, Math.abs(a[i]!));
+  for (let i = 0; i < a.length; i++) m = Math.max(m, Math.abs(a[i]));
   return m;
 }
 
@@ -55,7 +55,7 @@ describe('evenRealSpectrum', () => {
     // The input really is even: the full transform is real (a check that the test input is valid).
     expect(maxIm).toBeLessThan(1e-12 * Math.max(1, scale));
     let worst = 0;
-    for (let i = 0; i < re.length; i++) worst = Math.max(worst, Math.abs(got[i]! - re[i]!));
+    for (let i = 0; i < re.length; i++) worst = Math.max(worst, Math.abs(got[i] - re[i]));
     expect(worst).toBeLessThanOrEqual(1e-13 * Math.max(1, scale));
   });
 
@@ -71,7 +71,7 @@ describe('evenRealSpectrum', () => {
       const got = evenRealSpectrum(base, px, py);
       const scale = maxAbs(re);
       let worst = 0;
-      for (let i = 0; i < re.length; i++) worst = Math.max(worst, Math.abs(got[i]! - re[i]!));
+      for (let i = 0; i < re.length; i++) worst = Math.max(worst, Math.abs(got[i] - re[i]));
       expect(worst).toBeLessThanOrEqual(1e-13 * scale);
     }
   });

@@ -68,8 +68,8 @@ function directDft2(x: Float64Array, px: number, py: number, inverse: boolean): 
       for (let jy = 0; jy < py; jy++) {
         for (let jx = 0; jx < px; jx++) {
           const a = sign * 2 * Math.PI * (((kx * jx) % px) / px + ((ky * jy) % py) / py);
-          const xr = x[2 * (jx + px * jy)]!;
-          const xi = x[2 * (jx + px * jy) + 1]!;
+          const xr = x[2 * (jx + px * jy)];
+          const xi = x[2 * (jx + px * jy) + 1];
           re += xr * Math.cos(a) - xi * Math.sin(a);
           im += xr * Math.sin(a) + xi * Math.cos(a);
         }

@@ -23,7 +23,7 @@ function whiten(x: Matrix, grid: Grid, prior: PriorSpec): Float64Array[] {
   const n = x.cols;
   return Array.from({ length: x.rows }, (_, r) => {
     const d = new Float64Array(n);
-    for (let i = 0; i < n; i++) d[i] = x.data[r * n + i]! - m0[i]!;
+    for (let i = 0; i < n; i++) d[i] = x.data[r * n + i] - m0[i];
     return solveLower(f.factor, d);
   });
 }
@@ -47,7 +47,7 @@ const STAT_CASES: { name: string; grid: Grid; prior: PriorSpec }[] = [
  */
 function expectWhite(w: readonly Float64Array[], count: number, n: number): void {
   let diag = 0;
-  for (const v of w) for (let i = 0; i < n; i++) diag += v[i]! * v[i]!;
+  for (const v of w) for (let i = 0; i < n; i++) diag += v[i] * v[i];
   const [dlo, dhi] = chi2Limits(count * n, ALPHA);
   expect(diag).toBeGreaterThan(dlo);
   expect(diag).toBeLessThan(dhi);
@@ -55,7 +55,7 @@ function expectWhite(w: readonly Float64Array[], count: number, n: number): void
   for (let i = 0; i < n; i++) {
     for (let j = i + 1; j < n; j++) {
       let sij = 0;
-      for (const v of w) sij += v[i]! * v[j]!;
+      for (const v of w) sij += v[i] * v[j];
       off += (sij * sij) / count;
     }
   }
@@ -76,7 +76,7 @@ describe('sample covariance of circulant-embedding realisations matches Cm', () 
   }
 
   it('single-field draws (odd count, P normals, Hermitian spectrum) pass the same χ² checks', () => {
-    const { grid, prior } = STAT_CASES[0]!;
+    const { grid, prior } = STAT_CASES[0];
     const sampler = circulantSampler(grid, prior);
     const count = 4000;
     const n = 30;
@@ -86,16 +86,16 @@ describe('sample covariance of circulant-embedding realisations matches Cm', () 
   });
 
   it('the two fields of one complex draw are uncorrelated: (K/2) Σ_ij X_ij² inside χ²(N²) limits', () => {
-    const { grid, prior } = STAT_CASES[0]!;
+    const { grid, prior } = STAT_CASES[0];
     const count = 4000;
     const w = whiten(circulantRealisations(grid, prior, count, 777).realisations, grid, prior);
-    const n = w[0]!.length;
+    const n = w[0].length;
     const pairs = count / 2;
     let stat = 0;
     for (let i = 0; i < n; i++) {
       for (let j = 0; j < n; j++) {
         let c = 0;
-        for (let p = 0; p < pairs; p++) c += w[2 * p]![i]! * w[2 * p + 1]![j]!;
+        for (let p = 0; p < pairs; p++) c += w[2 * p][i] * w[2 * p + 1][j];
         stat += (c * c) / pairs;
       }
     }
@@ -105,15 +105,15 @@ describe('sample covariance of circulant-embedding realisations matches Cm', () 
   });
 
   it('a wrong covariance is rejected by the same statistic (the test can fail)', () => {
-    const { grid, prior } = STAT_CASES[0]!;
+    const { grid, prior } = STAT_CASES[0];
     const longer: PriorSpec = { ...prior, terms: [{ kernel: 'matern', nu: 1.5, variance: 1.5, lengths: [3.6, 1.2], angle: 40 }] };
     const w = whiten(circulantRealisations(grid, longer, 4000, 12345).realisations, grid, prior);
-    const n = w[0]!.length;
+    const n = w[0].length;
     let off = 0;
     for (let i = 0; i < n; i++) {
       for (let j = i + 1; j < n; j++) {
         let sij = 0;
-        for (const v of w) sij += v[i]! * v[j]!;
+        for (const v of w) sij += v[i] * v[j];
         off += (sij * sij) / 4000;
       }
     }
@@ -122,7 +122,7 @@ describe('sample covariance of circulant-embedding realisations matches Cm', () 
 });
 
 describe('seeding', () => {
-  const { grid, prior } = STAT_CASES[0]!;
+  const { grid, prior } = STAT_CASES[0];
   it('same seed, same numbers; another seed, other numbers', () => {
     const a = circulantRealisations(grid, prior, 3, 42).realisations.data;
     expect(circulantRealisations(grid, prior, 3, 42).realisations.data).toEqual(a);
@@ -147,11 +147,11 @@ describe('padding growth', () => {
   it('gaussian: padding grows with the correlation length (Dietrich & Newsam 1997; Wood & Chan 1994)', () => {
     const grid: Grid = { shape: [32, 32], spacing: [1, 1] };
     const sizes = [1, 4, 6, 12].map((length) => nonNegativeEmbedding(grid, [{ kernel: 'gaussian', variance: 1, length }], { maxCells: 1 << 20 }));
-    expect(sizes[0]!.embedding.px).toBe(64); // short length: minimal embedding suffices
+    expect(sizes[0].embedding.px).toBe(64); // short length: minimal embedding suffices
     for (const s of sizes) expect(s.nonNegative).toBe(true);
-    for (let k = 1; k < sizes.length; k++) expect(sizes[k]!.embedding.px).toBeGreaterThanOrEqual(sizes[k - 1]!.embedding.px);
-    expect(sizes[2]!.embedding.px).toBeGreaterThan(64);
-    expect(sizes[3]!.embedding.px).toBeGreaterThan(sizes[2]!.embedding.px);
+    for (let k = 1; k < sizes.length; k++) expect(sizes[k].embedding.px).toBeGreaterThanOrEqual(sizes[k - 1].embedding.px);
+    expect(sizes[2].embedding.px).toBeGreaterThan(64);
+    expect(sizes[3].embedding.px).toBeGreaterThan(sizes[2].embedding.px);
     // Each doubling was needed: the size before the final one had a negative eigenvalue.
     for (const s of sizes) expect(s.tried.length).toBe(Math.log2(s.embedding.px / 64) + 1);
   });
@@ -159,7 +159,7 @@ describe('padding growth', () => {
   it('matern: longer lengths need at least as much padding (Graham et al. 2018)', () => {
     const grid: Grid = { shape: [24], spacing: [1] };
     const px = [2, 8, 32].map((length) => nonNegativeEmbedding(grid, [{ kernel: 'matern', nu: 2.5, variance: 1, length }], { maxCells: 1 << 16 }).embedding.px);
-    for (let k = 1; k < px.length; k++) expect(px[k]!).toBeGreaterThanOrEqual(px[k - 1]!);
+    for (let k = 1; k < px.length; k++) expect(px[k]).toBeGreaterThanOrEqual(px[k - 1]);
   });
 });
 

@@ -49,7 +49,7 @@ describe('computePosterior on the demos', () => {
       const b = dense.summary[k];
       const scale = Math.max(...Array.from(b, Math.abs));
       let d = 0;
-      for (let i = 0; i < a.length; i++) d = Math.max(d, Math.abs(a[i]! - b[i]!));
+      for (let i = 0; i < a.length; i++) d = Math.max(d, Math.abs(a[i] - b[i]));
       expect(d, k).toBeLessThanOrEqual(1e-10 * scale);
     }
     expect(Math.abs(auto.summary.logEvidence - dense.summary.logEvidence)).toBeLessThanOrEqual(1e-10 * Math.abs(dense.summary.logEvidence));

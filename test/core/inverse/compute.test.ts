@@ -39,7 +39,7 @@ describe('computePosterior', () => {
     expect(r.decision.path).toBe('fft');
     expect(r.threadsUsed).toBe(1);
     expect(partials).toHaveLength(1);
-    expect(Array.from(partials[0]!)).toEqual(Array.from(r.summary.mean));
+    expect(Array.from(partials[0])).toEqual(Array.from(r.summary.mean));
     for (const k of ['mean', 'std', 'predicted'] as const) expect(Array.from(r.summary[k])).toEqual(Array.from(s.summary[k]));
     expect(r.summary.logEvidence).toBe(s.summary.logEvidence);
   });

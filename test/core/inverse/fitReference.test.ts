@@ -64,11 +64,11 @@ describe(`χ² of the posterior mean against its reference, ${R} simulated data 
     expect(below10).toBeLessThanOrEqual(limits(0.1)[1]);
   });
   it('the mean of χ² over the replicates is M − tr R within 4 standard errors (standard deviation √(2 Σ λ²), derived)', () => {
-    const e = summaries[0]!.fitReference!.expected;
+    const e = summaries[0].fitReference!.expected;
     const mean = summaries.reduce((a, s) => a + s.chi2, 0) / R;
     const sd = Math.sqrt(weightsAtPrior().variance);
     expect(Math.abs(mean - e)).toBeLessThanOrEqual((4 * sd) / Math.sqrt(R));
-    expect(Math.abs(e - (25 - summaries[0]!.resolutionTrace))).toBeLessThanOrEqual(1e-10 * 25);
+    expect(Math.abs(e - (25 - summaries[0].resolutionTrace))).toBeLessThanOrEqual(1e-10 * 25);
   });
 });
 
@@ -95,7 +95,7 @@ describe('discrepancy rule by simulation: the expected-value form recovers the t
     const above = classical.filter((d) => d.scale > 1).length;
     expect(above).toBeGreaterThanOrEqual(binomialQuantile(RD, p, 0.0005));
     expect(above).toBeLessThanOrEqual(binomialQuantile(RD, p, 0.9995));
-    const median = (v: number[]): number => [...v].sort((a, b) => a - b)[Math.floor(v.length / 2)]!;
+    const median = (v: number[]): number => [...v].sort((a, b) => a - b)[Math.floor(v.length / 2)];
     expect(median(classical.map((d) => d.scale))).toBeLessThan(0.5);
     // Measured (seed 20261204): median 0.92 for the expected-value form, 0.16 for the classical one;
     // single estimates of the expected-value form spread widely (5–95%: 0.19–323), since χ² barely
@@ -105,10 +105,10 @@ describe('discrepancy rule by simulation: the expected-value form recovers the t
 
 /** The reference distribution of χ² at the prior as given (weights eig(L⁻¹ Cd L⁻ᵀ); the same for every replicate). */
 function weightsAtPrior(): WeightedChiSquare {
-  const s = preparePosterior(problems[0]!, prior);
+  const s = preparePosterior(problems[0], prior);
   const m = s.L.rows;
   const S = matrix(m, m);
-  for (let k = 0; k < m; k++) S.data[k * m + k] = sigma[k]!;
+  for (let k = 0; k < m; k++) S.data[k * m + k] = sigma[k];
   return new WeightedChiSquare(fitWeights(s.L, S));
 }
 
@@ -137,7 +137,7 @@ describe('the built-in demos are not flagged', () => {
     const a = f.fitReference!;
     const b = dn.fitReference!;
     expect(Math.abs(a.expected - b.expected)).toBeLessThanOrEqual(1e-9 * b.expected);
-    for (const k of [0, 1]) expect(Math.abs(a.interval95[k]! - b.interval95[k]!)).toBeLessThanOrEqual(1e-9 * b.interval95[k]!);
+    for (const k of [0, 1]) expect(Math.abs(a.interval95[k] - b.interval95[k])).toBeLessThanOrEqual(1e-9 * b.interval95[k]);
     expect(Math.abs(a.upperTail - b.upperTail)).toBeLessThanOrEqual(1e-9);
   });
 });

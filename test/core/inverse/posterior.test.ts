@@ -56,7 +56,7 @@ function windows(): Operator {
   const { x } = cellCoordinates(grid);
   const G = matrix(10, 40);
   for (let k = 0; k < 10; k++) {
-    for (let j = 0; j < 40; j++) G.data[k * 40 + j] = Math.exp(-0.5 * ((x[j]! - (2 + 4 * k)) / 1.5) ** 2);
+    for (let j = 0; j < 40; j++) G.data[k * 40 + j] = Math.exp(-0.5 * ((x[j] - (2 + 4 * k)) / 1.5) ** 2);
   }
   return { kind: 'dense', matrix: G };
 }
@@ -74,7 +74,7 @@ const Lm = (() => {
 
 function drawTruth(z: Float64Array): Float64Array {
   const out = Float64Array.from(m0);
-  for (let i = 0; i < 40; i++) for (let k = 0; k <= i; k++) out[i] += Lm.data[i * 40 + k]! * z[k]!;
+  for (let i = 0; i < 40; i++) for (let k = 0; k <= i; k++) out[i] += Lm.data[i * 40 + k] * z[k];
   return out;
 }
 
@@ -90,14 +90,14 @@ describe('calibration over seeded replicates (truth from the prior, data = G tru
   for (let rep = 0; rep < R; rep++) {
     const truth = drawTruth(normals.subarray(rep * 50, rep * 50 + 40));
     const e = normals.subarray(rep * 50 + 40, rep * 50 + 50);
-    const values = applyOperator(G, truth).map((v, k) => v + SIGMA * e[k]!);
+    const values = applyOperator(G, truth).map((v, k) => v + SIGMA * e[k]);
     const problem: Problem = { grid, operator: G, data: { values, sigma } };
     const s = posteriorSummary(preparePosteriorFromCovariance(problem, Cm, m0));
     // One cell per replicate (cycling), so the Bernoulli trials are independent.
     const cell = (rep * 7) % 40;
-    const dev = Math.abs(truth[cell]! - s.mean[cell]!);
-    if (dev <= Z68 * s.std[cell]!) in68++;
-    if (dev <= Z95 * s.std[cell]!) in95++;
+    const dev = Math.abs(truth[cell] - s.mean[cell]);
+    if (dev <= Z68 * s.std[cell]) in68++;
+    if (dev <= Z95 * s.std[cell]) in95++;
     // χ² of the residuals at the truth: Σ e² ~ χ²_10.
     const chiTruth = e.reduce((a, v) => a + v * v, 0);
     // NIST/SEMATECH e-Handbook §1.3.6.7.4, df = 10: upper 5% point 18.30704, lower 2.5% point 3.24697.
@@ -154,10 +154,10 @@ describe.each(['diagonal', 'full'] as const)('posterior realisations, %s Cd', (c
     let total = 0;
     const ybar = new Float64Array(n);
     for (let q = 0; q < S; q++) {
-      const y = solveLower(fc.factor, draws.data.subarray(q * n, (q + 1) * n).map((v, i) => v - s.mean[i]!));
+      const y = solveLower(fc.factor, draws.data.subarray(q * n, (q + 1) * n).map((v, i) => v - s.mean[i]));
       for (let i = 0; i < n; i++) {
-        total += y[i]! * y[i]!;
-        ybar[i] += y[i]! / S;
+        total += y[i] * y[i];
+        ybar[i] += y[i] / S;
       }
     }
     expect(total).toBeGreaterThan(chiSquareQuantile(0.0005, S * n));
@@ -173,10 +173,10 @@ describe.each(['diagonal', 'full'] as const)('posterior realisations, %s Cd', (c
     const hi = chiSquareQuantile(1 - p, S - 1);
     for (let i = 0; i < n; i++) {
       let mean = 0;
-      for (let q = 0; q < S; q++) mean += draws.data[q * n + i]! / S;
+      for (let q = 0; q < S; q++) mean += draws.data[q * n + i] / S;
       let ss = 0;
-      for (let q = 0; q < S; q++) ss += (draws.data[q * n + i]! - mean) ** 2;
-      const stat = ss / (s.std[i]! * s.std[i]!);
+      for (let q = 0; q < S; q++) ss += (draws.data[q * n + i] - mean) ** 2;
+      const stat = ss / (s.std[i] * s.std[i]);
       expect(stat).toBeGreaterThan(lo);
       expect(stat).toBeLessThan(hi);
     }
@@ -185,15 +185,15 @@ describe.each(['diagonal', 'full'] as const)('posterior realisations, %s Cd', (c
     // Fisher's z of a sample correlation is ≈ N(atanh ρ, 1/(S−3)) (Fisher 1921; common practice).
     for (const [i, j] of [[5, 7], [12, 30], [20, 21]] as const) {
       let mi = 0, mj = 0;
-      for (let q = 0; q < S; q++) { mi += draws.data[q * n + i]! / S; mj += draws.data[q * n + j]! / S; }
+      for (let q = 0; q < S; q++) { mi += draws.data[q * n + i] / S; mj += draws.data[q * n + j] / S; }
       let sii = 0, sjj = 0, sij = 0;
       for (let q = 0; q < S; q++) {
-        const a = draws.data[q * n + i]! - mi;
-        const b = draws.data[q * n + j]! - mj;
+        const a = draws.data[q * n + i] - mi;
+        const b = draws.data[q * n + j] - mj;
         sii += a * a; sjj += b * b; sij += a * b;
       }
       const rSample = sij / Math.sqrt(sii * sjj);
-      const rTrue = C.data[i * n + j]! / Math.sqrt(C.data[i * n + i]! * C.data[j * n + j]!);
+      const rTrue = C.data[i * n + j] / Math.sqrt(C.data[i * n + i] * C.data[j * n + j]);
       expect(Math.abs(Math.atanh(rSample) - Math.atanh(rTrue))).toBeLessThan(3.2905 / Math.sqrt(S - 3));
     }
   });
@@ -212,7 +212,7 @@ describe('special cases and edge behaviour', () => {
     const st = preparePosteriorFromCovariance(problem, fromRows([[tau2]]), [mu]);
     const s = posteriorSummary(st);
     expect(s.mean[0]).toBeCloseTo((tau2 * d + s2 * mu) / (tau2 + s2), 14);
-    expect(s.std[0]! ** 2).toBeCloseTo((tau2 * s2) / (tau2 + s2), 14);
+    expect(s.std[0] ** 2).toBeCloseTo((tau2 * s2) / (tau2 + s2), 14);
     const v = tau2 + s2;
     expect(s.logEvidence).toBeCloseTo(-0.5 * (d - mu) ** 2 / v - 0.5 * Math.log(2 * Math.PI * v), 14);
     expect(s.resolutionTrace).toBeCloseTo(tau2 / (tau2 + s2), 14);

@@ -70,15 +70,15 @@ describe('structured posterior equals the dense posterior', () => {
   it('dense G (same rays as a dense matrix) gives the same result as sparse G', () => {
     const sparse = rayProblem(11, 5);
     const dense: Problem = { ...sparse, operator: { kind: 'dense', matrix: sparseToDense(sparse.operator.matrix as never) } };
-    const a = structuredPosteriorSummary(prepareStructuredPosterior(sparse, PRIORS[0]!.prior));
-    const b = structuredPosteriorSummary(prepareStructuredPosterior(dense, PRIORS[0]!.prior));
+    const a = structuredPosteriorSummary(prepareStructuredPosterior(sparse, PRIORS[0].prior));
+    const b = structuredPosteriorSummary(prepareStructuredPosterior(dense, PRIORS[0].prior));
     expect(relErr(a.mean, b.mean)).toBeLessThan(1e-12);
     expect(relErr(a.std, b.std)).toBeLessThan(1e-12);
   });
 
   it('an odd number of data (last row transformed alone) matches dense', () => {
     const problem = rayProblem(1, 8);
-    expectSameSummary(structuredPosteriorSummary(prepareStructuredPosterior(problem, PRIORS[1]!.prior)), posteriorSummary(preparePosterior(problem, PRIORS[1]!.prior)));
+    expectSameSummary(structuredPosteriorSummary(prepareStructuredPosterior(problem, PRIORS[1].prior)), posteriorSummary(preparePosterior(problem, PRIORS[1].prior)));
   });
 });
 
@@ -86,16 +86,16 @@ describe('row-spectrum cache', () => {
   it('a kernel change reuses the spectra and matches a fresh run; a profile change does not reuse them', () => {
     const problem = rayProblem(9, 21);
     const sp = structuredProblem(problem);
-    const first = prepareStructuredPosterior(sp, PRIORS[0]!.prior);
+    const first = prepareStructuredPosterior(sp, PRIORS[0].prior);
     expect(first.spectraCached).toBe(false);
-    const changed: PriorSpec = { ...PRIORS[0]!.prior, terms: [{ kernel: 'gaussian', variance: 3, length: 2.5 }] };
+    const changed: PriorSpec = { ...PRIORS[0].prior, terms: [{ kernel: 'gaussian', variance: 3, length: 2.5 }] };
     const warm = prepareStructuredPosterior(sp, changed);
     expect(warm.spectraCached).toBe(true);
     const cold = prepareStructuredPosterior(problem, changed);
     expect(warm.mean).toEqual(cold.mean);
-    const withProfile = prepareStructuredPosterior(sp, PRIORS[2]!.prior);
+    const withProfile = prepareStructuredPosterior(sp, PRIORS[2].prior);
     expect(withProfile.spectraCached).toBe(false);
-    expectSameSummary(structuredPosteriorSummary(withProfile), posteriorSummary(preparePosterior(problem, PRIORS[2]!.prior)));
+    expectSameSummary(structuredPosteriorSummary(withProfile), posteriorSummary(preparePosterior(problem, PRIORS[2].prior)));
   });
 
   it('1-D grid, dense G: cached run equals the dense posterior after a prior change', () => {
@@ -114,8 +114,8 @@ describe('row-spectrum cache', () => {
   it('with a zero cache budget nothing is kept and results are unchanged', () => {
     const problem = rayProblem(9, 22);
     const sp = structuredProblem(problem, { cacheBytes: 0 });
-    const a = prepareStructuredPosterior(sp, PRIORS[1]!.prior);
-    const b = prepareStructuredPosterior(sp, PRIORS[1]!.prior);
+    const a = prepareStructuredPosterior(sp, PRIORS[1].prior);
+    const b = prepareStructuredPosterior(sp, PRIORS[1].prior);
     expect(sp.cache).toBeNull();
     expect(b.spectraCached).toBe(false);
     expect(b.mean).toEqual(a.mean);
@@ -124,11 +124,11 @@ describe('row-spectrum cache', () => {
 
 describe('progressive std by column blocks', () => {
   it('block widths 1, 7 and 256 give bit-identical standard deviations', () => {
-    const state = prepareStructuredPosterior(rayProblem(13, 31), PRIORS[0]!.prior);
+    const state = prepareStructuredPosterior(rayProblem(13, 31), PRIORS[0].prior);
     const ref = structuredPosteriorStd(state, 256);
     expect(structuredPosteriorStd(state, 7)).toEqual(ref);
     expect(structuredPosteriorStd(state, 1)).toEqual(ref);
-    expect(ref.every((v, i) => v > 0 && v <= Math.sqrt(state.priorVariance[i]!) * (1 + 1e-12))).toBe(true);
+    expect(ref.every((v, i) => v > 0 && v <= Math.sqrt(state.priorVariance[i]) * (1 + 1e-12))).toBe(true);
   });
 });
 
@@ -136,25 +136,25 @@ describe('path choice and bad input', () => {
   it('one route rule (FFT_MIN_CELLS): auto stays dense on this grid below 128 cells, fft on request', () => {
     const p = rayProblem(5, 40);
     expect(cellCount(p.grid)).toBeLessThan(FFT_MIN_CELLS);
-    expect(computePosteriorSerial(p, PRIORS[0]!.prior).summary.path).toBe('dense');
-    expect(computePosteriorSerial(p, PRIORS[0]!.prior, 'fft').summary.path).toBe('fft');
+    expect(computePosteriorSerial(p, PRIORS[0].prior).summary.path).toBe('dense');
+    expect(computePosteriorSerial(p, PRIORS[0].prior, 'fft').summary.path).toBe('fft');
   });
 
   it('names the field when the data length does not match the operator', () => {
     const p = rayProblem(5, 41);
     const bad: Problem = { ...p, data: { ...p.data, values: new Float64Array(4) } };
-    expect(() => prepareStructuredPosterior(bad, PRIORS[0]!.prior)).toThrow(/problem\.data\.values must be 5 values/);
+    expect(() => prepareStructuredPosterior(bad, PRIORS[0].prior)).toThrow(/problem\.data\.values must be 5 values/);
   });
 
   it('names the field when the operator has the wrong number of columns', () => {
     const p = rayProblem(5, 42);
     const g = denseToSparse(matrix(5, n - 1));
-    expect(() => prepareStructuredPosterior({ ...p, operator: { kind: 'sparse', matrix: g } }, PRIORS[0]!.prior)).toThrow(/problem\.operator must be a matrix with 108 columns/);
+    expect(() => prepareStructuredPosterior({ ...p, operator: { kind: 'sparse', matrix: g } }, PRIORS[0].prior)).toThrow(/problem\.operator must be a matrix with 108 columns/);
   });
 
   it('reports a K that does not factor (σ = 0 and G = 0)', () => {
     const p = rayProblem(3, 43);
     const zero: Problem = { ...p, operator: { kind: 'sparse', matrix: denseToSparse(matrix(3, n)) }, data: { values: new Float64Array(3), covariance: matrix(3, 3) } };
-    expect(() => prepareStructuredPosterior(zero, PRIORS[0]!.prior)).toThrow(/not positive definite/);
+    expect(() => prepareStructuredPosterior(zero, PRIORS[0].prior)).toThrow(/not positive definite/);
   });
 });

@@ -49,7 +49,7 @@ describe('structuredResolutionRow equals the dense resolutionRow', () => {
     }
   }
   it('checks the cell', () => {
-    const st = prepareStructuredPosterior(problem(false), PRIORS[0]!.prior);
+    const st = prepareStructuredPosterior(problem(false), PRIORS[0].prior);
     expect(() => structuredResolutionRow(st, 108)).toThrow('cell must be an integer in [0, 107], got 108');
     expect(() => structuredResolutionRow(st, 1.5)).toThrow(/cell must be an integer/);
   });
@@ -59,8 +59,8 @@ function columnStats(x: Matrix): { mean: Float64Array; variance: Float64Array } 
   const { rows, cols, data } = x;
   const mean = new Float64Array(cols);
   const variance = new Float64Array(cols);
-  for (let r = 0; r < rows; r++) for (let i = 0; i < cols; i++) mean[i] += data[r * cols + i]! / rows;
-  for (let r = 0; r < rows; r++) for (let i = 0; i < cols; i++) variance[i] += (data[r * cols + i]! - mean[i]!) ** 2 / (rows - 1);
+  for (let r = 0; r < rows; r++) for (let i = 0; i < cols; i++) mean[i] += data[r * cols + i] / rows;
+  for (let r = 0; r < rows; r++) for (let i = 0; i < cols; i++) variance[i] += (data[r * cols + i] - mean[i]) ** 2 / (rows - 1);
   return { mean, variance };
 }
 
@@ -87,12 +87,12 @@ describe('structuredPosteriorDraws', () => {
         const { mean, variance } = columnStats(r.realisations);
         let movedByData = 0;
         for (let i = 0; i < n; i++) {
-          const sd = std[i]!;
-          expect(Math.abs(mean[i]! - st.mean[i]!)).toBeLessThan((zLimit * sd) / Math.sqrt(S));
-          const ratio = variance[i]! / (sd * sd);
+          const sd = std[i];
+          expect(Math.abs(mean[i] - st.mean[i])).toBeLessThan((zLimit * sd) / Math.sqrt(S));
+          const ratio = variance[i] / (sd * sd);
           expect(ratio).toBeGreaterThan(varLo);
           expect(ratio).toBeLessThan(varHi);
-          if (sd * sd < 0.7 * st.priorVariance[i]!) movedByData++;
+          if (sd * sd < 0.7 * st.priorVariance[i]) movedByData++;
         }
         // The data reduce the variance in many cells, so matching the posterior (not the prior) matters.
         expect(movedByData).toBeGreaterThan(10);
@@ -102,19 +102,19 @@ describe('structuredPosteriorDraws', () => {
 
   it('cross-covariance: a random projection vᵀx has the variance vᵀ C̃ v (C̃ from the dense posterior)', () => {
     const p = problem(false);
-    const prior = PRIORS[0]!.prior;
+    const prior = PRIORS[0].prior;
     const draws = structuredPosteriorDraws(prepareStructuredPosterior(p, prior), S, 77).realisations;
     const C = posteriorCovariance(preparePosterior(p, prior));
     const v = seededVector(n, 12);
     let want = 0;
-    for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) want += v[i]! * C.data[i * n + j]! * v[j]!;
+    for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) want += v[i] * C.data[i * n + j] * v[j];
     const proj = matrix(S, 1);
     for (let s = 0; s < S; s++) {
       let a = 0;
-      for (let i = 0; i < n; i++) a += v[i]! * draws.data[s * n + i]!;
+      for (let i = 0; i < n; i++) a += v[i] * draws.data[s * n + i];
       proj.data[s] = a;
     }
-    const ratio = columnStats(proj).variance[0]! / want;
+    const ratio = columnStats(proj).variance[0] / want;
     // One test at level 1e-3.
     expect(ratio).toBeGreaterThan(chiSquareQuantile(5e-4, S - 1) / (S - 1));
     expect(ratio).toBeLessThan(chiSquareQuantile(1 - 5e-4, S - 1) / (S - 1));
@@ -122,20 +122,20 @@ describe('structuredPosteriorDraws', () => {
 
   it('agrees statistically with the dense path draws (two-sample mean and log-variance tests)', () => {
     const p = problem(true);
-    const prior = PRIORS[1]!.prior;
+    const prior = PRIORS[1].prior;
     const a = columnStats(structuredPosteriorDraws(prepareStructuredPosterior(p, prior), S, 5).realisations);
     const b = columnStats(posteriorRealisations(preparePosterior(p, prior), S, 6));
     for (let i = 0; i < n; i++) {
       // x̄a − x̄b ~ N(0, 2σ²/S); σ² estimated by the pooled variance (S large).
-      const pooled = (a.variance[i]! + b.variance[i]!) / 2;
-      expect(Math.abs(a.mean[i]! - b.mean[i]!)).toBeLessThan(zLimit * Math.sqrt((2 * pooled) / S));
+      const pooled = (a.variance[i] + b.variance[i]) / 2;
+      expect(Math.abs(a.mean[i] - b.mean[i])).toBeLessThan(zLimit * Math.sqrt((2 * pooled) / S));
       // log s²: variance ≈ 2/(S − 1) each (delta method on χ²_{S−1}/(S−1)).
-      expect(Math.abs(Math.log(a.variance[i]! / b.variance[i]!))).toBeLessThan(zLimit * Math.sqrt(4 / (S - 1)));
+      expect(Math.abs(Math.log(a.variance[i] / b.variance[i]))).toBeLessThan(zLimit * Math.sqrt(4 / (S - 1)));
     }
   });
 
   it('same seed, same numbers; another seed, other numbers; argument checks', () => {
-    const st = prepareStructuredPosterior(problem(false), PRIORS[0]!.prior);
+    const st = prepareStructuredPosterior(problem(false), PRIORS[0].prior);
     const x = structuredPosteriorDraws(st, 3, 11).realisations;
     expect(Array.from(x.data)).toEqual(Array.from(structuredPosteriorDraws(st, 3, 11).realisations.data));
     expect(Array.from(x.data)).not.toEqual(Array.from(structuredPosteriorDraws(st, 3, 12).realisations.data));

@@ -166,7 +166,7 @@ describe('parseCsv properties on mutated input (seeded)', () => {
     const bases = ['a,b,c\n1,2,3\n4.5,-6e2,7\n"8",9,10\n', '1;2\r3;4\r', '"1",2\r\n3,4\r\n# x\n5,6\n'];
     let parsed = 0;
     for (let trial = 0; trial < 1500; trial++) {
-      const text = mutateText(r, bases[trial % bases.length]!);
+      const text = mutateText(r, bases[trial % bases.length]);
       let t: ReturnType<typeof parseCsv>;
       try {
         t = parseCsv('m.csv', text);
@@ -179,7 +179,7 @@ describe('parseCsv properties on mutated input (seeded)', () => {
       const lines = text.split(/\r\n|\r|\n/);
       expect(t.rowLines.length).toBe(t.matrix.rows);
       for (let i = 0; i < t.matrix.rows; i++) {
-        const raw = lines[t.rowLines[i]! - 1]!;
+        const raw = lines[t.rowLines[i] - 1];
         if (raw.includes('"')) continue;
         const cells = raw.split(t.delimiter).map((c) => Number(c.trim()));
         expect(cells).toEqual(Array.from(t.matrix.data.subarray(i * t.matrix.cols, (i + 1) * t.matrix.cols)));

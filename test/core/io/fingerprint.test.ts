@@ -13,10 +13,10 @@ describe('problemFingerprint', () => {
   it('changes with one datum, one σ, the spacing or the operator', () => {
     const f = problemFingerprint(p);
     const values = Float64Array.from(p.data.values);
-    values[3] = values[3]! + 1e-12;
+    values[3] = values[3] + 1e-12;
     expect(problemFingerprint({ ...p, data: { ...p.data, values } })).not.toBe(f);
     const sigma = Float64Array.from(p.data.sigma!);
-    sigma[0] = sigma[0]! * 2;
+    sigma[0] = sigma[0] * 2;
     expect(problemFingerprint({ ...p, data: { ...p.data, sigma } })).not.toBe(f);
     expect(problemFingerprint({ ...p, grid: { ...p.grid, spacing: p.grid.spacing.map((s) => s * 2) } })).not.toBe(f);
     const other = demoById('potential-field').build().problem;

@@ -76,7 +76,7 @@ describe('data geometry in problem files', () => {
     // The same rays on a grid whose shape was swapped to [1, 4] with 10 m cells: the section is 10 m wide,
     // 40 m deep, so the ray to x = 30 m still crosses it, but with the origin moved 100 m away all miss.
     const moved = parseProblemFile('p.json', twoD({ sources, receivers }, { origin: [105, 5] }));
-    expect(moved.warnings[0]!.message).toContain('3 of 3 paths (data.sources → data.receivers, rows 0, 1 and 2) miss the grid entirely (it spans x 100 to 120 m');
+    expect(moved.warnings[0].message).toContain('3 of 3 paths (data.sources → data.receivers, rows 0, 1 and 2) miss the grid entirely (it spans x 100 to 120 m');
   });
 
   it.each([
@@ -104,7 +104,7 @@ describe('the geometry CSV of the pieces form', () => {
   it('reads x, x,y (columns in any order, any case) and sx,sy,rx,ry', () => {
     expect(rowsOf(parseGeometryCsv('g.csv', 'x\n0.5\n1.5\n-3\n', grid1, 3).geometry)).toEqual({ positions: [[0.5], [1.5], [-3]] });
     expect(rowsOf(parseGeometryCsv('g.csv', 'Y,X\n-1,5\n-1,15\n-1,25.5\n', grid2, 3).geometry)).toEqual({ positions: [[5, -1], [15, -1], [25.5, -1]] });
-    const csv = 'sx,sy,rx,ry\n' + SOURCES.map((s, k) => [...s, ...RECEIVERS[k]!].join(',')).join('\n');
+    const csv = 'sx,sy,rx,ry\n' + SOURCES.map((s, k) => [...s, ...RECEIVERS[k]].join(',')).join('\n');
     const r = parseGeometryCsv('g.csv', csv, grid2, 3);
     expect(r.warnings).toEqual([]);
     expect(rowsOf(r.geometry)).toEqual({ sources: SOURCES, receivers: RECEIVERS });
@@ -165,20 +165,20 @@ describe('the geometry CSV of the pieces form', () => {
 describe('the built-in demos carry their geometry', () => {
   it('the gravity stations 50 m apart 1 m above the section, the crosshole ray ends in the holes, the borehole sensors', () => {
     const built = Object.fromEntries(DEMOS.map((d) => [d.id, d.build().problem]));
-    const grav = built['potential-field']!.data.geometry!;
+    const grav = built['potential-field'].data.geometry!;
     expect(grav.kind).toBe('points');
     const pos = toRows((grav as { positions: import('../../../src/core/linalg/matrix.ts').Matrix }).positions);
     expect(pos.length).toBe(40);
-    expect(pos[1]![0]! - pos[0]![0]!).toBe(50);
+    expect(pos[1][0] - pos[0][0]).toBe(50);
     expect(pos.every((p) => p[1] === -1)).toBe(true);
-    const cross = built['crosshole-tomography']!.data.geometry!;
+    const cross = built['crosshole-tomography'].data.geometry!;
     expect(cross.kind).toBe('paths');
     if (cross.kind === 'paths') {
       expect(cross.sources.rows).toBe(256);
       expect(toRows(cross.sources).every((s) => s[0] === 0)).toBe(true);
       expect(toRows(cross.receivers).every((s) => s[0] === 16)).toBe(true);
     }
-    const bore = built['borehole-log']!.data.geometry!;
+    const bore = built['borehole-log'].data.geometry!;
     expect(bore.kind === 'points' && bore.positions.cols === 1 && bore.positions.rows === 50).toBe(true);
     // Every demo writes a problem file that reads back with its geometry and no warning.
     for (const p of Object.values(built)) {

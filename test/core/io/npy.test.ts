@@ -33,7 +33,7 @@ describe('parseNpy', () => {
     [3, '>f8', false, true],
   ] as const)('version %i, %s, fortran=%s (2 × 3)', (version, descr, little, fortran) => {
     // C order: row-major items; Fortran order: the same matrix column-major.
-    const items = fortran ? [values[0]!, values[3]!, values[1]!, values[4]!, values[2]!, values[5]!] : values;
+    const items = fortran ? [values[0], values[3], values[1], values[4], values[2], values[5]] : values;
     const header = `{'descr': '${descr}', 'fortran_order': ${fortran ? 'True' : 'False'}, 'shape': (2, 3), }`;
     const a = parseNpy('a.npy', build(version, header, items, 'f8', little));
     expect(a.shape).toEqual([2, 3]);
@@ -78,7 +78,7 @@ describe('writeNpy', () => {
   it('writes the documented layout: version 1.0, header padded to 64 bytes, little-endian <f8', () => {
     const b = writeNpyMatrix(matrix(2, 2, Float64Array.of(1, 2, 3, 4)));
     expect(Array.from(b.subarray(0, 8))).toEqual([0x93, 0x4e, 0x55, 0x4d, 0x50, 0x59, 1, 0]);
-    const headerLength = b[8]! + 256 * b[9]!;
+    const headerLength = b[8] + 256 * b[9];
     expect((10 + headerLength) % 64).toBe(0);
     const header = new TextDecoder().decode(b.subarray(10, 10 + headerLength));
     expect(header.trimEnd()).toBe("{'descr': '<f8', 'fortran_order': False, 'shape': (2, 2), }");

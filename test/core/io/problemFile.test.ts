@@ -77,7 +77,7 @@ describe('parseProblemFile', () => {
   it('warns about unknown fields and keeps going', () => {
     const { warnings } = parseProblemFile('p.json', problem({ author: 'x', grid: { shape: [3], spacing: [2], colour: 1 } }, { weights: [1] }));
     expect(warnings.map((w) => w.field)).toEqual(['author', 'grid.colour', 'data.weights']);
-    expect(warnings[0]!.message).toBe('p.json: unknown field author ignored (known here: kind, version, title, grid, operator, data, truth, quantity)');
+    expect(warnings[0].message).toBe('p.json: unknown field author ignored (known here: kind, version, title, grid, operator, data, truth, quantity)');
   });
 
   // The bad-input cases, one line each: file, field, expectation.
@@ -172,7 +172,7 @@ describe('parseProblemFile on mutated input (seeded)', () => {
     let parsed = 0;
     let refused = 0;
     for (let trial = 0; trial < 3000; trial++) {
-      const t = mutateText(r, texts[trial % 3]!);
+      const t = mutateText(r, texts[trial % 3]);
       try {
         parseProblemFile('m.json', t, { readSibling: read });
         parsed++;

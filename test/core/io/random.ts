@@ -31,10 +31,10 @@ export function mutateText(r: () => number, text: string): string {
         s = s.slice(0, p) + s.slice(p + len);
         break;
       case 1:
-        s = s.slice(0, p) + TEXT_PIECES[randInt(r, TEXT_PIECES.length)]! + s.slice(p);
+        s = s.slice(0, p) + TEXT_PIECES[randInt(r, TEXT_PIECES.length)] + s.slice(p);
         break;
       case 2:
-        s = s.slice(0, p) + TEXT_PIECES[randInt(r, TEXT_PIECES.length)]! + s.slice(p + len);
+        s = s.slice(0, p) + TEXT_PIECES[randInt(r, TEXT_PIECES.length)] + s.slice(p + len);
         break;
       default:
         s = s.slice(0, p) + s.slice(p, p + len) + s.slice(p);

@@ -36,7 +36,7 @@ describe.each(CASES)('$name', ({ kernel, nu }) => {
     }
   });
   it('is non-increasing in h (allowing 4 ulp of rounding between neighbours)', () => {
-    for (let i = 1; i < HS.length; i++) expect(rho(HS[i]!)).toBeLessThanOrEqual(rho(HS[i - 1]!) * (1 + 4 * EPS));
+    for (let i = 1; i < HS.length; i++) expect(rho(HS[i])).toBeLessThanOrEqual(rho(HS[i - 1]) * (1 + 4 * EPS));
   });
   it('practicalRange r has ρ(r) = 0.05 and brackets it: ρ(r(1 − 1e-9)) > 0.05 > ρ(r(1 + 1e-9))', () => {
     const r = practicalRange(kernel, nu);

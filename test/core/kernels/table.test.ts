@@ -49,8 +49,8 @@ describe('the kernel table', () => {
     });
 
     it('ρ is non-increasing and falls below the practical-range level', () => {
-      for (let i = 1; i < hs.length; i++) expect(rho(hs[i]!)).toBeLessThanOrEqual(rho(hs[i - 1]!) * (1 + 4 * EPS));
-      expect(rho(hs[hs.length - 1]!)).toBeLessThan(PRACTICAL_RANGE_LEVEL);
+      for (let i = 1; i < hs.length; i++) expect(rho(hs[i])).toBeLessThanOrEqual(rho(hs[i - 1]) * (1 + 4 * EPS));
+      expect(rho(hs[hs.length - 1])).toBeLessThan(PRACTICAL_RANGE_LEVEL);
     });
 
     it(`the practical range is where ρ = ${PRACTICAL_RANGE_LEVEL} (the project's definition)`, () => {
@@ -100,7 +100,7 @@ describe('the kernel table', () => {
       } else {
         expect(parsePriorFile('p.json', file({ kernel, variance: 1, length: 2 })).warnings).toEqual([]);
         const { prior, warnings } = parsePriorFile('p.json', file({ kernel, variance: 1, length: 2, nu: 2.5 }));
-        expect(prior.terms[0]!.nu).toBe(2.5);
+        expect(prior.terms[0].nu).toBe(2.5);
         expect(warnings.map((w) => w.message).join()).toContain(`only ${kernelsTaking('nu').join(', ')} has a smoothness`);
       }
     });

@@ -25,7 +25,7 @@ describe('cholesky (small cases worked by hand)', () => {
       [2, 0, 0, 1, 2, 0, 0.2, 0.4, Math.sqrt(2.8)].map((v) => expect.closeTo(v, 14)),
     );
     const back = matmul(r.factor, transpose(r.factor));
-    back.data.forEach((v, k) => expect(v).toBeCloseTo(A.data[k]!, 14));
+    back.data.forEach((v, k) => expect(v).toBeCloseTo(A.data[k], 14));
     const x = choleskySolve(r.factor, [1, 2, 3]);
     const ax = matvec(A, x);
     expect(Array.from(ax)).toEqual([1, 2, 3].map((v) => expect.closeTo(v, 12)));
@@ -82,8 +82,8 @@ describe('triangular solves', () => {
     const X2 = solveLowerTransposeMatrix(L, B);
     const X3 = choleskySolveMatrix(L, B);
     for (let j = 0; j < 6; j++) {
-      const b = Array.from({ length: n }, (_, i) => B.data[i * 6 + j]!);
-      const col = (X: typeof X1) => Array.from({ length: n }, (_, i) => X.data[i * 6 + j]!);
+      const b = Array.from({ length: n }, (_, i) => B.data[i * 6 + j]);
+      const col = (X: typeof X1) => Array.from({ length: n }, (_, i) => X.data[i * 6 + j]);
       expect(relError(col(X1), solveLower(L, b))).toBeLessThan(1e-12);
       expect(relError(col(X2), solveLowerTranspose(L, b))).toBeLessThan(1e-12);
       expect(relError(col(X3), choleskySolve(L, b))).toBeLessThan(1e-12);

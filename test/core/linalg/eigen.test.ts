@@ -45,10 +45,10 @@ describe('symmetric eigenvalues', () => {
     const { d, e } = tridiagonalise(a);
     let tr = 0, fr = 0, trT = 0, frT = 0;
     for (let i = 0; i < n; i++) {
-      tr += a.data[i * n + i]!;
-      trT += d[i]!;
-      frT += d[i]! ** 2 + 2 * e[i]! ** 2;
-      for (let j = 0; j < n; j++) fr += a.data[i * n + j]! ** 2;
+      tr += a.data[i * n + i];
+      trT += d[i];
+      frT += d[i] ** 2 + 2 * e[i] ** 2;
+      for (let j = 0; j < n; j++) fr += a.data[i * n + j] ** 2;
     }
     expect(trT).toBeCloseTo(tr, 11);
     expect(frT).toBeCloseTo(fr, 10);
@@ -68,12 +68,12 @@ describe('symmetric eigenvalues', () => {
     const { values, vectors } = symmetricEigen(a);
     let res = 0, orth = 0;
     for (let j = 0; j < n; j++) {
-      const v = Float64Array.from({ length: n }, (_, i) => vectors.data[i * n + j]!);
+      const v = Float64Array.from({ length: n }, (_, i) => vectors.data[i * n + j]);
       const av = matvec(a, v);
-      for (let i = 0; i < n; i++) res = Math.max(res, Math.abs(av[i]! - values[j]! * v[i]!));
+      for (let i = 0; i < n; i++) res = Math.max(res, Math.abs(av[i] - values[j] * v[i]));
       for (let k = 0; k < n; k++) {
         let s = 0;
-        for (let i = 0; i < n; i++) s += vectors.data[i * n + j]! * vectors.data[i * n + k]!;
+        for (let i = 0; i < n; i++) s += vectors.data[i * n + j] * vectors.data[i * n + k];
         orth = Math.max(orth, Math.abs(s - (j === k ? 1 : 0)));
       }
     }
@@ -95,8 +95,8 @@ describe('symmetric eigenvalues', () => {
 describe('lanczosExtremes', () => {
   it('stops early on an invariant subspace and is then exact (three distinct eigenvalues)', () => {
     const n = 50;
-    const diag = Float64Array.from({ length: n }, (_, i) => [0.5, 2, 9][i % 3]!);
-    const r = lanczosExtremes((x) => x.map((v, i) => v * diag[i]!), n, { iterations: 20 });
+    const diag = Float64Array.from({ length: n }, (_, i) => [0.5, 2, 9][i % 3]);
+    const r = lanczosExtremes((x) => x.map((v, i) => v * diag[i]), n, { iterations: 20 });
     expect(r.iterations).toBe(3);
     expect(r.min).toBeCloseTo(0.5, 12);
     expect(r.max).toBeCloseTo(9, 12);

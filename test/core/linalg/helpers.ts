@@ -46,7 +46,7 @@ export function randomSpd(n: number, seed: number): Matrix {
   for (let i = 0; i < n; i++) {
     for (let j = 0; j <= i; j++) {
       let s = 0;
-      for (let k = 0; k < n; k++) s += b.data[i * n + k]! * b.data[j * n + k]!;
+      for (let k = 0; k < n; k++) s += b.data[i * n + k] * b.data[j * n + k];
       s /= n;
       if (i === j) s += 1;
       a.data[i * n + j] = s;
@@ -68,10 +68,10 @@ export function poisonUpper(a: Matrix): Matrix {
 export function relError(x: ArrayLike<number>, y: ArrayLike<number>): number {
   if (x.length !== y.length) return Number.POSITIVE_INFINITY;
   let scale = 1;
-  for (let i = 0; i < y.length; i++) scale = Math.max(scale, Math.abs(y[i]!));
+  for (let i = 0; i < y.length; i++) scale = Math.max(scale, Math.abs(y[i]));
   let err = 0;
   for (let i = 0; i < x.length; i++) {
-    const d = Math.abs(x[i]! - y[i]!);
+    const d = Math.abs(x[i] - y[i]);
     err = Math.max(err, Number.isNaN(d) ? Number.POSITIVE_INFINITY : d);
   }
   return err / scale;

@@ -42,12 +42,12 @@ describe('Cholesky against ml-matrix', () => {
     expect(ml.isPositiveDefinite()).toBe(true);
     const lm = ml.lowerTriangularMatrix;
     const ev = mlEigen(a).values;
-    const kappa = ev[n - 1]! / ev[0]!;
+    const kappa = ev[n - 1] / ev[0];
     let diff = 0;
     let scale = 0;
     for (let i = 0; i < n; i++) {
       for (let j = 0; j < n; j++) {
-        const x = ours.factor.data[i * n + j]!;
+        const x = ours.factor.data[i * n + j];
         diff = Math.max(diff, Math.abs(x - lm.get(i, j)));
         scale = Math.max(scale, Math.abs(x));
       }
@@ -67,19 +67,19 @@ describe('symmetric eigen-solver against ml-matrix', () => {
   it.each([2, 17, 64, 97, 160])('n = %i (indefinite): eigenvalues within n·ε·‖A‖, eigenvectors within ‖E‖ / gap', (n) => {
     const a = randomSymmetric(n, 2000 + n);
     const ref = mlEigen(a);
-    const norm = Math.max(Math.abs(ref.values[0]!), Math.abs(ref.values[n - 1]!));
+    const norm = Math.max(Math.abs(ref.values[0]), Math.abs(ref.values[n - 1]));
     const bound = 2 * C * n * EPS * norm;
     const values = symmetricEigenvalues(a);
-    values.forEach((v, j) => expect(Math.abs(v - ref.values[j]!)).toBeLessThanOrEqual(bound));
+    values.forEach((v, j) => expect(Math.abs(v - ref.values[j])).toBeLessThanOrEqual(bound));
     const full = symmetricEigen(a);
-    full.values.forEach((v, j) => expect(Math.abs(v - ref.values[j]!)).toBeLessThanOrEqual(bound));
+    full.values.forEach((v, j) => expect(Math.abs(v - ref.values[j])).toBeLessThanOrEqual(bound));
     for (let j = 0; j < n; j++) {
-      const gap = Math.min(j > 0 ? ref.values[j]! - ref.values[j - 1]! : Infinity, j < n - 1 ? ref.values[j + 1]! - ref.values[j]! : Infinity);
+      const gap = Math.min(j > 0 ? ref.values[j] - ref.values[j - 1] : Infinity, j < n - 1 ? ref.values[j + 1] - ref.values[j] : Infinity);
       // Up to sign, ‖v − v̂‖ = 2 sin(θ/2) ≤ θ ≤ (π/2) sin θ, and sin θ ≤ ‖E‖ / gap.
       let dot = 0;
-      for (let i = 0; i < n; i++) dot += full.vectors.data[i * n + j]! * ref.vectors[j]![i]!;
+      for (let i = 0; i < n; i++) dot += full.vectors.data[i * n + j] * ref.vectors[j][i];
       let dist = 0;
-      for (let i = 0; i < n; i++) dist += (full.vectors.data[i * n + j]! - Math.sign(dot) * ref.vectors[j]![i]!) ** 2;
+      for (let i = 0; i < n; i++) dist += (full.vectors.data[i * n + j] - Math.sign(dot) * ref.vectors[j][i]) ** 2;
       expect(Math.sqrt(dist)).toBeLessThanOrEqual(Math.min(2, ((Math.PI / 2) * bound) / gap));
     }
   });

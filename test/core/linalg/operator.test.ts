@@ -99,7 +99,7 @@ describe.each([
         b: toJson(bRect),
       },
     ],
-  }).results[0]!;
+  }).results[0];
   const TOL = 1e-12;
 
   for (const g of [sparse, dense]) {
@@ -153,10 +153,10 @@ describe.each([
     for (let i = 0; i < m; i++) {
       const cols = ref.dense.data.slice(i * n, (i + 1) * n).flatMap((gij, j) => (gij !== 0 ? [j] : []));
       // Row 0's duplicate may cancel to a stored zero; the extents follow the stored entries.
-      const storedCols = ri.flatMap((r, q) => (r === i ? [ci[q]!] : []));
+      const storedCols = ri.flatMap((r, q) => (r === i ? [ci[q]] : []));
       if (i === 2) expect([s.first[i], s.last[i]]).toEqual([0, -1]);
       else expect([s.first[i], s.last[i]]).toEqual([Math.min(...storedCols), Math.max(...storedCols)]);
-      if (cols.length > 0) expect(s.first[i]!).toBeLessThanOrEqual(cols[0]!);
+      if (cols.length > 0) expect(s.first[i]).toBeLessThanOrEqual(cols[0]);
     }
     const d = operatorRowExtents(dense);
     expect(Array.from(d.first)).toEqual(new Array(m).fill(0));

@@ -18,7 +18,7 @@ function naive(a: Matrix, b: Matrix): Matrix {
   for (let i = 0; i < a.rows; i++)
     for (let j = 0; j < b.cols; j++) {
       let s = 0;
-      for (let p = 0; p < a.cols; p++) s += a.data[i * a.cols + p]! * b.data[p * b.cols + j]!;
+      for (let p = 0; p < a.cols; p++) s += a.data[i * a.cols + p] * b.data[p * b.cols + j];
       c.data[i * b.cols + j] = s;
     }
   return c;
@@ -52,7 +52,7 @@ describe('dense products', () => {
       const f2 = naive(g, transposeOf(bt));
       for (let i = 0; i < m; i++)
         for (let j = 0; j <= i; j++) {
-          expect(k.data[i * m + j]).toBeCloseTo(f2.data[i * m + j]!, 12);
+          expect(k.data[i * m + j]).toBeCloseTo(f2.data[i * m + j], 12);
           expect(k.data[j * m + i]).toBe(k.data[i * m + j]);
         }
     }

@@ -30,9 +30,9 @@ describe('columnRanges', () => {
     [5, 3],
   ])('n = %i in %i parts: contiguous, covering, starts aligned to VARIANCE_BLOCK', (n, parts) => {
     const r = columnRanges(n, parts);
-    expect(r[0]![0]).toBe(0);
-    expect(r[r.length - 1]![1]).toBe(n);
-    for (let k = 1; k < r.length; k++) expect(r[k]![0]).toBe(r[k - 1]![1]);
+    expect(r[0][0]).toBe(0);
+    expect(r[r.length - 1][1]).toBe(n);
+    for (let k = 1; k < r.length; k++) expect(r[k][0]).toBe(r[k - 1][1]);
     for (const [c0, c1] of r) {
       expect(c0 % VARIANCE_BLOCK).toBe(0);
       expect(c1).toBeGreaterThan(c0);
@@ -56,7 +56,7 @@ describe('split standard deviations', () => {
   const single = structuredPosteriorStd(state);
 
   it.each([0, 1])('pool %i: bit-identical to the single-thread run', async (k) => {
-    const split = await parallelPosteriorStd(state, pools[k]!);
+    const split = await parallelPosteriorStd(state, pools[k]);
     expect(split.length).toBe(single.length);
     const differ = Array.from(split).filter((v, i) => !Object.is(v, single[i]));
     expect(differ).toEqual([]);
@@ -66,20 +66,20 @@ describe('split standard deviations', () => {
     const n = state.Bt.cols;
     const cuts = [0, 7, 130, 131, 300, n];
     const v = new Float64Array(n);
-    for (let k = 0; k + 1 < cuts.length; k++) v.set(runVarianceTask(varianceTask(state.L, state.Bt, state.priorVariance, cuts[k]!, cuts[k + 1]!)), cuts[k]!);
-    for (let i = 0; i < n; i++) expect(Object.is(Math.sqrt(v[i]!), single[i])).toBe(true);
+    for (let k = 0; k + 1 < cuts.length; k++) v.set(runVarianceTask(varianceTask(state.L, state.Bt, state.priorVariance, cuts[k], cuts[k + 1])), cuts[k]);
+    for (let i = 0; i < n; i++) expect(Object.is(Math.sqrt(v[i]), single[i])).toBe(true);
   });
 
   it('64² with M = 400 (the benchmark problem), split anyway, matches the dense scipy route to 1e-10', async () => {
     const p = benchProblem(64);
     const st = prepareStructuredPosterior(p, prior(64));
-    const split = await parallelPosteriorStd(st, pools[0]!);
+    const split = await parallelPosteriorStd(st, pools[0]);
     const one = structuredPosteriorStd(st);
     expect(Array.from(split).every((v, i) => Object.is(v, one[i]))).toBe(true);
     const out = { problems: [denseScipyRoute(p, 8)] };
-    const ref = out.problems[0]!;
+    const ref = out.problems[0];
     let d = 0;
-    for (let i = 0; i < split.length; i++) d = Math.max(d, Math.abs(split[i]! - ref.std[i]!));
+    for (let i = 0; i < split.length; i++) d = Math.max(d, Math.abs(split[i] - ref.std[i]));
     expect(d).toBeLessThanOrEqual(1e-10 * Math.max(...ref.std));
   }, 60_000);
 

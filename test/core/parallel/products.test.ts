@@ -98,10 +98,10 @@ describe('prepareStructuredPosteriorParallel: bit-identical to one thread', () =
       const prior = priorOf(n);
       const changed: PriorSpec = { ...prior, terms: [{ kernel: 'matern', nu: 1.5, variance: 2, length: 5 }] };
       const sp = structuredProblem(problem);
-      const cold = await prepareStructuredPosteriorParallel(sp, prior, pools[k]!, opts);
+      const cold = await prepareStructuredPosteriorParallel(sp, prior, pools[k], opts);
       expect(cold.spectraCached).toBe(false);
       expect(differences(cold, prepareStructuredPosterior(problem, prior))).toEqual(none);
-      const warm = await prepareStructuredPosteriorParallel(sp, changed, pools[k]!, opts);
+      const warm = await prepareStructuredPosteriorParallel(sp, changed, pools[k], opts);
       expect(warm.spectraCached).toBe(true);
       expect(differences(warm, prepareStructuredPosterior(problem, changed))).toEqual(none);
     });
@@ -111,7 +111,7 @@ describe('prepareStructuredPosteriorParallel: bit-identical to one thread', () =
     const problem = sparse2d();
     const sp = structuredProblem(problem, { cacheBytes: 0 });
     for (const prior of [matern(3), matern(4)]) {
-      const st = await prepareStructuredPosteriorParallel(sp, prior, pools[0]!);
+      const st = await prepareStructuredPosteriorParallel(sp, prior, pools[0]);
       expect(st.spectraCached).toBe(false);
       expect(differences(st, prepareStructuredPosterior(problem, prior))).toEqual(none);
     }
@@ -120,9 +120,9 @@ describe('prepareStructuredPosteriorParallel: bit-identical to one thread', () =
   it('a profile change recomputes the spectra (the cache key includes the profile)', async () => {
     const problem = sparse2d();
     const sp = structuredProblem(problem);
-    await prepareStructuredPosteriorParallel(sp, withProfile(matern(3), 480), pools[0]!);
+    await prepareStructuredPosteriorParallel(sp, withProfile(matern(3), 480), pools[0]);
     const other = { ...matern(3), stdProfile: Array.from({ length: 480 }, (_, i) => 1 + (i % 3) / 10) };
-    const st = await prepareStructuredPosteriorParallel(sp, other, pools[0]!);
+    const st = await prepareStructuredPosteriorParallel(sp, other, pools[0]);
     expect(st.spectraCached).toBe(false);
     expect(differences(st, prepareStructuredPosterior(problem, other))).toEqual(none);
   });
@@ -131,8 +131,8 @@ describe('prepareStructuredPosteriorParallel: bit-identical to one thread', () =
     const a = structuredProblem(sparse2d());
     const b = structuredProblem(dense1d());
     for (let r = 0; r < 2; r++) {
-      const sa = await prepareStructuredPosteriorParallel(a, matern(3), pools[0]!);
-      const sb = await prepareStructuredPosteriorParallel(b, matern(4), pools[0]!);
+      const sa = await prepareStructuredPosteriorParallel(a, matern(3), pools[0]);
+      const sb = await prepareStructuredPosteriorParallel(b, matern(4), pools[0]);
       expect(differences(sa, prepareStructuredPosterior(a.problem, matern(3)))).toEqual(none);
       expect(differences(sb, prepareStructuredPosterior(b.problem, matern(4)))).toEqual(none);
     }
@@ -141,15 +141,15 @@ describe('prepareStructuredPosteriorParallel: bit-identical to one thread', () =
   it('64² with M = 400 (the benchmark problem): identical to one thread, and the mean matches the dense scipy route to 1e-10', async () => {
     const p = benchProblem(64);
     const prior: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, length: 8 }] };
-    const st = await prepareStructuredPosteriorParallel(p, prior, pools[0]!);
+    const st = await prepareStructuredPosteriorParallel(p, prior, pools[0]);
     expect(differences(st, prepareStructuredPosterior(p, prior))).toEqual(none);
     const out = { problems: [denseScipyRoute(p, 8)] };
-    const ref = out.problems[0]!.mean;
+    const ref = out.problems[0].mean;
     let d = 0;
     let scale = 0;
     for (let i = 0; i < ref.length; i++) {
-      d = Math.max(d, Math.abs(st.mean[i]! - ref[i]!));
-      scale = Math.max(scale, Math.abs(ref[i]!));
+      d = Math.max(d, Math.abs(st.mean[i] - ref[i]));
+      scale = Math.max(scale, Math.abs(ref[i]));
     }
     expect(d).toBeLessThanOrEqual(1e-10 * scale);
   }, 60_000);
@@ -165,19 +165,19 @@ describe('errors', () => {
       single = (e as Error).message;
     }
     expect(single).not.toBe('');
-    await expect(prepareStructuredPosteriorParallel(sparse2d(), bad, pools[0]!)).rejects.toThrow(single);
+    await expect(prepareStructuredPosteriorParallel(sparse2d(), bad, pools[0])).rejects.toThrow(single);
   });
 
   it('a worker that fails rejects with a message naming the task kind and the cause', async () => {
     const p = sparse2d();
     const task: ProductsTask = { kind: 'products', token: 987654, grid: p.grid, prior: matern(3), operator: null, rows: Int32Array.of(0, 1), cacheBytes: 0, out: null };
-    await expect(pools[0]!.runProducts(task, 1)).rejects.toThrow('products worker: products task: this thread holds no operator for problem token 987654');
+    await expect(pools[0].runProducts(task, 1)).rejects.toThrow('products worker: products task: this thread holds no operator for problem token 987654');
   });
 
   it('a port outside the pool is refused', async () => {
     const p = sparse2d();
     const task: ProductsTask = { kind: 'products', token: 1, grid: p.grid, prior: matern(3), operator: p.operator, rows: Int32Array.of(0), cacheBytes: 0, out: null };
-    await expect(pools[0]!.runProducts(task, 2)).rejects.toThrow('products task: port must be an integer in 0 … 1, got 2');
+    await expect(pools[0].runProducts(task, 2)).rejects.toThrow('products task: port must be an integer in 0 … 1, got 2');
   });
 
   it('a closed pool rejects the split', async () => {
@@ -195,9 +195,9 @@ describe('pieces', () => {
     [7, 7],
   ])('pairRanges(%i, %i): contiguous, covering, nearly equal, no empty range', (pairs, parts) => {
     const r = pairRanges(pairs, parts);
-    expect(r[0]![0]).toBe(0);
-    expect(r[r.length - 1]![1]).toBe(pairs);
-    for (let k = 1; k < r.length; k++) expect(r[k]![0]).toBe(r[k - 1]![1]);
+    expect(r[0][0]).toBe(0);
+    expect(r[r.length - 1][1]).toBe(pairs);
+    for (let k = 1; k < r.length; k++) expect(r[k][0]).toBe(r[k - 1][1]);
     const sizes = r.map(([a, b]) => b - a);
     expect(Math.min(...sizes)).toBeGreaterThan(0);
     expect(Math.max(...sizes) - Math.min(...sizes)).toBeLessThanOrEqual(1);
@@ -216,9 +216,9 @@ describe('pieces', () => {
     const bt = new Float64Array(37 * 480);
     const state = new ProductsThreadState();
     for (let k = 0; k + 1 < cuts.length; k++) {
-      const rows = order.slice(cuts[k]!, cuts[k + 1]!);
+      const rows = order.slice(cuts[k], cuts[k + 1]);
       const r = runProductsTask({ kind: 'products', token: 5, grid: problem.grid, prior, operator: problem.operator, rows, cacheBytes: 0, out: null }, state);
-      for (let i = 0; i < rows.length; i++) bt.set(r.rows!.subarray(i * 480, (i + 1) * 480), rows[i]! * 480);
+      for (let i = 0; i < rows.length; i++) bt.set(r.rows!.subarray(i * 480, (i + 1) * 480), rows[i] * 480);
     }
     expect(bt.reduce((c, v, i) => c + (Object.is(v, one.Bt.data[i]) ? 0 : 1), 0)).toBe(0);
   });

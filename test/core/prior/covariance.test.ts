@@ -29,19 +29,19 @@ describe('covarianceMatrix structure', () => {
     const a = covarianceMatrix(g2, aniso([4, 1.5], 90));
     const b = covarianceMatrix(g2, aniso([1.5, 4], 0));
     // cos(π/2) ≈ 6e-17 in floating point, so equality holds to round-off, not bit for bit.
-    a.data.forEach((v, k) => expect(Math.abs(v - b.data[k]!)).toBeLessThan(1e-14));
+    a.data.forEach((v, k) => expect(Math.abs(v - b.data[k])).toBeLessThan(1e-14));
     // …and differs from the unrotated one (the test could fail if angle were ignored).
     const c = covarianceMatrix(g2, aniso([4, 1.5], 0));
-    expect(Math.max(...a.data.map((v, k) => Math.abs(v - c.data[k]!)))).toBeGreaterThan(0.1);
+    expect(Math.max(...a.data.map((v, k) => Math.abs(v - c.data[k])))).toBeGreaterThan(0.1);
   });
 
   it('angle 180° is the identity rotation, equal lengths are isotropic', () => {
     const a = covarianceMatrix(g2, aniso([4, 1.5], 180));
     const b = covarianceMatrix(g2, aniso([4, 1.5], 0));
-    a.data.forEach((v, k) => expect(Math.abs(v - b.data[k]!)).toBeLessThan(1e-14));
+    a.data.forEach((v, k) => expect(Math.abs(v - b.data[k])).toBeLessThan(1e-14));
     const iso = covarianceMatrix(g2, { mean: { constant: 0 }, terms: [{ kernel: 'gaussian', variance: 1.3, length: 2 }] });
     const eq = covarianceMatrix(g2, aniso([2, 2], 63));
-    iso.data.forEach((v, k) => expect(Math.abs(v - eq.data[k]!)).toBeLessThan(1e-14));
+    iso.data.forEach((v, k) => expect(Math.abs(v - eq.data[k])).toBeLessThan(1e-14));
   });
 
   it('a pure nugget prior is nugget·I', () => {
@@ -69,7 +69,7 @@ describe('covarianceMatrix structure', () => {
     const x = Float64Array.from({ length: 54 }, (_, i) => (i % 7) - 3);
     const y1 = covarianceApply(g2, p)(x);
     const y2 = covarianceApply(g2, p, c)(x);
-    y1.forEach((y, i) => expect(y).toBeCloseTo(y2[i]!, 12));
+    y1.forEach((y, i) => expect(y).toBeCloseTo(y2[i], 12));
   });
 
   it('trend mean uses absolute coordinates (origin included)', () => {

@@ -64,7 +64,7 @@ const agreeCases: { name: string; grid: Grid; prior: PriorSpec }[] = [
 
 describe('diagnoseStructured agrees with the dense route', () => {
   it.each(agreeCases.map((c, k) => [c.name, k] as const))('%s', (_n, k) => {
-    const { grid, prior } = agreeCases[k]!;
+    const { grid, prior } = agreeCases[k];
     const s = diagnoseStructured(grid, prior);
     const d = diagnosePrior(grid, prior);
     expect(d.eigenvalueMethod).toBe('exact');

@@ -7,7 +7,7 @@ import type { Grid } from '../../../src/core/grid/grid.ts';
 const g1: Grid = { shape: [20], spacing: [1] };
 const g2: Grid = { shape: [4, 5], spacing: [1, 1] };
 const ok: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length: 2 }] };
-const term = (t: object): PriorSpec => ({ ...ok, terms: [{ ...ok.terms[0]!, ...t } as PriorSpec['terms'][number]] });
+const term = (t: object): PriorSpec => ({ ...ok, terms: [{ ...ok.terms[0], ...t } as PriorSpec['terms'][number]] });
 const bad = (p: unknown) => p as PriorSpec;
 
 // [description, grid, prior, field path, fragment of the expectation]

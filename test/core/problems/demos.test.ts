@@ -46,7 +46,7 @@ describe('demo problems', () => {
     expect(f.ok).toBe(true);
     if (!f.ok) return;
     const m0 = meanVector(problem.grid, truthPrior);
-    const z = solveLower(f.factor, problem.truth!.map((v, i) => v - m0[i]!));
+    const z = solveLower(f.factor, problem.truth!.map((v, i) => v - m0[i]));
     const n = z.length;
     const sz = z.reduce((s, v) => s + v * v, 0);
     expect(sz).toBeGreaterThan(chiSquareQuantile(0.0005, n));
@@ -54,7 +54,7 @@ describe('demo problems', () => {
     const pred = applyOperator(problem.operator, problem.truth!);
     const m = pred.length;
     let se = 0;
-    for (let k = 0; k < m; k++) se += ((problem.data.values[k]! - pred[k]!) / problem.data.sigma![k]!) ** 2;
+    for (let k = 0; k < m; k++) se += ((problem.data.values[k] - pred[k]) / problem.data.sigma![k]) ** 2;
     expect(se).toBeGreaterThan(chiSquareQuantile(0.0005, m));
     expect(se).toBeLessThan(chiSquareQuantile(0.9995, m));
   });

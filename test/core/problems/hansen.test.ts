@@ -14,9 +14,9 @@ describe('deriv2', () => {
     const x = [0.096225, 0.2886751, 0.4811252];
     const b = [-0.0151465, -0.0347479, -0.0222743];
     const p = deriv2(3);
-    A.flat().forEach((v, k) => expect(Math.abs(p.A.data[k]! - v)).toBeLessThan(6e-8));
-    x.forEach((v, i) => expect(Math.abs(p.x[i]! - v)).toBeLessThan(6e-8));
-    b.forEach((v, i) => expect(Math.abs(p.b[i]! - v)).toBeLessThan(6e-8));
+    A.flat().forEach((v, k) => expect(Math.abs(p.A.data[k] - v)).toBeLessThan(6e-8));
+    x.forEach((v, i) => expect(Math.abs(p.x[i] - v)).toBeLessThan(6e-8));
+    b.forEach((v, i) => expect(Math.abs(p.b[i] - v)).toBeLessThan(6e-8));
   });
   it('is symmetric', () => {
     const { A } = deriv2(17);
@@ -48,7 +48,7 @@ describe('gravity', () => {
     const { A } = gravity(n);
     // K(s, s) = d / d³ = 1/d² = 16 for d = 0.25 (Hansen 1994 kernel at zero offset).
     for (let i = 0; i < n; i++) expect(A.data[i * n + i]).toBeCloseTo(16 / n, 13);
-    for (let i = 1; i < n; i++) for (let j = 1; j < n; j++) expect(A.data[i * n + j]).toBeCloseTo(A.data[(i - 1) * n + j - 1]!, 13);
+    for (let i = 1; i < n; i++) for (let j = 1; j < n; j++) expect(A.data[i * n + j]).toBeCloseTo(A.data[(i - 1) * n + j - 1], 13);
   });
   it('rejects non-integer sizes', () => {
     expect(() => gravity(2.5)).toThrow('gravity(n): n must be a positive integer, got 2.5');

@@ -52,8 +52,8 @@ describe('gravityOperator', () => {
     const G = gravityOperator(grid, [[15, -1]]);
     if (G.kind !== 'dense') throw new Error('expected a dense operator');
     const g = G.matrix;
-    const col = [1, 4, 7, 10].map((j) => g.data[j]!);
-    for (let k = 1; k < col.length; k++) expect(col[k]!).toBeLessThan(col[k - 1]!);
+    const col = [1, 4, 7, 10].map((j) => g.data[j]);
+    for (let k = 1; k < col.length; k++) expect(col[k]).toBeLessThan(col[k - 1]);
     expect(() => gravityOperator(grid, [[15, 3]])).toThrow('stations[0].z must be a depth above the grid top 0, got 3');
   });
 });

@@ -39,16 +39,16 @@ function checkMoments(grid: Grid, prior: PriorSpec, count: number, seed: number)
   let worst = 0;
   for (let i = 0; i < n; i++) {
     let s = 0;
-    for (let r = 0; r < count; r++) s += x.data[r * n + i]!;
-    const se = Math.sqrt(c.data[i * n + i]! / count);
-    worst = Math.max(worst, Math.abs(s / count - m0[i]!) / se);
+    for (let r = 0; r < count; r++) s += x.data[r * n + i];
+    const se = Math.sqrt(c.data[i * n + i] / count);
+    worst = Math.max(worst, Math.abs(s / count - m0[i]) / se);
   }
   for (let i = 0; i < n; i++) {
     for (let j = 0; j <= i; j++) {
       let s = 0;
-      for (let r = 0; r < count; r++) s += (x.data[r * n + i]! - m0[i]!) * (x.data[r * n + j]! - m0[j]!);
-      const cij = c.data[i * n + j]!;
-      const se = Math.sqrt((c.data[i * n + i]! * c.data[j * n + j]! + cij * cij) / count);
+      for (let r = 0; r < count; r++) s += (x.data[r * n + i] - m0[i]) * (x.data[r * n + j] - m0[j]);
+      const cij = c.data[i * n + j];
+      const se = Math.sqrt((c.data[i * n + i] * c.data[j * n + j] + cij * cij) / count);
       worst = Math.max(worst, Math.abs(s / count - cij) / se);
     }
   }

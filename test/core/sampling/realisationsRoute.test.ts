@@ -43,7 +43,7 @@ describe('priorRealisations route', () => {
     const n = 65 * 64;
     for (const cell of [0, 2080]) {
       let s = 0;
-      for (let k = 0; k < K; k++) s += (r.realisations.data[k * n + cell]! - 1) ** 2;
+      for (let k = 0; k < K; k++) s += (r.realisations.data[k * n + cell] - 1) ** 2;
       const q = s / (2 + 0.01);
       expect(q).toBeGreaterThan(chiSquareQuantile(0.0005, K));
       expect(q).toBeLessThan(chiSquareQuantile(0.9995, K));
@@ -56,7 +56,7 @@ describe('priorRealisations route', () => {
     const b = priorRealisations(grid, prior, 2, 11); // from the kept sampler
     expect(Array.from(b.data)).toEqual(Array.from(a.data));
     expect(Array.from(a.data)).toEqual(Array.from(circulantRealisations(grid, prior, 2, 11).realisations.data));
-    const longer: PriorSpec = { ...prior, terms: [patchTerm(prior.terms[0]!, { length: 6 })] };
+    const longer: PriorSpec = { ...prior, terms: [patchTerm(prior.terms[0], { length: 6 })] };
     const c = priorRealisations(grid, longer, 2, 11);
     expect(Array.from(c.data)).toEqual(Array.from(circulantRealisations(grid, longer, 2, 11).realisations.data));
     expect(Array.from(c.data)).not.toEqual(Array.from(a.data));

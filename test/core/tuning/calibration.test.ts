@@ -22,7 +22,7 @@ describe('calibration with the truth drawn from the inversion prior', () => {
   it('ranks of one cell are uniform on 0…9 (χ²₉ below its 0.999 quantile)', () => {
     for (const c of [3, 17]) {
       const counts = new Float64Array(10);
-      for (let r = 0; r < R; r++) counts[res.ranks![r * 30 + c]!]++;
+      for (let r = 0; r < R; r++) counts[res.ranks![r * 30 + c]]++;
       const e = R / 10;
       const x2 = counts.reduce((s, o) => s + (o - e) ** 2 / e, 0);
       expect(x2).toBeLessThan(chiSquareQuantile(0.999, 9));
@@ -48,8 +48,8 @@ describe('calibration cross-table', () => {
   const narrow = scalePrior(prior, 1 / 16);
   const table = calibrationTable(problem, [prior, narrow], { replicates: 60, draws: 4, seed: 99 });
   it('the diagonal is near nominal; truth from the wide prior inverted with a 16× narrower one under-covers', () => {
-    expect(table.results[0]![0]!.coverage68).toBeGreaterThan(0.6);
-    expect(table.results[1]![1]!.coverage68).toBeGreaterThan(0.6);
+    expect(table.results[0][0].coverage68).toBeGreaterThan(0.6);
+    expect(table.results[1][1].coverage68).toBeGreaterThan(0.6);
     // Posterior std with the narrow prior is far too small for truths of the wide one.
     expect(table.coverage68[0 * 2 + 1]).toBeLessThan(0.45);
     // The other way round the bands are too wide: over-coverage.

@@ -35,7 +35,7 @@ describe.each(cases)('calibration on the FFT route: %s', (_name, problem, route,
     const limit = chiSquareQuantile(1 - 0.001 / 2, 9);
     for (const c of [cells[1], cells[3]]) {
       const counts = new Float64Array(10);
-      for (let r = 0; r < R; r++) counts[res.ranks![r * n + c]!]++;
+      for (let r = 0; r < R; r++) counts[res.ranks![r * n + c]]++;
       const e = R / 10;
       const chi2 = counts.reduce((s, k) => s + ((k - e) * (k - e)) / e, 0);
       expect(chi2).toBeLessThan(limit);
@@ -49,7 +49,7 @@ describe.each(cases)('calibration on the FFT route: %s', (_name, problem, route,
 
 it('a prior 16× too narrow under-covers on the FFT route (the test can fail)', () => {
   const problem = rayProblem(43, 14, 12, 20, prior, 0.05);
-  const narrow: PriorSpec = { ...prior, terms: [{ ...prior.terms[0]!, variance: prior.terms[0]!.variance / 16 }] };
+  const narrow: PriorSpec = { ...prior, terms: [{ ...prior.terms[0], variance: prior.terms[0].variance / 16 }] };
   const res = calibrate(problem, prior, narrow, { replicates: 60, draws: 4, seed: 7, route: 'fft' });
   expect(res.coverage95).toBeLessThan(0.8);
 });

@@ -31,13 +31,13 @@ function dataCovariance(p: Problem, pr: PriorSpec): { K: Matrix; r: Float64Array
   for (let a = 0; a < m; a++) {
     for (let b = 0; b < m; b++) {
       let s = 0;
-      for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) s += g.data[a * n + i]! * c.data[i * n + j]! * g.data[b * n + j]!;
-      K.data[a * m + b] = s + p.data.covariance!.data[a * m + b]!;
+      for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) s += g.data[a * n + i] * c.data[i * n + j] * g.data[b * n + j];
+      K.data[a * m + b] = s + p.data.covariance!.data[a * m + b];
     }
   }
   const r = p.data.values.map((v, a) => {
     let s = 0;
-    for (let j = 0; j < n; j++) s += g.data[a * n + j]! * m0[j]!;
+    for (let j = 0; j < n; j++) s += g.data[a * n + j] * m0[j];
     return v - s;
   });
   return { K, r };
@@ -52,17 +52,17 @@ describe('leave-one-out with correlated data errors', () => {
     for (let i = 0; i < m; i++) {
       const keep = Array.from({ length: m }, (_, k) => k).filter((k) => k !== i);
       const Kr = matrix(m - 1, m - 1);
-      keep.forEach((a, x) => keep.forEach((b, y) => (Kr.data[x * (m - 1) + y] = K.data[a * m + b]!)));
+      keep.forEach((a, x) => keep.forEach((b, y) => (Kr.data[x * (m - 1) + y] = K.data[a * m + b])));
       const f = cholesky(Kr);
       if (!f.ok) throw new Error('reduced K does not factor');
-      const kx = Float64Array.from(keep, (a) => K.data[i * m + a]!);
+      const kx = Float64Array.from(keep, (a) => K.data[i * m + a]);
       const w = choleskySolve(f.factor, kx);
-      const mu = keep.reduce((s, a, x) => s + w[x]! * r[a]!, 0);
-      const v = K.data[i * m + i]! - kx.reduce((s, k, x) => s + k * w[x]!, 0);
-      const want = -0.5 * Math.log(2 * Math.PI * v) - ((r[i]! - mu) ** 2) / (2 * v);
-      expect(Math.abs(loo.contributions[i]! - want)).toBeLessThanOrEqual(1e-9 * Math.max(1, Math.abs(want)));
-      expect(Math.abs(loo.std[i]! - Math.sqrt(v))).toBeLessThanOrEqual(1e-9 * Math.sqrt(v));
-      expect(Math.abs(loo.mean[i]! - (p.data.values[i]! - r[i]! + mu))).toBeLessThanOrEqual(1e-9 * Math.max(1, Math.abs(p.data.values[i]!)));
+      const mu = keep.reduce((s, a, x) => s + w[x] * r[a], 0);
+      const v = K.data[i * m + i] - kx.reduce((s, k, x) => s + k * w[x], 0);
+      const want = -0.5 * Math.log(2 * Math.PI * v) - ((r[i] - mu) ** 2) / (2 * v);
+      expect(Math.abs(loo.contributions[i] - want)).toBeLessThanOrEqual(1e-9 * Math.max(1, Math.abs(want)));
+      expect(Math.abs(loo.std[i] - Math.sqrt(v))).toBeLessThanOrEqual(1e-9 * Math.sqrt(v));
+      expect(Math.abs(loo.mean[i] - (p.data.values[i] - r[i] + mu))).toBeLessThanOrEqual(1e-9 * Math.max(1, Math.abs(p.data.values[i])));
     }
   });
 });
@@ -77,7 +77,7 @@ describe('discrepancy principle', () => {
     const operator = pointOperator(Array.from({ length: 14 }, (_, k) => 2 * k + 1), 30);
     const values = simulateData(operator, drawTruth(grid, prior, rng), new Float64Array(14).fill(0.1), rng);
     const p = withCorrelatedErrors({ grid, operator, data: { values, sigma: new Float64Array(14).fill(0.1) } }, 0.1);
-    const d = discrepancyScale(p, { ...prior, terms: [{ ...prior.terms[0]!, variance: 0.01 }] });
+    const d = discrepancyScale(p, { ...prior, terms: [{ ...prior.terms[0], variance: 0.01 }] });
     expect(d.status).toBe('found');
     expect(d.chi2Range[1]).toBeLessThan(1e-12);
     const chi2 = posteriorSummary(preparePosterior(p, d.prior!)).chi2;
@@ -141,7 +141,7 @@ describe('prior predictive check', () => {
   });
   it('a prior 100× too narrow is flagged (tiny upper p-value)', () => {
     const p = smallProblem(60, prior, 25, 14, 0.1);
-    const c = priorPredictiveCheck(p, { ...prior, terms: [{ ...prior.terms[0]!, variance: 0.006 }], nugget: 1e-5 });
+    const c = priorPredictiveCheck(p, { ...prior, terms: [{ ...prior.terms[0], variance: 0.006 }], nugget: 1e-5 });
     expect(c.pUpper).toBeLessThan(1e-3);
     expect(c.plausible).toBe(false);
   });

@@ -52,16 +52,16 @@ describe.each(cases)('evidence map: %s', (_name, problem, prior, term) => {
   it('every cell equals a direct Cholesky evaluation of the full prior to 1e-10', () => {
     map.lengths.forEach((len, i) => {
       map.variances.forEach((v, j) => {
-        const t = prior.terms[term]!;
+        const t = prior.terms[term];
         const direct = logEvidence(problem, withTerm(prior, term, { ...setTermLength(t, len), variance: v }));
-        expect(Math.abs(map.logEvidence[i * map.variances.length + j]! - direct)).toBeLessThanOrEqual(1e-10 * Math.max(1, Math.abs(direct)));
+        expect(Math.abs(map.logEvidence[i * map.variances.length + j] - direct)).toBeLessThanOrEqual(1e-10 * Math.max(1, Math.abs(direct)));
       });
     });
   });
   it('the Cholesky path gives the same map, and the best cell is the arg max', () => {
     const c = evidenceMap(problem, prior, { ...opts, method: 'cholesky' });
     expect(c.method).toBe('cholesky');
-    c.logEvidence.forEach((v, k) => expect(Math.abs(v - map.logEvidence[k]!)).toBeLessThanOrEqual(1e-10 * Math.max(1, Math.abs(v))));
+    c.logEvidence.forEach((v, k) => expect(Math.abs(v - map.logEvidence[k])).toBeLessThanOrEqual(1e-10 * Math.max(1, Math.abs(v))));
     const max = Math.max(...map.logEvidence);
     expect(map.best!.logEvidence).toBe(max);
     expect(map.logEvidence[map.best!.index]).toBe(max);
@@ -76,11 +76,11 @@ describe('evidence map of one length of an anisotropic term (axis l1 / l2)', () 
     ['l2', (len: number) => [3, len] as const],
   ] as const)('axis %s moves that length alone: every cell equals the direct evaluation of the prior with those lengths', (axis, lengthsAt) => {
     const map = evidenceMap(problem, prior, { ...opts, axis });
-    const t = prior.terms[0]!;
+    const t = prior.terms[0];
     map.lengths.forEach((len, i) =>
       map.variances.forEach((v, j) => {
         const direct = logEvidence(problem, { ...prior, terms: [patchTerm(t, { lengths: lengthsAt(len), variance: v })] });
-        expect(Math.abs(map.logEvidence[i * map.variances.length + j]! - direct)).toBeLessThanOrEqual(1e-10 * Math.max(1, Math.abs(direct)));
+        expect(Math.abs(map.logEvidence[i * map.variances.length + j] - direct)).toBeLessThanOrEqual(1e-10 * Math.max(1, Math.abs(direct)));
       }),
     );
   });
@@ -88,8 +88,8 @@ describe('evidence map of one length of an anisotropic term (axis l1 / l2)', () 
     const l1 = evidenceMap(problem, prior, { ...opts, axis: 'l1' });
     const l2 = evidenceMap(problem, prior, { ...opts, axis: 'l2' });
     const both = evidenceMap(problem, prior, opts);
-    expect(Math.max(...l2.logEvidence.map((v, k) => Math.abs(v - l1.logEvidence[k]!)))).toBeGreaterThan(1e-3);
-    expect(Math.max(...l1.logEvidence.map((v, k) => Math.abs(v - both.logEvidence[k]!)))).toBeGreaterThan(1e-3);
+    expect(Math.max(...l2.logEvidence.map((v, k) => Math.abs(v - l1.logEvidence[k])))).toBeGreaterThan(1e-3);
+    expect(Math.max(...l1.logEvidence.map((v, k) => Math.abs(v - both.logEvidence[k])))).toBeGreaterThan(1e-3);
   });
   it('an isotropic term has one length: axis l1 / l2 is refused naming the field', () => {
     expect(() => evidenceMap(smallProblem(3, single), single, { ...opts, axis: 'l2' })).toThrow(InputError);
@@ -105,7 +105,7 @@ describe('profiles', () => {
     expect(prof.method).toBe('eigen');
     values.forEach((v, k) => {
       const direct = logEvidence(problem, { ...withNuggetAndSecond, nugget: v });
-      expect(Math.abs(prof.logEvidence[k]! - direct)).toBeLessThanOrEqual(1e-10 * Math.max(1, Math.abs(direct)));
+      expect(Math.abs(prof.logEvidence[k] - direct)).toBeLessThanOrEqual(1e-10 * Math.max(1, Math.abs(direct)));
     });
   });
   it('ν profile equals direct evaluation at each ν and its best is the arg max', () => {
@@ -139,7 +139,7 @@ describe('input errors and control', () => {
     const seen: number[] = [];
     evidenceMap(problem, single, { term: 0, lengths: { min: 1, max: 8, count: 4 }, variances: { min: 1, max: 2, count: 3 }, method: 'eigen', onProgress: (f) => seen.push(f) });
     expect(seen.length).toBe(4);
-    seen.forEach((f, k) => expect(f).toBeGreaterThan(k === 0 ? 0 : seen[k - 1]!));
+    seen.forEach((f, k) => expect(f).toBeGreaterThan(k === 0 ? 0 : seen[k - 1]));
     expect(seen[seen.length - 1]).toBe(1);
     const signal = { aborted: false };
     const m = evidenceMap(problem, single, {
@@ -152,8 +152,8 @@ describe('input errors and control', () => {
       },
     });
     expect(m.cancelled).toBe(true);
-    expect(Number.isFinite(m.logEvidence[0]!)).toBe(true);
-    expect(Number.isNaN(m.logEvidence[11]!)).toBe(true);
+    expect(Number.isFinite(m.logEvidence[0])).toBe(true);
+    expect(Number.isNaN(m.logEvidence[11])).toBe(true);
   });
   it("'auto' factors per cell on a short variance axis and uses the shortcut on a long one", () => {
     const lengths = { min: 1, max: 8, count: 2 };

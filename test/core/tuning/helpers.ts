@@ -37,7 +37,7 @@ export function drawTruth(grid: Grid, prior: PriorSpec, rng: Random): Float64Arr
   const out = meanVector(grid, prior);
   for (let i = 0; i < n; i++) {
     let s = 0;
-    for (let k = 0; k <= i; k++) s += f.factor.data[i * n + k]! * z[k]!;
+    for (let k = 0; k <= i; k++) s += f.factor.data[i * n + k] * z[k];
     out[i] += s;
   }
   return out;
@@ -49,12 +49,12 @@ export function simulateData(g: Operator, m: Float64Array, sigma: Float64Array, 
   const out = new Float64Array(sigma.length);
   for (let i = 0; i < out.length; i++) {
     let s = 0;
-    if (gd) for (let j = 0; j < gd.cols; j++) s += gd.data[i * gd.cols + j]! * m[j]!;
+    if (gd) for (let j = 0; j < gd.cols; j++) s += gd.data[i * gd.cols + j] * m[j];
     else {
       const sp = g.matrix as { rowPtr: Int32Array; colIdx: Int32Array; values: Float64Array };
-      for (let p = sp.rowPtr[i]!; p < sp.rowPtr[i + 1]!; p++) s += sp.values[p]! * m[sp.colIdx[p]!]!;
+      for (let p = sp.rowPtr[i]; p < sp.rowPtr[i + 1]; p++) s += sp.values[p] * m[sp.colIdx[p]];
     }
-    out[i] = s + sigma[i]! * rng.nextNormal();
+    out[i] = s + sigma[i] * rng.nextNormal();
   }
   return out;
 }
@@ -130,7 +130,7 @@ export function coverageTests(
     const lo = binomialQuantile(replicates, p, a / 2);
     const hi = binomialQuantile(replicates, p, 1 - a / 2);
     for (const c of cells) {
-      const count = Math.round(cov[c]! * replicates);
+      const count = Math.round(cov[c] * replicates);
       expect(count).toBeGreaterThanOrEqual(lo);
       expect(count).toBeLessThanOrEqual(hi);
     }

@@ -26,8 +26,8 @@ function relDiff(a: ArrayLike<number>, b: ArrayLike<number>): number {
   let d = 0;
   let s = 0;
   for (let i = 0; i < b.length; i++) {
-    d = Math.max(d, Math.abs(a[i]! - b[i]!));
-    s = Math.max(s, Math.abs(b[i]!));
+    d = Math.max(d, Math.abs(a[i] - b[i]));
+    s = Math.max(s, Math.abs(b[i]));
   }
   return d / s;
 }
@@ -96,7 +96,7 @@ describe('route rule and errors', () => {
 /** Problems for the criteria: a 2-D ray survey, and a 1-D one with correlated data errors. */
 const criteriaCases: [string, Problem, PriorSpec][] = [
   ['2-D rays, Matérn + nugget', ray2, matern],
-  ['1-D, full Cd, sum with std profile', withCorrelatedErrors(dense1, 0.1), { ...projectionCases[1]![2], terms: [...projectionCases[1]![2].terms, { kernel: 'gaussian', variance: 0.2, length: 8 }] }],
+  ['1-D, full Cd, sum with std profile', withCorrelatedErrors(dense1, 0.1), { ...projectionCases[1][2], terms: [...projectionCases[1][2].terms, { kernel: 'gaussian', variance: 0.2, length: 8 }] }],
 ];
 
 describe.each(criteriaCases)('criteria on both routes: %s', (_name, problem, prior) => {
@@ -125,7 +125,7 @@ describe.each(criteriaCases)('criteria on both routes: %s', (_name, problem, pri
       const a = evidenceMap(problem, prior, { ...opts, route: 'fft' });
       const b = evidenceMap(problem, prior, { ...opts, route: 'dense' });
       expect(a.method).toBe(b.method);
-      b.logEvidence.forEach((v, k) => expect(rel(a.logEvidence[k]!, v)).toBeLessThan(1e-9));
+      b.logEvidence.forEach((v, k) => expect(rel(a.logEvidence[k], v)).toBeLessThan(1e-9));
       expect(a.best!.index).toBe(b.best!.index);
     }
   });
@@ -133,13 +133,13 @@ describe.each(criteriaCases)('criteria on both routes: %s', (_name, problem, pri
     const nug = [1e-4, 1e-3, 1e-2, 0.1];
     const a = evidenceProfile(problem, prior, { parameter: 'nugget' }, { values: nug, method: 'eigen', route: 'fft' });
     const b = evidenceProfile(problem, prior, { parameter: 'nugget' }, { values: nug, method: 'eigen', route: 'dense' });
-    b.logEvidence.forEach((v, k) => expect(rel(a.logEvidence[k]!, v)).toBeLessThan(1e-9));
+    b.logEvidence.forEach((v, k) => expect(rel(a.logEvidence[k], v)).toBeLessThan(1e-9));
     const t = prior.terms.findIndex((x) => x.kernel === 'matern');
     if (t >= 0) {
       const nus = [0.5, 1.5, 2.5];
       const c = evidenceProfile(problem, prior, { parameter: 'nu', term: t }, { values: nus, route: 'fft' });
       const d = evidenceProfile(problem, prior, { parameter: 'nu', term: t }, { values: nus, route: 'dense' });
-      d.logEvidence.forEach((v, k) => expect(rel(c.logEvidence[k]!, v)).toBeLessThan(1e-9));
+      d.logEvidence.forEach((v, k) => expect(rel(c.logEvidence[k], v)).toBeLessThan(1e-9));
     }
   });
   it('the type-II evidence gradient agrees to 1e-7 relative', () => {
@@ -159,7 +159,7 @@ it('type-II fits on both routes reach the same optimum', () => {
   const b = maximiseEvidence(ray2, start, { route: 'dense', fixed });
   expect(a.converged && b.converged).toBe(true);
   expect(rel(a.logEvidence, b.logEvidence)).toBeLessThan(1e-9);
-  a.parameters.forEach((p, k) => expect(Math.abs(p.coordinate - b.parameters[k]!.coordinate)).toBeLessThan(1e-5));
+  a.parameters.forEach((p, k) => expect(Math.abs(p.coordinate - b.parameters[k].coordinate)).toBeLessThan(1e-5));
 });
 
 it('above the limit, auto takes the FFT route and matches the forced dense route', () => {

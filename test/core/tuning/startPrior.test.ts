@@ -34,7 +34,7 @@ function invented(grid: Grid, m: number, seed: number, o: { level: number; sprea
   const sigma = Float64Array.from({ length: m }, () => o.sigma * (0.5 + rng.nextDouble()));
   let data: Problem['data'] = { values, sigma, unit: 'ms' };
   if (o.fullCd) {
-    const cov = rows.map((_, i) => rows.map((__, j) => sigma[i]! * sigma[j]! * (i === j ? 1 : 0.3 ** Math.abs(i - j))));
+    const cov = rows.map((_, i) => rows.map((__, j) => sigma[i] * sigma[j] * (i === j ? 1 : 0.3 ** Math.abs(i - j))));
     data = { values, covariance: fromRows(cov), unit: 'ms' };
   }
   return { grid, operator: { kind: 'dense', matrix: fromRows(rows) }, data };
@@ -54,7 +54,7 @@ function refOf(p: Problem, length: number, qAt?: number): Ref {
         qAt: qAt ?? null,
       },
     ],
-  }).results[0]!;
+  }).results[0];
 }
 
 const rel = (a: number, b: number) => Math.abs(a - b) / Math.max(Math.abs(b), 1e-300);
@@ -77,7 +77,7 @@ describe('startPriorRule against numpy/scipy (GLS mean and the variance at which
     expect(rel(rule.fit.statistic, ref.statistic)).toBeLessThan(1e-8);
     if (!ref.floored) expect(rel(rule.fit.statistic, m - 1)).toBeLessThan(1e-8);
     // The prior shown is the exact one to 2 significant digits.
-    const t = rule.prior.terms[0]!;
+    const t = rule.prior.terms[0];
     expect(t.variance).toBe(Number(rule.exact.variance.toPrecision(2)));
     expect((rule.prior.mean as { constant: number }).constant).toBe(Number(rule.exact.mean.toPrecision(2)));
     expect(t.length).toBe(Number(startLength(grid).toPrecision(2)));
@@ -87,8 +87,8 @@ describe('startPriorRule against numpy/scipy (GLS mean and the variance at which
     const g: Grid = { shape: [20], spacing: [1] };
     const small = startPriorRule(invented(g, 15, 3, { level: 1e-3, spread: 3e-4, sigma: 1e-5 }));
     const large = startPriorRule(invented(g, 15, 3, { level: 1e3, spread: 3e2, sigma: 1e1 }));
-    expect(small.prior.terms[0]!.variance).toBeLessThan(1e-4);
-    expect(large.prior.terms[0]!.variance).toBeGreaterThan(1e2);
+    expect(small.prior.terms[0].variance).toBeLessThan(1e-4);
+    expect(large.prior.terms[0].variance).toBeGreaterThan(1e2);
     // Scaling d and σ by 10⁶ scales the mean by 10⁶ and the variance by 10¹².
     expect(rel(large.exact.mean / small.exact.mean, 1e6)).toBeLessThan(1e-9);
     expect(rel(large.exact.variance / small.exact.variance, 1e12)).toBeLessThan(1e-9);
@@ -124,7 +124,7 @@ describe('the variance rule by seeded simulation', () => {
     let first: Problem | null = null;
     for (let k = 0; k < reps; k++) {
       const gm = applyOperator(base.operator, draws.data.subarray(k * n, (k + 1) * n));
-      const values = Float64Array.from(gm, (v, i) => v + base.data.sigma![i]! * rng.nextNormal());
+      const values = Float64Array.from(gm, (v, i) => v + base.data.sigma![i] * rng.nextNormal());
       const p: Problem = { ...base, data: { ...base.data, values } };
       first ??= p;
       if (startPriorRule(p).exact.variance <= s2true) below++;

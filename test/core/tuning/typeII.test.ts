@@ -55,7 +55,7 @@ describe('evidence gradient', () => {
       tm[j] -= h;
       const fd = (logEvidence(problem, applyHyperParameters(prior, params, tp)) - logEvidence(problem, applyHyperParameters(prior, params, tm))) / (2 * h);
       // Central-difference error: O(h²)·f''' + ε|f|/h ≈ 1e-9 here (common practice, no source).
-      expect(Math.abs(gradient[j]! - fd)).toBeLessThanOrEqual(1e-6 * Math.max(1, Math.abs(fd)));
+      expect(Math.abs(gradient[j] - fd)).toBeLessThanOrEqual(1e-6 * Math.max(1, Math.abs(fd)));
     });
   });
   it('lists the parameters by name and honours `fixed`', () => {
@@ -94,7 +94,7 @@ describe('maximiseEvidence on data simulated from a known prior', () => {
 
   it('the optimum is the maximum: no cell of a fine evidence map around it is higher', () => {
     for (const { problem, fit } of runs.slice(0, 3)) {
-      const [v, l] = [fit.parameters[0]!.value, fit.parameters[1]!.value];
+      const [v, l] = [fit.parameters[0].value, fit.parameters[1].value];
       const map = evidenceMap(problem, fit.prior, { term: 0, lengths: { min: l / 1.5, max: l * 1.5, count: 9 }, variances: { min: v / 1.5, max: v * 1.5, count: 9 } });
       expect(map.best!.logEvidence).toBeLessThanOrEqual(fit.logEvidence + 1e-9);
     }
@@ -107,15 +107,15 @@ describe('maximiseEvidence on data simulated from a known prior', () => {
 
   it('each estimate lies within 4 curvature standard errors of the truth', () => {
     est.forEach((e, k) => {
-      expect(Math.abs(e[0]! - truthLogVar)).toBeLessThan(4 * se[k]![0]!);
-      expect(Math.abs(e[1]! - truthLogLen)).toBeLessThan(4 * se[k]![1]!);
+      expect(Math.abs(e[0] - truthLogVar)).toBeLessThan(4 * se[k][0]);
+      expect(Math.abs(e[1] - truthLogLen)).toBeLessThan(4 * se[k][1]);
     });
   });
 
   it('the curvature standard errors match the spread measured over the repeated simulations', () => {
     // Sample sd over 8 seeds has relative uncertainty ≈ 1/√(2·7) ≈ 0.27; [0.5, 2] is a ≈ 2.5σ band.
     for (const j of [0, 1]) {
-      const ratio = mean(se.map((s) => s[j]!)) / sd(est.map((e) => e[j]!));
+      const ratio = mean(se.map((s) => s[j])) / sd(est.map((e) => e[j]));
       expect(ratio).toBeGreaterThan(0.5);
       expect(ratio).toBeLessThan(2);
     }
@@ -126,7 +126,7 @@ describe('maximiseEvidence on data simulated from a known prior', () => {
     // ML estimate is consistent while σ² and ℓ separately are not (Zhang 2004, J. Amer. Statist.
     // Assoc. 99:250–261, memory); σ² and ℓ alone carry a finite-domain bias, so they are judged
     // only per seed above.
-    const combo = est.map((e) => e[0]! - e[1]!);
+    const combo = est.map((e) => e[0] - e[1]);
     expect(Math.abs(mean(combo) - (truthLogVar - truthLogLen))).toBeLessThan((3 * sd(combo)) / Math.sqrt(combo.length));
   });
 });
@@ -139,7 +139,7 @@ describe('maximiseEvidence: control and errors', () => {
   });
   it('a fixed parameter keeps its value; an aborted signal stops before the first step', () => {
     const fit = maximiseEvidence(problem, prior, { fixed: ['terms[0].length'] });
-    expect(fit.prior.terms[0]!.length).toBe(4);
+    expect(fit.prior.terms[0].length).toBe(4);
     expect(fit.parameters.map((p) => p.name)).toEqual(['terms[0].variance']);
     const stopped = maximiseEvidence(problem, prior, { signal: { aborted: true } });
     expect(stopped.cancelled).toBe(true);

@@ -40,7 +40,7 @@ describe('best by evidence with a free nugget on a Gaussian prior', () => {
     expect(se['terms[0].length']).toBeGreaterThan(0);
     // Along the floor the evidence is stationary in the free coordinates.
     r.parameters.forEach((p, k) => {
-      if (p.name !== 'nugget') expect(Math.abs(r.gradient[k]!)).toBeLessThan(1e-3);
+      if (p.name !== 'nugget') expect(Math.abs(r.gradient[k])).toBeLessThan(1e-3);
     });
   });
   it('holding a tiny nugget fixed leaves nothing to bound the search: the result says it is not usable and why', () => {
@@ -69,7 +69,7 @@ describe('the nugget floor B/(1e10 − 1)', () => {
   ];
   it.each(cases)('%s: B bounds λmax of the kernel part, and with the floor nugget κ ≤ 1e10', (_, grid, prior) => {
     const ev = symmetricEigenvalues(covarianceMatrix(grid, prior));
-    const lmax = ev[ev.length - 1]!;
+    const lmax = ev[ev.length - 1];
     expect(kernelEigenvalueBound(grid, prior)).toBeGreaterThanOrEqual(lmax * (1 - 1e-12));
     const floor = conditioningNuggetFloor(grid, prior);
     const d = diagnosePrior(grid, { ...prior, nugget: floor });
