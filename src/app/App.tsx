@@ -6,7 +6,7 @@ import { useWb } from './context.ts';
 import { PriorPanel } from './PriorPanel.tsx';
 import { StatusPanel } from './StatusPanel.tsx';
 import { FitScreen, PosteriorScreen, PriorScreen, ProblemScreen, RealisationsScreen } from './screens/index.ts';
-import { TABS, type TabId } from './store.ts';
+import { TABS, type TabId } from './view/slice.ts';
 import { SelectScreen } from './select/SelectScreen.tsx';
 import { OverviewScreen } from './overview/OverviewScreen.tsx';
 import { SessionBar } from './session/SessionBar.tsx';

@@ -32,6 +32,7 @@ export function PriorPanel() {
   const problem = useWb((s) => s.problem);
   const addTerm = useWb((s) => s.addTerm);
   const setNugget = useWb((s) => s.setNugget);
+  const continuous = useWb((s) => s.continuousEdit);
   const resetPrior = useWb((s) => s.resetPrior);
   if (!prior || !problem) return <aside className="prior-panel" aria-label="Prior" />;
   const unit = problem.quantity.unit;
@@ -71,6 +72,7 @@ export function PriorPanel() {
       <fieldset>
         <legend>Nugget</legend>
         <LogSlider
+          continuous={continuous}
           label="Nugget"
           value={prior.nugget ?? 0}
           min={refVar * 1e-12}
@@ -230,6 +232,7 @@ function TermEditor({ index, term, count, problem, refVar }: { index: number; te
   const removeTerm = useWb((s) => s.removeTerm);
   const moveTerm = useWb((s) => s.moveTerm);
   const nu = termSmoothness(term);
+  const continuous = useWb((s) => s.continuousEdit);
   const unit = problem.quantity.unit;
   const varUnit = unit ? `(${unit})²` : '';
   const lenUnit = problem.grid.unit ?? '';
@@ -272,6 +275,7 @@ function TermEditor({ index, term, count, problem, refVar }: { index: number; te
         </button>
       </div>
       <LogSlider
+        continuous={continuous}
         label="Variance σ²"
         value={term.variance}
         min={refVar * 1e-4}
@@ -295,6 +299,7 @@ function TermEditor({ index, term, count, problem, refVar }: { index: number; te
       {term.lengths ? (
         <>
           <LogSlider
+            continuous={continuous}
             label="Length ℓ₁"
             value={term.lengths[0]}
             min={lo}
@@ -305,6 +310,7 @@ function TermEditor({ index, term, count, problem, refVar }: { index: number; te
             onChange={(v) => updateTerm(index, { lengths: [v, term.lengths[1]] })}
           />
           <LogSlider
+            continuous={continuous}
             label="Length ℓ₂"
             value={term.lengths[1]}
             min={lo}
@@ -346,6 +352,7 @@ function TermEditor({ index, term, count, problem, refVar }: { index: number; te
         </>
       ) : (
         <LogSlider
+          continuous={continuous}
           label="Length ℓ"
           value={term.length ?? 1}
           min={lo}
@@ -358,6 +365,7 @@ function TermEditor({ index, term, count, problem, refVar }: { index: number; te
       )}
       {nu !== undefined && (
         <LogSlider
+          continuous={continuous}
           label="Smoothness ν"
           value={nu}
           min={0.1}

@@ -119,10 +119,15 @@ interface LogSliderProps {
   onChange: (v: number) => void;
   /** Allow exactly 0 (the leftmost slider position, and typed 0). */
   allowZero?: boolean;
+  /**
+   * Runs each edit made with the slider itself (dragged, or stepped with the arrow keys), not typed
+   * ones, so the caller can treat them as one continuous gesture (the undo history coalesces them).
+   */
+  continuous?: (edit: () => void) => void;
 }
 
 /** A slider on a log scale between min and max, with a typed input (any positive value is accepted). */
-export function LogSlider({ label, value, min, max, unit, tip, testId, onChange, allowZero }: LogSliderProps) {
+export function LogSlider({ label, value, min, max, unit, tip, testId, onChange, allowZero, continuous }: LogSliderProps) {
   const id = useId();
   const pos = allowZero && value === 0 ? 0 : Math.max(allowZero ? 1 : 0, toSlider(value, min, max));
   return (
@@ -143,7 +148,9 @@ export function LogSlider({ label, value, min, max, unit, tip, testId, onChange,
         onChange={(e) => {
           noteInteraction();
           const p = Number(e.target.value);
-          onChange(allowZero && p === 0 ? 0 : fromSlider(p, min, max));
+          const edit = () => onChange(allowZero && p === 0 ? 0 : fromSlider(p, min, max));
+          if (continuous) continuous(edit);
+          else edit();
         }}
       />
       <NumberField

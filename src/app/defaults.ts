@@ -1,29 +1,13 @@
 /**
- * Starting values of the workbench store (./store.ts) that the session slice (./session/slice.ts)
- * also needs: a module the store imports and that imports no slice, so store and slices need not
- * import each other's values.
+ * Starting values that several slices of the workbench store need (the problem, prior, results and
+ * session slices): a module that imports no slice, so the slices need not import each other's values.
  */
 import type { Term } from '../core/kernels/spec.ts';
 import type { PriorSpec } from '../core/prior/spec.ts';
 import type { ProblemView } from '../worker/protocol.ts';
-import type { ResultsSlice } from './store.ts';
 
 /** Realisations drawn per request (prior and posterior). */
 export const DRAW_COUNT = 6;
-
-/** The results slice with nothing computed (progress is kept as it is). */
-export const emptyResults = (): Omit<ResultsSlice, 'progress'> => ({
-  posterior: null,
-  posteriorPartial: null,
-  diagnostics: null,
-  priorDraws: null,
-  posteriorDraws: null,
-  resolution: null,
-  covariance: null,
-  errors: {},
-  busy: {},
-  computedFor: {},
-});
 
 /** The generic prior, used only when a problem brings none and the starting-prior rule failed: one exponential term, a tenth of the extent. */
 export function defaultPrior(problem: ProblemView): PriorSpec {

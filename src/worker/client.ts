@@ -14,6 +14,8 @@
  *   tells its `onRestart` listeners, who re-request what they need.
  */
 import { assertNever } from '../core/errors.ts';
+import type { Matrix } from '../core/linalg/matrix.ts';
+import type { Diagnostics } from '../core/prior/diagnostics.ts';
 import { matchOperator, type Operator } from '../core/linalg/operator.ts';
 import type { PriorSpec } from '../core/prior/spec.ts';
 import type { Problem } from '../core/problems/spec.ts';
@@ -21,6 +23,7 @@ import {
   channelOf,
   type Channel,
   type PosteriorPartial,
+  type PosteriorResult,
   type ProblemView,
   type RequestKind,
   type ResultMap,
@@ -28,6 +31,7 @@ import {
   type WorkerReply,
   type WorkerRequest,
 } from './protocol.ts';
+import type { TuningKind, TuningRequest, TuningResultMap } from './tuningProtocol.ts';
 
 /** The part of a Worker the client uses (a fake in tests). */
 export interface WorkerLike {
@@ -38,6 +42,35 @@ export interface WorkerLike {
 }
 
 export type Outcome<T> = { readonly superseded: false; readonly value: T } | { readonly superseded: true };
+
+/** What a tuning request carries besides its id, kind and problem version. */
+export type TuningPayload<K extends TuningKind> = Omit<Extract<TuningRequest, { kind: K }>, 'id' | 'kind' | 'problemVersion'>;
+
+/** The tuning (prior-selection) requests of a client: send one, cancel a kind. */
+export interface TuningPort {
+  request<K extends TuningKind>(kind: K, payload: TuningPayload<K>): Promise<Outcome<TuningResultMap[K]>>;
+  cancel(channel: TuningKind): void;
+}
+
+/**
+ * What the workbench store asks of a client: {@link WorkerClient}, the two-worker
+ * {@link ./split.ts SplitClient}, or a fake in unit tests.
+ */
+export interface ClientPort {
+  loadDemo(demoId: string): Promise<Outcome<ProblemView>>;
+  /** Send the user's own problem to the worker(s) (the session slice; optional for fakes). */
+  setProblem?(problem: Problem): Promise<Outcome<ProblemView>>;
+  /** `onPartial` (optional for fakes) receives the mean ahead of the bands, while the request is current. */
+  posterior(prior: PriorSpec, onPartial?: (partial: PosteriorPartial) => void): Promise<Outcome<PosteriorResult>>;
+  diagnostics(prior: PriorSpec): Promise<Outcome<Diagnostics>>;
+  priorDraws(prior: PriorSpec, count: number, seed: number): Promise<Outcome<Matrix>>;
+  posteriorDraws(prior: PriorSpec, count: number, seed: number): Promise<Outcome<Matrix>>;
+  resolution(prior: PriorSpec, cell: number): Promise<Outcome<{ cell: number; row: Float64Array }>>;
+  covariance(prior: PriorSpec): Promise<Outcome<Matrix>>;
+  onRestart(listener: (reason: string) => void): () => void;
+  /** Where prior-selection requests go; null for a client that runs none (the select slice then says so). */
+  readonly tuning: TuningPort | null;
+}
 
 /** An error thrown inside the worker, re-created on the main thread with its name and field. */
 export class WorkerTaskError extends Error {
@@ -73,7 +106,7 @@ export interface ClientOptions {
   onProgress?: (channel: Channel, stage: string, fraction: number) => void;
 }
 
-export class WorkerClient {
+export class WorkerClient implements ClientPort {
   private worker: WorkerLike;
   private nextId = 1;
   private version = 0;
@@ -95,6 +128,19 @@ export class WorkerClient {
   get problemVersion(): number {
     return this.version;
   }
+
+  /** This worker's prior-selection requests as a {@link TuningPort}. */
+  get tuning(): TuningPort {
+    return (this.tuningPort ??= {
+      // The generic `request` takes exactly TuningPayload<K> for a tuning kind and answers TuningResultMap[K]
+      // (protocol.ts spreads the tuning unions into its own); the compiler cannot see that through two
+      // generic Omit/Extract layers, hence the casts.
+      request: <K extends TuningKind>(kind: K, payload: TuningPayload<K>) =>
+        this.request(kind, payload as never) as Promise<Outcome<TuningResultMap[K]>>,
+      cancel: (kind: TuningKind) => this.cancel(kind),
+    });
+  }
+  private tuningPort: TuningPort | null = null;
 
   /** Ids of requests still awaiting a reply (for tests and diagnostics). */
   get pendingCount(): number {

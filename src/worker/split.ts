@@ -7,20 +7,10 @@
  */
 import type { PriorSpec } from '../core/prior/spec.ts';
 import type { Problem } from '../core/problems/spec.ts';
-import type { Outcome, WorkerClient } from './client.ts';
+import type { ClientPort, Outcome, TuningPort, WorkerClient } from './client.ts';
 import type { PosteriorPartial, ProblemView } from './protocol.ts';
-import type { TuningKind, TuningRequest, TuningResultMap } from './tuningProtocol.ts';
 
-/** What a tuning request carries besides its id, kind and problem version. */
-export type TuningPayload<K extends TuningKind> = Omit<Extract<TuningRequest, { kind: K }>, 'id' | 'kind' | 'problemVersion'>;
-
-/** The tuning (prior-selection) requests of a client: send one, cancel a kind. */
-export interface TuningPort {
-  request<K extends TuningKind>(kind: K, payload: TuningPayload<K>): Promise<Outcome<TuningResultMap[K]>>;
-  cancel(channel: TuningKind): void;
-}
-
-export class SplitClient {
+export class SplitClient implements ClientPort {
   constructor(
     readonly primary: WorkerClient,
     readonly secondary: WorkerClient,
@@ -31,9 +21,8 @@ export class SplitClient {
    * while a map or a calibration runs.
    */
   get tuning(): TuningPort {
-    return (this.#tuning ??= tuningPortOfWorker(this.secondary));
+    return this.secondary.tuning;
   }
-  #tuning: TuningPort | null = null;
 
   get restarts(): number {
     return this.primary.restarts + this.secondary.restarts;
@@ -76,21 +65,4 @@ export class SplitClient {
       b();
     };
   }
-}
-
-/**
- * A worker client seen as a {@link TuningPort}. The client's `request` is generic over every
- * request kind; for a tuning kind its payload type is exactly {@link TuningPayload} and its result
- * type TuningResultMap[K] (protocol.ts spreads the tuning unions into its own), which the compiler
- * cannot see through two generic Omit/Extract layers, hence the one cast here.
- */
-export function tuningPortOfWorker(client: WorkerClient): TuningPort {
-  return {
-    request<K extends TuningKind>(kind: K, payload: TuningPayload<K>) {
-      return client.request(kind, payload as never) as Promise<Outcome<TuningResultMap[K]>>;
-    },
-    cancel(kind: TuningKind) {
-      client.cancel(kind);
-    },
-  };
 }

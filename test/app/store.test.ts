@@ -6,7 +6,8 @@
  * worker Engine (partials always on: partialMinFlops 0) for the borehole-log demo (FFT path).
  */
 import { describe, expect, it } from 'vitest';
-import { createWorkbenchStore, type ClientPort } from '../../src/app/store.ts';
+import { createWorkbenchStore } from '../../src/app/store.ts';
+import type { ClientPort } from '../../src/worker/client.ts';
 import { bandsState, bandsText, shownPosterior } from '../../src/app/posteriorView.ts';
 import { Engine } from '../../src/worker/engine.ts';
 import type { PosteriorPartial, PosteriorResult } from '../../src/worker/protocol.ts';

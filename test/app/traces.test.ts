@@ -1,7 +1,7 @@
 import { describe, expect, it } from 'vitest';
 import { bandTrace, cellAt, commonRange, correlationCurves, correlationMap, scaledDistance, toRows2D, Z95 } from '../../src/app/traces.ts';
 import { fromSlider, toSlider } from '../../src/app/controls.tsx';
-import { nextSeed } from '../../src/app/store.ts';
+import { nextSeed } from '../../src/app/view/slice.ts';
 
 const grid2 = { shape: [4, 3], spacing: [2, 5], origin: [1, 2.5] };
 

@@ -2,7 +2,7 @@
  * No import cycles in src/ (read by ./importGraph.ts from the source text). Runtime cycles make the
  * order in which modules run depend on which one is imported first; type-only cycles tie two
  * modules' sources together. One kind of type-only edge is allowed: into src/app/store.ts for the
- * WorkbenchState type, which is the composition of the slices (zustand's slice pattern: each slice
+ * WorkbenchState type (and its StoreSet / StoreGet), which is the composition of the slices (zustand's slice pattern: each slice
  * is written against the whole state it lives in). Values never flow back into the store.
  */
 import { mkdtempSync, writeFileSync } from 'node:fs';

@@ -297,3 +297,20 @@ describe('transferables', () => {
     expect(list).not.toContain(big.buffer);
   });
 });
+
+describe('WorkerClient.tuning', () => {
+  it('sends a prior-selection request with its payload and the problem version, and cancels it on its channel', async () => {
+    const { client, w } = setup();
+    const loaded = client.loadDemo('x');
+    w().reply({ type: 'result', id: w().last('loadDemo').id, result: view });
+    await loaded;
+    const port = client.tuning;
+    expect(client.tuning).toBe(port);
+    const p = port.request('criteria', { prior: prior(3) });
+    const req = w().last('criteria') as Extract<WorkerRequest, { kind: 'criteria' }>;
+    expect(req).toMatchObject({ kind: 'criteria', problemVersion: 1, prior: prior(3) });
+    port.cancel('criteria');
+    await expect(p).resolves.toEqual({ superseded: true });
+    expect(w().last('cancel')).toMatchObject({ kind: 'cancel', target: req.id });
+  });
+});

@@ -8,7 +8,7 @@ import { NumberField } from '../controls.tsx';
 import { kernelTraces, posteriorBandLayout, posteriorBandTraces, posteriorLayouts, posteriorMapTraces, truthMapTraces } from '../figures/posterior.ts';
 import { Plot } from '../Plot.tsx';
 import { bandsState, bandsText, shownPosterior } from '../posteriorView.ts';
-import { MARK_POSTERIOR_DRAWN } from '../store.ts';
+import { MARK_POSTERIOR_DRAWN } from '../results/slice.ts';
 import { cellAt } from '../traces.ts';
 import { Waiting } from './Waiting.tsx';
 

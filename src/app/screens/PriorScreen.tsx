@@ -12,7 +12,7 @@ import {
 } from '../figures/prior.ts';
 import { axisNames, orientationNote } from '../labels.ts';
 import { Plot } from '../Plot.tsx';
-import { COVARIANCE_VIEW_CELLS } from '../store.ts';
+import { COVARIANCE_VIEW_CELLS } from '../results/slice.ts';
 import type { Trace } from '../traces.ts';
 
 export function PriorScreen() {

@@ -12,28 +12,11 @@ import { assertNever } from '../../core/errors.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
 import { setTermLength, withTerm, type LogAxis, type ProfileParameter } from '../../core/tuning/index.ts';
 import type { TuningKind, TuningResultMap } from '../../worker/tuningProtocol.ts';
-import type { TuningPayload, TuningPort } from '../../worker/split.ts';
+import type { ClientPort, TuningPayload } from '../../worker/client.ts';
 import { TUNING_KINDS } from '../../worker/tuningProtocol.ts';
-import type { WorkbenchState } from '../store.ts';
+import type { StoreGet, StoreSet, WorkbenchState } from '../store.ts';
 import { CANDIDATE_STYLES, MAX_PINNED, nextCandidateStyle } from './candidates.ts';
 import { termSmoothness } from '../../core/kernels/table.ts';
-
-export type { TuningPayload, TuningPort } from '../../worker/split.ts';
-
-function isPort(x: unknown): x is TuningPort {
-  const c = x as { request?: unknown; cancel?: unknown } | null;
-  return typeof c === 'object' && c !== null && typeof c.request === 'function' && typeof c.cancel === 'function';
-}
-
-/**
- * The tuning port of a client: the `tuning` accessor of a split client (its secondary worker) or of
- * a fake with the same shape, or the client itself when it is a port.
- */
-export function tuningPortOf(client: object): TuningPort | null {
-  const tuning = (client as { tuning?: unknown }).tuning;
-  if (isPort(tuning)) return tuning;
-  return isPort(client) ? client : null;
-}
 
 export interface Candidate {
   readonly id: string;
@@ -165,11 +148,10 @@ export function candidatesKey(s: Pick<WorkbenchState, 'problem' | 'candidates' |
 /** Posterior realisations shown per candidate. */
 export const CANDIDATE_DRAWS = 3;
 
-type Set = (partial: Partial<WorkbenchState>) => void;
-type Get = () => WorkbenchState;
 
-export function createSelectSlice(set: Set, get: Get, client: object): SelectSlice {
-  const port = tuningPortOf(client);
+/** `client.tuning`: the split client's secondary worker, so the posterior worker stays free. */
+export function createSelectSlice(set: StoreSet, get: StoreGet, client: Pick<ClientPort, 'tuning'>): SelectSlice {
+  const port = client.tuning;
   let nextId = 1;
   /** Pinned candidates of the problems shown earlier in this session, by problem identity. */
   const setAside = new Map<string, Candidate[]>();

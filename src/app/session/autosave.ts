@@ -6,7 +6,7 @@
  */
 import type { Problem } from '../../core/problems/spec.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
-import type { TabId } from '../store.ts';
+import type { TabId } from '../view/slice.ts';
 
 export const SESSION_FORMAT = 1;
 /** Delay after the last change before the session is written. */

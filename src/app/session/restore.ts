@@ -22,7 +22,7 @@ import { validatePrior } from '../../core/prior/validate.ts';
 import { DEMO_CHOICES } from '../demos.ts';
 import { MAX_CELLS, parseProblemFile, writeProblemFile } from '../../core/io/problemFile.ts';
 import type { Problem } from '../../core/problems/spec.ts';
-import { DEFAULT_SEED, TABS, type TabId } from '../store.ts';
+import { DEFAULT_SEED, TABS, type TabId } from '../view/slice.ts';
 import { SESSION_FORMAT, type SavedSession } from './autosave.ts';
 
 /** Candidates kept at most (the selection screen pins up to four). */

@@ -7,7 +7,6 @@
  * `loadError`: files are parsed first (./../io/parseClient.ts, off the main thread) and the
  * workers only see a problem that parsed; if they then fail, the previous problem is sent back.
  */
-import type { StoreApi } from 'zustand/vanilla';
 import type { Problem } from '../../core/problems/spec.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
 import type { Matrix } from '../../core/linalg/matrix.ts';
@@ -20,8 +19,11 @@ import { parseOffThread } from '../io/parseClient.ts';
 import type { ParseResult } from '../io/parse.ts';
 import { emptyHistory, record, redo, undo, type History } from './history.ts';
 import { DEMO_CHOICES, DEFAULT_DEMO } from '../demos.ts';
-import { defaultPrior, DRAW_COUNT, emptyResults } from '../defaults.ts';
-import type { ClientPort, TabId, WorkbenchState } from '../store.ts';
+import { defaultPrior, DRAW_COUNT } from '../defaults.ts';
+import type { ClientPort } from '../../worker/client.ts';
+import { emptyResults } from '../results/slice.ts';
+import type { StoreGet, StoreSet, WorkbenchState, WorkbenchStore } from '../store.ts';
+import type { TabId } from '../view/slice.ts';
 
 export interface UserProblem {
   readonly problem: Problem;
@@ -54,6 +56,12 @@ export interface SessionSlice {
   /** Load a built-in problem and then apply a saved or shared view (prior, seed, tab, cell). */
   openDemo(demoId: string, view?: SessionView): Promise<boolean>;
   importPrior(file: NamedBytes): Promise<boolean>;
+  /**
+   * Run a prior edit made with a continuous control (a slider being dragged or stepped): the history
+   * extends the previous step when it changed the same fields (./history.ts). The control says so
+   * (../controls.tsx LogSlider `continuous`); the store reads nothing from the page.
+   */
+  continuousEdit(edit: () => void): void;
   undo(): void;
   redo(): void;
   startOver(): Promise<void>;
@@ -62,14 +70,6 @@ export interface SessionSlice {
   fetchDraws(which: 'prior' | 'posterior'): Promise<Matrix | null>;
 }
 
-type Set = StoreApi<WorkbenchState>['setState'];
-type Get = StoreApi<WorkbenchState>['getState'];
-
-/** A slider has the focus: its edits are one continuous gesture (see ./history.ts). */
-function isContinuousEdit(): boolean {
-  const el = typeof document !== 'undefined' ? (document.activeElement as HTMLInputElement | null) : null;
-  return el?.tagName === 'INPUT' && el.type === 'range';
-}
 
 /** A prior from storage or a link: every field (the core's validator), then its fit to the grid. */
 export function checkSavedPrior(prior: PriorSpec, grid: Grid): void {
@@ -84,9 +84,11 @@ export function checkSavedPrior(prior: PriorSpec, grid: Grid): void {
 
 const message = (e: unknown) => (e instanceof Error ? e.message : String(e));
 
-export function createSessionSlice(set: Set, get: Get, api: StoreApi<WorkbenchState>, client: ClientPort): SessionSlice {
+export function createSessionSlice(set: StoreSet, get: StoreGet, api: WorkbenchStore, client: ClientPort): SessionSlice {
   /** True while the slice itself replaces the prior (undo, redo, restore): not recorded. */
   let applying = false;
+  /** True while an edit passed to continuousEdit runs. */
+  let continuous = false;
 
   api.subscribe((s, prev) => {
     if (s.problem !== prev.problem) {
@@ -95,7 +97,7 @@ export function createSessionSlice(set: Set, get: Get, api: StoreApi<WorkbenchSt
       return;
     }
     if (s.prior !== prev.prior && s.prior && prev.prior && !applying) {
-      const h = record(s.history, prev.prior, s.prior, Date.now(), isContinuousEdit());
+      const h = record(s.history, prev.prior, s.prior, Date.now(), continuous);
       if (h !== s.history) set({ history: h });
     }
   });
@@ -238,6 +240,14 @@ export function createSessionSlice(set: Set, get: Get, api: StoreApi<WorkbenchSt
       }
     },
 
+    continuousEdit(edit) {
+      continuous = true;
+      try {
+        edit();
+      } finally {
+        continuous = false;
+      }
+    },
     undo() {
       const s = get();
       if (!s.prior) return;

@@ -1,10 +1,10 @@
 /** The select slice in the real store with a fake client: pinning, applying, cancelling, stale replies. */
 import { describe, expect, it } from 'vitest';
-import { createWorkbenchStore, type ClientPort } from '../../../src/app/store.ts';
-import type { Outcome } from '../../../src/worker/client.ts';
+import { createWorkbenchStore } from '../../../src/app/store.ts';
+import type { ClientPort, Outcome, TuningPort } from '../../../src/worker/client.ts';
 import type { ProblemView } from '../../../src/worker/protocol.ts';
 import type { PriorSpec } from '../../../src/core/prior/spec.ts';
-import { freshness, freshnessText, problemIdentity, tuningPortOf } from '../../../src/app/select/slice.ts';
+import { freshness, freshnessText, problemIdentity } from '../../../src/app/select/slice.ts';
 import type { EvidenceMap } from '../../../src/core/tuning/index.ts';
 
 const prior: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 0.25, length: 10 }], nugget: 0.01 };
@@ -22,7 +22,7 @@ function fakeClient() {
       cancelled.push(kind);
     },
   };
-  const client: ClientPort & { tuning: typeof tuning } = {
+  const client: ClientPort = {
     loadDemo: async () => ({ superseded: false, value: view }),
     posterior: never,
     diagnostics: never,
@@ -31,7 +31,8 @@ function fakeClient() {
     resolution: never,
     covariance: never,
     onRestart: () => () => {},
-    tuning,
+    // The fake answers whatever the test resolves; the port's result types are the worker's to keep.
+    tuning: tuning as unknown as TuningPort,
   };
   return { client, sent, cancelled };
 }
@@ -48,10 +49,13 @@ const map: EvidenceMap = {
 };
 
 describe('select slice', () => {
-  it('finds the tuning port (the secondary worker) of a split client', () => {
-    const { client } = fakeClient();
-    expect(tuningPortOf(client)).toBe(client.tuning);
-    expect(tuningPortOf({})).toBeNull();
+  it('says so, and sends nothing, when the client has no tuning port', async () => {
+    const { client, sent } = fakeClient();
+    const store = createWorkbenchStore({ ...client, tuning: null }, { demoId: 'x' });
+    await store.getState().loadDemo('x');
+    store.getState().runEvidenceMap({ term: 0, lengths: { min: 2, max: 20, count: 2 }, variances: { min: 0.1, max: 10, count: 3 } });
+    expect(sent).toHaveLength(0);
+    expect(store.getState().selectTasks.evidenceMap).toMatchObject({ status: 'error', error: 'no worker available for prior selection' });
   });
 
   it('runs a map, applies a clicked cell to the term, ignores a reply for an older request', async () => {

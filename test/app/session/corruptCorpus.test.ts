@@ -4,7 +4,8 @@
  * no raw JavaScript message), and a failed share link must leave the saved session as it was.
  */
 import { describe, expect, it } from 'vitest';
-import { createWorkbenchStore, TABS, type WorkbenchStore } from '../../../src/app/store.ts';
+import { createWorkbenchStore, type WorkbenchStore } from '../../../src/app/store.ts';
+import { TABS } from '../../../src/app/view/slice.ts';
 import { memoryStorage } from '../../../src/app/session/autosave.ts';
 import { installAutosave, startSession } from '../../../src/app/session/start.ts';
 import { encodeShare } from '../../../src/app/session/share.ts';

@@ -3,7 +3,7 @@
  * `failSetProblem` makes the next setProblem reject, as a worker refusing a problem would.
  */
 import { Engine } from '../../../src/worker/engine.ts';
-import type { ClientPort } from '../../../src/app/store.ts';
+import type { ClientPort } from '../../../src/worker/client.ts';
 import type { Problem } from '../../../src/core/problems/spec.ts';
 import type { PriorSpec } from '../../../src/core/prior/spec.ts';
 
@@ -37,6 +37,7 @@ export function inProcessClient() {
     resolution: (prior: PriorSpec, cell: number) => ok(engine.handle({ id: id++, kind: 'resolution', problemVersion: v(), prior, cell })),
     covariance: (prior: PriorSpec) => ok(engine.handle({ id: id++, kind: 'covariance', problemVersion: v(), prior })),
     onRestart: () => () => {},
+    tuning: null,
   };
   return client as typeof client & ClientPort;
 }

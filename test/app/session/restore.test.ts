@@ -5,7 +5,8 @@
  * the page is hidden. Each case below failed before the restore went through the validators.
  */
 import { describe, expect, it } from 'vitest';
-import { createWorkbenchStore, DEFAULT_SEED, type WorkbenchStore } from '../../../src/app/store.ts';
+import { createWorkbenchStore, type WorkbenchStore } from '../../../src/app/store.ts';
+import { DEFAULT_SEED } from '../../../src/app/view/slice.ts';
 import { memoryStorage, SESSION_FORMAT } from '../../../src/app/session/autosave.ts';
 import { installAutosave, restorePreviousSession, type sessionRecord, startSession } from '../../../src/app/session/start.ts';
 import { sanitizeSavedSession, validateSavedProblem } from '../../../src/app/session/restore.ts';

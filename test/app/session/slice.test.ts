@@ -161,3 +161,20 @@ describe('autosave and restore', () => {
     expect(c.getState().problemStatus).toBe('ready');
   });
 });
+
+describe('undo of slider gestures', () => {
+  it('slider edits of one length made through continuousEdit undo in one step; typed edits one step each', async () => {
+    const { store } = await demoStore();
+    const start = store.getState().prior!.terms[0]!;
+    for (let k = 1; k <= 5; k++) store.getState().continuousEdit(() => store.getState().updateTerm(0, { length: 10 + k }));
+    expect(store.getState().history.past).toHaveLength(1);
+    store.getState().undo();
+    expect(store.getState().prior!.terms[0]).toEqual(start);
+    for (let k = 1; k <= 5; k++) store.getState().updateTerm(0, { length: 20 + k });
+    expect(store.getState().history.past).toHaveLength(5);
+    // an edit right after a gesture, outside it, is a step of its own
+    store.getState().continuousEdit(() => store.getState().updateTerm(0, { length: 30 }));
+    store.getState().updateTerm(0, { length: 31 });
+    expect(store.getState().history.past).toHaveLength(7);
+  });
+});
