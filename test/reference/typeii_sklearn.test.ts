@@ -1,8 +1,9 @@
 /**
  * `priorscope fit` against an outside reference: scikit-learn's GaussianProcessRegressor (Debian's
  * python3-sklearn, test/reference/typeii_sklearn.py) maximises the same log marginal likelihood on
- * point data (G selects cells, independent errors, zero prior mean). Three invented problems
- * (1-D exponential, 2-D Matérn 3/2, 2-D anisotropic Matérn 5/2 with the axes along the grid). Checked:
+ * point data (G selects cells, independent errors, zero prior mean). Four invented problems
+ * (1-D exponential, 2-D Matérn 3/2 on the dense and on the FFT route, 2-D anisotropic Matérn 5/2 with the axes
+ * along the grid). Checked:
  * - the start prior's log evidence equals sklearn's log_marginal_likelihood (same constants, −M/2 log 2π included);
  * - our optimum's log evidence agrees with sklearn's optimum to 1e-6 (and sklearn, evaluated at our
  *   optimum, gives the same value);
@@ -28,6 +29,8 @@ interface Case {
   free: string;
   nu: number;
   seed: number;
+  /** The route the fit must report (default dense). */
+  route?: 'dense' | 'fft';
 }
 
 const cases: Case[] = [
@@ -52,6 +55,18 @@ const cases: Case[] = [
     free: 'variance,length',
     nu: 1.5,
     seed: 202,
+  },
+  {
+    name: '2-D 36 × 36 on the FFT route (above 1024 cells), Matérn 3/2, 150 cells observed',
+    grid: { shape: [36, 36], spacing: [1, 1] },
+    observed: 150,
+    sigma: 0.1,
+    truth: { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, length: 5 }] },
+    start: { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 0.5, length: 3 }] },
+    free: 'variance,length',
+    nu: 1.5,
+    seed: 404,
+    route: 'fft',
   },
   {
     name: '2-D 10 × 9 (spacing 2 × 1), anisotropic Matérn 5/2 at angle 0, 45 cells observed',
@@ -84,6 +99,7 @@ interface Fit {
   logEvidence: number;
   startLogEvidence: number;
   converged: boolean;
+  route: string;
   parameters: { name: string; value: number; standardError: number }[];
 }
 interface Ref {
@@ -97,7 +113,7 @@ interface Ref {
 describe('fit: type-II maximum likelihood against sklearn GaussianProcessRegressor (python3-sklearn)', () => {
   const dir = tempDir();
   const runs: { c: Case; fit: Fit; X: number[][]; y: number[] }[] = [];
-  it('fits the three problems (exit 0, converged)', async () => {
+  it('fits the four problems (exit 0, converged, on the expected route)', async () => {
     for (const [k, c] of cases.entries()) {
       const rng = new Random(c.seed);
       const n = c.grid.shape.reduce((a, b) => a * b, 1);
@@ -120,6 +136,7 @@ describe('fit: type-II maximum likelihood against sklearn GaussianProcessRegress
       expect(r.code, r.err).toBe(0);
       const fit = JSON.parse(r.out) as Fit;
       expect(fit.converged).toBe(true);
+      expect(fit.route).toBe(c.route ?? 'dense');
       runs.push({ c, fit, X, y });
     }
   }, 120_000);

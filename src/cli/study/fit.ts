@@ -4,7 +4,7 @@
  * evidence, the nugget floor that keeps κ(Cm) ≤ 1e10, the optimum checked by the positive-
  * definiteness diagnosis).
  */
-import { hyperParameters, maximiseEvidence, type HyperParameter } from '../../core/tuning/index.ts';
+import { hyperParameters, maximiseEvidence, tuningRoute, type HyperParameter } from '../../core/tuning/index.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
 import { writePriorFile } from '../../core/io/priorFile.ts';
 import { optionString, parseNumberOption, UsageError } from '../args.ts';
@@ -109,7 +109,8 @@ export const fit: Command = {
     'in natural units (degrees for an angle). The optimum is checked with the positive-definiteness diagnosis of `check`.\n' +
     'Prints {"prior": {a prior-file object}, "logEvidence", "startLogEvidence", "parameters": [{"name", "scale":\n' +
     '"log" | "linear", "value", "start", "standardError", "interval95": [lo, hi], "atBound": "low" | "high" | null}],\n' +
-    '"converged", "iterations", "evaluations", "conditioning": {"verdict", "positiveDefinite", "conditionNumber",\n' +
+    '"converged", "route": "dense" | "fft" (the evidence computations: FFT for a stationary prior above 1024 cells),\n' +
+    '"iterations", "evaluations", "conditioning": {"verdict", "positiveDefinite", "conditionNumber",\n' +
     '"usable", "nuggetAtFloor", "nuggetFloor"}, "note"?}. standardError is that of the fitted coordinate (of the\n' +
     'natural log for log-scale parameters: a relative error), from the curvature of the log evidence at the optimum\n' +
     '(Laplace approximation); null where the curvature is not negative definite or the parameter rests on a bound.',
@@ -160,6 +161,7 @@ export const fit: Command = {
           atBound: p.atBound,
         })),
         converged: r.converged,
+        route: route === 'auto' ? tuningRoute(problem, r.prior) : route,
         iterations: r.iterations,
         evaluations: r.evaluations,
         conditioning: r.conditioning,
