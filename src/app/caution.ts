@@ -1,7 +1,2 @@
-/**
- * The caution shown in the footer at all times and printed in the report (./session/actions.ts).
- * Its own module, importing nothing, so the report code need not import the App shell.
- */
-export const CAUTION =
-  'Results depend on the forward model, the data errors and the chosen prior. Where they inform decisions about ' +
-  'safety, resources or regulated matters, they need review by a qualified professional under local codes and practice.';
+/** The caution of the footer and the report; defined beside the report builder (src/core/report/caution.ts), a leaf module. */
+export { CAUTION } from '../core/report/caution.ts';

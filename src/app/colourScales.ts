@@ -11,23 +11,7 @@
  * colour-scheme types), no source quoted here.
  */
 
-/** Diverging scale of our own: plum below the reference, near-white at it, teal above. */
-export const DIVERGING: [number, string][] = [
-  [0, '#5a1f4d'],
-  [0.25, '#a8679a'],
-  [0.5, '#f7f7f4'],
-  [0.75, '#5fa7ad'],
-  [1, '#0c4f5c'],
-];
-
-/** Sequential scale of our own for magnitudes: pale sand (0) through teal to deep slate. */
-export const SEQUENTIAL: [number, string][] = [
-  [0, '#f4ecc4'],
-  [0.25, '#9ccc8a'],
-  [0.5, '#2f8f8c'],
-  [0.75, '#28507a'],
-  [1, '#1d2340'],
-];
+export { DIVERGING, SEQUENTIAL } from '../core/report/colours.ts';
 
 /** A colour range [low, high]. */
 export type Range = readonly [number, number];

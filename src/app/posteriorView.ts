@@ -69,44 +69,9 @@ export function bandsText(state: BandsState): string | null {
   }
 }
 
-/** Where the observed χ² lies against its reference, and what that says (our wording). */
-export interface FitVerdict {
-  readonly position: 'inside' | 'above' | 'below';
-  readonly text: string;
-}
-
-/**
- * The data-fit verdict: χ² of the posterior mean against the central 95% interval of its own
- * distribution under the model (expected value M − tr R, not M; src/core/inverse/fitReference.ts).
- */
-export function fitVerdict(chi2: number, ref: DataFitReference): FitVerdict {
-  if (chi2 > ref.interval95[1]) {
-    return {
-      position: 'above',
-      text: 'above: the data are fitted worse than these errors and this prior lead one to expect (errors understated, or a prior too stiff or of the wrong shape)',
-    };
-  }
-  if (chi2 < ref.interval95[0]) {
-    return {
-      position: 'below',
-      text: 'below: the data are fitted more closely than these errors and this prior lead one to expect (errors overstated, or a prior wider than the data support)',
-    };
-  }
-  return { position: 'inside', text: 'inside: the misfit is what these errors and this prior lead one to expect' };
-}
-
 /** What the reference rests on, for tooltips and the report. */
 export const FIT_REFERENCE_BASIS =
   'Reference: under the model, χ² of the posterior mean is a weighted sum of χ²₁ terms with weights the eigenvalues of L⁻¹ Cd L⁻ᵀ (K = G Cm Gᵀ + Cd = L Lᵀ), ' +
   'mean M − tr R (M minus the resolved parameters), not χ²_M: the posterior mean also fits part of the noise. Interval and tail probability by Imhof (1961) numerical inversion.';
 
-/**
- * A tail probability for display: 3 significant digits; below 1e-8 as "< 1e-8" and above 1 − 1e-8 as
- * "> 1 − 1e-8" (the quadrature's
- * absolute accuracy is about 1e-10, so smaller values carry no digits worth showing).
- */
-export function formatTail(p: number): string {
-  if (p < 1e-8) return '< 1e-8';
-  if (p > 1 - 1e-8) return '> 1 − 1e-8';
-  return p < 1e-3 ? p.toExponential(2) : String(Number(p.toPrecision(3)));
-}
+export { fitVerdict, formatTail, type FitVerdict } from '../core/report/words.ts';

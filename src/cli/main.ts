@@ -15,9 +15,10 @@ import { FileFormatError } from '../core/io/errors.ts';
 import { parseArgs, UsageError } from './args.ts';
 import { COMMANDS as CORE_COMMANDS, type Command, type Io } from './commands.ts';
 import { STUDY_COMMANDS } from './study/index.ts';
+import { report } from './report.ts';
 
 /** Every command, in the order of the help. */
-const COMMANDS: readonly Command[] = [...CORE_COMMANDS, ...STUDY_COMMANDS];
+const COMMANDS: readonly Command[] = [...CORE_COMMANDS, ...STUDY_COMMANDS, report];
 import { FORMATS_HELP } from './formats.ts';
 
 function pad(s: string, n: number): string {

@@ -1,0 +1,69 @@
+import { describe, expect, it } from 'vitest';
+import { defenceHtml, type DefenceInput } from '../../../src/core/report/defence.ts';
+import { colourAt, esc, extent, gridExtent, heatSvg, ticks } from '../../../src/core/report/svg.ts';
+import { DIVERGING } from '../../../src/core/report/colours.ts';
+
+const grid = { shape: [4, 2], spacing: [500, 250], origin: [250, 125], unit: 'm', axes: ['x', 'depth'] };
+const base: DefenceInput = {
+  title: '<img src=x onerror=alert(1)>',
+  source: 'test',
+  created: '2026-12-04 22:00 UTC',
+  caution: 'the caution',
+  grid,
+  quantity: { name: 'density', unit: 'kg/m³' },
+  dataUnit: 'mGal',
+  problemFacts: [['Grid', '4 × 2']],
+  coverage: [1, 2, 3, 4, 5, 6, 7, 8],
+  prior: { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length: 300 }], nugget: 0 },
+  priorWords: ['Mean: constant 0.'],
+  pd: [['Positive definite', 'yes, proven']],
+  priorMean: new Float64Array(8),
+  priorStd: new Float64Array(8).fill(1),
+  draws: { rows: 3, cols: 8, data: Float64Array.from({ length: 24 }, (_, i) => Math.sin(i)) },
+  seed: 1,
+  posterior: { mean: new Float64Array(8).fill(0.1), std: new Float64Array(8).fill(0.5), predicted: [1, 2] },
+  fitRows: [['χ²', '1']],
+  data: { values: [1, 2], sigma: [0.1, 0.1] },
+  truth: null,
+  evidence: null,
+  candidates: null,
+  criteria: null,
+  averaged: null,
+  missing: { evidence: 'no map here' },
+};
+
+describe('the defence document', () => {
+  it('has its ten sections in order and the caution; text from files is escaped; missing parts say why', () => {
+    const html = defenceHtml(base);
+    expect([...html.matchAll(/<section id="([a-z]+)">/g)].map((m) => m[1])).toEqual(['problem', 'prior', 'pd', 'realisations', 'posterior', 'fit', 'evidence', 'candidates', 'criteria', 'averaged']);
+    expect(html).not.toContain('<img');
+    expect(html).toContain('<h1>&lt;img src=x onerror=alert(1)&gt;</h1>');
+    expect(html).toContain('no map here');
+    expect(html).toContain('the caution');
+    // maps: coverage, 3 realisations, mean, std, (fit is a line plot)
+    expect((html.match(/<svg /g) ?? []).length).toBe(7);
+    expect(html).not.toMatch(/<script/);
+  });
+
+  it('draws a 2 km × 0.5 km section four times wider than high (true aspect)', () => {
+    const svg = heatSvg({ title: 't', field: new Float64Array(8), nx: 4, ny: 2, xRange: gridExtent(grid, 0), yRange: gridExtent(grid, 1), xLabel: 'x', yLabel: 'y', scale: DIVERGING, range: [-1, 1], unit: '', width: 200 });
+    expect(gridExtent(grid, 0)).toEqual([0, 2000]);
+    expect(gridExtent(grid, 1)).toEqual([0, 500]);
+    expect(svg).toContain('<rect x="50" y="22" width="200" height="50"');
+  });
+});
+
+describe('svg helpers', () => {
+  it('interpolates colour stops linearly and clamps', () => {
+    expect(colourAt([[0, '#000000'], [1, '#ffffff']], 0.5)).toBe('#808080');
+    expect(colourAt(DIVERGING, 0.5)).toBe('#f7f7f4');
+    expect(colourAt(DIVERGING, 2)).toBe('#0c4f5c');
+  });
+  it('picks round ticks and finite extents', () => {
+    expect(ticks(0, 2000, 4)).toEqual([0, 500, 1000, 1500, 2000]);
+    expect(ticks(-0.13, 0.27, 4)).toEqual([-0.1, 0, 0.1, 0.2]);
+    expect(extent([[3, Number.NaN, -1]])).toEqual([-1, 3]);
+    expect(extent([[2, 2]])).toEqual([1, 3]);
+    expect(esc(`a<b>&"'`)).toBe('a&lt;b&gt;&amp;&quot;&#39;');
+  });
+});
