@@ -53,6 +53,7 @@ type Score = {
   leaveOneOut: { logScore: number; contributions: number[] };
   discrepancy: { classical: { status: string; scale: number; chi2: number } };
   predictive: { pUpper: number };
+  route: string;
 };
 
 const close = (a: number, b: number, rel: number) => expect(Math.abs(a - b), `${a} vs ${b}`).toBeLessThanOrEqual(rel * Math.max(1, Math.abs(b)));
@@ -77,6 +78,7 @@ describe('score, profile and calibrate against numpy/scipy', () => {
       s.leaveOneOut.contributions.forEach((c, i) => close(c, ref.loo[i], 1e-8));
       close(s.leaveOneOut.logScore, ref.loo.reduce((x, y) => x + y, 0), 1e-8);
       expect(s.discrepancy.classical.status).toBe('found');
+      expect(s.route).toBe('dense');
       close(ref.chi2_scaled!, m, 1e-6);
     });
     const best = a.logEvidence >= b.logEvidence ? 0 : 1;

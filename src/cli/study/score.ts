@@ -5,7 +5,7 @@
  */
 import { NotPositiveDefiniteError, InputError } from '../../core/errors.ts';
 import { structuredProblem } from '../../core/inverse/structured.ts';
-import { CRITERIA_DIFFER_EXPLANATION, priorCriteria, type DiscrepancyResult } from '../../core/tuning/index.ts';
+import { CRITERIA_DIFFER_EXPLANATION, priorCriteria, tuningRoute, type DiscrepancyResult } from '../../core/tuning/index.ts';
 import { emit, OUT, PRIOR, PROBLEM, progress, READ_FROM, type Command, type Io } from '../commands.ts';
 import { loadPriors, loadProblemOption, priorObject, priorPaths, ROUTE, routeOption } from './common.ts';
 import { problemKey, runShardable, SHARD } from './shard.ts';
@@ -64,7 +64,8 @@ export const score: Command = {
     '                   "mean-fits" | "unreachable", "scale" (the factor on every variance and the nugget), "chi2",\n' +
     '                   "target", "chi2Range": [χ² at scale → 0, at → ∞]};\n' +
     '  predictive       prior predictive check q = rᵀK⁻¹r ~ χ²_M: {"statistic", "dataCount", "reduced", "pUpper",\n' +
-    '                   "pLower", "pTwoSided", "interval95", "plausible"}.\n' +
+    '                   "pLower", "pTwoSided", "interval95", "plausible"};\n' +
+    '  route            "dense" | "fft" (FFT for a stationary prior above 1024 cells, unless --route says).\n' +
     'A prior whose K does not factor gets {"prior", "error"}. Prints {"priors", "scores": [one per prior, with "prior"],\n' +
     '"bestByEvidence", "bestByLeaveOneOut" (indices or null), "plausibleCount", "explanation"}.\n' +
     'With --shard K/N only prior files ⌊(K−1)T/N⌋ … ⌊KT/N⌋ − 1 are scored into a partial result for `priorscope merge`.',
@@ -107,6 +108,7 @@ function scoreOne(io: Io, problem: Parameters<typeof priorCriteria>[0], prior: P
       leaveOneOut: { logScore: c.leaveOneOut.logScore, contributions: c.leaveOneOut.contributions, standardised: c.leaveOneOut.standardised },
       discrepancy: { classical: discrepancy(c.discrepancy), expected: discrepancy(c.discrepancyExpected) },
       predictive: { statistic: p.statistic, dataCount: p.dataCount, reduced: p.reduced, pUpper: p.pUpper, pLower: p.pLower, pTwoSided: p.pTwoSided, interval95: p.interval95, plausible: p.plausible },
+      route: route === 'auto' ? tuningRoute(problem, prior) : route,
     };
   } catch (e) {
     if (e instanceof NotPositiveDefiniteError || e instanceof InputError) return { prior: label, error: e.message };
