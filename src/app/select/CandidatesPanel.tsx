@@ -3,34 +3,17 @@ import { useEffect, useMemo, useState } from 'react';
 import { useWb } from '../context.ts';
 import { Plot } from '../Plot.tsx';
 import { NumberField } from '../controls.tsx';
-import { axes2D, axis1D, gridDimension, MAP_SCALE, rowOf, toRows2D, type Trace } from '../traces.ts';
+import { axis1D, gridDimension, rowOf } from '../traces.ts';
 import type { ProblemView } from '../../worker/protocol.ts';
 import { bestRow, fmt, SCORE_COLUMNS, scoreRows } from './candidates.ts';
 import { Num, TaskStatusLine } from './common.tsx';
 import { candidatesKey, type Candidate } from './slice.ts';
-import { candidateBandTraces } from './traces.ts';
+import { candidateBandTraces, candidateDrawTraces, candidateLineLayout, candidateMapLayout, candidateMapTrace, candidateTruthTrace } from './traces.ts';
 import { evidenceReadings, priorLine } from './evidenceScale.ts';
 import type { CandidateScores } from '../../worker/tuningProtocol.ts';
-import { axisLabel, downAxisLabel, withUnit } from '../labels.ts';
+import { axisLabel, withUnit } from '../labels.ts';
 import { candidateRanges, DIVERGING, SEQUENTIAL } from '../colourScales.ts';
 import { useColourLimits } from '../overview/colourLimits.ts';
-
-function mapTrace(p: ProblemView, field: ArrayLike<number>, name: string, extra: Trace = {}): Trace {
-  const { x, y } = axes2D(p.grid);
-  return { type: 'heatmap', x, y, z: toRows2D(p.grid, field), colorscale: MAP_SCALE, name, colorbar: { thickness: 8 }, ...extra };
-}
-
-/** One colour range for every pinned candidate's maps (src/app/colourScales.ts candidateRanges). */
-function rangeExtra(scale: [number, string][], r: readonly [number, number]): Trace {
-  return { colorscale: scale, zmin: r[0], zmax: r[1] };
-}
-/** Same orientation as every other map (second axis increasing downwards, ../labels.ts), marked ↓ in the axis title. */
-const mapLayout = (p: ProblemView, title: string) => ({
-  title: { text: title, font: { size: 11 } },
-  yaxis: { autorange: 'reversed', scaleanchor: 'x', constrain: 'domain', title: { text: downAxisLabel(p.grid) } },
-  xaxis: { constrain: 'domain', title: { text: axisLabel(p.grid, 0) } },
-  margin: { l: 40, r: 8, t: 26, b: 30 },
-});
 
 export function CandidatesPanel() {
   const p = useWb((s) => s.problem)!;
@@ -141,19 +124,12 @@ function Comparison({ p, candidates, scores }: { p: ProblemView; candidates: rea
     if (is2D) return null;
     const x = axis1D(p.grid);
     const traces = candidateBandTraces(x, ok.map(({ c, s }) => ({ name: c.name, colour: c.colour, mean: s.mean, std: s.std })));
-    if (p.truth) traces.push({ type: 'scatter', mode: 'lines', name: 'truth', x: Array.from(x), y: Array.from(p.truth), line: { color: '#3a3a46', dash: 'dot', width: 1 } });
+    if (p.truth) traces.push(candidateTruthTrace(x, p.truth));
     return traces;
   }, [p, ok, is2D]);
   const draws = useMemo(() => {
     if (is2D) return null;
-    const x = Array.from(axis1D(p.grid));
-    const out: Trace[] = [];
-    for (const { c, s } of ok) {
-      for (let k = 0; k < s.draws.rows; k++) {
-        out.push({ type: 'scatter', mode: 'lines', name: `${c.name} draw ${k + 1}`, x, y: Array.from(rowOf(s.draws.data, s.draws.cols, k)), line: { color: c.colour, width: 1 }, showlegend: k === 0, legendgroup: c.id });
-      }
-    }
-    return out;
+    return candidateDrawTraces(axis1D(p.grid), ok.map(({ c, s }) => ({ id: c.id, name: c.name, colour: c.colour, draws: s.draws })));
   }, [p, ok, is2D]);
   const xTitle = axisLabel(p.grid, 0);
   const q = withUnit(p.quantity.name, p.quantity.unit);
@@ -165,8 +141,8 @@ function Comparison({ p, candidates, scores }: { p: ProblemView; candidates: rea
   if (!is2D) {
     return (
       <div className="grid-2">
-        <Plot id="plot-candidate-bands" label="Posterior mean and 95% band of each candidate" data={bands!} layout={{ title: { text: 'Posterior mean and 95% band per candidate', font: { size: 12 } }, xaxis: { title: { text: xTitle, standoff: 4 } }, legend: { orientation: 'h', x: 0, y: -0.2, yanchor: 'top' }, yaxis: { title: { text: q } } }} height={300} />
-        <Plot id="plot-candidate-draws" label="Posterior realisations of each candidate" data={draws!} layout={{ title: { text: 'Posterior realisations per candidate (same seed)', font: { size: 12 } }, xaxis: { title: { text: xTitle, standoff: 4 } }, legend: { orientation: 'h', x: 0, y: -0.2, yanchor: 'top' }, yaxis: { title: { text: q } } }} height={300} />
+        <Plot id="plot-candidate-bands" label="Posterior mean and 95% band of each candidate" data={bands!} layout={candidateLineLayout('Posterior mean and 95% band per candidate', xTitle, q)} height={300} />
+        <Plot id="plot-candidate-draws" label="Posterior realisations of each candidate" data={draws!} layout={candidateLineLayout('Posterior realisations per candidate (same seed)', xTitle, q)} height={300} />
       </div>
     );
   }
@@ -174,9 +150,9 @@ function Comparison({ p, candidates, scores }: { p: ProblemView; candidates: rea
     <div className="sel-maps">
       {ok.map(({ c, s }) => (
         <div key={c.id} className="grid-3" style={{ borderLeft: `4px solid ${c.colour}` }}>
-          <Plot id={`plot-cand-mean-${c.id}`} label={`${c.name}: posterior mean`} data={[mapTrace(p, s.mean, 'mean', rangeExtra(DIVERGING, ranges.signed))]} layout={mapLayout(p, withUnit(`${c.name}: posterior mean`, p.quantity.unit))} height={220} />
-          <Plot id={`plot-cand-std-${c.id}`} label={`${c.name}: posterior standard deviation`} data={[mapTrace(p, s.std, 'std', rangeExtra(SEQUENTIAL, ranges.std))]} layout={mapLayout(p, withUnit(`${c.name}: posterior std`, p.quantity.unit))} height={220} />
-          <Plot id={`plot-cand-draw-${c.id}`} label={`${c.name}: a posterior realisation`} data={[mapTrace(p, rowOf(s.draws.data, s.draws.cols, 0), 'draw 1', rangeExtra(DIVERGING, ranges.signed))]} layout={mapLayout(p, `${c.name}: posterior realisation 1`)} height={220} />
+          <Plot id={`plot-cand-mean-${c.id}`} label={`${c.name}: posterior mean`} data={[candidateMapTrace(p.grid, s.mean, 'mean', DIVERGING, ranges.signed)]} layout={candidateMapLayout(p.grid, withUnit(`${c.name}: posterior mean`, p.quantity.unit))} height={220} />
+          <Plot id={`plot-cand-std-${c.id}`} label={`${c.name}: posterior standard deviation`} data={[candidateMapTrace(p.grid, s.std, 'std', SEQUENTIAL, ranges.std)]} layout={candidateMapLayout(p.grid, withUnit(`${c.name}: posterior std`, p.quantity.unit))} height={220} />
+          <Plot id={`plot-cand-draw-${c.id}`} label={`${c.name}: a posterior realisation`} data={[candidateMapTrace(p.grid, rowOf(s.draws.data, s.draws.cols, 0), 'draw 1', DIVERGING, ranges.signed)]} layout={candidateMapLayout(p.grid, `${c.name}: posterior realisation 1`)} height={220} />
         </div>
       ))}
     </div>

@@ -4,7 +4,10 @@
  * test/app/select/traces.test.ts.
  */
 import type { EvidenceMap, EvidenceProfile } from '../../core/tuning/index.ts';
-import type { Trace } from '../traces.ts';
+import type { Grid } from '../../core/grid/grid.ts';
+import type { Matrix } from '../../core/linalg/matrix.ts';
+import { axisLabel, downAxisLabel } from '../labels.ts';
+import { axes2D, COLOURS, rowOf, toRows2D, type Trace } from '../traces.ts';
 
 /** Colour scale of the evidence map (our own: ink blue through plum to warm cream). */
 export const EVIDENCE_SCALE: [number, string][] = [
@@ -155,4 +158,56 @@ export function candidateBandTraces(x: ArrayLike<number>, items: readonly { name
     out.push({ type: 'scatter', mode: 'lines', name: `${it.name} mean`, x: Array.from(x), y: Array.from(it.mean), line: { color: it.colour, width: 2 } });
   }
   return out;
+}
+
+/** A pinned candidate's posterior draws on a 1-D grid: one line per draw in its colour, one legend entry per candidate. */
+export function candidateDrawTraces(x: ArrayLike<number>, items: readonly { id: string; name: string; colour: string; draws: Matrix }[]): Trace[] {
+  const xs = Array.from(x);
+  const out: Trace[] = [];
+  for (const it of items) {
+    for (let k = 0; k < it.draws.rows; k++) {
+      out.push({
+        type: 'scatter',
+        mode: 'lines',
+        name: `${it.name} draw ${k + 1}`,
+        x: xs,
+        y: Array.from(rowOf(it.draws.data, it.draws.cols, k)),
+        line: { color: it.colour, width: 1 },
+        showlegend: k === 0,
+        legendgroup: it.id,
+      });
+    }
+  }
+  return out;
+}
+
+/** The truth as a dotted line over the candidates' bands. */
+export function candidateTruthTrace(x: ArrayLike<number>, truth: ArrayLike<number>): Trace {
+  return { type: 'scatter', mode: 'lines', name: 'truth', x: Array.from(x), y: Array.from(truth), line: { color: COLOURS.truth, dash: 'dot', width: 1 } };
+}
+
+/** Layout of the candidates' 1-D comparison plots (bands, draws): legend below, axis titles with units. */
+export function candidateLineLayout(title: string, xTitle: string, yTitle: string): Record<string, unknown> {
+  return {
+    title: { text: title, font: { size: 12 } },
+    xaxis: { title: { text: xTitle, standoff: 4 } },
+    legend: { orientation: 'h', x: 0, y: -0.2, yanchor: 'top' },
+    yaxis: { title: { text: yTitle } },
+  };
+}
+
+/** A candidate's map on a 2-D grid, on the colour scale and range every candidate shares (../colourScales.ts candidateRanges). */
+export function candidateMapTrace(grid: Grid, field: ArrayLike<number>, name: string, scale: [number, string][], range: readonly [number, number]): Trace {
+  const { x, y } = axes2D(grid);
+  return { type: 'heatmap', x, y, z: toRows2D(grid, field), colorscale: scale, name, colorbar: { thickness: 8 }, zmin: range[0], zmax: range[1] };
+}
+
+/** Same orientation as every other map (second axis increasing downwards, ../labels.ts), marked ↓ in the axis title. */
+export function candidateMapLayout(grid: Grid, title: string): Record<string, unknown> {
+  return {
+    title: { text: title, font: { size: 11 } },
+    yaxis: { autorange: 'reversed', scaleanchor: 'x', constrain: 'domain', title: { text: downAxisLabel(grid) } },
+    xaxis: { constrain: 'domain', title: { text: axisLabel(grid, 0) } },
+    margin: { l: 40, r: 8, t: 26, b: 30 },
+  };
 }

@@ -1,6 +1,18 @@
 /** Pure builders of the prior-selection screen: heat-map orientation, cell picking, bands, rows. */
 import { describe, expect, it } from 'vitest';
-import { evidenceMapTraces, logValues, mapCellAt, candidateBandTraces, rankTraces, withAlpha } from '../../../src/app/select/traces.ts';
+import {
+  candidateBandTraces,
+  candidateDrawTraces,
+  candidateLineLayout,
+  candidateMapLayout,
+  candidateMapTrace,
+  candidateTruthTrace,
+  evidenceMapTraces,
+  logValues,
+  mapCellAt,
+  rankTraces,
+  withAlpha,
+} from '../../../src/app/select/traces.ts';
 import { bestRow, fmt, nextCandidateStyle, SCORE_COLUMNS, scoreRows, CANDIDATE_STYLES } from '../../../src/app/select/candidates.ts';
 import type { EvidenceMap } from '../../../src/core/tuning/index.ts';
 import type { CandidateScores } from '../../../src/worker/tuningProtocol.ts';
@@ -57,6 +69,37 @@ describe('candidate pictures', () => {
     expect(y[2]).toBeCloseTo(2 - 1.959963984540054, 14);
     expect(t[0].fillcolor).toBe('rgba(16, 32, 48, 0.14)');
     expect(() => withAlpha('teal', 1)).toThrow(/#rrggbb/);
+  });
+
+  it('draws each candidate’s realisations in its colour with one legend entry per candidate', () => {
+    const draws = { rows: 2, cols: 3, data: Float64Array.from([1, 2, 3, 4, 5, 6]) };
+    const t = candidateDrawTraces(Float64Array.from([0, 1, 2]), [
+      { id: 'a', name: 'A', colour: '#102030', draws },
+      { id: 'b', name: 'B', colour: '#405060', draws: { rows: 1, cols: 3, data: Float64Array.from([7, 8, 9]) } },
+    ]);
+    expect(t.map((x) => [x.name, x.showlegend, x.legendgroup])).toEqual([
+      ['A draw 1', true, 'a'],
+      ['A draw 2', false, 'a'],
+      ['B draw 1', true, 'b'],
+    ]);
+    expect(t[1].x).toEqual([0, 1, 2]);
+    expect(t[1].y).toEqual([4, 5, 6]);
+    expect(t[2].line).toMatchObject({ color: '#405060' });
+    expect(candidateTruthTrace([0, 1], Float64Array.from([3, 4]))).toMatchObject({ name: 'truth', x: [0, 1], y: [3, 4] });
+    expect(candidateLineLayout('T', 'x (m)', 'T (K)')).toMatchObject({ xaxis: { title: { text: 'x (m)' } }, yaxis: { title: { text: 'T (K)' } } });
+  });
+
+  it('maps a candidate on the shared range, rows along the second axis drawn downwards', () => {
+    const grid = { shape: [2, 2], spacing: [1, 3], origin: [0, 1], unit: 'm', axes: ['x', 'depth'] };
+    const scale: [number, string][] = [
+      [0, '#000000'],
+      [1, '#ffffff'],
+    ];
+    const t = candidateMapTrace(grid, [1, 2, 3, 4], 'mean', scale, [-5, 5]);
+    expect(t).toMatchObject({ type: 'heatmap', x: [0, 1], y: [1, 4], z: [[1, 2], [3, 4]], zmin: -5, zmax: 5, colorscale: scale });
+    const l = candidateMapLayout(grid, 'A: posterior mean');
+    expect(l.yaxis).toMatchObject({ autorange: 'reversed', scaleanchor: 'x', title: { text: 'depth (m) ↓' } });
+    expect(l.xaxis).toMatchObject({ title: { text: 'x (m)' } });
   });
 
   it('rank histogram has the flat reference at total / bins', () => {
