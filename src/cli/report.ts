@@ -17,10 +17,10 @@ import { diagnosePriorAuto } from '../core/prior/structuredDiagnostics.ts';
 import { meanVector } from '../core/prior/mean.ts';
 import { priorRealisations } from '../core/sampling/realisations.ts';
 import { evidenceMap, termLength } from '../core/tuning/evidenceMap.ts';
-import { averagedPosterior, hyperPriorWords, HYPER_PRIORS, type HyperPrior } from '../core/tuning/averaged.ts';
+import { averagedPosterior, HYPER_PRIORS, type HyperPrior } from '../core/tuning/averaged.ts';
 import { priorCriteria } from '../core/tuning/criteria.ts';
 import { defenceHtml, type DefenceInput } from '../core/report/defence.ts';
-import { criteriaRows, fitReferenceRows, pdRows, priorInWords } from '../core/report/words.ts';
+import { averagedRows, criteriaRows, fitReferenceRows, pdRows, priorInWords } from '../core/report/words.ts';
 import { evidenceReadings, priorLine } from '../core/report/evidenceScale.ts';
 import { CAUTION } from '../core/report/caution.ts';
 import type { PriorSpec } from '../core/prior/spec.ts';
@@ -116,14 +116,7 @@ export const report: Command = {
       averaged = {
         mean: a.mean,
         std: a.std,
-        rows: [
-          ['Hyper-prior', hyperPriorWords(hyper)],
-          ['Weights', `evidence × hyper-prior over the ${map.lengths.length} × ${map.variances.length} cells; ${a.cellsUsed} cells above 1e-6 of the weight entered (skipped weight ${g4(a.skippedWeight)}); effective number of cells ${g4(a.effectiveCells)}`],
-          ['Weighted length and variance', `${g4(a.meanLength)}${unit ? ' ' + unit : ''} and ${g4(a.meanVariance)} (the chosen prior: ${g4(l)} and ${g4(term.variance)})`],
-          ['Weight on the map\'s edge', `${g4(a.edgeWeight)}${a.edgeWeight > 0.05 ? ' — the map does not hold the evidence\'s mass; widen it' : ''}`],
-          ['Averaged variance', 'mean of the cells\' variances + variance of their means (law of total variance)'],
-          ['Largest change of the mean', `${g4(maxAbsDiff(a.mean, sm.mean))}${qUnit ? ' ' + qUnit : ''} (largest posterior std of the chosen prior ${g4(Math.max(...sm.std))})`],
-        ],
+        rows: averagedRows(a, { length: l, variance: term.variance, mean: sm.mean, std: sm.std }, unit, qUnit),
       };
       averagedOut = { cellsUsed: a.cellsUsed, effectiveCells: a.effectiveCells, edgeWeight: a.edgeWeight, hyperPrior: hyper, maxMeanChange: maxAbsDiff(a.mean, sm.mean) };
     }

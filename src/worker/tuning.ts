@@ -56,6 +56,7 @@ import {
   type EvidenceMethod,
   type EvidenceProfile,
 } from '../core/tuning/index.ts';
+import { averagedPosterior } from '../core/tuning/averaged.ts';
 import { assertNever, InputError } from '../core/errors.ts';
 import type { WorkerRequest } from './protocol.ts';
 import type { CandidateScores, CrossCalibration, TuningRequest, TuningResultMap } from './tuningProtocol.ts';
@@ -115,6 +116,10 @@ async function dispatch(problem: Problem, r: TuningRequest, progress: ProgressFn
       return scoreCandidates(problem, r.priors, r.draws, r.seed, progress, signal, structured);
     case 'crossCalibration':
       return crossCalibration(problem, r.priors, r, progress, signal, structured);
+    case 'averaged':
+      // One posterior per map cell of non-negligible weight (src/core/tuning/averaged.ts); not cancellable part way.
+      progress('averaging the posterior over the evidence map', 0);
+      return averagedPosterior(problem, r.prior, r.map, { hyperPrior: r.hyperPrior });
     default:
       return assertNever(r);
   }

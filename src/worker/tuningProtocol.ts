@@ -18,8 +18,9 @@ import type {
   TypeIIResult,
 } from '../core/tuning/index.ts';
 import type { RequestBase } from './requestBase.ts';
+import type { AveragedPosterior, AveragingMap, HyperPrior } from '../core/tuning/averaged.ts';
 
-export const TUNING_KINDS = ['evidenceMap', 'evidenceProfile', 'typeII', 'criteria', 'calibration', 'candidates', 'crossCalibration'] as const;
+export const TUNING_KINDS = ['evidenceMap', 'evidenceProfile', 'typeII', 'criteria', 'calibration', 'candidates', 'crossCalibration', 'averaged'] as const;
 export type TuningKind = (typeof TUNING_KINDS)[number];
 
 export function isTuningKind(kind: string): kind is TuningKind {
@@ -47,7 +48,8 @@ export type TuningRequest =
   | (RequestBase & ForPrior & { readonly kind: 'criteria' })
   | (RequestBase & ForPrior & Simulation & { readonly kind: 'calibration' })
   | (RequestBase & ForCandidates & { readonly kind: 'candidates'; readonly draws: number; readonly seed: number })
-  | (RequestBase & ForCandidates & Simulation & { readonly kind: 'crossCalibration' });
+  | (RequestBase & ForCandidates & Simulation & { readonly kind: 'crossCalibration' })
+  | (RequestBase & ForPrior & { readonly kind: 'averaged'; readonly map: AveragingMap; readonly hyperPrior: HyperPrior });
 
 /** Scores and pictures of one pinned candidate (or why it could not be scored). */
 export type CandidateScores =
@@ -87,4 +89,5 @@ export interface TuningResultMap {
   calibration: CalibrationResult;
   candidates: readonly CandidateScores[];
   crossCalibration: CrossCalibration;
+  averaged: AveragedPosterior;
 }

@@ -12,6 +12,7 @@ import { CandidatesPanel } from './CandidatesPanel.tsx';
 import { MAX_PINNED, fmt } from './candidates.ts';
 import { CriteriaPanel } from './CriteriaPanel.tsx';
 import { EvidencePanel } from './EvidencePanel.tsx';
+import { AveragedPanel } from './AveragedPanel.tsx';
 import './select.css';
 
 type View = 'evidence' | 'criteria' | 'candidates';
@@ -61,6 +62,7 @@ export function SelectScreen() {
         </p>
       )}
       {view === 'evidence' && <EvidencePanel />}
+      {view === 'evidence' && <AveragedPanel />}
       {view === 'criteria' && <CriteriaPanel />}
       {view === 'candidates' && <CandidatesPanel />}
     </div>

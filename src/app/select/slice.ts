@@ -9,6 +9,7 @@
  * shows a result only while the key still matches.
  */
 import { assertNever } from '../../core/errors.ts';
+import type { HyperPrior } from '../../core/tuning/averaged.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
 import { setTermLength, withTerm, type LogAxis, type ProfileParameter } from '../../core/tuning/index.ts';
 import type { TuningKind, TuningResultMap } from '../../worker/tuningProtocol.ts';
@@ -55,6 +56,8 @@ export interface SelectSlice {
   runCalibration(replicates: number, draws: number): void;
   refreshCandidates(): void;
   runCrossCalibration(replicates: number, draws: number): void;
+  /** Average the posterior over the last evidence map's cells (src/core/tuning/averaged.ts). */
+  runAveraged(hyperPrior: HyperPrior): void;
   cancelTuning(kind: TuningKind): void;
   /** Apply map cell `index` (row-major over length, variance) of the last map to the prior's term. */
   applyMapCell(index: number): void;
@@ -209,6 +212,13 @@ export function createSelectSlice(set: StoreSet, get: StoreGet, client: Pick<Cli
       const c = current();
       if (!c) return;
       start('evidenceProfile', `${priorKey(c.s)}:${JSON.stringify(which)}:${values.join(',')}`, c.prior, { prior: c.prior, which, values });
+    },
+    runAveraged(hyperPrior) {
+      const c = current();
+      const t = c?.s.selectTasks.evidenceMap;
+      if (!c || !t?.value || !t.prior || !t.key) return;
+      const { term, lengths, variances, logEvidence } = t.value;
+      start('averaged', `${t.key}:${hyperPrior}`, t.prior, { prior: t.prior, map: { term, lengths, variances, logEvidence }, hyperPrior });
     },
     runFit(fixed) {
       const c = current();

@@ -8,7 +8,7 @@ import type { WorkbenchState } from '../store.ts';
 import { cellCount } from '../../core/grid/grid.ts';
 import type { Matrix } from '../../core/linalg/matrix.ts';
 import { defenceHtml, type DefenceInput } from '../../core/report/defence.ts';
-import { criteriaRows, fitReferenceRows, pdRows, priorInWords } from '../../core/report/words.ts';
+import { averagedRows, criteriaRows, fitReferenceRows, pdRows, priorInWords } from '../../core/report/words.ts';
 import { evidenceReadings, priorLine } from '../../core/report/evidenceScale.ts';
 import { termLength } from '../../core/tuning/evidenceMap.ts';
 export { fitReferenceRows, priorInWords, termInWords } from '../../core/report/words.ts';
@@ -63,6 +63,8 @@ export function reportInput(s: WorkbenchState, caution: string, draws: Matrix | 
   const mapTerm = map ? s.prior.terms[map.term] : undefined;
   const crit = s.selectTasks.criteria.value && s.selectTasks.criteria.key === `${p.version}:${s.priorRevision}` ? s.selectTasks.criteria.value : null;
   const scores = s.selectTasks.candidates.value;
+  const avgTask = s.selectTasks.averaged;
+  const avg = map && avgTask.value && mapTask.key && avgTask.key?.startsWith(`${mapTask.key}:`) ? avgTask.value : null;
   const candidates =
     s.candidates.length > 0
       ? candidateTable(
@@ -99,12 +101,15 @@ export function reportInput(s: WorkbenchState, caution: string, draws: Matrix | 
     evidence: map && mapTerm ? { lengths: map.lengths, variances: map.variances, logEvidence: map.logEvidence, term: map.term, chosen: [termLength(mapTerm), mapTerm.variance] } : null,
     candidates,
     criteria: crit ? criteriaRows(crit) : null,
-    averaged: null,
+    averaged:
+      avg && mapTerm
+        ? { mean: avg.mean, std: avg.std, rows: averagedRows(avg, { length: termLength(mapTerm), variance: mapTerm.variance, mean: sm.mean, std: sm.std }, unit, p.quantity.unit) }
+        : null,
     missing: {
       evidence: 'No evidence map was computed in the workbench (Choose prior screen), or it belongs to another problem.',
       candidates: 'No candidate priors were pinned.',
       criteria: 'The criteria were not computed for this prior (Choose prior screen).',
-      averaged: 'The hyperparameter-averaged posterior is computed by the command line: priorscope report --problem P --prior Q --out R.html.',
+      averaged: 'The hyperparameter-averaged posterior was not computed (Choose prior screen, after an evidence map; or priorscope report on the command line).',
     },
   };
 }

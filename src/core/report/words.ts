@@ -10,6 +10,7 @@ import type { PriorSpec } from '../prior/spec.ts';
 import type { Diagnostics } from '../prior/diagnostics.ts';
 import type { DataFitReference } from '../inverse/fitReference.ts';
 import type { DiscrepancyResult, PriorCriteria } from '../tuning/criteria.ts';
+import { hyperPriorWords, type AveragedPosterior } from '../tuning/averaged.ts';
 
 /** Where the observed χ² lies against its reference, and what that says (our wording). */
 export interface FitVerdict {
@@ -126,5 +127,30 @@ export function criteriaRows(c: PriorCriteria): [string, string][] {
     ['discrepancy rule, χ² = M − tr R', disc(c.discrepancyExpected)],
     ['prior predictive check', `q/M = ${g4(c.priorPredictive.reduced)}, two-sided p = ${formatTail(c.priorPredictive.pTwoSided)}: ${c.priorPredictive.plausible ? 'the data are plausible under this prior' : 'the data are implausible under this prior'}`],
     ['when they disagree', c.explanation],
+  ];
+}
+
+/** The averaged posterior's facts in rows (src/core/tuning/averaged.ts), against the chosen prior's posterior. */
+export function averagedRows(
+  a: AveragedPosterior,
+  chosen: { readonly length: number; readonly variance: number; readonly mean: ArrayLike<number>; readonly std: ArrayLike<number> },
+  lengthUnit: string,
+  valueUnit: string,
+): [string, string][] {
+  let change = 0;
+  let sMax = 0;
+  for (let i = 0; i < a.mean.length; i++) {
+    change = Math.max(change, Math.abs(a.mean[i]! - chosen.mean[i]!));
+    sMax = Math.max(sMax, chosen.std[i]!);
+  }
+  const lu = lengthUnit ? ` ${lengthUnit}` : '';
+  const vu = valueUnit ? ` ${valueUnit}` : '';
+  return [
+    ['Hyper-prior', hyperPriorWords(a.hyperPrior)],
+    ['Weights', `evidence × hyper-prior over the map's ${a.weights.length} cells; ${a.cellsUsed} cells above 1e-6 of the weight entered (skipped weight ${g4(a.skippedWeight)}); effective number of cells ${g4(a.effectiveCells)}`],
+    ['Weighted length and variance', `${g4(a.meanLength)}${lu} and ${g4(a.meanVariance)} (the chosen prior: ${g4(chosen.length)}${lu} and ${g4(chosen.variance)})`],
+    ["Weight on the map's edge", `${g4(a.edgeWeight)}${a.edgeWeight > 0.05 ? " — the map does not hold the evidence's mass; widen it" : ''}`],
+    ['Averaged variance', "mean of the cells' variances + variance of their means (law of total variance)"],
+    ['Largest change of the mean', `${g4(change)}${vu} (largest posterior std of the chosen prior ${g4(sMax)}${vu})`],
   ];
 }

@@ -59,6 +59,9 @@ export function averagingWeights(map: Pick<EvidenceMap, 'lengths' | 'variances' 
   return w;
 }
 
+/** What the average needs of an evidence map. */
+export type AveragingMap = Pick<EvidenceMap, 'term' | 'lengths' | 'variances' | 'logEvidence'>;
+
 export interface AveragedPosterior {
   readonly mean: Float64Array;
   readonly std: Float64Array;
@@ -94,7 +97,7 @@ export function priorOfCell(prior: PriorSpec, term: number, length: number, vari
  * The averaged posterior over an evidence map of `prior` (its term `map.term`). Each used cell's
  * posterior is computed with {@link computePosteriorSerial} (the route the workbench would take).
  */
-export function averagedPosterior(problem: Problem, prior: PriorSpec, map: EvidenceMap, options: AveragedOptions = {}): AveragedPosterior {
+export function averagedPosterior(problem: Problem, prior: PriorSpec, map: AveragingMap, options: AveragedOptions = {}): AveragedPosterior {
   const hyper = options.hyperPrior ?? 'log-uniform';
   const minWeight = options.minWeight ?? 1e-6;
   const w = averagingWeights(map, hyper);
