@@ -8,7 +8,7 @@ import { NumberField } from '../controls.tsx';
 import { hyperParameters, termLength } from '../../core/tuning/index.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
 import type { ProfileParameter } from '../../core/tuning/index.ts';
-import { evidenceMapTraces, logValues, mapCellAt, profileTraces } from './traces.ts';
+import { evidenceMapTraces, logValues, mapCellAt, mapCursorTrace, profileTraces } from './traces.ts';
 import { fmt } from './candidates.ts';
 import { parameterLabel, withUnit } from '../labels.ts';
 import { Num, TaskStatusLine } from './common.tsx';
@@ -59,21 +59,7 @@ export function EvidencePanel() {
   const traces = useMemo(() => {
     if (!map) return [];
     const t = evidenceMapTraces(map, current);
-    if (cursorCell === null) return t;
-    const nv = map.variances.length;
-    const i = Math.floor(cursorCell / nv);
-    return [
-      ...t,
-      {
-        type: 'scatter',
-        mode: 'markers',
-        name: 'keyboard cell',
-        x: [Math.log10(map.lengths[i])],
-        y: [Math.log10(map.variances[cursorCell % nv])],
-        marker: { symbol: 'square-open', size: 16, color: '#ffffff', line: { width: 2.5, color: '#ffffff' } },
-        hoverinfo: 'skip',
-      },
-    ];
+    return cursorCell === null ? t : [...t, mapCursorTrace(map, cursorCell)];
   }, [map, current, cursorCell]);
   const onMapKey = (e: KeyboardEvent<HTMLDivElement>) => {
     if (!map) return;

@@ -86,6 +86,23 @@ export function evidenceMapTraces(map: EvidenceMap, current: { length: number; v
   return traces;
 }
 
+/**
+ * The keyboard cursor on the evidence map (./mapKeys.ts): an open square on cell `cell` (the map's
+ * row-major index over (length, variance)), at the same log₁₀ coordinates as the heat map.
+ */
+export function mapCursorTrace(map: Pick<EvidenceMap, 'lengths' | 'variances'>, cell: number): Trace {
+  const nv = map.variances.length;
+  return {
+    type: 'scatter',
+    mode: 'markers',
+    name: 'keyboard cell',
+    x: [Math.log10(map.lengths[Math.floor(cell / nv)])],
+    y: [Math.log10(map.variances[cell % nv])],
+    marker: { symbol: 'square-open', size: 16, color: '#ffffff', line: { width: 2.5, color: '#ffffff' } },
+    hoverinfo: 'skip',
+  };
+}
+
 /** Index (row-major over length, variance) of the map cell nearest to (log₁₀ ℓ, log₁₀ σ²), null outside the map. */
 export function mapCellAt(map: Pick<EvidenceMap, 'lengths' | 'variances'>, x: number, y: number): number | null {
   const near = (axis: Float64Array, v: number): number | null => {

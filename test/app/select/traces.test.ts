@@ -10,6 +10,7 @@ import {
   evidenceMapTraces,
   logValues,
   mapCellAt,
+  mapCursorTrace,
   rankTraces,
   withAlpha,
 } from '../../../src/app/select/traces.ts';
@@ -49,6 +50,15 @@ describe('evidence map traces', () => {
     expect(mapCellAt(m, 2.4, 0.2)).toBe(2 * 2 + 1);
     expect(mapCellAt(m, 3.6, 0)).toBeNull();
     expect(mapCellAt(m, 0, 1.6)).toBeNull();
+  });
+
+  it('puts the keyboard cursor on the cell it names, at the heat map’s coordinates', () => {
+    const m = fakeMap();
+    // cell 3 = length index 1 (10), variance index 1 (1): log₁₀ coordinates (1, 0); mapCellAt maps them back
+    const t = mapCursorTrace(m, 3);
+    expect(t.x).toEqual([1]);
+    expect(t.y).toEqual([0]);
+    expect(mapCellAt(m, (t.x as number[])[0]!, (t.y as number[])[0]!)).toBe(3);
   });
 
   it('log-spaced values hit both ends and have a constant ratio', () => {
