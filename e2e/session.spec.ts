@@ -306,19 +306,45 @@ test('the template problem loads by drag-and-drop; plots, realisations and the r
   expect(maxRelDiff(mean, posteriorSummary(preparePosterior(problem, s.prior)).mean)).toBeLessThan(TOL);
 
   await page.getByTestId('export-menu').click();
+  const stem = 'template-soil-moisture-along-a-trench-invented';
+  const downloads: import('@playwright/test').Download[] = [];
+  page.on('download', (d) => downloads.push(d));
+  const plots = await page.evaluate(() => [...document.querySelectorAll<HTMLElement>('.plot')].filter((el) => el.id && el.querySelector('.main-svg')).map((el) => el.clientWidth));
+  expect(plots.length).toBeGreaterThan(0);
   for (const f of ['png', 'svg'] as const) {
-    const [dl] = await Promise.all([page.waitForEvent('download'), page.getByTestId(`export-plots-${f}`).click()]);
-    expect(dl.suggestedFilename()).toMatch(new RegExp(`\\.${f}$`));
-    const head = readFileSync(await dl.path());
-    if (f === 'png') expect(Array.from(head.subarray(0, 4))).toEqual([0x89, 0x50, 0x4e, 0x47]);
-    else expect(head.toString('utf8')).toContain('<svg');
+    downloads.length = 0;
+    await page.getByTestId(`export-plots-${f}`).click();
+    await expect.poll(() => downloads.length).toBe(plots.length);
+    const names = downloads.map((d) => d.suggestedFilename());
+    // Named after the problem and the plot's title, never an element id; one name per plot.
+    for (const n of names) expect(n).toMatch(new RegExp(`^${stem}--[a-z0-9-]+\\.${f}$`));
+    expect(new Set(names).size).toBe(names.length);
+    const head = readFileSync((await downloads[0]!.path())!);
+    if (f === 'png') {
+      expect(Array.from(head.subarray(0, 4))).toEqual([0x89, 0x50, 0x4e, 0x47]);
+      // PNG width (bytes 16–19, in the IHDR chunk) is twice the first plot's width on screen.
+      expect(head.readUInt32BE(16)).toBe(2 * plots[0]!);
+    } else expect(head.toString('utf8')).toContain('<svg');
   }
-  const [npy] = await Promise.all([page.waitForEvent('download'), page.getByTestId('export-prior-draws-npy').click()]);
-  expect(npy.suggestedFilename()).toBe('prior-draws.npy');
+  await page.getByTestId('export-draw-count').fill('7');
+  downloads.length = 0;
+  await page.getByTestId('export-prior-draws-npy').click();
+  await expect.poll(() => downloads.length).toBe(2);
+  const byName = Object.fromEntries(downloads.map((d) => [d.suggestedFilename(), d]));
+  const base = `${stem}-prior-realisations-7`;
+  expect(Object.keys(byName).sort()).toEqual([`${base}.grid.json`, `${base}.npy`]);
   const { parseNpy } = await import('../src/core/io/npy.ts');
-  expect(parseNpy('d.npy', new Uint8Array(readFileSync(await npy.path()))).shape).toEqual([20, 6]);
-  const [csv] = await Promise.all([page.waitForEvent('download'), page.getByTestId('export-posterior-draws-csv').click()]);
-  expect(readFileSync(await csv.path(), 'utf8').split('\n')[0]).toBe('x,draw1,draw2,draw3,draw4,draw5,draw6');
+  // draws × cells, as priorscope sample writes them
+  expect(parseNpy('d.npy', new Uint8Array(readFileSync(await byName[`${base}.npy`]!.path()))).shape).toEqual([7, 20]);
+  const record = JSON.parse(readFileSync(await byName[`${base}.grid.json`]!.path(), 'utf8'));
+  expect(record).toMatchObject({ kind: 'priorscope.realisations', count: 7, seed: s.seed, grid: { shape: [20], spacing: [1], origin: [0] } });
+  downloads.length = 0;
+  await page.getByTestId('export-posterior-draws-csv').click();
+  await expect.poll(() => downloads.length).toBe(2);
+  const csv = downloads.find((d) => d.suggestedFilename().endsWith('.csv'))!;
+  const lines = readFileSync(await csv.path(), 'utf8').trim().split('\n');
+  expect(lines).toHaveLength(7);
+  expect(lines[0]!.split(',')).toHaveLength(20);
   const [popup] = await Promise.all([page.waitForEvent('popup'), page.getByTestId('report-open').click()]);
   await expect(popup.locator('h1')).toHaveText('Template: soil moisture along a trench (invented)');
   await expect(popup.locator('.caution')).toContainText('qualified professional');

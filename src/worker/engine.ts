@@ -36,8 +36,10 @@ import { isTuningRequest, runTuning } from './tuning.ts';
 
 /** Largest N for which the dense covariance is sent to the UI as a heat map. */
 export const COVARIANCE_VIEW_LIMIT = 400;
-/** Largest number of realisations one request may ask for. */
-export const MAX_DRAWS = 64;
+/** Largest number of realisations one request may ask for (the export asks for as many as the user chooses). */
+export const MAX_DRAWS = 10_000;
+/** Largest draws × cells one request may return: 2²⁴ numbers, 128 MiB of float64 (the browser holds it twice while saving). */
+export const MAX_DRAW_NUMBERS = 2 ** 24;
 
 export type ProgressFn = (stage: string, fraction: number) => void;
 /** Receives the first part of a posterior result (see {@link Engine.handle}). */
@@ -249,14 +251,16 @@ export class Engine {
         // Dense (Cholesky + eigenvalues) on small grids, certified FFT bounds on large stationary
         // ones (src/core/prior/structuredDiagnostics.ts); `eigenvalueMethod` says which ran.
         return diagnosePriorAuto(this.requireProblem(r.problemVersion).grid, r.prior);
-      case 'priorDraws':
-        checkCount(r.count);
-        return priorRealisations(this.requireProblem(r.problemVersion).grid, r.prior, r.count, r.seed);
+      case 'priorDraws': {
+        const grid = this.requireProblem(r.problemVersion).grid;
+        checkCount(r.count, cellCount(grid));
+        return priorRealisations(grid, r.prior, r.count, r.seed);
+      }
       case 'posteriorDraws': {
         // Same path rule as the posterior (src/core/inverse/auto.ts): on the FFT path the draws
         // come from the perturbation update with circulant prior draws (no N × N matrix).
-        checkCount(r.count);
         const problem = this.requireProblem(r.problemVersion);
+        checkCount(r.count, cellCount(problem.grid));
         if (choosePosteriorPath(problem, r.prior).path === 'fft') {
           return structuredPosteriorDraws(await this.structuredState(r.problemVersion, r.prior, progress), r.count, r.seed).realisations;
         }
@@ -318,9 +322,14 @@ export async function answerRequest(
   }
 }
 
-function checkCount(count: number): void {
-  if (!Number.isInteger(count) || count < 1 || count > MAX_DRAWS) {
-    throw new InputError('count', `an integer from 1 to ${MAX_DRAWS}`, count);
+function checkCount(count: number, cells: number): void {
+  const most = Math.max(1, Math.min(MAX_DRAWS, Math.floor(MAX_DRAW_NUMBERS / cells)));
+  if (!Number.isInteger(count) || count < 1 || count > most) {
+    throw new InputError(
+      'number of realisations',
+      `an integer from 1 to ${most} on this grid of ${cells} cells (at most ${MAX_DRAW_NUMBERS} numbers in all; for more, use priorscope sample)`,
+      count,
+    );
   }
 }
 

@@ -3,7 +3,7 @@
  * grid (x, y columns) — plus the prior export reading back to the same spec through priorFile.ts.
  */
 import { describe, expect, it } from 'vitest';
-import { drawsCsv, drawsNpy, posteriorCsv, posteriorNpy, priorExport } from '../../src/app/session/exports.ts';
+import { drawsCsv, drawsGridFile, drawsName, drawsNpy, fileStem, plotFileName, posteriorCsv, posteriorNpy, priorExport } from '../../src/app/session/exports.ts';
 import { parsePriorFile } from '../../src/core/io/priorFile.ts';
 import { matrix } from '../../src/core/linalg/matrix.ts';
 import type { PosteriorSummary } from '../../src/core/inverse/types.ts';
@@ -23,19 +23,40 @@ describe('exports read by numpy', () => {
       npy: Record<string, { shape: number[]; dtype: string; values: number[] }>;
       csv: Record<string, { header: string[]; shape: number[]; values: number[] }>;
     }>('exports_reference.py', {
-      npy: { post: b64(posteriorNpy(summary).bytes), draws: b64(drawsNpy(draws, 'prior').bytes) },
-      csv: { post: txt(posteriorCsv(grid, summary).bytes), draws: txt(drawsCsv(grid, draws, 'posterior').bytes) },
+      npy: { post: b64(posteriorNpy(summary).bytes), draws: b64(drawsNpy(draws, 'base').bytes) },
+      csv: { post: txt(posteriorCsv(grid, summary).bytes), draws: txt(drawsCsv(draws, 'base').bytes) },
     });
     // cell k sits at x = 10 + 2·(k mod 3), y = −1 + 0.5·floor(k / 3) (x fastest)
     const xs = [10, 12, 14, 10, 12, 14];
     const ys = [-1, -1, -1, -0.5, -0.5, -0.5];
     expect(ref.npy.post).toEqual({ shape: [6, 2], dtype: 'float64', values: Array.from(mean).flatMap((m, k) => [m, std[k]]) });
-    expect(ref.npy.draws!.shape).toEqual([6, 2]);
-    expect(ref.npy.draws!.values).toEqual([1, -1, 2, -2, 3, -3, 4, -4, 5, -5, 6, Math.PI]);
+    // Realisations as the command line writes them: draws × cells (K × N), row k = draw k.
+    expect(ref.npy.draws).toEqual({ shape: [2, 6], dtype: 'float64', values: Array.from(draws.data) });
     expect(ref.csv.post!.header).toEqual(['x', 'y', 'mean', 'std']);
     expect(ref.csv.post!.values).toEqual(xs.flatMap((x, k) => [x, ys[k], mean[k], std[k]]));
-    expect(ref.csv.draws!.header).toEqual(['x', 'y', 'draw1', 'draw2']);
-    expect(ref.csv.draws!.values).toEqual(xs.flatMap((x, k) => [x, ys[k], draws.data[k], draws.data[6 + k]]));
+    expect(ref.csv.draws).toEqual({ header: [], shape: [2, 6], values: Array.from(draws.data) });
+  });
+
+  it('the realisations carry the grid, seed and layout beside them, under names from the problem title', () => {
+    const base = drawsName('Gravity profile over a buried basin', 'prior', 2);
+    expect(base).toBe('gravity-profile-over-a-buried-basin-prior-realisations-2');
+    const f = drawsGridFile({ ...grid, unit: 'm', axes: ['x', 'depth'] }, draws, 'prior', 7, base, 'Gravity profile');
+    expect(f.name).toBe(`${base}.grid.json`);
+    const rec = JSON.parse(new TextDecoder().decode(f.bytes));
+    expect(rec).toMatchObject({ kind: 'priorscope.realisations', which: 'prior', count: 2, seed: 7, files: [`${base}.npy`, `${base}.csv`] });
+    expect(rec.grid).toEqual({ shape: [3, 2], spacing: [2, 0.5], origin: [10, -1], unit: 'm', axes: ['x', 'depth'] });
+    expect(rec.layout).toContain('x fastest');
+    expect(() => drawsGridFile({ shape: [5], spacing: [1] }, draws, 'prior', 7, base, 't')).toThrow(RangeError);
+  });
+
+  it('file names come from titles, never internal ids, and repeat-safe on one screen', () => {
+    expect(fileStem('Crosshole travel-time tomography')).toBe('crosshole-travel-time-tomography');
+    expect(fileStem('Température à 3 m — été')).toBe('temperature-a-3-m-ete');
+    expect(fileStem('∑∑∑')).toBe('problem');
+    const used = new Set<string>();
+    expect(plotFileName('Borehole log', 'Normalised residuals (d − G m̃)/σ', used)).toBe('borehole-log--normalised-residuals-d-g-m');
+    expect(plotFileName('Borehole log', 'Normalised residuals (d − G m̃)/σ', used)).toBe('borehole-log--normalised-residuals-d-g-m-2');
+    expect(plotFileName('', 'Data<br><sub>x</sub>', used)).toBe('problem--data-x');
   });
 
   it('the prior file reads back to the same spec', () => {

@@ -10,6 +10,11 @@ for name, b64 in req["npy"].items():
     out["npy"][name] = {"shape": list(a.shape), "dtype": str(a.dtype), "values": a.ravel(order="C").tolist()}
 for name, text in req["csv"].items():
     header = text.split("\n", 1)[0].split(",")
-    a = np.loadtxt(io.StringIO(text), delimiter=",", skiprows=1, ndmin=2)
+    try:
+        float(header[0])
+        header = []  # no header line (realisations, as priorscope sample writes them)
+    except ValueError:
+        pass
+    a = np.loadtxt(io.StringIO(text), delimiter=",", skiprows=1 if header else 0, ndmin=2)
     out["csv"][name] = {"header": header, "shape": list(a.shape), "values": a.ravel(order="C").tolist()}
 print(json.dumps(out))

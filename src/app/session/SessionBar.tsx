@@ -11,6 +11,13 @@ import { exportDraws, exportPlots, exportPosterior, exportPrior, openReport, sha
 import { PiecesForm } from './PiecesForm.tsx';
 import './session.css';
 
+/** The typed number of realisations, or an Error naming the field. */
+function drawCountOf(text: string): number {
+  const n = Number(text.trim());
+  if (!Number.isInteger(n) || n < 1) throw new Error(`Realisations to export must be a whole number ≥ 1, got ${JSON.stringify(text)}`);
+  return n;
+}
+
 function guarded<T>(f: () => Promise<T>, onError: (m: string) => void): () => void {
   return () => {
     f().catch((e: unknown) => onError(e instanceof Error ? e.message : String(e)));
@@ -30,6 +37,7 @@ export function SessionBar() {
   const ready = useWb((s) => s.problemStatus === 'ready');
   const hasPosterior = useWb((s) => s.posterior !== null);
   const [link, setLink] = useState<string | null>(null);
+  const [drawCount, setDrawCount] = useState('100');
   const [dragging, setDragging] = useState(false);
   const filesRef = useRef<HTMLInputElement>(null);
   const priorRef = useRef<HTMLInputElement>(null);
@@ -136,17 +144,21 @@ export function SessionBar() {
           <button type="button" data-testid="export-posterior-npy" disabled={!hasPosterior} onClick={() => exportPosterior(store, 'npy')}>
             Posterior mean + std (.npy)
           </button>
+          <label className="draw-count" title="Realisations to export, draws × cells as priorscope sample writes them, with the grid in a .grid.json beside them">
+            Realisations to export{' '}
+            <input type="number" min={1} step={1} value={drawCount} onChange={(e) => setDrawCount(e.currentTarget.value)} data-testid="export-draw-count" style={{ width: '6em' }} />
+          </label>
           {(['prior', 'posterior'] as const).map((w) =>
             (['csv', 'npy'] as const).map((f) => (
-              <button key={w + f} type="button" data-testid={`export-${w}-draws-${f}`} disabled={!ready} onClick={guarded(() => exportDraws(store, w, f), fail)}>
-                {w === 'prior' ? 'Prior' : 'Posterior'} realisations (.{f})
+              <button key={w + f} type="button" data-testid={`export-${w}-draws-${f}`} disabled={!ready} onClick={guarded(() => exportDraws(store, w, f, drawCountOf(drawCount)), fail)}>
+                {drawCount} {w === 'prior' ? 'prior' : 'posterior'} realisations (.{f} + grid)
               </button>
             )),
           )}
-          <button type="button" data-testid="export-plots-png" onClick={guarded(() => exportPlots('png'), fail)}>
-            Plots on this screen (.png)
+          <button type="button" data-testid="export-plots-png" onClick={guarded(() => exportPlots('png', title), fail)}>
+            Plots on this screen (.png, twice the screen size)
           </button>
-          <button type="button" data-testid="export-plots-svg" onClick={guarded(() => exportPlots('svg'), fail)}>
+          <button type="button" data-testid="export-plots-svg" onClick={guarded(() => exportPlots('svg', title), fail)}>
             Plots on this screen (.svg)
           </button>
           <button type="button" data-testid="report-open" disabled={!hasPosterior} onClick={guarded(() => openReport(store, 'open'), fail)}>

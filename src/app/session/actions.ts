@@ -6,7 +6,7 @@ import Plotly from 'plotly.js-dist-min';
 import type { WorkbenchStore } from '../store.ts';
 import { CAUTION } from '../caution.ts';
 import { download } from './download.ts';
-import { drawsCsv, drawsNpy, posteriorCsv, posteriorNpy, priorExport } from './exports.ts';
+import { drawsCsv, drawsGridFile, drawsName, drawsNpy, PLOT_EXPORT_SCALE, plotFileName, posteriorCsv, posteriorNpy, priorExport } from './exports.ts';
 import { reportHtml } from './report.ts';
 import { encodeShare } from './share.ts';
 import { problemFingerprint } from '../../core/io/fingerprint.ts';
@@ -15,7 +15,7 @@ export type Format = 'csv' | 'npy';
 
 /** The image function of plotly.js we use (not in ../plotly.d.ts). */
 interface PlotlyImages {
-  downloadImage(gd: HTMLElement, opts: { format: 'png' | 'svg'; filename: string; width: number; height: number }): Promise<string>;
+  downloadImage(gd: HTMLElement, opts: { format: 'png' | 'svg'; filename: string; width: number; height: number; scale?: number }): Promise<string>;
 }
 const images = Plotly as unknown as PlotlyImages;
 
@@ -31,18 +31,31 @@ export function exportPosterior(store: WorkbenchStore, format: Format): boolean 
   return true;
 }
 
-export async function exportDraws(store: WorkbenchStore, which: 'prior' | 'posterior', format: Format): Promise<boolean> {
-  const draws = await store.getState().fetchDraws(which);
-  const grid = store.getState().problem?.grid;
-  if (!draws || !grid) return false;
-  download(format === 'csv' ? drawsCsv(grid, draws, which) : drawsNpy(draws, which));
+/** `count` realisations (draws × cells) and the grid file beside them. */
+export async function exportDraws(store: WorkbenchStore, which: 'prior' | 'posterior', format: Format, count: number): Promise<boolean> {
+  const draws = await store.getState().fetchDraws(which, count);
+  const s = store.getState();
+  const p = s.problem;
+  if (!draws || !p) return false;
+  const base = drawsName(p.title, which, draws.rows);
+  download(format === 'csv' ? drawsCsv(draws, base) : drawsNpy(draws, base));
+  download(drawsGridFile(p.grid, draws, which, s.seed, base, p.title));
   return true;
 }
 
-/** Every plot on the current screen as PNG or SVG, named after its element id. */
-export async function exportPlots(format: 'png' | 'svg'): Promise<number> {
+/**
+ * Every plot on the current screen as PNG (at PLOT_EXPORT_SCALE times its size on screen) or SVG,
+ * named after the problem and the plot's title (plotFileName).
+ */
+export async function exportPlots(format: 'png' | 'svg', problemTitle: string): Promise<number> {
   const plots = [...document.querySelectorAll<HTMLElement>('.plot')].filter((el) => el.id && el.querySelector('.main-svg'));
-  for (const el of plots) await images.downloadImage(el, { format, filename: el.id.replace(/^plot-/, ''), width: el.clientWidth || 700, height: el.clientHeight || 400 });
+  const used = new Set<string>();
+  for (const el of plots) {
+    const layout = (el as unknown as { layout?: { title?: { text?: string } | string } }).layout;
+    const plotTitle = typeof layout?.title === 'string' ? layout.title : (layout?.title?.text ?? el.getAttribute('aria-label') ?? el.id);
+    const filename = plotFileName(problemTitle, plotTitle, used);
+    await images.downloadImage(el, { format, filename, width: el.clientWidth || 700, height: el.clientHeight || 400, scale: format === 'png' ? PLOT_EXPORT_SCALE : 1 });
+  }
   return plots.length;
 }
 

@@ -3,14 +3,18 @@
  * (downloaded by ./download.ts). Formats are the core's writers (src/core/io):
  *   prior.json            the prior file (kind "priorscope.prior"), reads back to the same spec
  *   posterior.csv / .npy  one row per cell: x (, y), mean, std — .npy holds (N, 2) [mean, std]
- *   prior-draws.csv/.npy, posterior-draws.csv/.npy   one row per cell, one column per draw (N, K)
- * Cells are in the grid's flat order (x fastest, index ix + nx·iy), as in the problem file.
+ *   TITLE-prior-realisations-K.csv/.npy (and posterior)   K realisations, one row per draw, one column per
+ *                         cell (K × N), as `priorscope sample` writes them (CSV without a header), with
+ *                         TITLE-…-K.grid.json beside them recording the grid, the seed and the layout
+ * Cells are in the grid's flat order (x fastest, index ix + nx·iy), as in the problem file. TITLE is
+ * the problem's title as a file name (fileStem).
  */
 import { writePriorFile } from '../../core/io/priorFile.ts';
 import { writeCsv } from '../../core/io/csv.ts';
 import { writeNpy } from '../../core/io/npy.ts';
 import { cellCoordinates, cellCount, gridDimension, type Grid } from '../../core/grid/grid.ts';
-import { matrix, transpose, type Matrix } from '../../core/linalg/matrix.ts';
+import { matrix, type Matrix } from '../../core/linalg/matrix.ts';
+import { formatJson } from '../../core/io/json.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
 import type { PosteriorSummary } from '../../core/inverse/types.ts';
 
@@ -48,17 +52,68 @@ export function posteriorNpy(s: PosteriorSummary): ExportFile {
   return { name: 'posterior.npy', mime: NPY, bytes: writeNpy([s.mean.length, 2], columns([s.mean, s.std]).data) };
 }
 
-/** Draws come as K × N (one row per draw); the files hold N × K (one row per cell). */
-export function drawsCsv(grid: Grid, draws: Matrix, which: 'prior' | 'posterior'): ExportFile {
-  if (draws.cols !== cellCount(grid)) throw new RangeError(`drawsCsv: ${draws.cols} values per draw for ${cellCount(grid)} cells`);
-  const c = coordinateColumns(grid);
-  const cols: ArrayLike<number>[] = [...c.cols];
-  for (let k = 0; k < draws.rows; k++) cols.push(draws.data.subarray(k * draws.cols, (k + 1) * draws.cols));
-  const names = [...c.names, ...Array.from({ length: draws.rows }, (_, k) => `draw${k + 1}`)];
-  return text(`${which}-draws.csv`, 'text/csv', writeCsv(columns(cols), names));
+/**
+ * A file-name stem from a title: lower-case letters and digits joined by single dashes, at most
+ * `max` characters ("Gravity profile over a buried basin" → "gravity-profile-over-a-buried-basin");
+ * accents are dropped, anything else separates words; `fallback` when nothing is left.
+ */
+export function fileStem(title: string, fallback = 'problem', max = 60): string {
+  const plain = title.normalize('NFKD').replace(/[\u0300-\u036f]/g, '').toLowerCase();
+  const stem = plain.replace(/[^a-z0-9]+/g, '-').replace(/^-+|-+$/g, '').slice(0, max).replace(/-+$/, '');
+  return stem === '' ? fallback : stem;
 }
 
-export function drawsNpy(draws: Matrix, which: 'prior' | 'posterior'): ExportFile {
-  const t = transpose(draws);
-  return { name: `${which}-draws.npy`, mime: NPY, bytes: writeNpy([t.rows, t.cols], t.data) };
+/** The base name of a realisation export: TITLE-prior-realisations-K. */
+export function drawsName(title: string, which: 'prior' | 'posterior', count: number): string {
+  return `${fileStem(title)}-${which}-realisations-${count}`;
+}
+
+/** K draws × N cells as CSV, K lines of N numbers, no header (as `priorscope sample --format csv`). */
+export function drawsCsv(draws: Matrix, base: string): ExportFile {
+  return text(`${base}.csv`, 'text/csv', writeCsv(draws));
+}
+
+/** K draws × N cells as a float64 .npy (as `priorscope sample --format npy`). */
+export function drawsNpy(draws: Matrix, base: string): ExportFile {
+  return { name: `${base}.npy`, mime: NPY, bytes: writeNpy([draws.rows, draws.cols], draws.data) };
+}
+
+/** What lies beside the realisations: the grid (problem-file fields), the seed and how to read the rows. */
+export function drawsGridFile(grid: Grid, draws: Matrix, which: 'prior' | 'posterior', seed: number, base: string, title: string): ExportFile {
+  if (draws.cols !== cellCount(grid)) throw new RangeError(`drawsGridFile: ${draws.cols} values per draw for ${cellCount(grid)} cells`);
+  const record = {
+    kind: 'priorscope.realisations',
+    version: 1,
+    problem: title,
+    which,
+    count: draws.rows,
+    seed,
+    layout: 'draws × cells: row k is realisation k; column i is cell i = ix + nx·iy (x fastest), centred at origin + (ix·dx, iy·dy)',
+    files: [`${base}.npy`, `${base}.csv`],
+    grid: {
+      shape: [...grid.shape],
+      spacing: [...grid.spacing],
+      origin: [...(grid.origin ?? grid.shape.map(() => 0))],
+      ...(grid.unit !== undefined ? { unit: grid.unit } : {}),
+      ...(grid.axes !== undefined ? { axes: [...grid.axes] } : {}),
+    },
+  };
+  return text(`${base}.grid.json`, 'application/json', formatJson(record));
+}
+
+/** PNG plots are written at this multiple of their size on screen. */
+export const PLOT_EXPORT_SCALE = 2;
+
+/**
+ * The file name (without extension) of an exported plot: the problem's and the plot's titles as
+ * file-name stems ("gravity-profile-over-a-buried-basin--data-and-prediction-along-the-survey"),
+ * numbered when a name repeats on one screen (`used` collects the names given so far).
+ */
+export function plotFileName(problemTitle: string, plotTitle: string, used: Set<string>): string {
+  const plain = plotTitle.replace(/<[^>]*>/g, ' ');
+  const base = `${fileStem(problemTitle)}--${fileStem(plain, 'plot', 80)}`;
+  let name = base;
+  for (let k = 2; used.has(name); k++) name = `${base}-${k}`;
+  used.add(name);
+  return name;
 }

@@ -67,7 +67,8 @@ export interface SessionSlice {
   startOver(): Promise<void>;
   dismissLoadError(): void;
   /** Draws for export, computed for the current prior and seed (independent of the open tab). */
-  fetchDraws(which: 'prior' | 'posterior'): Promise<Matrix | null>;
+  /** The shown realisations (DRAW_COUNT, shared with the realisations screen), or `count` of them with the same seed. */
+  fetchDraws(which: 'prior' | 'posterior', count?: number): Promise<Matrix | null>;
 }
 
 
@@ -275,13 +276,14 @@ export function createSessionSlice(set: StoreSet, get: StoreGet, api: WorkbenchS
       set({ loadError: null });
     },
 
-    async fetchDraws(which) {
+    async fetchDraws(which, count = DRAW_COUNT) {
       const s = get();
       if (!s.prior) return null;
       const channel = which === 'prior' ? 'priorDraws' : 'posteriorDraws';
       const key = `${s.problem?.version}:${s.priorRevision}:${s.seed}`;
       if (s.computedFor[channel] === key) {
-        // Requested by the realisations screen already: wait for it rather than superseding it.
+        // Requested by the realisations screen already: wait for it rather than superseding it
+        // (also before asking for another number of draws on the same channel).
         await new Promise<void>((resolve) => {
           if (!get().busy[channel]) return resolve();
           const off = api.subscribe((t) => {
@@ -293,10 +295,10 @@ export function createSessionSlice(set: StoreSet, get: StoreGet, api: WorkbenchS
         });
         const t = get();
         const cached = which === 'prior' ? t.priorDraws : t.posteriorDraws;
-        if (cached && t.computedFor[channel] === key && !t.errors[channel]) return cached;
-        if (t.errors[channel]) throw new Error(t.errors[channel]);
+        if (count === DRAW_COUNT && cached && t.computedFor[channel] === key && !t.errors[channel]) return cached;
+        if (count === DRAW_COUNT && t.errors[channel]) throw new Error(t.errors[channel]);
       }
-      const o = await (which === 'prior' ? client.priorDraws(s.prior, DRAW_COUNT, s.seed) : client.posteriorDraws(s.prior, DRAW_COUNT, s.seed));
+      const o = await (which === 'prior' ? client.priorDraws(s.prior, count, s.seed) : client.posteriorDraws(s.prior, count, s.seed));
       return o.superseded ? null : o.value;
     },
   };
