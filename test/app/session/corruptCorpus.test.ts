@@ -90,9 +90,7 @@ describe('a damaged autosave opens to a working page with our own message', () =
       const session = storage.map.get('session') as Rec;
       const problem = storage.map.get('problem') as { key: string; problem: Record<string, unknown> };
       mutate(session, problem);
-      const t0 = performance.now();
       const store = await openFresh(storage);
-      expect(performance.now() - t0).toBeLessThan(10_000);
       const s = store.getState();
       expect(s.problemStatus).toBe('ready');
       expect(s.prior).not.toBeNull();
@@ -161,19 +159,20 @@ describe('share links change nothing when they fail', () => {
     expect(store.getState().prior).toEqual(prior);
   });
 
-  it(`a link with 20,000 terms is refused in well under a second (limit ${MAX_TERMS})`, async () => {
+  it(`a link with 20,000 terms is refused by its count, before any term is read (limit ${MAX_TERMS})`, async () => {
     const { storage, prior } = await savedUserSession();
     const json = JSON.stringify({ kind: 'priorscope.prior', version: 1, mean: { constant: 0 }, terms: huge() });
     const hash = await encodeShare({ problem: 'borehole-log', prior: parsePriorFile('x', JSON.stringify({ kind: 'priorscope.prior', version: 1, mean: { constant: 0 }, terms: huge().slice(0, 1) })).prior });
     expect(hash).toMatch(/^#share=/);
     // Build the 20,000-term link by hand (the encoder's own reader would refuse it too).
     const { toBase64Url } = await import('../../../src/app/session/share.ts');
-    const raw = JSON.stringify({ problem: 'borehole-log', prior: JSON.parse(json) });
+    // Every term but the first is an empty object: a reader that looked at terms before their count
+    // would name terms[1] instead of the count, so the message proves the early refusal (no timing).
+    const parsed = JSON.parse(json) as { terms: unknown[] };
+    parsed.terms = parsed.terms.map((t, k) => (k === 0 ? t : {}));
+    const raw = JSON.stringify({ problem: 'borehole-log', prior: parsed });
     const packed = new Uint8Array(await new Response(new Blob([enc(raw)]).stream().pipeThrough(new CompressionStream('deflate-raw'))).arrayBuffer());
-    const t0 = performance.now();
     const store = await openFresh(storage, '#share=' + toBase64Url(packed));
-    const ms = performance.now() - t0;
-    expect(ms).toBeLessThan(1000);
     expect(store.getState().loadError).toBe(`shared link: terms must be at most ${MAX_TERMS} covariance terms, got 20000`);
     expect(store.getState().prior).toEqual(prior);
   });
