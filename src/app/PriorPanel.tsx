@@ -354,7 +354,7 @@ function TermEditor({ index, term, count, problem, refVar }: { index: number; te
         <LogSlider
           continuous={continuous}
           label="Length ℓ"
-          value={term.length ?? 1}
+          value={term.length}
           min={lo}
           max={hi}
           unit={lenUnit}

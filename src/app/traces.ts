@@ -122,12 +122,12 @@ export function scaledDistance(term: Term, dx: number, dy: number): number {
     const v = -Math.sin(a) * dx + Math.cos(a) * dy;
     return Math.hypot(u / term.lengths[0], v / term.lengths[1]);
   }
-  return Math.hypot(dx, dy) / (term.length ?? 1);
+  return Math.hypot(dx, dy) / term.length;
 }
 
 /** Largest correlation length of a term (the first axis for anisotropic terms shows the longest). */
 export function termLengths(term: Term): [number, number] {
-  return term.lengths ? [term.lengths[0], term.lengths[1]] : [term.length ?? 1, term.length ?? 1];
+  return term.lengths ? [term.lengths[0], term.lengths[1]] : [term.length, term.length];
 }
 
 /**

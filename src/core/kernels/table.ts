@@ -148,7 +148,7 @@ export const KERNELS = {
     },
   },
   matern: {
-    label: 'Matérn (smoothness ν)',
+    label: 'Matérn',
     description:
       'Smoothness set by ν: ν = 1/2 is the rough exponential, ν = 3/2 and 5/2 give once and twice differentiable ' +
       'fields, large ν approaches the Gaussian.',

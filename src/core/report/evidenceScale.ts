@@ -7,7 +7,8 @@
  * "positive", 6–10 "strong", above 10 "very strong" (category limits and words as we recall them
  * from that table; quoted from memory). With natural-log evidences, 2 ln B = 2 (ln Z₁ − ln Z₂).
  */
-import { DEFAULT_MATERN_NU, type Term } from '../kernels/spec.ts';
+import type { Term } from '../kernels/spec.ts';
+import { kernelDefinition, termSmoothness } from '../kernels/table.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import { gridDimension, type Grid } from '../grid/grid.ts';
 
@@ -32,7 +33,8 @@ export function freeParameterCount(prior: PriorSpec, grid: Grid): number {
 }
 
 function termParameterCount(t: Term): number {
-  return 1 + (t.lengths ? 3 : 1) + (t.kernel === 'matern' ? 1 : 0);
+  // variance, the length(s) and angle, and the kernel's own fields (ν for Matérn)
+  return 1 + (t.lengths ? 3 : 1) + Object.keys(kernelDefinition(t.kernel).fields).length;
 }
 
 /** One row of the evidence comparison against the candidate with the highest log evidence. */
@@ -81,8 +83,9 @@ const g3 = (x: number) => String(Number(x.toPrecision(3)));
 export function priorLine(prior: PriorSpec, lengthUnit: string, valueUnit: string): string {
   const u = lengthUnit ? ` ${lengthUnit}` : '';
   const terms = prior.terms.map((t) => {
-    const k = t.kernel === 'matern' ? `Matérn ν ${g3(t.nu ?? DEFAULT_MATERN_NU)}` : t.kernel;
-    const l = t.lengths ? `ℓ ${g3(t.lengths[0])} × ${g3(t.lengths[1])}${u} at ${g3(t.angle ?? 0)}°` : `ℓ ${g3(t.length ?? 1)}${u}`;
+    const nu = termSmoothness(t);
+    const k = nu !== undefined ? `${kernelDefinition(t.kernel).label} ν ${g3(nu)}` : t.kernel;
+    const l = t.lengths ? `ℓ ${g3(t.lengths[0])} × ${g3(t.lengths[1])}${u} at ${g3(t.angle ?? 0)}°` : `ℓ ${g3(t.length)}${u}`;
     return `${k}, σ² ${g3(t.variance)}, ${l}`;
   });
   const m = prior.mean;

@@ -66,7 +66,7 @@ const g4 = (x: number) => (Number.isFinite(x) ? Number(x.toPrecision(4)).toStrin
 /** One sentence per term, with the practical range (distance where ρ = 0.05) of its kernel. */
 export function termInWords(t: Term, lengthUnit: string, valueUnit: string): string {
   const nu = termSmoothness(t);
-  const kernel = nu !== undefined ? `${kernelInfo(t.kernel).label.split(' (')[0]} (ν = ${g4(nu)})` : t.kernel;
+  const kernel = nu !== undefined ? `${kernelInfo(t.kernel).label} (ν = ${g4(nu)})` : t.kernel;
   const pr = practicalRange(t.kernel, nu);
   const sd = `${g4(Math.sqrt(t.variance))}${valueUnit ? ' ' + valueUnit : ''}`;
   const u = lengthUnit ? ` ${lengthUnit}` : '';
@@ -74,7 +74,7 @@ export function termInWords(t: Term, lengthUnit: string, valueUnit: string): str
     const [a, b] = t.lengths;
     return `${kernel} correlation, standard deviation ${sd}, lengths ${g4(a)}${u} and ${g4(b)}${u} at ${g4(t.angle ?? 0)}°; correlation falls to 0.05 at ${g4(pr * a)}${u} and ${g4(pr * b)}${u}.`;
   }
-  const l = t.length ?? 1;
+  const l = t.length;
   return `${kernel} correlation, standard deviation ${sd}, length ${g4(l)}${u}; correlation falls to 0.05 at ${g4(pr * l)}${u}.`;
 }
 
