@@ -1,6 +1,6 @@
 /** The left panel: mean model, covariance terms (add / remove / reorder), nugget. */
 import { KERNEL_NAMES, type KernelName, type Term } from '../core/kernels/spec.ts';
-import { termSmoothness } from '../core/kernels/table.ts';
+import { kernelDefinition, termSmoothness } from '../core/kernels/table.ts';
 import type { MeanSpec, PriorSpec } from '../core/prior/spec.ts';
 import { MAX_PINNED } from './select/candidates.ts';
 import { gridDimension } from '../core/grid/grid.ts';
@@ -11,14 +11,6 @@ import { axisNames } from './labels.ts';
 import { formatNumber } from '../core/format.ts';
 import type { ProblemView } from '../worker/protocol.ts';
 import { MAX_TERMS } from '../core/prior/validate.ts';
-
-/** Kernel labels and the correlation formula each one stands for (h = scaled distance). */
-export const KERNEL_INFO: Record<KernelName, { label: string; formula: string }> = {
-  exponential: { label: 'Exponential', formula: 'ρ(h) = exp(−h)' },
-  gaussian: { label: 'Gaussian (squared exponential)', formula: 'ρ(h) = exp(−h²/2)' },
-  matern: { label: 'Matérn', formula: 'ρ(h) = 2^(1−ν)/Γ(ν) (√(2ν) h)^ν K_ν(√(2ν) h)' },
-  spherical: { label: 'Spherical', formula: 'ρ(h) = 1 − 1.5h + 0.5h³ for h < 1, else 0' },
-};
 
 function lengthRange(problem: ProblemView): [number, number] {
   const g = problem.grid;
@@ -249,12 +241,12 @@ function TermEditor({ index, term, count, problem, refVar }: { index: number; te
           aria-label={`Kernel of term ${index + 1}`}
           data-testid={`${t}-kernel`}
           value={term.kernel}
-          title={KERNEL_INFO[term.kernel].formula}
+          title={kernelDefinition(term.kernel).formula}
           onChange={(e) => setKernel(index, e.target.value as KernelName)}
         >
           {KERNEL_NAMES.map((k) => (
-            <option key={k} value={k} title={KERNEL_INFO[k].formula}>
-              {KERNEL_INFO[k].label}
+            <option key={k} value={k} title={kernelDefinition(k).formula}>
+              {kernelDefinition(k).label}
             </option>
           ))}
         </select>

@@ -130,7 +130,7 @@ export const KERNELS = {
     longLengthWarning: null,
   },
   gaussian: {
-    label: 'Gaussian',
+    label: 'Gaussian (squared exponential)',
     description: 'Very smooth fields with no small-scale detail. Covariance matrices on fine grids are badly conditioned.',
     formula: 'ρ(h) = exp(−h²/2)',
     source: 'Rasmussen & Williams (2006) eq. 4.9; the Matérn limit ν → ∞',
