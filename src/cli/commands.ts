@@ -6,7 +6,7 @@
 import { assertNever } from '../core/errors.ts';
 import { dirname, resolve } from 'node:path';
 import { KERNEL_NAMES, type KernelName } from '../core/kernels/spec.ts';
-import { kernelsTaking, kernelTakes } from '../core/kernels/table.ts';
+import { kernelDefinition, kernelsTaking, kernelTakes } from '../core/kernels/table.ts';
 import { correlation } from '../core/kernels/correlation.ts';
 import type { Matrix } from '../core/linalg/matrix.ts';
 import { DENSE_DECISION_LIMIT, diagnosePriorAuto, STRUCTURED_DIAGNOSTICS_MIN_CELLS } from '../core/prior/structuredDiagnostics.ts';
@@ -410,11 +410,11 @@ const sample: Command = {
 const correlationCommand: Command = {
   name: 'correlation',
   summary: 'a kernel’s correlation at given scaled distances',
-  usage: 'priorscope correlation --kernel exponential|gaussian|matern|spherical [--nu V] --lags 0,0.5,1 [--out FILE]',
+  usage: `priorscope correlation --kernel ${KERNEL_NAMES.join('|')} [--nu V] --lags 0,0.5,1 [--out FILE]`,
   details:
-    'Prints {"kernel", "nu" (matern only), "lags": [...], "values": [...]}: the correlation ρ(h) at scaled\n' +
-    'distance h = r / length: exponential e^(−h), gaussian e^(−h²/2), matern (Rasmussen & Williams 2006,\n' +
-    'eq. 4.14) with smoothness --nu (required for matern), spherical 1 − 1.5h + 0.5h³ for h < 1, else 0.',
+    `Prints {"kernel", "nu" (${kernelsTaking('nu').join(', ')} only), "lags": [...], "values": [...]}: the correlation ρ(h) at\n` +
+    `scaled distance h = r / length, with smoothness --nu (required for ${kernelsTaking('nu').join(', ')}):\n` +
+    KERNEL_NAMES.map((k) => `  ${k.padEnd(12)} ${kernelDefinition(k).formula}   (${kernelDefinition(k).source})`).join('\n'),
   options: [
     { name: 'kernel', value: 'NAME', help: KERNEL_NAMES.join(', '), required: true },
     { name: 'nu', value: 'V', help: 'Matérn smoothness ν > 0 (matern only)' },

@@ -3,6 +3,8 @@
  * README's "File formats" section; test/cli/formats.test.ts checks that every field the readers
  * know is named here and that the downloadable templates (public/templates) read without a warning.
  */
+import { KERNEL_NAMES, kernelsTaking } from '../core/kernels/table.ts';
+
 export const FORMATS_HELP = `priorscope file formats
 
 PROBLEM FILE (JSON)  d = G m + e, e ~ N(0, Cd), m on a regular grid
@@ -54,9 +56,9 @@ PROBLEM FILE (JSON)  d = G m + e, e ~ N(0, Cd), m on a regular grid
 PRIOR FILE (JSON)
   {"kind": "priorscope.prior", "version": 1,
    "mean": {"constant": c} | {"values": [N numbers]} | {"trend": {"intercept": a, "slope": [b1] or [b1, b2]}},
-   "terms": [{"kernel": "exponential" | "gaussian" | "matern" | "spherical", "variance": > 0,
+   "terms": [{"kernel": ${KERNEL_NAMES.map((k) => `"${k}"`).join(' | ')}, "variance": > 0,
               "length": > 0  or, in 2-D, "lengths": [l1, l2] with optional "angle" (degrees, from the first
-              axis towards the second), "nu": > 0 (matern only)}, …],
+              axis towards the second), "nu": > 0 (${kernelsTaking('nu').join(', ')} only)}, …],
    "nugget": ≥ 0,                  optional, in quantity.unit squared
    "stdProfile": [N numbers > 0]}  optional: Cm = S C S + nugget·I with S = diag(stdProfile)
   A trend is a + b1·x (+ b2·y) at the cell centres (absolute coordinates).
