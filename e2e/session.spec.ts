@@ -345,6 +345,15 @@ test('the template problem loads by drag-and-drop; plots, realisations and the r
   const lines = readFileSync(await csv.path(), 'utf8').trim().split('\n');
   expect(lines).toHaveLength(7);
   expect(lines[0]!.split(',')).toHaveLength(20);
+  downloads.length = 0;
+  await page.getByTestId('export-cholesky-npy').click();
+  await expect.poll(() => downloads.length).toBe(2);
+  const factor = downloads.find((d) => d.suggestedFilename().endsWith('.npy'))!;
+  expect(factor.suggestedFilename()).toBe(`${stem}-prior-cholesky-factor-20.npy`);
+  const L = parseNpy('L.npy', new Uint8Array(readFileSync((await factor.path())!)));
+  expect(L.shape).toEqual([20, 20]);
+  expect(L.data[1]).toBe(0); // lower triangular
+  expect(downloads.map((d) => d.suggestedFilename())).toContain(`${stem}-prior-cholesky-factor-20.grid.json`);
   const [popup] = await Promise.all([page.waitForEvent('popup'), page.getByTestId('report-open').click()]);
   await expect(popup.locator('h1')).toHaveText('Template: soil moisture along a trench (invented)');
   await expect(popup.locator('.caution')).toContainText('qualified professional');

@@ -66,7 +66,7 @@ export interface ClientPort {
   priorDraws(prior: PriorSpec, count: number, seed: number): Promise<Outcome<Matrix>>;
   posteriorDraws(prior: PriorSpec, count: number, seed: number): Promise<Outcome<Matrix>>;
   resolution(prior: PriorSpec, cell: number): Promise<Outcome<{ cell: number; row: Float64Array }>>;
-  covariance(prior: PriorSpec): Promise<Outcome<Matrix>>;
+  covariance(prior: PriorSpec, form?: 'covariance' | 'cholesky'): Promise<Outcome<Matrix>>;
   onRestart(listener: (reason: string) => void): () => void;
   /** Where prior-selection requests go; null for a client that runs none (the select slice then says so). */
   readonly tuning: TuningPort | null;
@@ -178,8 +178,8 @@ export class WorkerClient implements ClientPort {
   resolution(prior: PriorSpec, cell: number) {
     return this.request('resolution', { prior, cell });
   }
-  covariance(prior: PriorSpec) {
-    return this.request('covariance', { prior });
+  covariance(prior: PriorSpec, form?: 'covariance' | 'cholesky') {
+    return this.request('covariance', form === undefined ? { prior } : { prior, form });
   }
 
   /** Drop the pending request of a channel (its promise resolves as superseded). */

@@ -21,7 +21,8 @@ import {
   resolutionRow,
   type PosteriorState,
 } from '../core/inverse/posterior.ts';
-import { assertNever, InputError } from '../core/errors.ts';
+import { assertNever, InputError, NotPositiveDefiniteError } from '../core/errors.ts';
+import { cholesky } from '../core/linalg/cholesky.ts';
 import { choosePosteriorPath } from '../core/inverse/auto.ts';
 import {
   structuredDataFit,
@@ -36,6 +37,11 @@ import { isTuningRequest, runTuning } from './tuning.ts';
 
 /** Largest N for which the dense covariance is sent to the UI as a heat map. */
 export const COVARIANCE_VIEW_LIMIT = 400;
+/**
+ * Largest N for which the dense Cm or its Cholesky factor is exported: 4096 cells, a 128 MiB
+ * float64 matrix (held about three times while it is built, factored and saved).
+ */
+export const COVARIANCE_EXPORT_LIMIT = 4096;
 /** Largest number of realisations one request may ask for (the export asks for as many as the user chooses). */
 export const MAX_DRAWS = 10_000;
 /** Largest draws × cells one request may return: 2²⁴ numbers, 128 MiB of float64 (the browser holds it twice while saving). */
@@ -280,10 +286,16 @@ export class Engine {
       case 'covariance': {
         const grid = this.requireProblem(r.problemVersion).grid;
         const n = cellCount(grid);
-        if (n > COVARIANCE_VIEW_LIMIT) {
-          throw new InputError('covariance view', `a grid of at most ${COVARIANCE_VIEW_LIMIT} cells`, n);
+        const limit = r.form === undefined ? COVARIANCE_VIEW_LIMIT : COVARIANCE_EXPORT_LIMIT;
+        if (n > limit) {
+          throw new InputError(r.form === undefined ? 'covariance view' : 'dense Cm export', `a grid of at most ${limit} cells (larger grids: the prior file and the production code's own assembly)`, n);
         }
-        return covarianceMatrix(grid, r.prior);
+        const cm = covarianceMatrix(grid, r.prior);
+        if (r.form !== 'cholesky') return cm;
+        // The lower factor L with L Lᵀ = Cm, as the production run would draw m0 + L z.
+        const f = cholesky(cm, { inPlace: true });
+        if (!f.ok) throw new NotPositiveDefiniteError('Cm', f.pivot, 'no Cholesky factor to export; see the positive-definiteness verdict');
+        return f.factor;
       }
       default:
         return assertNever(r);

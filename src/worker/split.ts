@@ -54,8 +54,8 @@ export class SplitClient implements ClientPort {
   priorDraws(prior: PriorSpec, count: number, seed: number) {
     return this.primary.priorDraws(prior, count, seed);
   }
-  covariance(prior: PriorSpec) {
-    return this.secondary.covariance(prior);
+  covariance(prior: PriorSpec, form?: 'covariance' | 'cholesky') {
+    return this.secondary.covariance(prior, form);
   }
   onRestart(listener: (reason: string) => void): () => void {
     const a = this.primary.onRestart(listener);

@@ -3,7 +3,7 @@
  * grid (x, y columns) — plus the prior export reading back to the same spec through priorFile.ts.
  */
 import { describe, expect, it } from 'vitest';
-import { drawsCsv, drawsGridFile, drawsName, drawsNpy, fileStem, plotFileName, posteriorCsv, posteriorNpy, priorExport } from '../../src/app/session/exports.ts';
+import { covarianceNpy, drawsCsv, drawsGridFile, gridFile, drawsName, drawsNpy, fileStem, plotFileName, posteriorCsv, posteriorNpy, priorExport } from '../../src/app/session/exports.ts';
 import { parsePriorFile } from '../../src/core/io/priorFile.ts';
 import { matrix } from '../../src/core/linalg/matrix.ts';
 import type { PosteriorSummary } from '../../src/core/inverse/types.ts';
@@ -64,5 +64,29 @@ describe('exports read by numpy', () => {
     const f = priorExport(prior);
     expect(f.name).toBe('prior.json');
     expect(parsePriorFile('prior.json', f.bytes).prior).toEqual(prior);
+  });
+
+  it('the dense Cm and its Cholesky factor as .npy: numpy reads them, numpy.linalg.cholesky agrees, the grid beside them', async () => {
+    const { covarianceMatrix } = await import('../../src/core/prior/covariance.ts');
+    const { cholesky } = await import('../../src/core/linalg/cholesky.ts');
+    const g = { shape: [6, 5], spacing: [1, 2], origin: [0.5, 1], unit: 'm' };
+    const prior = { mean: { constant: 0 }, terms: [{ kernel: 'exponential' as const, variance: 2, length: 3 }], nugget: 1e-3 };
+    const cm = covarianceMatrix(g, prior);
+    const f = cholesky(cm);
+    if (!f.ok) throw new Error('test prior must factor');
+    const a = covarianceNpy(cm, 'covariance', 'Trench (invented)');
+    const b = covarianceNpy(f.factor, 'cholesky', 'Trench (invented)');
+    expect([a.name, b.name]).toEqual(['trench-invented-prior-covariance-30.npy', 'trench-invented-prior-cholesky-factor-30.npy']);
+    const b64 = (u: Uint8Array) => Buffer.from(u).toString('base64');
+    const ref = runPython<{ shapes: number[][]; dtype: string; factorDiff: number; productDiff: number; upperMax: number }>('covariance_export.py', { cm: b64(a.bytes), L: b64(b.bytes) });
+    expect(ref.shapes).toEqual([[30, 30], [30, 30]]);
+    expect(ref.dtype).toBe('float64');
+    // Both factorisations in double precision of a matrix with κ ≈ 1e3: agreement far below 1e-10 (round-off, common practice, no source).
+    expect(ref.factorDiff).toBeLessThan(1e-12);
+    expect(ref.productDiff).toBeLessThan(1e-13);
+    expect(ref.upperMax).toBe(0);
+    const side = JSON.parse(new TextDecoder().decode(gridFile(g, b.name, 'Trench').bytes));
+    expect(side).toMatchObject({ kind: 'priorscope.grid', file: b.name, grid: { shape: [6, 5], spacing: [1, 2], origin: [0.5, 1], unit: 'm' } });
+    expect(gridFile(g, b.name, 'Trench').name).toBe('trench-invented-prior-cholesky-factor-30.grid.json');
   });
 });

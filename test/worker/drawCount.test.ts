@@ -24,3 +24,30 @@ describe('Engine: realisations for the export', () => {
     await expect(engine.handle({ id: 3, kind: 'posteriorDraws', problemVersion: 1, prior: PRIOR, count: 0, seed: 5 }, () => {})).rejects.toThrow('priorscope sample');
   });
 });
+
+describe('Engine: the dense Cm and its Cholesky factor for export', () => {
+  it('exports up to the export limit (beyond the view limit); the factor is the core Cholesky of Cm', async () => {
+    const { covarianceMatrix } = await import('../../src/core/prior/covariance.ts');
+    const { cholesky } = await import('../../src/core/linalg/cholesky.ts');
+    const { COVARIANCE_VIEW_LIMIT } = await import('../../src/worker/engine.ts');
+    const engine = new Engine();
+    const problem = profileProblem(500, 'diagonal');
+    expect(500).toBeGreaterThan(COVARIANCE_VIEW_LIMIT);
+    await engine.handle({ id: 1, kind: 'setProblem', version: 1, problem });
+    await expect(engine.handle({ id: 2, kind: 'covariance', problemVersion: 1, prior: PRIOR }, () => {})).rejects.toThrow('covariance view');
+    const prior = { ...PRIOR, nugget: 1e-6 };
+    const cm = await engine.handle({ id: 3, kind: 'covariance', problemVersion: 1, prior, form: 'covariance' }, () => {});
+    expect(sameBits(cm.data, covarianceMatrix(problem.grid, prior).data)).toBe(true);
+    const L = await engine.handle({ id: 4, kind: 'covariance', problemVersion: 1, prior, form: 'cholesky' }, () => {});
+    const f = cholesky(covarianceMatrix(problem.grid, prior));
+    expect(f.ok && sameBits(L.data, f.factor.data)).toBe(true);
+  });
+
+  it('a prior that is not positive definite has no factor to export, and says so', async () => {
+    const engine = new Engine();
+    await engine.handle({ id: 1, kind: 'setProblem', version: 1, problem: profileProblem(120, 'diagonal') });
+    // A Gaussian kernel 40 cells long without nugget on 120 cells: numerically singular (DEVELOPERS: the verdict).
+    const prior = { mean: { constant: 0 }, terms: [{ kernel: 'gaussian' as const, variance: 1, length: 40 }], nugget: 0 };
+    await expect(engine.handle({ id: 2, kind: 'covariance', problemVersion: 1, prior, form: 'cholesky' }, () => {})).rejects.toThrow('Cm is not positive definite');
+  });
+});

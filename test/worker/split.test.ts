@@ -44,3 +44,24 @@ describe('SplitClient.posterior', () => {
     expect(calls).toEqual([{ name: 'primary', handler: onPartial }]);
   });
 });
+
+describe('SplitClient.covariance', () => {
+  it('passes the export form (Cm or its Cholesky factor) to the secondary worker', async () => {
+    const calls: unknown[][] = [];
+    const client = (name: string) =>
+      ({
+        covariance: (...args: unknown[]) => {
+          calls.push([name, ...args]);
+          return Promise.resolve({ superseded: false, value: null });
+        },
+      }) as unknown as WorkerClient;
+    const split = new SplitClient(client('primary'), client('secondary'));
+    const prior = { mean: { constant: 0 }, terms: [] };
+    await split.covariance(prior, 'cholesky');
+    await split.covariance(prior);
+    expect(calls).toEqual([
+      ['secondary', prior, 'cholesky'],
+      ['secondary', prior, undefined],
+    ]);
+  });
+});

@@ -7,7 +7,7 @@ import { useEffect, useRef, useState, type FormEvent } from 'react';
 import { useWb, useWorkbenchStore } from '../context.ts';
 import { readFiles } from '../io/parseClient.ts';
 import { LoadError } from '../io/parseClient.ts';
-import { exportDraws, exportPlots, exportPosterior, exportPrior, openReport, shareLink } from './actions.ts';
+import { exportCovariance, exportDraws, exportPlots, exportPosterior, exportPrior, openReport, shareLink } from './actions.ts';
 import { PiecesForm } from './PiecesForm.tsx';
 import './session.css';
 
@@ -155,6 +155,18 @@ export function SessionBar() {
               </button>
             )),
           )}
+          {(['covariance', 'cholesky'] as const).map((form) => (
+            <button
+              key={form}
+              type="button"
+              data-testid={`export-${form}-npy`}
+              disabled={!ready}
+              title="Dense N × N float64 .npy for grids up to 4096 cells (128 MiB), with the grid in a .grid.json beside it"
+              onClick={guarded(() => exportCovariance(store, form), fail)}
+            >
+              {form === 'covariance' ? 'Dense Cm (.npy)' : 'Cholesky factor L of Cm, L Lᵀ = Cm (.npy)'}
+            </button>
+          ))}
           <button type="button" data-testid="export-plots-png" onClick={guarded(() => exportPlots('png', title), fail)}>
             Plots on this screen (.png, twice the screen size)
           </button>

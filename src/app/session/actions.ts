@@ -6,7 +6,7 @@ import Plotly from 'plotly.js-dist-min';
 import type { WorkbenchStore } from '../store.ts';
 import { CAUTION } from '../caution.ts';
 import { download } from './download.ts';
-import { drawsCsv, drawsGridFile, drawsName, drawsNpy, PLOT_EXPORT_SCALE, plotFileName, posteriorCsv, posteriorNpy, priorExport } from './exports.ts';
+import { covarianceNpy, drawsCsv, drawsGridFile, gridFile, drawsName, drawsNpy, PLOT_EXPORT_SCALE, plotFileName, posteriorCsv, posteriorNpy, priorExport } from './exports.ts';
 import { reportHtml } from './report.ts';
 import { encodeShare } from './share.ts';
 import { problemFingerprint } from '../../core/io/fingerprint.ts';
@@ -40,6 +40,17 @@ export async function exportDraws(store: WorkbenchStore, which: 'prior' | 'poste
   const base = drawsName(p.title, which, draws.rows);
   download(format === 'csv' ? drawsCsv(draws, base) : drawsNpy(draws, base));
   download(drawsGridFile(p.grid, draws, which, s.seed, base, p.title));
+  return true;
+}
+
+/** The dense Cm or its Cholesky factor as .npy (cells in the grid's order, x fastest), with the grid beside it. */
+export async function exportCovariance(store: WorkbenchStore, form: 'covariance' | 'cholesky'): Promise<boolean> {
+  const m = await store.getState().fetchCovariance(form);
+  const p = store.getState().problem;
+  if (!m || !p) return false;
+  const file = covarianceNpy(m, form, p.title);
+  download(file);
+  download(gridFile(p.grid, file.name, p.title));
   return true;
 }
 

@@ -90,15 +90,33 @@ export function drawsGridFile(grid: Grid, draws: Matrix, which: 'prior' | 'poste
     seed,
     layout: 'draws × cells: row k is realisation k; column i is cell i = ix + nx·iy (x fastest), centred at origin + (ix·dx, iy·dy)',
     files: [`${base}.npy`, `${base}.csv`],
-    grid: {
-      shape: [...grid.shape],
-      spacing: [...grid.spacing],
-      origin: [...(grid.origin ?? grid.shape.map(() => 0))],
-      ...(grid.unit !== undefined ? { unit: grid.unit } : {}),
-      ...(grid.axes !== undefined ? { axes: [...grid.axes] } : {}),
-    },
+    grid: gridRecord(grid),
   };
   return text(`${base}.grid.json`, 'application/json', formatJson(record));
+}
+
+/** The grid as in a problem file, origin always written. */
+function gridRecord(grid: Grid): Record<string, unknown> {
+  return {
+    shape: [...grid.shape],
+    spacing: [...grid.spacing],
+    origin: [...(grid.origin ?? grid.shape.map(() => 0))],
+    ...(grid.unit !== undefined ? { unit: grid.unit } : {}),
+    ...(grid.axes !== undefined ? { axes: [...grid.axes] } : {}),
+  };
+}
+
+/** The grid beside an exported N × N matrix (Cm or its factor): rows and columns are cells in the grid's order. */
+export function gridFile(grid: Grid, file: string, title: string): ExportFile {
+  const record = {
+    kind: 'priorscope.grid',
+    version: 1,
+    problem: title,
+    file,
+    layout: 'cells × cells: row and column i are cell i = ix + nx·iy (x fastest), centred at origin + (ix·dx, iy·dy)',
+    grid: gridRecord(grid),
+  };
+  return text(`${file.replace(/\.npy$/, '')}.grid.json`, 'application/json', formatJson(record));
 }
 
 /** PNG plots are written at this multiple of their size on screen. */
@@ -116,4 +134,10 @@ export function plotFileName(problemTitle: string, plotTitle: string, used: Set<
   for (let k = 2; used.has(name); k++) name = `${base}-${k}`;
   used.add(name);
   return name;
+}
+
+/** The dense Cm or its lower Cholesky factor L (L Lᵀ = Cm) as an N × N float64 .npy, named after the problem. */
+export function covarianceNpy(m: Matrix, form: 'covariance' | 'cholesky', title: string): ExportFile {
+  const name = `${fileStem(title)}-prior-${form === 'cholesky' ? 'cholesky-factor' : 'covariance'}-${m.rows}.npy`;
+  return { name, mime: NPY, bytes: writeNpy([m.rows, m.cols], m.data) };
 }

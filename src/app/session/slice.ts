@@ -69,6 +69,8 @@ export interface SessionSlice {
   /** Draws for export, computed for the current prior and seed (independent of the open tab). */
   /** The shown realisations (DRAW_COUNT, shared with the realisations screen), or `count` of them with the same seed. */
   fetchDraws(which: 'prior' | 'posterior', count?: number): Promise<Matrix | null>;
+  /** The dense Cm or its lower Cholesky factor for export (after any covariance view in flight). */
+  fetchCovariance(form: 'covariance' | 'cholesky'): Promise<Matrix | null>;
 }
 
 
@@ -299,6 +301,22 @@ export function createSessionSlice(set: StoreSet, get: StoreGet, api: WorkbenchS
         if (count === DRAW_COUNT && t.errors[channel]) throw new Error(t.errors[channel]);
       }
       const o = await (which === 'prior' ? client.priorDraws(s.prior, count, s.seed) : client.posteriorDraws(s.prior, count, s.seed));
+      return o.superseded ? null : o.value;
+    },
+    async fetchCovariance(form) {
+      const s = get();
+      if (!s.prior) return null;
+      // Wait for the Prior screen's view request rather than superseding it.
+      await new Promise<void>((resolve) => {
+        if (!get().busy.covariance) return resolve();
+        const off = api.subscribe((t) => {
+          if (!t.busy.covariance) {
+            off();
+            resolve();
+          }
+        });
+      });
+      const o = await client.covariance(s.prior, form);
       return o.superseded ? null : o.value;
     },
   };
