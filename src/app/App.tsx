@@ -65,7 +65,7 @@ export function App() {
     const j = e.key === 'ArrowRight' ? (i + 1) % n : e.key === 'ArrowLeft' ? (i + n - 1) % n : e.key === 'Home' ? 0 : e.key === 'End' ? n - 1 : -1;
     if (j < 0) return;
     e.preventDefault();
-    setTab(TABS[j]!.id);
+    setTab(TABS[j].id);
     tabRefs.current[j]?.focus();
   };
 

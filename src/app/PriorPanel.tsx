@@ -15,7 +15,7 @@ import { MAX_TERMS } from '../core/prior/validate.ts';
 function lengthRange(problem: ProblemView): [number, number] {
   const g = problem.grid;
   const minSpacing = Math.min(...g.spacing);
-  const extent = Math.max(...g.shape.map((n, k) => n * g.spacing[k]!));
+  const extent = Math.max(...g.shape.map((n, k) => n * g.spacing[k]));
   return [minSpacing / 10, extent * 10];
 }
 

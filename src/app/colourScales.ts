@@ -23,9 +23,9 @@ export type Range = readonly [number, number];
  */
 export function constantValue(values: ArrayLike<number>): number | null {
   if (values.length === 0) return null;
-  const v0 = values[0]!;
+  const v0 = values[0];
   const tol = 1e-12 * Math.max(1, Math.abs(v0));
-  for (let i = 1; i < values.length; i++) if (Math.abs(values[i]! - v0) > tol) return null;
+  for (let i = 1; i < values.length; i++) if (Math.abs(values[i] - v0) > tol) return null;
   return v0;
 }
 
@@ -46,7 +46,7 @@ export function signedView(field: ArrayLike<number>, priorMean: ArrayLike<number
   const c = constantValue(priorMean);
   if (c !== null) return { values: Float64Array.from(field), centre: c, perturbation: false };
   const out = new Float64Array(field.length);
-  for (let i = 0; i < out.length; i++) out[i] = field[i]! - priorMean[i]!;
+  for (let i = 0; i < out.length; i++) out[i] = field[i] - priorMean[i];
   return { values: out, centre: 0, perturbation: true };
 }
 
@@ -58,7 +58,7 @@ export function divergingRange(fields: readonly ArrayLike<number>[], centre: num
   let a = 0;
   for (const f of fields) {
     for (let i = 0; i < f.length; i++) {
-      const d = Math.abs(f[i]! - centre);
+      const d = Math.abs(f[i] - centre);
       if (Number.isFinite(d) && d > a) a = d;
     }
   }
@@ -71,7 +71,7 @@ export function sequentialRange(fields: readonly ArrayLike<number>[]): Range {
   let hi = 0;
   for (const f of fields) {
     for (let i = 0; i < f.length; i++) {
-      const v = f[i]!;
+      const v = f[i];
       if (Number.isFinite(v) && v > hi) hi = v;
     }
   }
@@ -96,7 +96,7 @@ export function clippedFraction(fields: readonly ArrayLike<number>[], range: Ran
   for (const f of fields) {
     for (let i = 0; i < f.length; i++) {
       n++;
-      if (f[i]! < range[0] || f[i]! > range[1]) out++;
+      if (f[i] < range[0] || f[i] > range[1]) out++;
     }
   }
   return n === 0 ? 0 : out / n;
@@ -132,13 +132,14 @@ export function candidateRanges(
   const means = items.map((i) => ('constant' in i.prior.mean ? (i.prior.mean as { constant: number }).constant : null));
   const fields = items.flatMap((i) => i.signed);
   let centre: number;
-  if (means.length > 0 && means.every((m) => m !== null && m === means[0])) centre = means[0]!;
+  const first = means[0];
+  if (means.length > 0 && first !== null && means.every((m) => m === first)) centre = first;
   else {
     let lo = Infinity;
     let hi = -Infinity;
     for (const f of fields) {
       for (let k = 0; k < f.length; k++) {
-        const v = f[k]!;
+        const v = f[k];
         if (!Number.isFinite(v)) continue;
         if (v < lo) lo = v;
         if (v > hi) hi = v;

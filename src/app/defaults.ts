@@ -16,7 +16,7 @@ export function defaultPrior(problem: ProblemView): PriorSpec {
 
 export function defaultTerm(problem: ProblemView): Term {
   const g = problem.grid;
-  const extent = Math.max(...g.shape.map((n, k) => n * g.spacing[k]!));
+  const extent = Math.max(...g.shape.map((n, k) => n * g.spacing[k]));
   const length = roundTo2(extent / 10);
   return { kernel: 'exponential', variance: 1, length };
 }

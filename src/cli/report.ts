@@ -92,7 +92,7 @@ export const report: Command = {
     const unit = grid.unit ?? '';
     const qUnit = problem.quantity?.unit ?? '';
     const dataUnit = problem.data.unit ?? '';
-    const sigma = problem.data.sigma ?? Float64Array.from({ length: problem.data.values.length }, (_, i) => Math.sqrt(problem.data.covariance!.data[i * problem.data.values.length + i]!));
+    const sigma = problem.data.sigma ?? Float64Array.from({ length: problem.data.values.length }, (_, i) => Math.sqrt(problem.data.covariance!.data[i * problem.data.values.length + i]));
 
     progress(io, 'positive-definiteness diagnostics');
     const diagnostics = diagnosePriorAuto(grid, prior);
@@ -120,7 +120,7 @@ export const report: Command = {
       };
       averagedOut = { cellsUsed: a.cellsUsed, effectiveCells: a.effectiveCells, edgeWeight: a.edgeWeight, hyperPrior: hyper, maxMeanChange: maxAbsDiff(a.mean, sm.mean) };
     }
-    const candidates = others.length > 0 ? candidateRows(problem, [{ name: priorPath, prior }, ...others.map((q, k) => ({ name: compare[k]!, prior: q }))], unit, qUnit) : null;
+    const candidates = others.length > 0 ? candidateRows(problem, [{ name: priorPath, prior }, ...others.map((q, k) => ({ name: compare[k], prior: q }))], unit, qUnit) : null;
     const shape = operatorShape(problem.operator);
     const input: DefenceInput = {
       title: problem.title ?? 'Untitled problem',
@@ -132,7 +132,7 @@ export const report: Command = {
       dataUnit,
       problemFacts: [
         ['Grid', `${grid.shape.join(' × ')} cells (${cellCount(grid)}), spacing ${grid.spacing.map(g4).join(' × ')}${unit ? ' ' + unit : ''}, first cell centre at (${(grid.origin ?? grid.shape.map(() => 0)).map(g4).join(', ')}), cells numbered with the first axis fastest`],
-        ['Extent', grid.shape.map((n, i) => `${g4(n * grid.spacing[i]!)}${unit ? ' ' + unit : ''}`).join(' × ')],
+        ['Extent', grid.shape.map((n, i) => `${g4(n * grid.spacing[i])}${unit ? ' ' + unit : ''}`).join(' × ')],
         ['Data', `${problem.data.values.length} values${dataUnit ? ` in ${dataUnit}` : ''}, σ from ${g4(Math.min(...sigma))} to ${g4(Math.max(...sigma))}`],
         ['Operator', `${problem.operator.kind}, ${shape.rows} × ${shape.cols}`],
         ['Quantity', `${problem.quantity?.name ?? 'value'}${qUnit ? ` (${qUnit})` : ''}`],
@@ -166,6 +166,6 @@ export const report: Command = {
 
 function maxAbsDiff(a: ArrayLike<number>, b: ArrayLike<number>): number {
   let m = 0;
-  for (let i = 0; i < a.length; i++) m = Math.max(m, Math.abs(a[i]! - b[i]!));
+  for (let i = 0; i < a.length; i++) m = Math.max(m, Math.abs(a[i] - b[i]));
   return m;
 }

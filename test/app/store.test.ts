@@ -54,9 +54,9 @@ const view = (s: ReturnType<Awaited<ReturnType<typeof setup>>['store']['getState
 describe('store: mean first, bands later', () => {
   it('shows the partial mean at once with the bands computing, then the full result replaces it', async () => {
     const { store, pending, compute } = await setup();
-    const { partial, result } = await compute(pending[0]!.prior);
+    const { partial, result } = await compute(pending[0].prior);
     expect(view(store.getState()).bands).toBe('none');
-    pending[0]!.onPartial!(partial);
+    pending[0].onPartial!(partial);
     let s = store.getState();
     expect(s.posteriorPartial).toBe(partial);
     expect(s.posterior).toBeNull();
@@ -65,7 +65,7 @@ describe('store: mean first, bands later', () => {
     expect(bandsText(view(s).bands)).toBe('Uncertainty bands: computing…');
     expect(view(s).shown!.mean).toBe(partial.mean);
     expect(view(s).shown!.summary).toBeNull();
-    pending[0]!.resolve({ superseded: false, value: result });
+    pending[0].resolve({ superseded: false, value: result });
     await tick();
     s = store.getState();
     expect(s.posterior).toBe(result);
@@ -77,14 +77,14 @@ describe('store: mean first, bands later', () => {
 
   it('bands failing after a partial keep the partial mean and the last complete result, with a clear message', async () => {
     const { store, pending, compute } = await setup();
-    const first = await compute(pending[0]!.prior);
-    pending[0]!.resolve({ superseded: false, value: first.result });
+    const first = await compute(pending[0].prior);
+    pending[0].resolve({ superseded: false, value: first.result });
     await tick();
     store.getState().updateTerm(0, { length: 3.5 });
     expect(pending).toHaveLength(2);
-    const second = await compute(pending[1]!.prior);
-    pending[1]!.onPartial!(second.partial);
-    pending[1]!.reject(new Error('out of memory'));
+    const second = await compute(pending[1].prior);
+    pending[1].onPartial!(second.partial);
+    pending[1].reject(new Error('out of memory'));
     await tick();
     const s = store.getState();
     expect(s.posterior).toBe(first.result);
@@ -97,11 +97,11 @@ describe('store: mean first, bands later', () => {
 
   it('a failure before any partial keeps the message as it was and the last complete result', async () => {
     const { store, pending, compute } = await setup();
-    const first = await compute(pending[0]!.prior);
-    pending[0]!.resolve({ superseded: false, value: first.result });
+    const first = await compute(pending[0].prior);
+    pending[0].resolve({ superseded: false, value: first.result });
     await tick();
     store.getState().updateTerm(0, { length: 3.5 });
-    pending[1]!.reject(new Error('terms[0].length must be > 0, got -1'));
+    pending[1].reject(new Error('terms[0].length must be > 0, got -1'));
     await tick();
     const s = store.getState();
     expect(s.errors.posterior).toBe('terms[0].length must be > 0, got -1');
@@ -112,14 +112,14 @@ describe('store: mean first, bands later', () => {
 
   it('ignores the partial of a request the store has moved past', async () => {
     const { store, pending, compute } = await setup();
-    const { partial } = await compute(pending[0]!.prior);
+    const { partial } = await compute(pending[0].prior);
     store.getState().updateTerm(0, { length: 3.5 });
     expect(pending).toHaveLength(2);
-    pending[0]!.onPartial!(partial);
+    pending[0].onPartial!(partial);
     expect(store.getState().posteriorPartial).toBeNull();
     // a new problem: the pending request's partial is stale as well
     await store.getState().loadDemo('borehole-log');
-    pending[1]!.onPartial!((await compute(pending[1]!.prior)).partial);
+    pending[1].onPartial!((await compute(pending[1].prior)).partial);
     expect(store.getState().posteriorPartial).toBeNull();
   });
 
@@ -132,7 +132,7 @@ describe('store: mean first, bands later', () => {
     await tick(30);
     expect(store.getState().saveStatus).toBe('saved');
     const saved = storage.map.get('session');
-    pending[1]!.onPartial!((await compute(pending[1]!.prior)).partial);
+    pending[1].onPartial!((await compute(pending[1].prior)).partial);
     expect(store.getState().posteriorPartial).not.toBeNull();
     expect(store.getState().saveStatus).toBe('saved');
     await tick(30);

@@ -47,7 +47,7 @@ describe('trace builders', () => {
 
   it('marks the exponential practical range where ρ = 0.05, i.e. at ℓ·ln 20 (closed form of e^(−h) = 0.05)', () => {
     const c = correlationCurves({ mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 2, length: 10 }] }, 50);
-    expect(c.terms[0]!.practicalRange).toBeCloseTo(10 * Math.log(20), 8);
+    expect(c.terms[0].practicalRange).toBeCloseTo(10 * Math.log(20), 8);
     expect(c.total[0]).toBe(1);
     // total correlation with a nugget: Σσ²ρ / (Σσ² + nugget) away from zero lag
     const n = correlationCurves({ mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 3, length: 10 }], nugget: 1 }, 50, 11);
@@ -60,7 +60,7 @@ describe('trace builders', () => {
     expect(scaledDistance(t, 4 * Math.cos(a), 4 * Math.sin(a))).toBeCloseTo(1, 12);
     expect(scaledDistance(t, -Math.sin(a), Math.cos(a))).toBeCloseTo(1, 12);
     const m = correlationMap({ mean: { constant: 0 }, terms: [t] }, 8, 5);
-    expect(m.z[2]![2]).toBeCloseTo(1, 12);
+    expect(m.z[2][2]).toBeCloseTo(1, 12);
   });
 
   it('finds a common colour range over a gallery', () => {

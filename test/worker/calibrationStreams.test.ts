@@ -24,7 +24,7 @@ describe('workbench and command line: the same calibration for the same seed', (
     const w = await runTuning<'calibration'>(problem, { id: 1, kind: 'calibration', problemVersion: 0, prior, replicates: 23, draws: 5, seed: 31 }, () => {}, { aborted: false });
     const r = await runCommand(['calibrate', '--problem', 'p.json', '--prior', 'q.json', '--replicates', '23', '--seed', '31', '--draws', '5'], dir);
     expect(r.code, r.err).toBe(0);
-    const c = (JSON.parse(r.out) as { results: { coverage68: number; coverage95: number; replicateCoverage68: number[]; replicateCoverage95: number[]; rankHistogram: number[] }[] }).results[0]!;
+    const c = (JSON.parse(r.out) as { results: { coverage68: number; coverage95: number; replicateCoverage68: number[]; replicateCoverage95: number[]; rankHistogram: number[] }[] }).results[0];
     expect(Array.from(w.replicateCoverage68)).toEqual(c.replicateCoverage68);
     expect(Array.from(w.replicateCoverage95)).toEqual(c.replicateCoverage95);
     expect(Array.from(w.rankHistogram)).toEqual(c.rankHistogram);

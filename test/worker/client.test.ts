@@ -24,7 +24,7 @@ class FakeWorker implements WorkerLike {
   }
   last(kind?: WorkerRequest['kind']): WorkerRequest {
     const all = this.sent.map((s) => s.message).filter((m) => !kind || m.kind === kind);
-    return all[all.length - 1]!;
+    return all[all.length - 1];
   }
 }
 
@@ -35,7 +35,7 @@ function setup() {
     workers.push(w);
     return w;
   });
-  return { client, workers, w: () => workers[workers.length - 1]! };
+  return { client, workers, w: () => workers[workers.length - 1] };
 }
 
 const prior = (length: number): PriorSpec => ({ mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length }] });
@@ -84,7 +84,7 @@ describe('WorkerClient', () => {
     const { client, w } = setup();
     const promises = Array.from({ length: 20 }, (_, k) => client.posterior(prior(k + 1)));
     const last = w().last('posterior');
-    expect(last.kind === 'posterior' && last.prior.terms[0]!.length).toBe(20);
+    expect(last.kind === 'posterior' && last.prior.terms[0].length).toBe(20);
     w().reply({ type: 'result', id: last.id, result: 'last' as never });
     const outcomes = await Promise.all(promises);
     expect(outcomes.filter((o) => !o.superseded)).toEqual([{ superseded: false, value: 'last' }]);
@@ -132,28 +132,28 @@ describe('WorkerClient', () => {
     let restarted = '';
     client.onRestart((reason) => (restarted = reason));
     const p = client.posterior(prior(1));
-    workers[0]!.crash('out of memory');
+    workers[0].crash('out of memory');
     await expect(p).rejects.toBeInstanceOf(WorkerRestartedError);
     expect(workers).toHaveLength(2);
-    expect(workers[0]!.terminated).toBe(true);
-    const resent = workers[1]!.last();
+    expect(workers[0].terminated).toBe(true);
+    const resent = workers[1].last();
     expect(resent.kind).toBe('loadDemo');
     expect(resent.kind === 'loadDemo' && resent.demoId).toBe('borehole-log');
     expect(restarted).toBe('out of memory');
     expect(client.restarts).toBe(1);
     // the new worker answers new requests
     const q = client.diagnostics(prior(1));
-    workers[1]!.reply({ type: 'result', id: workers[1]!.last('diagnostics').id, result: 'ok' as never });
+    workers[1].reply({ type: 'result', id: workers[1].last('diagnostics').id, result: 'ok' as never });
     await expect(q).resolves.toEqual({ superseded: false, value: 'ok' });
   });
 
   it('a problem request pending during a crash is re-sent and still resolves', async () => {
     const { client, workers } = setup();
     const d = client.loadDemo('potential-field');
-    workers[0]!.crash();
-    const resent = workers[1]!.last();
+    workers[0].crash();
+    const resent = workers[1].last();
     expect(resent.kind).toBe('loadDemo');
-    workers[1]!.reply({ type: 'result', id: resent.id, result: view });
+    workers[1].reply({ type: 'result', id: resent.id, result: view });
     await expect(d).resolves.toEqual({ superseded: false, value: view });
   });
 
@@ -166,7 +166,7 @@ describe('WorkerClient', () => {
       data: { values, sigma: new Float64Array([1, 1, 1]) },
     };
     void client.setProblem(problem);
-    const sent = w().sent[0]!;
+    const sent = w().sent[0];
     expect(sent.transfer).toHaveLength(3);
     const m = sent.message as unknown as { problem: typeof problem };
     expect(m.problem.data.values).not.toBe(values);
@@ -182,7 +182,7 @@ describe('WorkerClient', () => {
       data: { values: new Float64Array(3), sigma: new Float64Array([1, 1, 1]), geometry: { kind: 'points' as const, positions } },
     };
     void client.setProblem(problem);
-    const m = w().sent[0]!.message as unknown as { problem: typeof problem };
+    const m = w().sent[0].message as unknown as { problem: typeof problem };
     expect(m.problem.data.geometry).toEqual({ kind: 'points', positions });
   });
 
@@ -198,7 +198,7 @@ describe('WorkerClient', () => {
       { onProgress: (channel, stage, f) => seen.push(`${channel}:${stage}:${f}`) },
     );
     void client.posterior(prior(1));
-    workers[0]!.reply({ type: 'progress', id: workers[0]!.last().id, stage: 'factorising', fraction: 0.5 });
+    workers[0].reply({ type: 'progress', id: workers[0].last().id, stage: 'factorising', fraction: 0.5 });
     expect(seen).toEqual(['posterior:factorising:0.5']);
   });
 });

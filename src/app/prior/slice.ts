@@ -91,7 +91,7 @@ export function createPriorSlice(set: StoreSet, get: StoreGet): PriorSlice {
         const j = index + delta;
         if (j < 0 || j >= terms.length) return terms;
         const out = [...terms];
-        [out[index], out[j]] = [out[j]!, out[index]!];
+        [out[index], out[j]] = [out[j], out[index]];
         return out;
       });
     },

@@ -14,7 +14,7 @@ import { Waiting } from './Waiting.tsx';
 
 function CellPicker({ p }: { p: ProblemView }) {
   const [cell, selectCell] = useWb(useShallow((s) => [s.selectedCell, s.selectCell] as const));
-  const nx = p.grid.shape[0]!;
+  const nx = p.grid.shape[0];
   const ny = p.grid.shape[1] ?? 1;
   const is2D = gridDimension(p.grid) === 2;
   const ix = cell === null ? 0 : cell % nx;

@@ -53,9 +53,9 @@ export function averagedChange(chosen: MeanStd, averaged: MeanStd): { maxMeanCha
   let sc = 0;
   let sa = 0;
   for (let i = 0; i < chosen.mean.length; i++) {
-    d = Math.max(d, Math.abs(averaged.mean[i]! - chosen.mean[i]!));
-    sc = Math.max(sc, chosen.std[i]!);
-    sa = Math.max(sa, averaged.std[i]!);
+    d = Math.max(d, Math.abs(averaged.mean[i] - chosen.mean[i]));
+    sc = Math.max(sc, chosen.std[i]);
+    sa = Math.max(sa, averaged.std[i]);
   }
   return { maxMeanChange: d, stdRatio: sc > 0 ? sa / sc : Number.NaN };
 }

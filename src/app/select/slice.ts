@@ -278,7 +278,7 @@ export function createSelectSlice(set: StoreSet, get: StoreGet, client: Pick<Cli
       const j = index % nv;
       const term = s.prior.terms[map.term];
       if (!term || i < 0 || i >= map.lengths.length) return;
-      s.setPrior(withTerm(s.prior, map.term, { ...setTermLength(term, map.lengths[i]!), variance: map.variances[j]! }));
+      s.setPrior(withTerm(s.prior, map.term, { ...setTermLength(term, map.lengths[i]), variance: map.variances[j] }));
     },
     applyTuned(prior) {
       const s = get();

@@ -52,7 +52,7 @@ export function reportInput(s: WorkbenchState, caution: string, draws: Matrix | 
   const unit = p.grid.unit ?? '';
   const facts: [string, string][] = [
     ['Grid', `${p.grid.shape.join(' × ')} cells (${n}), spacing ${p.grid.spacing.map(g4).join(' × ')}${unit ? ' ' + unit : ''}, first cell centre at (${(p.grid.origin ?? p.grid.shape.map(() => 0)).map(g4).join(', ')}), cells numbered with the first axis fastest`],
-    ['Extent', p.grid.shape.map((k, i) => `${g4(k * p.grid.spacing[i]!)}${unit ? ' ' + unit : ''}`).join(' × ')],
+    ['Extent', p.grid.shape.map((k, i) => `${g4(k * p.grid.spacing[i])}${unit ? ' ' + unit : ''}`).join(' × ')],
     ['Data', `${p.dataCount} values${p.dataUnit ? ` in ${p.dataUnit}` : ''}, σ from ${g4(Math.min(...p.sigma))} to ${g4(Math.max(...p.sigma))}`],
     ['Operator', `${p.operatorKind}, ${p.operatorNonZeros} non-zeros`],
     ['Quantity', `${p.quantity.name}${p.quantity.unit ? ' (' + p.quantity.unit + ')' : ''}`],

@@ -166,9 +166,9 @@ function shapeDefect(raw: unknown): string | null {
   } else if (raw.operator.kind === 'sparse') {
     const { rowPtr, colIdx, values } = g;
     if (!(rowPtr instanceof Int32Array) || rowPtr.length !== m + 1) return `the sparse operator must have ${m + 1} row offsets`;
-    const nnz = rowPtr[m]!;
+    const nnz = rowPtr[m];
     if (!(colIdx instanceof Int32Array) || !(values instanceof Float64Array) || colIdx.length !== nnz || values.length !== nnz || rowPtr[0] !== 0) return 'the sparse operator is damaged';
-    for (let i = 0; i < m; i++) if (rowPtr[i + 1]! < rowPtr[i]!) return 'the sparse operator is damaged';
+    for (let i = 0; i < m; i++) if (rowPtr[i + 1] < rowPtr[i]) return 'the sparse operator is damaged';
   } else return 'the operator must be dense or sparse';
   const d = raw.data;
   if (!(d.values instanceof Float64Array) || d.values.length !== m) return `data.values must hold ${m} numbers (one per operator row)`;

@@ -54,18 +54,18 @@ export function profileAxis(grid: Grid, positions: { rows: number; cols: number;
     let lo = Infinity;
     let hi = -Infinity;
     for (let i = 0; i < positions.rows; i++) {
-      const v = positions.data[i * positions.cols + k]!;
+      const v = positions.data[i * positions.cols + k];
       lo = Math.min(lo, v);
       hi = Math.max(hi, v);
     }
     return hi - lo;
   });
-  return gridDimension(grid) === 2 && spread[1]! > spread[0]! ? 1 : 0;
+  return gridDimension(grid) === 2 && spread[1] > spread[0] ? 1 : 0;
 }
 
 /** Data indices ordered by position along `axis` (stable: equal positions keep the data order). */
 function orderAlong(positions: { rows: number; cols: number; data: Float64Array }, axis: number): { order: number[]; x: number[] } {
-  const at = (i: number) => positions.data[i * positions.cols + axis]!;
+  const at = (i: number) => positions.data[i * positions.cols + axis];
   const order = Array.from({ length: positions.rows }, (_, i) => i).sort((a, b) => at(a) - at(b) || a - b);
   return { order, x: order.map(at) };
 }
@@ -77,7 +77,7 @@ function orderAlong(positions: { rows: number; cols: number; data: Float64Array 
 export function profileTraces(p: DataLike, positions: { rows: number; cols: number; data: Float64Array }, fit: FitLike | null): { data: Trace[]; residuals: Trace[]; axis: number } {
   const axis = profileAxis(p.grid, positions);
   const { order, x } = orderAlong(positions, axis);
-  const pick = (a: ArrayLike<number>) => order.map((i) => a[i]!);
+  const pick = (a: ArrayLike<number>) => order.map((i) => a[i]);
   const numbers = order.map((i) => i + 1);
   const name = hoverName(axisNames(p.grid)[axis] ?? 'x');
   const data: Trace[] = [
@@ -154,7 +154,7 @@ export function surveyDataFigure(p: DataLike & { readonly geometry: DataGeometry
 /** cmin/cmax symmetric about zero, at least ±3 so that small residuals stay grey. */
 export function symmetricRange(r: ArrayLike<number>): { cmin: number; cmax: number } {
   let m = 3;
-  for (let i = 0; i < r.length; i++) if (Number.isFinite(r[i]!)) m = Math.max(m, Math.abs(r[i]!));
+  for (let i = 0; i < r.length; i++) if (Number.isFinite(r[i])) m = Math.max(m, Math.abs(r[i]));
   return { cmin: -m, cmax: m };
 }
 
@@ -162,9 +162,9 @@ export function symmetricRange(r: ArrayLike<number>): { cmin: number; cmax: numb
 export function classColour(k: number, classes = RAY_CLASSES): string {
   const t = classes === 1 ? 0.5 : k / (classes - 1);
   const hex = (s: string) => [1, 3, 5].map((i) => Number.parseInt(s.slice(i, i + 2), 16));
-  const [a, b] = t <= 0.5 ? [hex(RESIDUAL_SCALE[0]![1]), hex(RESIDUAL_SCALE[1]![1])] : [hex(RESIDUAL_SCALE[1]![1]), hex(RESIDUAL_SCALE[2]![1])];
+  const [a, b] = t <= 0.5 ? [hex(RESIDUAL_SCALE[0][1]), hex(RESIDUAL_SCALE[1][1])] : [hex(RESIDUAL_SCALE[1][1]), hex(RESIDUAL_SCALE[2][1])];
   const u = t <= 0.5 ? t / 0.5 : (t - 0.5) / 0.5;
-  return `rgb(${a!.map((v, i) => Math.round(v + (b![i]! - v) * u)).join(', ')})`;
+  return `rgb(${a!.map((v, i) => Math.round(v + (b![i] - v) * u)).join(', ')})`;
 }
 
 /** The class of residual r on [−R, R] split into `classes` equal intervals (ends clamped). */
@@ -191,8 +191,8 @@ export function rayTraces(grid: Grid, paths: Paths, residuals: ArrayLike<number>
     const x: (number | null)[] = [];
     const y: (number | null)[] = [];
     for (const k of ks) {
-      x.push(s[2 * k]!, r[2 * k]!, null);
-      y.push(s[2 * k + 1]!, r[2 * k + 1]!, null);
+      x.push(s[2 * k], r[2 * k], null);
+      y.push(s[2 * k + 1], r[2 * k + 1], null);
     }
     return { x, y };
   };
@@ -205,17 +205,17 @@ export function rayTraces(grid: Grid, paths: Paths, residuals: ArrayLike<number>
   } else {
     const { cmax: R } = symmetricRange(residuals);
     const byClass: number[][] = Array.from({ length: RAY_CLASSES }, () => []);
-    for (let k = 0; k < m; k++) byClass[residualClass(residuals[k]!, R)]!.push(k);
+    for (let k = 0; k < m; k++) byClass[residualClass(residuals[k], R)].push(k);
     const mid = (RAY_CLASSES - 1) / 2;
     const drawOrder = Array.from({ length: RAY_CLASSES }, (_, k) => k).sort((p, q) => Math.abs(p - mid) - Math.abs(q - mid) || p - q);
     for (const c of drawOrder) {
-      if (byClass[c]!.length === 0) continue;
+      if (byClass[c].length === 0) continue;
       const lo = -R + (2 * R * c) / RAY_CLASSES;
       const hi = lo + (2 * R) / RAY_CLASSES;
       out.push({
         type: 'scatter',
         mode: 'lines',
-        ...segments(byClass[c]!),
+        ...segments(byClass[c]),
         name: `residual ${fmtNum(lo)} to ${fmtNum(hi)}`,
         line: { color: classColour(c), width: Math.abs(c - mid) >= 2 ? 1.6 : 1 },
         showlegend: false,
@@ -225,8 +225,8 @@ export function rayTraces(grid: Grid, paths: Paths, residuals: ArrayLike<number>
     out.push({
       type: 'scatter',
       mode: 'markers',
-      x: all.map((k) => (s[2 * k]! + r[2 * k]!) / 2),
-      y: all.map((k) => (s[2 * k + 1]! + r[2 * k + 1]!) / 2),
+      x: all.map((k) => (s[2 * k] + r[2 * k]) / 2),
+      y: all.map((k) => (s[2 * k + 1] + r[2 * k + 1]) / 2),
       customdata: all.map((k) => k + 1),
       name: 'normalised residual per ray',
       marker: {
@@ -255,8 +255,8 @@ function endsTrace(ends: { rows: number; data: Float64Array }, name: string, sym
     const key = `${ends.data[2 * k]},${ends.data[2 * k + 1]}`;
     if (seen.has(key)) continue;
     seen.add(key);
-    x.push(ends.data[2 * k]!);
-    y.push(ends.data[2 * k + 1]!);
+    x.push(ends.data[2 * k]);
+    y.push(ends.data[2 * k + 1]);
   }
   return { type: 'scatter', mode: 'markers', x, y, name: `${name} (${x.length})`, marker: { symbol, size: 8, color }, hovertemplate: `${name}<br>${hoverName(a)} %{x}<br>${hoverName(b)} %{y}<extra></extra>` };
 }
@@ -309,7 +309,7 @@ export function gridOverlayTraces(grid: Grid, geometry: DataGeometry | null): Tr
     mode: 'markers',
     x: [o[0]],
     y: [twoD ? o[1] : 0],
-    name: `first cell centre (${twoD ? `${formatNumber(o[0]!)}, ${formatNumber(o[1]!)}` : formatNumber(o[0]!)})${u}`,
+    name: `first cell centre (${twoD ? `${formatNumber(o[0])}, ${formatNumber(o[1])}` : formatNumber(o[0])})${u}`,
     marker: { symbol: 'x', size: 10, color: '#d0352b' },
     hovertemplate: `first cell centre (origin)<br>${hoverName(a!)} %{x}${twoD ? `<br>${hoverName(c!)} %{y}` : ''}<extra></extra>`,
   };
@@ -319,8 +319,8 @@ export function gridOverlayTraces(grid: Grid, geometry: DataGeometry | null): Tr
     out.push({
       type: 'scatter',
       mode: 'markers',
-      x: Array.from({ length: p.rows }, (_, i) => p.data[i * p.cols]!),
-      y: Array.from({ length: p.rows }, (_, i) => (p.cols > 1 && twoD ? p.data[i * p.cols + 1]! : 0)),
+      x: Array.from({ length: p.rows }, (_, i) => p.data[i * p.cols]),
+      y: Array.from({ length: p.rows }, (_, i) => (p.cols > 1 && twoD ? p.data[i * p.cols + 1] : 0)),
       customdata: Array.from({ length: p.rows }, (_, i) => i + 1),
       name: `data positions (${p.rows})`,
       marker: { symbol: 'triangle-down', size: 8, color: COLOURS.data, line: { color: 'white', width: 0.5 } },

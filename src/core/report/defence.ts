@@ -88,21 +88,21 @@ function axisName(grid: Grid, k: number): string {
 }
 
 function cellCentres(grid: Grid): number[] {
-  const d = grid.spacing[0]!;
+  const d = grid.spacing[0];
   const o = grid.origin?.[0] ?? 0;
-  return Array.from({ length: grid.shape[0]! }, (_, i) => o + i * d);
+  return Array.from({ length: grid.shape[0] }, (_, i) => o + i * d);
 }
 
 function symmetric(fields: readonly ArrayLike<number>[], centre: number): [number, number] {
   let a = 0;
-  for (const f of fields) for (let i = 0; i < f.length; i++) if (Number.isFinite(f[i]!)) a = Math.max(a, Math.abs(f[i]! - centre));
+  for (const f of fields) for (let i = 0; i < f.length; i++) if (Number.isFinite(f[i])) a = Math.max(a, Math.abs(f[i] - centre));
   if (a === 0) a = 1e-12 * Math.max(1, Math.abs(centre));
   return [centre - a, centre + a];
 }
 
 function upTo(fields: readonly ArrayLike<number>[]): [number, number] {
   let hi = 0;
-  for (const f of fields) for (let i = 0; i < f.length; i++) if (Number.isFinite(f[i]!)) hi = Math.max(hi, f[i]!);
+  for (const f of fields) for (let i = 0; i < f.length; i++) if (Number.isFinite(f[i])) hi = Math.max(hi, f[i]);
   return [0, hi > 0 ? hi : 1];
 }
 
@@ -112,7 +112,7 @@ function map(input: DefenceInput, field: ArrayLike<number>, title: string, scale
   return heatSvg({
     title,
     field,
-    nx: g.shape[0]!,
+    nx: g.shape[0],
     ny: g.shape[1] ?? 1,
     xRange: gridExtent(g, 0),
     yRange: gridExtent(g, 1),
@@ -178,13 +178,13 @@ export function defenceHtml(input: DefenceInput): string {
     const rows = Array.from({ length: n }, (_, k) => input.draws!.data.subarray(k * input.draws!.cols, (k + 1) * input.draws!.cols));
     if (is2D) {
       const perturb = meanConst === null;
-      const fields = perturb ? rows.map((r) => r.map((v, i) => v - input.priorMean[i]!)) : rows;
+      const fields = perturb ? rows.map((r) => r.map((v, i) => v - input.priorMean[i])) : rows;
       const range = symmetric(fields, perturb ? 0 : centre);
       real = `<div class="figs">${fields.map((f, k) => map(input, f, `Prior realisation ${k + 1}${perturb ? ' − prior mean' : ''}`, DIVERGING, range, qUnit, 200)).join('')}</div>`;
     } else {
       const x = cellCentres(g);
-      const lower = Array.from(input.priorMean, (m, i) => m - 1.959963984540054 * input.priorStd[i]!);
-      const upper = Array.from(input.priorMean, (m, i) => m + 1.959963984540054 * input.priorStd[i]!);
+      const lower = Array.from(input.priorMean, (m, i) => m - 1.959963984540054 * input.priorStd[i]);
+      const upper = Array.from(input.priorMean, (m, i) => m + 1.959963984540054 * input.priorStd[i]);
       real = `<div class="figs">${lineSvg({
         title: `${n} prior realisations (seed ${input.seed}), prior mean and 95% band`,
         x,
@@ -192,7 +192,7 @@ export function defenceHtml(input: DefenceInput): string {
         yLabel: q,
         width: 560,
         bands: [{ lower, upper, fill: 'rgba(201,140,38,0.2)', name: 'prior 95%' }],
-        series: [{ y: input.priorMean, colour: '#b07820', dash: true, name: 'prior mean' }, ...rows.map((r, k) => ({ y: r, colour: ['#3b6e8f', '#8a4f7d', '#5c7d3a'][k]!, name: `realisation ${k + 1}`, width: 1 }))],
+        series: [{ y: input.priorMean, colour: '#b07820', dash: true, name: 'prior mean' }, ...rows.map((r, k) => ({ y: r, colour: ['#3b6e8f', '#8a4f7d', '#5c7d3a'][k], name: `realisation ${k + 1}`, width: 1 }))],
       })}</div>`;
     }
     real += `<p class="note">Same seed, same numbers (m = m₀ + L z). ${is2D ? 'One diverging colour range, symmetric about the prior mean.' : ''}</p>`;
@@ -205,7 +205,7 @@ export function defenceHtml(input: DefenceInput): string {
     const p = input.posterior;
     if (is2D) {
       const perturb = meanConst === null;
-      const meanField = perturb ? Array.from(p.mean, (v, i) => v - input.priorMean[i]!) : p.mean;
+      const meanField = perturb ? Array.from(p.mean, (v, i) => v - input.priorMean[i]) : p.mean;
       post = `<div class="figs">${map(input, meanField, `Posterior mean${perturb ? ' − prior mean' : ''}`, DIVERGING, symmetric([meanField], perturb ? 0 : centre), qUnit, 250)}${map(
         input,
         p.std,
@@ -217,7 +217,7 @@ export function defenceHtml(input: DefenceInput): string {
       )}</div><p class="note">Standard deviation on a scale from 0 to the largest prior standard deviation: pale = resolved.</p>`;
     } else {
       const x = cellCentres(g);
-      const b = (z: number) => ({ lower: Array.from(p.mean, (m, i) => m - z * p.std[i]!), upper: Array.from(p.mean, (m, i) => m + z * p.std[i]!) });
+      const b = (z: number) => ({ lower: Array.from(p.mean, (m, i) => m - z * p.std[i]), upper: Array.from(p.mean, (m, i) => m + z * p.std[i]) });
       post = `<div class="figs">${lineSvg({
         title: 'Posterior mean with 68% and 95% bands',
         x,
@@ -261,10 +261,10 @@ export function defenceHtml(input: DefenceInput): string {
     const nv = e.variances.length;
     // drawn with length across and variance up, on log axes (index space)
     const field = new Float64Array(nl * nv);
-    for (let i = 0; i < nl; i++) for (let j = 0; j < nv; j++) field[i + nl * j] = e.logEvidence[i * nv + j]!;
+    for (let i = 0; i < nl; i++) for (let j = 0; j < nv; j++) field[i + nl * j] = e.logEvidence[i * nv + j];
     const finite = Array.from(field).some(Number.isFinite);
     const [lo, hi] = extent([field]);
-    const lg = (a: ArrayLike<number>) => [Math.log10(a[0]!), Math.log10(a[a.length - 1]!)] as const;
+    const lg = (a: ArrayLike<number>) => [Math.log10(a[0]), Math.log10(a[a.length - 1])] as const;
     const [l0, l1] = lg(e.lengths);
     const [v0, v1] = lg(e.variances);
     const hx = nl > 1 ? (l1 - l0) / (nl - 1) / 2 : 0.5;
@@ -278,7 +278,7 @@ export function defenceHtml(input: DefenceInput): string {
       yRange: [v0 - hy, v1 + hy],
       xLabel: withUnit('log₁₀ length', g.unit ?? ''),
       yLabel: 'log₁₀ variance',
-      scale: SEQUENTIAL.map(([t], k, a) => [t, a[a.length - 1 - k]![1]] as const),
+      scale: SEQUENTIAL.map(([t], k, a) => [t, a[a.length - 1 - k][1]] as const),
       range: finite ? [Math.max(lo, hi - 30), hi] : [0, 1],
       unit: 'ln Z',
       aspect: 'fill',
@@ -312,7 +312,7 @@ export function defenceHtml(input: DefenceInput): string {
       avg = `<div class="figs">${map(input, p.mean, 'Chosen prior: posterior mean', DIVERGING, range, qUnit, 200)}${map(input, a.mean, 'Averaged: posterior mean', DIVERGING, range, qUnit, 200)}${map(input, p.std, 'Chosen prior: std', SEQUENTIAL, srange, qUnit, 200)}${map(input, a.std, 'Averaged: std', SEQUENTIAL, srange, qUnit, 200)}</div>`;
     } else {
       const x = cellCentres(g);
-      const band = (m: ArrayLike<number>, s: ArrayLike<number>) => ({ lower: Array.from(m, (v, i) => v - 1.959963984540054 * s[i]!), upper: Array.from(m, (v, i) => v + 1.959963984540054 * s[i]!) });
+      const band = (m: ArrayLike<number>, s: ArrayLike<number>) => ({ lower: Array.from(m, (v, i) => v - 1.959963984540054 * s[i]), upper: Array.from(m, (v, i) => v + 1.959963984540054 * s[i]) });
       avg = `<div class="figs">${lineSvg({
         title: 'Averaged over the evidence map (orange) beside the chosen prior (teal): means and 95% bands',
         x,

@@ -67,7 +67,7 @@ export function evidenceReadings(
     const deficit = best - v;
     const twice = 2 * deficit;
     const text = deficit === 0 ? 'best' : `2 ln B = ${twice.toPrecision(3)}: best over this one ${kassRafteryCategory(twice)}`;
-    return { deficit, twiceLnB: twice, text, parameters: counts[k]! };
+    return { deficit, twiceLnB: twice, text, parameters: counts[k] };
   });
   const shown = counts.filter((_, k) => readings[k] !== null);
   const caution =

@@ -17,9 +17,9 @@ export type ColourScale = readonly (readonly [number, string])[];
 export function colourAt(scale: ColourScale, t: number): string {
   const u = Math.min(1, Math.max(0, Number.isFinite(t) ? t : 0));
   let k = 1;
-  while (k < scale.length - 1 && scale[k]![0] < u) k++;
-  const [p0, c0] = scale[k - 1]!;
-  const [p1, c1] = scale[k]!;
+  while (k < scale.length - 1 && scale[k][0] < u) k++;
+  const [p0, c0] = scale[k - 1];
+  const [p1, c1] = scale[k];
   const f = p1 > p0 ? (u - p0) / (p1 - p0) : 0;
   const a = Number.parseInt(c0.slice(1), 16);
   const b = Number.parseInt(c1.slice(1), 16);
@@ -44,7 +44,7 @@ export function extent(arrays: readonly ArrayLike<number>[]): [number, number] {
   let hi = -Infinity;
   for (const a of arrays) {
     for (let i = 0; i < a.length; i++) {
-      const v = a[i]!;
+      const v = a[i];
       if (!Number.isFinite(v)) continue;
       if (v < lo) lo = v;
       if (v > hi) hi = v;
@@ -94,7 +94,7 @@ export function lineSvg(fig: LineFigure): string {
   const xs = extent([fig.x]);
   const ys = extent([
     ...(fig.bands ?? []).flatMap((b) => [b.lower, b.upper]),
-    ...fig.series.flatMap((s) => (s.errors ? [Array.from(s.y, (v, i) => v - s.errors![i]!), Array.from(s.y, (v, i) => v + s.errors![i]!)] : [s.y])),
+    ...fig.series.flatMap((s) => (s.errors ? [Array.from(s.y, (v, i) => v - s.errors![i]), Array.from(s.y, (v, i) => v + s.errors![i])] : [s.y])),
   ]);
   const [xlo, xhi] = xs;
   const pad = 0.04 * (ys[1] - ys[0]);
@@ -105,20 +105,20 @@ export function lineSvg(fig: LineFigure): string {
   const parts: string[] = [];
   for (const b of fig.bands ?? []) {
     const pts: string[] = [];
-    for (let i = 0; i < n; i++) pts.push(`${f1(toX(fig.x[i]!))},${f1(toY(b.upper[i]!))}`);
-    for (let i = n - 1; i >= 0; i--) pts.push(`${f1(toX(fig.x[i]!))},${f1(toY(b.lower[i]!))}`);
+    for (let i = 0; i < n; i++) pts.push(`${f1(toX(fig.x[i]))},${f1(toY(b.upper[i]))}`);
+    for (let i = n - 1; i >= 0; i--) pts.push(`${f1(toX(fig.x[i]))},${f1(toY(b.lower[i]))}`);
     parts.push(`<polygon points="${pts.join(' ')}" fill="${b.fill}" stroke="none"/>`);
   }
   for (const s of fig.series) {
     if (s.errors) {
       for (let i = 0; i < n; i++) {
-        const x = f1(toX(fig.x[i]!));
-        parts.push(`<line x1="${x}" x2="${x}" y1="${f1(toY(s.y[i]! - s.errors[i]!))}" y2="${f1(toY(s.y[i]! + s.errors[i]!))}" stroke="${s.colour}" stroke-width="0.8"/>`);
-        parts.push(`<circle cx="${x}" cy="${f1(toY(s.y[i]!))}" r="1.6" fill="${s.colour}"/>`);
+        const x = f1(toX(fig.x[i]));
+        parts.push(`<line x1="${x}" x2="${x}" y1="${f1(toY(s.y[i] - s.errors[i]))}" y2="${f1(toY(s.y[i] + s.errors[i]))}" stroke="${s.colour}" stroke-width="0.8"/>`);
+        parts.push(`<circle cx="${x}" cy="${f1(toY(s.y[i]))}" r="1.6" fill="${s.colour}"/>`);
       }
     } else {
       const pts: string[] = [];
-      for (let i = 0; i < n; i++) pts.push(`${f1(toX(fig.x[i]!))},${f1(toY(s.y[i]!))}`);
+      for (let i = 0; i < n; i++) pts.push(`${f1(toX(fig.x[i]))},${f1(toY(s.y[i]))}`);
       parts.push(`<polyline points="${pts.join(' ')}" fill="none" stroke="${s.colour}" stroke-width="${s.width ?? 1.2}"${s.dash ? ' stroke-dasharray="4 3"' : ''}/>`);
     }
   }
@@ -196,7 +196,7 @@ export function heatSvg(fig: HeatFigure): string {
   const cells: string[] = [];
   for (let j = 0; j < fig.ny; j++) {
     for (let i = 0; i < fig.nx; i++) {
-      const v = fig.field[i + fig.nx * j]!;
+      const v = fig.field[i + fig.nx * j];
       const y = fig.yDown ? m.t + j * chh : m.t + ph - (j + 1) * chh;
       cells.push(`<rect x="${f1(m.l + i * cw)}" y="${f1(y)}" width="${f1(cw + 0.3)}" height="${f1(chh + 0.3)}" fill="${Number.isFinite(v) ? colourAt(fig.scale, (v - lo) / (hi - lo)) : '#ffffff'}"/>`);
     }

@@ -140,8 +140,8 @@ export function averagedRows(
   let change = 0;
   let sMax = 0;
   for (let i = 0; i < a.mean.length; i++) {
-    change = Math.max(change, Math.abs(a.mean[i]! - chosen.mean[i]!));
-    sMax = Math.max(sMax, chosen.std[i]!);
+    change = Math.max(change, Math.abs(a.mean[i] - chosen.mean[i]));
+    sMax = Math.max(sMax, chosen.std[i]);
   }
   const lu = lengthUnit ? ` ${lengthUnit}` : '';
   const vu = valueUnit ? ` ${valueUnit}` : '';

@@ -13,7 +13,7 @@ describe('averaged posterior beside the chosen prior', () => {
   it('1-D: both 95% bands and both means', () => {
     const t = averagedTraces1D([0, 1, 2], chosen, averaged);
     expect(t.map((x) => x.name)).toEqual(['averaged 95%', 'this prior 95%', 'averaged mean', 'this prior: mean']);
-    expect(t[2]!.y).toEqual([1.5, 2, 2]);
+    expect(t[2].y).toEqual([1.5, 2, 2]);
   });
 
   it('2-D: the two means on one diverging range about the prior mean, the two stds on one sequential range', () => {
@@ -21,9 +21,9 @@ describe('averaged posterior beside the chosen prior', () => {
     const m = averagedMaps(grid, 'K', [2, 2, 2], chosen, averaged);
     expect(m.range).toEqual([1, 3]);
     expect(m.srange).toEqual([0, 2]);
-    expect(m.chosenMean[0]!.colorscale).toBe(DIVERGING);
-    expect([m.averagedMean[0]!.zmin, m.averagedMean[0]!.zmax]).toEqual([1, 3]);
-    expect(m.averagedStd[0]!.colorscale).toBe(SEQUENTIAL);
+    expect(m.chosenMean[0].colorscale).toBe(DIVERGING);
+    expect([m.averagedMean[0].zmin, m.averagedMean[0].zmax]).toEqual([1, 3]);
+    expect(m.averagedStd[0].colorscale).toBe(SEQUENTIAL);
   });
 
   it('says how far the mean moved and how the largest std changed', () => {
@@ -32,7 +32,7 @@ describe('averaged posterior beside the chosen prior', () => {
 
   it('the worker request gives the core result for the same map', async () => {
     const { problem, startPrior } = demoById('borehole-log').build();
-    const t0 = startPrior.terms[0]!;
+    const t0 = startPrior.terms[0];
     const map = evidenceMap(problem, startPrior, { term: 0, lengths: { min: termLength(t0) / 3, max: 3 * termLength(t0), count: 4 }, variances: { min: t0.variance / 5, max: 5 * t0.variance, count: 3 } });
     const viaWorker = await runTuning(problem, { id: 1, kind: 'averaged', problemVersion: 1, prior: startPrior, map, hyperPrior: 'log-uniform' }, () => {}, { aborted: false });
     const direct = averagedPosterior(problem, startPrior, map);

@@ -67,10 +67,10 @@ describe('select slice', () => {
     store.getState().runEvidenceMap({ ...settings, lengths: { ...settings.lengths, count: 3 } });
     expect(sent.map((s) => s.kind)).toEqual(['evidenceMap', 'evidenceMap']);
     expect(store.getState().selectTasks.evidenceMap.status).toBe('running');
-    sent[0]!.resolve({ superseded: false, value: { ...map, best: null } });
+    sent[0].resolve({ superseded: false, value: { ...map, best: null } });
     await Promise.resolve();
     expect(store.getState().selectTasks.evidenceMap.value).toBeNull();
-    sent[1]!.resolve({ superseded: false, value: map });
+    sent[1].resolve({ superseded: false, value: map });
     await new Promise((r) => setTimeout(r, 0));
     expect(store.getState().selectTasks.evidenceMap.status).toBe('done');
     store.getState().applyMapCell(1 * 3 + 0);
@@ -92,9 +92,9 @@ describe('select slice', () => {
     expect(new Set(c.map((x) => x.colour)).size).toBe(4);
     expect(JSON.parse(JSON.stringify(c))).toEqual(c); // plain data for autosave
     store.getState().updateTerm(0, { length: 3 });
-    store.getState().useCandidate(c[2]!.id);
+    store.getState().useCandidate(c[2].id);
     expect(store.getState().prior).toEqual(prior);
-    store.getState().unpin(c[0]!.id);
+    store.getState().unpin(c[0].id);
     expect(store.getState().candidates).toHaveLength(3);
   });
 });
@@ -106,7 +106,7 @@ describe('select slice and problem changes', () => {
     await store.getState().loadDemo('x');
     store.getState().refreshCriteria();
     expect(store.getState().selectTasks.criteria.status).toBe('running');
-    sent[0]!.resolve({ superseded: true });
+    sent[0].resolve({ superseded: true });
     await new Promise((r) => setTimeout(r, 0));
     expect(store.getState().selectTasks.criteria.status).toBe('cancelled');
     // and a later refresh asks again (the cancelled task is not taken as up to date)
@@ -121,8 +121,8 @@ describe('select slice and problem changes', () => {
     store.getState().runEvidenceMap({ term: 0, lengths: { min: 2, max: 20, count: 2 }, variances: { min: 0.1, max: 10, count: 3 } });
     store.getState().runFit(['nugget']);
     const fitted: PriorSpec = { ...prior, terms: [{ kernel: 'exponential', variance: 0.5, length: 12 }] };
-    sent[0]!.resolve({ superseded: false, value: map });
-    sent[1]!.resolve({ superseded: false, value: { prior: fitted } });
+    sent[0].resolve({ superseded: false, value: map });
+    sent[1].resolve({ superseded: false, value: { prior: fitted } });
     await new Promise((r) => setTimeout(r, 0));
     const s0 = store.getState();
     expect(freshness(s0.selectTasks.evidenceMap, s0)).toBe('current');
@@ -136,10 +136,10 @@ describe('select slice and problem changes', () => {
     expect(freshness(s2.selectTasks.evidenceMap, s2)).toBe('other-structure');
     expect(freshness(s2.selectTasks.typeII, s2)).toBe('other-structure');
     s2.applyTuned(fitted);
-    expect(store.getState().prior!.terms[0]!.kernel).toBe('gaussian');
+    expect(store.getState().prior!.terms[0].kernel).toBe('gaussian');
     s2.applyMapCell(5);
-    expect(store.getState().prior!.terms[0]!.kernel).toBe('gaussian');
-    expect(store.getState().prior!.terms[0]!.length).toBe(11);
+    expect(store.getState().prior!.terms[0].kernel).toBe('gaussian');
+    expect(store.getState().prior!.terms[0].length).toBe(11);
     expect(store.getState().notice).toMatch(/other kernels or terms/);
     // The reason names both structures.
     expect(store.getState().notice).toContain('other kernels or terms (1 term: exponential; the current prior has 1 term: gaussian)');

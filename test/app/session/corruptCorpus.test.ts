@@ -56,10 +56,10 @@ const huge = () => {
 
 const MUTATIONS: readonly Mutation[] = [
   ['unknown tab', (s) => (s.tab = 'maps')],
-  ['unknown kernel', (s) => ((s.prior.terms as Record<string, unknown>[])[0]!.kernel = 'cubic')],
+  ['unknown kernel', (s) => ((s.prior.terms as Record<string, unknown>[])[0].kernel = 'cubic')],
   ['junk candidates', (s) => (s.extra = { candidates: [{ id: 1 }, 'x', null, { id: 'a', name: 'b', colour: '#123456', prior: { terms: 3 } }] })],
   ['candidates not an array', (s) => (s.extra = { candidates: 'abc' })],
-  ['NaN prior length', (s) => ((s.prior.terms as Record<string, unknown>[])[0]!.length = NaN)],
+  ['NaN prior length', (s) => ((s.prior.terms as Record<string, unknown>[])[0].length = NaN)],
   ['NaN mean', (s) => (s.prior.mean = { constant: NaN })],
   ['prior mean values too short', (s) => (s.prior.mean = { values: new Float64Array(2) })],
   ['prior is a number', (s) => (s.prior = 5 as unknown as Record<string, unknown>)],
@@ -121,10 +121,10 @@ describe('a damaged autosave opens to a working page with our own message', () =
     for (let c = 0; c < 60; c++) {
       const rec = { session: structuredClone(base), problem: structuredClone(baseProblem) } as Record<string, unknown>;
       const paths = leaves(rec).filter((p) => p.length > 1);
-      const path = paths[Math.floor(rng() * paths.length)]!;
+      const path = paths[Math.floor(rng() * paths.length)];
       let o = rec as Record<string | number, unknown>;
       for (const k of path.slice(0, -1)) o = o[k] as Record<string | number, unknown>;
-      o[path[path.length - 1]!] = junk[Math.floor(rng() * junk.length)];
+      o[path[path.length - 1]] = junk[Math.floor(rng() * junk.length)];
       const st = memoryStorage();
       st.map.set('session', rec.session);
       st.map.set('problem', rec.problem);
@@ -184,7 +184,7 @@ describe('the term limit', () => {
     expect(() => parsePriorFile('p.json', text)).toThrow(`p.json: terms must be at most ${MAX_TERMS} covariance terms, got ${MAX_TERMS + 1}`);
     const ok = parsePriorFile('p.json', JSON.stringify({ kind: 'priorscope.prior', version: 1, mean: { constant: 0 }, terms: huge().slice(0, MAX_TERMS) })).prior;
     expect(() => validatePrior(ok, { shape: [5], spacing: [1] })).not.toThrow();
-    expect(() => validatePrior({ ...ok, terms: [...ok.terms, ok.terms[0]!] }, { shape: [5], spacing: [1] })).toThrow(/terms must be at most 16 covariance terms, got 17/);
+    expect(() => validatePrior({ ...ok, terms: [...ok.terms, ok.terms[0]] }, { shape: [5], spacing: [1] })).toThrow(/terms must be at most 16 covariance terms, got 17/);
     const store = createWorkbenchStore(inProcessClient(), { demoId: 'borehole-log' });
     await store.getState().openDemo('borehole-log');
     for (let k = 0; k < MAX_TERMS + 3; k++) store.getState().addTerm();

@@ -81,7 +81,7 @@ describe('validateSavedProblem: the problem-file validators', () => {
     expect(p.data.geometry).toEqual(good.data.geometry);
   });
   const broken: [string, unknown, RegExp][] = [
-    ['a short G', { ...good, operator: { kind: 'dense', matrix: { rows: 2, cols: good.grid.shape[0], data: new Float64Array(2 * good.grid.shape[0]!) } } }, /operator/],
+    ['a short G', { ...good, operator: { kind: 'dense', matrix: { rows: 2, cols: good.grid.shape[0], data: new Float64Array(2 * good.grid.shape[0]) } } }, /operator/],
     ['σ 0', { ...good, data: { ...good.data, sigma: new Float64Array(good.data.values.length) } }, /sigma/],
     ['a NaN datum', { ...good, data: { ...good.data, values: Float64Array.from(good.data.values, (v, i) => (i === 2 ? Number.NaN : v)) } }, /values/],
     ['a 10⁹-cell grid', { ...good, grid: { shape: [1e9], spacing: [1] } }, /./],
@@ -150,7 +150,7 @@ describe('nothing lost when something replaces the session', () => {
     expect(await restorePreviousSession(storage)).toBe(true);
     const c = createWorkbenchStore(inProcessClient(), { demoId: 'borehole-log' });
     await startSession(c, { storage, explicitDemo: null, hash: '' });
-    expect(c.getState().prior!.terms[0]!.length).toBe(0.9);
+    expect(c.getState().prior!.terms[0].length).toBe(0.9);
   });
 
   it('a link that cannot be applied changes nothing and says so', async () => {
@@ -159,7 +159,7 @@ describe('nothing lost when something replaces the session', () => {
     const hash = await encodeShare({ problem: null, prior });
     const b = createWorkbenchStore(inProcessClient(), { demoId: 'borehole-log' });
     await startSession(b, { storage, explicitDemo: null, hash });
-    expect(b.getState().prior!.terms[0]!.length).toBe(0.9);
+    expect(b.getState().prior!.terms[0].length).toBe(0.9);
     expect(b.getState().loadError).toMatch(/^The shared link could not be opened: /);
     expect(b.getState().notice).toBeNull();
   });
@@ -176,7 +176,7 @@ describe('nothing lost when something replaces the session', () => {
     handlers.pagehide!();
     await tick(5);
     const saved = (await storage.get<ReturnType<typeof sessionRecord>>('session'))!;
-    expect(saved.prior.terms[0]!.length).toBe(0.77);
+    expect(saved.prior.terms[0].length).toBe(0.77);
   });
 });
 

@@ -147,11 +147,11 @@ describe('autosave and restore', () => {
 
     const b = createWorkbenchStore(inProcessClient(), { demoId: 'borehole-log' });
     await startSession(b, { storage, explicitDemo: 'borehole-log', hash: '' });
-    expect(b.getState().prior!.terms[0]!.length).not.toBe(0.9);
+    expect(b.getState().prior!.terms[0].length).not.toBe(0.9);
 
     const c = createWorkbenchStore(inProcessClient(), { demoId: 'borehole-log' });
     await startSession(c, { storage, explicitDemo: null, hash: '' });
-    expect(c.getState().prior!.terms[0]!.length).toBe(0.9);
+    expect(c.getState().prior!.terms[0].length).toBe(0.9);
   });
 
   it('a damaged share link is reported and the page opens the autosave / demo', async () => {
@@ -165,7 +165,7 @@ describe('autosave and restore', () => {
 describe('undo of slider gestures', () => {
   it('slider edits of one length made through continuousEdit undo in one step; typed edits one step each', async () => {
     const { store } = await demoStore();
-    const start = store.getState().prior!.terms[0]!;
+    const start = store.getState().prior!.terms[0];
     for (let k = 1; k <= 5; k++) store.getState().continuousEdit(() => store.getState().updateTerm(0, { length: 10 + k }));
     expect(store.getState().history.past).toHaveLength(1);
     store.getState().undo();

@@ -33,13 +33,13 @@ describe('profile against position', () => {
   it('sorts the data by position, keeping each datum with its σ, prediction, residual and number', () => {
     const t = profileTraces(p, positions, { predicted: [2.9, 1.1, 2.2], residuals: [1, -0.5, -0.67] });
     expect(t.data[0]).toMatchObject({ name: 'observed ±1σ', x: [50, 100, 150], y: [1, 2, 3], customdata: [2, 3, 1] });
-    expect((t.data[0]!.error_y as { array: number[] }).array).toEqual([0.2, 0.3, 0.1]);
+    expect((t.data[0].error_y as { array: number[] }).array).toEqual([0.2, 0.3, 0.1]);
     expect(t.data[1]).toMatchObject({ name: 'predicted G m̃', x: [50, 100, 150], y: [1.1, 2.2, 2.9] });
     expect(t.residuals[0]).toMatchObject({ name: 'normalised residual', x: [50, 100, 150], y: [-0.5, -0.67, 1] });
     // Guides at ±2 across the positions with a margin.
     expect(t.residuals[1]).toMatchObject({ y: [2, 2] });
-    expect((t.residuals[1]!.x as number[])[0]).toBeLessThan(50);
-    expect((t.residuals[1]!.x as number[])[1]).toBeGreaterThan(150);
+    expect((t.residuals[1].x as number[])[0]).toBeLessThan(50);
+    expect((t.residuals[1].x as number[])[1]).toBeGreaterThan(150);
   });
 
   it('labels the position axis with the grid’s name and unit, the data axis with the data unit', () => {
@@ -51,7 +51,7 @@ describe('profile against position', () => {
   it('the Problem screen plots the data against position only when the data have positions', () => {
     const f = surveyDataFigure({ ...p, geometry: { kind: 'points', positions } })!;
     expect(f.data).toHaveLength(1);
-    expect(f.data[0]!.x).toEqual([50, 100, 150]);
+    expect(f.data[0].x).toEqual([50, 100, 150]);
     expect(surveyDataFigure({ ...p, geometry: null })).toBeNull();
   });
 });
@@ -82,8 +82,8 @@ describe('rays coloured by normalised residual', () => {
     // Each ray is 2 points and a null.
     expect(lines.reduce((a, x) => a + (x.x as unknown[]).length / 3, 0)).toBe(4);
     // Rays 0 and 3 share the grey middle class, drawn first; the extremes last.
-    expect(lines[0]!.x).toEqual([0, 200, null, 0, 200, null]);
-    expect((lines[0]!.line as { color: string }).color).toBe('rgb(185, 185, 185)');
+    expect(lines[0].x).toEqual([0, 200, null, 0, 200, null]);
+    expect((lines[0].line as { color: string }).color).toBe('rgb(185, 185, 185)');
     expect(lines.map((x) => (x.y as unknown[]).slice(0, 2))).toContainEqual([5, 40]);
     const mid = t.find((x) => x.name === 'normalised residual per ray')!;
     expect(mid.x).toEqual([100, 100, 100, 100]);
@@ -98,7 +98,7 @@ describe('rays coloured by normalised residual', () => {
   it('without residuals draws all rays in one grey trace', () => {
     const t = rayTraces(grid2, paths, null);
     expect(t[0]).toMatchObject({ name: '4 rays' });
-    expect((t[0]!.x as unknown[]).length).toBe(12);
+    expect((t[0].x as unknown[]).length).toBe(12);
   });
 
   it('misfit r² against datum number with the reference line at 1', () => {
