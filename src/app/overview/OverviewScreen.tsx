@@ -8,11 +8,11 @@ import { useCallback, useMemo, useRef } from 'react';
 import { useWb, useWorkbenchStore } from '../context.ts';
 import { Plot } from '../Plot.tsx';
 import { NumberField } from '../controls.tsx';
-import { axis1D, gridDimension, type Trace } from '../traces.ts';
+import { axis1D, gridDimension } from '../traces.ts';
 import { bandsState, bandsText, FIT_REFERENCE_BASIS, fitVerdict, shownPosterior } from '../posteriorView.ts';
 import { axisLabel, orientationNote, withUnit } from '../labels.ts';
 import { formatNumber } from '../../core/format.ts';
-import { fitTraces, overviewMaps, posteriorTraces1D, priorTraces1D, mapLayout, SHOWN_DRAWS_1D, SHOWN_DRAWS_2D } from './traces.ts';
+import { fitTraces, overviewMaps, posteriorTraces1D, priorBand, priorTraces1D, mapLayout, SHOWN_DRAWS_1D, SHOWN_DRAWS_2D } from './traces.ts';
 import { useColourLimits } from './colourLimits.ts';
 import { trueAspectHeight } from '../colourScales.ts';
 import type { WorkbenchState } from '../store.ts';
@@ -71,20 +71,15 @@ export function OverviewScreen() {
   );
   const drawnBy = useMemo(() => Object.fromEntries(panelIds.map((id) => [id, () => onDrawn(id)])), [onDrawn, is2D]);
 
-  // Prior mean for the prior panel: the posterior's (same prior) or, before it arrives, the constant mean.
-  const priorMean = useMemo(() => {
-    if (post) return post.priorMean;
-    if (!p || !prior || !('constant' in prior.mean)) return null;
-    return new Float64Array(p.grid.shape.reduce((a, n) => a * n, 1)).fill(prior.mean.constant);
-  }, [post, p, prior]);
+  // The prior's mean and pointwise std from its spec: the prior panel draws as soon as the draws arrive.
+  const band = useMemo(() => (p && prior ? priorBand(p.grid, prior) : null), [p, prior]);
+  const priorMean = band?.mean ?? null;
 
-  const oneD = useMemo(() => {
-    if (!p || is2D) return null;
-    const x = axis1D(p.grid);
-    const prr = post && priorMean ? priorTraces1D(x, draws, priorMean, post.priorStd) : [];
-    const pst = post ? posteriorTraces1D(x, { mean: post.mean, priorMean: post.priorMean, priorStd: post.priorStd, std: post.summary?.std ?? null }, p.truth) : [];
-    return { prior: prr, posterior: pst };
-  }, [p, is2D, post, draws, priorMean]);
+  const priorPanel = useMemo(() => (p && !is2D && band ? priorTraces1D(axis1D(p.grid), draws, band.mean, band.std) : null), [p, is2D, band, draws]);
+  const posteriorPanel = useMemo(
+    () => (p && !is2D && post ? posteriorTraces1D(axis1D(p.grid), { mean: post.mean, priorMean: post.priorMean, priorStd: post.priorStd, std: post.summary?.std ?? null }, p.truth) : null),
+    [p, is2D, post],
+  );
   const maps = useMemo(() => {
     if (!p || !is2D || !priorMean) return null;
     const pst = post ? { mean: post.mean, priorStd: post.priorStd, std: post.summary?.std ?? null } : null;
@@ -161,10 +156,10 @@ export function OverviewScreen() {
         </p>
       )}
       {bands && <p className="bands-status note" role="status">{bands}</p>}
-      {oneD && (
+      {!is2D && (
         <div className="grid-3 overview-grid">
-          {draws && post ? <Plot id="ov-prior" label="Prior realisations" data={oneD.prior as Trace[]} layout={layouts.prior} height={h} onDrawn={drawnBy['ov-prior']} /> : wait('prior realisations')}
-          {post ? <Plot id="ov-posterior" label="Posterior mean and bands" data={oneD.posterior} layout={layouts.posterior} height={h} onDrawn={drawnBy['ov-posterior']} /> : wait('the posterior')}
+          {draws && priorPanel ? <Plot id="ov-prior" label="Prior realisations" data={priorPanel} layout={layouts.prior} height={h} onDrawn={drawnBy['ov-prior']} /> : wait('prior realisations')}
+          {posteriorPanel ? <Plot id="ov-posterior" label="Posterior mean and bands" data={posteriorPanel} layout={layouts.posterior} height={h} onDrawn={drawnBy['ov-posterior']} /> : wait('the posterior')}
           {fit ? <Plot id="ov-fit" label="Data fit" data={fit} layout={layouts.fit} height={h} onDrawn={drawnBy['ov-fit']} /> : wait('the data fit')}
         </div>
       )}

@@ -9,6 +9,8 @@
  * so a reduction shows as paler colour.
  */
 import type { Grid } from '../../core/grid/grid.ts';
+import type { PriorSpec } from '../../core/prior/spec.ts';
+import { meanVector } from '../../core/prior/mean.ts';
 import { axisLabel, axisNames, downAxisLabel, withUnit } from '../labels.ts';
 import { escapePlotText } from '../plotText.ts';
 import { axes2D, band, bandTrace, COLOURS, rowOf, toRows2D, Z68, Z95, type Trace } from '../traces.ts';
@@ -26,6 +28,23 @@ export const SHOWN_DRAWS_1D = 3;
 export const SHOWN_DRAWS_2D = 2;
 
 const hoverName = (s: string) => escapePlotText(s).replace(/%/g, '%%');
+
+/**
+ * The prior's pointwise mean and standard deviation from its spec alone, so the prior panel need
+ * not wait for the posterior: Cm = S C S + nugget·I with C's diagonal Σₜ σₜ² (every correlation is 1
+ * at distance 0), hence std_i = √(s_i² Σₜ σₜ² + nugget) with s the standard-deviation profile (1 without).
+ */
+export function priorBand(grid: Grid, prior: PriorSpec): { mean: Float64Array; std: Float64Array } {
+  const mean = meanVector(grid, prior);
+  const sill = prior.terms.reduce((a, t) => a + t.variance, 0);
+  const nugget = prior.nugget ?? 0;
+  const std = new Float64Array(mean.length);
+  for (let i = 0; i < std.length; i++) {
+    const s = prior.stdProfile?.[i] ?? 1;
+    std[i] = Math.sqrt(s * s * sill + nugget);
+  }
+  return { mean, std };
+}
 
 /** Prior panel in 1-D: the first `count` realisations over the prior mean and its 95% band. */
 export function priorTraces1D(x: ArrayLike<number>, draws: Draws | null, priorMean: ArrayLike<number>, priorStd: ArrayLike<number>, count = SHOWN_DRAWS_1D): Trace[] {

@@ -66,3 +66,25 @@ describe('overview traces', () => {
     expect(l.yaxis.title.text).toBe('depth (m) ↓');
   });
 });
+
+describe('prior band from the spec', () => {
+  it('equals the mean vector and √diag Cm of the core assembly (profile and nugget included)', async () => {
+    const { priorBand } = await import('../../../src/app/overview/traces.ts');
+    const { covarianceMatrix } = await import('../../../src/core/prior/covariance.ts');
+    const { meanVector } = await import('../../../src/core/prior/mean.ts');
+    const g = { shape: [5], spacing: [1] };
+    const prior = {
+      mean: { trend: { intercept: 1, slope: [0.5] } },
+      terms: [
+        { kernel: 'exponential' as const, variance: 2, length: 3 },
+        { kernel: 'gaussian' as const, variance: 0.5, length: 1 },
+      ],
+      nugget: 0.1,
+      stdProfile: [1, 2, 0.5, 1, 3],
+    };
+    const b = priorBand(g, prior);
+    const cm = covarianceMatrix(g, prior);
+    for (let i = 0; i < 5; i++) expect(b.std[i]).toBeCloseTo(Math.sqrt(cm.data[i * 5 + i]!), 12);
+    expect(Array.from(b.mean)).toEqual(Array.from(meanVector(g, prior)));
+  });
+});
