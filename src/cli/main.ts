@@ -18,7 +18,8 @@ import { STUDY_COMMANDS } from './study/index.ts';
 import { report } from './report.ts';
 
 /** Every command, in the order of the help. */
-const COMMANDS: readonly Command[] = [...CORE_COMMANDS, ...STUDY_COMMANDS, report];
+/** Every command, in the order of the main help. */
+export const COMMANDS: readonly Command[] = [...CORE_COMMANDS, ...STUDY_COMMANDS, report];
 import { FORMATS_HELP } from './formats.ts';
 
 function pad(s: string, n: number): string {
