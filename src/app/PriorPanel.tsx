@@ -1,4 +1,5 @@
 /** The left panel: mean model, covariance terms (add / remove / reorder), nugget. */
+import { PerCellFields } from './prior/PerCellFields.tsx';
 import { KERNEL_NAMES, type KernelName, type Term } from '../core/kernels/spec.ts';
 import { kernelDefinition, termSmoothness } from '../core/kernels/table.ts';
 import type { MeanSpec, PriorSpec } from '../core/prior/spec.ts';
@@ -35,6 +36,7 @@ export function PriorPanel() {
       <h2>Prior</h2>
       <PlausibilityWarning />
       <MeanEditor mean={prior.mean} problem={problem} />
+      <PerCellFields />
       <ol className="terms" aria-label="Covariance terms">
         {prior.terms.map((t, i) => (
           <TermEditor key={i} index={i} term={t} count={prior.terms.length} problem={problem} refVar={refVar} />
