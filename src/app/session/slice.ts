@@ -88,6 +88,17 @@ export function checkSavedPrior(prior: PriorSpec, grid: Grid): void {
 const message = (e: unknown) => (e instanceof Error ? e.message : String(e));
 
 export function createSessionSlice(set: StoreSet, get: StoreGet, api: WorkbenchStore, client: ClientPort): SessionSlice {
+  /** Resolves when nothing is running on `channel` (so an export does not supersede a screen's request). */
+  const idle = (channel: 'priorDraws' | 'posteriorDraws' | 'covariance') =>
+    new Promise<void>((resolve) => {
+      if (!get().busy[channel]) return resolve();
+      const off = api.subscribe((t) => {
+        if (!t.busy[channel]) {
+          off();
+          resolve();
+        }
+      });
+    });
   /** True while the slice itself replaces the prior (undo, redo, restore): not recorded. */
   let applying = false;
   /** True while an edit passed to continuousEdit runs. */
@@ -286,15 +297,7 @@ export function createSessionSlice(set: StoreSet, get: StoreGet, api: WorkbenchS
       if (s.computedFor[channel] === key) {
         // Requested by the realisations screen already: wait for it rather than superseding it
         // (also before asking for another number of draws on the same channel).
-        await new Promise<void>((resolve) => {
-          if (!get().busy[channel]) return resolve();
-          const off = api.subscribe((t) => {
-            if (!t.busy[channel]) {
-              off();
-              resolve();
-            }
-          });
-        });
+        await idle(channel);
         const t = get();
         const cached = which === 'prior' ? t.priorDraws : t.posteriorDraws;
         if (count === DRAW_COUNT && cached && t.computedFor[channel] === key && !t.errors[channel]) return cached;
@@ -307,15 +310,7 @@ export function createSessionSlice(set: StoreSet, get: StoreGet, api: WorkbenchS
       const s = get();
       if (!s.prior) return null;
       // Wait for the Prior screen's view request rather than superseding it.
-      await new Promise<void>((resolve) => {
-        if (!get().busy.covariance) return resolve();
-        const off = api.subscribe((t) => {
-          if (!t.busy.covariance) {
-            off();
-            resolve();
-          }
-        });
-      });
+      await idle('covariance');
       const o = await client.covariance(s.prior, form);
       return o.superseded ? null : o.value;
     },
