@@ -67,6 +67,18 @@ test('point data: the gravity stations are plotted at their positions, data and 
   expect(w.problems).toEqual([]);
 });
 
+test('1-D point data: the borehole sensors are plotted at their depths, the grid as a segment with the sensors on it', async ({ page }, info) => {
+  const w = watch(page, ORIGIN);
+  await open(page, 'borehole-log');
+  await page.getByTestId('tab-problem').click();
+  const depths = Array.from({ length: 50 }, (_, k) => 1 + 2 * k);
+  await expect.poll(() => traceField(page, 'plot-data', 'observed ±1σ', 'x')).toEqual(depths);
+  await expect.poll(() => traceNamesOf(page, 'plot-coverage')).toEqual(expect.arrayContaining(['grid 200 cells of 0.5 m', 'first cell centre (0.25) m', 'data positions (50)']));
+  expect(await traceField(page, 'plot-coverage', 'grid 200 cells of 0.5 m', 'x')).toEqual([0, 100]);
+  await screenshot(page, info, 'survey-problem-borehole');
+  expect(w.problems).toEqual([]);
+});
+
 test('path data: the crosshole rays are drawn over the section coloured by their normalised residuals', async ({ page }, info) => {
   const w = watch(page, ORIGIN);
   const s = await open(page, 'crosshole-tomography');
