@@ -50,7 +50,7 @@ export function parseCellValues(file: string, bytes: Uint8Array, grid: Grid, kin
     throw new FileFormatError(file, 'cannot be read as per-cell values: the name must end in .csv, .txt or .npy');
   }
   for (let k = 0; k < n; k++) {
-    const v = values[k]!;
+    const v = values[k];
     if (kind === 'std' ? !(v >= SCALE_MIN && v <= SCALE_LIMIT) : !(Math.abs(v) <= SCALE_LIMIT)) {
       const expected = kind === 'std' ? `a standard deviation from ${SCALE_MIN} to ${SCALE_LIMIT}` : `of magnitude ≤ ${SCALE_LIMIT}`;
       throw new FileFormatError(file, `${where(k)} must be ${expected}, got ${formatValue(v)}`);
