@@ -152,7 +152,7 @@ def blas_info():
 def time_case(case):
     op = case["op"]
     if op not in OPS:
-        raise SystemExit(f"scipy_dense.py: case {case['name']r} asks for unknown op {op!r} (known: {', '.join(sorted(OPS))})")
+        raise SystemExit(f"scipy_dense.py: case {case['name']!r} asks for unknown op {op!r} (known: {', '.join(sorted(OPS))})")
     fn = OPS[op](case["params"])
     for _ in range(int(case.get("warmup", 1))):
         fn()

@@ -3,7 +3,7 @@
  * kernel table (./table.ts, where each kernel is defined once).
  * PUBLIC API (used by prior/, the CLI and the UI): correlationFunction, correlation, practicalRange, kernelInfo.
  */
-import { type CorrelationFunction, KERNELS, type KernelName } from './table.ts';
+import { type CorrelationFunction, type KernelName, kernelDefinition } from './table.ts';
 
 export { PRACTICAL_RANGE_LEVEL } from './table.ts';
 
@@ -13,7 +13,7 @@ export { PRACTICAL_RANGE_LEVEL } from './table.ts';
  * and > 0 throws RangeError.
  */
 export function correlationFunction(kernel: KernelName, nu?: number): CorrelationFunction {
-  return KERNELS[kernel].correlation(nu);
+  return kernelDefinition(kernel).correlation(nu);
 }
 
 /** ρ(h) for one kernel (convenience; build a {@link correlationFunction} once for loops). */
@@ -27,7 +27,7 @@ export function correlation(kernel: KernelName, h: number, nu?: number): number 
  * bracketed bisection on the monotone ρ_ν, run until the bracket cannot shrink (full double precision).
  */
 export function practicalRange(kernel: KernelName, nu?: number): number {
-  return KERNELS[kernel].practicalRange(nu);
+  return kernelDefinition(kernel).practicalRange(nu);
 }
 
 /** Plain-language description of a kernel for tooltips and help text. */
@@ -45,6 +45,6 @@ export interface KernelInfo {
 
 /** Label, description, formula and source of a kernel. */
 export function kernelInfo(kernel: KernelName): KernelInfo {
-  const { label, description, formula, source } = KERNELS[kernel];
+  const { label, description, formula, source } = kernelDefinition(kernel);
   return { kernel, label, description, formula, source };
 }

@@ -13,6 +13,7 @@
  *   spherical    1 − 1.5h + 0.5h³ for h < 1, else 0       ./spherical.ts
  * where h is the scaled distance (./spec.ts says how it is formed from the term's lengths and angle).
  */
+import { assertNever } from '../errors.ts';
 import { EXPONENTIAL_PRACTICAL_RANGE, exponentialCorrelation } from './exponential.ts';
 import { GAUSSIAN_PRACTICAL_RANGE, gaussianCorrelation } from './gaussian.ts';
 import { DEFAULT_MATERN_NU, maternCorrelationFunction } from './matern.ts';
@@ -186,9 +187,14 @@ export const KERNELS = {
 /** The kernel names in the table's order (menus, help text, error messages). */
 export const KERNEL_NAMES: readonly KernelName[] = Object.keys(KERNELS) as KernelName[];
 
-/** The table entry of one kernel (typed as the general definition). */
+/**
+ * The table entry of one kernel (typed as the general definition). A name outside KernelName that got past the
+ * types (an unchecked cast, a file read without validation) throws, naming it, instead of failing later on undefined.
+ */
 export function kernelDefinition(kernel: KernelName): KernelDefinition {
-  return KERNELS[kernel];
+  const entry: KernelDefinition | undefined = Object.hasOwn(KERNELS, kernel) ? KERNELS[kernel] : undefined;
+  if (entry === undefined) return assertNever(kernel as never, 'kernel');
+  return entry;
 }
 
 /** True when the kernel takes the field (e.g. `nu` for matern). */
