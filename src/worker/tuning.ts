@@ -31,6 +31,7 @@
  * (structuredPosteriorDraws); below the limit it is the dense code as before, number for number.
  */
 import { cellCount } from '../core/grid/grid.ts';
+import type { DataFitReference } from '../core/inverse/fitReference.ts';
 import { posteriorRealisations, posteriorSummary, preparePosterior } from '../core/inverse/posterior.ts';
 import { prepareStructuredPosterior, structuredPosteriorSummary, structuredProblem, type StructuredProblem } from '../core/inverse/structured.ts';
 import { structuredPosteriorDraws } from '../core/inverse/structuredDraws.ts';
@@ -305,6 +306,19 @@ async function calibrationByChunks(
   return done < o.replicates ? { ...merged, cancelled: true } : merged;
 }
 
+/** A candidate's data-fit scores: χ² and its 95% interval, each divided by the expected value M − tr R, and the tail. */
+function fitScores(
+  chi2: number,
+  ref: DataFitReference | null | undefined,
+): Pick<Extract<CandidateScores, { ok: true }>, 'chi2OverExpected' | 'chi2Interval95OverExpected' | 'chi2UpperTail'> {
+  if (ref === null || ref === undefined) throw new InputError('data.values', 'at least one datum to score a candidate against', 0);
+  return {
+    chi2OverExpected: chi2 / ref.expected,
+    chi2Interval95OverExpected: [ref.interval95[0] / ref.expected, ref.interval95[1] / ref.expected],
+    chi2UpperTail: ref.upperTail,
+  };
+}
+
 function checkCandidates(priors: readonly PriorSpec[]): void {
   if (priors.length < 1 || priors.length > MAX_CANDIDATES) throw new InputError('candidates', `between 1 and ${MAX_CANDIDATES} pinned priors`, priors.length);
 }
@@ -341,7 +355,7 @@ export async function scoreCandidates(
         ok: true,
         logEvidence: logEvidence(problem, prior),
         looLogScore: leaveOneOut(problem, prior).logScore,
-        chi2OverExpected: s.chi2 / s.fitReference!.expected,
+        ...fitScores(s.chi2, s.fitReference),
         predictiveReduced: ppc.reduced,
         predictiveP: ppc.pTwoSided,
         conditionNumber: diagnosePriorAuto(problem.grid, prior).conditionNumber, // FFT estimate on large stationary grids
@@ -375,7 +389,7 @@ export function scoreStructured(structured: StructuredProblem, prior: PriorSpec,
     ok: true,
     logEvidence: s.logEvidence,
     looLogScore: leaveOneOutFromFactor(problem, state.L, state.r).logScore,
-    chi2OverExpected: s.chi2 / s.fitReference!.expected,
+    ...fitScores(s.chi2, s.fitReference),
     predictiveReduced: ppc.reduced,
     predictiveP: ppc.pTwoSided,
     conditionNumber: diagnosePriorAuto(problem.grid, prior).conditionNumber,

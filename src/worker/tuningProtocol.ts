@@ -60,6 +60,10 @@ export type CandidateScores =
       readonly looLogScore: number;
       /** χ² of the posterior mean divided by its expected value under the model, M − tr R (src/core/inverse/fitReference.ts). */
       readonly chi2OverExpected: number;
+      /** The central 95% interval of χ² under this candidate, divided by the same expected value (fitReference.ts). */
+      readonly chi2Interval95OverExpected: readonly [number, number];
+      /** P(χ² ≥ observed) under this candidate. */
+      readonly chi2UpperTail: number;
       /** Prior predictive check: q/M and the two-sided p-value. */
       readonly predictiveReduced: number;
       readonly predictiveP: number;

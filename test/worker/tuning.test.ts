@@ -163,6 +163,8 @@ describe('candidate scores', () => {
       expect(c.predictiveP).toBe(priorPredictiveCheck(problem, prior).pTwoSided);
       const post = posteriorSummary(preparePosterior(problem, prior));
       expect(c.chi2OverExpected).toBe(post.chi2 / post.fitReference!.expected);
+      expect(c.chi2Interval95OverExpected).toEqual(post.fitReference!.interval95.map((q) => q / post.fitReference!.expected));
+      expect(c.chi2UpperTail).toBe(post.fitReference!.upperTail);
       expect(c.draws.rows).toBe(2);
     }
     expect(s[0].ok && s[1].ok && s[0].logEvidence !== s[1].logEvidence).toBe(true);
@@ -202,6 +204,7 @@ describe('large grids (FFT route above TUNING_DENSE_LIMIT cells)', () => {
       expect(Math.abs(c.predictiveP - ppc.pTwoSided)).toBeLessThan(1e-9);
       const post = posteriorSummary(preparePosterior(big, p));
       expect(rel(c.chi2OverExpected, post.chi2 / post.fitReference!.expected)).toBeLessThan(1e-9);
+      expect(rel(c.chi2Interval95OverExpected[1], post.fitReference!.interval95[1] / post.fitReference!.expected)).toBeLessThan(1e-7);
       expect(relDiff(c.mean, post.mean)).toBeLessThan(1e-9);
       expect(relDiff(c.std, post.std)).toBeLessThan(1e-9);
       // The draws are the structured posterior's seeded draws, number for number.

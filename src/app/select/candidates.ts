@@ -41,7 +41,7 @@ export interface ScoreColumn {
 export const SCORE_COLUMNS: readonly ScoreColumn[] = [
   { id: 'logEvidence', label: 'log evidence', tip: 'log N(d; G m0, G Cm Gᵀ + Cd), natural log', better: 'higher' },
   { id: 'loo', label: 'LOO log score', tip: 'Σᵢ log p(dᵢ | d₋ᵢ): how well each datum is predicted from the others', better: 'higher' },
-  { id: 'chi2', label: 'χ² / expected', tip: 'χ² of the posterior mean divided by its expected value under this candidate, M − tr R (not M: the mean also fits part of the noise); a correct prior gives 1 on average', better: 'closer to 1' },
+  { id: 'chi2', label: 'χ² / expected', tip: 'χ² of the posterior mean divided by its expected value under this candidate, M − tr R (not M: the mean also fits part of the noise); a correct prior gives 1 on average, and 95% of data sets fall in the bracketed interval (the same division applied to the 2.5% and 97.5% quantiles of χ²)', better: 'closer to 1' },
   { id: 'ppp', label: 'prior predictive p', tip: 'two-sided p-value of q = rᵀK⁻¹r against χ²_M', better: null },
   { id: 'coverage', label: 'coverage 68% / 95%', tip: 'self-calibration: truth drawn from this candidate, inverted with it (run the cross-table)', better: null },
   { id: 'condition', label: 'cond(Cm)', tip: 'condition number of the prior covariance (a lower estimate on large grids)', better: 'lower' },
@@ -97,7 +97,14 @@ export function scoreRows(
       name: c.name,
       colour: c.colour,
       error: null,
-      cells: SCORE_COLUMNS.map((col) => (col.id === 'coverage' ? covCell : { column: col.id, value: v[col.id], text: fmt(v[col.id]) })),
+      cells: SCORE_COLUMNS.map((col) => {
+        if (col.id === 'coverage') return covCell;
+        if (col.id === 'chi2') {
+          const [lo, hi] = s.chi2Interval95OverExpected;
+          return { column: col.id, value: v[col.id], text: `${fmt(v[col.id])} (95%: ${fmt(lo, 3)}–${fmt(hi, 3)})` };
+        }
+        return { column: col.id, value: v[col.id], text: fmt(v[col.id]) };
+      }),
     };
   });
 }

@@ -22,7 +22,15 @@ export function reportTime(now: Date): string {
 
 /** Candidate rows for the report: name, whole prior, log evidence, reading against the best, χ²/expected. */
 export function candidateTable(
-  cands: readonly { name: string; prior: DefenceInput['prior']; logEvidence: number | null; chi2OverExpected: number | null; loo: number | null }[],
+  cands: readonly {
+    name: string;
+    prior: DefenceInput['prior'];
+    logEvidence: number | null;
+    chi2OverExpected: number | null;
+    /** The 95% interval of χ² under the candidate on the same scale (its reference); omitted when not known. */
+    chi2Interval95OverExpected?: readonly [number, number] | null;
+    loo: number | null;
+  }[],
   grid: DefenceInput['grid'],
   lengthUnit: string,
   valueUnit: string,
@@ -36,7 +44,7 @@ export function candidateTable(
       c.logEvidence === null ? '—' : g4(c.logEvidence),
       ev.readings[k]?.text ?? '—',
       c.loo === null ? '—' : g4(c.loo),
-      c.chi2OverExpected === null ? '—' : g4(c.chi2OverExpected),
+      c.chi2OverExpected === null ? '—' : g4(c.chi2OverExpected) + (c.chi2Interval95OverExpected ? ` (95%: ${g4(c.chi2Interval95OverExpected[0])}–${g4(c.chi2Interval95OverExpected[1])})` : ''),
       String(ev.readings[k]?.parameters ?? '—'),
     ]),
     caution: ev.caution,
@@ -70,7 +78,14 @@ export function reportInput(s: WorkbenchState, caution: string, draws: Matrix | 
       ? candidateTable(
           s.candidates.map((c, k) => {
             const sc = scores?.[k];
-            return { name: c.name, prior: c.prior, logEvidence: sc?.ok ? sc.logEvidence : null, chi2OverExpected: sc?.ok ? sc.chi2OverExpected : null, loo: sc?.ok ? sc.looLogScore : null };
+            return {
+              name: c.name,
+              prior: c.prior,
+              logEvidence: sc?.ok ? sc.logEvidence : null,
+              chi2OverExpected: sc?.ok ? sc.chi2OverExpected : null,
+              chi2Interval95OverExpected: sc?.ok ? sc.chi2Interval95OverExpected : null,
+              loo: sc?.ok ? sc.looLogScore : null,
+            };
           }),
           p.grid,
           unit,

@@ -124,6 +124,8 @@ describe('scores table rows', () => {
     logEvidence,
     looLogScore: logEvidence - 1,
     chi2OverExpected: chi2,
+    chi2Interval95OverExpected: [0.25, 2.5],
+    chi2UpperTail: 0.5,
     predictiveReduced: 1,
     predictiveP: 0.5,
     conditionNumber: 10 * logEvidence,
@@ -144,6 +146,8 @@ describe('scores table rows', () => {
     expect(rows[1].cells.find((c) => c.column === 'logEvidence')!.value).toBe(5);
     expect(rows[2].error).toMatch(/variance/);
     expect(rows[2].cells.every((c) => c.text === '—')).toBe(true);
+    // The data-fit cell carries its reference: the 95% interval on the same scale.
+    expect(rows[0].cells.find((c) => c.column === 'chi2')!.text).toBe('1.4 (95%: 0.25–2.5)');
     const col = (id: string) => SCORE_COLUMNS.find((c) => c.id === id)!;
     expect(bestRow(rows, col('logEvidence'))).toBe(1);
     expect(bestRow(rows, col('chi2'))).toBe(1); // |0.9 − 1| < |1.4 − 1|

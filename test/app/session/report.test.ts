@@ -6,7 +6,7 @@
  * rounding of four significant digits).
  */
 import { describe, expect, it } from 'vitest';
-import { priorInWords, termInWords } from '../../../src/app/session/report.ts';
+import { candidateTable, priorInWords, termInWords } from '../../../src/app/session/report.ts';
 import { correlationFunction } from '../../../src/core/kernels/correlation.ts';
 
 describe('prior in words', () => {
@@ -30,5 +30,24 @@ describe('prior in words', () => {
     expect(w[0]).toBe('Mean: constant 3 K.');
     expect(w[2]).toContain('lengths 2 m and 1 m at 30°');
     expect(w[3]).toBe('Nugget (uncorrelated variance): 0.5.');
+  });
+});
+
+describe('candidate table of the report', () => {
+  it('gives the data-fit statistic with its reference interval, and a dash where a candidate has no score', () => {
+    const prior = { mean: { constant: 0 }, terms: [{ kernel: 'exponential' as const, variance: 1, length: 10 }] };
+    const t = candidateTable(
+      [
+        { name: 'A', prior, logEvidence: -10, chi2OverExpected: 0.93, chi2Interval95OverExpected: [0.46, 1.79], loo: -11 },
+        { name: 'B', prior, logEvidence: null, chi2OverExpected: null, loo: null },
+      ],
+      { shape: [20], spacing: [1] },
+      'm',
+      '',
+    );
+    const col = t.header.indexOf('χ² / (M − tr R)');
+    expect(col).toBeGreaterThan(0);
+    expect(t.rows[0][col]).toBe('0.93 (95%: 0.46–1.79)');
+    expect(t.rows[1][col]).toBe('—');
   });
 });
