@@ -23,6 +23,7 @@ import { covarianceMatrix, meanVector } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
 import { structuredProjection, TUNING_DENSE_LIMIT, tuningRoute, type TuningRoute } from './projected.ts';
+import { lagProjectionApplies, lagTableProjection } from './lagProjection.ts';
 
 import { LOG_2PI } from '../inverse/evidence.ts';
 
@@ -111,7 +112,8 @@ export function addMatrices(a: Matrix, b: Matrix): Matrix {
 /**
  * P = G Cm Gᵀ (M × M) for the prior on the problem's grid: the dense route (covarianceMatrix, then
  * ../linalg/operator.ts projectCovariance) or the FFT route (./projected.ts structuredProjection), chosen by
- * {@link tuningRoute} unless `options.route` forces one. Both give the same matrix to round-off
+ * {@link tuningRoute} unless `options.route` forces one; under `auto`, where the FFT route would run, an operator
+ * with few non-zeros takes the lag table instead (./lagProjection.ts). All give the same matrix to round-off
  * (test/core/tuning/projected.test.ts). Validates the prior (InputError naming the field); a forced
  * 'fft' for a prior that is not stationary on the grid is an InputError naming `route`.
  */
@@ -130,6 +132,8 @@ export function projectedPriorCovariance(problem: Problem, prior: PriorSpec, opt
       return assertNever(asked);
   }
   if (route === 'dense') return projectCovariance(problem.operator, covarianceMatrix(problem.grid, prior));
+  // Few non-zeros (point data): the lag table gives P exactly, cheaper than any transform (./lagProjection.ts).
+  if (asked === 'auto' && lagProjectionApplies(problem.operator, problem.grid)) return lagTableProjection(problem.operator, problem.grid, prior);
   const why = nonStationaryReason(problem.grid, prior);
   if (why !== null) throw new InputError('route', `"dense" or "auto" for this prior (the FFT route needs a stationary prior on a regular grid: ${why})`, 'fft');
   const holder = options.structured ?? structuredProblem(problem);
