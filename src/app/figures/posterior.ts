@@ -16,20 +16,27 @@ type Quantity = { readonly name: string; readonly unit: string };
  * partial, mean-only result is shown), the truth when known, and the posterior mean on top.
  */
 export function posteriorBandTraces(grid: Grid, post: ShownPosterior, truth: ArrayLike<number> | null): Trace[] {
-  const x = axis1D(grid);
-  const s = post.summary;
-  const traces: Trace[] = [];
+  return posteriorTraces1D(axis1D(grid), { mean: post.mean, priorMean: post.priorMean, priorStd: post.priorStd, std: post.summary?.std ?? null }, truth);
+}
+
+/** Posterior panel in 1-D: mean with 68% and 95% bands (when known), prior 95% band, truth when known. */
+export function posteriorTraces1D(
+  x: ArrayLike<number>,
+  post: { mean: ArrayLike<number>; priorMean: ArrayLike<number>; priorStd: ArrayLike<number>; std: ArrayLike<number> | null },
+  truth: ArrayLike<number> | null,
+): Trace[] {
+  const out: Trace[] = [];
   const pb = band(post.priorMean, post.priorStd, Z95);
-  traces.push(bandTrace(x, pb.lower, pb.upper, 'prior 95%', COLOURS.prior));
-  if (s) {
-    const b95 = band(s.mean, s.std, Z95);
-    const b68 = band(s.mean, s.std, Z68);
-    traces.push(bandTrace(x, b95.lower, b95.upper, 'posterior 95%', COLOURS.band95));
-    traces.push(bandTrace(x, b68.lower, b68.upper, 'posterior 68%', COLOURS.band68));
+  out.push(bandTrace(x, pb.lower, pb.upper, 'prior 95%', COLOURS.prior));
+  if (post.std) {
+    const b95 = band(post.mean, post.std, Z95);
+    const b68 = band(post.mean, post.std, Z68);
+    out.push(bandTrace(x, b95.lower, b95.upper, 'posterior 95%', COLOURS.band95));
+    out.push(bandTrace(x, b68.lower, b68.upper, 'posterior 68%', COLOURS.band68));
   }
-  if (truth) traces.push({ type: 'scatter', mode: 'lines', x, y: truth, name: 'truth', line: { color: COLOURS.truth, width: 1.2, dash: 'dot' } });
-  traces.push({ type: 'scatter', mode: 'lines', x, y: post.mean, name: 'posterior mean', line: { color: COLOURS.mean, width: 2.2 } });
-  return traces;
+  if (truth) out.push({ type: 'scatter', mode: 'lines', x, y: truth, name: 'truth', line: { color: COLOURS.truth, width: 1.2, dash: 'dot' } });
+  out.push({ type: 'scatter', mode: 'lines', x, y: post.mean, name: 'posterior mean', line: { color: COLOURS.mean, width: 2.2 } });
+  return out;
 }
 
 export function posteriorBandLayout(grid: Grid, quantity: Quantity): Layout {

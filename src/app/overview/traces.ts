@@ -13,7 +13,7 @@ import type { PriorSpec } from '../../core/prior/spec.ts';
 import { meanVector } from '../../core/prior/mean.ts';
 import { axisLabel, axisNames, downAxisLabel, withUnit } from '../labels.ts';
 import { escapePlotText } from '../plotText.ts';
-import { axes2D, band, bandTrace, COLOURS, rowOf, toRows2D, Z68, Z95, type Trace } from '../traces.ts';
+import { axes2D, band, bandTrace, COLOURS, rowOf, toRows2D, Z95, type Trace } from '../traces.ts';
 import { DIVERGING, divergingRange, effectiveRange, SEQUENTIAL, sequentialRange, signedView, type ManualLimits, type Range } from '../colourScales.ts';
 
 /** Realisations a row of the draws matrix holds (count × N, row-major). */
@@ -59,25 +59,8 @@ export function priorTraces1D(x: ArrayLike<number>, draws: Draws | null, priorMe
   return out;
 }
 
-/** Posterior panel in 1-D: mean with 68% and 95% bands (when known), prior 95% band, truth when known. */
-export function posteriorTraces1D(
-  x: ArrayLike<number>,
-  post: { mean: ArrayLike<number>; priorMean: ArrayLike<number>; priorStd: ArrayLike<number>; std: ArrayLike<number> | null },
-  truth: ArrayLike<number> | null,
-): Trace[] {
-  const out: Trace[] = [];
-  const pb = band(post.priorMean, post.priorStd, Z95);
-  out.push(bandTrace(x, pb.lower, pb.upper, 'prior 95%', COLOURS.prior));
-  if (post.std) {
-    const b95 = band(post.mean, post.std, Z95);
-    const b68 = band(post.mean, post.std, Z68);
-    out.push(bandTrace(x, b95.lower, b95.upper, 'posterior 95%', COLOURS.band95));
-    out.push(bandTrace(x, b68.lower, b68.upper, 'posterior 68%', COLOURS.band68));
-  }
-  if (truth) out.push({ type: 'scatter', mode: 'lines', x, y: truth, name: 'truth', line: { color: COLOURS.truth, width: 1.2, dash: 'dot' } });
-  out.push({ type: 'scatter', mode: 'lines', x, y: post.mean, name: 'posterior mean', line: { color: COLOURS.mean, width: 2.2 } });
-  return out;
-}
+/** Posterior panel in 1-D: the Posterior screen's own figure (../figures/posterior.ts), re-exported for the overview. */
+export { posteriorTraces1D } from '../figures/posterior.ts';
 
 /** Data-fit panel: observed data with ±1σ bars and the predicted data G m̃, against datum number. */
 export function fitTraces(values: ArrayLike<number>, sigma: ArrayLike<number>, predicted: ArrayLike<number>): Trace[] {
