@@ -155,7 +155,7 @@ const isCount = (v: unknown, max: number): v is number => typeof v === 'number' 
 function shapeDefect(raw: unknown): string | null {
   if (!isObject(raw) || !isObject(raw.grid) || !isObject(raw.operator) || !isObject(raw.data)) return 'the stored copy is damaged (grid, operator or data missing)';
   const shape = raw.grid.shape;
-  if (!Array.isArray(shape) || (shape.length !== 1 && shape.length !== 2) || !shape.every((v) => isCount(v, MAX_CELLS))) return 'grid.shape must be [nx] or [nx, ny] of positive integers';
+  if (!Array.isArray(shape) || shape.length < 1 || shape.length > 3 || !shape.every((v) => isCount(v, MAX_CELLS))) return 'grid.shape must be [nx], [nx, ny] or [nx, ny, nz] of positive integers';
   const n = (shape as number[]).reduce((a, b) => a * b, 1);
   if (n > MAX_CELLS) return `grid.shape must have at most ${MAX_CELLS} cells in all, got ${n}`;
   const g = raw.operator.matrix;

@@ -1,13 +1,13 @@
 /**
- * Regular 1-D and 2-D grids. Cell (ix, iy) sits at (x0 + dx·ix, y0 + dy·iy) and has the flat
- * index i = ix + nx·iy (x fastest).
+ * Regular 1-D, 2-D and 3-D grids. Cell (ix, iy, iz) sits at (x0 + dx·ix, y0 + dy·iy, z0 + dz·iz) and has
+ * the flat index i = ix + nx·(iy + ny·iz) (x fastest).
  */
 import { InputError } from '../errors.ts';
 
 export interface Grid {
-  /** [nx] or [nx, ny], positive integers. */
+  /** [nx], [nx, ny] or [nx, ny, nz], positive integers. */
   readonly shape: readonly number[];
-  /** [dx] or [dx, dy], > 0. */
+  /** [dx], [dx, dy] or [dx, dy, dz], > 0. */
   readonly spacing: readonly number[];
   /** Coordinates of cell 0; zeros when omitted. */
   readonly origin?: readonly number[];
@@ -17,34 +17,39 @@ export interface Grid {
   readonly axes?: readonly string[];
 }
 
-export function gridDimension(g: Grid): 1 | 2 {
-  return g.shape.length === 2 ? 2 : 1;
+export function gridDimension(g: Grid): 1 | 2 | 3 {
+  return g.shape.length === 3 ? 3 : g.shape.length === 2 ? 2 : 1;
 }
 
 export function cellCount(g: Grid): number {
   return g.shape.reduce((a, b) => a * b, 1);
 }
 
-/** Coordinates of every cell (y is all zeros in 1-D). */
-export function cellCoordinates(g: Grid): { x: Float64Array; y: Float64Array } {
+/** Coordinates of every cell (y is all zeros in 1-D, z all zeros below 3-D). */
+export function cellCoordinates(g: Grid): { x: Float64Array; y: Float64Array; z: Float64Array } {
   const n = cellCount(g);
   const x = new Float64Array(n);
   const y = new Float64Array(n);
+  const z = new Float64Array(n);
   const nx = g.shape[0];
-  const [x0 = 0, y0 = 0] = g.origin ?? [];
+  const ny = g.shape[1] ?? 1;
+  const [x0 = 0, y0 = 0, z0 = 0] = g.origin ?? [];
   const dx = g.spacing[0];
   const dy = g.spacing[1] ?? 0;
+  const dz = g.spacing[2] ?? 0;
   for (let i = 0; i < n; i++) {
+    const row = Math.floor(i / nx);
     x[i] = x0 + dx * (i % nx);
-    y[i] = y0 + dy * Math.floor(i / nx);
+    y[i] = y0 + dy * (row % ny);
+    z[i] = z0 + dz * Math.floor(row / ny);
   }
-  return { x, y };
+  return { x, y, z };
 }
 
-/** Throws InputError unless the grid is a valid 1-D or 2-D regular grid. */
+/** Throws InputError unless the grid is a valid 1-D, 2-D or 3-D regular grid. */
 export function validateGrid(g: Grid, field = 'grid'): void {
-  if (!Array.isArray(g.shape) || (g.shape.length !== 1 && g.shape.length !== 2)) {
-    throw new InputError(`${field}.shape`, '[nx] or [nx, ny]', g.shape);
+  if (!Array.isArray(g.shape) || g.shape.length < 1 || g.shape.length > 3) {
+    throw new InputError(`${field}.shape`, '[nx], [nx, ny] or [nx, ny, nz]', g.shape);
   }
   g.shape.forEach((s, k) => {
     if (!Number.isInteger(s) || s < 1) throw new InputError(`${field}.shape[${k}]`, 'a positive integer', s);

@@ -240,14 +240,14 @@ export interface GridForm {
 
 export const GRID_FORM = 'grid form';
 
-/** Check the typed grid: shape [nx] or [nx, ny] positive integers, spacing > 0, finite origin. */
+/** Check the typed grid: shape [nx], [nx, ny] or [nx, ny, nz] positive integers, spacing > 0, finite origin. */
 export function checkGridForm(g: GridForm): Grid {
   const fail = (field: string, expected: string, value: unknown): never => {
     throw new FileFormatError(GRID_FORM, `${field} must be ${expected}, got ${formatValue(value)}`, { field });
   };
   const dim = g.shape.length;
-  if (dim !== 1 && dim !== 2) fail('shape', '[nx] or [nx, ny]', g.shape as unknown[]);
-  const names = ['nx', 'ny'];
+  if (dim < 1 || dim > 3) fail('shape', '[nx], [nx, ny] or [nx, ny, nz]', g.shape as unknown[]);
+  const names = ['nx', 'ny', 'nz'];
   g.shape.forEach((s, k) => {
     if (!Number.isInteger(s) || s < 1) fail(names[k], 'a positive integer', s);
   });
@@ -255,13 +255,13 @@ export function checkGridForm(g: GridForm): Grid {
   if (cells > MAX_CELLS) fail('shape', `at most ${MAX_CELLS} cells in all`, `${g.shape.join(' × ')} = ${cells}`);
   if (g.spacing.length !== dim) fail('spacing', `${dim} number${dim === 1 ? '' : 's'}`, g.spacing as unknown[]);
   g.spacing.forEach((s, k) => {
-    if (!Number.isFinite(s) || !(s > 0)) fail(['dx', 'dy'][k], 'a finite number > 0', s);
+    if (!Number.isFinite(s) || !(s > 0)) fail(['dx', 'dy', 'dz'][k], 'a finite number > 0', s);
   });
   const grid: { -readonly [K in keyof Grid]: Grid[K] } = { shape: [...g.shape], spacing: [...g.spacing] };
   if (g.origin !== undefined) {
     if (g.origin.length !== dim) fail('origin', `${dim} number${dim === 1 ? '' : 's'}`, g.origin as unknown[]);
     g.origin.forEach((s, k) => {
-      if (!Number.isFinite(s)) fail(['x0', 'y0'][k], 'a finite number', s);
+      if (!Number.isFinite(s)) fail(['x0', 'y0', 'z0'][k], 'a finite number', s);
     });
     grid.origin = [...g.origin];
   }

@@ -4,6 +4,7 @@
  *   mean        {"constant": c} | {"values": [N numbers]} | {"trend": {"intercept": a, "slope": [b1] or [b1, b2]}}
  *   terms       [{"kernel": "exponential"|"gaussian"|"matern"|"spherical", "variance": > 0,
  *                 "length": > 0  — or, in 2-D, "lengths": [l1, l2] (> 0) with optional "angle" (degrees),
+ *                 or, in 3-D, "lengths": [l1, l2, l3] with optional "angles": [a1, a2, a3] (degrees, ../prior/lag.ts),
  *                 "nu": > 0 (matern only, required there)}, …]
  *   nugget      ≥ 0 (optional, default 0), variance units
  *   stdProfile  N numbers > 0 (optional)
@@ -16,7 +17,7 @@
  */
 import type { Grid } from '../grid/grid.ts';
 import { cellCount } from '../grid/grid.ts';
-import { KERNEL_NAMES, type KernelName, type Term } from '../kernels/spec.ts';
+import { isAnisotropic, KERNEL_NAMES, type KernelName, type Term } from '../kernels/spec.ts';
 import { kernelsTaking, kernelTakes } from '../kernels/table.ts';
 import type { MeanSpec, PriorSpec } from '../prior/spec.ts';
 import { MAX_TERMS } from '../prior/validate.ts';
@@ -37,7 +38,7 @@ export interface PriorReadOptions {
 }
 
 const TOP_FIELDS = ['kind', 'version', 'mean', 'terms', 'nugget', 'stdProfile'] as const;
-const TERM_FIELDS = ['kernel', 'variance', 'length', 'lengths', 'angle', 'nu'] as const;
+const TERM_FIELDS = ['kernel', 'variance', 'length', 'lengths', 'angle', 'angles', 'nu'] as const;
 
 /** Check `kind` and `version` of a parsed file object (shared with the problem file). */
 export function checkKindVersion(r: JsonReader, obj: Record<string, unknown>, kind: string, version: number): void {
@@ -59,8 +60,8 @@ function readMean(r: JsonReader, value: unknown): MeanSpec {
   if (obj.values !== undefined) return { values: r.numbers(obj.values, 'mean.values') };
   const t = r.object(obj.trend, 'mean.trend', ['intercept', 'slope']);
   const intercept = r.number(r.required(t, 'mean.trend', 'intercept', 'a finite number'), 'mean.trend.intercept');
-  const slope = r.numbers(r.required(t, 'mean.trend', 'slope', 'an array of 1 or 2 numbers'), 'mean.trend.slope');
-  if (slope.length !== 1 && slope.length !== 2) r.fail('mean.trend.slope', 'an array of 1 or 2 numbers', slope);
+  const slope = r.numbers(r.required(t, 'mean.trend', 'slope', 'an array of 1, 2 or 3 numbers'), 'mean.trend.slope');
+  if (slope.length < 1 || slope.length > 3) r.fail('mean.trend.slope', 'an array of 1, 2 or 3 numbers (one per grid axis)', slope);
   return { trend: { intercept, slope } };
 }
 
@@ -86,13 +87,20 @@ function readTerm(r: JsonReader, value: unknown, k: number): Term {
   if (obj.length !== undefined && obj.lengths !== undefined) {
     r.fail(f, 'a term with either length (isotropic) or lengths (anisotropic 2-D), not both', 'both');
   }
-  let lengths: readonly [number, number] | undefined;
+  let lengths: readonly [number, number] | readonly [number, number, number] | undefined;
   let length = 0;
   let angle: number | undefined;
+  let angles: readonly [number, number, number] | undefined;
   if (obj.lengths !== undefined) {
-    const l = r.numbers(obj.lengths, `${f}.lengths`, 2, { gt: 0 });
-    lengths = [l[0], l[1]];
+    const three = Array.isArray(obj.lengths) && obj.lengths.length === 3;
+    const l = r.numbers(obj.lengths, `${f}.lengths`, three ? 3 : 2, { gt: 0 });
+    lengths = three ? [l[0], l[1], l[2]] : [l[0], l[1]];
     if (obj.angle !== undefined) angle = readAngle(r, obj.angle, `${f}.angle`);
+    if (obj.angles !== undefined) {
+      if (!three) r.fail(`${f}.angles`, 'absent with two lengths (angles [a1, a2, a3] go with lengths [l1, l2, l3] in 3-D; give angle in 2-D)', obj.angles);
+      const a = r.array(obj.angles, `${f}.angles`, 3, 'angles in degrees').map((v, k) => readAngle(r, v, `${f}.angles[${k}]`));
+      angles = [a[0], a[1], a[2]];
+    }
   } else {
     if (obj.length === undefined) r.fail(`${f}.length`, 'a finite number > 0 (or give lengths [l1, l2] in 2-D)', undefined);
     length = r.number(obj.length, `${f}.length`, { gt: 0 });
@@ -111,7 +119,7 @@ function readTerm(r: JsonReader, value: unknown, k: number): Term {
   }
   // Only the fields present (no defaults filled in), so that the file round-trips exactly.
   const optional = { ...(angle !== undefined && { angle }), ...(nu !== undefined && { nu }) };
-  return lengths !== undefined ? { kernel, variance, lengths, ...optional } : { kernel, variance, length, ...optional };
+  return lengths !== undefined ? { kernel, variance, lengths, ...(angles !== undefined && { angles }), ...optional } : { kernel, variance, length, ...optional };
 }
 
 /** A parsed prior object (already JSON-decoded) → PriorSpec; `r` collects the warnings. */
@@ -150,8 +158,11 @@ export function checkPriorForGrid(file: string, prior: PriorSpec, grid: Grid): v
     throw fieldError(file, 'stdProfile', `an array of ${n} numbers (one per grid cell)`, prior.stdProfile);
   }
   prior.terms.forEach((t, k) => {
-    if (t.lengths && dim !== 2) {
-      throw new FileFormatError(file, `terms[${k}].lengths needs a 2-D grid; on this 1-D grid give terms[${k}].length`, { field: `terms[${k}].lengths` });
+    if (t.lengths && dim === 1) {
+      throw new FileFormatError(file, `terms[${k}].lengths needs a 2-D or 3-D grid; on this 1-D grid give terms[${k}].length`, { field: `terms[${k}].lengths` });
+    }
+    if (t.lengths && t.lengths.length !== dim) {
+      throw new FileFormatError(file, `terms[${k}].lengths has ${t.lengths.length} lengths; this ${dim}-D grid needs ${dim} (or one length)`, { field: `terms[${k}].lengths` });
     }
   });
 }
@@ -179,7 +190,8 @@ export function priorToJson(prior: PriorSpec): Record<string, unknown> {
     terms: prior.terms.map((t) => {
       const o: Record<string, unknown> = { kernel: t.kernel, variance: t.variance };
       if (t.length !== undefined) o.length = t.length;
-      if (t.lengths !== undefined) o.lengths = [t.lengths[0], t.lengths[1]];
+      if (t.lengths !== undefined) o.lengths = Array.from(t.lengths);
+      if (isAnisotropic(t) && t.angles !== undefined) o.angles = Array.from(t.angles);
       if (t.angle !== undefined) o.angle = t.angle;
       if (t.nu !== undefined) o.nu = t.nu;
       return o;

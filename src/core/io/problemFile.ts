@@ -70,15 +70,15 @@ export const DATA_FIELDS = ['values', 'sigma', 'covariance', 'unit', 'positions'
 
 function readGrid(r: JsonReader, value: unknown): Grid {
   const g = r.object(value, 'grid', GRID_FIELDS);
-  const shapeValue = r.required(g, 'grid', 'shape', '[nx] or [nx, ny]');
-  if (!Array.isArray(shapeValue) || (shapeValue.length !== 1 && shapeValue.length !== 2)) {
-    r.fail('grid.shape', '[nx] or [nx, ny] (positive integers)', shapeValue);
+  const shapeValue = r.required(g, 'grid', 'shape', '[nx], [nx, ny] or [nx, ny, nz]');
+  if (!Array.isArray(shapeValue) || shapeValue.length < 1 || shapeValue.length > 3) {
+    r.fail('grid.shape', '[nx], [nx, ny] or [nx, ny, nz] (positive integers)', shapeValue);
   }
   const shape = r.numbers(shapeValue, 'grid.shape', undefined, { integer: true, ge: 1 });
   const dim = shape.length;
   const cells = shape.reduce((a, b) => a * b, 1);
   if (cells > MAX_CELLS) r.fail('grid.shape', `at most ${MAX_CELLS} cells in all`, `${shape.join(' × ')} = ${cells}`);
-  const spacing = r.numbers(r.required(g, 'grid', 'spacing', dim === 1 ? '[dx]' : '[dx, dy]'), 'grid.spacing', dim, { gt: 0 });
+  const spacing = r.numbers(r.required(g, 'grid', 'spacing', ['[dx]', '[dx, dy]', '[dx, dy, dz]'][dim - 1]), 'grid.spacing', dim, { gt: 0 });
   const grid: { -readonly [K in keyof Grid]: Grid[K] } = { shape, spacing };
   if (g.origin !== undefined) grid.origin = r.numbers(g.origin, 'grid.origin', dim);
   if (g.unit !== undefined) grid.unit = r.string(g.unit, 'grid.unit');
@@ -87,7 +87,9 @@ function readGrid(r: JsonReader, value: unknown): Grid {
     names.forEach((a, k) => {
       if (a === '' || a.length > AXIS_NAME_MAX) r.fail(`grid.axes[${k}]`, `a name of 1 to ${AXIS_NAME_MAX} characters`, a);
     });
-    if (dim === 2 && names[0] === names[1]) r.fail('grid.axes[1]', 'a name different from grid.axes[0]', names[1]);
+    names.forEach((a, k) => {
+      if (names.indexOf(a) < k) r.fail(`grid.axes[${k}]`, `a name different from grid.axes[${names.indexOf(a)}]`, a);
+    });
     grid.axes = names;
   }
   return grid;

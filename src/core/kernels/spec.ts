@@ -37,10 +37,15 @@ export interface IsotropicTerm extends TermFields {
   readonly lengths?: undefined;
 }
 
-/** 2-D: h = √((u/l1)² + (v/l2)²) in axes rotated by the angle. */
+/**
+ * 2-D: h = √((u/l1)² + (v/l2)²) in axes rotated by the angle. 3-D: h = √((u/l1)² + (v/l2)² + (w/l3)²) with
+ * (u, v, w) = Rᵀ(dx, dy, dz), R = Rz(a1)·Ry(a2)·Rx(a3) from `angles` (../prior/lag.ts).
+ */
 export interface AnisotropicTerm extends TermFields {
-  /** Two correlation lengths [l1, l2], each > 0. */
-  readonly lengths: readonly [number, number];
+  /** Correlation lengths [l1, l2] (2-D) or [l1, l2, l3] (3-D), each > 0. */
+  readonly lengths: readonly [number, number] | readonly [number, number, number];
+  /** 3-D only: [a1, a2, a3] degrees (a1 about z, then a2 about the new y, then a3 about the newest x); zeros when absent. */
+  readonly angles?: readonly [number, number, number];
   readonly length?: undefined;
 }
 
@@ -63,7 +68,7 @@ export interface TermPatch {
   readonly angle?: number;
   readonly nu?: number;
   readonly length?: number;
-  readonly lengths?: readonly [number, number];
+  readonly lengths?: readonly [number, number] | readonly [number, number, number];
 }
 
 /**

@@ -6,7 +6,7 @@
  * PUBLIC API: covarianceMatrix, covarianceApply, priorVariance, meanVector, validatePrior.
  *
  * Assembly goes through a lag table (./lag.ts): ρ is evaluated once per distinct index offset
- * ((2nx−1)(2ny−1) values, 2N−1 in 1-D) and each matrix row is copied from contiguous slices of the
+ * ((2nx−1)(2ny−1)(2nz−1) values, 2N−1 in 1-D) and each matrix row is copied from contiguous slices of the
  * table, so assembly costs O(N²) memory writes and only O(N) kernel evaluations.
  */
 import { cellCount, type Grid } from '../grid/grid.ts';
@@ -26,18 +26,22 @@ export function covarianceMatrix(grid: Grid, prior: PriorSpec): Matrix {
 
 /** Dense Cm from an already computed lag table (no validation). */
 export function assembleCovariance(prior: PriorSpec, table: LagTable): Matrix {
-  const { nx, ny, values } = table;
-  const n = nx * ny;
+  const { nx, ny, nz, values } = table;
+  const n = nx * ny * nz;
   const c = matrix(n, n);
   const d = c.data;
-  for (let iy = 0; iy < ny; iy++) {
-    for (let ix = 0; ix < nx; ix++) {
-      const i = ix + nx * iy;
-      const oi = i * n;
-      for (let jy = 0; jy < ny; jy++) {
-        // Row i, cells (0..nx−1, jy): offsets Δix = −ix … nx−1−ix, contiguous in the table.
-        const a = lagIndex(table, -ix, jy - iy);
-        d.set(values.subarray(a, a + nx), oi + jy * nx);
+  for (let iz = 0; iz < nz; iz++) {
+    for (let iy = 0; iy < ny; iy++) {
+      for (let ix = 0; ix < nx; ix++) {
+        const i = ix + nx * (iy + ny * iz);
+        const oi = i * n;
+        for (let jz = 0; jz < nz; jz++) {
+          for (let jy = 0; jy < ny; jy++) {
+            // Row i, cells (0..nx−1, jy, jz): offsets Δix = −ix … nx−1−ix, contiguous in the table.
+            const a = lagIndex(table, -ix, jy - iy, jz - iz);
+            d.set(values.subarray(a, a + nx), oi + (jy + ny * jz) * nx);
+          }
+        }
       }
     }
   }
@@ -99,23 +103,25 @@ export function covarianceApply(grid: Grid, prior: PriorSpec, dense?: Matrix): C
     };
   }
   const table = lagTable(grid, prior.terms);
-  const { nx, ny, values } = table;
+  const { nx, ny, nz, values } = table;
   const s = prior.stdProfile;
   const nugget = prior.nugget ?? 0;
   const sx = new Float64Array(n);
   return (x, out = new Float64Array(n)) => {
     for (let j = 0; j < n; j++) sx[j] = (s === undefined ? 1 : s[j]) * x[j];
-    for (let iy = 0; iy < ny; iy++) {
-      for (let ix = 0; ix < nx; ix++) {
-        const i = ix + nx * iy;
-        let acc = 0;
+    for (let i = 0; i < n; i++) {
+      const ix = i % nx;
+      const iy = Math.floor(i / nx) % ny;
+      const iz = Math.floor(i / (nx * ny));
+      let acc = 0;
+      for (let jz = 0; jz < nz; jz++) {
         for (let jy = 0; jy < ny; jy++) {
-          const a = lagIndex(table, -ix, jy - iy);
-          const o = jy * nx;
+          const a = lagIndex(table, -ix, jy - iy, jz - iz);
+          const o = (jy + ny * jz) * nx;
           for (let jx = 0; jx < nx; jx++) acc += values[a + jx] * sx[o + jx];
         }
-        out[i] = (s === undefined ? 1 : s[i]) * acc + nugget * x[i];
       }
+      out[i] = (s === undefined ? 1 : s[i]) * acc + nugget * x[i];
     }
     return out;
   };

@@ -2,7 +2,7 @@
  * Mean model m0 on the grid (./spec.ts):
  *   constant  m0_i = c
  *   values    m0_i = values[i]
- *   trend     m0_i = intercept + slope[0]·x_i (+ slope[1]·y_i in 2-D), absolute cell coordinates
+ *   trend     m0_i = intercept + slope[0]·x_i (+ slope[1]·y_i in 2-D, + slope[2]·z_i in 3-D), absolute cell coordinates
  *             (origin included, see ../grid/grid.ts).
  */
 import { cellCoordinates, cellCount, type Grid } from '../grid/grid.ts';
@@ -28,10 +28,13 @@ export function evaluateMean(grid: Grid, mean: MeanSpec): Float64Array {
   if ('constant' in mean) return new Float64Array(n).fill(mean.constant);
   if ('values' in mean) return Float64Array.from(mean.values);
   const { intercept, slope } = mean.trend;
-  const { x, y } = cellCoordinates(grid);
+  const { x, y, z } = cellCoordinates(grid);
   const a = slope[0];
   const b = slope[1] ?? 0;
   const out = new Float64Array(n);
-  for (let i = 0; i < n; i++) out[i] = intercept + a * x[i] + b * y[i];
+  if (slope.length === 3) {
+    const c = slope[2];
+    for (let i = 0; i < n; i++) out[i] = intercept + a * x[i] + b * y[i] + c * z[i];
+  } else for (let i = 0; i < n; i++) out[i] = intercept + a * x[i] + b * y[i];
   return out;
 }

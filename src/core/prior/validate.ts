@@ -99,7 +99,7 @@ function validateScales(prior: PriorSpec, n: number): void {
   if (prior.nugget !== undefined && prior.nugget > 0) checkScale('nugget', Math.sqrt(prior.nugget), 'a nugget whose square root is', true, prior.nugget);
 }
 
-function validateMean(mean: unknown, n: number, dim: 1 | 2): void {
+function validateMean(mean: unknown, n: number, dim: 1 | 2 | 3): void {
   const forms = 'one of {constant}, {values}, {trend: {intercept, slope}}';
   if (!isObject(mean)) throw new InputError('mean', forms, mean);
   const keys = ['constant', 'values', 'trend'].filter((k) => k in mean);
@@ -126,7 +126,7 @@ function validateMean(mean: unknown, n: number, dim: 1 | 2): void {
   }
 }
 
-function validateTerm(term: Term, f: string, dim: 1 | 2): void {
+function validateTerm(term: Term, f: string, dim: 1 | 2 | 3): void {
   if (!isObject(term)) throw new InputError(f, 'an object {kernel, variance, length or lengths}', term);
   if (!(KERNEL_NAMES as readonly unknown[]).includes(term.kernel)) {
     throw new InputError(`${f}.kernel`, `one of ${KERNEL_NAMES.join(', ')}`, term.kernel);
@@ -145,9 +145,18 @@ function validateTerm(term: Term, f: string, dim: 1 | 2): void {
     if (!isPositive(term.length)) throw new InputError(`${f}.length`, 'a finite number > 0 (the correlation length)', term.length);
   } else {
     const l = term.lengths;
-    if (!isArrayLike(l) || l.length !== 2) throw new InputError(`${f}.lengths`, 'an array of 2 lengths [l1, l2]', l);
-    for (let k = 0; k < 2; k++) {
+    const want = dim === 3 ? 'an array of 3 lengths [l1, l2, l3]' : 'an array of 2 lengths [l1, l2]';
+    if (!isArrayLike(l) || l.length !== dim) throw new InputError(`${f}.lengths`, want, l);
+    for (let k = 0; k < dim; k++) {
       if (!isPositive(l[k])) throw new InputError(`${f}.lengths[${k}]`, 'a finite number > 0', l[k]);
+    }
+  }
+  const angles = (term as { angles?: unknown }).angles;
+  if (angles !== undefined) {
+    if (dim !== 3) throw new InputError(`${f}.angles`, 'absent below 3-D (give angle on a 2-D grid)', angles);
+    if (!isArrayLike(angles) || angles.length !== 3) throw new InputError(`${f}.angles`, 'an array of 3 angles [a1, a2, a3] in degrees', angles);
+    for (let k = 0; k < 3; k++) {
+      if (!isFiniteNumber(angles[k])) throw new InputError(`${f}.angles[${k}]`, 'a finite number of degrees', angles[k]);
     }
   }
   if (term.angle !== undefined && !isFiniteNumber(term.angle)) {

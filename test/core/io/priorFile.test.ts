@@ -39,7 +39,7 @@ describe('parsePriorFile', () => {
     expect(warnings.map((w) => w.message)).toEqual([
       'q.json: unknown field colour ignored (known here: kind, version, mean, terms, nugget, stdProfile)',
       'q.json: unknown field mean.note ignored (known here: constant, values, trend)',
-      'q.json: unknown field terms[0].sill ignored (known here: kernel, variance, length, lengths, angle, nu)',
+      'q.json: unknown field terms[0].sill ignored (known here: kernel, variance, length, lengths, angle, angles, nu)',
     ]);
   });
 
@@ -82,7 +82,7 @@ describe('parsePriorFile', () => {
     [base({ mean: { values: [1, 2, 3] } }), GRID_1D, 'q.json: mean.values must be an array of 5 numbers (one per grid cell), got an array of length 3'],
     [base({ stdProfile: [1, 1] }), GRID_1D, 'q.json: stdProfile must be an array of 5 numbers (one per grid cell), got an array of length 2'],
     [base({ mean: { trend: { intercept: 0, slope: [1, 2] } } }), GRID_1D, 'q.json: mean.trend.slope must be an array of 1 number (one per grid axis), got an array of length 2'],
-    [base({ terms: [{ kernel: 'gaussian', variance: 1, lengths: [1, 2] }] }), GRID_1D, 'q.json: terms[0].lengths needs a 2-D grid; on this 1-D grid give terms[0].length'],
+    [base({ terms: [{ kernel: 'gaussian', variance: 1, lengths: [1, 2] }] }), GRID_1D, 'q.json: terms[0].lengths needs a 2-D or 3-D grid; on this 1-D grid give terms[0].length'],
   ])('checks against the grid: %s', (text, grid, message) => {
     expect(() => parsePriorFile('q.json', text)).not.toThrow();
     expectFileError(() => parsePriorFile('q.json', text, { grid }), message);

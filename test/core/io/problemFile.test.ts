@@ -89,7 +89,7 @@ describe('parseProblemFile', () => {
     ['missing data', problem({ data: undefined }), 'p.json: data must be an object with values and sigma or covariance, got nothing'],
     ['missing operator', problem({ operator: undefined }), 'p.json: operator must be an object with dense, sparse or file, got nothing'],
     ['missing sigma', problem({}, { sigma: undefined }), 'p.json: data.sigma must be an array of 2 numbers > 0 (or give data.covariance), got nothing'],
-    ['grid shape 3-D', problem({ grid: { shape: [2, 2, 2], spacing: [1, 1, 1] } }), 'p.json: grid.shape must be [nx] or [nx, ny] (positive integers), got an array of length 3'],
+    ['grid shape 4-D', problem({ grid: { shape: [2, 2, 2, 1], spacing: [1, 1, 1, 1] } }), 'p.json: grid.shape must be [nx], [nx, ny] or [nx, ny, nz] (positive integers), got an array of length 4'],
     ['grid shape fraction', problem({ grid: { shape: [2.5], spacing: [1] } }), 'p.json: grid.shape[0] must be an integer ≥ 1, got 2.5'],
     ['grid spacing count', problem({ grid: { shape: [3], spacing: [1, 1] } }), 'p.json: grid.spacing must be an array of 1 numbers, got an array of length 2'],
     ['grid spacing zero', problem({ grid: { shape: [3], spacing: [0] } }), 'p.json: grid.spacing[0] must be > 0, got 0'],
