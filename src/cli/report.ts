@@ -138,6 +138,7 @@ export const report: Command = {
         ['Quantity', `${problem.quantity?.name ?? 'value'}${qUnit ? ` (${qUnit})` : ''}`],
       ],
       coverage: operatorColumnAbsSums(problem.operator),
+      geometry: problem.data.geometry ?? null,
       prior,
       priorWords: priorInWords(prior, unit, qUnit),
       pd: pdRows(diagnostics),

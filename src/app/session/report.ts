@@ -102,6 +102,7 @@ export function reportInput(s: WorkbenchState, caution: string, draws: Matrix | 
     dataUnit: p.dataUnit,
     problemFacts: facts,
     coverage: p.coverage,
+    geometry: p.geometry,
     prior: s.prior,
     priorWords: priorInWords(s.prior, unit, p.quantity.unit),
     pd: s.diagnostics ? pdRows(s.diagnostics) : [['Diagnostics', 'not computed yet']],

@@ -9,9 +9,10 @@ import type { Grid } from '../grid/grid.ts';
 import { gridDimension } from '../grid/grid.ts';
 import type { Matrix } from '../linalg/matrix.ts';
 import type { PriorSpec } from '../prior/spec.ts';
+import type { DataGeometry } from '../problems/spec.ts';
 import { kernelInfo } from '../kernels/correlation.ts';
 import { writePriorFile } from '../io/priorFile.ts';
-import { esc, extent, gridExtent, heatSvg, lineSvg, type ColourScale } from './svg.ts';
+import { esc, extent, gridExtent, heatSvg, type HeatFigure, lineSvg, type ColourScale } from './svg.ts';
 import { DIVERGING, SEQUENTIAL } from './colours.ts';
 
 export type Rows = readonly (readonly [string, string])[];
@@ -27,6 +28,8 @@ export interface DefenceInput {
   readonly problemFacts: Rows;
   /** Column sums Σᵢ|Gᵢⱼ| (where the data look), or null. */
   readonly coverage: ArrayLike<number> | null;
+  /** Where the data were measured (problem file data.positions or data.sources/receivers), drawn over the coverage map. */
+  readonly geometry?: DataGeometry | null;
   readonly prior: PriorSpec;
   readonly priorWords: readonly string[];
   readonly pd: Rows;
@@ -107,9 +110,39 @@ function upTo(fields: readonly ArrayLike<number>[]): [number, number] {
 }
 
 /** A map of a field on a 2-D grid, true aspect, second axis down. */
-function map(input: DefenceInput, field: ArrayLike<number>, title: string, scale: ColourScale, range: [number, number], unit: string, width = 220): string {
+/** The survey geometry as points and segments in the grid's axes (2-D; null without geometry). */
+export function geometryOverlay(geometry: DataGeometry | null | undefined): HeatFigure['overlay'] | undefined {
+  if (!geometry) return undefined;
+  if (geometry.kind === 'points') {
+    const { rows, cols, data } = geometry.positions;
+    if (cols < 2) return undefined;
+    return { points: Array.from({ length: rows }, (_, i) => [data[i * cols] ?? 0, data[i * cols + 1] ?? 0] as const) };
+  }
+  const s = geometry.sources.data;
+  const r = geometry.receivers.data;
+  return {
+    segments: Array.from({ length: geometry.sources.rows }, (_, i) => [s[2 * i] ?? 0, s[2 * i + 1] ?? 0, r[2 * i] ?? 0, r[2 * i + 1] ?? 0] as const),
+  };
+}
+
+function geometryCaption(geometry: DataGeometry | null | undefined): string {
+  if (!geometry) return '';
+  return geometry.kind === 'points' ? `, with the ${geometry.positions.rows} measurement positions (dots)` : `, with the ${geometry.sources.rows} paths (lines)`;
+}
+
+function map(
+  input: DefenceInput,
+  field: ArrayLike<number>,
+  title: string,
+  scale: ColourScale,
+  range: [number, number],
+  unit: string,
+  width = 220,
+  overlay?: HeatFigure['overlay'],
+): string {
   const g = input.grid;
   return heatSvg({
+    ...(overlay ? { overlay } : {}),
     title,
     field,
     nx: g.shape[0],
@@ -153,7 +186,7 @@ export function defenceHtml(input: DefenceInput): string {
   if (input.coverage) {
     geometry += `<div class="figs">${
       is2D
-        ? map(input, input.coverage, 'Where the data look: column sums Σᵢ|Gᵢⱼ|', SEQUENTIAL, upTo([input.coverage]), '', 300)
+        ? map(input, input.coverage, `Where the data look: column sums Σᵢ|Gᵢⱼ|${geometryCaption(input.geometry)}`, SEQUENTIAL, upTo([input.coverage]), '', 300, geometryOverlay(input.geometry))
         : lineSvg({ title: 'Where the data look: column sums Σᵢ|Gᵢⱼ|', x: cellCentres(g), xLabel: axisName(g, 0), yLabel: 'Σ|G|', series: [{ y: input.coverage, colour: '#5b4bb7', name: 'Σᵢ|Gᵢⱼ|' }] })
     }</div>`;
   }

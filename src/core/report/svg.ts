@@ -177,6 +177,11 @@ export interface HeatFigure {
   /** Plot-area width in px; the height follows the extent (true aspect) unless `aspect` is 'fill'. */
   readonly width?: number;
   readonly aspect?: 'true' | 'fill';
+  /** Survey geometry drawn over the map, in the axes' units: paths as lines, points as markers. */
+  readonly overlay?: {
+    readonly points?: readonly (readonly [number, number])[];
+    readonly segments?: readonly (readonly [number, number, number, number])[];
+  };
 }
 
 /** A heat map with a colour bar, at true aspect ratio (height = width · extent y / extent x, clamped). */
@@ -200,6 +205,12 @@ export function heatSvg(fig: HeatFigure): string {
       const y = fig.yDown ? m.t + j * chh : m.t + ph - (j + 1) * chh;
       cells.push(`<rect x="${f1(m.l + i * cw)}" y="${f1(y)}" width="${f1(cw + 0.3)}" height="${f1(chh + 0.3)}" fill="${Number.isFinite(v) ? colourAt(fig.scale, (v - lo) / (hi - lo)) : '#ffffff'}"/>`);
     }
+  }
+  if (fig.overlay) {
+    const o: string[] = [];
+    for (const [x0, y0, x1, y1] of fig.overlay.segments ?? []) o.push(`<line x1="${f1(toX(x0))}" y1="${f1(toY(y0))}" x2="${f1(toX(x1))}" y2="${f1(toY(y1))}"/>`);
+    for (const [x, y] of fig.overlay.points ?? []) o.push(`<circle cx="${f1(toX(x))}" cy="${f1(toY(y))}" r="2.2"/>`);
+    cells.push(`<g class="geometry" stroke="#1b1b1b" stroke-width="0.5" stroke-opacity="0.55" fill="#ffffff">${o.join('')}</g>`);
   }
   if (fig.mark) cells.push(`<path d="M${f1(toX(fig.mark[0]) - 5)} ${f1(toY(fig.mark[1]))}h10M${f1(toX(fig.mark[0]))} ${f1(toY(fig.mark[1]) - 5)}v10" stroke="#000" stroke-width="1.6"/>`);
   // colour bar
