@@ -15,7 +15,8 @@ PROBLEM FILE (JSON)  d = G m + e, e ~ N(0, Cd), m on a regular grid
    "quantity": {"name": "density contrast", "unit": "kg/m³"}}   optional: what m is, for labels
 
   grid
-    "shape": [nx] or [nx, ny]      number of cells along x (first axis) and y (second axis), in that order
+    "shape": [nx] or [nx, ny]      number of cells along x (first axis) and y (second axis), in that order;
+                                   or [nx, ny, nz] (3-D; index ix + nx·(iy + ny·iz), dense route ≤ 16384 cells)
     "spacing": [dx] or [dx, dy]    cell size along each axis (> 0), in grid.unit
     "origin": [x0] or [x0, y0]     optional (default zeros): the CENTRE of the first cell, not its corner;
                                    cell (ix, iy) is centred at (x0 + ix·dx, y0 + iy·dy) and the grid covers
@@ -55,10 +56,12 @@ PROBLEM FILE (JSON)  d = G m + e, e ~ N(0, Cd), m on a regular grid
 
 PRIOR FILE (JSON)
   {"kind": "priorscope.prior", "version": 1,
-   "mean": {"constant": c} | {"values": [N numbers]} | {"trend": {"intercept": a, "slope": [b1] or [b1, b2]}},
+   "mean": {"constant": c} | {"values": [N numbers]} | {"trend": {"intercept": a, "slope": [b1], [b1, b2] or [b1, b2, b3]}},
    "terms": [{"kernel": ${KERNEL_NAMES.map((k) => `"${k}"`).join(' | ')}, "variance": > 0,
               "length": > 0  or, in 2-D, "lengths": [l1, l2] with optional "angle" (degrees, from the first
-              axis towards the second), "nu": > 0 (${kernelsTaking('nu').join(', ')} only)}, …],
+              axis towards the second), or, in 3-D, "lengths": [l1, l2, l3] with optional "angles":
+              [a1, a2, a3] (degrees, axes = columns of Rz(a1)·Ry(a2)·Rx(a3)),
+              "nu": > 0 (${kernelsTaking('nu').join(', ')} only)}, …],
    "nugget": ≥ 0,                  optional, in quantity.unit squared
    "stdProfile": [N numbers > 0]}  optional: Cm = S C S + nugget·I with S = diag(stdProfile)
   A trend is a + b1·x (+ b2·y) at the cell centres (absolute coordinates).

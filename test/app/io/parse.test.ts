@@ -31,6 +31,10 @@ describe('parseRequest problemFiles', () => {
     [[{ name: 'G.csv', text: '1\n' }], 'G.csv: none of the chosen files is a problem file (.json); to load G and data files without one, use "Load from pieces"'],
     [[{ name: 'a.json', text: '{}' }, { name: 'b.json', text: '{}' }], 'a.json, b.json: choose exactly one problem .json file (with the files it names)'],
     [[{ name: 'p.json', text: problem('G.csv') }, { name: 'G.csv', text: '1,2\n3,x\n' }], 'G.csv: line 2, column 2 must be a finite number, got "x"'],
+    [
+      [{ name: 'v.json', text: JSON.stringify({ kind: 'priorscope.problem', version: 1, grid: { shape: [1, 1, 2], spacing: [1, 1, 1] }, operator: { dense: [[1, 1]] }, data: { values: [1], sigma: [1] } }) }],
+      'v.json: a 3-D grid (1 × 1 × 2) is not shown in the workbench yet; compute it with the command line (priorscope posterior --problem v.json --prior …)',
+    ],
   ])('refuses %#', (files, expected) => {
     expect(message(() => parseRequest({ kind: 'problemFiles', files: files.map((f) => ({ name: f.name, bytes: enc(f.text) })) }))).toBe(expected);
   });
