@@ -11,7 +11,7 @@
  * `node -e 0` is timed as the floor any Node.js command starts from.
  */
 import { spawnSync } from 'node:child_process';
-import { existsSync, mkdirSync, writeFileSync } from 'node:fs';
+import { existsSync, mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { writePriorFile } from '../../../src/core/io/priorFile.ts';
@@ -20,7 +20,9 @@ import { sparseFromCoordinates } from '../../../src/core/linalg/sparse.ts';
 import { applyOperator } from '../../../src/core/linalg/operator.ts';
 import type { Problem } from '../../../src/core/problems/spec.ts';
 import { Random } from '../../../src/core/sampling/random.ts';
+import type { PriorSpec } from '../../../src/core/prior/spec.ts';
 import type { BenchCase } from '../types.ts';
+import { drawTruth } from '../../core/tuning/helpers.ts';
 import { benchPrior, benchProblem, writeProblemForScipy } from './fft.ts';
 
 const repoRoot = join(dirname(fileURLToPath(import.meta.url)), '..', '..', '..');
@@ -200,6 +202,61 @@ function pairedCase(): BenchCase {
   };
 }
 
+/**
+ * `priorscope fit --free variance,length` against python3-sklearn's GaussianProcessRegressor (test/bench/sklearn_fit.py,
+ * no restarts) on point data: a 40 × 40 grid, 200 observed cells, Matérn 3/2 truth (variance 1, length 6), σ = 0.1,
+ * both started at variance 0.5, length 3; whole processes in alternating pairs. Target: ours ≤ 0.5 × sklearn's time,
+ * reaching at least its maximised log evidence.
+ */
+function fitPairedCase(): BenchCase {
+  const pairs: { ours: ChildUsage; ref: ChildUsage }[] = [];
+  const evidence = { ours: Number.NaN, sklearn: Number.NaN };
+  return {
+    name: 'cli process: fit 40x40, 200 point data, Matérn 3/2, free variance and length, against sklearn in alternating pairs (target ≤ 0.5)',
+    params: { N: 1600, M: 200 },
+    runs: 7,
+    setup: () => {
+      ensureBundle();
+      mkdirSync(workDir, { recursive: true });
+      const grid = { shape: [40, 40], spacing: [1, 1] };
+      const rng = new Random(4040);
+      const truthPrior: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, length: 6 }] };
+      const truth = drawTruth(grid, truthPrior, rng);
+      const idx = Array.from({ length: 1600 }, (_, i) => i);
+      for (let i = 0; i < 200; i++) {
+        const j = i + Math.floor(rng.nextDouble() * (1600 - i));
+        [idx[i], idx[j]] = [idx[j] ?? 0, idx[i] ?? 0];
+      }
+      const cells = idx.slice(0, 200).sort((a, b) => a - b);
+      const y = cells.map((c) => (truth[c] ?? 0) + 0.1 * rng.nextNormal());
+      writeFileSync(
+        join(workDir, 'fit-p.json'),
+        JSON.stringify({ kind: 'priorscope.problem', version: 1, grid, operator: { sparse: { rows: cells.map((_, i) => i), cols: cells, values: cells.map(() => 1) } }, data: { values: y, sigma: cells.map(() => 0.1) } }),
+      );
+      writeFileSync(join(workDir, 'fit-q.json'), JSON.stringify({ kind: 'priorscope.prior', version: 1, mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 0.5, length: 3 }] }));
+      writeFileSync(join(workDir, 'fit-sk.json'), JSON.stringify({ X: cells.map((c) => [c % 40, Math.floor(c / 40)]), y, sigma: 0.1, variance: 0.5, length: 3 }));
+      const python = process.env.PRIORSCOPE_PYTHON ?? '/usr/bin/python3';
+      pairs.length = 0;
+      return () => {
+        const ours = timed(process.execPath, [bin, 'fit', '--problem', 'fit-p.json', '--prior', 'fit-q.json', '--free', 'variance,length', '--out', 'fit-ours.json'], priorscopeEnv);
+        const ref = timed(python, [join(repoRoot, 'test', 'bench', 'sklearn_fit.py'), 'fit-sk.json', 'fit-sklearn.json'], pythonEnv());
+        pairs.push({ ours, ref });
+        evidence.ours = (JSON.parse(readFileSync(join(workDir, 'fit-ours.json'), 'utf8')) as { logEvidence: number }).logEvidence;
+        evidence.sklearn = (JSON.parse(readFileSync(join(workDir, 'fit-sklearn.json'), 'utf8')) as { logEvidence: number }).logEvidence;
+      };
+    },
+    report: () => ({
+      ours_wall_s_median: median(pairs.map((p) => p.ours.wallS)),
+      sklearn_wall_s_median: median(pairs.map((p) => p.ref.wallS)),
+      wall_ratio_median_of_pairs: median(pairs.map((p) => p.ours.wallS / p.ref.wallS)),
+      ours_cpu_s_median: median(pairs.map((p) => p.ours.cpuS)),
+      sklearn_cpu_s_median: median(pairs.map((p) => p.ref.cpuS)),
+      ours_log_evidence: evidence.ours,
+      sklearn_log_evidence: evidence.sklearn,
+    }),
+  };
+}
+
 export const cases: BenchCase[] = [
   processCase({
     name: 'cli process: node -e 0 (the floor of any Node.js command)',
@@ -227,6 +284,7 @@ export const cases: BenchCase[] = [
     command: () => [process.execPath, [bin, 'posterior', '--problem', 'p64.json', '--prior', 'q64.json', '--out', 'posterior64.json'], priorscopeEnv],
   }),
   pairedCase(),
+  fitPairedCase(),
   memoryCase('inline'),
   memoryCase('mtx'),
 ];
