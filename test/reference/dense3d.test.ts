@@ -1,5 +1,5 @@
 /**
- * 3-D grids on the dense route (issue 15 §1–2): Cm, m0, posterior mean and standard deviation from
+ * 3-D grids on the dense route: Cm, m0, posterior mean and standard deviation from
  * computePosteriorSerial against test/reference/dense3d_reference.py — numpy/scipy with the rotation
  * R = Rz(a1)·Ry(a2)·Rx(a3) built from explicit matrices and the model-space posterior
  * (Tarantola 2005 eq. 3.37–3.38) by Cholesky solves. Agreement to 1e-8 relative to each quantity's

@@ -3,7 +3,7 @@
 Independent of the project's code:
   * cells of a regular grid from np.meshgrid(indexing="ij") over (z, y, x), flattened so that x runs fastest
     (flat index ix + nx*(iy + ny*iz)); or the given cell centres (cell lists);
-  * rotation R = Rz(a1) @ Ry(a2) @ Rx(a3), each matrix written out explicitly as in issue 15 §1 (the standard
+  * rotation R = Rz(a1) @ Ry(a2) @ Rx(a3), each matrix written out explicitly as in the README's 3-D conventions (the standard
     right-handed elementary rotations; common practice, no source); (u, v, w) = R^T d, h = |diag(1/l) (u, v, w)|;
   * correlations from reference_prior.correlation (Matern by scipy.special.kv, Rasmussen & Williams 2006 eq. 4.14);
   * posterior in the model-space form (Tarantola 2005 eq. 3.37-3.38): C~ = (G^T Cd^-1 G + Cm^-1)^-1,

@@ -17,7 +17,7 @@
  */
 import type { Grid } from '../grid/grid.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
-import { operatorGram, type Operator } from '../linalg/operator.ts';
+import { matchOperator, operatorGram, type Operator } from '../linalg/operator.ts';
 import { lagIndex, lagTable } from '../prior/lag.ts';
 import { validatePrior } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
@@ -31,19 +31,25 @@ export const LAG_PROJECTION_LOOKUPS = 2 ** 26;
 
 /** True when the lag-table projection applies to this operator on this grid (sparse, few non-zeros, ≤ 2-D). */
 export function lagProjectionApplies(g: Operator, grid: Grid): boolean {
-  if (g.kind !== 'sparse' || grid.shape.length > 2) return false;
-  const nnz = g.matrix.rowPtr[g.matrix.rows] ?? 0;
-  return nnz * nnz <= LAG_PROJECTION_LOOKUPS;
+  if (grid.shape.length > 2) return false;
+  return matchOperator(g, {
+    dense: () => false,
+    sparse: (a) => {
+      const nnz = a.rowPtr[a.rows] ?? 0;
+      return nnz * nnz <= LAG_PROJECTION_LOOKUPS;
+    },
+  });
 }
 
 /** P = G Cm Gᵀ through the lag table (see the module comment). Validates the prior. */
 export function lagTableProjection(g: Operator, grid: Grid, prior: PriorSpec): Matrix {
-  if (g.kind !== 'sparse') throw new RangeError('lagTableProjection: needs a sparse operator');
+  const sparse = matchOperator(g, { dense: () => null, sparse: (a) => a });
+  if (sparse === null) throw new RangeError('lagTableProjection: needs a sparse operator');
   validatePrior(prior, grid);
   const table = lagTable(grid, prior.terms);
   const T = table.values;
   const nx = grid.shape[0] ?? 1;
-  const { rows: m, rowPtr, colIdx, values } = g.matrix;
+  const { rows: m, rowPtr, colIdx, values } = sparse;
   const nnz = rowPtr[m] ?? 0;
   const ex = new Int32Array(nnz);
   const ey = new Int32Array(nnz);
