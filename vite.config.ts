@@ -53,7 +53,10 @@ function policyMeta(): Plugin {
     name: 'priorscope-policy-meta',
     transformIndexHtml(html, ctx) {
       if (ctx.server) return html;
-      return html.replace('<head>', `<head>\n    <meta http-equiv="Content-Security-Policy" content="${contentSecurityPolicy('build', 'meta')}" />`);
+      return html.replace(
+        '<head>',
+        `<head>\n    <meta http-equiv="Content-Security-Policy" content="${contentSecurityPolicy('build', 'meta')}" />`,
+      );
     },
   };
 }

@@ -19,7 +19,11 @@ test('averaged over the evidence map: drawn beside this prior, equal to the core
   await expect(page.getByTestId('averaged-status')).toHaveAttribute('data-status', 'done', { timeout: 60_000 });
   const t = s0.prior.terms[0];
   const l = termLength(t);
-  const map = evidenceMap(borehole.problem, s0.prior, { term: 0, lengths: { min: l / 5, max: l * 5, count: 16 }, variances: { min: t.variance / 100, max: t.variance * 100, count: 16 } });
+  const map = evidenceMap(borehole.problem, s0.prior, {
+    term: 0,
+    lengths: { min: l / 5, max: l * 5, count: 16 },
+    variances: { min: t.variance / 100, max: t.variance * 100, count: 16 },
+  });
   const core = averagedPosterior(borehole.problem, s0.prior, map);
   const drawn = (await traceValues(page, 'plot-averaged', 'averaged mean')) as number[];
   expect(drawn).toHaveLength(core.mean.length);

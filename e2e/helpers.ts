@@ -119,7 +119,18 @@ export async function screenshot(page: Page, info: TestInfo, name: string): Prom
  */
 export function writeSegmentProblem(
   dir: string,
-  o: { name: string; title: string; nx: number; ny: number; m: number; seg: number; seed: number; noise: number; sigma: number; truth: (i: number, j: number) => number },
+  o: {
+    name: string;
+    title: string;
+    nx: number;
+    ny: number;
+    m: number;
+    seg: number;
+    seed: number;
+    noise: number;
+    sigma: number;
+    truth: (i: number, j: number) => number;
+  },
 ): { json: string; mtx: string } {
   let seed = o.seed;
   const rnd = () => (seed = (Math.imul(seed, 1103515245) + 12345) >>> 0) / 2 ** 32;
@@ -140,7 +151,10 @@ export function writeSegmentProblem(
   }
   const mtxName = `${o.name}.mtx`;
   const mtx = join(dir, mtxName);
-  writeFileSync(mtx, `%%MatrixMarket matrix coordinate real general\n% invented segment averages\n${o.m} ${o.nx * o.ny} ${lines.length}\n${lines.join('\n')}\n`);
+  writeFileSync(
+    mtx,
+    `%%MatrixMarket matrix coordinate real general\n% invented segment averages\n${o.m} ${o.nx * o.ny} ${lines.length}\n${lines.join('\n')}\n`,
+  );
   const json = join(dir, `${o.name}.json`);
   writeFileSync(
     json,

@@ -21,8 +21,9 @@ const N = 128;
 const M = 400;
 const SEG = 32;
 
-
-test('a 128 × 128 grid stays live: posterior, proven positive definite, realisations and an averaging kernel, all matrix-free', async ({ page }, info) => {
+test('a 128 × 128 grid stays live: posterior, proven positive definite, realisations and an averaging kernel, all matrix-free', async ({
+  page,
+}, info) => {
   test.setTimeout(240_000);
   const w = watch(page, ORIGIN);
   const dir = mkdtempSync(join(tmpdir(), 'priorscope-large-'));
@@ -79,12 +80,19 @@ test('a 128 × 128 grid stays live: posterior, proven positive definite, realisa
   // Realisations: six prior and six posterior draws on the full grid.
   const t1 = Date.now();
   await page.getByTestId('tab-realisations').click();
-  await expect.poll(async () => ((await traceValues(page, 'plot-prior-draws', 'draw 6', 'z')) as number[][]).length, { timeout: 90_000 }).toBe(N);
-  await expect.poll(async () => ((await traceValues(page, 'plot-posterior-draws', 'draw 6', 'z')) as number[][]).length, { timeout: 90_000 }).toBe(N);
+  await expect
+    .poll(async () => ((await traceValues(page, 'plot-prior-draws', 'draw 6', 'z')) as number[][]).length, { timeout: 90_000 })
+    .toBe(N);
+  await expect
+    .poll(async () => ((await traceValues(page, 'plot-posterior-draws', 'draw 6', 'z')) as number[][]).length, { timeout: 90_000 })
+    .toBe(N);
   const tDraws = Date.now() - t1;
   expect((await state(page)).errors).toEqual({});
 
-  info.annotations.push({ type: 'timing', description: `posterior ${tPosterior} ms, diagnostics by ${tDiagnostics} ms, realisations ${tDraws} ms after the tab opened` });
+  info.annotations.push({
+    type: 'timing',
+    description: `posterior ${tPosterior} ms, diagnostics by ${tDiagnostics} ms, realisations ${tDraws} ms after the tab opened`,
+  });
   expect(w.problems).toEqual([]);
   expect(w.foreign).toEqual([]);
 });

@@ -37,7 +37,11 @@ test('the correlation map tilts the same way as a rotated realisation, and says 
   await open(page, 'crosshole-tomography');
   // Term 1: exponential, 6 m along an axis at 35° from +x towards +y, 0.6 m across it.
   await page.getByTestId('term-0-anisotropic').check();
-  for (const [id, v] of [['term-0-length1-input', '6'], ['term-0-length2-input', '0.6'], ['term-0-angle-input', '35']] as const) {
+  for (const [id, v] of [
+    ['term-0-length1-input', '6'],
+    ['term-0-length2-input', '0.6'],
+    ['term-0-angle-input', '35'],
+  ] as const) {
     const f = page.getByTestId(id);
     await f.fill(v);
     await f.press('Enter');
@@ -58,7 +62,9 @@ test('the correlation map tilts the same way as a rotated realisation, and says 
   await screenshot(page, info, 'orientation-prior');
 
   await page.getByTestId('tab-realisations').click();
-  await expect.poll(async () => (await traceValues(page, 'plot-prior-draws', 'draw 1', 'z')).length, { timeout: 45_000 }).toBeGreaterThan(0);
+  await expect
+    .poll(async () => (await traceValues(page, 'plot-prior-draws', 'draw 1', 'z')).length, { timeout: 45_000 })
+    .toBeGreaterThan(0);
   let along = 0;
   let across = 0;
   for (let k = 1; k <= 6; k++) {

@@ -32,7 +32,9 @@ test('a std profile and a per-cell mean from files reach the posterior; a short 
   expect(s.priorRevision).toBeGreaterThan(before.priorRevision);
   await expect(page.getByTestId('mean-kind')).toHaveValue('values');
   const expected = posteriorSummary(preparePosterior(demo.problem, s.prior)).mean;
-  await expect.poll(async () => maxRelDiff((await traceValues(page, 'plot-posterior', 'posterior mean')) as number[], expected)).toBeLessThan(TOL);
+  await expect
+    .poll(async () => maxRelDiff((await traceValues(page, 'plot-posterior', 'posterior mean')) as number[], expected))
+    .toBeLessThan(TOL);
   await screenshot(page, info, 'per-cell-prior');
   // A file of 2 values for 200 cells: refused, the prior stays as it was.
   await page.getByTestId('std-profile-input').setInputFiles(join(dir, 'short.csv'));

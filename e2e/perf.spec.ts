@@ -49,7 +49,8 @@ for (const id of ['crosshole-tomography', 'potential-field']) {
       obs.disconnect();
       // Synchronous Plotly.react calls per figure (measures from src/app/Plot.tsx), during and after the drag.
       const plots = performance.getEntriesByType('measure').filter((m) => m.name.startsWith('ps:plot:') && m.startTime >= t0);
-      const count = (name: string, from: number, to: number) => plots.filter((m) => m.name === `ps:plot:${name}` && m.startTime >= from && m.startTime < to).length;
+      const count = (name: string, from: number, to: number) =>
+        plots.filter((m) => m.name === `ps:plot:${name}` && m.startTime >= from && m.startTime < to).length;
       return {
         longTasks,
         observed: PerformanceObserver.supportedEntryTypes.includes('longtask'),

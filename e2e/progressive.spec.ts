@@ -21,7 +21,6 @@ const M = 700;
 const SEG = 8;
 const COMPUTING = 'Uncertainty bands: computing…';
 
-
 /**
  * Resolves (polling every animation frame) with the mean map's rows once it is drawn, differs
  * from `previous` and the bands status says "computing" with no standard-deviation map on screen.
@@ -33,7 +32,9 @@ function meanWhileComputing(page: Page, previous: number[][] | null) {
       if (status?.textContent !== text || document.getElementById('plot-posterior-std')) return null;
       // Checked in the same frame as the mean: on a fast machine the bands may follow a frame later.
       if (!document.querySelector('[data-testid="bands-pending"]')?.textContent?.includes(text)) return null;
-      const gd = document.getElementById('plot-posterior-mean') as unknown as { data?: { name?: string; z?: ArrayLike<number>[] }[] } | null;
+      const gd = document.getElementById('plot-posterior-mean') as unknown as {
+        data?: { name?: string; z?: ArrayLike<number>[] }[];
+      } | null;
       const z = gd?.data?.find((d) => d.name === 'mean')?.z;
       if (!z || z.length === 0) return null;
       const rows = Array.from(z, (r) => Array.from(r));

@@ -103,7 +103,10 @@ test('a share link with 20,000 terms is refused at once and the saved session is
   await setLength(page, '4.5');
   await expect(page.getByTestId('autosave-status')).toHaveText('Saved', { timeout: 30_000 });
   const term = { kernel: 'exponential' as const, variance: 1, length: 2 };
-  const hash = await encodeShare({ problem: 'borehole-log', prior: { mean: { constant: 0 }, terms: Array.from({ length: 20_000 }, () => term) } });
+  const hash = await encodeShare({
+    problem: 'borehole-log',
+    prior: { mean: { constant: 0 }, terms: Array.from({ length: 20_000 }, () => term) },
+  });
   // Before the cap such a link froze the page for about two minutes and then persisted in the autosave.
   await page.goto(`/${hash}`);
   await page.reload();
@@ -116,9 +119,23 @@ test('a share link with 20,000 terms is refused at once and the saved session is
   expect((await state(page)).prior.terms[0].length).toBe(4.5);
 });
 
-test('a share link made on a loaded problem, opened in a fresh browser, names what is missing and applies once it is loaded', async ({ page, browser }) => {
+test('a share link made on a loaded problem, opened in a fresh browser, names what is missing and applies once it is loaded', async ({
+  page,
+  browser,
+}) => {
   const dir = mkdtempSync(join(tmpdir(), 'priorscope-share-'));
-  const files = writeSegmentProblem(dir, { name: 'share', title: 'Invented pond section', nx: 12, ny: 8, m: 30, seg: 4, seed: 7, noise: 0.05, sigma: 0.05, truth: (i, j) => Math.sin(i / 3) + Math.cos(j / 2) });
+  const files = writeSegmentProblem(dir, {
+    name: 'share',
+    title: 'Invented pond section',
+    nx: 12,
+    ny: 8,
+    m: 30,
+    seg: 4,
+    seed: 7,
+    noise: 0.05,
+    sigma: 0.05,
+    truth: (i, j) => Math.sin(i / 3) + Math.cos(j / 2),
+  });
   await open(page);
   await page.getByTestId('load-files-input').setInputFiles([files.json, files.mtx]);
   await expect(page.getByTestId('demo-select')).toContainText('Invented pond section', { timeout: 30_000 });
@@ -132,7 +149,10 @@ test('a share link made on a loaded problem, opened in a fresh browser, names wh
   const fresh = await browser.newContext();
   const other = await fresh.newPage();
   await other.goto(link);
-  await expect(other.getByTestId('load-error')).toContainText(/made for the problem titled "Invented pond section" \(fingerprint [0-9a-f]{16}\)/, { timeout: 45_000 });
+  await expect(other.getByTestId('load-error')).toContainText(
+    /made for the problem titled "Invented pond section" \(fingerprint [0-9a-f]{16}\)/,
+    { timeout: 45_000 },
+  );
   expect((await state(other)).prior).not.toEqual(sent.prior);
   // Loading that problem applies the shared prior.
   await other.getByTestId('load-files-input').setInputFiles([files.json, files.mtx]);

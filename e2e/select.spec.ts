@@ -94,7 +94,9 @@ test('evidence map on the 1-D demo: maximum equals the core; clicking a cell app
   expect(w.foreign).toEqual([]);
 });
 
-test('best by evidence applies an optimum whose log evidence is at least the start’s; the nugget stays fixed by default', async ({ page }) => {
+test('best by evidence applies an optimum whose log evidence is at least the start’s; the nugget stays fixed by default', async ({
+  page,
+}) => {
   const w = watch(page, ORIGIN);
   const s0 = await open(page);
   await page.getByTestId('tab-select').click();
@@ -118,7 +120,9 @@ test('best by evidence applies an optimum whose log evidence is at least the sta
   expect(w.problems).toEqual([]);
 });
 
-test('criteria of the current prior and two pinned candidates match the core; "use this one" restores a candidate', async ({ page }, testInfo) => {
+test('criteria of the current prior and two pinned candidates match the core; "use this one" restores a candidate', async ({
+  page,
+}, testInfo) => {
   const w = watch(page, ORIGIN);
   const s0 = await open(page);
   await page.getByTestId('tab-select').click();
@@ -129,7 +133,9 @@ test('criteria of the current prior and two pinned candidates match the core; "u
   await expect(page.getByTestId('criteria-explanation')).toContainText('different questions');
   // Both forms of the discrepancy rule, each saying what it targets, with the core's scales.
   expect(rel(await num(page, 'crit-discrepancy'), discrepancyScale(borehole.problem, s0.prior).scale)).toBeLessThan(TOL);
-  expect(rel(await num(page, 'crit-discrepancy-expected'), discrepancyScale(borehole.problem, s0.prior, { form: 'expected' }).scale)).toBeLessThan(TOL);
+  expect(
+    rel(await num(page, 'crit-discrepancy-expected'), discrepancyScale(borehole.problem, s0.prior, { form: 'expected' }).scale),
+  ).toBeLessThan(TOL);
   await expect(page.getByTestId('crit-discrepancy-row')).toContainText('Targets χ² = M = 50');
   await expect(page.getByTestId('crit-discrepancy-expected-row')).toContainText('M minus the resolved parameters');
   await screenshot(page, testInfo, 'select-criteria');
@@ -167,7 +173,9 @@ test('cancel stops a running evidence map and frees the worker for the next one'
   await setField(page, 'map-lengths-count', '200');
   await page.getByTestId('map-run').click();
   await expect(page.getByTestId('evidenceMap-progress')).toBeVisible();
-  await expect.poll(async () => Number(await page.getByTestId('evidenceMap-progress').getAttribute('value')), { timeout: 30_000 }).toBeGreaterThan(0);
+  await expect
+    .poll(async () => Number(await page.getByTestId('evidenceMap-progress').getAttribute('value')), { timeout: 30_000 })
+    .toBeGreaterThan(0);
   await page.getByTestId('evidenceMap-cancel').click();
   await waitStatus(page, 'evidenceMap', 'cancelled', 5_000);
   // A small map now finishes quickly: the worker is not still busy with the cancelled one.

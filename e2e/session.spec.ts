@@ -57,7 +57,9 @@ async function loadPieces(page: Page, data = P.d, title = 'Trench test') {
 async function cspWatch(page: Page) {
   await page.addInitScript(() => {
     (window as unknown as { __csp: string[] }).__csp = [];
-    document.addEventListener('securitypolicyviolation', (e) => (window as unknown as { __csp: string[] }).__csp.push(`${e.violatedDirective} ${e.blockedURI}`));
+    document.addEventListener('securitypolicyviolation', (e) =>
+      (window as unknown as { __csp: string[] }).__csp.push(`${e.violatedDirective} ${e.blockedURI}`),
+    );
   });
   return () => page.evaluate(() => (window as unknown as { __csp: string[] }).__csp);
 }
@@ -69,7 +71,9 @@ async function setLength(page: Page, v: string) {
   return settle(page);
 }
 
-test('loads a user problem from CSV + Matrix Market pieces and shows its posterior (no CSP violations, no foreign requests)', async ({ page }) => {
+test('loads a user problem from CSV + Matrix Market pieces and shows its posterior (no CSP violations, no foreign requests)', async ({
+  page,
+}) => {
   const w = watch(page, ORIGIN);
   const csp = await cspWatch(page);
   await open(page);
@@ -84,9 +88,16 @@ test('loads a user problem from CSV + Matrix Market pieces and shows its posteri
   // and the exports of the same posterior (CSV) hold the same numbers
   await page.getByTestId('export-menu').click();
   const [dl] = await Promise.all([page.waitForEvent('download'), page.getByTestId('export-posterior-csv').click()]);
-  const text = readFileSync(await dl.path(), 'utf8').trim().split('\n');
+  const text = readFileSync(await dl.path(), 'utf8')
+    .trim()
+    .split('\n');
   expect(text[0]).toBe('x,mean,std');
-  expect(maxRelDiff(text.slice(1).map((l) => Number(l.split(',')[1])), expected.mean)).toBeLessThan(1e-15);
+  expect(
+    maxRelDiff(
+      text.slice(1).map((l) => Number(l.split(',')[1])),
+      expected.mean,
+    ),
+  ).toBeLessThan(1e-15);
   expect(await csp()).toEqual([]);
   expect(w.problems).toEqual([]);
   expect(w.foreign).toEqual([]);
@@ -106,7 +117,16 @@ test('a broken file shows the precise message and leaves the session exactly as 
   const json = join(dir, 'p.json');
   const mtx = join(dir, 'Gbad.mtx');
   writeFileSync(mtx, '%%MatrixMarket matrix coordinate complex general\n1 1 1\n1 1 1 0\n');
-  writeFileSync(json, JSON.stringify({ kind: 'priorscope.problem', version: 1, grid: { shape: [1], spacing: [1] }, operator: { file: 'Gbad.mtx' }, data: { values: [1], sigma: [1] } }));
+  writeFileSync(
+    json,
+    JSON.stringify({
+      kind: 'priorscope.problem',
+      version: 1,
+      grid: { shape: [1], spacing: [1] },
+      operator: { file: 'Gbad.mtx' },
+      data: { values: [1], sigma: [1] },
+    }),
+  );
   await page.getByTestId('load-files-input').setInputFiles([json, mtx]);
   await expect(page.getByTestId('load-error')).toContainText('Gbad.mtx: ');
   await expect(page.getByTestId('load-error')).toContainText('complex');
@@ -117,7 +137,9 @@ test('a broken file shows the precise message and leaves the session exactly as 
   expect(w.foreign).toEqual([]);
 });
 
-test('the exported prior re-imports identically; undo and redo (buttons and keys) step through edits, a slider drag is one step', async ({ page }) => {
+test('the exported prior re-imports identically; undo and redo (buttons and keys) step through edits, a slider drag is one step', async ({
+  page,
+}) => {
   const w = watch(page, ORIGIN);
   const start = await open(page);
   const edited = await setLength(page, '4.25');
@@ -219,13 +241,23 @@ test('hostile text from a problem file is shown as text (page and report)', asyn
   await open(page);
   const hostile = '<img src=x onerror=alert(1)>';
   const json = join(dir, 'hostile.json');
-  writeFileSync(json, JSON.stringify({
-    kind: 'priorscope.problem', version: 1, title: hostile,
-    grid: { shape: [4], spacing: [1] },
-    operator: { dense: [[1, 0, 0, 0], [0, 0, 1, 1]] },
-    data: { values: [1, 2], sigma: [0.5, 0.5] },
-    quantity: { name: '<b onmouseover=alert(2)>q</b>', unit: '<a href="javascript:alert(4)">u</a>' },
-  }));
+  writeFileSync(
+    json,
+    JSON.stringify({
+      kind: 'priorscope.problem',
+      version: 1,
+      title: hostile,
+      grid: { shape: [4], spacing: [1] },
+      operator: {
+        dense: [
+          [1, 0, 0, 0],
+          [0, 0, 1, 1],
+        ],
+      },
+      data: { values: [1, 2], sigma: [0.5, 0.5] },
+      quantity: { name: '<b onmouseover=alert(2)>q</b>', unit: '<a href="javascript:alert(4)">u</a>' },
+    }),
+  );
   await page.getByTestId('load-files-input').setInputFiles(json);
   await expect(page.getByTestId('problem-source')).toContainText(hostile, { timeout: 30_000 });
   await settle(page);
@@ -235,7 +267,9 @@ test('hostile text from a problem file is shown as text (page and report)', asyn
   for (const tab of ['posterior', 'fit', 'prior']) {
     await page.getByTestId(`tab-${tab}`).click();
     await page.waitForTimeout(300);
-    expect(await page.locator('img[src="x"], [onerror], [onmouseover], a[href^="javascript"], [*|href^="javascript"]').count(), tab).toBe(0);
+    expect(await page.locator('img[src="x"], [onerror], [onmouseover], a[href^="javascript"], [*|href^="javascript"]').count(), tab).toBe(
+      0,
+    );
   }
   // Plotly reads a subset of HTML in labels: the quantity name must show as typed in the axis title.
   await page.getByTestId('tab-posterior').click();
@@ -280,7 +314,12 @@ test('if a numerics worker dies, the page says so, restarts it and keeps the use
   expect(s.prior.terms[0].length).toBe(6);
   await expect(page.getByTestId('problem-source')).toContainText('Trench test', { timeout: 30_000 });
   const mean = (await traceValues(page, 'plot-posterior', 'posterior mean')) as number[];
-  expect(maxRelDiff(mean, posteriorSummary(preparePosterior(P.problem, { ...before.prior, terms: [patchTerm(before.prior.terms[0], { length: 6 })] })).mean)).toBeLessThan(TOL);
+  expect(
+    maxRelDiff(
+      mean,
+      posteriorSummary(preparePosterior(P.problem, { ...before.prior, terms: [patchTerm(before.prior.terms[0], { length: 6 })] })).mean,
+    ),
+  ).toBeLessThan(TOL);
   expect(w.foreign).toEqual([]);
   // the crash itself is the only page-level error allowed
   expect(w.problems.filter((p) => !p.includes('simulated worker crash'))).toEqual([]);
@@ -309,7 +348,9 @@ test('the template problem loads by drag-and-drop; plots, realisations and the r
   const stem = 'template-soil-moisture-along-a-trench-invented';
   const downloads: import('@playwright/test').Download[] = [];
   page.on('download', (d) => downloads.push(d));
-  const plots = await page.evaluate(() => [...document.querySelectorAll<HTMLElement>('.plot')].filter((el) => el.id && el.querySelector('.main-svg')).map((el) => el.clientWidth));
+  const plots = await page.evaluate(() =>
+    [...document.querySelectorAll<HTMLElement>('.plot')].filter((el) => el.id && el.querySelector('.main-svg')).map((el) => el.clientWidth),
+  );
   expect(plots.length).toBeGreaterThan(0);
   for (const f of ['png', 'svg'] as const) {
     downloads.length = 0;
@@ -337,12 +378,19 @@ test('the template problem loads by drag-and-drop; plots, realisations and the r
   // draws × cells, as priorscope sample writes them
   expect(parseNpy('d.npy', new Uint8Array(readFileSync(await byName[`${base}.npy`]!.path()))).shape).toEqual([7, 20]);
   const record = JSON.parse(readFileSync(await byName[`${base}.grid.json`]!.path(), 'utf8'));
-  expect(record).toMatchObject({ kind: 'priorscope.realisations', count: 7, seed: s.seed, grid: { shape: [20], spacing: [1], origin: [0] } });
+  expect(record).toMatchObject({
+    kind: 'priorscope.realisations',
+    count: 7,
+    seed: s.seed,
+    grid: { shape: [20], spacing: [1], origin: [0] },
+  });
   downloads.length = 0;
   await page.getByTestId('export-posterior-draws-csv').click();
   await expect.poll(() => downloads.length).toBe(2);
   const csv = downloads.find((d) => d.suggestedFilename().endsWith('.csv'))!;
-  const lines = readFileSync(await csv.path(), 'utf8').trim().split('\n');
+  const lines = readFileSync(await csv.path(), 'utf8')
+    .trim()
+    .split('\n');
   expect(lines).toHaveLength(7);
   expect(lines[0]!.split(',')).toHaveLength(20);
   downloads.length = 0;

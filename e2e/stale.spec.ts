@@ -34,7 +34,9 @@ test('after a kernel change the earlier optimum and map are out of date and cann
   await expect(page.getByTestId('fit-stale')).toContainText('Out of date');
   await expect(page.getByTestId('fit-apply')).toBeDisabled();
   await expect(page.getByTestId('fit-apply')).toHaveAttribute('title', /other kernels or terms/);
-  await expect(page.getByTestId('fit-stale')).toContainText(`other kernels or terms (1 term: ${s0.prior.terms[0].kernel}; the current prior has 1 term: ${kernel}`);
+  await expect(page.getByTestId('fit-stale')).toContainText(
+    `other kernels or terms (1 term: ${s0.prior.terms[0].kernel}; the current prior has 1 term: ${kernel}`,
+  );
   await expect(page.getByTestId('map-stale')).toContainText('cannot be applied');
   await expect(page.getByTestId('map-apply-best')).toBeDisabled();
   // The nugget profile was computed with the earlier kernel held fixed: shown as out of date.
@@ -72,7 +74,13 @@ test('candidates stay with their problem; the selector names the loaded problem'
     version: 1,
     title: 'Pond bed temperatures',
     grid: { shape: [6], spacing: [2], unit: 'm' },
-    operator: { dense: [[0.5, 0.5, 0, 0, 0, 0], [0, 0, 0.5, 0.5, 0, 0], [0, 0, 0, 0, 0.5, 0.5]] },
+    operator: {
+      dense: [
+        [0.5, 0.5, 0, 0, 0, 0],
+        [0, 0, 0.5, 0.5, 0, 0],
+        [0, 0, 0, 0, 0.5, 0.5],
+      ],
+    },
     data: { values: [281.2, 282.9, 281.7], sigma: [0.3, 0.3, 0.3], unit: 'K' },
     quantity: { name: 'temperature', unit: 'K' },
   };
@@ -83,7 +91,9 @@ test('candidates stay with their problem; the selector names the loaded problem'
   await settle(page);
   expect(await candidates()).toBe(0);
   await expect(page.getByTestId('select-pin')).toContainText('(0/');
-  await expect(page.getByTestId('candidates-note')).toContainText('The 2 pinned candidates of “Borehole temperature log” are kept for that problem');
+  await expect(page.getByTestId('candidates-note')).toContainText(
+    'The 2 pinned candidates of “Borehole temperature log” are kept for that problem',
+  );
   const select = page.getByTestId('demo-select');
   await expect(select.locator('option:checked')).toHaveText(/Your problem: Pond bed temperatures/);
   await screenshot(page, info, 'stale-selector-user-problem');

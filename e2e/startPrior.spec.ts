@@ -37,7 +37,9 @@ function trench(): string {
   });
 }
 
-test('a loaded problem starts from the fitted prior, uses its axis names and units, and warns on implausible data', async ({ page }, info) => {
+test('a loaded problem starts from the fitted prior, uses its axis names and units, and warns on implausible data', async ({
+  page,
+}, info) => {
   const w = watch(page, ORIGIN);
   await open(page);
   const dir = mkdtempSync(join(tmpdir(), 'priorscope-start-'));
@@ -45,7 +47,9 @@ test('a loaded problem starts from the fitted prior, uses its axis names and uni
   const file = join(dir, 'trench.json');
   writeFileSync(file, text);
   await page.getByTestId('load-files-input').setInputFiles(file);
-  await expect.poll(async () => (await state(page)).demoId === 'borehole-log' && (await state(page)).problemVersion, { timeout: 30_000 }).toBeTruthy();
+  await expect
+    .poll(async () => (await state(page)).demoId === 'borehole-log' && (await state(page)).problemVersion, { timeout: 30_000 })
+    .toBeTruthy();
   await expect(page.getByTestId('start-rule')).toBeVisible({ timeout: 30_000 });
   const s = await settle(page);
   const expected = startPriorRule(parseProblemFile('trench.json', text).problem).prior;

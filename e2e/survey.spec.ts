@@ -33,7 +33,10 @@ async function traceField(page: Page, plotId: string, traceName: string, path: s
 }
 
 async function traceNamesOf(page: Page, plotId: string): Promise<string[]> {
-  return page.evaluate((id) => ((document.getElementById(id) as unknown as { data?: { name?: string }[] })?.data ?? []).map((d) => String(d.name)), plotId);
+  return page.evaluate(
+    (id) => ((document.getElementById(id) as unknown as { data?: { name?: string }[] })?.data ?? []).map((d) => String(d.name)),
+    plotId,
+  );
 }
 
 function built(id: string) {
@@ -62,18 +65,24 @@ test('point data: the gravity stations are plotted at their positions, data and 
   const expected = posteriorSummary(preparePosterior(demo.problem, s.prior));
   expect(await traceField(page, 'plot-profile', 'predicted G m̃', 'x')).toEqual(stations);
   expect(maxRelDiff((await traceField(page, 'plot-profile', 'predicted G m̃', 'y')) as number[], expected.predicted)).toBeLessThan(TOL);
-  expect(maxRelDiff((await traceField(page, 'plot-profile-residuals', 'normalised residual', 'y')) as number[], expected.residuals)).toBeLessThan(TOL);
+  expect(
+    maxRelDiff((await traceField(page, 'plot-profile-residuals', 'normalised residual', 'y')) as number[], expected.residuals),
+  ).toBeLessThan(TOL);
   await screenshot(page, info, 'survey-fit-gravity');
   expect(w.problems).toEqual([]);
 });
 
-test('1-D point data: the borehole sensors are plotted at their depths, the grid as a segment with the sensors on it', async ({ page }, info) => {
+test('1-D point data: the borehole sensors are plotted at their depths, the grid as a segment with the sensors on it', async ({
+  page,
+}, info) => {
   const w = watch(page, ORIGIN);
   await open(page, 'borehole-log');
   await page.getByTestId('tab-problem').click();
   const depths = Array.from({ length: 50 }, (_, k) => 1 + 2 * k);
   await expect.poll(() => traceField(page, 'plot-data', 'observed ±1σ', 'x')).toEqual(depths);
-  await expect.poll(() => traceNamesOf(page, 'plot-coverage')).toEqual(expect.arrayContaining(['grid 200 cells of 0.5 m', 'first cell centre (0.25) m', 'data positions (50)']));
+  await expect
+    .poll(() => traceNamesOf(page, 'plot-coverage'))
+    .toEqual(expect.arrayContaining(['grid 200 cells of 0.5 m', 'first cell centre (0.25) m', 'data positions (50)']));
   expect(await traceField(page, 'plot-coverage', 'grid 200 cells of 0.5 m', 'x')).toEqual([0, 100]);
   await screenshot(page, info, 'survey-problem-borehole');
   expect(w.problems).toEqual([]);
@@ -102,12 +111,19 @@ test('path data: the crosshole rays are drawn over the section coloured by their
   );
   expect(lines).toBe(256);
   const misfit = (await traceField(page, 'plot-misfit', 'misfit r²', 'y')) as number[];
-  expect(maxRelDiff(misfit, Array.from(expected.residuals, (r) => r * r))).toBeLessThan(TOL);
+  expect(
+    maxRelDiff(
+      misfit,
+      Array.from(expected.residuals, (r) => r * r),
+    ),
+  ).toBeLessThan(TOL);
   await screenshot(page, info, 'survey-fit-crosshole');
   expect(w.problems).toEqual([]);
 });
 
-test('a problem loaded from pieces with a geometry CSV of sources and receivers draws its rays, with the data unit', async ({ page }, info) => {
+test('a problem loaded from pieces with a geometry CSV of sources and receivers draws its rays, with the data unit', async ({
+  page,
+}, info) => {
   const w = watch(page, ORIGIN);
   await open(page);
   // An invented 12 × 6 section of 1 m cells with 18 straight rays from a left hole to a right one, and

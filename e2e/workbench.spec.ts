@@ -41,7 +41,12 @@ test('loads the 1-D demo with posterior mean, bands and data fit; no console err
   expect(maxRelDiff(mean, expected.mean)).toBeLessThan(TOL);
   // the 95% band is mean ± 1.96 σ of the core's posterior std
   const upper95 = ((await traceValues(page, 'plot-posterior', 'posterior 95%')) as number[]).slice(0, 200);
-  expect(maxRelDiff(upper95, Array.from(expected.mean, (m, i) => m + 1.959963984540054 * expected.std[i]))).toBeLessThan(TOL);
+  expect(
+    maxRelDiff(
+      upper95,
+      Array.from(expected.mean, (m, i) => m + 1.959963984540054 * expected.std[i]),
+    ),
+  ).toBeLessThan(TOL);
 
   await page.getByTestId('tab-fit').click();
   await expect(page.getByTestId('plot-fit')).toBeVisible();
@@ -55,7 +60,9 @@ test('loads the 1-D demo with posterior mean, bands and data fit; no console err
   const shown = async (id: string) => Number(await page.getByTestId(id).textContent());
   expect(Math.abs((await shown('chi2-value')) / expected.chi2 - 1)).toBeLessThan(1e-3);
   expect(Math.abs((await shown('chi2-expected')) / ref.expected - 1)).toBeLessThan(1e-3);
-  await expect(page.getByTestId('chi2-interval')).toHaveText(`[${Number(ref.interval95[0].toPrecision(4))}, ${Number(ref.interval95[1].toPrecision(4))}]`);
+  await expect(page.getByTestId('chi2-interval')).toHaveText(
+    `[${Number(ref.interval95[0].toPrecision(4))}, ${Number(ref.interval95[1].toPrecision(4))}]`,
+  );
   await expect(page.getByTestId('chi2-verdict')).toHaveAttribute('data-position', 'inside');
   await expect(page.getByTestId('chi2-verdict')).not.toContainText('over-fitted');
   await expect(page.getByTestId('caution')).toContainText('qualified professional');
@@ -74,12 +81,21 @@ test('changing a correlation length changes the posterior to the core numbers fo
   await input.press('Enter');
   const s = await settle(page);
   expect(s.prior.terms[0].length).toBe(2.5);
-  await expect.poll(async () => maxRelDiff((await traceValues(page, 'plot-posterior', 'posterior mean')) as number[], before)).toBeGreaterThan(1e-4);
+  await expect
+    .poll(async () => maxRelDiff((await traceValues(page, 'plot-posterior', 'posterior mean')) as number[], before))
+    .toBeGreaterThan(1e-4);
   const after = (await traceValues(page, 'plot-posterior', 'posterior mean')) as number[];
-  const expected = posteriorSummary(preparePosterior(borehole.problem, { ...borehole.startPrior, terms: [patchTerm(borehole.startPrior.terms[0], { length: 2.5 })] }));
+  const expected = posteriorSummary(
+    preparePosterior(borehole.problem, { ...borehole.startPrior, terms: [patchTerm(borehole.startPrior.terms[0], { length: 2.5 })] }),
+  );
   expect(maxRelDiff(after, expected.mean)).toBeLessThan(TOL);
   const std = ((await traceValues(page, 'plot-posterior', 'posterior 68%')) as number[]).slice(0, 200);
-  expect(maxRelDiff(std, Array.from(expected.mean, (m, i) => m + expected.std[i]))).toBeLessThan(TOL);
+  expect(
+    maxRelDiff(
+      std,
+      Array.from(expected.mean, (m, i) => m + expected.std[i]),
+    ),
+  ).toBeLessThan(TOL);
   expect(w.problems).toEqual([]);
 });
 
@@ -207,11 +223,13 @@ test('20 rapid slider changes in a second end in the last value, with no errors'
   // the last value, not an earlier one: slider positions map monotonically to lengths
   const max = Number(await slider.getAttribute('max'));
   expect(max).toBeGreaterThan(positions[positions.length - 1]);
-  await expect.poll(async () => {
-    const mean = (await traceValues(page, 'plot-posterior', 'posterior mean')) as number[];
-    const expected = posteriorSummary(preparePosterior(borehole.problem, s.prior)).mean;
-    return maxRelDiff(mean, expected);
-  }).toBeLessThan(TOL);
+  await expect
+    .poll(async () => {
+      const mean = (await traceValues(page, 'plot-posterior', 'posterior mean')) as number[];
+      const expected = posteriorSummary(preparePosterior(borehole.problem, s.prior)).mean;
+      return maxRelDiff(mean, expected);
+    })
+    .toBeLessThan(TOL);
   expect(Object.keys(s.errors)).toEqual([]);
   await expect(page.locator('[role=alert]')).toHaveCount(0);
   expect(w.problems).toEqual([]);

@@ -42,7 +42,10 @@ function findChromium() {
   }
   const cache = join(homedir(), '.cache', 'ms-playwright');
   if (existsSync(cache)) {
-    for (const dir of readdirSync(cache).filter((d) => d.startsWith('chromium')).sort().reverse()) {
+    for (const dir of readdirSync(cache)
+      .filter((d) => d.startsWith('chromium'))
+      .sort()
+      .reverse()) {
       for (const rel of ['chrome-linux/chrome', 'chrome-linux64/chrome']) {
         const p = join(cache, dir, rel);
         if (existsSync(p)) return p;
@@ -53,7 +56,10 @@ function findChromium() {
 }
 
 function pythonHasScipy(python) {
-  return spawnSync(python, ['-c', 'import numpy, scipy.special, scipy.linalg, scipy.stats, sklearn.gaussian_process'], { stdio: 'ignore' }).status === 0;
+  return (
+    spawnSync(python, ['-c', 'import numpy, scipy.special, scipy.linalg, scipy.stats, sklearn.gaussian_process'], { stdio: 'ignore' })
+      .status === 0
+  );
 }
 
 // Chromium for the Playwright suite.
@@ -68,7 +74,9 @@ if (!python || !pythonHasScipy(python)) {
   if (aptInstall(['python3', 'python3-numpy', 'python3-scipy', 'python3-sklearn'])) python = '/usr/bin/python3';
 }
 if (!python || !pythonHasScipy(python)) {
-  fail('python3 with numpy, scipy and sklearn not found: install Debian\'s python3-numpy python3-scipy python3-sklearn (or set PRIORSCOPE_PYTHON)');
+  fail(
+    "python3 with numpy, scipy and sklearn not found: install Debian's python3-numpy python3-scipy python3-sklearn (or set PRIORSCOPE_PYTHON)",
+  );
 }
 env.PRIORSCOPE_PYTHON = python;
 
@@ -78,7 +86,7 @@ if (!commandPath('parallel')) fail("GNU parallel not found: install Debian's par
 console.error(`priorscope test: Chromium ${chromium}, Python ${python}`);
 
 const steps = [
-  ['lint (biome lint, rules in biome.json)', 'npx', ['biome', 'lint', '--error-on-warnings', '.']],
+  ['lint and format check (biome check, rules in biome.json)', 'npx', ['biome', 'check', '--error-on-warnings', '.']],
   ['type check (tsc --noEmit)', 'npx', ['tsc', '--noEmit', '-p', 'tsconfig.json']],
   ['unit and reference suites (vitest)', 'npx', ['vitest', 'run']],
   ['browser suite (playwright, chromium)', 'npx', ['playwright', 'test']],

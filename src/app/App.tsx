@@ -62,7 +62,8 @@ export function App() {
 
   const onTabKey = (e: KeyboardEvent, i: number) => {
     const n = TABS.length;
-    const j = e.key === 'ArrowRight' ? (i + 1) % n : e.key === 'ArrowLeft' ? (i + n - 1) % n : e.key === 'Home' ? 0 : e.key === 'End' ? n - 1 : -1;
+    const j =
+      e.key === 'ArrowRight' ? (i + 1) % n : e.key === 'ArrowLeft' ? (i + n - 1) % n : e.key === 'Home' ? 0 : e.key === 'End' ? n - 1 : -1;
     if (j < 0) return;
     e.preventDefault();
     setTab(TABS[j].id);
@@ -79,7 +80,9 @@ export function App() {
             data-testid="demo-select"
             value={userTitle !== null ? USER_OPTION : demoId}
             onChange={(e) => e.target.value !== USER_OPTION && void loadDemo(e.target.value)}
-            title={userTitle !== null ? 'Your own problem is loaded; choose a built-in example to switch' : 'Built-in invented example problems'}
+            title={
+              userTitle !== null ? 'Your own problem is loaded; choose a built-in example to switch' : 'Built-in invented example problems'
+            }
           >
             {userTitle !== null && (
               <option value={USER_OPTION} disabled>

@@ -38,8 +38,8 @@ export class ErrorBoundary extends Component<Props, State> {
       <div className="recover" role="alert" data-testid="recover">
         <h1>Priorscope could not show this session</h1>
         <p>
-          Something in the current or saved session could not be displayed. Your files are not affected. You can start
-          over on the default demo, or clear the saved session in this browser and reload.
+          Something in the current or saved session could not be displayed. Your files are not affected. You can start over on the default
+          demo, or clear the saved session in this browser and reload.
         </p>
         <p>
           <button type="button" data-testid="recover-start-over" onClick={() => void startOver()}>

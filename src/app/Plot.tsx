@@ -52,7 +52,6 @@ export const SETTLE_MS = 250;
 const WIDTH_STEP = 4;
 const RESIZE_MS = 120;
 
-
 interface DrawJob {
   run: () => Promise<void>;
   priority: boolean;
@@ -143,17 +142,19 @@ export function Plot({ id, label, data, layout, height = 300, onDrawn, onPointCl
       const drawn = Plotly.react(
         el,
         plotSafe(tameOverflow.traces(data)),
-        plotSafe(tameOverflow.layout({
-          height,
-          width,
-          autosize: false,
-          margin: { l: 56, r: 16, t: 30, b: 66 },
-          font: FONT,
-          paper_bgcolor: 'rgba(0,0,0,0)',
-          plot_bgcolor: '#fbfaf6',
-          legend: { orientation: 'h', x: 0, y: -0.22, yanchor: 'top' },
-          ...layout,
-        })),
+        plotSafe(
+          tameOverflow.layout({
+            height,
+            width,
+            autosize: false,
+            margin: { l: 56, r: 16, t: 30, b: 66 },
+            font: FONT,
+            paper_bgcolor: 'rgba(0,0,0,0)',
+            plot_bgcolor: '#fbfaf6',
+            legend: { orientation: 'h', x: 0, y: -0.22, yanchor: 'top' },
+            ...layout,
+          }),
+        ),
         CONFIG,
       ).then((gd: PlotlyHTMLElement) => {
         if (!live) return;

@@ -48,7 +48,9 @@ export function PriorPanel() {
           data-testid="add-term"
           onClick={addTerm}
           disabled={prior.terms.length >= MAX_TERMS}
-          title={prior.terms.length >= MAX_TERMS ? `A prior has at most ${MAX_TERMS} covariance terms` : 'Add a covariance term: Cm += σ² ρ(h)'}
+          title={
+            prior.terms.length >= MAX_TERMS ? `A prior has at most ${MAX_TERMS} covariance terms` : 'Add a covariance term: Cm += σ² ρ(h)'
+          }
         >
           + Add term
         </button>
@@ -132,10 +134,24 @@ function PinButton() {
   const count = useWb((s) => s.candidates.length);
   const pinned = useWb((s) => s.prior !== null && s.candidates.some((c) => samePrior(c.prior, s.prior!)));
   const full = count >= MAX_PINNED;
-  const title = full ? `At most ${MAX_PINNED} candidates; remove one on the Choose prior screen first` : pinned ? 'This prior is already pinned' : 'Keep this prior as a candidate to compare on the Choose prior screen';
+  const title = full
+    ? `At most ${MAX_PINNED} candidates; remove one on the Choose prior screen first`
+    : pinned
+      ? 'This prior is already pinned'
+      : 'Keep this prior as a candidate to compare on the Choose prior screen';
   return (
-    <button type="button" data-testid="pin-candidate" onClick={pin} disabled={full || pinned} title={title} aria-label={`Pin as candidate (${count} of ${MAX_PINNED} pinned)`}>
-      Pin as candidate <span className="pin-count">{count}/{MAX_PINNED}</span>
+    <button
+      type="button"
+      data-testid="pin-candidate"
+      onClick={pin}
+      disabled={full || pinned}
+      title={title}
+      aria-label={`Pin as candidate (${count} of ${MAX_PINNED} pinned)`}
+    >
+      Pin as candidate{' '}
+      <span className="pin-count">
+        {count}/{MAX_PINNED}
+      </span>
     </button>
   );
 }
@@ -219,7 +235,19 @@ function MeanEditor({ mean, problem }: { mean: MeanSpec; problem: ProblemView })
   );
 }
 
-function TermEditor({ index, term, count, problem, refVar }: { index: number; term: Term; count: number; problem: ProblemView; refVar: number }) {
+function TermEditor({
+  index,
+  term,
+  count,
+  problem,
+  refVar,
+}: {
+  index: number;
+  term: Term;
+  count: number;
+  problem: ProblemView;
+  refVar: number;
+}) {
   const updateTerm = useWb((s) => s.updateTerm);
   const setKernel = useWb((s) => s.setKernel);
   const setAnisotropic = useWb((s) => s.setAnisotropic);
@@ -252,7 +280,13 @@ function TermEditor({ index, term, count, problem, refVar }: { index: number; te
             </option>
           ))}
         </select>
-        <button type="button" aria-label={`Move term ${index + 1} up`} title="Move up" disabled={index === 0} onClick={() => moveTerm(index, -1)}>
+        <button
+          type="button"
+          aria-label={`Move term ${index + 1} up`}
+          title="Move up"
+          disabled={index === 0}
+          onClick={() => moveTerm(index, -1)}
+        >
           ↑
         </button>
         <button
@@ -264,7 +298,13 @@ function TermEditor({ index, term, count, problem, refVar }: { index: number; te
         >
           ↓
         </button>
-        <button type="button" aria-label={`Remove term ${index + 1}`} title="Remove this term" data-testid={`${t}-remove`} onClick={() => removeTerm(index)}>
+        <button
+          type="button"
+          aria-label={`Remove term ${index + 1}`}
+          title="Remove this term"
+          data-testid={`${t}-remove`}
+          onClick={() => removeTerm(index)}
+        >
           ×
         </button>
       </div>

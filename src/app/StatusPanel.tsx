@@ -75,7 +75,13 @@ export function StatusPanel() {
   const unit = useWb((s) => s.problem?.quantity.unit ?? '');
   const level: PdLevel = error ? 'error' : pdLevel(d);
   return (
-    <section className={`pd-status pd-${level}`} data-testid="pd-status" data-level={level} aria-live="polite" aria-label="Positive-definiteness status">
+    <section
+      className={`pd-status pd-${level}`}
+      data-testid="pd-status"
+      data-level={level}
+      aria-live="polite"
+      aria-label="Positive-definiteness status"
+    >
       <strong data-testid="pd-text">{pdText(level, d && !error ? d.decidedBy : null)}</strong>
       {busy && <span className="busy-dot" title="recomputing" aria-label="recomputing" />}
       {d && !error && (
@@ -88,7 +94,8 @@ export function StatusPanel() {
             κ = <span data-testid="pd-condition">{fmt(d.conditionNumber)}</span>
             {d.conditionUpperBound !== undefined && (
               <span title="Certified upper bound on κ from the FFT embedding">
-                {' '}(≤ <span data-testid="pd-condition-bound">{fmt(d.conditionUpperBound)}</span>)
+                {' '}
+                (≤ <span data-testid="pd-condition-bound">{fmt(d.conditionUpperBound)}</span>)
               </span>
             )}
           </span>

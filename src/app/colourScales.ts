@@ -42,7 +42,8 @@ export interface SignedView {
  * explicit values), since no single colour could stand for such a mean.
  */
 export function signedView(field: ArrayLike<number>, priorMean: ArrayLike<number>): SignedView {
-  if (field.length !== priorMean.length) throw new RangeError(`signedView: field has ${field.length} values, prior mean ${priorMean.length}`);
+  if (field.length !== priorMean.length)
+    throw new RangeError(`signedView: field has ${field.length} values, prior mean ${priorMean.length}`);
   const c = constantValue(priorMean);
   if (c !== null) return { values: Float64Array.from(field), centre: c, perturbation: false };
   const out = new Float64Array(field.length);

@@ -36,5 +36,5 @@ export function addedTerm(terms: readonly Term[], problem: ProblemView): Term {
 
 function roundTo2(x: number): number {
   const p = 10 ** Math.floor(Math.log10(x));
-  return Math.round((x / p) * 10) / 10 * p;
+  return (Math.round((x / p) * 10) / 10) * p;
 }

@@ -6,7 +6,6 @@
  */
 import { gridDimension, type Grid } from '../core/grid/grid.ts';
 
-
 /**
  * A hyperparameter name of src/core/tuning/typeII.ts (`terms[k].variance`, `.length`,
  * `.lengths[0]`, `.lengths[1]`, `.angle`, `.nu`, `nugget`) in words. The two lengths of an

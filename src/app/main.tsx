@@ -22,10 +22,9 @@ async function clearSavedSession(): Promise<void> {
 }
 
 const makeClient = () =>
-  new WorkerClient(
-    () => new Worker(new URL('../worker/worker.ts', import.meta.url), { type: 'module' }) as unknown as WorkerLike,
-    { onProgress: (channel, stage, fraction) => store.getState().setProgress({ channel, stage, fraction }) },
-  );
+  new WorkerClient(() => new Worker(new URL('../worker/worker.ts', import.meta.url), { type: 'module' }) as unknown as WorkerLike, {
+    onProgress: (channel, stage, fraction) => store.getState().setProgress({ channel, stage, fraction }),
+  });
 const client = new SplitClient(makeClient(), makeClient());
 const params = new URLSearchParams(location.search);
 const store = createWorkbenchStore(client, { demoId: params.get('demo') ?? DEFAULT_DEMO });

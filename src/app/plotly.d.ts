@@ -3,7 +3,10 @@ declare module 'plotly.js-dist-min' {
   export interface PlotlyHTMLElement extends HTMLDivElement {
     data?: Record<string, unknown>[];
     layout?: Record<string, unknown>;
-    on(event: 'plotly_click', handler: (ev: { points: { x: unknown; y: unknown; curveNumber: number; pointNumber: unknown }[] }) => void): void;
+    on(
+      event: 'plotly_click',
+      handler: (ev: { points: { x: unknown; y: unknown; curveNumber: number; pointNumber: unknown }[] }) => void,
+    ): void;
     removeAllListeners?(event: string): void;
   }
   interface PlotlyStatic {

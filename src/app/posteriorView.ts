@@ -49,7 +49,12 @@ export function shownPosterior(posterior: PosteriorResult | null, partial: Poste
 /** State of the uncertainty bands of the drawn mean. */
 export type BandsState = 'shown' | 'computing' | 'failed' | 'none';
 
-export function bandsState(posterior: PosteriorResult | null, partial: PosteriorPartial | null, busy: boolean, error: string | null): BandsState {
+export function bandsState(
+  posterior: PosteriorResult | null,
+  partial: PosteriorPartial | null,
+  busy: boolean,
+  error: string | null,
+): BandsState {
   if (partial) return error !== null && !busy ? 'failed' : 'computing';
   return posterior ? 'shown' : 'none';
 }

@@ -222,6 +222,10 @@ export const tameOverflow = {
     return out;
   },
   traces(data: readonly Trace[]): Trace[] {
-    return data.map((t) => (t.type === 'heatmap' || t.type === 'contour') && t.showscale !== false && t.coloraxis === undefined ? { ...t, colorbar: allowColorbar(t.colorbar) } : t);
+    return data.map((t) =>
+      (t.type === 'heatmap' || t.type === 'contour') && t.showscale !== false && t.coloraxis === undefined
+        ? { ...t, colorbar: allowColorbar(t.colorbar) }
+        : t,
+    );
   },
 };

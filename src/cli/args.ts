@@ -76,7 +76,11 @@ export function optionFlag(args: ParsedArgs, name: string): boolean {
 }
 
 /** A decimal number option (finite); `rule` as in the file readers. */
-export function parseNumberOption(name: string, text: string, rule: { integer?: boolean; gt?: number; ge?: number; le?: number } = {}): number {
+export function parseNumberOption(
+  name: string,
+  text: string,
+  rule: { integer?: boolean; gt?: number; ge?: number; le?: number } = {},
+): number {
   const t = text.trim();
   const v = /^[+-]?(\d+\.?\d*|\.\d+)([eE][+-]?\d+)?$/.test(t) ? Number(t) : NaN;
   const ok =

@@ -45,7 +45,9 @@ if (problem === '') {
     process.exit(1);
   }
   if (!fromSource) {
-    process.stderr.write(`priorscope: running the TypeScript sources through tsx (slower start): ${problem}; \`npm run build:cli\` builds it\n`);
+    process.stderr.write(
+      `priorscope: running the TypeScript sources through tsx (slower start): ${problem}; \`npm run build:cli\` builds it\n`,
+    );
   }
   const { register } = await import('tsx/esm/api');
   register();

@@ -66,13 +66,23 @@ export interface Command {
 }
 
 export const OUT: OptionSpec = { name: 'out', value: 'FILE', help: 'write the result to FILE instead of stdout' };
-export const PROBLEM: OptionSpec = { name: 'problem', value: 'P.json', help: 'problem file (kind "priorscope.problem", version 1)', required: true };
+export const PROBLEM: OptionSpec = {
+  name: 'problem',
+  value: 'P.json',
+  help: 'problem file (kind "priorscope.problem", version 1)',
+  required: true,
+};
 export const READ_FROM: OptionSpec = {
   name: 'read-from',
   value: 'FOLDERS',
   help: "also read files named in the problem file (operator.file) from these folders (comma-separated); by default only from the problem file's folder",
 };
-export const PRIOR: OptionSpec = { name: 'prior', value: 'Q.json', help: 'prior file (kind "priorscope.prior", version 1)', required: true };
+export const PRIOR: OptionSpec = {
+  name: 'prior',
+  value: 'Q.json',
+  help: 'prior file (kind "priorscope.prior", version 1)',
+  required: true,
+};
 
 /** JSON text of a result (see formatJson: NaN and ±Infinity become null). */
 export function toJson(value: unknown): string {
@@ -184,7 +194,7 @@ const posterior: Command = {
     '--path auto (default) takes the FFT path (circulant embedding, no N × N matrix) for a stationary prior on a\n' +
     `regular grid of at least ${FFT_MIN_CELLS} cells and the dense path otherwise; "path" in the output says which ran. Both\n` +
     'give the same numbers to round-off. --path fft on a problem the FFT path cannot take is an error (exit 2).\n' +
-    '--threads T splits the FFT path\'s standard deviations and the mean\'s covariance products over T threads\n' +
+    "--threads T splits the FFT path's standard deviations and the mean's covariance products over T threads\n" +
     '(default: every core when the solve is large enough to gain over starting the threads, about 128² cells\n' +
     'with 1600 data; results are identical for every T).',
   options: [
@@ -279,8 +289,10 @@ const check: Command = {
     const covariance = optionString(args, 'covariance');
     const hasProblem = optionString(args, 'problem') !== undefined;
     const hasPrior = optionString(args, 'prior') !== undefined;
-    if (covariance !== undefined && (hasProblem || hasPrior)) throw new UsageError('give either --covariance FILE or --problem and --prior, not both');
-    if (covariance === undefined && !(hasProblem && hasPrior)) throw new UsageError('option --problem P.json and --prior Q.json are required (or --covariance FILE)');
+    if (covariance !== undefined && (hasProblem || hasPrior))
+      throw new UsageError('give either --covariance FILE or --problem and --prior, not both');
+    if (covariance === undefined && !(hasProblem && hasPrior))
+      throw new UsageError('option --problem P.json and --prior Q.json are required (or --covariance FILE)');
     let d: Diagnostics;
     if (covariance !== undefined) {
       const c = loadSymmetricMatrix(covariance);
@@ -351,7 +363,8 @@ const sample: Command = {
     const count = parseNumberOption('count', optionString(args, 'count')!, { integer: true, ge: 1 });
     const seed = parseNumberOption('seed', optionString(args, 'seed')!, { integer: true, ge: 0, le: 0xffffffff });
     const out = optionString(args, 'out');
-    const formatText = optionString(args, 'format') ?? (out?.toLowerCase().endsWith('.npy') ? 'npy' : out?.toLowerCase().endsWith('.csv') ? 'csv' : 'json');
+    const formatText =
+      optionString(args, 'format') ?? (out?.toLowerCase().endsWith('.npy') ? 'npy' : out?.toLowerCase().endsWith('.csv') ? 'csv' : 'json');
     if (formatText !== 'json' && formatText !== 'csv' && formatText !== 'npy') {
       throw new UsageError(`--format must be one of json, csv, npy, got ${JSON.stringify(formatText)}`);
     }
@@ -362,7 +375,9 @@ const sample: Command = {
     const { problem, prior } = loadBoth(args, io);
     const n = cellCount(problem.grid);
     if (count * n > MAX_SAMPLE_VALUES) {
-      throw new UsageError(`--count must be at most ${Math.floor(MAX_SAMPLE_VALUES / n)} for ${n} cells (${MAX_SAMPLE_VALUES} values in all), got ${count}`);
+      throw new UsageError(
+        `--count must be at most ${Math.floor(MAX_SAMPLE_VALUES / n)} for ${n} cells (${MAX_SAMPLE_VALUES} values in all), got ${count}`,
+      );
     }
     const post = optionFlag(args, 'posterior');
     progress(io, `drawing ${count} ${post ? 'posterior' : 'prior'} realisations on ${n} cells …`);
@@ -451,7 +466,8 @@ export const MAX_MAP_CELLS = 1_000_000;
 /** "lo:hi:n" → a log-spaced axis (0 < lo ≤ hi, 1 ≤ n ≤ 10000). */
 function parseAxis(name: string, text: string): LogAxis {
   const parts = text.split(':');
-  const bad = () => new UsageError(`--${name} must be lo:hi:n with 0 < lo ≤ hi and n an integer from 1 to 10000, got ${JSON.stringify(text)}`);
+  const bad = () =>
+    new UsageError(`--${name} must be lo:hi:n with 0 < lo ≤ hi and n an integer from 1 to 10000, got ${JSON.stringify(text)}`);
   if (parts.length !== 3) throw bad();
   let axis: LogAxis;
   try {
@@ -470,7 +486,8 @@ function parseAxis(name: string, text: string): LogAxis {
 const tune: Command = {
   name: 'tune',
   summary: 'log-evidence grid over one term’s length and variance, and its maximum',
-  usage: 'priorscope tune --problem P.json --prior Q.json --term 0 --lengths lo:hi:n --variances lo:hi:n [--axis both|l1|l2] [--shard K/N] [--out FILE]',
+  usage:
+    'priorscope tune --problem P.json --prior Q.json --term 0 --lengths lo:hi:n --variances lo:hi:n [--axis both|l1|l2] [--shard K/N] [--out FILE]',
   details:
     'Evaluates log N(d; G m0, G Cm Gᵀ + Cd) on n log-spaced lengths × n log-spaced variances of term K,\n' +
     'everything else in the prior fixed. For an anisotropic term (lengths [l1, l2]) --axis says what the length\n' +
@@ -497,7 +514,8 @@ const tune: Command = {
   run(args, io) {
     noPositionals(args);
     const axisText = optionString(args, 'axis') ?? 'both';
-    if (!(LENGTH_AXES as readonly string[]).includes(axisText)) throw new UsageError(`--axis must be one of ${LENGTH_AXES.join(', ')}, got ${JSON.stringify(axisText)}`);
+    if (!(LENGTH_AXES as readonly string[]).includes(axisText))
+      throw new UsageError(`--axis must be one of ${LENGTH_AXES.join(', ')}, got ${JSON.stringify(axisText)}`);
     const axis = axisText as LengthAxis;
     const lengths = parseAxis('lengths', optionString(args, 'lengths')!);
     const variances = parseAxis('variances', optionString(args, 'variances')!);
@@ -511,14 +529,24 @@ const tune: Command = {
     const term = parseNumberOption('term', termText, { integer: true, ge: 0 });
     if (prior.terms.length === 0) throw new UsageError('the prior has no covariance term to tune (its "terms" list is empty)');
     if (term >= prior.terms.length) {
-      throw new UsageError(`--term must be an integer from 0 to ${prior.terms.length - 1} (the prior has ${prior.terms.length} term${prior.terms.length === 1 ? '' : 's'}), got ${JSON.stringify(termText)}`);
+      throw new UsageError(
+        `--term must be an integer from 0 to ${prior.terms.length - 1} (the prior has ${prior.terms.length} term${prior.terms.length === 1 ? '' : 's'}), got ${JSON.stringify(termText)}`,
+      );
     }
     const tuned = prior.terms[term];
     if (axis !== 'both' && tuned.lengths === undefined) {
       throw new UsageError(`--axis ${axis} needs an anisotropic term ("lengths": [l1, l2]); term ${term} has one length: leave --axis out`);
     }
     progress(io, `evidence on ${lengths.count} × ${variances.count} cells …`);
-    const key: TuneKey = { problem: problemKey(problem), prior: priorToJson(prior), term, axis, lengths, variances, tuned: (priorToJson(prior).terms as TuneKey['tuned'][])[term] };
+    const key: TuneKey = {
+      problem: problemKey(problem),
+      prior: priorToJson(prior),
+      term,
+      axis,
+      lengths,
+      variances,
+      tuned: (priorToJson(prior).terms as TuneKey['tuned'][])[term],
+    };
     const out = runShardable<TunePartial>((t) => emit(io, args, t), args, {
       command: 'tune',
       total: lengths.count,
@@ -526,7 +554,7 @@ const tune: Command = {
       compute: (first, end) => tuneRows(problem, prior, key, first, end),
       combine: (k, parts) => combineTune(k, parts).output,
     });
-    for (const w of ((out as { warnings?: string[] } | null)?.warnings ?? [])) io.stderr(`priorscope tune: ${w}`);
+    for (const w of (out as { warnings?: string[] } | null)?.warnings ?? []) io.stderr(`priorscope tune: ${w}`);
     return 0;
   },
 };
@@ -534,7 +562,8 @@ const tune: Command = {
 const demo: Command = {
   name: 'demo',
   summary: 'list the built-in problems, or write one as a problem file',
-  usage: 'priorscope demo --list | priorscope demo NAME [--out P.json] [--prior Q.json] [--truth-prior T.json] [--operator-file G.npy|G.mtx|G.csv]',
+  usage:
+    'priorscope demo --list | priorscope demo NAME [--out P.json] [--prior Q.json] [--truth-prior T.json] [--operator-file G.npy|G.mtx|G.csv]',
   details:
     '--list prints [{"id", "title", "description"}]. demo NAME writes the problem file (to --out or stdout);\n' +
     '--prior also writes the suggested starting prior, --truth-prior the prior the synthetic truth was drawn\n' +
@@ -564,7 +593,8 @@ const demo: Command = {
       throw new UsageError(`--operator-file must end in .npy, .mtx or .csv, got ${JSON.stringify(opFile)}`);
     }
     const out = optionString(args, 'out');
-    if (opFile !== undefined && out === undefined) throw new UsageError('--operator-file needs --out (the operator file is written next to it)');
+    if (opFile !== undefined && out === undefined)
+      throw new UsageError('--operator-file needs --out (the operator file is written next to it)');
     const built = d.build();
     const written = writeProblemFile(built.problem, opFile === undefined ? 'inline' : { file: opFile });
     if (written.operatorFile && out !== undefined) {

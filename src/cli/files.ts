@@ -54,7 +54,10 @@ export function readInputFile(path: string, label = path): Uint8Array {
     if (st.isDirectory()) throw new FileFormatError(label, 'cannot be read: it is a directory, not a file');
     if (!st.isFile()) throw new FileFormatError(label, 'cannot be read: it is not a regular file (a pipe, device or socket)');
     if (st.size > MAX_FILE_BYTES) {
-      throw new FileFormatError(label, `file is ${(st.size / 1024 / 1024).toFixed(1)} MiB, larger than the limit of ${MAX_FILE_BYTES / 1024 / 1024} MiB`);
+      throw new FileFormatError(
+        label,
+        `file is ${(st.size / 1024 / 1024).toFixed(1)} MiB, larger than the limit of ${MAX_FILE_BYTES / 1024 / 1024} MiB`,
+      );
     }
     const chunks: Uint8Array[] = [];
     let total = 0;
@@ -83,7 +86,10 @@ export function readInputFile(path: string, label = path): Uint8Array {
 }
 
 function tooLarge(label: string, bytes: number): FileFormatError {
-  return new FileFormatError(label, `file grew past the limit of ${MAX_FILE_BYTES / 1024 / 1024} MiB while being read (${(bytes / 1024 / 1024).toFixed(1)} MiB read)`);
+  return new FileFormatError(
+    label,
+    `file grew past the limit of ${MAX_FILE_BYTES / 1024 / 1024} MiB while being read (${(bytes / 1024 / 1024).toFixed(1)} MiB read)`,
+  );
 }
 
 /** Options of the file access. */
@@ -182,11 +188,17 @@ export function loadSymmetricMatrix(path: string): Matrix {
   else throw new FileFormatError(path, `--covariance must name a .npy, .mtx (Matrix Market) or .csv file`);
   if (m.rows !== m.cols) throw new FileFormatError(path, `must hold a square matrix, got ${m.rows} × ${m.cols}`);
   if (m.rows > MAX_CHECK_MATRIX) {
-    throw new FileFormatError(path, `must hold at most ${MAX_CHECK_MATRIX} rows for the dense check, got ${m.rows}; for a prior on a regular grid, check the prior file instead (check --problem P --prior Q, which needs no dense matrix)`);
+    throw new FileFormatError(
+      path,
+      `must hold at most ${MAX_CHECK_MATRIX} rows for the dense check, got ${m.rows}; for a prior on a regular grid, check the prior file instead (check --problem P --prior Q, which needs no dense matrix)`,
+    );
   }
   const a = asymmetry(m);
   if (a) {
-    throw new FileFormatError(path, `must hold a symmetric matrix, but entry (${a.row + 1}, ${a.col + 1}) is ${a.value} and (${a.col + 1}, ${a.row + 1}) is ${a.mirror} (rows and columns from 1)`);
+    throw new FileFormatError(
+      path,
+      `must hold a symmetric matrix, but entry (${a.row + 1}, ${a.col + 1}) is ${a.value} and (${a.col + 1}, ${a.row + 1}) is ${a.mirror} (rows and columns from 1)`,
+    );
   }
   return m;
 }

@@ -53,7 +53,7 @@ export function mainHelp(): string {
 /** The exit codes every command shares (`priorscope COMMAND --help` prints them, with the command's own after them). */
 const EXIT_CODES =
   'Exit codes: 0 ok, 1 internal error (a bug: please report it), 2 bad input (one line on stderr naming the file,\n' +
-  'the field and what was expected), 3 a negative verdict (a covariance proven not positive definite, or this command\'s own\n' +
+  "the field and what was expected), 3 a negative verdict (a covariance proven not positive definite, or this command's own\n" +
   'negative result described above)';
 
 export function commandHelp(c: Command): string {
@@ -103,7 +103,9 @@ export async function main(argv: readonly string[], io: Io = processIo()): Promi
   }
   const command = COMMANDS.find((c) => c.name === first);
   if (!command) {
-    io.stderr(`priorscope: unknown command ${JSON.stringify(first)}; commands: ${COMMANDS.map((x) => x.name).join(', ')} (see priorscope --help)`);
+    io.stderr(
+      `priorscope: unknown command ${JSON.stringify(first)}; commands: ${COMMANDS.map((x) => x.name).join(', ')} (see priorscope --help)`,
+    );
     return 2;
   }
   if (rest.includes('--help') || rest.includes('-h')) {

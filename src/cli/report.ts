@@ -28,7 +28,12 @@ import type { Problem } from '../core/problems/spec.ts';
 
 const g4 = (x: number) => (Number.isFinite(x) ? Number(x.toPrecision(4)).toString() : String(x));
 
-function candidateRows(problem: Problem, named: readonly { name: string; prior: PriorSpec }[], lengthUnit: string, valueUnit: string): NonNullable<DefenceInput['candidates']> {
+function candidateRows(
+  problem: Problem,
+  named: readonly { name: string; prior: PriorSpec }[],
+  lengthUnit: string,
+  valueUnit: string,
+): NonNullable<DefenceInput['candidates']> {
   const scored = named.map((c) => {
     try {
       const crit = priorCriteria(problem, c.prior);
@@ -41,7 +46,15 @@ function candidateRows(problem: Problem, named: readonly { name: string; prior: 
   });
   const ev = evidenceReadings(scored, problem.grid);
   return {
-    header: ['candidate', 'prior', 'log evidence', 'against the best (Kass & Raftery 1995)', 'LOO log score', 'χ² / (M − tr R)', 'hyper-parameters'],
+    header: [
+      'candidate',
+      'prior',
+      'log evidence',
+      'against the best (Kass & Raftery 1995)',
+      'LOO log score',
+      'χ² / (M − tr R)',
+      'hyper-parameters',
+    ],
     rows: scored.map((c, k) => [
       c.name,
       priorLine(c.prior, lengthUnit, valueUnit),
@@ -58,14 +71,15 @@ function candidateRows(problem: Problem, named: readonly { name: string; prior: 
 export const report: Command = {
   name: 'report',
   summary: 'the defence document of a prior as one self-contained HTML file (as the workbench writes it)',
-  usage: 'priorscope report --problem P.json --prior Q.json --out R.html [--compare Q2.json,Q3.json] [--map-count K] [--hyper-prior log-uniform|uniform] [--seed S]',
+  usage:
+    'priorscope report --problem P.json --prior Q.json --out R.html [--compare Q2.json,Q3.json] [--map-count K] [--hyper-prior log-uniform|uniform] [--seed S]',
   details:
     'Computes and writes the report: the problem and its geometry; the prior in words, its formula and the prior file; the\n' +
     'positive-definiteness verdict and what proved it; three prior realisations (seed S, default 1); the posterior mean and\n' +
-    'bands; the data fit against the distribution of χ² under the model; the log evidence over the first term\'s length\n' +
+    "bands; the data fit against the distribution of χ² under the model; the log evidence over the first term's length\n" +
     '(ℓ/4 … 4ℓ) × variance (σ²/10 … 10σ²), K × K log-spaced cells (default 9), with the prior marked; the candidates of\n' +
     '--compare beside the prior (log evidence read on the Kass & Raftery 1995 scale); the criteria; the posterior averaged\n' +
-    'over the map\'s cells weighted by evidence × the hyper-prior (default log-uniform); the caution. The HTML has no scripts\n' +
+    "over the map's cells weighted by evidence × the hyper-prior (default log-uniform); the caution. The HTML has no scripts\n" +
     'and no outside references (figures are inline SVG) and prints on A4. Prints {"out", "bytes", "sections", "averaged"} as JSON.',
   options: [
     PROBLEM,
@@ -83,16 +97,27 @@ export const report: Command = {
     const [prior] = loadPriors([priorPath], problem, io) as [PriorSpec];
     const compare = (optionString(args, 'compare') ?? '').split(',').filter((s) => s !== '');
     const others = loadPriors(compare, problem, io);
-    const count = optionString(args, 'map-count') === undefined ? 9 : parseNumberOption('map-count', optionString(args, 'map-count')!, { integer: true, ge: 2, le: 40 });
-    const seed = optionString(args, 'seed') === undefined ? 1 : parseNumberOption('seed', optionString(args, 'seed')!, { integer: true, ge: 0, le: 4294967295 });
+    const count =
+      optionString(args, 'map-count') === undefined
+        ? 9
+        : parseNumberOption('map-count', optionString(args, 'map-count')!, { integer: true, ge: 2, le: 40 });
+    const seed =
+      optionString(args, 'seed') === undefined
+        ? 1
+        : parseNumberOption('seed', optionString(args, 'seed')!, { integer: true, ge: 0, le: 4294967295 });
     const hyperText = optionString(args, 'hyper-prior') ?? 'log-uniform';
-    if (!HYPER_PRIORS.includes(hyperText as HyperPrior)) throw new UsageError(`--hyper-prior: expected log-uniform or uniform, got ${JSON.stringify(hyperText)}`);
+    if (!HYPER_PRIORS.includes(hyperText as HyperPrior))
+      throw new UsageError(`--hyper-prior: expected log-uniform or uniform, got ${JSON.stringify(hyperText)}`);
     const hyper = hyperText as HyperPrior;
     const grid = problem.grid;
     const unit = grid.unit ?? '';
     const qUnit = problem.quantity?.unit ?? '';
     const dataUnit = problem.data.unit ?? '';
-    const sigma = problem.data.sigma ?? Float64Array.from({ length: problem.data.values.length }, (_, i) => Math.sqrt(problem.data.covariance!.data[i * problem.data.values.length + i]));
+    const sigma =
+      problem.data.sigma ??
+      Float64Array.from({ length: problem.data.values.length }, (_, i) =>
+        Math.sqrt(problem.data.covariance!.data[i * problem.data.values.length + i]),
+      );
 
     progress(io, 'positive-definiteness diagnostics');
     const diagnostics = diagnosePriorAuto(grid, prior);
@@ -109,7 +134,11 @@ export const report: Command = {
     if (term) {
       progress(io, `evidence map ${count} × ${count}`);
       const l = termLength(term);
-      const map = evidenceMap(problem, prior, { term: 0, lengths: { min: l / 4, max: 4 * l, count }, variances: { min: term.variance / 10, max: term.variance * 10, count } });
+      const map = evidenceMap(problem, prior, {
+        term: 0,
+        lengths: { min: l / 4, max: 4 * l, count },
+        variances: { min: term.variance / 10, max: term.variance * 10, count },
+      });
       evidence = { lengths: map.lengths, variances: map.variances, logEvidence: map.logEvidence, term: 0, chosen: [l, term.variance] };
       progress(io, 'averaged posterior');
       const a = averagedPosterior(problem, prior, map, { hyperPrior: hyper });
@@ -118,9 +147,18 @@ export const report: Command = {
         std: a.std,
         rows: averagedRows(a, { length: l, variance: term.variance, mean: sm.mean, std: sm.std }, unit, qUnit),
       };
-      averagedOut = { cellsUsed: a.cellsUsed, effectiveCells: a.effectiveCells, edgeWeight: a.edgeWeight, hyperPrior: hyper, maxMeanChange: maxAbsDiff(a.mean, sm.mean) };
+      averagedOut = {
+        cellsUsed: a.cellsUsed,
+        effectiveCells: a.effectiveCells,
+        edgeWeight: a.edgeWeight,
+        hyperPrior: hyper,
+        maxMeanChange: maxAbsDiff(a.mean, sm.mean),
+      };
     }
-    const candidates = others.length > 0 ? candidateRows(problem, [{ name: priorPath, prior }, ...others.map((q, k) => ({ name: compare[k], prior: q }))], unit, qUnit) : null;
+    const candidates =
+      others.length > 0
+        ? candidateRows(problem, [{ name: priorPath, prior }, ...others.map((q, k) => ({ name: compare[k], prior: q }))], unit, qUnit)
+        : null;
     const shape = operatorShape(problem.operator);
     const input: DefenceInput = {
       title: problem.title ?? 'Untitled problem',
@@ -131,9 +169,15 @@ export const report: Command = {
       quantity: { name: problem.quantity?.name ?? 'value', unit: qUnit },
       dataUnit,
       problemFacts: [
-        ['Grid', `${grid.shape.join(' × ')} cells (${cellCount(grid)}), spacing ${grid.spacing.map(g4).join(' × ')}${unit ? ' ' + unit : ''}, first cell centre at (${(grid.origin ?? grid.shape.map(() => 0)).map(g4).join(', ')}), cells numbered with the first axis fastest`],
+        [
+          'Grid',
+          `${grid.shape.join(' × ')} cells (${cellCount(grid)}), spacing ${grid.spacing.map(g4).join(' × ')}${unit ? ' ' + unit : ''}, first cell centre at (${(grid.origin ?? grid.shape.map(() => 0)).map(g4).join(', ')}), cells numbered with the first axis fastest`,
+        ],
         ['Extent', grid.shape.map((n, i) => `${g4(n * grid.spacing[i])}${unit ? ' ' + unit : ''}`).join(' × ')],
-        ['Data', `${problem.data.values.length} values${dataUnit ? ` in ${dataUnit}` : ''}, σ from ${g4(Math.min(...sigma))} to ${g4(Math.max(...sigma))}`],
+        [
+          'Data',
+          `${problem.data.values.length} values${dataUnit ? ` in ${dataUnit}` : ''}, σ from ${g4(Math.min(...sigma))} to ${g4(Math.max(...sigma))}`,
+        ],
         ['Operator', `${problem.operator.kind}, ${shape.rows} × ${shape.cols}`],
         ['Quantity', `${problem.quantity?.name ?? 'value'}${qUnit ? ` (${qUnit})` : ''}`],
       ],
@@ -147,20 +191,31 @@ export const report: Command = {
       draws,
       seed,
       posterior: { mean: sm.mean, std: sm.std, predicted: sm.predicted },
-      fitRows: [['χ² of the posterior mean', `${g4(sm.chi2)} (M = ${sm.dataCount} data)`], ...fitReferenceRows(sm.chi2, sm.fitReference ?? null), ['log evidence', g4(sm.logEvidence)]],
+      fitRows: [
+        ['χ² of the posterior mean', `${g4(sm.chi2)} (M = ${sm.dataCount} data)`],
+        ...fitReferenceRows(sm.chi2, sm.fitReference ?? null),
+        ['log evidence', g4(sm.logEvidence)],
+      ],
       data: { values: problem.data.values, sigma },
       truth: problem.truth ?? null,
       evidence,
       candidates,
       criteria: criteriaRows(crit),
       averaged,
-      missing: { candidates: 'No other candidates were given (--compare).', evidence: 'The prior has no covariance term to map.', averaged: 'The prior has no covariance term to average over.' },
+      missing: {
+        candidates: 'No other candidates were given (--compare).',
+        evidence: 'The prior has no covariance term to map.',
+        averaged: 'The prior has no covariance term to average over.',
+      },
     };
     const html = defenceHtml(input);
     const out = optionString(args, 'out')!;
     writeOutputFile(out, html);
     const sections = [...html.matchAll(/<section id="([a-z]+)">/g)].map((m) => m[1]);
-    io.stdout(formatJson({ out, bytes: new TextEncoder().encode(html).length, sections, dimension: gridDimension(grid), averaged: averagedOut }) + '\n');
+    io.stdout(
+      formatJson({ out, bytes: new TextEncoder().encode(html).length, sections, dimension: gridDimension(grid), averaged: averagedOut }) +
+        '\n',
+    );
     return 0;
   },
 };

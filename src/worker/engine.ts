@@ -15,24 +15,24 @@ import { wasmGemmAvailable } from '../core/wasm/gemmNT.ts';
 import { wasmAvailable } from '../core/wasm/varianceBlock.ts';
 import { covarianceMatrix, meanVector } from '../core/prior/covariance.ts';
 import { priorRealisations } from '../core/sampling/realisations.ts';
-import {
-  posteriorRealisations,
-  preparePosterior,
-  resolutionRow,
-  type PosteriorState,
-} from '../core/inverse/posterior.ts';
+import { posteriorRealisations, preparePosterior, resolutionRow, type PosteriorState } from '../core/inverse/posterior.ts';
 import { assertNever, InputError, NotPositiveDefiniteError } from '../core/errors.ts';
 import { cholesky } from '../core/linalg/cholesky.ts';
 import { choosePosteriorPath } from '../core/inverse/auto.ts';
-import {
-  structuredDataFit,
-  structuredProblem,
-  type StructuredProblem,
-} from '../core/inverse/structured.ts';
+import { structuredDataFit, structuredProblem, type StructuredProblem } from '../core/inverse/structured.ts';
 import { varianceFlops, type BlockPool } from '../core/parallel/blocks.ts';
 import { computePosterior, prepareStructured } from '../core/inverse/compute.ts';
 import type { StructuredPosteriorState } from '../core/inverse/structured.ts';
-import { serialiseError, transferables, type PosteriorPartial, type WorkerReply, type ProblemView, type RequestKind, type ResultMap, type WorkerRequest } from './protocol.ts';
+import {
+  serialiseError,
+  transferables,
+  type PosteriorPartial,
+  type WorkerReply,
+  type ProblemView,
+  type RequestKind,
+  type ResultMap,
+  type WorkerRequest,
+} from './protocol.ts';
 import { isTuningRequest, runTuning } from './tuning.ts';
 
 /** Largest N for which the dense covariance is sent to the UI as a heat map. */
@@ -100,7 +100,13 @@ function sigmaOf(problem: Problem): Float64Array {
 export function problemView(
   problem: Problem,
   version: number,
-  extra: { demoId: string | null; description: string; startPrior: PriorSpec | null; truthPrior: PriorSpec | null; startRule?: string | null },
+  extra: {
+    demoId: string | null;
+    description: string;
+    startPrior: PriorSpec | null;
+    truthPrior: PriorSpec | null;
+    startRule?: string | null;
+  },
 ): ProblemView {
   const g = problem.operator;
   return {
@@ -200,7 +206,11 @@ export class Engine {
     return (await this.run(r, progress, partial)) as ResultMap[K];
   }
 
-  private async run(r: Exclude<WorkerRequest, { kind: 'cancel' }>, progress: ProgressFn, partial: PartialFn): Promise<ResultMap[RequestKind]> {
+  private async run(
+    r: Exclude<WorkerRequest, { kind: 'cancel' }>,
+    progress: ProgressFn,
+    partial: PartialFn,
+  ): Promise<ResultMap[RequestKind]> {
     // Prior selection: chunked, cancellable runs in ./tuning.ts.
     if (isTuningRequest(r)) return runTuning(this.requireProblem(r.problemVersion), r, progress);
     switch (r.kind) {
@@ -229,7 +239,10 @@ export class Engine {
           const rule = startPriorRule(r.problem, { structured: this.structured! });
           start = { startPrior: rule.prior, startRule: `${START_PRIOR_RULE_TEXT} Here: ${rule.explanation}` };
         } catch (e) {
-          start = { startPrior: null, startRule: `The starting-prior rule could not be applied (${e instanceof Error ? e.message : String(e)}); the generic prior (mean 0, variance 1) is used.` };
+          start = {
+            startPrior: null,
+            startRule: `The starting-prior rule could not be applied (${e instanceof Error ? e.message : String(e)}); the generic prior (mean 0, variance 1) is used.`,
+          };
         }
         return problemView(r.problem, r.version, { demoId: null, description: '', truthPrior: null, ...start });
       }
@@ -288,7 +301,11 @@ export class Engine {
         const n = cellCount(grid);
         const limit = r.form === undefined ? COVARIANCE_VIEW_LIMIT : COVARIANCE_EXPORT_LIMIT;
         if (n > limit) {
-          throw new InputError(r.form === undefined ? 'covariance view' : 'dense Cm export', `a grid of at most ${limit} cells (larger grids: the prior file and the production code's own assembly)`, n);
+          throw new InputError(
+            r.form === undefined ? 'covariance view' : 'dense Cm export',
+            `a grid of at most ${limit} cells (larger grids: the prior file and the production code's own assembly)`,
+            n,
+          );
         }
         const cm = covarianceMatrix(grid, r.prior);
         if (r.form !== 'cholesky') return cm;

@@ -119,7 +119,12 @@ export type WorkerRequest =
     })
   | (RequestBase & { readonly kind: 'resolution'; readonly problemVersion: number; readonly prior: PriorSpec; readonly cell: number })
   /** The dense Cm for the Prior screen's view, or for export (`form`: Cm itself or its lower Cholesky factor; larger limit). */
-  | (RequestBase & { readonly kind: 'covariance'; readonly problemVersion: number; readonly prior: PriorSpec; readonly form?: 'covariance' | 'cholesky' })
+  | (RequestBase & {
+      readonly kind: 'covariance';
+      readonly problemVersion: number;
+      readonly prior: PriorSpec;
+      readonly form?: 'covariance' | 'cholesky';
+    })
   /** Prior selection: see ./tuningProtocol.ts. */
   | TuningRequest
   /** Drop a queued request (no reply is sent for it); a running tuning request is aborted. */

@@ -33,7 +33,12 @@
 import { cellCount } from '../core/grid/grid.ts';
 import type { DataFitReference } from '../core/inverse/fitReference.ts';
 import { posteriorRealisations, posteriorSummary, preparePosterior } from '../core/inverse/posterior.ts';
-import { prepareStructuredPosterior, structuredPosteriorSummary, structuredProblem, type StructuredProblem } from '../core/inverse/structured.ts';
+import {
+  prepareStructuredPosterior,
+  structuredPosteriorSummary,
+  structuredProblem,
+  type StructuredProblem,
+} from '../core/inverse/structured.ts';
 import { structuredPosteriorDraws } from '../core/inverse/structuredDraws.ts';
 import { diagnosePriorAuto } from '../core/prior/structuredDiagnostics.ts';
 import type { PriorSpec } from '../core/prior/spec.ts';
@@ -98,7 +103,12 @@ export async function runTuning<K extends TuningRequest['kind']>(
   }
 }
 
-async function dispatch(problem: Problem, r: TuningRequest, progress: ProgressFn, signal: AbortFlag): Promise<TuningResultMap[TuningRequest['kind']]> {
+async function dispatch(
+  problem: Problem,
+  r: TuningRequest,
+  progress: ProgressFn,
+  signal: AbortFlag,
+): Promise<TuningResultMap[TuningRequest['kind']]> {
   // One spectrum cache per request, shared by its units (module comment, "Large grids").
   const structured = structuredProblem(problem);
   switch (r.kind) {
@@ -108,7 +118,12 @@ async function dispatch(problem: Problem, r: TuningRequest, progress: ProgressFn
       return profile(problem, r, progress, signal, structured);
     case 'typeII':
       progress('type-II maximum likelihood', 0);
-      return maximiseEvidence(problem, r.prior, { fixed: r.fixed, signal, structured, onProgress: (f) => progress('type-II maximum likelihood', f) });
+      return maximiseEvidence(problem, r.prior, {
+        fixed: r.fixed,
+        signal,
+        structured,
+        onProgress: (f) => progress('type-II maximum likelihood', f),
+      });
     case 'criteria':
       return priorCriteria(problem, r.prior, { structured });
     case 'calibration':
@@ -127,7 +142,8 @@ async function dispatch(problem: Problem, r: TuningRequest, progress: ProgressFn
 }
 
 function checkAxisCount(field: string, count: number): void {
-  if (!Number.isInteger(count) || count < 1 || count > MAX_AXIS_COUNT) throw new InputError(`${field}.count`, `an integer from 1 to ${MAX_AXIS_COUNT}`, count);
+  if (!Number.isInteger(count) || count < 1 || count > MAX_AXIS_COUNT)
+    throw new InputError(`${field}.count`, `an integer from 1 to ${MAX_AXIS_COUNT}`, count);
 }
 
 /** The evidence map computed one length (row) per core call, yielding between rows (module comment). */
@@ -167,10 +183,21 @@ export async function mapByRows(
   let best: EvidenceMap['best'] = null;
   for (let k = 0; k < out.length; k++) {
     const v = out[k];
-    if (Number.isFinite(v) && (best === null || v > best.logEvidence)) best = { length: lengths[Math.floor(k / nv)], variance: variances[k % nv], logEvidence: v, index: k };
+    if (Number.isFinite(v) && (best === null || v > best.logEvidence))
+      best = { length: lengths[Math.floor(k / nv)], variance: variances[k % nv], logEvidence: v, index: k };
   }
   const method: EvidenceMethod = methods.length > 0 && methods.every((m) => m === 'eigen') ? 'eigen' : 'cholesky';
-  return { term, lengths, variances, logEvidence: out, method, methodByLength: methods, best, cancelled, ...(note !== undefined ? { note } : {}) };
+  return {
+    term,
+    lengths,
+    variances,
+    logEvidence: out,
+    method,
+    methodByLength: methods,
+    best,
+    cancelled,
+    ...(note !== undefined ? { note } : {}),
+  };
 }
 
 async function profile(
@@ -203,7 +230,8 @@ async function profile(
 
 /** Replicate counts of the calibration chunks (at most 10 chunks), each with a seed (seed + k) mod 2³² that only checks the seed: replicates draw from replicateSeed streams. */
 export function calibrationChunks(replicates: number, seed: number): { replicates: number; seed: number }[] {
-  if (!Number.isInteger(replicates) || replicates < 1 || replicates > MAX_REPLICATES) throw new InputError('replicates', `an integer from 1 to ${MAX_REPLICATES}`, replicates);
+  if (!Number.isInteger(replicates) || replicates < 1 || replicates > MAX_REPLICATES)
+    throw new InputError('replicates', `an integer from 1 to ${MAX_REPLICATES}`, replicates);
   const size = Math.max(1, Math.ceil(replicates / 10));
   const out: { replicates: number; seed: number }[] = [];
   for (let done = 0, k = 0; done < replicates; k++) {
@@ -282,7 +310,15 @@ async function calibrationByChunks(
     if (k > 0) await yieldToMessages();
     if (signal.aborted) break;
     const first = done;
-    parts.push(calibrate(problem, prior, prior, { replicates: c.replicates, draws: o.draws, seed: c.seed, streamSeed: (r) => replicateSeed(o.seed, first + r), structured }));
+    parts.push(
+      calibrate(problem, prior, prior, {
+        replicates: c.replicates,
+        draws: o.draws,
+        seed: c.seed,
+        streamSeed: (r) => replicateSeed(o.seed, first + r),
+        structured,
+      }),
+    );
     done += c.replicates;
     progress(`calibration: ${done} of ${o.replicates} replicates`, done / o.replicates);
   }
@@ -320,7 +356,8 @@ function fitScores(
 }
 
 function checkCandidates(priors: readonly PriorSpec[]): void {
-  if (priors.length < 1 || priors.length > MAX_CANDIDATES) throw new InputError('candidates', `between 1 and ${MAX_CANDIDATES} pinned priors`, priors.length);
+  if (priors.length < 1 || priors.length > MAX_CANDIDATES)
+    throw new InputError('candidates', `between 1 and ${MAX_CANDIDATES} pinned priors`, priors.length);
 }
 
 /**
@@ -421,7 +458,13 @@ async function crossCalibration(
     }
     const i = Math.floor(cell / K);
     const j = cell % K;
-    const res = calibrate(problem, priors[i], priors[j], { replicates: o.replicates, draws: o.draws, seed: o.seed, streamSeed: (r) => replicateSeed(o.seed, r), structured });
+    const res = calibrate(problem, priors[i], priors[j], {
+      replicates: o.replicates,
+      draws: o.draws,
+      seed: o.seed,
+      streamSeed: (r) => replicateSeed(o.seed, r),
+      structured,
+    });
     c68[cell] = res.coverage68;
     c95[cell] = res.coverage95;
     progress(`cross-calibration: pair ${cell + 1} of ${K * K}`, (cell + 1) / (K * K));

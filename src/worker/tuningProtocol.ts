@@ -20,7 +20,16 @@ import type {
 import type { RequestBase } from './requestBase.ts';
 import type { AveragedPosterior, AveragingMap, HyperPrior } from '../core/tuning/averaged.ts';
 
-export const TUNING_KINDS = ['evidenceMap', 'evidenceProfile', 'typeII', 'criteria', 'calibration', 'candidates', 'crossCalibration', 'averaged'] as const;
+export const TUNING_KINDS = [
+  'evidenceMap',
+  'evidenceProfile',
+  'typeII',
+  'criteria',
+  'calibration',
+  'candidates',
+  'crossCalibration',
+  'averaged',
+] as const;
 export type TuningKind = (typeof TUNING_KINDS)[number];
 
 export function isTuningKind(kind: string): kind is TuningKind {
@@ -42,7 +51,8 @@ interface Simulation {
 }
 
 export type TuningRequest =
-  | (RequestBase & ForPrior & { readonly kind: 'evidenceMap'; readonly term: number; readonly lengths: LogAxis; readonly variances: LogAxis })
+  | (RequestBase &
+      ForPrior & { readonly kind: 'evidenceMap'; readonly term: number; readonly lengths: LogAxis; readonly variances: LogAxis })
   | (RequestBase & ForPrior & { readonly kind: 'evidenceProfile'; readonly which: ProfileParameter; readonly values: readonly number[] })
   | (RequestBase & ForPrior & { readonly kind: 'typeII'; readonly fixed: readonly string[] })
   | (RequestBase & ForPrior & { readonly kind: 'criteria' })

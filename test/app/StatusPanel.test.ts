@@ -6,7 +6,11 @@ describe('StatusPanel wording', () => {
   it('names the method; the FFT route shows its bracket and embedding', () => {
     expect(eigenvalueMethodText({ eigenvalueMethod: 'exact' })).toBe('all eigenvalues of the dense Cm');
     expect(eigenvalueMethodText({ eigenvalueMethod: 'lanczos' })).toMatch(/Lanczos/);
-    const t = eigenvalueMethodText({ eigenvalueMethod: 'fft-bounds', eigenvalueBounds: { lower: 0.0123, upper: 402.1 }, embeddingPadding: [128, 128] });
+    const t = eigenvalueMethodText({
+      eigenvalueMethod: 'fft-bounds',
+      eigenvalueBounds: { lower: 0.0123, upper: 402.1 },
+      embeddingPadding: [128, 128],
+    });
     expect(t).toBe('bounds from the FFT embedding (embedding 128 × 128): λ in [0.0123, 402], estimates inside');
   });
   it('three outcomes, each with the route that decided it', () => {

@@ -1,14 +1,39 @@
 import { describe, expect, it } from 'vitest';
-import { candidateRanges, clippedFraction, constantValue, DIVERGING, divergingRange, effectiveRange, SEQUENTIAL, sequentialRange, signedView, trueAspectHeight } from '../../src/app/colourScales.ts';
+import {
+  candidateRanges,
+  clippedFraction,
+  constantValue,
+  DIVERGING,
+  divergingRange,
+  effectiveRange,
+  SEQUENTIAL,
+  sequentialRange,
+  signedView,
+  trueAspectHeight,
+} from '../../src/app/colourScales.ts';
 
 describe('colour ranges', () => {
   it('a diverging range is symmetric about the prior mean and covers the largest departure of any field', () => {
     // realisation departs −3 below the mean 10, the posterior mean +1.5 above: half-width 3 on both sides
-    const r = divergingRange([[8, 7, 11], [11.5, 10]], 10);
+    const r = divergingRange(
+      [
+        [8, 7, 11],
+        [11.5, 10],
+      ],
+      10,
+    );
     expect(r).toEqual([7, 13]);
     expect((r[0] + r[1]) / 2).toBe(10);
     // every value of every field lies inside
-    expect(clippedFraction([[8, 7, 11], [11.5, 10]], r)).toBe(0);
+    expect(
+      clippedFraction(
+        [
+          [8, 7, 11],
+          [11.5, 10],
+        ],
+        r,
+      ),
+    ).toBe(0);
   });
 
   it('skips non-finite values and never returns an empty range', () => {
@@ -19,7 +44,12 @@ describe('colour ranges', () => {
   });
 
   it('a sequential range starts at 0 and ends at the largest magnitude', () => {
-    expect(sequentialRange([[0.2, 0.9], [0.4, 1.3]])).toEqual([0, 1.3]);
+    expect(
+      sequentialRange([
+        [0.2, 0.9],
+        [0.4, 1.3],
+      ]),
+    ).toEqual([0, 1.3]);
     expect(sequentialRange([[0, 0]])).toEqual([0, 1]);
   });
 
@@ -56,7 +86,14 @@ describe('colour ranges', () => {
   });
 
   it('pinned candidates share one signed range about their common constant mean and one std range', () => {
-    const a = { prior: { mean: { constant: 5 } }, signed: [[4, 6], [5, 8]], std: [0.5, 1] };
+    const a = {
+      prior: { mean: { constant: 5 } },
+      signed: [
+        [4, 6],
+        [5, 8],
+      ],
+      std: [0.5, 1],
+    };
     const b = { prior: { mean: { constant: 5 } }, signed: [[1, 5]], std: [2, 0.1] };
     const r = candidateRanges([a, b], { half: null });
     expect(r.signed).toEqual([1, 9]);

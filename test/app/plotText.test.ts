@@ -13,7 +13,11 @@ describe('plot text from files is escaped for plotly', () => {
     const z = new Float64Array([1, 2]);
     const layout = { title: { text: '<i>t</i>' }, xaxis: { title: { text: 'x <u>' }, ticktext: ['<a>'] }, height: 3 };
     const trace = { name: '<b>n</b>', z, hovertemplate: 'x %{x}<br>y<extra></extra>' };
-    expect(plotSafe(layout)).toEqual({ title: { text: '&lt;i&gt;t&lt;/i&gt;' }, xaxis: { title: { text: 'x &lt;u&gt;' }, ticktext: ['&lt;a&gt;'] }, height: 3 });
+    expect(plotSafe(layout)).toEqual({
+      title: { text: '&lt;i&gt;t&lt;/i&gt;' },
+      xaxis: { title: { text: 'x &lt;u&gt;' }, ticktext: ['&lt;a&gt;'] },
+      height: 3,
+    });
     const safe = plotSafe([trace])[0];
     expect(safe.name).toBe('&lt;b&gt;n&lt;/b&gt;');
     expect(safe.hovertemplate).toBe(trace.hovertemplate);

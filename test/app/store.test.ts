@@ -89,7 +89,9 @@ describe('store: mean first, bands later', () => {
     const s = store.getState();
     expect(s.posterior).toBe(first.result);
     expect(s.posteriorPartial).toBe(second.partial);
-    expect(s.errors.posterior).toBe('the uncertainty bands could not be computed (out of memory); the posterior mean is shown without them');
+    expect(s.errors.posterior).toBe(
+      'the uncertainty bands could not be computed (out of memory); the posterior mean is shown without them',
+    );
     expect(view(s).bands).toBe('failed');
     expect(view(s).shown!.mean).toBe(second.partial.mean);
     expect(bandsText('failed')).toMatch(/^Uncertainty bands: not available/);

@@ -149,10 +149,15 @@ function printTable(rows: CaseResult[]): void {
     fmt(r.ratio, 2),
     fmt(r.gflops_ours, 2),
     fmt(r.gflops_scipy, 2),
-    r.extra ? Object.entries(r.extra).map(([k, v]) => `${k} ${Number.isInteger(v) ? v : v.toPrecision(4)}`).join(', ') : '',
+    r.extra
+      ? Object.entries(r.extra)
+          .map(([k, v]) => `${k} ${Number.isInteger(v) ? v : v.toPrecision(4)}`)
+          .join(', ')
+      : '',
   ]);
   const widths = header.map((h, k) => Math.max(h.length, ...body.map((b) => b[k].length)));
-  const line = (cells: string[]) => cells.map((c, k) => (k === 0 || k === cells.length - 1 ? c.padEnd(widths[k]) : c.padStart(widths[k]))).join('  ');
+  const line = (cells: string[]) =>
+    cells.map((c, k) => (k === 0 || k === cells.length - 1 ? c.padEnd(widths[k]) : c.padStart(widths[k]))).join('  ');
   console.log(line(header));
   console.log(widths.map((w) => '-'.repeat(w)).join('  '));
   for (const b of body) console.log(line(b));

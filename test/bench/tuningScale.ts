@@ -57,7 +57,12 @@ async function measure(n: number, runs: number, routes: TuningRoute[]): Promise<
     r.projectionCached = await time(runs, () => projectedPriorCovariance(problem, prior, { route, structured: holder }));
     let best = '';
     r.evidenceMap16x16 = await time(1, () => {
-      const m = evidenceMap(problem, prior, { term: 0, route, lengths: { min: 0.2 * l, max: 5 * l, count: 16 }, variances: { min: 0.01, max: 100, count: 16 } });
+      const m = evidenceMap(problem, prior, {
+        term: 0,
+        route,
+        lengths: { min: 0.2 * l, max: 5 * l, count: 16 },
+        variances: { min: 0.01, max: 100, count: 16 },
+      });
       best = `length ${m.best!.length.toFixed(3)}, variance ${m.best!.variance.toFixed(4)}`;
     });
     r.evidenceMapBest = best;
@@ -66,10 +71,11 @@ async function measure(n: number, runs: number, routes: TuningRoute[]): Promise<
     r.typeIIPerEvaluation = await time(runs, () => evidenceGradient(problem, prior, params, side));
     let fit = '';
     // The full fit on the dense route at 64² would take minutes (see typeIIPerEvaluation).
-    if (route === 'fft') r.typeII = await time(1, () => {
-      const f = maximiseEvidence(problem, prior, { route, fixed: fixedNu(prior), maxIterations: 100 });
-      fit = `${f.iterations} iterations, ${f.evaluations} evaluations, converged ${f.converged}`;
-    });
+    if (route === 'fft')
+      r.typeII = await time(1, () => {
+        const f = maximiseEvidence(problem, prior, { route, fixed: fixedNu(prior), maxIterations: 100 });
+        fit = `${f.iterations} iterations, ${f.evaluations} evaluations, converged ${f.converged}`;
+      });
     if (fit !== '') r.typeIIDetail = fit;
     process.stderr.write(`${n} ${route}: map and type-II done\n`);
     const other: PriorSpec = { ...prior, terms: [patchTerm(prior.terms[0], { length: l / 2 })] };
@@ -88,7 +94,9 @@ async function measure(n: number, runs: number, routes: TuningRoute[]): Promise<
         }
       });
     }
-    r.calibration20x9 = await time(1, () => calibrate(problem, { ...prior, nugget: 1e-6 }, { ...prior, nugget: 1e-6 }, { replicates: 20, draws: 9, seed: 3, route }));
+    r.calibration20x9 = await time(1, () =>
+      calibrate(problem, { ...prior, nugget: 1e-6 }, { ...prior, nugget: 1e-6 }, { replicates: 20, draws: 9, seed: 3, route }),
+    );
     out[route] = r;
   }
   return out;

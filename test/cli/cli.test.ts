@@ -20,10 +20,22 @@ const PROBLEM = {
   version: 1,
   title: 'invented averaging line',
   grid: { shape: [6], spacing: [1], unit: 'm' },
-  operator: { dense: [[0.5, 0.5, 0, 0, 0, 0], [0, 0, 0.5, 0.5, 0, 0], [0, 0, 0, 0, 0.5, 0.5]] },
+  operator: {
+    dense: [
+      [0.5, 0.5, 0, 0, 0, 0],
+      [0, 0, 0.5, 0.5, 0, 0],
+      [0, 0, 0, 0, 0.5, 0.5],
+    ],
+  },
   data: { values: [1.2, 0.4, -0.3], sigma: [0.1, 0.1, 0.2] },
 };
-const PRIOR = { kind: 'priorscope.prior', version: 1, mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length: 2 }], nugget: 0.001 };
+const PRIOR = {
+  kind: 'priorscope.prior',
+  version: 1,
+  mean: { constant: 0 },
+  terms: [{ kernel: 'exponential', variance: 1, length: 2 }],
+  nugget: 0.001,
+};
 const with_ = (base: object, patch: Record<string, unknown>) => ({ ...base, ...patch });
 
 let dir: string;
@@ -42,7 +54,11 @@ function expectBadInput(r: RunResult, line: string): void {
 
 describe('help', () => {
   it('npx priorscope --help lists every command (through package.json "bin")', () => {
-    const out = execFileSync('npx', ['--no-install', 'priorscope', '--help'], { cwd: repoRoot, encoding: 'utf8', env: { ...process.env, PRIORSCOPE_CLI_SOURCE: '1' } });
+    const out = execFileSync('npx', ['--no-install', 'priorscope', '--help'], {
+      cwd: repoRoot,
+      encoding: 'utf8',
+      env: { ...process.env, PRIORSCOPE_CLI_SOURCE: '1' },
+    });
     for (const c of ['posterior', 'check', 'sample', 'correlation', 'tune', 'demo']) expect(out).toMatch(new RegExp(`^  ${c} `, 'm'));
   });
   it.each(['posterior', 'check', 'sample', 'correlation', 'tune', 'demo'])('%s --help describes its usage and options', async (c) => {
@@ -57,7 +73,10 @@ describe('help', () => {
     expect(r.err).toContain('Usage: priorscope <command>');
     const names = COMMANDS.map((c) => c.name);
     expect(names.slice(0, 3)).toEqual(['posterior', 'check', 'sample']);
-    expectBadInput(await runCommand(['posterier'], dir), `priorscope: unknown command "posterier"; commands: ${names.join(', ')} (see priorscope --help)`);
+    expectBadInput(
+      await runCommand(['posterier'], dir),
+      `priorscope: unknown command "posterier"; commands: ${names.join(', ')} (see priorscope --help)`,
+    );
   });
 });
 
@@ -84,14 +103,35 @@ describe('correlation', () => {
     expect(j.values[0]).toBeCloseTo(0.483358, 6);
   });
   it.each([
-    [['--kernel', 'cubic', '--lags', '1'], 'priorscope correlation: --kernel must be one of exponential, gaussian, matern, spherical, got "cubic" (see priorscope correlation --help)'],
-    [['--kernel', 'matern', '--lags', '1'], 'priorscope correlation: --nu V is required for the matern kernel (smoothness ν > 0) (see priorscope correlation --help)'],
-    [['--kernel', 'matern', '--nu', '0', '--lags', '1'], 'priorscope correlation: --nu must be a finite number > 0, got "0" (see priorscope correlation --help)'],
-    [['--kernel', 'matern', '--nu', '-1', '--lags', '1'], 'priorscope correlation: --nu must be a finite number > 0, got "-1" (see priorscope correlation --help)'],
-    [['--kernel', 'gaussian', '--lags', '0,-1'], 'priorscope correlation: --lags item 2 must be a finite number ≥ 0, got "-1" (see priorscope correlation --help)'],
-    [['--kernel', 'gaussian', '--lags', '0,NaN'], 'priorscope correlation: --lags item 2 must be a finite number ≥ 0, got "NaN" (see priorscope correlation --help)'],
+    [
+      ['--kernel', 'cubic', '--lags', '1'],
+      'priorscope correlation: --kernel must be one of exponential, gaussian, matern, spherical, got "cubic" (see priorscope correlation --help)',
+    ],
+    [
+      ['--kernel', 'matern', '--lags', '1'],
+      'priorscope correlation: --nu V is required for the matern kernel (smoothness ν > 0) (see priorscope correlation --help)',
+    ],
+    [
+      ['--kernel', 'matern', '--nu', '0', '--lags', '1'],
+      'priorscope correlation: --nu must be a finite number > 0, got "0" (see priorscope correlation --help)',
+    ],
+    [
+      ['--kernel', 'matern', '--nu', '-1', '--lags', '1'],
+      'priorscope correlation: --nu must be a finite number > 0, got "-1" (see priorscope correlation --help)',
+    ],
+    [
+      ['--kernel', 'gaussian', '--lags', '0,-1'],
+      'priorscope correlation: --lags item 2 must be a finite number ≥ 0, got "-1" (see priorscope correlation --help)',
+    ],
+    [
+      ['--kernel', 'gaussian', '--lags', '0,NaN'],
+      'priorscope correlation: --lags item 2 must be a finite number ≥ 0, got "NaN" (see priorscope correlation --help)',
+    ],
     [['--kernel', 'gaussian'], 'priorscope correlation: option --lags H1,H2,… is required (see priorscope correlation --help)'],
-    [['--kernel', 'gaussian', '--lags', '1', '--bogus'], 'priorscope correlation: unknown option --bogus (see priorscope correlation --help)'],
+    [
+      ['--kernel', 'gaussian', '--lags', '1', '--bogus'],
+      'priorscope correlation: unknown option --bogus (see priorscope correlation --help)',
+    ],
   ])('bad input %j', async (args, line) => {
     expectBadInput(await runCommand(['correlation', ...args], dir), line);
   });
@@ -103,7 +143,8 @@ describe('posterior and check', () => {
     expect(r.code, r.err).toBe(0);
     expect(r.err).toBe('');
     const j = JSON.parse(r.out) as Record<string, unknown>;
-    for (const k of ['mean', 'std', 'predicted', 'residuals', 'chi2', 'logEvidence', 'dataCount', 'parameterCount', 'path']) expect(j).toHaveProperty(k);
+    for (const k of ['mean', 'std', 'predicted', 'residuals', 'chi2', 'logEvidence', 'dataCount', 'parameterCount', 'path'])
+      expect(j).toHaveProperty(k);
     expect(j.dataCount).toBe(3);
     expect(j.parameterCount).toBe(6);
     expect((j.mean as number[]).length).toBe(6);
@@ -111,13 +152,18 @@ describe('posterior and check', () => {
     // residuals are (d − G m̃)/σ and chi2 their sum of squares.
     const pred = j.predicted as number[];
     res.forEach((v, i) => expect(v).toBeCloseTo((PROBLEM.data.values[i] - pred[i]) / PROBLEM.data.sigma[i], 12));
-    expect(j.chi2 as number).toBeCloseTo(res.reduce((a, b) => a + b * b, 0), 12);
+    expect(j.chi2 as number).toBeCloseTo(
+      res.reduce((a, b) => a + b * b, 0),
+      12,
+    );
   });
   it('--out writes the same JSON to a file and nothing to stdout', async () => {
     const r = await runCommand(['posterior', '--problem', 'p.json', '--prior', 'q.json', '--out', 'post.json'], dir);
     expect(r.code).toBe(0);
     expect(r.out).toBe('');
-    expect(readFileSync(join(dir, 'post.json'), 'utf8')).toBe((await runCommand(['posterior', '--problem', 'p.json', '--prior', 'q.json'], dir)).out);
+    expect(readFileSync(join(dir, 'post.json'), 'utf8')).toBe(
+      (await runCommand(['posterior', '--problem', 'p.json', '--prior', 'q.json'], dir)).out,
+    );
   });
   it('check: positive definite → exit 0', async () => {
     const r = await runCommand(['check', '--problem', 'p.json', '--prior', 'q.json'], dir);
@@ -132,7 +178,10 @@ describe('posterior and check', () => {
     // length 40 on 120 cells of spacing 1 its eigenvalues fall far below round-off.
     const d = tempDir();
     writeFiles(d, {
-      'p.json': with_(PROBLEM, { grid: { shape: [120], spacing: [1] }, operator: { sparse: { rows: [0, 1, 2], cols: [10, 60, 110], values: [1, 1, 1] } } }),
+      'p.json': with_(PROBLEM, {
+        grid: { shape: [120], spacing: [1] },
+        operator: { sparse: { rows: [0, 1, 2], cols: [10, 60, 110], values: [1, 1, 1] } },
+      }),
       'q.json': with_(PRIOR, { terms: [{ kernel: 'gaussian', variance: 1, length: 40 }], nugget: 0 }),
     });
     const r = await runCommand(['check', '--problem', 'p.json', '--prior', 'q.json'], d);
@@ -163,25 +212,104 @@ describe('posterior and check', () => {
 describe('bad input files: exit 2, one line naming file, field and expectation', () => {
   const P = PROBLEM;
   const cases: [string, Record<string, unknown>, string][] = [
-    ['not JSON', { 'p.json': '{"kind": "priorscope.problem", ' }, 'p.json: is not valid JSON: line 1, column 32: expected a double-quoted field name, got the end of the file'],
-    ['wrong kind', { 'p.json': with_(P, { kind: 'priorscope.prior' }) }, 'p.json: kind must be "priorscope.problem" (this is a prior file), got "priorscope.prior"'],
+    [
+      'not JSON',
+      { 'p.json': '{"kind": "priorscope.problem", ' },
+      'p.json: is not valid JSON: line 1, column 32: expected a double-quoted field name, got the end of the file',
+    ],
+    [
+      'wrong kind',
+      { 'p.json': with_(P, { kind: 'priorscope.prior' }) },
+      'p.json: kind must be "priorscope.problem" (this is a prior file), got "priorscope.prior"',
+    ],
     ['wrong version', { 'p.json': with_(P, { version: 3 }) }, 'p.json: version must be 1 (the version this program reads), got 3'],
     ['missing field', { 'p.json': with_(P, { grid: undefined }) }, 'p.json: grid must be an object with shape and spacing, got nothing'],
-    ['G against grid', { 'p.json': with_(P, { grid: { shape: [5], spacing: [1] } }) }, 'p.json: operator.dense[0] must be an array of 5 numbers (one per grid cell), got an array of length 6'],
-    ['G against data', { 'p.json': with_(P, { data: { values: [1, 2], sigma: [1, 1] } }) }, 'p.json: operator.dense must be an array of 2 rows (one per datum in data.values), got an array of length 3'],
-    ['NaN', { 'p.json': JSON.stringify(P).replace('-0.3', 'NaN') }, `p.json: is not valid JSON: line 1, column ${JSON.stringify(P).indexOf('-0.3') + 1}: NaN and Infinity are not JSON numbers; every number must be finite`],
-    ['Infinity', { 'p.json': JSON.stringify(P).replace('0.4', 'Infinity') }, `p.json: is not valid JSON: line 1, column ${JSON.stringify(P).indexOf('0.4,') + 1}: NaN and Infinity are not JSON numbers; every number must be finite`],
-    ['string number', { 'p.json': with_(P, { data: { values: [1, '2', 3], sigma: [1, 1, 1] } }) }, 'p.json: data.values[1] must be a finite number, got "2"'],
-    ['negative sigma', { 'p.json': with_(P, { data: { values: [1, 2, 3], sigma: [1, 1, -1] } }) }, 'p.json: data.sigma[2] must be > 0, got -1'],
-    ['non-PD data covariance', { 'p.json': with_(P, { data: { values: [1, 2, 3], covariance: [[1, 0, 0], [0, 1, 1.5], [0, 1.5, 1]] } }) }, 'p.json: data.covariance must be positive definite, got a matrix whose Cholesky factorisation fails at row 2 (pivot -1.25)'],
-    ['missing referenced file', { 'p.json': with_(P, { operator: { file: 'G.npy' } }) }, `p.json: operator.file "G.npy" could not be read: no such file (${'DIR'}/G.npy)`],
-    ['unreadable referenced file', { 'p.json': with_(P, { operator: { file: 'G.npy' } }), 'G.npy': 'this is text' }, 'G.npy: is not a NumPy .npy file (it does not start with the bytes "\\x93NUMPY")'],
-    ['bad referenced CSV', { 'p.json': with_(P, { operator: { file: 'G.csv' } }), 'G.csv': '1,2,3,4,5,6\n1,2,3,4,5\n' }, 'G.csv: line 2 has 5 columns, expected 6 (as in line 1)'],
-    ['negative variance', { 'q.json': with_(PRIOR, { terms: [{ kernel: 'gaussian', variance: -2, length: 1 }] }) }, 'q.json: terms[0].variance must be > 0, got -2'],
-    ['unknown kernel', { 'q.json': with_(PRIOR, { terms: [{ kernel: 'hole', variance: 1, length: 1 }] }) }, 'q.json: terms[0].kernel must be one of "exponential", "gaussian", "matern", "spherical", got "hole"'],
-    ['ν ≤ 0', { 'q.json': with_(PRIOR, { terms: [{ kernel: 'matern', variance: 1, length: 1, nu: 0 }] }) }, 'q.json: terms[0].nu must be > 0, got 0'],
-    ['prior mean length', { 'q.json': with_(PRIOR, { mean: { values: [1, 2] } }) }, 'q.json: mean.values must be an array of 6 numbers (one per grid cell), got an array of length 2'],
-    ['prior not JSON', { 'q.json': 'mean: 0' }, 'q.json: is not valid JSON: line 1, column 1: expected a value (number, string, array, object, true, false or null), got "mean: 0"'],
+    [
+      'G against grid',
+      { 'p.json': with_(P, { grid: { shape: [5], spacing: [1] } }) },
+      'p.json: operator.dense[0] must be an array of 5 numbers (one per grid cell), got an array of length 6',
+    ],
+    [
+      'G against data',
+      { 'p.json': with_(P, { data: { values: [1, 2], sigma: [1, 1] } }) },
+      'p.json: operator.dense must be an array of 2 rows (one per datum in data.values), got an array of length 3',
+    ],
+    [
+      'NaN',
+      { 'p.json': JSON.stringify(P).replace('-0.3', 'NaN') },
+      `p.json: is not valid JSON: line 1, column ${JSON.stringify(P).indexOf('-0.3') + 1}: NaN and Infinity are not JSON numbers; every number must be finite`,
+    ],
+    [
+      'Infinity',
+      { 'p.json': JSON.stringify(P).replace('0.4', 'Infinity') },
+      `p.json: is not valid JSON: line 1, column ${JSON.stringify(P).indexOf('0.4,') + 1}: NaN and Infinity are not JSON numbers; every number must be finite`,
+    ],
+    [
+      'string number',
+      { 'p.json': with_(P, { data: { values: [1, '2', 3], sigma: [1, 1, 1] } }) },
+      'p.json: data.values[1] must be a finite number, got "2"',
+    ],
+    [
+      'negative sigma',
+      { 'p.json': with_(P, { data: { values: [1, 2, 3], sigma: [1, 1, -1] } }) },
+      'p.json: data.sigma[2] must be > 0, got -1',
+    ],
+    [
+      'non-PD data covariance',
+      {
+        'p.json': with_(P, {
+          data: {
+            values: [1, 2, 3],
+            covariance: [
+              [1, 0, 0],
+              [0, 1, 1.5],
+              [0, 1.5, 1],
+            ],
+          },
+        }),
+      },
+      'p.json: data.covariance must be positive definite, got a matrix whose Cholesky factorisation fails at row 2 (pivot -1.25)',
+    ],
+    [
+      'missing referenced file',
+      { 'p.json': with_(P, { operator: { file: 'G.npy' } }) },
+      `p.json: operator.file "G.npy" could not be read: no such file (${'DIR'}/G.npy)`,
+    ],
+    [
+      'unreadable referenced file',
+      { 'p.json': with_(P, { operator: { file: 'G.npy' } }), 'G.npy': 'this is text' },
+      'G.npy: is not a NumPy .npy file (it does not start with the bytes "\\x93NUMPY")',
+    ],
+    [
+      'bad referenced CSV',
+      { 'p.json': with_(P, { operator: { file: 'G.csv' } }), 'G.csv': '1,2,3,4,5,6\n1,2,3,4,5\n' },
+      'G.csv: line 2 has 5 columns, expected 6 (as in line 1)',
+    ],
+    [
+      'negative variance',
+      { 'q.json': with_(PRIOR, { terms: [{ kernel: 'gaussian', variance: -2, length: 1 }] }) },
+      'q.json: terms[0].variance must be > 0, got -2',
+    ],
+    [
+      'unknown kernel',
+      { 'q.json': with_(PRIOR, { terms: [{ kernel: 'hole', variance: 1, length: 1 }] }) },
+      'q.json: terms[0].kernel must be one of "exponential", "gaussian", "matern", "spherical", got "hole"',
+    ],
+    [
+      'ν ≤ 0',
+      { 'q.json': with_(PRIOR, { terms: [{ kernel: 'matern', variance: 1, length: 1, nu: 0 }] }) },
+      'q.json: terms[0].nu must be > 0, got 0',
+    ],
+    [
+      'prior mean length',
+      { 'q.json': with_(PRIOR, { mean: { values: [1, 2] } }) },
+      'q.json: mean.values must be an array of 6 numbers (one per grid cell), got an array of length 2',
+    ],
+    [
+      'prior not JSON',
+      { 'q.json': 'mean: 0' },
+      'q.json: is not valid JSON: line 1, column 1: expected a value (number, string, array, object, true, false or null), got "mean: 0"',
+    ],
   ];
   it.each(cases)('%s', async (_name, files, line) => {
     const d = tempDir();
@@ -196,12 +324,24 @@ describe('bad input files: exit 2, one line naming file, field and expectation',
     const d = tempDir();
     writeFiles(d, { 'q.json': PRIOR, 'big.json': '{}' });
     truncateSync(join(d, 'big.json'), MAX_FILE_BYTES + 1);
-    expectBadInput(await runCommand(['posterior', '--problem', 'big.json', '--prior', 'q.json'], d), 'big.json: file is 512.0 MiB, larger than the limit of 512 MiB');
+    expectBadInput(
+      await runCommand(['posterior', '--problem', 'big.json', '--prior', 'q.json'], d),
+      'big.json: file is 512.0 MiB, larger than the limit of 512 MiB',
+    );
   });
   it('a missing problem file, a directory, and a missing option', async () => {
-    expectBadInput(await runCommand(['posterior', '--problem', 'none.json', '--prior', 'q.json'], dir), 'none.json: cannot be read: no such file');
-    expectBadInput(await runCommand(['posterior', '--problem', '.', '--prior', 'q.json'], dir), '.: cannot be read: it is a directory, not a file');
-    expectBadInput(await runCommand(['posterior', '--problem', 'p.json'], dir), 'priorscope posterior: option --prior Q.json is required (see priorscope posterior --help)');
+    expectBadInput(
+      await runCommand(['posterior', '--problem', 'none.json', '--prior', 'q.json'], dir),
+      'none.json: cannot be read: no such file',
+    );
+    expectBadInput(
+      await runCommand(['posterior', '--problem', '.', '--prior', 'q.json'], dir),
+      '.: cannot be read: it is a directory, not a file',
+    );
+    expectBadInput(
+      await runCommand(['posterior', '--problem', 'p.json'], dir),
+      'priorscope posterior: option --prior Q.json is required (see priorscope posterior --help)',
+    );
   });
 });
 
@@ -246,8 +386,14 @@ describe('sample', () => {
   it.each([
     [['--count', '0', '--seed', '1'], 'priorscope sample: --count must be an integer ≥ 1, got "0" (see priorscope sample --help)'],
     [['--count', '2.5', '--seed', '1'], 'priorscope sample: --count must be an integer ≥ 1, got "2.5" (see priorscope sample --help)'],
-    [['--count', '2', '--seed', '-1'], 'priorscope sample: --seed must be an integer from 0 to 4294967295, got "-1" (see priorscope sample --help)'],
-    [['--count', '2', '--seed', '1', '--format', 'xml'], 'priorscope sample: --format must be one of json, csv, npy, got "xml" (see priorscope sample --help)'],
+    [
+      ['--count', '2', '--seed', '-1'],
+      'priorscope sample: --seed must be an integer from 0 to 4294967295, got "-1" (see priorscope sample --help)',
+    ],
+    [
+      ['--count', '2', '--seed', '1', '--format', 'xml'],
+      'priorscope sample: --format must be one of json, csv, npy, got "xml" (see priorscope sample --help)',
+    ],
     [['--count', '2'], 'priorscope sample: option --seed S is required (see priorscope sample --help)'],
   ])('bad options %j', async (args, line) => {
     expectBadInput(await runCommand(['sample', '--problem', 'p.json', '--prior', 'q.json', ...args], dir), line);
@@ -256,7 +402,10 @@ describe('sample', () => {
 
 describe('tune and demo', () => {
   it('tune prints the evidence grid and its maximum', async () => {
-    const r = await runCommand(['tune', '--problem', 'p.json', '--prior', 'q.json', '--term', '0', '--lengths', '0.5:8:4', '--variances', '0.1:10:3'], dir);
+    const r = await runCommand(
+      ['tune', '--problem', 'p.json', '--prior', 'q.json', '--term', '0', '--lengths', '0.5:8:4', '--variances', '0.1:10:3'],
+      dir,
+    );
     expect(r.code, r.err).toBe(0);
     const j = JSON.parse(r.out) as { lengths: number[]; variances: number[]; logEvidence: number[][]; best: { logEvidence: number } };
     expect(j.lengths).toHaveLength(4);
@@ -265,10 +414,22 @@ describe('tune and demo', () => {
     expect(j.best.logEvidence).toBe(Math.max(...j.logEvidence.flat()));
   });
   it.each([
-    [['--term', '1', '--lengths', '1:2:2', '--variances', '1:2:2'], 'priorscope tune: --term must be an integer from 0 to 0 (the prior has 1 term), got "1" (see priorscope tune --help)'],
-    [['--term', '0', '--lengths', '2:1:2', '--variances', '1:2:2'], 'priorscope tune: --lengths must be lo:hi:n with 0 < lo ≤ hi and n an integer from 1 to 10000, got "2:1:2" (see priorscope tune --help)'],
-    [['--term', '0', '--lengths', '1:2', '--variances', '1:2:2'], 'priorscope tune: --lengths must be lo:hi:n with 0 < lo ≤ hi and n an integer from 1 to 10000, got "1:2" (see priorscope tune --help)'],
-    [['--term', '0', '--lengths', '1:2:2', '--variances', '0:2:2'], 'priorscope tune: --variances must be lo:hi:n with 0 < lo ≤ hi and n an integer from 1 to 10000, got "0:2:2" (see priorscope tune --help)'],
+    [
+      ['--term', '1', '--lengths', '1:2:2', '--variances', '1:2:2'],
+      'priorscope tune: --term must be an integer from 0 to 0 (the prior has 1 term), got "1" (see priorscope tune --help)',
+    ],
+    [
+      ['--term', '0', '--lengths', '2:1:2', '--variances', '1:2:2'],
+      'priorscope tune: --lengths must be lo:hi:n with 0 < lo ≤ hi and n an integer from 1 to 10000, got "2:1:2" (see priorscope tune --help)',
+    ],
+    [
+      ['--term', '0', '--lengths', '1:2', '--variances', '1:2:2'],
+      'priorscope tune: --lengths must be lo:hi:n with 0 < lo ≤ hi and n an integer from 1 to 10000, got "1:2" (see priorscope tune --help)',
+    ],
+    [
+      ['--term', '0', '--lengths', '1:2:2', '--variances', '0:2:2'],
+      'priorscope tune: --variances must be lo:hi:n with 0 < lo ≤ hi and n an integer from 1 to 10000, got "0:2:2" (see priorscope tune --help)',
+    ],
   ])('tune bad options %j', async (args, line) => {
     expectBadInput(await runCommand(['tune', '--problem', 'p.json', '--prior', 'q.json', ...args], dir), line);
   });
@@ -281,7 +442,9 @@ describe('tune and demo', () => {
   });
   it('demo NAME writes files that the other commands read; a sibling operator file gives the same posterior', async () => {
     const d = tempDir();
-    expect((await runCommand(['demo', 'borehole-log', '--out', 'b.json', '--prior', 'bq.json', '--truth-prior', 'bt.json'], d)).code).toBe(0);
+    expect((await runCommand(['demo', 'borehole-log', '--out', 'b.json', '--prior', 'bq.json', '--truth-prior', 'bt.json'], d)).code).toBe(
+      0,
+    );
     expect((await runCommand(['demo', 'borehole-log', '--out', 'b2.json', '--operator-file', 'G.mtx'], d)).code).toBe(0);
     const a = await runCommand(['posterior', '--problem', 'b.json', '--prior', 'bq.json'], d);
     const b = await runCommand(['posterior', '--problem', 'b2.json', '--prior', 'bq.json'], d);
@@ -293,7 +456,10 @@ describe('tune and demo', () => {
     expect((await runCommand(['demo', 'borehole-log'], d)).out).toBe(readFileSync(join(d, 'b.json'), 'utf8'));
   });
   it('demo with an unknown name is bad input', async () => {
-    expectBadInput(await runCommand(['demo', 'volcano'], dir), 'priorscope demo: demo name must be one of borehole-log, crosshole-tomography, potential-field, got "volcano" (see priorscope demo --help)');
+    expectBadInput(
+      await runCommand(['demo', 'volcano'], dir),
+      'priorscope demo: demo name must be one of borehole-log, crosshole-tomography, potential-field, got "volcano" (see priorscope demo --help)',
+    );
   });
 });
 
@@ -319,7 +485,10 @@ describe('the real binary gives the same exit codes and bytes as main() in proce
   it('check on a prior that is not positive definite: exit 3', () => {
     const d = tempDir();
     writeFiles(d, {
-      'p.json': with_(PROBLEM, { grid: { shape: [120], spacing: [1] }, operator: { sparse: { rows: [0, 1, 2], cols: [10, 60, 110], values: [1, 1, 1] } } }),
+      'p.json': with_(PROBLEM, {
+        grid: { shape: [120], spacing: [1] },
+        operator: { sparse: { rows: [0, 1, 2], cols: [10, 60, 110], values: [1, 1, 1] } },
+      }),
       'q.json': with_(PRIOR, { terms: [{ kernel: 'gaussian', variance: 1, length: 40 }], nugget: 0 }),
     });
     const r = runCli(['check', '--problem', 'p.json', '--prior', 'q.json'], d);

@@ -17,7 +17,14 @@ beforeAll(async () => {
 it('posterior prints chi2Expected, chi2Interval95 and chi2TailProbability, consistent with each other and with tr R', async () => {
   const r = await runCommand(['posterior', '--problem', 'p.json', '--prior', 'q.json'], dir);
   expect(r.code, r.err).toBe(0);
-  const j = JSON.parse(r.out) as { chi2: number; chi2Expected: number; chi2Interval95: [number, number]; chi2TailProbability: number; dataCount: number; resolutionTrace: number };
+  const j = JSON.parse(r.out) as {
+    chi2: number;
+    chi2Expected: number;
+    chi2Interval95: [number, number];
+    chi2TailProbability: number;
+    dataCount: number;
+    resolutionTrace: number;
+  };
   expect(Math.abs(j.chi2Expected - (j.dataCount - j.resolutionTrace))).toBeLessThanOrEqual(1e-9 * j.dataCount);
   expect(j.chi2Interval95[0]).toBeLessThan(j.chi2Expected);
   expect(j.chi2Interval95[1]).toBeGreaterThan(j.chi2Expected);

@@ -127,7 +127,13 @@ describe('data × cells and map size limits', () => {
       kind: 'priorscope.problem',
       version: 1,
       grid: { shape: [1000, 1000], spacing: [1, 1] },
-      operator: { sparse: { rows: Array.from({ length: m }, (_, i) => i), cols: Array.from({ length: m }, (_, i) => i * 7), values: Array(m).fill(1) } },
+      operator: {
+        sparse: {
+          rows: Array.from({ length: m }, (_, i) => i),
+          cols: Array.from({ length: m }, (_, i) => i * 7),
+          values: Array(m).fill(1),
+        },
+      },
       data: { values: Array(m).fill(1), sigma: Array(m).fill(0.1) },
     };
     writeFileSync(join(dir, 'p.json'), JSON.stringify(problem));
@@ -141,7 +147,10 @@ describe('data × cells and map size limits', () => {
 
   it('tune refuses a map beyond 10⁶ cells before loading the files', async () => {
     const dir = tempDir();
-    const r = await runCommand(['tune', '--problem', 'missing.json', '--prior', 'q.json', '--term', '0', '--lengths', '1:10:2000', '--variances', '1:10:1000'], dir);
+    const r = await runCommand(
+      ['tune', '--problem', 'missing.json', '--prior', 'q.json', '--term', '0', '--lengths', '1:10:2000', '--variances', '1:10:1000'],
+      dir,
+    );
     expect(r.code).toBe(2);
     expect(r.err).toContain('the evidence map would have 2000 × 1000 = 2000000 cells, more than the limit of 1000000');
   });

@@ -14,7 +14,10 @@ import { repoRoot, runCommand, tempDir } from './run.ts';
 describe('packed tarball installed into a temporary prefix', () => {
   it('packs with the bundle, installs, and runs --help and posterior from another folder', { timeout: 300_000 }, async () => {
     const work = tempDir();
-    const packed = execFileSync('npm', ['pack', '--silent', '--pack-destination', work], { cwd: repoRoot, encoding: 'utf8' }).trim().split('\n').pop()!;
+    const packed = execFileSync('npm', ['pack', '--silent', '--pack-destination', work], { cwd: repoRoot, encoding: 'utf8' })
+      .trim()
+      .split('\n')
+      .pop()!;
     const tarball = join(work, packed);
     expect(existsSync(tarball), packed).toBe(true);
     const listing = execFileSync('tar', ['-tzf', tarball], { encoding: 'utf8' }).split('\n');
@@ -25,10 +28,14 @@ describe('packed tarball installed into a temporary prefix', () => {
 
     const prefix = join(work, 'prefix');
     // --offline: the package has no dependencies (the command line is one bundle), so it installs without a registry.
-    execFileSync('npm', ['install', '-g', '--prefix', prefix, '--ignore-scripts', '--offline', '--no-audit', '--no-fund', '--silent', tarball], {
-      cwd: work,
-      encoding: 'utf8',
-    });
+    execFileSync(
+      'npm',
+      ['install', '-g', '--prefix', prefix, '--ignore-scripts', '--offline', '--no-audit', '--no-fund', '--silent', tarball],
+      {
+        cwd: work,
+        encoding: 'utf8',
+      },
+    );
     const bin = join(prefix, 'bin', 'priorscope');
     const installed = join(prefix, 'lib', 'node_modules', 'priorscope');
     expect(existsSync(join(installed, 'node_modules'))).toBe(false);
@@ -40,7 +47,11 @@ describe('packed tarball installed into a temporary prefix', () => {
     expect(help.stderr).toBe(''); // no "running the TypeScript sources" note: the bundle ran
     for (const c of ['posterior', 'check', 'sample', 'tune', 'demo']) expect(help.stdout).toMatch(new RegExp(`^  ${c} `, 'm'));
 
-    const demo = spawnSync(bin, ['demo', 'crosshole-tomography', '--out', 'p.json', '--prior', 'q.json'], { cwd: elsewhere, encoding: 'utf8', env });
+    const demo = spawnSync(bin, ['demo', 'crosshole-tomography', '--out', 'p.json', '--prior', 'q.json'], {
+      cwd: elsewhere,
+      encoding: 'utf8',
+      env,
+    });
     expect(demo.status, demo.stderr).toBe(0);
     const args = ['posterior', '--problem', 'p.json', '--prior', 'q.json', '--threads', '2'];
     const post = spawnSync(bin, args, { cwd: elsewhere, env, maxBuffer: 1 << 26 });

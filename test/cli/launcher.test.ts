@@ -26,7 +26,10 @@ beforeEach(() => {
 });
 
 function run(env: Record<string, string> = {}) {
-  const r = spawnSync(process.execPath, [join(pkg, 'src', 'cli', 'bin.mjs'), 'x', '--y'], { encoding: 'utf8', env: { ...process.env, PRIORSCOPE_CLI_SOURCE: '', ...env } });
+  const r = spawnSync(process.execPath, [join(pkg, 'src', 'cli', 'bin.mjs'), 'x', '--y'], {
+    encoding: 'utf8',
+    env: { ...process.env, PRIORSCOPE_CLI_SOURCE: '', ...env },
+  });
   return { code: r.status, out: r.stdout, err: r.stderr };
 }
 
@@ -39,7 +42,9 @@ describe('the priorscope launcher (src/cli/bin.mjs)', () => {
     const r = run();
     expect(r.out).toBe('sources x --y');
     expect(r.code).toBe(7);
-    expect(r.err).toBe('priorscope: running the TypeScript sources through tsx (slower start): src/cli/main.ts is newer than the built command line; `npm run build:cli` builds it\n');
+    expect(r.err).toBe(
+      'priorscope: running the TypeScript sources through tsx (slower start): src/cli/main.ts is newer than the built command line; `npm run build:cli` builds it\n',
+    );
   });
   it('runs the sources with a note when there is no bundle, and silently with PRIORSCOPE_CLI_SOURCE=1', () => {
     rmSync(join(pkg, 'dist-cli'), { recursive: true });
@@ -53,6 +58,8 @@ describe('the priorscope launcher (src/cli/bin.mjs)', () => {
     rmSync(join(pkg, 'src', 'cli', 'main.ts'));
     const r = run();
     expect(r.code).toBe(1);
-    expect(r.err).toBe('priorscope: no built command line (dist-cli/priorscope.mjs), and no sources to run instead; reinstall the package\n');
+    expect(r.err).toBe(
+      'priorscope: no built command line (dist-cli/priorscope.mjs), and no sources to run instead; reinstall the package\n',
+    );
   });
 });

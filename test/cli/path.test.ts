@@ -32,7 +32,10 @@ const PROBLEM = {
   title: 'invented point and average data',
   grid: { shape: [NX, NY], spacing: [2, 1.5], origin: [1, 0.75], unit: 'm' },
   operator: { sparse: { rows, cols, values: vals } },
-  data: { values: Array.from({ length: 11 }, (_, k) => Math.sin(k) + 0.3), sigma: Array.from({ length: 11 }, (_, k) => 0.05 + 0.01 * (k % 4)) },
+  data: {
+    values: Array.from({ length: 11 }, (_, k) => Math.sin(k) + 0.3),
+    sigma: Array.from({ length: 11 }, (_, k) => 0.05 + 0.01 * (k % 4)),
+  },
 };
 const PRIOR = {
   kind: 'priorscope.prior',
@@ -96,7 +99,12 @@ describe('posterior --path', () => {
   it('auto takes the dense path below 128 cells', async () => {
     const d = tempDir();
     writeFiles(d, {
-      'p.json': { ...PROBLEM, grid: { shape: [8, 8], spacing: [1, 1] }, operator: { dense: [[1, ...Array(62).fill(0), 1]] }, data: { values: [1], sigma: [0.1] } },
+      'p.json': {
+        ...PROBLEM,
+        grid: { shape: [8, 8], spacing: [1, 1] },
+        operator: { dense: [[1, ...Array(62).fill(0), 1]] },
+        data: { values: [1], sigma: [0.1] },
+      },
       'q.json': PRIOR,
     });
     const r = await runCommand(['posterior', '--problem', 'p.json', '--prior', 'q.json'], d);
@@ -112,13 +120,19 @@ describe('posterior --path', () => {
     const r: number[] = [];
     const c: number[] = [];
     const v: number[] = [];
-    for (let k = 0; k < m; k++) for (let q = 0; q < 5; q++) {
-      r.push(k);
-      c.push((k * 37 + q * 211) % (n * n));
-      v.push(0.2);
-    }
+    for (let k = 0; k < m; k++)
+      for (let q = 0; q < 5; q++) {
+        r.push(k);
+        c.push((k * 37 + q * 211) % (n * n));
+        v.push(0.2);
+      }
     writeFiles(d, {
-      'p.json': { ...PROBLEM, grid: { shape: [n, n], spacing: [1, 1] }, operator: { sparse: { rows: r, cols: c, values: v } }, data: { values: Array.from({ length: m }, (_, k) => Math.cos(k)), sigma: Array(m).fill(0.1) } },
+      'p.json': {
+        ...PROBLEM,
+        grid: { shape: [n, n], spacing: [1, 1] },
+        operator: { sparse: { rows: r, cols: c, values: v } },
+        data: { values: Array.from({ length: m }, (_, k) => Math.cos(k)), sigma: Array(m).fill(0.1) },
+      },
       'q.json': PRIOR,
     });
     const one = await runCommand(['posterior', '--problem', 'p.json', '--prior', 'q.json', '--threads', '1'], d);
@@ -149,12 +163,22 @@ describe('sample reports its route on stderr', () => {
     expect(small.err).toBe(`priorscope sample: route dense (Cholesky of Cm, ${NX * NY} cells)\n`);
     const d = tempDir();
     writeFiles(d, {
-      'p.json': { ...PROBLEM, grid: { shape: [65, 64], spacing: [1, 1] }, operator: { dense: [[1, ...Array(65 * 64 - 1).fill(0)]] }, data: { values: [1], sigma: [0.1] } },
+      'p.json': {
+        ...PROBLEM,
+        grid: { shape: [65, 64], spacing: [1, 1] },
+        operator: { dense: [[1, ...Array(65 * 64 - 1).fill(0)]] },
+        data: { values: [1], sigma: [0.1] },
+      },
       'q.json': PRIOR,
     });
-    const big = await runCommand(['sample', '--problem', 'p.json', '--prior', 'q.json', '--count', '2', '--seed', '3', '--format', 'csv'], d);
+    const big = await runCommand(
+      ['sample', '--problem', 'p.json', '--prior', 'q.json', '--count', '2', '--seed', '3', '--format', 'csv'],
+      d,
+    );
     expect(big.code, big.err).toBe(0);
-    expect(big.err).toMatch(/^priorscope sample: route fft \(circulant embedding \d+ × \d+, (exact|negative eigenvalues clipped: relative trace .*)\)\n$/);
+    expect(big.err).toMatch(
+      /^priorscope sample: route fft \(circulant embedding \d+ × \d+, (exact|negative eigenvalues clipped: relative trace .*)\)\n$/,
+    );
     expect(big.out.trim().split('\n')).toHaveLength(2);
   });
 });

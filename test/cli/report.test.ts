@@ -20,18 +20,48 @@ const problem = {
   operator: { dense: G },
   data: { values: d, sigma: new Array(m).fill(0.05), unit: '°C' },
 };
-const prior = { kind: 'priorscope.prior', version: 1, mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 0.1, length: 8 }], nugget: 1e-4 };
-const other = { kind: 'priorscope.prior', version: 1, mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 0.1, lengths: [8, 8], angle: 0 }], nugget: 1e-4 };
+const prior = {
+  kind: 'priorscope.prior',
+  version: 1,
+  mean: { constant: 0 },
+  terms: [{ kernel: 'exponential', variance: 0.1, length: 8 }],
+  nugget: 1e-4,
+};
+const other = {
+  kind: 'priorscope.prior',
+  version: 1,
+  mean: { constant: 0 },
+  terms: [{ kernel: 'matern', nu: 1.5, variance: 0.1, lengths: [8, 8], angle: 0 }],
+  nugget: 1e-4,
+};
 
 describe('priorscope report', () => {
   it('writes one HTML file with every section, no scripts and no outside references; JSON names the sections', async () => {
     const dir = tempDir();
-    writeFiles(dir, { 'p.json': problem, 'q.json': prior, 'q2.json': { ...prior, terms: [{ kernel: 'gaussian', variance: 0.1, length: 4 }] } });
-    const r = await runCommand(['report', '--problem', 'p.json', '--prior', 'q.json', '--out', 'r.html', '--compare', 'q2.json', '--map-count', '5'], dir);
+    writeFiles(dir, {
+      'p.json': problem,
+      'q.json': prior,
+      'q2.json': { ...prior, terms: [{ kernel: 'gaussian', variance: 0.1, length: 4 }] },
+    });
+    const r = await runCommand(
+      ['report', '--problem', 'p.json', '--prior', 'q.json', '--out', 'r.html', '--compare', 'q2.json', '--map-count', '5'],
+      dir,
+    );
     expect(r.err).toBe('');
     expect(r.code).toBe(0);
     const out = JSON.parse(r.out) as { sections: string[]; bytes: number; averaged: { cellsUsed: number; maxMeanChange: number } };
-    expect(out.sections).toEqual(['problem', 'prior', 'pd', 'realisations', 'posterior', 'fit', 'evidence', 'candidates', 'criteria', 'averaged']);
+    expect(out.sections).toEqual([
+      'problem',
+      'prior',
+      'pd',
+      'realisations',
+      'posterior',
+      'fit',
+      'evidence',
+      'candidates',
+      'criteria',
+      'averaged',
+    ]);
     expect(out.averaged.cellsUsed).toBeGreaterThan(0);
     expect(Number.isFinite(out.averaged.maxMeanChange)).toBe(true);
     const html = readFileSync(join(dir, 'r.html'), 'utf8');
@@ -49,8 +79,29 @@ describe('priorscope report', () => {
 
   it('says when candidates differ in their number of hyperparameters', async () => {
     const dir = tempDir();
-    writeFiles(dir, { 'p.json': { ...problem, grid: { shape: [6, 4], spacing: [2, 2], unit: 'm' }, operator: { dense: G.map((row) => row.slice(0, 24)) } }, 'q.json': prior, 'q2.json': other });
-    const r = await runCommand(['report', '--problem', 'p.json', '--prior', 'q.json', '--out', 'r.html', '--compare', 'q2.json', '--map-count', '3', '--hyper-prior', 'uniform'], dir);
+    writeFiles(dir, {
+      'p.json': { ...problem, grid: { shape: [6, 4], spacing: [2, 2], unit: 'm' }, operator: { dense: G.map((row) => row.slice(0, 24)) } },
+      'q.json': prior,
+      'q2.json': other,
+    });
+    const r = await runCommand(
+      [
+        'report',
+        '--problem',
+        'p.json',
+        '--prior',
+        'q.json',
+        '--out',
+        'r.html',
+        '--compare',
+        'q2.json',
+        '--map-count',
+        '3',
+        '--hyper-prior',
+        'uniform',
+      ],
+      dir,
+    );
     expect(r.code).toBe(0);
     const html = readFileSync(join(dir, 'r.html'), 'utf8');
     expect(html).toContain('different numbers of hyperparameters (4, 7)');

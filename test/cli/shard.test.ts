@@ -17,7 +17,13 @@ const problem = {
   operator: { sparse: { rows: [0, 1, 2, 3, 4, 5, 6, 7], cols: [1, 4, 7, 10, 13, 16, 19, 22], values: [1, 1, 1, 1, 1, 1, 1, 1] } },
   data: { values: [0.3, 0.5, 0.1, -0.2, -0.4, 0.0, 0.2, 0.35], sigma: [0.1, 0.1, 0.1, 0.1, 0.1, 0.1, 0.1, 0.1] },
 };
-const prior = (length: number) => ({ kind: 'priorscope.prior', version: 1, mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 0.1, length }], nugget: 1e-4 });
+const prior = (length: number) => ({
+  kind: 'priorscope.prior',
+  version: 1,
+  mean: { constant: 0 },
+  terms: [{ kernel: 'exponential', variance: 0.1, length }],
+  nugget: 1e-4,
+});
 
 describe('shards and merge', () => {
   const dir = tempDir();
@@ -28,7 +34,9 @@ describe('shards and merge', () => {
   it('shard ranges cover every item exactly once, in order', () => {
     for (const total of [0, 1, 5, 17]) {
       for (const n of [1, 2, 3, 7, 20]) {
-        const items = Array.from({ length: n }, (_, k) => shardRange(total, { index: k + 1, count: n })).flatMap(([a, b]) => Array.from({ length: b - a }, (_, i) => a + i));
+        const items = Array.from({ length: n }, (_, k) => shardRange(total, { index: k + 1, count: n })).flatMap(([a, b]) =>
+          Array.from({ length: b - a }, (_, i) => a + i),
+        );
         expect(items).toEqual(Array.from({ length: total }, (_, i) => i));
       }
     }
@@ -38,9 +46,15 @@ describe('shards and merge', () => {
     const calib = ['calibrate', '--problem', 'p.json', '--prior', 'a.json', '--replicates', '10', '--seed', '42', '--draws', '9'];
     const whole = await run([...calib, '--out', 'whole.json']);
     expect(whole.code, whole.err).toBe(0);
-    const par = spawnSync('parallel', ['--will-cite', '-j', '2', process.execPath, binPath, ...calib, '--shard', '{}/3', '--out', 'part{}.json', ':::', '1', '2', '3'], { cwd: dir, encoding: 'utf8' });
+    const par = spawnSync(
+      'parallel',
+      ['--will-cite', '-j', '2', process.execPath, binPath, ...calib, '--shard', '{}/3', '--out', 'part{}.json', ':::', '1', '2', '3'],
+      { cwd: dir, encoding: 'utf8' },
+    );
     expect(par.status, par.stderr).toBe(0);
-    const parts = [1, 2, 3].map((k) => JSON.parse(text(`part${k}.json`)) as { kind: string; shard: { index: number; count: number }; items: number[] });
+    const parts = [1, 2, 3].map(
+      (k) => JSON.parse(text(`part${k}.json`)) as { kind: string; shard: { index: number; count: number }; items: number[] },
+    );
     expect(parts.map((p) => [p.kind, p.shard.index, p.shard.count, ...p.items])).toEqual([
       ['priorscope.partial', 1, 3, 0, 3],
       ['priorscope.partial', 2, 3, 3, 6],

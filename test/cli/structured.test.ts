@@ -18,7 +18,9 @@ const problem = (nx: number, ny: number) => ({
   version: 1,
   title: 'invented point data',
   grid: { shape: [nx, ny], spacing: [1, 1] },
-  operator: { sparse: { rows: [0, 1, 2, 3, 4, 5], cols: [3, 50, 101, 170, 222, 301].map((c) => c % (nx * ny)), values: [1, 1, 1, 1, 1, 1] } },
+  operator: {
+    sparse: { rows: [0, 1, 2, 3, 4, 5], cols: [3, 50, 101, 170, 222, 301].map((c) => c % (nx * ny)), values: [1, 1, 1, 1, 1, 1] },
+  },
   data: { values: [0.1, 0.4, -0.2, 0.3, 0.0, 0.5], sigma: [0.05, 0.05, 0.05, 0.05, 0.05, 0.05] },
 });
 const terms: PriorSpec['terms'] = [{ kernel: 'matern', nu: 1.5, variance: 0.8, lengths: [6, 3], angle: 30 }];
@@ -56,7 +58,9 @@ describe('check on the FFT route', () => {
     expect(out.verdict).toBe('not-positive-definite');
     expect(out.decidedBy).toBe('cholesky');
     expect(out.eigenvalueBounds.lower).toBeLessThanOrEqual(0);
-    expect(out.warnings.find((w: { code: string }) => w.code === 'not-positive-definite').message).toMatch(/Cholesky factorisation of the dense Cm .*failed at row/);
+    expect(out.warnings.find((w: { code: string }) => w.code === 'not-positive-definite').message).toMatch(
+      /Cholesky factorisation of the dense Cm .*failed at row/,
+    );
     expect(out.suggestedJitter).toBeGreaterThan(0);
   });
 });
@@ -65,24 +69,40 @@ describe('check: correlation lengths longer than the domain (the bracket cannot 
   // Both were reported "not positive definite" (exit 3) before the three-outcome verdict; numpy's
   // eigvalsh finds λmin > 0 for both (test/reference/pd_verdict.test.ts).
   const cases = [
-    { grid: { shape: [30, 20], spacing: [1, 1] }, prior: { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1.0157e-3, lengths: [99.92, 26.02], angle: 14.67 }], nugget: 1e-6 } },
-    { grid: { shape: [24, 24], spacing: [1, 1] }, prior: { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length: 200 }] } },
+    {
+      grid: { shape: [30, 20], spacing: [1, 1] },
+      prior: {
+        mean: { constant: 0 },
+        terms: [{ kernel: 'exponential', variance: 1.0157e-3, lengths: [99.92, 26.02], angle: 14.67 }],
+        nugget: 1e-6,
+      },
+    },
+    {
+      grid: { shape: [24, 24], spacing: [1, 1] },
+      prior: { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length: 200 }] },
+    },
   ];
-  it.each(cases.map((c) => [c.grid.shape.join(' × '), c] as const))('%s: exit 0, positive definite, decided by the dense Cholesky', async (_n, c) => {
-    const dir = tempDir();
-    const [nx, ny] = c.grid.shape as [number, number];
-    writeFiles(dir, { 'p.json': problem(nx, ny), 'q.json': { kind: 'priorscope.prior', version: 1, ...c.prior } });
-    const r = await runCommand(['check', '--problem', 'p.json', '--prior', 'q.json'], dir);
-    expect(r.code).toBe(0);
-    const out = JSON.parse(r.out);
-    expect(out.positiveDefinite).toBe(true);
-    expect(out.verdict).toBe('positive-definite');
-    expect(out.decidedBy).toBe('cholesky');
-    expect(out.basis).toMatch(/Cholesky/);
-    // … and sample agrees: it draws from the same prior without complaint.
-    const s = await runCommand(['sample', '--problem', 'p.json', '--prior', 'q.json', '--count', '2', '--seed', '1', '--format', 'csv'], dir);
-    expect(s.code).toBe(0);
-  });
+  it.each(cases.map((c) => [c.grid.shape.join(' × '), c] as const))(
+    '%s: exit 0, positive definite, decided by the dense Cholesky',
+    async (_n, c) => {
+      const dir = tempDir();
+      const [nx, ny] = c.grid.shape as [number, number];
+      writeFiles(dir, { 'p.json': problem(nx, ny), 'q.json': { kind: 'priorscope.prior', version: 1, ...c.prior } });
+      const r = await runCommand(['check', '--problem', 'p.json', '--prior', 'q.json'], dir);
+      expect(r.code).toBe(0);
+      const out = JSON.parse(r.out);
+      expect(out.positiveDefinite).toBe(true);
+      expect(out.verdict).toBe('positive-definite');
+      expect(out.decidedBy).toBe('cholesky');
+      expect(out.basis).toMatch(/Cholesky/);
+      // … and sample agrees: it draws from the same prior without complaint.
+      const s = await runCommand(
+        ['sample', '--problem', 'p.json', '--prior', 'q.json', '--count', '2', '--seed', '1', '--format', 'csv'],
+        dir,
+      );
+      expect(s.code).toBe(0);
+    },
+  );
 });
 
 describe('sample --posterior on the FFT path', () => {
@@ -92,7 +112,9 @@ describe('sample --posterior on the FFT path', () => {
     const args = ['sample', '--problem', 'p.json', '--prior', 'q.json', '--count', '3', '--seed', '4', '--posterior', '--format', 'csv'];
     const a = await runCommand(args, dir);
     expect(a.code).toBe(0);
-    expect(a.err).toMatch(/^priorscope sample: route fft \(posterior realisations by the perturbation update, prior draws by circulant embedding \d+ × \d+, exact\)\n$/);
+    expect(a.err).toMatch(
+      /^priorscope sample: route fft \(posterior realisations by the perturbation update, prior draws by circulant embedding \d+ × \d+, exact\)\n$/,
+    );
     expect(a.out.trim().split('\n')).toHaveLength(3);
     expect((await runCommand(args, dir)).out).toBe(a.out);
   });

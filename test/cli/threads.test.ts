@@ -15,7 +15,11 @@ import { benchProblem } from '../bench/cases/fft.ts';
 function small(): Problem {
   const p = benchProblem(24, 37);
   const g = p.operator.matrix as SparseMatrix;
-  return { ...p, grid: { shape: [24, 20], spacing: [1, 1] }, operator: { kind: 'sparse', matrix: { ...g, cols: 480, colIdx: g.colIdx.map((c) => c % 480) } } };
+  return {
+    ...p,
+    grid: { shape: [24, 20], spacing: [1, 1] },
+    operator: { kind: 'sparse', matrix: { ...g, cols: 480, colIdx: g.colIdx.map((c) => c % 480) } },
+  };
 }
 const prior: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, length: 3 }], nugget: 0.001 };
 

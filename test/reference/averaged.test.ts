@@ -49,35 +49,49 @@ const maxAbs = (a: ArrayLike<number>, b: ArrayLike<number>) => {
   return m;
 };
 
-describe.each(['log-uniform', 'uniform'] as const)('averaged posterior, %s hyper-prior, against direct summation (numpy/scipy)', (hyper) => {
-  const ref = refs[hyper];
-  it('the map evidences and the weights agree with scipy logpdf and the stated hyper-prior mass', () => {
-    expect(maxAbs(map.logEvidence, ref.logZ)).toBeLessThan(1e-8);
-    expect(maxAbs(averagingWeights(map, hyper), ref.weights)).toBeLessThan(1e-9);
-  });
-  it('mean and standard deviation over all 20 cells agree to 1e-8', () => {
-    const a = averagedPosterior(problem, truth, map, { hyperPrior: hyper, minWeight: 0 });
-    expect(a.cellsUsed).toBe(20);
-    expect(maxAbs(a.mean, ref.mean)).toBeLessThan(1e-8);
-    expect(maxAbs(a.std, ref.std)).toBeLessThan(1e-8);
-  });
-  it('skipping cells below the default weight 1e-6 changes the result by less than the skipped weight allows', () => {
-    const a = averagedPosterior(problem, truth, map, { hyperPrior: hyper });
-    expect(a.skippedWeight).toBeLessThan(20 * 1e-6);
-    const scale = Math.max(...ref.std) + Math.max(...ref.mean.map(Math.abs));
-    expect(maxAbs(a.mean, ref.mean)).toBeLessThan(1e-3 * scale);
-  });
-});
+describe.each(['log-uniform', 'uniform'] as const)(
+  'averaged posterior, %s hyper-prior, against direct summation (numpy/scipy)',
+  (hyper) => {
+    const ref = refs[hyper];
+    it('the map evidences and the weights agree with scipy logpdf and the stated hyper-prior mass', () => {
+      expect(maxAbs(map.logEvidence, ref.logZ)).toBeLessThan(1e-8);
+      expect(maxAbs(averagingWeights(map, hyper), ref.weights)).toBeLessThan(1e-9);
+    });
+    it('mean and standard deviation over all 20 cells agree to 1e-8', () => {
+      const a = averagedPosterior(problem, truth, map, { hyperPrior: hyper, minWeight: 0 });
+      expect(a.cellsUsed).toBe(20);
+      expect(maxAbs(a.mean, ref.mean)).toBeLessThan(1e-8);
+      expect(maxAbs(a.std, ref.std)).toBeLessThan(1e-8);
+    });
+    it('skipping cells below the default weight 1e-6 changes the result by less than the skipped weight allows', () => {
+      const a = averagedPosterior(problem, truth, map, { hyperPrior: hyper });
+      expect(a.skippedWeight).toBeLessThan(20 * 1e-6);
+      const scale = Math.max(...ref.std) + Math.max(...ref.mean.map(Math.abs));
+      expect(maxAbs(a.mean, ref.mean)).toBeLessThan(1e-3 * scale);
+    });
+  },
+);
 
 describe('averaging weights', () => {
   it('are proportional to the evidence under the log-uniform hyper-prior and skip non-finite cells', () => {
-    const w = averagingWeights({ lengths: Float64Array.of(1, 2), variances: Float64Array.of(1), logEvidence: Float64Array.of(Math.log(3), Math.log(1)) });
+    const w = averagingWeights({
+      lengths: Float64Array.of(1, 2),
+      variances: Float64Array.of(1),
+      logEvidence: Float64Array.of(Math.log(3), Math.log(1)),
+    });
     expect(w[0]).toBeCloseTo(0.75, 15);
     expect(w[1]).toBeCloseTo(0.25, 15);
-    const u = averagingWeights({ lengths: Float64Array.of(1, 2), variances: Float64Array.of(1), logEvidence: Float64Array.of(Math.log(3), Number.NaN) });
+    const u = averagingWeights({
+      lengths: Float64Array.of(1, 2),
+      variances: Float64Array.of(1),
+      logEvidence: Float64Array.of(Math.log(3), Number.NaN),
+    });
     expect(Array.from(u)).toEqual([1, 0]);
     // uniform: mass ∝ ℓ σ², so the cell at ℓ = 2 doubles: 3·1 : 1·2
-    const v = averagingWeights({ lengths: Float64Array.of(1, 2), variances: Float64Array.of(1), logEvidence: Float64Array.of(Math.log(3), 0) }, 'uniform');
+    const v = averagingWeights(
+      { lengths: Float64Array.of(1, 2), variances: Float64Array.of(1), logEvidence: Float64Array.of(Math.log(3), 0) },
+      'uniform',
+    );
     expect(v[0]).toBeCloseTo(0.6, 15);
     expect(v[1]).toBeCloseTo(0.4, 15);
   });

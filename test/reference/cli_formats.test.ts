@@ -30,7 +30,11 @@ describe('files written by numpy / scipy, read by src/core/io', () => {
   it('npy (1.0, 2.0, 3.0, float32, big endian, Fortran, 1-D), Matrix Market (coordinate, array, symmetric), CSV with header', () => {
     const dir = tempDir();
     const a = randomMatrix(1, 4, 5);
-    const { files } = runPython<{ files: Record<string, number[][] | number[]> }>('cli_formats.py', { mode: 'write', dir, matrix: toRows(a) });
+    const { files } = runPython<{ files: Record<string, number[][] | number[]> }>('cli_formats.py', {
+      mode: 'write',
+      dir,
+      matrix: toRows(a),
+    });
     expect(Object.keys(files).length).toBe(12);
     for (const [name, expected] of Object.entries(files)) {
       const bytes = new Uint8Array(readFileSync(join(dir, name)));
@@ -65,7 +69,10 @@ describe('files written by src/core/io, read by numpy / scipy', () => {
     put('dense.mtx', writeMatrixMarket({ kind: 'dense', matrix: a }, 'invented'));
     put('sparse.mtx', writeMatrixMarket({ kind: 'sparse', matrix: denseToSparse(a) }));
     put('plain.csv', writeCsv(a));
-    const back = runPython<Record<string, { shape: number[]; dtype: string; values: number[][] | number[] }>>('cli_formats.py', { mode: 'read', files: paths });
+    const back = runPython<Record<string, { shape: number[]; dtype: string; values: number[][] | number[] }>>('cli_formats.py', {
+      mode: 'read',
+      files: paths,
+    });
     for (const name of ['ours.npy', 'dense.mtx', 'sparse.mtx', 'plain.csv']) {
       expect(back[name].shape, name).toEqual([6, 3]);
       expect(back[name].values, name).toEqual(toRows(a));

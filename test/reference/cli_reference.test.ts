@@ -48,12 +48,15 @@ describe('priorscope posterior against numpy/scipy (through the binary)', () => 
   it('1-D: 40 cells, Matérn ν = 1.25 (Bessel path) + exponential, trend mean, sparse operator, diagonal Cd', () => {
     // Invented: 12 data, each averaging 4 neighbouring cells of a 40-cell line (spacing 0.5 m).
     const r = rng(101);
-    const rows: number[] = [], cols: number[] = [], values: number[] = [];
-    for (let i = 0; i < 12; i++) for (let c = 0; c < 4; c++) {
-      rows.push(i);
-      cols.push(3 * i + c);
-      values.push(0.25);
-    }
+    const rows: number[] = [],
+      cols: number[] = [],
+      values: number[] = [];
+    for (let i = 0; i < 12; i++)
+      for (let c = 0; c < 4; c++) {
+        rows.push(i);
+        cols.push(3 * i + c);
+        values.push(0.25);
+      }
     const d = tempDir();
     writeFiles(d, {
       'p.json': {
@@ -81,7 +84,10 @@ describe('priorscope posterior against numpy/scipy (through the binary)', () => 
   it('2-D: 9 × 7 grid, anisotropic rotated exponential + Gaussian, stdProfile, full Cd, operator in a sibling .npy', () => {
     // Invented: 15 straight-line sums through the grid, stored as a dense .npy next to the problem.
     const r = rng(202);
-    const nx = 9, ny = 7, n = nx * ny, m = 15;
+    const nx = 9,
+      ny = 7,
+      n = nx * ny,
+      m = 15;
     const G = matrix(m, n);
     for (let i = 0; i < m; i++) {
       const iy = i % ny;
@@ -89,7 +95,9 @@ describe('priorscope posterior against numpy/scipy (through the binary)', () => 
     }
     // Data covariance: σ² on the diagonal with 0.3 correlation between consecutive data.
     const sigma = Array.from({ length: m }, () => 0.1 + 0.05 * r());
-    const cov = Array.from({ length: m }, (_, i) => Array.from({ length: m }, (_, j) => (i === j ? sigma[i] ** 2 : Math.abs(i - j) === 1 ? 0.3 * sigma[i] * sigma[j] : 0)));
+    const cov = Array.from({ length: m }, (_, i) =>
+      Array.from({ length: m }, (_, j) => (i === j ? sigma[i] ** 2 : Math.abs(i - j) === 1 ? 0.3 * sigma[i] * sigma[j] : 0)),
+    );
     const d = tempDir();
     writeFiles(d, {
       'G.npy': writeNpyMatrix(G),
@@ -120,9 +128,17 @@ describe('priorscope posterior against numpy/scipy (through the binary)', () => 
 
 /** `priorscope tune` against scipy.stats.multivariate_normal.logpdf cell by cell, 1e-8 relative. */
 function tuneCompare(dir: string, term: number, lengths: string, variances: string): void {
-  const r = runCli(['tune', '--problem', 'p.json', '--prior', 'q.json', '--term', String(term), '--lengths', lengths, '--variances', variances], dir);
+  const r = runCli(
+    ['tune', '--problem', 'p.json', '--prior', 'q.json', '--term', String(term), '--lengths', lengths, '--variances', variances],
+    dir,
+  );
   expect(r.code, r.err).toBe(0);
-  const ours = JSON.parse(r.out) as { lengths: number[]; variances: number[]; logEvidence: number[][]; best: { length: number; variance: number; logEvidence: number } };
+  const ours = JSON.parse(r.out) as {
+    lengths: number[];
+    variances: number[];
+    logEvidence: number[][];
+    best: { length: number; variance: number; logEvidence: number };
+  };
   // Axes: lo·(hi/lo)^(k/(n−1)), the documented log spacing.
   const axis = (text: string) => {
     const [lo, hi, n] = text.split(':').map(Number) as [number, number, number];

@@ -18,8 +18,19 @@ import type { PriorSpec } from '../../src/core/prior/spec.ts';
 import type { Problem } from '../../src/core/problems/spec.ts';
 import { runPython } from './python.ts';
 
-interface Ref { Cm: number[]; m0: number[]; mean?: number[]; std?: number[] }
-interface Case { grid: Grid; prior: PriorSpec; G?: number[]; d?: number[]; sigma?: number[] }
+interface Ref {
+  Cm: number[];
+  m0: number[];
+  mean?: number[];
+  std?: number[];
+}
+interface Case {
+  grid: Grid;
+  prior: PriorSpec;
+  G?: number[];
+  d?: number[];
+  sigma?: number[];
+}
 
 const grid: Grid = { shape: [8, 6, 5], spacing: [1, 1.5, 0.8], origin: [10, -3, 2] };
 const n = cellCount(grid);
@@ -112,8 +123,14 @@ describe('3-D conventions', () => {
   it('a2 = a3 = 0 on a one-layer grid is the 2-D convention (angle a1, lengths [l1, l2])', () => {
     for (const kernel of KERNEL_NAMES) {
       const nu = kernel === 'matern' ? { nu: 1.5 } : {};
-      const c3 = covarianceMatrix({ shape: [7, 5, 1], spacing: [1, 2, 3] }, { mean: { constant: 0 }, terms: [{ kernel, variance: 1.3, lengths: [5, 2, 0.7], angles: [35, 0, 0], ...nu }] });
-      const c2 = covarianceMatrix({ shape: [7, 5], spacing: [1, 2] }, { mean: { constant: 0 }, terms: [{ kernel, variance: 1.3, lengths: [5, 2], angle: 35, ...nu }] });
+      const c3 = covarianceMatrix(
+        { shape: [7, 5, 1], spacing: [1, 2, 3] },
+        { mean: { constant: 0 }, terms: [{ kernel, variance: 1.3, lengths: [5, 2, 0.7], angles: [35, 0, 0], ...nu }] },
+      );
+      const c2 = covarianceMatrix(
+        { shape: [7, 5], spacing: [1, 2] },
+        { mean: { constant: 0 }, terms: [{ kernel, variance: 1.3, lengths: [5, 2], angle: 35, ...nu }] },
+      );
       expect(maxDiff(c3.data, c2.data)).toBeLessThan(1e-14);
     }
   });
@@ -121,18 +138,28 @@ describe('3-D conventions', () => {
   it('the first principal axis is Rz(a1)·Ry(a2)·Rx(a3) e1: a step of l1 along it has h = 1 (exponential ρ = e⁻¹)', () => {
     // a1 = 90°, a2 = 0, a3 = 90°: axis 1 → +y. A step of 2 cells of dy = 1 along +y, l1 = 2: ρ = e⁻¹.
     const g: Grid = { shape: [1, 3, 1], spacing: [1, 1, 1] };
-    const c = covarianceMatrix(g, { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, lengths: [2, 100, 100], angles: [90, 0, 90] }] });
+    const c = covarianceMatrix(g, {
+      mean: { constant: 0 },
+      terms: [{ kernel: 'exponential', variance: 1, lengths: [2, 100, 100], angles: [90, 0, 90] }],
+    });
     expect(c.data[2]).toBeCloseTo(Math.exp(-1), 12);
     // a2 = −90° tips axis 1 from +x up to +z (Ry(b) e1 = (cos b, 0, −sin b)).
     const gz: Grid = { shape: [1, 1, 3], spacing: [1, 1, 1] };
-    const cz = covarianceMatrix(gz, { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, lengths: [2, 100, 100], angles: [0, -90, 0] }] });
+    const cz = covarianceMatrix(gz, {
+      mean: { constant: 0 },
+      terms: [{ kernel: 'exponential', variance: 1, lengths: [2, 100, 100], angles: [0, -90, 0] }],
+    });
     expect(cz.data[2]).toBeCloseTo(Math.exp(-1), 12);
   });
 
   it('refuses a 3-D grid too large for the dense route before allocating, naming the limit', () => {
     const big: Grid = { shape: [30, 30, 20], spacing: [1, 1, 1] };
     const prior: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length: 3 }] };
-    const problem: Problem = { grid: big, operator: { kind: 'dense', matrix: matrix(1, 18_000) }, data: { values: new Float64Array(1), sigma: new Float64Array([1]) } };
+    const problem: Problem = {
+      grid: big,
+      operator: { kind: 'dense', matrix: matrix(1, 18_000) },
+      data: { values: new Float64Array(1), sigma: new Float64Array([1]) },
+    };
     expect(() => computePosteriorSerial(problem, prior)).toThrow(InputError);
     expect(() => computePosteriorSerial(problem, prior)).toThrow(/16384/);
   });
@@ -170,6 +197,8 @@ describe('3-D conventions', () => {
     expect(m0[12] - m0[0]).toBeCloseTo(1, 14);
     // Two lengths on a 3-D grid are refused naming the term.
     const two = priorText.replace('[3,2,1]', '[3,2]').replace(',"angles":[10,20,30]', '');
-    expect(() => parsePriorFile('q3.json', two, { grid: problem.grid })).toThrow(/terms\[0\]\.lengths has 2 lengths; this 3-D grid needs 3/);
+    expect(() => parsePriorFile('q3.json', two, { grid: problem.grid })).toThrow(
+      /terms\[0\]\.lengths has 2 lengths; this 3-D grid needs 3/,
+    );
   });
 });

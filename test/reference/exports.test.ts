@@ -3,7 +3,19 @@
  * grid (x, y columns) — plus the prior export reading back to the same spec through priorFile.ts.
  */
 import { describe, expect, it } from 'vitest';
-import { covarianceNpy, drawsCsv, drawsGridFile, gridFile, drawsName, drawsNpy, fileStem, plotFileName, posteriorCsv, posteriorNpy, priorExport } from '../../src/app/session/exports.ts';
+import {
+  covarianceNpy,
+  drawsCsv,
+  drawsGridFile,
+  gridFile,
+  drawsName,
+  drawsNpy,
+  fileStem,
+  plotFileName,
+  posteriorCsv,
+  posteriorNpy,
+  priorExport,
+} from '../../src/app/session/exports.ts';
 import { parsePriorFile } from '../../src/core/io/priorFile.ts';
 import { matrix } from '../../src/core/linalg/matrix.ts';
 import type { PosteriorSummary } from '../../src/core/inverse/types.ts';
@@ -43,7 +55,13 @@ describe('exports read by numpy', () => {
     const f = drawsGridFile({ ...grid, unit: 'm', axes: ['x', 'depth'] }, draws, 'prior', 7, base, 'Gravity profile');
     expect(f.name).toBe(`${base}.grid.json`);
     const rec = JSON.parse(new TextDecoder().decode(f.bytes));
-    expect(rec).toMatchObject({ kind: 'priorscope.realisations', which: 'prior', count: 2, seed: 7, files: [`${base}.npy`, `${base}.csv`] });
+    expect(rec).toMatchObject({
+      kind: 'priorscope.realisations',
+      which: 'prior',
+      count: 2,
+      seed: 7,
+      files: [`${base}.npy`, `${base}.csv`],
+    });
     expect(rec.grid).toEqual({ shape: [3, 2], spacing: [2, 0.5], origin: [10, -1], unit: 'm', axes: ['x', 'depth'] });
     expect(rec.layout).toContain('x fastest');
     expect(() => drawsGridFile({ shape: [5], spacing: [1] }, draws, 'prior', 7, base, 't')).toThrow(RangeError);
@@ -60,7 +78,11 @@ describe('exports read by numpy', () => {
   });
 
   it('the prior file reads back to the same spec', () => {
-    const prior = { mean: { constant: 0.5 }, terms: [{ kernel: 'matern' as const, variance: 2, lengths: [3, 1] as const, angle: 15, nu: 0.5 }], nugget: 1e-6 };
+    const prior = {
+      mean: { constant: 0.5 },
+      terms: [{ kernel: 'matern' as const, variance: 2, lengths: [3, 1] as const, angle: 15, nu: 0.5 }],
+      nugget: 1e-6,
+    };
     const f = priorExport(prior);
     expect(f.name).toBe('prior.json');
     expect(parsePriorFile('prior.json', f.bytes).prior).toEqual(prior);
@@ -78,15 +100,25 @@ describe('exports read by numpy', () => {
     const b = covarianceNpy(f.factor, 'cholesky', 'Trench (invented)');
     expect([a.name, b.name]).toEqual(['trench-invented-prior-covariance-30.npy', 'trench-invented-prior-cholesky-factor-30.npy']);
     const b64 = (u: Uint8Array) => Buffer.from(u).toString('base64');
-    const ref = runPython<{ shapes: number[][]; dtype: string; factorDiff: number; productDiff: number; upperMax: number }>('covariance_export.py', { cm: b64(a.bytes), L: b64(b.bytes) });
-    expect(ref.shapes).toEqual([[30, 30], [30, 30]]);
+    const ref = runPython<{ shapes: number[][]; dtype: string; factorDiff: number; productDiff: number; upperMax: number }>(
+      'covariance_export.py',
+      { cm: b64(a.bytes), L: b64(b.bytes) },
+    );
+    expect(ref.shapes).toEqual([
+      [30, 30],
+      [30, 30],
+    ]);
     expect(ref.dtype).toBe('float64');
     // Both factorisations in double precision of a matrix with κ ≈ 1e3: agreement far below 1e-10 (round-off, common practice, no source).
     expect(ref.factorDiff).toBeLessThan(1e-12);
     expect(ref.productDiff).toBeLessThan(1e-13);
     expect(ref.upperMax).toBe(0);
     const side = JSON.parse(new TextDecoder().decode(gridFile(g, b.name, 'Trench').bytes));
-    expect(side).toMatchObject({ kind: 'priorscope.grid', file: b.name, grid: { shape: [6, 5], spacing: [1, 2], origin: [0.5, 1], unit: 'm' } });
+    expect(side).toMatchObject({
+      kind: 'priorscope.grid',
+      file: b.name,
+      grid: { shape: [6, 5], spacing: [1, 2], origin: [0.5, 1], unit: 'm' },
+    });
     expect(gridFile(g, b.name, 'Trench').name).toBe('trench-invented-prior-cholesky-factor-30.grid.json');
   });
 });

@@ -17,13 +17,24 @@ import { CirculantProduct } from '../../src/core/fft/covariance.ts';
 import { COVARIANCE_CASES, relErr, seededVector } from '../core/fft/cases.ts';
 
 describe('Fft2 vs numpy.fft.fft2 / ifft2 (Debian python3-numpy)', () => {
-  const sizes: [number, number][] = [[2, 1], [1, 16], [2, 2], [8, 4], [4, 32], [64, 32], [256, 128]];
+  const sizes: [number, number][] = [
+    [2, 1],
+    [1, 16],
+    [2, 2],
+    [8, 4],
+    [4, 32],
+    [64, 32],
+    [256, 128],
+  ];
   const inputs = sizes.flatMap(([px, py], k) =>
     [false, true].map((inverse) => ({ px, py, inverse, buf: seededVector(2 * px * py, 10 + k) })),
   );
   const ref = runPython<{ results: { re: number[]; im: number[] }[] }>('fft_reference.py', {
     cases: inputs.map(({ px, py, inverse, buf }) => ({
-      op: 'fft2', px, py, inverse,
+      op: 'fft2',
+      px,
+      py,
+      inverse,
       re: Array.from(buf.filter((_, i) => i % 2 === 0)),
       im: Array.from(buf.filter((_, i) => i % 2 === 1)),
     })),
@@ -68,7 +79,10 @@ describe('FFT engine vs numpy.fft.fft / ifft (Debian python3-numpy)', () => {
   );
   const ref = runPython<{ results: { re: number[]; im: number[] }[] }>('fft_reference.py', {
     cases: inputs.map(({ n, count, inverse, buf }) => ({
-      op: 'fft1', n, count, inverse,
+      op: 'fft1',
+      n,
+      count,
+      inverse,
       re: Array.from(buf.filter((_, i) => i % 2 === 0)),
       im: Array.from(buf.filter((_, i) => i % 2 === 1)),
     })),
@@ -92,7 +106,9 @@ describe('FFT engine vs numpy.fft.fft / ifft (Debian python3-numpy)', () => {
 describe('covarianceOperator (FFT path) vs Cm @ x from numpy / scipy.special.kv', () => {
   const ref = runPython<{ results: number[][][] }>('fft_reference.py', {
     cases: COVARIANCE_CASES.map(({ grid, prior }, k) => ({
-      op: 'cov_apply', grid, prior,
+      op: 'cov_apply',
+      grid,
+      prior,
       x: [0, 1, 2].map((r) => Array.from(seededVector(cellCountOf(grid), 100 * k + r))),
     })),
   }).results;
@@ -117,12 +133,20 @@ describe('covarianceOperator (FFT path) vs Cm @ x from numpy / scipy.special.kv'
 describe('embedding eigenvalues vs numpy.linalg.eigvalsh of the explicit block-circulant matrix', () => {
   const cases: { grid: Grid; prior: PriorSpec; px: number; py: number }[] = [
     { grid: { shape: [9], spacing: [0.5] }, prior: p([{ kernel: 'exponential', variance: 2, length: 1.5 }]), px: 16, py: 1 },
-    { grid: { shape: [6, 5], spacing: [1, 0.7] }, prior: p([{ kernel: 'gaussian', variance: 1, lengths: [3, 1], angle: 35 }]), px: 16, py: 16 },
+    {
+      grid: { shape: [6, 5], spacing: [1, 0.7] },
+      prior: p([{ kernel: 'gaussian', variance: 1, lengths: [3, 1], angle: 35 }]),
+      px: 16,
+      py: 16,
+    },
     { grid: { shape: [5, 7], spacing: [1, 1] }, prior: p([{ kernel: 'matern', nu: 1.5, variance: 1, length: 4 }]), px: 8, py: 16 },
   ];
   const ref = runPython<{ results: number[][] }>('fft_reference.py', {
     cases: cases.map(({ grid, prior, px, py }) => ({
-      op: 'bccb_eigs', px, py, base: Array.from(circulantEmbedding(grid, prior.terms, px, py).base),
+      op: 'bccb_eigs',
+      px,
+      py,
+      base: Array.from(circulantEmbedding(grid, prior.terms, px, py).base),
     })),
   }).results;
   cases.forEach(({ grid, prior, px, py }, k) => {
@@ -149,8 +173,16 @@ describe('padding growth decisions vs numpy.linalg.eigvalsh of the explicit circ
   const grid: Grid = { shape: [32], spacing: [1] };
   const lengths = [6, 12];
   const searches = lengths.map((length) => nonNegativeEmbedding(grid, [{ kernel: 'gaussian', variance: 1, length }]));
-  const cases = searches.flatMap((s, k) => s.tried.map(([px]) => ({ k, px, base: Array.from(circulantEmbedding(grid, [{ kernel: 'gaussian', variance: 1, length: lengths[k] }], px, 1).base) })));
-  const ref = runPython<{ results: number[][] }>('fft_reference.py', { cases: cases.map(({ px, base }) => ({ op: 'bccb_eigs', px, py: 1, base })) }).results;
+  const cases = searches.flatMap((s, k) =>
+    s.tried.map(([px]) => ({
+      k,
+      px,
+      base: Array.from(circulantEmbedding(grid, [{ kernel: 'gaussian', variance: 1, length: lengths[k] }], px, 1).base),
+    })),
+  );
+  const ref = runPython<{ results: number[][] }>('fft_reference.py', {
+    cases: cases.map(({ px, base }) => ({ op: 'bccb_eigs', px, py: 1, base })),
+  }).results;
   lengths.forEach((length, k) => {
     it(`length ${length}: every rejected size has min λ < −1e-10·max λ in numpy, the chosen one does not`, () => {
       const tried = searches[k].tried;

@@ -13,13 +13,39 @@ import { rayOperator } from '../../src/core/problems/rays.ts';
 import { rayFan, relErr, seededVector } from '../core/fft/cases.ts';
 import { runPython } from './python.ts';
 
-interface Ref { mean: number[]; std: number[]; logEvidence: number; resolutionTrace: number; chi2: number; residuals: number[] }
+interface Ref {
+  mean: number[];
+  std: number[];
+  logEvidence: number;
+  resolutionTrace: number;
+  chi2: number;
+  residuals: number[];
+}
 
 const grid: Grid = { shape: [14, 10], spacing: [0.5, 0.7] };
 const CASES: { name: string; prior: PriorSpec; m: number }[] = [
-  { name: 'matern 1.5 isotropic', m: 24, prior: { mean: { constant: 0.5 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 1.2, length: 2 }] } },
-  { name: 'matern 2.5 rotated + nugget', m: 30, prior: { mean: { constant: 0 }, nugget: 0.01, terms: [{ kernel: 'matern', nu: 2.5, variance: 1, lengths: [3, 1], angle: 60 }] } },
-  { name: 'gaussian + exponential with profile, trend mean', m: 19, prior: { mean: { trend: { intercept: 0.3, slope: [0.2, 0.1] } }, stdProfile: Array.from(seededVector(140, 77), (v) => 1 + 0.3 * v), terms: [{ kernel: 'gaussian', variance: 0.5, lengths: [2, 4], angle: 15 }, { kernel: 'exponential', variance: 0.5, length: 1 }] } },
+  {
+    name: 'matern 1.5 isotropic',
+    m: 24,
+    prior: { mean: { constant: 0.5 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 1.2, length: 2 }] },
+  },
+  {
+    name: 'matern 2.5 rotated + nugget',
+    m: 30,
+    prior: { mean: { constant: 0 }, nugget: 0.01, terms: [{ kernel: 'matern', nu: 2.5, variance: 1, lengths: [3, 1], angle: 60 }] },
+  },
+  {
+    name: 'gaussian + exponential with profile, trend mean',
+    m: 19,
+    prior: {
+      mean: { trend: { intercept: 0.3, slope: [0.2, 0.1] } },
+      stdProfile: Array.from(seededVector(140, 77), (v) => 1 + 0.3 * v),
+      terms: [
+        { kernel: 'gaussian', variance: 0.5, lengths: [2, 4], angle: 15 },
+        { kernel: 'exponential', variance: 0.5, length: 1 },
+      ],
+    },
+  },
 ];
 
 describe('structured posterior vs scipy cho_factor/cho_solve (Debian python3-scipy)', () => {
@@ -31,7 +57,14 @@ describe('structured posterior vs scipy cho_factor/cho_solve (Debian python3-sci
   const ref = runPython<{ results: Ref[] }>('fft_reference.py', {
     cases: CASES.map(({ prior }, k) => {
       const g = sparseToDense(problems[k].operator.matrix as never);
-      return { op: 'posterior', grid, prior, g: { rows: g.rows, cols: g.cols, data: Array.from(g.data) }, d: Array.from(problems[k].data.values), sigma: Array.from(problems[k].data.sigma!) };
+      return {
+        op: 'posterior',
+        grid,
+        prior,
+        g: { rows: g.rows, cols: g.cols, data: Array.from(g.data) },
+        d: Array.from(problems[k].data.values),
+        sigma: Array.from(problems[k].data.sigma!),
+      };
     }),
   }).results;
   CASES.forEach(({ name, prior }, k) => {

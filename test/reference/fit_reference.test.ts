@@ -45,7 +45,9 @@ const ref = runPython<{ cases: { cdf: number[]; quantiles: number[]; mcCdf: numb
   matrices: [
     {
       G: Array.from({ length: m }, (_, k) => Array.from(operatorToDense(borehole.problem.operator).data.subarray(k * 200, (k + 1) * 200))),
-      Cm: Array.from({ length: 200 }, (_, i) => Array.from(covarianceMatrix(borehole.problem.grid, borehole.startPrior).data.subarray(i * 200, (i + 1) * 200))),
+      Cm: Array.from({ length: 200 }, (_, i) =>
+        Array.from(covarianceMatrix(borehole.problem.grid, borehole.startPrior).data.subarray(i * 200, (i + 1) * 200)),
+      ),
       sigma: Array.from(borehole.problem.data.sigma!),
     },
   ],

@@ -7,7 +7,11 @@ import { describe, expect, it } from 'vitest';
 import { deriv2, gravity, shaw, type TestProblem } from '../../src/core/problems/hansen.ts';
 import { runPython } from './python.ts';
 
-interface Packed { A: number[][]; x: number[]; b: number[] }
+interface Packed {
+  A: number[][];
+  x: number[];
+  b: number[];
+}
 interface Reply {
   deriv2: Record<string, Packed>;
   shaw: Record<string, Packed>;
@@ -44,7 +48,10 @@ describe.each(SIZES)('Hansen problems, n = %i, against the numpy/scipy re-implem
 describe('midpoint-rule right-hand sides converge to the continuous integrals at O(h²)', () => {
   // Midpoint-rule error is O(h²) for a smooth integrand (common practice, no source): halving h
   // should cut the max error by about 4. We accept ratios in [3, 5].
-  for (const [name, make] of [['shaw', shaw], ['gravity', gravity]] as const) {
+  for (const [name, make] of [
+    ['shaw', shaw],
+    ['gravity', gravity],
+  ] as const) {
     it(name, () => {
       const errs = [16, 32, 64].map((n) => {
         const g = ref.continuous[name][String(n)];

@@ -95,7 +95,13 @@ describe('besselK against scipy.special.kv / kve', () => {
   it('K_ν(x) is finite and accurate at x = 700 and underflows to 0 by x = 750', () => {
     // scipy's kv(0.8, 700) is already 0 (AMOS stops early), so the reference there is kve(0.8, 700)·e^{−700}
     // (e^{−700} ≈ 9.9e-305 is a normal double, the product is exact to an ulp).
-    const r = runPython<Ref>('bessel_reference.py', { kve: [[0.8, 700]], kv: [[0.8, 750], [7.5, 1e3]] });
+    const r = runPython<Ref>('bessel_reference.py', {
+      kve: [[0.8, 700]],
+      kv: [
+        [0.8, 750],
+        [7.5, 1e3],
+      ],
+    });
     expect(relErr(besselK(0.8, 700), r.kve![0]! * Math.exp(-700))).toBeLessThan(1e-12);
     expect(r.kv).toEqual([0, 0]);
     expect(besselK(0.8, 750)).toBe(0);

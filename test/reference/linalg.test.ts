@@ -13,25 +13,11 @@ import {
   solveLowerTransposeMatrix,
 } from '../../src/core/linalg/cholesky.ts';
 import { matmul, matrix, type Matrix } from '../../src/core/linalg/matrix.ts';
-import {
-  columnSumsOfSquares,
-  multiply,
-  multiplyNT,
-  symmetricProduct,
-  transposeOf,
-} from '../../src/core/linalg/products.ts';
+import { columnSumsOfSquares, multiply, multiplyNT, symmetricProduct, transposeOf } from '../../src/core/linalg/products.ts';
 import { denseToSparse } from '../../src/core/linalg/sparse.ts';
 import { denseTimesOperatorTranspose, operatorTimesDense } from '../../src/core/linalg/operator.ts';
 import { runPython } from './python.ts';
-import {
-  poisonUpper,
-  randomMatrix,
-  randomSpd,
-  relError,
-  seededUniform,
-  toJson,
-  type JsonMatrix,
-} from '../core/linalg/helpers.ts';
+import { poisonUpper, randomMatrix, randomSpd, relError, seededUniform, toJson, type JsonMatrix } from '../core/linalg/helpers.ts';
 
 type Ref = { results: unknown[] };
 const py = (cases: unknown[]) => runPython<Ref>('linalg_reference.py', { cases }).results;

@@ -52,7 +52,13 @@ describe('symmetricEigen vs numpy.linalg.eigh (Debian python3-numpy)', () => {
 });
 
 describe('symmetricEigenProjected vs numpy.linalg.eigh: Vᵀ B (Debian python3-numpy)', () => {
-  const shapes = [[1, 1], [5, 2], [64, 1], [97, 3], [150, 4]] as const;
+  const shapes = [
+    [1, 1],
+    [5, 2],
+    [64, 1],
+    [97, 3],
+    [150, 4],
+  ] as const;
   const inputs = shapes.map(([n, k]) => ({ a: randomSymmetric(n, 400 + n), b: randomMatrix(n, k, 500 + n) }));
   const ref = runPython<{ results: { values: number[]; projected: JsonMatrix }[] }>('linalg_reference.py', {
     cases: inputs.map(({ a, b }) => ({ op: 'eigh_project', a: toJson(a), b: toJson(b) })),

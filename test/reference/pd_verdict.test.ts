@@ -24,11 +24,17 @@ const LONG_LENGTH_CASES: { name: string; grid: Grid; prior: PriorSpec }[] = [
     grid: { shape: [30, 20], spacing: [1, 1] },
     prior: { mean: zero, terms: [{ kernel: 'exponential', variance: 1.0157e-3, lengths: [99.92, 26.02], angle: 14.67 }], nugget: 1e-6 },
   },
-  { name: '24 × 24, isotropic exponential of length 200', grid: { shape: [24, 24], spacing: [1, 1] }, prior: { mean: zero, terms: [{ kernel: 'exponential', variance: 1, length: 200 }] } },
+  {
+    name: '24 × 24, isotropic exponential of length 200',
+    grid: { shape: [24, 24], spacing: [1, 1] },
+    prior: { mean: zero, terms: [{ kernel: 'exponential', variance: 1, length: 200 }] },
+  },
 ];
 
 describe('priors whose correlation length exceeds the domain', () => {
-  const ref = runPython<{ cases: Ref[] }>('structured_diagnostics_reference.py', { cases: LONG_LENGTH_CASES.map(({ grid, prior }) => ({ grid, prior })) }).cases;
+  const ref = runPython<{ cases: Ref[] }>('structured_diagnostics_reference.py', {
+    cases: LONG_LENGTH_CASES.map(({ grid, prior }) => ({ grid, prior })),
+  }).cases;
 
   it.each(LONG_LENGTH_CASES.map((c, k) => [c.name, k] as const))('%s: proven positive definite, as numpy finds', (_n, k) => {
     const { grid, prior } = LONG_LENGTH_CASES[k];
@@ -80,7 +86,7 @@ describe('tiny variances: the verdict and the numbers agree', () => {
   const unit: PriorSpec = { mean: zero, terms: [{ kernel: 'exponential', variance: 1, length: 3 }] };
   const tiny: PriorSpec = { mean: zero, terms: [{ kernel: 'exponential', variance: 1e-300, length: 3 }] };
   const [ref] = runPython<{ cases: Ref[] }>('structured_diagnostics_reference.py', { cases: [{ grid, prior: unit }] }).cases;
-  it('a matrix at 1e-300 (check --covariance): eigenvalues 1e-300 times numpy\'s, proven positive definite', () => {
+  it("a matrix at 1e-300 (check --covariance): eigenvalues 1e-300 times numpy's, proven positive definite", () => {
     const c = covarianceMatrix(grid, unit);
     const scaled = { rows: c.rows, cols: c.cols, data: c.data.map((v) => v * 1e-300) };
     const d = diagnoseCovariance(scaled);

@@ -19,11 +19,25 @@ import type { Problem } from '../../src/core/problems/spec.ts';
 import { runPython } from './python.ts';
 
 interface RefResult {
-  Cm: number[]; m0: number[]; mean: number[]; std: number[]; cov: number[]; R: number[];
-  predicted: number[]; residuals: number[]; chi2: number; misfit: number; logEvidence: number; traceR: number;
+  Cm: number[];
+  m0: number[];
+  mean: number[];
+  std: number[];
+  cov: number[];
+  R: number[];
+  predicted: number[];
+  residuals: number[];
+  chi2: number;
+  misfit: number;
+  logEvidence: number;
+  traceR: number;
 }
 
-interface Case { name: string; problem: Problem; prior: PriorSpec }
+interface Case {
+  name: string;
+  problem: Problem;
+  prior: PriorSpec;
+}
 
 function serialiseOperator(g: Operator): object {
   if (g.kind === 'dense') return { rows: g.matrix.rows, cols: g.matrix.cols, dense: Array.from(g.matrix.data) };
@@ -44,7 +58,8 @@ function makeData(grid: Grid, G: Operator, scale: number): Float64Array {
 /** Smoothly correlated full Cd: σ² (ρ^|k−l|) plus 10% white (an AR(1)-type error model). */
 function correlatedCd(m: number, sigma: number, rho: number): Matrix {
   const C = matrix(m, m);
-  for (let k = 0; k < m; k++) for (let l = 0; l < m; l++) C.data[k * m + l] = sigma * sigma * (0.9 * rho ** Math.abs(k - l) + (k === l ? 0.1 : 0));
+  for (let k = 0; k < m; k++)
+    for (let l = 0; l < m; l++) C.data[k * m + l] = sigma * sigma * (0.9 * rho ** Math.abs(k - l) + (k === l ? 0.1 : 0));
   return C;
 }
 
@@ -90,7 +105,10 @@ const CASES: Case[] = [
     problem: problemOf(g1, windowOperator(g1, centres1, 0.8, true), 2, { sigma: 0.1 }),
     prior: {
       mean: { trend: { intercept: 1, slope: [0.05] } },
-      terms: [{ kernel: 'gaussian', variance: 1, length: 3 }, { kernel: 'matern', nu: 1.5, variance: 0.5, length: 1.5 }],
+      terms: [
+        { kernel: 'gaussian', variance: 1, length: 3 },
+        { kernel: 'matern', nu: 1.5, variance: 0.5, length: 1.5 },
+      ],
       nugget: 0.05,
       stdProfile: Array.from({ length: 60 }, (_, k) => 0.5 + k / 60),
     },
@@ -100,7 +118,10 @@ const CASES: Case[] = [
     problem: problemOf(g1, windowOperator(g1, centres1, 1.5, false), 1, { Cd: correlatedCd(18, 0.08, 0.6) }),
     prior: {
       mean: { values: Array.from({ length: 60 }, (_, k) => 0.1 * Math.cos(k / 7)) },
-      terms: [{ kernel: 'matern', nu: 2.5, variance: 0.8, length: 2.5 }, { kernel: 'spherical', variance: 0.4, length: 9 }],
+      terms: [
+        { kernel: 'matern', nu: 2.5, variance: 0.8, length: 2.5 },
+        { kernel: 'spherical', variance: 0.4, length: 9 },
+      ],
       nugget: 0.03,
     },
   },

@@ -17,10 +17,20 @@ describe.each([
 ] as const)('Tikhonov special case on Hansen %s', (_name, p, sigma, tau) => {
   const n = p.x.length;
   const d = p.b.map((v, k) => v + sigma * Math.sin(2.3 * k + 1));
-  const ref = runPython<{ normal: number[]; stacked: number[] }>('posterior_tikhonov.py', { A: Array.from(p.A.data), n, d: Array.from(d), sigma, tau });
+  const ref = runPython<{ normal: number[]; stacked: number[] }>('posterior_tikhonov.py', {
+    A: Array.from(p.A.data),
+    n,
+    d: Array.from(d),
+    sigma,
+    tau,
+  });
   const Cm = identity(n);
   Cm.data.forEach((v, k) => (Cm.data[k] = v * tau * tau));
-  const problem = { grid: { shape: [n], spacing: [1 / n] }, operator: { kind: 'dense' as const, matrix: p.A }, data: { values: d, sigma: new Float64Array(n).fill(sigma) } };
+  const problem = {
+    grid: { shape: [n], spacing: [1 / n] },
+    operator: { kind: 'dense' as const, matrix: p.A },
+    data: { values: d, sigma: new Float64Array(n).fill(sigma) },
+  };
   const mean = posteriorSummary(preparePosteriorFromCovariance(problem, Cm, new Float64Array(n))).mean;
   it('posterior mean equals the regularised normal-equations solution to 1e-8', () => {
     const scale = Math.max(...ref.normal.map(Math.abs));

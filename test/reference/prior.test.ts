@@ -9,7 +9,11 @@ import type { PriorSpec } from '../../src/core/prior/spec.ts';
 import type { Grid } from '../../src/core/grid/grid.ts';
 import { runPython } from './python.ts';
 
-interface Case { name: string; grid: Grid; prior: PriorSpec }
+interface Case {
+  name: string;
+  grid: Grid;
+  prior: PriorSpec;
+}
 
 const g1: Grid = { shape: [23], spacing: [0.7], origin: [3] };
 const g2: Grid = { shape: [7, 5], spacing: [1, 1.6], origin: [-2, 10] };
@@ -19,24 +23,50 @@ const cases: Case[] = [
   { name: '1-D exponential', grid: g1, prior: { mean: { constant: 4 }, terms: [{ kernel: 'exponential', variance: 2, length: 3 }] } },
   { name: '1-D gaussian', grid: g1, prior: { mean: { constant: 0 }, terms: [{ kernel: 'gaussian', variance: 0.5, length: 1.2 }] } },
   { name: '1-D spherical', grid: g1, prior: { mean: { constant: 0 }, terms: [{ kernel: 'spherical', variance: 3, length: 5 }] } },
-  ...[0.5, 1.5, 2.5].map((nu): Case => ({
-    name: `1-D matern ν=${nu}`, grid: g1, prior: { mean: { constant: 0 }, terms: [{ kernel: 'matern', variance: 1.5, length: 2, nu }] },
-  })),
+  ...[0.5, 1.5, 2.5].map(
+    (nu): Case => ({
+      name: `1-D matern ν=${nu}`,
+      grid: g1,
+      prior: { mean: { constant: 0 }, terms: [{ kernel: 'matern', variance: 1.5, length: 2, nu }] },
+    }),
+  ),
   { name: '1-D matern default ν', grid: g1, prior: { mean: { constant: 0 }, terms: [{ kernel: 'matern', variance: 1, length: 2 }] } },
   {
-    name: '1-D sum + nugget + stdProfile + trend', grid: g1,
+    name: '1-D sum + nugget + stdProfile + trend',
+    grid: g1,
     prior: {
       mean: { trend: { intercept: 1.5, slope: [-0.25] } },
-      terms: [{ kernel: 'exponential', variance: 1, length: 4 }, { kernel: 'gaussian', variance: 0.3, length: 0.9 }],
-      nugget: 0.05, stdProfile: ramp(23, 0.5, 2),
+      terms: [
+        { kernel: 'exponential', variance: 1, length: 4 },
+        { kernel: 'gaussian', variance: 0.3, length: 0.9 },
+      ],
+      nugget: 0.05,
+      stdProfile: ramp(23, 0.5, 2),
     },
   },
-  { name: '2-D isotropic exponential', grid: g2, prior: { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length: 2.5 }] } },
-  { name: '2-D anisotropic gaussian 30°', grid: g2, prior: { mean: { constant: 0 }, terms: [{ kernel: 'gaussian', variance: 2, lengths: [4, 1.5], angle: 30 }] } },
-  { name: '2-D anisotropic spherical −70°', grid: g2, prior: { mean: { constant: 0 }, terms: [{ kernel: 'spherical', variance: 1, lengths: [6, 2], angle: -70 }] } },
-  { name: '2-D anisotropic matern ν=2.5 135°', grid: g2, prior: { mean: { constant: 0 }, terms: [{ kernel: 'matern', variance: 1, lengths: [3, 1], angle: 135, nu: 2.5 }] } },
   {
-    name: '2-D sum + nugget + stdProfile + 2-D trend', grid: g2,
+    name: '2-D isotropic exponential',
+    grid: g2,
+    prior: { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length: 2.5 }] },
+  },
+  {
+    name: '2-D anisotropic gaussian 30°',
+    grid: g2,
+    prior: { mean: { constant: 0 }, terms: [{ kernel: 'gaussian', variance: 2, lengths: [4, 1.5], angle: 30 }] },
+  },
+  {
+    name: '2-D anisotropic spherical −70°',
+    grid: g2,
+    prior: { mean: { constant: 0 }, terms: [{ kernel: 'spherical', variance: 1, lengths: [6, 2], angle: -70 }] },
+  },
+  {
+    name: '2-D anisotropic matern ν=2.5 135°',
+    grid: g2,
+    prior: { mean: { constant: 0 }, terms: [{ kernel: 'matern', variance: 1, lengths: [3, 1], angle: 135, nu: 2.5 }] },
+  },
+  {
+    name: '2-D sum + nugget + stdProfile + 2-D trend',
+    grid: g2,
     prior: {
       mean: { trend: { intercept: -1, slope: [0.5, 0.125] } },
       terms: [
@@ -44,13 +74,22 @@ const cases: Case[] = [
         { kernel: 'spherical', variance: 0.4, length: 3 },
         { kernel: 'exponential', variance: 0.2, lengths: [1, 4], angle: 200 },
       ],
-      nugget: 0.01, stdProfile: ramp(35, 0.8, 1.5),
+      nugget: 0.01,
+      stdProfile: ramp(35, 0.8, 1.5),
     },
   },
-  { name: '2-D values mean', grid: g2, prior: { mean: { values: ramp(35, -3, 7) }, terms: [{ kernel: 'gaussian', variance: 1, length: 1 }] } },
-  ...[0.3, 1.25, 3.7].map((nu): Case => ({
-    name: `2-D matern general ν=${nu}`, grid: g2, prior: { mean: { constant: 0 }, terms: [{ kernel: 'matern', variance: 1, lengths: [3, 2], angle: 40, nu }] },
-  })),
+  {
+    name: '2-D values mean',
+    grid: g2,
+    prior: { mean: { values: ramp(35, -3, 7) }, terms: [{ kernel: 'gaussian', variance: 1, length: 1 }] },
+  },
+  ...[0.3, 1.25, 3.7].map(
+    (nu): Case => ({
+      name: `2-D matern general ν=${nu}`,
+      grid: g2,
+      prior: { mean: { constant: 0 }, terms: [{ kernel: 'matern', variance: 1, lengths: [3, 2], angle: 40, nu }] },
+    }),
+  ),
 ];
 
 describe('prior covariance vs numpy/scipy construction', () => {

@@ -12,20 +12,58 @@ import type { Grid } from '../../src/core/grid/grid.ts';
 import { runPython } from './python.ts';
 
 type Ref = { min: number; max: number; n: number };
-const p = (terms: PriorSpec['terms'], nugget?: number): PriorSpec => ({ mean: { constant: 0 }, terms, ...(nugget === undefined ? {} : { nugget }) });
+const p = (terms: PriorSpec['terms'], nugget?: number): PriorSpec => ({
+  mean: { constant: 0 },
+  terms,
+  ...(nugget === undefined ? {} : { nugget }),
+});
 
 const eigCases: { name: string; grid: Grid; prior: PriorSpec }[] = [
-  { name: '1-D exponential + nugget', grid: { shape: [150], spacing: [0.5] }, prior: p([{ kernel: 'exponential', variance: 2, length: 3 }], 0.1) },
+  {
+    name: '1-D exponential + nugget',
+    grid: { shape: [150], spacing: [0.5] },
+    prior: p([{ kernel: 'exponential', variance: 2, length: 3 }], 0.1),
+  },
   { name: '1-D matern 2.5', grid: { shape: [120], spacing: [1] }, prior: p([{ kernel: 'matern', variance: 1, length: 2, nu: 2.5 }]) },
-  { name: '2-D rotated spherical + gaussian', grid: { shape: [12, 10], spacing: [1, 2] }, prior: p([{ kernel: 'spherical', variance: 1, lengths: [8, 3], angle: 25 }, { kernel: 'gaussian', variance: 0.5, length: 1 }], 0.01) },
+  {
+    name: '2-D rotated spherical + gaussian',
+    grid: { shape: [12, 10], spacing: [1, 2] },
+    prior: p(
+      [
+        { kernel: 'spherical', variance: 1, lengths: [8, 3], angle: 25 },
+        { kernel: 'gaussian', variance: 0.5, length: 1 },
+      ],
+      0.01,
+    ),
+  },
 ];
 
 // Condition-estimate cases: long grids so the finite section is close to the infinite lattice.
 const condCases: { name: string; grid: Grid; prior: PriorSpec; factor: number }[] = [
-  { name: '1-D gaussian, length 1.5 cells', grid: { shape: [400], spacing: [1] }, prior: p([{ kernel: 'gaussian', variance: 1, length: 1.5 }]), factor: 1.05 },
-  { name: '1-D gaussian, length 2 cells, spacing 0.5', grid: { shape: [400], spacing: [0.5] }, prior: p([{ kernel: 'gaussian', variance: 1, length: 1 }]), factor: 1.05 },
-  { name: '1-D matern 2.5, length 3 cells', grid: { shape: [500], spacing: [1] }, prior: p([{ kernel: 'matern', variance: 1, length: 3, nu: 2.5 }]), factor: 1.2 },
-  { name: '2-D rotated gaussian', grid: { shape: [36, 36], spacing: [1, 1] }, prior: p([{ kernel: 'gaussian', variance: 1, lengths: [1.2, 0.8], angle: 30 }]), factor: 1.5 },
+  {
+    name: '1-D gaussian, length 1.5 cells',
+    grid: { shape: [400], spacing: [1] },
+    prior: p([{ kernel: 'gaussian', variance: 1, length: 1.5 }]),
+    factor: 1.05,
+  },
+  {
+    name: '1-D gaussian, length 2 cells, spacing 0.5',
+    grid: { shape: [400], spacing: [0.5] },
+    prior: p([{ kernel: 'gaussian', variance: 1, length: 1 }]),
+    factor: 1.05,
+  },
+  {
+    name: '1-D matern 2.5, length 3 cells',
+    grid: { shape: [500], spacing: [1] },
+    prior: p([{ kernel: 'matern', variance: 1, length: 3, nu: 2.5 }]),
+    factor: 1.2,
+  },
+  {
+    name: '2-D rotated gaussian',
+    grid: { shape: [36, 36], spacing: [1, 1] },
+    prior: p([{ kernel: 'gaussian', variance: 1, lengths: [1.2, 0.8], angle: 30 }]),
+    factor: 1.5,
+  },
 ];
 
 describe('diagnostics vs numpy eigvalsh', () => {

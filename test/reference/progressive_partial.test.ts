@@ -12,7 +12,13 @@ import type { PosteriorPartial } from '../../src/worker/protocol.ts';
 import { PRIOR, profileProblem } from '../worker/problems.ts';
 import { runPython } from './python.ts';
 
-interface Ref { mean: number[]; predicted: number[]; residuals: number[]; chi2: number; Cm: number[] }
+interface Ref {
+  mean: number[];
+  predicted: number[];
+  residuals: number[];
+  chi2: number;
+  Cm: number[];
+}
 
 function relErr(a: ArrayLike<number>, b: ArrayLike<number>): number {
   expect(a.length).toBe(b.length);
@@ -55,7 +61,12 @@ describe('partial posterior vs scipy (posterior_reference.py)', () => {
       expect(relErr(p!.predicted, r.predicted)).toBeLessThan(1e-9);
       expect(relErr(p!.residuals, r.residuals)).toBeLessThan(1e-9);
       expect(Math.abs(p!.chi2 - r.chi2)).toBeLessThan(1e-9 * r.chi2);
-      expect(relErr(p!.priorStd, Array.from({ length: n }, (_, i) => Math.sqrt(r.Cm[i * n + i])))).toBeLessThan(1e-12);
+      expect(
+        relErr(
+          p!.priorStd,
+          Array.from({ length: n }, (_, i) => Math.sqrt(r.Cm[i * n + i])),
+        ),
+      ).toBeLessThan(1e-12);
     });
   });
 });

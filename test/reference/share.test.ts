@@ -38,7 +38,8 @@ describe('share link codec against Python base64 + zlib', () => {
     const bad = await encodeShare({ problem: null, prior: priors[0] });
     // a prior that fails the prior file's checks is refused with the field named
     const { deflateRawSync } = await import('node:zlib');
-    const wrong = '#share=' + toBase64Url(deflateRawSync(JSON.stringify({ problem: null, prior: { ...priorToJson(priors[0]), nugget: -1 } })));
+    const wrong =
+      '#share=' + toBase64Url(deflateRawSync(JSON.stringify({ problem: null, prior: { ...priorToJson(priors[0]), nugget: -1 } })));
     await expect(decodeShare(wrong)).rejects.toThrow('shared link: nugget must be');
     expect(Array.from(fromBase64Url(toBase64Url(Uint8Array.from([0, 255, 251, 62, 63]))))).toEqual([0, 255, 251, 62, 63]);
     expect(bad.length).toBeLessThan(200);

@@ -17,16 +17,43 @@ const zero = { constant: 0 } as const;
 const profile = (n: number, seed: number) => Array.from(seededVector(n, seed), (v) => 1 + 0.6 * v);
 
 const extra: { name: string; grid: Grid; prior: PriorSpec }[] = [
-  { name: '1-D exponential, 200 cells', grid: { shape: [200], spacing: [1] }, prior: { mean: zero, terms: [{ kernel: 'exponential', variance: 2, length: 5 }] } },
-  { name: '1-D spherical + nugget, 180 cells', grid: { shape: [180], spacing: [0.5] }, prior: { mean: zero, nugget: 0.01, terms: [{ kernel: 'spherical', variance: 1, length: 20 }] } },
-  { name: '2-D matern 0.8 (Bessel form) + profile + nugget', grid: { shape: [15, 12], spacing: [1, 1.3] }, prior: { mean: zero, nugget: 0.02, stdProfile: profile(180, 5), terms: [{ kernel: 'matern', nu: 0.8, variance: 1, lengths: [4, 2], angle: 35 }] } },
-  { name: '2-D spherical with a strong std profile', grid: { shape: [16, 16], spacing: [1, 1] }, prior: { mean: zero, stdProfile: profile(256, 3), terms: [{ kernel: 'spherical', variance: 1, lengths: [7, 3], angle: 60 }] } },
-  { name: '2-D gaussian, long length, no nugget (near-singular)', grid: { shape: [16, 16], spacing: [1, 1] }, prior: { mean: zero, terms: [{ kernel: 'gaussian', variance: 1, length: 4 }] } },
+  {
+    name: '1-D exponential, 200 cells',
+    grid: { shape: [200], spacing: [1] },
+    prior: { mean: zero, terms: [{ kernel: 'exponential', variance: 2, length: 5 }] },
+  },
+  {
+    name: '1-D spherical + nugget, 180 cells',
+    grid: { shape: [180], spacing: [0.5] },
+    prior: { mean: zero, nugget: 0.01, terms: [{ kernel: 'spherical', variance: 1, length: 20 }] },
+  },
+  {
+    name: '2-D matern 0.8 (Bessel form) + profile + nugget',
+    grid: { shape: [15, 12], spacing: [1, 1.3] },
+    prior: {
+      mean: zero,
+      nugget: 0.02,
+      stdProfile: profile(180, 5),
+      terms: [{ kernel: 'matern', nu: 0.8, variance: 1, lengths: [4, 2], angle: 35 }],
+    },
+  },
+  {
+    name: '2-D spherical with a strong std profile',
+    grid: { shape: [16, 16], spacing: [1, 1] },
+    prior: { mean: zero, stdProfile: profile(256, 3), terms: [{ kernel: 'spherical', variance: 1, lengths: [7, 3], angle: 60 }] },
+  },
+  {
+    name: '2-D gaussian, long length, no nugget (near-singular)',
+    grid: { shape: [16, 16], spacing: [1, 1] },
+    prior: { mean: zero, terms: [{ kernel: 'gaussian', variance: 1, length: 4 }] },
+  },
 ];
 const CASES = [...COVARIANCE_CASES.map((c) => ({ name: c.name, grid: c.grid, prior: c.prior })), ...extra];
 
 describe('FFT-route diagnostics vs numpy eigvalsh', () => {
-  const ref = runPython<{ cases: Ref[] }>('structured_diagnostics_reference.py', { cases: CASES.map(({ grid, prior }) => ({ grid, prior })) }).cases;
+  const ref = runPython<{ cases: Ref[] }>('structured_diagnostics_reference.py', {
+    cases: CASES.map(({ grid, prior }) => ({ grid, prior })),
+  }).cases;
 
   it.each(CASES.map((c, k) => [c.name, k] as const))('%s: bracket contains the spectrum, Ritz values inside', (_name, k) => {
     const { grid, prior } = CASES[k];

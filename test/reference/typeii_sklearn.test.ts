@@ -164,9 +164,16 @@ describe('fit: type-II maximum likelihood against sklearn GaussianProcessRegress
       expect(Math.abs(fit.logEvidence - ref.lml_opt), where).toBeLessThan(1e-6);
       expect(Math.abs(fit.logEvidence - ref.lml_at_ours), where).toBeLessThan(1e-9 * Math.max(1, Math.abs(ref.lml_at_ours)));
       // Parameter order: variance, then the length(s), as in sklearn's ConstantKernel * Matern theta.
-      expect(fit.parameters.map((p) => p.name)).toEqual(c.start.terms[0].lengths ? ['term0.variance', 'term0.lengths[0]', 'term0.lengths[1]'] : ['term0.variance', 'term0.length']);
+      expect(fit.parameters.map((p) => p.name)).toEqual(
+        c.start.terms[0].lengths ? ['term0.variance', 'term0.lengths[0]', 'term0.lengths[1]'] : ['term0.variance', 'term0.length'],
+      );
       fit.parameters.forEach((p, i) => expect(Math.abs(p.value / ref.theta_opt[i] - 1), `${where}, ${p.name}`).toBeLessThan(1e-3));
-      fit.parameters.forEach((p, i) => expect(Math.abs(p.standardError / ref.se_at_ours[i] - 1), `${c.name}: standard error of ${p.name}: ours ${p.standardError}, sklearn ${ref.se_at_ours[i]}`).toBeLessThan(1e-3));
+      fit.parameters.forEach((p, i) =>
+        expect(
+          Math.abs(p.standardError / ref.se_at_ours[i] - 1),
+          `${c.name}: standard error of ${p.name}: ours ${p.standardError}, sklearn ${ref.se_at_ours[i]}`,
+        ).toBeLessThan(1e-3),
+      );
     });
     console.log(
       refs

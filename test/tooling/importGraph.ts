@@ -36,7 +36,10 @@ const DYNAMIC = /\bimport\(\s*['"]([^'"]+)['"]\s*\)/g;
 function allNamesTypeOnly(clause: string): boolean {
   const m = /^\{([\s\S]*)\}$/.exec(clause.trim());
   if (!m) return false;
-  const names = m[1].split(',').map((s) => s.trim()).filter(Boolean);
+  const names = m[1]
+    .split(',')
+    .map((s) => s.trim())
+    .filter(Boolean);
   return names.length > 0 && names.every((n) => n.startsWith('type '));
 }
 
@@ -48,7 +51,9 @@ export function importEdges(root: string): ImportEdge[] {
     const from = relative(root, file).split('\\').join('/');
     const add = (spec: string, typeOnly: boolean) => {
       if (!spec.startsWith('.')) return;
-      const to = relative(root, resolve(dirname(file), spec)).split('\\').join('/');
+      const to = relative(root, resolve(dirname(file), spec))
+        .split('\\')
+        .join('/');
       edges.push({ from, to, typeOnly });
     };
     for (const m of text.matchAll(STATIC)) add(m[5], Boolean(m[3]) || allNamesTypeOnly(m[4]));

@@ -20,11 +20,29 @@ describe('workbench and command line: the same calibration for the same seed', (
   const dir = tempDir();
   writeFiles(dir, { 'p.json': writeProblemFile(problem, 'inline').json, 'q.json': writePriorFile(prior), 'o.json': writePriorFile(other) });
 
-  it('self-calibration: 23 replicates in the worker\'s chunks vs calibrate --replicates 23', async () => {
-    const w = await runTuning<'calibration'>(problem, { id: 1, kind: 'calibration', problemVersion: 0, prior, replicates: 23, draws: 5, seed: 31 }, () => {}, { aborted: false });
-    const r = await runCommand(['calibrate', '--problem', 'p.json', '--prior', 'q.json', '--replicates', '23', '--seed', '31', '--draws', '5'], dir);
+  it("self-calibration: 23 replicates in the worker's chunks vs calibrate --replicates 23", async () => {
+    const w = await runTuning<'calibration'>(
+      problem,
+      { id: 1, kind: 'calibration', problemVersion: 0, prior, replicates: 23, draws: 5, seed: 31 },
+      () => {},
+      { aborted: false },
+    );
+    const r = await runCommand(
+      ['calibrate', '--problem', 'p.json', '--prior', 'q.json', '--replicates', '23', '--seed', '31', '--draws', '5'],
+      dir,
+    );
     expect(r.code, r.err).toBe(0);
-    const c = (JSON.parse(r.out) as { results: { coverage68: number; coverage95: number; replicateCoverage68: number[]; replicateCoverage95: number[]; rankHistogram: number[] }[] }).results[0];
+    const c = (
+      JSON.parse(r.out) as {
+        results: {
+          coverage68: number;
+          coverage95: number;
+          replicateCoverage68: number[];
+          replicateCoverage95: number[];
+          rankHistogram: number[];
+        }[];
+      }
+    ).results[0];
     expect(Array.from(w.replicateCoverage68)).toEqual(c.replicateCoverage68);
     expect(Array.from(w.replicateCoverage95)).toEqual(c.replicateCoverage95);
     expect(Array.from(w.rankHistogram)).toEqual(c.rankHistogram);
@@ -33,8 +51,16 @@ describe('workbench and command line: the same calibration for the same seed', (
   });
 
   it('cross-calibration of two priors vs calibrate with two prior files', async () => {
-    const w = await runTuning<'crossCalibration'>(problem, { id: 2, kind: 'crossCalibration', problemVersion: 0, priors: [prior, other], replicates: 6, draws: 3, seed: 8 }, () => {}, { aborted: false });
-    const r = await runCommand(['calibrate', '--problem', 'p.json', '--prior', 'q.json', 'o.json', '--replicates', '6', '--seed', '8', '--draws', '3'], dir);
+    const w = await runTuning<'crossCalibration'>(
+      problem,
+      { id: 2, kind: 'crossCalibration', problemVersion: 0, priors: [prior, other], replicates: 6, draws: 3, seed: 8 },
+      () => {},
+      { aborted: false },
+    );
+    const r = await runCommand(
+      ['calibrate', '--problem', 'p.json', '--prior', 'q.json', 'o.json', '--replicates', '6', '--seed', '8', '--draws', '3'],
+      dir,
+    );
     expect(r.code, r.err).toBe(0);
     const j = JSON.parse(r.out) as { coverage68Table: number[][]; coverage95Table: number[][] };
     expect(Array.from(w.coverage68)).toEqual(j.coverage68Table.flat());

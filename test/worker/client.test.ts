@@ -94,7 +94,11 @@ describe('WorkerClient', () => {
   it('turns a serialised error into a WorkerTaskError with name and field', async () => {
     const { client, w } = setup();
     const p = client.posterior(prior(-1));
-    w().reply({ type: 'error', id: w().last().id, error: { name: 'InputError', message: 'terms[0].length must be > 0, got -1', field: 'terms[0].length' } });
+    w().reply({
+      type: 'error',
+      id: w().last().id,
+      error: { name: 'InputError', message: 'terms[0].length must be > 0, got -1', field: 'terms[0].length' },
+    });
     const e = await p.then(
       () => null,
       (err: unknown) => err,

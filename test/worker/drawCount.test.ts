@@ -18,10 +18,12 @@ describe('Engine: realisations for the export', () => {
     const engine = new Engine();
     await engine.handle({ id: 1, kind: 'setProblem', version: 1, problem: profileProblem(160, 'diagonal') });
     const most = Math.floor(MAX_DRAW_NUMBERS / 160);
-    await expect(engine.handle({ id: 2, kind: 'priorDraws', problemVersion: 1, prior: PRIOR, count: 10_001, seed: 5 }, () => {})).rejects.toThrow(
-      `an integer from 1 to ${Math.min(10_000, most)} on this grid of 160 cells`,
-    );
-    await expect(engine.handle({ id: 3, kind: 'posteriorDraws', problemVersion: 1, prior: PRIOR, count: 0, seed: 5 }, () => {})).rejects.toThrow('priorscope sample');
+    await expect(
+      engine.handle({ id: 2, kind: 'priorDraws', problemVersion: 1, prior: PRIOR, count: 10_001, seed: 5 }, () => {}),
+    ).rejects.toThrow(`an integer from 1 to ${Math.min(10_000, most)} on this grid of 160 cells`);
+    await expect(
+      engine.handle({ id: 3, kind: 'posteriorDraws', problemVersion: 1, prior: PRIOR, count: 0, seed: 5 }, () => {}),
+    ).rejects.toThrow('priorscope sample');
   });
 });
 
@@ -34,7 +36,9 @@ describe('Engine: the dense Cm and its Cholesky factor for export', () => {
     const problem = profileProblem(500, 'diagonal');
     expect(500).toBeGreaterThan(COVARIANCE_VIEW_LIMIT);
     await engine.handle({ id: 1, kind: 'setProblem', version: 1, problem });
-    await expect(engine.handle({ id: 2, kind: 'covariance', problemVersion: 1, prior: PRIOR }, () => {})).rejects.toThrow('covariance view');
+    await expect(engine.handle({ id: 2, kind: 'covariance', problemVersion: 1, prior: PRIOR }, () => {})).rejects.toThrow(
+      'covariance view',
+    );
     const prior = { ...PRIOR, nugget: 1e-6 };
     const cm = await engine.handle({ id: 3, kind: 'covariance', problemVersion: 1, prior, form: 'covariance' }, () => {});
     expect(sameBits(cm.data, covarianceMatrix(problem.grid, prior).data)).toBe(true);
@@ -48,6 +52,8 @@ describe('Engine: the dense Cm and its Cholesky factor for export', () => {
     await engine.handle({ id: 1, kind: 'setProblem', version: 1, problem: profileProblem(120, 'diagonal') });
     // A Gaussian kernel 40 cells long without nugget on 120 cells: numerically singular (DEVELOPERS: the verdict).
     const prior = { mean: { constant: 0 }, terms: [{ kernel: 'gaussian' as const, variance: 1, length: 40 }], nugget: 0 };
-    await expect(engine.handle({ id: 2, kind: 'covariance', problemVersion: 1, prior, form: 'cholesky' }, () => {})).rejects.toThrow('Cm is not positive definite');
+    await expect(engine.handle({ id: 2, kind: 'covariance', problemVersion: 1, prior, form: 'cholesky' }, () => {})).rejects.toThrow(
+      'Cm is not positive definite',
+    );
   });
 });

@@ -13,7 +13,11 @@ import { M, PRIOR, profileProblem, sameBits } from './problems.ts';
 type Job = Exclude<WorkerRequest, { kind: 'cancel' }>;
 
 /** Replies as the main thread would get them: structured-cloned with the transfer list (which detaches the sender's buffers). */
-async function replies(problem: Problem, options: EngineOptions, job: Omit<Extract<Job, { kind: 'posterior' }>, 'problemVersion'> = { id: 7, kind: 'posterior', prior: PRIOR }) {
+async function replies(
+  problem: Problem,
+  options: EngineOptions,
+  job: Omit<Extract<Job, { kind: 'posterior' }>, 'problemVersion'> = { id: 7, kind: 'posterior', prior: PRIOR },
+) {
   const engine = new Engine(options);
   await engine.handle({ id: 1, kind: 'setProblem', version: 1, problem });
   const out: WorkerReply[] = [];
@@ -23,7 +27,8 @@ async function replies(problem: Problem, options: EngineOptions, job: Omit<Extra
 
 const kinds = (rs: WorkerReply[]) => rs.filter((r) => r.type !== 'progress').map((r) => r.type);
 const partialOf = (rs: WorkerReply[]) => (rs.find((r) => r.type === 'partial') as Extract<WorkerReply, { type: 'partial' }>).partial;
-const resultOf = (rs: WorkerReply[]) => (rs.find((r) => r.type === 'result') as Extract<WorkerReply, { type: 'result' }>).result as PosteriorResult;
+const resultOf = (rs: WorkerReply[]) =>
+  (rs.find((r) => r.type === 'result') as Extract<WorkerReply, { type: 'result' }>).result as PosteriorResult;
 
 describe('Engine: posterior mean before the bands (FFT path)', () => {
   for (const errors of ['diagonal', 'full'] as const) {
@@ -106,10 +111,16 @@ describe('Engine: FFT-path products over a thread pool', () => {
     expect(productsWorthSplitting(160, problem.grid.shape, 2)).toBe(true);
     const pool = nodeBlockPool(2);
     let productTasks = 0;
-    const counted = { ...pool, size: pool.size, run: pool.run.bind(pool), close: pool.close.bind(pool), runProducts: (t: never, port: number) => {
-      productTasks++;
-      return pool.runProducts(t, port);
-    } };
+    const counted = {
+      ...pool,
+      size: pool.size,
+      run: pool.run.bind(pool),
+      close: pool.close.bind(pool),
+      runProducts: (t: never, port: number) => {
+        productTasks++;
+        return pool.runProducts(t, port);
+      },
+    };
     const prior = { mean: { constant: 0.2 }, terms: [{ kernel: 'matern' as const, nu: 1.5, variance: 1e-3, length: 12 }] };
     const run = async (options: EngineOptions) => {
       const engine = new Engine(options);

@@ -33,11 +33,16 @@ describe('Engine: FFT routes for draws, resolution and diagnostics', () => {
     expect(sameBits(draws.data, posteriorRealisations(preparePosterior(problem, PRIOR), 4, 9).data)).toBe(false);
     const dense = preparePosterior(problem, PRIOR);
     for (const cell of [0, 37, 159]) {
-      const r = (await engine.handle({ id: 3, kind: 'resolution', problemVersion: 1, prior: PRIOR, cell })) as { cell: number; row: Float64Array };
+      const r = (await engine.handle({ id: 3, kind: 'resolution', problemVersion: 1, prior: PRIOR, cell })) as {
+        cell: number;
+        row: Float64Array;
+      };
       expect(r.cell).toBe(cell);
       expect(relErr(r.row, resolutionRow(dense, cell))).toBeLessThan(1e-10);
     }
-    await expect(engine.handle({ id: 4, kind: 'resolution', problemVersion: 1, prior: PRIOR, cell: 160 })).rejects.toThrow('cell must be an integer cell index from 0 to 159, got 160');
+    await expect(engine.handle({ id: 4, kind: 'resolution', problemVersion: 1, prior: PRIOR, cell: 160 })).rejects.toThrow(
+      'cell must be an integer cell index from 0 to 159, got 160',
+    );
   });
 
   it('100 cells (dense posterior path): draws are the dense ones', async () => {
@@ -48,9 +53,13 @@ describe('Engine: FFT routes for draws, resolution and diagnostics', () => {
   });
 
   it(`diagnostics: exact below ${STRUCTURED_DIAGNOSTICS_MIN_CELLS} cells, FFT bounds from there`, async () => {
-    const small = (await (await engineWith(profileProblem(160, 'diagonal'))).handle({ id: 2, kind: 'diagnostics', problemVersion: 1, prior: PRIOR })) as Diagnostics;
+    const small = (await (
+      await engineWith(profileProblem(160, 'diagonal'))
+    ).handle({ id: 2, kind: 'diagnostics', problemVersion: 1, prior: PRIOR })) as Diagnostics;
     expect(small.eigenvalueMethod).toBe('exact');
-    const big = (await (await engineWith(profileProblem(2048, 'diagonal'))).handle({ id: 2, kind: 'diagnostics', problemVersion: 1, prior: PRIOR })) as Diagnostics;
+    const big = (await (
+      await engineWith(profileProblem(2048, 'diagonal'))
+    ).handle({ id: 2, kind: 'diagnostics', problemVersion: 1, prior: PRIOR })) as Diagnostics;
     expect(big.eigenvalueMethod).toBe('fft-bounds');
     expect(big.positiveDefinite).toBe(true);
     expect(big.eigenvalueBounds!.lower).toBeGreaterThan(0);

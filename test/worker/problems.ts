@@ -23,7 +23,11 @@ export function profileProblem(n: number, errors: 'diagonal' | 'full'): Problem 
       : {
           values,
           // Cd_ij = 0.01 · 0.5^|i−j|: the AR(1) correlation, positive definite for |ρ| < 1.
-          covariance: { rows: M, cols: M, data: Float64Array.from({ length: M * M }, (_, q) => 0.01 * 0.5 ** Math.abs(Math.floor(q / M) - (q % M))) },
+          covariance: {
+            rows: M,
+            cols: M,
+            data: Float64Array.from({ length: M * M }, (_, q) => 0.01 * 0.5 ** Math.abs(Math.floor(q / M) - (q % M))),
+          },
         };
   return {
     title: 'worker test profile (invented)',

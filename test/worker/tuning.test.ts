@@ -8,7 +8,15 @@
 import { describe, expect, it } from 'vitest';
 import { patchTerm } from '../../src/core/kernels/spec.ts';
 import { demoById } from '../../src/core/problems/demos.ts';
-import { calibrate, evidenceMap, leaveOneOut, logEvidence, priorPredictiveCheck, termLength, tuningRoute } from '../../src/core/tuning/index.ts';
+import {
+  calibrate,
+  evidenceMap,
+  leaveOneOut,
+  logEvidence,
+  priorPredictiveCheck,
+  termLength,
+  tuningRoute,
+} from '../../src/core/tuning/index.ts';
 import { prepareStructuredPosterior } from '../../src/core/inverse/structured.ts';
 import { structuredPosteriorDraws } from '../../src/core/inverse/structuredDraws.ts';
 import type { PriorSpec } from '../../src/core/prior/spec.ts';
@@ -50,9 +58,17 @@ describe('evidence map by rows', () => {
   it('stops between rows when the flag is set, leaving later rows NaN', async () => {
     const flag = { aborted: false };
     let reports = 0;
-    const map = await mapByRows(problem, startPrior, 0, lengths, variances, () => {
-      if (++reports === 2) flag.aborted = true;
-    }, flag);
+    const map = await mapByRows(
+      problem,
+      startPrior,
+      0,
+      lengths,
+      variances,
+      () => {
+        if (++reports === 2) flag.aborted = true;
+      },
+      flag,
+    );
     expect(map.cancelled).toBe(true);
     expect(map.methodByLength).toHaveLength(2);
     expect(Number.isFinite(map.logEvidence[2 * variances.count - 1])).toBe(true);
@@ -60,12 +76,22 @@ describe('evidence map by rows', () => {
   });
 
   it('rejects an oversized axis with the field named', async () => {
-    await expect(mapByRows(problem, startPrior, 0, { ...lengths, count: 5000 }, variances, () => {}, { aborted: false })).rejects.toThrow(/lengths\.count/);
+    await expect(mapByRows(problem, startPrior, 0, { ...lengths, count: 5000 }, variances, () => {}, { aborted: false })).rejects.toThrow(
+      /lengths\.count/,
+    );
   });
 });
 
 describe('cancellation through the queue', () => {
-  const req = (id: number): Extract<WorkerRequest, { kind: 'evidenceMap' }> => ({ id, kind: 'evidenceMap', problemVersion: 1, prior: startPrior, term: 0, lengths, variances });
+  const req = (id: number): Extract<WorkerRequest, { kind: 'evidenceMap' }> => ({
+    id,
+    kind: 'evidenceMap',
+    problemVersion: 1,
+    prior: startPrior,
+    term: 0,
+    lengths,
+    variances,
+  });
 
   it('a newer request of the same channel aborts the running one; cancel aborts by id', async () => {
     const queue = new LatestWinsQueue<WorkerRequest & { id: number }>();
@@ -225,7 +251,12 @@ describe('large grids (FFT route above TUNING_DENSE_LIMIT cells)', () => {
   });
 
   it('calibration chunks report the FFT route and merge it', async () => {
-    const res = await runTuning<'calibration'>(big, { id: 1, kind: 'calibration', problemVersion: 0, prior, replicates: 4, draws: 3, seed: 9 }, () => {}, { aborted: false });
+    const res = await runTuning<'calibration'>(
+      big,
+      { id: 1, kind: 'calibration', problemVersion: 0, prior, replicates: 4, draws: 3, seed: 9 },
+      () => {},
+      { aborted: false },
+    );
     expect(res.route).toEqual({ truth: 'fft', inversion: 'fft' });
     expect(res.replicates).toBe(4);
   });

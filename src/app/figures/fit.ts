@@ -17,11 +17,27 @@ export function fitTraces(
 ): { obs: Trace[]; res: Trace[] } {
   const m = data.values.length;
   const idx = datumNumbers(m);
-  const guide = (y: number): Trace => ({ type: 'scatter', mode: 'lines', x: [0.5, m + 0.5], y: [y, y], line: { dash: 'dash', color: '#999', width: 1 }, showlegend: false, hoverinfo: 'skip' });
+  const guide = (y: number): Trace => ({
+    type: 'scatter',
+    mode: 'lines',
+    x: [0.5, m + 0.5],
+    y: [y, y],
+    line: { dash: 'dash', color: '#999', width: 1 },
+    showlegend: false,
+    hoverinfo: 'skip',
+  });
   return {
     obs: [
       observedTrace(data.values, data.sigma),
-      { type: 'scatter', mode: 'lines+markers', x: idx, y: post.predicted, name: 'predicted G m̃', marker: { color: COLOURS.predicted, size: 4 }, line: { width: 1 } },
+      {
+        type: 'scatter',
+        mode: 'lines+markers',
+        x: idx,
+        y: post.predicted,
+        name: 'predicted G m̃',
+        marker: { color: COLOURS.predicted, size: 4 },
+        line: { width: 1 },
+      },
     ],
     res: [
       { type: 'bar', x: idx, y: post.residuals, name: 'normalised residual', marker: { color: COLOURS.accent } },
@@ -33,7 +49,11 @@ export function fitTraces(
 
 export function fitLayouts(dataUnit: string): { obs: Layout; res: Layout } {
   return {
-    obs: { title: title('Observed and predicted data'), xaxis: { title: { text: 'datum number' } }, yaxis: { title: { text: withUnit('d', dataUnit) } } },
+    obs: {
+      title: title('Observed and predicted data'),
+      xaxis: { title: { text: 'datum number' } },
+      yaxis: { title: { text: withUnit('d', dataUnit) } },
+    },
     res: {
       title: title('Normalised residuals (d − G m̃)/σ'),
       xaxis: { title: { text: 'datum number' } },

@@ -16,7 +16,11 @@ type Quantity = { readonly name: string; readonly unit: string };
  * partial, mean-only result is shown), the truth when known, and the posterior mean on top.
  */
 export function posteriorBandTraces(grid: Grid, post: ShownPosterior, truth: ArrayLike<number> | null): Trace[] {
-  return posteriorTraces1D(axis1D(grid), { mean: post.mean, priorMean: post.priorMean, priorStd: post.priorStd, std: post.summary?.std ?? null }, truth);
+  return posteriorTraces1D(
+    axis1D(grid),
+    { mean: post.mean, priorMean: post.priorMean, priorStd: post.priorStd, std: post.summary?.std ?? null },
+    truth,
+  );
 }
 
 /** Posterior panel in 1-D: mean with 68% and 95% bands (when known), prior 95% band, truth when known. */
@@ -34,7 +38,8 @@ export function posteriorTraces1D(
     out.push(bandTrace(x, b95.lower, b95.upper, 'posterior 95%', COLOURS.band95));
     out.push(bandTrace(x, b68.lower, b68.upper, 'posterior 68%', COLOURS.band68));
   }
-  if (truth) out.push({ type: 'scatter', mode: 'lines', x, y: truth, name: 'truth', line: { color: COLOURS.truth, width: 1.2, dash: 'dot' } });
+  if (truth)
+    out.push({ type: 'scatter', mode: 'lines', x, y: truth, name: 'truth', line: { color: COLOURS.truth, width: 1.2, dash: 'dot' } });
   out.push({ type: 'scatter', mode: 'lines', x, y: post.mean, name: 'posterior mean', line: { color: COLOURS.mean, width: 2.2 } });
   return out;
 }
@@ -89,7 +94,15 @@ export function kernelTraces(grid: Grid, resolution: { readonly cell: number; re
     const nx = grid.shape[0];
     return [
       heatTrace(grid, row, 'R row', { colorscale: DIVERGING_SCALE, zmin: -a, zmax: a }),
-      { type: 'scatter', mode: 'markers', x: [x[cell % nx]], y: [y[Math.floor(cell / nx)]], marker: { symbol: 'x-thin', size: 12, line: { width: 2, color: '#222' } }, name: 'cell', showlegend: false },
+      {
+        type: 'scatter',
+        mode: 'markers',
+        x: [x[cell % nx]],
+        y: [y[Math.floor(cell / nx)]],
+        marker: { symbol: 'x-thin', size: 12, line: { width: 2, color: '#222' } },
+        name: 'cell',
+        showlegend: false,
+      },
     ];
   }
   const x = axis1D(grid);

@@ -25,9 +25,18 @@ function longestLength(prior: PriorSpec): number {
 export function correlationCurveTraces(prior: PriorSpec, grid: Grid): Trace[] {
   const maxLen = Math.max(longestLength(prior), ...grid.spacing);
   const c = correlationCurves(prior, Math.min(gridExtent(grid), 4 * maxLen));
-  const traces: Trace[] = [{ type: 'scatter', mode: 'lines', x: c.r, y: c.total, name: 'total (with nugget)', line: { color: COLOURS.mean, width: 2.5 } }];
+  const traces: Trace[] = [
+    { type: 'scatter', mode: 'lines', x: c.r, y: c.total, name: 'total (with nugget)', line: { color: COLOURS.mean, width: 2.5 } },
+  ];
   c.terms.forEach((t, k) => {
-    traces.push({ type: 'scatter', mode: 'lines', x: c.r, y: t.y, name: `term ${k + 1}: ${t.term.kernel}`, line: { dash: 'dot', width: 1.5 } });
+    traces.push({
+      type: 'scatter',
+      mode: 'lines',
+      x: c.r,
+      y: t.y,
+      name: `term ${k + 1}: ${t.term.kernel}`,
+      line: { dash: 'dot', width: 1.5 },
+    });
     traces.push({
       type: 'scatter',
       mode: 'lines+text',

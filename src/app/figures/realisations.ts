@@ -22,7 +22,17 @@ export function galleryTraces(grid: Grid, draws: Matrix): Trace[] {
     if (is2D) {
       out.push({ ...heatTrace(grid, f, `draw ${k + 1}`), xaxis: `x${ax}`, yaxis: `y${ax}`, coloraxis: 'coloraxis' });
     } else {
-      out.push({ type: 'scatter', mode: 'lines', x, y: f, name: `draw ${k + 1}`, xaxis: `x${ax}`, yaxis: `y${ax}`, line: { color: COLOURS.mean, width: 1.2 }, showlegend: false });
+      out.push({
+        type: 'scatter',
+        mode: 'lines',
+        x,
+        y: f,
+        name: `draw ${k + 1}`,
+        xaxis: `x${ax}`,
+        yaxis: `y${ax}`,
+        line: { color: COLOURS.mean, width: 1.2 },
+        showlegend: false,
+      });
     }
   }
   return out;
@@ -41,7 +51,8 @@ export function galleryLayout(grid: Grid, quantityUnit: string, panels: number, 
     margin: { l: 40, r: 10, t: 30, b: 30 },
     showlegend: false,
   };
-  if (is2D) l.coloraxis = { colorscale: DIVERGING, cmin: range[0], cmax: range[1], colorbar: { thickness: 10, title: { text: quantityUnit } } };
+  if (is2D)
+    l.coloraxis = { colorscale: DIVERGING, cmin: range[0], cmax: range[1], colorbar: { thickness: 10, title: { text: quantityUnit } } };
   for (let k = 0; k < panels; k++) {
     const ax = axisSuffix(k);
     l[`yaxis${ax}`] = is2D ? { autorange: 'reversed', showticklabels: false, scaleanchor: `x${ax}`, constrain: 'domain' } : { range };

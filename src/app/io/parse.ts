@@ -65,14 +65,23 @@ export function parseRequest(req: ParseRequest): ParseResult {
       if (r.problem.grid.shape.length === 3) {
         // The core and the command line take 3-D grids (dense route); the workbench's views of a volume are not built yet.
         const shape = r.problem.grid.shape.join(' × ');
-        throw new FileFormatError(main.name, `a 3-D grid (${shape}) is not shown in the workbench yet; compute it with the command line (priorscope posterior --problem ${main.name} --prior …)`, { field: 'grid.shape' });
+        throw new FileFormatError(
+          main.name,
+          `a 3-D grid (${shape}) is not shown in the workbench yet; compute it with the command line (priorscope posterior --problem ${main.name} --prior …)`,
+          { field: 'grid.shape' },
+        );
       }
       return { kind: 'problem', problem: r.problem, label: main.name, warnings: r.warnings.map((w) => w.message) };
     }
     case 'pieces': {
       const warnings: FileWarning[] = [];
       const problem = assembleProblem(req.input, warnings);
-      return { kind: 'problem', problem, label: `${req.input.operator.name} + ${req.input.data.name}`, warnings: warnings.map((w) => w.message) };
+      return {
+        kind: 'problem',
+        problem,
+        label: `${req.input.operator.name} + ${req.input.data.name}`,
+        warnings: warnings.map((w) => w.message),
+      };
     }
     case 'prior': {
       const r = parsePriorFile(req.file.name, req.file.bytes, { grid: req.grid });

@@ -34,7 +34,12 @@ export function parseOffThread(req: ParseRequest): Promise<ParseResult> {
     w.onerror = (ev) => {
       ev.preventDefault();
       w.terminate();
-      reject(new LoadError({ message: `the file reader stopped (${ev.message || 'out of memory?'}); the current problem is unchanged`, file: null }));
+      reject(
+        new LoadError({
+          message: `the file reader stopped (${ev.message || 'out of memory?'}); the current problem is unchanged`,
+          file: null,
+        }),
+      );
     };
     // The bytes are copies read from File objects: transfer them.
     const transfer: ArrayBuffer[] = [];
@@ -53,7 +58,10 @@ export async function readFiles(files: Iterable<File>): Promise<{ name: string; 
   for (const f of files) {
     // Refused before reading it into memory (the parsers check the same limit on bytes).
     if (f.size > MAX_FILE_BYTES) {
-      throw new LoadError({ message: `${f.name}: file is ${(f.size / 1024 / 1024).toFixed(1)} MiB, larger than the limit of ${MAX_FILE_BYTES / 1024 / 1024} MiB`, file: f.name });
+      throw new LoadError({
+        message: `${f.name}: file is ${(f.size / 1024 / 1024).toFixed(1)} MiB, larger than the limit of ${MAX_FILE_BYTES / 1024 / 1024} MiB`,
+        file: f.name,
+      });
     }
   }
   return Promise.all([...files].map(async (f) => ({ name: f.name, bytes: new Uint8Array(await f.arrayBuffer()) })));

@@ -12,7 +12,16 @@ import { axis1D, gridDimension } from '../traces.ts';
 import { bandsState, bandsText, FIT_REFERENCE_BASIS, fitVerdict, shownPosterior } from '../posteriorView.ts';
 import { axisLabel, orientationNote, withUnit } from '../labels.ts';
 import { formatNumber } from '../../core/format.ts';
-import { fitTraces, overviewMaps, posteriorTraces1D, priorBand, priorTraces1D, mapLayout, SHOWN_DRAWS_1D, SHOWN_DRAWS_2D } from './traces.ts';
+import {
+  fitTraces,
+  overviewMaps,
+  posteriorTraces1D,
+  priorBand,
+  priorTraces1D,
+  mapLayout,
+  SHOWN_DRAWS_1D,
+  SHOWN_DRAWS_2D,
+} from './traces.ts';
 import { useColourLimits } from './colourLimits.ts';
 import { trueAspectHeight } from '../colourScales.ts';
 import type { WorkbenchState } from '../store.ts';
@@ -75,9 +84,19 @@ export function OverviewScreen() {
   const band = useMemo(() => (p && prior ? priorBand(p.grid, prior) : null), [p, prior]);
   const priorMean = band?.mean ?? null;
 
-  const priorPanel = useMemo(() => (p && !is2D && band ? priorTraces1D(axis1D(p.grid), draws, band.mean, band.std) : null), [p, is2D, band, draws]);
+  const priorPanel = useMemo(
+    () => (p && !is2D && band ? priorTraces1D(axis1D(p.grid), draws, band.mean, band.std) : null),
+    [p, is2D, band, draws],
+  );
   const posteriorPanel = useMemo(
-    () => (p && !is2D && post ? posteriorTraces1D(axis1D(p.grid), { mean: post.mean, priorMean: post.priorMean, priorStd: post.priorStd, std: post.summary?.std ?? null }, p.truth) : null),
+    () =>
+      p && !is2D && post
+        ? posteriorTraces1D(
+            axis1D(p.grid),
+            { mean: post.mean, priorMean: post.priorMean, priorStd: post.priorStd, std: post.summary?.std ?? null },
+            p.truth,
+          )
+        : null,
     [p, is2D, post],
   );
   const maps = useMemo(() => {
@@ -121,11 +140,23 @@ export function OverviewScreen() {
   // 2-D: the figure height that shows the section at true scale in a third of the screen's width.
   const extent: [number, number] = [p.grid.shape[0] * p.grid.spacing[0], (p.grid.shape[1] ?? 1) * (p.grid.spacing[1] ?? 1)];
   const h = is2D ? trueAspectHeight(extent, 430, { l: 52, r: 78, t: 28, b: 40 }, 170, 360) : 270;
-  const wait = (what: string) => <div className="waiting" style={{ minHeight: h }}>Computing {what} …</div>;
+  const wait = (what: string) => (
+    <div className="waiting" style={{ minHeight: h }}>
+      Computing {what} …
+    </div>
+  );
   return (
     <div className="screen" data-testid="screen-overview">
-      {error && <p className="error" role="alert">Posterior: {error}</p>}
-      {drawError && <p className="error" role="alert">Prior realisations: {drawError}</p>}
+      {error && (
+        <p className="error" role="alert">
+          Posterior: {error}
+        </p>
+      )}
+      {drawError && (
+        <p className="error" role="alert">
+          Prior realisations: {drawError}
+        </p>
+      )}
       <div className="row toolbar overview-bar">
         <span className="note">
           Prior, posterior and data fit of the prior being edited, redrawn as the controls move; the other tabs hold the details.
@@ -148,31 +179,108 @@ export function OverviewScreen() {
           χ² = {fmt(post.chi2)} for M = {post.dataCount} data
           {ref && verdict ? (
             <>
-              ; expected {fmt(ref.expected)}, 95% interval [{fmt(ref.interval95[0])}, {fmt(ref.interval95[1])}]: <span data-position={verdict.position}>{verdict.text}</span>
+              ; expected {fmt(ref.expected)}, 95% interval [{fmt(ref.interval95[0])}, {fmt(ref.interval95[1])}]:{' '}
+              <span data-position={verdict.position}>{verdict.text}</span>
             </>
           ) : (
             <> ; its reference follows with the bands.</>
           )}
         </p>
       )}
-      {bands && <p className="bands-status note" role="status">{bands}</p>}
+      {bands && (
+        <p className="bands-status note" role="status">
+          {bands}
+        </p>
+      )}
       {!is2D && (
         <div className="grid-3 overview-grid">
-          {draws && priorPanel ? <Plot id="ov-prior" label="Prior realisations" data={priorPanel} layout={layouts.prior} height={h} onDrawn={drawnBy['ov-prior']} /> : wait('prior realisations')}
-          {posteriorPanel ? <Plot id="ov-posterior" label="Posterior mean and bands" data={posteriorPanel} layout={layouts.posterior} height={h} onDrawn={drawnBy['ov-posterior']} /> : wait('the posterior')}
-          {fit ? <Plot id="ov-fit" label="Data fit" data={fit} layout={layouts.fit} height={h} onDrawn={drawnBy['ov-fit']} /> : wait('the data fit')}
+          {draws && priorPanel ? (
+            <Plot
+              id="ov-prior"
+              label="Prior realisations"
+              data={priorPanel}
+              layout={layouts.prior}
+              height={h}
+              onDrawn={drawnBy['ov-prior']}
+            />
+          ) : (
+            wait('prior realisations')
+          )}
+          {posteriorPanel ? (
+            <Plot
+              id="ov-posterior"
+              label="Posterior mean and bands"
+              data={posteriorPanel}
+              layout={layouts.posterior}
+              height={h}
+              onDrawn={drawnBy['ov-posterior']}
+            />
+          ) : (
+            wait('the posterior')
+          )}
+          {fit ? (
+            <Plot id="ov-fit" label="Data fit" data={fit} layout={layouts.fit} height={h} onDrawn={drawnBy['ov-fit']} />
+          ) : (
+            wait('the data fit')
+          )}
         </div>
       )}
       {maps && (
         <div className="grid-3 overview-grid">
-          {maps.draws[0] ? <Plot id="ov-draw-1" label="Prior realisation 1" data={maps.draws[0]} layout={layouts.draw1} height={h} onDrawn={drawnBy['ov-draw-1']} /> : wait('prior realisations')}
-          {maps.draws[1] ? <Plot id="ov-draw-2" label="Prior realisation 2" data={maps.draws[1]} layout={layouts.draw2} height={h} onDrawn={drawnBy['ov-draw-2']} /> : wait('prior realisations')}
-          {maps.mean ? <Plot id="ov-mean" label="Posterior mean map" data={maps.mean} layout={layouts.mean} height={h} onDrawn={drawnBy['ov-mean']} /> : wait('the posterior mean')}
-          {maps.std ? <Plot id="ov-std" label="Posterior standard deviation map" data={maps.std} layout={layouts.std} height={h} onDrawn={drawnBy['ov-std']} /> : wait('the posterior standard deviation')}
-          {fit ? <Plot id="ov-fit" label="Data fit" data={fit} layout={layouts.fit} height={Math.max(h, 240)} onDrawn={drawnBy['ov-fit']} /> : wait('the data fit')}
+          {maps.draws[0] ? (
+            <Plot
+              id="ov-draw-1"
+              label="Prior realisation 1"
+              data={maps.draws[0]}
+              layout={layouts.draw1}
+              height={h}
+              onDrawn={drawnBy['ov-draw-1']}
+            />
+          ) : (
+            wait('prior realisations')
+          )}
+          {maps.draws[1] ? (
+            <Plot
+              id="ov-draw-2"
+              label="Prior realisation 2"
+              data={maps.draws[1]}
+              layout={layouts.draw2}
+              height={h}
+              onDrawn={drawnBy['ov-draw-2']}
+            />
+          ) : (
+            wait('prior realisations')
+          )}
+          {maps.mean ? (
+            <Plot id="ov-mean" label="Posterior mean map" data={maps.mean} layout={layouts.mean} height={h} onDrawn={drawnBy['ov-mean']} />
+          ) : (
+            wait('the posterior mean')
+          )}
+          {maps.std ? (
+            <Plot
+              id="ov-std"
+              label="Posterior standard deviation map"
+              data={maps.std}
+              layout={layouts.std}
+              height={h}
+              onDrawn={drawnBy['ov-std']}
+            />
+          ) : (
+            wait('the posterior standard deviation')
+          )}
+          {fit ? (
+            <Plot id="ov-fit" label="Data fit" data={fit} layout={layouts.fit} height={Math.max(h, 240)} onDrawn={drawnBy['ov-fit']} />
+          ) : (
+            wait('the data fit')
+          )}
         </div>
       )}
-      {is2D && SHOWN_DRAWS_2D > 0 && <p className="note">Realisations and the posterior mean share one diverging colour range centred on the prior mean; the standard deviation runs from 0 to the largest prior standard deviation.</p>}
+      {is2D && SHOWN_DRAWS_2D > 0 && (
+        <p className="note">
+          Realisations and the posterior mean share one diverging colour range centred on the prior mean; the standard deviation runs from 0
+          to the largest prior standard deviation.
+        </p>
+      )}
     </div>
   );
 }

@@ -14,7 +14,16 @@ import { meanVector } from '../../core/prior/mean.ts';
 import { axisLabel, axisNames, downAxisLabel, withUnit } from '../labels.ts';
 import { escapePlotText } from '../plotText.ts';
 import { axes2D, band, bandTrace, COLOURS, rowOf, toRows2D, Z95, type Trace } from '../traces.ts';
-import { DIVERGING, divergingRange, effectiveRange, SEQUENTIAL, sequentialRange, signedView, type ManualLimits, type Range } from '../colourScales.ts';
+import {
+  DIVERGING,
+  divergingRange,
+  effectiveRange,
+  SEQUENTIAL,
+  sequentialRange,
+  signedView,
+  type ManualLimits,
+  type Range,
+} from '../colourScales.ts';
 
 /** Realisations a row of the draws matrix holds (count × N, row-major). */
 export interface Draws {
@@ -47,14 +56,34 @@ export function priorBand(grid: Grid, prior: PriorSpec): { mean: Float64Array; s
 }
 
 /** Prior panel in 1-D: the first `count` realisations over the prior mean and its 95% band. */
-export function priorTraces1D(x: ArrayLike<number>, draws: Draws | null, priorMean: ArrayLike<number>, priorStd: ArrayLike<number>, count = SHOWN_DRAWS_1D): Trace[] {
+export function priorTraces1D(
+  x: ArrayLike<number>,
+  draws: Draws | null,
+  priorMean: ArrayLike<number>,
+  priorStd: ArrayLike<number>,
+  count = SHOWN_DRAWS_1D,
+): Trace[] {
   const pb = band(priorMean, priorStd, Z95);
   const out: Trace[] = [bandTrace(x, pb.lower, pb.upper, 'prior 95%', COLOURS.prior)];
-  out.push({ type: 'scatter', mode: 'lines', x, y: priorMean, name: 'prior mean', line: { color: COLOURS.priorLine, width: 1.5, dash: 'dash' } });
+  out.push({
+    type: 'scatter',
+    mode: 'lines',
+    x,
+    y: priorMean,
+    name: 'prior mean',
+    line: { color: COLOURS.priorLine, width: 1.5, dash: 'dash' },
+  });
   const n = draws ? Math.min(count, draws.rows) : 0;
   const shades = ['#3b6e8f', '#8a4f7d', '#5c7d3a'];
   for (let k = 0; k < n; k++) {
-    out.push({ type: 'scatter', mode: 'lines', x, y: rowOf(draws!.data, draws!.cols, k), name: `realisation ${k + 1}`, line: { color: shades[k % shades.length], width: 1.1 } });
+    out.push({
+      type: 'scatter',
+      mode: 'lines',
+      x,
+      y: rowOf(draws!.data, draws!.cols, k),
+      name: `realisation ${k + 1}`,
+      line: { color: shades[k % shades.length], width: 1.1 },
+    });
   }
   return out;
 }
@@ -66,13 +95,28 @@ export { posteriorTraces1D } from '../figures/posterior.ts';
 export function fitTraces(values: ArrayLike<number>, sigma: ArrayLike<number>, predicted: ArrayLike<number>): Trace[] {
   const idx = Array.from({ length: values.length }, (_, i) => i + 1);
   return [
-    { type: 'scatter', mode: 'markers', x: idx, y: values, name: 'observed ±1σ', marker: { color: COLOURS.data, size: 4 }, error_y: { type: 'data', array: sigma, visible: true, color: COLOURS.data, thickness: 1, width: 0 } },
+    {
+      type: 'scatter',
+      mode: 'markers',
+      x: idx,
+      y: values,
+      name: 'observed ±1σ',
+      marker: { color: COLOURS.data, size: 4 },
+      error_y: { type: 'data', array: sigma, visible: true, color: COLOURS.data, thickness: 1, width: 0 },
+    },
     { type: 'scatter', mode: 'lines', x: idx, y: predicted, name: 'predicted G m̃', line: { color: COLOURS.predicted, width: 1.2 } },
   ];
 }
 
 /** One heat map of a flat field on a 2-D grid with a given scale and fixed limits. */
-export function mapTrace(grid: Grid, field: ArrayLike<number>, name: string, scale: [number, string][], range: Range, colourTitle: string): Trace {
+export function mapTrace(
+  grid: Grid,
+  field: ArrayLike<number>,
+  name: string,
+  scale: [number, string][],
+  range: Range,
+  colourTitle: string,
+): Trace {
   const { x, y } = axes2D(grid);
   const [a, b] = axisNames(grid);
   return {
@@ -94,7 +138,13 @@ export function mapLayout(grid: Grid, title: string): Record<string, unknown> {
   return {
     title: { text: title, font: { size: 12 } },
     xaxis: { title: { text: axisLabel(grid, 0), standoff: 2 }, constrain: 'domain' },
-    yaxis: { title: { text: downAxisLabel(grid), standoff: 2 }, autorange: 'reversed', scaleanchor: 'x', scaleratio: 1, constrain: 'domain' },
+    yaxis: {
+      title: { text: downAxisLabel(grid), standoff: 2 },
+      autorange: 'reversed',
+      scaleanchor: 'x',
+      scaleratio: 1,
+      constrain: 'domain',
+    },
     margin: { l: 52, r: 8, t: 28, b: 40 },
     showlegend: false,
   };

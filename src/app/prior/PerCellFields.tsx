@@ -47,18 +47,48 @@ export function PerCellFields() {
   return (
     <fieldset data-testid="per-cell">
       <legend>Per cell (from a file of {n} values, x fastest)</legend>
-      <button type="button" data-testid="mean-file" onClick={() => meanRef.current?.click()} title="A .csv with one column of N values or a .npy of shape (N,) or (ny, nx): m₀ in each cell">
+      <button
+        type="button"
+        data-testid="mean-file"
+        onClick={() => meanRef.current?.click()}
+        title="A .csv with one column of N values or a .npy of shape (N,) or (ny, nx): m₀ in each cell"
+      >
         Mean m₀ from file…
       </button>
-      <input ref={meanRef} type="file" hidden accept=".csv,.txt,.npy" title="File of N mean values" data-testid="mean-file-input" onChange={(e) => void load('mean')(e)} />{' '}
-      <button type="button" data-testid="std-profile-file" onClick={() => stdRef.current?.click()} title="Standard-deviation profile s (> 0, N values): Cm = S C S + nugget·I with S = diag(s)">
+      <input
+        ref={meanRef}
+        type="file"
+        hidden
+        accept=".csv,.txt,.npy"
+        title="File of N mean values"
+        data-testid="mean-file-input"
+        onChange={(e) => void load('mean')(e)}
+      />{' '}
+      <button
+        type="button"
+        data-testid="std-profile-file"
+        onClick={() => stdRef.current?.click()}
+        title="Standard-deviation profile s (> 0, N values): Cm = S C S + nugget·I with S = diag(s)"
+      >
         Std profile from file…
       </button>
-      <input ref={stdRef} type="file" hidden accept=".csv,.txt,.npy" title="File of N standard deviations" data-testid="std-profile-input" onChange={(e) => void load('std')(e)} />
+      <input
+        ref={stdRef}
+        type="file"
+        hidden
+        accept=".csv,.txt,.npy"
+        title="File of N standard deviations"
+        data-testid="std-profile-input"
+        onChange={(e) => void load('std')(e)}
+      />
       {profile && (
         <p className="hint" data-testid="std-profile-state">
           Std profile s: {range(profile)} (multiplies the correlated terms; the nugget is added after){' '}
-          <button type="button" data-testid="std-profile-clear" onClick={() => store.getState().setPrior(withCellValues(store.getState().prior!, 'std', null))}>
+          <button
+            type="button"
+            data-testid="std-profile-clear"
+            onClick={() => store.getState().setPrior(withCellValues(store.getState().prior!, 'std', null))}
+          >
             Remove
           </button>
         </p>

@@ -19,7 +19,12 @@ export interface ProblemSlice {
   loadDemo(demoId: string): Promise<void>;
 }
 
-export function createProblemSlice(set: StoreSet, get: StoreGet, client: Pick<ClientPort, 'loadDemo'>, initial: { demoId: string }): ProblemSlice {
+export function createProblemSlice(
+  set: StoreSet,
+  get: StoreGet,
+  client: Pick<ClientPort, 'loadDemo'>,
+  initial: { demoId: string },
+): ProblemSlice {
   return {
     demoId: initial.demoId,
     problem: null,

@@ -125,26 +125,52 @@ export function createResultsSlice(set: StoreSet, get: StoreGet, client: ClientP
             set({ posteriorPartial });
           }),
         (posterior) => ({ posterior, posteriorPartial: null }),
-        (message) => (partialShown ? `the uncertainty bands could not be computed (${message}); the posterior mean is shown without them` : message),
+        (message) =>
+          partialShown ? `the uncertainty bands could not be computed (${message}); the posterior mean is shown without them` : message,
       );
       if (s.tab === 'posterior' && s.selectedCell !== null) {
         const cell = s.selectedCell;
-        run('resolution', `${rev}:${cell}`, () => client.resolution(prior, cell), (resolution) => ({ resolution }));
+        run(
+          'resolution',
+          `${rev}:${cell}`,
+          () => client.resolution(prior, cell),
+          (resolution) => ({ resolution }),
+        );
       }
       // Prior draws before the diagnostics: both go to the same worker, and the overview waits for the draws.
       if (s.tab === 'realisations' || s.tab === 'overview') {
         const key = `${rev}:${s.seed}`;
         const seed = s.seed;
-        run('priorDraws', key, () => client.priorDraws(prior, DRAW_COUNT, seed), (priorDraws) => ({ priorDraws }));
+        run(
+          'priorDraws',
+          key,
+          () => client.priorDraws(prior, DRAW_COUNT, seed),
+          (priorDraws) => ({ priorDraws }),
+        );
       }
-      run('diagnostics', rev, () => client.diagnostics(prior), (diagnostics) => ({ diagnostics }));
+      run(
+        'diagnostics',
+        rev,
+        () => client.diagnostics(prior),
+        (diagnostics) => ({ diagnostics }),
+      );
       if (s.tab === 'realisations') {
         const key = `${rev}:${s.seed}`;
         const seed = s.seed;
-        run('posteriorDraws', key, () => client.posteriorDraws(prior, DRAW_COUNT, seed), (posteriorDraws) => ({ posteriorDraws }));
+        run(
+          'posteriorDraws',
+          key,
+          () => client.posteriorDraws(prior, DRAW_COUNT, seed),
+          (posteriorDraws) => ({ posteriorDraws }),
+        );
       }
       if (s.tab === 'prior' && cellCount(problem.grid) <= COVARIANCE_VIEW_CELLS) {
-        run('covariance', rev, () => client.covariance(prior), (covariance) => ({ covariance }));
+        run(
+          'covariance',
+          rev,
+          () => client.covariance(prior),
+          (covariance) => ({ covariance }),
+        );
       }
     },
   };

@@ -23,16 +23,23 @@ export function FitScreen() {
   const verdict = s && ref ? fitVerdict(s.chi2, ref) : null;
   return (
     <div className="screen" data-testid="screen-fit">
-      {error && <p className="error" role="alert">Posterior: {error}</p>}
+      {error && (
+        <p className="error" role="alert">
+          Posterior: {error}
+        </p>
+      )}
       {s && (
         <p className="chi2" data-testid="chi2" title={FIT_REFERENCE_BASIS}>
           χ² = <strong data-testid="chi2-value">{fmtNum(s.chi2)}</strong> (M = {s.dataCount} data)
           {ref && verdict ? (
             <>
               {' '}
-              — expected under the model <span data-testid="chi2-expected">{fmtNum(ref.expected)}</span> = M − {fmtNum(s.dataCount - ref.expected)} resolved
-              parameters; 95% interval <span data-testid="chi2-interval">[{fmtNum(ref.interval95[0])}, {fmtNum(ref.interval95[1])}]</span>, P(χ² ≥ observed) ={' '}
-              <span data-testid="chi2-tail">{formatTail(ref.upperTail)}</span>{' '}
+              — expected under the model <span data-testid="chi2-expected">{fmtNum(ref.expected)}</span> = M −{' '}
+              {fmtNum(s.dataCount - ref.expected)} resolved parameters; 95% interval{' '}
+              <span data-testid="chi2-interval">
+                [{fmtNum(ref.interval95[0])}, {fmtNum(ref.interval95[1])}]
+              </span>
+              , P(χ² ≥ observed) = <span data-testid="chi2-tail">{formatTail(ref.upperTail)}</span>{' '}
               <span data-testid="chi2-verdict" data-position={verdict.position}>
                 ({verdict.text})
               </span>

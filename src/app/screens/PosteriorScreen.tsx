@@ -5,7 +5,14 @@ import { gridDimension } from '../../core/grid/grid.ts';
 import type { ProblemView } from '../../worker/protocol.ts';
 import { useWb } from '../context.ts';
 import { NumberField } from '../controls.tsx';
-import { kernelTraces, posteriorBandLayout, posteriorBandTraces, posteriorLayouts, posteriorMapTraces, truthMapTraces } from '../figures/posterior.ts';
+import {
+  kernelTraces,
+  posteriorBandLayout,
+  posteriorBandTraces,
+  posteriorLayouts,
+  posteriorMapTraces,
+  truthMapTraces,
+} from '../figures/posterior.ts';
 import { Plot } from '../Plot.tsx';
 import { bandsState, bandsText, shownPosterior } from '../posteriorView.ts';
 import { MARK_POSTERIOR_DRAWN } from '../results/slice.ts';
@@ -21,7 +28,9 @@ function CellPicker({ p }: { p: ProblemView }) {
   const iy = cell === null ? 0 : Math.floor(cell / nx);
   return (
     <div className="row toolbar" aria-label="Averaging kernel cell">
-      <span className="note">Click a {is2D ? 'map cell' : 'point'} or type its index to see its averaging kernel (row of R = Cm Gᵀ K⁻¹ G):</span>
+      <span className="note">
+        Click a {is2D ? 'map cell' : 'point'} or type its index to see its averaging kernel (row of R = Cm Gᵀ K⁻¹ G):
+      </span>
       <NumberField
         label="column ix"
         value={ix}
@@ -85,34 +94,78 @@ export function PosteriorScreen() {
   };
   return (
     <div className="screen" data-testid="screen-posterior">
-      {error && <p className="error" role="alert" data-testid="posterior-error">Posterior: {error}</p>}
+      {error && (
+        <p className="error" role="alert" data-testid="posterior-error">
+          Posterior: {error}
+        </p>
+      )}
       {bands && (
         <p className="bands-status" role="status" aria-live="polite" data-testid="bands-status">
           {bands}
         </p>
       )}
       {!post && !error && <Waiting what="the posterior" />}
-      {oneD && <Plot id="plot-posterior" label="Posterior mean and bands" data={oneD} layout={oneDLayout} height={340} onDrawn={markDrawn} onPointClick={click} />}
+      {oneD && (
+        <Plot
+          id="plot-posterior"
+          label="Posterior mean and bands"
+          data={oneD}
+          layout={oneDLayout}
+          height={340}
+          onDrawn={markDrawn}
+          onPointClick={click}
+        />
+      )}
       {maps && (
         <div className="grid-3">
-          <Plot id="plot-posterior-mean" label="Posterior mean map" data={maps.mean} layout={layouts.mean} height={240} onDrawn={markDrawn} onPointClick={click} />
+          <Plot
+            id="plot-posterior-mean"
+            label="Posterior mean map"
+            data={maps.mean}
+            layout={layouts.mean}
+            height={240}
+            onDrawn={markDrawn}
+            onPointClick={click}
+          />
           {maps.std ? (
-            <Plot id="plot-posterior-std" label="Posterior standard deviation map" data={maps.std} layout={layouts.std} height={240} onPointClick={click} />
+            <Plot
+              id="plot-posterior-std"
+              label="Posterior standard deviation map"
+              data={maps.std}
+              layout={layouts.std}
+              height={240}
+              onPointClick={click}
+            />
           ) : (
             <BandsPending what="standard deviation map" text={bands} />
           )}
           {maps.vr ? (
-            <Plot id="plot-variance-reduction" label="Variance reduction map" data={maps.vr} layout={layouts.vr} height={240} onPointClick={click} />
+            <Plot
+              id="plot-variance-reduction"
+              label="Variance reduction map"
+              data={maps.vr}
+              layout={layouts.vr}
+              height={240}
+              onPointClick={click}
+            />
           ) : (
             <BandsPending what="variance reduction map" text={bands} />
           )}
           {truthMap && <Plot id="plot-truth" label="Truth map" data={truthMap} layout={layouts.truth} height={240} onPointClick={click} />}
-          {resolution && selected !== null && <Plot id="plot-kernel" label="Averaging kernel map" data={kernelData} layout={layouts.kernel} height={240} />}
+          {resolution && selected !== null && (
+            <Plot id="plot-kernel" label="Averaging kernel map" data={kernelData} layout={layouts.kernel} height={240} />
+          )}
         </div>
       )}
       <CellPicker p={p} />
-      {resError && <p className="error" role="alert">Averaging kernel: {resError}</p>}
-      {!is2D && resolution && selected !== null && <Plot id="plot-kernel" label="Averaging kernel" data={kernelData} layout={layouts.kernel} height={200} />}
+      {resError && (
+        <p className="error" role="alert">
+          Averaging kernel: {resError}
+        </p>
+      )}
+      {!is2D && resolution && selected !== null && (
+        <Plot id="plot-kernel" label="Averaging kernel" data={kernelData} layout={layouts.kernel} height={200} />
+      )}
     </div>
   );
 }
@@ -120,7 +173,12 @@ export function PosteriorScreen() {
 /** Stands in for a map that needs the bands while they are computed (or after they failed). */
 function BandsPending({ what, text }: { what: string; text: string | null }) {
   return (
-    <div className="bands-pending" data-testid="bands-pending" style={{ minHeight: 240 }} aria-label={`Posterior ${what}: ${text ?? 'not available'}`}>
+    <div
+      className="bands-pending"
+      data-testid="bands-pending"
+      style={{ minHeight: 240 }}
+      aria-label={`Posterior ${what}: ${text ?? 'not available'}`}
+    >
       <span className="note">{text ?? 'Uncertainty bands: not available.'}</span>
     </div>
   );

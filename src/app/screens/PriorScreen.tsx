@@ -46,7 +46,11 @@ export function PriorScreen() {
   const small = cellCount(p.grid) <= COVARIANCE_VIEW_CELLS;
   return (
     <div className="screen" data-testid="screen-prior">
-      {curves.error && <p className="error" role="alert">{curves.error}</p>}
+      {curves.error && (
+        <p className="error" role="alert">
+          {curves.error}
+        </p>
+      )}
       <div className="grid-2">
         <Plot id="plot-correlation" label="Correlation against distance" data={curves.data} layout={curveLayout} height={300} />
         {is2D ? (
@@ -57,8 +61,8 @@ export function PriorScreen() {
       </div>
       {is2D && (
         <p className="note" data-testid="orientation-note">
-          Every map here, the correlation map included: {orientationNote(p.grid)}. The angle θ turns from {axisNames(p.grid)[0]} towards {axisNames(p.grid)[1]}, so a positive θ
-          tilts the ellipse clockwise on screen (down to the right).
+          Every map here, the correlation map included: {orientationNote(p.grid)}. The angle θ turns from {axisNames(p.grid)[0]} towards{' '}
+          {axisNames(p.grid)[1]}, so a positive θ tilts the ellipse clockwise on screen (down to the right).
         </p>
       )}
       {!small && (
@@ -66,7 +70,11 @@ export function PriorScreen() {
           The covariance heat map is shown for grids of at most {COVARIANCE_VIEW_CELLS} cells (this one has {cellCount(p.grid)}).
         </p>
       )}
-      {covError && <p className="error" role="alert">Covariance: {covError}</p>}
+      {covError && (
+        <p className="error" role="alert">
+          Covariance: {covError}
+        </p>
+      )}
     </div>
   );
 }

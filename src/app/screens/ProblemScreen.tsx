@@ -38,7 +38,9 @@ export function ProblemScreen() {
           <dd>
             {p.operatorKind}, {p.operatorNonZeros} non-zeros
           </dd>
-          <dt title="The dense loops (Cholesky, variance solves) run as WebAssembly SIMD when the browser allows it, else as JavaScript; the results are the same">Numeric kernels</dt>
+          <dt title="The dense loops (Cholesky, variance solves) run as WebAssembly SIMD when the browser allows it, else as JavaScript; the results are the same">
+            Numeric kernels
+          </dt>
           <dd data-testid="numeric-kernels">{p.numericKernels}</dd>
           <dt>Quantity</dt>
           <dd>{withUnit(p.quantity.name, p.quantity.unit)}</dd>

@@ -50,12 +50,30 @@ export function RealisationsScreen() {
         <button type="button" data-testid="redraw" onClick={newSeed} title="Draw again with a new seed">
           Redraw (new seed)
         </button>
-        <span className="note">Six draws m = m₀ + L z (prior) and from the posterior, same seed, one colour scale centred on the prior mean (limits fixed by hand on the Overview apply here too).</span>
+        <span className="note">
+          Six draws m = m₀ + L z (prior) and from the posterior, same seed, one colour scale centred on the prior mean (limits fixed by hand
+          on the Overview apply here too).
+        </span>
       </div>
-      {errors.map((e, k) => e && <p key={k} className="error" role="alert">{e}</p>)}
+      {errors.map(
+        (e, k) =>
+          e && (
+            <p key={k} className="error" role="alert">
+              {e}
+            </p>
+          ),
+      )}
       <div className="grid-2">
-        {priorDraws ? <Gallery id="plot-prior-draws" title="Prior realisations" p={p} draws={priorDraws} range={range} /> : <Waiting what="prior realisations" />}
-        {postDraws ? <Gallery id="plot-posterior-draws" title="Posterior realisations" p={p} draws={postDraws} range={range} /> : <Waiting what="posterior realisations" />}
+        {priorDraws ? (
+          <Gallery id="plot-prior-draws" title="Prior realisations" p={p} draws={priorDraws} range={range} />
+        ) : (
+          <Waiting what="prior realisations" />
+        )}
+        {postDraws ? (
+          <Gallery id="plot-posterior-draws" title="Posterior realisations" p={p} draws={postDraws} range={range} />
+        ) : (
+          <Waiting what="posterior realisations" />
+        )}
       </div>
     </div>
   );

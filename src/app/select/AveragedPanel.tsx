@@ -27,7 +27,11 @@ export function AveragedPanel() {
     if (!p || !post || !value) return null;
     const chosen = { mean: post.summary.mean, std: post.summary.std };
     if (!is2D) return { line: averagedTraces1D(axis1D(p.grid), chosen, value), maps: null, change: averagedChange(chosen, value) };
-    return { line: null, maps: averagedMaps(p.grid, p.quantity.unit, post.priorMean, chosen, value), change: averagedChange(chosen, value) };
+    return {
+      line: null,
+      maps: averagedMaps(p.grid, p.quantity.unit, post.priorMean, chosen, value),
+      change: averagedChange(chosen, value),
+    };
   }, [p, post, value, is2D]);
   if (!p) return null;
   const q = withUnit(p.quantity.name, p.quantity.unit);
@@ -35,13 +39,19 @@ export function AveragedPanel() {
     <section className="sel-card" aria-labelledby="sel-avg-h" data-testid="averaged-panel">
       <h3 id="sel-avg-h">Averaged over the evidence map</h3>
       <p className="note">
-        The posterior averaged over the map’s cells, each weighted by its evidence × the hyper-prior; variance = mean of the cells’ variances + variance of their means. Beside it, the
-        posterior of the prior on screen: where they differ, the result depends on the length and variance chosen.
+        The posterior averaged over the map’s cells, each weighted by its evidence × the hyper-prior; variance = mean of the cells’
+        variances + variance of their means. Beside it, the posterior of the prior on screen: where they differ, the result depends on the
+        length and variance chosen.
       </p>
       <div className="row toolbar">
         <label className="inline">
           Hyper-prior{' '}
-          <select data-testid="averaged-hyper" value={hyper} onChange={(e) => setHyper(e.target.value as HyperPrior)} title={hyperPriorWords(hyper)}>
+          <select
+            data-testid="averaged-hyper"
+            value={hyper}
+            onChange={(e) => setHyper(e.target.value as HyperPrior)}
+            title={hyperPriorWords(hyper)}
+          >
             {HYPER_PRIORS.map((h) => (
               <option key={h} value={h}>
                 {h}
@@ -49,7 +59,13 @@ export function AveragedPanel() {
             ))}
           </select>
         </label>
-        <button type="button" data-testid="averaged-run" disabled={!mapTask.value || task.status === 'running'} onClick={() => run(hyper)} title={mapTask.value ? hyperPriorWords(hyper) : 'Compute an evidence map first'}>
+        <button
+          type="button"
+          data-testid="averaged-run"
+          disabled={!mapTask.value || task.status === 'running'}
+          onClick={() => run(hyper)}
+          title={mapTask.value ? hyperPriorWords(hyper) : 'Compute an evidence map first'}
+        >
           Average over the map
         </button>
         <TaskStatusLine kind="averaged" task={task} label="Averaging" />
@@ -57,27 +73,57 @@ export function AveragedPanel() {
       {value && figures && (
         <>
           <p className="note" data-testid="averaged-facts">
-            {hyperPriorWords(value.hyperPrior)}; {value.cellsUsed} cells entered, effective number of cells <Num value={value.effectiveCells} text={fmt(value.effectiveCells)} />; weight on the map’s edge{' '}
+            {hyperPriorWords(value.hyperPrior)}; {value.cellsUsed} cells entered, effective number of cells{' '}
+            <Num value={value.effectiveCells} text={fmt(value.effectiveCells)} />; weight on the map’s edge{' '}
             <Num testId="averaged-edge" value={value.edgeWeight} text={fmt(value.edgeWeight)} />
             {value.edgeWeight > 0.05 ? ' (the map does not hold the evidence’s mass: widen it)' : ''}; largest change of the mean{' '}
-            <Num testId="averaged-change" value={figures.change.maxMeanChange} text={fmt(figures.change.maxMeanChange)} /> {p.quantity.unit}; largest std averaged / this prior{' '}
-            {fmt(figures.change.stdRatio)}.
+            <Num testId="averaged-change" value={figures.change.maxMeanChange} text={fmt(figures.change.maxMeanChange)} /> {p.quantity.unit}
+            ; largest std averaged / this prior {fmt(figures.change.stdRatio)}.
           </p>
           {figures.line && (
             <Plot
               id="plot-averaged"
               label="Averaged posterior beside this prior's"
               data={figures.line}
-              layout={{ title: { text: 'Averaged over the map (orange) and this prior (teal, dashed): means and 95% bands', font: { size: 12 } }, xaxis: { title: { text: axisLabel(p.grid, 0) } }, yaxis: { title: { text: q } }, legend: { orientation: 'h', x: 0, y: -0.2, yanchor: 'top' } }}
+              layout={{
+                title: { text: 'Averaged over the map (orange) and this prior (teal, dashed): means and 95% bands', font: { size: 12 } },
+                xaxis: { title: { text: axisLabel(p.grid, 0) } },
+                yaxis: { title: { text: q } },
+                legend: { orientation: 'h', x: 0, y: -0.2, yanchor: 'top' },
+              }}
               height={300}
             />
           )}
           {figures.maps && (
             <div className="grid-2">
-              <Plot id="plot-averaged-chosen-mean" label="This prior: posterior mean" data={figures.maps.chosenMean} layout={mapLayout(p.grid, 'This prior: posterior mean')} height={220} />
-              <Plot id="plot-averaged-mean" label="Averaged posterior mean" data={figures.maps.averagedMean} layout={mapLayout(p.grid, 'Averaged: posterior mean')} height={220} />
-              <Plot id="plot-averaged-chosen-std" label="This prior: posterior std" data={figures.maps.chosenStd} layout={mapLayout(p.grid, 'This prior: posterior std')} height={220} />
-              <Plot id="plot-averaged-std" label="Averaged posterior std" data={figures.maps.averagedStd} layout={mapLayout(p.grid, 'Averaged: posterior std')} height={220} />
+              <Plot
+                id="plot-averaged-chosen-mean"
+                label="This prior: posterior mean"
+                data={figures.maps.chosenMean}
+                layout={mapLayout(p.grid, 'This prior: posterior mean')}
+                height={220}
+              />
+              <Plot
+                id="plot-averaged-mean"
+                label="Averaged posterior mean"
+                data={figures.maps.averagedMean}
+                layout={mapLayout(p.grid, 'Averaged: posterior mean')}
+                height={220}
+              />
+              <Plot
+                id="plot-averaged-chosen-std"
+                label="This prior: posterior std"
+                data={figures.maps.chosenStd}
+                layout={mapLayout(p.grid, 'This prior: posterior std')}
+                height={220}
+              />
+              <Plot
+                id="plot-averaged-std"
+                label="Averaged posterior std"
+                data={figures.maps.averagedStd}
+                layout={mapLayout(p.grid, 'Averaged: posterior std')}
+                height={220}
+              />
             </div>
           )}
         </>

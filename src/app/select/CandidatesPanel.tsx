@@ -8,7 +8,14 @@ import type { ProblemView } from '../../worker/protocol.ts';
 import { bestRow, fmt, SCORE_COLUMNS, scoreRows } from './candidates.ts';
 import { Num, TaskStatusLine } from './common.tsx';
 import { candidatesKey, type Candidate } from './slice.ts';
-import { candidateBandTraces, candidateDrawTraces, candidateLineLayout, candidateMapLayout, candidateMapTrace, candidateTruthTrace } from './traces.ts';
+import {
+  candidateBandTraces,
+  candidateDrawTraces,
+  candidateLineLayout,
+  candidateMapLayout,
+  candidateMapTrace,
+  candidateTruthTrace,
+} from './traces.ts';
 import { evidenceReadings, priorLine } from './evidenceScale.ts';
 import type { CandidateScores } from '../../worker/tuningProtocol.ts';
 import { axisLabel, withUnit } from '../labels.ts';
@@ -28,7 +35,11 @@ export function CandidatesPanel() {
   const crossValue = cross.value && cross.key?.startsWith(`${key}:`) ? cross.value : null;
   const rows = useMemo(() => scoreRows(candidates, scores, crossValue), [candidates, scores, crossValue]);
   const evidence = useMemo(
-    () => evidenceReadings(candidates.map((c, k) => ({ prior: c.prior, logEvidence: scores?.[k]?.ok ? scores[k].logEvidence : null })), p.grid),
+    () =>
+      evidenceReadings(
+        candidates.map((c, k) => ({ prior: c.prior, logEvidence: scores?.[k]?.ok ? scores[k].logEvidence : null })),
+        p.grid,
+      ),
     [candidates, scores, p.grid],
   );
   if (candidates.length === 0) {
@@ -92,7 +103,12 @@ export function CandidatesPanel() {
               })}
               <td data-testid={`candidate-kr-${k}`}>{evidence.readings[k]?.text ?? '—'}</td>
               <td>
-                <button type="button" data-testid={`candidate-use-${k}`} onClick={() => use(r.id)} title="Make this candidate the current prior">
+                <button
+                  type="button"
+                  data-testid={`candidate-use-${k}`}
+                  onClick={() => use(r.id)}
+                  title="Make this candidate the current prior"
+                >
                   Use this one
                 </button>{' '}
                 <button type="button" data-testid={`candidate-remove-${k}`} onClick={() => unpin(r.id)} aria-label={`Remove ${r.name}`}>
@@ -117,32 +133,57 @@ export function CandidatesPanel() {
 function Comparison({ p, candidates, scores }: { p: ProblemView; candidates: readonly Candidate[]; scores: readonly CandidateScores[] }) {
   const is2D = gridDimension(p.grid) === 2;
   const ok = useMemo(
-    () => candidates.map((c, k) => ({ c, s: scores[k] })).filter((x): x is { c: Candidate; s: Extract<CandidateScores, { ok: true }> } => !!x.s && x.s.ok),
+    () =>
+      candidates
+        .map((c, k) => ({ c, s: scores[k] }))
+        .filter((x): x is { c: Candidate; s: Extract<CandidateScores, { ok: true }> } => !!x.s && x.s.ok),
     [candidates, scores],
   );
   const bands = useMemo(() => {
     if (is2D) return null;
     const x = axis1D(p.grid);
-    const traces = candidateBandTraces(x, ok.map(({ c, s }) => ({ name: c.name, colour: c.colour, mean: s.mean, std: s.std })));
+    const traces = candidateBandTraces(
+      x,
+      ok.map(({ c, s }) => ({ name: c.name, colour: c.colour, mean: s.mean, std: s.std })),
+    );
     if (p.truth) traces.push(candidateTruthTrace(x, p.truth));
     return traces;
   }, [p, ok, is2D]);
   const draws = useMemo(() => {
     if (is2D) return null;
-    return candidateDrawTraces(axis1D(p.grid), ok.map(({ c, s }) => ({ id: c.id, name: c.name, colour: c.colour, draws: s.draws })));
+    return candidateDrawTraces(
+      axis1D(p.grid),
+      ok.map(({ c, s }) => ({ id: c.id, name: c.name, colour: c.colour, draws: s.draws })),
+    );
   }, [p, ok, is2D]);
   const xTitle = axisLabel(p.grid, 0);
   const q = withUnit(p.quantity.name, p.quantity.unit);
   const limits = useColourLimits();
   const ranges = useMemo(
-    () => candidateRanges(ok.map(({ c, s }) => ({ prior: c.prior, signed: [s.mean, rowOf(s.draws.data, s.draws.cols, 0)], std: s.std })), limits),
+    () =>
+      candidateRanges(
+        ok.map(({ c, s }) => ({ prior: c.prior, signed: [s.mean, rowOf(s.draws.data, s.draws.cols, 0)], std: s.std })),
+        limits,
+      ),
     [ok, limits.half],
   );
   if (!is2D) {
     return (
       <div className="grid-2">
-        <Plot id="plot-candidate-bands" label="Posterior mean and 95% band of each candidate" data={bands!} layout={candidateLineLayout('Posterior mean and 95% band per candidate', xTitle, q)} height={300} />
-        <Plot id="plot-candidate-draws" label="Posterior realisations of each candidate" data={draws!} layout={candidateLineLayout('Posterior realisations per candidate (same seed)', xTitle, q)} height={300} />
+        <Plot
+          id="plot-candidate-bands"
+          label="Posterior mean and 95% band of each candidate"
+          data={bands!}
+          layout={candidateLineLayout('Posterior mean and 95% band per candidate', xTitle, q)}
+          height={300}
+        />
+        <Plot
+          id="plot-candidate-draws"
+          label="Posterior realisations of each candidate"
+          data={draws!}
+          layout={candidateLineLayout('Posterior realisations per candidate (same seed)', xTitle, q)}
+          height={300}
+        />
       </div>
     );
   }
@@ -150,9 +191,27 @@ function Comparison({ p, candidates, scores }: { p: ProblemView; candidates: rea
     <div className="sel-maps">
       {ok.map(({ c, s }) => (
         <div key={c.id} className="grid-3" style={{ borderLeft: `4px solid ${c.colour}` }}>
-          <Plot id={`plot-cand-mean-${c.id}`} label={`${c.name}: posterior mean`} data={[candidateMapTrace(p.grid, s.mean, 'mean', DIVERGING, ranges.signed)]} layout={candidateMapLayout(p.grid, withUnit(`${c.name}: posterior mean`, p.quantity.unit))} height={220} />
-          <Plot id={`plot-cand-std-${c.id}`} label={`${c.name}: posterior standard deviation`} data={[candidateMapTrace(p.grid, s.std, 'std', SEQUENTIAL, ranges.std)]} layout={candidateMapLayout(p.grid, withUnit(`${c.name}: posterior std`, p.quantity.unit))} height={220} />
-          <Plot id={`plot-cand-draw-${c.id}`} label={`${c.name}: a posterior realisation`} data={[candidateMapTrace(p.grid, rowOf(s.draws.data, s.draws.cols, 0), 'draw 1', DIVERGING, ranges.signed)]} layout={candidateMapLayout(p.grid, `${c.name}: posterior realisation 1`)} height={220} />
+          <Plot
+            id={`plot-cand-mean-${c.id}`}
+            label={`${c.name}: posterior mean`}
+            data={[candidateMapTrace(p.grid, s.mean, 'mean', DIVERGING, ranges.signed)]}
+            layout={candidateMapLayout(p.grid, withUnit(`${c.name}: posterior mean`, p.quantity.unit))}
+            height={220}
+          />
+          <Plot
+            id={`plot-cand-std-${c.id}`}
+            label={`${c.name}: posterior standard deviation`}
+            data={[candidateMapTrace(p.grid, s.std, 'std', SEQUENTIAL, ranges.std)]}
+            layout={candidateMapLayout(p.grid, withUnit(`${c.name}: posterior std`, p.quantity.unit))}
+            height={220}
+          />
+          <Plot
+            id={`plot-cand-draw-${c.id}`}
+            label={`${c.name}: a posterior realisation`}
+            data={[candidateMapTrace(p.grid, rowOf(s.draws.data, s.draws.cols, 0), 'draw 1', DIVERGING, ranges.signed)]}
+            layout={candidateMapLayout(p.grid, `${c.name}: posterior realisation 1`)}
+            height={220}
+          />
         </div>
       ))}
     </div>
@@ -170,7 +229,15 @@ function CrossTable({ candidates }: { candidates: readonly Candidate[] }) {
     <div className="sel-sub">
       <h4>Cross-calibration: truth from one candidate, inverted with another</h4>
       <div className="row toolbar">
-        <NumberField label="replicates" value={replicates} unit="" tip="(truth, data) pairs per table cell; all cells share the same random numbers" testId="cross-replicates" validate={(x) => (Number.isInteger(x) && x >= 1 && x <= 500 ? null : 'replicates must be an integer from 1 to 500')} onCommit={setReplicates} />
+        <NumberField
+          label="replicates"
+          value={replicates}
+          unit=""
+          tip="(truth, data) pairs per table cell; all cells share the same random numbers"
+          testId="cross-replicates"
+          validate={(x) => (Number.isInteger(x) && x >= 1 && x <= 500 ? null : 'replicates must be an integer from 1 to 500')}
+          onCommit={setReplicates}
+        />
         <button type="button" data-testid="cross-run" onClick={() => run(replicates, 19)} disabled={task.status === 'running'}>
           Compute cross-table
         </button>
@@ -198,13 +265,20 @@ function CrossTable({ candidates }: { candidates: readonly Candidate[] }) {
                 </th>
                 {candidates.map((b, j) => (
                   <td key={b.id} className={i === j ? 'diag' : undefined}>
-                    <Num testId={`cross-${i}-${j}`} value={v.coverage95[i * K + j]} text={`${fmt(v.coverage68[i * K + j], 3)} / ${fmt(v.coverage95[i * K + j], 3)}`} />
+                    <Num
+                      testId={`cross-${i}-${j}`}
+                      value={v.coverage95[i * K + j]}
+                      text={`${fmt(v.coverage68[i * K + j], 3)} / ${fmt(v.coverage95[i * K + j], 3)}`}
+                    />
                   </td>
                 ))}
               </tr>
             ))}
           </tbody>
-          <caption className="note">Coverage of the 68% / 95% bands (nominal 0.683 / 0.95); {v.replicates} replicates per cell{v.cancelled ? ', cancelled early' : ''}.</caption>
+          <caption className="note">
+            Coverage of the 68% / 95% bands (nominal 0.683 / 0.95); {v.replicates} replicates per cell
+            {v.cancelled ? ', cancelled early' : ''}.
+          </caption>
         </table>
       )}
     </div>

@@ -65,9 +65,13 @@ export function CriteriaPanel() {
                   <Num testId="crit-ppc-p" value={c.priorPredictive.pTwoSided} text={fmt(c.priorPredictive.pTwoSided, 3)} />
                 </td>
                 <td>
-                  95% range of χ²_M/M: [{fmt(c.priorPredictive.interval95[0] / c.priorPredictive.dataCount)}, {fmt(c.priorPredictive.interval95[1] / c.priorPredictive.dataCount)}]
-                  {' — '}
-                  {c.priorPredictive.plausible ? 'the data are plausible under this prior.' : c.priorPredictive.pUpper < 0.5 ? 'the data lie too far from the prior mean for its spread.' : 'the data fit suspiciously well: the prior may be far too wide or the errors overstated.'}
+                  95% range of χ²_M/M: [{fmt(c.priorPredictive.interval95[0] / c.priorPredictive.dataCount)},{' '}
+                  {fmt(c.priorPredictive.interval95[1] / c.priorPredictive.dataCount)}]{' — '}
+                  {c.priorPredictive.plausible
+                    ? 'the data are plausible under this prior.'
+                    : c.priorPredictive.pUpper < 0.5
+                      ? 'the data lie too far from the prior mean for its spread.'
+                      : 'the data fit suspiciously well: the prior may be far too wide or the errors overstated.'}
                 </td>
               </tr>
             </tbody>
@@ -91,7 +95,9 @@ function DiscrepancyRow({ d, apply }: { d: DiscrepancyResult; apply: (p: PriorSp
   const classical = d.form === 'classical';
   const id = classical ? 'crit-discrepancy' : 'crit-discrepancy-expected';
   const name = classical ? 'discrepancy rule, classical (χ² = M)' : 'discrepancy rule, expected value (χ² = M − tr R)';
-  const target = classical ? `χ² = M = ${d.target}` : `χ² = its expected value ${fmt(d.target)} (M minus the resolved parameters at that scale)`;
+  const target = classical
+    ? `χ² = M = ${d.target}`
+    : `χ² = its expected value ${fmt(d.target)} (M minus the resolved parameters at that scale)`;
   return (
     <tr data-testid={`${id}-row`}>
       <td title={DISCREPANCY_FORM_WORDS[d.form]}>{name}</td>
@@ -107,8 +113,15 @@ function DiscrepancyRow({ d, apply }: { d: DiscrepancyResult; apply: (p: PriorSp
       <td>
         {d.status === 'found' ? (
           <>
-            Targets {target}: multiplying every variance and the nugget by {fmt(d.scale)} gets there. {classical ? 'With a correct prior this rule asks for a stiffer prior, because the posterior mean also fits part of the noise.' : 'A correct prior meets this target on average, but one data set gives a noisy scale.'}{' '}
-            <button type="button" data-testid={classical ? 'discrepancy-apply' : 'discrepancy-expected-apply'} onClick={() => d.prior && apply(d.prior)}>
+            Targets {target}: multiplying every variance and the nugget by {fmt(d.scale)} gets there.{' '}
+            {classical
+              ? 'With a correct prior this rule asks for a stiffer prior, because the posterior mean also fits part of the noise.'
+              : 'A correct prior meets this target on average, but one data set gives a noisy scale.'}{' '}
+            <button
+              type="button"
+              data-testid={classical ? 'discrepancy-apply' : 'discrepancy-expected-apply'}
+              onClick={() => d.prior && apply(d.prior)}
+            >
               Apply this scaling
             </button>
           </>
@@ -149,10 +162,29 @@ function CalibrationPanel() {
   return (
     <div className="sel-sub">
       <h4>Calibration</h4>
-      <p className="note">Draw truths from the current prior, simulate data with the problem's errors, invert with the same prior, count how often the truth lies inside the bands.</p>
+      <p className="note">
+        Draw truths from the current prior, simulate data with the problem's errors, invert with the same prior, count how often the truth
+        lies inside the bands.
+      </p>
       <div className="row toolbar">
-        <NumberField label="replicates" value={replicates} unit="" tip="independent (truth, data) pairs" testId="cal-replicates" validate={(x) => (Number.isInteger(x) && x >= 2 && x <= 2000 ? null : 'replicates must be an integer from 2 to 2000')} onCommit={setReplicates} />
-        <NumberField label="draws" value={draws} unit="" tip="posterior draws per replicate (rank bins = draws + 1)" testId="cal-draws" validate={(x) => (Number.isInteger(x) && x >= 1 && x <= 99 ? null : 'draws must be an integer from 1 to 99')} onCommit={setDraws} />
+        <NumberField
+          label="replicates"
+          value={replicates}
+          unit=""
+          tip="independent (truth, data) pairs"
+          testId="cal-replicates"
+          validate={(x) => (Number.isInteger(x) && x >= 2 && x <= 2000 ? null : 'replicates must be an integer from 2 to 2000')}
+          onCommit={setReplicates}
+        />
+        <NumberField
+          label="draws"
+          value={draws}
+          unit=""
+          tip="posterior draws per replicate (rank bins = draws + 1)"
+          testId="cal-draws"
+          validate={(x) => (Number.isInteger(x) && x >= 1 && x <= 99 ? null : 'draws must be an integer from 1 to 99')}
+          onCommit={setDraws}
+        />
         <button type="button" data-testid="calibration-run" onClick={() => run(replicates, draws)} disabled={task.status === 'running'}>
           Run calibration
         </button>
@@ -185,7 +217,10 @@ function CalibrationPanel() {
                       <Num testId={id} value={cov} text={fmt(cov, 4)} />
                     </td>
                     <td>
-                      [{fmt(lo, 3)}, {fmt(hi, 3)}] {nominal >= lo && nominal <= hi ? '(contains the nominal value)' : '(nominal value outside; with few replicates this happens 1 time in 20 by chance)'}
+                      [{fmt(lo, 3)}, {fmt(hi, 3)}]{' '}
+                      {nominal >= lo && nominal <= hi
+                        ? '(contains the nominal value)'
+                        : '(nominal value outside; with few replicates this happens 1 time in 20 by chance)'}
                     </td>
                   </tr>
                 );

@@ -23,15 +23,52 @@ export function defaultMapSettings(prior: PriorSpec, term: number): MapSettings 
 }
 
 const positive = (name: string) => (v: number) => (v > 0 && Number.isFinite(v) ? null : `${name} must be a finite number > 0`);
-const countCheck = (name: string) => (v: number) => (Number.isInteger(v) && v >= 1 && v <= 200 ? null : `${name} must be an integer from 1 to 200`);
+const countCheck = (name: string) => (v: number) =>
+  Number.isInteger(v) && v >= 1 && v <= 200 ? null : `${name} must be an integer from 1 to 200`;
 
-function AxisFields({ name, unit, axis, onChange, testId }: { name: string; unit: string; axis: { min: number; max: number; count: number }; onChange: (a: { min: number; max: number; count: number }) => void; testId: string }) {
+function AxisFields({
+  name,
+  unit,
+  axis,
+  onChange,
+  testId,
+}: {
+  name: string;
+  unit: string;
+  axis: { min: number; max: number; count: number };
+  onChange: (a: { min: number; max: number; count: number }) => void;
+  testId: string;
+}) {
   return (
     <span className="sel-axis">
       <strong>{name}</strong>
-      <NumberField label="from" value={axis.min} unit={unit} tip={`smallest ${name} (log-spaced axis)`} testId={`${testId}-min`} validate={positive(`${name} from`)} onCommit={(min) => onChange({ ...axis, min })} />
-      <NumberField label="to" value={axis.max} unit={unit} tip={`largest ${name}`} testId={`${testId}-max`} validate={(v) => positive(`${name} to`)(v) ?? (v >= axis.min ? null : `${name} to must be ≥ from (${axis.min})`)} onCommit={(max) => onChange({ ...axis, max })} />
-      <NumberField label="values" value={axis.count} unit="" tip="number of log-spaced values (resolution)" testId={`${testId}-count`} validate={countCheck(`${name} values`)} onCommit={(count) => onChange({ ...axis, count })} />
+      <NumberField
+        label="from"
+        value={axis.min}
+        unit={unit}
+        tip={`smallest ${name} (log-spaced axis)`}
+        testId={`${testId}-min`}
+        validate={positive(`${name} from`)}
+        onCommit={(min) => onChange({ ...axis, min })}
+      />
+      <NumberField
+        label="to"
+        value={axis.max}
+        unit={unit}
+        tip={`largest ${name}`}
+        testId={`${testId}-max`}
+        validate={(v) => positive(`${name} to`)(v) ?? (v >= axis.min ? null : `${name} to must be ≥ from (${axis.min})`)}
+        onCommit={(max) => onChange({ ...axis, max })}
+      />
+      <NumberField
+        label="values"
+        value={axis.count}
+        unit=""
+        tip="number of log-spaced values (resolution)"
+        testId={`${testId}-count`}
+        validate={countCheck(`${name} values`)}
+        onCommit={(count) => onChange({ ...axis, count })}
+      />
     </span>
   );
 }
@@ -76,7 +113,10 @@ export function EvidencePanel() {
   };
   const layout = useMemo(
     () => ({
-      title: { text: `Log evidence over term ${(map?.term ?? 0) + 1}'s length and variance (click a cell to apply it)`, font: { size: 12 } },
+      title: {
+        text: `Log evidence over term ${(map?.term ?? 0) + 1}'s length and variance (click a cell to apply it)`,
+        font: { size: 12 },
+      },
       xaxis: { title: { text: withUnit('log₁₀ length ℓ', unit) } },
       yaxis: { title: { text: withUnit('log₁₀ variance σ²', varUnit) } },
       showlegend: true,
@@ -106,9 +146,25 @@ export function EvidencePanel() {
             ))}
           </select>
         </label>
-        <AxisFields name="length" unit={unit} axis={settings.lengths} onChange={(lengths) => setSettings({ ...settings, lengths })} testId="map-lengths" />
-        <AxisFields name="variance" unit={varUnit} axis={settings.variances} onChange={(variances) => setSettings({ ...settings, variances })} testId="map-variances" />
-        <button type="button" onClick={() => setSettings(defaultMapSettings(prior, settings.term))} title="Ranges around the current term: lengths ×1/5…×5, variances ×1/100…×100">
+        <AxisFields
+          name="length"
+          unit={unit}
+          axis={settings.lengths}
+          onChange={(lengths) => setSettings({ ...settings, lengths })}
+          testId="map-lengths"
+        />
+        <AxisFields
+          name="variance"
+          unit={varUnit}
+          axis={settings.variances}
+          onChange={(variances) => setSettings({ ...settings, variances })}
+          testId="map-variances"
+        />
+        <button
+          type="button"
+          onClick={() => setSettings(defaultMapSettings(prior, settings.term))}
+          title="Ranges around the current term: lengths ×1/5…×5, variances ×1/100…×100"
+        >
           Ranges from prior
         </button>
         <button type="button" className="primary" data-testid="map-run" onClick={() => run(settings)} disabled={task.status === 'running'}>
@@ -138,7 +194,8 @@ export function EvidencePanel() {
           </div>
           {cursorCell !== null && (
             <p className="note" aria-live="polite" data-testid="map-cursor" data-index={cursorCell}>
-              Highlighted: ℓ = {fmt(map.lengths[Math.floor(cursorCell / map.variances.length)])} {unit}, σ² = {fmt(map.variances[cursorCell % map.variances.length])} {varUnit}, log evidence{' '}
+              Highlighted: ℓ = {fmt(map.lengths[Math.floor(cursorCell / map.variances.length)])} {unit}, σ² ={' '}
+              {fmt(map.variances[cursorCell % map.variances.length])} {varUnit}, log evidence{' '}
               {Number.isFinite(map.logEvidence[cursorCell]) ? map.logEvidence[cursorCell].toFixed(3) : 'not computed'} — Enter applies it.
             </p>
           )}
@@ -162,8 +219,16 @@ export function EvidencePanel() {
               'No cell of the map could be evaluated.'
             )}
             <span className="note">
-              {map.lengths.length} × {map.variances.length} cells, {map.method === 'eigen' ? 'one eigendecomposition per length' : 'one Cholesky factorisation per cell'}
-              {map.note ? ` (${map.note})` : ''}. {map.best && (map.best.index % map.variances.length === 0 || map.best.index % map.variances.length === map.variances.length - 1 || map.best.index < map.variances.length || map.best.index >= map.logEvidence.length - map.variances.length) ? 'The maximum lies on the edge of the map: widen the ranges.' : ''}
+              {map.lengths.length} × {map.variances.length} cells,{' '}
+              {map.method === 'eigen' ? 'one eigendecomposition per length' : 'one Cholesky factorisation per cell'}
+              {map.note ? ` (${map.note})` : ''}.{' '}
+              {map.best &&
+              (map.best.index % map.variances.length === 0 ||
+                map.best.index % map.variances.length === map.variances.length - 1 ||
+                map.best.index < map.variances.length ||
+                map.best.index >= map.logEvidence.length - map.variances.length)
+                ? 'The maximum lies on the edge of the map: widen the ranges.'
+                : ''}
               {task.status === 'cancelled' ? ' Cancelled: some rows are missing.' : ''}
             </span>
           </p>
@@ -194,8 +259,16 @@ function ProfilePanel() {
   const layout = useMemo(
     () =>
       value && {
-        title: { text: value.parameter === 'nu' ? 'Log evidence against the Matérn smoothness ν' : 'Log evidence against the nugget', font: { size: 12 } },
-        xaxis: { type: 'log', title: { text: value.parameter === 'nu' ? 'ν (dimensionless)' : withUnit('nugget', p.quantity.unit ? `(${p.quantity.unit})²` : '') } },
+        title: {
+          text: value.parameter === 'nu' ? 'Log evidence against the Matérn smoothness ν' : 'Log evidence against the nugget',
+          font: { size: 12 },
+        },
+        xaxis: {
+          type: 'log',
+          title: {
+            text: value.parameter === 'nu' ? 'ν (dimensionless)' : withUnit('nugget', p.quantity.unit ? `(${p.quantity.unit})²` : ''),
+          },
+        },
         yaxis: { title: { text: 'log p(d)' } },
       },
     [value, p],
@@ -219,7 +292,12 @@ function ProfilePanel() {
           </select>
         </label>
         <AxisFields name={kind === 'nu' ? 'ν' : 'nugget'} unit="" axis={range} onChange={setRange} testId="profile" />
-        <button type="button" data-testid="profile-run" onClick={go} disabled={task.status === 'running' || (kind === 'nu' && maternTerm < 0)}>
+        <button
+          type="button"
+          data-testid="profile-run"
+          onClick={go}
+          disabled={task.status === 'running' || (kind === 'nu' && maternTerm < 0)}
+        >
           Compute profile
         </button>
         <TaskStatusLine kind="evidenceProfile" task={task} label="Profile" />
@@ -234,7 +312,8 @@ function ProfilePanel() {
           {layout && <Plot id="plot-evidence-profile" label="Evidence profile" data={traces} layout={layout} height={260} />}
           {value.best && (
             <p className="note" data-testid="profile-best">
-              Largest at {value.parameter === 'nu' ? 'ν' : 'nugget'} = {fmt(value.best.value)} (log evidence {value.best.logEvidence.toFixed(3)}); the rest of the prior held fixed.
+              Largest at {value.parameter === 'nu' ? 'ν' : 'nugget'} = {fmt(value.best.value)} (log evidence{' '}
+              {value.best.logEvidence.toFixed(3)}); the rest of the prior held fixed.
             </p>
           )}
         </div>
@@ -269,7 +348,11 @@ function FitPanel() {
         <span className="note">Free parameters:</span>
         {names.map((n) =>
           n === 'nugget' ? (
-            <label key={n} className="inline" title="The data often cannot identify the nugget: the fit then drives it towards zero. Fixed unless ticked.">
+            <label
+              key={n}
+              className="inline"
+              title="The data often cannot identify the nugget: the fit then drives it towards zero. Fixed unless ticked."
+            >
               <input type="checkbox" data-testid="fit-nugget" checked={fitNugget} onChange={(e) => setFitNugget(e.target.checked)} /> nugget
             </label>
           ) : (
@@ -285,7 +368,13 @@ function FitPanel() {
           ),
         )}
         {!names.includes('nugget') && <span className="note">(nugget 0 is not fitted; set a nugget &gt; 0 to let the fit move it)</span>}
-        <button type="button" className="primary" data-testid="fit-run" onClick={() => run(fixed)} disabled={task.status === 'running' || fixed.length === names.length}>
+        <button
+          type="button"
+          className="primary"
+          data-testid="fit-run"
+          onClick={() => run(fixed)}
+          disabled={task.status === 'running' || fixed.length === names.length}
+        >
           Find best by evidence
         </button>
         <TaskStatusLine kind="typeII" task={task} label="Fit" />
@@ -298,9 +387,9 @@ function FitPanel() {
             </p>
           )}
           <p>
-            Log evidence <Num testId="fit-start-logev" value={value.startLogEvidence} text={value.startLogEvidence.toFixed(3)} /> at the start →{' '}
-            <Num testId="fit-logev" value={value.logEvidence} text={value.logEvidence.toFixed(3)} /> at the optimum ({value.iterations} iterations,{' '}
-            {value.converged ? 'converged' : 'not converged'}){value.note ? `; ${value.note}` : ''}.{' '}
+            Log evidence <Num testId="fit-start-logev" value={value.startLogEvidence} text={value.startLogEvidence.toFixed(3)} /> at the
+            start → <Num testId="fit-logev" value={value.logEvidence} text={value.logEvidence.toFixed(3)} /> at the optimum (
+            {value.iterations} iterations, {value.converged ? 'converged' : 'not converged'}){value.note ? `; ${value.note}` : ''}.{' '}
             <button
               type="button"
               className="primary"
@@ -328,7 +417,10 @@ function FitPanel() {
                   : value.conditioning.verdict === 'not-decided'
                     ? 'positive definiteness not decided'
                     : 'not positive definite'}
-              {value.conditioning.nuggetAtFloor ? '; the nugget sits on the smallest value that guarantees a condition number within 1e10' : ''}.
+              {value.conditioning.nuggetAtFloor
+                ? '; the nugget sits on the smallest value that guarantees a condition number within 1e10'
+                : ''}
+              .
             </p>
           )}
           <table className="sel-table">
@@ -337,7 +429,9 @@ function FitPanel() {
                 <th>parameter</th>
                 <th>start</th>
                 <th>optimum</th>
-                <th title="curvature-based standard error of the optimisation coordinate (natural log of the value, or degrees for an angle)">standard error</th>
+                <th title="curvature-based standard error of the optimisation coordinate (natural log of the value, or degrees for an angle)">
+                  standard error
+                </th>
                 <th>≈95% interval</th>
               </tr>
             </thead>
@@ -360,7 +454,9 @@ function FitPanel() {
             </tbody>
           </table>
           {value.parameters.some((q) => !Number.isFinite(q.standardError)) && (
-            <p className="note">A NaN standard error means the surface is flat or not curved downwards there: the data do not pin that parameter down.</p>
+            <p className="note">
+              A NaN standard error means the surface is flat or not curved downwards there: the data do not pin that parameter down.
+            </p>
           )}
         </div>
       )}

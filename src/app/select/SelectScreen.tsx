@@ -44,7 +44,16 @@ export function SelectScreen() {
     <div className="screen sel" data-testid="screen-select">
       <div className="sel-head">
         <span className="note">Current prior:</span> <span data-testid="select-prior">{describePrior(prior)}</span>
-        <button type="button" className="pin" data-testid="select-pin" onClick={pin} disabled={count >= MAX_PINNED} title={count >= MAX_PINNED ? `At most ${MAX_PINNED} candidates; remove one first` : 'Keep this prior as a candidate for comparison'}>
+        <button
+          type="button"
+          className="pin"
+          data-testid="select-pin"
+          onClick={pin}
+          disabled={count >= MAX_PINNED}
+          title={
+            count >= MAX_PINNED ? `At most ${MAX_PINNED} candidates; remove one first` : 'Keep this prior as a candidate for comparison'
+          }
+        >
           Pin current prior ({count}/{MAX_PINNED})
         </button>
         <span className="sel-views" role="group" aria-label="Prior selection views">

@@ -26,7 +26,14 @@ export function averagedTraces1D(x: ArrayLike<number>, chosen: MeanStd, averaged
     bandTrace(x, a.lower, a.upper, 'averaged 95%', AVERAGED_FILL),
     bandTrace(x, c.lower, c.upper, 'this prior 95%', CHOSEN_FILL),
     { type: 'scatter', mode: 'lines', x, y: averaged.mean, name: 'averaged mean', line: { color: AVERAGED_COLOUR, width: 2 } },
-    { type: 'scatter', mode: 'lines', x, y: chosen.mean, name: 'this prior: mean', line: { color: CHOSEN_COLOUR, width: 1.6, dash: 'dash' } },
+    {
+      type: 'scatter',
+      mode: 'lines',
+      x,
+      y: chosen.mean,
+      name: 'this prior: mean',
+      line: { color: CHOSEN_COLOUR, width: 1.6, dash: 'dash' },
+    },
   ];
 }
 

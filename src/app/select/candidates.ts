@@ -41,10 +41,25 @@ export interface ScoreColumn {
 export const SCORE_COLUMNS: readonly ScoreColumn[] = [
   { id: 'logEvidence', label: 'log evidence', tip: 'log N(d; G m0, G Cm Gᵀ + Cd), natural log', better: 'higher' },
   { id: 'loo', label: 'LOO log score', tip: 'Σᵢ log p(dᵢ | d₋ᵢ): how well each datum is predicted from the others', better: 'higher' },
-  { id: 'chi2', label: 'χ² / expected', tip: 'χ² of the posterior mean divided by its expected value under this candidate, M − tr R (not M: the mean also fits part of the noise); a correct prior gives 1 on average, and 95% of data sets fall in the bracketed interval (the same division applied to the 2.5% and 97.5% quantiles of χ²)', better: 'closer to 1' },
+  {
+    id: 'chi2',
+    label: 'χ² / expected',
+    tip: 'χ² of the posterior mean divided by its expected value under this candidate, M − tr R (not M: the mean also fits part of the noise); a correct prior gives 1 on average, and 95% of data sets fall in the bracketed interval (the same division applied to the 2.5% and 97.5% quantiles of χ²)',
+    better: 'closer to 1',
+  },
   { id: 'ppp', label: 'prior predictive p', tip: 'two-sided p-value of q = rᵀK⁻¹r against χ²_M', better: null },
-  { id: 'coverage', label: 'coverage 68% / 95%', tip: 'self-calibration: truth drawn from this candidate, inverted with it (run the cross-table)', better: null },
-  { id: 'condition', label: 'cond(Cm)', tip: 'condition number of the prior covariance (a lower estimate on large grids)', better: 'lower' },
+  {
+    id: 'coverage',
+    label: 'coverage 68% / 95%',
+    tip: 'self-calibration: truth drawn from this candidate, inverted with it (run the cross-table)',
+    better: null,
+  },
+  {
+    id: 'condition',
+    label: 'cond(Cm)',
+    tip: 'condition number of the prior covariance (a lower estimate on large grids)',
+    better: 'lower',
+  },
 ];
 
 export interface ScoreCell {

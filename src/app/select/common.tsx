@@ -31,7 +31,12 @@ export function TaskStatusLine({ kind, task, label }: { kind: TuningKind; task: 
 /** A number with its full-precision value in data-value (read by the end-to-end tests). */
 export function Num({ value, text, testId }: { value: number | null; text: string; testId?: string }) {
   return (
-    <span className="num" data-testid={testId} data-value={value === null ? '' : String(value)} title={value === null ? undefined : String(value)}>
+    <span
+      className="num"
+      data-testid={testId}
+      data-value={value === null ? '' : String(value)}
+      title={value === null ? undefined : String(value)}
+    >
       {text}
     </span>
   );

@@ -96,7 +96,10 @@ export function priorStructure(p: PriorSpec): string {
  */
 export type Freshness = 'current' | 'earlier-prior' | 'other-structure' | 'other-problem';
 
-export function freshness(task: Pick<Task<unknown>, 'key' | 'prior'>, s: Pick<WorkbenchState, 'problem' | 'priorRevision' | 'prior'>): Freshness {
+export function freshness(
+  task: Pick<Task<unknown>, 'key' | 'prior'>,
+  s: Pick<WorkbenchState, 'problem' | 'priorRevision' | 'prior'>,
+): Freshness {
   const [version, revision] = (task.key ?? '').split(':');
   if (!s.problem || version !== String(s.problem.version)) return 'other-problem';
   if (task.prior && s.prior && priorStructure(task.prior) !== priorStructure(s.prior)) return 'other-structure';
@@ -150,7 +153,6 @@ export function candidatesKey(s: Pick<WorkbenchState, 'problem' | 'candidates' |
 
 /** Posterior realisations shown per candidate. */
 export const CANDIDATE_DRAWS = 3;
-
 
 /** `client.tuning`: the split client's secondary worker, so the posterior worker stays free. */
 export function createSelectSlice(set: StoreSet, get: StoreGet, client: Pick<ClientPort, 'tuning'>): SelectSlice {
@@ -292,7 +294,13 @@ export function createSelectSlice(set: StoreSet, get: StoreGet, client: Pick<Cli
       const s = get();
       if (!s.prior || s.candidates.length >= MAX_PINNED) return;
       const style = nextCandidateStyle(s.candidates.map((c) => c.colour));
-      set({ candidates: [...s.candidates, { id: `cand-${Date.now().toString(36)}-${nextId++}`, name: style.name, colour: style.colour, prior: s.prior }], candidatesNote: null });
+      set({
+        candidates: [
+          ...s.candidates,
+          { id: `cand-${Date.now().toString(36)}-${nextId++}`, name: style.name, colour: style.colour, prior: s.prior },
+        ],
+        candidatesNote: null,
+      });
       get().refreshCandidates();
     },
     unpin(id) {
@@ -323,7 +331,10 @@ export function createSelectSlice(set: StoreSet, get: StoreGet, client: Pick<Cli
       const back = setAside.get(identity) ?? [];
       const count = (n: number) => `${n} pinned candidate${n === 1 ? '' : 's'}`;
       const parts: string[] = [];
-      if (left.length > 0) parts.push(`The ${count(left.length)} of “${leftTitle}” ${left.length === 1 ? 'is' : 'are'} kept for that problem and come${left.length === 1 ? 's' : ''} back when it is shown again.`);
+      if (left.length > 0)
+        parts.push(
+          `The ${count(left.length)} of “${leftTitle}” ${left.length === 1 ? 'is' : 'are'} kept for that problem and come${left.length === 1 ? 's' : ''} back when it is shown again.`,
+        );
       if (back.length > 0) parts.push(`The ${count(back.length)} of this problem ${back.length === 1 ? 'is' : 'are'} back.`);
       set({ candidates: back, candidatesNote: parts.length > 0 ? parts.join(' ') : null });
     },

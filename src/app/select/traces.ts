@@ -122,8 +122,26 @@ export function mapCellAt(map: Pick<EvidenceMap, 'lengths' | 'variances'>, x: nu
 /** A profile as a line with markers over the parameter (log axis), its maximum marked. */
 export function profileTraces(p: EvidenceProfile, colour = '#4b3b75'): Trace[] {
   const y = Array.from(p.logEvidence, (v) => (Number.isFinite(v) ? v : null));
-  const out: Trace[] = [{ type: 'scatter', mode: 'lines+markers', name: 'log evidence', x: Array.from(p.values), y, line: { color: colour, width: 2 }, marker: { size: 5 } }];
-  if (p.best) out.push({ type: 'scatter', mode: 'markers', name: 'maximum', x: [p.best.value], y: [p.best.logEvidence], marker: { symbol: 'star', size: 13, color: '#e3a46f', line: { color: '#1b1f3b', width: 1 } } });
+  const out: Trace[] = [
+    {
+      type: 'scatter',
+      mode: 'lines+markers',
+      name: 'log evidence',
+      x: Array.from(p.values),
+      y,
+      line: { color: colour, width: 2 },
+      marker: { size: 5 },
+    },
+  ];
+  if (p.best)
+    out.push({
+      type: 'scatter',
+      mode: 'markers',
+      name: 'maximum',
+      x: [p.best.value],
+      y: [p.best.logEvidence],
+      marker: { symbol: 'star', size: 13, color: '#e3a46f', line: { color: '#1b1f3b', width: 1 } },
+    });
   return out;
 }
 
@@ -146,7 +164,14 @@ export function rankTraces(hist: ArrayLike<number>): Trace[] {
   const x = Array.from({ length: n }, (_, i) => i);
   return [
     { type: 'bar', name: 'count', x, y: Array.from(hist), marker: { color: '#a65a7a' } },
-    { type: 'scatter', mode: 'lines', name: 'uniform (calibrated)', x: [-0.5, n - 0.5], y: [total / n, total / n], line: { color: '#1b1f3b', dash: 'dash', width: 1 } },
+    {
+      type: 'scatter',
+      mode: 'lines',
+      name: 'uniform (calibrated)',
+      x: [-0.5, n - 0.5],
+      y: [total / n, total / n],
+      line: { color: '#1b1f3b', dash: 'dash', width: 1 },
+    },
   ];
 }
 
@@ -158,7 +183,10 @@ export function withAlpha(hex: string, alpha: number): string {
 }
 
 /** Overlaid 95% band (mean ± 1.96 σ) and mean line of each candidate (1-D). */
-export function candidateBandTraces(x: ArrayLike<number>, items: readonly { name: string; colour: string; mean: ArrayLike<number>; std: ArrayLike<number> }[]): Trace[] {
+export function candidateBandTraces(
+  x: ArrayLike<number>,
+  items: readonly { name: string; colour: string; mean: ArrayLike<number>; std: ArrayLike<number> }[],
+): Trace[] {
   const z = 1.959963984540054;
   const out: Trace[] = [];
   for (const it of items) {
@@ -171,14 +199,34 @@ export function candidateBandTraces(x: ArrayLike<number>, items: readonly { name
       xs[2 * n - 1 - i] = x[i];
       ys[2 * n - 1 - i] = it.mean[i] - z * it.std[i];
     }
-    out.push({ type: 'scatter', mode: 'lines', name: `${it.name} 95%`, x: xs, y: ys, fill: 'toself', fillcolor: withAlpha(it.colour, 0.14), line: { width: 0.5, color: withAlpha(it.colour, 0.5) }, hoverinfo: 'skip' });
-    out.push({ type: 'scatter', mode: 'lines', name: `${it.name} mean`, x: Array.from(x), y: Array.from(it.mean), line: { color: it.colour, width: 2 } });
+    out.push({
+      type: 'scatter',
+      mode: 'lines',
+      name: `${it.name} 95%`,
+      x: xs,
+      y: ys,
+      fill: 'toself',
+      fillcolor: withAlpha(it.colour, 0.14),
+      line: { width: 0.5, color: withAlpha(it.colour, 0.5) },
+      hoverinfo: 'skip',
+    });
+    out.push({
+      type: 'scatter',
+      mode: 'lines',
+      name: `${it.name} mean`,
+      x: Array.from(x),
+      y: Array.from(it.mean),
+      line: { color: it.colour, width: 2 },
+    });
   }
   return out;
 }
 
 /** A pinned candidate's posterior draws on a 1-D grid: one line per draw in its colour, one legend entry per candidate. */
-export function candidateDrawTraces(x: ArrayLike<number>, items: readonly { id: string; name: string; colour: string; draws: Matrix }[]): Trace[] {
+export function candidateDrawTraces(
+  x: ArrayLike<number>,
+  items: readonly { id: string; name: string; colour: string; draws: Matrix }[],
+): Trace[] {
   const xs = Array.from(x);
   const out: Trace[] = [];
   for (const it of items) {
@@ -200,7 +248,14 @@ export function candidateDrawTraces(x: ArrayLike<number>, items: readonly { id: 
 
 /** The truth as a dotted line over the candidates' bands. */
 export function candidateTruthTrace(x: ArrayLike<number>, truth: ArrayLike<number>): Trace {
-  return { type: 'scatter', mode: 'lines', name: 'truth', x: Array.from(x), y: Array.from(truth), line: { color: COLOURS.truth, dash: 'dot', width: 1 } };
+  return {
+    type: 'scatter',
+    mode: 'lines',
+    name: 'truth',
+    x: Array.from(x),
+    y: Array.from(truth),
+    line: { color: COLOURS.truth, dash: 'dot', width: 1 },
+  };
 }
 
 /** Layout of the candidates' 1-D comparison plots (bands, draws): legend below, axis titles with units. */
@@ -214,9 +269,25 @@ export function candidateLineLayout(title: string, xTitle: string, yTitle: strin
 }
 
 /** A candidate's map on a 2-D grid, on the colour scale and range every candidate shares (../colourScales.ts candidateRanges). */
-export function candidateMapTrace(grid: Grid, field: ArrayLike<number>, name: string, scale: [number, string][], range: readonly [number, number]): Trace {
+export function candidateMapTrace(
+  grid: Grid,
+  field: ArrayLike<number>,
+  name: string,
+  scale: [number, string][],
+  range: readonly [number, number],
+): Trace {
   const { x, y } = axes2D(grid);
-  return { type: 'heatmap', x, y, z: toRows2D(grid, field), colorscale: scale, name, colorbar: { thickness: 8 }, zmin: range[0], zmax: range[1] };
+  return {
+    type: 'heatmap',
+    x,
+    y,
+    z: toRows2D(grid, field),
+    colorscale: scale,
+    name,
+    colorbar: { thickness: 8 },
+    zmin: range[0],
+    zmax: range[1],
+  };
 }
 
 /** Same orientation as every other map (second axis increasing downwards, ../labels.ts), marked ↓ in the axis title. */

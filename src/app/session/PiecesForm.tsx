@@ -39,7 +39,9 @@ export function PiecesForm() {
     const grid: GridForm = {
       shape: twoD ? [formNumber(str('nx')), formNumber(str('ny'))] : [formNumber(str('nx'))],
       spacing: twoD ? [formNumber(str('dx')), formNumber(str('dy'))] : [formNumber(str('dx'))],
-      ...(str('x0') !== '' || str('y0') !== '' ? { origin: twoD ? [formNumber(str('x0') || '0'), formNumber(str('y0') || '0')] : [formNumber(str('x0') || '0')] } : {}),
+      ...(str('x0') !== '' || str('y0') !== ''
+        ? { origin: twoD ? [formNumber(str('x0') || '0'), formNumber(str('y0') || '0')] : [formNumber(str('x0') || '0')] }
+        : {}),
       ...(str('unit') ? { unit: str('unit') } : {}),
     };
     try {
@@ -64,7 +66,13 @@ export function PiecesForm() {
 
   return (
     <span className="menu" style={{ position: 'relative' }}>
-      <button type="button" data-testid="pieces-toggle" aria-expanded={open} onClick={() => setOpen(!open)} title="G, data and grid as separate files and fields">
+      <button
+        type="button"
+        data-testid="pieces-toggle"
+        aria-expanded={open}
+        onClick={() => setOpen(!open)}
+        title="G, data and grid as separate files and fields"
+      >
         From pieces…
       </button>
       {open && (

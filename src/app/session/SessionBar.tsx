@@ -94,7 +94,11 @@ export function SessionBar() {
   return (
     <div className={`session-bar${dragging ? ' dragging' : ''}`} data-testid="session-bar">
       <span className="group">
-        <button type="button" onClick={() => filesRef.current?.click()} title="A problem .json with the files it names (choose them together), or drop them on the page">
+        <button
+          type="button"
+          onClick={() => filesRef.current?.click()}
+          title="A problem .json with the files it names (choose them together), or drop them on the page"
+        >
           Open problem files…
         </button>
         <input
@@ -111,7 +115,10 @@ export function SessionBar() {
           }}
         />
         <PiecesForm />
-        <span className="template" title="A small invented problem to start from: the .json names G.mtx; data.csv and geometry.csv are for “From pieces”">
+        <span
+          className="template"
+          title="A small invented problem to start from: the .json names G.mtx; data.csv and geometry.csv are for “From pieces”"
+        >
           templates:{' '}
           {['problem.json', 'G.mtx', 'data.csv', 'geometry.csv'].map((f) => (
             <a key={f} href={`templates/${f}`} download={f} data-testid={`template-${f}`}>
@@ -144,13 +151,30 @@ export function SessionBar() {
           <button type="button" data-testid="export-posterior-npy" disabled={!hasPosterior} onClick={() => exportPosterior(store, 'npy')}>
             Posterior mean + std (.npy)
           </button>
-          <label className="draw-count" title="Realisations to export, draws × cells as priorscope sample writes them, with the grid in a .grid.json beside them">
+          <label
+            className="draw-count"
+            title="Realisations to export, draws × cells as priorscope sample writes them, with the grid in a .grid.json beside them"
+          >
             Realisations to export{' '}
-            <input type="number" min={1} step={1} value={drawCount} onChange={(e) => setDrawCount(e.currentTarget.value)} data-testid="export-draw-count" style={{ width: '6em' }} />
+            <input
+              type="number"
+              min={1}
+              step={1}
+              value={drawCount}
+              onChange={(e) => setDrawCount(e.currentTarget.value)}
+              data-testid="export-draw-count"
+              style={{ width: '6em' }}
+            />
           </label>
           {(['prior', 'posterior'] as const).map((w) =>
             (['csv', 'npy'] as const).map((f) => (
-              <button key={w + f} type="button" data-testid={`export-${w}-draws-${f}`} disabled={!ready} onClick={guarded(() => exportDraws(store, w, f, drawCountOf(drawCount)), fail)}>
+              <button
+                key={w + f}
+                type="button"
+                data-testid={`export-${w}-draws-${f}`}
+                disabled={!ready}
+                onClick={guarded(() => exportDraws(store, w, f, drawCountOf(drawCount)), fail)}
+              >
                 {drawCount} {w === 'prior' ? 'prior' : 'posterior'} realisations (.{f} + grid)
               </button>
             )),
@@ -176,13 +200,24 @@ export function SessionBar() {
           <button type="button" data-testid="report-open" disabled={!hasPosterior} onClick={guarded(() => openReport(store, 'open'), fail)}>
             One-page report (open)
           </button>
-          <button type="button" data-testid="report-download" disabled={!hasPosterior} onClick={guarded(() => openReport(store, 'download'), fail)}>
+          <button
+            type="button"
+            data-testid="report-download"
+            disabled={!hasPosterior}
+            onClick={guarded(() => openReport(store, 'download'), fail)}
+          >
             One-page report (.html)
           </button>
         </div>
       </details>
       <span className="group">
-        <button type="button" data-testid="share" disabled={!ready} onClick={guarded(async () => setLink(await shareLink(store)), fail)} title="A link holding the prior (and the built-in problem)">
+        <button
+          type="button"
+          data-testid="share"
+          disabled={!ready}
+          onClick={guarded(async () => setLink(await shareLink(store)), fail)}
+          title="A link holding the prior (and the built-in problem)"
+        >
           Share link
         </button>
         {link && (
@@ -196,7 +231,12 @@ export function SessionBar() {
           />
         )}
         {link && <span className="hint">opening it takes precedence over the autosaved session</span>}
-        <button type="button" data-testid="start-over" onClick={() => void s.startOver()} title="Forget the saved session and open the demo">
+        <button
+          type="button"
+          data-testid="start-over"
+          onClick={() => void s.startOver()}
+          title="Forget the saved session and open the demo"
+        >
           Start over with demo
         </button>
       </span>
@@ -204,7 +244,15 @@ export function SessionBar() {
         {user ? `Your problem: ${title} (${user})` : null}
       </span>
       <span className="save" data-testid="autosave-status">
-        {loadStatus !== 'idle' ? 'Reading files …' : saveStatus === 'saved' ? 'Saved' : saveStatus === 'pending' ? 'Saving …' : saveStatus === 'failed' ? 'Autosave failed' : ''}
+        {loadStatus !== 'idle'
+          ? 'Reading files …'
+          : saveStatus === 'saved'
+            ? 'Saved'
+            : saveStatus === 'pending'
+              ? 'Saving …'
+              : saveStatus === 'failed'
+                ? 'Autosave failed'
+                : ''}
       </span>
       {loadError && (
         <div className="load-error" role="alert" data-testid="load-error">

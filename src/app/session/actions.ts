@@ -6,7 +6,19 @@ import Plotly from 'plotly.js-dist-min';
 import type { WorkbenchStore } from '../store.ts';
 import { CAUTION } from '../caution.ts';
 import { download } from './download.ts';
-import { covarianceNpy, drawsCsv, drawsGridFile, gridFile, drawsName, drawsNpy, PLOT_EXPORT_SCALE, plotFileName, posteriorCsv, posteriorNpy, priorExport } from './exports.ts';
+import {
+  covarianceNpy,
+  drawsCsv,
+  drawsGridFile,
+  gridFile,
+  drawsName,
+  drawsNpy,
+  PLOT_EXPORT_SCALE,
+  plotFileName,
+  posteriorCsv,
+  posteriorNpy,
+  priorExport,
+} from './exports.ts';
 import { reportHtml } from './report.ts';
 import { encodeShare } from './share.ts';
 import { problemFingerprint } from '../../core/io/fingerprint.ts';
@@ -15,7 +27,10 @@ export type Format = 'csv' | 'npy';
 
 /** The image function of plotly.js we use (not in ../plotly.d.ts). */
 interface PlotlyImages {
-  downloadImage(gd: HTMLElement, opts: { format: 'png' | 'svg'; filename: string; width: number; height: number; scale?: number }): Promise<string>;
+  downloadImage(
+    gd: HTMLElement,
+    opts: { format: 'png' | 'svg'; filename: string; width: number; height: number; scale?: number },
+  ): Promise<string>;
 }
 const images = Plotly as unknown as PlotlyImages;
 
@@ -65,13 +80,22 @@ export async function exportPlots(format: 'png' | 'svg', problemTitle: string): 
     const layout = (el as unknown as { layout?: { title?: { text?: string } | string } }).layout;
     const plotTitle = typeof layout?.title === 'string' ? layout.title : (layout?.title?.text ?? el.getAttribute('aria-label') ?? el.id);
     const filename = plotFileName(problemTitle, plotTitle, used);
-    await images.downloadImage(el, { format, filename, width: el.clientWidth || 700, height: el.clientHeight || 400, scale: format === 'png' ? PLOT_EXPORT_SCALE : 1 });
+    await images.downloadImage(el, {
+      format,
+      filename,
+      width: el.clientWidth || 700,
+      height: el.clientHeight || 400,
+      scale: format === 'png' ? PLOT_EXPORT_SCALE : 1,
+    });
   }
   return plots.length;
 }
 
 export async function buildReport(store: WorkbenchStore): Promise<string | null> {
-  const draws = await store.getState().fetchDraws('prior').catch(() => null);
+  const draws = await store
+    .getState()
+    .fetchDraws('prior')
+    .catch(() => null);
   return reportHtml(store.getState(), CAUTION, draws);
 }
 

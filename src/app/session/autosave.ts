@@ -15,7 +15,9 @@ export const AUTOSAVE_DEBOUNCE_MS = 300;
 export interface SavedSession {
   readonly format: typeof SESSION_FORMAT;
   /** A built-in problem by id, or the user's own problem (record "problem", identified by `problemKey`). */
-  readonly source: { readonly kind: 'demo'; readonly demoId: string } | { readonly kind: 'user'; readonly problemKey: string; readonly label: string };
+  readonly source:
+    | { readonly kind: 'demo'; readonly demoId: string }
+    | { readonly kind: 'user'; readonly problemKey: string; readonly label: string };
   readonly prior: PriorSpec;
   readonly seed: number;
   readonly tab: TabId;

@@ -58,8 +58,15 @@ export function posteriorNpy(s: PosteriorSummary): ExportFile {
  * accents are dropped, anything else separates words; `fallback` when nothing is left.
  */
 export function fileStem(title: string, fallback = 'problem', max = 60): string {
-  const plain = title.normalize('NFKD').replace(/[\u0300-\u036f]/g, '').toLowerCase();
-  const stem = plain.replace(/[^a-z0-9]+/g, '-').replace(/^-+|-+$/g, '').slice(0, max).replace(/-+$/, '');
+  const plain = title
+    .normalize('NFKD')
+    .replace(/[\u0300-\u036f]/g, '')
+    .toLowerCase();
+  const stem = plain
+    .replace(/[^a-z0-9]+/g, '-')
+    .replace(/^-+|-+$/g, '')
+    .slice(0, max)
+    .replace(/-+$/, '');
   return stem === '' ? fallback : stem;
 }
 
@@ -79,7 +86,14 @@ export function drawsNpy(draws: Matrix, base: string): ExportFile {
 }
 
 /** What lies beside the realisations: the grid (problem-file fields), the seed and how to read the rows. */
-export function drawsGridFile(grid: Grid, draws: Matrix, which: 'prior' | 'posterior', seed: number, base: string, title: string): ExportFile {
+export function drawsGridFile(
+  grid: Grid,
+  draws: Matrix,
+  which: 'prior' | 'posterior',
+  seed: number,
+  base: string,
+  title: string,
+): ExportFile {
   if (draws.cols !== cellCount(grid)) throw new RangeError(`drawsGridFile: ${draws.cols} values per draw for ${cellCount(grid)} cells`);
   const record = {
     kind: 'priorscope.realisations',

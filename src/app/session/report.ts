@@ -37,14 +37,25 @@ export function candidateTable(
 ): NonNullable<DefenceInput['candidates']> {
   const ev = evidenceReadings(cands, grid);
   return {
-    header: ['candidate', 'prior', 'log evidence', 'against the best (Kass & Raftery 1995)', 'LOO log score', 'χ² / (M − tr R)', 'hyper-parameters'],
+    header: [
+      'candidate',
+      'prior',
+      'log evidence',
+      'against the best (Kass & Raftery 1995)',
+      'LOO log score',
+      'χ² / (M − tr R)',
+      'hyper-parameters',
+    ],
     rows: cands.map((c, k) => [
       c.name,
       priorLine(c.prior, lengthUnit, valueUnit),
       c.logEvidence === null ? '—' : g4(c.logEvidence),
       ev.readings[k]?.text ?? '—',
       c.loo === null ? '—' : g4(c.loo),
-      c.chi2OverExpected === null ? '—' : g4(c.chi2OverExpected) + (c.chi2Interval95OverExpected ? ` (95%: ${g4(c.chi2Interval95OverExpected[0])}–${g4(c.chi2Interval95OverExpected[1])})` : ''),
+      c.chi2OverExpected === null
+        ? '—'
+        : g4(c.chi2OverExpected) +
+          (c.chi2Interval95OverExpected ? ` (95%: ${g4(c.chi2Interval95OverExpected[0])}–${g4(c.chi2Interval95OverExpected[1])})` : ''),
       String(ev.readings[k]?.parameters ?? '—'),
     ]),
     caution: ev.caution,
@@ -59,9 +70,15 @@ export function reportInput(s: WorkbenchState, caution: string, draws: Matrix | 
   const n = cellCount(p.grid);
   const unit = p.grid.unit ?? '';
   const facts: [string, string][] = [
-    ['Grid', `${p.grid.shape.join(' × ')} cells (${n}), spacing ${p.grid.spacing.map(g4).join(' × ')}${unit ? ' ' + unit : ''}, first cell centre at (${(p.grid.origin ?? p.grid.shape.map(() => 0)).map(g4).join(', ')}), cells numbered with the first axis fastest`],
+    [
+      'Grid',
+      `${p.grid.shape.join(' × ')} cells (${n}), spacing ${p.grid.spacing.map(g4).join(' × ')}${unit ? ' ' + unit : ''}, first cell centre at (${(p.grid.origin ?? p.grid.shape.map(() => 0)).map(g4).join(', ')}), cells numbered with the first axis fastest`,
+    ],
     ['Extent', p.grid.shape.map((k, i) => `${g4(k * p.grid.spacing[i])}${unit ? ' ' + unit : ''}`).join(' × ')],
-    ['Data', `${p.dataCount} values${p.dataUnit ? ` in ${p.dataUnit}` : ''}, σ from ${g4(Math.min(...p.sigma))} to ${g4(Math.max(...p.sigma))}`],
+    [
+      'Data',
+      `${p.dataCount} values${p.dataUnit ? ` in ${p.dataUnit}` : ''}, σ from ${g4(Math.min(...p.sigma))} to ${g4(Math.max(...p.sigma))}`,
+    ],
     ['Operator', `${p.operatorKind}, ${p.operatorNonZeros} non-zeros`],
     ['Quantity', `${p.quantity.name}${p.quantity.unit ? ' (' + p.quantity.unit + ')' : ''}`],
   ];
@@ -69,7 +86,8 @@ export function reportInput(s: WorkbenchState, caution: string, draws: Matrix | 
   const mapTask = s.selectTasks.evidenceMap;
   const map = mapTask.value && mapTask.key?.startsWith(`${p.version}:`) ? mapTask.value : null;
   const mapTerm = map ? s.prior.terms[map.term] : undefined;
-  const crit = s.selectTasks.criteria.value && s.selectTasks.criteria.key === `${p.version}:${s.priorRevision}` ? s.selectTasks.criteria.value : null;
+  const crit =
+    s.selectTasks.criteria.value && s.selectTasks.criteria.key === `${p.version}:${s.priorRevision}` ? s.selectTasks.criteria.value : null;
   const scores = s.selectTasks.candidates.value;
   const avgTask = s.selectTasks.averaged;
   const avg = map && avgTask.value && mapTask.key && avgTask.key?.startsWith(`${mapTask.key}:`) ? avgTask.value : null;
@@ -111,21 +129,44 @@ export function reportInput(s: WorkbenchState, caution: string, draws: Matrix | 
     draws,
     seed: s.seed,
     posterior: { mean: sm.mean, std: sm.std, predicted: sm.predicted },
-    fitRows: [['χ² of the posterior mean', `${g4(sm.chi2)} (M = ${sm.dataCount} data)`], ...fitReferenceRows(sm.chi2, sm.fitReference ?? null), ['log evidence', g4(sm.logEvidence)]],
+    fitRows: [
+      ['χ² of the posterior mean', `${g4(sm.chi2)} (M = ${sm.dataCount} data)`],
+      ...fitReferenceRows(sm.chi2, sm.fitReference ?? null),
+      ['log evidence', g4(sm.logEvidence)],
+    ],
     data: { values: p.values, sigma: p.sigma },
     truth: p.truth,
-    evidence: map && mapTerm ? { lengths: map.lengths, variances: map.variances, logEvidence: map.logEvidence, term: map.term, chosen: [termLength(mapTerm), mapTerm.variance] } : null,
+    evidence:
+      map && mapTerm
+        ? {
+            lengths: map.lengths,
+            variances: map.variances,
+            logEvidence: map.logEvidence,
+            term: map.term,
+            chosen: [termLength(mapTerm), mapTerm.variance],
+          }
+        : null,
     candidates,
     criteria: crit ? criteriaRows(crit) : null,
     averaged:
       avg && mapTerm
-        ? { mean: avg.mean, std: avg.std, rows: averagedRows(avg, { length: termLength(mapTerm), variance: mapTerm.variance, mean: sm.mean, std: sm.std }, unit, p.quantity.unit) }
+        ? {
+            mean: avg.mean,
+            std: avg.std,
+            rows: averagedRows(
+              avg,
+              { length: termLength(mapTerm), variance: mapTerm.variance, mean: sm.mean, std: sm.std },
+              unit,
+              p.quantity.unit,
+            ),
+          }
         : null,
     missing: {
       evidence: 'No evidence map was computed in the workbench (Choose prior screen), or it belongs to another problem.',
       candidates: 'No candidate priors were pinned.',
       criteria: 'The criteria were not computed for this prior (Choose prior screen).',
-      averaged: 'The hyperparameter-averaged posterior was not computed (Choose prior screen, after an evidence map; or priorscope report on the command line).',
+      averaged:
+        'The hyperparameter-averaged posterior was not computed (Choose prior screen, after an evidence map; or priorscope report on the command line).',
     },
   };
 }

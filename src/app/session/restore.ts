@@ -59,7 +59,8 @@ export function sanitizeSavedSession(raw: unknown): RestoredSession | null {
   if (!isTab(raw.tab)) notes.push('the saved screen was not recognised, so the posterior is shown');
   const seedOk = typeof raw.seed === 'number' && Number.isInteger(raw.seed) && raw.seed >= 0 && raw.seed <= 0xffffffff;
   if (!seedOk) notes.push('the saved seed was not valid, so the default seed is used');
-  const cellOk = raw.selectedCell === null || (typeof raw.selectedCell === 'number' && Number.isInteger(raw.selectedCell) && raw.selectedCell >= 0);
+  const cellOk =
+    raw.selectedCell === null || (typeof raw.selectedCell === 'number' && Number.isInteger(raw.selectedCell) && raw.selectedCell >= 0);
   const extra: Record<string, unknown> = {};
   if (isObject(raw.extra) && raw.extra.candidates !== undefined) {
     const c = raw.extra.candidates;
@@ -106,7 +107,11 @@ function plain(v: unknown, depth = 0): unknown {
  */
 export function readStoredPrior(file: string, value: unknown, grid?: Grid): PriorSpec {
   if (!isObject(value)) throw fieldError(file, 'prior', 'an object with mean and terms', value);
-  const prior = readPriorObject(new JsonReader(file), { ...(plain(value) as object), kind: PRIOR_KIND, version: PRIOR_VERSION }, grid ? { grid } : {});
+  const prior = readPriorObject(
+    new JsonReader(file),
+    { ...(plain(value) as object), kind: PRIOR_KIND, version: PRIOR_VERSION },
+    grid ? { grid } : {},
+  );
   if (grid) {
     try {
       validatePrior(prior, grid);
@@ -153,13 +158,16 @@ const isCount = (v: unknown, max: number): v is number => typeof v === 'number' 
  * (a row count of 1e308, arrays shorter than the sizes claim) must be refused at once, not looped over.
  */
 function shapeDefect(raw: unknown): string | null {
-  if (!isObject(raw) || !isObject(raw.grid) || !isObject(raw.operator) || !isObject(raw.data)) return 'the stored copy is damaged (grid, operator or data missing)';
+  if (!isObject(raw) || !isObject(raw.grid) || !isObject(raw.operator) || !isObject(raw.data))
+    return 'the stored copy is damaged (grid, operator or data missing)';
   const shape = raw.grid.shape;
-  if (!Array.isArray(shape) || shape.length < 1 || shape.length > 3 || !shape.every((v) => isCount(v, MAX_CELLS))) return 'grid.shape must be [nx], [nx, ny] or [nx, ny, nz] of positive integers';
+  if (!Array.isArray(shape) || shape.length < 1 || shape.length > 3 || !shape.every((v) => isCount(v, MAX_CELLS)))
+    return 'grid.shape must be [nx], [nx, ny] or [nx, ny, nz] of positive integers';
   const n = (shape as number[]).reduce((a, b) => a * b, 1);
   if (n > MAX_CELLS) return `grid.shape must have at most ${MAX_CELLS} cells in all, got ${n}`;
   const g = raw.operator.matrix;
-  if (!isObject(g) || !isCount(g.rows, MAX_CELLS) || g.cols !== n) return `the operator must have ${n} columns (one per grid cell) and a whole number of rows`;
+  if (!isObject(g) || !isCount(g.rows, MAX_CELLS) || g.cols !== n)
+    return `the operator must have ${n} columns (one per grid cell) and a whole number of rows`;
   const m = g.rows;
   if (raw.operator.kind === 'dense') {
     if (!(g.data instanceof Float64Array) || g.data.length !== m * n) return `the operator must hold ${m} × ${n} numbers`;
@@ -167,7 +175,14 @@ function shapeDefect(raw: unknown): string | null {
     const { rowPtr, colIdx, values } = g;
     if (!(rowPtr instanceof Int32Array) || rowPtr.length !== m + 1) return `the sparse operator must have ${m + 1} row offsets`;
     const nnz = rowPtr[m];
-    if (!(colIdx instanceof Int32Array) || !(values instanceof Float64Array) || colIdx.length !== nnz || values.length !== nnz || rowPtr[0] !== 0) return 'the sparse operator is damaged';
+    if (
+      !(colIdx instanceof Int32Array) ||
+      !(values instanceof Float64Array) ||
+      colIdx.length !== nnz ||
+      values.length !== nnz ||
+      rowPtr[0] !== 0
+    )
+      return 'the sparse operator is damaged';
     for (let i = 0; i < m; i++) if (rowPtr[i + 1] < rowPtr[i]) return 'the sparse operator is damaged';
   } else return 'the operator must be dense or sparse';
   const d = raw.data;
@@ -175,7 +190,8 @@ function shapeDefect(raw: unknown): string | null {
   if (d.sigma !== undefined && (!(d.sigma instanceof Float64Array) || d.sigma.length !== m)) return `data.sigma must hold ${m} numbers`;
   if (d.covariance !== undefined) {
     const c = d.covariance;
-    if (!isObject(c) || c.rows !== m || c.cols !== m || !(c.data instanceof Float64Array) || c.data.length !== m * m) return `data.covariance must be ${m} × ${m}`;
+    if (!isObject(c) || c.rows !== m || c.cols !== m || !(c.data instanceof Float64Array) || c.data.length !== m * m)
+      return `data.covariance must be ${m} × ${m}`;
   }
   if (raw.truth !== undefined && (!(raw.truth instanceof Float64Array) || raw.truth.length !== n)) return `truth must hold ${n} numbers`;
   return null;

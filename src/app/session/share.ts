@@ -27,7 +27,8 @@ export function toBase64Url(bytes: Uint8Array): string {
 }
 
 export function fromBase64Url(text: string): Uint8Array {
-  if (!/^[A-Za-z0-9_-]*$/.test(text)) throw new Error(`${SHARE_FILE}: the code after ${SHARE_PREFIX} must be base64url (A–Z, a–z, 0–9, - and _)`);
+  if (!/^[A-Za-z0-9_-]*$/.test(text))
+    throw new Error(`${SHARE_FILE}: the code after ${SHARE_PREFIX} must be base64url (A–Z, a–z, 0–9, - and _)`);
   const b64 = text.replace(/-/g, '+').replace(/_/g, '/') + '='.repeat((4 - (text.length % 4)) % 4);
   let bin: string;
   try {

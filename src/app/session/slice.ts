@@ -73,7 +73,6 @@ export interface SessionSlice {
   fetchCovariance(form: 'covariance' | 'cholesky'): Promise<Matrix | null>;
 }
 
-
 /** A prior from storage or a link: every field (the core's validator), then its fit to the grid. */
 export function checkSavedPrior(prior: PriorSpec, grid: Grid): void {
   try {
@@ -281,7 +280,12 @@ export function createSessionSlice(set: StoreSet, get: StoreGet, api: WorkbenchS
 
     async startOver() {
       // 'pending' at once, so that nobody reads the previous session's "Saved" as this one's.
-      set({ userProblem: null, loadError: null, loadWarnings: [], ...(get().saveStatus !== 'off' ? { saveStatus: 'pending' as const } : {}) });
+      set({
+        userProblem: null,
+        loadError: null,
+        loadWarnings: [],
+        ...(get().saveStatus !== 'off' ? { saveStatus: 'pending' as const } : {}),
+      });
       await get().openDemo(DEFAULT_DEMO, { tab: 'posterior', selectedCell: null });
     },
 

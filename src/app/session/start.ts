@@ -54,7 +54,11 @@ async function readSaved(storage: SessionStorage | null, lifecycle?: Lifecycle):
   const r = sanitizeSavedSession(raw);
   if (!r) {
     // Unusable as a whole (foreign format, unknown source or problem): say so rather than dropping it silently.
-    return { session: null, problem: null, notes: ['the saved session could not be read (it is damaged or from another version), so the demo is shown'] };
+    return {
+      session: null,
+      problem: null,
+      notes: ['the saved session could not be read (it is damaged or from another version), so the demo is shown'],
+    };
   }
   const notes = [...r.notes];
   const { session } = r;
@@ -68,7 +72,11 @@ async function readSaved(storage: SessionStorage | null, lifecycle?: Lifecycle):
   } catch (e) {
     // The problem is unusable: keep nothing of the session that belongs to it, say why.
     notes.push(e instanceof Error ? e.message : 'The saved problem could not be restored.');
-    return { session: { ...session, source: { kind: 'demo', demoId: DEFAULT_DEMO }, extra: {} }, problem: null, notes: [...notes, 'the default demo is shown instead'] };
+    return {
+      session: { ...session, source: { kind: 'demo', demoId: DEFAULT_DEMO }, extra: {} },
+      problem: null,
+      notes: [...notes, 'the default demo is shown instead'],
+    };
   }
 }
 
@@ -95,7 +103,8 @@ async function restoreSaved(store: WorkbenchStore, saved: Saved, override?: Save
     selectedCell: userGrid && cellOk(cellCount(userGrid)) ? session.selectedCell : null,
   };
   let ok: boolean;
-  if (session.source.kind === 'user' && saved.problem) ok = await s.adoptProblem(saved.problem.problem, session.source.label, view, saved.problem.key);
+  if (session.source.kind === 'user' && saved.problem)
+    ok = await s.adoptProblem(saved.problem.problem, session.source.label, view, saved.problem.key);
   else {
     const demo = session.source.kind === 'demo' ? session.source.demoId : DEFAULT_DEMO;
     ok = await s.openDemo(demo, view);
@@ -109,7 +118,8 @@ async function restoreSaved(store: WorkbenchStore, saved: Saved, override?: Save
     const p = store.getState().problem;
     if (ok && p && cellOk(cellCount(p.grid))) s.selectCell(session.selectedCell);
   }
-  if (session.selectedCell !== null && store.getState().selectedCell === null) saved.notes.push('the saved selected cell is not on the grid and was cleared');
+  if (session.selectedCell !== null && store.getState().selectedCell === null)
+    saved.notes.push('the saved selected cell is not on the grid and was cleared');
   const problem = store.getState().problem;
   if (ok && problem && session.extra && Array.isArray(session.extra.candidates)) {
     const all = session.extra.candidates as { prior: SavedSession['prior'] }[];
@@ -129,7 +139,6 @@ async function restoreSaved(store: WorkbenchStore, saved: Saved, override?: Save
   }
   return ok;
 }
-
 
 /** One line for the notices of a restore (null when nothing was dropped). */
 export function restoreNotice(notes: readonly string[]): string | null {
@@ -216,7 +225,10 @@ function awaitProblem(store: WorkbenchStore, prior: SavedSession['prior'], madeF
       return;
     }
     s.setPrior(prior);
-    store.setState({ notice: `Applied the prior from the shared link: this is the problem it was made for (${madeFor.title}).`, loadError: null });
+    store.setState({
+      notice: `Applied the prior from the shared link: this is the problem it was made for (${madeFor.title}).`,
+      loadError: null,
+    });
   });
 }
 
@@ -245,8 +257,10 @@ export async function startSession(store: WorkbenchStore, o: StartOptions): Prom
     let ok: boolean;
     if (shared.problem !== null) {
       // openDemo falls back to the default demo for an unknown id: that would report a success that did not happen.
-      ok = DEMO_CHOICES.some((d) => d.id === shared.problem) && (await s.openDemo(shared.problem, { prior: shared.prior, tab: 'posterior' }));
-      if (!ok && !store.getState().loadError) shareError = `problem ${JSON.stringify(shared.problem.slice(0, 40))} is not one of the built-in problems`;
+      ok =
+        DEMO_CHOICES.some((d) => d.id === shared.problem) && (await s.openDemo(shared.problem, { prior: shared.prior, tab: 'posterior' }));
+      if (!ok && !store.getState().loadError)
+        shareError = `problem ${JSON.stringify(shared.problem.slice(0, 40))} is not one of the built-in problems`;
     } else {
       const saved = await readSaved(o.storage);
       const madeFor = shared.madeFor;
@@ -271,7 +285,11 @@ export async function startSession(store: WorkbenchStore, o: StartOptions): Prom
   } else if (o.explicitDemo) {
     kept = await keepPrevious(o.storage);
     await s.openDemo(o.explicitDemo);
-    if (kept) store.setState({ notice: 'Opened the demo named in the address. Your earlier session was kept and can be restored.', previousSessionKept: true });
+    if (kept)
+      store.setState({
+        notice: 'Opened the demo named in the address. Your earlier session was kept and can be restored.',
+        previousSessionKept: true,
+      });
   } else {
     notes = await openSaved();
   }
@@ -301,7 +319,12 @@ export function sessionRecord(s: WorkbenchState, now = Date.now()): SavedSession
   };
 }
 
-export function installAutosave(store: WorkbenchStore, storage: SessionStorage, delay = AUTOSAVE_DEBOUNCE_MS, lifecycle?: StartOptions['lifecycle']): () => void {
+export function installAutosave(
+  store: WorkbenchStore,
+  storage: SessionStorage,
+  delay = AUTOSAVE_DEBOUNCE_MS,
+  lifecycle?: StartOptions['lifecycle'],
+): () => void {
   let timer: ReturnType<typeof setTimeout> | null = null;
   let savedProblemKey: string | null = null;
   const write = async () => {

@@ -24,7 +24,13 @@ export function SurveyFitPlots({ p, fit }: { p: ProblemView; fit: Fit }) {
     }
     if (g?.kind === 'paths') {
       const l = rayLayouts(p.grid);
-      return { kind: 'paths' as const, a: [...gridOverlayTraces(p.grid, null), ...rayTraces(p.grid, g, fit.residuals)], b: misfitTraces(fit.residuals), la: l.rays, lb: l.misfit };
+      return {
+        kind: 'paths' as const,
+        a: [...gridOverlayTraces(p.grid, null), ...rayTraces(p.grid, g, fit.residuals)],
+        b: misfitTraces(fit.residuals),
+        la: l.rays,
+        lb: l.misfit,
+      };
     }
     return null;
   }, [p, fit]);
@@ -32,8 +38,20 @@ export function SurveyFitPlots({ p, fit }: { p: ProblemView; fit: Fit }) {
   if (figs.kind === 'points') {
     return (
       <div className="grid-2" data-testid="survey-profile">
-        <Plot id="plot-profile" label="Observed and predicted data against where they were measured" data={figs.a} layout={figs.la} height={300} />
-        <Plot id="plot-profile-residuals" label="Normalised residuals against where the data were measured" data={figs.b} layout={figs.lb} height={300} />
+        <Plot
+          id="plot-profile"
+          label="Observed and predicted data against where they were measured"
+          data={figs.a}
+          layout={figs.la}
+          height={300}
+        />
+        <Plot
+          id="plot-profile-residuals"
+          label="Normalised residuals against where the data were measured"
+          data={figs.b}
+          layout={figs.lb}
+          height={300}
+        />
       </div>
     );
   }

@@ -74,7 +74,11 @@ function orderAlong(positions: { rows: number; cols: number; data: Float64Array 
  * Observed data (±1σ), and with a fit the prediction G m̃ and the normalised residuals, against
  * position (sorted along the profile axis; `customdata` holds each datum's number, 1-based).
  */
-export function profileTraces(p: DataLike, positions: { rows: number; cols: number; data: Float64Array }, fit: FitLike | null): { data: Trace[]; residuals: Trace[]; axis: number } {
+export function profileTraces(
+  p: DataLike,
+  positions: { rows: number; cols: number; data: Float64Array },
+  fit: FitLike | null,
+): { data: Trace[]; residuals: Trace[]; axis: number } {
   const axis = profileAxis(p.grid, positions);
   const { order, x } = orderAlong(positions, axis);
   const pick = (a: ArrayLike<number>) => order.map((i) => a[i]);
@@ -109,7 +113,15 @@ export function profileTraces(p: DataLike, positions: { rows: number; cols: numb
     const lo = x[0] ?? 0;
     const hi = x[x.length - 1] ?? 0;
     const pad = hi > lo ? (hi - lo) / 40 : 1;
-    const guide = (y: number): Trace => ({ type: 'scatter', mode: 'lines', x: [lo - pad, hi + pad], y: [y, y], line: { dash: 'dash', color: '#999', width: 1 }, showlegend: false, hoverinfo: 'skip' });
+    const guide = (y: number): Trace => ({
+      type: 'scatter',
+      mode: 'lines',
+      x: [lo - pad, hi + pad],
+      y: [y, y],
+      line: { dash: 'dash', color: '#999', width: 1 },
+      showlegend: false,
+      hoverinfo: 'skip',
+    });
     residuals.push(
       {
         type: 'scatter',
@@ -118,7 +130,13 @@ export function profileTraces(p: DataLike, positions: { rows: number; cols: numb
         y: pick(fit.residuals),
         customdata: numbers,
         name: 'normalised residual',
-        marker: { color: pick(fit.residuals), colorscale: RESIDUAL_SCALE, ...symmetricRange(fit.residuals), size: 7, line: { color: '#555', width: 0.5 } },
+        marker: {
+          color: pick(fit.residuals),
+          colorscale: RESIDUAL_SCALE,
+          ...symmetricRange(fit.residuals),
+          size: 7,
+          line: { color: '#555', width: 0.5 },
+        },
         hovertemplate: `datum %{customdata}<br>${name} %{x}<br>(d − G m̃)/σ %{y:.3g}<extra></extra>`,
       },
       { ...guide(RESIDUAL_GUIDE), name: '±2' },
@@ -201,7 +219,14 @@ export function rayTraces(grid: Grid, paths: Paths, residuals: ArrayLike<number>
   if (!residuals) {
     // Light lines over the sensitivity map, fainter the more rays there are (so 10⁴ rays do not hide it).
     const alpha = Math.min(0.8, Math.max(0.08, 6 / Math.sqrt(m)));
-    out.push({ type: 'scatter', mode: 'lines', ...segments(all), name: `${m} ray${m === 1 ? '' : 's'}`, line: { color: `rgba(235, 235, 240, ${alpha.toFixed(2)})`, width: 1 }, hoverinfo: 'skip' });
+    out.push({
+      type: 'scatter',
+      mode: 'lines',
+      ...segments(all),
+      name: `${m} ray${m === 1 ? '' : 's'}`,
+      line: { color: `rgba(235, 235, 240, ${alpha.toFixed(2)})`, width: 1 },
+      hoverinfo: 'skip',
+    });
   } else {
     const { cmax: R } = symmetricRange(residuals);
     const byClass: number[][] = Array.from({ length: RAY_CLASSES }, () => []);
@@ -242,7 +267,10 @@ export function rayTraces(grid: Grid, paths: Paths, residuals: ArrayLike<number>
       showlegend: false,
     });
   }
-  out.push(endsTrace(paths.sources, 'sources', 'triangle-right', '#3a3a46', a!, b!), endsTrace(paths.receivers, 'receivers', 'triangle-left', '#0f5d6b', a!, b!));
+  out.push(
+    endsTrace(paths.sources, 'sources', 'triangle-right', '#3a3a46', a!, b!),
+    endsTrace(paths.receivers, 'receivers', 'triangle-left', '#0f5d6b', a!, b!),
+  );
   return out;
 }
 
@@ -258,7 +286,15 @@ function endsTrace(ends: { rows: number; data: Float64Array }, name: string, sym
     x.push(ends.data[2 * k]);
     y.push(ends.data[2 * k + 1]);
   }
-  return { type: 'scatter', mode: 'markers', x, y, name: `${name} (${x.length})`, marker: { symbol, size: 8, color }, hovertemplate: `${name}<br>${hoverName(a)} %{x}<br>${hoverName(b)} %{y}<extra></extra>` };
+  return {
+    type: 'scatter',
+    mode: 'markers',
+    x,
+    y,
+    name: `${name} (${x.length})`,
+    marker: { symbol, size: 8, color },
+    hovertemplate: `${name}<br>${hoverName(a)} %{x}<br>${hoverName(b)} %{y}<extra></extra>`,
+  };
 }
 
 /** Misfit of each datum r² against its number, with its expectation 1 under the model for reference. */
@@ -267,8 +303,22 @@ export function misfitTraces(residuals: ArrayLike<number>): Trace[] {
   const idx = Array.from({ length: m }, (_, i) => i + 1);
   const r2 = Array.from(residuals, (v) => v * v);
   return [
-    { type: 'bar', x: idx, y: r2, name: 'misfit r²', marker: { color: Array.from(residuals), colorscale: RESIDUAL_SCALE, ...symmetricRange(residuals) } },
-    { type: 'scatter', mode: 'lines', x: [0.5, m + 0.5], y: [1, 1], name: 'r² = 1', line: { dash: 'dash', color: '#999', width: 1 }, hoverinfo: 'skip' },
+    {
+      type: 'bar',
+      x: idx,
+      y: r2,
+      name: 'misfit r²',
+      marker: { color: Array.from(residuals), colorscale: RESIDUAL_SCALE, ...symmetricRange(residuals) },
+    },
+    {
+      type: 'scatter',
+      mode: 'lines',
+      x: [0.5, m + 0.5],
+      y: [1, 1],
+      name: 'r² = 1',
+      line: { dash: 'dash', color: '#999', width: 1 },
+      hoverinfo: 'skip',
+    },
   ];
 }
 
@@ -334,5 +384,9 @@ export function gridOverlayTraces(grid: Grid, geometry: DataGeometry | null): Tr
 
 /** Legend below a map so that it does not cover the section. */
 export function overlayLegend(): Layout {
-  return { showlegend: true, legend: { orientation: 'h', yanchor: 'top', y: -0.3, font: { size: 10 } }, margin: { l: 56, r: 10, t: 30, b: 100 } };
+  return {
+    showlegend: true,
+    legend: { orientation: 'h', yanchor: 'top', y: -0.3, font: { size: 10 } },
+    margin: { l: 56, r: 10, t: 30, b: 100 },
+  };
 }

@@ -56,7 +56,15 @@ function counts(r: CalibrationResult, n: number): PairCounts {
 }
 
 function emptyCounts(n: number, draws: number): PairCounts {
-  return { cellHits68: new Array(n).fill(0), cellHits95: new Array(n).fill(0), replicateHits68: [], replicateHits95: [], rankHistogram: new Array(draws + 1).fill(0), route: null, approximateDraws: false };
+  return {
+    cellHits68: new Array(n).fill(0),
+    cellHits95: new Array(n).fill(0),
+    replicateHits68: [],
+    replicateHits95: [],
+    rankHistogram: new Array(draws + 1).fill(0),
+    route: null,
+    approximateDraws: false,
+  };
 }
 
 function meanAndStdError(x: readonly number[]): { mean: number; stdError: number } {
@@ -139,7 +147,7 @@ export const calibrateCommand: Command = {
   details:
     'Simulation-based calibration (Cook, Gelman & Rubin 2006; Talts et al. 2018): R times, draw a truth from the truth\n' +
     'prior and data d = G m + e with e ~ N(0, Cd), invert with the inversion prior, and count the cells whose truth lies\n' +
-    'in the posterior mean ± 1σ (nominal 68.27%) and ± 1.96σ (95%), and the truth\'s rank among L posterior draws\n' +
+    "in the posterior mean ± 1σ (nominal 68.27%) and ± 1.96σ (95%), and the truth's rank among L posterior draws\n" +
     '(uniform on 0 … L when calibrated). One prior: truth and inversion are the same (the posterior must be calibrated;\n' +
     'a check of the machinery and of approximate draws). Several prior files (--prior and/or arguments, at most 8): every\n' +
     'pair, truth i inverted with j, all pairs on the same truths and data (common random numbers).\n' +
@@ -164,7 +172,8 @@ export const calibrateCommand: Command = {
   ],
   run(args, io) {
     const paths = priorPaths(args);
-    if (paths.length > MAX_CALIBRATION_PRIORS) throw new UsageError(`give at most ${MAX_CALIBRATION_PRIORS} prior files for a cross-table, got ${paths.length}`);
+    if (paths.length > MAX_CALIBRATION_PRIORS)
+      throw new UsageError(`give at most ${MAX_CALIBRATION_PRIORS} prior files for a cross-table, got ${paths.length}`);
     const replicates = parseNumberOption('replicates', optionString(args, 'replicates')!, { integer: true, ge: 1, le: MAX_CLI_REPLICATES });
     const seed = parseNumberOption('seed', optionString(args, 'seed')!, { integer: true, ge: 0, le: 0xffffffff });
     const drawsText = optionString(args, 'draws');
@@ -173,7 +182,15 @@ export const calibrateCommand: Command = {
     const problem = loadProblemOption(args, io);
     const priors = loadPriors(paths, problem, io);
     const n = cellCount(problem.grid);
-    const key: CalibrationKey = { problem: problemKey(problem), priors: paths, priorObjects: priors.map(priorObject), replicates, seed, draws, route };
+    const key: CalibrationKey = {
+      problem: problemKey(problem),
+      priors: paths,
+      priorObjects: priors.map(priorObject),
+      replicates,
+      seed,
+      draws,
+      route,
+    };
     runShardable<CalibrationPartial>((t) => emit(io, args, t), args, {
       command: 'calibrate',
       total: replicates,
@@ -182,7 +199,14 @@ export const calibrateCommand: Command = {
         const count = end - first;
         if (count === 0) return { pairs: priors.flatMap(() => priors.map(() => emptyCounts(n, draws))) };
         progress(io, `calibration: replicates ${first + 1} to ${end} of ${replicates}, ${priors.length * priors.length} pair(s) …`);
-        const options = { replicates: count, draws, seed, streamSeed: (r: number) => replicateSeed(seed, first + r), route, structured: structuredProblem(problem) };
+        const options = {
+          replicates: count,
+          draws,
+          seed,
+          streamSeed: (r: number) => replicateSeed(seed, first + r),
+          route,
+          structured: structuredProblem(problem),
+        };
         if (priors.length === 1) return { pairs: [counts(calibrate(problem, priors[0], priors[0], options), n)] };
         const t = calibrationTable(problem, priors, options);
         return { pairs: t.results.flatMap((row) => row.map((r) => counts(r, n))) };

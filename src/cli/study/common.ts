@@ -20,14 +20,17 @@ export type RouteChoice = 'auto' | 'dense' | 'fft';
 
 export function routeOption(args: ParsedArgs): RouteChoice {
   const text = optionString(args, 'route') ?? 'auto';
-  if (text !== 'auto' && text !== 'dense' && text !== 'fft') throw new UsageError(`--route must be one of auto, dense, fft, got ${JSON.stringify(text)}`);
+  if (text !== 'auto' && text !== 'dense' && text !== 'fft')
+    throw new UsageError(`--route must be one of auto, dense, fft, got ${JSON.stringify(text)}`);
   return text;
 }
 
 /** The problem of --problem (with --read-from), warnings to stderr. */
 export function loadProblemOption(args: ParsedArgs, io: Io): Problem {
   const readFrom = optionString(args, 'read-from');
-  const p = loadProblem(optionString(args, 'problem')!, { readFrom: readFrom === undefined ? [] : readFrom.split(',').filter((d) => d !== '') });
+  const p = loadProblem(optionString(args, 'problem')!, {
+    readFrom: readFrom === undefined ? [] : readFrom.split(',').filter((d) => d !== ''),
+  });
   reportWarnings(io, p.warnings);
   return p.problem;
 }

@@ -26,10 +26,15 @@ export function select(word: string, all: readonly HyperParameter[], prior: Prio
   const term = m[1] === undefined ? null : Number(m[1]);
   const what = m[2];
   if (term !== null && term >= prior.terms.length) {
-    throw new UsageError(`${option} item ${JSON.stringify(word)}: the prior has ${prior.terms.length} term${prior.terms.length === 1 ? '' : 's'} (term0 … term${prior.terms.length - 1})`);
+    throw new UsageError(
+      `${option} item ${JSON.stringify(word)}: the prior has ${prior.terms.length} term${prior.terms.length === 1 ? '' : 's'} (term0 … term${prior.terms.length - 1})`,
+    );
   }
   if (what === 'nugget') {
-    if (!((prior.nugget ?? 0) > 0)) throw new UsageError(`${option} nugget: the prior's nugget is 0; give a starting nugget > 0 in the prior file (the fit works on its logarithm)`);
+    if (!((prior.nugget ?? 0) > 0))
+      throw new UsageError(
+        `${option} nugget: the prior's nugget is 0; give a starting nugget > 0 in the prior file (the fit works on its logarithm)`,
+      );
     return ['nugget'];
   }
   const fields: Record<string, HyperParameter['field'][]> = {
@@ -68,19 +73,28 @@ export function freeParameters(text: string, prior: PriorSpec): { all: HyperPara
 }
 
 /** Parses --bounds NAME=LO:HI,… (NAME as in --free, every parameter it selects) into core names. */
-export function boundsOption(text: string, prior: PriorSpec, all: readonly HyperParameter[], free: readonly string[]): Record<string, [number, number]> {
+export function boundsOption(
+  text: string,
+  prior: PriorSpec,
+  all: readonly HyperParameter[],
+  free: readonly string[],
+): Record<string, [number, number]> {
   const out: Record<string, [number, number]> = {};
   for (const item of text.split(',')) {
     const eq = item.indexOf('=');
     const range = item.slice(eq + 1).split(':');
-    if (eq < 0 || range.length !== 2) throw new UsageError(`--bounds items must be NAME=LO:HI (e.g. length=1:100), got ${JSON.stringify(item)}`);
+    if (eq < 0 || range.length !== 2)
+      throw new UsageError(`--bounds items must be NAME=LO:HI (e.g. length=1:100), got ${JSON.stringify(item)}`);
     const lo = parseNumberOption('bounds', range[0]);
     const hi = parseNumberOption('bounds', range[1]);
     const word = item.slice(0, eq).trim();
     for (const name of select(word, all, prior, '--bounds')) {
       if (!free.includes(name)) throw new UsageError(`--bounds ${word}: ${cliParameterName(name)} is not free (name it in --free)`);
       const h = all.find((x) => x.name === name)!;
-      if (!(lo <= hi) || (h.scale === 'log' && !(lo > 0))) throw new UsageError(`--bounds ${word} must be LO:HI with LO ≤ HI${h.scale === 'log' ? ' and LO > 0' : ''}, got ${JSON.stringify(item.slice(eq + 1))}`);
+      if (!(lo <= hi) || (h.scale === 'log' && !(lo > 0)))
+        throw new UsageError(
+          `--bounds ${word} must be LO:HI with LO ≤ HI${h.scale === 'log' ? ' and LO > 0' : ''}, got ${JSON.stringify(item.slice(eq + 1))}`,
+        );
       out[name] = [lo, hi];
     }
   }
@@ -114,7 +128,8 @@ export const fit: Command = {
     '"usable", "nuggetAtFloor", "nuggetFloor"}, "note"?}. standardError is that of the fitted coordinate (of the\n' +
     'natural log for log-scale parameters: a relative error), from the curvature of the log evidence at the optimum\n' +
     '(Laplace approximation); null where the curvature is not negative definite or the parameter rests on a bound.',
-  exitCodes: '3 here: not converged, or the optimum not proven positive definite with κ ≤ 1e10 (the result is still printed; "note" says why)',
+  exitCodes:
+    '3 here: not converged, or the optimum not proven positive definite with κ ≤ 1e10 (the result is still printed; "note" says why)',
   options: [
     PROBLEM,
     READ_FROM,
@@ -130,7 +145,8 @@ export const fit: Command = {
     noPositionals(args);
     const route = routeOption(args);
     const maxText = optionString(args, 'max-iterations');
-    const maxIterations = maxText === undefined ? undefined : parseNumberOption('max-iterations', maxText, { integer: true, ge: 1, le: 100000 });
+    const maxIterations =
+      maxText === undefined ? undefined : parseNumberOption('max-iterations', maxText, { integer: true, ge: 1, le: 100000 });
     const problem = loadProblemOption(args, io);
     const q = loadPrior(optionString(args, 'prior')!, problem.grid);
     reportWarnings(io, q.warnings);
@@ -140,7 +156,12 @@ export const fit: Command = {
     const bounds = boundsText === undefined ? undefined : boundsOption(boundsText, start, all, free);
     const fixed = all.map((h) => h.name).filter((n) => !free.includes(n));
     progress(io, `fitting ${free.map(cliParameterName).join(', ')} …`);
-    const r = maximiseEvidence(problem, start, { fixed, route, ...(bounds ? { bounds } : {}), ...(maxIterations !== undefined ? { maxIterations } : {}) });
+    const r = maximiseEvidence(problem, start, {
+      fixed,
+      route,
+      ...(bounds ? { bounds } : {}),
+      ...(maxIterations !== undefined ? { maxIterations } : {}),
+    });
     const prior = fileReady(r.prior);
     const priorOut = optionString(args, 'prior-out');
     if (priorOut !== undefined) writeOutputFile(priorOut, writePriorFile(prior, priorOut));

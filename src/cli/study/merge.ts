@@ -30,7 +30,8 @@ export const merge: Command = {
     const parts = readPartials(args.positionals);
     const command = parts[0].command;
     const combine = COMBINE[command];
-    if (!combine) throw new UsageError(`partial results of \`${command}\` cannot be merged (mergeable: ${Object.keys(COMBINE).join(', ')})`);
+    if (!combine)
+      throw new UsageError(`partial results of \`${command}\` cannot be merged (mergeable: ${Object.keys(COMBINE).join(', ')})`);
     emit(io, args, formatJson(combine(parts[0].key, parts.map((p) => p.data) as never[])));
     return 0;
   },

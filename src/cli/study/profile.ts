@@ -40,7 +40,9 @@ function target(word: string, prior: PriorSpec): Target {
   const all = hyperParameters(prior);
   const names = select(word, all, prior, '--parameter');
   if (names.length !== 1) {
-    throw new UsageError(`--parameter must name one parameter; ${JSON.stringify(word)} names ${names.length} (${names.map(cliParameterName).join(', ')}): write termK.NAME`);
+    throw new UsageError(
+      `--parameter must name one parameter; ${JSON.stringify(word)} names ${names.length} (${names.map(cliParameterName).join(', ')}): write termK.NAME`,
+    );
   }
   return all.find((h) => h.name === names[0])!;
 }
@@ -64,7 +66,8 @@ export function combineProfile(keyValue: unknown, parts: readonly ProfilePartial
 export const profile: Command = {
   name: 'profile',
   summary: 'log evidence along one parameter (ν, nugget, a length, variance or angle), the rest held',
-  usage: 'priorscope profile --problem P.json --prior Q.json --parameter NAME (--values V1,V2,… | --range lo:hi:n) [--shard K/N] [--out FILE]',
+  usage:
+    'priorscope profile --problem P.json --prior Q.json --parameter NAME (--values V1,V2,… | --range lo:hi:n) [--shard K/N] [--out FILE]',
   details:
     'Evaluates log N(d; G m0, G Cm Gᵀ + Cd) (natural log, with −(M/2) log 2π) with the parameter NAME set to each value and\n' +
     'everything else as in the prior file. NAME as in `fit --free`, naming one parameter: nugget, termK.variance,\n' +
@@ -96,7 +99,8 @@ export const profile: Command = {
     if (valuesText !== undefined) values = parseNumberListOption('values', valuesText);
     else {
       const parts = rangeText!.split(':');
-      if (parts.length !== 3) throw new UsageError(`--range must be lo:hi:n with 0 < lo ≤ hi and n an integer from 1 to 10000, got ${JSON.stringify(rangeText)}`);
+      if (parts.length !== 3)
+        throw new UsageError(`--range must be lo:hi:n with 0 < lo ≤ hi and n an integer from 1 to 10000, got ${JSON.stringify(rangeText)}`);
       const lo = parseNumberOption('range', parts[0], { gt: 0 });
       const hi = parseNumberOption('range', parts[1], { gt: 0 });
       const n = parseNumberOption('range', parts[2], { integer: true, ge: 1, le: 10000 });
@@ -111,7 +115,10 @@ export const profile: Command = {
     const name = cliParameterName(h.name);
     values.forEach((v, k) => {
       const ok = h.field === 'angle' ? Math.abs(v) <= 360 : h.field === 'nugget' ? v >= 0 : v > 0;
-      if (!ok) throw new UsageError(`value ${k + 1} of ${name} must be ${h.field === 'angle' ? 'an angle from -360 to 360 degrees' : h.field === 'nugget' ? '≥ 0' : '> 0'}, got ${v}`);
+      if (!ok)
+        throw new UsageError(
+          `value ${k + 1} of ${name} must be ${h.field === 'angle' ? 'an angle from -360 to 360 degrees' : h.field === 'nugget' ? '≥ 0' : '> 0'}, got ${v}`,
+        );
     });
     const structured = structuredProblem(problem);
     const key: ProfileKey = { problem: problemKey(problem), prior: priorObject(prior), parameter: name, values, route };

@@ -45,7 +45,14 @@ export function combineScores(keyValue: unknown, parts: readonly ScorePartial[])
   const rows = scores.map((s) => (typeof s.logEvidence === 'number' ? { ...s, logEvidenceToBest: (s.logEvidence as number) - top } : s));
   const plausible = ok.filter((s) => (s.predictive as { plausible: boolean }).plausible).length;
   return {
-    output: { priors: key.priors, scores: rows, bestByEvidence: byEvidence, bestByLeaveOneOut: byLoo, plausibleCount: plausible, explanation: CRITERIA_DIFFER_EXPLANATION },
+    output: {
+      priors: key.priors,
+      scores: rows,
+      bestByEvidence: byEvidence,
+      bestByLeaveOneOut: byLoo,
+      plausibleCount: plausible,
+      explanation: CRITERIA_DIFFER_EXPLANATION,
+    },
     verdictNegative: plausible === 0,
   };
 }
@@ -70,7 +77,14 @@ export const score: Command = {
     '"bestByEvidence", "bestByLeaveOneOut" (indices or null), "plausibleCount", "explanation"}.\n' +
     'With --shard K/N only prior files ⌊(K−1)T/N⌋ … ⌊KT/N⌋ − 1 are scored into a partial result for `priorscope merge`.',
   exitCodes: '3 here: no prior passes the predictive check (the data are implausible under every one; the scores are still printed)',
-  options: [PROBLEM, READ_FROM, { ...PRIOR, required: false, help: 'prior file; more prior files may follow as arguments' }, ROUTE, SHARD, OUT],
+  options: [
+    PROBLEM,
+    READ_FROM,
+    { ...PRIOR, required: false, help: 'prior file; more prior files may follow as arguments' },
+    ROUTE,
+    SHARD,
+    OUT,
+  ],
   run(args, io) {
     const paths = priorPaths(args);
     const route = routeOption(args);
@@ -81,7 +95,9 @@ export const score: Command = {
       command: 'score',
       total: priors.length,
       key,
-      compute: (first, end) => ({ scores: priors.slice(first, end).map((p, k) => scoreOne(io, problem, p, paths[first + k], route, priors.length)) }),
+      compute: (first, end) => ({
+        scores: priors.slice(first, end).map((p, k) => scoreOne(io, problem, p, paths[first + k], route, priors.length)),
+      }),
       combine: (k, parts) => combineScores(k, parts).output,
     });
     if (out !== null && (out as { plausibleCount: number }).plausibleCount === 0) {
@@ -97,7 +113,14 @@ export const score: Command = {
   },
 };
 
-function scoreOne(io: Io, problem: Parameters<typeof priorCriteria>[0], prior: Parameters<typeof priorCriteria>[1], label: string, route: 'auto' | 'dense' | 'fft', count: number): ScoreItem {
+function scoreOne(
+  io: Io,
+  problem: Parameters<typeof priorCriteria>[0],
+  prior: Parameters<typeof priorCriteria>[1],
+  label: string,
+  route: 'auto' | 'dense' | 'fft',
+  count: number,
+): ScoreItem {
   progress(io, `scoring ${label}${count > 1 ? ` (${count} priors)` : ''} …`);
   try {
     const c = priorCriteria(problem, prior, { route, structured: structuredProblem(problem) });
@@ -105,9 +128,22 @@ function scoreOne(io: Io, problem: Parameters<typeof priorCriteria>[0], prior: P
     return {
       prior: label,
       logEvidence: c.logEvidence,
-      leaveOneOut: { logScore: c.leaveOneOut.logScore, contributions: c.leaveOneOut.contributions, standardised: c.leaveOneOut.standardised },
+      leaveOneOut: {
+        logScore: c.leaveOneOut.logScore,
+        contributions: c.leaveOneOut.contributions,
+        standardised: c.leaveOneOut.standardised,
+      },
       discrepancy: { classical: discrepancy(c.discrepancy), expected: discrepancy(c.discrepancyExpected) },
-      predictive: { statistic: p.statistic, dataCount: p.dataCount, reduced: p.reduced, pUpper: p.pUpper, pLower: p.pLower, pTwoSided: p.pTwoSided, interval95: p.interval95, plausible: p.plausible },
+      predictive: {
+        statistic: p.statistic,
+        dataCount: p.dataCount,
+        reduced: p.reduced,
+        pUpper: p.pUpper,
+        pLower: p.pLower,
+        pTwoSided: p.pTwoSided,
+        interval95: p.interval95,
+        plausible: p.plausible,
+      },
       route: route === 'auto' ? tuningRoute(problem, prior) : route,
     };
   } catch (e) {

@@ -84,13 +84,27 @@ function roundTrip<T>(value: T): T {
 export function runShardable<D>(
   write: (text: string) => void,
   args: ParsedArgs,
-  spec: { command: string; total: number; key: unknown; compute: (first: number, end: number) => D; combine: (key: unknown, parts: readonly D[]) => unknown },
+  spec: {
+    command: string;
+    total: number;
+    key: unknown;
+    compute: (first: number, end: number) => D;
+    combine: (key: unknown, parts: readonly D[]) => unknown;
+  },
 ): unknown {
   const shard = shardOption(args);
   const [first, end] = shardRange(spec.total, shard);
   const data = spec.compute(first, end);
   if (shard !== null) {
-    const partial: PartialFile = { kind: PARTIAL_KIND, version: PARTIAL_VERSION, command: spec.command, shard, items: [first, end], key: spec.key, data };
+    const partial: PartialFile = {
+      kind: PARTIAL_KIND,
+      version: PARTIAL_VERSION,
+      command: spec.command,
+      shard,
+      items: [first, end],
+      key: spec.key,
+      data,
+    };
     write(formatJson(partial));
     return null;
   }
@@ -105,9 +119,14 @@ export function readPartials(paths: readonly string[]): PartialFile[] {
   const parts = paths.map((path) => {
     const v = parseJsonText(path, readInputFile(path)) as Partial<PartialFile> | null;
     if (v === null || typeof v !== 'object' || v.kind !== PARTIAL_KIND) {
-      throw new FileFormatError(path, `must be a partial result (kind "${PARTIAL_KIND}", written by a command run with --shard K/N)`, { field: 'kind' });
+      throw new FileFormatError(path, `must be a partial result (kind "${PARTIAL_KIND}", written by a command run with --shard K/N)`, {
+        field: 'kind',
+      });
     }
-    if (v.version !== PARTIAL_VERSION) throw new FileFormatError(path, `must be partial-file version ${PARTIAL_VERSION}, got ${JSON.stringify(v.version)}`, { field: 'version' });
+    if (v.version !== PARTIAL_VERSION)
+      throw new FileFormatError(path, `must be partial-file version ${PARTIAL_VERSION}, got ${JSON.stringify(v.version)}`, {
+        field: 'version',
+      });
     const s = v.shard;
     if (!s || !Number.isInteger(s.index) || !Number.isInteger(s.count) || s.index < 1 || s.index > s.count) {
       throw new FileFormatError(path, 'must have "shard": {"index": K, "count": N} with 1 ≤ K ≤ N', { field: 'shard' });
@@ -117,24 +136,38 @@ export function readPartials(paths: readonly string[]): PartialFile[] {
   const first = parts[0];
   const keyText = formatJson(first.part.key);
   for (const { path, part } of parts.slice(1)) {
-    if (part.command !== first.part.command) throw new FileFormatError(path, `is a partial of \`${part.command}\`, but ${first.path} is one of \`${first.part.command}\``, { field: 'command' });
+    if (part.command !== first.part.command)
+      throw new FileFormatError(path, `is a partial of \`${part.command}\`, but ${first.path} is one of \`${first.part.command}\``, {
+        field: 'command',
+      });
     if (part.shard.count !== first.part.shard.count) {
-      throw new FileFormatError(path, `is shard ${part.shard.index} of ${part.shard.count}, but ${first.path} is one of ${first.part.shard.count} shards`, { field: 'shard.count' });
+      throw new FileFormatError(
+        path,
+        `is shard ${part.shard.index} of ${part.shard.count}, but ${first.path} is one of ${first.part.shard.count} shards`,
+        { field: 'shard.count' },
+      );
     }
     if (formatJson(part.key) !== keyText) {
-      throw new FileFormatError(path, `comes from another run than ${first.path} (problem, priors or options differ: "key" is not the same)`, { field: 'key' });
+      throw new FileFormatError(
+        path,
+        `comes from another run than ${first.path} (problem, priors or options differ: "key" is not the same)`,
+        { field: 'key' },
+      );
     }
   }
   const n = first.part.shard.count;
   const byIndex = new Map<number, { path: string; part: PartialFile }>();
   for (const p of parts) {
     const other = byIndex.get(p.part.shard.index);
-    if (other) throw new FileFormatError(p.path, `is shard ${p.part.shard.index} of ${n} again (also ${other.path})`, { field: 'shard.index' });
+    if (other)
+      throw new FileFormatError(p.path, `is shard ${p.part.shard.index} of ${n} again (also ${other.path})`, { field: 'shard.index' });
     byIndex.set(p.part.shard.index, p);
   }
   const missing = Array.from({ length: n }, (_, k) => k + 1).filter((k) => !byIndex.has(k));
   if (missing.length > 0) {
-    throw new UsageError(`shard${missing.length === 1 ? '' : 's'} ${missing.slice(0, 10).join(', ')}${missing.length > 10 ? ', …' : ''} of ${n} missing: merge needs every part`);
+    throw new UsageError(
+      `shard${missing.length === 1 ? '' : 's'} ${missing.slice(0, 10).join(', ')}${missing.length > 10 ? ', …' : ''} of ${n} missing: merge needs every part`,
+    );
   }
   return Array.from({ length: n }, (_, k) => byIndex.get(k + 1)!.part);
 }

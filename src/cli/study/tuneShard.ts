@@ -33,7 +33,9 @@ export function tuneRows(problem: Problem, prior: PriorSpec, key: TuneKey, first
   const { term, axis, lengths, variances } = key;
   const toRows = (map: ReturnType<typeof evidenceMap>) => {
     const nv = map.variances.length;
-    return Array.from({ length: map.lengths.length }, (_, i) => Array.from(map.logEvidence.subarray(i * nv, (i + 1) * nv), (v) => (Number.isFinite(v) ? v : null)));
+    return Array.from({ length: map.lengths.length }, (_, i) =>
+      Array.from(map.logEvidence.subarray(i * nv, (i + 1) * nv), (v) => (Number.isFinite(v) ? v : null)),
+    );
   };
   if (first === 0 && end === lengths.count) {
     const map = evidenceMap(problem, prior, { term, lengths, variances, axis });
@@ -78,7 +80,10 @@ export function combineTune(keyValue: unknown, parts: readonly TunePartial[]): {
   const lengthName = key.axis === 'both' ? 'length' : key.axis;
   for (const which of ['length', 'variance'] as const) {
     const e = bestOnEdge[which];
-    if (e) warnings.push(`the maximum lies at the ${e === 'low' ? 'lower' : 'upper'} end of the ${which === 'length' ? lengthName : which} axis: the true maximum may lie beyond it; widen --${which === 'length' ? 'lengths' : 'variances'}`);
+    if (e)
+      warnings.push(
+        `the maximum lies at the ${e === 'low' ? 'lower' : 'upper'} end of the ${which === 'length' ? lengthName : which} axis: the true maximum may lie beyond it; widen --${which === 'length' ? 'lengths' : 'variances'}`,
+      );
   }
   const tuned = key.tuned;
   return {

@@ -199,7 +199,14 @@ export class CirculantProduct {
    * null), written at the given offsets. `spec` is not modified. With `save`, the full 2-D
    * spectrum F pad(a + i b) is kept there for {@link fromColumnSpectrum}.
    */
-  fromSpectrum(spec: Float64Array, outA: Float64Array, outB: Float64Array | null, offsetA = 0, offsetB = 0, save: Float64Array | null = null): void {
+  fromSpectrum(
+    spec: Float64Array,
+    outA: Float64Array,
+    outB: Float64Array | null,
+    offsetA = 0,
+    offsetB = 0,
+    save: Float64Array | null = null,
+  ): void {
     const { px, py, ny } = this;
     const r = this.regions();
     const w = 2 * px;
@@ -231,7 +238,14 @@ export class CirculantProduct {
    * (unnormalised, e^(+2πi…)) transforms along y into Y and along x on rows t < ny into X, so
    * out[t][ix] = X[t][ix] (re → outA, im → outB).
    */
-  private filter(r: ReturnType<CirculantProduct['regions']>, outA: Float64Array, outB: Float64Array | null, offsetA: number, offsetB: number, scaled: boolean): void {
+  private filter(
+    r: ReturnType<CirculantProduct['regions']>,
+    outA: Float64Array,
+    outB: Float64Array | null,
+    offsetA: number,
+    offsetB: number,
+    scaled: boolean,
+  ): void {
     const e = this.engine;
     const { nx, ny, px, py } = this;
     const rowBytes = 16 * px;

@@ -106,7 +106,18 @@ export class FftEngine {
    * directions. `halfOut`: only outputs p < n/2 are wanted (the others are left stale). The
    * twiddle table must exist already ({@link twiddles}) when work regions are live.
    */
-  run(src: number, dst: number, tmp: number, n: number, s: number, count: number, bstride: number, inverse: boolean, halfZero = false, halfOut = false): void {
+  run(
+    src: number,
+    dst: number,
+    tmp: number,
+    n: number,
+    s: number,
+    count: number,
+    bstride: number,
+    inverse: boolean,
+    halfZero = false,
+    halfOut = false,
+  ): void {
     if (count <= 0) return;
     if (n === 1) {
       const v = this.f64();

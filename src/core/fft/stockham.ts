@@ -49,15 +49,24 @@ export function stockhamFft(
         // The last radix-4 stage (L = 4, p = 0): every twiddle is 1.
         for (let k = 0; k < str; k += 2) {
           const a = ia + k;
-          const ar = f[a], ai = f[a + 1];
-          const br = f[a + qE], bi = f[a + qE + 1];
-          const cr = f[a + 2 * qE], ci = f[a + 2 * qE + 1];
-          const dr = f[a + 3 * qE], di = f[a + 3 * qE + 1];
-          const apcR = ar + cr, apcI = ai + ci;
-          const amcR = ar - cr, amcI = ai - ci;
-          const bpdR = br + dr, bpdI = bi + di;
-          const bmdR = br - dr, bmdI = bi - di;
-          const jbR = bmdI * J0, jbI = bmdR * J1;
+          const ar = f[a],
+            ai = f[a + 1];
+          const br = f[a + qE],
+            bi = f[a + qE + 1];
+          const cr = f[a + 2 * qE],
+            ci = f[a + 2 * qE + 1];
+          const dr = f[a + 3 * qE],
+            di = f[a + 3 * qE + 1];
+          const apcR = ar + cr,
+            apcI = ai + ci;
+          const amcR = ar - cr,
+            amcI = ai - ci;
+          const bpdR = br + dr,
+            bpdI = bi + di;
+          const bmdR = br - dr,
+            bmdI = bi - di;
+          const jbR = bmdI * J0,
+            jbI = bmdR * J1;
           const o = oa + k;
           f[o] = apcR + bpdR;
           f[o + 1] = apcI + bpdI;
@@ -72,16 +81,28 @@ export function stockhamFft(
         }
       } else {
         for (let p = 0; p < quarter; p++) {
-          const w1r = f[twp], w1r2 = f[twp + 1], w1a = f[twp + 2], w1b = f[twp + 3];
-          const w2r = f[twp + 4], w2r2 = f[twp + 5], w2a = f[twp + 6], w2b = f[twp + 7];
-          const w3r = f[twp + 8], w3r2 = f[twp + 9], w3a = f[twp + 10], w3b = f[twp + 11];
+          const w1r = f[twp],
+            w1r2 = f[twp + 1],
+            w1a = f[twp + 2],
+            w1b = f[twp + 3];
+          const w2r = f[twp + 4],
+            w2r2 = f[twp + 5],
+            w2a = f[twp + 6],
+            w2b = f[twp + 7];
+          const w3r = f[twp + 8],
+            w3r2 = f[twp + 9],
+            w3a = f[twp + 10],
+            w3b = f[twp + 11];
           if (halfZero) {
             // Inputs c = d = 0: y0 = a + b, y1 = W(a − J b), y2 = W²(a − b), y3 = W³(a + J b).
             for (let k = 0; k < str; k += 2) {
               const a = ia + k;
-              const ar = f[a], ai = f[a + 1];
-              const br = f[a + qE], bi = f[a + qE + 1];
-              const jbR = bi * J0, jbI = br * J1;
+              const ar = f[a],
+                ai = f[a + 1];
+              const br = f[a + qE],
+                bi = f[a + qE + 1];
+              const jbR = bi * J0,
+                jbI = br * J1;
               const o = oa + k;
               f[o] = ar + br;
               f[o + 1] = ai + bi;
@@ -92,15 +113,24 @@ export function stockhamFft(
           } else {
             for (let k = 0; k < str; k += 2) {
               const a = ia + k;
-              const ar = f[a], ai = f[a + 1];
-              const br = f[a + qE], bi = f[a + qE + 1];
-              const cr = f[a + 2 * qE], ci = f[a + 2 * qE + 1];
-              const dr = f[a + 3 * qE], di = f[a + 3 * qE + 1];
-              const apcR = ar + cr, apcI = ai + ci;
-              const amcR = ar - cr, amcI = ai - ci;
-              const bpdR = br + dr, bpdI = bi + di;
-              const bmdR = br - dr, bmdI = bi - di;
-              const jbR = bmdI * J0, jbI = bmdR * J1;
+              const ar = f[a],
+                ai = f[a + 1];
+              const br = f[a + qE],
+                bi = f[a + qE + 1];
+              const cr = f[a + 2 * qE],
+                ci = f[a + 2 * qE + 1];
+              const dr = f[a + 3 * qE],
+                di = f[a + 3 * qE + 1];
+              const apcR = ar + cr,
+                apcI = ai + ci;
+              const amcR = ar - cr,
+                amcI = ai - ci;
+              const bpdR = br + dr,
+                bpdI = bi + di;
+              const bmdR = br - dr,
+                bmdI = bi - di;
+              const jbR = bmdI * J0,
+                jbI = bmdR * J1;
               const o = oa + k;
               f[o] = apcR + bpdR;
               f[o + 1] = apcI + bpdI;
@@ -125,8 +155,10 @@ export function stockhamFft(
       // Radix-2 stage of length 2 (no twiddles): y[q] = a + b, y[q + s] = a − b.
       for (let k = 0; k < str; k += 2) {
         const a = x + k;
-        const ar = f[a], ai = f[a + 1];
-        const br = f[a + str], bi = f[a + str + 1];
+        const ar = f[a],
+          ai = f[a + 1];
+        const br = f[a + str],
+          bi = f[a + str + 1];
         const o = y + k;
         f[o] = ar + br;
         f[o + 1] = ai + bi;

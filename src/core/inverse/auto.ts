@@ -81,15 +81,28 @@ export function choosePosteriorPath(problem: Problem, prior: PriorSpec, requeste
   switch (requested) {
     case 'dense':
       if (n > DENSE_MAX_CELLS) {
-        throw denseTooLarge(n, field, requested, why === null ? '"fft" or "auto" (the FFT route holds no N × N matrix)' : `a problem of at most ${DENSE_MAX_CELLS} cells (the FFT route cannot run either: ${why})`);
+        throw denseTooLarge(
+          n,
+          field,
+          requested,
+          why === null
+            ? '"fft" or "auto" (the FFT route holds no N × N matrix)'
+            : `a problem of at most ${DENSE_MAX_CELLS} cells (the FFT route cannot run either: ${why})`,
+        );
       }
       return { path: 'dense', reason: 'dense path requested' };
     case 'fft':
-      if (why !== null) throw new InputError(field, `"dense" or "auto" for this problem (the FFT path needs a stationary prior on a regular 1-D or 2-D grid: ${why})`, 'fft');
+      if (why !== null)
+        throw new InputError(
+          field,
+          `"dense" or "auto" for this problem (the FFT path needs a stationary prior on a regular 1-D or 2-D grid: ${why})`,
+          'fft',
+        );
       return { path: 'fft', reason: 'FFT path requested' };
     case 'auto':
       if (why !== null) {
-        if (n > DENSE_MAX_CELLS) throw denseTooLarge(n, field, requested, `a problem of at most ${DENSE_MAX_CELLS} cells (the FFT route cannot run: ${why})`);
+        if (n > DENSE_MAX_CELLS)
+          throw denseTooLarge(n, field, requested, `a problem of at most ${DENSE_MAX_CELLS} cells (the FFT route cannot run: ${why})`);
         return { path: 'dense', reason: `dense: ${why}` };
       }
       if (n < FFT_MIN_CELLS) return { path: 'dense', reason: `dense: ${n} cells, below ${FFT_MIN_CELLS} the dense path is as fast` };

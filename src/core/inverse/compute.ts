@@ -68,10 +68,16 @@ export function stdSplits(pool: PosteriorPool | undefined, m: number, n: number)
  * The FFT route's state (Bᵀ, L, mean); the Bᵀ products go over `pool` when forced or when
  * ../parallel/products.ts productsWorthSplitting says they gain (same bits as one thread).
  */
-export async function prepareStructured(sp: StructuredProblem | Problem, prior: PriorSpec, pool?: PosteriorPool): Promise<StructuredPosteriorState> {
+export async function prepareStructured(
+  sp: StructuredProblem | Problem,
+  prior: PriorSpec,
+  pool?: PosteriorPool,
+): Promise<StructuredPosteriorState> {
   const problem = 'cacheBytes' in sp ? sp.problem : sp;
   const split =
-    pool !== undefined && pool.threads > 1 && (pool.force === true || productsWorthSplitting(problem.data.values.length, problem.grid.shape, pool.threads));
+    pool !== undefined &&
+    pool.threads > 1 &&
+    (pool.force === true || productsWorthSplitting(problem.data.values.length, problem.grid.shape, pool.threads));
   return split ? prepareStructuredPosteriorParallel(sp, prior, pool.get()) : prepareStructuredPosterior(sp, prior);
 }
 
@@ -81,7 +87,11 @@ export async function prepareStructured(sp: StructuredProblem | Problem, prior: 
  * before the mean (so a pool that starts on demand boots while the mean is computed) and the mean's
  * products go over it too; a pool is never started for the products alone.
  */
-export async function computePosterior(sp: StructuredProblem | Problem, prior: PriorSpec, options: PosteriorOptions = {}): Promise<ComputedPosterior> {
+export async function computePosterior(
+  sp: StructuredProblem | Problem,
+  prior: PriorSpec,
+  options: PosteriorOptions = {},
+): Promise<ComputedPosterior> {
   const problem = 'cacheBytes' in sp ? sp.problem : sp;
   const decision = choosePosteriorPath(problem, prior, options.path ?? 'auto', options.field);
   if (decision.path === 'dense') {
@@ -136,10 +146,16 @@ function nonFinite(where: string, v: number): InputError {
  * {@link computePosterior} on one thread without hooks, synchronously: the same route decision and
  * the same numbers (benchmarks, tests, callers without a pool).
  */
-export function computePosteriorSerial(sp: StructuredProblem | Problem, prior: PriorSpec, path: PathRequest = 'auto', field?: string): ComputedPosterior {
+export function computePosteriorSerial(
+  sp: StructuredProblem | Problem,
+  prior: PriorSpec,
+  path: PathRequest = 'auto',
+  field?: string,
+): ComputedPosterior {
   const problem = 'cacheBytes' in sp ? sp.problem : sp;
   const decision = choosePosteriorPath(problem, prior, path, field);
-  if (decision.path === 'dense') return { summary: checkedFinite(posteriorSummary(preparePosterior(problem, prior))), decision, threadsUsed: 1 };
+  if (decision.path === 'dense')
+    return { summary: checkedFinite(posteriorSummary(preparePosterior(problem, prior))), decision, threadsUsed: 1 };
   const state = prepareStructuredPosterior(sp, prior);
   return { summary: checkedFinite(structuredPosteriorSummary(state, structuredPosteriorStd(state))), decision, threadsUsed: 1 };
 }

@@ -323,8 +323,7 @@ export interface DataFitReference {
   readonly method: string;
 }
 
-export const FIT_REFERENCE_METHOD =
-  'weighted sum of χ²₁ with weights eig(L⁻¹ Cd L⁻ᵀ), distribution by Imhof (1961) numerical inversion';
+export const FIT_REFERENCE_METHOD = 'weighted sum of χ²₁ with weights eig(L⁻¹ Cd L⁻ᵀ), distribution by Imhof (1961) numerical inversion';
 
 /** The reference for the observed χ² from the weights of {@link fitWeights}; null when M = 0. */
 export function dataFitReference(weights: ArrayLike<number>, chi2: number): DataFitReference | null {

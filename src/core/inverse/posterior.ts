@@ -110,7 +110,11 @@ export function preparePosteriorFromCovariance(problem: Problem, Cm: Matrix, m0:
   } else {
     const fd = cholesky(covariance!);
     if (!fd.ok) {
-      throw new NotPositiveDefiniteError('data covariance Cd (problem.data.covariance)', fd.pivot, 'it must be symmetric positive definite');
+      throw new NotPositiveDefiniteError(
+        'data covariance Cd (problem.data.covariance)',
+        fd.pivot,
+        'it must be symmetric positive definite',
+      );
     }
     Ld = fd.factor;
     const cd = covariance!.data;
@@ -281,7 +285,11 @@ export function posteriorRealisations(state: PosteriorFactors, count: number, se
   const m = L.rows;
   const fm = cholesky(Cm);
   if (!fm.ok) {
-    throw new NotPositiveDefiniteError('prior covariance Cm', fm.pivot, 'posterior realisations need a prior that factors: add a small nugget');
+    throw new NotPositiveDefiniteError(
+      'prior covariance Cm',
+      fm.pivot,
+      'posterior realisations need a prior that factors: add a small nugget',
+    );
   }
   const Lm = fm.factor.data;
   const rng = new Random(seed);

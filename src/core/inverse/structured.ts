@@ -24,7 +24,14 @@ import { InputError, NotPositiveDefiniteError } from '../errors.ts';
 import { cellCount } from '../grid/grid.ts';
 import { cholesky, choleskySolve, solveLower, solveLowerMatrix } from '../linalg/cholesky.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
-import { addOperatorRow, applyOperator, operatorRowExtents, operatorRowInto, operatorTimesTransposedSymmetric, type Operator } from '../linalg/operator.ts';
+import {
+  addOperatorRow,
+  applyOperator,
+  operatorRowExtents,
+  operatorRowInto,
+  operatorTimesTransposedSymmetric,
+  type Operator,
+} from '../linalg/operator.ts';
 import { CirculantProduct, nonStationaryReason } from '../fft/covariance.ts';
 import { meanVector, validatePrior } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
@@ -234,7 +241,12 @@ export function matchingSpectra(holder: StructuredProblem, cp: CirculantProduct,
 }
 
 /** Keeps `spectra` (every pair's, saved by {@link computeBtPairs}) on the holder for this padding and profile. */
-export function keepSpectra(holder: StructuredProblem, cp: CirculantProduct, s: readonly number[] | undefined, spectra: Float64Array[]): void {
+export function keepSpectra(
+  holder: StructuredProblem,
+  cp: CirculantProduct,
+  s: readonly number[] | undefined,
+  spectra: Float64Array[],
+): void {
   holder.cache = { px: cp.px, py: cp.py, profile: s === undefined ? null : Float64Array.from(s), spectra };
 }
 
@@ -294,7 +306,8 @@ export function completeStructuredPosterior(
   let Ld: Matrix | undefined;
   if (problem.data.covariance !== undefined) {
     const fd = cholesky(problem.data.covariance);
-    if (!fd.ok) throw new NotPositiveDefiniteError('problem.data.covariance', fd.pivot, 'the data covariance must be symmetric positive definite');
+    if (!fd.ok)
+      throw new NotPositiveDefiniteError('problem.data.covariance', fd.pivot, 'the data covariance must be symmetric positive definite');
     Ld = fd.factor;
   }
   const m0 = meanVector(grid, prior);
@@ -445,4 +458,3 @@ function diagonalMatrix(v: ArrayLike<number>): Matrix {
   for (let i = 0; i < k; i++) out.data[i * k + i] = v[i];
   return out;
 }
-

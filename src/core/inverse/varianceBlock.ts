@@ -44,22 +44,64 @@ export function structuredVarianceBlock(
       const o2 = o1 + w;
       const o3 = o2 + w;
       for (let j = 0; j < w4; j += 4) {
-        let a00 = x[o0 + j], a01 = x[o0 + j + 1], a02 = x[o0 + j + 2], a03 = x[o0 + j + 3];
-        let a10 = x[o1 + j], a11 = x[o1 + j + 1], a12 = x[o1 + j + 2], a13 = x[o1 + j + 3];
-        let a20 = x[o2 + j], a21 = x[o2 + j + 1], a22 = x[o2 + j + 2], a23 = x[o2 + j + 3];
-        let a30 = x[o3 + j], a31 = x[o3 + j + 1], a32 = x[o3 + j + 2], a33 = x[o3 + j + 3];
+        let a00 = x[o0 + j],
+          a01 = x[o0 + j + 1],
+          a02 = x[o0 + j + 2],
+          a03 = x[o0 + j + 3];
+        let a10 = x[o1 + j],
+          a11 = x[o1 + j + 1],
+          a12 = x[o1 + j + 2],
+          a13 = x[o1 + j + 3];
+        let a20 = x[o2 + j],
+          a21 = x[o2 + j + 1],
+          a22 = x[o2 + j + 2],
+          a23 = x[o2 + j + 3];
+        let a30 = x[o3 + j],
+          a31 = x[o3 + j + 1],
+          a32 = x[o3 + j + 2],
+          a33 = x[o3 + j + 3];
         for (let p = 0, op = j; p < i0; p++, op += w) {
-          const y0 = x[op], y1 = x[op + 1], y2 = x[op + 2], y3 = x[op + 3];
-          const l0 = lt[4 * p], l1 = lt[4 * p + 1], l2 = lt[4 * p + 2], l3 = lt[4 * p + 3];
-          a00 -= l0 * y0; a01 -= l0 * y1; a02 -= l0 * y2; a03 -= l0 * y3;
-          a10 -= l1 * y0; a11 -= l1 * y1; a12 -= l1 * y2; a13 -= l1 * y3;
-          a20 -= l2 * y0; a21 -= l2 * y1; a22 -= l2 * y2; a23 -= l2 * y3;
-          a30 -= l3 * y0; a31 -= l3 * y1; a32 -= l3 * y2; a33 -= l3 * y3;
+          const y0 = x[op],
+            y1 = x[op + 1],
+            y2 = x[op + 2],
+            y3 = x[op + 3];
+          const l0 = lt[4 * p],
+            l1 = lt[4 * p + 1],
+            l2 = lt[4 * p + 2],
+            l3 = lt[4 * p + 3];
+          a00 -= l0 * y0;
+          a01 -= l0 * y1;
+          a02 -= l0 * y2;
+          a03 -= l0 * y3;
+          a10 -= l1 * y0;
+          a11 -= l1 * y1;
+          a12 -= l1 * y2;
+          a13 -= l1 * y3;
+          a20 -= l2 * y0;
+          a21 -= l2 * y1;
+          a22 -= l2 * y2;
+          a23 -= l2 * y3;
+          a30 -= l3 * y0;
+          a31 -= l3 * y1;
+          a32 -= l3 * y2;
+          a33 -= l3 * y3;
         }
-        x[o0 + j] = a00; x[o0 + j + 1] = a01; x[o0 + j + 2] = a02; x[o0 + j + 3] = a03;
-        x[o1 + j] = a10; x[o1 + j + 1] = a11; x[o1 + j + 2] = a12; x[o1 + j + 3] = a13;
-        x[o2 + j] = a20; x[o2 + j + 1] = a21; x[o2 + j + 2] = a22; x[o2 + j + 3] = a23;
-        x[o3 + j] = a30; x[o3 + j + 1] = a31; x[o3 + j + 2] = a32; x[o3 + j + 3] = a33;
+        x[o0 + j] = a00;
+        x[o0 + j + 1] = a01;
+        x[o0 + j + 2] = a02;
+        x[o0 + j + 3] = a03;
+        x[o1 + j] = a10;
+        x[o1 + j + 1] = a11;
+        x[o1 + j + 2] = a12;
+        x[o1 + j + 3] = a13;
+        x[o2 + j] = a20;
+        x[o2 + j + 1] = a21;
+        x[o2 + j + 2] = a22;
+        x[o2 + j + 3] = a23;
+        x[o3 + j] = a30;
+        x[o3 + j + 1] = a31;
+        x[o3 + j + 2] = a32;
+        x[o3 + j + 3] = a33;
       }
       for (let j = w4; j < w; j++) {
         for (let r = 0; r < 4; r++) {

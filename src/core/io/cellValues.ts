@@ -29,10 +29,17 @@ export function parseCellValues(file: string, bytes: Uint8Array, grid: Grid, kin
   if (lower.endsWith('.npy')) {
     const a = parseNpy(file, bytes);
     const s = a.shape;
-    const ok = (s.length === 1 && s[0] === n) || (s.length === 2 && s[0] === n && s[1] === 1) || (s.length === 2 && ny !== undefined && s[0] === ny && s[1] === nx);
+    const ok =
+      (s.length === 1 && s[0] === n) ||
+      (s.length === 2 && s[0] === n && s[1] === 1) ||
+      (s.length === 2 && ny !== undefined && s[0] === ny && s[1] === nx);
     if (!ok) {
       const grid2 = ny !== undefined ? ` or (${ny}, ${nx}) (rows along y)` : '';
-      throw new FileFormatError(file, `must hold shape (${n},)${grid2}: one value per grid cell, got shape (${s.join(', ')}${s.length === 1 ? ',' : ''})`, { field: 'shape' });
+      throw new FileFormatError(
+        file,
+        `must hold shape (${n},)${grid2}: one value per grid cell, got shape (${s.join(', ')}${s.length === 1 ? ',' : ''})`,
+        { field: 'shape' },
+      );
     }
     values = a.data;
     where = (k) => `value ${k} (cell ${k}, zero-based, x fastest)`;
@@ -42,7 +49,10 @@ export function parseCellValues(file: string, bytes: Uint8Array, grid: Grid, kin
       throw new FileFormatError(file, `must have 1 column (one value per grid cell), got ${t.matrix.cols}`, { line: t.rowLines[0] });
     }
     if (t.matrix.rows !== n) {
-      throw new FileFormatError(file, `must have ${n} rows of values (one per grid cell, ${grid.shape.join(' × ')}, x fastest), got ${t.matrix.rows}`);
+      throw new FileFormatError(
+        file,
+        `must have ${n} rows of values (one per grid cell, ${grid.shape.join(' × ')}, x fastest), got ${t.matrix.rows}`,
+      );
     }
     values = t.matrix.data;
     where = (k) => `line ${t.rowLines[k]}`;

@@ -118,10 +118,11 @@ export function csvContentLines(text: string): { line: number; text: string }[] 
 
 function badCell(file: string, line: number, column: number, cell: string): FileFormatError {
   const t = cell.trim();
-  const hint = DECIMAL_COMMA.test(t)
-    ? ' (a decimal comma? write numbers with a dot, e.g. ' + t.replace(',', '.') + ')'
-    : '';
-  return new FileFormatError(file, `line ${line}, column ${column} must be a finite number, got ${formatValue(t)}${hint}`, { line, column });
+  const hint = DECIMAL_COMMA.test(t) ? ' (a decimal comma? write numbers with a dot, e.g. ' + t.replace(',', '.') + ')' : '';
+  return new FileFormatError(file, `line ${line}, column ${column} must be a finite number, got ${formatValue(t)}${hint}`, {
+    line,
+    column,
+  });
 }
 
 /** Parse a numeric CSV file (text or UTF-8 bytes). */
@@ -130,7 +131,16 @@ export function parseCsv(file: string, input: string | Uint8Array, options: CsvO
   const content = csvContentLines(text);
   if (content.length === 0) throw new FileFormatError(file, 'contains no rows of numbers');
   const first = content[0].text.replace(/"([^"]|"")*"/g, ''); // delimiters inside quotes do not count
-  const delimiter = first.includes(';') && first.includes(',') ? ';' : first.includes(',') ? ',' : first.includes('\t') ? '\t' : first.includes(';') ? ';' : ',';
+  const delimiter =
+    first.includes(';') && first.includes(',')
+      ? ';'
+      : first.includes(',')
+        ? ','
+        : first.includes('\t')
+          ? '\t'
+          : first.includes(';')
+            ? ';'
+            : ',';
 
   const split = (row: { line: number; text: string }) => {
     const r = splitLine(row.text, delimiter);
@@ -146,7 +156,8 @@ export function parseCsv(file: string, input: string | Uint8Array, options: CsvO
     header = firstCells.map((c) => c.trim());
     start = 1;
   }
-  if (start >= content.length) throw new FileFormatError(file, `has a header line (line ${content[0].line}) but no rows of numbers`, { line: content[0].line });
+  if (start >= content.length)
+    throw new FileFormatError(file, `has a header line (line ${content[0].line}) but no rows of numbers`, { line: content[0].line });
   const cols = header ? header.length : firstCells.length;
   const widthLine = content[0].line;
   const out = matrix(content.length - start, cols);
@@ -191,7 +202,8 @@ export function csvColumns(file: string, table: CsvTable): Map<string, Float64Ar
   const names = table.header ?? Array.from({ length: cols }, (_, c) => String(c + 1));
   const out = new Map<string, Float64Array>();
   names.forEach((name, c) => {
-    if (out.has(name)) throw new FileFormatError(file, `column name ${JSON.stringify(name)} appears twice in the header`, { line: 1, column: c + 1 });
+    if (out.has(name))
+      throw new FileFormatError(file, `column name ${JSON.stringify(name)} appears twice in the header`, { line: 1, column: c + 1 });
     const col = new Float64Array(rows);
     for (let r = 0; r < rows; r++) col[r] = data[r * cols + c];
     out.set(name, col);
@@ -200,7 +212,8 @@ export function csvColumns(file: string, table: CsvTable): Map<string, Float64Ar
 }
 
 function quoteCell(name: string): string {
-  if (looksNumeric(name) || name.trim() === '') throw new RangeError(`writeCsv: header name ${JSON.stringify(name)} would read as a number or an empty cell`);
+  if (looksNumeric(name) || name.trim() === '')
+    throw new RangeError(`writeCsv: header name ${JSON.stringify(name)} would read as a number or an empty cell`);
   return /[",;\t\n\r]/.test(name) || name.trim() !== name ? `"${name.replace(/"/g, '""')}"` : name;
 }
 

@@ -57,19 +57,27 @@ export function parseGeometryCsv(
   const names = table.header.map((h) => h.toLowerCase());
   const columns = csvColumns(file, { ...table, header: names });
   const same = (want: readonly string[]) => want.length === names.length && want.every((w) => names.includes(w));
-  const layout = dim === 1 ? (same(LAYOUTS.points1) ? 'points1' : null) : same(LAYOUTS.points2) ? 'points2' : same(LAYOUTS.paths) ? 'paths' : null;
+  const layout =
+    dim === 1 ? (same(LAYOUTS.points1) ? 'points1' : null) : same(LAYOUTS.points2) ? 'points2' : same(LAYOUTS.paths) ? 'paths' : null;
   if (layout === null) {
     const pathsOn1D = dim === 1 && same(LAYOUTS.paths) ? ' (paths need a 2-D grid)' : '';
-    throw new FileFormatError(file, `header (line ${line}) must name the columns ${expected}${pathsOn1D}, got ${formatValue(table.header.join(','))}`, { line });
+    throw new FileFormatError(
+      file,
+      `header (line ${line}) must name the columns ${expected}${pathsOn1D}, got ${formatValue(table.header.join(','))}`,
+      { line },
+    );
   }
   const rows = table.matrix.rows;
   if (rows !== m) {
-    throw new FileFormatError(file, `must have ${m} rows of coordinates (one per datum in ${dataFile}), got ${rows}`, { line: table.rowLines[table.rowLines.length - 1] });
+    throw new FileFormatError(file, `must have ${m} rows of coordinates (one per datum in ${dataFile}), got ${rows}`, {
+      line: table.rowLines[table.rowLines.length - 1],
+    });
   }
   const pick = (want: readonly string[]) => columnsMatrix(want.map((w) => columns.get(w)!));
   if (layout !== 'paths') return { geometry: { kind: 'points', positions: pick(LAYOUTS[layout]) }, warnings: [] };
   const geometry: DataGeometry = { kind: 'paths', sources: pick(['sx', 'sy']), receivers: pick(['rx', 'ry']) };
   const missing = pathsMissingGrid(grid, geometry);
-  const warnings: FileWarning[] = missing.length > 0 ? [{ file, message: `${file}: ${pathsMissWarning(grid, missing, m, FORM_WORDS)}` }] : [];
+  const warnings: FileWarning[] =
+    missing.length > 0 ? [{ file, message: `${file}: ${pathsMissWarning(grid, missing, m, FORM_WORDS)}` }] : [];
   return { geometry, warnings };
 }

@@ -15,7 +15,15 @@ export {
   type ProblemFileResult,
   type OperatorPlacement,
 } from './problemFile.ts';
-export { parsePriorFile, writePriorFile, priorToJson, checkPriorForGrid, PRIOR_KIND, PRIOR_VERSION, type PriorFileResult } from './priorFile.ts';
+export {
+  parsePriorFile,
+  writePriorFile,
+  priorToJson,
+  checkPriorForGrid,
+  PRIOR_KIND,
+  PRIOR_VERSION,
+  type PriorFileResult,
+} from './priorFile.ts';
 export { parseCsv, csvColumns, writeCsv, type CsvTable, type CsvOptions } from './csv.ts';
 export { parseMatrixMarket, writeMatrixMarket, writeMatrixMarketArray, writeMatrixMarketCoordinate } from './matrixMarket.ts';
 export { parseNpy, npyToMatrix, writeNpy, writeNpyMatrix, type NpyArray } from './npy.ts';

@@ -139,7 +139,10 @@ export function locateJsonError(text: string): { pos: number; reason: string } |
     }
   };
   class Stop {
-    constructor(readonly pos: number, readonly reason: string) {}
+    constructor(
+      readonly pos: number,
+      readonly reason: string,
+    ) {}
   }
   const fail = (reason: string, at = p): never => {
     throw new Stop(at, reason);
@@ -382,7 +385,10 @@ export class JsonReader {
     for (const key of Object.keys(obj)) {
       if (!known.includes(key)) {
         unknown.push(key);
-        const guess = suggestField(key, known.filter((k) => obj[k] === undefined));
+        const guess = suggestField(
+          key,
+          known.filter((k) => obj[k] === undefined),
+        );
         this.warn(
           joinField(field, key),
           `unknown field ${joinField(field, key)} ignored (${guess ? `did you mean ${guess}? ` : ''}known here: ${known.join(', ')})`,

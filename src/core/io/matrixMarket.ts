@@ -39,18 +39,28 @@ export function parseMatrixMarket(file: string, input: string | Uint8Array): Ope
   const banner = (lines[0] ?? '').replace(/\r$/, '').trim();
   const words = banner.split(/\s+/);
   if (words[0]?.toLowerCase() !== '%%matrixmarket') {
-    throw new FileFormatError(file, `line 1 must be a banner "%%MatrixMarket matrix coordinate|array real general", got ${formatValue(banner)}`, { line: 1 });
+    throw new FileFormatError(
+      file,
+      `line 1 must be a banner "%%MatrixMarket matrix coordinate|array real general", got ${formatValue(banner)}`,
+      { line: 1 },
+    );
   }
   const [, object, format, field, symmetry] = words.map((w) => w.toLowerCase());
   if (words.length !== 5) {
-    throw new FileFormatError(file, `line 1 must have 5 words "%%MatrixMarket matrix <format> <field> <symmetry>", got ${words.length}`, { line: 1 });
+    throw new FileFormatError(file, `line 1 must have 5 words "%%MatrixMarket matrix <format> <field> <symmetry>", got ${words.length}`, {
+      line: 1,
+    });
   }
   if (object !== 'matrix') throw new FileFormatError(file, `line 1: object must be "matrix", got ${formatValue(words[1])}`, { line: 1 });
   if (format !== 'coordinate' && format !== 'array') {
     throw new FileFormatError(file, `line 1: format must be "coordinate" or "array", got ${formatValue(words[2])}`, { line: 1 });
   }
   if (field !== 'real' && field !== 'integer') {
-    throw new FileFormatError(file, `line 1: field must be "real" or "integer" (complex and pattern matrices are not supported), got ${formatValue(words[3])}`, { line: 1 });
+    throw new FileFormatError(
+      file,
+      `line 1: field must be "real" or "integer" (complex and pattern matrices are not supported), got ${formatValue(words[3])}`,
+      { line: 1 },
+    );
   }
   if (symmetry !== 'general' && symmetry !== 'symmetric') {
     throw new FileFormatError(file, `line 1: symmetry must be "general" or "symmetric", got ${formatValue(words[4])}`, { line: 1 });
@@ -71,14 +81,22 @@ export function parseMatrixMarket(file: string, input: string | Uint8Array): Ope
   const integerToken = (tok: string | undefined, line: number, column: number, what: string, min: number, max: number): number => {
     const v = tok !== undefined && /^[+]?\d+$/.test(tok) ? Number(tok) : NaN;
     if (!(v >= min && v <= max)) {
-      throw new FileFormatError(file, `line ${line}, entry ${column}: ${what} must be an integer from ${min} to ${max}, got ${formatValue(tok)}`, { line, column });
+      throw new FileFormatError(
+        file,
+        `line ${line}, entry ${column}: ${what} must be an integer from ${min} to ${max}, got ${formatValue(tok)}`,
+        { line, column },
+      );
     }
     return v;
   };
   const valueToken = (tok: string | undefined, line: number, column: number): number => {
     const v = tok !== undefined && NUMBER_TOKEN.test(tok) ? parseNumberCell(tok) : null;
     if (v === null || (field === 'integer' && !Number.isInteger(v))) {
-      throw new FileFormatError(file, `line ${line}, entry ${column}: value must be a finite ${field === 'integer' ? 'integer' : 'number'}, got ${formatValue(tok)}`, { line, column });
+      throw new FileFormatError(
+        file,
+        `line ${line}, entry ${column}: value must be a finite ${field === 'integer' ? 'integer' : 'number'}, got ${formatValue(tok)}`,
+        { line, column },
+      );
     }
     return v;
   };
@@ -87,7 +105,11 @@ export function parseMatrixMarket(file: string, input: string | Uint8Array): Ope
   if (!size) throw new FileFormatError(file, 'has no size line after the banner');
   const want = format === 'coordinate' ? 3 : 2;
   if (size.tokens.length !== want) {
-    throw new FileFormatError(file, `line ${size.line}: size line must be ${format === 'coordinate' ? '"rows columns entries"' : '"rows columns"'}, got ${formatValue(size.tokens.join(' '))}`, { line: size.line });
+    throw new FileFormatError(
+      file,
+      `line ${size.line}: size line must be ${format === 'coordinate' ? '"rows columns entries"' : '"rows columns"'}, got ${formatValue(size.tokens.join(' '))}`,
+      { line: size.line },
+    );
   }
   const rows = integerToken(size.tokens[0], size.line, 1, 'rows', 1, MAX_MATRIX_MARKET_DIMENSION);
   const cols = integerToken(size.tokens[1], size.line, 2, 'columns', 1, MAX_MATRIX_MARKET_DIMENSION);
@@ -104,13 +126,19 @@ export function parseMatrixMarket(file: string, input: string | Uint8Array): Ope
       const row = next();
       if (!row) throw new FileFormatError(file, `ends after ${e} of the ${count} entries announced on line ${size.line}`);
       if (row.tokens.length !== 3) {
-        throw new FileFormatError(file, `line ${row.line} must be "row column value", got ${formatValue(row.tokens.join(' '))}`, { line: row.line });
+        throw new FileFormatError(file, `line ${row.line} must be "row column value", got ${formatValue(row.tokens.join(' '))}`, {
+          line: row.line,
+        });
       }
       const i = integerToken(row.tokens[0], row.line, 1, 'row', 1, rows) - 1;
       const j = integerToken(row.tokens[1], row.line, 2, 'column', 1, cols) - 1;
       const a = valueToken(row.tokens[2], row.line, 3);
       if (symmetric && j > i) {
-        throw new FileFormatError(file, `line ${row.line}: a symmetric file stores the lower triangle only, got row ${i + 1} < column ${j + 1}`, { line: row.line });
+        throw new FileFormatError(
+          file,
+          `line ${row.line}: a symmetric file stores the lower triangle only, got row ${i + 1} < column ${j + 1}`,
+          { line: row.line },
+        );
       }
       ri.push(i);
       ci.push(j);
@@ -122,7 +150,10 @@ export function parseMatrixMarket(file: string, input: string | Uint8Array): Ope
       }
     }
     const extra = next();
-    if (extra) throw new FileFormatError(file, `line ${extra.line}: more entries than the ${count} announced on line ${size.line}`, { line: extra.line });
+    if (extra)
+      throw new FileFormatError(file, `line ${extra.line}: more entries than the ${count} announced on line ${size.line}`, {
+        line: extra.line,
+      });
     return { kind: 'sparse', matrix: sparseFromCoordinates(rows, cols, ri, ci, v) };
   }
 
@@ -132,13 +163,20 @@ export function parseMatrixMarket(file: string, input: string | Uint8Array): Ope
   for (let row = next(); row; row = next()) {
     for (let t = 0; t < row.tokens.length; t++) {
       if (values.length >= expected) {
-        throw new FileFormatError(file, `line ${row.line}: more values than the ${expected} of a ${rows} × ${cols} ${symmetric ? 'symmetric ' : ''}array`, { line: row.line });
+        throw new FileFormatError(
+          file,
+          `line ${row.line}: more values than the ${expected} of a ${rows} × ${cols} ${symmetric ? 'symmetric ' : ''}array`,
+          { line: row.line },
+        );
       }
       values.push(valueToken(row.tokens[t], row.line, t + 1));
     }
   }
   if (values.length !== expected) {
-    throw new FileFormatError(file, `has ${values.length} values, expected ${expected} for a ${rows} × ${cols} ${symmetric ? 'symmetric ' : ''}array`);
+    throw new FileFormatError(
+      file,
+      `has ${values.length} values, expected ${expected} for a ${rows} × ${cols} ${symmetric ? 'symmetric ' : ''}array`,
+    );
   }
   const out = matrix(rows, cols);
   let p = 0;

@@ -38,7 +38,10 @@ function parseHeaderDict(file: string, header: string): Map<string, PyValue> {
   let p = 0;
   const n = header.length;
   const bad = (what: string): never => {
-    throw new FileFormatError(file, `header is not a valid .npy header dict: ${what} at character ${p + 1} of ${JSON.stringify(header.trim().slice(0, 200))}`);
+    throw new FileFormatError(
+      file,
+      `header is not a valid .npy header dict: ${what} at character ${p + 1} of ${JSON.stringify(header.trim().slice(0, 200))}`,
+    );
   };
   const ws = () => {
     while (p < n && /\s/.test(header[p])) p++;
@@ -142,7 +145,9 @@ export function parseNpy(file: string, bytes: Uint8Array, options: NpyReadOption
   const headerStart = 8 + lengthBytes;
   const dataStart = headerStart + headerLength;
   if (dataStart > bytes.byteLength) {
-    throw new FileFormatError(file, `header length ${headerLength} runs past the end of the file (${bytes.byteLength} bytes)`, { offset: 8 });
+    throw new FileFormatError(file, `header length ${headerLength} runs past the end of the file (${bytes.byteLength} bytes)`, {
+      offset: 8,
+    });
   }
   const headerBytes = bytes.subarray(headerStart, dataStart);
   let header: string;
@@ -156,7 +161,9 @@ export function parseNpy(file: string, bytes: Uint8Array, options: NpyReadOption
     header = Array.from(headerBytes, (b) => String.fromCharCode(b)).join('');
   }
   if (!header.endsWith('\n')) {
-    throw new FileFormatError(file, 'header must end with a line break (the file is truncated or not written by NumPy)', { offset: dataStart });
+    throw new FileFormatError(file, 'header must end with a line break (the file is truncated or not written by NumPy)', {
+      offset: dataStart,
+    });
   }
   const dict = parseHeaderDict(file, header);
   for (const key of dict.keys()) {
@@ -168,15 +175,24 @@ export function parseNpy(file: string, bytes: Uint8Array, options: NpyReadOption
   const fortran = dict.get('fortran_order');
   const shapeValue = dict.get('shape');
   if (typeof descr !== 'string') {
-    throw new FileFormatError(file, `header descr must be a float64 or float32 type ('<f8', '>f8', '<f4', '>f4'), got ${typeof descr === 'object' ? 'a structured type' : formatValue(descr)}`, { field: 'descr' });
+    throw new FileFormatError(
+      file,
+      `header descr must be a float64 or float32 type ('<f8', '>f8', '<f4', '>f4'), got ${typeof descr === 'object' ? 'a structured type' : formatValue(descr)}`,
+      { field: 'descr' },
+    );
   }
   const m = /^([<>])f([48])$/.exec(descr);
   if (!m) {
-    throw new FileFormatError(file, `header descr must be a float64 or float32 type ('<f8', '>f8', '<f4', '>f4'), got ${formatValue(descr)}`, { field: 'descr' });
+    throw new FileFormatError(
+      file,
+      `header descr must be a float64 or float32 type ('<f8', '>f8', '<f4', '>f4'), got ${formatValue(descr)}`,
+      { field: 'descr' },
+    );
   }
   const little = m[1] === '<';
   const itemSize = m[2] === '8' ? 8 : 4;
-  if (typeof fortran !== 'boolean') throw new FileFormatError(file, `header fortran_order must be True or False, got ${formatValue(fortran)}`, { field: 'fortran_order' });
+  if (typeof fortran !== 'boolean')
+    throw new FileFormatError(file, `header fortran_order must be True or False, got ${formatValue(fortran)}`, { field: 'fortran_order' });
   if (!Array.isArray(shapeValue)) throw new FileFormatError(file, 'header shape must be a tuple of integers', { field: 'shape' });
   const shape = shapeValue;
   if (shape.length > 2) {
@@ -218,7 +234,11 @@ export function parseNpy(file: string, bytes: Uint8Array, options: NpyReadOption
 /** A 2-D .npy array as a Matrix (1-D arrays are refused: a row or a column would be a guess). */
 export function npyToMatrix(file: string, a: NpyArray): Matrix {
   if (a.shape.length !== 2) {
-    throw new FileFormatError(file, `must hold a 2-dimensional array, got shape (${a.shape.join(', ')}${a.shape.length === 1 ? ',' : ''})`, { field: 'shape' });
+    throw new FileFormatError(
+      file,
+      `must hold a 2-dimensional array, got shape (${a.shape.join(', ')}${a.shape.length === 1 ? ',' : ''})`,
+      { field: 'shape' },
+    );
   }
   return matrix(a.shape[0], a.shape[1], a.data);
 }

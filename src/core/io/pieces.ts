@@ -56,7 +56,8 @@ type Format = 'csv' | 'mtx' | 'npy';
 
 function formatOf(name: string, allowed: readonly Format[], what: string): Format {
   const lower = name.toLowerCase();
-  const f: Format | null = lower.endsWith('.csv') || lower.endsWith('.txt') ? 'csv' : lower.endsWith('.mtx') ? 'mtx' : lower.endsWith('.npy') ? 'npy' : null;
+  const f: Format | null =
+    lower.endsWith('.csv') || lower.endsWith('.txt') ? 'csv' : lower.endsWith('.mtx') ? 'mtx' : lower.endsWith('.npy') ? 'npy' : null;
   if (f === null || !allowed.includes(f)) {
     const names = allowed.map((a) => (a === 'mtx' ? '.mtx (Matrix Market)' : `.${a}`)).join(', ');
     throw new FileFormatError(name, `cannot be read as ${what}: the name must end in ${names}`);
@@ -84,7 +85,9 @@ export function parseDataCsv(file: string, input: string | Uint8Array): DataFile
     const find = (names: string[]) => {
       const hits = lower.flatMap((h, c) => (names.includes(h) ? [c] : []));
       if (hits.length > 1) {
-        throw new FileFormatError(file, `line ${headerLine} names ${hits.length} columns ${names.join('/')}, expected one`, { line: headerLine });
+        throw new FileFormatError(file, `line ${headerLine} names ${hits.length} columns ${names.join('/')}, expected one`, {
+          line: headerLine,
+        });
       }
       return hits[0] ?? null;
     };
@@ -100,7 +103,9 @@ export function parseDataCsv(file: string, input: string | Uint8Array): DataFile
     sc = find(SIGMA_NAMES);
   } else {
     if (cols > 2) {
-      throw new FileFormatError(file, `without a header must have 1 column (value) or 2 columns (value, sigma), got ${cols} columns`, { line: lines[0] });
+      throw new FileFormatError(file, `without a header must have 1 column (value) or 2 columns (value, sigma), got ${cols} columns`, {
+        line: lines[0],
+      });
     }
     if (cols === 2 && table.delimiter === ',') {
       // "1,25" with no decimal point anywhere: value 1, sigma 25, or 1.25 with a decimal comma?
@@ -127,7 +132,10 @@ export function parseDataCsv(file: string, input: string | Uint8Array): DataFile
       const s = data[i * cols + sc];
       if (!(s > 0)) {
         const line = lines[i];
-        throw new FileFormatError(file, `line ${line}, column ${sc + 1} (sigma) must be > 0, got ${formatValue(s)}`, { line, column: sc + 1 });
+        throw new FileFormatError(file, `line ${line}, column ${sc + 1} (sigma) must be > 0, got ${formatValue(s)}`, {
+          line,
+          column: sc + 1,
+        });
       }
       sigma[i] = s;
     }
@@ -149,7 +157,8 @@ export function parseDataNpy(file: string, bytes: Uint8Array): DataFileResult {
     for (let i = 0; i < m; i++) {
       values[i] = a.data[2 * i];
       const s = a.data[2 * i + 1];
-      if (!(s > 0)) throw new FileFormatError(file, `row ${i}, column 1 (sigma) must be > 0, got ${formatValue(s)}`, { field: `[${i}, 1]` });
+      if (!(s > 0))
+        throw new FileFormatError(file, `row ${i}, column 1 (sigma) must be > 0, got ${formatValue(s)}`, { field: `[${i}, 1]` });
       sigma[i] = s;
     }
     return { values, sigma, warnings: [] };
@@ -301,10 +310,7 @@ export function assembleProblem(input: PiecesInput, warnings?: FileWarning[]): P
     );
   }
   if (g.rows !== m) {
-    throw new FileFormatError(
-      input.operator.name,
-      `must have ${m} rows (one per datum in ${input.data.name}), got ${g.rows}`,
-    );
+    throw new FileFormatError(input.operator.name, `must have ${m} rows (one per datum in ${input.data.name}), got ${g.rows}`);
   }
   let data: DataSpec;
   if (input.covariance) {
@@ -334,4 +340,3 @@ export function assembleProblem(input: PiecesInput, warnings?: FileWarning[]): P
   checkProblemScales(input.data.name, problem, input.operator.name);
   return problem;
 }
-

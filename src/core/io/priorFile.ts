@@ -97,7 +97,12 @@ function readTerm(r: JsonReader, value: unknown, k: number): Term {
     lengths = three ? [l[0], l[1], l[2]] : [l[0], l[1]];
     if (obj.angle !== undefined) angle = readAngle(r, obj.angle, `${f}.angle`);
     if (obj.angles !== undefined) {
-      if (!three) r.fail(`${f}.angles`, 'absent with two lengths (angles [a1, a2, a3] go with lengths [l1, l2, l3] in 3-D; give angle in 2-D)', obj.angles);
+      if (!three)
+        r.fail(
+          `${f}.angles`,
+          'absent with two lengths (angles [a1, a2, a3] go with lengths [l1, l2, l3] in 3-D; give angle in 2-D)',
+          obj.angles,
+        );
       const a = r.array(obj.angles, `${f}.angles`, 3, 'angles in degrees').map((v, k) => readAngle(r, v, `${f}.angles[${k}]`));
       angles = [a[0], a[1], a[2]];
     }
@@ -119,7 +124,9 @@ function readTerm(r: JsonReader, value: unknown, k: number): Term {
   }
   // Only the fields present (no defaults filled in), so that the file round-trips exactly.
   const optional = { ...(angle !== undefined && { angle }), ...(nu !== undefined && { nu }) };
-  return lengths !== undefined ? { kernel, variance, lengths, ...(angles !== undefined && { angles }), ...optional } : { kernel, variance, length, ...optional };
+  return lengths !== undefined
+    ? { kernel, variance, lengths, ...(angles !== undefined && { angles }), ...optional }
+    : { kernel, variance, length, ...optional };
 }
 
 /** A parsed prior object (already JSON-decoded) → PriorSpec; `r` collects the warnings. */
@@ -159,10 +166,16 @@ export function checkPriorForGrid(file: string, prior: PriorSpec, grid: Grid): v
   }
   prior.terms.forEach((t, k) => {
     if (t.lengths && dim === 1) {
-      throw new FileFormatError(file, `terms[${k}].lengths needs a 2-D or 3-D grid; on this 1-D grid give terms[${k}].length`, { field: `terms[${k}].lengths` });
+      throw new FileFormatError(file, `terms[${k}].lengths needs a 2-D or 3-D grid; on this 1-D grid give terms[${k}].length`, {
+        field: `terms[${k}].lengths`,
+      });
     }
     if (t.lengths && t.lengths.length !== dim) {
-      throw new FileFormatError(file, `terms[${k}].lengths has ${t.lengths.length} lengths; this ${dim}-D grid needs ${dim} (or one length)`, { field: `terms[${k}].lengths` });
+      throw new FileFormatError(
+        file,
+        `terms[${k}].lengths has ${t.lengths.length} lengths; this ${dim}-D grid needs ${dim} (or one length)`,
+        { field: `terms[${k}].lengths` },
+      );
     }
   });
 }

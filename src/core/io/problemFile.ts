@@ -78,12 +78,16 @@ function readGrid(r: JsonReader, value: unknown): Grid {
   const dim = shape.length;
   const cells = shape.reduce((a, b) => a * b, 1);
   if (cells > MAX_CELLS) r.fail('grid.shape', `at most ${MAX_CELLS} cells in all`, `${shape.join(' × ')} = ${cells}`);
-  const spacing = r.numbers(r.required(g, 'grid', 'spacing', ['[dx]', '[dx, dy]', '[dx, dy, dz]'][dim - 1]), 'grid.spacing', dim, { gt: 0 });
+  const spacing = r.numbers(r.required(g, 'grid', 'spacing', ['[dx]', '[dx, dy]', '[dx, dy, dz]'][dim - 1]), 'grid.spacing', dim, {
+    gt: 0,
+  });
   const grid: { -readonly [K in keyof Grid]: Grid[K] } = { shape, spacing };
   if (g.origin !== undefined) grid.origin = r.numbers(g.origin, 'grid.origin', dim);
   if (g.unit !== undefined) grid.unit = r.string(g.unit, 'grid.unit');
   if (g.axes !== undefined) {
-    const names = r.array(g.axes, 'grid.axes', dim, dim === 1 ? 'name (a string)' : 'names (strings)').map((a, k) => r.string(a, `grid.axes[${k}]`).trim());
+    const names = r
+      .array(g.axes, 'grid.axes', dim, dim === 1 ? 'name (a string)' : 'names (strings)')
+      .map((a, k) => r.string(a, `grid.axes[${k}]`).trim());
     names.forEach((a, k) => {
       if (a === '' || a.length > AXIS_NAME_MAX) r.fail(`grid.axes[${k}]`, `a name of 1 to ${AXIS_NAME_MAX} characters`, a);
     });
@@ -136,7 +140,8 @@ function readCoordinates(r: JsonReader, value: unknown, field: string, m: number
   if (rows.length !== m) r.fail(field, `an array of ${m} rows ${words} (one per datum in data.values)`, rows);
   for (let k = 0; k < m; k++) {
     const row = rows[k];
-    if (!Array.isArray(row) || row.length !== dim) r.fail(`${field}[${k}]`, `${words}: an array of ${dim} number${dim === 1 ? '' : 's'}`, row);
+    if (!Array.isArray(row) || row.length !== dim)
+      r.fail(`${field}[${k}]`, `${words}: an array of ${dim} number${dim === 1 ? '' : 's'}`, row);
   }
   return r.matrixRows(rows, field, m, dim);
 }
@@ -157,8 +162,12 @@ function readGeometry(r: JsonReader, d: Record<string, unknown>, grid: Grid, m: 
     r.fail(field, 'absent on a 1-D grid (paths need a 2-D grid; give data.positions [[x], …] for point data)', d.sources ?? d.receivers);
   }
   const words = coordinateWords(grid, 2);
-  for (const [k, other] of [['sources', 'receivers'], ['receivers', 'sources']] as const) {
-    if (d[k] === undefined) r.fail(`data.${k}`, `an array of ${m} rows ${words} (given with data.${other}: each path has both ends)`, undefined);
+  for (const [k, other] of [
+    ['sources', 'receivers'],
+    ['receivers', 'sources'],
+  ] as const) {
+    if (d[k] === undefined)
+      r.fail(`data.${k}`, `an array of ${m} rows ${words} (given with data.${other}: each path has both ends)`, undefined);
   }
   const geometry: DataGeometry = {
     kind: 'paths',
@@ -194,7 +203,11 @@ function checkDataCovariance(r: JsonReader, c: Matrix): void {
   switch (defect.kind) {
     case 'asymmetric': {
       const { row: i, col: j } = defect;
-      r.fail(`data.covariance[${i}][${j}]`, `equal to data.covariance[${j}][${i}] = ${defect.mirror} (the covariance must be symmetric)`, defect.value);
+      r.fail(
+        `data.covariance[${i}][${j}]`,
+        `equal to data.covariance[${j}][${i}] = ${defect.mirror} (the covariance must be symmetric)`,
+        defect.value,
+      );
       break;
     }
     case 'not-positive-definite':
@@ -235,7 +248,12 @@ function readOperator(r: JsonReader, value: unknown, m: number, n: number, optio
     const values = r.numbers(r.required(s, 'operator.sparse', 'values', 'an array of numbers'), 'operator.sparse.values');
     const k = values.length;
     const ri = r.array(r.required(s, 'operator.sparse', 'rows', `an array of ${k} row indices`), 'operator.sparse.rows', k, 'row indices');
-    const ci = r.array(r.required(s, 'operator.sparse', 'cols', `an array of ${k} column indices`), 'operator.sparse.cols', k, 'column indices');
+    const ci = r.array(
+      r.required(s, 'operator.sparse', 'cols', `an array of ${k} column indices`),
+      'operator.sparse.cols',
+      k,
+      'column indices',
+    );
     const rows = ri.map((v, p) => readIndex(r, v, 'operator.sparse.rows', p, m, 'datum index'));
     const cols = ci.map((v, p) => readIndex(r, v, 'operator.sparse.cols', p, n, 'cell index'));
     return { kind: 'sparse', matrix: sparseFromCoordinates(m, n, rows, cols, values) };
@@ -245,13 +263,17 @@ function readOperator(r: JsonReader, value: unknown, m: number, n: number, optio
   const format = lower.endsWith('.csv') ? 'csv' : lower.endsWith('.mtx') ? 'mtx' : lower.endsWith('.npy') ? 'npy' : null;
   if (!format) r.fail('operator.file', 'the name of a .csv, .mtx (Matrix Market) or .npy file', name);
   if (!options.readSibling) {
-    throw new FileFormatError(r.file, `operator.file ${formatValue(name)} cannot be read here (no access to files next to ${r.file})`, { field: 'operator.file' });
+    throw new FileFormatError(r.file, `operator.file ${formatValue(name)} cannot be read here (no access to files next to ${r.file})`, {
+      field: 'operator.file',
+    });
   }
   let bytes: Uint8Array;
   try {
     bytes = options.readSibling(name);
   } catch (e) {
-    throw new FileFormatError(r.file, `operator.file ${formatValue(name)} could not be read: ${(e as Error).message}`, { field: 'operator.file' });
+    throw new FileFormatError(r.file, `operator.file ${formatValue(name)} could not be read: ${(e as Error).message}`, {
+      field: 'operator.file',
+    });
   }
   const sibling = baseName(name);
   let g: Operator;
@@ -289,7 +311,11 @@ function readOperator(r: JsonReader, value: unknown, m: number, n: number, optio
  */
 export function checkProblemScales(file: string, problem: Problem, operatorField = 'operator'): void {
   const fail = (field: string, expected: string, v: number): never => {
-    throw new FileFormatError(file, `${field} must be ${expected} (results at this scale cannot be computed in double precision; change the unit), got ${formatValue(v)}`, { field });
+    throw new FileFormatError(
+      file,
+      `${field} must be ${expected} (results at this scale cannot be computed in double precision; change the unit), got ${formatValue(v)}`,
+      { field },
+    );
   };
   const d = problem.data;
   d.values.forEach((v, i) => {
@@ -410,4 +436,3 @@ export function writeProblemFile(problem: Problem, placement: OperatorPlacement 
 export function matrixRowsJson(m: Matrix): number[][] {
   return Array.from({ length: m.rows }, (_, i) => vec(m.data.subarray(i * m.cols, (i + 1) * m.cols)));
 }
-

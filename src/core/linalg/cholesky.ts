@@ -163,7 +163,8 @@ function checkFactor(L: Matrix, who: string): number {
  */
 export function solveLowerRowsInPlace(L: Matrix, X: Matrix): Matrix {
   const n = checkFactor(L, 'solveLowerRowsInPlace');
-  if (X.cols !== n) throw new RangeError(`solveLowerRowsInPlace: L is ${n}×${n}, right-hand sides are ${X.rows}×${X.cols} (expected ${n} columns)`);
+  if (X.cols !== n)
+    throw new RangeError(`solveLowerRowsInPlace: L is ${n}×${n}, right-hand sides are ${X.rows}×${X.cols} (expected ${n} columns)`);
   const k = X.rows;
   const l = L.data;
   const x = X.data;
@@ -182,7 +183,10 @@ export function solveLowerRowsInPlace(L: Matrix, X: Matrix): Matrix {
  */
 export function solveLowerTransposeRowsInPlace(L: Matrix, X: Matrix): Matrix {
   const n = checkFactor(L, 'solveLowerTransposeRowsInPlace');
-  if (X.cols !== n) throw new RangeError(`solveLowerTransposeRowsInPlace: L is ${n}×${n}, right-hand sides are ${X.rows}×${X.cols} (expected ${n} columns)`);
+  if (X.cols !== n)
+    throw new RangeError(
+      `solveLowerTransposeRowsInPlace: L is ${n}×${n}, right-hand sides are ${X.rows}×${X.cols} (expected ${n} columns)`,
+    );
   const k = X.rows;
   const l = L.data;
   const x = X.data;
@@ -203,7 +207,10 @@ export function solveLowerTransposeRowsInPlace(L: Matrix, X: Matrix): Matrix {
       const o3 = o2 + n;
       for (let i = i1 - 1; i >= i0; i--) {
         const pi = (i - i0) * w - i0;
-        let s0 = x[o0 + i], s1 = x[o1 + i], s2 = x[o2 + i], s3 = x[o3 + i];
+        let s0 = x[o0 + i],
+          s1 = x[o1 + i],
+          s2 = x[o2 + i],
+          s3 = x[o3 + i];
         for (let p = i + 1; p < i1; p++) {
           const lp = pack[pi + p];
           s0 -= x[o0 + p] * lp;

@@ -130,7 +130,10 @@ function symmetricLowerMatvec(a: Float64Array, n: number, s0: number, vec: Float
     const v1 = vec[vo + i + 1];
     const v2 = vec[vo + i + 2];
     const v3 = vec[vo + i + 3];
-    let t0 = 0, t1 = 0, t2 = 0, t3 = 0;
+    let t0 = 0,
+      t1 = 0,
+      t2 = 0,
+      t3 = 0;
     for (let j = s0; j < i; j++) {
       const a0 = a[o0 + j];
       const a1 = a[o1 + j];
@@ -517,11 +520,7 @@ export interface LanczosExtremes {
  * vectors; Golub & Van Loan §10.1 and §10.3, memory). Storage n × iterations; meant for ≤ ~100 steps.
  * The start vector is seeded, so results are reproducible.
  */
-export function lanczosExtremes(
-  applyA: (x: Float64Array) => ArrayLike<number>,
-  n: number,
-  options: LanczosOptions = {},
-): LanczosExtremes {
+export function lanczosExtremes(applyA: (x: Float64Array) => ArrayLike<number>, n: number, options: LanczosOptions = {}): LanczosExtremes {
   if (!Number.isInteger(n) || n < 1) throw new RangeError(`lanczosExtremes: n must be a positive integer, got ${n}`);
   const steps = Math.min(n, Math.max(1, Math.floor(options.iterations ?? 80)));
   const q = new Float64Array(steps * n);

@@ -79,7 +79,14 @@ function gemmNTPanel(
       for (; j + 2 <= jEnd; j += 2) {
         const pb0 = bo + j * ldb + pc;
         const pb1 = pb0 + ldb;
-        let s00 = 0, s01 = 0, s10 = 0, s11 = 0, s20 = 0, s21 = 0, s30 = 0, s31 = 0;
+        let s00 = 0,
+          s01 = 0,
+          s10 = 0,
+          s11 = 0,
+          s20 = 0,
+          s21 = 0,
+          s30 = 0,
+          s31 = 0;
         for (let p = 0; p < kk; p++) {
           const b0 = b[pb0 + p];
           const b1 = b[pb1 + p];
@@ -174,8 +181,15 @@ export function transposeBlock(
  * regions do not overlap (the Cholesky panel below its diagonal block).
  */
 export function trsmRowsLowerT(
-  x: Float64Array, xOff: number, ldx: number, rows: number,
-  l: Float64Array, lOff: number, ldl: number, c0: number, c1: number,
+  x: Float64Array,
+  xOff: number,
+  ldx: number,
+  rows: number,
+  l: Float64Array,
+  lOff: number,
+  ldl: number,
+  c0: number,
+  c1: number,
 ): void {
   let r = 0;
   for (; r + 4 <= rows; r += 4) {
@@ -185,7 +199,10 @@ export function trsmRowsLowerT(
     const o3 = o2 + ldx;
     for (let j = c0; j < c1; j++) {
       const oj = lOff + j * ldl;
-      let s0 = x[o0 + j], s1 = x[o1 + j], s2 = x[o2 + j], s3 = x[o3 + j];
+      let s0 = x[o0 + j],
+        s1 = x[o1 + j],
+        s2 = x[o2 + j],
+        s3 = x[o3 + j];
       for (let p = c0; p < j; p++) {
         const lp = l[oj + p];
         s0 -= x[o0 + p] * lp;

@@ -14,9 +14,7 @@ import { matrix, type Matrix } from './matrix.ts';
 import { denseTimesSparseTranspose, sparseTimesDense, type SparseMatrix } from './sparse.ts';
 import { mirrorLowerToUpper, multiply, multiplyNT, symmetricProductNT, symmetrise } from './products.ts';
 
-export type Operator =
-  | { readonly kind: 'dense'; readonly matrix: Matrix }
-  | { readonly kind: 'sparse'; readonly matrix: SparseMatrix };
+export type Operator = { readonly kind: 'dense'; readonly matrix: Matrix } | { readonly kind: 'sparse'; readonly matrix: SparseMatrix };
 
 export function operatorShape(g: Operator): { rows: number; cols: number } {
   return { rows: g.matrix.rows, cols: g.matrix.cols };
@@ -295,7 +293,10 @@ export function operatorTimesTransposedSymmetric(g: Operator, b: Matrix): Matrix
         const o2 = o1 + n;
         const o3 = o2 + n;
         for (let a = c; a < m; a++) {
-          let s0 = 0, s1 = 0, s2 = 0, s3 = 0;
+          let s0 = 0,
+            s1 = 0,
+            s2 = 0,
+            s3 = 0;
           for (let p = rowPtr[a], p1 = rowPtr[a + 1]; p < p1; p++) {
             const v = values[p];
             const j = colIdx[p];

@@ -10,7 +10,8 @@ import { gemmNTAuto as gemmNT } from '../wasm/gemmNT.ts'; // kernels.ts gemmNT's
 
 /** C = A Bᵀ for A m × k and B n × k (row-major). */
 export function multiplyNT(a: Matrix, b: Matrix): Matrix {
-  if (a.cols !== b.cols) throw new RangeError(`multiplyNT: A is ${a.rows}×${a.cols}, B is ${b.rows}×${b.cols} (expected ${a.cols} columns)`);
+  if (a.cols !== b.cols)
+    throw new RangeError(`multiplyNT: A is ${a.rows}×${a.cols}, B is ${b.rows}×${b.cols} (expected ${a.cols} columns)`);
   const c = matrix(a.rows, b.rows);
   gemmNT(a.rows, b.rows, a.cols, 1, a.data, 0, a.cols, b.data, 0, b.cols, c.data, 0, b.rows);
   return c;

@@ -72,7 +72,8 @@ export function denseToSparse(a: Matrix): SparseMatrix {
 
 /** C = S X for S sparse M × N and X dense N × k: each row of C sums rows of X (contiguous axpys). */
 export function sparseTimesDense(s: SparseMatrix, x: Matrix): Matrix {
-  if (x.rows !== s.cols) throw new RangeError(`sparseTimesDense: S is ${s.rows}×${s.cols}, X is ${x.rows}×${x.cols} (expected ${s.cols} rows)`);
+  if (x.rows !== s.cols)
+    throw new RangeError(`sparseTimesDense: S is ${s.rows}×${s.cols}, X is ${x.rows}×${x.cols} (expected ${s.cols} rows)`);
   const k = x.cols;
   const out = matrix(s.rows, k);
   const c = out.data;
@@ -94,7 +95,8 @@ export function sparseTimesDense(s: SparseMatrix, x: Matrix): Matrix {
  * the entries of row m of S, so each row of A is gathered from while it sits in cache.
  */
 export function denseTimesSparseTranspose(a: Matrix, s: SparseMatrix): Matrix {
-  if (a.cols !== s.cols) throw new RangeError(`denseTimesSparseTranspose: A is ${a.rows}×${a.cols}, S is ${s.rows}×${s.cols} (expected ${a.cols} columns)`);
+  if (a.cols !== s.cols)
+    throw new RangeError(`denseTimesSparseTranspose: A is ${a.rows}×${a.cols}, S is ${s.rows}×${s.cols} (expected ${a.cols} columns)`);
   const n = a.cols;
   const m = s.rows;
   const out = matrix(a.rows, m);

@@ -97,14 +97,22 @@ function productsInto(
   const cp = product ?? new CirculantProduct(task.grid, task.prior);
   const s = task.prior.stdProfile;
   const c = state.cache;
-  const hit = c !== null && c.token === task.token && c.px === cp.px && c.py === cp.py && sameValues(c.profile, s) && sameValues(c.rows, task.rows);
+  const hit =
+    c !== null && c.token === task.token && c.px === cp.px && c.py === cp.py && sameValues(c.profile, s) && sameValues(c.rows, task.rows);
   if (!hit) state.cache = null;
   const pairs = Math.ceil(task.rows.length / 2);
   const fits = pairs * cp.columnSpectrumLength * 8 <= task.cacheBytes;
   const save: Float64Array[] | null = !hit && fits ? [] : null;
   const t = computeBtPairs(cp, g, s, task.rows, slots, bt, hit ? c.spectra : null, save);
   if (save !== null) {
-    state.cache = { token: task.token, px: cp.px, py: cp.py, profile: s === undefined ? null : Float64Array.from(s), rows: task.rows.slice(), spectra: save };
+    state.cache = {
+      token: task.token,
+      px: cp.px,
+      py: cp.py,
+      profile: s === undefined ? null : Float64Array.from(s),
+      rows: task.rows.slice(),
+      spectra: save,
+    };
   }
   const tFix = now();
   finishBtRows(g, s, task.prior.nugget ?? 0, task.rows, slots, bt, cellsOf(task.grid));

@@ -212,7 +212,10 @@ export function diagnoseCovariance(c: Matrix, context?: { grid: Grid; prior: Pri
       message: `The prior covariance is not positive definite: its Cholesky factorisation failed at row ${failedPivot}${cellLabel(failedPivot!, context?.grid)}, so it cannot be used for sampling or inversion.${fix}`,
     });
   } else if (verdict === 'not-decided') {
-    warnings.push({ code: 'not-decided', message: `Positive definiteness not decided: ${basis} The matrix is numerically singular.${fix}` });
+    warnings.push({
+      code: 'not-decided',
+      message: `Positive definiteness not decided: ${basis} The matrix is numerically singular.${fix}`,
+    });
   } else if (!(conditionNumber <= NEAR_SINGULAR_CONDITION)) {
     warnings.push({
       code: 'near-singular',
@@ -231,7 +234,12 @@ export function diagnoseCovariance(c: Matrix, context?: { grid: Grid; prior: Pri
     positiveDefinite: verdictValue(verdict),
     decidedBy: 'cholesky',
     basis,
-    ...(verdict === 'not-decided' ? { nextStep: suggestedJitter !== null ? `Add a nugget of ${fmt(suggestedJitter)}.` : 'Check the covariance terms and their variances.' } : {}),
+    ...(verdict === 'not-decided'
+      ? {
+          nextStep:
+            suggestedJitter !== null ? `Add a nugget of ${fmt(suggestedJitter)}.` : 'Check the covariance terms and their variances.',
+        }
+      : {}),
     failedPivot,
     minEigenvalue: min,
     maxEigenvalue: max,
@@ -274,7 +282,10 @@ export function priorWarnings(grid: Grid, prior: PriorSpec): DiagnosticWarning[]
     const name = `Term ${k + 1}`;
     const def = kernelDefinition(term.kernel);
     if (term.nu !== undefined && !kernelTakes(term.kernel, 'nu')) {
-      out.push({ code: 'nu-ignored', message: `${name}: nu = ${term.nu} is ignored because the ${term.kernel} kernel has no smoothness parameter.` });
+      out.push({
+        code: 'nu-ignored',
+        message: `${name}: nu = ${term.nu} is ignored because the ${term.kernel} kernel has no smoothness parameter.`,
+      });
     }
     if (dim > def.maxDimension) {
       // Cannot happen with 1-D and 2-D grids; kept so the rule is stated where kernels are checked.
@@ -293,7 +304,10 @@ export function priorWarnings(grid: Grid, prior: PriorSpec): DiagnosticWarning[]
     const lengths = term.lengths ? `lengths ${term.lengths[0]}${unit} × ${term.lengths[1]}${unit}` : `length ${term.length}${unit}`;
     const spacing = grid.spacing.map((s) => `${s}${unit}`).join(' × ');
     const spread = formatSpread(logK / Math.LN10);
-    out.push({ code: warning.code, message: warning.message({ name, lengths, spacing, spread, cure: fmt(cure), nu: termSmoothness(term) }) });
+    out.push({
+      code: warning.code,
+      message: warning.message({ name, lengths, spacing, spread, cure: fmt(cure), nu: termSmoothness(term) }),
+    });
   });
   return out;
 }

@@ -44,7 +44,11 @@ export function rotation3(angles: readonly number[]): number[] {
   const ry = [cb, 0, sb, 0, 1, 0, -sb, 0, cb];
   const rx = [1, 0, 0, 0, cg, -sg, 0, sg, cg];
   const mul = (p: number[], q: number[]) =>
-    Array.from({ length: 9 }, (_, k) => p[3 * Math.floor(k / 3)] * q[k % 3] + p[3 * Math.floor(k / 3) + 1] * q[3 + (k % 3)] + p[3 * Math.floor(k / 3) + 2] * q[6 + (k % 3)]);
+    Array.from(
+      { length: 9 },
+      (_, k) =>
+        p[3 * Math.floor(k / 3)] * q[k % 3] + p[3 * Math.floor(k / 3) + 1] * q[3 + (k % 3)] + p[3 * Math.floor(k / 3) + 2] * q[6 + (k % 3)],
+    );
   return mul(mul(rz, ry), rx);
 }
 

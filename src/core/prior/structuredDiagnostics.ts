@@ -222,7 +222,8 @@ export function diagnoseStructured(grid: Grid, prior: PriorSpec, options: Struct
   let basis: string;
   let failedPivot: number | null = null;
   const denseLimit = options.denseLimit ?? DENSE_DECISION_LIMIT;
-  const embed = (t: readonly (readonly [number, number])[]) => t.map((p) => (grid.shape.length === 1 ? `${p[0]}` : `${p[0]} × ${p[1]}`)).join(', ');
+  const embed = (t: readonly (readonly [number, number])[]) =>
+    t.map((p) => (grid.shape.length === 1 ? `${p[0]}` : `${p[0]} × ${p[1]}`)).join(', ');
   if (lower > 0) {
     verdict = 'positive-definite';
     decidedBy = 'fft-bracket';
@@ -243,7 +244,10 @@ export function diagnoseStructured(grid: Grid, prior: PriorSpec, options: Struct
       basis = `The Cholesky factorisation of the dense Cm (${n} cells) failed at row ${chol.pivot}.`;
     }
   } else {
-    const big = spectrumBracket(grid, prior, { maxCells: Math.max(options.maxCells ?? 0, ENLARGED_MAX_CELLS), maxDoublings: ENLARGED_MAX_DOUBLINGS });
+    const big = spectrumBracket(grid, prior, {
+      maxCells: Math.max(options.maxCells ?? 0, ENLARGED_MAX_CELLS),
+      maxDoublings: ENLARGED_MAX_DOUBLINGS,
+    });
     if (big.lower > lower) {
       lower = big.lower;
       upper = Math.min(upper, big.upper);
@@ -349,7 +353,8 @@ export function chooseDiagnosticsPath(grid: Grid, prior: PriorSpec): Diagnostics
   const why = nonStationaryReason(grid, prior);
   const n = cellCount(grid);
   if (why !== null) return { path: 'dense', reason: `dense: ${why}` };
-  if (n < STRUCTURED_DIAGNOSTICS_MIN_CELLS) return { path: 'dense', reason: `dense: ${n} cells, below ${STRUCTURED_DIAGNOSTICS_MIN_CELLS} the exact route is fast` };
+  if (n < STRUCTURED_DIAGNOSTICS_MIN_CELLS)
+    return { path: 'dense', reason: `dense: ${n} cells, below ${STRUCTURED_DIAGNOSTICS_MIN_CELLS} the exact route is fast` };
   return { path: 'fft', reason: `FFT bounds: stationary prior on a regular grid of ${n} cells (≥ ${STRUCTURED_DIAGNOSTICS_MIN_CELLS})` };
 }
 

@@ -95,8 +95,11 @@ function validateScales(prior: PriorSpec, n: number): void {
     checkScale('mean.trend.intercept', m.trend.intercept, 'an intercept', false);
     m.trend.slope.forEach((v, k) => checkScale(`mean.trend.slope[${k}]`, v, 'a slope', false));
   }
-  prior.terms.forEach((t, k) => checkScale(`terms[${k}].variance`, Math.sqrt(t.variance), 'a variance whose square root is', true, t.variance));
-  if (prior.nugget !== undefined && prior.nugget > 0) checkScale('nugget', Math.sqrt(prior.nugget), 'a nugget whose square root is', true, prior.nugget);
+  prior.terms.forEach((t, k) =>
+    checkScale(`terms[${k}].variance`, Math.sqrt(t.variance), 'a variance whose square root is', true, t.variance),
+  );
+  if (prior.nugget !== undefined && prior.nugget > 0)
+    checkScale('nugget', Math.sqrt(prior.nugget), 'a nugget whose square root is', true, prior.nugget);
 }
 
 function validateMean(mean: unknown, n: number, dim: 1 | 2 | 3): void {
@@ -154,7 +157,8 @@ function validateTerm(term: Term, f: string, dim: 1 | 2 | 3): void {
   const angles = (term as { angles?: unknown }).angles;
   if (angles !== undefined) {
     if (dim !== 3) throw new InputError(`${f}.angles`, 'absent below 3-D (give angle on a 2-D grid)', angles);
-    if (!isArrayLike(angles) || angles.length !== 3) throw new InputError(`${f}.angles`, 'an array of 3 angles [a1, a2, a3] in degrees', angles);
+    if (!isArrayLike(angles) || angles.length !== 3)
+      throw new InputError(`${f}.angles`, 'an array of 3 angles [a1, a2, a3] in degrees', angles);
     for (let k = 0; k < 3; k++) {
       if (!isFiniteNumber(angles[k])) throw new InputError(`${f}.angles[${k}]`, 'a finite number of degrees', angles[k]);
     }

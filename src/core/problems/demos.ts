@@ -213,4 +213,3 @@ export function demoById(id: string): DemoProblem {
   if (!d) throw new InputError('demo', `one of ${DEMO_IDS.map((s) => JSON.stringify(s)).join(', ')}`, id);
   return d;
 }
-

@@ -48,13 +48,7 @@ export function segmentMeetsBox(p: readonly [number, number], q: readonly [numbe
     }
     return true;
   };
-  return (
-    clip(-dx, p[0] - box.x[0]) &&
-    clip(dx, box.x[1] - p[0]) &&
-    clip(-dy, p[1] - box.y[0]) &&
-    clip(dy, box.y[1] - p[1]) &&
-    t0 <= t1
-  );
+  return clip(-dx, p[0] - box.x[0]) && clip(dx, box.x[1] - p[0]) && clip(-dy, p[1] - box.y[0]) && clip(dy, box.y[1] - p[1]) && t0 <= t1;
 }
 
 /** Zero-based indices of the path data whose source–receiver segment does not touch the grid (points: none). */

@@ -46,8 +46,16 @@ export function rayPathLengths(grid: Grid, ray: Ray): RaySegment[] {
   const ts: number[] = [0, 1];
   const ex = edges(ox, dx, nx);
   const ey = edges(oy, dy, ny);
-  if (vx !== 0) for (const e of ex) { const t = (e - x0) / vx; if (t > 0 && t < 1) ts.push(t); }
-  if (vy !== 0) for (const e of ey) { const t = (e - y0) / vy; if (t > 0 && t < 1) ts.push(t); }
+  if (vx !== 0)
+    for (const e of ex) {
+      const t = (e - x0) / vx;
+      if (t > 0 && t < 1) ts.push(t);
+    }
+  if (vy !== 0)
+    for (const e of ey) {
+      const t = (e - y0) / vy;
+      if (t > 0 && t < 1) ts.push(t);
+    }
   ts.sort((a, b) => a - b);
   const xmin = ex[0];
   const ymin = ey[0];

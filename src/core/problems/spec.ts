@@ -13,8 +13,8 @@ import type { Operator } from '../linalg/operator.ts';
  * (stations above a section). Used for plots only; G alone defines the forward model.
  */
 export type DataGeometry =
-  | { readonly kind: 'points'; /** M × dim, row-major. */ readonly positions: Matrix }
-  | { readonly kind: 'paths'; /** M × 2. */ readonly sources: Matrix; /** M × 2. */ readonly receivers: Matrix };
+  | { readonly kind: 'points' /** M × dim, row-major. */; readonly positions: Matrix }
+  | { readonly kind: 'paths' /** M × 2. */; readonly sources: Matrix /** M × 2. */; readonly receivers: Matrix };
 
 export interface DataSpec {
   readonly values: Float64Array;

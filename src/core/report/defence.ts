@@ -52,7 +52,11 @@ export interface DefenceInput {
     readonly term: number;
     readonly chosen: readonly [number, number];
   } | null;
-  readonly candidates: { readonly header: readonly string[]; readonly rows: readonly (readonly string[])[]; readonly caution: string | null } | null;
+  readonly candidates: {
+    readonly header: readonly string[];
+    readonly rows: readonly (readonly string[])[];
+    readonly caution: string | null;
+  } | null;
   readonly criteria: Rows | null;
   readonly averaged: { readonly mean: ArrayLike<number>; readonly std: ArrayLike<number>; readonly rows: Rows } | null;
   /** Why a section is empty, by section id (e.g. "averaged": "not computed in the workbench"). */
@@ -121,13 +125,18 @@ export function geometryOverlay(geometry: DataGeometry | null | undefined): Heat
   const s = geometry.sources.data;
   const r = geometry.receivers.data;
   return {
-    segments: Array.from({ length: geometry.sources.rows }, (_, i) => [s[2 * i] ?? 0, s[2 * i + 1] ?? 0, r[2 * i] ?? 0, r[2 * i + 1] ?? 0] as const),
+    segments: Array.from(
+      { length: geometry.sources.rows },
+      (_, i) => [s[2 * i] ?? 0, s[2 * i + 1] ?? 0, r[2 * i] ?? 0, r[2 * i + 1] ?? 0] as const,
+    ),
   };
 }
 
 function geometryCaption(geometry: DataGeometry | null | undefined): string {
   if (!geometry) return '';
-  return geometry.kind === 'points' ? `, with the ${geometry.positions.rows} measurement positions (dots)` : `, with the ${geometry.sources.rows} paths (lines)`;
+  return geometry.kind === 'points'
+    ? `, with the ${geometry.positions.rows} measurement positions (dots)`
+    : `, with the ${geometry.sources.rows} paths (lines)`;
 }
 
 function map(
@@ -161,7 +170,9 @@ function map(
 
 /** The prior's covariance as a formula, with its kernels' correlation functions. */
 export function priorFormula(prior: PriorSpec): string[] {
-  const lines = ['Cm(x, x′) = Σₜ σₜ² ρₜ(hₜ) + nugget · [x = x′], hₜ = |x − x′| / ℓₜ (anisotropic terms: the offset rotated by θ and scaled by ℓ₁, ℓ₂).'];
+  const lines = [
+    'Cm(x, x′) = Σₜ σₜ² ρₜ(hₜ) + nugget · [x = x′], hₜ = |x − x′| / ℓₜ (anisotropic terms: the offset rotated by θ and scaled by ℓ₁, ℓ₂).',
+  ];
   const kernels = [...new Set(prior.terms.map((t) => t.kernel))];
   for (const k of kernels) {
     const info = kernelInfo(k);
@@ -186,8 +197,23 @@ export function defenceHtml(input: DefenceInput): string {
   if (input.coverage) {
     geometry += `<div class="figs">${
       is2D
-        ? map(input, input.coverage, `Where the data look: column sums Σᵢ|Gᵢⱼ|${geometryCaption(input.geometry)}`, SEQUENTIAL, upTo([input.coverage]), '', 300, geometryOverlay(input.geometry))
-        : lineSvg({ title: 'Where the data look: column sums Σᵢ|Gᵢⱼ|', x: cellCentres(g), xLabel: axisName(g, 0), yLabel: 'Σ|G|', series: [{ y: input.coverage, colour: '#5b4bb7', name: 'Σᵢ|Gᵢⱼ|' }] })
+        ? map(
+            input,
+            input.coverage,
+            `Where the data look: column sums Σᵢ|Gᵢⱼ|${geometryCaption(input.geometry)}`,
+            SEQUENTIAL,
+            upTo([input.coverage]),
+            '',
+            300,
+            geometryOverlay(input.geometry),
+          )
+        : lineSvg({
+            title: 'Where the data look: column sums Σᵢ|Gᵢⱼ|',
+            x: cellCentres(g),
+            xLabel: axisName(g, 0),
+            yLabel: 'Σ|G|',
+            series: [{ y: input.coverage, colour: '#5b4bb7', name: 'Σᵢ|Gᵢⱼ|' }],
+          })
     }</div>`;
   }
   out.push(section('problem', '1. The problem and its geometry', geometry));
@@ -225,7 +251,10 @@ export function defenceHtml(input: DefenceInput): string {
         yLabel: q,
         width: 560,
         bands: [{ lower, upper, fill: 'rgba(201,140,38,0.2)', name: 'prior 95%' }],
-        series: [{ y: input.priorMean, colour: '#b07820', dash: true, name: 'prior mean' }, ...rows.map((r, k) => ({ y: r, colour: ['#3b6e8f', '#8a4f7d', '#5c7d3a'][k], name: `realisation ${k + 1}`, width: 1 }))],
+        series: [
+          { y: input.priorMean, colour: '#b07820', dash: true, name: 'prior mean' },
+          ...rows.map((r, k) => ({ y: r, colour: ['#3b6e8f', '#8a4f7d', '#5c7d3a'][k], name: `realisation ${k + 1}`, width: 1 })),
+        ],
       })}</div>`;
     }
     real += `<p class="note">Same seed, same numbers (m = m₀ + L z). ${is2D ? 'One diverging colour range, symmetric about the prior mean.' : ''}</p>`;
@@ -250,7 +279,10 @@ export function defenceHtml(input: DefenceInput): string {
       )}</div><p class="note">Standard deviation on a scale from 0 to the largest prior standard deviation: pale = resolved.</p>`;
     } else {
       const x = cellCentres(g);
-      const b = (z: number) => ({ lower: Array.from(p.mean, (m, i) => m - z * p.std[i]), upper: Array.from(p.mean, (m, i) => m + z * p.std[i]) });
+      const b = (z: number) => ({
+        lower: Array.from(p.mean, (m, i) => m - z * p.std[i]),
+        upper: Array.from(p.mean, (m, i) => m + z * p.std[i]),
+      });
       post = `<div class="figs">${lineSvg({
         title: 'Posterior mean with 68% and 95% bands',
         x,
@@ -261,7 +293,10 @@ export function defenceHtml(input: DefenceInput): string {
           { ...b(1.959963984540054), fill: 'rgba(22,134,150,0.18)', name: 'posterior 95%' },
           { ...b(1), fill: 'rgba(22,134,150,0.4)', name: 'posterior 68%' },
         ],
-        series: [...(input.truth ? [{ y: input.truth, colour: '#3a3a46', dash: true, name: 'truth', width: 1 }] : []), { y: p.mean, colour: '#0f5d6b', name: 'posterior mean', width: 1.8 }],
+        series: [
+          ...(input.truth ? [{ y: input.truth, colour: '#3a3a46', dash: true, name: 'truth', width: 1 }] : []),
+          { y: p.mean, colour: '#0f5d6b', name: 'posterior mean', width: 1.8 },
+        ],
       })}</div>`;
     }
   } else post = missing('posterior', 'The posterior was not computed.');
@@ -332,7 +367,13 @@ export function defenceHtml(input: DefenceInput): string {
   out.push(section('candidates', '8. The candidates compared', cands));
 
   // 9. Criteria
-  out.push(section('criteria', '9. Prior-selection criteria for the chosen prior', input.criteria ? table(input.criteria) : missing('criteria', 'The criteria were not computed.')));
+  out.push(
+    section(
+      'criteria',
+      '9. Prior-selection criteria for the chosen prior',
+      input.criteria ? table(input.criteria) : missing('criteria', 'The criteria were not computed.'),
+    ),
+  );
 
   // 10. Averaged posterior
   let avg = missing('averaged', 'The hyperparameter-averaged posterior was not computed.');
@@ -345,7 +386,10 @@ export function defenceHtml(input: DefenceInput): string {
       avg = `<div class="figs">${map(input, p.mean, 'Chosen prior: posterior mean', DIVERGING, range, qUnit, 200)}${map(input, a.mean, 'Averaged: posterior mean', DIVERGING, range, qUnit, 200)}${map(input, p.std, 'Chosen prior: std', SEQUENTIAL, srange, qUnit, 200)}${map(input, a.std, 'Averaged: std', SEQUENTIAL, srange, qUnit, 200)}</div>`;
     } else {
       const x = cellCentres(g);
-      const band = (m: ArrayLike<number>, s: ArrayLike<number>) => ({ lower: Array.from(m, (v, i) => v - 1.959963984540054 * s[i]), upper: Array.from(m, (v, i) => v + 1.959963984540054 * s[i]) });
+      const band = (m: ArrayLike<number>, s: ArrayLike<number>) => ({
+        lower: Array.from(m, (v, i) => v - 1.959963984540054 * s[i]),
+        upper: Array.from(m, (v, i) => v + 1.959963984540054 * s[i]),
+      });
       avg = `<div class="figs">${lineSvg({
         title: 'Averaged over the evidence map (orange) beside the chosen prior (teal): means and 95% bands',
         x,

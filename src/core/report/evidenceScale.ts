@@ -89,6 +89,11 @@ export function priorLine(prior: PriorSpec, lengthUnit: string, valueUnit: strin
     return `${k}, σ² ${g3(t.variance)}, ${l}`;
   });
   const m = prior.mean;
-  const mean = 'constant' in m ? `mean ${g3(m.constant)}${valueUnit ? ` ${valueUnit}` : ''}` : 'values' in m ? 'mean given per cell' : `mean trend ${g3(m.trend.intercept)} + slope (${Array.from(m.trend.slope, g3).join(', ')})`;
+  const mean =
+    'constant' in m
+      ? `mean ${g3(m.constant)}${valueUnit ? ` ${valueUnit}` : ''}`
+      : 'values' in m
+        ? 'mean given per cell'
+        : `mean trend ${g3(m.trend.intercept)} + slope (${Array.from(m.trend.slope, g3).join(', ')})`;
   return [...terms, `nugget ${g3(prior.nugget ?? 0)}`, mean].join('; ');
 }

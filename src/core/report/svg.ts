@@ -94,7 +94,9 @@ export function lineSvg(fig: LineFigure): string {
   const xs = extent([fig.x]);
   const ys = extent([
     ...(fig.bands ?? []).flatMap((b) => [b.lower, b.upper]),
-    ...fig.series.flatMap((s) => (s.errors ? [Array.from(s.y, (v, i) => v - s.errors![i]), Array.from(s.y, (v, i) => v + s.errors![i])] : [s.y])),
+    ...fig.series.flatMap((s) =>
+      s.errors ? [Array.from(s.y, (v, i) => v - s.errors![i]), Array.from(s.y, (v, i) => v + s.errors![i])] : [s.y],
+    ),
   ]);
   const [xlo, xhi] = xs;
   const pad = 0.04 * (ys[1] - ys[0]);
@@ -113,16 +115,23 @@ export function lineSvg(fig: LineFigure): string {
     if (s.errors) {
       for (let i = 0; i < n; i++) {
         const x = f1(toX(fig.x[i]));
-        parts.push(`<line x1="${x}" x2="${x}" y1="${f1(toY(s.y[i] - s.errors[i]))}" y2="${f1(toY(s.y[i] + s.errors[i]))}" stroke="${s.colour}" stroke-width="0.8"/>`);
+        parts.push(
+          `<line x1="${x}" x2="${x}" y1="${f1(toY(s.y[i] - s.errors[i]))}" y2="${f1(toY(s.y[i] + s.errors[i]))}" stroke="${s.colour}" stroke-width="0.8"/>`,
+        );
         parts.push(`<circle cx="${x}" cy="${f1(toY(s.y[i]))}" r="1.6" fill="${s.colour}"/>`);
       }
     } else {
       const pts: string[] = [];
       for (let i = 0; i < n; i++) pts.push(`${f1(toX(fig.x[i]))},${f1(toY(s.y[i]))}`);
-      parts.push(`<polyline points="${pts.join(' ')}" fill="none" stroke="${s.colour}" stroke-width="${s.width ?? 1.2}"${s.dash ? ' stroke-dasharray="4 3"' : ''}/>`);
+      parts.push(
+        `<polyline points="${pts.join(' ')}" fill="none" stroke="${s.colour}" stroke-width="${s.width ?? 1.2}"${s.dash ? ' stroke-dasharray="4 3"' : ''}/>`,
+      );
     }
   }
-  const legend = [...(fig.bands ?? []).map((b) => ({ name: b.name, colour: b.fill })), ...fig.series.map((s) => ({ name: s.name, colour: s.colour }))];
+  const legend = [
+    ...(fig.bands ?? []).map((b) => ({ name: b.name, colour: b.fill })),
+    ...fig.series.map((s) => ({ name: s.name, colour: s.colour })),
+  ];
   return frame(W, H, m, fig.title, fig.xLabel, fig.yLabel, ticks(xlo, xhi), toX, ticks(ylo, yhi), toY, parts.join(''), legend);
 }
 
@@ -142,7 +151,9 @@ function frame(
   extra = '',
 ): string {
   const axis: string[] = [];
-  axis.push(`<rect x="${m.l}" y="${m.t}" width="${W - m.l - m.r}" height="${H - m.t - m.b}" fill="none" stroke="#888" stroke-width="0.6"/>`);
+  axis.push(
+    `<rect x="${m.l}" y="${m.t}" width="${W - m.l - m.r}" height="${H - m.t - m.b}" fill="none" stroke="#888" stroke-width="0.6"/>`,
+  );
   for (const v of xt) axis.push(`<text x="${f1(toX(v))}" y="${H - m.b + 10}" text-anchor="middle">${esc(num(v))}</text>`);
   for (const v of yt) axis.push(`<text x="${m.l - 3}" y="${f1(toY(v) + 3)}" text-anchor="end">${esc(num(v))}</text>`);
   axis.push(`<text x="${f1((m.l + W - m.r) / 2)}" y="${H - 4}" text-anchor="middle">${esc(xLabel)}</text>`);
@@ -203,22 +214,32 @@ export function heatSvg(fig: HeatFigure): string {
     for (let i = 0; i < fig.nx; i++) {
       const v = fig.field[i + fig.nx * j];
       const y = fig.yDown ? m.t + j * chh : m.t + ph - (j + 1) * chh;
-      cells.push(`<rect x="${f1(m.l + i * cw)}" y="${f1(y)}" width="${f1(cw + 0.3)}" height="${f1(chh + 0.3)}" fill="${Number.isFinite(v) ? colourAt(fig.scale, (v - lo) / (hi - lo)) : '#ffffff'}"/>`);
+      cells.push(
+        `<rect x="${f1(m.l + i * cw)}" y="${f1(y)}" width="${f1(cw + 0.3)}" height="${f1(chh + 0.3)}" fill="${Number.isFinite(v) ? colourAt(fig.scale, (v - lo) / (hi - lo)) : '#ffffff'}"/>`,
+      );
     }
   }
   if (fig.overlay) {
     const o: string[] = [];
-    for (const [x0, y0, x1, y1] of fig.overlay.segments ?? []) o.push(`<line x1="${f1(toX(x0))}" y1="${f1(toY(y0))}" x2="${f1(toX(x1))}" y2="${f1(toY(y1))}"/>`);
+    for (const [x0, y0, x1, y1] of fig.overlay.segments ?? [])
+      o.push(`<line x1="${f1(toX(x0))}" y1="${f1(toY(y0))}" x2="${f1(toX(x1))}" y2="${f1(toY(y1))}"/>`);
     for (const [x, y] of fig.overlay.points ?? []) o.push(`<circle cx="${f1(toX(x))}" cy="${f1(toY(y))}" r="2.2"/>`);
     cells.push(`<g class="geometry" stroke="#1b1b1b" stroke-width="0.5" stroke-opacity="0.55" fill="#ffffff">${o.join('')}</g>`);
   }
-  if (fig.mark) cells.push(`<path d="M${f1(toX(fig.mark[0]) - 5)} ${f1(toY(fig.mark[1]))}h10M${f1(toX(fig.mark[0]))} ${f1(toY(fig.mark[1]) - 5)}v10" stroke="#000" stroke-width="1.6"/>`);
+  if (fig.mark)
+    cells.push(
+      `<path d="M${f1(toX(fig.mark[0]) - 5)} ${f1(toY(fig.mark[1]))}h10M${f1(toX(fig.mark[0]))} ${f1(toY(fig.mark[1]) - 5)}v10" stroke="#000" stroke-width="1.6"/>`,
+    );
   // colour bar
   const bx = m.l + pw + 8;
   const bar: string[] = [];
   const steps = 24;
-  for (let k = 0; k < steps; k++) bar.push(`<rect x="${bx}" y="${f1(m.t + ph - ((k + 1) * ph) / steps)}" width="9" height="${f1(ph / steps + 0.3)}" fill="${colourAt(fig.scale, (k + 0.5) / steps)}"/>`);
-  for (const v of ticks(lo, hi, 4)) bar.push(`<text x="${bx + 12}" y="${f1(m.t + ph - ((v - lo) / (hi - lo)) * ph + 3)}">${esc(num(v))}</text>`);
+  for (let k = 0; k < steps; k++)
+    bar.push(
+      `<rect x="${bx}" y="${f1(m.t + ph - ((k + 1) * ph) / steps)}" width="9" height="${f1(ph / steps + 0.3)}" fill="${colourAt(fig.scale, (k + 0.5) / steps)}"/>`,
+    );
+  for (const v of ticks(lo, hi, 4))
+    bar.push(`<text x="${bx + 12}" y="${f1(m.t + ph - ((v - lo) / (hi - lo)) * ph + 3)}">${esc(num(v))}</text>`);
   if (fig.unit) bar.push(`<text x="${bx}" y="${m.t - 4}">${esc(fig.unit)}</text>`);
   const xt = ticks(fig.xRange[0], fig.xRange[1], 4);
   const yt = ticks(fig.yRange[0], fig.yRange[1], 3);

@@ -104,7 +104,6 @@ export const DECIDED_BY_TEXT: Record<Diagnostics['decidedBy'], string> = {
   none: 'no route could decide at this size',
 };
 
-
 /** The positive-definiteness rows: verdict with the route that decided it, extreme eigenvalue, condition number, jitter, warnings. */
 export function pdRows(d: Diagnostics): [string, string][] {
   return [
@@ -119,13 +118,21 @@ export function pdRows(d: Diagnostics): [string, string][] {
 
 /** The prior-selection criteria of one prior in rows (src/core/tuning/criteria.ts priorCriteria). */
 export function criteriaRows(c: PriorCriteria): [string, string][] {
-  const disc = (d: DiscrepancyResult) => (d.status === 'found' ? `variances × ${g4(d.scale)} would give χ² = ${g4(d.target)}` : d.status === 'mean-fits' ? 'the posterior mean fits below the target at any scale' : 'the target cannot be reached by scaling');
+  const disc = (d: DiscrepancyResult) =>
+    d.status === 'found'
+      ? `variances × ${g4(d.scale)} would give χ² = ${g4(d.target)}`
+      : d.status === 'mean-fits'
+        ? 'the posterior mean fits below the target at any scale'
+        : 'the target cannot be reached by scaling';
   return [
     ['log evidence', `${g4(c.logEvidence)} (natural log)`],
     ['leave-one-out log score', `${g4(c.leaveOneOut.logScore)} (Σᵢ log p(dᵢ | d₋ᵢ))`],
     ['discrepancy rule, χ² = M', disc(c.discrepancy)],
     ['discrepancy rule, χ² = M − tr R', disc(c.discrepancyExpected)],
-    ['prior predictive check', `q/M = ${g4(c.priorPredictive.reduced)}, two-sided p = ${formatTail(c.priorPredictive.pTwoSided)}: ${c.priorPredictive.plausible ? 'the data are plausible under this prior' : 'the data are implausible under this prior'}`],
+    [
+      'prior predictive check',
+      `q/M = ${g4(c.priorPredictive.reduced)}, two-sided p = ${formatTail(c.priorPredictive.pTwoSided)}: ${c.priorPredictive.plausible ? 'the data are plausible under this prior' : 'the data are implausible under this prior'}`,
+    ],
     ['when they disagree', c.explanation],
   ];
 }
@@ -147,9 +154,18 @@ export function averagedRows(
   const vu = valueUnit ? ` ${valueUnit}` : '';
   return [
     ['Hyper-prior', hyperPriorWords(a.hyperPrior)],
-    ['Weights', `evidence × hyper-prior over the map's ${a.weights.length} cells; ${a.cellsUsed} cells above 1e-6 of the weight entered (skipped weight ${g4(a.skippedWeight)}); effective number of cells ${g4(a.effectiveCells)}`],
-    ['Weighted length and variance', `${g4(a.meanLength)}${lu} and ${g4(a.meanVariance)} (the chosen prior: ${g4(chosen.length)}${lu} and ${g4(chosen.variance)})`],
-    ["Weight on the map's edge", `${g4(a.edgeWeight)}${a.edgeWeight > 0.05 ? " — the map does not hold the evidence's mass; widen it" : ''}`],
+    [
+      'Weights',
+      `evidence × hyper-prior over the map's ${a.weights.length} cells; ${a.cellsUsed} cells above 1e-6 of the weight entered (skipped weight ${g4(a.skippedWeight)}); effective number of cells ${g4(a.effectiveCells)}`,
+    ],
+    [
+      'Weighted length and variance',
+      `${g4(a.meanLength)}${lu} and ${g4(a.meanVariance)} (the chosen prior: ${g4(chosen.length)}${lu} and ${g4(chosen.variance)})`,
+    ],
+    [
+      "Weight on the map's edge",
+      `${g4(a.edgeWeight)}${a.edgeWeight > 0.05 ? " — the map does not hold the evidence's mass; widen it" : ''}`,
+    ],
     ['Averaged variance', "mean of the cells' variances + variance of their means (law of total variance)"],
     ['Largest change of the mean', `${g4(change)}${vu} (largest posterior std of the chosen prior ${g4(sMax)}${vu})`],
   ];

@@ -179,11 +179,11 @@ function temper(y: number): number {
 // The constants are fdlibm's, given there with their hexadecimal bit patterns (checked in
 // test/core/sampling/random.test.ts).
 
-const LN2_HI = 6.93147180369123816490e-1; // 3fe62e42 fee00000
+const LN2_HI = 6.9314718036912381649e-1; // 3fe62e42 fee00000
 const LN2_LO = 1.90821492927058770002e-10; // 3dea39ef 35793c76
 const TWO54 = 1.8014398509481984e16; // 43500000 00000000
 export const FDLIBM_LOG_CONSTANTS = {
-  Lg1: 6.666666666666735130e-1, // 3FE55555 55555593
+  Lg1: 6.66666666666673513e-1, // 3FE55555 55555593
   Lg2: 3.999999999940941908e-1, // 3FD99999 9997FA04
   Lg3: 2.857142874366239149e-1, // 3FD24924 94229359
   Lg4: 2.222219843214978396e-1, // 3FCC71C5 1D8E78AF

@@ -43,14 +43,31 @@ export interface RealisationRoute {
 }
 
 /** `count` prior realisations with the route that drew them (see the module comment). */
-export function priorRealisationsWithRoute(grid: Grid, prior: PriorSpec, count: number, seed: number): { realisations: Matrix } & RealisationRoute {
+export function priorRealisationsWithRoute(
+  grid: Grid,
+  prior: PriorSpec,
+  count: number,
+  seed: number,
+): { realisations: Matrix } & RealisationRoute {
   if (!Number.isInteger(count) || count < 0) throw new InputError('count', 'a non-negative integer', count);
   validateSeed(seed);
   if (cellCount(grid) > DENSE_REALISATION_LIMIT && nonStationaryReason(grid, prior) === null) {
     const r = cachedSampler(grid, prior);
-    return { realisations: r.draw(count, seed), route: r.path, padding: r.padding, clipped: r.clipped, clippedRelativeTrace: r.clippedRelativeTrace };
+    return {
+      realisations: r.draw(count, seed),
+      route: r.path,
+      padding: r.padding,
+      clipped: r.clipped,
+      clippedRelativeTrace: r.clippedRelativeTrace,
+    };
   }
-  return { realisations: denseRealisations(grid, prior, count, seed), route: 'dense', padding: grid.shape, clipped: false, clippedRelativeTrace: 0 };
+  return {
+    realisations: denseRealisations(grid, prior, count, seed),
+    route: 'dense',
+    padding: grid.shape,
+    clipped: false,
+    clippedRelativeTrace: 0,
+  };
 }
 
 /**

@@ -38,7 +38,10 @@ export function hyperPriorWords(h: HyperPrior): string {
 }
 
 /** Normalised weights of the map's cells (row-major as the map), 0 where the evidence is not finite. */
-export function averagingWeights(map: Pick<EvidenceMap, 'lengths' | 'variances' | 'logEvidence'>, hyper: HyperPrior = 'log-uniform'): Float64Array {
+export function averagingWeights(
+  map: Pick<EvidenceMap, 'lengths' | 'variances' | 'logEvidence'>,
+  hyper: HyperPrior = 'log-uniform',
+): Float64Array {
   if (!HYPER_PRIORS.includes(hyper)) throw new InputError('hyperPrior', '"log-uniform" or "uniform"', hyper);
   const nv = map.variances.length;
   const n = map.logEvidence.length;

@@ -44,7 +44,15 @@ import { covarianceMatrix, meanVector } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
 import { Random, validateSeed } from '../sampling/random.ts';
-import { aborted, prepareDataSide, tuningRoute, type DataSide, type RouteOptions, type TuningControl, type TuningRoute } from './dataSpace.ts';
+import {
+  aborted,
+  prepareDataSide,
+  tuningRoute,
+  type DataSide,
+  type RouteOptions,
+  type TuningControl,
+  type TuningRoute,
+} from './dataSpace.ts';
 
 /** Nominal coverages and half-widths in posterior standard deviations: ±1σ (68.27%) and ±1.96σ (95%). */
 export const BAND_LEVELS = {
@@ -133,7 +141,13 @@ interface Candidate {
   readonly approximate: boolean;
 }
 
-function prepareCandidate(problem: Problem, prior: PriorSpec, field: string, holder: StructuredProblem, asked: RouteOptions['route']): Candidate {
+function prepareCandidate(
+  problem: Problem,
+  prior: PriorSpec,
+  field: string,
+  holder: StructuredProblem,
+  asked: RouteOptions['route'],
+): Candidate {
   const route = asked === undefined || asked === 'auto' ? tuningRoute(problem, prior) : asked;
   try {
     return route === 'fft' ? fftCandidate(holder, prior) : denseCandidate(problem, prior, field);
@@ -221,14 +235,21 @@ function addCross(post: Candidate, base: Float64Array, v: Float64Array): Float64
 }
 
 function checkOptions(o: CalibrationOptions): number {
-  if (!Number.isInteger(o.replicates) || o.replicates < 1 || o.replicates > 1e6) throw new InputError('replicates', 'an integer from 1 to 1000000', o.replicates);
+  if (!Number.isInteger(o.replicates) || o.replicates < 1 || o.replicates > 1e6)
+    throw new InputError('replicates', 'an integer from 1 to 1000000', o.replicates);
   const draws = o.draws ?? 19;
   if (!Number.isInteger(draws) || draws < 1 || draws > 65534) throw new InputError('draws', 'an integer from 1 to 65534', o.draws);
   validateSeed(o.seed, 'seed');
   return draws;
 }
 
-function run(side: DataSide, truth: Candidate, inv: Candidate, options: CalibrationOptions, progress: (f: number) => void): CalibrationResult {
+function run(
+  side: DataSide,
+  truth: Candidate,
+  inv: Candidate,
+  options: CalibrationOptions,
+  progress: (f: number) => void,
+): CalibrationResult {
   const draws = checkOptions(options);
   const R = options.replicates;
   const n = side.cellCount;
@@ -317,7 +338,12 @@ function run(side: DataSide, truth: Candidate, inv: Candidate, options: Calibrat
  * prior object for a self-consistency check). Cost per replicate: one truth draw (N²/2), one
  * K-solve, and per posterior draw one prior draw plus one K-solve and an N × M product.
  */
-export function calibrate(problem: Problem, truthPrior: PriorSpec, inversionPrior: PriorSpec, options: CalibrationOptions): CalibrationResult {
+export function calibrate(
+  problem: Problem,
+  truthPrior: PriorSpec,
+  inversionPrior: PriorSpec,
+  options: CalibrationOptions,
+): CalibrationResult {
   checkOptions(options);
   const holder = options.structured ?? structuredProblem(problem);
   const side = prepareDataSide(problem, { structured: holder });

@@ -15,7 +15,15 @@ import { symmetrise } from '../linalg/products.ts';
 import { chiSquareInterval, regularizedGammaP, regularizedGammaQ } from '../inverse/chisquare.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
-import { LOG_2PI, logEvidenceOf, prepareDataSide, priorDataSpace, type DataSide, type PriorDataSpace, type RouteOptions } from './dataSpace.ts';
+import {
+  LOG_2PI,
+  logEvidenceOf,
+  prepareDataSide,
+  priorDataSpace,
+  type DataSide,
+  type PriorDataSpace,
+  type RouteOptions,
+} from './dataSpace.ts';
 
 /**
  * One line for the UI on why the criteria can disagree: they answer different questions.
@@ -165,7 +173,8 @@ export function discrepancyScale(
   const side = prepareDataSide(problem, options);
   const space = priorDataSpace(side, prior);
   if (options.form === 'expected') {
-    if (options.target !== undefined) throw new InputError('target', 'left out with the expected-value form (its target is M − tr R)', options.target);
+    if (options.target !== undefined)
+      throw new InputError('target', 'left out with the expected-value form (its target is M − tr R)', options.target);
     return expectedDiscrepancy(whitenedByCd(side, space), prior);
   }
   const target = options.target ?? side.dataCount;
@@ -251,7 +260,8 @@ function classicalDiscrepancy(w: { lambda: Float64Array; b: Float64Array }, prio
   }
   const range: [number, number] = [at0, atInf];
   if (at0 <= target) return { form: 'classical', status: 'mean-fits', scale: Number.NaN, prior: null, chi2: at0, target, chi2Range: range };
-  if (atInf >= target) return { form: 'classical', status: 'unreachable', scale: Number.NaN, prior: null, chi2: atInf, target, chi2Range: range };
+  if (atInf >= target)
+    return { form: 'classical', status: 'unreachable', scale: Number.NaN, prior: null, chi2: atInf, target, chi2Range: range };
   // Bracket in log s, starting from s = 1 (the prior as given).
   let lo = 0;
   let hi = 0;

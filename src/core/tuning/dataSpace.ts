@@ -70,7 +70,8 @@ export interface RouteOptions {
 export function prepareDataSide(problem: Problem, options: RouteOptions = {}): DataSide {
   const structured = options.structured ?? structuredProblem(problem);
   const route = options.route ?? 'auto';
-  if (structured.problem !== problem) throw new InputError('structured', 'a spectrum cache made for this problem', 'one made for another problem');
+  if (structured.problem !== problem)
+    throw new InputError('structured', 'a spectrum cache made for this problem', 'one made for another problem');
   const { rows: m, cols: n } = operatorShape(problem.operator);
   const cells = cellCount(problem.grid);
   if (n !== cells) throw new InputError('problem.operator', `${cells} columns (one per grid cell)`, `${n} columns`);
@@ -133,11 +134,18 @@ export function projectedPriorCovariance(problem: Problem, prior: PriorSpec, opt
   }
   if (route === 'dense') return projectCovariance(problem.operator, covarianceMatrix(problem.grid, prior));
   // Few non-zeros (point data): the lag table gives P exactly, cheaper than any transform (./lagProjection.ts).
-  if (asked === 'auto' && lagProjectionApplies(problem.operator, problem.grid)) return lagTableProjection(problem.operator, problem.grid, prior);
+  if (asked === 'auto' && lagProjectionApplies(problem.operator, problem.grid))
+    return lagTableProjection(problem.operator, problem.grid, prior);
   const why = nonStationaryReason(problem.grid, prior);
-  if (why !== null) throw new InputError('route', `"dense" or "auto" for this prior (the FFT route needs a stationary prior on a regular grid: ${why})`, 'fft');
+  if (why !== null)
+    throw new InputError(
+      'route',
+      `"dense" or "auto" for this prior (the FFT route needs a stationary prior on a regular grid: ${why})`,
+      'fft',
+    );
   const holder = options.structured ?? structuredProblem(problem);
-  if (holder.problem !== problem) throw new InputError('structured', 'a spectrum cache made for this problem', 'one made for another problem');
+  if (holder.problem !== problem)
+    throw new InputError('structured', 'a spectrum cache made for this problem', 'one made for another problem');
   return structuredProjection(holder, prior);
 }
 
@@ -203,7 +211,8 @@ export function gaussianLogDensity(k: Matrix, r: ArrayLike<number>): GaussianLog
 export function logEvidenceOf(side: DataSide, prior: PriorSpec): GaussianLogDensity & { readonly space: PriorDataSpace } {
   const space = priorDataSpace(side, prior);
   const g = gaussianLogDensity(addMatrices(space.projected, side.cd), space.residual);
-  if (g === null) throw new NotPositiveDefiniteError('data-space covariance G Cm Gᵀ + Cd', 0, 'the prior gives an indefinite covariance; add a nugget');
+  if (g === null)
+    throw new NotPositiveDefiniteError('data-space covariance G Cm Gᵀ + Cd', 0, 'the prior gives an indefinite covariance; add a nugget');
   return { ...g, space };
 }
 
@@ -218,7 +227,12 @@ export function checkTermIndex(prior: PriorSpec, index: number, field = 'term'):
 export function generalMaternAvailable(): boolean {
   try {
     // The probe ν = 1.3 is arbitrary; any non-closed-form order would do.
-    return Number.isFinite(covarianceMatrix({ shape: [2], spacing: [1] }, { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.3, variance: 1, length: 1 }] }).data[1]);
+    return Number.isFinite(
+      covarianceMatrix(
+        { shape: [2], spacing: [1] },
+        { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.3, variance: 1, length: 1 }] },
+      ).data[1],
+    );
   } catch {
     return false;
   }

@@ -244,7 +244,11 @@ export function evidenceMap(problem: Problem, prior: PriorSpec, options: Evidenc
   const axis = options.axis ?? 'both';
   if (!LENGTH_AXES.includes(axis)) throw new InputError('axis', '"both", "l1" or "l2"', axis);
   if (axis !== 'both' && term.lengths === undefined) {
-    throw new InputError('axis', `"both" for term ${options.term}, which has one length (l1 and l2 need an anisotropic term, "lengths": [l1, l2])`, axis);
+    throw new InputError(
+      'axis',
+      `"both" for term ${options.term}, which has one length (l1 and l2 need an anisotropic term, "lengths": [l1, l2])`,
+      axis,
+    );
   }
   const unit = (len: number): PriorSpec => ({ ...prior, terms: [{ ...setTermLength(term, len, axis), variance: 1 }], nugget: 0 });
   // Validation of the prior as given, and the residual r = d − G m0.
@@ -266,7 +270,8 @@ export function evidenceMap(problem: Problem, prior: PriorSpec, options: Evidenc
     }
     const p = sideProjection(side, unit(lengths[i]));
     const spec = requested === 'auto' && w !== null ? whitenedSpectrum(w, p) : null;
-    if (requested === 'auto' && w !== null && spec === null) note = `term ${options.term} at length ${lengths[i]} gives an indefinite G C₁ Gᵀ`;
+    if (requested === 'auto' && w !== null && spec === null)
+      note = `term ${options.term} at length ${lengths[i]} gives an indefinite G C₁ Gᵀ`;
     methods.push(spec !== null ? 'eigen' : 'cholesky');
     for (let j = 0; j < nv; j++) {
       if (spec === null && aborted(options)) {
@@ -279,7 +284,8 @@ export function evidenceMap(problem: Problem, prior: PriorSpec, options: Evidenc
     if (spec !== null) options.onProgress?.(((i + 1) * nv) / total);
   }
   if (asked === 'cholesky') note = 'Cholesky per cell was requested';
-  else if (requested === 'cholesky') note = `Cholesky per cell: fewer than ${EIGEN_BREAK_EVEN} variances, where it is cheaper than an eigendecomposition per length`;
+  else if (requested === 'cholesky')
+    note = `Cholesky per cell: fewer than ${EIGEN_BREAK_EVEN} variances, where it is cheaper than an eigendecomposition per length`;
   let best: EvidenceMap['best'] = null;
   for (let k = 0; k < out.length; k++) {
     const v = out[k];
@@ -288,7 +294,17 @@ export function evidenceMap(problem: Problem, prior: PriorSpec, options: Evidenc
     }
   }
   const method: EvidenceMethod = methods.length > 0 && methods.every((m) => m === 'eigen') ? 'eigen' : 'cholesky';
-  return { term: options.term, lengths, variances, logEvidence: out, method, methodByLength: methods, best, cancelled, ...(note !== undefined ? { note } : {}) };
+  return {
+    term: options.term,
+    lengths,
+    variances,
+    logEvidence: out,
+    method,
+    methodByLength: methods,
+    best,
+    cancelled,
+    ...(note !== undefined ? { note } : {}),
+  };
 }
 
 export type ProfileParameter = { readonly parameter: 'nu'; readonly term: number } | { readonly parameter: 'nugget' };
@@ -314,7 +330,12 @@ export interface EvidenceProfile {
  * the correlation, so there is no shortcut) or along the nugget (eigen shortcut with C₁ = I, see
  * the module comment; Cholesky per value when asked).
  */
-export function evidenceProfile(problem: Problem, prior: PriorSpec, which: ProfileParameter, options: EvidenceProfileOptions): EvidenceProfile {
+export function evidenceProfile(
+  problem: Problem,
+  prior: PriorSpec,
+  which: ProfileParameter,
+  options: EvidenceProfileOptions,
+): EvidenceProfile {
   const values = Float64Array.from(options.values);
   if (values.length === 0) throw new InputError('values', 'at least one value', options.values);
   const side = prepareDataSide(problem, options);

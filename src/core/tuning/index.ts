@@ -6,8 +6,24 @@
 export type { RouteOptions, TuningControl, TuningRoute } from './dataSpace.ts';
 export { projectedPriorCovariance, TUNING_DENSE_LIMIT, tuningRoute } from './dataSpace.ts';
 export { EIGEN_BREAK_EVEN, evidenceMap, evidenceProfile, logSpaced, setTermLength, termLength, withTerm } from './evidenceMap.ts';
-export type { EvidenceMap, EvidenceMapOptions, EvidenceMethod, EvidenceProfile, EvidenceProfileOptions, LogAxis, ProfileParameter } from './evidenceMap.ts';
-export { applyHyperParameters, evidenceGradient, setHyperParameter, hyperParameters, hyperParameterVector, logEvidence, maximiseEvidence } from './typeII.ts';
+export type {
+  EvidenceMap,
+  EvidenceMapOptions,
+  EvidenceMethod,
+  EvidenceProfile,
+  EvidenceProfileOptions,
+  LogAxis,
+  ProfileParameter,
+} from './evidenceMap.ts';
+export {
+  applyHyperParameters,
+  evidenceGradient,
+  setHyperParameter,
+  hyperParameters,
+  hyperParameterVector,
+  logEvidence,
+  maximiseEvidence,
+} from './typeII.ts';
 export type { EvidenceAndGradient, FittedParameter, HyperParameter, MaximiseOptions, TypeIIResult } from './typeII.ts';
 export {
   CRITERIA_DIFFER_EXPLANATION,

@@ -33,7 +33,14 @@ import { matrix, type Matrix } from '../linalg/matrix.ts';
 import { symmetrise } from '../linalg/products.ts';
 import { operatorTimesTransposed } from '../linalg/operator.ts';
 import { nonStationaryReason } from '../fft/covariance.ts';
-import { computeBtPairs, finishBtRows, keepSpectra, matchingSpectra, structuredSetup, type StructuredProblem } from '../inverse/structured.ts';
+import {
+  computeBtPairs,
+  finishBtRows,
+  keepSpectra,
+  matchingSpectra,
+  structuredSetup,
+  type StructuredProblem,
+} from '../inverse/structured.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
 

@@ -68,7 +68,12 @@ export interface StartPriorRule {
   /** Whether the variance is the floor (the data are within their errors under the rule's length). */
   readonly varianceFloored: boolean;
   /** q at the chosen variance, its target M − p, tr(P Ã) (of the floor), and which case of the rule applied. */
-  readonly fit: { readonly statistic: number; readonly degreesOfFreedom: number; readonly operatorTrace: number; readonly outcome: 'fitted' | 'floor' | 'unreached' };
+  readonly fit: {
+    readonly statistic: number;
+    readonly degreesOfFreedom: number;
+    readonly operatorTrace: number;
+    readonly outcome: 'fitted' | 'floor' | 'unreached';
+  };
   /** One paragraph in words with the numbers. */
   readonly explanation: string;
 }
@@ -136,7 +141,8 @@ export function startPriorRule(problem: Problem, options: { structured?: Structu
     }
   }
   const trPA = trA - (meanFitted ? gAg / gg : 0);
-  if (!(trPA > 0)) throw new InputError('problem.operator', 'an operator that passes a correlated field into the data (G R Gᵀ has zero trace)', 0);
+  if (!(trPA > 0))
+    throw new InputError('problem.operator', 'an operator that passes a correlated field into the data (G R Gᵀ has zero trace)', 0);
 
   const B = matrix(m, 2);
   for (let i = 0; i < m; i++) {
@@ -160,7 +166,7 @@ export function startPriorRule(problem: Problem, options: { structured?: Structu
     let q = 0;
     for (let j = 0; j < m; j++) {
       const r = a[j] - c * b[j];
-      q += r * r / (v * lam[j] + 1);
+      q += (r * r) / (v * lam[j] + 1);
     }
     return { c, q };
   };
@@ -205,7 +211,9 @@ export function startPriorRule(problem: Problem, options: { structured?: Structu
   const dims = gridDimension(grid) === 2 ? 'the larger grid extent' : 'the grid extent';
   const explanation =
     `Mean ${round(c)}` +
-    (meanFitted ? ' (generalised least squares through G with this prior)' : ' (G maps a constant to zero: the data cannot see a constant mean)') +
+    (meanFitted
+      ? ' (generalised least squares through G with this prior)'
+      : ' (G maps a constant to zero: the data cannot see a constant mean)') +
     `; exponential term with length ${round(length)}${lu} (a tenth of ${dims}) and variance ${round(variance)}` +
     (outcome === 'floor'
       ? ' (the floor: the data lie within their errors, so the prior signal is set to a tenth of the noise)'

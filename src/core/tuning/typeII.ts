@@ -226,7 +226,12 @@ export interface EvidenceAndGradient {
  * log p(d) and its gradient in the coordinates of `params` (see the module comment). Returns
  * logEvidence −∞ (gradient NaN) when K does not factor.
  */
-export function evidenceGradient(problem: Problem, prior: PriorSpec, params: readonly HyperParameter[], side = prepareDataSide(problem)): EvidenceAndGradient {
+export function evidenceGradient(
+  problem: Problem,
+  prior: PriorSpec,
+  params: readonly HyperParameter[],
+  side = prepareDataSide(problem),
+): EvidenceAndGradient {
   // FFT route: P = Σ_t P_t + η G Gᵀ from the per-term projections that the variance derivatives
   // need anyway (one projection per evaluation fewer; equal to the direct P to round-off). The
   // dense route keeps its single projection of Cm, so its numbers stay as they were.
@@ -402,7 +407,8 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
     } catch (e) {
       // A trial point outside the valid range (e.g. a length overflowing to ∞) is rejected like an
       // indefinite K: the line search backs off from it.
-      if (e instanceof InputError || e instanceof NotPositiveDefiniteError) return { logEvidence: Number.NEGATIVE_INFINITY, gradient: new Float64Array(p).fill(Number.NaN) };
+      if (e instanceof InputError || e instanceof NotPositiveDefiniteError)
+        return { logEvidence: Number.NEGATIVE_INFINITY, gradient: new Float64Array(p).fill(Number.NaN) };
       throw e;
     }
   };
@@ -425,11 +431,13 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
   };
   const startTheta0 = hyperParameterVector(start, params);
   const startEval = evaluate(startTheta0);
-  if (!Number.isFinite(startEval.logEvidence)) throw new InputError('start prior', 'a prior whose data-space covariance G Cm Gᵀ + Cd factors', 'one that does not');
+  if (!Number.isFinite(startEval.logEvidence))
+    throw new InputError('start prior', 'a prior whose data-space covariance G Cm Gᵀ + Cd factors', 'one that does not');
   const startLogEvidence = startEval.logEvidence;
   let theta = project(Float64Array.from(startTheta0));
   let cur = theta.every((v, k) => v === startTheta0[k]) ? startEval : evaluate(theta);
-  if (!Number.isFinite(cur.logEvidence)) throw new InputError('start prior', 'a prior whose data-space covariance G Cm Gᵀ + Cd factors', 'one that does not');
+  if (!Number.isFinite(cur.logEvidence))
+    throw new InputError('start prior', 'a prior whose data-space covariance G Cm Gᵀ + Cd factors', 'one that does not');
   /**
    * Per coordinate, the bound it rests on with the evidence pushing past it (∇φ = −∇ log p points
    * outwards): 'low' at a lower bound with ∂φ/∂θ_k > 0, 'high' at an upper bound with ∂φ/∂θ_k < 0.
@@ -509,12 +517,23 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
     }
   }
   function projectedGradient(grad: Float64Array): Float64Array {
-    const active = activeBounds(theta, grad.map((v) => -v));
+    const active = activeBounds(
+      theta,
+      grad.map((v) => -v),
+    );
     return grad.map((v, k) => (active[k] === null ? v : 0));
   }
   if (!converged && !cancelled && maxAbs(projectedGradient(cur.gradient)) < gtol) converged = true;
-  const onFloor = nIdx >= 0 && atFloor(theta, cur.gradient.map((v) => -v));
-  const finalActive = activeBounds(theta, cur.gradient.map((v) => -v));
+  const onFloor =
+    nIdx >= 0 &&
+    atFloor(
+      theta,
+      cur.gradient.map((v) => -v),
+    );
+  const finalActive = activeBounds(
+    theta,
+    cur.gradient.map((v) => -v),
+  );
   const held = (k: number): boolean => finalActive[k] !== null;
   // Observed information by central differences of the gradient.
   const info = new Float64Array(p * p);
@@ -557,7 +576,10 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
   } else if (!cancelled) {
     note = 'the curvature at the optimum is not negative definite (a flat or rising direction): standard errors are not available';
   }
-  if (!converged && !cancelled) note = (note ? note + '; ' : '') + `not converged after ${iterations} iterations (largest gradient ${maxAbs(cur.gradient).toExponential(2)})`;
+  if (!converged && !cancelled)
+    note =
+      (note ? note + '; ' : '') +
+      `not converged after ${iterations} iterations (largest gradient ${maxAbs(cur.gradient).toExponential(2)})`;
   const best = applyHyperParameters(start, params, theta);
   const conditioning = checkConditioning(problem.grid, best, onFloor, nIdx >= 0 ? Math.exp(logFloor(theta)) : null);
   if (onFloor) {
@@ -612,7 +634,10 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
  * Bounds of every coordinate (logs where the scale is log) from `bounds` in natural units; ±∞ where
  * none is given. Names must be free parameters; lo ≤ hi, and > 0 on a log scale.
  */
-function coordinateBounds(params: readonly HyperParameter[], bounds: MaximiseOptions['bounds']): { lower: Float64Array; upper: Float64Array } {
+function coordinateBounds(
+  params: readonly HyperParameter[],
+  bounds: MaximiseOptions['bounds'],
+): { lower: Float64Array; upper: Float64Array } {
   const lower = new Float64Array(params.length).fill(Number.NEGATIVE_INFINITY);
   const upper = new Float64Array(params.length).fill(Number.POSITIVE_INFINITY);
   for (const [name, range] of Object.entries(bounds ?? {})) {
@@ -639,7 +664,14 @@ function checkConditioning(grid: Grid, prior: PriorSpec, nuggetAtFloor: boolean,
   // κ: the certified bound when the FFT bracket proved the verdict, else the dense or Lanczos value.
   const kappa = d.decidedBy === 'fft-bracket' && d.conditionUpperBound !== undefined ? d.conditionUpperBound : d.conditionNumber;
   const proven = d.verdict === 'positive-definite';
-  return { verdict: d.verdict, positiveDefinite: proven, conditionNumber: kappa, usable: proven && kappa <= NEAR_SINGULAR_CONDITION, nuggetAtFloor, nuggetFloor };
+  return {
+    verdict: d.verdict,
+    positiveDefinite: proven,
+    conditionNumber: kappa,
+    usable: proven && kappa <= NEAR_SINGULAR_CONDITION,
+    nuggetAtFloor,
+    nuggetFloor,
+  };
 }
 
 function eye(p: number): Float64Array {

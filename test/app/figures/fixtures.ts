@@ -12,7 +12,11 @@ export function shown(mean: number[], std: number[] | null = null): ShownPosteri
   const n = mean.length;
   const m = Float64Array.from(mean);
   const summary = std
-    ? ({ mean: m, std: Float64Array.from(std), varianceReduction: Float64Array.from(std, (s) => 1 - s * s) } as unknown as ShownPosterior['summary'])
+    ? ({
+        mean: m,
+        std: Float64Array.from(std),
+        varianceReduction: Float64Array.from(std, (s) => 1 - s * s),
+      } as unknown as ShownPosterior['summary'])
     : null;
   return {
     mean: m,

@@ -12,7 +12,11 @@ import type { PriorSpec } from '../../../src/core/prior/spec.ts';
 import { grid2 } from './fixtures.ts';
 
 const line = { shape: [100], spacing: [1] };
-const exponential = (length: number, nugget = 0): PriorSpec => ({ mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length }], nugget });
+const exponential = (length: number, nugget = 0): PriorSpec => ({
+  mean: { constant: 0 },
+  terms: [{ kernel: 'exponential', variance: 1, length }],
+  nugget,
+});
 
 describe('prior figures', () => {
   it('measures the grid as cells × spacing along its longest axis', () => {

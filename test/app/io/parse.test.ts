@@ -5,7 +5,14 @@ import { FileFormatError } from '../../../src/core/io/errors.ts';
 
 const enc = (s: string) => new TextEncoder().encode(s);
 const problem = (file: string) =>
-  JSON.stringify({ kind: 'priorscope.problem', version: 1, title: 'P', grid: { shape: [2], spacing: [1] }, operator: { file }, data: { values: [1], sigma: [1] } });
+  JSON.stringify({
+    kind: 'priorscope.problem',
+    version: 1,
+    title: 'P',
+    grid: { shape: [2], spacing: [1] },
+    operator: { file },
+    data: { values: [1], sigma: [1] },
+  });
 
 function message(f: () => unknown): string {
   try {
@@ -19,7 +26,13 @@ function message(f: () => unknown): string {
 
 describe('parseRequest problemFiles', () => {
   it('reads the .json and the sibling it names, by base name', () => {
-    const r = parseRequest({ kind: 'problemFiles', files: [{ name: 'G.csv', bytes: enc('0.5,0.5\n') }, { name: 'p.json', bytes: enc(problem('sub/G.csv')) }] });
+    const r = parseRequest({
+      kind: 'problemFiles',
+      files: [
+        { name: 'G.csv', bytes: enc('0.5,0.5\n') },
+        { name: 'p.json', bytes: enc(problem('sub/G.csv')) },
+      ],
+    });
     expect(r.kind).toBe('problem');
     if (r.kind === 'problem') {
       expect(r.label).toBe('p.json');
@@ -27,15 +40,46 @@ describe('parseRequest problemFiles', () => {
     }
   });
   it.each([
-    [[{ name: 'p.json', text: problem('G.mtx') }], 'p.json: operator.file "G.mtx" could not be read: it was not among the chosen files (choose G.mtx together with p.json)'],
-    [[{ name: 'G.csv', text: '1\n' }], 'G.csv: none of the chosen files is a problem file (.json); to load G and data files without one, use "Load from pieces"'],
-    [[{ name: 'a.json', text: '{}' }, { name: 'b.json', text: '{}' }], 'a.json, b.json: choose exactly one problem .json file (with the files it names)'],
-    [[{ name: 'p.json', text: problem('G.csv') }, { name: 'G.csv', text: '1,2\n3,x\n' }], 'G.csv: line 2, column 2 must be a finite number, got "x"'],
     [
-      [{ name: 'v.json', text: JSON.stringify({ kind: 'priorscope.problem', version: 1, grid: { shape: [1, 1, 2], spacing: [1, 1, 1] }, operator: { dense: [[1, 1]] }, data: { values: [1], sigma: [1] } }) }],
+      [{ name: 'p.json', text: problem('G.mtx') }],
+      'p.json: operator.file "G.mtx" could not be read: it was not among the chosen files (choose G.mtx together with p.json)',
+    ],
+    [
+      [{ name: 'G.csv', text: '1\n' }],
+      'G.csv: none of the chosen files is a problem file (.json); to load G and data files without one, use "Load from pieces"',
+    ],
+    [
+      [
+        { name: 'a.json', text: '{}' },
+        { name: 'b.json', text: '{}' },
+      ],
+      'a.json, b.json: choose exactly one problem .json file (with the files it names)',
+    ],
+    [
+      [
+        { name: 'p.json', text: problem('G.csv') },
+        { name: 'G.csv', text: '1,2\n3,x\n' },
+      ],
+      'G.csv: line 2, column 2 must be a finite number, got "x"',
+    ],
+    [
+      [
+        {
+          name: 'v.json',
+          text: JSON.stringify({
+            kind: 'priorscope.problem',
+            version: 1,
+            grid: { shape: [1, 1, 2], spacing: [1, 1, 1] },
+            operator: { dense: [[1, 1]] },
+            data: { values: [1], sigma: [1] },
+          }),
+        },
+      ],
       'v.json: a 3-D grid (1 × 1 × 2) is not shown in the workbench yet; compute it with the command line (priorscope posterior --problem v.json --prior …)',
     ],
   ])('refuses %#', (files, expected) => {
-    expect(message(() => parseRequest({ kind: 'problemFiles', files: files.map((f) => ({ name: f.name, bytes: enc(f.text) })) }))).toBe(expected);
+    expect(message(() => parseRequest({ kind: 'problemFiles', files: files.map((f) => ({ name: f.name, bytes: enc(f.text) })) }))).toBe(
+      expected,
+    );
   });
 });

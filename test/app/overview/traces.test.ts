@@ -17,7 +17,13 @@ describe('overview traces', () => {
   it('1-D posterior panel: bands only when the standard deviation is known; truth when given', () => {
     const post = { mean: [1, 2], priorMean: [0, 0], priorStd: [1, 1], std: null };
     expect(posteriorTraces1D([0, 1], post, null).map((x) => x.name)).toEqual(['prior 95%', 'posterior mean']);
-    expect(posteriorTraces1D([0, 1], { ...post, std: [0.1, 0.2] }, [1, 1]).map((x) => x.name)).toEqual(['prior 95%', 'posterior 95%', 'posterior 68%', 'truth', 'posterior mean']);
+    expect(posteriorTraces1D([0, 1], { ...post, std: [0.1, 0.2] }, [1, 1]).map((x) => x.name)).toEqual([
+      'prior 95%',
+      'posterior 95%',
+      'posterior 68%',
+      'truth',
+      'posterior mean',
+    ]);
   });
 
   it('data fit: observed with its σ as error bars and the prediction, against datum number from 1', () => {
@@ -30,7 +36,11 @@ describe('overview traces', () => {
   it('2-D maps: realisations and posterior mean share one diverging range centred on the constant prior mean', () => {
     const mean0 = new Float64Array(6).fill(10);
     const draws = { data: Float64Array.from([10, 11, 12, 9, 10, 10, 10, 10, 10, 10, 4, 10]), rows: 2, cols: 6 };
-    const post = { mean: Float64Array.from([10, 10.5, 11, 10, 10, 10]), priorStd: new Float64Array(6).fill(3), std: new Float64Array(6).fill(1) };
+    const post = {
+      mean: Float64Array.from([10, 10.5, 11, 10, 10, 10]),
+      priorStd: new Float64Array(6).fill(3),
+      std: new Float64Array(6).fill(1),
+    };
     const m = overviewMaps(grid, 'kg/m³', mean0, draws, post, { half: null });
     // largest departure: 4 − 10 = −6 in realisation 2
     expect(m.signedRange).toEqual([4, 16]);
@@ -40,7 +50,10 @@ describe('overview traces', () => {
     }
     expect(m.std![0].colorscale).toBe(SEQUENTIAL);
     expect([m.std![0].zmin, m.std![0].zmax]).toEqual([0, 3]);
-    expect(m.std![0].z).toEqual([[1, 1, 1], [1, 1, 1]]);
+    expect(m.std![0].z).toEqual([
+      [1, 1, 1],
+      [1, 1, 1],
+    ]);
     // limits by hand
     const fixed = overviewMaps(grid, 'kg/m³', mean0, draws, post, { half: 2 });
     expect([fixed.draws[0][0].zmin, fixed.draws[0][0].zmax]).toEqual([8, 12]);
@@ -52,7 +65,10 @@ describe('overview traces', () => {
     const draws = { data: Float64Array.from([1, 1, 1, 1, 1, 1]), rows: 1, cols: 6 };
     const m = overviewMaps(grid, 'm/s', mean0, draws, null, { half: null });
     expect(m.perturbation).toBe(true);
-    expect(m.draws[0][0].z).toEqual([[1, 0, -1], [1, 0, -1]]);
+    expect(m.draws[0][0].z).toEqual([
+      [1, 0, -1],
+      [1, 0, -1],
+    ]);
     expect(m.signedRange).toEqual([-1, 1]);
     expect(m.mean).toBeNull();
   });

@@ -33,8 +33,17 @@ describe('averaged posterior beside the chosen prior', () => {
   it('the worker request gives the core result for the same map', async () => {
     const { problem, startPrior } = demoById('borehole-log').build();
     const t0 = startPrior.terms[0];
-    const map = evidenceMap(problem, startPrior, { term: 0, lengths: { min: termLength(t0) / 3, max: 3 * termLength(t0), count: 4 }, variances: { min: t0.variance / 5, max: 5 * t0.variance, count: 3 } });
-    const viaWorker = await runTuning(problem, { id: 1, kind: 'averaged', problemVersion: 1, prior: startPrior, map, hyperPrior: 'log-uniform' }, () => {}, { aborted: false });
+    const map = evidenceMap(problem, startPrior, {
+      term: 0,
+      lengths: { min: termLength(t0) / 3, max: 3 * termLength(t0), count: 4 },
+      variances: { min: t0.variance / 5, max: 5 * t0.variance, count: 3 },
+    });
+    const viaWorker = await runTuning(
+      problem,
+      { id: 1, kind: 'averaged', problemVersion: 1, prior: startPrior, map, hyperPrior: 'log-uniform' },
+      () => {},
+      { aborted: false },
+    );
     const direct = averagedPosterior(problem, startPrior, map);
     expect(Array.from(viaWorker.mean)).toEqual(Array.from(direct.mean));
     expect(Array.from(viaWorker.std)).toEqual(Array.from(direct.std));

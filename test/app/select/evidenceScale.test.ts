@@ -4,7 +4,11 @@ import type { PriorSpec } from '../../../src/core/prior/spec.ts';
 
 const grid = { shape: [10, 5], spacing: [1, 1], unit: 'm' };
 const iso: PriorSpec = { mean: { constant: 2 }, terms: [{ kernel: 'exponential', variance: 1, length: 3 }], nugget: 0 };
-const rich: PriorSpec = { mean: { constant: 2 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, lengths: [3, 1], angle: 20 }], nugget: 0.01 };
+const rich: PriorSpec = {
+  mean: { constant: 2 },
+  terms: [{ kernel: 'matern', nu: 1.5, variance: 1, lengths: [3, 1], angle: 20 }],
+  nugget: 0.01,
+};
 
 describe('evidence differences on the Kass & Raftery (1995) scale', () => {
   it('places 2 ln B in the published categories, limits 2, 6 and 10', () => {
@@ -39,7 +43,13 @@ describe('evidence differences on the Kass & Raftery (1995) scale', () => {
     expect(freeParameterCount(iso, grid)).toBe(3);
     expect(freeParameterCount(rich, grid)).toBe(7);
     expect(freeParameterCount({ ...iso, mean: { trend: { intercept: 0, slope: [1, 2] } } }, grid)).toBe(5);
-    const r = evidenceReadings([{ prior: iso, logEvidence: -10 }, { prior: rich, logEvidence: -8 }], grid);
+    const r = evidenceReadings(
+      [
+        { prior: iso, logEvidence: -10 },
+        { prior: rich, logEvidence: -8 },
+      ],
+      grid,
+    );
     expect(r.caution).toContain('3, 7');
   });
 

@@ -8,7 +8,24 @@ import { freshness, freshnessText, problemIdentity } from '../../../src/app/sele
 import type { EvidenceMap } from '../../../src/core/tuning/index.ts';
 
 const prior: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 0.25, length: 10 }], nugget: 0.01 };
-const view = { version: 1, demoId: 'x', title: 't', description: '', grid: { shape: [4], spacing: [1] }, dataCount: 2, values: new Float64Array(2), sigma: new Float64Array(2).fill(1), truth: null, coverage: new Float64Array(4), operatorKind: 'dense', operatorNonZeros: 8, quantity: { name: 'T', unit: 'K' }, dataUnit: '', startPrior: prior, truthPrior: null } as unknown as ProblemView;
+const view = {
+  version: 1,
+  demoId: 'x',
+  title: 't',
+  description: '',
+  grid: { shape: [4], spacing: [1] },
+  dataCount: 2,
+  values: new Float64Array(2),
+  sigma: new Float64Array(2).fill(1),
+  truth: null,
+  coverage: new Float64Array(4),
+  operatorKind: 'dense',
+  operatorNonZeros: 8,
+  quantity: { name: 'T', unit: 'K' },
+  dataUnit: '',
+  startPrior: prior,
+  truthPrior: null,
+} as unknown as ProblemView;
 
 function fakeClient() {
   const never = <T>() => new Promise<Outcome<T>>(() => {});
@@ -143,7 +160,9 @@ describe('select slice and problem changes', () => {
     expect(store.getState().notice).toMatch(/other kernels or terms/);
     // The reason names both structures.
     expect(store.getState().notice).toContain('other kernels or terms (1 term: exponential; the current prior has 1 term: gaussian)');
-    expect(freshnessText('other-structure', s2.selectTasks.typeII.prior, s2.prior)).toContain('1 term: exponential; the current prior has 1 term: gaussian');
+    expect(freshnessText('other-structure', s2.selectTasks.typeII.prior, s2.prior)).toContain(
+      '1 term: exponential; the current prior has 1 term: gaussian',
+    );
   });
 
   it('pinned candidates belong to their problem: set aside on a switch, back when the problem returns', async () => {
@@ -157,7 +176,9 @@ describe('select slice and problem changes', () => {
     await store.getState().loadDemo('y');
     expect(problemIdentity(store.getState())).toBe('demo:y');
     expect(store.getState().candidates).toEqual([]);
-    expect(store.getState().candidatesNote).toBe('The 1 pinned candidate of “t” is kept for that problem and comes back when it is shown again.');
+    expect(store.getState().candidatesNote).toBe(
+      'The 1 pinned candidate of “t” is kept for that problem and comes back when it is shown again.',
+    );
     (client as { loadDemo: unknown }).loadDemo = async () => ({ superseded: false, value: { ...view, version: 3 } });
     await store.getState().loadDemo('x');
     expect(store.getState().candidates).toHaveLength(1);
@@ -166,4 +187,3 @@ describe('select slice and problem changes', () => {
     expect(store.getState().candidatesNote).toBeNull();
   });
 });
-

@@ -24,7 +24,16 @@ function fakeMap(): EvidenceMap {
   const variances = Float64Array.from([0.1, 1]);
   const logEvidence = Float64Array.from({ length: 6 }, (_, k) => 10 * Math.floor(k / 2) + (k % 2));
   logEvidence[1] = Number.NaN;
-  return { term: 0, lengths, variances, logEvidence, method: 'cholesky', methodByLength: ['cholesky', 'cholesky', 'cholesky'], best: { length: 100, variance: 1, logEvidence: 21, index: 5 }, cancelled: false };
+  return {
+    term: 0,
+    lengths,
+    variances,
+    logEvidence,
+    method: 'cholesky',
+    methodByLength: ['cholesky', 'cholesky', 'cholesky'],
+    best: { length: 100, variance: 1, logEvidence: 21, index: 5 },
+    cancelled: false,
+  };
 }
 
 describe('evidence map traces', () => {
@@ -96,7 +105,10 @@ describe('candidate pictures', () => {
     expect(t[1].y).toEqual([4, 5, 6]);
     expect(t[2].line).toMatchObject({ color: '#405060' });
     expect(candidateTruthTrace([0, 1], Float64Array.from([3, 4]))).toMatchObject({ name: 'truth', x: [0, 1], y: [3, 4] });
-    expect(candidateLineLayout('T', 'x (m)', 'T (K)')).toMatchObject({ xaxis: { title: { text: 'x (m)' } }, yaxis: { title: { text: 'T (K)' } } });
+    expect(candidateLineLayout('T', 'x (m)', 'T (K)')).toMatchObject({
+      xaxis: { title: { text: 'x (m)' } },
+      yaxis: { title: { text: 'T (K)' } },
+    });
   });
 
   it('maps a candidate on the shared range, rows along the second axis drawn downwards', () => {
@@ -106,7 +118,18 @@ describe('candidate pictures', () => {
       [1, '#ffffff'],
     ];
     const t = candidateMapTrace(grid, [1, 2, 3, 4], 'mean', scale, [-5, 5]);
-    expect(t).toMatchObject({ type: 'heatmap', x: [0, 1], y: [1, 4], z: [[1, 2], [3, 4]], zmin: -5, zmax: 5, colorscale: scale });
+    expect(t).toMatchObject({
+      type: 'heatmap',
+      x: [0, 1],
+      y: [1, 4],
+      z: [
+        [1, 2],
+        [3, 4],
+      ],
+      zmin: -5,
+      zmax: 5,
+      colorscale: scale,
+    });
     const l = candidateMapLayout(grid, 'A: posterior mean');
     expect(l.yaxis).toMatchObject({ autorange: 'reversed', scaleanchor: 'x', title: { text: 'depth (m) ↓' } });
     expect(l.xaxis).toMatchObject({ title: { text: 'x (m)' } });

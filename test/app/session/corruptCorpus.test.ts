@@ -30,7 +30,11 @@ async function savedUserSession() {
   return { storage, prior: store.getState().prior! };
 }
 
-async function openFresh(storage: ReturnType<typeof memoryStorage>, hash = '', explicitDemo: string | null = null): Promise<WorkbenchStore> {
+async function openFresh(
+  storage: ReturnType<typeof memoryStorage>,
+  hash = '',
+  explicitDemo: string | null = null,
+): Promise<WorkbenchStore> {
   const store = createWorkbenchStore(inProcessClient(), { demoId: 'borehole-log' });
   await startSession(store, { storage, explicitDemo, hash });
   for (let k = 0; k < 200 && Object.values(store.getState().busy).some(Boolean); k++) await tick(5);
@@ -57,7 +61,10 @@ const huge = () => {
 const MUTATIONS: readonly Mutation[] = [
   ['unknown tab', (s) => (s.tab = 'maps')],
   ['unknown kernel', (s) => ((s.prior.terms as Record<string, unknown>[])[0].kernel = 'cubic')],
-  ['junk candidates', (s) => (s.extra = { candidates: [{ id: 1 }, 'x', null, { id: 'a', name: 'b', colour: '#123456', prior: { terms: 3 } }] })],
+  [
+    'junk candidates',
+    (s) => (s.extra = { candidates: [{ id: 1 }, 'x', null, { id: 'a', name: 'b', colour: '#123456', prior: { terms: 3 } }] }),
+  ],
   ['candidates not an array', (s) => (s.extra = { candidates: 'abc' })],
   ['NaN prior length', (s) => ((s.prior.terms as Record<string, unknown>[])[0].length = NaN)],
   ['NaN mean', (s) => (s.prior.mean = { constant: NaN })],
@@ -67,10 +74,13 @@ const MUTATIONS: readonly Mutation[] = [
   ['20,000 terms', (s) => (s.prior.terms = huge())],
   ['seed NaN', (s) => (s.seed = NaN)],
   ['selected cell out of range', (s) => (s.selectedCell = 1e9)],
-  ['short G', (_s, p) => {
-    const op = p.problem.operator as { matrix: { values: Float64Array; colIdx: Int32Array } };
-    op.matrix.values = op.matrix.values.subarray(0, 2);
-  }],
+  [
+    'short G',
+    (_s, p) => {
+      const op = p.problem.operator as { matrix: { values: Float64Array; colIdx: Int32Array } };
+      op.matrix.values = op.matrix.values.subarray(0, 2);
+    },
+  ],
   ['sigma 0', (_s, p) => ((p.problem.data as { sigma: Float64Array }).sigma[1] = 0)],
   ['data NaN', (_s, p) => ((p.problem.data as { values: Float64Array }).values[0] = NaN)],
   ['a 10⁹-cell problem', (_s, p) => (p.problem.grid = { shape: [100_000, 10_000], spacing: [1, 1] })],
@@ -115,7 +125,8 @@ describe('a damaged autosave opens to a working page with our own message', () =
     /** Paths of the leaves of a record. */
     const leaves = (v: unknown, path: (string | number)[] = []): (string | number)[][] => {
       if (ArrayBuffer.isView(v)) return [path, [...path, 0]];
-      if (typeof v === 'object' && v !== null) return [path, ...Object.entries(v).flatMap(([k, x]) => leaves(x, [...path, Array.isArray(v) ? Number(k) : k]))];
+      if (typeof v === 'object' && v !== null)
+        return [path, ...Object.entries(v).flatMap(([k, x]) => leaves(x, [...path, Array.isArray(v) ? Number(k) : k]))];
       return [path];
     };
     for (let c = 0; c < 60; c++) {
@@ -141,7 +152,10 @@ describe('share links change nothing when they fail', () => {
   it('a link whose prior does not fit its problem keeps the saved session (prior and problem)', async () => {
     const { storage, prior } = await savedUserSession();
     const before = structuredClone(storage.map.get('session'));
-    const hash = await encodeShare({ problem: 'borehole-log', prior: { mean: { values: [1, 2, 3] }, terms: [{ kernel: 'exponential', variance: 1, length: 2 }] } });
+    const hash = await encodeShare({
+      problem: 'borehole-log',
+      prior: { mean: { values: [1, 2, 3] }, terms: [{ kernel: 'exponential', variance: 1, length: 2 }] },
+    });
     const store = await openFresh(storage, hash);
     expect(store.getState().loadError).toMatch(/^The shared link could not be opened: /);
     expect(store.getState().userProblem?.label).toBe('G.mtx + d.csv');
@@ -153,7 +167,10 @@ describe('share links change nothing when they fail', () => {
 
   it('a link for an unknown built-in problem is refused and keeps the saved session', async () => {
     const { storage, prior } = await savedUserSession();
-    const hash = await encodeShare({ problem: 'nowhere', prior: { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length: 2 }] } });
+    const hash = await encodeShare({
+      problem: 'nowhere',
+      prior: { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length: 2 }] },
+    });
     const store = await openFresh(storage, hash);
     expect(store.getState().loadError).toBe('The shared link could not be opened: problem "nowhere" is not one of the built-in problems');
     expect(store.getState().prior).toEqual(prior);
@@ -162,7 +179,11 @@ describe('share links change nothing when they fail', () => {
   it(`a link with 20,000 terms is refused by its count, before any term is read (limit ${MAX_TERMS})`, async () => {
     const { storage, prior } = await savedUserSession();
     const json = JSON.stringify({ kind: 'priorscope.prior', version: 1, mean: { constant: 0 }, terms: huge() });
-    const hash = await encodeShare({ problem: 'borehole-log', prior: parsePriorFile('x', JSON.stringify({ kind: 'priorscope.prior', version: 1, mean: { constant: 0 }, terms: huge().slice(0, 1) })).prior });
+    const hash = await encodeShare({
+      problem: 'borehole-log',
+      prior: parsePriorFile('x', JSON.stringify({ kind: 'priorscope.prior', version: 1, mean: { constant: 0 }, terms: huge().slice(0, 1) }))
+        .prior,
+    });
     expect(hash).toMatch(/^#share=/);
     // Build the 20,000-term link by hand (the encoder's own reader would refuse it too).
     const { toBase64Url } = await import('../../../src/app/session/share.ts');
@@ -171,7 +192,9 @@ describe('share links change nothing when they fail', () => {
     const parsed = JSON.parse(json) as { terms: unknown[] };
     parsed.terms = parsed.terms.map((t, k) => (k === 0 ? t : {}));
     const raw = JSON.stringify({ problem: 'borehole-log', prior: parsed });
-    const packed = new Uint8Array(await new Response(new Blob([enc(raw)]).stream().pipeThrough(new CompressionStream('deflate-raw'))).arrayBuffer());
+    const packed = new Uint8Array(
+      await new Response(new Blob([enc(raw)]).stream().pipeThrough(new CompressionStream('deflate-raw'))).arrayBuffer(),
+    );
     const store = await openFresh(storage, '#share=' + toBase64Url(packed));
     expect(store.getState().loadError).toBe(`shared link: terms must be at most ${MAX_TERMS} covariance terms, got 20000`);
     expect(store.getState().prior).toEqual(prior);
@@ -181,14 +204,20 @@ describe('share links change nothing when they fail', () => {
 describe('the term limit', () => {
   it(`files and the core refuse more than ${MAX_TERMS} terms; the Add term action stops there`, async () => {
     const text = JSON.stringify({ kind: 'priorscope.prior', version: 1, mean: { constant: 0 }, terms: huge().slice(0, MAX_TERMS + 1) });
-    expect(() => parsePriorFile('p.json', text)).toThrow(`p.json: terms must be at most ${MAX_TERMS} covariance terms, got ${MAX_TERMS + 1}`);
-    const ok = parsePriorFile('p.json', JSON.stringify({ kind: 'priorscope.prior', version: 1, mean: { constant: 0 }, terms: huge().slice(0, MAX_TERMS) })).prior;
+    expect(() => parsePriorFile('p.json', text)).toThrow(
+      `p.json: terms must be at most ${MAX_TERMS} covariance terms, got ${MAX_TERMS + 1}`,
+    );
+    const ok = parsePriorFile(
+      'p.json',
+      JSON.stringify({ kind: 'priorscope.prior', version: 1, mean: { constant: 0 }, terms: huge().slice(0, MAX_TERMS) }),
+    ).prior;
     expect(() => validatePrior(ok, { shape: [5], spacing: [1] })).not.toThrow();
-    expect(() => validatePrior({ ...ok, terms: [...ok.terms, ok.terms[0]] }, { shape: [5], spacing: [1] })).toThrow(/terms must be at most 16 covariance terms, got 17/);
+    expect(() => validatePrior({ ...ok, terms: [...ok.terms, ok.terms[0]] }, { shape: [5], spacing: [1] })).toThrow(
+      /terms must be at most 16 covariance terms, got 17/,
+    );
     const store = createWorkbenchStore(inProcessClient(), { demoId: 'borehole-log' });
     await store.getState().openDemo('borehole-log');
     for (let k = 0; k < MAX_TERMS + 3; k++) store.getState().addTerm();
     expect(store.getState().prior!.terms.length).toBe(MAX_TERMS);
   });
-
 });

@@ -2,7 +2,11 @@ import { describe, expect, it } from 'vitest';
 import { changedPaths, COALESCE_MS, emptyHistory, HISTORY_LIMIT, record, redo, undo } from '../../../src/app/session/history.ts';
 import type { PriorSpec } from '../../../src/core/prior/spec.ts';
 
-const prior = (length: number, variance = 1): PriorSpec => ({ mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance, length }], nugget: 0 });
+const prior = (length: number, variance = 1): PriorSpec => ({
+  mean: { constant: 0 },
+  terms: [{ kernel: 'exponential', variance, length }],
+  nugget: 0,
+});
 
 describe('changedPaths', () => {
   it.each([

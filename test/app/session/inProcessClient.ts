@@ -31,7 +31,8 @@ export function inProcessClient() {
     },
     posterior: (prior: PriorSpec) => ok(engine.handle({ id: id++, kind: 'posterior', problemVersion: v(), prior })),
     diagnostics: (prior: PriorSpec) => ok(engine.handle({ id: id++, kind: 'diagnostics', problemVersion: v(), prior })),
-    priorDraws: (prior: PriorSpec, count: number, seed: number) => ok(engine.handle({ id: id++, kind: 'priorDraws', problemVersion: v(), prior, count, seed })),
+    priorDraws: (prior: PriorSpec, count: number, seed: number) =>
+      ok(engine.handle({ id: id++, kind: 'priorDraws', problemVersion: v(), prior, count, seed })),
     posteriorDraws: (prior: PriorSpec, count: number, seed: number) =>
       ok(engine.handle({ id: id++, kind: 'posteriorDraws', problemVersion: v(), prior, count, seed })),
     resolution: (prior: PriorSpec, cell: number) => ok(engine.handle({ id: id++, kind: 'resolution', problemVersion: v(), prior, cell })),

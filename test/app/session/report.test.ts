@@ -25,7 +25,18 @@ describe('prior in words', () => {
     expect(Math.abs(rho(stated / 2) - 0.05)).toBeLessThan(2e-3);
   });
   it('lists mean, each term and the nugget', () => {
-    const w = priorInWords({ mean: { constant: 3 }, terms: [{ kernel: 'exponential', variance: 1, length: 1 }, { kernel: 'gaussian', variance: 1, lengths: [2, 1], angle: 30 }], nugget: 0.5 }, 'm', 'K');
+    const w = priorInWords(
+      {
+        mean: { constant: 3 },
+        terms: [
+          { kernel: 'exponential', variance: 1, length: 1 },
+          { kernel: 'gaussian', variance: 1, lengths: [2, 1], angle: 30 },
+        ],
+        nugget: 0.5,
+      },
+      'm',
+      'K',
+    );
     expect(w).toHaveLength(4);
     expect(w[0]).toBe('Mean: constant 3 K.');
     expect(w[2]).toContain('lengths 2 m and 1 m at 30°');

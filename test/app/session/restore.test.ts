@@ -37,7 +37,11 @@ describe('sanitizeSavedSession: only known, well-formed keys', () => {
     ['an unknown tab', { tab: 'nonsense' }, (r) => expect(r.session.tab).toBe('posterior')],
     ['a NaN seed', { seed: Number.NaN }, (r) => expect(r.session.seed).toBe(DEFAULT_SEED)],
     ['a negative selected cell', { selectedCell: -4 }, (r) => expect(r.session.selectedCell).toBeNull()],
-    ['junk candidates', { extra: { candidates: [1, 'x', { id: 'a', name: 'A', colour: '#000', prior }] } }, (r) => expect((r.session.extra!.candidates as unknown[]).length).toBe(1)],
+    [
+      'junk candidates',
+      { extra: { candidates: [1, 'x', { id: 'a', name: 'A', colour: '#000', prior }] } },
+      (r) => expect((r.session.extra!.candidates as unknown[]).length).toBe(1),
+    ],
     ['candidates that are not a list', { extra: { candidates: 'oops' } }, (r) => expect(r.session.extra!.candidates).toEqual([])],
     ['unknown keys', { extra: { prior: 'evil', notice: 'x' }, evil: true }, (r) => expect(r.session.extra).toBeUndefined()],
   ];
@@ -61,7 +65,7 @@ describe('sanitizeSavedSession: only known, well-formed keys', () => {
   });
   it('seeded mutations of a good record never throw', () => {
     let s = 12345;
-    const rand = () => ((s = (s * 1103515245 + 12345) >>> 0) / 2 ** 32);
+    const rand = () => (s = (s * 1103515245 + 12345) >>> 0) / 2 ** 32;
     const junk = [null, undefined, Number.NaN, -1, 1e308, 'x', [], {}, [1, 2], { kind: 'user' }];
     const keys = ['format', 'source', 'prior', 'seed', 'tab', 'selectedCell', 'extra', 'savedAt'];
     for (let k = 0; k < 300; k++) {
@@ -81,9 +85,20 @@ describe('validateSavedProblem: the problem-file validators', () => {
     expect(p.data.geometry).toEqual(good.data.geometry);
   });
   const broken: [string, unknown, RegExp][] = [
-    ['a short G', { ...good, operator: { kind: 'dense', matrix: { rows: 2, cols: good.grid.shape[0], data: new Float64Array(2 * good.grid.shape[0]) } } }, /operator/],
+    [
+      'a short G',
+      {
+        ...good,
+        operator: { kind: 'dense', matrix: { rows: 2, cols: good.grid.shape[0], data: new Float64Array(2 * good.grid.shape[0]) } },
+      },
+      /operator/,
+    ],
     ['σ 0', { ...good, data: { ...good.data, sigma: new Float64Array(good.data.values.length) } }, /sigma/],
-    ['a NaN datum', { ...good, data: { ...good.data, values: Float64Array.from(good.data.values, (v, i) => (i === 2 ? Number.NaN : v)) } }, /values/],
+    [
+      'a NaN datum',
+      { ...good, data: { ...good.data, values: Float64Array.from(good.data.values, (v, i) => (i === 2 ? Number.NaN : v)) } },
+      /values/,
+    ],
     ['a 10⁹-cell grid', { ...good, grid: { shape: [1e9], spacing: [1] } }, /./],
     ['not an object', 'junk', /./],
   ];
@@ -198,10 +213,14 @@ describe('a link made on a loaded problem', () => {
     const receiver = createWorkbenchStore(inProcessClient(), { demoId: 'borehole-log' });
     await startSession(receiver, { storage, explicitDemo: null, hash });
     await settled(receiver);
-    expect(receiver.getState().loadError).toMatch(/made for the problem titled "Five cells" \(fingerprint [0-9a-f]{16}\).*load that problem/);
+    expect(receiver.getState().loadError).toMatch(
+      /made for the problem titled "Five cells" \(fingerprint [0-9a-f]{16}\).*load that problem/,
+    );
     expect(receiver.getState().prior).not.toEqual(sent);
     // Loading another problem does not apply it; loading that problem does.
-    expect(await receiver.getState().loadPieces({ ...pieces(), data: { name: 'd.csv', bytes: enc('value,sigma\n1,0.1\n2,0.1\n3,0.2\n') } })).toBe(true);
+    expect(
+      await receiver.getState().loadPieces({ ...pieces(), data: { name: 'd.csv', bytes: enc('value,sigma\n1,0.1\n2,0.1\n3,0.2\n') } }),
+    ).toBe(true);
     expect(receiver.getState().prior).not.toEqual(sent);
     expect(await receiver.getState().loadPieces(pieces())).toBe(true);
     await tick(5);

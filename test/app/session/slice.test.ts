@@ -22,7 +22,13 @@ function snapshot(s: WorkbenchState) {
 async function ready(store: WorkbenchStore) {
   const done = () => {
     const s = store.getState();
-    return s.problemStatus === 'ready' && !!s.problem && s.computedFor.posterior === `${s.problem.version}:${s.priorRevision}` && !s.busy.posterior && !Object.values(s.busy).some(Boolean);
+    return (
+      s.problemStatus === 'ready' &&
+      !!s.problem &&
+      s.computedFor.posterior === `${s.problem.version}:${s.priorRevision}` &&
+      !s.busy.posterior &&
+      !Object.values(s.busy).some(Boolean)
+    );
   };
   for (let k = 0; k < 400 && !done(); k++) await tick(5);
   expect(done()).toBe(true);
@@ -90,7 +96,12 @@ describe('loading the user problem', () => {
   it('a prior file that does not fit the grid is refused with its field', async () => {
     const { store } = await demoStore();
     const before = store.getState().prior;
-    const text = JSON.stringify({ kind: 'priorscope.prior', version: 1, mean: { values: [1, 2] }, terms: [{ kernel: 'exponential', variance: 1, length: 1 }] });
+    const text = JSON.stringify({
+      kind: 'priorscope.prior',
+      version: 1,
+      mean: { values: [1, 2] },
+      terms: [{ kernel: 'exponential', variance: 1, length: 1 }],
+    });
     expect(await store.getState().importPrior({ name: 'p.json', bytes: enc(text) })).toBe(false);
     expect(store.getState().loadError).toMatch(/^p\.json: mean\.values must be/);
     expect(store.getState().prior).toBe(before);

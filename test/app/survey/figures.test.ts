@@ -21,12 +21,25 @@ const grid1: Grid = { shape: [5], spacing: [2], origin: [1], unit: 'm', axes: ['
 
 describe('profile against position', () => {
   // Three stations given out of order along x, 1 m above the section.
-  const positions = fromRows([[150, -1], [50, -1], [100, -1]]);
+  const positions = fromRows([
+    [150, -1],
+    [50, -1],
+    [100, -1],
+  ]);
   const p = { grid: grid2, values: [3, 1, 2], sigma: [0.1, 0.2, 0.3], dataUnit: 'mGal' };
 
   it('runs along the axis the positions spread along', () => {
     expect(profileAxis(grid2, positions)).toBe(0);
-    expect(profileAxis(grid2, fromRows([[5, 0], [5, 10], [6, 40]]))).toBe(1);
+    expect(
+      profileAxis(
+        grid2,
+        fromRows([
+          [5, 0],
+          [5, 10],
+          [6, 40],
+        ]),
+      ),
+    ).toBe(1);
     expect(profileAxis(grid1, fromRows([[1], [3]]))).toBe(0);
   });
 
@@ -59,8 +72,18 @@ describe('profile against position', () => {
 describe('rays coloured by normalised residual', () => {
   const paths = {
     kind: 'paths' as const,
-    sources: fromRows([[0, 5], [0, 5], [0, 45], [0, 45]]),
-    receivers: fromRows([[200, 10], [200, 40], [200, 10], [200, 40]]),
+    sources: fromRows([
+      [0, 5],
+      [0, 5],
+      [0, 45],
+      [0, 45],
+    ]),
+    receivers: fromRows([
+      [200, 10],
+      [200, 40],
+      [200, 10],
+      [200, 40],
+    ]),
   };
 
   it('classes residuals symmetrically about zero, at least ±3, and colours the middle class grey', () => {
@@ -110,7 +133,13 @@ describe('rays coloured by normalised residual', () => {
 
 describe('the grid overlay on the Problem screen', () => {
   it('outlines the grid at its cell edges, names shape and cell size, marks the first cell centre and the stations', () => {
-    const t = gridOverlayTraces(grid2, { kind: 'points', positions: fromRows([[25, -1], [75, -1]]) });
+    const t = gridOverlayTraces(grid2, {
+      kind: 'points',
+      positions: fromRows([
+        [25, -1],
+        [75, -1],
+      ]),
+    });
     expect(t[0]).toMatchObject({ x: [0, 200, 200, 0, 0], y: [0, 0, 50, 50, 0], name: 'grid 4 × 2 cells of 50 × 25 m' });
     expect(t[1]).toMatchObject({ x: [25], y: [12.5], name: 'first cell centre (25, 12.5) m' });
     expect(t[2]).toMatchObject({ x: [25, 75], y: [-1, -1], name: 'data positions (2)' });
@@ -130,6 +159,12 @@ describe('the grid overlay on the Problem screen', () => {
 
   it('with paths: the rays and their ends', () => {
     const t = gridOverlayTraces(grid2, { kind: 'paths', sources: fromRows([[0, 5]]), receivers: fromRows([[200, 45]]) });
-    expect(t.map((x) => x.name)).toEqual(['grid 4 × 2 cells of 50 × 25 m', 'first cell centre (25, 12.5) m', '1 ray', 'sources (1)', 'receivers (1)']);
+    expect(t.map((x) => x.name)).toEqual([
+      'grid 4 × 2 cells of 50 × 25 m',
+      'first cell centre (25, 12.5) m',
+      '1 ray',
+      'sources (1)',
+      'receivers (1)',
+    ]);
   });
 });

@@ -52,11 +52,17 @@ interface ChildUsage {
 function timed(command: string, args: readonly string[], env: NodeJS.ProcessEnv = process.env): ChildUsage {
   if (!existsSync('/usr/bin/time')) throw new Error('bench cli: /usr/bin/time is needed (Debian package "time")');
   const t0 = performance.now();
-  const r = spawnSync('/usr/bin/time', ['-f', 'usage %U %S %M', command, ...args], { cwd: workDir, encoding: 'utf8', env, maxBuffer: 1 << 28 });
+  const r = spawnSync('/usr/bin/time', ['-f', 'usage %U %S %M', command, ...args], {
+    cwd: workDir,
+    encoding: 'utf8',
+    env,
+    maxBuffer: 1 << 28,
+  });
   const wallS = (performance.now() - t0) / 1000;
   const lines = r.stderr.trimEnd().split('\n');
   const m = /^usage ([\d.]+) ([\d.]+) (\d+)$/.exec(lines[lines.length - 1] ?? '');
-  if (r.status !== 0 || !m || lines.length !== 1) throw new Error(`bench cli: ${command} ${args.join(' ')} → exit ${r.status}: ${r.stderr}`);
+  if (r.status !== 0 || !m || lines.length !== 1)
+    throw new Error(`bench cli: ${command} ${args.join(' ')} → exit ${r.status}: ${r.stderr}`);
   return { wallS, cpuS: Number(m[1]) + Number(m[2]), peakMb: Number(m[3]) / 1024 };
 }
 
@@ -76,11 +82,16 @@ function median(xs: number[]): number {
 function usageReport(name: string, memory = false): Readonly<Record<string, number>> {
   const u = usage.get(name) ?? [];
   const cpu = { child_cpu_s_median: median(u.map((x) => x.cpuS)) };
-  return memory ? { ...cpu, peak_rss_mb_median: median(u.map((x) => x.peakMb)), peak_rss_mb_max: Math.max(...u.map((x) => x.peakMb)) } : cpu;
+  return memory
+    ? { ...cpu, peak_rss_mb_median: median(u.map((x) => x.peakMb)), peak_rss_mb_max: Math.max(...u.map((x) => x.peakMb)) }
+    : cpu;
 }
 
 /** A case that runs one process per timed run and reports the children's CPU time (and peak RSS). */
-function processCase(c: Omit<BenchCase, 'setup' | 'run' | 'report'> & { prepare?: () => void; command: () => [string, string[], NodeJS.ProcessEnv?] }, memory = false): BenchCase {
+function processCase(
+  c: Omit<BenchCase, 'setup' | 'run' | 'report'> & { prepare?: () => void; command: () => [string, string[], NodeJS.ProcessEnv?] },
+  memory = false,
+): BenchCase {
   const { prepare, command, ...rest } = c;
   return {
     ...rest,
@@ -152,7 +163,11 @@ function memoryCase(form: 'inline' | 'mtx'): BenchCase {
         ensureBundle();
         if (!existsSync(join(workDir, 'million-G.mtx'))) writeMillionEntryProblem();
       },
-      command: () => [process.execPath, [bin, 'posterior', '--problem', `million-${form}.json`, '--prior', 'million-prior.json', '--out', `million-${form}-posterior.json`], priorscopeEnv],
+      command: () => [
+        process.execPath,
+        [bin, 'posterior', '--problem', `million-${form}.json`, '--prior', 'million-prior.json', '--out', `million-${form}-posterior.json`],
+        priorscopeEnv,
+      ],
     },
     true,
   );
@@ -185,10 +200,18 @@ function pairedCase(): BenchCase {
       writeFileSync(join(workDir, 'p64.json'), writeProblemFile(problem, 'inline').json);
       writeFileSync(join(workDir, 'q64.json'), writePriorFile(benchPrior(64), 'q64.json'));
       const python = process.env.PRIORSCOPE_PYTHON ?? '/usr/bin/python3';
-      const script = [join(repoRoot, 'test', 'bench', 'dense_posterior.py'), join(repoRoot, 'bench-results', 'fft-problem-64.json'), join(workDir, 'dense-posterior-64.json')];
+      const script = [
+        join(repoRoot, 'test', 'bench', 'dense_posterior.py'),
+        join(repoRoot, 'bench-results', 'fft-problem-64.json'),
+        join(workDir, 'dense-posterior-64.json'),
+      ];
       pairs.length = 0;
       return () => {
-        const ours = timed(process.execPath, [bin, 'posterior', '--problem', 'p64.json', '--prior', 'q64.json', '--out', 'posterior64.json'], priorscopeEnv);
+        const ours = timed(
+          process.execPath,
+          [bin, 'posterior', '--problem', 'p64.json', '--prior', 'q64.json', '--out', 'posterior64.json'],
+          priorscopeEnv,
+        );
         pairs.push({ ours, scipy: timed(python, script, pythonEnv()) });
       };
     },
@@ -231,14 +254,35 @@ function fitPairedCase(): BenchCase {
       const y = cells.map((c) => (truth[c] ?? 0) + 0.1 * rng.nextNormal());
       writeFileSync(
         join(workDir, 'fit-p.json'),
-        JSON.stringify({ kind: 'priorscope.problem', version: 1, grid, operator: { sparse: { rows: cells.map((_, i) => i), cols: cells, values: cells.map(() => 1) } }, data: { values: y, sigma: cells.map(() => 0.1) } }),
+        JSON.stringify({
+          kind: 'priorscope.problem',
+          version: 1,
+          grid,
+          operator: { sparse: { rows: cells.map((_, i) => i), cols: cells, values: cells.map(() => 1) } },
+          data: { values: y, sigma: cells.map(() => 0.1) },
+        }),
       );
-      writeFileSync(join(workDir, 'fit-q.json'), JSON.stringify({ kind: 'priorscope.prior', version: 1, mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 0.5, length: 3 }] }));
-      writeFileSync(join(workDir, 'fit-sk.json'), JSON.stringify({ X: cells.map((c) => [c % 40, Math.floor(c / 40)]), y, sigma: 0.1, variance: 0.5, length: 3 }));
+      writeFileSync(
+        join(workDir, 'fit-q.json'),
+        JSON.stringify({
+          kind: 'priorscope.prior',
+          version: 1,
+          mean: { constant: 0 },
+          terms: [{ kernel: 'matern', nu: 1.5, variance: 0.5, length: 3 }],
+        }),
+      );
+      writeFileSync(
+        join(workDir, 'fit-sk.json'),
+        JSON.stringify({ X: cells.map((c) => [c % 40, Math.floor(c / 40)]), y, sigma: 0.1, variance: 0.5, length: 3 }),
+      );
       const python = process.env.PRIORSCOPE_PYTHON ?? '/usr/bin/python3';
       pairs.length = 0;
       return () => {
-        const ours = timed(process.execPath, [bin, 'fit', '--problem', 'fit-p.json', '--prior', 'fit-q.json', '--free', 'variance,length', '--out', 'fit-ours.json'], priorscopeEnv);
+        const ours = timed(
+          process.execPath,
+          [bin, 'fit', '--problem', 'fit-p.json', '--prior', 'fit-q.json', '--free', 'variance,length', '--out', 'fit-ours.json'],
+          priorscopeEnv,
+        );
         const ref = timed(python, [join(repoRoot, 'test', 'bench', 'sklearn_fit.py'), 'fit-sk.json', 'fit-sklearn.json'], pythonEnv());
         pairs.push({ ours, ref });
         evidence.ours = (JSON.parse(readFileSync(join(workDir, 'fit-ours.json'), 'utf8')) as { logEvidence: number }).logEvidence;
@@ -281,7 +325,11 @@ export const cases: BenchCase[] = [
       writeFileSync(join(workDir, 'p64.json'), writeProblemFile(problem, 'inline').json);
       writeFileSync(join(workDir, 'q64.json'), writePriorFile(benchPrior(64), 'q64.json'));
     },
-    command: () => [process.execPath, [bin, 'posterior', '--problem', 'p64.json', '--prior', 'q64.json', '--out', 'posterior64.json'], priorscopeEnv],
+    command: () => [
+      process.execPath,
+      [bin, 'posterior', '--problem', 'p64.json', '--prior', 'q64.json', '--out', 'posterior64.json'],
+      priorscopeEnv,
+    ],
   }),
   pairedCase(),
   fitPairedCase(),

@@ -66,9 +66,7 @@ export function benchProblem(n: number, m = M): Problem {
   const rays = Array.from({ length: m }, (_, k) => {
     const a = lo + (hi - lo) * rng.nextDouble();
     const b = lo + (hi - lo) * rng.nextDouble();
-    return k % 2 === 0
-      ? { from: [lo, a] as const, to: [hi, b] as const }
-      : { from: [a, lo] as const, to: [b, hi] as const };
+    return k % 2 === 0 ? { from: [lo, a] as const, to: [hi, b] as const } : { from: [a, lo] as const, to: [b, hi] as const };
   });
   const operator = rayOperator(grid, rays);
   const truth = new Float64Array(n * n);
@@ -83,7 +81,13 @@ export function benchProblem(n: number, m = M): Problem {
 export function writeProblemForScipy(n: number, problem: Problem): void {
   const dir = join(dirname(fileURLToPath(import.meta.url)), '..', '..', '..', 'bench-results');
   mkdirSync(dir, { recursive: true });
-  const p = { grid: problem.grid, length: n / 8, g: csrJson(problem.operator.matrix as SparseMatrix), d: Array.from(problem.data.values), sigma: Array.from(problem.data.sigma!) };
+  const p = {
+    grid: problem.grid,
+    length: n / 8,
+    g: csrJson(problem.operator.matrix as SparseMatrix),
+    d: Array.from(problem.data.values),
+    sigma: Array.from(problem.data.sigma!),
+  };
   writeFileSync(join(dir, `fft-problem-${n}.json`), JSON.stringify(p));
 }
 
@@ -111,7 +115,11 @@ function posteriorCases(n: number): BenchCase[] {
         const sp = structuredProblem(benchProblem(n));
         prepareStructuredPosterior(sp, benchPrior(n));
         let k = 0;
-        return () => prepareStructuredPosterior(sp, { ...benchPrior(n), terms: [{ kernel: 'matern', nu: 1.5, variance: 1, length: n / 8 + (k++ % 2) }] }).mean;
+        return () =>
+          prepareStructuredPosterior(sp, {
+            ...benchPrior(n),
+            terms: [{ kernel: 'matern', nu: 1.5, variance: 1, length: n / 8 + (k++ % 2) }],
+          }).mean;
       },
     },
     {
@@ -237,7 +245,13 @@ function runChild(index: number): ChildResult {
       cpu[cpu.length - 1] /= out;
     }
   }
-  return { name: c.name, median_ms: median(times), times_ms: times, peak_rss_mb: process.resourceUsage().maxRSS / 1024, median_cpu_ms: median(cpu) };
+  return {
+    name: c.name,
+    median_ms: median(times),
+    times_ms: times,
+    peak_rss_mb: process.resourceUsage().maxRSS / 1024,
+    median_cpu_ms: median(cpu),
+  };
 }
 
 function csrJson(s: SparseMatrix) {
@@ -262,7 +276,10 @@ function main(): void {
   const skip128 = args.includes('--skip-dense-128');
   const ours: ChildResult[] = cases.map((c, i) => {
     process.stderr.write(`fft bench: ${c.name} …\n`);
-    const out = execFileSync(process.execPath, [...process.execArgv, fileURLToPath(import.meta.url), '--child', String(i)], { encoding: 'utf8', maxBuffer: 1 << 26 });
+    const out = execFileSync(process.execPath, [...process.execArgv, fileURLToPath(import.meta.url), '--child', String(i)], {
+      encoding: 'utf8',
+      maxBuffer: 1 << 26,
+    });
     return JSON.parse(out) as ChildResult;
   });
   const python = process.env.PRIORSCOPE_PYTHON ?? (existsSync('/usr/bin/python3') ? '/usr/bin/python3' : 'python3');
@@ -270,8 +287,24 @@ function main(): void {
   delete env.OPENBLAS_CORETYPE;
   delete env.OPENBLAS_L2_SIZE;
   const callDense = (input: unknown) =>
-    JSON.parse(execFileSync(python, [join(here, '..', 'dense_route.py')], { input: JSON.stringify(input), encoding: 'utf8', env, maxBuffer: 1 << 28 })) as {
-      problems: { name: string; mean_s: number; mean_std_s: number; mean_min_s: number; mean_std_min_s: number; peak_rss_mb: number; mean: number[]; std: number[] }[];
+    JSON.parse(
+      execFileSync(python, [join(here, '..', 'dense_route.py')], {
+        input: JSON.stringify(input),
+        encoding: 'utf8',
+        env,
+        maxBuffer: 1 << 28,
+      }),
+    ) as {
+      problems: {
+        name: string;
+        mean_s: number;
+        mean_std_s: number;
+        mean_min_s: number;
+        mean_std_min_s: number;
+        peak_rss_mb: number;
+        mean: number[];
+        std: number[];
+      }[];
       fft: { kind: string; size: number[]; seconds: number }[];
     };
   const dense: Record<string, unknown>[] = [];
@@ -284,7 +317,17 @@ function main(): void {
       process.stderr.write(`fft bench: dense scipy route ${n}x${n} …\n`);
       const problem = benchProblem(n);
       const r = callDense({
-        problems: [{ name: `${n}x${n}`, grid: problem.grid, length: n / 8, g: csrJson(problem.operator.matrix as SparseMatrix), d: Array.from(problem.data.values), sigma: Array.from(problem.data.sigma!), runs: n === 64 ? 5 : 2 }],
+        problems: [
+          {
+            name: `${n}x${n}`,
+            grid: problem.grid,
+            length: n / 8,
+            g: csrJson(problem.operator.matrix as SparseMatrix),
+            d: Array.from(problem.data.values),
+            sigma: Array.from(problem.data.sigma!),
+            runs: n === 64 ? 5 : 2,
+          },
+        ],
       }).problems[0];
       const st = prepareStructuredPosterior(problem, benchPrior(n));
       const std = structuredPosteriorStd(st);

@@ -66,8 +66,10 @@ function gridCases(n: number, m = M, full = true): BenchCase[] {
       return () => fn(sp, changed(n, k++));
     },
   });
-  const split = (opts: ParallelProductsOptions = {}) => (sp: ReturnType<typeof structuredProblem>, prior: PriorSpec) =>
-    prepareStructuredPosteriorParallel(sp, prior, pool(), opts).then((s) => s.mean);
+  const split =
+    (opts: ParallelProductsOptions = {}) =>
+    (sp: ReturnType<typeof structuredProblem>, prior: PriorSpec) =>
+      prepareStructuredPosteriorParallel(sp, prior, pool(), opts).then((s) => s.mean);
   const threshold = [
     cold('mean cold, 1 thread', (sp, prior) => prepareStructuredPosterior(sp, prior).mean),
     cold('mean cold, split (caller + 1 worker, shared Bᵀ)', split()),
@@ -81,7 +83,9 @@ function gridCases(n: number, m = M, full = true): BenchCase[] {
     cold('mean cold, split (caller + 1 worker, rows transferred)', split({ shared: false })),
     warm('mean after a prior change, split (caller + 1 worker, rows transferred)', split({ shared: false })),
     cold('mean + std cold, 1 thread', (sp, prior) => structuredPosteriorStd(prepareStructuredPosterior(sp, prior))),
-    cold('mean + std cold, split products + split std', async (sp, prior) => parallelPosteriorStd(await prepareStructuredPosteriorParallel(sp, prior, pool()), pool())),
+    cold('mean + std cold, split products + split std', async (sp, prior) =>
+      parallelPosteriorStd(await prepareStructuredPosteriorParallel(sp, prior, pool()), pool()),
+    ),
   ];
 }
 
@@ -125,9 +129,20 @@ async function main(): Promise<void> {
       times[k].push(performance.now() - ts);
     }
   }
-  const out = chosen.map((c, k) => ({ name: c.name, median_ms: median(times[k]), min_ms: Math.min(...times[k]), times_ms: times[k].map((t) => Math.round(t * 10) / 10) }));
+  const out = chosen.map((c, k) => ({
+    name: c.name,
+    median_ms: median(times[k]),
+    min_ms: Math.min(...times[k]),
+    times_ms: times[k].map((t) => Math.round(t * 10) / 10),
+  }));
   await p.close();
-  console.log(JSON.stringify({ date: new Date().toISOString(), node: process.version, poolStartMs, load: [load0, loadavg()[0]], cases: out }, null, 2));
+  console.log(
+    JSON.stringify(
+      { date: new Date().toISOString(), node: process.version, poolStartMs, load: [load0, loadavg()[0]], cases: out },
+      null,
+      2,
+    ),
+  );
 }
 
 if (process.argv[1] !== undefined && fileURLToPath(import.meta.url) === process.argv[1]) void main();

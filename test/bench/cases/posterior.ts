@@ -40,7 +40,10 @@ function setup(kind: 'dense' | 'sparse', n: number, m: number) {
     }
   }
   const op: Operator = kind === 'dense' ? { kind: 'dense', matrix: G } : { kind: 'sparse', matrix: denseToSparse(G) };
-  const values = applyOperator(op, x.map((v) => Math.sin(v / 40))).map((v, k) => v + 0.01 * Math.cos(k));
+  const values = applyOperator(
+    op,
+    x.map((v) => Math.sin(v / 40)),
+  ).map((v, k) => v + 0.01 * Math.cos(k));
   const problem: Problem = { grid, operator: op, data: { values, sigma: new Float64Array(m).fill(0.01) } };
   return { problem, prior, Cm: covarianceMatrix(grid, prior), m0: meanVector(grid, prior) };
 }

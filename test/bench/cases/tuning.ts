@@ -54,10 +54,26 @@ if (import.meta.url === `file://${process.argv[1]}`) {
   const out = cases.map((c) => {
     const fn = c.setup!();
     const t0 = performance.now();
-    const r = fn() as { method?: string; best?: unknown; iterations?: number; converged?: boolean; logEvidence?: number; parameters?: { name: string; value: number; standardError: number }[] };
+    const r = fn() as {
+      method?: string;
+      best?: unknown;
+      iterations?: number;
+      converged?: boolean;
+      logEvidence?: number;
+      parameters?: { name: string; value: number; standardError: number }[];
+    };
     const ms = performance.now() - t0;
     const parameters = r.parameters?.map((p) => ({ name: p.name, value: p.value, standardError: p.standardError }));
-    return { name: c.name, ms: +ms.toFixed(1), method: r.method, best: r.best, iterations: r.iterations, converged: r.converged, logEvidence: typeof r.logEvidence === 'number' ? r.logEvidence : undefined, parameters };
+    return {
+      name: c.name,
+      ms: +ms.toFixed(1),
+      method: r.method,
+      best: r.best,
+      iterations: r.iterations,
+      converged: r.converged,
+      logEvidence: typeof r.logEvidence === 'number' ? r.logEvidence : undefined,
+      parameters,
+    };
   });
   console.log(JSON.stringify(out, null, 1));
 }

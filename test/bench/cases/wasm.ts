@@ -40,7 +40,11 @@ function varianceCase(label: 'js' | 'wasm' | 'wasm-repack', grid: number): Bench
   const m = 400;
   const n = grid * grid;
   const name =
-    label === 'js' ? 'JS kernel' : label === 'wasm' ? `wasm SIMD${wasmAvailable() ? '' : ' (unavailable: JS fallback)'}` : 'wasm, L re-packed per block';
+    label === 'js'
+      ? 'JS kernel'
+      : label === 'wasm'
+        ? `wasm SIMD${wasmAvailable() ? '' : ' (unavailable: JS fallback)'}`
+        : 'wasm, L re-packed per block';
   return {
     name: `variance ${name}: ${grid}², M=${m}, N=${n}`,
     params: { m, n },
@@ -87,7 +91,10 @@ function gemmCase(label: 'js' | 'wasm', m: number, n: number, k: number, lower: 
 
 export const cases: BenchCase[] = [
   ...[64, 128].flatMap((grid) => (['js', 'wasm', 'wasm-repack'] as const).map((label) => varianceCase(label, grid))),
-  ...([[1000, 1000, 1000, false], [1936, 64, 1000, true]] as const).flatMap(([m, n, k, lower]) =>
-    (['js', 'wasm'] as const).map((label) => gemmCase(label, m, n, k, lower)),
-  ),
+  ...(
+    [
+      [1000, 1000, 1000, false],
+      [1936, 64, 1000, true],
+    ] as const
+  ).flatMap(([m, n, k, lower]) => (['js', 'wasm'] as const).map((label) => gemmCase(label, m, n, k, lower))),
 ];

@@ -52,13 +52,37 @@ export const COVARIANCE_CASES: readonly CovarianceCase[] = [
   { name: '1-D spherical', grid: g1, prior: { mean: zero, terms: [{ kernel: 'spherical', variance: 1.5, length: 3.3 }] } },
   { name: '1-D matern 0.5', grid: g1, prior: { mean: zero, terms: [{ kernel: 'matern', nu: 0.5, variance: 1, length: 1 }] } },
   { name: '1-D matern 1.5', grid: g1, prior: { mean: zero, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, length: 2 }] } },
-  { name: '1-D matern 2.5 + nugget + profile', grid: g1, prior: { mean: zero, nugget: 0.05, stdProfile: profile(23, 7), terms: [{ kernel: 'matern', nu: 2.5, variance: 3, length: 0.9 }] } },
+  {
+    name: '1-D matern 2.5 + nugget + profile',
+    grid: g1,
+    prior: { mean: zero, nugget: 0.05, stdProfile: profile(23, 7), terms: [{ kernel: 'matern', nu: 2.5, variance: 3, length: 0.9 }] },
+  },
   { name: '2-D exponential isotropic', grid: g2, prior: { mean: zero, terms: [{ kernel: 'exponential', variance: 1, length: 2.5 }] } },
-  { name: '2-D gaussian anisotropic, angle 0', grid: g2, prior: { mean: zero, terms: [{ kernel: 'gaussian', variance: 1, lengths: [4, 1.2] }] } },
-  { name: '2-D gaussian rotated 30°', grid: g2, prior: { mean: zero, terms: [{ kernel: 'gaussian', variance: 1, lengths: [4, 1.2], angle: 30 }] } },
-  { name: '2-D matern 1.5 rotated 120°', grid: g2b, prior: { mean: zero, terms: [{ kernel: 'matern', nu: 1.5, variance: 2, lengths: [3, 0.8], angle: 120 }] } },
-  { name: '2-D spherical rotated −45°', grid: g2b, prior: { mean: zero, terms: [{ kernel: 'spherical', variance: 1, lengths: [5, 2], angle: -45 }] } },
-  { name: '2-D matern 2.5 rotated 75°', grid: g2, prior: { mean: zero, terms: [{ kernel: 'matern', nu: 2.5, variance: 1, lengths: [2, 6], angle: 75 }] } },
+  {
+    name: '2-D gaussian anisotropic, angle 0',
+    grid: g2,
+    prior: { mean: zero, terms: [{ kernel: 'gaussian', variance: 1, lengths: [4, 1.2] }] },
+  },
+  {
+    name: '2-D gaussian rotated 30°',
+    grid: g2,
+    prior: { mean: zero, terms: [{ kernel: 'gaussian', variance: 1, lengths: [4, 1.2], angle: 30 }] },
+  },
+  {
+    name: '2-D matern 1.5 rotated 120°',
+    grid: g2b,
+    prior: { mean: zero, terms: [{ kernel: 'matern', nu: 1.5, variance: 2, lengths: [3, 0.8], angle: 120 }] },
+  },
+  {
+    name: '2-D spherical rotated −45°',
+    grid: g2b,
+    prior: { mean: zero, terms: [{ kernel: 'spherical', variance: 1, lengths: [5, 2], angle: -45 }] },
+  },
+  {
+    name: '2-D matern 2.5 rotated 75°',
+    grid: g2,
+    prior: { mean: zero, terms: [{ kernel: 'matern', nu: 2.5, variance: 1, lengths: [2, 6], angle: 75 }] },
+  },
   {
     name: '2-D sum: exponential + rotated gaussian + nugget + profile',
     grid: g2b,
@@ -73,7 +97,11 @@ export const COVARIANCE_CASES: readonly CovarianceCase[] = [
       ],
     },
   },
-  { name: '2-D grid with nx = 1', grid: g2c, prior: { mean: zero, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, lengths: [2, 3], angle: 10 }] } },
+  {
+    name: '2-D grid with nx = 1',
+    grid: g2c,
+    prior: { mean: zero, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, lengths: [2, 3], angle: 10 }] },
+  },
 ];
 
 /** `count` straight rays between seeded points on the left/right and top/bottom edges of a 2-D grid. */

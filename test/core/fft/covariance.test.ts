@@ -56,7 +56,8 @@ describe('padding and path', () => {
     const op = covarianceOperator(grid, prior);
     const data = seededVector(3 * n, 8);
     const out = op.applyMany({ rows: 3, cols: n, data });
-    for (let r = 0; r < 3; r++) expect(relErr(out.data.subarray(r * n, (r + 1) * n), op.apply(data.subarray(r * n, (r + 1) * n)))).toBeLessThan(1e-13);
+    for (let r = 0; r < 3; r++)
+      expect(relErr(out.data.subarray(r * n, (r + 1) * n), op.apply(data.subarray(r * n, (r + 1) * n)))).toBeLessThan(1e-13);
   });
 
   it('a 3-axis grid is not FFT-able and the reason says why', () => {
@@ -69,11 +70,19 @@ describe('padding and path', () => {
   });
 });
 
-describe('CirculantProduct: the JavaScript engine gives the WebAssembly engine\'s bits', () => {
+describe("CirculantProduct: the JavaScript engine gives the WebAssembly engine's bits", () => {
   // Odd sizes leave zero rows between ny and py/2 and columns between nx and px/2; 64 × 64 is the
   // benchmark shape (no gap); 1 × n, n × 1 and 2 × 2 take the copy and radix-2 paths. Each pair of
   // vectors has all-zero grid rows (runs of data rows).
-  const shapes: [number, number][] = [[9, 7], [16, 5], [3, 12], [64, 64], [1, 9], [9, 1], [2, 2]];
+  const shapes: [number, number][] = [
+    [9, 7],
+    [16, 5],
+    [3, 12],
+    [64, 64],
+    [1, 9],
+    [9, 1],
+    [2, 2],
+  ];
   const prior: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 1.3, lengths: [3, 1.5], angle: 25 }] };
   for (const [nx, ny] of shapes) {
     it(`${nx} × ${ny}: products and saved spectra equal bit for bit, fallback when SIMD is off`, () => {
@@ -129,4 +138,3 @@ describe('CirculantProduct: the JavaScript engine gives the WebAssembly engine\'
     });
   }
 });
-

@@ -46,7 +46,19 @@ function maxAbs(a: ArrayLike<number>): number {
 }
 
 describe('evenRealSpectrum', () => {
-  const shapes: [number, number][] = [[1, 1], [2, 1], [1, 2], [4, 1], [1, 8], [2, 2], [8, 2], [2, 16], [16, 32], [64, 8], [128, 128]];
+  const shapes: [number, number][] = [
+    [1, 1],
+    [2, 1],
+    [1, 2],
+    [4, 1],
+    [1, 8],
+    [2, 2],
+    [8, 2],
+    [2, 16],
+    [16, 32],
+    [64, 8],
+    [128, 128],
+  ];
   it.each(shapes)('equals the complex 2-D transform on a random even %i × %i array (1e-13 of max |λ|)', (px, py) => {
     const a = randomEven(px, py, 7 * px + py);
     const { re, maxIm } = fullSpectrum(a, px, py);
@@ -61,11 +73,21 @@ describe('evenRealSpectrum', () => {
 
   const priors: { name: string; terms: Term[] }[] = [
     { name: 'rotated anisotropic Gaussian', terms: [{ kernel: 'gaussian', variance: 2, lengths: [9, 3], angle: 30 }] },
-    { name: 'Matérn 2.5 + exponential', terms: [{ kernel: 'matern', nu: 2.5, variance: 1, length: 5 }, { kernel: 'exponential', variance: 0.5, lengths: [2, 6], angle: -50 }] },
+    {
+      name: 'Matérn 2.5 + exponential',
+      terms: [
+        { kernel: 'matern', nu: 2.5, variance: 1, length: 5 },
+        { kernel: 'exponential', variance: 0.5, lengths: [2, 6], angle: -50 },
+      ],
+    },
   ];
   it.each(priors)('equals the complex transform on the circulant base of a $name prior', ({ terms }) => {
     const grid = { shape: [20, 12] as [number, number], spacing: [1, 1.5] as [number, number] };
-    for (const [px, py] of [[64, 32], [32, 32], [64, 64]] as const) {
+    for (const [px, py] of [
+      [64, 32],
+      [32, 32],
+      [64, 64],
+    ] as const) {
       const base = circulantBase(grid, terms, px, py);
       const { re } = fullSpectrum(base, px, py);
       const got = evenRealSpectrum(base, px, py);

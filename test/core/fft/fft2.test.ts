@@ -83,7 +83,17 @@ function directDft2(x: Float64Array, px: number, py: number, inverse: boolean): 
 }
 
 describe('Fft2 on small and degenerate sizes (sizes 1 and 2 take the copy and radix-2 paths)', () => {
-  const shapes: [number, number][] = [[1, 1], [1, 2], [2, 1], [2, 2], [4, 2], [2, 8], [8, 4], [16, 1], [1, 16]];
+  const shapes: [number, number][] = [
+    [1, 1],
+    [1, 2],
+    [2, 1],
+    [2, 2],
+    [4, 2],
+    [2, 8],
+    [8, 4],
+    [16, 1],
+    [1, 16],
+  ];
   for (const [px, py] of shapes) {
     it(`${px} × ${py}: full, inputRows and outputRows transforms equal the direct DFT`, () => {
       for (const inverse of [false, true]) {

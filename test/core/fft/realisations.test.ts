@@ -36,8 +36,24 @@ function chi2Limits(df: number, alpha: number): [number, number] {
 const ALPHA = 1e-4;
 
 const STAT_CASES: { name: string; grid: Grid; prior: PriorSpec }[] = [
-  { name: '2-D matern 1.5 rotated, trend mean', grid: { shape: [6, 5], spacing: [1, 0.8] }, prior: { mean: { trend: { intercept: 2, slope: [0.1, 0.3] } }, terms: [{ kernel: 'matern', nu: 1.5, variance: 1.5, lengths: [3, 1.2], angle: 40 }] } },
-  { name: '1-D exponential with profile and nugget', grid: { shape: [25], spacing: [0.5] }, prior: { mean: { constant: -1 }, nugget: 0.05, stdProfile: Array.from(seededVector(25, 3), (v) => 1 + 0.5 * v), terms: [{ kernel: 'exponential', variance: 1, length: 2 }] } },
+  {
+    name: '2-D matern 1.5 rotated, trend mean',
+    grid: { shape: [6, 5], spacing: [1, 0.8] },
+    prior: {
+      mean: { trend: { intercept: 2, slope: [0.1, 0.3] } },
+      terms: [{ kernel: 'matern', nu: 1.5, variance: 1.5, lengths: [3, 1.2], angle: 40 }],
+    },
+  },
+  {
+    name: '1-D exponential with profile and nugget',
+    grid: { shape: [25], spacing: [0.5] },
+    prior: {
+      mean: { constant: -1 },
+      nugget: 0.05,
+      stdProfile: Array.from(seededVector(25, 3), (v) => 1 + 0.5 * v),
+      terms: [{ kernel: 'exponential', variance: 1, length: 2 }],
+    },
+  },
 ];
 
 /**
@@ -146,7 +162,9 @@ describe('padding growth', () => {
 
   it('gaussian: padding grows with the correlation length (Dietrich & Newsam 1997; Wood & Chan 1994)', () => {
     const grid: Grid = { shape: [32, 32], spacing: [1, 1] };
-    const sizes = [1, 4, 6, 12].map((length) => nonNegativeEmbedding(grid, [{ kernel: 'gaussian', variance: 1, length }], { maxCells: 1 << 20 }));
+    const sizes = [1, 4, 6, 12].map((length) =>
+      nonNegativeEmbedding(grid, [{ kernel: 'gaussian', variance: 1, length }], { maxCells: 1 << 20 }),
+    );
     expect(sizes[0].embedding.px).toBe(64); // short length: minimal embedding suffices
     for (const s of sizes) expect(s.nonNegative).toBe(true);
     for (let k = 1; k < sizes.length; k++) expect(sizes[k].embedding.px).toBeGreaterThanOrEqual(sizes[k - 1].embedding.px);
@@ -158,7 +176,9 @@ describe('padding growth', () => {
 
   it('matern: longer lengths need at least as much padding (Graham et al. 2018)', () => {
     const grid: Grid = { shape: [24], spacing: [1] };
-    const px = [2, 8, 32].map((length) => nonNegativeEmbedding(grid, [{ kernel: 'matern', nu: 2.5, variance: 1, length }], { maxCells: 1 << 16 }).embedding.px);
+    const px = [2, 8, 32].map(
+      (length) => nonNegativeEmbedding(grid, [{ kernel: 'matern', nu: 2.5, variance: 1, length }], { maxCells: 1 << 16 }).embedding.px,
+    );
     for (let k = 1; k < px.length; k++) expect(px[k]).toBeGreaterThanOrEqual(px[k - 1]);
   });
 });

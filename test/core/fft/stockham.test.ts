@@ -10,7 +10,16 @@ import { javascriptFftEngine, wasmFftEngine } from '../../../src/core/fft/transf
 import { seededVector } from './cases.ts';
 
 /** Runs one engine call on a copy of `x` laid out at the work base and returns the dst region. */
-function runOn(e: FftEngine, x: Float64Array, n: number, s: number, count: number, inverse: boolean, halfZero: boolean, halfOut: boolean): Float64Array {
+function runOn(
+  e: FftEngine,
+  x: Float64Array,
+  n: number,
+  s: number,
+  count: number,
+  inverse: boolean,
+  halfZero: boolean,
+  halfOut: boolean,
+): Float64Array {
   if (n > 1) e.twiddles(n, inverse);
   const bytes = 16 * n * s * count;
   const src = e.workBase();

@@ -17,7 +17,11 @@ const prior: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'exponential
 function lineProblem(n: number, shape: number[] = [n]): Problem {
   const G = matrix(1, n);
   G.data[0] = 1;
-  return { grid: { shape, spacing: shape.map(() => 1) }, operator: { kind: 'dense', matrix: G }, data: { values: new Float64Array([1]), sigma: new Float64Array([0.1]) } };
+  return {
+    grid: { shape, spacing: shape.map(() => 1) },
+    operator: { kind: 'dense', matrix: G },
+    data: { values: new Float64Array([1]), sigma: new Float64Array([0.1]) },
+  };
 }
 
 describe('choosePosteriorPath', () => {
@@ -33,7 +37,9 @@ describe('choosePosteriorPath', () => {
     expect(d.path).toBe('dense');
     expect(d.reason).toContain('grid has 3 axes');
     expect(() => choosePosteriorPath(p, prior, 'fft', '--path')).toThrow(InputError);
-    expect(() => choosePosteriorPath(p, prior, 'fft', '--path')).toThrow(/^--path must be "dense" or "auto" for this problem .*grid has 3 axes.*, got "fft"$/);
+    expect(() => choosePosteriorPath(p, prior, 'fft', '--path')).toThrow(
+      /^--path must be "dense" or "auto" for this problem .*grid has 3 axes.*, got "fft"$/,
+    );
   });
 });
 

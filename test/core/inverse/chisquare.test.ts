@@ -1,11 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import {
-  chiSquareCdf,
-  chiSquareInterval,
-  chiSquareQuantile,
-  logGamma,
-  regularizedGammaP,
-} from '../../../src/core/inverse/chisquare.ts';
+import { chiSquareCdf, chiSquareInterval, chiSquareQuantile, logGamma, regularizedGammaP } from '../../../src/core/inverse/chisquare.ts';
 
 describe('chiSquareQuantile', () => {
   // NIST/SEMATECH e-Handbook of Statistical Methods §1.3.6.7.4, table of χ² critical values

@@ -16,7 +16,11 @@ describe('checkedFinite', () => {
   ] as const)('a non-finite %s entry is refused with where it came out and what to check', (name, i, v) => {
     const a = Float64Array.from(summary[name]);
     a[i] = v;
-    expect(() => checkedFinite({ ...summary, [name]: a })).toThrow(new RegExp(`^posterior must be finite numbers; ${name}\\[${i}\\] came out ${String(v).replace('+', '\\+')} because the scales .*units`));
+    expect(() => checkedFinite({ ...summary, [name]: a })).toThrow(
+      new RegExp(
+        `^posterior must be finite numbers; ${name}\\[${i}\\] came out ${String(v).replace('+', '\\+')} because the scales .*units`,
+      ),
+    );
   });
   it('a non-finite log evidence too', () => {
     expect(() => checkedFinite({ ...summary, logEvidence: Number.NaN })).toThrow(/logEvidence came out NaN/);

@@ -134,7 +134,10 @@ function banded(): Matrix {
 
 describe.each(['diagonal', 'full'] as const)('posterior realisations, %s Cd', (cdKind) => {
   const { x } = cellCoordinates(grid);
-  const values = applyOperator(G, x.map((v) => 2 + Math.sin(v / 5))).map((v, k) => v + 0.1 * Math.cos(k));
+  const values = applyOperator(
+    G,
+    x.map((v) => 2 + Math.sin(v / 5)),
+  ).map((v, k) => v + 0.1 * Math.cos(k));
   const problem: Problem = { grid, operator: G, data: cdKind === 'diagonal' ? { values, sigma } : { values, covariance: banded() } };
   const state = preparePosterior(problem, prior);
   const s = posteriorSummary(state);
@@ -154,7 +157,10 @@ describe.each(['diagonal', 'full'] as const)('posterior realisations, %s Cd', (c
     let total = 0;
     const ybar = new Float64Array(n);
     for (let q = 0; q < S; q++) {
-      const y = solveLower(fc.factor, draws.data.subarray(q * n, (q + 1) * n).map((v, i) => v - s.mean[i]));
+      const y = solveLower(
+        fc.factor,
+        draws.data.subarray(q * n, (q + 1) * n).map((v, i) => v - s.mean[i]),
+      );
       for (let i = 0; i < n; i++) {
         total += y[i] * y[i];
         ybar[i] += y[i] / S;
@@ -183,14 +189,26 @@ describe.each(['diagonal', 'full'] as const)('posterior realisations, %s Cd', (c
   });
   it('sample covariance between two cells matches the posterior covariance (Fisher z, 3.29 sd)', () => {
     // Fisher's z of a sample correlation is ≈ N(atanh ρ, 1/(S−3)) (Fisher 1921; common practice).
-    for (const [i, j] of [[5, 7], [12, 30], [20, 21]] as const) {
-      let mi = 0, mj = 0;
-      for (let q = 0; q < S; q++) { mi += draws.data[q * n + i] / S; mj += draws.data[q * n + j] / S; }
-      let sii = 0, sjj = 0, sij = 0;
+    for (const [i, j] of [
+      [5, 7],
+      [12, 30],
+      [20, 21],
+    ] as const) {
+      let mi = 0,
+        mj = 0;
+      for (let q = 0; q < S; q++) {
+        mi += draws.data[q * n + i] / S;
+        mj += draws.data[q * n + j] / S;
+      }
+      let sii = 0,
+        sjj = 0,
+        sij = 0;
       for (let q = 0; q < S; q++) {
         const a = draws.data[q * n + i] - mi;
         const b = draws.data[q * n + j] - mj;
-        sii += a * a; sjj += b * b; sij += a * b;
+        sii += a * a;
+        sjj += b * b;
+        sij += a * b;
       }
       const rSample = sij / Math.sqrt(sii * sjj);
       const rTrue = C.data[i * n + j] / Math.sqrt(C.data[i * n + i] * C.data[j * n + j]);
@@ -203,7 +221,10 @@ describe('special cases and edge behaviour', () => {
   it('one datum, one cell: the textbook normal-normal update', () => {
     // m ~ N(μ, τ²), d = m + e, e ~ N(0, s²): mean (τ² d + s² μ)/(τ² + s²), variance τ² s²/(τ² + s²),
     // evidence N(d; μ, τ² + s²) (Gelman et al., Bayesian Data Analysis, §2.5, memory).
-    const tau2 = 2.5, s2 = 0.4, mu = 1.2, d = 3.1;
+    const tau2 = 2.5,
+      s2 = 0.4,
+      mu = 1.2,
+      d = 3.1;
     const problem: Problem = {
       grid: { shape: [1], spacing: [1] },
       operator: { kind: 'dense', matrix: fromRows([[1]]) },
@@ -214,7 +235,7 @@ describe('special cases and edge behaviour', () => {
     expect(s.mean[0]).toBeCloseTo((tau2 * d + s2 * mu) / (tau2 + s2), 14);
     expect(s.std[0] ** 2).toBeCloseTo((tau2 * s2) / (tau2 + s2), 14);
     const v = tau2 + s2;
-    expect(s.logEvidence).toBeCloseTo(-0.5 * (d - mu) ** 2 / v - 0.5 * Math.log(2 * Math.PI * v), 14);
+    expect(s.logEvidence).toBeCloseTo((-0.5 * (d - mu) ** 2) / v - 0.5 * Math.log(2 * Math.PI * v), 14);
     expect(s.resolutionTrace).toBeCloseTo(tau2 / (tau2 + s2), 14);
     expect(logEvidenceFromFactor(st.L, st.r, st.alpha)).toBe(s.logEvidence);
   });
@@ -225,7 +246,9 @@ describe('special cases and edge behaviour', () => {
       operator: { kind: 'dense', matrix: identity(n) },
       data: { values: new Float64Array(n).fill(1), sigma: new Float64Array(n).fill(1e-9) },
     };
-    const s = posteriorSummary(preparePosterior(problem, { mean: { constant: 0 }, terms: [{ kernel: 'gaussian', variance: 1e6, length: 3 }], nugget: 1 }));
+    const s = posteriorSummary(
+      preparePosterior(problem, { mean: { constant: 0 }, terms: [{ kernel: 'gaussian', variance: 1e6, length: 3 }], nugget: 1 }),
+    );
     // True posterior variance ≈ σ² = 1e-18, but Cm_ii − Σ W_ki² cancels two numbers of size
     // Cm_ii ≈ 1e6, so the computed value carries an absolute error of a few ε·Cm_ii (ε = 2.2e-16;
     // standard floating-point error analysis, common practice): std ≤ √(100 ε Cm_ii) ≈ 1.5e-4.
@@ -246,7 +269,11 @@ describe('special cases and edge behaviour', () => {
     };
     // Derived: with G = I, R = Cm (Cm + σ²I)⁻¹ = I − σ² (Cm + σ²I)⁻¹, so ‖R − I‖ ≤ σ²/λmin(Cm) and
     // λmin(Cm) ≥ nugget = 0.1: every entry of R − I is below 1e-11, tr R within n·1e-11 of n.
-    const state = preparePosterior(problem, { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length: 2 }], nugget: 0.1 });
+    const state = preparePosterior(problem, {
+      mean: { constant: 0 },
+      terms: [{ kernel: 'exponential', variance: 1, length: 2 }],
+      nugget: 0.1,
+    });
     const s = posteriorSummary(state);
     expect(Math.abs(s.resolutionTrace - n)).toBeLessThan(n * 1e-11);
     resolutionRow(state, 3).forEach((v, j) => expect(Math.abs(v - (j === 3 ? 1 : 0))).toBeLessThan(1e-11));
@@ -254,24 +281,28 @@ describe('special cases and edge behaviour', () => {
 });
 
 describe('bad input', () => {
-  const problem = (data: Problem['data']): Problem => ({ grid: { shape: [3], spacing: [1] }, operator: { kind: 'dense', matrix: identity(3) }, data });
+  const problem = (data: Problem['data']): Problem => ({
+    grid: { shape: [3], spacing: [1] },
+    operator: { kind: 'dense', matrix: identity(3) },
+    data,
+  });
   const C3: Matrix = identity(3);
   it('names the field and what was expected', () => {
-    expect(() => preparePosteriorFromCovariance(problem({ values: new Float64Array(3), sigma: Float64Array.of(1, 0, 1) }), C3, [0, 0, 0])).toThrow(
-      'problem.data.sigma[1] must be a finite number > 0, got 0',
-    );
-    expect(() => preparePosteriorFromCovariance(problem({ values: new Float64Array(2), sigma: new Float64Array(2).fill(1) }), C3, [0, 0, 0])).toThrow(
-      'problem.data.values must be 3 numbers (one per operator row), got an array of length 2',
-    );
+    expect(() =>
+      preparePosteriorFromCovariance(problem({ values: new Float64Array(3), sigma: Float64Array.of(1, 0, 1) }), C3, [0, 0, 0]),
+    ).toThrow('problem.data.sigma[1] must be a finite number > 0, got 0');
+    expect(() =>
+      preparePosteriorFromCovariance(problem({ values: new Float64Array(2), sigma: new Float64Array(2).fill(1) }), C3, [0, 0, 0]),
+    ).toThrow('problem.data.values must be 3 numbers (one per operator row), got an array of length 2');
     expect(() => preparePosteriorFromCovariance(problem({ values: new Float64Array(3) }), C3, [0, 0, 0])).toThrow(
       'problem.data must be exactly one of sigma or covariance, got "neither"',
     );
-    expect(() => preparePosteriorFromCovariance(problem({ values: Float64Array.of(0, NaN, 0), sigma: new Float64Array(3).fill(1) }), C3, [0, 0, 0])).toThrow(
-      'problem.data.values[1] must be a finite number, got NaN',
-    );
-    expect(() => preparePosteriorFromCovariance(problem({ values: new Float64Array(3), sigma: new Float64Array(3).fill(1) }), identity(4), [0, 0, 0])).toThrow(
-      'prior covariance Cm must be a 3×3 matrix, got "4×4"',
-    );
+    expect(() =>
+      preparePosteriorFromCovariance(problem({ values: Float64Array.of(0, NaN, 0), sigma: new Float64Array(3).fill(1) }), C3, [0, 0, 0]),
+    ).toThrow('problem.data.values[1] must be a finite number, got NaN');
+    expect(() =>
+      preparePosteriorFromCovariance(problem({ values: new Float64Array(3), sigma: new Float64Array(3).fill(1) }), identity(4), [0, 0, 0]),
+    ).toThrow('prior covariance Cm must be a 3×3 matrix, got "4×4"');
   });
   it('resolutionRow and posteriorRealisations check their arguments', () => {
     const st = preparePosteriorFromCovariance(problem({ values: new Float64Array(3), sigma: new Float64Array(3).fill(1) }), C3, [0, 0, 0]);
@@ -280,11 +311,21 @@ describe('bad input', () => {
     expect(() => posteriorRealisations(st, 2, -5)).toThrow(/seed/);
   });
   it('an indefinite full Cd or K gives NotPositiveDefiniteError with a hint', () => {
-    const bad = fromRows([[1, 2, 0], [2, 1, 0], [0, 0, 1]]);
-    expect(() => preparePosteriorFromCovariance(problem({ values: new Float64Array(3), covariance: bad }), C3, [0, 0, 0])).toThrow(NotPositiveDefiniteError);
-    const negCm = fromRows([[-5, 0, 0], [0, 1, 0], [0, 0, 1]]);
-    expect(() => preparePosteriorFromCovariance(problem({ values: new Float64Array(3), sigma: new Float64Array(3).fill(1) }), negCm, [0, 0, 0])).toThrow(
-      /data-space covariance K is not positive definite \(Cholesky failed at row 0\): K = G Cm Gᵀ \+ Cd must be positive definite/,
+    const bad = fromRows([
+      [1, 2, 0],
+      [2, 1, 0],
+      [0, 0, 1],
+    ]);
+    expect(() => preparePosteriorFromCovariance(problem({ values: new Float64Array(3), covariance: bad }), C3, [0, 0, 0])).toThrow(
+      NotPositiveDefiniteError,
     );
+    const negCm = fromRows([
+      [-5, 0, 0],
+      [0, 1, 0],
+      [0, 0, 1],
+    ]);
+    expect(() =>
+      preparePosteriorFromCovariance(problem({ values: new Float64Array(3), sigma: new Float64Array(3).fill(1) }), negCm, [0, 0, 0]),
+    ).toThrow(/data-space covariance K is not positive definite \(Cholesky failed at row 0\): K = G Cm Gᵀ \+ Cd must be positive definite/);
   });
 });

@@ -39,9 +39,29 @@ function rayProblem(m: number, seed: number, fullCd = false): Problem {
 }
 
 const PRIORS: { name: string; prior: PriorSpec }[] = [
-  { name: 'matern 1.5 rotated, constant mean', prior: { mean: { constant: 0.2 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, lengths: [4, 2], angle: 30 }] } },
-  { name: 'exponential + gaussian sum, trend mean', prior: { mean: { trend: { intercept: 1, slope: [0.1, -0.05] } }, terms: [{ kernel: 'exponential', variance: 0.4, length: 2 }, { kernel: 'gaussian', variance: 0.6, lengths: [5, 1.5], angle: 110 }] } },
-  { name: 'spherical with nugget and std profile', prior: { mean: { constant: 0 }, nugget: 0.02, stdProfile: Array.from(seededVector(n, 9), (v) => 1 + 0.4 * v), terms: [{ kernel: 'spherical', variance: 2, length: 6 }] } },
+  {
+    name: 'matern 1.5 rotated, constant mean',
+    prior: { mean: { constant: 0.2 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, lengths: [4, 2], angle: 30 }] },
+  },
+  {
+    name: 'exponential + gaussian sum, trend mean',
+    prior: {
+      mean: { trend: { intercept: 1, slope: [0.1, -0.05] } },
+      terms: [
+        { kernel: 'exponential', variance: 0.4, length: 2 },
+        { kernel: 'gaussian', variance: 0.6, lengths: [5, 1.5], angle: 110 },
+      ],
+    },
+  },
+  {
+    name: 'spherical with nugget and std profile',
+    prior: {
+      mean: { constant: 0 },
+      nugget: 0.02,
+      stdProfile: Array.from(seededVector(n, 9), (v) => 1 + 0.4 * v),
+      terms: [{ kernel: 'spherical', variance: 2, length: 6 }],
+    },
+  },
 ];
 
 function expectSameSummary(ours: ReturnType<typeof structuredPosteriorSummary>, dense: ReturnType<typeof posteriorSummary>): void {
@@ -62,7 +82,10 @@ describe('structured posterior equals the dense posterior', () => {
     for (const fullCd of [false, true]) {
       it(`${name}, ${fullCd ? 'full' : 'diagonal'} Cd: mean, std, evidence, tr R to 1e-10`, () => {
         const problem = rayProblem(17, 3, fullCd);
-        expectSameSummary(structuredPosteriorSummary(prepareStructuredPosterior(problem, prior)), posteriorSummary(preparePosterior(problem, prior)));
+        expectSameSummary(
+          structuredPosteriorSummary(prepareStructuredPosterior(problem, prior)),
+          posteriorSummary(preparePosterior(problem, prior)),
+        );
       });
     }
   }
@@ -78,7 +101,10 @@ describe('structured posterior equals the dense posterior', () => {
 
   it('an odd number of data (last row transformed alone) matches dense', () => {
     const problem = rayProblem(1, 8);
-    expectSameSummary(structuredPosteriorSummary(prepareStructuredPosterior(problem, PRIORS[1].prior)), posteriorSummary(preparePosterior(problem, PRIORS[1].prior)));
+    expectSameSummary(
+      structuredPosteriorSummary(prepareStructuredPosterior(problem, PRIORS[1].prior)),
+      posteriorSummary(preparePosterior(problem, PRIORS[1].prior)),
+    );
   });
 });
 
@@ -102,7 +128,11 @@ describe('row-spectrum cache', () => {
     const g1: Grid = { shape: [40], spacing: [0.5] };
     const G = matrix(6, 40);
     for (let k = 0; k < 6; k++) for (let j = 0; j < 40; j++) G.data[k * 40 + j] = Math.exp(-0.5 * ((j - 6 * k - 4) / 3) ** 2);
-    const problem: Problem = { grid: g1, operator: { kind: 'dense', matrix: G }, data: { values: seededVector(6, 3), sigma: new Float64Array(6).fill(0.1) } };
+    const problem: Problem = {
+      grid: g1,
+      operator: { kind: 'dense', matrix: G },
+      data: { values: seededVector(6, 3), sigma: new Float64Array(6).fill(0.1) },
+    };
     const sp = structuredProblem(problem);
     prepareStructuredPosterior(sp, { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length: 2 }] });
     const prior: PriorSpec = { mean: { constant: 1 }, terms: [{ kernel: 'matern', nu: 2.5, variance: 2, length: 3 }] };
@@ -149,12 +179,18 @@ describe('path choice and bad input', () => {
   it('names the field when the operator has the wrong number of columns', () => {
     const p = rayProblem(5, 42);
     const g = denseToSparse(matrix(5, n - 1));
-    expect(() => prepareStructuredPosterior({ ...p, operator: { kind: 'sparse', matrix: g } }, PRIORS[0].prior)).toThrow(/problem\.operator must be a matrix with 108 columns/);
+    expect(() => prepareStructuredPosterior({ ...p, operator: { kind: 'sparse', matrix: g } }, PRIORS[0].prior)).toThrow(
+      /problem\.operator must be a matrix with 108 columns/,
+    );
   });
 
   it('reports a K that does not factor (σ = 0 and G = 0)', () => {
     const p = rayProblem(3, 43);
-    const zero: Problem = { ...p, operator: { kind: 'sparse', matrix: denseToSparse(matrix(3, n)) }, data: { values: new Float64Array(3), covariance: matrix(3, 3) } };
+    const zero: Problem = {
+      ...p,
+      operator: { kind: 'sparse', matrix: denseToSparse(matrix(3, n)) },
+      data: { values: new Float64Array(3), covariance: matrix(3, 3) },
+    };
     expect(() => prepareStructuredPosterior(zero, PRIORS[0].prior)).toThrow(/not positive definite/);
   });
 });

@@ -33,8 +33,22 @@ function problem(fullCd: boolean): Problem {
 }
 
 const PRIORS: { name: string; prior: PriorSpec }[] = [
-  { name: 'rotated matern, trend mean', prior: { mean: { trend: { intercept: 1, slope: [0.1, -0.05] } }, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, lengths: [4, 2], angle: 30 }] } },
-  { name: 'spherical + nugget + profile', prior: { mean: { constant: 0.3 }, nugget: 0.02, stdProfile: Array.from(seededVector(n, 9), (v) => 1 + 0.4 * v), terms: [{ kernel: 'spherical', variance: 2, length: 6 }] } },
+  {
+    name: 'rotated matern, trend mean',
+    prior: {
+      mean: { trend: { intercept: 1, slope: [0.1, -0.05] } },
+      terms: [{ kernel: 'matern', nu: 1.5, variance: 1, lengths: [4, 2], angle: 30 }],
+    },
+  },
+  {
+    name: 'spherical + nugget + profile',
+    prior: {
+      mean: { constant: 0.3 },
+      nugget: 0.02,
+      stdProfile: Array.from(seededVector(n, 9), (v) => 1 + 0.4 * v),
+      terms: [{ kernel: 'spherical', variance: 2, length: 6 }],
+    },
+  },
 ];
 
 describe('structuredResolutionRow equals the dense resolutionRow', () => {
@@ -44,7 +58,8 @@ describe('structuredResolutionRow equals the dense resolutionRow', () => {
         const p = problem(fullCd);
         const st = prepareStructuredPosterior(p, prior);
         const dense = preparePosterior(p, prior);
-        for (const cell of [0, 17, 54, 107]) expect(relErr(structuredResolutionRow(st, cell), resolutionRow(dense, cell))).toBeLessThan(1e-10);
+        for (const cell of [0, 17, 54, 107])
+          expect(relErr(structuredResolutionRow(st, cell), resolutionRow(dense, cell))).toBeLessThan(1e-10);
       });
     }
   }

@@ -20,8 +20,20 @@ describe('per-cell values for the mean and the std profile', () => {
     ['a wrong count', 'm.csv', enc('1\n2\n3\n'), 'mean', 'm.csv: must have 6 rows of values (one per grid cell, 3 × 2, x fastest), got 3'],
     ['two columns', 'm.csv', enc('1.5,2\n3,4\n'), 'mean', 'm.csv: must have 1 column (one value per grid cell), got 2'],
     ['a zero std', 's.csv', enc('1\n2\n0\n4\n5\n6\n'), 'std', 's.csv: line 3 must be a standard deviation from 1e-50 to 1e+50, got 0'],
-    ['a transposed grid', 's.npy', writeNpy([3, 2], Float64Array.from([1, 2, 3, 4, 5, 6])), 'std', 's.npy: must hold shape (6,) or (2, 3) (rows along y): one value per grid cell, got shape (3, 2)'],
-    ['another file type', 's.json', enc('[1]'), 'std', 's.json: cannot be read as per-cell values: the name must end in .csv, .txt or .npy'],
+    [
+      'a transposed grid',
+      's.npy',
+      writeNpy([3, 2], Float64Array.from([1, 2, 3, 4, 5, 6])),
+      'std',
+      's.npy: must hold shape (6,) or (2, 3) (rows along y): one value per grid cell, got shape (3, 2)',
+    ],
+    [
+      'another file type',
+      's.json',
+      enc('[1]'),
+      'std',
+      's.json: cannot be read as per-cell values: the name must end in .csv, .txt or .npy',
+    ],
   ] as const)('refuses %s, naming the file and where', (_what, name, bytes, kind, message) => {
     expectFileError(() => parseCellValues(name, bytes, grid2, kind), message);
   });

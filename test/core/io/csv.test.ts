@@ -10,11 +10,51 @@ const rows = (t: ReturnType<typeof parseCsv>) =>
 
 describe('parseCsv', () => {
   it.each([
-    ['plain', '1,2,3\n4,5,6\n', null, [[1, 2, 3], [4, 5, 6]]],
-    ['header and CRLF', 'a,b\r\n1,-2.5e-3\r\n3,.5\r\n', ['a', 'b'], [[1, -0.0025], [3, 0.5]]],
-    ['tabs', '1\t2\n3\t4', null, [[1, 2], [3, 4]]],
-    ['semicolons', '1;2\n3;4', null, [[1, 2], [3, 4]]],
-    ['blank and comment lines, spaces', '# made up\n\n 1 , 2 \n\n3,4\n', null, [[1, 2], [3, 4]]],
+    [
+      'plain',
+      '1,2,3\n4,5,6\n',
+      null,
+      [
+        [1, 2, 3],
+        [4, 5, 6],
+      ],
+    ],
+    [
+      'header and CRLF',
+      'a,b\r\n1,-2.5e-3\r\n3,.5\r\n',
+      ['a', 'b'],
+      [
+        [1, -0.0025],
+        [3, 0.5],
+      ],
+    ],
+    [
+      'tabs',
+      '1\t2\n3\t4',
+      null,
+      [
+        [1, 2],
+        [3, 4],
+      ],
+    ],
+    [
+      'semicolons',
+      '1;2\n3;4',
+      null,
+      [
+        [1, 2],
+        [3, 4],
+      ],
+    ],
+    [
+      'blank and comment lines, spaces',
+      '# made up\n\n 1 , 2 \n\n3,4\n',
+      null,
+      [
+        [1, 2],
+        [3, 4],
+      ],
+    ],
     ['quoted header with comma names', '"a","x,y"\n5,6\n', ['a', 'x,y'], [[5, 6]]],
     ['single column', '7\n8\n', null, [[7], [8]]],
   ])('%s', (_name, text, header, expected) => {
@@ -136,10 +176,36 @@ describe('parseCsv never guesses (seeded corpus of the battery cases)', () => {
   });
 
   it.each([
-    ['quoted numbers (RFC 4180) are numbers, not a header', '"1","2.5"\n3,"4"\n', null, [[1, 2.5], [3, 4]]],
-    ['bare CR line ends', '1,2\r3,4\r', null, [[1, 2], [3, 4]]],
+    [
+      'quoted numbers (RFC 4180) are numbers, not a header',
+      '"1","2.5"\n3,"4"\n',
+      null,
+      [
+        [1, 2.5],
+        [3, 4],
+      ],
+    ],
+    [
+      'bare CR line ends',
+      '1,2\r3,4\r',
+      null,
+      [
+        [1, 2],
+        [3, 4],
+      ],
+    ],
     ['bare CR with a header', 'a,b\r1,2\r', ['a', 'b'], [[1, 2]]],
-    ['mixed line ends', '1,2\r\n3,4\r5,6\n7,8', null, [[1, 2], [3, 4], [5, 6], [7, 8]]],
+    [
+      'mixed line ends',
+      '1,2\r\n3,4\r5,6\n7,8',
+      null,
+      [
+        [1, 2],
+        [3, 4],
+        [5, 6],
+        [7, 8],
+      ],
+    ],
   ])('%s', (_name, text, header, expected) => {
     const t = parseCsv('t.csv', text);
     expect(t.header).toEqual(header);

@@ -15,7 +15,13 @@ const twoD = (data: Record<string, unknown>, grid: Record<string, unknown> = {})
     kind: 'priorscope.problem',
     version: 1,
     grid: { shape: [2, 2], spacing: [10, 10], origin: [5, 5], unit: 'm', axes: ['x', 'depth'], ...grid },
-    operator: { dense: [[1, 0, 0, 1], [0, 1, 1, 0], [1, 1, 1, 1]] },
+    operator: {
+      dense: [
+        [1, 0, 0, 1],
+        [0, 1, 1, 0],
+        [1, 1, 1, 1],
+      ],
+    },
     data: { values: [1, 2, 3], sigma: [0.1, 0.2, 0.3], ...data },
   });
 const oneD = (data: Record<string, unknown>) =>
@@ -23,15 +29,33 @@ const oneD = (data: Record<string, unknown>) =>
     kind: 'priorscope.problem',
     version: 1,
     grid: { shape: [4], spacing: [1] },
-    operator: { dense: [[1, 0, 0, 0], [0, 1, 0, 0], [0, 0, 1, 1]] },
+    operator: {
+      dense: [
+        [1, 0, 0, 0],
+        [0, 1, 0, 0],
+        [0, 0, 1, 1],
+      ],
+    },
     data: { values: [1, 2, 3], sigma: [0.1, 0.2, 0.3], ...data },
   });
 
 const rowsOf = (g: DataGeometry | undefined) =>
-  g === undefined ? undefined : g.kind === 'points' ? { positions: toRows(g.positions) } : { sources: toRows(g.sources), receivers: toRows(g.receivers) };
+  g === undefined
+    ? undefined
+    : g.kind === 'points'
+      ? { positions: toRows(g.positions) }
+      : { sources: toRows(g.sources), receivers: toRows(g.receivers) };
 
-const SOURCES = [[0, 2], [0, 12], [0, 18]];
-const RECEIVERS = [[20, 3], [20, 15], [20, 19.5]];
+const SOURCES = [
+  [0, 2],
+  [0, 12],
+  [0, 18],
+];
+const RECEIVERS = [
+  [20, 3],
+  [20, 15],
+  [20, 19.5],
+];
 
 describe('data geometry in problem files', () => {
   it('reads positions in 1-D and 2-D (also outside the grid) and writes them back unchanged', () => {
@@ -39,7 +63,11 @@ describe('data geometry in problem files', () => {
     expect(a.warnings).toEqual([]);
     expect(rowsOf(a.problem.data.geometry)).toEqual({ positions: [[0.5], [1.5], [-3]] });
     // Stations 1 m above a section whose top edge is at depth 0: outside the grid, accepted without a warning.
-    const stations = [[5, -1], [15, -1], [25.5, -1]];
+    const stations = [
+      [5, -1],
+      [15, -1],
+      [25.5, -1],
+    ];
     const b = parseProblemFile('b.json', twoD({ positions: stations }));
     expect(b.warnings).toEqual([]);
     expect(rowsOf(b.problem.data.geometry)).toEqual({ positions: stations });
@@ -66,8 +94,16 @@ describe('data geometry in problem files', () => {
 
   it('warns when a path misses the grid entirely, naming the rows, the grid outline and what to check', () => {
     // Path 1 runs above the section (depth −5 to −1); path 2 crosses it; path 0 touches only its corner (0, 0).
-    const sources = [[-10, 10], [-5, -5], [0, 18]];
-    const receivers = [[10, -10], [30, -1], [20, 19]];
+    const sources = [
+      [-10, 10],
+      [-5, -5],
+      [0, 18],
+    ];
+    const receivers = [
+      [10, -10],
+      [30, -1],
+      [20, 19],
+    ];
     const { warnings } = parseProblemFile('p.json', twoD({ sources, receivers }));
     expect(warnings.map((w) => w.message)).toEqual([
       'p.json: 1 of 3 paths (data.sources → data.receivers, row 1) miss the grid entirely (it spans x 0 to 20 m, depth 0 to 20 m); ' +
@@ -76,21 +112,88 @@ describe('data geometry in problem files', () => {
     // The same rays on a grid whose shape was swapped to [1, 4] with 10 m cells: the section is 10 m wide,
     // 40 m deep, so the ray to x = 30 m still crosses it, but with the origin moved 100 m away all miss.
     const moved = parseProblemFile('p.json', twoD({ sources, receivers }, { origin: [105, 5] }));
-    expect(moved.warnings[0].message).toContain('3 of 3 paths (data.sources → data.receivers, rows 0, 1 and 2) miss the grid entirely (it spans x 100 to 120 m');
+    expect(moved.warnings[0].message).toContain(
+      '3 of 3 paths (data.sources → data.receivers, rows 0, 1 and 2) miss the grid entirely (it spans x 100 to 120 m',
+    );
   });
 
   it.each([
-    ['positions with a wrong count', oneD({ positions: [[0], [1]] }), 'a.json: data.positions must be an array of 3 rows [x] (one per datum in data.values), got an array of length 2'],
-    ['a 2-D position on a 1-D grid', oneD({ positions: [[0], [1, 2], [3]] }), 'a.json: data.positions[1] must be [x]: an array of 1 number, got an array of length 2'],
-    ['a missing coordinate', twoD({ positions: [[0, 1], [1, 2], [3]] }), 'a.json: data.positions[2] must be [x, depth]: an array of 2 numbers, got an array of length 1'],
-    ['a non-finite coordinate', twoD({ positions: [[0, 1], [1, null], [3, 4]] }), 'a.json: data.positions[1][1] must be a finite number, got null'],
-    ['a string coordinate', twoD({ sources: SOURCES, receivers: [[20, 3], ['20', 15], [20, 19]] }), 'a.json: data.receivers[1][0] must be a finite number, got "20"'],
-    ['a row that is not an array', twoD({ positions: [[0, 1], 7, [3, 4]] }), 'a.json: data.positions[1] must be [x, depth]: an array of 2 numbers, got 7'],
-    ['sources without receivers', twoD({ sources: SOURCES }), 'a.json: data.receivers must be an array of 3 rows [x, depth] (given with data.sources: each path has both ends), got nothing'],
-    ['receivers without sources', twoD({ receivers: RECEIVERS }), 'a.json: data.sources must be an array of 3 rows [x, depth] (given with data.receivers: each path has both ends), got nothing'],
-    ['too few receivers', twoD({ sources: SOURCES, receivers: RECEIVERS.slice(1) }), 'a.json: data.receivers must be an array of 3 rows [x, depth] (one per datum in data.values), got an array of length 2'],
-    ['positions and paths together', twoD({ positions: [[0, 1], [1, 2], [3, 4]], sources: SOURCES, receivers: RECEIVERS }), 'a.json: data must be an object with either positions (point data) or sources and receivers (path data), not both, got "both"'],
-    ['paths on a 1-D grid', oneD({ sources: [[0], [1], [2]], receivers: [[1], [2], [3]] }), 'a.json: data.sources must be absent on a 1-D grid (paths need a 2-D grid; give data.positions [[x], …] for point data), got an array of length 3'],
+    [
+      'positions with a wrong count',
+      oneD({ positions: [[0], [1]] }),
+      'a.json: data.positions must be an array of 3 rows [x] (one per datum in data.values), got an array of length 2',
+    ],
+    [
+      'a 2-D position on a 1-D grid',
+      oneD({ positions: [[0], [1, 2], [3]] }),
+      'a.json: data.positions[1] must be [x]: an array of 1 number, got an array of length 2',
+    ],
+    [
+      'a missing coordinate',
+      twoD({ positions: [[0, 1], [1, 2], [3]] }),
+      'a.json: data.positions[2] must be [x, depth]: an array of 2 numbers, got an array of length 1',
+    ],
+    [
+      'a non-finite coordinate',
+      twoD({
+        positions: [
+          [0, 1],
+          [1, null],
+          [3, 4],
+        ],
+      }),
+      'a.json: data.positions[1][1] must be a finite number, got null',
+    ],
+    [
+      'a string coordinate',
+      twoD({
+        sources: SOURCES,
+        receivers: [
+          [20, 3],
+          ['20', 15],
+          [20, 19],
+        ],
+      }),
+      'a.json: data.receivers[1][0] must be a finite number, got "20"',
+    ],
+    [
+      'a row that is not an array',
+      twoD({ positions: [[0, 1], 7, [3, 4]] }),
+      'a.json: data.positions[1] must be [x, depth]: an array of 2 numbers, got 7',
+    ],
+    [
+      'sources without receivers',
+      twoD({ sources: SOURCES }),
+      'a.json: data.receivers must be an array of 3 rows [x, depth] (given with data.sources: each path has both ends), got nothing',
+    ],
+    [
+      'receivers without sources',
+      twoD({ receivers: RECEIVERS }),
+      'a.json: data.sources must be an array of 3 rows [x, depth] (given with data.receivers: each path has both ends), got nothing',
+    ],
+    [
+      'too few receivers',
+      twoD({ sources: SOURCES, receivers: RECEIVERS.slice(1) }),
+      'a.json: data.receivers must be an array of 3 rows [x, depth] (one per datum in data.values), got an array of length 2',
+    ],
+    [
+      'positions and paths together',
+      twoD({
+        positions: [
+          [0, 1],
+          [1, 2],
+          [3, 4],
+        ],
+        sources: SOURCES,
+        receivers: RECEIVERS,
+      }),
+      'a.json: data must be an object with either positions (point data) or sources and receivers (path data), not both, got "both"',
+    ],
+    [
+      'paths on a 1-D grid',
+      oneD({ sources: [[0], [1], [2]], receivers: [[1], [2], [3]] }),
+      'a.json: data.sources must be absent on a 1-D grid (paths need a 2-D grid; give data.positions [[x], …] for point data), got an array of length 3',
+    ],
     ['positions not an array', twoD({ positions: 'stations.csv' }), 'a.json: data.positions must be an array of rows, got "stations.csv"'],
   ])('refuses %s, in one line naming the field and row', (_what, text, message) => {
     expectFileError(() => parseProblemFile('a.json', text), message);
@@ -103,7 +206,13 @@ describe('the geometry CSV of the pieces form', () => {
 
   it('reads x, x,y (columns in any order, any case) and sx,sy,rx,ry', () => {
     expect(rowsOf(parseGeometryCsv('g.csv', 'x\n0.5\n1.5\n-3\n', grid1, 3).geometry)).toEqual({ positions: [[0.5], [1.5], [-3]] });
-    expect(rowsOf(parseGeometryCsv('g.csv', 'Y,X\n-1,5\n-1,15\n-1,25.5\n', grid2, 3).geometry)).toEqual({ positions: [[5, -1], [15, -1], [25.5, -1]] });
+    expect(rowsOf(parseGeometryCsv('g.csv', 'Y,X\n-1,5\n-1,15\n-1,25.5\n', grid2, 3).geometry)).toEqual({
+      positions: [
+        [5, -1],
+        [15, -1],
+        [25.5, -1],
+      ],
+    });
     const csv = 'sx,sy,rx,ry\n' + SOURCES.map((s, k) => [...s, ...RECEIVERS[k]].join(',')).join('\n');
     const r = parseGeometryCsv('g.csv', csv, grid2, 3);
     expect(r.warnings).toEqual([]);
@@ -118,9 +227,24 @@ describe('the geometry CSV of the pieces form', () => {
   });
 
   it.each([
-    ['no header', '1,2\n3,4\n5,6\n', grid2, 'g.csv: must start with a header line naming the columns: x,y (positions) or sx,sy,rx,ry (sources and receivers of paths)'],
-    ['a wrong header', 'x,z\n1,2\n3,4\n5,6\n', grid2, 'g.csv: header (line 1) must name the columns x,y (positions) or sx,sy,rx,ry (sources and receivers of paths), got "x,z"'],
-    ['paths on a 1-D grid', 'sx,sy,rx,ry\n0,0,1,1\n0,0,1,1\n0,0,1,1\n', grid1, 'g.csv: header (line 1) must name the columns x (positions on a 1-D grid) (paths need a 2-D grid), got "sx,sy,rx,ry"'],
+    [
+      'no header',
+      '1,2\n3,4\n5,6\n',
+      grid2,
+      'g.csv: must start with a header line naming the columns: x,y (positions) or sx,sy,rx,ry (sources and receivers of paths)',
+    ],
+    [
+      'a wrong header',
+      'x,z\n1,2\n3,4\n5,6\n',
+      grid2,
+      'g.csv: header (line 1) must name the columns x,y (positions) or sx,sy,rx,ry (sources and receivers of paths), got "x,z"',
+    ],
+    [
+      'paths on a 1-D grid',
+      'sx,sy,rx,ry\n0,0,1,1\n0,0,1,1\n0,0,1,1\n',
+      grid1,
+      'g.csv: header (line 1) must name the columns x (positions on a 1-D grid) (paths need a 2-D grid), got "sx,sy,rx,ry"',
+    ],
     ['too few rows', 'x,y\n1,2\n3,4\n', grid2, 'g.csv: must have 3 rows of coordinates (one per datum in d.csv), got 2'],
     ['a bad number', 'x,y\n1,2\n3,abc\n5,6\n', grid2, 'g.csv: line 3, column 2 must be a finite number, got "abc"'],
   ])('refuses %s', (_what, text, grid, message) => {

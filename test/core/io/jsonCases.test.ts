@@ -16,8 +16,14 @@ const GRID_1D = { shape: [5], spacing: [0.5] };
 describe('duplicate JSON keys are refused, naming the field and line', () => {
   it.each([
     ['{"a": 1, "a": 2}', 'd.json: field a appears twice (line 1); each field may appear once in an object, remove one of them'],
-    ['{\n "data": {"values": [1],\n  "sigma": [1], "sigma": [2]}}', 'd.json: field data.sigma appears twice (line 3); each field may appear once in an object, remove one of them'],
-    ['{"terms": [{"kernel": "x"}, {"length": 1, "len\\u0067th": 2}]}', 'd.json: field terms[1].length appears twice (line 1); each field may appear once in an object, remove one of them'],
+    [
+      '{\n "data": {"values": [1],\n  "sigma": [1], "sigma": [2]}}',
+      'd.json: field data.sigma appears twice (line 3); each field may appear once in an object, remove one of them',
+    ],
+    [
+      '{"terms": [{"kernel": "x"}, {"length": 1, "len\\u0067th": 2}]}',
+      'd.json: field terms[1].length appears twice (line 1); each field may appear once in an object, remove one of them',
+    ],
   ])('%j', (text, message) => {
     expectFileError(() => parseJsonText('d.json', text), message);
   });
@@ -31,8 +37,12 @@ describe('duplicate JSON keys are refused, naming the field and line', () => {
   });
 
   it('a problem file with two data.sigma is refused (the last one used to win)', () => {
-    const text = '{"kind": "priorscope.problem", "version": 1, "grid": {"shape": [2], "spacing": [1]}, "operator": {"dense": [[1, 0]]}, "data": {"values": [1], "sigma": [0.1], "sigma": [5]}}';
-    expectFileError(() => parseProblemFile('p.json', text), 'p.json: field data.sigma appears twice (line 1); each field may appear once in an object, remove one of them');
+    const text =
+      '{"kind": "priorscope.problem", "version": 1, "grid": {"shape": [2], "spacing": [1]}, "operator": {"dense": [[1, 0]]}, "data": {"values": [1], "sigma": [0.1], "sigma": [5]}}';
+    expectFileError(
+      () => parseProblemFile('p.json', text),
+      'p.json: field data.sigma appears twice (line 1); each field may appear once in an object, remove one of them',
+    );
   });
 
   it('property: on random objects with and without a repeated key, the finder agrees with a parse of each object (seeded)', () => {
@@ -51,7 +61,12 @@ describe('duplicate JSON keys are refused, naming the field and line', () => {
 
 describe('a missing field beside an unknown one says which and suggests', () => {
   it('"range" instead of "length"', () => {
-    const text = JSON.stringify({ kind: 'priorscope.prior', version: 1, mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, range: 3 }] });
+    const text = JSON.stringify({
+      kind: 'priorscope.prior',
+      version: 1,
+      mean: { constant: 0 },
+      terms: [{ kernel: 'exponential', variance: 1, range: 3 }],
+    });
     expectFileError(
       () => parsePriorFile('q.json', text, { grid: GRID_1D }),
       'q.json: terms[0].length must be a finite number > 0 (or give lengths [l1, l2] in 2-D), got nothing; unknown field terms[0].range given (did you mean length?)',
@@ -75,7 +90,12 @@ describe('a missing field beside an unknown one says which and suggests', () => 
 
 describe('angles and the odd field out', () => {
   it('an angle of 1e308 is refused at the field', () => {
-    const text = JSON.stringify({ kind: 'priorscope.prior', version: 1, mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, lengths: [1, 2], angle: 1e308 }] });
+    const text = JSON.stringify({
+      kind: 'priorscope.prior',
+      version: 1,
+      mean: { constant: 0 },
+      terms: [{ kernel: 'exponential', variance: 1, lengths: [1, 2], angle: 1e308 }],
+    });
     expectFileError(
       () => parsePriorFile('q.json', text, { grid: { shape: [3, 3], spacing: [1, 1] } }),
       'q.json: terms[0].angle must be an angle in degrees from -360 to 360, got 1e+308',
@@ -87,10 +107,19 @@ describe('angles and the odd field out', () => {
       kind: 'priorscope.problem',
       version: 1,
       grid: { shape: [2], spacing: [1] },
-      operator: { dense: [[1, 0], [0, 1], [1, 1]] },
+      operator: {
+        dense: [
+          [1, 0],
+          [0, 1],
+          [1, 1],
+        ],
+      },
       data: { values: [1, 2, 3, 4], sigma: [0.1, 0.1, 0.1] },
     });
-    expectFileError(() => parseProblemFile('p.json', text), 'p.json: data.values must be an array of 3 numbers (as data.sigma and operator.dense have 3), got an array of length 4');
+    expectFileError(
+      () => parseProblemFile('p.json', text),
+      'p.json: data.values must be an array of 3 numbers (as data.sigma and operator.dense have 3), got an array of length 4',
+    );
   });
 
   it('4 values, 4 sigmas, 3 operator rows: the operator is named', () => {
@@ -98,7 +127,13 @@ describe('angles and the odd field out', () => {
       kind: 'priorscope.problem',
       version: 1,
       grid: { shape: [2], spacing: [1] },
-      operator: { dense: [[1, 0], [0, 1], [1, 1]] },
+      operator: {
+        dense: [
+          [1, 0],
+          [0, 1],
+          [1, 1],
+        ],
+      },
       data: { values: [1, 2, 3, 4], sigma: [0.1, 0.1, 0.1, 0.1] },
     });
     expect(() => parseProblemFile('p.json', text)).toThrow('p.json: operator.dense must be an array of 4 rows');
@@ -108,7 +143,8 @@ describe('angles and the odd field out', () => {
 describe('JSON problem and prior on mutated input (seeded): parse or one-line FileFormatError', () => {
   it('never anything else, and a parsed file has no duplicate keys', () => {
     const r = rng(1614);
-    const base = '{"kind": "priorscope.prior", "version": 1, "mean": {"constant": 0}, "terms": [{"kernel": "exponential", "variance": 1, "length": 3}]}';
+    const base =
+      '{"kind": "priorscope.prior", "version": 1, "mean": {"constant": 0}, "terms": [{"kernel": "exponential", "variance": 1, "length": 3}]}';
     let parsed = 0;
     let refused = 0;
     for (let t = 0; t < 1500; t++) {

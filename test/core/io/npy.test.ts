@@ -41,7 +41,10 @@ describe('parseNpy', () => {
   });
   it('reads float32 little and big endian, widened exactly', () => {
     const f32 = [0.1, -3.5, 1e10].map(Math.fround);
-    for (const [descr, little] of [['<f4', true], ['>f4', false]] as const) {
+    for (const [descr, little] of [
+      ['<f4', true],
+      ['>f4', false],
+    ] as const) {
       const a = parseNpy('a.npy', build(1, `{'descr': '${descr}', 'fortran_order': False, 'shape': (3,), }`, f32, 'f4', little));
       expect(a.shape).toEqual([3]);
       expect(Array.from(a.data)).toEqual(f32);
@@ -54,12 +57,30 @@ describe('parseNpy', () => {
   });
   it.each([
     [new Uint8Array([1, 2, 3]), 'a.npy: is not a NumPy .npy file (it does not start with the bytes "\\x93NUMPY")'],
-    [build(1, "{'descr': '<i8', 'fortran_order': False, 'shape': (1,), }", [0], 'f8', true), "a.npy: header descr must be a float64 or float32 type ('<f8', '>f8', '<f4', '>f4'), got \"<i8\""],
-    [build(1, "{'descr': [('a', '<f8')], 'fortran_order': False, 'shape': (1,), }", [0], 'f8', true), "a.npy: header descr must be a float64 or float32 type ('<f8', '>f8', '<f4', '>f4'), got a structured type"],
-    [build(1, "{'descr': '<f8', 'fortran_order': False, 'shape': (1, 1, 1), }", [0], 'f8', true), 'a.npy: array must have 0, 1 or 2 dimensions, got shape (1, 1, 1)'],
-    [build(1, "{'descr': '<f8', 'fortran_order': False, 'shape': (3,), }", [1, 2], 'f8', true), 'a.npy: data must be 24 bytes for shape (3,) of <f8, got 16 (the file is truncated)'],
-    [build(1, "{'descr': '<f8', 'fortran_order': False, 'shape': (2,), }", [1, NaN], 'f8', true), 'a.npy: element [1] must be finite, got NaN'],
-    [build(1, "{'descr': '<f8', 'fortran_order': 0, 'shape': (2,), }", [1, 2], 'f8', true), 'a.npy: header is not a valid .npy header dict: expected a string, True, False or a tuple at character 35 of "{\'descr\': \'<f8\', \'fortran_order\': 0, \'shape\': (2,), }"'],
+    [
+      build(1, "{'descr': '<i8', 'fortran_order': False, 'shape': (1,), }", [0], 'f8', true),
+      "a.npy: header descr must be a float64 or float32 type ('<f8', '>f8', '<f4', '>f4'), got \"<i8\"",
+    ],
+    [
+      build(1, "{'descr': [('a', '<f8')], 'fortran_order': False, 'shape': (1,), }", [0], 'f8', true),
+      "a.npy: header descr must be a float64 or float32 type ('<f8', '>f8', '<f4', '>f4'), got a structured type",
+    ],
+    [
+      build(1, "{'descr': '<f8', 'fortran_order': False, 'shape': (1, 1, 1), }", [0], 'f8', true),
+      'a.npy: array must have 0, 1 or 2 dimensions, got shape (1, 1, 1)',
+    ],
+    [
+      build(1, "{'descr': '<f8', 'fortran_order': False, 'shape': (3,), }", [1, 2], 'f8', true),
+      'a.npy: data must be 24 bytes for shape (3,) of <f8, got 16 (the file is truncated)',
+    ],
+    [
+      build(1, "{'descr': '<f8', 'fortran_order': False, 'shape': (2,), }", [1, NaN], 'f8', true),
+      'a.npy: element [1] must be finite, got NaN',
+    ],
+    [
+      build(1, "{'descr': '<f8', 'fortran_order': 0, 'shape': (2,), }", [1, 2], 'f8', true),
+      "a.npy: header is not a valid .npy header dict: expected a string, True, False or a tuple at character 35 of \"{'descr': '<f8', 'fortran_order': 0, 'shape': (2,), }\"",
+    ],
   ])('rejects case %#', (bytes, message) => {
     expectFileError(() => parseNpy('a.npy', bytes), message);
   });

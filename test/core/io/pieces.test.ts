@@ -59,7 +59,10 @@ describe('parseDataCsv never guesses (battery cases)', () => {
       () => parseDataCsv('d.csv', '1,25\n2,5\n0,75\n'),
       'd.csv: line 1 "1,25" could be value, sigma or one number with a decimal comma; write decimals with a dot (1.25), or add the header line value,sigma if these are whole-number values and sigmas',
     );
-    expectFileError(() => parseDataCsv('d.csv', '# x\r"3","2"\r'), 'd.csv: line 2 "\\"3\\",\\"2\\"" could be value, sigma or one number with a decimal comma; write decimals with a dot (1.25), or add the header line value,sigma if these are whole-number values and sigmas');
+    expectFileError(
+      () => parseDataCsv('d.csv', '# x\r"3","2"\r'),
+      'd.csv: line 2 "\\"3\\",\\"2\\"" could be value, sigma or one number with a decimal comma; write decimals with a dot (1.25), or add the header line value,sigma if these are whole-number values and sigmas',
+    );
   });
 
   it('reads the same numbers once a decimal point or a header settles it', () => {
@@ -105,14 +108,20 @@ describe('parseDataNpy', () => {
     expectFileError(() => parseDataNpy('d.npy', writeNpy(shape, data)), message);
   });
   it('refuses a file that is not .npy', () => {
-    expectFileError(() => parseDataNpy('d.npy', enc('1,2\n')), 'd.npy: is not a NumPy .npy file (it does not start with the bytes "\\x93NUMPY")');
+    expectFileError(
+      () => parseDataNpy('d.npy', enc('1,2\n')),
+      'd.npy: is not a NumPy .npy file (it does not start with the bytes "\\x93NUMPY")',
+    );
   });
 });
 
 describe('file kinds by extension', () => {
   it('refuses unknown extensions with the allowed list', () => {
     expectFileError(() => parseDataFile(file('d.xlsx', '')), 'd.xlsx: cannot be read as data: the name must end in .csv, .npy');
-    expectFileError(() => parseOperatorFile(file('G.json', '')), 'G.json: cannot be read as the operator G: the name must end in .csv, .mtx (Matrix Market), .npy');
+    expectFileError(
+      () => parseOperatorFile(file('G.json', '')),
+      'G.json: cannot be read as the operator G: the name must end in .csv, .mtx (Matrix Market), .npy',
+    );
   });
   it('reads G from Matrix Market coordinate as sparse and CSV as dense', () => {
     const g = parseOperatorFile(file('G.mtx', '%%MatrixMarket matrix coordinate real general\n2 3 2\n1 1 0.5\n2 3 2\n'));
@@ -140,7 +149,11 @@ describe('parseCovarianceFile', () => {
 
 describe('checkGridForm', () => {
   it('keeps valid fields and drops an empty unit', () => {
-    expect(checkGridForm({ shape: [4, 3], spacing: [1, 2], origin: [0, -1], unit: '' })).toEqual({ shape: [4, 3], spacing: [1, 2], origin: [0, -1] });
+    expect(checkGridForm({ shape: [4, 3], spacing: [1, 2], origin: [0, -1], unit: '' })).toEqual({
+      shape: [4, 3],
+      spacing: [1, 2],
+      origin: [0, -1],
+    });
   });
   it.each([
     [{ shape: [0], spacing: [1] }, 'grid form: nx must be a positive integer, got 0'],
@@ -157,7 +170,12 @@ describe('checkGridForm', () => {
 describe('assembleProblem', () => {
   const G = '%%MatrixMarket matrix coordinate real general\n2 3 3\n1 1 1\n1 2 1\n2 3 0.5\n';
   it('builds a problem whose operator, data and grid are the inputs', () => {
-    const p = assembleProblem({ grid: { shape: [3], spacing: [2], unit: 'm' }, operator: file('G.mtx', G), data: file('d.csv', 'value,sigma\n1,0.1\n2,0.2\n'), title: 'T' });
+    const p = assembleProblem({
+      grid: { shape: [3], spacing: [2], unit: 'm' },
+      operator: file('G.mtx', G),
+      data: file('d.csv', 'value,sigma\n1,0.1\n2,0.2\n'),
+      title: 'T',
+    });
     expect(p.grid).toEqual({ shape: [3], spacing: [2], unit: 'm' });
     expect(p.operator.kind).toBe('sparse');
     expect(Array.from(p.data.values)).toEqual([1, 2]);
@@ -165,17 +183,35 @@ describe('assembleProblem', () => {
     expect(p.title).toBe('T');
   });
   it('takes a full covariance when the data has no sigma', () => {
-    const p = assembleProblem({ grid: { shape: [3], spacing: [1] }, operator: file('G.mtx', G), data: file('d.csv', '1\n2\n'), covariance: file('C.csv', '2,1\n1,2\n') });
+    const p = assembleProblem({
+      grid: { shape: [3], spacing: [1] },
+      operator: file('G.mtx', G),
+      data: file('d.csv', '1\n2\n'),
+      covariance: file('C.csv', '2,1\n1,2\n'),
+    });
     expect(Array.from(p.data.covariance!.data)).toEqual([2, 1, 1, 2]);
     expect(p.data.sigma).toBeUndefined();
   });
   it.each([
-    [{ shape: [4], spacing: [1] }, 'value,sigma\n1,1\n2,1\n', undefined, 'G.mtx: must have 4 columns (one per grid cell, 4 in the grid form), got 3'],
+    [
+      { shape: [4], spacing: [1] },
+      'value,sigma\n1,1\n2,1\n',
+      undefined,
+      'G.mtx: must have 4 columns (one per grid cell, 4 in the grid form), got 3',
+    ],
     [{ shape: [3], spacing: [1] }, 'value,sigma\n1,1\n', undefined, 'G.mtx: must have 1 rows (one per datum in d.csv), got 2'],
     [{ shape: [3], spacing: [1] }, '1\n2\n', undefined, 'd.csv: must have a sigma column (value, sigma), or give a data covariance file'],
-    [{ shape: [3], spacing: [1] }, '1,1\n2,1.5\n', file('C.csv', '1,0\n0,1\n'), 'd.csv: has a sigma column and a covariance file (C.csv) was given too; give exactly one of them'],
+    [
+      { shape: [3], spacing: [1] },
+      '1,1\n2,1.5\n',
+      file('C.csv', '1,0\n0,1\n'),
+      'd.csv: has a sigma column and a covariance file (C.csv) was given too; give exactly one of them',
+    ],
   ])('refuses mismatched pieces (%#)', (grid, data, covariance, message) => {
-    expectFileError(() => assembleProblem({ grid, operator: file('G.mtx', G), data: file('d.csv', data), ...(covariance ? { covariance } : {}) }), message);
+    expectFileError(
+      () => assembleProblem({ grid, operator: file('G.mtx', G), data: file('d.csv', data), ...(covariance ? { covariance } : {}) }),
+      message,
+    );
   });
 });
 
@@ -216,16 +252,21 @@ describe('pieces on mutated input (seeded)', () => {
 
   it('data .npy', () => {
     const base = writeNpy([3, 2], [1, 0.5, 2, 0.25, 3, 1]);
-    fuzz(1500, 11, (r) => {
-      const bytes = mutateBytes(r, base);
-      return {
-        name: 'data .npy',
-        run: () => {
-          const d = parseDataNpy('m.npy', bytes);
-          if (d.sigma) expect(d.sigma.every((s) => s > 0)).toBe(true);
-        },
-      };
-    }, 10); // most byte edits break the header, so fewer parse: at least 10 of 1500 must
+    fuzz(
+      1500,
+      11,
+      (r) => {
+        const bytes = mutateBytes(r, base);
+        return {
+          name: 'data .npy',
+          run: () => {
+            const d = parseDataNpy('m.npy', bytes);
+            if (d.sigma) expect(d.sigma.every((s) => s > 0)).toBe(true);
+          },
+        };
+      },
+      10,
+    ); // most byte edits break the header, so fewer parse: at least 10 of 1500 must
   });
 
   it('whole assembly with a mutated covariance', () => {
@@ -235,7 +276,12 @@ describe('pieces on mutated input (seeded)', () => {
       return {
         name: 'covariance CSV',
         run: () => {
-          const p = assembleProblem({ grid, operator: file('G.csv', '1,0\n0,1\n1,1\n'), data: file('d.csv', '1\n2\n3\n'), covariance: file('C.csv', text) });
+          const p = assembleProblem({
+            grid,
+            operator: file('G.csv', '1,0\n0,1\n1,1\n'),
+            data: file('d.csv', '1\n2\n3\n'),
+            covariance: file('C.csv', text),
+          });
           expect(p.data.covariance!.rows).toBe(3);
         },
       };

@@ -8,7 +8,12 @@ const problem = (grid: Record<string, unknown>) =>
     kind: 'priorscope.problem',
     version: 1,
     grid: { shape: [2, 2], spacing: [1, 1], ...grid },
-    operator: { dense: [[1, 0, 0, 1], [0, 1, 1, 0]] },
+    operator: {
+      dense: [
+        [1, 0, 0, 1],
+        [0, 1, 1, 0],
+      ],
+    },
     data: { values: [1, 2], sigma: [0.1, 0.2] },
   });
 

@@ -12,7 +12,10 @@ import { expectFileError } from './expectError.ts';
 import { mutateText, rng } from './random.ts';
 
 // An invented 2 × 3 problem: 2 data on a 3-cell line.
-const G = [[1, 0.5, 0], [0, 0.5, 1]];
+const G = [
+  [1, 0.5, 0],
+  [0, 0.5, 1],
+];
 const problem = (over: Record<string, unknown> = {}, data: Record<string, unknown> = {}) =>
   JSON.stringify({
     kind: 'priorscope.problem',
@@ -30,7 +33,15 @@ const siblings = (files: Record<string, Uint8Array | string>) => (name: string) 
 
 describe('parseProblemFile', () => {
   it('reads a dense problem with every optional field', () => {
-    const text = problem({ title: 'invented', truth: [1, 2, 3], quantity: { name: 'slowness', unit: 's/m' }, grid: { shape: [3], spacing: [2], origin: [10], unit: 'm' } }, { unit: 'ms' });
+    const text = problem(
+      {
+        title: 'invented',
+        truth: [1, 2, 3],
+        quantity: { name: 'slowness', unit: 's/m' },
+        grid: { shape: [3], spacing: [2], origin: [10], unit: 'm' },
+      },
+      { unit: 'ms' },
+    );
     const { problem: p, warnings } = parseProblemFile('p.json', text);
     expect(p.data.unit).toBe('ms');
     expect(warnings).toEqual([]);
@@ -48,12 +59,30 @@ describe('parseProblemFile', () => {
     const text = problem({ operator: { sparse: { rows: [0, 0, 1, 0], cols: [0, 1, 2, 0], values: [0.5, 0.5, 1, 0.5] } } });
     const { problem: p } = parseProblemFile('p.json', text);
     expect(p.operator.kind).toBe('sparse');
-    expect(toRows(operatorToDense(p.operator))).toEqual([[1, 0.5, 0], [0, 0, 1]]);
+    expect(toRows(operatorToDense(p.operator))).toEqual([
+      [1, 0.5, 0],
+      [0, 0, 1],
+    ]);
   });
 
   it('reads a full data covariance', () => {
-    const { problem: p } = parseProblemFile('p.json', problem({}, { sigma: undefined, covariance: [[1, 0.5], [0.5, 2]] }));
-    expect(toRows(p.data.covariance!)).toEqual([[1, 0.5], [0.5, 2]]);
+    const { problem: p } = parseProblemFile(
+      'p.json',
+      problem(
+        {},
+        {
+          sigma: undefined,
+          covariance: [
+            [1, 0.5],
+            [0.5, 2],
+          ],
+        },
+      ),
+    );
+    expect(toRows(p.data.covariance!)).toEqual([
+      [1, 0.5],
+      [0.5, 2],
+    ]);
     expect(p.data.sigma).toBeUndefined();
   });
 
@@ -63,60 +92,187 @@ describe('parseProblemFile', () => {
     ['G.npy', writeNpyMatrix(fromRows(G))],
     ['sub/G.NPY', writeNpyMatrix(fromRows(G))],
   ])('reads the operator from a sibling %s', (name, content) => {
-    const { problem: p } = parseProblemFile('p.json', problem({ operator: { file: name } }), { readSibling: siblings({ [name]: content }) });
+    const { problem: p } = parseProblemFile('p.json', problem({ operator: { file: name } }), {
+      readSibling: siblings({ [name]: content }),
+    });
     expect(toRows(operatorToDense(p.operator))).toEqual(G);
   });
 
-  it('says when the operator CSV\'s first row was read as a header', () => {
+  it("says when the operator CSV's first row was read as a header", () => {
     const { warnings } = parseProblemFile('p.json', problem({ operator: { file: 'G.csv' } }), {
       readSibling: siblings({ 'G.csv': writeCsv(fromRows(G), ['a', 'b', 'c']) }),
     });
-    expect(warnings.map((w) => w.message)).toEqual(['p.json: operator.file G.csv: line 1 read as a header (column names "a,b,c"), not as numbers']);
+    expect(warnings.map((w) => w.message)).toEqual([
+      'p.json: operator.file G.csv: line 1 read as a header (column names "a,b,c"), not as numbers',
+    ]);
   });
 
   it('warns about unknown fields and keeps going', () => {
-    const { warnings } = parseProblemFile('p.json', problem({ author: 'x', grid: { shape: [3], spacing: [2], colour: 1 } }, { weights: [1] }));
+    const { warnings } = parseProblemFile(
+      'p.json',
+      problem({ author: 'x', grid: { shape: [3], spacing: [2], colour: 1 } }, { weights: [1] }),
+    );
     expect(warnings.map((w) => w.field)).toEqual(['author', 'grid.colour', 'data.weights']);
-    expect(warnings[0].message).toBe('p.json: unknown field author ignored (known here: kind, version, title, grid, operator, data, truth, quantity)');
+    expect(warnings[0].message).toBe(
+      'p.json: unknown field author ignored (known here: kind, version, title, grid, operator, data, truth, quantity)',
+    );
   });
 
   // The bad-input cases, one line each: file, field, expectation.
   it.each([
-    ['not JSON', 'kind: problem', 'p.json: is not valid JSON: line 1, column 1: expected a value (number, string, array, object, true, false or null), got "kind: proble"'],
-    ['wrong kind', problem({ kind: 'priorscope.prior' }), 'p.json: kind must be "priorscope.problem" (this is a prior file), got "priorscope.prior"'],
+    [
+      'not JSON',
+      'kind: problem',
+      'p.json: is not valid JSON: line 1, column 1: expected a value (number, string, array, object, true, false or null), got "kind: proble"',
+    ],
+    [
+      'wrong kind',
+      problem({ kind: 'priorscope.prior' }),
+      'p.json: kind must be "priorscope.problem" (this is a prior file), got "priorscope.prior"',
+    ],
     ['wrong version', problem({ version: '1' }), 'p.json: version must be 1 (the version this program reads), got "1"'],
     ['missing grid', problem({ grid: undefined }), 'p.json: grid must be an object with shape and spacing, got nothing'],
     ['missing data', problem({ data: undefined }), 'p.json: data must be an object with values and sigma or covariance, got nothing'],
     ['missing operator', problem({ operator: undefined }), 'p.json: operator must be an object with dense, sparse or file, got nothing'],
-    ['missing sigma', problem({}, { sigma: undefined }), 'p.json: data.sigma must be an array of 2 numbers > 0 (or give data.covariance), got nothing'],
-    ['grid shape 4-D', problem({ grid: { shape: [2, 2, 2, 1], spacing: [1, 1, 1, 1] } }), 'p.json: grid.shape must be [nx], [nx, ny] or [nx, ny, nz] (positive integers), got an array of length 4'],
+    [
+      'missing sigma',
+      problem({}, { sigma: undefined }),
+      'p.json: data.sigma must be an array of 2 numbers > 0 (or give data.covariance), got nothing',
+    ],
+    [
+      'grid shape 4-D',
+      problem({ grid: { shape: [2, 2, 2, 1], spacing: [1, 1, 1, 1] } }),
+      'p.json: grid.shape must be [nx], [nx, ny] or [nx, ny, nz] (positive integers), got an array of length 4',
+    ],
     ['grid shape fraction', problem({ grid: { shape: [2.5], spacing: [1] } }), 'p.json: grid.shape[0] must be an integer ≥ 1, got 2.5'],
-    ['grid spacing count', problem({ grid: { shape: [3], spacing: [1, 1] } }), 'p.json: grid.spacing must be an array of 1 numbers, got an array of length 2'],
+    [
+      'grid spacing count',
+      problem({ grid: { shape: [3], spacing: [1, 1] } }),
+      'p.json: grid.spacing must be an array of 1 numbers, got an array of length 2',
+    ],
     ['grid spacing zero', problem({ grid: { shape: [3], spacing: [0] } }), 'p.json: grid.spacing[0] must be > 0, got 0'],
-    ['G rows vs data', problem({ operator: { dense: [G[0]] } }), 'p.json: operator.dense must be an array of 2 rows (one per datum in data.values), got an array of length 1'],
-    ['G cols vs grid', problem({ grid: { shape: [4], spacing: [1] } }), 'p.json: operator.dense[0] must be an array of 4 numbers (one per grid cell), got an array of length 3'],
+    [
+      'G rows vs data',
+      problem({ operator: { dense: [G[0]] } }),
+      'p.json: operator.dense must be an array of 2 rows (one per datum in data.values), got an array of length 1',
+    ],
+    [
+      'G cols vs grid',
+      problem({ grid: { shape: [4], spacing: [1] } }),
+      'p.json: operator.dense[0] must be an array of 4 numbers (one per grid cell), got an array of length 3',
+    ],
     ['sigma length', problem({}, { sigma: [1] }), 'p.json: data.sigma must be an array of 2 numbers, got an array of length 1'],
     ['truth length', problem({ truth: [1] }), 'p.json: truth must be an array of 3 numbers, got an array of length 1'],
-    ['string in G', problem({ operator: { dense: [[1, '0.5', 0], [0, 0.5, 1]] } }), 'p.json: operator.dense[0][1] must be a finite number, got "0.5"'],
+    [
+      'string in G',
+      problem({
+        operator: {
+          dense: [
+            [1, '0.5', 0],
+            [0, 0.5, 1],
+          ],
+        },
+      }),
+      'p.json: operator.dense[0][1] must be a finite number, got "0.5"',
+    ],
     ['overflowing number', problem().replace('[1,2]', '[1,1e999]'), 'p.json: data.values[1] must be a finite number, got Infinity'],
     ['NaN string', problem({}, { values: [1, 'NaN'] }), 'p.json: data.values[1] must be a finite number, got "NaN"'],
     ['negative sigma', problem({}, { sigma: [0.1, -1] }), 'p.json: data.sigma[1] must be > 0, got -1'],
     ['data unit not text', problem({}, { unit: 5 }), 'p.json: data.unit must be a string, got 5'],
-    ['both sigma and covariance', problem({}, { covariance: [[1, 0], [0, 1]] }), 'p.json: data must be an object with either sigma or covariance, not both, got "both"'],
-    ['non-symmetric covariance', problem({}, { sigma: undefined, covariance: [[1, 0.5], [0.4, 1]] }), 'p.json: data.covariance[1][0] must be equal to data.covariance[0][1] = 0.5 (the covariance must be symmetric), got 0.4'],
-    ['non-PD covariance', problem({}, { sigma: undefined, covariance: [[1, 2], [2, 1]] }), 'p.json: data.covariance must be positive definite, got a matrix whose Cholesky factorisation fails at row 1 (pivot -3)'],
-    ['covariance shape', problem({}, { sigma: undefined, covariance: [[1, 0, 0], [0, 1, 0]] }), 'p.json: data.covariance[0] must be an array of 2 numbers, got an array of length 3'],
-    ['sparse index', problem({ operator: { sparse: { rows: [0, 2], cols: [0, 1], values: [1, 1] } } }), 'p.json: operator.sparse.rows[1] must be an integer from 0 to 1 (zero-based datum index), got 2'],
-    ['sparse lengths', problem({ operator: { sparse: { rows: [0], cols: [0, 1], values: [1, 1] } } }), 'p.json: operator.sparse.rows must be an array of 2 row indices, got an array of length 1'],
-    ['two operator forms', problem({ operator: { dense: G, file: 'G.npy' } }), 'p.json: operator must be an object with exactly one of dense, sparse, file, got "dense and file"'],
-    ['operator file type', problem({ operator: { file: 'G.txt' } }), 'p.json: operator.file must be the name of a .csv, .mtx (Matrix Market) or .npy file, got "G.txt"'],
+    [
+      'both sigma and covariance',
+      problem(
+        {},
+        {
+          covariance: [
+            [1, 0],
+            [0, 1],
+          ],
+        },
+      ),
+      'p.json: data must be an object with either sigma or covariance, not both, got "both"',
+    ],
+    [
+      'non-symmetric covariance',
+      problem(
+        {},
+        {
+          sigma: undefined,
+          covariance: [
+            [1, 0.5],
+            [0.4, 1],
+          ],
+        },
+      ),
+      'p.json: data.covariance[1][0] must be equal to data.covariance[0][1] = 0.5 (the covariance must be symmetric), got 0.4',
+    ],
+    [
+      'non-PD covariance',
+      problem(
+        {},
+        {
+          sigma: undefined,
+          covariance: [
+            [1, 2],
+            [2, 1],
+          ],
+        },
+      ),
+      'p.json: data.covariance must be positive definite, got a matrix whose Cholesky factorisation fails at row 1 (pivot -3)',
+    ],
+    [
+      'covariance shape',
+      problem(
+        {},
+        {
+          sigma: undefined,
+          covariance: [
+            [1, 0, 0],
+            [0, 1, 0],
+          ],
+        },
+      ),
+      'p.json: data.covariance[0] must be an array of 2 numbers, got an array of length 3',
+    ],
+    [
+      'sparse index',
+      problem({ operator: { sparse: { rows: [0, 2], cols: [0, 1], values: [1, 1] } } }),
+      'p.json: operator.sparse.rows[1] must be an integer from 0 to 1 (zero-based datum index), got 2',
+    ],
+    [
+      'sparse lengths',
+      problem({ operator: { sparse: { rows: [0], cols: [0, 1], values: [1, 1] } } }),
+      'p.json: operator.sparse.rows must be an array of 2 row indices, got an array of length 1',
+    ],
+    [
+      'two operator forms',
+      problem({ operator: { dense: G, file: 'G.npy' } }),
+      'p.json: operator must be an object with exactly one of dense, sparse, file, got "dense and file"',
+    ],
+    [
+      'operator file type',
+      problem({ operator: { file: 'G.txt' } }),
+      'p.json: operator.file must be the name of a .csv, .mtx (Matrix Market) or .npy file, got "G.txt"',
+    ],
     ['missing sibling', problem({ operator: { file: 'G.npy' } }), 'p.json: operator.file "G.npy" could not be read: no such file (G.npy)'],
-    ['sibling of wrong shape', problem({ operator: { file: 'H.npy' } }), 'p.json: operator.file "H.npy" must hold a 2 × 3 matrix (data × grid cells), got 3 × 2'],
-    ['unreadable sibling content', problem({ operator: { file: 'bad.csv' } }), 'bad.csv: line 2, column 3 must be a finite number, got "x"'],
+    [
+      'sibling of wrong shape',
+      problem({ operator: { file: 'H.npy' } }),
+      'p.json: operator.file "H.npy" must hold a 2 × 3 matrix (data × grid cells), got 3 × 2',
+    ],
+    [
+      'unreadable sibling content',
+      problem({ operator: { file: 'bad.csv' } }),
+      'bad.csv: line 2, column 3 must be a finite number, got "x"',
+    ],
     ['1-D npy sibling', problem({ operator: { file: 'v.npy' } }), 'v.npy: must hold a 2-dimensional array, got shape (6,)'],
     ['quantity without name', problem({ quantity: { unit: 'm' } }), 'p.json: quantity.name must be a string, got nothing'],
   ])('rejects: %s', (_name, text, message) => {
-    const read = siblings({ 'H.npy': writeNpy([3, 2], [1, 2, 3, 4, 5, 6]), 'bad.csv': '1,2,3\n4,5,x\n', 'v.npy': writeNpy([6], [1, 2, 3, 4, 5, 6]) });
+    const read = siblings({
+      'H.npy': writeNpy([3, 2], [1, 2, 3, 4, 5, 6]),
+      'bad.csv': '1,2,3\n4,5,x\n',
+      'v.npy': writeNpy([6], [1, 2, 3, 4, 5, 6]),
+    });
     expectFileError(() => parseProblemFile('p.json', text, { readSibling: read }), message);
   });
 
@@ -165,7 +321,16 @@ describe('parseProblemFile on mutated input (seeded)', () => {
     const r = rng(77);
     const texts = [
       problem({ truth: [1, 2, 3], quantity: { name: 'q' } }),
-      problem({ operator: { sparse: { rows: [0, 1], cols: [0, 2], values: [1, 1] } } }, { sigma: undefined, covariance: [[1, 0.5], [0.5, 2]] }),
+      problem(
+        { operator: { sparse: { rows: [0, 1], cols: [0, 2], values: [1, 1] } } },
+        {
+          sigma: undefined,
+          covariance: [
+            [1, 0.5],
+            [0.5, 2],
+          ],
+        },
+      ),
       problem({ operator: { file: 'G.npy' } }),
     ];
     const read = siblings({ 'G.npy': writeNpyMatrix(fromRows(G)) });

@@ -17,7 +17,33 @@ export function randInt(r: () => number, n: number): number {
   return Math.floor(r() * n);
 }
 
-const TEXT_PIECES = ['', ' ', ',', '-', '.', 'e', 'NaN', '1e999', '"', '[', ']', '{', '}', ':', '\n', '0', '-1', 'x', '%', '#', '\t', ';', '1.5', 'null', 'true'];
+const TEXT_PIECES = [
+  '',
+  ' ',
+  ',',
+  '-',
+  '.',
+  'e',
+  'NaN',
+  '1e999',
+  '"',
+  '[',
+  ']',
+  '{',
+  '}',
+  ':',
+  '\n',
+  '0',
+  '-1',
+  'x',
+  '%',
+  '#',
+  '\t',
+  ';',
+  '1.5',
+  'null',
+  'true',
+];
 
 /** 1–4 random edits (delete, insert, replace, duplicate a span) of a text. */
 export function mutateText(r: () => number, text: string): string {

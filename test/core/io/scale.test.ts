@@ -19,9 +19,18 @@ const ok: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'exponential', 
 
 describe('scale of the prior', () => {
   it.each([
-    [{ ...ok, mean: { constant: 1e308 } }, 'mean.constant must be a mean of magnitude ≤ 1e+50 (results at this scale cannot be computed in double precision; change the unit), got 1e+308'],
-    [{ ...ok, stdProfile: [1, 1e300, 1] }, 'stdProfile[1] must be a standard-deviation multiplier from 1e-50 to 1e+50 (results at this scale cannot be computed in double precision; change the unit), got 1e+300'],
-    [{ ...ok, terms: [{ kernel: 'exponential', variance: 1e-300, length: 2 }] }, 'terms[0].variance must be a variance whose square root is from 1e-50 to 1e+50 (results at this scale cannot be computed in double precision; change the unit), got 1e-300'],
+    [
+      { ...ok, mean: { constant: 1e308 } },
+      'mean.constant must be a mean of magnitude ≤ 1e+50 (results at this scale cannot be computed in double precision; change the unit), got 1e+308',
+    ],
+    [
+      { ...ok, stdProfile: [1, 1e300, 1] },
+      'stdProfile[1] must be a standard-deviation multiplier from 1e-50 to 1e+50 (results at this scale cannot be computed in double precision; change the unit), got 1e+300',
+    ],
+    [
+      { ...ok, terms: [{ kernel: 'exponential', variance: 1e-300, length: 2 }] },
+      'terms[0].variance must be a variance whose square root is from 1e-50 to 1e+50 (results at this scale cannot be computed in double precision; change the unit), got 1e-300',
+    ],
   ] as [PriorSpec, string][])('%#: refused in validatePrior and in the computations that call it', (prior, message) => {
     expect(() => validatePrior(prior, grid)).toThrow(InputError);
     expect(() => validatePrior(prior, grid)).toThrow(message);
@@ -38,9 +47,18 @@ describe('scale of the problem', () => {
   const problem = (data: Record<string, unknown>, dense = [[1, 0, 0]]) =>
     JSON.stringify({ kind: 'priorscope.problem', version: 1, grid, operator: { dense }, data: { values: [1], sigma: [0.1], ...data } });
   it.each([
-    [problem({ sigma: [1e-300] }), 'p.json: data.sigma[0] must be from 1e-50 to 1e+50 (results at this scale cannot be computed in double precision; change the unit), got 1e-300'],
-    [problem({ values: [1e200] }), 'p.json: data.values[0] must be of magnitude ≤ 1e+50 (results at this scale cannot be computed in double precision; change the unit), got 1e+200'],
-    [problem({}, [[1e300, 0, 0]]), 'p.json: operator must be a matrix with entries of magnitude ≤ 1e+50 (results at this scale cannot be computed in double precision; change the unit), got 1e+300'],
+    [
+      problem({ sigma: [1e-300] }),
+      'p.json: data.sigma[0] must be from 1e-50 to 1e+50 (results at this scale cannot be computed in double precision; change the unit), got 1e-300',
+    ],
+    [
+      problem({ values: [1e200] }),
+      'p.json: data.values[0] must be of magnitude ≤ 1e+50 (results at this scale cannot be computed in double precision; change the unit), got 1e+200',
+    ],
+    [
+      problem({}, [[1e300, 0, 0]]),
+      'p.json: operator must be a matrix with entries of magnitude ≤ 1e+50 (results at this scale cannot be computed in double precision; change the unit), got 1e+300',
+    ],
   ])('%#', (text, message) => {
     expectFileError(() => parseProblemFile('p.json', text), message);
   });
@@ -48,7 +66,12 @@ describe('scale of the problem', () => {
   it('the pieces reader applies the same rule', () => {
     const enc = (s: string) => new TextEncoder().encode(s);
     expectFileError(
-      () => assembleProblem({ grid: { shape: [2], spacing: [1] }, operator: { name: 'G.csv', bytes: enc('1,0\n') }, data: { name: 'd.csv', bytes: enc('1.5,1e-300\n') } }),
+      () =>
+        assembleProblem({
+          grid: { shape: [2], spacing: [1] },
+          operator: { name: 'G.csv', bytes: enc('1,0\n') },
+          data: { name: 'd.csv', bytes: enc('1.5,1e-300\n') },
+        }),
       'd.csv: data.sigma[0] must be from 1e-50 to 1e+50 (results at this scale cannot be computed in double precision; change the unit), got 1e-300',
     );
   });

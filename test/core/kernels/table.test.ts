@@ -89,11 +89,14 @@ describe('the kernel table', () => {
 
   describe.each(KERNEL_NAMES)('%s: file fields and help text', (kernel) => {
     const def = kernelDefinition(kernel);
-    const file = (term: Record<string, unknown>) => JSON.stringify({ kind: 'priorscope.prior', version: 1, mean: { constant: 0 }, terms: [term] });
+    const file = (term: Record<string, unknown>) =>
+      JSON.stringify({ kind: 'priorscope.prior', version: 1, mean: { constant: 0 }, terms: [term] });
 
     it('a field the kernel takes is required in the prior file and round-trips; elsewhere it is kept with a warning', () => {
       if (kernelTakes(kernel, 'nu')) {
-        expect(() => parsePriorFile('p.json', file({ kernel, variance: 1, length: 2 }))).toThrow(`terms[0].nu must be a finite number > 0 for the ${kernel} kernel`);
+        expect(() => parsePriorFile('p.json', file({ kernel, variance: 1, length: 2 }))).toThrow(
+          `terms[0].nu must be a finite number > 0 for the ${kernel} kernel`,
+        );
         const { prior, warnings } = parsePriorFile('p.json', file({ kernel, variance: 1, length: 2, nu: 2.5 }));
         expect(warnings).toEqual([]);
         expect(parsePriorFile('p.json', writePriorFile(prior)).prior).toEqual(prior);

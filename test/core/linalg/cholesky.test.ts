@@ -16,14 +16,16 @@ import { randomMatrix, randomSpd, relError } from './helpers.ts';
 
 describe('cholesky (small cases worked by hand)', () => {
   it('factors a small SPD matrix so that L Lᵀ = A', () => {
-    const A = fromRows([[4, 2, 0.4], [2, 5, 1], [0.4, 1, 3]]);
+    const A = fromRows([
+      [4, 2, 0.4],
+      [2, 5, 1],
+      [0.4, 1, 3],
+    ]);
     const r = cholesky(A);
     expect(r.ok).toBe(true);
     if (!r.ok) return;
     // By hand: L00 = 2, L10 = 1, L11 = 2, L20 = 0.2, L21 = (1 − 0.2)/2 = 0.4, L22 = √(3 − 0.04 − 0.16).
-    expect(Array.from(r.factor.data)).toEqual(
-      [2, 0, 0, 1, 2, 0, 0.2, 0.4, Math.sqrt(2.8)].map((v) => expect.closeTo(v, 14)),
-    );
+    expect(Array.from(r.factor.data)).toEqual([2, 0, 0, 1, 2, 0, 0.2, 0.4, Math.sqrt(2.8)].map((v) => expect.closeTo(v, 14)));
     const back = matmul(r.factor, transpose(r.factor));
     back.data.forEach((v, k) => expect(v).toBeCloseTo(A.data[k], 14));
     const x = choleskySolve(r.factor, [1, 2, 3]);
@@ -32,7 +34,12 @@ describe('cholesky (small cases worked by hand)', () => {
   });
   it('reports the failing pivot of an indefinite matrix', () => {
     // [[1, 2], [2, 1]]: second pivot 1 − 2²/1 = −3.
-    const r = cholesky(fromRows([[1, 2], [2, 1]]));
+    const r = cholesky(
+      fromRows([
+        [1, 2],
+        [2, 1],
+      ]),
+    );
     expect(r).toEqual({ ok: false, pivot: 1, value: -3 });
   });
   it('rejects a non-square matrix with a message naming the shape', () => {
@@ -94,7 +101,12 @@ describe('triangular solves', () => {
   });
   it('log det from the factor equals the sum of log pivots squared (2×2 by hand)', () => {
     // det [[4, 2], [2, 5]] = 16.
-    const f = cholesky(fromRows([[4, 2], [2, 5]]));
+    const f = cholesky(
+      fromRows([
+        [4, 2],
+        [2, 5],
+      ]),
+    );
     if (!f.ok) throw new Error('not SPD');
     expect(logDetFromCholesky(f.factor)).toBeCloseTo(Math.log(16), 14);
   });

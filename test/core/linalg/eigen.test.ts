@@ -23,7 +23,16 @@ function laplacian(n: number) {
 
 describe('symmetric eigenvalues', () => {
   it('a 2×2 worked by hand: [[2, 1], [1, 2]] has 1 and 3', () => {
-    expect(Array.from(symmetricEigenvalues(fromRows([[2, 1], [1, 2]])))).toEqual([1, 3].map((v) => expect.closeTo(v, 14)));
+    expect(
+      Array.from(
+        symmetricEigenvalues(
+          fromRows([
+            [2, 1],
+            [1, 2],
+          ]),
+        ),
+      ),
+    ).toEqual([1, 3].map((v) => expect.closeTo(v, 14)));
   });
   for (const n of [1, 2, 5, 64, 201]) {
     it(`Laplacian n = ${n} against the closed form`, () => {
@@ -43,7 +52,10 @@ describe('symmetric eigenvalues', () => {
     const n = 37;
     const a = randomSymmetric(n, 2);
     const { d, e } = tridiagonalise(a);
-    let tr = 0, fr = 0, trT = 0, frT = 0;
+    let tr = 0,
+      fr = 0,
+      trT = 0,
+      frT = 0;
     for (let i = 0; i < n; i++) {
       tr += a.data[i * n + i];
       trT += d[i];
@@ -66,7 +78,8 @@ describe('symmetric eigenvalues', () => {
     const n = 90; // above the blocked-reduction threshold
     const a = randomSymmetric(n, 3);
     const { values, vectors } = symmetricEigen(a);
-    let res = 0, orth = 0;
+    let res = 0,
+      orth = 0;
     for (let j = 0; j < n; j++) {
       const v = Float64Array.from({ length: n }, (_, i) => vectors.data[i * n + j]);
       const av = matvec(a, v);

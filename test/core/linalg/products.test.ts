@@ -26,11 +26,27 @@ function naive(a: Matrix, b: Matrix): Matrix {
 
 describe('dense products', () => {
   it('a 2×2 product worked by hand', () => {
-    const c = multiply(fromRows([[1, 2], [3, 4]]), fromRows([[5, 6], [7, 8]]));
+    const c = multiply(
+      fromRows([
+        [1, 2],
+        [3, 4],
+      ]),
+      fromRows([
+        [5, 6],
+        [7, 8],
+      ]),
+    );
     expect(Array.from(c.data)).toEqual([19, 22, 43, 50]);
   });
   // Shapes around the 4 × 2 tile and across the KC = 256 depth block.
-  for (const [m, k, n] of [[1, 1, 1], [3, 2, 5], [4, 7, 2], [9, 257, 3], [6, 513, 7], [33, 40, 31]] as const) {
+  for (const [m, k, n] of [
+    [1, 1, 1],
+    [3, 2, 5],
+    [4, 7, 2],
+    [9, 257, 3],
+    [6, 513, 7],
+    [33, 40, 31],
+  ] as const) {
     it(`${m}×${k} · ${k}×${n} matches the triple loop`, () => {
       const a = randomMatrix(m, k, m + 10 * k);
       const b = randomMatrix(k, n, n + 7 * k);
@@ -58,7 +74,10 @@ describe('dense products', () => {
     }
   });
   it('sums of squares by column and by row', () => {
-    const w = fromRows([[1, 2, 3], [4, 5, 6]]);
+    const w = fromRows([
+      [1, 2, 3],
+      [4, 5, 6],
+    ]);
     expect(Array.from(columnSumsOfSquares(w))).toEqual([17, 29, 45]);
     expect(Array.from(rowSumsOfSquares(w))).toEqual([14, 77]);
   });
@@ -67,8 +86,7 @@ describe('dense products', () => {
     const a = randomMatrix(n, n, 3);
     const low = a.data.slice();
     mirrorLowerToUpper(a);
-    for (let i = 0; i < n; i++)
-      for (let j = 0; j < n; j++) expect(a.data[i * n + j]).toBe(j <= i ? low[i * n + j] : low[j * n + i]);
+    for (let i = 0; i < n; i++) for (let j = 0; j < n; j++) expect(a.data[i * n + j]).toBe(j <= i ? low[i * n + j] : low[j * n + i]);
   });
   it('shape mismatches throw with both shapes', () => {
     expect(() => multiply(matrix(2, 3), matrix(4, 2))).toThrow(/A is 2×3, B is 4×2/);
@@ -78,7 +96,12 @@ describe('dense products', () => {
 
 describe('transpose', () => {
   it('matches the definition on shapes around the 32-wide tiles', () => {
-    for (const [r, c] of [[1, 1], [3, 70], [33, 31], [65, 64]] as const) {
+    for (const [r, c] of [
+      [1, 1],
+      [3, 70],
+      [33, 31],
+      [65, 64],
+    ] as const) {
       const a = randomMatrix(r, c, r * 100 + c);
       const t = transpose(a);
       expect([t.rows, t.cols]).toEqual([c, r]);

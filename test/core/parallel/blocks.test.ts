@@ -66,7 +66,8 @@ describe('split standard deviations', () => {
     const n = state.Bt.cols;
     const cuts = [0, 7, 130, 131, 300, n];
     const v = new Float64Array(n);
-    for (let k = 0; k + 1 < cuts.length; k++) v.set(runVarianceTask(varianceTask(state.L, state.Bt, state.priorVariance, cuts[k], cuts[k + 1])), cuts[k]);
+    for (let k = 0; k + 1 < cuts.length; k++)
+      v.set(runVarianceTask(varianceTask(state.L, state.Bt, state.priorVariance, cuts[k], cuts[k + 1])), cuts[k]);
     for (let i = 0; i < n; i++) expect(Object.is(Math.sqrt(v[i]), single[i])).toBe(true);
   });
 

@@ -8,7 +8,12 @@
  * Tarantola 2005 §3.2) to 1e-10 relative.
  */
 import { afterAll, describe, expect, it } from 'vitest';
-import { pairOrder, prepareStructuredPosterior, structuredProblem, type StructuredPosteriorState } from '../../../src/core/inverse/structured.ts';
+import {
+  pairOrder,
+  prepareStructuredPosterior,
+  structuredProblem,
+  type StructuredPosteriorState,
+} from '../../../src/core/inverse/structured.ts';
 import { matrix } from '../../../src/core/linalg/matrix.ts';
 import { sparseToDense, type SparseMatrix } from '../../../src/core/linalg/sparse.ts';
 import { nodeBlockPool } from '../../../src/core/parallel/node.ts';
@@ -56,7 +61,11 @@ function dense1d(): Problem {
   const g = matrix(m, n);
   rng.fillNormal(g.data);
   const values = rng.fillNormal(new Float64Array(m));
-  return { grid: { shape: [n], spacing: [0.5] }, operator: { kind: 'dense', matrix: g }, data: { values, sigma: new Float64Array(m).fill(0.1) } };
+  return {
+    grid: { shape: [n], spacing: [0.5] },
+    operator: { kind: 'dense', matrix: g },
+    data: { values, sigma: new Float64Array(m).fill(0.1) },
+  };
 }
 
 function withProfile(prior: PriorSpec, n: number): PriorSpec {
@@ -65,7 +74,8 @@ function withProfile(prior: PriorSpec, n: number): PriorSpec {
 
 /** Entries of two states that differ (Object.is), per field; all zero when bit-identical. */
 function differences(a: StructuredPosteriorState, b: StructuredPosteriorState): Record<string, number> {
-  const count = (x: Float64Array, y: Float64Array) => (x.length !== y.length ? -1 : x.reduce((k, v, i) => k + (Object.is(v, y[i]) ? 0 : 1), 0));
+  const count = (x: Float64Array, y: Float64Array) =>
+    x.length !== y.length ? -1 : x.reduce((k, v, i) => k + (Object.is(v, y[i]) ? 0 : 1), 0);
   return {
     Bt: count(a.Bt.data, b.Bt.data),
     L: count(a.L.data, b.L.data),
@@ -170,13 +180,33 @@ describe('errors', () => {
 
   it('a worker that fails rejects with a message naming the task kind and the cause', async () => {
     const p = sparse2d();
-    const task: ProductsTask = { kind: 'products', token: 987654, grid: p.grid, prior: matern(3), operator: null, rows: Int32Array.of(0, 1), cacheBytes: 0, out: null };
-    await expect(pools[0].runProducts(task, 1)).rejects.toThrow('products worker: products task: this thread holds no operator for problem token 987654');
+    const task: ProductsTask = {
+      kind: 'products',
+      token: 987654,
+      grid: p.grid,
+      prior: matern(3),
+      operator: null,
+      rows: Int32Array.of(0, 1),
+      cacheBytes: 0,
+      out: null,
+    };
+    await expect(pools[0].runProducts(task, 1)).rejects.toThrow(
+      'products worker: products task: this thread holds no operator for problem token 987654',
+    );
   });
 
   it('a port outside the pool is refused', async () => {
     const p = sparse2d();
-    const task: ProductsTask = { kind: 'products', token: 1, grid: p.grid, prior: matern(3), operator: p.operator, rows: Int32Array.of(0), cacheBytes: 0, out: null };
+    const task: ProductsTask = {
+      kind: 'products',
+      token: 1,
+      grid: p.grid,
+      prior: matern(3),
+      operator: p.operator,
+      rows: Int32Array.of(0),
+      cacheBytes: 0,
+      out: null,
+    };
     await expect(pools[0].runProducts(task, 2)).rejects.toThrow('products task: port must be an integer in 0 … 1, got 2');
   });
 
@@ -204,24 +234,26 @@ describe('pieces', () => {
     expect(r.length).toBe(Math.min(pairs, parts));
   });
 
-  it.each([
-    [[0, 10, 30, 37]],
-    [[0, 2, 36, 37]],
-    [[0, 37]],
-  ])('in-thread shares cut at pair boundaries %j give the single-thread Bᵀ bit for bit (profile + nugget)', (cuts) => {
-    const problem = sparse2d();
-    const prior = withProfile(matern(3), 480);
-    const one = prepareStructuredPosterior(problem, prior);
-    const order = pairOrder(problem.operator, 24, 37);
-    const bt = new Float64Array(37 * 480);
-    const state = new ProductsThreadState();
-    for (let k = 0; k + 1 < cuts.length; k++) {
-      const rows = order.slice(cuts[k], cuts[k + 1]);
-      const r = runProductsTask({ kind: 'products', token: 5, grid: problem.grid, prior, operator: problem.operator, rows, cacheBytes: 0, out: null }, state);
-      for (let i = 0; i < rows.length; i++) bt.set(r.rows!.subarray(i * 480, (i + 1) * 480), rows[i] * 480);
-    }
-    expect(bt.reduce((c, v, i) => c + (Object.is(v, one.Bt.data[i]) ? 0 : 1), 0)).toBe(0);
-  });
+  it.each([[[0, 10, 30, 37]], [[0, 2, 36, 37]], [[0, 37]]])(
+    'in-thread shares cut at pair boundaries %j give the single-thread Bᵀ bit for bit (profile + nugget)',
+    (cuts) => {
+      const problem = sparse2d();
+      const prior = withProfile(matern(3), 480);
+      const one = prepareStructuredPosterior(problem, prior);
+      const order = pairOrder(problem.operator, 24, 37);
+      const bt = new Float64Array(37 * 480);
+      const state = new ProductsThreadState();
+      for (let k = 0; k + 1 < cuts.length; k++) {
+        const rows = order.slice(cuts[k], cuts[k + 1]);
+        const r = runProductsTask(
+          { kind: 'products', token: 5, grid: problem.grid, prior, operator: problem.operator, rows, cacheBytes: 0, out: null },
+          state,
+        );
+        for (let i = 0; i < rows.length; i++) bt.set(r.rows!.subarray(i * 480, (i + 1) * 480), rows[i] * 480);
+      }
+      expect(bt.reduce((c, v, i) => c + (Object.is(v, one.Bt.data[i]) ? 0 : 1), 0)).toBe(0);
+    },
+  );
 
   it('productsWorthSplitting: never on one thread; no at 64² with M = 400 (no gain measured with cached spectra), yes at 128² and at 64² with M = 800', () => {
     expect(productsWorthSplitting(400, [128, 128], 1)).toBe(false);
@@ -255,8 +287,21 @@ describe('portPool with pinned tasks (in-thread ports)', () => {
     const log: [number, number][] = [];
     const pool = portPool(fakePorts([30, 1], log));
     const p = sparse2d();
-    const task = (rows: number[]): ProductsTask => ({ kind: 'products', token: 3, grid: p.grid, prior: matern(3), operator: p.operator, rows: Int32Array.from(rows), cacheBytes: 0, out: null });
-    const results = await Promise.all([pool.runProducts(task([0, 1]), 0), pool.runProducts(task([2, 3]), 0), pool.runProducts(task([4]), 1)]);
+    const task = (rows: number[]): ProductsTask => ({
+      kind: 'products',
+      token: 3,
+      grid: p.grid,
+      prior: matern(3),
+      operator: p.operator,
+      rows: Int32Array.from(rows),
+      cacheBytes: 0,
+      out: null,
+    });
+    const results = await Promise.all([
+      pool.runProducts(task([0, 1]), 0),
+      pool.runProducts(task([2, 3]), 0),
+      pool.runProducts(task([4]), 1),
+    ]);
     expect(log.map(([port]) => port).sort()).toEqual([0, 0, 1]);
     expect(log.filter(([port]) => port === 0).map(([, id]) => id)).toEqual([0, 1]);
     expect(results.map((r) => r.rows!.length)).toEqual([2 * 480, 2 * 480, 480]);

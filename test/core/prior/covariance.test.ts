@@ -14,7 +14,10 @@ describe('covarianceMatrix structure', () => {
   it('is exactly symmetric (2-D, rotated anisotropy, std profile, nugget)', () => {
     const prior: PriorSpec = {
       mean: { constant: 0 },
-      terms: [{ kernel: 'matern', variance: 2, lengths: [3, 1], angle: 37, nu: 2.5 }, { kernel: 'spherical', variance: 1, length: 4 }],
+      terms: [
+        { kernel: 'matern', variance: 2, lengths: [3, 1], angle: 37, nu: 2.5 },
+        { kernel: 'spherical', variance: 1, length: 4 },
+      ],
       nugget: 1e-3,
       stdProfile: Array.from({ length: 54 }, (_, i) => 1 + 0.1 * Math.cos(i)),
     };
@@ -62,7 +65,12 @@ describe('covarianceMatrix structure', () => {
   });
 
   it('priorVariance and the lag-table product agree with the dense matrix', () => {
-    const p: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 2, length: 1 }], nugget: 0.5, stdProfile: Array.from({ length: 54 }, (_, i) => 0.5 + i / 54) };
+    const p: PriorSpec = {
+      mean: { constant: 0 },
+      terms: [{ kernel: 'exponential', variance: 2, length: 1 }],
+      nugget: 0.5,
+      stdProfile: Array.from({ length: 54 }, (_, i) => 0.5 + i / 54),
+    };
     const c = covarianceMatrix(g2, p);
     const v = priorVariance(g2, p);
     v.forEach((x, i) => expect(x).toBe(c.data[i * 54 + i]));
@@ -74,7 +82,10 @@ describe('covarianceMatrix structure', () => {
 
   it('trend mean uses absolute coordinates (origin included)', () => {
     // m0 = 2 + 0.5·x − y at cell (ix, iy) = (1, 2) with origin (10, 20), spacing (2, 3): x = 12, y = 26.
-    const m = meanVector({ shape: [3, 4], spacing: [2, 3], origin: [10, 20] }, { mean: { trend: { intercept: 2, slope: [0.5, -1] } }, terms: [{ kernel: 'exponential', variance: 1, length: 1 }] });
+    const m = meanVector(
+      { shape: [3, 4], spacing: [2, 3], origin: [10, 20] },
+      { mean: { trend: { intercept: 2, slope: [0.5, -1] } }, terms: [{ kernel: 'exponential', variance: 1, length: 1 }] },
+    );
     expect(m[1 + 3 * 2]).toBe(2 + 6 - 26);
   });
 });

@@ -37,7 +37,12 @@ describe('diagnoseCovariance', () => {
 
   it('indefinite 2 × 2 [[1, 2], [2, 1]]: pivot 1, eigenvalues −1 and 3, no jitter up to the variance helps', () => {
     // Eigenvalues of [[a, b], [b, a]] are a ± b (closed form).
-    const d = diagnoseCovariance(fromRows([[1, 2], [2, 1]]));
+    const d = diagnoseCovariance(
+      fromRows([
+        [1, 2],
+        [2, 1],
+      ]),
+    );
     expect(d.positiveDefinite).toBe(false);
     expect(d.failedPivot).toBe(1);
     expect(d.minEigenvalue).toBeCloseTo(-1, 14);
@@ -50,7 +55,12 @@ describe('diagnoseCovariance', () => {
   it('[[1, 1−δ], [1−δ, 1]] with δ = 1e−12: factors but is near-singular; the suggested decade is 1e−9', () => {
     // Eigenvalues 2 − δ and δ; cond(C + jI) = (2 − δ + j)/(δ + j) ≤ 1e10 fails at j = 1e−10
     // (2/1.01e−10 ≈ 2.0e10), so the answer is the decade 1e−9: (2 + 1e−9)/(1e−9 + 1e−12) ≈ 2.0e9.
-    const d = diagnoseCovariance(fromRows([[1, 1 - 1e-12], [1 - 1e-12, 1]]));
+    const d = diagnoseCovariance(
+      fromRows([
+        [1, 1 - 1e-12],
+        [1 - 1e-12, 1],
+      ]),
+    );
     expect(d.positiveDefinite).toBe(true);
     expect(codes(d)).toEqual(['near-singular']);
     expect(d.suggestedJitterRelative).toBe(1e-9);
@@ -59,10 +69,18 @@ describe('diagnoseCovariance', () => {
 
 describe('priorWarnings', () => {
   it('nu on a non-Matérn kernel is reported as ignored', () => {
-    expect(codes({ warnings: priorWarnings(g100, { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length: 2, nu: 2 }] }) })).toEqual(['nu-ignored']);
+    expect(
+      codes({
+        warnings: priorWarnings(g100, { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length: 2, nu: 2 }] }),
+      }),
+    ).toEqual(['nu-ignored']);
   });
   it('smooth Matérn (ν = 10) with a long length and no nugget is flagged; a short one is not', () => {
-    const m = (length: number, nugget = 0): PriorSpec => ({ mean: { constant: 0 }, terms: [{ kernel: 'matern', variance: 1, length, nu: 10 }], nugget });
+    const m = (length: number, nugget = 0): PriorSpec => ({
+      mean: { constant: 0 },
+      terms: [{ kernel: 'matern', variance: 1, length, nu: 10 }],
+      nugget,
+    });
     expect(codes({ warnings: priorWarnings(g100, m(10)) })).toEqual(['smooth-matern-long-length']);
     expect(priorWarnings(g100, m(0.5))).toEqual([]);
     expect(priorWarnings(g100, m(10, 1e-3))).toEqual([]);
@@ -71,7 +89,14 @@ describe('priorWarnings', () => {
     const gs = (length: number): PriorSpec => ({ mean: { constant: 0 }, terms: [{ kernel: 'gaussian', variance: 1, length }] });
     expect(priorWarnings(g100, gs(2))).toEqual([]);
     expect(codes({ warnings: priorWarnings(g100, gs(3)) })).toEqual(['gaussian-long-length']);
-    expect(codes({ warnings: priorWarnings({ shape: [10, 10], spacing: [1, 1] }, { mean: { constant: 0 }, terms: [{ kernel: 'gaussian', variance: 1, lengths: [4, 1], angle: 10 }] }) })).toEqual(['gaussian-long-length']);
+    expect(
+      codes({
+        warnings: priorWarnings(
+          { shape: [10, 10], spacing: [1, 1] },
+          { mean: { constant: 0 }, terms: [{ kernel: 'gaussian', variance: 1, lengths: [4, 1], angle: 10 }] },
+        ),
+      }),
+    ).toEqual(['gaussian-long-length']);
   });
   it('says a huge eigenvalue spread sensibly (no "10^3429") and names the term in words', () => {
     const w = priorWarnings(g100, { mean: { constant: 0 }, terms: [{ kernel: 'gaussian', variance: 1, length: 40 }] });
@@ -81,6 +106,11 @@ describe('priorWarnings', () => {
     expect(w[0].message).not.toMatch(/10\^(1[7-9]|[2-9]\d|\d{3,})/);
   });
   it('spherical kernels on 1-D and 2-D grids raise no dimension warning (the rule only bites above 3-D)', () => {
-    expect(priorWarnings({ shape: [5, 5], spacing: [1, 1] }, { mean: { constant: 0 }, terms: [{ kernel: 'spherical', variance: 1, length: 3 }] })).toEqual([]);
+    expect(
+      priorWarnings(
+        { shape: [5, 5], spacing: [1, 1] },
+        { mean: { constant: 0 }, terms: [{ kernel: 'spherical', variance: 1, length: 3 }] },
+      ),
+    ).toEqual([]);
   });
 });

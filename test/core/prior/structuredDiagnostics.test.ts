@@ -24,7 +24,10 @@ describe('spectrumBracket: exponential kernel against its lattice symbol', () =>
   // (1 − r²)/(1 − 2r cos ω + r²) (geometric series, derived), with min f = (1 − r)/(1 + r) at ω = π
   // and max f = (1 + r)/(1 − r) at ω = 0. The circulant eigenvalues sample f at ω = 2πk/p up to the
   // tail beyond p/2 (r^(p/2) ≈ e^(−51) here), and k = 0 and k = p/2 hit both extremes exactly.
-  for (const [variance, length, spacing] of [[1, 5, 1], [2.5, 3, 0.5]] as const) {
+  for (const [variance, length, spacing] of [
+    [1, 5, 1],
+    [2.5, 3, 0.5],
+  ] as const) {
     it(`variance ${variance}, length ${length}, spacing ${spacing}`, () => {
       const grid: Grid = { shape: [200], spacing: [spacing] };
       const prior: PriorSpec = { mean: zero, terms: [{ kernel: 'exponential', variance, length }] };
@@ -55,11 +58,42 @@ describe('spectrumBracket: exponential kernel against its lattice symbol', () =>
 });
 
 const agreeCases: { name: string; grid: Grid; prior: PriorSpec }[] = [
-  { name: '1-D exponential', grid: { shape: [300], spacing: [1] }, prior: { mean: zero, terms: [{ kernel: 'exponential', variance: 2, length: 6 }] } },
-  { name: '2-D rotated matern + nugget', grid: { shape: [24, 20], spacing: [1, 1.5] }, prior: { mean: zero, nugget: 0.01, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, lengths: [6, 2], angle: 30 }] } },
-  { name: '2-D spherical + profile', grid: { shape: [20, 20], spacing: [1, 1] }, prior: { mean: zero, stdProfile: Array.from(seededVector(400, 4), (v) => 1 + 0.5 * v), terms: [{ kernel: 'spherical', variance: 1, length: 8 }] } },
-  { name: '2-D sum exponential + gaussian + nugget', grid: { shape: [22, 18], spacing: [1, 1] }, prior: { mean: zero, nugget: 0.05, terms: [{ kernel: 'exponential', variance: 0.5, length: 2 }, { kernel: 'gaussian', variance: 1, lengths: [5, 2], angle: 100 }] } },
-  { name: '1-D gaussian, length 10 cells, no nugget (singular)', grid: { shape: [200], spacing: [1] }, prior: { mean: zero, terms: [{ kernel: 'gaussian', variance: 1, length: 10 }] } },
+  {
+    name: '1-D exponential',
+    grid: { shape: [300], spacing: [1] },
+    prior: { mean: zero, terms: [{ kernel: 'exponential', variance: 2, length: 6 }] },
+  },
+  {
+    name: '2-D rotated matern + nugget',
+    grid: { shape: [24, 20], spacing: [1, 1.5] },
+    prior: { mean: zero, nugget: 0.01, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, lengths: [6, 2], angle: 30 }] },
+  },
+  {
+    name: '2-D spherical + profile',
+    grid: { shape: [20, 20], spacing: [1, 1] },
+    prior: {
+      mean: zero,
+      stdProfile: Array.from(seededVector(400, 4), (v) => 1 + 0.5 * v),
+      terms: [{ kernel: 'spherical', variance: 1, length: 8 }],
+    },
+  },
+  {
+    name: '2-D sum exponential + gaussian + nugget',
+    grid: { shape: [22, 18], spacing: [1, 1] },
+    prior: {
+      mean: zero,
+      nugget: 0.05,
+      terms: [
+        { kernel: 'exponential', variance: 0.5, length: 2 },
+        { kernel: 'gaussian', variance: 1, lengths: [5, 2], angle: 100 },
+      ],
+    },
+  },
+  {
+    name: '1-D gaussian, length 10 cells, no nugget (singular)',
+    grid: { shape: [200], spacing: [1] },
+    prior: { mean: zero, terms: [{ kernel: 'gaussian', variance: 1, length: 10 }] },
+  },
 ];
 
 describe('diagnoseStructured agrees with the dense route', () => {
@@ -137,7 +171,14 @@ describe('diagnosePriorAuto', () => {
   });
 
   it('bad input names the field', () => {
-    expect(() => diagnoseStructured({ shape: [10], spacing: [1] }, { mean: zero, terms: [{ kernel: 'exponential', variance: -1, length: 2 }] })).toThrow(/terms\[0\]\.variance/);
-    expect(() => diagnoseStructured({ shape: [10], spacing: [1] }, { mean: zero, stdProfile: [1, 2], terms: [{ kernel: 'exponential', variance: 1, length: 2 }] })).toThrow(/stdProfile/);
+    expect(() =>
+      diagnoseStructured({ shape: [10], spacing: [1] }, { mean: zero, terms: [{ kernel: 'exponential', variance: -1, length: 2 }] }),
+    ).toThrow(/terms\[0\]\.variance/);
+    expect(() =>
+      diagnoseStructured(
+        { shape: [10], spacing: [1] },
+        { mean: zero, stdProfile: [1, 2], terms: [{ kernel: 'exponential', variance: 1, length: 2 }] },
+      ),
+    ).toThrow(/stdProfile/);
   });
 });

@@ -32,7 +32,13 @@ const table: [string, Grid, PriorSpec, string, string][] = [
   ['stdProfile short', g1, { ...ok, stdProfile: [1, 2] }, 'stdProfile', '20 numbers'],
   ['stdProfile entry 0', g1, { ...ok, stdProfile: Array.from({ length: 20 }, (_, i) => (i === 12 ? 0 : 1)) }, 'stdProfile[12]', '> 0'],
   ['mean.values wrong length', g2, { ...ok, mean: { values: [1, 2, 3] } }, 'mean.values', '20 numbers'],
-  ['mean.values NaN', g1, { ...ok, mean: { values: Array.from({ length: 20 }, (_, i) => (i === 3 ? NaN : 0)) } }, 'mean.values[3]', 'finite'],
+  [
+    'mean.values NaN',
+    g1,
+    { ...ok, mean: { values: Array.from({ length: 20 }, (_, i) => (i === 3 ? NaN : 0)) } },
+    'mean.values[3]',
+    'finite',
+  ],
   ['trend slope wrong length (2-D)', g2, { ...ok, mean: { trend: { intercept: 0, slope: [1] } } }, 'mean.trend.slope', '2 numbers'],
   ['trend slope wrong length (1-D)', g1, { ...ok, mean: { trend: { intercept: 0, slope: [1, 2] } } }, 'mean.trend.slope', '1 number'],
   ['trend intercept missing', g1, bad({ ...ok, mean: { trend: { slope: [1] } } }), 'mean.trend.intercept', 'finite'],
@@ -60,7 +66,9 @@ describe('validatePrior', () => {
   });
 
   it('names the received value in the message', () => {
-    expect(() => validatePrior(term({ length: -2 }), g1)).toThrow('terms[0].length must be a finite number > 0 (the correlation length), got -2');
+    expect(() => validatePrior(term({ length: -2 }), g1)).toThrow(
+      'terms[0].length must be a finite number > 0 (the correlation length), got -2',
+    );
   });
 
   it.each([

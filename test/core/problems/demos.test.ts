@@ -46,7 +46,10 @@ describe('demo problems', () => {
     expect(f.ok).toBe(true);
     if (!f.ok) return;
     const m0 = meanVector(problem.grid, truthPrior);
-    const z = solveLower(f.factor, problem.truth!.map((v, i) => v - m0[i]));
+    const z = solveLower(
+      f.factor,
+      problem.truth!.map((v, i) => v - m0[i]),
+    );
     const n = z.length;
     const sz = z.reduce((s, v) => s + v * v, 0);
     expect(sz).toBeGreaterThan(chiSquareQuantile(0.0005, n));

@@ -50,8 +50,16 @@ describe('segmentMeetsBox', () => {
 describe('pathsMissingGrid', () => {
   it('lists the paths outside the grid and none for point data', () => {
     const grid = { shape: [2, 2], spacing: [10, 10], origin: [5, 5] };
-    const sources = fromRows([[0, 2], [-5, -5], [25, 0]]);
-    const receivers = fromRows([[20, 3], [30, -1], [25, 20]]);
+    const sources = fromRows([
+      [0, 2],
+      [-5, -5],
+      [25, 0],
+    ]);
+    const receivers = fromRows([
+      [20, 3],
+      [30, -1],
+      [25, 20],
+    ]);
     expect(pathsMissingGrid(grid, { kind: 'paths', sources, receivers })).toEqual([1, 2]);
     expect(pathsMissingGrid(grid, { kind: 'points', positions: sources })).toEqual([]);
   });

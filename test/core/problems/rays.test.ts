@@ -15,7 +15,12 @@ function clippedLength(ray: Ray, xmin: number, xmax: number, ymin: number, ymax:
   const dy = ray.to[1] - y0;
   let t0 = 0;
   let t1 = 1;
-  const edges: [number, number][] = [[-dx, x0 - xmin], [dx, xmax - x0], [-dy, y0 - ymin], [dy, ymax - y0]];
+  const edges: [number, number][] = [
+    [-dx, x0 - xmin],
+    [dx, xmax - x0],
+    [-dy, y0 - ymin],
+    [dy, ymax - y0],
+  ];
   for (const [p, q] of edges) {
     if (p === 0) {
       if (q < 0) return 0;

@@ -35,7 +35,18 @@ const base: DefenceInput = {
 describe('the defence document', () => {
   it('has its ten sections in order and the caution; text from files is escaped; missing parts say why', () => {
     const html = defenceHtml(base);
-    expect([...html.matchAll(/<section id="([a-z]+)">/g)].map((m) => m[1])).toEqual(['problem', 'prior', 'pd', 'realisations', 'posterior', 'fit', 'evidence', 'candidates', 'criteria', 'averaged']);
+    expect([...html.matchAll(/<section id="([a-z]+)">/g)].map((m) => m[1])).toEqual([
+      'problem',
+      'prior',
+      'pd',
+      'realisations',
+      'posterior',
+      'fit',
+      'evidence',
+      'candidates',
+      'criteria',
+      'averaged',
+    ]);
     expect(html).not.toContain('<img');
     expect(html).toContain('<h1>&lt;img src=x onerror=alert(1)&gt;</h1>');
     expect(html).toContain('no map here');
@@ -48,21 +59,41 @@ describe('the defence document', () => {
   it('draws the survey geometry over the coverage map: one line per path, one dot per position, where they were measured', () => {
     const paths = defenceHtml({
       ...base,
-      geometry: { kind: 'paths', sources: { rows: 2, cols: 2, data: Float64Array.from([0, 0, 0, 500]) }, receivers: { rows: 2, cols: 2, data: Float64Array.from([2000, 500, 2000, 0]) } },
+      geometry: {
+        kind: 'paths',
+        sources: { rows: 2, cols: 2, data: Float64Array.from([0, 0, 0, 500]) },
+        receivers: { rows: 2, cols: 2, data: Float64Array.from([2000, 500, 2000, 0]) },
+      },
     });
     const group = paths.match(/<g class="geometry"[^>]*>(.*?)<\/g>/)?.[1] ?? '';
     expect((group.match(/<line /g) ?? []).length).toBe(2);
     expect(paths).toContain('with the 2 paths (lines)');
     // The coverage map is 300 px wide over 0…2000 m from x = 50 px, depth down from y = 22 px over 0…500 m.
     expect(group).toContain('<line x1="50.0" y1="22.0" x2="350.0" y2="97.0"/>');
-    const points = defenceHtml({ ...base, geometry: { kind: 'points', positions: { rows: 3, cols: 2, data: Float64Array.from([250, -1, 1000, -1, 1750, -1]) } } });
+    const points = defenceHtml({
+      ...base,
+      geometry: { kind: 'points', positions: { rows: 3, cols: 2, data: Float64Array.from([250, -1, 1000, -1, 1750, -1]) } },
+    });
     expect(((points.match(/<g class="geometry"[^>]*>(.*?)<\/g>/)?.[1] ?? '').match(/<circle /g) ?? []).length).toBe(3);
     expect(points).toContain('with the 3 measurement positions (dots)');
     expect(defenceHtml(base)).not.toContain('class="geometry"');
   });
 
   it('draws a 2 km × 0.5 km section four times wider than high (true aspect)', () => {
-    const svg = heatSvg({ title: 't', field: new Float64Array(8), nx: 4, ny: 2, xRange: gridExtent(grid, 0), yRange: gridExtent(grid, 1), xLabel: 'x', yLabel: 'y', scale: DIVERGING, range: [-1, 1], unit: '', width: 200 });
+    const svg = heatSvg({
+      title: 't',
+      field: new Float64Array(8),
+      nx: 4,
+      ny: 2,
+      xRange: gridExtent(grid, 0),
+      yRange: gridExtent(grid, 1),
+      xLabel: 'x',
+      yLabel: 'y',
+      scale: DIVERGING,
+      range: [-1, 1],
+      unit: '',
+      width: 200,
+    });
     expect(gridExtent(grid, 0)).toEqual([0, 2000]);
     expect(gridExtent(grid, 1)).toEqual([0, 500]);
     expect(svg).toContain('<rect x="50" y="22" width="200" height="50"');
@@ -71,7 +102,15 @@ describe('the defence document', () => {
 
 describe('svg helpers', () => {
   it('interpolates colour stops linearly and clamps', () => {
-    expect(colourAt([[0, '#000000'], [1, '#ffffff']], 0.5)).toBe('#808080');
+    expect(
+      colourAt(
+        [
+          [0, '#000000'],
+          [1, '#ffffff'],
+        ],
+        0.5,
+      ),
+    ).toBe('#808080');
     expect(colourAt(DIVERGING, 0.5)).toBe('#f7f7f4');
     expect(colourAt(DIVERGING, 2)).toBe('#0c4f5c');
   });

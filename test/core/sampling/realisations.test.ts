@@ -58,7 +58,10 @@ function checkMoments(grid: Grid, prior: PriorSpec, count: number, seed: number)
 const g1: Grid = { shape: [10], spacing: [0.5], origin: [1] };
 const p1: PriorSpec = {
   mean: { trend: { intercept: 3, slope: [-0.5] } },
-  terms: [{ kernel: 'exponential', variance: 1, length: 1.5 }, { kernel: 'gaussian', variance: 0.5, length: 0.6 }],
+  terms: [
+    { kernel: 'exponential', variance: 1, length: 1.5 },
+    { kernel: 'gaussian', variance: 0.5, length: 0.6 },
+  ],
   nugget: 0.05,
   stdProfile: [1, 1.2, 1.4, 1.6, 1.8, 2, 1.5, 1, 0.8, 0.6],
 };
@@ -109,6 +112,8 @@ describe('priorRealisations', () => {
       err = e;
     }
     expect(err).toBeInstanceOf(NotPositiveDefiniteError);
-    expect((err as Error).message).toMatch(/^prior covariance Cm is not positive definite \(Cholesky failed at row \d+\): add a nugget of about 1\.0e-8/);
+    expect((err as Error).message).toMatch(
+      /^prior covariance Cm is not positive definite \(Cholesky failed at row \d+\): add a nugget of about 1\.0e-8/,
+    );
   });
 });

@@ -14,7 +14,12 @@ import { chiSquareQuantile } from '../../../src/core/inverse/chisquare.ts';
 import { cholesky } from '../../../src/core/linalg/cholesky.ts';
 import { covarianceMatrix, meanVector } from '../../../src/core/prior/covariance.ts';
 import type { PriorSpec } from '../../../src/core/prior/spec.ts';
-import { DENSE_REALISATION_LIMIT, priorRealisations, priorRealisationsWithRoute, realisationsFromFactor } from '../../../src/core/sampling/realisations.ts';
+import {
+  DENSE_REALISATION_LIMIT,
+  priorRealisations,
+  priorRealisationsWithRoute,
+  realisationsFromFactor,
+} from '../../../src/core/sampling/realisations.ts';
 import { Random } from '../../../src/core/sampling/random.ts';
 
 const prior: PriorSpec = { mean: { constant: 1 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 2, length: 3 }], nugget: 0.01 };
@@ -26,18 +31,24 @@ describe('priorRealisations route', () => {
     expect(r.route).toBe('dense');
     const f = cholesky(covarianceMatrix(grid, prior));
     if (!f.ok) throw new Error('test prior must factor');
-    expect(Array.from(r.realisations.data)).toEqual(Array.from(realisationsFromFactor(f.factor, meanVector(grid, prior), 3, new Random(99)).data));
+    expect(Array.from(r.realisations.data)).toEqual(
+      Array.from(realisationsFromFactor(f.factor, meanVector(grid, prior), 3, new Random(99)).data),
+    );
   });
   it('circulant embedding above the limit: the sampler output, with a variance inside χ² limits', () => {
     const grid = { shape: [65, 64], spacing: [1, 1] };
     expect(65 * 64).toBeGreaterThan(DENSE_REALISATION_LIMIT);
-    expect(priorRealisationsWithRoute({ shape: [33, 32], spacing: [1, 1] }, prior, 1, 5).route).toBe(33 * 32 > DENSE_REALISATION_LIMIT ? 'fft' : 'dense');
+    expect(priorRealisationsWithRoute({ shape: [33, 32], spacing: [1, 1] }, prior, 1, 5).route).toBe(
+      33 * 32 > DENSE_REALISATION_LIMIT ? 'fft' : 'dense',
+    );
     expect(priorRealisationsWithRoute({ shape: [32, 32], spacing: [1, 1] }, prior, 1, 5).route).toBe('dense');
     const K = 200;
     const r = priorRealisationsWithRoute(grid, prior, K, 5);
     expect(r.route).toBe('fft');
     expect(r.clipped).toBe(false);
-    expect(Array.from(r.realisations.data.subarray(0, 100))).toEqual(Array.from(circulantRealisations(grid, prior, K, 5).realisations.data.subarray(0, 100)));
+    expect(Array.from(r.realisations.data.subarray(0, 100))).toEqual(
+      Array.from(circulantRealisations(grid, prior, K, 5).realisations.data.subarray(0, 100)),
+    );
     expect(priorRealisations(grid, prior, 2, 5).rows).toBe(2);
     // Cell 0 across K independent draws: Σ (x − m0)² / Cm_00 ~ χ²_K; two-sided 0.999 limits (seeded, so the test is deterministic).
     const n = 65 * 64;

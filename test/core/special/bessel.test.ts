@@ -72,7 +72,8 @@ describe('besselK: structure', () => {
       }
       return Math.sqrt(Math.PI / (2 * x)) * sum;
     };
-    for (const nu of [0, 0.3, 1, 2.75, 7.5]) for (const x of [1e3, 1e4, 1e6]) expect(rel(besselKScaled(nu, x), asym(nu, x))).toBeLessThan(1e-14);
+    for (const nu of [0, 0.3, 1, 2.75, 7.5])
+      for (const x of [1e3, 1e4, 1e6]) expect(rel(besselKScaled(nu, x), asym(nu, x))).toBeLessThan(1e-14);
   });
   it('underflows to 0 for large x while the scaled form stays finite; overflows to Infinity for large ν, small x', () => {
     expect(besselK(0, 800)).toBe(0);

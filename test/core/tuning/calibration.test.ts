@@ -57,7 +57,13 @@ describe('calibration cross-table', () => {
   });
   it('stops at a signal between replicates and reports what it completed', () => {
     const signal = { aborted: false };
-    const r = calibrate(problem, prior, prior, { replicates: 50, draws: 2, seed: 3, signal, onProgress: (f) => (signal.aborted = f >= 0.1) });
+    const r = calibrate(problem, prior, prior, {
+      replicates: 50,
+      draws: 2,
+      seed: 3,
+      signal,
+      onProgress: (f) => (signal.aborted = f >= 0.1),
+    });
     expect(r.cancelled).toBe(true);
     expect(r.replicates).toBe(5);
     expect(r.replicateCoverage68.length).toBe(5);
@@ -66,6 +72,8 @@ describe('calibration cross-table', () => {
     expect(() => calibrate(problem, prior, prior, { replicates: 0, seed: 1 })).toThrow(/^replicates must be an integer from 1/);
     expect(() => calibrate(problem, prior, prior, { replicates: 2, seed: -1 })).toThrow(/^seed must be an integer/);
     expect(() => calibrationTable(problem, [], { replicates: 2, seed: 1 })).toThrow(/^candidates must be between 1 and 8 priors/);
-    expect(() => calibrate(problem, { ...prior, terms: [{ kernel: 'exponential', variance: -1, length: 1 }] }, prior, { replicates: 1, seed: 1 })).toThrow(/^truthPrior\.terms\[0\]\.variance/);
+    expect(() =>
+      calibrate(problem, { ...prior, terms: [{ kernel: 'exponential', variance: -1, length: 1 }] }, prior, { replicates: 1, seed: 1 }),
+    ).toThrow(/^truthPrior\.terms\[0\]\.variance/);
   });
 });

@@ -13,7 +13,13 @@ import { matrix, type Matrix } from '../../../src/core/linalg/matrix.ts';
 import { covarianceMatrix, meanVector } from '../../../src/core/prior/covariance.ts';
 import type { PriorSpec } from '../../../src/core/prior/spec.ts';
 import type { Problem } from '../../../src/core/problems/spec.ts';
-import { CRITERIA_DIFFER_EXPLANATION, discrepancyScale, leaveOneOut, priorCriteria, priorPredictiveCheck } from '../../../src/core/tuning/criteria.ts';
+import {
+  CRITERIA_DIFFER_EXPLANATION,
+  discrepancyScale,
+  leaveOneOut,
+  priorCriteria,
+  priorPredictiveCheck,
+} from '../../../src/core/tuning/criteria.ts';
 import type { Grid } from '../../../src/core/grid/grid.ts';
 import { Random } from '../../../src/core/sampling/random.ts';
 import { drawTruth, pointOperator, simulateData, smallProblem, withCorrelatedErrors } from './helpers.ts';
@@ -59,7 +65,7 @@ describe('leave-one-out with correlated data errors', () => {
       const w = choleskySolve(f.factor, kx);
       const mu = keep.reduce((s, a, x) => s + w[x] * r[a], 0);
       const v = K.data[i * m + i] - kx.reduce((s, k, x) => s + k * w[x], 0);
-      const want = -0.5 * Math.log(2 * Math.PI * v) - ((r[i] - mu) ** 2) / (2 * v);
+      const want = -0.5 * Math.log(2 * Math.PI * v) - (r[i] - mu) ** 2 / (2 * v);
       expect(Math.abs(loo.contributions[i] - want)).toBeLessThanOrEqual(1e-9 * Math.max(1, Math.abs(want)));
       expect(Math.abs(loo.std[i] - Math.sqrt(v))).toBeLessThanOrEqual(1e-9 * Math.sqrt(v));
       expect(Math.abs(loo.mean[i] - (p.data.values[i] - r[i] + mu))).toBeLessThanOrEqual(1e-9 * Math.max(1, Math.abs(p.data.values[i])));
@@ -74,7 +80,10 @@ describe('discrepancy principle', () => {
     // values leaves a misfit that no prior variance removes: the 'unreachable' case below.)
     const rng = new Random(52);
     const grid: Grid = { shape: [30], spacing: [1] };
-    const operator = pointOperator(Array.from({ length: 14 }, (_, k) => 2 * k + 1), 30);
+    const operator = pointOperator(
+      Array.from({ length: 14 }, (_, k) => 2 * k + 1),
+      30,
+    );
     const values = simulateData(operator, drawTruth(grid, prior, rng), new Float64Array(14).fill(0.1), rng);
     const p = withCorrelatedErrors({ grid, operator, data: { values, sigma: new Float64Array(14).fill(0.1) } }, 0.1);
     const d = discrepancyScale(p, { ...prior, terms: [{ ...prior.terms[0], variance: 0.01 }] });
@@ -86,7 +95,10 @@ describe('discrepancy principle', () => {
   it('expected-value form with a full Cd: at the found scale the posterior module’s χ² equals its expected value M − tr R', () => {
     const rng = new Random(57);
     const grid: Grid = { shape: [30], spacing: [1] };
-    const operator = pointOperator(Array.from({ length: 14 }, (_, k) => 2 * k + 1), 30);
+    const operator = pointOperator(
+      Array.from({ length: 14 }, (_, k) => 2 * k + 1),
+      30,
+    );
     const values = simulateData(operator, drawTruth(grid, prior, rng), new Float64Array(14).fill(0.1), rng);
     const p = withCorrelatedErrors({ grid, operator, data: { values, sigma: new Float64Array(14).fill(0.1) } }, 0.1);
     const d = discrepancyScale(p, prior, { form: 'expected' });
@@ -95,7 +107,9 @@ describe('discrepancy principle', () => {
     const s = posteriorSummary(preparePosterior(p, d.prior!));
     expect(Math.abs(s.chi2 - (14 - s.resolutionTrace))).toBeLessThanOrEqual(1e-8 * 14);
     expect(Math.abs(d.target - s.fitReference!.expected)).toBeLessThanOrEqual(1e-8 * 14);
-    expect(() => discrepancyScale(p, prior, { form: 'expected', target: 3 })).toThrow(/^target must be left out with the expected-value form/);
+    expect(() => discrepancyScale(p, prior, { form: 'expected', target: 3 })).toThrow(
+      /^target must be left out with the expected-value form/,
+    );
   });
   it('a custom target is met', () => {
     const p = smallProblem(53, prior, 25, 14, 0.1);

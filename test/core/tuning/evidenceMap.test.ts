@@ -11,7 +11,14 @@ import { patchTerm } from '../../../src/core/kernels/spec.ts';
 import type { PriorSpec } from '../../../src/core/prior/spec.ts';
 import type { Problem } from '../../../src/core/problems/spec.ts';
 import { Random } from '../../../src/core/sampling/random.ts';
-import { EIGEN_BREAK_EVEN, evidenceMap, evidenceProfile, logSpaced, setTermLength, withTerm } from '../../../src/core/tuning/evidenceMap.ts';
+import {
+  EIGEN_BREAK_EVEN,
+  evidenceMap,
+  evidenceProfile,
+  logSpaced,
+  setTermLength,
+  withTerm,
+} from '../../../src/core/tuning/evidenceMap.ts';
 import { logEvidence } from '../../../src/core/tuning/typeII.ts';
 import { drawTruth, pointOperator, simulateData, smallProblem, withCorrelatedErrors } from './helpers.ts';
 
@@ -27,7 +34,11 @@ const withNuggetAndSecond: PriorSpec = {
 
 function twoDProblem(): { problem: Problem; prior: PriorSpec } {
   const grid: Grid = { shape: [9, 7], spacing: [1, 0.5] };
-  const prior: PriorSpec = { mean: { constant: 1 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 2, lengths: [3, 1], angle: 30 }], nugget: 1e-4 };
+  const prior: PriorSpec = {
+    mean: { constant: 1 },
+    terms: [{ kernel: 'matern', nu: 1.5, variance: 2, lengths: [3, 1], angle: 30 }],
+    nugget: 1e-4,
+  };
   const rng = new Random(77);
   const idx = Array.from({ length: 30 }, () => Math.floor(rng.nextDouble() * 63));
   const operator = pointOperator(idx, 63);
@@ -74,16 +85,21 @@ describe('evidence map of one length of an anisotropic term (axis l1 / l2)', () 
   it.each([
     ['l1', (len: number) => [len, 1] as const],
     ['l2', (len: number) => [3, len] as const],
-  ] as const)('axis %s moves that length alone: every cell equals the direct evaluation of the prior with those lengths', (axis, lengthsAt) => {
-    const map = evidenceMap(problem, prior, { ...opts, axis });
-    const t = prior.terms[0];
-    map.lengths.forEach((len, i) =>
-      map.variances.forEach((v, j) => {
-        const direct = logEvidence(problem, { ...prior, terms: [patchTerm(t, { lengths: lengthsAt(len), variance: v })] });
-        expect(Math.abs(map.logEvidence[i * map.variances.length + j] - direct)).toBeLessThanOrEqual(1e-10 * Math.max(1, Math.abs(direct)));
-      }),
-    );
-  });
+  ] as const)(
+    'axis %s moves that length alone: every cell equals the direct evaluation of the prior with those lengths',
+    (axis, lengthsAt) => {
+      const map = evidenceMap(problem, prior, { ...opts, axis });
+      const t = prior.terms[0];
+      map.lengths.forEach((len, i) =>
+        map.variances.forEach((v, j) => {
+          const direct = logEvidence(problem, { ...prior, terms: [patchTerm(t, { lengths: lengthsAt(len), variance: v })] });
+          expect(Math.abs(map.logEvidence[i * map.variances.length + j] - direct)).toBeLessThanOrEqual(
+            1e-10 * Math.max(1, Math.abs(direct)),
+          );
+        }),
+      );
+    },
+  );
   it('the l2 map differs from the l1 and the proportional ("both") maps', () => {
     const l1 = evidenceMap(problem, prior, { ...opts, axis: 'l1' });
     const l2 = evidenceMap(problem, prior, { ...opts, axis: 'l2' });
@@ -93,7 +109,9 @@ describe('evidence map of one length of an anisotropic term (axis l1 / l2)', () 
   });
   it('an isotropic term has one length: axis l1 / l2 is refused naming the field', () => {
     expect(() => evidenceMap(smallProblem(3, single), single, { ...opts, axis: 'l2' })).toThrow(InputError);
-    expect(() => evidenceMap(smallProblem(3, single), single, { ...opts, axis: 'l2' })).toThrow(/^axis must be "both" for term 0, which has one length/);
+    expect(() => evidenceMap(smallProblem(3, single), single, { ...opts, axis: 'l2' })).toThrow(
+      /^axis must be "both" for term 0, which has one length/,
+    );
   });
 });
 
@@ -118,7 +136,9 @@ describe('profiles', () => {
     expect(prof.best!.logEvidence).toBe(Math.max(...prof.logEvidence));
   });
   it('ν profile on a non-Matérn term names the field', () => {
-    expect(() => evidenceProfile(problem, withNuggetAndSecond, { parameter: 'nu', term: 0 }, { values: [1] })).toThrow(/terms\[0\]\.kernel must be "matern"/);
+    expect(() => evidenceProfile(problem, withNuggetAndSecond, { parameter: 'nu', term: 0 }, { values: [1] })).toThrow(
+      /terms\[0\]\.kernel must be "matern"/,
+    );
   });
 });
 
@@ -132,12 +152,22 @@ describe('input errors and control', () => {
     expect(() => evidenceMap(problem, single, { term: 0, lengths, variances: { min: 1, max: 2, count: 2 } })).toThrow(msg);
   });
   it('a term index out of range is an InputError naming the field', () => {
-    expect(() => evidenceMap(problem, single, { term: 3, lengths: { min: 1, max: 2, count: 2 }, variances: { min: 1, max: 2, count: 2 } })).toThrow(InputError);
-    expect(() => evidenceMap(problem, single, { term: 3, lengths: { min: 1, max: 2, count: 2 }, variances: { min: 1, max: 2, count: 2 } })).toThrow(/^term must be an integer from 0 to 0/);
+    expect(() =>
+      evidenceMap(problem, single, { term: 3, lengths: { min: 1, max: 2, count: 2 }, variances: { min: 1, max: 2, count: 2 } }),
+    ).toThrow(InputError);
+    expect(() =>
+      evidenceMap(problem, single, { term: 3, lengths: { min: 1, max: 2, count: 2 }, variances: { min: 1, max: 2, count: 2 } }),
+    ).toThrow(/^term must be an integer from 0 to 0/);
   });
   it('progress rises to 1; a signal stops the map and leaves NaN cells', () => {
     const seen: number[] = [];
-    evidenceMap(problem, single, { term: 0, lengths: { min: 1, max: 8, count: 4 }, variances: { min: 1, max: 2, count: 3 }, method: 'eigen', onProgress: (f) => seen.push(f) });
+    evidenceMap(problem, single, {
+      term: 0,
+      lengths: { min: 1, max: 8, count: 4 },
+      variances: { min: 1, max: 2, count: 3 },
+      method: 'eigen',
+      onProgress: (f) => seen.push(f),
+    });
     expect(seen.length).toBe(4);
     seen.forEach((f, k) => expect(f).toBeGreaterThan(k === 0 ? 0 : seen[k - 1]));
     expect(seen[seen.length - 1]).toBe(1);
@@ -162,7 +192,9 @@ describe('input errors and control', () => {
     expect(short.method).toBe('cholesky');
     expect(short.note).toMatch(/fewer than 24 variances/);
     expect(long.method).toBe('eigen');
-    expect(() => evidenceMap(problem, single, { term: 0, lengths, variances: lengths, method: 'fast' as 'eigen' })).toThrow(/^method must be "auto", "eigen" or "cholesky", got "fast"/);
+    expect(() => evidenceMap(problem, single, { term: 0, lengths, variances: lengths, method: 'fast' as 'eigen' })).toThrow(
+      /^method must be "auto", "eigen" or "cholesky", got "fast"/,
+    );
   });
   it('logSpaced hits both ends and is geometric', () => {
     const v = logSpaced({ min: 0.1, max: 1000, count: 5 });

@@ -24,7 +24,16 @@ export function averagingOperator(m: number, n: number, width: number, rng: Rand
 
 /** Sparse operator observing cell idx[i] directly. */
 export function pointOperator(idx: readonly number[], n: number): Operator {
-  return { kind: 'sparse', matrix: sparseFromCoordinates(idx.length, n, idx.map((_, i) => i), idx, idx.map(() => 1)) };
+  return {
+    kind: 'sparse',
+    matrix: sparseFromCoordinates(
+      idx.length,
+      n,
+      idx.map((_, i) => i),
+      idx,
+      idx.map(() => 1),
+    ),
+  };
 }
 
 /** A draw m0 + L z from the prior (own Cholesky, MT19937 normals). */
@@ -102,7 +111,9 @@ export function rayProblem(seed: number, nx: number, ny: number, m: number, trut
     const b = -0.5 + ny * rng.nextDouble();
     const c = -0.5 + nx * rng.nextDouble();
     const e = -0.5 + nx * rng.nextDouble();
-    return k % 2 === 0 ? { from: [-0.5, a] as const, to: [nx - 0.5, b] as const } : { from: [c, -0.5] as const, to: [e, ny - 0.5] as const };
+    return k % 2 === 0
+      ? { from: [-0.5, a] as const, to: [nx - 0.5, b] as const }
+      : { from: [c, -0.5] as const, to: [e, ny - 0.5] as const };
   });
   const operator = rayOperator(grid, rays);
   const truth = drawTruth(grid, truthPrior, rng);
@@ -118,7 +129,10 @@ export function rayProblem(seed: number, nx: number, ny: number, m: number, trut
  * Registers the tests in the calling describe block.
  */
 export function coverageTests(
-  res: Pick<CalibrationResult, 'cellCoverage68' | 'cellCoverage95' | 'coverage68' | 'coverage95' | 'replicateCoverage68' | 'replicateCoverage95'>,
+  res: Pick<
+    CalibrationResult,
+    'cellCoverage68' | 'cellCoverage95' | 'coverage68' | 'coverage95' | 'replicateCoverage68' | 'replicateCoverage95'
+  >,
   replicates: number,
   cells: readonly number[],
 ): void {

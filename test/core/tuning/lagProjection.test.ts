@@ -91,7 +91,9 @@ describe('lag-table projection', () => {
     const g1: Grid = { shape: [50], spacing: [0.5] };
     const one = fewEntries(12, 50, new Random(5)).op;
     const p1: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 2, length: 3 }] };
-    expect(maxRel(lagTableProjection(one, g1, p1).data, projectedPriorCovariance(asProblem(g1, one, 12), p1, { route: 'dense' }).data)).toBeLessThan(1e-13);
+    expect(
+      maxRel(lagTableProjection(one, g1, p1).data, projectedPriorCovariance(asProblem(g1, one, 12), p1, { route: 'dense' }).data),
+    ).toBeLessThan(1e-13);
   });
 
   it('is what `auto` takes above the dense limit for few non-zeros, and not for a dense operator or many non-zeros', () => {
@@ -106,7 +108,13 @@ describe('lag-table projection', () => {
     expect(lagProjectionApplies(pts, big)).toBe(true);
     expect(lagProjectionApplies({ kind: 'dense', matrix: { rows: 1, cols: 1600, data: new Float64Array(1600) } }, big)).toBe(false);
     const many = Math.ceil(Math.sqrt(LAG_PROJECTION_LOOKUPS)) + 1;
-    const wide = sparseFromCoordinates(1, many, new Array(many).fill(0), Array.from({ length: many }, (_, k) => k), new Array(many).fill(1));
+    const wide = sparseFromCoordinates(
+      1,
+      many,
+      new Array(many).fill(0),
+      Array.from({ length: many }, (_, k) => k),
+      new Array(many).fill(1),
+    );
     expect(lagProjectionApplies({ kind: 'sparse', matrix: wide }, { shape: [many], spacing: [1] })).toBe(false);
   });
 });

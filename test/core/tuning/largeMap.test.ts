@@ -35,7 +35,11 @@ it('evidence map, 64 × 64 bench problem (M = 400): runs on the FFT route', () =
   const prior = benchPrior(64);
   expect(tuningRoute(problem, prior)).toBe('fft');
   const t0 = performance.now();
-  const map = evidenceMap(problem, prior, { term: 0, lengths: { min: 10, max: 160, count: 3 }, variances: { min: 1e-3, max: 0.1, count: 4 } });
+  const map = evidenceMap(problem, prior, {
+    term: 0,
+    lengths: { min: 10, max: 160, count: 3 },
+    variances: { min: 1e-3, max: 0.1, count: 4 },
+  });
   const ms = performance.now() - t0;
   expect(map.cancelled).toBe(false);
   expect(map.logEvidence.every((v) => Number.isFinite(v))).toBe(true);

@@ -16,7 +16,13 @@ import type { PriorSpec } from '../../../src/core/prior/spec.ts';
 import type { Problem } from '../../../src/core/problems/spec.ts';
 import { Random } from '../../../src/core/sampling/random.ts';
 import { discrepancyScale, leaveOneOut, priorCriteria, priorPredictiveCheck } from '../../../src/core/tuning/criteria.ts';
-import { prepareDataSide, projectedPriorCovariance, TUNING_DENSE_LIMIT, tuningRoute, type TuningRoute } from '../../../src/core/tuning/dataSpace.ts';
+import {
+  prepareDataSide,
+  projectedPriorCovariance,
+  TUNING_DENSE_LIMIT,
+  tuningRoute,
+  type TuningRoute,
+} from '../../../src/core/tuning/dataSpace.ts';
 import { evidenceMap, evidenceProfile } from '../../../src/core/tuning/evidenceMap.ts';
 import { evidenceGradient, hyperParameters, logEvidence, maximiseEvidence } from '../../../src/core/tuning/typeII.ts';
 import { averagingOperator, rayProblem, smallProblem, withCorrelatedErrors } from './helpers.ts';
@@ -45,14 +51,32 @@ const ray2 = rayProblem(5, 18, 13, 40, matern);
 const profile2 = Array.from({ length: 18 * 13 }, (_, i) => 1 + 0.3 * Math.sin(i / 17));
 
 const projectionCases: [string, Problem, PriorSpec][] = [
-  ['1-D, dense G, Matérn 5/2 + nugget', dense1, { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 2.5, variance: 2, length: 3 }], nugget: 0.01 }],
-  ['1-D, dense G, exponential with a std profile', dense1, { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length: 5 }], stdProfile: profile90 }],
+  [
+    '1-D, dense G, Matérn 5/2 + nugget',
+    dense1,
+    { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 2.5, variance: 2, length: 3 }], nugget: 0.01 },
+  ],
+  [
+    '1-D, dense G, exponential with a std profile',
+    dense1,
+    { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length: 5 }], stdProfile: profile90 },
+  ],
   [
     '2-D rays, gaussian + exponential sum',
     ray2,
-    { mean: { constant: 0 }, terms: [{ kernel: 'gaussian', variance: 0.3, length: 4 }, { kernel: 'exponential', variance: 0.1, length: 1.5 }] },
+    {
+      mean: { constant: 0 },
+      terms: [
+        { kernel: 'gaussian', variance: 0.3, length: 4 },
+        { kernel: 'exponential', variance: 0.1, length: 1.5 },
+      ],
+    },
   ],
-  ['2-D rays, rotated anisotropic Matérn 3/2', ray2, { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, lengths: [6, 2], angle: 30 }] }],
+  [
+    '2-D rays, rotated anisotropic Matérn 3/2',
+    ray2,
+    { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, lengths: [6, 2], angle: 30 }] },
+  ],
   [
     '2-D rays, spherical with std profile and nugget',
     ray2,
@@ -96,7 +120,11 @@ describe('route rule and errors', () => {
 /** Problems for the criteria: a 2-D ray survey, and a 1-D one with correlated data errors. */
 const criteriaCases: [string, Problem, PriorSpec][] = [
   ['2-D rays, Matérn + nugget', ray2, matern],
-  ['1-D, full Cd, sum with std profile', withCorrelatedErrors(dense1, 0.1), { ...projectionCases[1][2], terms: [...projectionCases[1][2].terms, { kernel: 'gaussian', variance: 0.2, length: 8 }] }],
+  [
+    '1-D, full Cd, sum with std profile',
+    withCorrelatedErrors(dense1, 0.1),
+    { ...projectionCases[1][2], terms: [...projectionCases[1][2].terms, { kernel: 'gaussian', variance: 0.2, length: 8 }] },
+  ],
 ];
 
 describe.each(criteriaCases)('criteria on both routes: %s', (_name, problem, prior) => {

@@ -69,8 +69,12 @@ describe('maximiseEvidence with bounds', () => {
     expect(r.parameters.every((p) => p.atBound === null)).toBe(true);
   });
   it('a bound on a held parameter, or an empty or non-positive range, is an InputError', () => {
-    expect(() => maximiseEvidence(problem, start, { fixed: ['nugget'], bounds: { nugget: [1e-6, 1] } })).toThrow(/^bounds\.nugget must be the name of a free parameter/);
-    expect(() => maximiseEvidence(problem, start, { bounds: { 'terms[0].length': [3, 2] } })).toThrow(/^bounds\.terms\[0\]\.length must be \[lo, hi\] with lo ≤ hi and lo > 0/);
+    expect(() => maximiseEvidence(problem, start, { fixed: ['nugget'], bounds: { nugget: [1e-6, 1] } })).toThrow(
+      /^bounds\.nugget must be the name of a free parameter/,
+    );
+    expect(() => maximiseEvidence(problem, start, { bounds: { 'terms[0].length': [3, 2] } })).toThrow(
+      /^bounds\.terms\[0\]\.length must be \[lo, hi\] with lo ≤ hi and lo > 0/,
+    );
     expect(() => maximiseEvidence(problem, start, { bounds: { 'terms[0].variance': [0, 2] } })).toThrow(/lo > 0/);
   });
 });

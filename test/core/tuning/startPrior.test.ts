@@ -41,7 +41,13 @@ function invented(grid: Grid, m: number, seed: number, o: { level: number; sprea
 }
 
 function refOf(p: Problem, length: number, qAt?: number): Ref {
-  const G = toRows(p.operator.kind === 'dense' ? p.operator.matrix : (() => { throw new Error('dense only'); })());
+  const G = toRows(
+    p.operator.kind === 'dense'
+      ? p.operator.matrix
+      : (() => {
+          throw new Error('dense only');
+        })(),
+  );
   return runPython<{ results: Ref[] }>('start_prior_reference.py', {
     cases: [
       {
@@ -62,7 +68,12 @@ const rel = (a: number, b: number) => Math.abs(a - b) / Math.max(Math.abs(b), 1e
 describe('startPriorRule against numpy/scipy (GLS mean and the variance at which rᵀK⁻¹r = M − 1, un-whitened form)', () => {
   it.each([
     ['1-D, diagonal Cd, data around 40 ms', { shape: [30], spacing: [2], unit: 'm' } as Grid, 25, { level: 40, spread: 3, sigma: 0.5 }],
-    ['2-D, diagonal Cd, tiny data (6.9e-10 scale)', { shape: [8, 6], spacing: [10, 5], origin: [5, 2.5] } as Grid, 30, { level: 7e-10, spread: 2e-10, sigma: 2e-11 }],
+    [
+      '2-D, diagonal Cd, tiny data (6.9e-10 scale)',
+      { shape: [8, 6], spacing: [10, 5], origin: [5, 2.5] } as Grid,
+      30,
+      { level: 7e-10, spread: 2e-10, sigma: 2e-11 },
+    ],
     ['2-D, full Cd', { shape: [7, 7], spacing: [1, 1] } as Grid, 20, { level: -3, spread: 1, sigma: 0.2, fullCd: true }],
   ])('%s', (_name, grid, m, o) => {
     const p = invented(grid, m, 7, o);
@@ -115,7 +126,11 @@ describe('the variance rule by seeded simulation', () => {
     const grid: Grid = { shape: [12, 10], spacing: [1, 1] };
     const base = invented(grid, 40, 11, { level: 0, spread: 0, sigma: 0.3 });
     const s2true = 0.8;
-    const prior = { mean: { constant: 2.5 }, terms: [{ kernel: 'exponential' as const, variance: s2true, length: startLength(grid) }], nugget: 0 };
+    const prior = {
+      mean: { constant: 2.5 },
+      terms: [{ kernel: 'exponential' as const, variance: s2true, length: startLength(grid) }],
+      nugget: 0,
+    };
     const reps = 300;
     const draws = priorRealisations(grid, prior, reps, 20261204);
     const rng = new Random(99);

@@ -21,7 +21,11 @@ import { drawTruth, pointOperator, simulateData, smallProblem } from './helpers.
 
 function anisotropic2D(): { problem: Problem; prior: PriorSpec } {
   const grid: Grid = { shape: [8, 6], spacing: [1, 1] };
-  const prior: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.7, variance: 1.5, lengths: [3, 1.2], angle: 25 }], nugget: 0.02 };
+  const prior: PriorSpec = {
+    mean: { constant: 0 },
+    terms: [{ kernel: 'matern', nu: 1.7, variance: 1.5, lengths: [3, 1.2], angle: 25 }],
+    nugget: 0.02,
+  };
   const rng = new Random(5);
   const idx = Array.from({ length: 28 }, () => Math.floor(rng.nextDouble() * 48));
   const operator = pointOperator(idx, 48);
@@ -53,7 +57,9 @@ describe('evidence gradient', () => {
       const tm = Float64Array.from(theta);
       tp[j] += h;
       tm[j] -= h;
-      const fd = (logEvidence(problem, applyHyperParameters(prior, params, tp)) - logEvidence(problem, applyHyperParameters(prior, params, tm))) / (2 * h);
+      const fd =
+        (logEvidence(problem, applyHyperParameters(prior, params, tp)) - logEvidence(problem, applyHyperParameters(prior, params, tm))) /
+        (2 * h);
       // Central-difference error: O(h²)·f''' + ε|f|/h ≈ 1e-9 here (common practice, no source).
       expect(Math.abs(gradient[j] - fd)).toBeLessThanOrEqual(1e-6 * Math.max(1, Math.abs(fd)));
     });
@@ -62,7 +68,9 @@ describe('evidence gradient', () => {
     const names = hyperParameters(anisotropic2D().prior).map((p) => p.name);
     expect(names).toEqual(['terms[0].variance', 'terms[0].lengths[0]', 'terms[0].lengths[1]', 'terms[0].angle', 'terms[0].nu', 'nugget']);
     expect(hyperParameters(anisotropic2D().prior, { fixed: ['terms[0].nu', 'nugget'] }).map((p) => p.name)).toEqual(names.slice(0, 4));
-    expect(() => hyperParameters(anisotropic2D().prior, { fixed: ['terms[0].length'] })).toThrow(/^fixed\[0\] must be one of "terms\[0\]\.variance"/);
+    expect(() => hyperParameters(anisotropic2D().prior, { fixed: ['terms[0].length'] })).toThrow(
+      /^fixed\[0\] must be one of "terms\[0\]\.variance"/,
+    );
   });
 });
 
@@ -70,11 +78,17 @@ describe('maximiseEvidence on data simulated from a known prior', () => {
   // Exponential covariance, fully observed 1-D grid of 80 cells (20 correlation lengths), noise 0.2.
   const truthLogVar = 0;
   const truthLogLen = Math.log(4);
-  const truth: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: Math.exp(truthLogVar), length: Math.exp(truthLogLen) }] };
+  const truth: PriorSpec = {
+    mean: { constant: 0 },
+    terms: [{ kernel: 'exponential', variance: Math.exp(truthLogVar), length: Math.exp(truthLogLen) }],
+  };
   const start: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 0.2, length: 15 }] };
   const n = 80;
   const grid: Grid = { shape: [n], spacing: [1] };
-  const operator = pointOperator(Array.from({ length: n }, (_, i) => i), n);
+  const operator = pointOperator(
+    Array.from({ length: n }, (_, i) => i),
+    n,
+  );
   const seeds = [101, 102, 103, 104, 105, 106, 107, 108];
   const runs = seeds.map((seed) => {
     const rng = new Random(seed);
@@ -95,7 +109,11 @@ describe('maximiseEvidence on data simulated from a known prior', () => {
   it('the optimum is the maximum: no cell of a fine evidence map around it is higher', () => {
     for (const { problem, fit } of runs.slice(0, 3)) {
       const [v, l] = [fit.parameters[0].value, fit.parameters[1].value];
-      const map = evidenceMap(problem, fit.prior, { term: 0, lengths: { min: l / 1.5, max: l * 1.5, count: 9 }, variances: { min: v / 1.5, max: v * 1.5, count: 9 } });
+      const map = evidenceMap(problem, fit.prior, {
+        term: 0,
+        lengths: { min: l / 1.5, max: l * 1.5, count: 9 },
+        variances: { min: v / 1.5, max: v * 1.5, count: 9 },
+      });
       expect(map.best!.logEvidence).toBeLessThanOrEqual(fit.logEvidence + 1e-9);
     }
   });
@@ -135,7 +153,9 @@ describe('maximiseEvidence: control and errors', () => {
   const prior: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length: 4 }] };
   const problem = smallProblem(31, prior);
   it('all parameters fixed is an InputError', () => {
-    expect(() => maximiseEvidence(problem, prior, { fixed: ['terms[0].variance', 'terms[0].length'] })).toThrow(/^fixed must be to leave at least one hyperparameter free/);
+    expect(() => maximiseEvidence(problem, prior, { fixed: ['terms[0].variance', 'terms[0].length'] })).toThrow(
+      /^fixed must be to leave at least one hyperparameter free/,
+    );
   });
   it('a fixed parameter keeps its value; an aborted signal stops before the first step', () => {
     const fit = maximiseEvidence(problem, prior, { fixed: ['terms[0].length'] });

@@ -64,8 +64,26 @@ describe('the nugget floor B/(1e10 − 1)', () => {
   const grid2 = { shape: [12, 9] as [number, number], spacing: [1, 2] as [number, number] };
   const cases: [string, typeof grid1, PriorSpec][] = [
     ['1-D Gaussian', grid1, { mean: { constant: 0 }, terms: [{ kernel: 'gaussian', variance: 2, length: 4 }] }],
-    ['1-D exponential + Gaussian', grid1, { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length: 30 }, { kernel: 'gaussian', variance: 0.5, length: 2 }] }],
-    ['2-D anisotropic Gaussian with a std profile', grid2, { mean: { constant: 0 }, terms: [{ kernel: 'gaussian', variance: 1, lengths: [6, 3], angle: 25 }], stdProfile: Array.from({ length: 108 }, (_, i) => 0.5 + (i % 7) / 4) }],
+    [
+      '1-D exponential + Gaussian',
+      grid1,
+      {
+        mean: { constant: 0 },
+        terms: [
+          { kernel: 'exponential', variance: 1, length: 30 },
+          { kernel: 'gaussian', variance: 0.5, length: 2 },
+        ],
+      },
+    ],
+    [
+      '2-D anisotropic Gaussian with a std profile',
+      grid2,
+      {
+        mean: { constant: 0 },
+        terms: [{ kernel: 'gaussian', variance: 1, lengths: [6, 3], angle: 25 }],
+        stdProfile: Array.from({ length: 108 }, (_, i) => 0.5 + (i % 7) / 4),
+      },
+    ],
   ];
   it.each(cases)('%s: B bounds λmax of the kernel part, and with the floor nugget κ ≤ 1e10', (_, grid, prior) => {
     const ev = symmetricEigenvalues(covarianceMatrix(grid, prior));

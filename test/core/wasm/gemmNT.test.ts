@@ -34,7 +34,15 @@ describe('wasmGemmNT', () => {
   it('runs the WebAssembly kernel in Node', () => expect(wasmGemmAvailable()).toBe(true));
 
   it.each([
-    [1, 1, 1], [3, 5, 2], [4, 4, 4], [7, 9, 13], [17, 6, 255], [16, 16, 256], [5, 3, 257], [33, 301, 40], [64, 70, 600],
+    [1, 1, 1],
+    [3, 5, 2],
+    [4, 4, 4],
+    [7, 9, 13],
+    [17, 6, 255],
+    [16, 16, 256],
+    [5, 3, 257],
+    [33, 301, 40],
+    [64, 70, 600],
   ])('m = %d, n = %d, k = %d: bit-equal to gemmNT', (m, n, k) => {
     const { js, wasm, c0 } = both(m, n, k);
     expect(bitsEqual(wasm, js)).toBe(true);
@@ -42,7 +50,12 @@ describe('wasmGemmNT', () => {
   });
 
   it.each([
-    [40, 40, 30, 0], [37, 37, 300, 0], [70, 64, 65, 6], [50, 20, 11, -9], [300, 280, 9, 0], [9, 30, 5, 12],
+    [40, 40, 30, 0],
+    [37, 37, 300, 0],
+    [70, 64, 65, 6],
+    [50, 20, 11, -9],
+    [300, 280, 9, 0],
+    [9, 30, 5, 12],
   ])('lower, m = %d, n = %d, k = %d, diag = %d: bit-equal, nothing above the diagonal touched', (m, n, k, diag) => {
     const { js, wasm, c0 } = both(m, n, k, true, diag, 0.5);
     expect(bitsEqual(wasm, js)).toBe(true);
@@ -51,7 +64,11 @@ describe('wasmGemmNT', () => {
   });
 
   it('k = 0 or an empty block leaves C alone', () => {
-    for (const [m, n, k] of [[3, 3, 0], [0, 3, 3], [3, 0, 3]] as const) {
+    for (const [m, n, k] of [
+      [3, 3, 0],
+      [0, 3, 3],
+      [3, 0, 3],
+    ] as const) {
       const { wasm, c0 } = both(m, n, k);
       expect(bitsEqual(wasm, c0)).toBe(true);
     }

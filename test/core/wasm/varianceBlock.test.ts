@@ -33,7 +33,14 @@ describe('wasmVarianceBlock', () => {
   });
 
   const cases: [number, number, number][] = [];
-  for (const m of [1, 2, 3, 5, 17, 64, 400]) for (const [c0, w] of [[0, 1], [3, 3], [1, 7], [5, 33]] as const) cases.push([m, c0, w]);
+  for (const m of [1, 2, 3, 5, 17, 64, 400])
+    for (const [c0, w] of [
+      [0, 1],
+      [3, 3],
+      [1, 7],
+      [5, 33],
+    ] as const)
+      cases.push([m, c0, w]);
   it.each(cases)('M = %d, columns [%d, +%d): equals the JS kernel bit for bit', (m, c0, w) => {
     const L = factor(m, 10 + m);
     const n = 41;
@@ -75,7 +82,13 @@ describe('wasmVarianceBlock', () => {
   it('a new factor (another L.data, same size) is packed again; a larger M grows the memory', () => {
     const n = 50;
     const pv = priorVariances(n, 300, 8);
-    for (const [m, seed] of [[40, 1], [40, 2], [300, 3], [12, 4], [300, 3]] as const) {
+    for (const [m, seed] of [
+      [40, 1],
+      [40, 2],
+      [300, 3],
+      [12, 4],
+      [300, 3],
+    ] as const) {
       const L = factor(m, seed);
       const Bt = randomMatrix(m, n, seed + 100);
       expect(bitsEqual(wasmVarianceBlock(L, Bt, pv, 2, 47), structuredVarianceBlock(L, Bt, pv, 2, 47))).toBe(true);

@@ -14,7 +14,12 @@ import { assemble, buildModules, MODULES_FILE, WAT_DIR, WAT_SOURCES } from '../.
 
 const DEBIAN_WAT2WASM = '/usr/bin/wat2wasm';
 
-const COMMITTED: Record<(typeof WAT_SOURCES)[number]['constant'], Uint8Array<ArrayBuffer>> = { SIMD_PROBE_WASM, VARIANCE_WASM, GEMM_WASM, FFT_WASM };
+const COMMITTED: Record<(typeof WAT_SOURCES)[number]['constant'], Uint8Array<ArrayBuffer>> = {
+  SIMD_PROBE_WASM,
+  VARIANCE_WASM,
+  GEMM_WASM,
+  FFT_WASM,
+};
 
 describe('WebAssembly text → committed bytes', () => {
   it.each(WAT_SOURCES)('$file reassembles (wabt, npm) to the committed $constant, which validates', async ({ file, constant }) => {
