@@ -47,8 +47,14 @@ export interface CovarianceOperator {
  * grids other than 1-D/2-D regular ones are refused.
  */
 export function nonStationaryReason(grid: Grid, prior: PriorSpec): string | null {
+  if (grid.shape.length === 3) return 'grid has 3 axes; on 3-D grids only covariance products take the FFT path so far';
+  return productReason(grid, prior);
+}
+
+/** As {@link nonStationaryReason} for covariance products alone ({@link covarianceOperator}), which run on 1-D, 2-D and 3-D grids. */
+export function productReason(grid: Grid, prior: PriorSpec): string | null {
   const dim = grid.shape.length;
-  if (dim !== 1 && dim !== 2) return `grid has ${dim} axes; the FFT path handles 1-D and 2-D grids`;
+  if (dim !== 1 && dim !== 2 && dim !== 3) return `grid has ${dim} axes; the FFT path handles 1-D, 2-D and 3-D grids`;
   for (const [k, t] of prior.terms.entries()) {
     if (!kernelDefinition(t.kernel).stationary) return `terms[${k}].kernel ${t.kernel} is not stationary`;
   }
@@ -75,9 +81,13 @@ export function isStationaryOnGrid(grid: Grid, prior: PriorSpec): boolean {
 export class CirculantProduct {
   readonly nx: number;
   readonly ny: number;
+  /** 1 on 1-D and 2-D grids. */
+  readonly nz: number;
   readonly px: number;
   readonly py: number;
-  /** λ, real eigenvalues of the embedding (px·py, x fastest). */
+  /** 1 on 1-D and 2-D grids. */
+  readonly pz: number;
+  /** λ, real eigenvalues of the embedding (px·py·pz, x fastest). */
   readonly eigenvalues: Float64Array;
   /** c(0, 0), the kernel variance Σ_t variance_t. */
   readonly variance: number;
@@ -85,20 +95,23 @@ export class CirculantProduct {
   /** λ/(px·py) in the eigenvalues' layout (x fastest): the inverse transform's scale, folded in. */
   private readonly lambdaN: Float64Array;
 
-  constructor(grid: Grid, prior: PriorSpec, padding?: readonly [number, number], engine: FftEngine = fftEngine()) {
+  constructor(grid: Grid, prior: PriorSpec, padding?: readonly number[], engine: FftEngine = fftEngine()) {
     const { nx, ny } = gridAxes(grid);
+    const nz = grid.shape[2] ?? 1;
     this.nx = nx;
     this.ny = ny;
+    this.nz = nz;
     this.px = padding?.[0] ?? productPadding(nx);
     this.py = padding?.[1] ?? productPadding(ny);
-    if (this.px < 2 * nx - 1 || this.py < 2 * ny - 1) {
-      throw new RangeError(`CirculantProduct: padding ${this.px} × ${this.py} is below 2n − 1 for ${nx} × ${ny}`);
+    this.pz = padding?.[2] ?? productPadding(nz);
+    if (this.px < 2 * nx - 1 || this.py < 2 * ny - 1 || this.pz < 2 * nz - 1) {
+      throw new RangeError(`CirculantProduct: padding ${this.px} × ${this.py} × ${this.pz} is below 2n − 1 for ${nx} × ${ny} × ${nz}`);
     }
-    const { px, py } = this;
-    this.eigenvalues = circulantEmbedding(grid, prior.terms, px, py).eigenvalues;
+    const { px, py, pz } = this;
+    this.eigenvalues = circulantEmbedding(grid, prior.terms, px, py, pz).eigenvalues;
     this.variance = stationaryCovariance(prior.terms)(0, 0);
     this.engine = engine;
-    const scale = 1 / (px * py);
+    const scale = 1 / (px * py * pz);
     this.lambdaN = this.eigenvalues.map((v) => v * scale);
   }
 
@@ -113,26 +126,31 @@ export class CirculantProduct {
    */
   private regions() {
     const e = this.engine;
-    const { px, py, ny } = this;
-    for (const n of [px, py]) {
+    const { px, py, pz, ny, nz } = this;
+    for (const n of [px, py, pz]) {
       if (n > 1) {
         e.twiddles(n, false);
         e.twiddles(n, true);
       }
     }
     const { at: lam, end } = e.resident(this.lambdaN);
-    const full = 16 * px * py;
+    const full = 16 * px * py * pz;
     const y = end;
     const z = y + full;
     const t = z + full;
     const x = t + full;
-    const view = e.reserve(x + 16 * px * ny);
+    const view = e.reserve(x + 16 * px * ny * nz);
     return { lam, y, z, t, x, view };
   }
 
-  /** Length of one row spectrum (interleaved complex, px·ny values). */
+  /** Length of one row spectrum (interleaved complex, px·ny·nz values). */
   get spectrumLength(): number {
-    return 2 * this.px * this.ny;
+    return 2 * this.px * this.ny * this.nz;
+  }
+
+  /** Rows holding data: ny·nz (row r = iy + ny·iz starts at grid index nx·r). */
+  private get rows(): number {
+    return this.ny * this.nz;
   }
 
   /**
@@ -141,7 +159,8 @@ export class CirculantProduct {
    */
   spectrum(a: ArrayLike<number>, b: ArrayLike<number> | null, out: Float64Array): Float64Array {
     const e = this.engine;
-    const { nx, ny, px } = this;
+    const { nx, px } = this;
+    const ny = this.rows;
     const { x, z, t, view } = this.regions();
     const w = 2 * px;
     const x0 = x / 8;
@@ -189,9 +208,9 @@ export class CirculantProduct {
     return out;
   }
 
-  /** Length of one full 2-D spectrum (px·py complex values, natural order). */
+  /** Length of one full 2-D (3-D) spectrum (px·py(·pz) complex values, natural order). */
   get columnSpectrumLength(): number {
-    return 2 * this.px * this.py;
+    return 2 * this.px * this.py * this.pz;
   }
 
   /**
@@ -207,6 +226,10 @@ export class CirculantProduct {
     offsetB = 0,
     save: Float64Array | null = null,
   ): void {
+    if (this.nz > 1 || this.pz > 1) {
+      this.fromSpectrum3(spec, outA, outB, offsetA, offsetB, save);
+      return;
+    }
     const { px, py, ny } = this;
     const r = this.regions();
     const w = 2 * px;
@@ -225,12 +248,89 @@ export class CirculantProduct {
 
   /** As {@link fromSpectrum}, from a full 2-D spectrum kept by its `save` (one y-pass less). */
   fromColumnSpectrum(spec: Float64Array, outA: Float64Array, outB: Float64Array | null, offsetA = 0, offsetB = 0): void {
-    const { px, py } = this;
+    const { px, py, pz } = this;
     const r = this.regions();
     // The saved spectrum goes to T; Z ← (λ/P) ⊙ T in the kernel.
-    r.view.set(spec.subarray(0, 2 * px * py), r.t / 8);
-    this.engine.scaleInto(r.z, r.t, r.lam, px * py);
-    this.filter(r, outA, outB, offsetA, offsetB, true);
+    r.view.set(spec.subarray(0, 2 * px * py * pz), r.t / 8);
+    this.engine.scaleInto(r.z, r.t, r.lam, px * py * pz);
+    if (this.nz > 1 || this.pz > 1) this.filter3(r, outA, outB, offsetA, offsetB, true);
+    else this.filter(r, outA, outB, offsetA, offsetB, true);
+  }
+
+  /**
+   * 3-D form of {@link fromSpectrum}: rows (iy, iz) of the row spectrum go to Z (rows ny … py/2 − 1 of
+   * each slab zeroed), the y-pass runs on the nz slabs holding data into Y (slabs nz … pz/2 − 1
+   * zeroed), the z-pass over all px·py columns into Z gives the full spectrum.
+   */
+  private fromSpectrum3(
+    spec: Float64Array,
+    outA: Float64Array,
+    outB: Float64Array | null,
+    offsetA: number,
+    offsetB: number,
+    save: Float64Array | null,
+  ): void {
+    const e = this.engine;
+    const { px, py, pz, ny, nz } = this;
+    const r = this.regions();
+    const w = 2 * px;
+    const slab = w * py;
+    const z0 = r.z / 8;
+    const y0 = r.y / 8;
+    const yEnd = py >= 4 ? py >> 1 : py;
+    for (let iz = 0; iz < nz; iz++) {
+      r.view.set(spec.subarray(w * ny * iz, w * ny * (iz + 1)), z0 + slab * iz);
+      r.view.fill(0, z0 + slab * iz + w * ny, z0 + slab * iz + w * yEnd);
+    }
+    e.run(r.z, r.y, r.t, py, px, nz, 16 * px * py, false, true);
+    const v = e.f64();
+    v.fill(0, y0 + slab * nz, y0 + slab * (pz >= 4 ? pz >> 1 : pz));
+    e.run(r.y, r.z, r.t, pz, px * py, 1, 0, false, true);
+    if (save !== null) {
+      if (save.length < slab * pz)
+        throw new RangeError(`CirculantProduct.fromSpectrum: save has length ${save.length}, expected ${slab * pz}`);
+      save.set(e.f64().subarray(z0, z0 + slab * pz));
+    }
+    this.filter3(r, outA, outB, offsetA, offsetB, false);
+  }
+
+  /**
+   * 3-D form of {@link filter}: from the full spectrum in Z, × λ/P (unless `scaled`), then inverse-direction
+   * transforms along z into Y (slabs < nz wanted), along y on those slabs into Z (rows < ny wanted) and along
+   * x on those rows into X.
+   */
+  private filter3(
+    r: ReturnType<CirculantProduct['regions']>,
+    outA: Float64Array,
+    outB: Float64Array | null,
+    offsetA: number,
+    offsetB: number,
+    scaled: boolean,
+  ): void {
+    const e = this.engine;
+    const { nx, ny, nz, px, py, pz } = this;
+    const rowBytes = 16 * px;
+    const slabBytes = rowBytes * py;
+    if (!scaled) e.scale(r.z, r.lam, px * py * pz);
+    e.run(r.z, r.y, r.t, pz, px * py, 1, 0, true, false, true);
+    e.run(r.y, r.z, r.t, py, px, nz, slabBytes, true, false, true);
+    for (let iz = 0; iz < nz; iz++) e.run(r.z + slabBytes * iz, r.x + rowBytes * ny * iz, r.t, px, 1, ny, rowBytes, true, false, true);
+    const v = e.f64();
+    const w = 2 * px;
+    const x0 = r.x / 8;
+    const rows = ny * nz;
+    for (let t = 0; t < rows; t++) {
+      const o = x0 + w * t;
+      const g = nx * t;
+      if (outB !== null) {
+        for (let ix = 0; ix < nx; ix++) {
+          outA[offsetA + g + ix] = v[o + 2 * ix];
+          outB[offsetB + g + ix] = v[o + 2 * ix + 1];
+        }
+      } else {
+        for (let ix = 0; ix < nx; ix++) outA[offsetA + g + ix] = v[o + 2 * ix];
+      }
+    }
   }
 
   /**
@@ -286,7 +386,7 @@ export interface CovarianceOperatorOptions {
  */
 export function covarianceOperator(grid: Grid, prior: PriorSpec, options: CovarianceOperatorOptions = {}): CovarianceOperator {
   const n = cellCount(grid);
-  const reasonNot = nonStationaryReason(grid, prior);
+  const reasonNot = productReason(grid, prior);
   const path: CovariancePath = options.path ?? (reasonNot === null ? 'fft' : 'dense');
   if (path === 'fft' && reasonNot !== null) throw new InputError('path', 'dense for this prior and grid', `fft (${reasonNot})`);
   const s = prior.stdProfile;
@@ -334,7 +434,7 @@ export function covarianceOperator(grid: Grid, prior: PriorSpec, options: Covari
       return {
         path,
         size: n,
-        padding: gridDimension(grid) === 1 ? [cp.px] : [cp.px, cp.py],
+        padding: [cp.px, cp.py, cp.pz].slice(0, gridDimension(grid)),
         reason: '',
         apply: (x) => {
           checkLength(x, n, 'x');

@@ -22,6 +22,8 @@
 import { correlationFunction } from '../kernels/correlation.ts';
 import type { Term } from '../kernels/spec.ts';
 import type { Grid } from '../grid/grid.ts';
+import { scaledDistance } from '../prior/lag.ts';
+import { fft3InPlace } from './fft3.ts';
 import { fftBatch, nextPowerOfTwo } from './transform.ts';
 
 /** Σ_t variance_t ρ_t(h_t(ox, oy)) at a physical offset (ox, oy); oy ≡ 0 on a 1-D grid. */
@@ -53,11 +55,40 @@ export function stationaryCovariance(terms: readonly Term[]): (ox: number, oy: n
 }
 
 /**
+ * Σ_t variance_t ρ_t(h_t(ox, oy, oz)) at a physical offset, h from ../prior/lag.ts scaledDistance (the
+ * 3-D rotation convention R = Rz(a1)·Ry(a2)·Rx(a3); the 2-D and isotropic forms when oz ≡ 0).
+ */
+export function stationaryCovariance3(terms: readonly Term[]): (ox: number, oy: number, oz: number) => number {
+  const parts = terms.map((t) => {
+    const rho = correlationFunction(t.kernel, t.nu);
+    const h = scaledDistance(t);
+    const v = t.variance;
+    return (ox: number, oy: number, oz: number) => v * rho(h(ox, oy, oz));
+  });
+  if (parts.length === 1) return parts[0];
+  return (ox, oy, oz) => {
+    let s = 0;
+    for (const p of parts) s += p(ox, oy, oz);
+    return s;
+  };
+}
+
+/**
  * True when every term is unchanged under Δx → −Δx alone (isotropic, or axes along x/y). Then the
  * Nyquist lag p/2 is unambiguous and the minimal embedding p = 2(n − 1) is exact.
  */
 export function isAxisSymmetric(terms: readonly Term[]): boolean {
-  return terms.every((t) => t.lengths === undefined || (((t.angle ?? 0) % 90) + 90) % 90 === 0 || t.lengths[0] === t.lengths[1]);
+  return terms.every((t) => {
+    if (t.lengths === undefined) return true;
+    if (t.lengths.length === 3) return threeAxisSymmetric(t.lengths, t.angles);
+    return (((t.angle ?? 0) % 90) + 90) % 90 === 0 || t.lengths[0] === t.lengths[1];
+  });
+}
+
+/** A 3-D term is unchanged under a single axis flip when its lengths are equal or its angles are multiples of 90°. */
+function threeAxisSymmetric(lengths: readonly number[], angles: readonly number[] | undefined): boolean {
+  if (lengths[0] === lengths[1] && lengths[1] === lengths[2]) return true;
+  return (angles ?? [0, 0, 0]).every((a) => ((a % 90) + 90) % 90 === 0);
 }
 
 /** Grid axes as [n, spacing] pairs, 1-D grids as ny = 1. */
@@ -87,10 +118,13 @@ export function minimalPadding(n: number, axisSymmetric: boolean): number {
 export interface CirculantEmbedding {
   readonly nx: number;
   readonly ny: number;
-  /** Embedding sizes per axis (powers of two). */
+  /** 1 on 1-D and 2-D grids. */
+  readonly nz: number;
+  /** Embedding sizes per axis (powers of two; pz = 1 on 1-D and 2-D grids). */
   readonly px: number;
   readonly py: number;
-  /** Periodic base c̃ (px·py values, x fastest). */
+  readonly pz: number;
+  /** Periodic base c̃ (px·py·pz values, x fastest). */
   readonly base: Float64Array;
   /** Eigenvalues λ = F c̃ of the embedding (real; px·py values, x fastest). */
   readonly eigenvalues: Float64Array;
@@ -134,11 +168,65 @@ export function circulantBase(grid: Grid, terms: readonly Term[], px: number, py
   return base;
 }
 
-/** Base and eigenvalues of the px × py embedding of the kernel part of the prior. */
-export function circulantEmbedding(grid: Grid, terms: readonly Term[], px: number, py: number): CirculantEmbedding {
+/**
+ * The periodic base c̃ on a px × py × pz torus of a 3-D grid: the 2-D rule of {@link circulantBase} per
+ * axis (lags δ(j, p), averaged over ±p/2 at each Nyquist index). Evaluated for jz ≤ pz/2 and mirrored,
+ * c̃(−j) = c̃(j) (indices mod p).
+ */
+export function circulantBase3(grid: Grid, terms: readonly Term[], px: number, py: number, pz: number): Float64Array {
+  const [dx, dy, dz] = grid.spacing;
+  const cov = stationaryCovariance3(terms);
+  const base = new Float64Array(px * py * pz);
+  const xs = Array.from({ length: px }, (_, j) => lagOffsets(j, px));
+  const ys = Array.from({ length: py }, (_, j) => lagOffsets(j, py));
+  const half = Math.floor(pz / 2);
+  for (let jz = 0; jz <= half; jz++) {
+    const ozs = lagOffsets(jz, pz);
+    const mz = jz === 0 ? 0 : pz - jz;
+    for (let jy = 0; jy < py; jy++) {
+      const oys = ys[jy];
+      const my = jy === 0 ? 0 : py - jy;
+      for (let jx = 0; jx < px; jx++) {
+        const oxs = xs[jx];
+        let s = 0;
+        if (oxs.length === 1 && oys.length === 1 && ozs.length === 1) s = cov(oxs[0] * dx, oys[0] * dy, ozs[0] * dz);
+        else {
+          for (const ox of oxs) for (const oy of oys) for (const oz of ozs) s += cov(ox * dx, oy * dy, oz * dz);
+          s /= oxs.length * oys.length * ozs.length;
+        }
+        base[jx + px * (jy + py * jz)] = s;
+        base[(jx === 0 ? 0 : px - jx) + px * (my + py * mz)] = s;
+      }
+    }
+  }
+  return base;
+}
+
+/**
+ * λ = F c̃ (numpy.fft.fftn's convention) of a real even px × py × pz base: the real part of its complex
+ * 3-D transform (the imaginary part is zero for an even base, up to round-off).
+ */
+export function evenRealSpectrum3(base: Float64Array, px: number, py: number, pz: number): Float64Array {
+  const n = px * py * pz;
+  const z = new Float64Array(2 * n);
+  for (let i = 0; i < n; i++) z[2 * i] = base[i];
+  fft3InPlace(z, px, py, pz);
+  const lam = new Float64Array(n);
+  for (let i = 0; i < n; i++) lam[i] = z[2 * i];
+  return lam;
+}
+
+/**
+ * Base and eigenvalues of the px × py embedding of the kernel part of the prior (px × py × pz on a
+ * 3-D grid).
+ */
+export function circulantEmbedding(grid: Grid, terms: readonly Term[], px: number, py: number, pz = 1): CirculantEmbedding {
   const { nx, ny } = gridAxes(grid);
-  const base = circulantBase(grid, terms, px, py);
-  const eigenvalues = evenRealSpectrum(base, px, py);
+  const three = grid.shape.length === 3;
+  const nz = three ? grid.shape[2] : 1;
+  if (!three && pz !== 1) throw new RangeError(`circulantEmbedding: pz = ${pz} on a ${grid.shape.length}-D grid`);
+  const base = three ? circulantBase3(grid, terms, px, py, pz) : circulantBase(grid, terms, px, py);
+  const eigenvalues = three ? evenRealSpectrum3(base, px, py, pz) : evenRealSpectrum(base, px, py);
   let lo = Infinity;
   let hi = -Infinity;
   for (let i = 0; i < eigenvalues.length; i++) {
@@ -146,7 +234,7 @@ export function circulantEmbedding(grid: Grid, terms: readonly Term[], px: numbe
     if (v < lo) lo = v;
     if (v > hi) hi = v;
   }
-  return { nx, ny, px, py, base, eigenvalues, minEigenvalue: lo, maxEigenvalue: hi };
+  return { nx, ny, nz, px, py, pz, base, eigenvalues, minEigenvalue: lo, maxEigenvalue: hi };
 }
 
 /**

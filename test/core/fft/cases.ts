@@ -119,3 +119,37 @@ export function rayFan(grid: Grid, count: number, seed: number): { from: [number
       : { from: [x0 + a * w, y0] as [number, number], to: [x0 + b * w, y0 + h] as [number, number] };
   });
 }
+
+const g3: Grid = { shape: [8, 6, 5], spacing: [1, 0.7, 1.3] };
+const g3b: Grid = { shape: [5, 1, 7], spacing: [0.5, 1, 0.8] };
+
+/** 3-D grids (8 × 6 × 5 and a one-row 5 × 1 × 7): every kernel, rotated anisotropy (R = Rz·Ry·Rx), sums, nugget, profile. */
+export const COVARIANCE_CASES_3D: readonly CovarianceCase[] = [
+  { name: '3-D exponential isotropic', grid: g3, prior: { mean: zero, terms: [{ kernel: 'exponential', variance: 1.2, length: 2.5 }] } },
+  { name: '3-D gaussian isotropic', grid: g3, prior: { mean: zero, terms: [{ kernel: 'gaussian', variance: 0.8, length: 1.7 }] } },
+  { name: '3-D spherical isotropic', grid: g3, prior: { mean: zero, terms: [{ kernel: 'spherical', variance: 2, length: 3.1 }] } },
+  { name: '3-D matern 1.5 isotropic', grid: g3, prior: { mean: zero, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, length: 2 }] } },
+  {
+    name: '3-D matern 0.8 rotated',
+    grid: g3,
+    prior: { mean: zero, terms: [{ kernel: 'matern', nu: 0.8, variance: 1.1, lengths: [4, 1.5, 2.2], angles: [30, 20, -40] }] },
+  },
+  {
+    name: '3-D gaussian rotated + spherical rotated + nugget + profile',
+    grid: g3,
+    prior: {
+      mean: zero,
+      nugget: 0.07,
+      stdProfile: profile(240, 11),
+      terms: [
+        { kernel: 'gaussian', variance: 0.6, lengths: [3, 1.2, 2], angles: [-55, 35, 10] },
+        { kernel: 'spherical', variance: 0.9, lengths: [5, 2.5, 3.5], angles: [120, -15, 70] },
+      ],
+    },
+  },
+  {
+    name: '3-D exponential rotated, one row in y',
+    grid: g3b,
+    prior: { mean: zero, nugget: 0.02, terms: [{ kernel: 'exponential', variance: 1, lengths: [2, 1, 3], angles: [10, 45, 0] }] },
+  },
+];

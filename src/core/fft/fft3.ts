@@ -1,0 +1,48 @@
+/**
+ * 3-D discrete Fourier transforms over interleaved complex Float64Array buffers, on the realm's FFT
+ * engine (./transform.ts; power-of-two sizes), as three batched passes of the 1-D engine: along x
+ * (count py·pz contiguous rows), along y (px interleaved sequences per z-slab, stride px) and along z
+ * (px·py interleaved sequences, stride px·py).
+ *
+ * Layout: element (kx, ky, kz) at re = buf[2(kx + px·(ky + py·kz))], im just after (x fastest, like
+ * the grid's flat index i = ix + nx·(iy + ny·iz)).
+ * Conventions (numpy.fft.fftn / ifftn, checked in test/core/fft/fft3.test.ts):
+ *   forward  X(k) = Σ_j x(j) e^(−2πi (kx jx / px + ky jy / py + kz jz / pz))   (unnormalised)
+ *   inverse  x(j) = 1/(px py pz) Σ_k X(k) e^(+2πi …)
+ */
+import type { FftEngine } from './engine.ts';
+import { fftEngine, isPowerOfTwo } from './transform.ts';
+
+/** In-place 3-D transform of a px × py × pz complex buffer (length 2·px·py·pz). */
+export function fft3InPlace(buf: Float64Array, px: number, py: number, pz: number, inverse = false, engine: FftEngine = fftEngine()): void {
+  if (!isPowerOfTwo(px) || !isPowerOfTwo(py) || !isPowerOfTwo(pz)) {
+    throw new RangeError(`fft3: sizes ${px} × ${py} × ${pz} must be powers of two`);
+  }
+  const count = px * py * pz;
+  if (buf.length !== 2 * count) throw new RangeError(`fft3: buffer has length ${buf.length}, expected ${2 * count}`);
+  for (const n of [px, py, pz]) if (n > 1) engine.twiddles(n, inverse);
+  const full = 16 * count;
+  const a = engine.workBase();
+  const b = a + full;
+  const t = b + full;
+  let v = engine.reserve(t + full);
+  v.set(buf, a / 8);
+  engine.run(a, b, t, px, 1, py * pz, 16 * px, inverse);
+  engine.run(b, a, t, py, px, pz, 16 * px * py, inverse);
+  engine.run(a, b, t, pz, px * py, 1, 0, inverse);
+  v = engine.f64();
+  const out = v.subarray(b / 8, b / 8 + 2 * count);
+  if (inverse) {
+    const s = 1 / count;
+    for (let i = 0; i < out.length; i++) buf[i] = out[i] * s;
+  } else {
+    buf.set(out);
+  }
+}
+
+/** A new transformed copy of a px × py × pz complex buffer. */
+export function fft3(buf: Float64Array, px: number, py: number, pz: number, inverse = false): Float64Array {
+  const out = buf.slice();
+  fft3InPlace(out, px, py, pz, inverse);
+  return out;
+}
