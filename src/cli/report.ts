@@ -20,13 +20,11 @@ import { evidenceMap, termLength } from '../core/tuning/evidenceMap.ts';
 import { averagedPosterior, HYPER_PRIORS, type HyperPrior } from '../core/tuning/averaged.ts';
 import { priorCriteria } from '../core/tuning/criteria.ts';
 import { defenceHtml, type DefenceInput } from '../core/report/defence.ts';
-import { averagedRows, criteriaRows, fitReferenceRows, pdRows, priorInWords } from '../core/report/words.ts';
-import { evidenceReadings, priorLine } from '../core/report/evidenceScale.ts';
+import { averagedRows, criteriaRows, fitReferenceRows, g4, pdRows, priorInWords } from '../core/report/words.ts';
+import { candidateTable } from '../core/report/candidates.ts';
 import { CAUTION } from '../core/report/caution.ts';
 import type { PriorSpec } from '../core/prior/spec.ts';
 import type { Problem } from '../core/problems/spec.ts';
-
-const g4 = (x: number) => (Number.isFinite(x) ? Number(x.toPrecision(4)).toString() : String(x));
 
 function candidateRows(
   problem: Problem,
@@ -38,34 +36,19 @@ function candidateRows(
     try {
       const crit = priorCriteria(problem, c.prior);
       const s = computePosteriorSerial(problem, c.prior).summary;
-      const expected = s.fitReference?.expected ?? Number.NaN;
-      return { ...c, logEvidence: crit.logEvidence, loo: crit.leaveOneOut.logScore, chi2: s.chi2 / expected };
+      const ref = s.fitReference ?? null;
+      return {
+        ...c,
+        logEvidence: crit.logEvidence,
+        loo: crit.leaveOneOut.logScore,
+        chi2OverExpected: ref ? s.chi2 / ref.expected : null,
+        chi2Interval95OverExpected: ref ? ([ref.interval95[0] / ref.expected, ref.interval95[1] / ref.expected] as const) : null,
+      };
     } catch (e) {
-      return { ...c, logEvidence: null, loo: null, chi2: null, error: e instanceof Error ? e.message : String(e) };
+      return { ...c, logEvidence: null, loo: null, chi2OverExpected: null, error: e instanceof Error ? e.message : String(e) };
     }
   });
-  const ev = evidenceReadings(scored, problem.grid);
-  return {
-    header: [
-      'candidate',
-      'prior',
-      'log evidence',
-      'against the best (Kass & Raftery 1995)',
-      'LOO log score',
-      'χ² / (M − tr R)',
-      'hyper-parameters',
-    ],
-    rows: scored.map((c, k) => [
-      c.name,
-      priorLine(c.prior, lengthUnit, valueUnit),
-      c.logEvidence === null ? `— (${'error' in c ? c.error : ''})` : g4(c.logEvidence),
-      ev.readings[k]?.text ?? '—',
-      c.loo === null ? '—' : g4(c.loo),
-      c.chi2 === null ? '—' : g4(c.chi2),
-      String(ev.readings[k]?.parameters ?? '—'),
-    ]),
-    caution: ev.caution,
-  };
+  return candidateTable(scored, problem.grid, lengthUnit, valueUnit);
 }
 
 export const report: Command = {

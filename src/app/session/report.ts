@@ -8,58 +8,15 @@ import type { WorkbenchState } from '../store.ts';
 import { cellCount } from '../../core/grid/grid.ts';
 import type { Matrix } from '../../core/linalg/matrix.ts';
 import { defenceHtml, type DefenceInput } from '../../core/report/defence.ts';
-import { averagedRows, criteriaRows, fitReferenceRows, pdRows, priorInWords } from '../../core/report/words.ts';
-import { evidenceReadings, priorLine } from '../../core/report/evidenceScale.ts';
+import { averagedRows, criteriaRows, fitReferenceRows, g4, pdRows, priorInWords } from '../../core/report/words.ts';
+import { candidateTable } from '../../core/report/candidates.ts';
 import { termLength } from '../../core/tuning/evidenceMap.ts';
 export { fitReferenceRows, priorInWords, termInWords } from '../../core/report/words.ts';
-
-const g4 = (x: number) => (Number.isFinite(x) ? Number(x.toPrecision(4)).toString() : String(x));
+export { candidateTable } from '../../core/report/candidates.ts';
 
 /** "2026-12-04 22:40 UTC". */
 export function reportTime(now: Date): string {
   return now.toISOString().slice(0, 16).replace('T', ' ') + ' UTC';
-}
-
-/** Candidate rows for the report: name, whole prior, log evidence, reading against the best, χ²/expected. */
-export function candidateTable(
-  cands: readonly {
-    name: string;
-    prior: DefenceInput['prior'];
-    logEvidence: number | null;
-    chi2OverExpected: number | null;
-    /** The 95% interval of χ² under the candidate on the same scale (its reference); omitted when not known. */
-    chi2Interval95OverExpected?: readonly [number, number] | null;
-    loo: number | null;
-  }[],
-  grid: DefenceInput['grid'],
-  lengthUnit: string,
-  valueUnit: string,
-): NonNullable<DefenceInput['candidates']> {
-  const ev = evidenceReadings(cands, grid);
-  return {
-    header: [
-      'candidate',
-      'prior',
-      'log evidence',
-      'against the best (Kass & Raftery 1995)',
-      'LOO log score',
-      'χ² / (M − tr R)',
-      'hyper-parameters',
-    ],
-    rows: cands.map((c, k) => [
-      c.name,
-      priorLine(c.prior, lengthUnit, valueUnit),
-      c.logEvidence === null ? '—' : g4(c.logEvidence),
-      ev.readings[k]?.text ?? '—',
-      c.loo === null ? '—' : g4(c.loo),
-      c.chi2OverExpected === null
-        ? '—'
-        : g4(c.chi2OverExpected) +
-          (c.chi2Interval95OverExpected ? ` (95%: ${g4(c.chi2Interval95OverExpected[0])}–${g4(c.chi2Interval95OverExpected[1])})` : ''),
-      String(ev.readings[k]?.parameters ?? '—'),
-    ]),
-    caution: ev.caution,
-  };
 }
 
 /** The document's input from the store; null without a problem, prior and posterior. */

@@ -61,7 +61,8 @@ export function fitReferenceRows(chi2: number, ref: DataFitReference | null): [s
   ];
 }
 
-const g4 = (x: number) => (Number.isFinite(x) ? Number(x.toPrecision(4)).toString() : String(x));
+/** Four significant digits for the report's tables and sentences (non-finite values as they are). */
+export const g4 = (x: number): string => (Number.isFinite(x) ? Number(x.toPrecision(4)).toString() : String(x));
 
 /** One sentence per term, with the practical range (distance where ρ = 0.05) of its kernel. */
 export function termInWords(t: Term, lengthUnit: string, valueUnit: string): string {
