@@ -47,6 +47,7 @@ import {
   calibrate,
   replicateSeed,
   evidenceMap,
+  finishMap,
   evidenceProfile,
   leaveOneOut,
   logEvidence,
@@ -180,24 +181,7 @@ export async function mapByRows(
     if (row.note !== undefined) note = row.note;
     progress(`evidence map: length ${i + 1} of ${nl}`, (i + 1) / nl);
   }
-  let best: EvidenceMap['best'] = null;
-  for (let k = 0; k < out.length; k++) {
-    const v = out[k];
-    if (Number.isFinite(v) && (best === null || v > best.logEvidence))
-      best = { length: lengths[Math.floor(k / nv)], variance: variances[k % nv], logEvidence: v, index: k };
-  }
-  const method: EvidenceMethod = methods.length > 0 && methods.every((m) => m === 'eigen') ? 'eigen' : 'cholesky';
-  return {
-    term,
-    lengths,
-    variances,
-    logEvidence: out,
-    method,
-    methodByLength: methods,
-    best,
-    cancelled,
-    ...(note !== undefined ? { note } : {}),
-  };
+  return finishMap(term, lengths, variances, out, methods, cancelled, note);
 }
 
 async function profile(

@@ -8,7 +8,16 @@
  */
 import type { Problem } from '../../core/problems/spec.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
-import { evidenceMap, logSpaced, setTermLength, type LengthAxis, type LogAxis } from '../../core/tuning/evidenceMap.ts';
+import {
+  bestCell,
+  type EvidenceMethod,
+  evidenceMap,
+  logSpaced,
+  mapMethod,
+  setTermLength,
+  type LengthAxis,
+  type LogAxis,
+} from '../../core/tuning/evidenceMap.ts';
 import { UsageError } from '../args.ts';
 
 export interface TuneKey {
@@ -25,7 +34,7 @@ export interface TuneKey {
 export interface TunePartial {
   /** One row per length of the range, one value per variance; null where K did not factor. */
   readonly rows: (number | null)[][];
-  readonly methods: string[];
+  readonly methods: EvidenceMethod[];
 }
 
 /** Rows [first, end) of the evidence map of `key`'s term. */
@@ -43,7 +52,7 @@ export function tuneRows(problem: Problem, prior: PriorSpec, key: TuneKey, first
   }
   const all = logSpaced(lengths, 'lengths');
   const rows: (number | null)[][] = [];
-  const methods: string[] = [];
+  const methods: EvidenceMethod[] = [];
   for (let i = first; i < end; i++) {
     const L = all[i];
     const map = evidenceMap(problem, prior, { term, lengths: { min: L, max: L, count: 1 }, variances, axis });
@@ -68,13 +77,11 @@ export function combineTune(keyValue: unknown, parts: readonly TunePartial[]): {
   const rows = parts.flatMap((p) => p.rows);
   const methods = parts.flatMap((p) => p.methods);
   if (rows.length !== lengths.length) throw new UsageError(`the parts hold ${rows.length} lengths, expected ${lengths.length}`);
-  let best: { length: number; variance: number; logEvidence: number } | null = null;
-  rows.forEach((row, i) =>
-    row.forEach((v, j) => {
-      if (v !== null && (best === null || v > best.logEvidence)) best = { length: lengths[i], variance: variances[j], logEvidence: v };
-    }),
+  const b = bestCell(
+    lengths,
+    variances,
+    Float64Array.from(rows.flat(), (v) => v ?? Number.NaN),
   );
-  const b = best as { length: number; variance: number; logEvidence: number } | null;
   const bestOnEdge = b ? { length: edgeOf(lengths, b.length), variance: edgeOf(variances, b.variance) } : { length: null, variance: null };
   const warnings: string[] = [];
   const lengthName = key.axis === 'both' ? 'length' : key.axis;
@@ -103,7 +110,7 @@ export function combineTune(keyValue: unknown, parts: readonly TunePartial[]): {
         : null,
       bestOnEdge,
       warnings,
-      method: methods.length > 0 && methods.every((m) => m === 'eigen') ? 'eigen' : 'cholesky',
+      method: mapMethod(methods),
     },
     warnings,
   };

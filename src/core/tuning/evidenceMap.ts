@@ -286,22 +286,45 @@ export function evidenceMap(problem: Problem, prior: PriorSpec, options: Evidenc
   if (asked === 'cholesky') note = 'Cholesky per cell was requested';
   else if (requested === 'cholesky')
     note = `Cholesky per cell: fewer than ${EIGEN_BREAK_EVEN} variances, where it is cheaper than an eigendecomposition per length`;
+  return finishMap(options.term, lengths, variances, out, methods, cancelled, note);
+}
+
+/** The method of a whole map: 'eigen' only when every length took the eigen shortcut. */
+export function mapMethod(methods: readonly EvidenceMethod[]): EvidenceMethod {
+  return methods.length > 0 && methods.every((m) => m === 'eigen') ? 'eigen' : 'cholesky';
+}
+
+/** The best cell of a filled map (largest finite log evidence, the first of equals; lengths × variances, variances fastest). */
+export function bestCell(lengths: ArrayLike<number>, variances: ArrayLike<number>, logEvidence: ArrayLike<number>): EvidenceMap['best'] {
+  const nv = variances.length;
   let best: EvidenceMap['best'] = null;
-  for (let k = 0; k < out.length; k++) {
-    const v = out[k];
+  for (let k = 0; k < logEvidence.length; k++) {
+    const v = logEvidence[k];
     if (Number.isFinite(v) && (best === null || v > best.logEvidence)) {
       best = { length: lengths[Math.floor(k / nv)], variance: variances[k % nv], logEvidence: v, index: k };
     }
   }
-  const method: EvidenceMethod = methods.length > 0 && methods.every((m) => m === 'eigen') ? 'eigen' : 'cholesky';
+  return best;
+}
+
+/** An {@link EvidenceMap} from its filled values (shared by the whole-map call and the worker's map by rows). */
+export function finishMap(
+  term: number,
+  lengths: Float64Array,
+  variances: Float64Array,
+  logEvidence: Float64Array,
+  methods: EvidenceMethod[],
+  cancelled: boolean,
+  note: string | undefined,
+): EvidenceMap {
   return {
-    term: options.term,
+    term,
     lengths,
     variances,
-    logEvidence: out,
-    method,
+    logEvidence,
+    method: mapMethod(methods),
     methodByLength: methods,
-    best,
+    best: bestCell(lengths, variances, logEvidence),
     cancelled,
     ...(note !== undefined ? { note } : {}),
   };

@@ -5,7 +5,16 @@
  */
 export type { RouteOptions, TuningControl, TuningRoute } from './dataSpace.ts';
 export { projectedPriorCovariance, TUNING_DENSE_LIMIT, tuningRoute } from './dataSpace.ts';
-export { EIGEN_BREAK_EVEN, evidenceMap, evidenceProfile, logSpaced, setTermLength, termLength, withTerm } from './evidenceMap.ts';
+export {
+  EIGEN_BREAK_EVEN,
+  evidenceMap,
+  evidenceProfile,
+  finishMap,
+  logSpaced,
+  setTermLength,
+  termLength,
+  withTerm,
+} from './evidenceMap.ts';
 export type {
   EvidenceMap,
   EvidenceMapOptions,
