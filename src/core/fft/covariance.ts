@@ -308,29 +308,14 @@ export class CirculantProduct {
     scaled: boolean,
   ): void {
     const e = this.engine;
-    const { nx, ny, nz, px, py, pz } = this;
+    const { ny, nz, px, py, pz } = this;
     const rowBytes = 16 * px;
     const slabBytes = rowBytes * py;
     if (!scaled) e.scale(r.z, r.lam, px * py * pz);
     e.run(r.z, r.y, r.t, pz, px * py, 1, 0, true, false, true);
     e.run(r.y, r.z, r.t, py, px, nz, slabBytes, true, false, true);
     for (let iz = 0; iz < nz; iz++) e.run(r.z + slabBytes * iz, r.x + rowBytes * ny * iz, r.t, px, 1, ny, rowBytes, true, false, true);
-    const v = e.f64();
-    const w = 2 * px;
-    const x0 = r.x / 8;
-    const rows = ny * nz;
-    for (let t = 0; t < rows; t++) {
-      const o = x0 + w * t;
-      const g = nx * t;
-      if (outB !== null) {
-        for (let ix = 0; ix < nx; ix++) {
-          outA[offsetA + g + ix] = v[o + 2 * ix];
-          outB[offsetB + g + ix] = v[o + 2 * ix + 1];
-        }
-      } else {
-        for (let ix = 0; ix < nx; ix++) outA[offsetA + g + ix] = v[o + 2 * ix];
-      }
-    }
+    this.readRows(r.x, ny * nz, outA, outB, offsetA, offsetB);
   }
 
   /**
@@ -347,16 +332,22 @@ export class CirculantProduct {
     scaled: boolean,
   ): void {
     const e = this.engine;
-    const { nx, ny, px, py } = this;
+    const { ny, px, py } = this;
     const rowBytes = 16 * px;
     if (!scaled) e.scale(r.z, r.lam, px * py);
     // Only rows t < ny ≤ py/2 and columns ix < nx ≤ px/2 are read out.
     e.run(r.z, r.y, r.t, py, px, 1, 0, true, false, true);
     e.run(r.y, r.x, r.t, px, 1, ny, rowBytes, true, false, true);
-    const v = e.f64();
+    this.readRows(r.x, ny, outA, outB, offsetA, offsetB);
+  }
+
+  /** The first nx columns of `rows` transformed rows at region X (px complex each): re → outA, im → outB. */
+  private readRows(x: number, rows: number, outA: Float64Array, outB: Float64Array | null, offsetA: number, offsetB: number): void {
+    const { nx, px } = this;
+    const v = this.engine.f64();
     const w = 2 * px;
-    const x0 = r.x / 8;
-    for (let t = 0; t < ny; t++) {
+    const x0 = x / 8;
+    for (let t = 0; t < rows; t++) {
       const o = x0 + w * t;
       const g = nx * t;
       if (outB !== null) {
