@@ -65,6 +65,18 @@ test('2-D overview: realisations and posterior mean on one diverging range about
     const sy = m.h / Math.abs(m.yr[1] - m.yr[0]);
     expect(sy / sx).toBeCloseTo(1, 2);
   }
+  // the gravity stations have positions: the data fit runs along the profile, not along datum number
+  const fitAxis = await page.evaluate(() => {
+    const gd = document.getElementById('ov-fit') as unknown as {
+      data: { x: number[] }[];
+      _fullLayout: { xaxis: { title: { text: string } } };
+    };
+    return { title: gd._fullLayout.xaxis.title.text, x: Array.from(gd.data[0].x) };
+  });
+  expect(fitAxis.title).toContain('where measured');
+  expect(fitAxis.x.length).toBe(40);
+  expect(fitAxis.x.every((v, i) => i === 0 || v >= fitAxis.x[i - 1]!)).toBe(true);
+  expect(fitAxis.x[fitAxis.x.length - 1]! - fitAxis.x[0]!).toBeGreaterThan(1000);
   // limits by hand
   await page.getByTestId('colour-limit').fill('100');
   await page.getByTestId('colour-limit').press('Enter');

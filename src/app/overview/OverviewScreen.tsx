@@ -13,7 +13,8 @@ import { bandsState, bandsText, FIT_REFERENCE_BASIS, fitVerdict, shownPosterior 
 import { axisLabel, orientationNote, withUnit } from '../labels.ts';
 import { formatNumber } from '../../core/format.ts';
 import {
-  fitTraces,
+  overviewFit,
+  overviewFitAxis,
   overviewMaps,
   posteriorTraces1D,
   priorBand,
@@ -104,7 +105,7 @@ export function OverviewScreen() {
     const pst = post ? { mean: post.mean, priorStd: post.priorStd, std: post.summary?.std ?? null } : null;
     return overviewMaps(p.grid, p.quantity.unit, priorMean, draws, pst, limits);
   }, [p, is2D, priorMean, draws, post, limits.half]);
-  const fit = useMemo(() => (p && post ? fitTraces(p.values, p.sigma, post.predicted) : null), [p, post]);
+  const fit = useMemo(() => (p && post ? overviewFit(p, post) : null), [p, post]);
 
   const layouts = useMemo(() => {
     if (!p) return null;
@@ -122,7 +123,7 @@ export function OverviewScreen() {
       posterior: line('Posterior: mean, 68% and 95% bands; prior 95% (sand)'),
       fit: {
         title: { text: 'Data fit: observed ±1σ (dots), predicted (line)', font: { size: 12 } },
-        xaxis: { title: { text: 'datum number', standoff: 2 } },
+        xaxis: { title: { text: overviewFitAxis(p), standoff: 2 } },
         yaxis: { title: { text: withUnit('d', p.dataUnit) } },
         margin: { l: 56, r: 8, t: 28, b: 40 },
         showlegend: false,

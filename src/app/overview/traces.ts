@@ -11,6 +11,8 @@
 import type { Grid } from '../../core/grid/grid.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
 import { meanVector } from '../../core/prior/mean.ts';
+import type { DataGeometry } from '../../core/problems/spec.ts';
+import { profileAxis, profileTraces } from '../survey/figures.ts';
 import { axisLabel, axisNames, downAxisLabel, withUnit } from '../labels.ts';
 import { escapePlotText } from '../plotText.ts';
 import { axes2D, band, bandTrace, COLOURS, rowOf, toRows2D, Z95, type Trace } from '../traces.ts';
@@ -106,6 +108,31 @@ export function fitTraces(values: ArrayLike<number>, sigma: ArrayLike<number>, p
     },
     { type: 'scatter', mode: 'lines', x: idx, y: predicted, name: 'predicted G m̃', line: { color: COLOURS.predicted, width: 1.2 } },
   ];
+}
+
+/** What the overview's data-fit panel needs of the problem: the data, and where they were measured if known. */
+interface FitProblem {
+  readonly grid: Grid;
+  readonly values: ArrayLike<number>;
+  readonly sigma: ArrayLike<number>;
+  readonly dataUnit: string;
+  readonly geometry: DataGeometry | null;
+}
+
+/**
+ * The overview's data-fit panel: against where each datum was measured when the data are point data
+ * with positions (the Data fit screen's profile, ../survey/figures.ts), else against datum number
+ * (path data and data without geometry; their rays are on the Data fit screen).
+ */
+export function overviewFit(p: FitProblem, fit: { readonly predicted: ArrayLike<number>; readonly residuals: ArrayLike<number> }): Trace[] {
+  if (p.geometry?.kind === 'points') return profileTraces(p, p.geometry.positions, fit).data;
+  return fitTraces(p.values, p.sigma, fit.predicted);
+}
+
+/** The x-axis title matching {@link overviewFit}. */
+export function overviewFitAxis(p: FitProblem): string {
+  if (p.geometry?.kind !== 'points') return 'datum number';
+  return `${axisLabel(p.grid, profileAxis(p.grid, p.geometry.positions))}, where measured`;
 }
 
 /** One heat map of a flat field on a 2-D grid with a given scale and fixed limits. */

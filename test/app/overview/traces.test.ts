@@ -1,5 +1,5 @@
 import { describe, expect, it } from 'vitest';
-import { fitTraces, mapLayout, overviewMaps, posteriorTraces1D, priorTraces1D } from '../../../src/app/overview/traces.ts';
+import { fitTraces, mapLayout, overviewFit, overviewFitAxis, overviewMaps, posteriorTraces1D, priorTraces1D } from '../../../src/app/overview/traces.ts';
 import { DIVERGING, SEQUENTIAL } from '../../../src/app/colourScales.ts';
 
 const grid = { shape: [3, 2], spacing: [100, 25], origin: [50, 12.5], unit: 'm', axes: ['x', 'depth'] };
@@ -31,6 +31,21 @@ describe('overview traces', () => {
     expect(t[0].x).toEqual([1, 2]);
     expect((t[0].error_y as { array: number[] }).array).toEqual([0.5, 0.7]);
     expect(t[1].y).toEqual([5.1, 5.8]);
+  });
+
+  it('data fit of point data with positions: against position along the survey, sorted, datum numbers kept', () => {
+    const positions = { rows: 3, cols: 2, data: Float64Array.from([250, 0, 50, 0, 150, 0]) };
+    const p = { grid, values: [1, 2, 3], sigma: [0.1, 0.2, 0.3], dataUnit: 'mGal', geometry: { kind: 'points' as const, positions } };
+    const t = overviewFit(p, { predicted: [1.5, 2.5, 3.5], residuals: [5, 5, 5] });
+    expect(t[0].x).toEqual([50, 150, 250]);
+    expect(t[0].y).toEqual([2, 3, 1]);
+    expect(t[0].customdata).toEqual([2, 3, 1]);
+    expect(t[1].y).toEqual([2.5, 3.5, 1.5]);
+    expect(overviewFitAxis(p)).toMatch(/^x.*m.*where measured$/);
+    // Without geometry: against datum number, as before.
+    const none = { ...p, geometry: null };
+    expect(overviewFit(none, { predicted: [1.5, 2.5, 3.5], residuals: [0, 0, 0] })[0].x).toEqual([1, 2, 3]);
+    expect(overviewFitAxis(none)).toBe('datum number');
   });
 
   it('2-D maps: realisations and posterior mean share one diverging range centred on the constant prior mean', () => {
