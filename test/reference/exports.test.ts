@@ -10,6 +10,7 @@ import {
   gridFile,
   drawsName,
   drawsNpy,
+  joinParts,
   fileStem,
   plotFileName,
   posteriorCsv,
@@ -17,6 +18,8 @@ import {
   priorExport,
 } from '../../src/app/session/exports.ts';
 import { parsePriorFile } from '../../src/core/io/priorFile.ts';
+import { writeNpy } from '../../src/core/io/npy.ts';
+import { writeCsv } from '../../src/core/io/csv.ts';
 import { matrix } from '../../src/core/linalg/matrix.ts';
 import type { PosteriorSummary } from '../../src/core/inverse/types.ts';
 import { runPython } from './python.ts';
@@ -35,8 +38,8 @@ describe('exports read by numpy', () => {
       npy: Record<string, { shape: number[]; dtype: string; values: number[] }>;
       csv: Record<string, { header: string[]; shape: number[]; values: number[] }>;
     }>('exports_reference.py', {
-      npy: { post: b64(posteriorNpy(summary).bytes), draws: b64(drawsNpy(draws, 'base').bytes) },
-      csv: { post: txt(posteriorCsv(grid, summary).bytes), draws: txt(drawsCsv(draws, 'base').bytes) },
+      npy: { post: b64(posteriorNpy(summary).bytes), draws: b64(joinParts(drawsNpy(draws, 'base', 5))) },
+      csv: { post: txt(posteriorCsv(grid, summary).bytes), draws: txt(joinParts(drawsCsv(draws, 'base', 5))) },
     });
     // cell k sits at x = 10 + 2·(k mod 3), y = −1 + 0.5·floor(k / 3) (x fastest)
     const xs = [10, 12, 14, 10, 12, 14];
@@ -47,6 +50,23 @@ describe('exports read by numpy', () => {
     expect(ref.csv.post!.header).toEqual(['x', 'y', 'mean', 'std']);
     expect(ref.csv.post!.values).toEqual(xs.flatMap((x, k) => [x, ys[k], mean[k], std[k]]));
     expect(ref.csv.draws).toEqual({ header: [], shape: [2, 6], values: Array.from(draws.data) });
+  });
+
+  it("realisations are written in parts of whole rows that join to the one-piece writers' bytes", () => {
+    const big = matrix(
+      7,
+      5,
+      Float64Array.from({ length: 35 }, (_, k) => Math.sin(k) * 10 ** (k % 9)),
+    );
+    for (const per of [1, 5, 12, 35, 1000]) {
+      const npy = drawsNpy(big, 'b', per);
+      const csv = drawsCsv(big, 'b', per);
+      const rowsPer = Math.max(1, Math.floor(per / 5));
+      expect(npy.parts.length).toBe(1 + Math.ceil(7 / rowsPer));
+      expect(csv.parts.length).toBe(Math.ceil(7 / rowsPer));
+      expect(joinParts(npy)).toEqual(writeNpy([7, 5], big.data));
+      expect(new TextDecoder().decode(joinParts(csv))).toBe(writeCsv(big));
+    }
   });
 
   it('the realisations carry the grid, seed and layout beside them, under names from the problem title', () => {

@@ -1,8 +1,10 @@
 /** Save bytes as a file through a temporary blob: link (no network; allowed by the page's CSP). */
-import type { ExportFile } from './exports.ts';
+import type { ExportFile, ExportParts } from './exports.ts';
 
-export function download(file: ExportFile): void {
-  const url = URL.createObjectURL(new Blob([file.bytes as BlobPart], { type: file.mime }));
+export function download(file: ExportFile | ExportParts): void {
+  // A parted export becomes one Blob of its parts (no copy into one buffer; see ExportParts).
+  const parts = ('parts' in file ? [...file.parts] : [file.bytes]) as BlobPart[];
+  const url = URL.createObjectURL(new Blob(parts, { type: file.mime }));
   const a = document.createElement('a');
   a.href = url;
   a.download = file.name;

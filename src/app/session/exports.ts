@@ -11,7 +11,7 @@
  */
 import { writePriorFile } from '../../core/io/priorFile.ts';
 import { writeCsv } from '../../core/io/csv.ts';
-import { writeNpy } from '../../core/io/npy.ts';
+import { float64Bytes, npyHeader, writeNpy } from '../../core/io/npy.ts';
 import { cellCoordinates, cellCount, gridDimension, type Grid } from '../../core/grid/grid.ts';
 import { matrix, type Matrix } from '../../core/linalg/matrix.ts';
 import { formatJson } from '../../core/io/json.ts';
@@ -75,14 +75,52 @@ export function drawsName(title: string, which: 'prior' | 'posterior', count: nu
   return `${fileStem(title)}-${which}-realisations-${count}`;
 }
 
-/** K draws × N cells as CSV, K lines of N numbers, no header (as `priorscope sample --format csv`). */
-export function drawsCsv(draws: Matrix, base: string): ExportFile {
-  return text(`${base}.csv`, 'text/csv', writeCsv(draws));
+/**
+ * A large export as a list of byte parts, written one after the other (../session/download.ts makes
+ * one Blob of them): no single string or buffer holds the whole file, so N realisations of a large
+ * grid need about the memory of the draws plus one part.
+ */
+export interface ExportParts {
+  readonly name: string;
+  readonly mime: string;
+  readonly parts: readonly Uint8Array[];
 }
 
-/** K draws × N cells as a float64 .npy (as `priorscope sample --format npy`). */
-export function drawsNpy(draws: Matrix, base: string): ExportFile {
-  return { name: `${base}.npy`, mime: NPY, bytes: writeNpy([draws.rows, draws.cols], draws.data) };
+/** Values per part of a parted export (4 Mi values: about 32 MiB of .npy, 80 MiB of CSV text). */
+export const PART_VALUES = 1 << 22;
+
+/** Row blocks [from, to) of a rows × cols matrix with at most `perPart` values each (at least one row). */
+function rowBlocks(rows: number, cols: number, perPart: number): [number, number][] {
+  const step = Math.max(1, Math.floor(perPart / Math.max(1, cols)));
+  const out: [number, number][] = [];
+  for (let a = 0; a < rows; a += step) out.push([a, Math.min(rows, a + step)]);
+  return out;
+}
+
+const rowsOf = (m: Matrix, a: number, b: number): Matrix => ({ rows: b - a, cols: m.cols, data: m.data.subarray(a * m.cols, b * m.cols) });
+
+/** K draws × N cells as CSV, K lines of N numbers, no header (as `priorscope sample --format csv`), in parts of whole lines. */
+export function drawsCsv(draws: Matrix, base: string, perPart = PART_VALUES): ExportParts {
+  const enc = new TextEncoder();
+  const parts = rowBlocks(draws.rows, draws.cols, perPart).map(([a, b]) => enc.encode(writeCsv(rowsOf(draws, a, b))));
+  return { name: `${base}.csv`, mime: 'text/csv', parts };
+}
+
+/** K draws × N cells as a float64 .npy (as `priorscope sample --format npy`): the header, then the rows in parts. */
+export function drawsNpy(draws: Matrix, base: string, perPart = PART_VALUES): ExportParts {
+  const body = rowBlocks(draws.rows, draws.cols, perPart).map(([a, b]) => float64Bytes(rowsOf(draws, a, b).data));
+  return { name: `${base}.npy`, mime: NPY, parts: [npyHeader([draws.rows, draws.cols]), ...body] };
+}
+
+/** The parts of a parted export joined (for tests and small files). */
+export function joinParts(file: ExportParts): Uint8Array {
+  const out = new Uint8Array(file.parts.reduce((n, p) => n + p.length, 0));
+  let at = 0;
+  for (const p of file.parts) {
+    out.set(p, at);
+    at += p.length;
+  }
+  return out;
 }
 
 /** What lies beside the realisations: the grid (problem-file fields), the seed and how to read the rows. */

@@ -249,10 +249,12 @@ function headerText(shape: readonly number[]): string {
   return `{'descr': '<f8', 'fortran_order': False, 'shape': ${dims}, }`;
 }
 
-/** A float64 little-endian C-order .npy (version 1.0, or 2.0 when the header needs it). */
-export function writeNpy(shape: readonly number[], data: ArrayLike<number>): Uint8Array {
-  const count = shape.reduce((a, b) => a * b, 1);
-  if (data.length !== count) throw new RangeError(`writeNpy: ${data.length} values for shape (${shape.join(', ')})`);
+/**
+ * The header of a float64 little-endian C-order .npy (version 1.0, or 2.0 when the header needs it):
+ * magic, version, length and the dict padded so the data start on a 64-byte boundary. The data
+ * follow as `shape`'s product of float64 values, little-endian.
+ */
+export function npyHeader(shape: readonly number[]): Uint8Array {
   const dict = headerText(shape);
   let major = 1;
   let prefix = 10;
@@ -263,7 +265,7 @@ export function writeNpy(shape: readonly number[], data: ArrayLike<number>): Uin
     total = Math.ceil((prefix + dict.length + 1) / 64) * 64;
   }
   const headerLength = total - prefix;
-  const out = new Uint8Array(total + count * 8);
+  const out = new Uint8Array(total);
   out.set(MAGIC, 0);
   out[6] = major;
   out[7] = 0;
@@ -272,11 +274,28 @@ export function writeNpy(shape: readonly number[], data: ArrayLike<number>): Uin
   else view.setUint32(8, headerLength, true);
   const padded = dict.padEnd(headerLength - 1, ' ') + '\n';
   for (let k = 0; k < padded.length; k++) out[prefix + k] = padded.charCodeAt(k);
-  for (let k = 0; k < count; k++) view.setFloat64(total + k * 8, data[k], true);
   return out;
 }
 
-/** A Matrix as a 2-D float64 C-order .npy. */
+/** `data` as float64 little-endian bytes (the body of a .npy). */
+export function float64Bytes(data: ArrayLike<number>): Uint8Array {
+  const out = new Uint8Array(data.length * 8);
+  const view = new DataView(out.buffer);
+  for (let k = 0; k < data.length; k++) view.setFloat64(k * 8, data[k], true);
+  return out;
+}
+
+/** A float64 little-endian C-order .npy: {@link npyHeader} then the values. */
+export function writeNpy(shape: readonly number[], data: ArrayLike<number>): Uint8Array {
+  const count = shape.reduce((a, b) => a * b, 1);
+  if (data.length !== count) throw new RangeError(`writeNpy: ${data.length} values for shape (${shape.join(', ')})`);
+  const header = npyHeader(shape);
+  const out = new Uint8Array(header.length + count * 8);
+  out.set(header, 0);
+  out.set(float64Bytes(data), header.length);
+  return out;
+}
+
 export function writeNpyMatrix(m: Matrix): Uint8Array {
   return writeNpy([m.rows, m.cols], m.data);
 }
