@@ -15,7 +15,7 @@ import { loadavg, tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { mkdirSync, writeFileSync } from 'node:fs';
 
-const DEMO_IDS = ['borehole-log', 'crosshole-tomography', 'potential-field'];
+const DEMO_IDS = (process.env.PRIORSCOPE_BENCH_DEMOS ?? 'borehole-log,crosshole-tomography,potential-field').split(',');
 const CHANGES = Number(process.env.PRIORSCOPE_BENCH_CHANGES ?? 20);
 const PORT = Number(process.env.PRIORSCOPE_BENCH_PORT ?? 4319);
 
@@ -73,7 +73,9 @@ async function timedChange(page: Page, pos: number, mark: string): Promise<numbe
 }
 
 /** 30 input events at 60 Hz (absolute schedule) on the length slider; long tasks until quiet. */
-async function drag(page: Page): Promise<{ longTasks: number[]; dragMs: number; plotCalls: number; longestPlotMs: number }> {
+async function drag(
+  page: Page,
+): Promise<{ longTasks: number[]; dragMs: number; plotCalls: number; longestPlotMs: number; byFigure: Record<string, number> }> {
   return page.evaluate(async () => {
     const longTasks: number[] = [];
     const obs = new PerformanceObserver((l) => l.getEntries().forEach((e) => longTasks.push(e.duration)));
@@ -92,7 +94,12 @@ async function drag(page: Page): Promise<{ longTasks: number[]; dragMs: number; 
     obs.disconnect();
     // Synchronous part of each Plotly.react (measures `ps:plot:<figure>` from src/app/Plot.tsx).
     const plots = performance.getEntriesByType('measure').filter((m) => m.name.startsWith('ps:plot:') && m.startTime >= t0);
-    return { longTasks, dragMs, plotCalls: plots.length, longestPlotMs: Math.max(0, ...plots.map((m) => m.duration)) };
+    const byFigure: Record<string, number> = {};
+    for (const m of plots) {
+      const f = m.name.slice('ps:plot:'.length);
+      byFigure[f] = Math.max(byFigure[f] ?? 0, Number(m.duration.toFixed(1)));
+    }
+    return { longTasks, dragMs, plotCalls: plots.length, longestPlotMs: Math.max(0, ...plots.map((m) => m.duration)), byFigure };
   });
 }
 
@@ -142,6 +149,7 @@ async function main(): Promise<void> {
           longTaskTargetMs: 50,
           plotCallsDuringDrag: d.plotCalls,
           longestPlotCallMs: Number(d.longestPlotMs.toFixed(1)),
+          longestPlotCallMsByFigure: d.byFigure,
           loadAverage1m: Number(loadavg()[0].toFixed(2)),
         };
         results.push(r);
