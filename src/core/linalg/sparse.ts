@@ -21,28 +21,50 @@ export function sparseFromCoordinates(
   v: ArrayLike<number>,
 ): SparseMatrix {
   const nnz = v.length;
-  const order = Array.from({ length: nnz }, (_, k) => k);
-  order.sort((a, b) => ri[a] - ri[b] || ci[a] - ci[b]);
-  const rowPtr = new Int32Array(rows + 1);
-  const colIdx: number[] = [];
-  const values: number[] = [];
-  let lastR = -1;
-  let lastC = -1;
-  for (const k of order) {
+  // Counting sort by row (stable, O(nnz + rows)), then each row's entries by column with the entry
+  // number as tie-break: the same order as a stable sort by (row, column), so duplicates are summed
+  // in file order and the result is bit-identical to it, without a comparator sort over all entries
+  // (about 1 s for 10⁶ entries).
+  const start = new Int32Array(rows + 1);
+  for (let k = 0; k < nnz; k++) {
     const r = ri[k];
-    const c = ci[k];
-    if (r === lastR && c === lastC) {
-      values[values.length - 1] += v[k];
-      continue;
-    }
-    colIdx.push(c);
-    values.push(v[k]);
-    rowPtr[r + 1]++;
-    lastR = r;
-    lastC = c;
+    if (!(r >= 0 && r < rows && Number.isInteger(r)))
+      throw new RangeError(`sparseFromCoordinates: row ${r} of entry ${k} outside 0…${rows - 1}`);
+    start[r + 1]++;
   }
-  for (let i = 0; i < rows; i++) rowPtr[i + 1] += rowPtr[i];
-  return { rows, cols, rowPtr, colIdx: Int32Array.from(colIdx), values: Float64Array.from(values) };
+  for (let i = 0; i < rows; i++) start[i + 1] += start[i];
+  const order = new Int32Array(nnz);
+  const fill = start.slice(0, rows);
+  for (let k = 0; k < nnz; k++) order[fill[ri[k]]++] = k;
+  const byColumn = (a: number, b: number) => ci[a] - ci[b] || a - b;
+  for (let i = 0; i < rows; i++) {
+    const a = start[i];
+    const b = start[i + 1];
+    let sorted = true;
+    for (let p = a + 1; p < b && sorted; p++) sorted = ci[order[p - 1]] <= ci[order[p]];
+    if (!sorted) order.subarray(a, b).sort(byColumn);
+  }
+  const rowPtr = new Int32Array(rows + 1);
+  const colIdx = new Int32Array(nnz);
+  const values = new Float64Array(nnz);
+  let out = 0;
+  for (let i = 0; i < rows; i++) {
+    let lastC = -1;
+    for (let p = start[i]; p < start[i + 1]; p++) {
+      const k = order[p];
+      const c = ci[k];
+      if (c === lastC) {
+        values[out - 1] += v[k];
+        continue;
+      }
+      colIdx[out] = c;
+      values[out] = v[k];
+      out++;
+      lastC = c;
+    }
+    rowPtr[i + 1] = out;
+  }
+  return { rows, cols, rowPtr, colIdx: colIdx.slice(0, out), values: values.slice(0, out) };
 }
 
 export function sparseToDense(s: SparseMatrix): Matrix {

@@ -29,6 +29,36 @@ describe('sparse × dense products', () => {
     const x = matrix(2, 1, Float64Array.from([10, 100]));
     expect(Array.from(sparseTimesDense(t, x).data)).toEqual([400, 0, -10]);
   });
+  it('CSR from shuffled coordinates with duplicates equals a stable sort by (row, column), duplicates summed in entry order', () => {
+    const u77 = seededUniform(77);
+    const rnd = () => (u77() + 1) / 2; // [0, 1)
+    const nnz = 5000;
+    const ri = Array.from({ length: nnz }, () => Math.floor(rnd() * 40));
+    const ci = Array.from({ length: nnz }, () => Math.floor(rnd() * 30));
+    const v = Array.from({ length: nnz }, () => (rnd() - 0.5) * 10 ** Math.floor(rnd() * 12 - 6));
+    // Reference: the textbook construction (stable sort of the entries, then one pass summing equal pairs).
+    const order = Array.from({ length: nnz }, (_, k) => k).sort((a, b) => ri[a]! - ri[b]! || ci[a]! - ci[b]!);
+    const rowPtr = new Array<number>(41).fill(0);
+    const colIdx: number[] = [];
+    const values: number[] = [];
+    let last = '';
+    for (const k of order) {
+      const key = `${ri[k]},${ci[k]}`;
+      if (key === last) values[values.length - 1]! += v[k]!;
+      else {
+        colIdx.push(ci[k]!);
+        values.push(v[k]!);
+        rowPtr[ri[k]! + 1]!++;
+      }
+      last = key;
+    }
+    for (let i = 0; i < 40; i++) rowPtr[i + 1]! += rowPtr[i]!;
+    const t = sparseFromCoordinates(40, 30, ri, ci, v);
+    expect(Array.from(t.rowPtr)).toEqual(rowPtr);
+    expect(Array.from(t.colIdx)).toEqual(colIdx);
+    expect(Array.from(t.values)).toEqual(values);
+    expect(() => sparseFromCoordinates(3, 2, [0, 3], [0, 0], [1, 1])).toThrow(/row 3 of entry 1 outside 0…2/);
+  });
   it('shape mismatches throw', () => {
     expect(() => sparseTimesDense(s, matrix(59, 2))).toThrow(/expected 60 rows/);
     expect(() => denseTimesSparseTranspose(matrix(2, 59), s)).toThrow(/expected 59 columns/);
