@@ -16,6 +16,11 @@ export function correlationFunction(kernel: KernelName, nu?: number): Correlatio
   return kernelDefinition(kernel).correlation(nu);
 }
 
+/** A fast evaluator of dρ/dh for one kernel (same `nu` rule as {@link correlationFunction}). */
+export function correlationDerivative(kernel: KernelName, nu?: number): CorrelationFunction {
+  return kernelDefinition(kernel).derivative(nu);
+}
+
 /** ρ(h) for one kernel (convenience; build a {@link correlationFunction} once for loops). */
 export function correlation(kernel: KernelName, h: number, nu?: number): number {
   return correlationFunction(kernel, nu)(h);

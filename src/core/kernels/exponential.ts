@@ -8,4 +8,9 @@ export function exponentialCorrelation(h: number): number {
 }
 
 /** h with ρ(h) = 0.05: −ln 0.05 = ln 20 (derived). */
+/** dρ/dh of e^{−h}: −e^{−h} (the one-sided limit −1 at h = 0). */
+export function exponentialDerivative(h: number): number {
+  return -Math.exp(-h);
+}
+
 export const EXPONENTIAL_PRACTICAL_RANGE = Math.log(20);

@@ -9,4 +9,9 @@ export function gaussianCorrelation(h: number): number {
 }
 
 /** h with ρ(h) = 0.05: √(2 ln 20) (derived). */
+/** dρ/dh of e^{−h²/2}: −h e^{−h²/2}. */
+export function gaussianDerivative(h: number): number {
+  return -h * Math.exp(-0.5 * h * h);
+}
+
 export const GAUSSIAN_PRACTICAL_RANGE = Math.sqrt(2 * Math.log(20));

@@ -21,7 +21,7 @@
  * at the end, so large z underflows gracefully to 0.
  * ρ(0) = 1 exactly (also when √(2ν)h underflows to 0); results are clamped to [0, 1] (rounding can otherwise give 1 + 1 ulp near h = 0).
  */
-import { besselOrder, temmeContinuedFraction, temmeSeries } from '../special/bessel.ts';
+import { besselKScaled, besselOrder, temmeContinuedFraction, temmeSeries } from '../special/bessel.ts';
 import { gamma } from '../special/gamma.ts';
 
 /** A correlation ρ(h) at scaled distance h (the table's CorrelationFunction, written out: the table imports this file). */
@@ -126,4 +126,38 @@ export function maternCorrelationFunction(nu: number): CorrelationFunction {
   if (nu === 1.5) return matern32;
   if (nu === 2.5) return matern52;
   return maternBessel(nu);
+}
+
+/**
+ * dρ_ν/dh, for the analytic gradient of the evidence in lengths and angle (../tuning/termDerivative.ts).
+ * From d/dz [z^ν K_ν(z)] = −z^ν K_{ν−1}(z) (DLMF 10.29.4 with k = 1) and z = √(2ν) h:
+ *   dρ_ν/dh = −√(2ν) 2^{1−ν}/Γ(ν) · z^ν K_{ν−1}(z).
+ * For ν > 1 the right side is a Matérn correlation of order ν − 1 again (z^{ν−1} K_{ν−1} normalised as in
+ * {@link maternBessel}; derived): dρ_ν/dh = −(ν h/(ν − 1)) · ρ_{ν−1}(h √(ν/(ν − 1))), evaluated by the same
+ * overflow-free recurrence (no Γ(ν) or 2^ν factors). For ν ≤ 1, K_{ν−1} = K_{1−ν} (DLMF 10.27.3) directly.
+ * Closed forms (differentiating R&W eq. 4.17): ν = 1/2: −e^{−h}; ν = 3/2: −3h e^{−√3h};
+ * ν = 5/2: −(5h/3)(1 + √5h) e^{−√5h}. At h = 0 the value is the one-sided limit (−1 for ν = 1/2, −∞ below,
+ * 0 above); callers multiply it by ∂h/∂θ, which vanishes there.
+ */
+export function maternDerivativeFunction(nu: number): CorrelationFunction {
+  checkNu(nu);
+  if (nu === 0.5) return (h) => -Math.exp(-h);
+  if (nu === 1.5) return (h) => -3 * h * Math.exp(-SQRT3 * h);
+  if (nu === 2.5) return (h) => -(5 / 3) * h * (1 + SQRT5 * h) * Math.exp(-SQRT5 * h);
+  if (nu > 1) {
+    const lower = maternCorrelationFunction(nu - 1);
+    const ratio = nu / (nu - 1);
+    const stretch = Math.sqrt(ratio);
+    return (h) => -ratio * h * lower(h * stretch);
+  }
+  const s = Math.sqrt(2 * nu);
+  const logNorm = Math.log(s) + (1 - nu) * Math.LN2 - Math.log(gamma(nu));
+  const order = 1 - nu;
+  return (h) => {
+    const z = s * h;
+    // The limit at 0: z^ν K_{1−ν}(z) ~ Γ(1−ν) 2^{−ν} z^{2ν−1} (DLMF 10.30.2), → ∞ for ν < 1/2, → 0 for ν > 1/2.
+    if (z === 0) return nu < 0.5 ? Number.NEGATIVE_INFINITY : 0;
+    // e^z K_{1−ν}(z) keeps its scale for large z; the factor e^{−z} goes into the exponent.
+    return -Math.exp(logNorm + nu * Math.log(z) + Math.log(besselKScaled(order, z)) - z);
+  };
 }

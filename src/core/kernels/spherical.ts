@@ -16,4 +16,10 @@ export function sphericalCorrelation(h: number): number {
  * algebra, common practice, no source). With p = −3, q = 1.9: t = 2 cos(⅓ arccos(−0.95) − 2πk/3), k = 1 gives
  * the root in (0, 1).
  */
+/** dρ/dh of 1 − 1.5h + 0.5h³ (h < 1): −1.5 (1 − h²) = −1.5 (1 − h)(1 + h); 0 from h = 1 on (continuous there). */
+export function sphericalDerivative(h: number): number {
+  if (!(h < 1)) return 0;
+  return -1.5 * (1 - h) * (1 + h);
+}
+
 export const SPHERICAL_PRACTICAL_RANGE = 2 * Math.cos(Math.acos(-0.95) / 3 - (2 * Math.PI) / 3);

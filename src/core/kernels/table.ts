@@ -14,10 +14,10 @@
  * where h is the scaled distance (./spec.ts says how it is formed from the term's lengths and angle).
  */
 import { assertNever } from '../errors.ts';
-import { EXPONENTIAL_PRACTICAL_RANGE, exponentialCorrelation } from './exponential.ts';
-import { GAUSSIAN_PRACTICAL_RANGE, gaussianCorrelation } from './gaussian.ts';
-import { DEFAULT_MATERN_NU, maternCorrelationFunction } from './matern.ts';
-import { SPHERICAL_PRACTICAL_RANGE, sphericalCorrelation } from './spherical.ts';
+import { EXPONENTIAL_PRACTICAL_RANGE, exponentialCorrelation, exponentialDerivative } from './exponential.ts';
+import { GAUSSIAN_PRACTICAL_RANGE, gaussianCorrelation, gaussianDerivative } from './gaussian.ts';
+import { DEFAULT_MATERN_NU, maternCorrelationFunction, maternDerivativeFunction } from './matern.ts';
+import { SPHERICAL_PRACTICAL_RANGE, sphericalCorrelation, sphericalDerivative } from './spherical.ts';
 
 /** The kernels, by the name they carry in specs, files, the command line and the UI. */
 export type KernelName = 'exponential' | 'gaussian' | 'matern' | 'spherical';
@@ -67,6 +67,11 @@ export interface KernelDefinition {
    * kernels without `nu` ignore it). Throws RangeError for a smoothness the kernel cannot evaluate.
    */
   correlation(nu: number | undefined): CorrelationFunction;
+  /**
+   * dρ/dh, with its constants precomputed (same `nu` rule as {@link correlation}); used for the analytic
+   * derivatives of the evidence in lengths and angle. At h = 0 it returns the one-sided limit.
+   */
+  derivative(nu: number | undefined): CorrelationFunction;
   /** The scaled distance h where ρ(h) = {@link PRACTICAL_RANGE_LEVEL} (multiply by the length for a distance). */
   practicalRange(nu: number | undefined): number;
   /**
@@ -123,6 +128,7 @@ export const KERNELS = {
     source: 'Rasmussen & Williams (2006) §4.2.1; Matérn with ν = 1/2',
     fields: {},
     correlation: () => exponentialCorrelation,
+    derivative: () => exponentialDerivative,
     practicalRange: () => EXPONENTIAL_PRACTICAL_RANGE,
     // Matérn ν = 1/2.
     logSpectralDensity: (_nu, dim) => maternLogSpectrum(0.5, dim),
@@ -137,6 +143,7 @@ export const KERNELS = {
     source: 'Rasmussen & Williams (2006) eq. 4.9; the Matérn limit ν → ∞',
     fields: {},
     correlation: () => gaussianCorrelation,
+    derivative: () => gaussianDerivative,
     practicalRange: () => GAUSSIAN_PRACTICAL_RANGE,
     // S ∝ exp(−q/2) (the transform of R&W eq. 4.9).
     logSpectralDensity: () => (q) => -0.5 * q,
@@ -157,6 +164,7 @@ export const KERNELS = {
     source: 'Rasmussen & Williams (2006) eq. 4.14',
     fields: { nu: { default: DEFAULT_MATERN_NU } },
     correlation: (nu = DEFAULT_MATERN_NU) => maternCorrelationFunction(nu),
+    derivative: (nu = DEFAULT_MATERN_NU) => maternDerivativeFunction(nu),
     practicalRange: (nu = DEFAULT_MATERN_NU) => monotoneRoot(maternCorrelationFunction(nu), PRACTICAL_RANGE_LEVEL),
     logSpectralDensity: (nu = DEFAULT_MATERN_NU, dim) => maternLogSpectrum(nu, dim),
     stationary: true,
@@ -174,6 +182,7 @@ export const KERNELS = {
     source: 'Chilès & Delfiner (2012) §2.5',
     fields: {},
     correlation: () => sphericalCorrelation,
+    derivative: () => sphericalDerivative,
     practicalRange: () => SPHERICAL_PRACTICAL_RANGE,
     // No simple closed-form spectrum here.
     logSpectralDensity: () => null,

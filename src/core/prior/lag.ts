@@ -85,6 +85,23 @@ export function scaledDistance(term: Term): (ox: number, oy: number, oz?: number
 
 /** Kernel-part covariance Σ_t variance_t ρ_t(h_t) for every distinct grid offset. */
 export function lagTable(grid: Grid, terms: readonly Term[]): LagTable {
+  const parts = terms.map((term) => ({ rho: correlationFunction(term.kernel, term.nu), h: scaledDistance(term), v: term.variance }));
+  return offsetTable(grid, (ox, oy, oz) => {
+    let s = 0;
+    for (const p of parts) s += p.v * p.rho(p.h(ox, oy, oz));
+    return s;
+  });
+}
+
+/** An even function of the physical offset, f(−o) = f(o), as a covariance of the offset alone. */
+export type OffsetFunction = (ox: number, oy: number, oz: number) => number;
+
+/**
+ * The table of an even function of the offset over every distinct grid offset (layout of {@link LagTable}):
+ * evaluated on one representative of each ± pair and mirrored, so T(−d) = T(d) exactly. {@link lagTable} is
+ * the prior's kernel part; ../tuning/termDerivative.ts tabulates derivatives of one term the same way.
+ */
+export function offsetTable(grid: Grid, f: OffsetFunction): LagTable {
   const nx = grid.shape[0];
   const ny = grid.shape[1] ?? 1;
   const nz = grid.shape[2] ?? 1;
@@ -94,19 +111,14 @@ export function lagTable(grid: Grid, terms: readonly Term[]): LagTable {
   const w = 2 * nx - 1;
   const values = new Float64Array(w * (2 * ny - 1) * (2 * nz - 1));
   const table = { nx, ny, nz, values };
-  for (const term of terms) {
-    const rho = correlationFunction(term.kernel, term.nu);
-    const h = scaledDistance(term);
-    const v = term.variance;
-    // Offsets with Δiz > 0, or Δiz = 0 and (Δiy > 0, or Δiy = 0 and Δix ≥ 0): one representative of each ± pair.
-    for (let diz = 0; diz < nz; diz++) {
-      const oz = diz * dz;
-      for (let diy = diz === 0 ? 0 : -(ny - 1); diy < ny; diy++) {
-        const start = diz === 0 && diy === 0 ? 0 : -(nx - 1);
-        const oy = diy * dy;
-        const row = lagIndex(table, 0, diy, diz);
-        for (let dix = start; dix < nx; dix++) values[row + dix] += v * rho(h(dix * dx, oy, oz));
-      }
+  // Offsets with Δiz > 0, or Δiz = 0 and (Δiy > 0, or Δiy = 0 and Δix ≥ 0): one representative of each ± pair.
+  for (let diz = 0; diz < nz; diz++) {
+    const oz = diz * dz;
+    for (let diy = diz === 0 ? 0 : -(ny - 1); diy < ny; diy++) {
+      const start = diz === 0 && diy === 0 ? 0 : -(nx - 1);
+      const oy = diy * dy;
+      const row = lagIndex(table, 0, diy, diz);
+      for (let dix = start; dix < nx; dix++) values[row + dix] = f(dix * dx, oy, oz);
     }
   }
   // Mirror: T(−Δix, −Δiy, −Δiz) = T(Δix, Δiy, Δiz).

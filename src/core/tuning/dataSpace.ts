@@ -19,11 +19,12 @@ import { cellCount } from '../grid/grid.ts';
 import { cholesky, logDetFromCholesky, solveLower } from '../linalg/cholesky.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
 import { applyOperator, operatorShape, projectCovariance } from '../linalg/operator.ts';
-import { covarianceMatrix, meanVector } from '../prior/covariance.ts';
+import { assembleCovariance, covarianceMatrix, meanVector } from '../prior/covariance.ts';
+import { offsetTable, type OffsetFunction } from '../prior/lag.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
 import { structuredProjection, TUNING_DENSE_LIMIT, tuningRoute, type TuningRoute } from './projected.ts';
-import { lagProjectionApplies, lagTableProjection } from './lagProjection.ts';
+import { lagProjectionApplies, lagTableProjection, projectLagTable } from './lagProjection.ts';
 
 import { LOG_2PI } from '../inverse/evidence.ts';
 
@@ -119,23 +120,10 @@ export function addMatrices(a: Matrix, b: Matrix): Matrix {
  * 'fft' for a prior that is not stationary on the grid is an InputError naming `route`.
  */
 export function projectedPriorCovariance(problem: Problem, prior: PriorSpec, options: RouteOptions = {}): Matrix {
-  const asked = options.route ?? 'auto';
-  let route: TuningRoute;
-  switch (asked) {
-    case 'auto':
-      route = tuningRoute(problem, prior);
-      break;
-    case 'dense':
-    case 'fft':
-      route = asked;
-      break;
-    default:
-      return assertNever(asked);
-  }
+  const route = projectionRoute(problem, prior, options.route ?? 'auto');
   if (route === 'dense') return projectCovariance(problem.operator, covarianceMatrix(problem.grid, prior));
   // Few non-zeros (point data): the lag table gives P exactly, cheaper than any transform (./lagProjection.ts).
-  if (asked === 'auto' && lagProjectionApplies(problem.operator, problem.grid))
-    return lagTableProjection(problem.operator, problem.grid, prior);
+  if (route === 'lag') return lagTableProjection(problem.operator, problem.grid, prior);
   const why = nonStationaryReason(problem.grid, prior);
   if (why !== null)
     throw new InputError(
@@ -147,6 +135,40 @@ export function projectedPriorCovariance(problem: Problem, prior: PriorSpec, opt
   if (holder.problem !== problem)
     throw new InputError('structured', 'a spectrum cache made for this problem', 'one made for another problem');
   return structuredProjection(holder, prior);
+}
+
+/**
+ * How P is formed for (problem, prior) when `asked` is the route option: 'dense', the lag table ('lag': under
+ * `auto` where the FFT route would run and the operator has few non-zeros) or 'fft'.
+ */
+function projectionRoute(problem: Problem, prior: PriorSpec, asked: 'auto' | TuningRoute): TuningRoute | 'lag' {
+  switch (asked) {
+    case 'auto': {
+      const route = tuningRoute(problem, prior);
+      return route === 'fft' && lagProjectionApplies(problem.operator, problem.grid) ? 'lag' : route;
+    }
+    case 'dense':
+    case 'fft':
+      return asked;
+    default:
+      return assertNever(asked);
+  }
+}
+
+/**
+ * G S D S Gᵀ for D the table of an even function of the offset (../prior/lag.ts offsetTable), S the prior's
+ * standard-deviation profile, no nugget: the derivative of P along one term's length or angle
+ * (./termDerivative.ts), by the side's route — the dense assembly or the lag-table projection. Null where
+ * the side runs the FFT route (the caller differentiates numerically there).
+ */
+export function sideOffsetProjection(side: DataSide, prior: PriorSpec, f: OffsetFunction): Matrix | null {
+  const { problem } = side;
+  const route = projectionRoute(problem, prior, side.route);
+  if (route === 'fft') return null;
+  const table = offsetTable(problem.grid, f);
+  if (route === 'lag') return projectLagTable(problem.operator, problem.grid, table, prior.stdProfile);
+  const { nugget: _none, ...kernelPart } = prior;
+  return projectCovariance(problem.operator, assembleCovariance(kernelPart, table));
 }
 
 /** P = G Cm Gᵀ by the side's route and spectrum cache. */

@@ -18,7 +18,7 @@
 import type { Grid } from '../grid/grid.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
 import { matchOperator, operatorGram, type Operator } from '../linalg/operator.ts';
-import { lagIndex, lagTable } from '../prior/lag.ts';
+import { lagIndex, lagTable, type LagTable } from '../prior/lag.ts';
 import { validatePrior } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 
@@ -41,12 +41,14 @@ export function lagProjectionApplies(g: Operator, grid: Grid): boolean {
   });
 }
 
-/** P = G Cm Gᵀ through the lag table (see the module comment). Validates the prior. */
-export function lagTableProjection(g: Operator, grid: Grid, prior: PriorSpec): Matrix {
+/**
+ * G S T S Gᵀ for any table T of the grid's offsets (../prior/lag.ts layout) and the standard-deviation profile s
+ * (ones when absent), without a nugget: the prior's kernel part here, a term's derivative table in
+ * ./typeII.ts. Needs a sparse operator.
+ */
+export function projectLagTable(g: Operator, grid: Grid, table: LagTable, stdProfile: readonly number[] | undefined): Matrix {
   const sparse = matchOperator(g, { dense: () => null, sparse: (a) => a });
-  if (sparse === null) throw new RangeError('lagTableProjection: needs a sparse operator');
-  validatePrior(prior, grid);
-  const table = lagTable(grid, prior.terms);
+  if (sparse === null) throw new RangeError('projectLagTable: needs a sparse operator');
   const T = table.values;
   const nx = grid.shape[0] ?? 1;
   const { rows: m, rowPtr, colIdx, values } = sparse;
@@ -54,7 +56,7 @@ export function lagTableProjection(g: Operator, grid: Grid, prior: PriorSpec): M
   const ex = new Int32Array(nnz);
   const ey = new Int32Array(nnz);
   const w = new Float64Array(nnz);
-  const s = prior.stdProfile;
+  const s = stdProfile;
   for (let k = 0; k < nnz; k++) {
     const c = colIdx[k] ?? 0;
     const ix = c % nx;
@@ -83,6 +85,14 @@ export function lagTableProjection(g: Operator, grid: Grid, prior: PriorSpec): M
       od[b * m + a] = sum;
     }
   }
+  return out;
+}
+
+/** P = G Cm Gᵀ through the lag table (see the module comment). Validates the prior. */
+export function lagTableProjection(g: Operator, grid: Grid, prior: PriorSpec): Matrix {
+  validatePrior(prior, grid);
+  const out = projectLagTable(g, grid, lagTable(grid, prior.terms), prior.stdProfile);
+  const od = out.data;
   const eta = prior.nugget ?? 0;
   if (eta !== 0) {
     const gram = operatorGram(g);

@@ -12,10 +12,12 @@
  *
  * Gradient (Rasmussen & Williams 2006, eq. 5.9): ∂/∂θ_j log p(d) = ½ tr((ααᵀ − K⁻¹) ∂K/∂θ_j),
  * α = K⁻¹ r, with ∂K/∂θ_j = G (∂Cm/∂θ_j) Gᵀ. Exact for log variances (∂Cm/∂log σ_t² = σ_t² S R_t S,
- * the term itself) and the log nugget (η I). For lengths, angle and ν we use central differences of
- * the term's covariance with step h = 1e-5 (truncation O(h²) ≈ 1e-10 relative, round-off
- * ≈ ε/h ≈ 1e-11), not of the evidence: the kernel is cheap and smooth in these parameters, and one
- * shared formula covers every kernel including general-ν Matérn. Split: αᵀ D α / 2 − tr(K⁻¹ D)/2,
+ * the term itself) and the log nugget (η I). Lengths and the angle are analytic too: ∂Cm/∂θ = S (σ² ρ'(h) ∂h/∂θ) S
+ * tabulated over the grid's offsets (./termDerivative.ts, ρ' from the kernel table) and projected by the dense
+ * route or the lag table (./dataSpace.ts sideOffsetProjection). On the FFT route (path data with many
+ * non-zeros on large grids), and for ν everywhere, we use central differences of the term's projected
+ * covariance with step h = 1e-5 (truncation O(h²) ≈ 1e-10 relative, round-off ≈ ε/h ≈ 1e-11), not of the
+ * evidence: the kernel is cheap and smooth in these parameters. Split: αᵀ D α / 2 − tr(K⁻¹ D)/2,
  * tr(K⁻¹ D) = Σ W ∘ D with W = K⁻¹ = L⁻ᵀ L⁻¹ formed once per evaluation through the Cholesky factor
  * (Rasmussen & Williams 2006, Algorithm 5.1; used only for these traces, never to solve).
  *
@@ -61,6 +63,7 @@ import type { Problem } from '../problems/spec.ts';
 import { validatePrior } from '../prior/covariance.ts';
 import { NEAR_SINGULAR_CONDITION, type PdVerdict } from '../prior/diagnostics.ts';
 import { lagTable } from '../prior/lag.ts';
+import { termDerivative } from './termDerivative.ts';
 import { diagnosePriorAuto } from '../prior/structuredDiagnostics.ts';
 import type { Grid } from '../grid/grid.ts';
 import {
@@ -72,6 +75,7 @@ import {
   prepareDataSide,
   priorDataSpace,
   priorResidual,
+  sideOffsetProjection,
   sideProjection,
   tuningRoute,
   type DataSide,
@@ -268,6 +272,16 @@ export function evidenceGradient(
   const w = symmetricProductNT(zt, zt);
   const theta = hyperParameterVector(prior, params);
   const grad = new Float64Array(p);
+  const centralDifference = (j: number, term: number): Matrix => {
+    const step = (sign: number): Matrix => {
+      const th = Float64Array.from(theta);
+      th[j] += sign * KERNEL_STEP;
+      return projectedTerm(side, applyHyperParameters(prior, params, th), term);
+    };
+    const plus = step(1);
+    const minus = step(-1);
+    return { rows: m, cols: m, data: plus.data.map((v, k) => (v - minus.data[k]) / (2 * KERNEL_STEP)) };
+  };
   params.forEach((h, j) => {
     let dk: Matrix;
     if (h.field === 'nugget') {
@@ -276,14 +290,10 @@ export function evidenceGradient(
     } else if (h.field === 'variance') {
       dk = termP[h.term!] ?? projectedTerm(side, prior, h.term!);
     } else {
-      const step = (sign: number): Matrix => {
-        const th = Float64Array.from(theta);
-        th[j] += sign * KERNEL_STEP;
-        return projectedTerm(side, applyHyperParameters(prior, params, th), h.term!);
-      };
-      const plus = step(1);
-      const minus = step(-1);
-      dk = { rows: m, cols: m, data: plus.data.map((v, k) => (v - minus.data[k]) / (2 * KERNEL_STEP)) };
+      // Lengths and angle: the analytic derivative table through the dense or lag-table route (./termDerivative.ts);
+      // ν, and every coordinate on the FFT route, by central differences of the term's projection.
+      const analytic = h.field === 'nu' ? null : sideOffsetProjection(side, prior, termDerivative(prior.terms[h.term!], h.field));
+      dk = analytic ?? centralDifference(j, h.term!);
     }
     // ½ αᵀ D α
     let quad = 0;
