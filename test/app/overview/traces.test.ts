@@ -1,5 +1,13 @@
 import { describe, expect, it } from 'vitest';
-import { fitTraces, mapLayout, overviewFit, overviewFitAxis, overviewMaps, posteriorTraces1D, priorTraces1D } from '../../../src/app/overview/traces.ts';
+import {
+  fitTraces,
+  mapLayout,
+  overviewFit,
+  overviewFitAxis,
+  overviewMaps,
+  posteriorTraces1D,
+  priorTraces1D,
+} from '../../../src/app/overview/traces.ts';
 import { DIVERGING, SEQUENTIAL } from '../../../src/app/colourScales.ts';
 
 const grid = { shape: [3, 2], spacing: [100, 25], origin: [50, 12.5], unit: 'm', axes: ['x', 'depth'] };
