@@ -111,9 +111,14 @@ describe('dense 3-D route against numpy/scipy (explicit Rz·Ry·Rx, model-space 
       const y = covarianceApply(grid, p.prior)(x);
       const yRef = Array.from({ length: n }, (_, i) => ref.Cm.slice(i * n, (i + 1) * n).reduce((a, c, j) => a + c * x[j], 0));
       expect(maxDiff(y, yRef)).toBeLessThan(1e-12);
-      const r = computePosteriorSerial(problem, p.prior);
+      const r = computePosteriorSerial(problem, p.prior, 'dense');
       expect(r.decision.path).toBe('dense');
       expect(maxDiff(r.summary.mean, ref.mean ?? [])).toBeLessThan(1e-8);
+      // The FFT route on the same 3-D problem against the same scipy reference.
+      const f = computePosteriorSerial(problem, p.prior, 'fft');
+      expect(f.decision.path).toBe('fft');
+      expect(maxDiff(f.summary.mean, ref.mean ?? [])).toBeLessThan(1e-8);
+      expect(maxDiff(f.summary.std, ref.std ?? [])).toBeLessThan(1e-8);
       expect(maxDiff(r.summary.std, ref.std ?? [])).toBeLessThan(1e-8);
     });
   });
@@ -152,7 +157,7 @@ describe('3-D conventions', () => {
     expect(cz.data[2]).toBeCloseTo(Math.exp(-1), 12);
   });
 
-  it('refuses a 3-D grid too large for the dense route before allocating, naming the limit', () => {
+  it('refuses a 3-D grid too large for the dense route before allocating when the dense route is asked for, naming the limit', () => {
     const big: Grid = { shape: [30, 30, 20], spacing: [1, 1, 1] };
     const prior: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length: 3 }] };
     const problem: Problem = {
@@ -160,8 +165,8 @@ describe('3-D conventions', () => {
       operator: { kind: 'dense', matrix: matrix(1, 18_000) },
       data: { values: new Float64Array(1), sigma: new Float64Array([1]) },
     };
-    expect(() => computePosteriorSerial(problem, prior)).toThrow(InputError);
-    expect(() => computePosteriorSerial(problem, prior)).toThrow(/16384/);
+    expect(() => computePosteriorSerial(problem, prior, 'dense')).toThrow(InputError);
+    expect(() => computePosteriorSerial(problem, prior, 'dense')).toThrow(/16384/);
   });
 
   it('refuses two lengths or a wrong angles array on a 3-D grid, naming the field', () => {

@@ -95,7 +95,7 @@ export function choosePosteriorPath(problem: Problem, prior: PriorSpec, requeste
       if (why !== null)
         throw new InputError(
           field,
-          `"dense" or "auto" for this problem (the FFT path needs a stationary prior on a regular 1-D or 2-D grid: ${why})`,
+          `"dense" or "auto" for this problem (the FFT path needs a stationary prior on a regular 1-D, 2-D or 3-D grid: ${why})`,
           'fft',
         );
       return { path: 'fft', reason: 'FFT path requested' };

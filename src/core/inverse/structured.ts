@@ -62,9 +62,10 @@ export interface StructuredProblem {
 interface RowSpectra {
   readonly px: number;
   readonly py: number;
+  readonly pz: number;
   /** The std profile the spectra were taken with (by value). */
   readonly profile: Float64Array | null;
-  /** Full 2-D spectrum F pad(s ⊙ (g_2k + i g_2k+1)) per pair of data rows, column-major. */
+  /** Full 2-D (3-D) spectrum F pad(s ⊙ (g_2k + i g_2k+1)) per pair of data rows, column-major. */
   readonly spectra: Float64Array[];
 }
 
@@ -182,7 +183,7 @@ export function computeBtPairs(
   cached: readonly Float64Array[] | null,
   save: Float64Array[] | null,
 ): { spectra: number; products: number } {
-  const n = cp.nx * cp.ny;
+  const n = cp.nx * cp.ny * cp.nz;
   const m = rows.length;
   const pairs = Math.ceil(m / 2);
   let spectraTime = 0;
@@ -235,7 +236,8 @@ export function finishBtRows(
  */
 export function matchingSpectra(holder: StructuredProblem, cp: CirculantProduct, s: readonly number[] | undefined): Float64Array[] | null {
   const cache = holder.cache;
-  if (cache !== null && cache.px === cp.px && cache.py === cp.py && sameProfile(cache.profile, s)) return cache.spectra;
+  if (cache !== null && cache.px === cp.px && cache.py === cp.py && cache.pz === cp.pz && sameProfile(cache.profile, s))
+    return cache.spectra;
   holder.cache = null;
   return null;
 }
@@ -247,7 +249,7 @@ export function keepSpectra(
   s: readonly number[] | undefined,
   spectra: Float64Array[],
 ): void {
-  holder.cache = { px: cp.px, py: cp.py, profile: s === undefined ? null : Float64Array.from(s), spectra };
+  holder.cache = { px: cp.px, py: cp.py, pz: cp.pz, profile: s === undefined ? null : Float64Array.from(s), spectra };
 }
 
 /**

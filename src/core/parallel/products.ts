@@ -158,7 +158,8 @@ export function sharedMemoryAvailable(): boolean {
 export function productWork(m: number, shape: readonly number[]): number {
   const px = productPadding(shape[0]);
   const py = shape.length > 1 ? productPadding(shape[1]) : 1;
-  return Math.ceil(m / 2) * px * py;
+  const pz = shape.length > 2 ? productPadding(shape[2]) : 1;
+  return Math.ceil(m / 2) * px * py * pz;
 }
 
 /**

@@ -54,7 +54,7 @@ import { InputError } from '../errors.ts';
 import { cellCount, type Grid } from '../grid/grid.ts';
 import { lanczosExtremes } from '../linalg/eigen.ts';
 import { circulantEmbedding, gridAxes, productPadding } from '../fft/embedding.ts';
-import { covarianceOperator, nonStationaryReason } from '../fft/covariance.ts';
+import { covarianceOperator, embeddingReason } from '../fft/covariance.ts';
 import { cholesky } from '../linalg/cholesky.ts';
 import { covarianceMatrix } from './covariance.ts';
 import { validatePrior } from './validate.ts';
@@ -196,7 +196,7 @@ export interface StructuredDiagnosticsOptions {
  */
 export function diagnoseStructured(grid: Grid, prior: PriorSpec, options: StructuredDiagnosticsOptions = {}): Diagnostics {
   validatePrior(prior, grid);
-  const why = nonStationaryReason(grid, prior);
+  const why = embeddingReason(grid, prior);
   if (why !== null) throw new InputError('prior', 'stationary on a regular 1-D or 2-D grid for the FFT diagnostics', why);
   const n = cellCount(grid);
   const bracket = spectrumBracket(grid, prior, {
@@ -350,7 +350,7 @@ export interface DiagnosticsPathDecision {
 
 /** FFT route for stationary priors on grids of ≥ {@link STRUCTURED_DIAGNOSTICS_MIN_CELLS} cells, else dense. */
 export function chooseDiagnosticsPath(grid: Grid, prior: PriorSpec): DiagnosticsPathDecision {
-  const why = nonStationaryReason(grid, prior);
+  const why = embeddingReason(grid, prior);
   const n = cellCount(grid);
   if (why !== null) return { path: 'dense', reason: `dense: ${why}` };
   if (n < STRUCTURED_DIAGNOSTICS_MIN_CELLS)

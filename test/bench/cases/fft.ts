@@ -254,7 +254,7 @@ function runChild(index: number): ChildResult {
   };
 }
 
-function csrJson(s: SparseMatrix) {
+export function csrJson(s: SparseMatrix) {
   return { rows: s.rows, cols: s.cols, rowPtr: Array.from(s.rowPtr), colIdx: Array.from(s.colIdx), values: Array.from(s.values) };
 }
 

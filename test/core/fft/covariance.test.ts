@@ -60,8 +60,9 @@ describe('padding and path', () => {
       expect(relErr(out.data.subarray(r * n, (r + 1) * n), op.apply(data.subarray(r * n, (r + 1) * n)))).toBeLessThan(1e-13);
   });
 
-  it('a 3-axis grid is not FFT-able and the reason says why', () => {
-    expect(nonStationaryReason({ shape: [2, 2, 2], spacing: [1, 1, 1] }, COVARIANCE_CASES[0].prior)).toMatch(/3 axes/);
+  it('a 4-axis grid is not FFT-able and the reason says why; 3 axes are', () => {
+    expect(nonStationaryReason({ shape: [2, 2, 2, 2], spacing: [1, 1, 1, 1] }, COVARIANCE_CASES[0].prior)).toMatch(/4 axes/);
+    expect(nonStationaryReason({ shape: [2, 2, 2], spacing: [1, 1, 1] }, COVARIANCE_CASES[0].prior)).toBeNull();
   });
 
   it('names the field for a vector of the wrong length', () => {

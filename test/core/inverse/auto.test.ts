@@ -31,14 +31,16 @@ describe('choosePosteriorPath', () => {
     expect(choosePosteriorPath(lineProblem(FFT_MIN_CELLS), prior, 'dense').path).toBe('dense');
     expect(choosePosteriorPath(lineProblem(4), prior, 'fft').path).toBe('fft');
   });
-  it('a 3-axis grid: auto falls back to dense with the reason, fft is a clear error naming the field', () => {
+  it('a small 3-axis grid: auto stays dense by size, fft may be asked for; a 4-axis grid is a clear error naming the field', () => {
     const p = lineProblem(8, [2, 2, 2]);
     const d = choosePosteriorPath(p, prior);
     expect(d.path).toBe('dense');
-    expect(d.reason).toContain('grid has 3 axes');
-    expect(() => choosePosteriorPath(p, prior, 'fft', '--path')).toThrow(InputError);
-    expect(() => choosePosteriorPath(p, prior, 'fft', '--path')).toThrow(
-      /^--path must be "dense" or "auto" for this problem .*grid has 3 axes.*, got "fft"$/,
+    expect(d.reason).toContain('below');
+    expect(choosePosteriorPath(p, prior, 'fft', '--path').path).toBe('fft');
+    const p4 = lineProblem(16, [2, 2, 2, 2]);
+    expect(() => choosePosteriorPath(p4, prior, 'fft', '--path')).toThrow(InputError);
+    expect(() => choosePosteriorPath(p4, prior, 'fft', '--path')).toThrow(
+      /^--path must be "dense" or "auto" for this problem .*grid has 4 axes.*, got "fft"$/,
     );
   });
 });

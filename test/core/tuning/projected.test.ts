@@ -106,11 +106,11 @@ describe('route rule and errors', () => {
     expect(tuningRoute(at(TUNING_DENSE_LIMIT), matern)).toBe('dense');
     expect(tuningRoute(at(TUNING_DENSE_LIMIT + 1), matern)).toBe('fft');
   });
-  it('a 3-axis grid stays dense, and forcing the FFT route there names the field', () => {
-    const p3: Problem = { ...dense1, grid: { shape: [45, 1, 2], spacing: [1, 1, 1] } };
-    expect(tuningRoute({ ...p3, grid: { shape: [1100, 1, 1], spacing: [1, 1, 1] } }, matern)).toBe('dense');
-    expect(() => projectedPriorCovariance(p3, matern, { route: 'fft' })).toThrow(InputError);
-    expect(() => projectedPriorCovariance(p3, matern, { route: 'fft' })).toThrow(/route/);
+  it('a large 3-axis grid takes the FFT route; forcing it on a 4-axis grid names the field', () => {
+    expect(tuningRoute({ ...dense1, grid: { shape: [1100, 1, 1], spacing: [1, 1, 1] } }, matern)).toBe('fft');
+    const p4: Problem = { ...dense1, grid: { shape: [45, 1, 2, 1], spacing: [1, 1, 1, 1] } };
+    expect(() => projectedPriorCovariance(p4, matern, { route: 'fft' })).toThrow(InputError);
+    expect(() => projectedPriorCovariance(p4, matern, { route: 'fft' })).toThrow(/route/);
   });
   it('a spectrum cache made for another problem is refused', () => {
     expect(() => projectedPriorCovariance(ray2, matern, { route: 'fft', structured: structuredProblem(dense1) })).toThrow(/structured/);

@@ -1,0 +1,126 @@
+/**
+ * Benchmarks of the FFT route on 3-D grids (issue targets; not timed tests):
+ *   - 20 × 20 × 20 (8,000 cells), M = 500 straight rays: posterior mean + std, against the dense scipy route on
+ *     the same problem (test/bench/cases/fft3.py, Cm from scipy.spatial.distance.cdist); target ratio ≤ 0.1;
+ *   - 32 × 32 × 32 (32,768 cells; a dense Cm would need 8.6 GB), M = 1,000 rays: mean + std in a child process,
+ *     targets ≤ 5 s and peak RSS ≤ 1 GB (the child's wall time and maxRSS, medians over the runs).
+ * The survey is invented: rays between opposite faces of the block (the face pair turning with the ray's number),
+ * end points from a seeded generator; path lengths by midpoint sampling at 1/20 of a cell (enough for a timing
+ * problem; the library's exact ray walk is 2-D), Matérn ν = 1.5, length n/8, σ = 0.5.
+ */
+import { execFileSync } from 'node:child_process';
+import { mkdirSync, writeFileSync } from 'node:fs';
+import { dirname, join } from 'node:path';
+import { fileURLToPath } from 'node:url';
+import type { Grid } from '../../../src/core/grid/grid.ts';
+import { prepareStructuredPosterior, structuredPosteriorStd, structuredProblem } from '../../../src/core/inverse/structured.ts';
+import { type SparseMatrix, sparseFromCoordinates } from '../../../src/core/linalg/sparse.ts';
+import type { PriorSpec } from '../../../src/core/prior/spec.ts';
+import type { Problem } from '../../../src/core/problems/spec.ts';
+import { Random } from '../../../src/core/sampling/random.ts';
+import type { BenchCase } from '../types.ts';
+import { csrJson } from './fft.ts';
+
+const here = dirname(fileURLToPath(import.meta.url));
+const results = join(here, '..', '..', '..', 'bench-results');
+
+/** Matérn ν = 1.5, variance 1, length n/8, constant mean 0. */
+export function benchPrior3(n: number): PriorSpec {
+  return { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, length: n / 8 }] };
+}
+
+/** The invented n × n × n survey of the module comment (1 m cells, M rays). */
+export function benchProblem3(n: number, m: number): Problem {
+  const grid: Grid = { shape: [n, n, n], spacing: [1, 1, 1] };
+  const rng = new Random(31_000 + n);
+  const lo = -0.5;
+  const hi = n - 0.5;
+  const ri: number[] = [];
+  const ci: number[] = [];
+  const v: number[] = [];
+  for (let k = 0; k < m; k++) {
+    const r = () => lo + (hi - lo) * rng.nextDouble();
+    const a = [lo, r(), r()];
+    const b = [hi, r(), r()];
+    const s = k % 3; // which face pair: x, then y, then z
+    const p = [a[(3 - s) % 3]!, a[(4 - s) % 3]!, a[(5 - s) % 3]!];
+    const q = [b[(3 - s) % 3]!, b[(4 - s) % 3]!, b[(5 - s) % 3]!];
+    const length = Math.hypot(q[0]! - p[0]!, q[1]! - p[1]!, q[2]! - p[2]!);
+    const steps = Math.ceil(length * 20);
+    const cell = (t: number, j: number) => Math.min(n - 1, Math.max(0, Math.round(p[j]! + t * (q[j]! - p[j]!))));
+    for (let st = 0; st < steps; st++) {
+      const t = (st + 0.5) / steps;
+      ri.push(k);
+      ci.push(cell(t, 0) + n * (cell(t, 1) + n * cell(t, 2)));
+      v.push(length / steps);
+    }
+  }
+  const operator = { kind: 'sparse' as const, matrix: sparseFromCoordinates(m, n * n * n, ri, ci, v) };
+  const values = Float64Array.from({ length: m }, () => rng.nextNormal());
+  return { grid, operator, data: { values, sigma: new Float64Array(m).fill(0.5) } };
+}
+
+function writeForScipy(n: number, problem: Problem): void {
+  mkdirSync(results, { recursive: true });
+  const p = {
+    grid: problem.grid,
+    length: n / 8,
+    g: csrJson(problem.operator.matrix as SparseMatrix),
+    d: Array.from(problem.data.values),
+    sigma: Array.from(problem.data.sigma!),
+  };
+  writeFileSync(join(results, `fft3-problem-${n}.json`), JSON.stringify(p));
+}
+
+/** Mean + std on the FFT route; returns milliseconds. */
+function meanAndStd(n: number, m: number): number {
+  const problem = benchProblem3(n, m);
+  const t0 = performance.now();
+  structuredPosteriorStd(prepareStructuredPosterior(structuredProblem(problem), benchPrior3(n)));
+  return performance.now() - t0;
+}
+
+const child: { wallMs: number[]; rssMb: number[] } = { wallMs: [], rssMb: [] };
+const median = (xs: number[]) => {
+  const s = [...xs].sort((a, b) => a - b);
+  const k = s.length >> 1;
+  return s.length % 2 ? s[k]! : (s[k - 1]! + s[k]!) / 2;
+};
+
+export const cases: BenchCase[] = [
+  {
+    name: '3-D fft posterior 20x20x20 M=500: mean + std (cold), against the dense scipy route (target ≤ 0.1)',
+    params: { N: 8000, M: 500, n: 20 },
+    scipyOp: 'dense_route_3d_mean_std',
+    setup: () => {
+      const problem = benchProblem3(20, 500);
+      writeForScipy(20, problem);
+      return () => structuredPosteriorStd(prepareStructuredPosterior(structuredProblem(problem), benchPrior3(20)));
+    },
+  },
+  {
+    name: '3-D fft posterior 32x32x32 M=1000: mean + std in a child process (targets ≤ 5 s, peak RSS ≤ 1 GB)',
+    params: { N: 32 ** 3, M: 1000 },
+    runs: 5,
+    warmup: 0,
+    setup: () => {
+      child.wallMs.length = 0;
+      child.rssMb.length = 0;
+      return () => {
+        const out = execFileSync(process.execPath, ['--import', 'tsx', fileURLToPath(import.meta.url), 'child', '32', '1000'], {
+          encoding: 'utf8',
+        });
+        const [ms, rss] = out.trim().split(' ').map(Number) as [number, number];
+        child.wallMs.push(ms);
+        child.rssMb.push(rss);
+      };
+    },
+    report: () => ({ child_compute_ms_median: median(child.wallMs), child_peak_rss_mb_median: median(child.rssMb) }),
+  },
+];
+
+// Child mode: build the problem, time mean + std, print "ms maxRSS-MB".
+if (process.argv[2] === 'child') {
+  const ms = meanAndStd(Number(process.argv[3]), Number(process.argv[4]));
+  process.stdout.write(`${ms.toFixed(0)} ${(process.resourceUsage().maxRSS / 1024).toFixed(0)}\n`);
+}
