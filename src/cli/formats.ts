@@ -16,7 +16,8 @@ PROBLEM FILE (JSON)  d = G m + e, e ~ N(0, Cd), m on a regular grid
 
   grid
     "shape": [nx] or [nx, ny]      number of cells along x (first axis) and y (second axis), in that order;
-                                   or [nx, ny, nz] (3-D; index ix + nx·(iy + ny·iz), dense route ≤ 16384 cells)
+                                   or [nx, ny, nz] (3-D; index ix + nx·(iy + ny·iz); posterior on the FFT route,
+                                   realisations and the dense route ≤ 16384 cells)
     "spacing": [dx] or [dx, dy]    cell size along each axis (> 0), in grid.unit
     "origin": [x0] or [x0, y0]     optional (default zeros): the CENTRE of the first cell, not its corner;
                                    cell (ix, iy) is centred at (x0 + ix·dx, y0 + iy·dy) and the grid covers
