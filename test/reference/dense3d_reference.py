@@ -81,6 +81,9 @@ def main():
             sl = list(m["trend"]["slope"]) + [0.0] * (3 - len(m["trend"]["slope"]))
             m0 = m["trend"]["intercept"] + p @ np.asarray(sl)
         res = {"Cm": cm.ravel().tolist(), "m0": m0.tolist()}
+        if case.get("eig"):
+            ev = np.linalg.eigvalsh(cm)
+            res["eig"] = [float(ev[0]), float(ev[-1])]
         if "G" in case:
             G = np.asarray(case["G"], dtype=float).reshape(len(case["d"]), len(p))
             d = np.asarray(case["d"], dtype=float)

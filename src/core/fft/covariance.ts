@@ -46,20 +46,9 @@ export interface CovarianceOperator {
  * `stationary`, ../kernels/table.ts) and the std profile and nugget are diagonal corrections, so only
  * grids other than 1-D, 2-D and 3-D regular ones are refused. This is the rule of everything built on
  * covariance products: the structured posterior (mean, std, resolution rows) and the projections of the
- * prior-selection criteria. Realisations and the positive-definiteness verdict by circulant embedding
- * follow {@link embeddingReason}.
+ * prior-selection criteria, realisations by circulant embedding and the positive-definiteness bracket.
  */
 export function nonStationaryReason(grid: Grid, prior: PriorSpec): string | null {
-  return productReason(grid, prior);
-}
-
-/**
- * As {@link nonStationaryReason} for what draws from or bounds the embedding's spectrum (prior realisations,
- * posterior draws on the FFT path, the certified eigenvalue bracket): 1-D and 2-D grids so far.
- */
-export function embeddingReason(grid: Grid, prior: PriorSpec): string | null {
-  if (grid.shape.length === 3)
-    return 'grid has 3 axes; on 3-D grids realisations and the eigenvalue bracket by circulant embedding are not built yet';
   return productReason(grid, prior);
 }
 

@@ -203,16 +203,62 @@ export function circulantBase3(grid: Grid, terms: readonly Term[], px: number, p
 }
 
 /**
- * λ = F c̃ (numpy.fft.fftn's convention) of a real even px × py × pz base: the real part of its complex
- * 3-D transform (the imaginary part is zero for an even base, up to round-off).
+ * λ = F c̃ (numpy.fft.fftn's convention) of a real even px × py × pz base, at half the work of a complex
+ * transform of that size: the real array is read as complex of half the length along x,
+ * z(m) = c̃(2m) + i c̃(2m + 1), transformed as (px/2) × py × pz, and split (the classical real-input FFT,
+ * e.g. Press et al., Numerical Recipes §12.3, memory; here per (ky, kz), with −k negated on every axis):
+ *   E(k) = (Z(k) + conj Z(−k))/2,  O(k) = (Z(k) − conj Z(−k))/(2i),  λ(kx) = Re[E(kx) + e^{−2πi kx/px} O(kx)]
+ * for kx < px/2, and λ(kx) = λ(−k) (λ is even) for the rest. px = 1 falls back to the complex transform.
+ * Checked against the full complex transform in test/core/fft/covariance3.test.ts.
  */
 export function evenRealSpectrum3(base: Float64Array, px: number, py: number, pz: number): Float64Array {
   const n = px * py * pz;
-  const z = new Float64Array(2 * n);
-  for (let i = 0; i < n; i++) z[2 * i] = base[i];
-  fft3InPlace(z, px, py, pz);
   const lam = new Float64Array(n);
-  for (let i = 0; i < n; i++) lam[i] = z[2 * i];
+  if (px < 2) {
+    const z = new Float64Array(2 * n);
+    for (let i = 0; i < n; i++) z[2 * i] = base[i];
+    fft3InPlace(z, px, py, pz);
+    for (let i = 0; i < n; i++) lam[i] = z[2 * i];
+    return lam;
+  }
+  const hx = px / 2;
+  // The base's memory order (x fastest, real) is exactly z's interleaved order at half the length in x.
+  const z = base.slice();
+  fft3InPlace(z, hx, py, pz);
+  for (let kz = 0; kz < pz; kz++) {
+    const mz = kz === 0 ? 0 : pz - kz;
+    for (let ky = 0; ky < py; ky++) {
+      const my = ky === 0 ? 0 : py - ky;
+      const row = hx * (ky + py * kz);
+      const mrow = hx * (my + py * mz);
+      for (let kx = 0; kx < hx; kx++) {
+        const mx = kx === 0 ? 0 : hx - kx;
+        const a = 2 * (row + kx);
+        const b = 2 * (mrow + mx);
+        const zr = z[a];
+        const zi = z[a + 1];
+        const wr = z[b];
+        const wi = -z[b + 1]; // conj Z(−k)
+        const er = 0.5 * (zr + wr);
+        const or = 0.5 * (zi - wi); // O = (Z − conj Z(−k))/(2i): real part
+        const oi = -0.5 * (zr - wr); // imaginary part
+        const t = (-2 * Math.PI * kx) / px;
+        lam[kx + px * (ky + py * kz)] = er + Math.cos(t) * or - Math.sin(t) * oi;
+      }
+    }
+  }
+  // λ even: λ(kx, ky, kz) = λ(−kx, −ky, −kz) fills kx = px/2 … px − 1 except kx = px/2 itself.
+  for (let kz = 0; kz < pz; kz++) {
+    const mz = kz === 0 ? 0 : pz - kz;
+    for (let ky = 0; ky < py; ky++) {
+      const my = ky === 0 ? 0 : py - ky;
+      for (let kx = hx + 1; kx < px; kx++) lam[kx + px * (ky + py * kz)] = lam[px - kx + px * (my + py * mz)];
+      // kx = px/2: E and O at kx ≡ 0 of the half grid with the twiddle e^{−iπ} = −1.
+      const a = 2 * (hx * (ky + py * kz));
+      const b = 2 * (hx * (my + py * mz));
+      lam[hx + px * (ky + py * kz)] = 0.5 * (z[a] + z[b]) - 0.5 * (z[a + 1] + z[b + 1]);
+    }
+  }
   return lam;
 }
 

@@ -33,6 +33,7 @@ import type { Term } from '../kernels/spec.ts';
 import { Random } from '../sampling/random.ts';
 import { circulantEmbedding, gridAxes, isAxisSymmetric, minimalPadding, type CirculantEmbedding } from './embedding.ts';
 import { Fft2 } from './fft2.ts';
+import { fft3InPlace } from './fft3.ts';
 
 export interface EmbeddingOptions {
   /** Relative tolerance: λ ≥ −tol·max λ counts as non-negative (default 1e-10). */
@@ -44,7 +45,7 @@ export interface EmbeddingOptions {
 export interface EmbeddingSearch {
   readonly embedding: CirculantEmbedding;
   /** Embedding sizes tried, in order (the last one is `embedding`). */
-  readonly tried: readonly (readonly [number, number])[];
+  readonly tried: readonly (readonly number[])[];
   /** True when min λ ≥ −tol·max λ at the final size. */
   readonly nonNegative: boolean;
   /** Σ_{λ<0} |λ| / Σ λ at the final size (0 when none are negative). */
@@ -66,21 +67,26 @@ export function nonNegativeEmbedding(grid: Grid, terms: readonly Term[], options
   const tol = options.tolerance ?? 1e-10;
   const maxCells = options.maxCells ?? 1 << 22;
   const { nx, ny } = gridAxes(grid);
+  const nz = grid.shape[2] ?? 1;
+  const three = grid.shape.length === 3;
   const sym = isAxisSymmetric(terms);
   let px = minimalPadding(nx, sym);
   let py = minimalPadding(ny, sym);
-  const tried: [number, number][] = [];
+  let pz = minimalPadding(nz, sym);
+  const tried: number[][] = [];
   for (;;) {
-    tried.push([px, py]);
-    const e = circulantEmbedding(grid, terms, px, py);
+    tried.push(three ? [px, py, pz] : [px, py]);
+    const e = circulantEmbedding(grid, terms, px, py, pz);
     const ok = e.minEigenvalue >= -tol * e.maxEigenvalue;
     const npx = nx > 1 ? 2 * px : px;
     const npy = ny > 1 ? 2 * py : py;
-    if (ok || npx * npy > maxCells || (npx === px && npy === py)) {
+    const npz = nz > 1 ? 2 * pz : pz;
+    if (ok || npx * npy * npz > maxCells || (npx === px && npy === py && npz === pz)) {
       return { embedding: e, tried, nonNegative: ok, clippedRelativeTrace: clippedTrace(e.eigenvalues) };
     }
     px = npx;
     py = npy;
+    pz = npz;
   }
 }
 
@@ -92,10 +98,10 @@ export interface SamplerOptions extends EmbeddingOptions {
 export interface CirculantSampler {
   /** 'fft': circulant embedding (exact when !clipped); 'dense': Cholesky of Cm. */
   readonly path: 'fft' | 'dense';
-  /** Embedding sizes per grid axis ([px] or [px, py]); the grid shape on the dense path. */
+  /** Embedding sizes per grid axis ([px], [px, py] or [px, py, pz]); the grid shape on the dense path. */
   readonly padding: readonly number[];
-  /** Embedding sizes tried while growing the padding. */
-  readonly tried: readonly (readonly [number, number])[];
+  /** Embedding sizes tried while growing the padding (per grid axis: two numbers below 3-D, three in 3-D). */
+  readonly tried: readonly (readonly number[])[];
   /** True when negative eigenvalues were set to 0 (an approximation; see clippedRelativeTrace). */
   readonly clipped: boolean;
   /** Σ_{λ<0} |λ| / Σ λ of the final embedding (0 on an exact embedding). */
@@ -143,6 +149,7 @@ export function circulantSampler(grid: Grid, prior: PriorSpec, options: SamplerO
     };
   }
   const e = search.embedding;
+  if (grid.shape.length === 3) return volumeSampler(e, search, m0, s, nugget);
   const { nx, ny, px, py } = e;
   const cells = px * py;
   // √(λ⁺ / P), negatives (round-off or clipped) set to 0.
@@ -192,6 +199,100 @@ export function circulantSampler(grid: Grid, prior: PriorSpec, options: SamplerO
       return out;
     },
   };
+}
+
+/**
+ * The FFT path on a 3-D grid: as in 2-D (module comment) with the px × py × pz embedding and the 3-D transform
+ * (./fft3.ts, forward, unnormalised); the leading nx × ny × nz block of Re y and Im y are two realisations.
+ */
+function volumeSampler(
+  e: CirculantEmbedding,
+  search: EmbeddingSearch,
+  m0: Float64Array,
+  s: readonly number[] | undefined,
+  nugget: number,
+): CirculantSampler {
+  const { nx, ny, nz, px, py, pz } = e;
+  const n = nx * ny * nz;
+  const cells = px * py * pz;
+  const root = new Float64Array(cells);
+  for (let k = 0; k < cells; k++) root[k] = Math.sqrt(Math.max(0, e.eigenvalues[k]) / cells);
+  const nuggetSd = Math.sqrt(nugget);
+  return {
+    path: 'fft',
+    padding: [px, py, pz],
+    tried: search.tried,
+    clipped: !search.nonNegative,
+    clippedRelativeTrace: search.clippedRelativeTrace,
+    draw(count, seed) {
+      checkCount(count);
+      const rng = new Random(seed);
+      const out = matrix(count, n);
+      const buf = new Float64Array(2 * cells);
+      const eps = nugget > 0 ? new Float64Array(n) : null;
+      for (let r = 0; r < count; r += 2) {
+        const single = r + 1 === count;
+        if (single) hermitianSpectrum3(rng, root, px, py, pz, buf);
+        else {
+          rng.fillNormal(buf);
+          for (let k = 0; k < cells; k++) {
+            const q = root[k];
+            buf[2 * k] *= q;
+            buf[2 * k + 1] *= q;
+          }
+        }
+        fft3InPlace(buf, px, py, pz);
+        for (let part = 0; part < (single ? 1 : 2); part++) {
+          const o = (r + part) * n;
+          for (let iz = 0; iz < nz; iz++) {
+            for (let iy = 0; iy < ny; iy++) {
+              const b = 2 * px * (iy + py * iz) + part;
+              const g = o + nx * (iy + ny * iz);
+              for (let ix = 0; ix < nx; ix++) out.data[g + ix] = buf[b + 2 * ix];
+            }
+          }
+          if (s !== undefined) for (let i = 0; i < n; i++) out.data[o + i] *= s[i];
+          if (eps !== null) {
+            rng.fillNormal(eps);
+            for (let i = 0; i < n; i++) out.data[o + i] += nuggetSd * eps[i];
+          }
+          for (let i = 0; i < n; i++) out.data[o + i] += m0[i];
+        }
+      }
+      return out;
+    },
+  };
+}
+
+/** {@link hermitianSpectrum} on a px × py × pz torus: k and −k (mod p on every axis) paired the same way. */
+function hermitianSpectrum3(rng: Random, root: Float64Array, px: number, py: number, pz: number, buf: Float64Array): void {
+  const h = Math.SQRT1_2;
+  const cells = px * py * pz;
+  const z = rng.fillNormal(new Float64Array(cells));
+  let q = 0;
+  for (let kz = 0; kz < pz; kz++) {
+    const mz = kz === 0 ? 0 : pz - kz;
+    for (let ky = 0; ky < py; ky++) {
+      const my = ky === 0 ? 0 : py - ky;
+      for (let kx = 0; kx < px; kx++) {
+        const mx = kx === 0 ? 0 : px - kx;
+        const k = kx + px * (ky + py * kz);
+        const mk = mx + px * (my + py * mz);
+        if (mk === k) {
+          buf[2 * k] = root[k] * z[q++];
+          buf[2 * k + 1] = 0;
+        } else if (k < mk) {
+          const r = root[k] * h;
+          const a = r * z[q++];
+          const b = r * z[q++];
+          buf[2 * k] = a;
+          buf[2 * k + 1] = b;
+          buf[2 * mk] = a;
+          buf[2 * mk + 1] = -b;
+        }
+      }
+    }
+  }
 }
 
 /**

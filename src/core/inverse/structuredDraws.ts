@@ -28,7 +28,6 @@ import { choleskySolve } from '../linalg/cholesky.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
 import { applyOperator } from '../linalg/operator.ts';
 import { circulantSampler } from '../fft/realisations.ts';
-import { embeddingReason } from '../fft/covariance.ts';
 import { Random, validateSeed } from '../sampling/random.ts';
 import type { StructuredPosteriorState } from './structured.ts';
 import { resolutionRow } from './posterior.ts';
@@ -59,8 +58,6 @@ export function structuredPosteriorDraws(state: StructuredPosteriorState, count:
   if (!Number.isInteger(count) || count < 0) throw new InputError('count', 'a non-negative integer', count);
   validateSeed(seed);
   const { problem, prior, Bt, L, Ld } = state;
-  const why = embeddingReason(problem.grid, prior);
-  if (why !== null) throw new InputError('draws', 'a problem whose prior the circulant sampler can draw from', why);
   const n = Bt.cols;
   const m = Bt.rows;
   const sampler = circulantSampler(problem.grid, prior);

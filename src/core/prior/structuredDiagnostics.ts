@@ -54,7 +54,7 @@ import { InputError } from '../errors.ts';
 import { cellCount, type Grid } from '../grid/grid.ts';
 import { lanczosExtremes } from '../linalg/eigen.ts';
 import { circulantEmbedding, gridAxes, productPadding } from '../fft/embedding.ts';
-import { covarianceOperator, embeddingReason } from '../fft/covariance.ts';
+import { covarianceOperator, nonStationaryReason } from '../fft/covariance.ts';
 import { cholesky } from '../linalg/cholesky.ts';
 import { covarianceMatrix } from './covariance.ts';
 import { validatePrior } from './validate.ts';
@@ -111,8 +111,8 @@ export interface SpectrumBracket {
   /** Bracket of the kernel part C alone (margin included), before profile and nugget. */
   readonly kernelLower: number;
   readonly kernelUpper: number;
-  /** Embedding sizes [px, py] tried, in order. */
-  readonly tried: readonly (readonly [number, number])[];
+  /** Embedding sizes tried, in order: [px, py], or [px, py, pz] on a 3-D grid. */
+  readonly tried: readonly (readonly number[])[];
   /** Round-off margin δ of the last size tried (on C). */
   readonly margin: number;
 }
@@ -147,20 +147,23 @@ export function spectrumBracket(grid: Grid, prior: PriorSpec, options: { maxCell
   const maxCells = options.maxCells ?? BRACKET_MAX_CELLS;
   const maxDoublings = options.maxDoublings ?? BRACKET_MAX_DOUBLINGS;
   const { nx, ny } = gridAxes(grid);
+  const nz = grid.shape[2] ?? 1;
+  const three = grid.shape.length === 3;
   let px = productPadding(nx);
   let py = productPadding(ny);
+  let pz = productPadding(nz);
   let cLo = -Infinity;
   let cHi = Infinity;
   let margin = 0;
-  const tried: [number, number][] = [];
+  const tried: number[][] = [];
   for (;;) {
-    tried.push([px, py]);
-    const e = circulantEmbedding(grid, prior.terms, px, py);
+    tried.push(three ? [px, py, pz] : [px, py]);
+    const e = circulantEmbedding(grid, prior.terms, px, py, pz);
     let norm2 = 0;
     for (const v of e.eigenvalues) norm2 += v * v;
     let abs1 = 0;
     for (const v of e.base) abs1 += Math.abs(v);
-    const p = px * py;
+    const p = px * py * pz;
     margin = 8 * Math.max(1, Math.log2(p)) * EPS * Math.sqrt(norm2) + 4 * EPS * abs1;
     cLo = Math.max(cLo, e.minEigenvalue - margin);
     cHi = Math.min(cHi, e.maxEigenvalue + margin);
@@ -168,11 +171,13 @@ export function spectrumBracket(grid: Grid, prior: PriorSpec, options: { maxCell
     const settled = lower > 0 && upper / lower <= NEAR_SINGULAR_CONDITION;
     const npx = nx > 1 ? 2 * px : px;
     const npy = ny > 1 ? 2 * py : py;
-    if (settled || tried.length > maxDoublings || npx * npy > maxCells || (npx === px && npy === py)) {
+    const npz = nz > 1 ? 2 * pz : pz;
+    if (settled || tried.length > maxDoublings || npx * npy * npz > maxCells || (npx === px && npy === py && npz === pz)) {
       return { lower, upper, kernelLower: cLo, kernelUpper: cHi, tried, margin };
     }
     px = npx;
     py = npy;
+    pz = npz;
   }
 }
 
@@ -190,14 +195,14 @@ export interface StructuredDiagnosticsOptions {
 }
 
 /**
- * Diagnostics of a stationary prior on a regular 1-D or 2-D grid through the FFT embedding
+ * Diagnostics of a stationary prior on a regular 1-D, 2-D or 3-D grid through the FFT embedding
  * (eigenvalueMethod 'fft-bounds'; see the module comment). Validates the prior (InputError) and
  * throws InputError when the prior is not stationary on the grid.
  */
 export function diagnoseStructured(grid: Grid, prior: PriorSpec, options: StructuredDiagnosticsOptions = {}): Diagnostics {
   validatePrior(prior, grid);
-  const why = embeddingReason(grid, prior);
-  if (why !== null) throw new InputError('prior', 'stationary on a regular 1-D or 2-D grid for the FFT diagnostics', why);
+  const why = nonStationaryReason(grid, prior);
+  if (why !== null) throw new InputError('prior', 'stationary on a regular 1-D, 2-D or 3-D grid for the FFT diagnostics', why);
   const n = cellCount(grid);
   const bracket = spectrumBracket(grid, prior, {
     ...(options.maxCells === undefined ? {} : { maxCells: options.maxCells }),
@@ -222,8 +227,7 @@ export function diagnoseStructured(grid: Grid, prior: PriorSpec, options: Struct
   let basis: string;
   let failedPivot: number | null = null;
   const denseLimit = options.denseLimit ?? DENSE_DECISION_LIMIT;
-  const embed = (t: readonly (readonly [number, number])[]) =>
-    t.map((p) => (grid.shape.length === 1 ? `${p[0]}` : `${p[0]} × ${p[1]}`)).join(', ');
+  const embed = (t: readonly (readonly number[])[]) => t.map((p) => p.slice(0, grid.shape.length).join(' × ')).join(', ');
   if (lower > 0) {
     verdict = 'positive-definite';
     decidedBy = 'fft-bracket';
@@ -350,7 +354,7 @@ export interface DiagnosticsPathDecision {
 
 /** FFT route for stationary priors on grids of ≥ {@link STRUCTURED_DIAGNOSTICS_MIN_CELLS} cells, else dense. */
 export function chooseDiagnosticsPath(grid: Grid, prior: PriorSpec): DiagnosticsPathDecision {
-  const why = embeddingReason(grid, prior);
+  const why = nonStationaryReason(grid, prior);
   const n = cellCount(grid);
   if (why !== null) return { path: 'dense', reason: `dense: ${why}` };
   if (n < STRUCTURED_DIAGNOSTICS_MIN_CELLS)

@@ -20,7 +20,7 @@ import { diagnoseCovariance } from '../prior/diagnostics.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import { Random, validateSeed } from './random.ts';
 import { cellCount } from '../grid/grid.ts';
-import { embeddingReason } from '../fft/covariance.ts';
+import { nonStationaryReason } from '../fft/covariance.ts';
 import { circulantSampler, type CirculantSampler } from '../fft/realisations.ts';
 
 /**
@@ -51,7 +51,7 @@ export function priorRealisationsWithRoute(
 ): { realisations: Matrix } & RealisationRoute {
   if (!Number.isInteger(count) || count < 0) throw new InputError('count', 'a non-negative integer', count);
   validateSeed(seed);
-  if (cellCount(grid) > DENSE_REALISATION_LIMIT && embeddingReason(grid, prior) === null) {
+  if (cellCount(grid) > DENSE_REALISATION_LIMIT && nonStationaryReason(grid, prior) === null) {
     const r = cachedSampler(grid, prior);
     return {
       realisations: r.draw(count, seed),

@@ -54,6 +54,25 @@ const STAT_CASES: { name: string; grid: Grid; prior: PriorSpec }[] = [
       terms: [{ kernel: 'exponential', variance: 1, length: 2 }],
     },
   },
+  {
+    name: '3-D matern 1.5 rotated (three angles), trend with a z slope, nugget',
+    grid: { shape: [5, 4, 3], spacing: [1, 0.8, 1.5] },
+    prior: {
+      mean: { trend: { intercept: 1, slope: [0.1, -0.2, 0.3] } },
+      nugget: 0.03,
+      terms: [{ kernel: 'matern', nu: 1.5, variance: 1.2, lengths: [3, 1.5, 2.2], angles: [30, -20, 40] }],
+    },
+  },
+  {
+    name: '3-D gaussian isotropic with a std profile',
+    grid: { shape: [4, 3, 5], spacing: [1, 1, 0.7] },
+    prior: {
+      mean: { constant: 0 },
+      nugget: 0.01,
+      stdProfile: Array.from(seededVector(60, 8), (v) => 1 + 0.3 * v),
+      terms: [{ kernel: 'gaussian', variance: 1, length: 1.6 }],
+    },
+  },
 ];
 
 /**
@@ -134,6 +153,40 @@ describe('sample covariance of circulant-embedding realisations matches Cm', () 
       }
     }
     expect(off).toBeGreaterThan(chi2Limits((n * (n - 1)) / 2, ALPHA)[1]);
+  });
+});
+
+describe('3-D realisations', () => {
+  it('drawn on a 3-D grid with the y and z spacings swapped, they are rejected by the same statistic (the test can fail)', () => {
+    const { grid, prior } = STAT_CASES[2]!;
+    const swapped: Grid = { shape: grid.shape, spacing: [grid.spacing[0]!, grid.spacing[2]!, grid.spacing[1]!] };
+    const w = whiten(circulantRealisations(swapped, prior, 4000, 99).realisations, grid, prior);
+    const n = w[0]!.length;
+    let off = 0;
+    for (let i = 0; i < n; i++) {
+      for (let j = i + 1; j < n; j++) {
+        let sij = 0;
+        for (const v of w) sij += v[i]! * v[j]!;
+        off += (sij * sij) / 4000;
+      }
+    }
+    expect(off).toBeGreaterThan(chi2Limits((n * (n - 1)) / 2, ALPHA)[1]);
+  });
+
+  it('padding grows on every axis holding cells until the embedding is non-negative (Gaussian, long length)', () => {
+    const grid: Grid = { shape: [8, 6, 5], spacing: [1, 1, 1] };
+    const search = nonNegativeEmbedding(grid, [{ kernel: 'gaussian', variance: 1, length: 3 }]);
+    expect(search.tried.length).toBeGreaterThan(1);
+    expect(search.tried[0]).toEqual([minimalPadding(8, true), minimalPadding(6, true), minimalPadding(5, true)]);
+    expect(search.tried[1]).toEqual(search.tried[0]!.map((p) => 2 * p));
+    expect(search.nonNegative).toBe(true);
+    const sampler = circulantSampler(grid, {
+      mean: { constant: 0 },
+      terms: [{ kernel: 'gaussian', variance: 1, length: 3 }],
+      nugget: 1e-6,
+    });
+    expect(sampler.path).toBe('fft');
+    expect(sampler.padding).toEqual(search.tried[search.tried.length - 1]);
   });
 });
 
