@@ -3,7 +3,9 @@
  *   - 20 × 20 × 20 (8,000 cells), M = 500 straight rays: posterior mean + std, against the dense scipy route on
  *     the same problem (test/bench/cases/fft3.py, Cm from scipy.spatial.distance.cdist); target ratio ≤ 0.1;
  *   - 32 × 32 × 32 (32,768 cells; a dense Cm would need 8.6 GB), M = 1,000 rays: mean + std in a child process,
- *     targets ≤ 5 s and peak RSS ≤ 1 GB (the child's wall time and maxRSS, medians over the runs).
+ *     targets ≤ 5 s and peak RSS ≤ 1 GB (the child's wall time and maxRSS, medians over the runs);
+ *   - one realisation on 64³ (≤ 0.4 s) and 128³ (≤ 3 s), with the embedding's set-up and (64³) without;
+ *   - the positive-definiteness verdict at 64³ (≤ 2 s).
  * The survey is invented: rays between opposite faces of the block (the face pair turning with the ray's number),
  * end points from a seeded generator; path lengths by midpoint sampling at 1/20 of a cell (enough for a timing
  * problem; the library's exact ray walk is 2-D), Matérn ν = 1.5, length n/8, σ = 0.5.
@@ -12,7 +14,9 @@ import { execFileSync } from 'node:child_process';
 import { mkdirSync, writeFileSync } from 'node:fs';
 import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
+import { circulantSampler } from '../../../src/core/fft/realisations.ts';
 import type { Grid } from '../../../src/core/grid/grid.ts';
+import { diagnoseStructured } from '../../../src/core/prior/structuredDiagnostics.ts';
 import { prepareStructuredPosterior, structuredPosteriorStd, structuredProblem } from '../../../src/core/inverse/structured.ts';
 import { type SparseMatrix, sparseFromCoordinates } from '../../../src/core/linalg/sparse.ts';
 import type { PriorSpec } from '../../../src/core/prior/spec.ts';
@@ -87,6 +91,14 @@ const median = (xs: number[]) => {
   return s.length % 2 ? s[k]! : (s[k - 1]! + s[k]!) / 2;
 };
 
+const volume = (n: number): Grid => ({ shape: [n, n, n], spacing: [1, 1, 1] });
+/** Matérn ν = 1.5, length n/8 (and for the verdict a nugget of 1 % of the variance, common practice, no source). */
+const volumePrior = (n: number, nugget = 0): PriorSpec => ({
+  mean: { constant: 0 },
+  ...(nugget > 0 ? { nugget } : {}),
+  terms: [{ kernel: 'matern', nu: 1.5, variance: 1, length: n / 8 }],
+});
+
 export const cases: BenchCase[] = [
   {
     name: '3-D fft posterior 20x20x20 M=500: mean + std (cold), against the dense scipy route (target ≤ 0.1)',
@@ -116,6 +128,32 @@ export const cases: BenchCase[] = [
       };
     },
     report: () => ({ child_compute_ms_median: median(child.wallMs), child_peak_rss_mb_median: median(child.rssMb) }),
+  },
+  ...[64, 128].map(
+    (n): BenchCase => ({
+      name: `3-D fft realisation ${n}x${n}x${n} Matérn 1.5: embedding + one draw (target ${n === 64 ? '≤ 0.4 s' : '≤ 3 s'})`,
+      params: { N: n ** 3 },
+      warmup: n === 128 ? 0 : 1,
+      run: () => circulantSampler(volume(n), volumePrior(n)).draw(1, 1),
+    }),
+  ),
+  {
+    name: '3-D fft realisation 64x64x64 Matérn 1.5: one draw (embedding reused)',
+    params: { N: 64 ** 3 },
+    setup: () => {
+      const sampler = circulantSampler(volume(64), volumePrior(64));
+      let seed = 1;
+      return () => sampler.draw(1, seed++);
+    },
+  },
+  {
+    name: '3-D positive-definiteness verdict 64x64x64 Matérn 1.5 + nugget 0.01 (FFT bracket and Lanczos; target ≤ 2 s)',
+    params: { N: 64 ** 3 },
+    run: () => {
+      const d = diagnoseStructured(volume(64), volumePrior(64, 0.01));
+      if (d.verdict !== 'positive-definite') throw new Error(`bench: verdict ${d.verdict}`);
+      return d;
+    },
   },
 ];
 
