@@ -392,7 +392,7 @@ describe('sample', () => {
     ],
     [
       ['--count', '2', '--seed', '1', '--format', 'xml'],
-      'priorscope sample: --format must be one of json, csv, npy, got "xml" (see priorscope sample --help)',
+      'priorscope sample: --format must be one of json, csv, npy, vti, got "xml" (see priorscope sample --help)',
     ],
     [['--count', '2'], 'priorscope sample: option --seed S is required (see priorscope sample --help)'],
   ])('bad options %j', async (args, line) => {

@@ -3,7 +3,8 @@
  * standard-deviation profile (`stdProfile`) set in the workbench instead of a prior file:
  *
  *   .csv / .txt   one column of N numbers (a header line such as `mean` is allowed), read as in ./csv.ts
- *   .npy          shape (N,), (N, 1), or on a 2-D grid (ny, nx) in C order (row iy holds cells ix = 0 … nx − 1)
+ *   .npy          shape (N,), (N, 1), on a 2-D grid (ny, nx) (row iy holds cells ix = 0 … nx − 1), on a 3-D grid
+ *                 (nz, ny, nx) (a[iz, iy, ix]); C or Fortran memory order (the header's fortran_order says which)
  *
  * N is the grid's cell count; cells in the grid's flat order (x fastest, index ix + nx·iy), as
  * every per-cell array of the problem and prior files. Values obey the scale rule of
@@ -22,7 +23,7 @@ export type CellValuesKind = 'mean' | 'std';
 /** Read N per-cell values; `kind` 'std' requires every value > 0. */
 export function parseCellValues(file: string, bytes: Uint8Array, grid: Grid, kind: CellValuesKind): Float64Array {
   const n = cellCount(grid);
-  const [nx, ny] = grid.shape;
+  const [nx, ny, nz] = grid.shape;
   const lower = file.toLowerCase();
   let values: Float64Array;
   let where: (k: number) => string;
@@ -32,9 +33,11 @@ export function parseCellValues(file: string, bytes: Uint8Array, grid: Grid, kin
     const ok =
       (s.length === 1 && s[0] === n) ||
       (s.length === 2 && s[0] === n && s[1] === 1) ||
-      (s.length === 2 && ny !== undefined && s[0] === ny && s[1] === nx);
+      (s.length === 2 && ny !== undefined && nz === undefined && s[0] === ny && s[1] === nx) ||
+      (s.length === 3 && nz !== undefined && s[0] === nz && s[1] === ny && s[2] === nx);
     if (!ok) {
-      const grid2 = ny !== undefined ? ` or (${ny}, ${nx}) (rows along y)` : '';
+      const grid2 =
+        nz !== undefined ? ` or (${nz}, ${ny}, ${nx}) (a[iz, iy, ix])` : ny !== undefined ? ` or (${ny}, ${nx}) (rows along y)` : '';
       throw new FileFormatError(
         file,
         `must hold shape (${n},)${grid2}: one value per grid cell, got shape (${s.join(', ')}${s.length === 1 ? ',' : ''})`,

@@ -195,8 +195,8 @@ export function parseNpy(file: string, bytes: Uint8Array, options: NpyReadOption
     throw new FileFormatError(file, `header fortran_order must be True or False, got ${formatValue(fortran)}`, { field: 'fortran_order' });
   if (!Array.isArray(shapeValue)) throw new FileFormatError(file, 'header shape must be a tuple of integers', { field: 'shape' });
   const shape = shapeValue;
-  if (shape.length > 2) {
-    throw new FileFormatError(file, `array must have 0, 1 or 2 dimensions, got shape (${shape.join(', ')})`, { field: 'shape' });
+  if (shape.length > 3) {
+    throw new FileFormatError(file, `array must have 0, 1, 2 or 3 dimensions, got shape (${shape.join(', ')})`, { field: 'shape' });
   }
   const count = shape.reduce((a, b) => a * b, 1);
   const expectedBytes = count * itemSize;
@@ -218,12 +218,25 @@ export function parseNpy(file: string, bytes: Uint8Array, options: NpyReadOption
     const [r, c] = shape as [number, number];
     data = new Float64Array(count);
     for (let j = 0; j < c; j++) for (let i = 0; i < r; i++) data[i * c + j] = raw[j * r + i];
+  } else if (fortran && shape.length === 3) {
+    // Element (i0, i1, i2) sits at i0 + s0·(i1 + s1·i2) in Fortran order, at (i0·s1 + i1)·s2 + i2 in C order.
+    const [s0, s1, s2] = shape as [number, number, number];
+    data = new Float64Array(count);
+    for (let i2 = 0; i2 < s2; i2++)
+      for (let i1 = 0; i1 < s1; i1++) for (let i0 = 0; i0 < s0; i0++) data[(i0 * s1 + i1) * s2 + i2] = raw[i0 + s0 * (i1 + s1 * i2)];
   }
   if (options.finite ?? true) {
     const cols = shape.length === 2 ? shape[1] : 0;
     for (let k = 0; k < count; k++) {
       if (!Number.isFinite(data[k])) {
-        const at = shape.length === 2 ? `[${Math.floor(k / cols)}, ${k % cols}]` : shape.length === 1 ? `[${k}]` : '';
+        const at =
+          shape.length === 3
+            ? `[${Math.floor(k / (shape[1]! * shape[2]!))}, ${Math.floor(k / shape[2]!) % shape[1]!}, ${k % shape[2]!}]`
+            : shape.length === 2
+              ? `[${Math.floor(k / cols)}, ${k % cols}]`
+              : shape.length === 1
+                ? `[${k}]`
+                : '';
         throw new FileFormatError(file, `element${at ? ' ' + at : ''} must be finite, got ${formatValue(data[k])}`, { field: at });
       }
     }

@@ -3,6 +3,7 @@ import { parseCellValues } from '../../../src/core/io/cellValues.ts';
 import { writeNpy } from '../../../src/core/io/npy.ts';
 import { withCellValues } from '../../../src/app/prior/PerCellFields.tsx';
 import { expectFileError } from './expectError.ts';
+import { runPython } from '../../reference/python.ts';
 
 const enc = (s: string) => new TextEncoder().encode(s);
 const grid2 = { shape: [3, 2], spacing: [1, 1] };
@@ -44,5 +45,25 @@ describe('per-cell values for the mean and the std profile', () => {
     const p = withCellValues(prior, 'std', Float64Array.from([0.5, 2]));
     expect(p.stdProfile).toEqual([0.5, 2]);
     expect(withCellValues(p, 'std', null)).toEqual(prior);
+  });
+});
+
+describe('3-D per-cell values from .npy in either memory order', () => {
+  it('numpy-written (nz, ny, nx) arrays in C and Fortran order both read as x fastest; a wrong shape names both accepted shapes', () => {
+    const [nx, ny, nz] = [4, 3, 2];
+    const grid = { shape: [nx, ny, nz], spacing: [1, 1, 1] };
+    const files = runPython<{ c: string; f: string }>('npy3d_reference.py', { shape: [nx, ny, nz] });
+    for (const order of ['c', 'f'] as const) {
+      const v = parseCellValues(`m-${order}.npy`, new Uint8Array(Buffer.from(files[order], 'base64')), grid, 'mean');
+      for (let i = 0; i < nx * ny * nz; i++) {
+        const ix = i % nx;
+        const iy = Math.floor(i / nx) % ny;
+        const iz = Math.floor(i / (nx * ny));
+        expect(v[i]).toBe(ix + 10 * iy + 100 * iz + 0.25);
+      }
+    }
+    expect(() => parseCellValues('m.npy', writeNpy([nx, ny, nz], new Float64Array(24)), grid, 'mean')).toThrow(
+      /must hold shape \(24,\) or \(2, 3, 4\) \(a\[iz, iy, ix\]\)/,
+    );
   });
 });

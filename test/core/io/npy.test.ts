@@ -66,8 +66,8 @@ describe('parseNpy', () => {
       "a.npy: header descr must be a float64 or float32 type ('<f8', '>f8', '<f4', '>f4'), got a structured type",
     ],
     [
-      build(1, "{'descr': '<f8', 'fortran_order': False, 'shape': (1, 1, 1), }", [0], 'f8', true),
-      'a.npy: array must have 0, 1 or 2 dimensions, got shape (1, 1, 1)',
+      build(1, "{'descr': '<f8', 'fortran_order': False, 'shape': (1, 1, 1, 1), }", [0], 'f8', true),
+      'a.npy: array must have 0, 1, 2 or 3 dimensions, got shape (1, 1, 1, 1)',
     ],
     [
       build(1, "{'descr': '<f8', 'fortran_order': False, 'shape': (3,), }", [1, 2], 'f8', true),
