@@ -16,6 +16,7 @@ import { assertNever, InputError } from '../errors.ts';
 import { cellCount, gridDimension, type Grid } from '../grid/grid.ts';
 import { matrix, matvec, type Matrix } from '../linalg/matrix.ts';
 import { covarianceMatrix } from '../prior/covariance.ts';
+import type { OffsetFunction } from '../prior/lag.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import { kernelDefinition } from '../kernels/table.ts';
 import { circulantEmbedding, gridAxes, productPadding, stationaryCovariance } from './embedding.ts';
@@ -96,7 +97,11 @@ export class CirculantProduct {
   /** λ/(px·py) in the eigenvalues' layout (x fastest): the inverse transform's scale, folded in. */
   private readonly lambdaN: Float64Array;
 
-  constructor(grid: Grid, prior: PriorSpec, padding?: readonly number[], engine: FftEngine = fftEngine()) {
+  /**
+   * `kernel`, when given, replaces the prior's kernel part by another even function of the offset (a term's
+   * derivative in ../tuning/termDerivative.ts) for the eigenvalues and the variance.
+   */
+  constructor(grid: Grid, prior: PriorSpec, padding?: readonly number[], engine: FftEngine = fftEngine(), kernel?: OffsetFunction) {
     const { nx, ny } = gridAxes(grid);
     const nz = grid.shape[2] ?? 1;
     this.nx = nx;
@@ -109,8 +114,8 @@ export class CirculantProduct {
       throw new RangeError(`CirculantProduct: padding ${this.px} × ${this.py} × ${this.pz} is below 2n − 1 for ${nx} × ${ny} × ${nz}`);
     }
     const { px, py, pz } = this;
-    this.eigenvalues = circulantEmbedding(grid, prior.terms, px, py, pz).eigenvalues;
-    this.variance = stationaryCovariance(prior.terms)(0, 0);
+    this.eigenvalues = circulantEmbedding(grid, kernel ?? prior.terms, px, py, pz).eigenvalues;
+    this.variance = kernel === undefined ? stationaryCovariance(prior.terms)(0, 0) : kernel(0, 0, 0);
     this.engine = engine;
     const scale = 1 / (px * py * pz);
     this.lambdaN = this.eigenvalues.map((v) => v * scale);

@@ -22,7 +22,7 @@
 import { correlationFunction } from '../kernels/correlation.ts';
 import type { Term } from '../kernels/spec.ts';
 import type { Grid } from '../grid/grid.ts';
-import { scaledDistance } from '../prior/lag.ts';
+import { type OffsetFunction, scaledDistance } from '../prior/lag.ts';
 import { fft3InPlace } from './fft3.ts';
 import { fftBatch, nextPowerOfTwo } from './transform.ts';
 
@@ -144,9 +144,9 @@ function lagOffsets(j: number, p: number): number[] {
  * (jy ≤ py/2) and mirrored, c̃(−j) = c̃(j) (indices mod p), which holds exactly because the
  * kernel is even and the Nyquist lags are averaged.
  */
-export function circulantBase(grid: Grid, terms: readonly Term[], px: number, py: number): Float64Array {
+export function circulantBase(grid: Grid, terms: readonly Term[] | OffsetFunction, px: number, py: number): Float64Array {
   const { dx, dy } = gridAxes(grid);
-  const cov = stationaryCovariance(terms);
+  const cov = typeof terms === 'function' ? (ox: number, oy: number) => terms(ox, oy, 0) : stationaryCovariance(terms);
   const base = new Float64Array(px * py);
   const xs = Array.from({ length: px }, (_, j) => lagOffsets(j, px));
   const half = Math.floor(py / 2);
@@ -173,9 +173,9 @@ export function circulantBase(grid: Grid, terms: readonly Term[], px: number, py
  * axis (lags δ(j, p), averaged over ±p/2 at each Nyquist index). Evaluated for jz ≤ pz/2 and mirrored,
  * c̃(−j) = c̃(j) (indices mod p).
  */
-export function circulantBase3(grid: Grid, terms: readonly Term[], px: number, py: number, pz: number): Float64Array {
+export function circulantBase3(grid: Grid, terms: readonly Term[] | OffsetFunction, px: number, py: number, pz: number): Float64Array {
   const [dx, dy, dz] = grid.spacing;
-  const cov = stationaryCovariance3(terms);
+  const cov = typeof terms === 'function' ? terms : stationaryCovariance3(terms);
   const base = new Float64Array(px * py * pz);
   const xs = Array.from({ length: px }, (_, j) => lagOffsets(j, px));
   const ys = Array.from({ length: py }, (_, j) => lagOffsets(j, py));
@@ -266,7 +266,13 @@ export function evenRealSpectrum3(base: Float64Array, px: number, py: number, pz
  * Base and eigenvalues of the px × py embedding of the kernel part of the prior (px × py × pz on a
  * 3-D grid).
  */
-export function circulantEmbedding(grid: Grid, terms: readonly Term[], px: number, py: number, pz = 1): CirculantEmbedding {
+export function circulantEmbedding(
+  grid: Grid,
+  terms: readonly Term[] | OffsetFunction,
+  px: number,
+  py: number,
+  pz = 1,
+): CirculantEmbedding {
   const { nx, ny } = gridAxes(grid);
   const three = grid.shape.length === 3;
   const nz = three ? grid.shape[2] : 1;

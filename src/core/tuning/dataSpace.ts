@@ -158,13 +158,13 @@ function projectionRoute(problem: Problem, prior: PriorSpec, asked: 'auto' | Tun
 /**
  * G S D S Gᵀ for D the table of an even function of the offset (../prior/lag.ts offsetTable), S the prior's
  * standard-deviation profile, no nugget: the derivative of P along one term's length or angle
- * (./termDerivative.ts), by the side's route — the dense assembly or the lag-table projection. Null where
- * the side runs the FFT route (the caller differentiates numerically there).
+ * (./termDerivative.ts), by the side's route: the dense assembly, the lag-table projection, or circulant
+ * products with the function's own embedding (./projected.ts structuredProjection with `kernel`).
  */
-export function sideOffsetProjection(side: DataSide, prior: PriorSpec, f: OffsetFunction): Matrix | null {
+export function sideOffsetProjection(side: DataSide, prior: PriorSpec, f: OffsetFunction): Matrix {
   const { problem } = side;
   const route = projectionRoute(problem, prior, side.route);
-  if (route === 'fft') return null;
+  if (route === 'fft') return structuredProjection(side.structured, prior, f);
   const table = offsetTable(problem.grid, f);
   if (route === 'lag') return projectLagTable(problem.operator, problem.grid, table, prior.stdProfile);
   const { nugget: _none, ...kernelPart } = prior;

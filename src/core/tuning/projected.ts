@@ -32,7 +32,7 @@ import { cellCount } from '../grid/grid.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
 import { symmetrise } from '../linalg/products.ts';
 import { operatorTimesTransposed } from '../linalg/operator.ts';
-import { nonStationaryReason } from '../fft/covariance.ts';
+import { CirculantProduct, nonStationaryReason } from '../fft/covariance.ts';
 import {
   computeBtPairs,
   finishBtRows,
@@ -41,6 +41,7 @@ import {
   structuredSetup,
   type StructuredProblem,
 } from '../inverse/structured.ts';
+import type { OffsetFunction } from '../prior/lag.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
 
@@ -65,12 +66,16 @@ export function tuningRoute(problem: Problem, prior: PriorSpec): TuningRoute {
  * the sparse G·Bᵀ (M²N for a dense G); memory BT_BLOCK_ROWS·N + M² doubles (+ the spectrum cache
  * within holder.cacheBytes).
  */
-export function structuredProjection(holder: StructuredProblem, prior: PriorSpec): Matrix {
+export function structuredProjection(holder: StructuredProblem, prior: PriorSpec, kernel?: OffsetFunction): Matrix {
   const setup = structuredSetup(holder, prior);
-  const { n, m, cp, order, problem } = setup;
+  const { n, m, order, problem } = setup;
+  // With `kernel`: G S D S Gᵀ for that even function of the offset (a term's derivative), no nugget; the row
+  // spectra depend on G and S only, so the cached ones serve (same padding).
+  const cp =
+    kernel === undefined ? setup.cp : new CirculantProduct(problem.grid, prior, [setup.cp.px, setup.cp.py, setup.cp.pz], undefined, kernel);
   const g = problem.operator;
   const s = prior.stdProfile;
-  const nugget = prior.nugget ?? 0;
+  const nugget = kernel === undefined ? (prior.nugget ?? 0) : 0;
   const cached = matchingSpectra(holder, cp, s);
   const pairs = Math.ceil(m / 2);
   const fits = pairs * cp.columnSpectrumLength * 8 <= holder.cacheBytes;

@@ -14,9 +14,8 @@
  * α = K⁻¹ r, with ∂K/∂θ_j = G (∂Cm/∂θ_j) Gᵀ. Exact for log variances (∂Cm/∂log σ_t² = σ_t² S R_t S,
  * the term itself) and the log nugget (η I). Lengths and the angle are analytic too: ∂Cm/∂θ = S (σ² ρ'(h) ∂h/∂θ) S
  * tabulated over the grid's offsets (./termDerivative.ts, ρ' from the kernel table) and projected by the dense
- * route or the lag table (./dataSpace.ts sideOffsetProjection). On the FFT route (path data with many
- * non-zeros on large grids), and for ν everywhere, we use central differences of the term's projected
- * covariance with step h = 1e-5 (truncation O(h²) ≈ 1e-10 relative, round-off ≈ ε/h ≈ 1e-11), not of the
+ * route, the lag table or circulant products of the derivative's own embedding (./dataSpace.ts
+ * sideOffsetProjection). For ν we use central differences of the term's projected covariance with step h = 1e-5 (truncation O(h²) ≈ 1e-10 relative, round-off ≈ ε/h ≈ 1e-11), not of the
  * evidence: the kernel is cheap and smooth in these parameters. Split: αᵀ D α / 2 − tr(K⁻¹ D)/2,
  * tr(K⁻¹ D) = Σ W ∘ D with W = K⁻¹ = L⁻ᵀ L⁻¹ formed once per evaluation through the Cholesky factor
  * (Rasmussen & Williams 2006, Algorithm 5.1; used only for these traces, never to solve).
@@ -290,10 +289,10 @@ export function evidenceGradient(
     } else if (h.field === 'variance') {
       dk = termP[h.term!] ?? projectedTerm(side, prior, h.term!);
     } else {
-      // Lengths and angle: the analytic derivative table through the dense or lag-table route (./termDerivative.ts);
-      // ν, and every coordinate on the FFT route, by central differences of the term's projection.
-      const analytic = h.field === 'nu' ? null : sideOffsetProjection(side, prior, termDerivative(prior.terms[h.term!], h.field));
-      dk = analytic ?? centralDifference(j, h.term!);
+      // Lengths and angle: the analytic derivative through the side's route (./termDerivative.ts); ν by central
+      // differences of the term's projection.
+      dk =
+        h.field === 'nu' ? centralDifference(j, h.term!) : sideOffsetProjection(side, prior, termDerivative(prior.terms[h.term!], h.field));
     }
     // ½ αᵀ D α
     let quad = 0;
