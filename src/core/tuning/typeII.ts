@@ -63,7 +63,7 @@ import { validatePrior } from '../prior/covariance.ts';
 import { NEAR_SINGULAR_CONDITION, type PdVerdict } from '../prior/diagnostics.ts';
 import { lagTable } from '../prior/lag.ts';
 import { termDerivative } from './termDerivative.ts';
-import { diagnosePriorAuto } from '../prior/structuredDiagnostics.ts';
+import { chooseDiagnosticsPath, diagnosePriorAuto, spectrumBracket } from '../prior/structuredDiagnostics.ts';
 import type { Grid } from '../grid/grid.ts';
 import {
   aborted,
@@ -669,6 +669,23 @@ const THRESHOLD_TEXT = NEAR_SINGULAR_CONDITION.toExponential(0).replace('+', '')
 
 /** The workbench's diagnosis of the optimum (dense eigenvalues or certified FFT bounds). */
 function checkConditioning(grid: Grid, prior: PriorSpec, nuggetAtFloor: boolean, nuggetFloor: number | null): OptimumConditioning {
+  // The verdict's first step on the FFT path is the certified bracket (../prior/structuredDiagnostics.ts); when it
+  // proves positive definiteness, that is the whole answer here (verdict and κ bound as diagnosePriorAuto would
+  // give them), without the Lanczos estimates that only the full diagnosis reports.
+  if (chooseDiagnosticsPath(grid, prior).path === 'fft') {
+    const b = spectrumBracket(grid, prior);
+    if (b.lower > 0) {
+      const kappa = b.upper / b.lower;
+      return {
+        verdict: 'positive-definite',
+        positiveDefinite: true,
+        conditionNumber: kappa,
+        usable: kappa <= NEAR_SINGULAR_CONDITION,
+        nuggetAtFloor,
+        nuggetFloor,
+      };
+    }
+  }
   const d = diagnosePriorAuto(grid, prior);
   // κ: the certified bound when the FFT bracket proved the verdict, else the dense or Lanczos value.
   const kappa = d.decidedBy === 'fft-bracket' && d.conditionUpperBound !== undefined ? d.conditionUpperBound : d.conditionNumber;

@@ -13,6 +13,11 @@ import { covarianceMatrix } from '../../../src/core/prior/covariance.ts';
 import { diagnosePrior, NEAR_SINGULAR_CONDITION } from '../../../src/core/prior/diagnostics.ts';
 import type { PriorSpec } from '../../../src/core/prior/spec.ts';
 import { demoById } from '../../../src/core/problems/demos.ts';
+import type { Problem } from '../../../src/core/problems/spec.ts';
+import type { Grid } from '../../../src/core/grid/grid.ts';
+import { Random } from '../../../src/core/sampling/random.ts';
+import { diagnosePriorAuto } from '../../../src/core/prior/structuredDiagnostics.ts';
+import { pointOperator } from './helpers.ts';
 import { conditioningNuggetFloor, kernelEigenvalueBound, maximiseEvidence } from '../../../src/core/tuning/typeII.ts';
 
 const { problem, truthPrior, startPrior } = demoById('borehole-log').build();
@@ -93,5 +98,25 @@ describe('the nugget floor B/(1e10 − 1)', () => {
     const d = diagnosePrior(grid, { ...prior, nugget: floor });
     expect(d.positiveDefinite).toBe(true);
     expect(d.conditionNumber).toBeLessThanOrEqual(NEAR_SINGULAR_CONDITION);
+  });
+});
+
+describe('the conditioning check of an FFT-route optimum', () => {
+  it('settled by the certified bracket alone, it equals the full diagnosis (verdict, decided by the bracket, κ bound)', () => {
+    const rng = new Random(3);
+    const grid: Grid = { shape: [40, 30], spacing: [1, 1] };
+    const idx = Array.from({ length: 50 }, () => Math.floor(rng.nextDouble() * 1200));
+    const problem: Problem = {
+      grid,
+      operator: pointOperator(idx, 1200),
+      data: { values: Float64Array.from(idx, (_, i) => Math.cos(i / 4) + 0.2 * rng.nextNormal()), sigma: new Float64Array(50).fill(0.3) },
+    };
+    const start: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, length: 4 }], nugget: 0.01 };
+    const fit = maximiseEvidence(problem, start);
+    const full = diagnosePriorAuto(grid, fit.prior);
+    expect(full.decidedBy).toBe('fft-bracket');
+    expect(fit.conditioning.verdict).toBe(full.verdict);
+    expect(fit.conditioning.conditionNumber).toBe(full.conditionUpperBound);
+    expect(fit.conditioning.usable).toBe(true);
   });
 });
