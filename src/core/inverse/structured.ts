@@ -89,8 +89,8 @@ export interface StructuredPosteriorState {
   readonly mean: Float64Array;
   /** diag(Cm). */
   readonly priorVariance: Float64Array;
-  /** Embedding sizes [px, py] used for the products. */
-  readonly padding: readonly [number, number];
+  /** Embedding sizes per grid axis used for the products ([px], [px, py] or [px, py, pz]). */
+  readonly padding: readonly number[];
   /** Whether the row spectra came from the cache. */
   readonly spectraCached: boolean;
   /** Milliseconds per stage (for benchmarks and the UI). */
@@ -326,7 +326,19 @@ export function completeStructuredPosterior(
   const priorVariance = new Float64Array(n);
   for (let i = 0; i < n; i++) priorVariance[i] = (s === undefined ? 1 : s[i] * s[i]) * cp.variance + nugget;
   const factorTime = now() - t0;
-  const base = { problem, prior, m0, Bt, L, r, alpha, mean, priorVariance, padding: [cp.px, cp.py] as const, spectraCached };
+  const base = {
+    problem,
+    prior,
+    m0,
+    Bt,
+    L,
+    r,
+    alpha,
+    mean,
+    priorVariance,
+    padding: [cp.px, cp.py, cp.pz].slice(0, grid.shape.length),
+    spectraCached,
+  };
   const timings = { spectra: times.spectra, products: times.products, factor: factorTime };
   return Ld === undefined ? { ...base, timings } : { ...base, Ld, timings };
 }

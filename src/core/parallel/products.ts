@@ -50,6 +50,7 @@ interface ThreadCache {
   readonly token: number;
   readonly px: number;
   readonly py: number;
+  readonly pz: number;
   readonly profile: Float64Array | null;
   readonly rows: Int32Array;
   readonly spectra: Float64Array[];
@@ -98,7 +99,13 @@ function productsInto(
   const s = task.prior.stdProfile;
   const c = state.cache;
   const hit =
-    c !== null && c.token === task.token && c.px === cp.px && c.py === cp.py && sameValues(c.profile, s) && sameValues(c.rows, task.rows);
+    c !== null &&
+    c.token === task.token &&
+    c.px === cp.px &&
+    c.py === cp.py &&
+    c.pz === cp.pz &&
+    sameValues(c.profile, s) &&
+    sameValues(c.rows, task.rows);
   if (!hit) state.cache = null;
   const pairs = Math.ceil(task.rows.length / 2);
   const fits = pairs * cp.columnSpectrumLength * 8 <= task.cacheBytes;
@@ -109,6 +116,7 @@ function productsInto(
       token: task.token,
       px: cp.px,
       py: cp.py,
+      pz: cp.pz,
       profile: s === undefined ? null : Float64Array.from(s),
       rows: task.rows.slice(),
       spectra: save,
@@ -152,8 +160,8 @@ export function sharedMemoryAvailable(): boolean {
 }
 
 /**
- * Work of the products in points transformed: ⌈M/2⌉ pairs × px × py (the embedding size; each
- * pair costs a few 2-D passes over it).
+ * Work of the products in points transformed: ⌈M/2⌉ pairs × px × py × pz (the embedding size; each
+ * pair costs a few passes over it; pz = 1 below 3-D).
  */
 export function productWork(m: number, shape: readonly number[]): number {
   const px = productPadding(shape[0]);

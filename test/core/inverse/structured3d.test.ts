@@ -4,8 +4,10 @@
  * anisotropy, sums, nugget and std profile (the cases of test/core/fft/cases.ts). The dense 3-D route is itself
  * checked against scipy (test/reference/dense3d.test.ts), so the chain reaches an outside reference.
  */
-import { describe, expect, it } from 'vitest';
+import { afterAll, describe, expect, it } from 'vitest';
 import { choosePosteriorPath, FFT_MIN_CELLS } from '../../../src/core/inverse/auto.ts';
+import { computePosterior } from '../../../src/core/inverse/compute.ts';
+import { nodeBlockPool } from '../../../src/core/parallel/node.ts';
 import { posteriorSummary, preparePosterior } from '../../../src/core/inverse/posterior.ts';
 import { structuredPosteriorDraws, structuredResolutionRow } from '../../../src/core/inverse/structuredDraws.ts';
 import { resolutionRow } from '../../../src/core/inverse/posterior.ts';
@@ -102,5 +104,66 @@ describe('structured posterior on 3-D grids equals the dense 3-D posterior', () 
     }
     // 240 cells: max |z| over 240 nearly independent normals exceeds 5 with probability ≈ 1.4e-4.
     expect(worst).toBeLessThan(5);
+  });
+});
+
+describe('the 3-D checks can fail: a wrong axis order is caught', () => {
+  it('the FFT posterior on the grid with y and z swapped (shape and spacing) is far from the dense posterior on the true grid', () => {
+    const c = COVARIANCE_CASES_3D[4]!; // 8 × 6 × 5, spacing 1, 0.7, 1.3, rotated anisotropy
+    const problem = problemFor(c.grid, 19, 7);
+    const [nx, ny, nz] = c.grid.shape as [number, number, number];
+    const [dx, dy, dz] = c.grid.spacing as [number, number, number];
+    const swapped: Problem = { ...problem, grid: { shape: [nx, nz, ny], spacing: [dx, dz, dy] } };
+    const dense = posteriorSummary(preparePosterior(problem, c.prior));
+    const right = structuredPosteriorSummary(prepareStructuredPosterior(problem, c.prior));
+    const wrong = structuredPosteriorSummary(prepareStructuredPosterior(swapped, c.prior));
+    expect(relErr(right.mean, dense.mean)).toBeLessThan(1e-10);
+    expect(relErr(wrong.mean, dense.mean)).toBeGreaterThan(1e-3);
+    expect(relErr(wrong.std, dense.std)).toBeGreaterThan(1e-3);
+  });
+
+  it('the state names one embedding size per axis (px, py, pz ≥ 2n − 1)', () => {
+    const c = COVARIANCE_CASES_3D[6]!; // 5 × 1 × 7
+    const state = prepareStructuredPosterior(problemFor(c.grid, 9, 2), c.prior);
+    expect(state.padding).toHaveLength(3);
+    state.padding.forEach((p, a) => expect(p).toBeGreaterThanOrEqual(2 * c.grid.shape[a]! - 1));
+  });
+});
+
+describe('computePosterior on 3-D grids (the entry of the worker engine and the command line)', () => {
+  const pool = nodeBlockPool(2);
+  afterAll(() => pool.close());
+  const grid: Grid = { shape: [10, 7, 6], spacing: [1, 0.8, 1.4] }; // 420 cells ≥ FFT_MIN_CELLS
+  const prior: PriorSpec = {
+    mean: { constant: 0.2 },
+    nugget: 0.01,
+    terms: [{ kernel: 'matern', nu: 1.5, variance: 1, lengths: [4, 2, 3], angles: [25, -10, 15] }],
+  };
+
+  it('auto takes the FFT route and says so; mean and std equal the dense route (requested) to 1e-10', async () => {
+    const problem = problemFor(grid, 41, 5);
+    const fft = await computePosterior(problem, prior);
+    const dense = await computePosterior(problem, prior, { path: 'dense' });
+    expect([fft.decision.path, fft.summary.path]).toEqual(['fft', 'fft']);
+    expect(fft.decision.reason).toMatch(/FFT: stationary prior on a regular grid of 420 cells/);
+    expect([dense.decision.path, dense.summary.path]).toEqual(['dense', 'dense']);
+    expect(relErr(fft.summary.mean, dense.summary.mean)).toBeLessThan(1e-10);
+    expect(relErr(fft.summary.std, dense.summary.std)).toBeLessThan(1e-10);
+  });
+
+  it('split over 2 threads (products and std, forced): the same bits as one thread', async () => {
+    const problem = problemFor(grid, 41, 5);
+    const one = await computePosterior(problem, prior);
+    const two = await computePosterior(problem, prior, { pool: { get: () => pool, threads: 2, force: true } });
+    expect(two.threadsUsed).toBe(2);
+    expect(Array.from(two.summary.mean)).toEqual(Array.from(one.summary.mean));
+    expect(Array.from(two.summary.std)).toEqual(Array.from(one.summary.std));
+  });
+
+  it('below FFT_MIN_CELLS a 3-D problem stays on the dense route and says why', async () => {
+    const small: Grid = { shape: [4, 3, 5], spacing: [1, 1, 1] };
+    const r = await computePosterior(problemFor(small, 7, 1), prior);
+    expect(r.decision.path).toBe('dense');
+    expect(r.decision.reason).toMatch(/60 cells, below 128/);
   });
 });

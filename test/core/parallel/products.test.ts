@@ -1,7 +1,7 @@
 /**
  * Bᵀ = G Cm split over worker_threads (src/core/parallel/products.ts): the split state equals the
  * single-thread prepareStructuredPosterior bit for bit (Object.is on every entry of Bᵀ, L, α, the
- * mean and diag Cm) for 1-D and 2-D grids, odd M, sparse and dense G, profile + nugget, with and
+ * mean and diag Cm) for 1-D, 2-D and 3-D grids, odd M, sparse and dense G, profile + nugget, with and
  * without cached spectra, shared Bᵀ and rows transferred back, caller share on and off, pools of
  * 2 and 3 threads. The split mean is also checked against the dense scipy route of
  * test/bench/dense_route.py (Debian python3-scipy: Cm entry by entry, cho_factor / cho_solve;
@@ -31,6 +31,7 @@ import type { PriorSpec } from '../../../src/core/prior/spec.ts';
 import type { Problem } from '../../../src/core/problems/spec.ts';
 import { Random } from '../../../src/core/sampling/random.ts';
 import { benchProblem } from '../../bench/cases/fft.ts';
+import { benchProblem3 } from '../../bench/cases/fft3.ts';
 import { denseScipyRoute } from '../../reference/python.ts';
 
 const pools = [nodeBlockPool(2), nodeBlockPool(3)];
@@ -68,6 +69,11 @@ function dense1d(): Problem {
   };
 }
 
+/** 3-D: 8 × 8 × 8 cells (N = 512), 37 straight rays between opposite faces (odd M; test/bench/cases/fft3.ts). */
+function sparse3d(): Problem {
+  return benchProblem3(8, 37);
+}
+
 function withProfile(prior: PriorSpec, n: number): PriorSpec {
   return { ...prior, nugget: 0.01, stdProfile: Array.from({ length: n }, (_, i) => 0.5 + 0.4 * Math.sin(i / 9)) };
 }
@@ -92,6 +98,8 @@ const problems: [string, () => Problem, (n: number) => PriorSpec][] = [
   ['1-D dense G, odd M', dense1d, () => matern(4)],
   ['2-D sparse G with profile + nugget', sparse2d, (n) => withProfile(matern(3), n)],
   ['1-D dense G with profile + nugget', dense1d, (n) => withProfile(matern(4), n)],
+  ['3-D sparse G, odd M', sparse3d, () => matern(2)],
+  ['3-D sparse G with profile + nugget', sparse3d, (n) => withProfile(matern(2), n)],
 ];
 const variants: [string, number, ParallelProductsOptions][] = [
   ['pool 2, caller share, shared Bᵀ', 0, {}],
