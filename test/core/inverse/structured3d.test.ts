@@ -8,6 +8,7 @@ import { afterAll, describe, expect, it } from 'vitest';
 import { choosePosteriorPath, FFT_MIN_CELLS } from '../../../src/core/inverse/auto.ts';
 import { computePosterior } from '../../../src/core/inverse/compute.ts';
 import { nodeBlockPool } from '../../../src/core/parallel/node.ts';
+import { projectedPriorCovariance } from '../../../src/core/tuning/dataSpace.ts';
 import { posteriorSummary, preparePosterior } from '../../../src/core/inverse/posterior.ts';
 import { structuredPosteriorDraws, structuredResolutionRow } from '../../../src/core/inverse/structuredDraws.ts';
 import { resolutionRow } from '../../../src/core/inverse/posterior.ts';
@@ -166,4 +167,15 @@ describe('computePosterior on 3-D grids (the entry of the worker engine and the 
     expect(r.decision.path).toBe('dense');
     expect(r.decision.reason).toMatch(/60 cells, below 128/);
   });
+});
+
+describe('prior selection on 3-D grids: the projection P = G Cm Gᵀ of the criteria (tuning/dataSpace.ts)', () => {
+  for (const c of COVARIANCE_CASES_3D) {
+    it(`${c.name}: the FFT route's P equals the dense route's to 1e-10`, () => {
+      const problem = problemFor(c.grid, 15, 9);
+      const fft = projectedPriorCovariance(problem, c.prior, { route: 'fft' });
+      const dense = projectedPriorCovariance(problem, c.prior, { route: 'dense' });
+      expect(relErr(fft.data, dense.data)).toBeLessThan(1e-10);
+    });
+  }
 });
