@@ -9,7 +9,8 @@
  * ((2nx−1)(2ny−1)(2nz−1) values, 2N−1 in 1-D) and each matrix row is copied from contiguous slices of the
  * table, so assembly costs O(N²) memory writes and only O(N) kernel evaluations.
  */
-import { cellCount, type Grid } from '../grid/grid.ts';
+import { cellCount, type Geometry, isCellList } from '../grid/grid.ts';
+import { pairwiseCovariance } from './cells.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
 import { lagIndex, lagTable, type LagTable } from './lag.ts';
 import type { PriorSpec } from './spec.ts';
@@ -19,8 +20,10 @@ export { meanVector } from './mean.ts';
 export { validatePrior } from './validate.ts';
 
 /** Dense prior covariance Cm (N × N) on the grid. Validates the prior first (InputError). */
-export function covarianceMatrix(grid: Grid, prior: PriorSpec): Matrix {
+export function covarianceMatrix(grid: Geometry, prior: PriorSpec): Matrix {
   validatePrior(prior, grid);
+  // Cell lists have no regular offsets: Cm from the pairwise offsets of their centres (./cells.ts).
+  if (isCellList(grid)) return pairwiseCovariance(grid, prior);
   return assembleCovariance(prior, lagTable(grid, prior.terms));
 }
 
@@ -62,7 +65,7 @@ export function assembleCovariance(prior: PriorSpec, table: LagTable): Matrix {
  * Prior variance per cell, the diagonal of Cm: s_i² Σ_t variance_t ρ_t(0) + nugget, without
  * forming Cm (ρ_t(0) = 1 for every kernel; it is evaluated, not assumed).
  */
-export function priorVariance(grid: Grid, prior: PriorSpec): Float64Array {
+export function priorVariance(grid: Geometry, prior: PriorSpec): Float64Array {
   validatePrior(prior, grid);
   const t = lagTable({ shape: [1], spacing: [1] }, prior.terms).values[0];
   const n = cellCount(grid);
@@ -84,9 +87,11 @@ export type CovarianceApply = (x: ArrayLike<number>, out?: Float64Array) => Floa
  * plain dense product; otherwise it runs over the lag table without storing Cm (O(N²) flops and
  * O(N) memory per product), for operators too large to keep (used by Lanczos eigenvalue estimates).
  */
-export function covarianceApply(grid: Grid, prior: PriorSpec, dense?: Matrix): CovarianceApply {
+export function covarianceApply(grid: Geometry, prior: PriorSpec, given?: Matrix): CovarianceApply {
   validatePrior(prior, grid);
   const n = cellCount(grid);
+  // A cell list has no lag table to run over: its product is always the dense one.
+  const dense = given ?? (isCellList(grid) ? pairwiseCovariance(grid, prior) : undefined);
   if (dense !== undefined) {
     if (dense.rows !== n || dense.cols !== n) {
       throw new RangeError(`covarianceApply: dense matrix is ${dense.rows}×${dense.cols}, grid has ${n} cells`);
@@ -102,6 +107,7 @@ export function covarianceApply(grid: Grid, prior: PriorSpec, dense?: Matrix): C
       return out;
     };
   }
+  if (isCellList(grid)) throw new Error('unreachable: cell lists take the dense product');
   const table = lagTable(grid, prior.terms);
   const { nx, ny, nz, values } = table;
   const s = prior.stdProfile;

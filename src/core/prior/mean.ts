@@ -5,12 +5,12 @@
  *   trend     m0_i = intercept + slope[0]·x_i (+ slope[1]·y_i in 2-D, + slope[2]·z_i in 3-D), absolute cell coordinates
  *             (origin included, see ../grid/grid.ts).
  */
-import { cellCoordinates, cellCount, type Grid } from '../grid/grid.ts';
+import { cellCoordinates, cellCount, type Geometry } from '../grid/grid.ts';
 import type { MeanKind, MeanSpec, PriorSpec } from './spec.ts';
 import { validatePrior } from './validate.ts';
 
 /** Mean model m0 (length N). Validates the prior first (InputError). */
-export function meanVector(grid: Grid, prior: PriorSpec): Float64Array {
+export function meanVector(grid: Geometry, prior: PriorSpec): Float64Array {
   validatePrior(prior, grid);
   return evaluateMean(grid, prior.mean);
 }
@@ -23,7 +23,7 @@ export function meanKind(mean: MeanSpec): MeanKind {
 }
 
 /** m0 for a validated mean spec. */
-export function evaluateMean(grid: Grid, mean: MeanSpec): Float64Array {
+export function evaluateMean(grid: Geometry, mean: MeanSpec): Float64Array {
   const n = cellCount(grid);
   if ('constant' in mean) return new Float64Array(n).fill(mean.constant);
   if ('values' in mean) return Float64Array.from(mean.values);

@@ -18,7 +18,7 @@
  * - At most {@link MAX_TERMS} covariance terms (see there).
  */
 import { InputError } from '../errors.ts';
-import { cellCount, gridDimension, validateGrid, type Grid } from '../grid/grid.ts';
+import { cellCount, gridDimension, validateGrid, type Geometry } from '../grid/grid.ts';
 import { correlationFunction } from '../kernels/correlation.ts';
 import { kernelTakes } from '../kernels/table.ts';
 import { KERNEL_NAMES, type Term } from '../kernels/spec.ts';
@@ -55,7 +55,7 @@ function checkScale(field: string, v: number, what: string, positive: boolean, s
 export const MAX_TERMS = 16;
 
 /** Throws InputError (field path + value) unless the prior is valid for this grid. */
-export function validatePrior(prior: PriorSpec, grid: Grid): void {
+export function validatePrior(prior: PriorSpec, grid: Geometry): void {
   validateGrid(grid);
   if (!isObject(prior)) throw new InputError('prior', 'an object with mean and terms', prior);
   const n = cellCount(grid);
