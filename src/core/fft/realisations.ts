@@ -171,15 +171,7 @@ export function circulantSampler(grid: Grid, prior: PriorSpec, options: SamplerO
       const eps = nugget > 0 ? new Float64Array(n) : null;
       for (let r = 0; r < count; r += 2) {
         const single = r + 1 === count;
-        if (single) hermitianSpectrum(rng, root, px, py, buf);
-        else {
-          rng.fillNormal(buf);
-          for (let k = 0; k < cells; k++) {
-            const q = root[k];
-            buf[2 * k] *= q;
-            buf[2 * k + 1] *= q;
-          }
-        }
+        spectrumOf(rng, root, single, px, py, 1, buf);
         fft.transform(buf, { outputRows: ny });
         for (let part = 0; part < (single ? 1 : 2); part++) {
           const o = (r + part) * n;
@@ -188,12 +180,7 @@ export function circulantSampler(grid: Grid, prior: PriorSpec, options: SamplerO
             const g = o + nx * iy;
             for (let ix = 0; ix < nx; ix++) out.data[g + ix] = buf[b + 2 * ix];
           }
-          if (s !== undefined) for (let i = 0; i < n; i++) out.data[o + i] *= s[i];
-          if (eps !== null) {
-            rng.fillNormal(eps);
-            for (let i = 0; i < n; i++) out.data[o + i] += nuggetSd * eps[i];
-          }
-          for (let i = 0; i < n; i++) out.data[o + i] += m0[i];
+          finishField(out.data, o, n, s, eps, nuggetSd, m0, rng);
         }
       }
       return out;
@@ -232,15 +219,7 @@ function volumeSampler(
       const eps = nugget > 0 ? new Float64Array(n) : null;
       for (let r = 0; r < count; r += 2) {
         const single = r + 1 === count;
-        if (single) hermitianSpectrum3(rng, root, px, py, pz, buf);
-        else {
-          rng.fillNormal(buf);
-          for (let k = 0; k < cells; k++) {
-            const q = root[k];
-            buf[2 * k] *= q;
-            buf[2 * k + 1] *= q;
-          }
-        }
+        spectrumOf(rng, root, single, px, py, pz, buf);
         fft3InPlace(buf, px, py, pz);
         for (let part = 0; part < (single ? 1 : 2); part++) {
           const o = (r + part) * n;
@@ -251,12 +230,7 @@ function volumeSampler(
               for (let ix = 0; ix < nx; ix++) out.data[g + ix] = buf[b + 2 * ix];
             }
           }
-          if (s !== undefined) for (let i = 0; i < n; i++) out.data[o + i] *= s[i];
-          if (eps !== null) {
-            rng.fillNormal(eps);
-            for (let i = 0; i < n; i++) out.data[o + i] += nuggetSd * eps[i];
-          }
-          for (let i = 0; i < n; i++) out.data[o + i] += m0[i];
+          finishField(out.data, o, n, s, eps, nuggetSd, m0, rng);
         }
       }
       return out;
@@ -264,8 +238,13 @@ function volumeSampler(
   };
 }
 
-/** {@link hermitianSpectrum} on a px × py × pz torus: k and −k (mod p on every axis) paired the same way. */
-function hermitianSpectrum3(rng: Random, root: Float64Array, px: number, py: number, pz: number, buf: Float64Array): void {
+/**
+ * One real field from P normals (used for the last realisation of an odd count): a spectrum
+ * ẑ with ẑ(−k) = conj ẑ(k), E|ẑ(k)|² = λ_k / P and E[ẑ(k)²] = 0 for k ≠ −k (real, variance λ_k/P,
+ * where k = −k mod (px, py, pz); pz = 1 on 1-D and 2-D grids), so y = F ẑ is real with covariance F diag(λ/P) F* = C̃ (derived, as in
+ * the module comment). Pairs (k, −k) take their two normals at the smaller flat index.
+ */
+function hermitianSpectrum(rng: Random, root: Float64Array, px: number, py: number, pz: number, buf: Float64Array): void {
   const h = Math.SQRT1_2;
   const cells = px * py * pz;
   const z = rng.fillNormal(new Float64Array(cells));
@@ -295,40 +274,37 @@ function hermitianSpectrum3(rng: Random, root: Float64Array, px: number, py: num
   }
 }
 
-/**
- * One real field from P normals (used for the last realisation of an odd count): a spectrum
- * ẑ with ẑ(−k) = conj ẑ(k), E|ẑ(k)|² = λ_k / P and E[ẑ(k)²] = 0 for k ≠ −k (real, variance λ_k/P,
- * where k = −k mod (px, py)), so y = F ẑ is real with covariance F diag(λ/P) F* = C̃ (derived, as in
- * the module comment). Pairs (k, −k) take their two normals at the smaller flat index.
- */
-function hermitianSpectrum(rng: Random, root: Float64Array, px: number, py: number, buf: Float64Array): void {
-  const h = Math.SQRT1_2;
-  // Exactly P normals are taken, in the order of the loop below (one per self-conjugate k, two per
-  // pair): drawn at once (fillNormal is faster than P single calls and gives the same stream),
-  // then read back in order.
-  const cells = px * py;
-  const z = rng.fillNormal(new Float64Array(cells));
-  let q = 0;
-  for (let ky = 0; ky < py; ky++) {
-    const my = ky === 0 ? 0 : py - ky;
-    for (let kx = 0; kx < px; kx++) {
-      const mx = kx === 0 ? 0 : px - kx;
-      const k = kx + px * ky;
-      const mk = mx + px * my;
-      if (mk === k) {
-        buf[2 * k] = root[k] * z[q++];
-        buf[2 * k + 1] = 0;
-      } else if (k < mk) {
-        const r = root[k] * h;
-        const a = r * z[q++];
-        const b = r * z[q++];
-        buf[2 * k] = a;
-        buf[2 * k + 1] = b;
-        buf[2 * mk] = a;
-        buf[2 * mk + 1] = -b;
-      }
-    }
+/** The spectrum of one complex draw (two fields), or with `single` of one real field ({@link hermitianSpectrum}). */
+function spectrumOf(rng: Random, root: Float64Array, single: boolean, px: number, py: number, pz: number, buf: Float64Array): void {
+  if (single) {
+    hermitianSpectrum(rng, root, px, py, pz, buf);
+    return;
   }
+  rng.fillNormal(buf);
+  for (let k = 0; k < root.length; k++) {
+    const q = root[k];
+    buf[2 * k] *= q;
+    buf[2 * k + 1] *= q;
+  }
+}
+
+/** Field at out[o … o + n): × the std profile, + √nugget · ε (next n normals), + the prior mean. */
+function finishField(
+  out: Float64Array,
+  o: number,
+  n: number,
+  s: readonly number[] | undefined,
+  eps: Float64Array | null,
+  nuggetSd: number,
+  m0: Float64Array,
+  rng: Random,
+): void {
+  if (s !== undefined) for (let i = 0; i < n; i++) out[o + i] *= s[i];
+  if (eps !== null) {
+    rng.fillNormal(eps);
+    for (let i = 0; i < n; i++) out[o + i] += nuggetSd * eps[i];
+  }
+  for (let i = 0; i < n; i++) out[o + i] += m0[i];
 }
 
 function checkCount(count: number): void {

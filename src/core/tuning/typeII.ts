@@ -640,8 +640,16 @@ export function maximiseEvidence(problem: Problem, start: PriorSpec, options: Ma
 }
 
 /**
+ * Default range of a free Matérn ν. Above 50 the Matérn correlation differs from the Gaussian by less than
+ * |h²(h² − 4)| e^{−h²/2}/(8ν) ≤ 0.5 % (the first-order term in ../kernels/matern.ts); below 0.05 the fields are
+ * rougher than any exponential-like prior in practice (common practice, no source).
+ */
+export const NU_MIN = 0.05;
+export const NU_MAX = 50;
+
+/**
  * Bounds of every coordinate (logs where the scale is log) from `bounds` in natural units; ±∞ where
- * none is given. Names must be free parameters; lo ≤ hi, and > 0 on a log scale.
+ * none is given ({@link NU_MIN}–{@link NU_MAX} for ν). Names must be free parameters; lo ≤ hi, and > 0 on a log scale.
  */
 function coordinateBounds(
   params: readonly HyperParameter[],
@@ -649,6 +657,15 @@ function coordinateBounds(
 ): { lower: Float64Array; upper: Float64Array } {
   const lower = new Float64Array(params.length).fill(Number.NEGATIVE_INFINITY);
   const upper = new Float64Array(params.length).fill(Number.POSITIVE_INFINITY);
+  // A free Matérn ν keeps to [NU_MIN, NU_MAX] unless the caller bounds it: on data that favour a smooth field the
+  // evidence keeps rising slowly with ν towards the Gaussian limit, and each evaluation costs O(ν) (the Bessel
+  // recurrence), so an unbounded ν made a fit run for minutes (seen on 50 point data: ν = 19 after 50 steps).
+  params.forEach((h, k) => {
+    if (h.field === 'nu') {
+      lower[k] = Math.log(NU_MIN);
+      upper[k] = Math.log(NU_MAX);
+    }
+  });
   for (const [name, range] of Object.entries(bounds ?? {})) {
     const k = params.findIndex((h) => h.name === name);
     if (k < 0) throw new InputError(`bounds.${name}`, `the name of a free parameter (${params.map((h) => h.name).join(', ')})`, name);

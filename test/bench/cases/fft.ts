@@ -78,7 +78,7 @@ export function benchProblem(n: number, m = M): Problem {
 }
 
 /** Writes the problem for test/bench/cases/fft.py (the harness's scipy side runs after ours). */
-export function writeProblemForScipy(n: number, problem: Problem): void {
+export function writeProblemForScipy(n: number, problem: Problem, stem = 'fft-problem'): void {
   const dir = join(dirname(fileURLToPath(import.meta.url)), '..', '..', '..', 'bench-results');
   mkdirSync(dir, { recursive: true });
   const p = {
@@ -88,7 +88,7 @@ export function writeProblemForScipy(n: number, problem: Problem): void {
     d: Array.from(problem.data.values),
     sigma: Array.from(problem.data.sigma!),
   };
-  writeFileSync(join(dir, `fft-problem-${n}.json`), JSON.stringify(p));
+  writeFileSync(join(dir, `${stem}-${n}.json`), JSON.stringify(p));
 }
 
 function posteriorCases(n: number): BenchCase[] {
@@ -254,7 +254,7 @@ function runChild(index: number): ChildResult {
   };
 }
 
-export function csrJson(s: SparseMatrix) {
+function csrJson(s: SparseMatrix) {
   return { rows: s.rows, cols: s.cols, rowPtr: Array.from(s.rowPtr), colIdx: Array.from(s.colIdx), values: Array.from(s.values) };
 }
 

@@ -11,22 +11,17 @@
  * problem; the library's exact ray walk is 2-D), Matérn ν = 1.5, length n/8, σ = 0.5.
  */
 import { execFileSync } from 'node:child_process';
-import { mkdirSync, writeFileSync } from 'node:fs';
-import { dirname, join } from 'node:path';
 import { fileURLToPath } from 'node:url';
 import { circulantSampler } from '../../../src/core/fft/realisations.ts';
 import type { Grid } from '../../../src/core/grid/grid.ts';
 import { diagnoseStructured } from '../../../src/core/prior/structuredDiagnostics.ts';
 import { prepareStructuredPosterior, structuredPosteriorStd, structuredProblem } from '../../../src/core/inverse/structured.ts';
-import { type SparseMatrix, sparseFromCoordinates } from '../../../src/core/linalg/sparse.ts';
+import { sparseFromCoordinates } from '../../../src/core/linalg/sparse.ts';
 import type { PriorSpec } from '../../../src/core/prior/spec.ts';
 import type { Problem } from '../../../src/core/problems/spec.ts';
 import { Random } from '../../../src/core/sampling/random.ts';
 import type { BenchCase } from '../types.ts';
-import { csrJson } from './fft.ts';
-
-const here = dirname(fileURLToPath(import.meta.url));
-const results = join(here, '..', '..', '..', 'bench-results');
+import { writeProblemForScipy } from './fft.ts';
 
 /** Matérn ν = 1.5, variance 1, length n/8, constant mean 0. */
 export function benchPrior3(n: number): PriorSpec {
@@ -64,18 +59,6 @@ export function benchProblem3(n: number, m: number): Problem {
   return { grid, operator, data: { values, sigma: new Float64Array(m).fill(0.5) } };
 }
 
-function writeForScipy(n: number, problem: Problem): void {
-  mkdirSync(results, { recursive: true });
-  const p = {
-    grid: problem.grid,
-    length: n / 8,
-    g: csrJson(problem.operator.matrix as SparseMatrix),
-    d: Array.from(problem.data.values),
-    sigma: Array.from(problem.data.sigma!),
-  };
-  writeFileSync(join(results, `fft3-problem-${n}.json`), JSON.stringify(p));
-}
-
 /** Mean + std on the FFT route; returns milliseconds. */
 function meanAndStd(n: number, m: number): number {
   const problem = benchProblem3(n, m);
@@ -106,7 +89,7 @@ export const cases: BenchCase[] = [
     scipyOp: 'dense_route_3d_mean_std',
     setup: () => {
       const problem = benchProblem3(20, 500);
-      writeForScipy(20, problem);
+      writeProblemForScipy(20, problem, 'fft3-problem');
       return () => structuredPosteriorStd(prepareStructuredPosterior(structuredProblem(problem), benchPrior3(20)));
     },
   },

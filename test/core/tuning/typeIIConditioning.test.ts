@@ -18,7 +18,7 @@ import type { Grid } from '../../../src/core/grid/grid.ts';
 import { Random } from '../../../src/core/sampling/random.ts';
 import { diagnosePriorAuto } from '../../../src/core/prior/structuredDiagnostics.ts';
 import { pointOperator } from './helpers.ts';
-import { conditioningNuggetFloor, kernelEigenvalueBound, maximiseEvidence } from '../../../src/core/tuning/typeII.ts';
+import { conditioningNuggetFloor, kernelEigenvalueBound, maximiseEvidence, NU_MAX, NU_MIN } from '../../../src/core/tuning/typeII.ts';
 
 const { problem, truthPrior, startPrior } = demoById('borehole-log').build();
 const gaussian: PriorSpec = { ...truthPrior, terms: [{ kernel: 'gaussian', variance: 0.04, length: 5 }], nugget: 1e-6 };
@@ -112,11 +112,31 @@ describe('the conditioning check of an FFT-route optimum', () => {
       data: { values: Float64Array.from(idx, (_, i) => Math.cos(i / 4) + 0.2 * rng.nextNormal()), sigma: new Float64Array(50).fill(0.3) },
     };
     const start: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, length: 4 }], nugget: 0.01 };
-    const fit = maximiseEvidence(problem, start);
+    const fit = maximiseEvidence(problem, start, { fixed: ['terms[0].nu'] });
     const full = diagnosePriorAuto(grid, fit.prior);
     expect(full.decidedBy).toBe('fft-bracket');
     expect(fit.conditioning.verdict).toBe(full.verdict);
     expect(fit.conditioning.conditionNumber).toBe(full.conditionUpperBound);
     expect(fit.conditioning.usable).toBe(true);
+  });
+});
+
+describe('a free Matérn ν stays in its default range', () => {
+  it('on data that keep favouring smoother fields, ν stops at NU_MAX, says so, and the fit ends promptly', () => {
+    const rng = new Random(3);
+    const grid: Grid = { shape: [40, 30], spacing: [1, 1] };
+    const idx = Array.from({ length: 50 }, () => Math.floor(rng.nextDouble() * 1200));
+    const problem: Problem = {
+      grid,
+      operator: pointOperator(idx, 1200),
+      data: { values: Float64Array.from(idx, (_, i) => Math.cos(i / 4) + 0.2 * rng.nextNormal()), sigma: new Float64Array(50).fill(0.3) },
+    };
+    const start: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, length: 4 }], nugget: 0.01 };
+    const fit = maximiseEvidence(problem, start);
+    const nu = fit.parameters.find((p) => p.name === 'terms[0].nu')!;
+    expect(nu.value).toBeLessThanOrEqual(NU_MAX * (1 + 1e-12));
+    expect(nu.value).toBeGreaterThanOrEqual(NU_MIN);
+    // Before the bound ν ran past 19 in 50 steps and the fit did not finish within minutes.
+    expect(nu.atBound).toBe('high');
   });
 });
