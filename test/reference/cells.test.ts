@@ -6,9 +6,9 @@
  */
 import { describe, expect, it } from 'vitest';
 import { InputError } from '../../src/core/errors.ts';
-import { type CellList, cellCoordinates, cellCount, type Grid } from '../../src/core/grid/grid.ts';
-import { computePosteriorSerial } from '../../src/core/inverse/compute.ts';
-import { posteriorSummary, preparePosteriorFromCovariance } from '../../src/core/inverse/posterior.ts';
+import { type CellList, cellCoordinates, cellCount, type Geometry, type Grid } from '../../src/core/grid/grid.ts';
+import { computePosterior, computePosteriorSerial } from '../../src/core/inverse/compute.ts';
+import { choosePosteriorPath } from '../../src/core/inverse/auto.ts';
 import { readCellList } from '../../src/core/io/cellList.ts';
 import { parseProblemFile } from '../../src/core/io/problemFile.ts';
 import { KERNEL_NAMES } from '../../src/core/kernels/spec.ts';
@@ -46,15 +46,18 @@ function operatorFor(p: number[][], m: number): { G: Float64Array; d: number[]; 
   return { G, d, sigma };
 }
 
-/** The posterior on a given dense Cm; the problem's grid only carries the count N (the algebra reads nothing else). */
+/** The posterior through the one entry (computePosteriorSerial), which must send a cell list to the dense route. */
 function densePosterior(cells: CellList, prior: PriorSpec, G: Float64Array, d: number[], sigma: number[]) {
   const n = cellCount(cells);
-  const problem: Problem = {
-    grid: { shape: [n], spacing: [1] },
+  const problem: Problem<Geometry> = {
+    grid: cells,
     operator: { kind: 'dense', matrix: { rows: d.length, cols: n, data: G } },
     data: { values: Float64Array.from(d), sigma: Float64Array.from(sigma) },
   };
-  return posteriorSummary(preparePosteriorFromCovariance(problem, covarianceMatrix(cells, prior), meanVector(cells, prior)));
+  const r = computePosteriorSerial(problem, prior);
+  expect(r.decision.path).toBe('dense');
+  expect(r.decision.reason).toMatch(/cell list/);
+  return r.summary;
 }
 
 /** Deterministic irregular cloud (a scrambled lattice with jitter): n points in dim dimensions. */
@@ -271,5 +274,29 @@ describe('problem files', () => {
       data: { values: [1], sigma: [0.1] },
     });
     expect(() => parseProblemFile('p.json', text)).toThrow(/cells must be absent.*resample the mesh onto a grid/);
+  });
+});
+
+describe('route decision on a cell list', () => {
+  const n = 300;
+  const cells = readCellList({ centres: Array.from({ length: n }, (_, i) => [i % 20, Math.floor(i / 20)]) });
+  const problem: Problem<Geometry> = {
+    grid: cells,
+    operator: { kind: 'dense', matrix: { rows: 1, cols: n, data: new Float64Array(n).fill(1) } },
+    data: { values: Float64Array.from([1]), sigma: Float64Array.from([0.1]) },
+  };
+  const prior: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length: 3 }] };
+  it('auto picks dense with a stated reason even above the FFT threshold; fft is refused naming the field', () => {
+    expect(choosePosteriorPath(problem, prior, 'auto')).toEqual({
+      path: 'dense',
+      reason: expect.stringMatching(/dense: a cell list \(300 centres\)/),
+    });
+    expect(() => choosePosteriorPath(problem, prior, 'fft', '--path')).toThrow(/--path must be "dense" or "auto".*cell list/);
+    expect(() => computePosteriorSerial(problem, prior, 'fft', '--path')).toThrow(InputError);
+  });
+  it('computePosterior (the async entry) runs it on the dense route', async () => {
+    const r = await computePosterior(problem, prior);
+    expect(r.decision.path).toBe('dense');
+    expect(r.summary.mean.length).toBe(n);
   });
 });

@@ -23,7 +23,7 @@
  * posterior itself, on the chosen route, comes from ./compute.ts computePosterior.
  */
 import { assertNever, InputError } from '../errors.ts';
-import { cellCount } from '../grid/grid.ts';
+import { cellCount, type Geometry, isCellList } from '../grid/grid.ts';
 import { nonStationaryReason } from '../fft/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
@@ -67,8 +67,16 @@ export interface PathDecision {
  * requested for a prior the FFT path cannot represent (`field` names where the request came
  * from, e.g. '--path').
  */
-export function choosePosteriorPath(problem: Problem, prior: PriorSpec, requested: PathRequest = 'auto', field = 'path'): PathDecision {
-  const why = nonStationaryReason(problem.grid, prior);
+export function choosePosteriorPath(
+  problem: Problem<Geometry>,
+  prior: PriorSpec,
+  requested: PathRequest = 'auto',
+  field = 'path',
+): PathDecision {
+  // A cell list has no regular offsets, so no circulant embedding: the dense route, with this reason.
+  const why = isCellList(problem.grid)
+    ? `a cell list (${cellCount(problem.grid)} centres) has no regular grid for the FFT`
+    : nonStationaryReason(problem.grid, prior);
   const n = cellCount(problem.grid);
   const m = problem.data.values.length;
   if (m * n > MAX_DATA_CELLS) {

@@ -6,7 +6,7 @@
  * round-off (the thread split gives the same bits; test/core/parallel, test/cli/threads.test.ts).
  */
 import { InputError } from '../errors.ts';
-import { cellCount } from '../grid/grid.ts';
+import { cellCount, type Geometry, isCellList } from '../grid/grid.ts';
 import { MIN_SPLIT_FLOPS, parallelPosteriorStd, varianceFlops, type BlockPool } from '../parallel/blocks.ts';
 import { prepareStructuredPosteriorParallel, productsWorthSplitting } from '../parallel/products.ts';
 import type { PriorSpec } from '../prior/spec.ts';
@@ -88,13 +88,14 @@ export async function prepareStructured(
  * products go over it too; a pool is never started for the products alone.
  */
 export async function computePosterior(
-  sp: StructuredProblem | Problem,
+  input: StructuredProblem | Problem<Geometry>,
   prior: PriorSpec,
   options: PosteriorOptions = {},
 ): Promise<ComputedPosterior> {
-  const problem = 'cacheBytes' in sp ? sp.problem : sp;
+  const problem = 'cacheBytes' in input ? input.problem : input;
   const decision = choosePosteriorPath(problem, prior, options.path ?? 'auto', options.field);
-  if (decision.path === 'dense') {
+  const sp = onGrid(input);
+  if (decision.path === 'dense' || sp === null) {
     const state = options.dense ? options.dense() : preparePosterior(problem, prior);
     return { summary: checkedFinite(posteriorSummary(state)), decision, threadsUsed: 1 };
   }
@@ -107,6 +108,13 @@ export async function computePosterior(
   // A copy of the mean: a caller may transfer the result's buffers while it keeps `state` cached.
   const summary = structuredPosteriorSummary({ ...state, mean: state.mean.slice() }, std);
   return { summary: checkedFinite(summary), decision, threadsUsed: split ? pool.threads : 1 };
+}
+
+/** The input when its cells form a regular grid (the FFT route can run), null for a cell list (dense only). */
+function onGrid(input: StructuredProblem | Problem<Geometry>): StructuredProblem | Problem | null {
+  if ('cacheBytes' in input) return input;
+  const g = input.grid;
+  return isCellList(g) ? null : { ...input, grid: g };
 }
 
 /**
@@ -147,14 +155,15 @@ function nonFinite(where: string, v: number): InputError {
  * the same numbers (benchmarks, tests, callers without a pool).
  */
 export function computePosteriorSerial(
-  sp: StructuredProblem | Problem,
+  input: StructuredProblem | Problem<Geometry>,
   prior: PriorSpec,
   path: PathRequest = 'auto',
   field?: string,
 ): ComputedPosterior {
-  const problem = 'cacheBytes' in sp ? sp.problem : sp;
+  const problem = 'cacheBytes' in input ? input.problem : input;
   const decision = choosePosteriorPath(problem, prior, path, field);
-  if (decision.path === 'dense')
+  const sp = onGrid(input);
+  if (decision.path === 'dense' || sp === null)
     return { summary: checkedFinite(posteriorSummary(preparePosterior(problem, prior))), decision, threadsUsed: 1 };
   const state = prepareStructuredPosterior(sp, prior);
   return { summary: checkedFinite(structuredPosteriorSummary(state, structuredPosteriorStd(state))), decision, threadsUsed: 1 };

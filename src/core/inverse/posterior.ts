@@ -17,7 +17,7 @@
  * rounding noise (use the model-space form if such tiny posterior variances matter).
  */
 import { InputError, NotPositiveDefiniteError } from '../errors.ts';
-import { cellCount } from '../grid/grid.ts';
+import { cellCount, type Geometry } from '../grid/grid.ts';
 import { cholesky, choleskySolve, solveLower, solveLowerMatrix } from '../linalg/cholesky.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
 import { applyOperator, applyOperatorTranspose, operatorTimesSymmetric, operatorTimesTransposedSymmetric } from '../linalg/operator.ts';
@@ -33,7 +33,7 @@ import type { PosteriorSummary } from './types.ts';
 
 /** The factorised posterior of one problem with a dense prior covariance. Treat as immutable. */
 export interface PosteriorFactors {
-  readonly problem: Problem;
+  readonly problem: Problem<Geometry>;
   /** Prior mean m0 (N). */
   readonly m0: Float64Array;
   /** Prior covariance Cm (N × N). */
@@ -52,18 +52,18 @@ export interface PosteriorFactors {
 
 /** Factorised posterior for one (problem, prior): holds Cm Gᵀ, the Cholesky factor of K, α = K⁻¹ r. */
 export interface PosteriorState extends PosteriorFactors {
-  readonly problem: Problem;
+  readonly problem: Problem<Geometry>;
   readonly prior: PriorSpec;
 }
 
 /** Builds Cm and m0 from the prior (covarianceMatrix validates it) and factors the posterior. */
-export function preparePosterior(problem: Problem, prior: PriorSpec): PosteriorState {
+export function preparePosterior(problem: Problem<Geometry>, prior: PriorSpec): PosteriorState {
   const Cm = covarianceMatrix(problem.grid, prior);
   const m0 = meanVector(problem.grid, prior);
   return { ...preparePosteriorFromCovariance(problem, Cm, m0), prior };
 }
 
-function checkProblem(problem: Problem, Cm: Matrix, m0: ArrayLike<number>): void {
+function checkProblem(problem: Problem<Geometry>, Cm: Matrix, m0: ArrayLike<number>): void {
   const n = cellCount(problem.grid);
   const { rows: m, cols } = problem.operator.matrix;
   if (cols !== n) throw new InputError('problem.operator', `a matrix with ${n} columns (one per grid cell)`, `${m}×${cols}`);
@@ -96,7 +96,7 @@ const K_HINT =
  * Throws InputError on inconsistent sizes or bad data errors, NotPositiveDefiniteError when K or a
  * full Cd does not factor.
  */
-export function preparePosteriorFromCovariance(problem: Problem, Cm: Matrix, m0: ArrayLike<number>): PosteriorFactors {
+export function preparePosteriorFromCovariance(problem: Problem<Geometry>, Cm: Matrix, m0: ArrayLike<number>): PosteriorFactors {
   checkProblem(problem, Cm, m0);
   const G = problem.operator;
   const m = G.matrix.rows;

@@ -2,7 +2,7 @@
  * A linear inverse problem d = G m + e, e ~ N(0, Cd), on a regular grid.
  * Typed-array form used inside the core; the JSON problem file maps onto it in src/core/io.
  */
-import type { Grid } from '../grid/grid.ts';
+import type { Geometry, Grid } from '../grid/grid.ts';
 import type { Matrix } from '../linalg/matrix.ts';
 import type { Operator } from '../linalg/operator.ts';
 
@@ -28,9 +28,13 @@ export interface DataSpec {
   readonly geometry?: DataGeometry;
 }
 
-export interface Problem {
+/**
+ * `G` is the cell geometry: a regular Grid everywhere by default; `Problem<Geometry>` also admits a cell list
+ * (the user's own mesh), which the posterior entry (../inverse/compute.ts) sends to the dense route.
+ */
+export interface Problem<G extends Geometry = Grid> {
   readonly title?: string;
-  readonly grid: Grid;
+  readonly grid: G;
   readonly operator: Operator;
   readonly data: DataSpec;
   readonly truth?: Float64Array;
