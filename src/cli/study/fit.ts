@@ -118,9 +118,10 @@ export const fit: Command = {
     'else held. LIST is a comma list of: variance, length, lengths, angle, nu (that parameter of every term that has it),\n' +
     'termK.NAME (one term, K from 0; NAME as before, or lengths[0] / lengths[1]) and nugget (needs a starting nugget > 0).\n' +
     'Lengths, variances, ν and the nugget are fitted on their logarithm, the angle (degrees) as is. Projected BFGS\n' +
-    '(Nocedal & Wright 2006) with analytic variance/nugget derivatives (Rasmussen & Williams 2006, eq. 5.9).\n' +
-    'With a free nugget the search stays where κ(Cm) ≤ 1e10 (a lower bound on the nugget); --bounds adds box bounds\n' +
-    'in natural units (degrees for an angle). The optimum is checked with the positive-definiteness diagnosis of `check`.\n' +
+    '(Nocedal & Wright 2006) with analytic derivatives in variances, nugget, lengths and angle (Rasmussen & Williams\n' +
+    '2006, eq. 5.9; ν by central differences). With a free nugget the search stays where κ(Cm) ≤ 1e10 (a lower bound\n' +
+    'on the nugget); a free ν stays within 0.05–50; --bounds adds or replaces box bounds in natural units (degrees for\n' +
+    'an angle). The optimum is checked with the positive-definiteness diagnosis of `check`.\n' +
     'Prints {"prior": {a prior-file object}, "logEvidence", "startLogEvidence", "parameters": [{"name", "scale":\n' +
     '"log" | "linear", "value", "start", "standardError", "interval95": [lo, hi], "atBound": "low" | "high" | null}],\n' +
     '"converged", "route": "dense" | "fft" (the evidence computations: FFT for a stationary prior above 1024 cells),\n' +
