@@ -5,7 +5,8 @@ import { DEMO_CHOICES } from './demos.ts';
 import { useWb } from './context.ts';
 import { PriorPanel } from './PriorPanel.tsx';
 import { StatusPanel } from './StatusPanel.tsx';
-import { FitScreen, PosteriorScreen, PriorScreen, ProblemScreen, RealisationsScreen } from './screens/index.ts';
+import { FitScreen, PosteriorScreen, PriorScreen, ProblemScreen, RealisationsScreen, VolumeScreen } from './screens/index.ts';
+import { gridDimension } from '../core/grid/grid.ts';
 import { TABS, type TabId } from './view/slice.ts';
 import { SelectScreen } from './select/SelectScreen.tsx';
 import { OverviewScreen } from './overview/OverviewScreen.tsx';
@@ -24,6 +25,8 @@ async function restorePrevious(): Promise<void> {
 }
 
 function Screen({ tab }: { tab: TabId }) {
+  const volume = useWb((s) => (s.problem ? gridDimension(s.problem.grid) === 3 : false));
+  if (volume && tab !== 'select') return <VolumeScreen />;
   switch (tab) {
     case 'overview':
       return <OverviewScreen />;

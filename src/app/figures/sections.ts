@@ -9,6 +9,7 @@
  */
 import type { Grid } from '../../core/grid/grid.ts';
 import type { DataGeometry } from '../../core/problems/spec.ts';
+import { DIVERGING, divergingRange, SEQUENTIAL, sequentialRange, signedView } from '../colourScales.ts';
 import { withUnit } from '../labels.ts';
 import type { Trace } from '../traces.ts';
 import { hoverName, type Layout, title } from './common.ts';
@@ -174,4 +175,28 @@ export function sectionLayout(grid: Grid, s: Section, heading: string): Layout {
     margin: { l: 56, r: 10, t: 30, b: 42 },
     showlegend: false,
   };
+}
+
+/**
+ * A volume field ready to cut: signed fields (means, realisations) through `signedView` on the diverging scale
+ * symmetric about the prior mean, magnitudes (std, variance reduction) on the sequential scale from 0; one range over
+ * the whole volume, so the three sections share it.
+ */
+export function volumeColour(
+  values: ArrayLike<number>,
+  signed: boolean,
+  priorMean: ArrayLike<number>,
+): { values: ArrayLike<number>; colour: Trace; perturbation: boolean } {
+  if (signed) {
+    const v = signedView(values, priorMean);
+    const [lo, hi] = divergingRange([v.values], v.centre);
+    return { values: v.values, colour: { colorscale: DIVERGING, zmin: lo, zmax: hi }, perturbation: v.perturbation };
+  }
+  const [lo, hi] = sequentialRange([values]);
+  return { values, colour: { colorscale: SEQUENTIAL, zmin: lo, zmax: hi }, perturbation: false };
+}
+
+/** 1 − std² / prior std² per cell (the variance reduction), 0 where the prior std is 0. */
+export function varianceReduction(std: ArrayLike<number>, priorStd: ArrayLike<number>): Float64Array {
+  return Float64Array.from({ length: std.length }, (_, i) => (priorStd[i] > 0 ? 1 - (std[i] * std[i]) / (priorStd[i] * priorStd[i]) : 0));
 }

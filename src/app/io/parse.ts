@@ -62,15 +62,6 @@ export function parseRequest(req: ParseRequest): ParseResult {
         return b;
       };
       const r = parseProblemFile(main.name, main.bytes, { readSibling });
-      if (r.problem.grid.shape.length === 3) {
-        // The core and the command line take 3-D grids (dense route); the workbench's views of a volume are not built yet.
-        const shape = r.problem.grid.shape.join(' × ');
-        throw new FileFormatError(
-          main.name,
-          `a 3-D grid (${shape}) is not shown in the workbench yet; compute it with the command line (priorscope posterior --problem ${main.name} --prior …)`,
-          { field: 'grid.shape' },
-        );
-      }
       return { kind: 'problem', problem: r.problem, label: main.name, warnings: r.warnings.map((w) => w.message) };
     }
     case 'pieces': {

@@ -4,3 +4,4 @@ export { PosteriorScreen } from './PosteriorScreen.tsx';
 export { PriorScreen } from './PriorScreen.tsx';
 export { ProblemScreen } from './ProblemScreen.tsx';
 export { RealisationsScreen } from './RealisationsScreen.tsx';
+export { VolumeScreen } from './VolumeScreen.tsx';

@@ -10,6 +10,8 @@ import {
   sectionLayout,
   sectionsThrough,
   sectionTitle,
+  varianceReduction,
+  volumeColour,
 } from '../../../src/app/figures/sections.ts';
 import { runPython } from '../../reference/python.ts';
 
@@ -78,5 +80,22 @@ describe('volume sections', () => {
   it('cross-hairs mark the chosen cell on each plane', () => {
     const s = extractSection(grid, field, 'yz', 1);
     expect(crossHairs(s, [12, 2, -0.5])).toMatchObject({ x: [0, 3, null, 2, 2], y: [-0.5, -0.5, null, -1, 0] });
+  });
+});
+
+describe('volume colours', () => {
+  it('signed fields centre on a constant prior mean with one range over the whole volume; magnitudes start at 0', () => {
+    const mean = new Float64Array(60).fill(0.5);
+    const s = volumeColour(field, true, mean);
+    const dev = Math.max(...Array.from(field, (v) => Math.abs(v - 0.5)));
+    expect(s.colour.zmin).toBeCloseTo(0.5 - dev, 14);
+    expect(s.colour.zmax).toBeCloseTo(0.5 + dev, 14);
+    expect(s.perturbation).toBe(false);
+    const m = volumeColour(Float64Array.from(field, Math.abs), false, mean);
+    expect(m.colour.zmin).toBe(0);
+    expect(m.colour.zmax).toBe(Math.max(...Array.from(field, Math.abs)));
+  });
+  it('variance reduction 1 − σ²/σ²prior (0 where the prior std is 0)', () => {
+    expect(Array.from(varianceReduction([1, 0.5, 0], [2, 0.5, 0]))).toEqual([0.75, 0, 0]);
   });
 });

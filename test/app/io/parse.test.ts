@@ -62,24 +62,25 @@ describe('parseRequest problemFiles', () => {
       ],
       'G.csv: line 2, column 2 must be a finite number, got "x"',
     ],
-    [
-      [
-        {
-          name: 'v.json',
-          text: JSON.stringify({
-            kind: 'priorscope.problem',
-            version: 1,
-            grid: { shape: [1, 1, 2], spacing: [1, 1, 1] },
-            operator: { dense: [[1, 1]] },
-            data: { values: [1], sigma: [1] },
-          }),
-        },
-      ],
-      'v.json: a 3-D grid (1 × 1 × 2) is not shown in the workbench yet; compute it with the command line (priorscope posterior --problem v.json --prior …)',
-    ],
   ])('refuses %#', (files, expected) => {
     expect(message(() => parseRequest({ kind: 'problemFiles', files: files.map((f) => ({ name: f.name, bytes: enc(f.text) })) }))).toBe(
       expected,
     );
+  });
+});
+
+describe('parseRequest: 3-D problems', () => {
+  it('loads a 3-D grid (the workbench shows it as sections) with its 3-D positions', () => {
+    const text = JSON.stringify({
+      kind: 'priorscope.problem',
+      version: 1,
+      grid: { shape: [1, 1, 2], spacing: [1, 1, 1] },
+      operator: { dense: [[1, 1]] },
+      data: { values: [1], sigma: [1], positions: [[0, 0, -1]] },
+    });
+    const r = parseRequest({ kind: 'problemFiles', files: [{ name: 'v.json', bytes: enc(text) }] });
+    if (r.kind !== 'problem') throw new Error(`expected a problem, got ${r.kind}`);
+    expect(r.problem.grid.shape).toEqual([1, 1, 2]);
+    expect(r.problem.data.geometry?.kind).toBe('points');
   });
 });

@@ -1,0 +1,142 @@
+/**
+ * A 3-D problem's one screen: three orthogonal sections (x–y, x–z, y–z) through a chosen cell, with a slider per
+ * axis, for the posterior mean, standard deviation, variance reduction, prior and posterior realisations and the
+ * averaging kernel (resolution row) of the chosen cell. Figures from the pure builders in ../figures/sections.ts.
+ */
+import { useMemo, useState } from 'react';
+import { useShallow } from 'zustand/react/shallow';
+import { useWb } from '../context.ts';
+import {
+  crossHairs,
+  geometryTraces,
+  planeExtent,
+  sectionLayout,
+  sectionsThrough,
+  sectionTrace,
+  varianceReduction,
+  volumeAxisNames,
+  volumeColour,
+  centres,
+} from '../figures/sections.ts';
+import { Plot } from '../Plot.tsx';
+import { Waiting } from './Waiting.tsx';
+
+type FieldId = 'mean' | 'std' | 'reduction' | 'prior-draw' | 'posterior-draw' | 'kernel';
+const FIELDS: readonly { id: FieldId; label: string; signed: boolean }[] = [
+  { id: 'mean', label: 'Posterior mean', signed: true },
+  { id: 'std', label: 'Posterior standard deviation', signed: false },
+  { id: 'reduction', label: 'Variance reduction 1 − σ²post/σ²prior', signed: false },
+  { id: 'prior-draw', label: 'Prior realisation 1', signed: true },
+  { id: 'posterior-draw', label: 'Posterior realisation 1', signed: true },
+  { id: 'kernel', label: 'Averaging kernel', signed: true },
+];
+
+export function VolumeScreen() {
+  const p = useWb((s) => s.problem);
+  const post = useWb((s) => s.posterior);
+  const priorDraws = useWb((s) => s.priorDraws);
+  const postDraws = useWb((s) => s.posteriorDraws);
+  const resolution = useWb((s) => s.resolution);
+  const [selected, selectCell] = useWb(useShallow((s) => [s.selectedCell, s.selectCell] as const));
+  const [field, setField] = useState<FieldId>('mean');
+  const shape = p ? [p.grid.shape[0], p.grid.shape[1] ?? 1, p.grid.shape[2] ?? 1] : [1, 1, 1];
+  const sel = selected ?? 0;
+  const cell: [number, number, number] = [sel % shape[0], Math.floor(sel / shape[0]) % shape[1], Math.floor(sel / (shape[0] * shape[1]))];
+  const values = useMemo((): { v: ArrayLike<number>; signed: boolean; centre?: number } | null => {
+    if (!post) return null;
+    const s = post.summary;
+    switch (field) {
+      case 'mean':
+        return { v: s.mean, signed: true };
+      case 'std':
+        return { v: s.std, signed: false };
+      case 'reduction':
+        return { v: varianceReduction(s.std, s.priorStd), signed: false };
+      case 'prior-draw':
+        return priorDraws ? { v: priorDraws.data.subarray(0, priorDraws.cols), signed: true } : null;
+      case 'posterior-draw':
+        return postDraws ? { v: postDraws.data.subarray(0, postDraws.cols), signed: true } : null;
+      case 'kernel':
+        // A resolution row is signed about 0 (not about the prior mean): the diverging scale centred on 0.
+        return resolution && resolution.cell === sel ? { v: resolution.row, signed: true, centre: 0 } : null;
+    }
+  }, [post, priorDraws, postDraws, resolution, field, sel]);
+  const figures = useMemo(() => {
+    if (!p || !post || !values) return null;
+    const shown = volumeColour(values.v, values.signed, values.centre === undefined ? post.priorMean : new Float64Array(values.v.length));
+    const label = FIELDS.find((f) => f.id === field)!.label;
+    const heading = shown.perturbation ? `${label} − prior mean` : label;
+    const centre: [number, number, number] = [centres(p.grid, 0)[cell[0]], centres(p.grid, 1)[cell[1]], centres(p.grid, 2)[cell[2]]];
+    return sectionsThrough(p.grid, shown.values, cell).map((s, k) => ({
+      plane: s.plane,
+      data: [
+        sectionTrace(p.grid, s, label, shown.colour, k === 2),
+        crossHairs(s, centre),
+        ...geometryTraces(p.geometry ?? undefined, s.plane),
+      ],
+      layout: sectionLayout(p.grid, s, heading),
+      extent: planeExtent(p.grid, s.plane),
+    }));
+  }, [p, post, values, field, cell[0], cell[1], cell[2]]);
+  if (!p) return null;
+  const names = volumeAxisNames(p.grid);
+  const move = (axis: number, to: number) => {
+    const c = [...cell];
+    c[axis] = to;
+    selectCell(c[0] + shape[0] * (c[1] + shape[1] * c[2]));
+  };
+  return (
+    <div className="screen" data-testid="screen-volume">
+      <div className="row toolbar">
+        <label>
+          Field{' '}
+          <select data-testid="volume-field" value={field} onChange={(e) => setField(e.target.value as FieldId)}>
+            {FIELDS.map((f) => (
+              <option key={f.id} value={f.id}>
+                {f.label}
+              </option>
+            ))}
+          </select>
+        </label>
+        {[0, 1, 2].map((a) => (
+          <label key={a}>
+            {names[a]} {Number(centres(p.grid, a)[cell[a]].toPrecision(6))}
+            {p.grid.unit ? ` ${p.grid.unit}` : ''}{' '}
+            <input
+              type="range"
+              data-testid={`volume-slider-${a}`}
+              aria-label={`section position along ${names[a]}`}
+              min={0}
+              max={shape[a] - 1}
+              step={1}
+              value={cell[a]}
+              onChange={(e) => move(a, Number(e.target.value))}
+            />
+          </label>
+        ))}
+        <span className="note">
+          A 3-D grid ({shape.join(' × ')} cells) is shown as three sections through the chosen cell (dotted lines mark the other two
+          sections); the survey geometry is projected onto each. Signed fields share one diverging scale about the prior mean, magnitudes
+          one scale from 0, the averaging kernel one about 0. For a full 3-D viewer, write .vti files with priorscope posterior --vti FILE
+          or priorscope sample --format vti.
+        </span>
+      </div>
+      {figures ? (
+        <div className="grid-3">
+          {figures.map((f) => (
+            <Plot
+              key={f.plane}
+              id={`plot-section-${f.plane}`}
+              label={`section ${f.plane}`}
+              data={f.data}
+              layout={f.layout}
+              height={Math.round(Math.min(420, Math.max(160, (320 * f.extent[1]) / f.extent[0] + 80)))}
+            />
+          ))}
+        </div>
+      ) : (
+        <Waiting what={field === 'kernel' ? 'the averaging kernel (resolution row) of the chosen cell' : 'the volume'} />
+      )}
+    </div>
+  );
+}
