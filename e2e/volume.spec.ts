@@ -3,7 +3,8 @@
  * cells (a smooth, made-up sensitivity that decays with distance from each station), loaded from a problem file;
  * the volume screen shows three sections, the sliders move them, and the field list switches what they show.
  */
-import { mkdirSync, writeFileSync } from 'node:fs';
+import { execFileSync } from 'node:child_process';
+import { mkdirSync, readFileSync, writeFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { expect, test } from '@playwright/test';
 import { screenshot, settle, state } from './helpers.ts';
@@ -79,4 +80,28 @@ test('a 3-D problem loads and shows three sections that follow the sliders', asy
   await page.getByTestId('volume-field').selectOption('kernel');
   await expect.poll(async () => (await zOf('plot-section-xy'))?.length ?? 0, { timeout: 30_000 }).toBe(NY);
   await screenshot(page, info, 'volume-kernel');
+  // Export .vti: read back by Python's xml.etree + numpy (test/reference/read_vti.py), the posterior mean equal to the store's.
+  const [download] = await Promise.all([page.waitForEvent('download'), page.getByTestId('export-vti').click()]);
+  expect(download.suggestedFilename()).toBe('invented-block-under-18-stations-volume.vti');
+  const saved = info.outputPath('volume.vti');
+  await download.saveAs(saved);
+  const read = JSON.parse(
+    execFileSync('/usr/bin/python3', [join('test', 'reference', 'vti_reference.py')], {
+      input: JSON.stringify({ text: readFileSync(saved, 'utf8') }),
+      encoding: 'utf8',
+    }),
+  ) as { extent: number[]; origin: number[]; fields: Record<string, number[][][]> };
+  expect(read.extent).toEqual([0, NX, 0, NY, 0, NZ]);
+  expect(read.origin).toEqual([0, 0, 0]);
+  // The shown x–y section of the posterior mean (at depth index 4) equals numpy's slice [4] of the exported volume.
+  await page.getByTestId('volume-field').selectOption('mean');
+  await expect.poll(async () => JSON.stringify(await zOf('plot-section-xy'))).toBe(JSON.stringify(read.fields['posterior mean'][4]));
+  expect(Object.keys(read.fields)).toEqual([
+    'posterior mean',
+    'posterior std',
+    'prior std',
+    'variance reduction',
+    'prior realisation 1',
+    'posterior realisation 1',
+  ]);
 });

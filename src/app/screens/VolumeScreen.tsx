@@ -19,6 +19,8 @@ import {
   centres,
 } from '../figures/sections.ts';
 import { Plot } from '../Plot.tsx';
+import { download } from '../session/download.ts';
+import { volumeVti } from '../session/exports.ts';
 import { Waiting } from './Waiting.tsx';
 
 type FieldId = 'mean' | 'std' | 'reduction' | 'prior-draw' | 'posterior-draw' | 'kernel';
@@ -114,11 +116,20 @@ export function VolumeScreen() {
             />
           </label>
         ))}
+        <button
+          type="button"
+          data-testid="export-vti"
+          disabled={!post}
+          title="The posterior mean, std, prior std, variance reduction and one prior and one posterior realisation as VTK image data (cell data)"
+          onClick={() => post && download(volumeVti(p.grid, p.title, post.summary, priorDraws, postDraws))}
+        >
+          Export .vti
+        </button>
         <span className="note">
           A 3-D grid ({shape.join(' × ')} cells) is shown as three sections through the chosen cell (dotted lines mark the other two
           sections); the survey geometry is projected onto each. Signed fields share one diverging scale about the prior mean, magnitudes
-          one scale from 0, the averaging kernel one about 0. For a full 3-D viewer, write .vti files with priorscope posterior --vti FILE
-          or priorscope sample --format vti.
+          one scale from 0, the averaging kernel one about 0. For a full 3-D viewer, export a .vti file here, or write one with priorscope
+          posterior --vti FILE or priorscope sample --format vti.
         </span>
       </div>
       {figures ? (

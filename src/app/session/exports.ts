@@ -15,6 +15,7 @@ import { float64Bytes, npyHeader, writeNpy } from '../../core/io/npy.ts';
 import { cellCoordinates, cellCount, gridDimension, type Grid } from '../../core/grid/grid.ts';
 import { matrix, type Matrix } from '../../core/linalg/matrix.ts';
 import { formatJson } from '../../core/io/json.ts';
+import { type VtiField, writeVti } from '../../core/io/vti.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
 import type { PosteriorSummary } from '../../core/inverse/types.ts';
 
@@ -192,4 +193,24 @@ export function plotFileName(problemTitle: string, plotTitle: string, used: Set<
 export function covarianceNpy(m: Matrix, form: 'covariance' | 'cholesky', title: string): ExportFile {
   const name = `${fileStem(title)}-prior-${form === 'cholesky' ? 'cholesky-factor' : 'covariance'}-${m.rows}.npy`;
   return { name, mime: NPY, bytes: writeNpy([m.rows, m.cols], m.data) };
+}
+
+/**
+ * A 3-D problem's fields as VTK XML image data (`.vti`, cell data; src/core/io/vti.ts), as `priorscope posterior
+ * --vti` writes them: posterior mean, posterior std, prior std, variance reduction, then the first prior and posterior
+ * realisation when they have been drawn.
+ */
+export function volumeVti(grid: Grid, title: string, s: PosteriorSummary, priorDraws: Matrix | null, postDraws: Matrix | null): ExportFile {
+  const fields: VtiField[] = [
+    { name: 'posterior mean', values: s.mean },
+    { name: 'posterior std', values: s.std },
+    { name: 'prior std', values: s.priorStd },
+    {
+      name: 'variance reduction',
+      values: Array.from(s.std, (v, i) => (s.priorStd[i] > 0 ? 1 - (v * v) / (s.priorStd[i] * s.priorStd[i]) : 0)),
+    },
+  ];
+  if (priorDraws) fields.push({ name: 'prior realisation 1', values: priorDraws.data.subarray(0, priorDraws.cols) });
+  if (postDraws) fields.push({ name: 'posterior realisation 1', values: postDraws.data.subarray(0, postDraws.cols) });
+  return text(`${fileStem(title)}-volume.vti`, 'application/xml', writeVti(grid, fields));
 }
