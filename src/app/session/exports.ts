@@ -16,6 +16,7 @@ import { cellCoordinates, cellCount, gridDimension, type Grid } from '../../core
 import { matrix, type Matrix } from '../../core/linalg/matrix.ts';
 import { formatJson } from '../../core/io/json.ts';
 import { type VtiField, writeVti } from '../../core/io/vti.ts';
+import { varianceReduction } from '../figures/sections.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
 import type { PosteriorSummary } from '../../core/inverse/types.ts';
 
@@ -207,7 +208,7 @@ export function volumeVti(grid: Grid, title: string, s: PosteriorSummary, priorD
     { name: 'prior std', values: s.priorStd },
     {
       name: 'variance reduction',
-      values: Array.from(s.std, (v, i) => (s.priorStd[i] > 0 ? 1 - (v * v) / (s.priorStd[i] * s.priorStd[i]) : 0)),
+      values: varianceReduction(s.std, s.priorStd),
     },
   ];
   if (priorDraws) fields.push({ name: 'prior realisation 1', values: priorDraws.data.subarray(0, priorDraws.cols) });
