@@ -242,6 +242,8 @@ describe('positive-definiteness verdict on 3-D grids (FFT bracket, Lanczos, Chol
     // Ritz values are Rayleigh quotients: inside [λmin, λmax].
     expect(d.minEigenvalue).toBeGreaterThanOrEqual(lo * (1 - 1e-9));
     expect(d.maxEigenvalue).toBeLessThanOrEqual(hi * (1 + 1e-9));
+    // One embedding size per grid axis (the status badge prints them).
+    expect(d.embeddingPadding).toHaveLength(3);
     if (k === 0) expect(d.decidedBy).toBe('fft-bracket');
     else {
       expect(d.decidedBy).toBe('cholesky');

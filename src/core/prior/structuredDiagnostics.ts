@@ -340,7 +340,7 @@ export function diagnoseStructured(grid: Grid, prior: PriorSpec, options: Struct
     eigenvalueMethod: 'fft-bounds',
     eigenvalueBounds: { lower, upper },
     conditionUpperBound,
-    embeddingPadding: grid.shape.length === 1 ? [last[0]] : [last[0], last[1]],
+    embeddingPadding: last.slice(0, grid.shape.length),
     suggestedJitter,
     suggestedJitterRelative,
     warnings,
