@@ -15,22 +15,7 @@ import sys
 import numpy as np
 from scipy import linalg
 
-from reference_prior import correlation
-
-
-def rz(a):
-    c, s = np.cos(a), np.sin(a)
-    return np.array([[c, -s, 0.0], [s, c, 0.0], [0.0, 0.0, 1.0]])
-
-
-def ry(b):
-    c, s = np.cos(b), np.sin(b)
-    return np.array([[c, 0.0, s], [0.0, 1.0, 0.0], [-s, 0.0, c]])
-
-
-def rx(g):
-    c, s = np.cos(g), np.sin(g)
-    return np.array([[1.0, 0.0, 0.0], [0.0, c, -s], [0.0, s, c]])
+from reference_prior import correlation, rx, ry, rz
 
 
 def centres(case):

@@ -92,3 +92,21 @@ def mean_vector(grid, prior):
     tr = m["trend"]
     slope = list(tr["slope"]) + [0.0]
     return tr["intercept"] + slope[0] * x + slope[1] * y
+
+
+def rz(a):
+    """Rotation about z by a (radians), written out (standard right-handed elementary rotation)."""
+    c, s = np.cos(a), np.sin(a)
+    return np.array([[c, -s, 0.0], [s, c, 0.0], [0.0, 0.0, 1.0]])
+
+
+def ry(b):
+    """Rotation about y by b (radians)."""
+    c, s = np.cos(b), np.sin(b)
+    return np.array([[c, 0.0, s], [0.0, 1.0, 0.0], [-s, 0.0, c]])
+
+
+def rx(g):
+    """Rotation about x by g (radians)."""
+    c, s = np.cos(g), np.sin(g)
+    return np.array([[1.0, 0.0, 0.0], [0.0, c, -s], [0.0, s, c]])

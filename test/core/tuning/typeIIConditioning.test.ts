@@ -101,17 +101,23 @@ describe('the nugget floor B/(1e10 − 1)', () => {
   });
 });
 
+/** 50 seeded point data on a 40 × 30 grid (above the dense tuning limit: the FFT / lag-table route), Matérn 3/2 start with a nugget. */
+function pointSurvey(): { grid: Grid; problem: Problem; start: PriorSpec } {
+  const rng = new Random(3);
+  const grid: Grid = { shape: [40, 30], spacing: [1, 1] };
+  const idx = Array.from({ length: 50 }, () => Math.floor(rng.nextDouble() * 1200));
+  const problem: Problem = {
+    grid,
+    operator: pointOperator(idx, 1200),
+    data: { values: Float64Array.from(idx, (_, i) => Math.cos(i / 4) + 0.2 * rng.nextNormal()), sigma: new Float64Array(50).fill(0.3) },
+  };
+  const start: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, length: 4 }], nugget: 0.01 };
+  return { grid, problem, start };
+}
+
 describe('the conditioning check of an FFT-route optimum', () => {
   it('settled by the certified bracket alone, it equals the full diagnosis (verdict, decided by the bracket, κ bound)', () => {
-    const rng = new Random(3);
-    const grid: Grid = { shape: [40, 30], spacing: [1, 1] };
-    const idx = Array.from({ length: 50 }, () => Math.floor(rng.nextDouble() * 1200));
-    const problem: Problem = {
-      grid,
-      operator: pointOperator(idx, 1200),
-      data: { values: Float64Array.from(idx, (_, i) => Math.cos(i / 4) + 0.2 * rng.nextNormal()), sigma: new Float64Array(50).fill(0.3) },
-    };
-    const start: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, length: 4 }], nugget: 0.01 };
+    const { grid, problem, start } = pointSurvey();
     const fit = maximiseEvidence(problem, start, { fixed: ['terms[0].nu'] });
     const full = diagnosePriorAuto(grid, fit.prior);
     expect(full.decidedBy).toBe('fft-bracket');
@@ -123,15 +129,7 @@ describe('the conditioning check of an FFT-route optimum', () => {
 
 describe('a free Matérn ν stays in its default range', () => {
   it('on data that keep favouring smoother fields, ν stops at NU_MAX, says so, and the fit ends promptly', () => {
-    const rng = new Random(3);
-    const grid: Grid = { shape: [40, 30], spacing: [1, 1] };
-    const idx = Array.from({ length: 50 }, () => Math.floor(rng.nextDouble() * 1200));
-    const problem: Problem = {
-      grid,
-      operator: pointOperator(idx, 1200),
-      data: { values: Float64Array.from(idx, (_, i) => Math.cos(i / 4) + 0.2 * rng.nextNormal()), sigma: new Float64Array(50).fill(0.3) },
-    };
-    const start: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'matern', nu: 1.5, variance: 1, length: 4 }], nugget: 0.01 };
+    const { problem, start } = pointSurvey();
     const fit = maximiseEvidence(problem, start);
     const nu = fit.parameters.find((p) => p.name === 'terms[0].nu')!;
     expect(nu.value).toBeLessThanOrEqual(NU_MAX * (1 + 1e-12));
