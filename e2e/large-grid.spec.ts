@@ -12,6 +12,7 @@ import { mkdtempSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { parseProblemFile } from '../src/core/io/problemFile.ts';
+import { gridProblem } from '../src/core/problems/spec.ts';
 import { prepareStructuredPosterior, structuredPosteriorStd } from '../src/core/inverse/structured.ts';
 import { structuredResolutionRow } from '../src/core/inverse/structuredDraws.ts';
 import { maxRelDiff, open, settle, state, traceValues, watch, writeSegmentProblem } from './helpers.ts';
@@ -53,7 +54,7 @@ test('a 128 × 128 grid stays live: posterior, proven positive definite, realisa
   const meanZ = (await traceValues(page, 'plot-posterior-mean', 'mean', 'z')) as number[][];
   const stdZ = (await traceValues(page, 'plot-posterior-std', 'std', 'z')) as number[][];
   const text = readFileSync(files.json, 'utf8');
-  const problem = parseProblemFile('large.json', text, { readSibling: () => readFileSync(files.mtx) }).problem;
+  const problem = gridProblem(parseProblemFile('large.json', text, { readSibling: () => readFileSync(files.mtx) }).problem, 'this test');
   const st = prepareStructuredPosterior(problem, s.prior);
   expect(maxRelDiff(meanZ.flat(), st.mean)).toBeLessThan(1e-9);
   expect(maxRelDiff(stdZ.flat(), structuredPosteriorStd(st))).toBeLessThan(1e-9);

@@ -11,6 +11,7 @@ import { mkdtempSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { parseProblemFile } from '../src/core/io/problemFile.ts';
+import { gridProblem } from '../src/core/problems/spec.ts';
 import { prepareStructuredPosterior } from '../src/core/inverse/structured.ts';
 import { maxRelDiff, open, settle, state, traceValues, watch, writeSegmentProblem } from './helpers.ts';
 
@@ -81,7 +82,10 @@ test('the posterior mean is drawn while the bands are computing, and the bands f
 
   // Independent of the worker: the core's FFT-path posterior mean of the same file and prior, in Node.
   const text = readFileSync(files.json, 'utf8');
-  const problem = parseProblemFile('progressive.json', text, { readSibling: () => readFileSync(files.mtx) }).problem;
+  const problem = gridProblem(
+    parseProblemFile('progressive.json', text, { readSibling: () => readFileSync(files.mtx) }).problem,
+    'this test',
+  );
   const mean = prepareStructuredPosterior(problem, done.prior).mean;
   expect(maxRelDiff(partialZ.flat(), mean)).toBeLessThan(1e-9);
 

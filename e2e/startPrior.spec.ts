@@ -8,6 +8,7 @@ import { mkdtempSync, writeFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { parseProblemFile } from '../src/core/io/problemFile.ts';
+import { gridProblem } from '../src/core/problems/spec.ts';
 import { startPriorRule } from '../src/core/tuning/startPrior.ts';
 import { open, screenshot, settle, state, watch } from './helpers.ts';
 
@@ -52,7 +53,7 @@ test('a loaded problem starts from the fitted prior, uses its axis names and uni
     .toBeTruthy();
   await expect(page.getByTestId('start-rule')).toBeVisible({ timeout: 30_000 });
   const s = await settle(page);
-  const expected = startPriorRule(parseProblemFile('trench.json', text).problem).prior;
+  const expected = startPriorRule(gridProblem(parseProblemFile('trench.json', text).problem, 'this test')).prior;
   expect(s.prior).toEqual(expected);
   // On the data's scale: not mean 0 and variance 1.
   expect(s.prior.terms[0].variance).not.toBe(1);

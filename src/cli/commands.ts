@@ -19,7 +19,7 @@ import { prepareStructuredPosterior, structuredProblem } from '../core/inverse/s
 import type { BlockPool } from '../core/parallel/blocks.ts';
 import { computePosterior, type PosteriorPool } from '../core/inverse/compute.ts';
 import type { PriorSpec } from '../core/prior/spec.ts';
-import type { Problem } from '../core/problems/spec.ts';
+import { gridProblem, type Problem } from '../core/problems/spec.ts';
 import { defaultThreads, nodeBlockPool } from '../core/parallel/node.ts';
 import type { PosteriorSummary } from '../core/inverse/types.ts';
 import { DEMOS } from '../core/problems/demos.ts';
@@ -33,7 +33,7 @@ import { priorToJson, writePriorFile } from '../core/io/priorFile.ts';
 import { problemKey, runShardable, SHARD } from './study/shard.ts';
 import { combineTune, tuneRows, type TuneKey, type TunePartial } from './study/tuneShard.ts';
 import { writeProblemFile } from '../core/io/problemFile.ts';
-import { cellCount } from '../core/grid/grid.ts';
+import { cellCount, type Geometry, type Grid, isCellList } from '../core/grid/grid.ts';
 import {
   optionFlag,
   optionString,
@@ -156,7 +156,7 @@ export const CLI_MIN_SPLIT_FLOPS = 1e10;
  * thread count.
  */
 export async function cliPosterior(
-  problem: Problem,
+  problem: Problem<Geometry>,
   prior: PriorSpec,
   requested: PathRequest,
   threads: number,
@@ -172,7 +172,9 @@ export async function cliPosterior(
   try {
     // One computation per process: keeping the data rows' spectra for a later call (the workbench's
     // cache) would only cost allocation and collection, about 0.2 s CPU of 1 s on the 64 × 64 bench.
-    const r = await computePosterior(structuredProblem(problem, { cacheBytes: 0 }), prior, { path: requested, field: '--path', pool });
+    const g = problem.grid;
+    const input = isCellList(g) ? problem : structuredProblem({ ...problem, grid: g }, { cacheBytes: 0 });
+    const r = await computePosterior(input, prior, { path: requested, field: '--path', pool });
     return { summary: r.summary, reason: r.decision.reason, threadsUsed: r.threadsUsed };
   } finally {
     if (started !== null) await (started as BlockPool).close();
@@ -215,15 +217,16 @@ const posterior: Command = {
     const requested = pathOption(args);
     const { threads, forced } = threadsOption(args);
     const { problem, prior } = loadBoth(args, io);
+    const vti = optionString(args, 'vti');
+    const vtiGrid = vti === undefined ? null : imageGrid(problem.grid, '--vti');
     progress(io, `posterior for ${cellCount(problem.grid)} cells and ${problem.data.values.length} data …`);
     const { summary: s, reason, threadsUsed } = await cliPosterior(problem, prior, requested, threads, forced);
     progress(io, `${reason}; ${threadsUsed} thread${threadsUsed === 1 ? '' : 's'}`);
-    const vti = optionString(args, 'vti');
-    if (vti !== undefined) {
+    if (vti !== undefined && vtiGrid !== null) {
       const reduction = s.std.map((v, i) => 1 - (v * v) / (s.priorStd[i]! * s.priorStd[i]!));
       writeOutputFile(
         vti,
-        writeVti(problem.grid, [
+        writeVti(vtiGrid, [
           { name: 'posterior mean', values: s.mean },
           { name: 'posterior std', values: s.std },
           { name: 'prior std', values: s.priorStd },
@@ -254,6 +257,16 @@ const posterior: Command = {
     return 0;
   },
 };
+
+/** The grid a VTK image is written on; a cell list has none (its centres are scattered), so `option` is refused. */
+function imageGrid(g: Geometry, option: string): Grid {
+  if (isCellList(g)) {
+    throw new UsageError(
+      `${option} writes VTK image data, which needs a regular grid; this problem gives a cell list (write JSON, CSV or .npy: values in the order of cells.centres)`,
+    );
+  }
+  return g;
+}
 
 /** Exit code of a verdict (0 proven, 3 proven not, 4 not decided), with one line on stderr when not 0. */
 function checkExit(io: Io, d: Diagnostics): number {
@@ -394,6 +407,7 @@ const sample: Command = {
       throw new UsageError('--format npy writes binary data: give --out FILE or redirect stdout to a file');
     }
     const { problem, prior } = loadBoth(args, io);
+    if (format === 'vti') imageGrid(problem.grid, '--format vti');
     const n = cellCount(problem.grid);
     if (count * n > MAX_SAMPLE_VALUES) {
       throw new UsageError(
@@ -405,8 +419,9 @@ const sample: Command = {
     let m: Matrix;
     if (post) {
       // Same path rule as `posterior` (src/core/inverse/auto.ts).
-      if (choosePosteriorPath(problem, prior).path === 'fft') {
-        const r = structuredPosteriorDraws(prepareStructuredPosterior(problem, prior), count, seed);
+      const g = problem.grid;
+      if (!isCellList(g) && choosePosteriorPath(problem, prior).path === 'fft') {
+        const r = structuredPosteriorDraws(prepareStructuredPosterior({ ...problem, grid: g }, prior), count, seed);
         m = r.realisations;
         io.stderr(
           `priorscope sample: route fft (posterior realisations by the perturbation update, prior draws ${
@@ -443,7 +458,7 @@ const sample: Command = {
           io,
           args,
           writeVti(
-            problem.grid,
+            imageGrid(problem.grid, '--format vti'),
             Array.from({ length: m.rows }, (_, k) => ({
               name: `realisation ${k + 1}`,
               values: m.data.subarray(k * m.cols, (k + 1) * m.cols),
@@ -559,7 +574,9 @@ const tune: Command = {
       );
     }
     const termText = optionString(args, 'term')!;
-    const { problem, prior } = loadBoth(args, io);
+    const both = loadBoth(args, io);
+    const problem = gridProblem(both.problem, 'priorscope tune');
+    const prior = both.prior;
     const term = parseNumberOption('term', termText, { integer: true, ge: 0 });
     if (prior.terms.length === 0) throw new UsageError('the prior has no covariance term to tune (its "terms" list is empty)');
     if (term >= prior.terms.length) {

@@ -4,7 +4,7 @@
  */
 import { closeSync, constants as fsConstants, fstatSync, openSync, readSync, realpathSync, writeFileSync } from 'node:fs';
 import { dirname, isAbsolute, relative, resolve } from 'node:path';
-import type { Grid } from '../core/grid/grid.ts';
+import type { Geometry } from '../core/grid/grid.ts';
 import { InputError } from '../core/errors.ts';
 import { validatePrior } from '../core/prior/covariance.ts';
 import type { PriorSpec } from '../core/prior/spec.ts';
@@ -120,7 +120,7 @@ function inside(folder: string, file: string): boolean {
  * in `access.readFrom`; only regular files, within the size limit. Messages name the sibling as
  * written in the problem file and never echo its contents.
  */
-export function loadProblem(path: string, access: FileAccess = {}): { problem: Problem; warnings: readonly FileWarning[] } {
+export function loadProblem(path: string, access: FileAccess = {}): { problem: Problem<Geometry>; warnings: readonly FileWarning[] } {
   const bytes = readInputFile(path);
   const dir = dirname(resolve(path));
   const allowed = [dir, ...(access.readFrom ?? [])].map((d) => realOrNull(resolve(d))).filter((d): d is string => d !== null);
@@ -149,7 +149,7 @@ export function loadProblem(path: string, access: FileAccess = {}): { problem: P
  * Read a prior file and check it against the grid: the file format's own checks, then the core's
  * validatePrior (its InputError is reported against the prior file).
  */
-export function loadPrior(path: string, grid: Grid): { prior: PriorSpec; warnings: readonly FileWarning[] } {
+export function loadPrior(path: string, grid: Geometry): { prior: PriorSpec; warnings: readonly FileWarning[] } {
   const result = parsePriorFile(path, readInputFile(path), { grid });
   try {
     validatePrior(result.prior, grid);

@@ -7,10 +7,10 @@ import { KERNEL_NAMES, kernelsTaking } from '../core/kernels/table.ts';
 
 export const FORMATS_HELP = `priorscope file formats
 
-PROBLEM FILE (JSON)  d = G m + e, e ~ N(0, Cd), m on a regular grid
+PROBLEM FILE (JSON)  d = G m + e, e ~ N(0, Cd), m on a regular grid or on the cells of your own mesh
   {"kind": "priorscope.problem", "version": 1,
    "title": "…",                                   optional
-   "grid": {...}, "operator": {...}, "data": {...},
+   "grid": {...} or "cells": {...}, "operator": {...}, "data": {...},
    "truth": [N numbers],                           optional: a known model (invented tests)
    "quantity": {"name": "density contrast", "unit": "kg/m³"}}   optional: what m is, for labels
 
@@ -29,6 +29,18 @@ PROBLEM FILE (JSON)  d = G m + e, e ~ N(0, Cd), m on a regular grid
   (operator columns, truth, a prior's mean.values and stdProfile) follows this order: the first nx
   numbers are the first row (iy = 0) from x0 rightwards, then the next row, and so on.
 
+  cells (instead of grid: the cells of your own mesh, e.g. a tetrahedral or refined mesh, by their centres)
+    "centres": [[x], …], [[x, y], …] or [[x, y, z], …]   one row per cell (1 to 3 coordinates, the same in
+                                   every row), or "centres.npy": a sibling NumPy file of shape (N, d); cell i is
+                                   row i, and every array of N numbers (operator columns, truth, mean.values,
+                                   stdProfile) follows this order
+    "volumes": [N numbers > 0]     optional, carried to exports (the prior is a covariance between centres,
+                                   not weighted by volume)
+    "unit": "m", "axes": [...]     optional, as for grid
+  A cell list takes the dense route (Cm of N² numbers; at most 8192 cells: coarsen the mesh or resample it
+  onto a grid, which takes the FFT route, above that). On the command line, posterior, check and sample
+  run on cell lists; fit, profile, score, calibrate, report and tune need a grid for now.
+
   operator (exactly one of)
     "dense": [[N numbers], … M rows]                        one row per datum
     "sparse": {"rows": [...], "cols": [...], "values": [...]}   zero-based datum and cell indices, duplicates summed
@@ -43,11 +55,12 @@ PROBLEM FILE (JSON)  d = G m + e, e ~ N(0, Cd), m on a regular grid
     "unit": "ms"                   optional: unit of the data, for labels
     geometry, optional (for plots only; G alone is the forward model), in grid.unit along grid.axes,
     one row per datum in the order of data.values:
-    "positions": [[x], …] (1-D) or [[x, y], …] (2-D)   where each point datum was measured (a station,
-                                   a sample); may lie outside the grid (stations above a section)
-    "sources": [[x, y], …] and "receivers": [[x, y], …]   the two ends of each path datum (2-D grids);
-                                   a path that misses the grid entirely is warned about (a swapped shape or
-                                   a wrong origin shows up this way)
+    "positions": [[x], …] (1-D), [[x, y], …] (2-D) or [[x, y, z], …] (3-D)   where each point datum was
+                                   measured (a station, a sample); may lie outside the grid (stations above it)
+    "sources": [[x, y], …] and "receivers": [[x, y], …]   the two ends of each path datum (2-D; [[x, y, z], …]
+                                   in 3-D); a path that misses the grid (for a cell list, the box of its
+                                   centres) entirely is warned about (a swapped shape or a wrong origin shows
+                                   up this way)
     give either positions or sources and receivers, not both
 
   Units: the file does not convert units. Data, sigma and Cd are in data.unit; G maps the model's

@@ -75,7 +75,7 @@ export const report: Command = {
     { name: 'seed', value: 'S', help: 'seed of the prior realisations (default 1)' },
   ],
   run(args, io) {
-    const problem = loadProblemOption(args, io);
+    const problem = loadProblemOption(args, io, 'priorscope report');
     const priorPath = optionString(args, 'prior')!;
     const [prior] = loadPriors([priorPath], problem, io) as [PriorSpec];
     const compare = (optionString(args, 'compare') ?? '').split(',').filter((s) => s !== '');

@@ -202,7 +202,7 @@ describe('posterior and check', () => {
     const r = await runCommand(['posterior', '--problem', 'p.json', '--prior', 'q.json'], d);
     expect(r.code).toBe(0);
     expect(r.err.split('\n').filter(Boolean)).toEqual([
-      'warning: p.json: unknown field colour ignored (known here: kind, version, title, grid, operator, data, truth, quantity)',
+      'warning: p.json: unknown field colour ignored (known here: kind, version, title, grid, cells, operator, data, truth, quantity)',
       'warning: q.json: unknown field author ignored (known here: kind, version, mean, terms, nugget, stdProfile)',
     ]);
     expect(JSON.parse(r.out)).toEqual(JSON.parse((await runCommand(['posterior', '--problem', 'p.json', '--prior', 'q.json'], dir)).out));

@@ -1,7 +1,8 @@
 import { readFileSync } from 'node:fs';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { DATA_FIELDS, GRID_FIELDS, OPERATOR_FIELDS, parseProblemFile, TOP_FIELDS } from '../../src/core/io/problemFile.ts';
+import { DATA_FIELDS, GRID_FIELDS, CELLS_FIELDS, OPERATOR_FIELDS, parseProblemFile, TOP_FIELDS } from '../../src/core/io/problemFile.ts';
+import { gridProblem } from '../../src/core/problems/spec.ts';
 import { parseGeometryCsv } from '../../src/core/io/geometryCsv.ts';
 import { parseDataCsv } from '../../src/core/io/pieces.ts';
 import { toRows } from '../../src/core/linalg/matrix.ts';
@@ -15,7 +16,7 @@ describe('priorscope --help formats', () => {
     const r = await runCommand([flag, 'formats'], repoRoot);
     expect(r.code).toBe(0);
     // Every field the problem reader knows is named, in quotes as it is written in a file.
-    for (const f of [...TOP_FIELDS, ...GRID_FIELDS, ...OPERATOR_FIELDS, ...DATA_FIELDS]) expect(r.out).toContain(`"${f}"`);
+    for (const f of [...TOP_FIELDS, ...GRID_FIELDS, ...CELLS_FIELDS, ...OPERATOR_FIELDS, ...DATA_FIELDS]) expect(r.out).toContain(`"${f}"`);
     for (const words of ['x fastest', 'ix + nx·iy', 'CENTRE of the first cell', 'sx,sy,rx,ry', 'stdProfile', 'trend']) {
       expect(r.out).toContain(words);
     }
@@ -48,7 +49,10 @@ describe('the downloadable templates are in step with the format', () => {
   });
 
   it('data.csv and geometry.csv hold the same data as problem.json', () => {
-    const { problem } = parseProblemFile('problem.json', read('problem.json'), { readSibling: (name) => read(name) });
+    const problem = gridProblem(
+      parseProblemFile('problem.json', read('problem.json'), { readSibling: (name) => read(name) }).problem,
+      'this test',
+    );
     const d = parseDataCsv('data.csv', read('data.csv'));
     expect([...d.values]).toEqual([...problem.data.values]);
     const geo = parseGeometryCsv('geometry.csv', read('geometry.csv'), problem.grid, d.values.length);

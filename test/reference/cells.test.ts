@@ -265,15 +265,19 @@ describe('readCellList: errors name the field and row', () => {
 });
 
 describe('problem files', () => {
-  it('refuse a `cells` field with a message naming it (not yet read from files), without crashing', () => {
-    const text = JSON.stringify({
+  it('read a `cells` field into a cell list; a file with both grid and cells is refused naming cells', () => {
+    const file = {
       kind: 'priorscope.problem',
       version: 1,
-      cells: { centres: [[0], [1]] },
+      cells: { centres: [[0], [1.5]], volumes: [1, 2] },
       operator: { dense: [[1, 1]] },
       data: { values: [1], sigma: [0.1] },
-    });
-    expect(() => parseProblemFile('p.json', text)).toThrow(/cells must be absent.*resample the mesh onto a grid/);
+    };
+    const g = parseProblemFile('p.json', JSON.stringify(file)).problem.grid;
+    expect(g).toMatchObject({ kind: 'cells', dim: 1 });
+    expect(cellCoordinates(g).x).toEqual(Float64Array.from([0, 1.5]));
+    const both = JSON.stringify({ ...file, grid: { shape: [2], spacing: [1] } });
+    expect(() => parseProblemFile('p.json', both)).toThrow(/p\.json: cells must be absent when grid is given/);
   });
 });
 

@@ -8,7 +8,8 @@ Independent of the project's code:
     points equals |diag(1/l) R^T (x_j - x_i)|;
   * correlations from reference_prior.correlation (Matern by scipy.special.kv, Rasmussen & Williams 2006 eq. 4.14);
   * posterior in the model-space form (Tarantola 2005 eq. 3.37-3.38): C~ = (G^T Cd^-1 G + Cm^-1)^-1,
-    m~ = m0 + C~ G^T Cd^-1 (d - G m0), by Cholesky solves (scipy.linalg.cho_factor / cho_solve).
+    m~ = m0 + C~ G^T Cd^-1 (d - G m0), by Cholesky solves (scipy.linalg.cho_factor / cho_solve);
+  * the extreme eigenvalues of Cm by numpy.linalg.eigvalsh (LAPACK).
 """
 import json
 import sys
@@ -59,7 +60,10 @@ def main():
         fa = linalg.cho_factor(A)
         mean = m0 + linalg.cho_solve(fa, G.T @ (w * (d - G @ m0)))
         std = np.sqrt(np.diag(linalg.cho_solve(fa, np.eye(len(p)))))
-        out.append({"Cm": cm.ravel().tolist(), "m0": m0.tolist(), "mean": mean.tolist(), "std": std.tolist()})
+        ev = np.linalg.eigvalsh(cm)
+        out.append(
+            {"Cm": cm.ravel().tolist(), "m0": m0.tolist(), "mean": mean.tolist(), "std": std.tolist(), "eig": [ev[0], ev[-1]]}
+        )
     json.dump(out, sys.stdout)
 
 

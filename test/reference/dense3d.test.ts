@@ -11,6 +11,7 @@ import { cellCount, type Grid } from '../../src/core/grid/grid.ts';
 import { computePosteriorSerial } from '../../src/core/inverse/compute.ts';
 import { parsePriorFile } from '../../src/core/io/priorFile.ts';
 import { parseProblemFile } from '../../src/core/io/problemFile.ts';
+import { gridProblem } from '../../src/core/problems/spec.ts';
 import { KERNEL_NAMES } from '../../src/core/kernels/spec.ts';
 import { matrix } from '../../src/core/linalg/matrix.ts';
 import { covarianceApply, covarianceMatrix, meanVector } from '../../src/core/prior/covariance.ts';
@@ -184,7 +185,7 @@ describe('3-D conventions', () => {
       operator: { dense: [Array.from({ length: 24 }, (_, i) => (i % 5) / 4), Array.from({ length: 24 }, (_, i) => (i % 3) / 2)] },
       data: { values: [1, 2], sigma: [0.1, 0.1] },
     });
-    const { problem } = parseProblemFile('p3.json', problemText);
+    const problem = gridProblem(parseProblemFile('p3.json', problemText).problem, 'this test');
     expect(problem.grid.shape).toEqual([4, 3, 2]);
     const priorText = JSON.stringify({
       kind: 'priorscope.prior',

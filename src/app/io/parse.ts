@@ -8,7 +8,7 @@ import { FileFormatError, type FileWarning } from '../../core/io/errors.ts';
 import { parseProblemFile } from '../../core/io/problemFile.ts';
 import { parsePriorFile } from '../../core/io/priorFile.ts';
 import { assembleProblem, type NamedBytes, type PiecesInput } from '../../core/io/pieces.ts';
-import type { Problem } from '../../core/problems/spec.ts';
+import { gridProblem, type Problem } from '../../core/problems/spec.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
 import type { Grid } from '../../core/grid/grid.ts';
 
@@ -62,7 +62,12 @@ export function parseRequest(req: ParseRequest): ParseResult {
         return b;
       };
       const r = parseProblemFile(main.name, main.bytes, { readSibling });
-      return { kind: 'problem', problem: r.problem, label: main.name, warnings: r.warnings.map((w) => w.message) };
+      return {
+        kind: 'problem',
+        problem: gridProblem(r.problem, 'the workbench'),
+        label: main.name,
+        warnings: r.warnings.map((w) => w.message),
+      };
     }
     case 'pieces': {
       const warnings: FileWarning[] = [];

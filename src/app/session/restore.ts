@@ -21,7 +21,7 @@ import type { PriorSpec } from '../../core/prior/spec.ts';
 import { validatePrior } from '../../core/prior/validate.ts';
 import { DEMO_CHOICES } from '../demos.ts';
 import { MAX_CELLS, parseProblemFile, writeProblemFile } from '../../core/io/problemFile.ts';
-import type { Problem } from '../../core/problems/spec.ts';
+import { gridProblem, type Problem } from '../../core/problems/spec.ts';
 import { DEFAULT_SEED, TABS, type TabId } from '../view/slice.ts';
 import { SESSION_FORMAT, type SavedSession } from './autosave.ts';
 
@@ -139,12 +139,13 @@ export function validateSavedProblem(raw: unknown): Problem {
     const OPERATOR = (raw as Problem).operator?.kind === 'sparse' ? 'saved-operator.mtx' : 'saved-operator.npy';
     const written = writeProblemFile(raw as Problem, { file: OPERATOR });
     const bytes = written.operatorFile?.bytes;
-    return parseProblemFile('the saved problem', written.json, {
+    const parsed = parseProblemFile('the saved problem', written.json, {
       readSibling: (name) => {
         if (name !== OPERATOR || !bytes) throw new Error('missing');
         return bytes;
       },
     }).problem;
+    return gridProblem(parsed, 'the workbench');
   } catch (e) {
     if (e instanceof InputError || e instanceof FileFormatError) throw new Error(`The saved problem could not be restored: ${e.message}`);
     throw new Error('The saved problem could not be restored: the stored copy is damaged.');

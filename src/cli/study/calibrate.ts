@@ -179,7 +179,7 @@ export const calibrateCommand: Command = {
     const drawsText = optionString(args, 'draws');
     const draws = drawsText === undefined ? 19 : parseNumberOption('draws', drawsText, { integer: true, ge: 1, le: 65534 });
     const route = routeOption(args);
-    const problem = loadProblemOption(args, io);
+    const problem = loadProblemOption(args, io, 'priorscope calibrate');
     const priors = loadPriors(paths, problem, io);
     const n = cellCount(problem.grid);
     const key: CalibrationKey = {

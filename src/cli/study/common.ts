@@ -4,7 +4,7 @@
  * the command line writes them (term0.length) and the core's (terms[0].length).
  */
 import type { PriorSpec } from '../../core/prior/spec.ts';
-import type { Problem } from '../../core/problems/spec.ts';
+import { gridProblem, type Problem } from '../../core/problems/spec.ts';
 import { priorToJson } from '../../core/io/priorFile.ts';
 import { optionString, UsageError, type OptionSpec, type ParsedArgs } from '../args.ts';
 import { reportWarnings, type Io } from '../commands.ts';
@@ -25,14 +25,17 @@ export function routeOption(args: ParsedArgs): RouteChoice {
   return text;
 }
 
-/** The problem of --problem (with --read-from), warnings to stderr. */
-export function loadProblemOption(args: ParsedArgs, io: Io): Problem {
+/**
+ * The problem of --problem (with --read-from), warnings to stderr. These studies run on regular grids (lag
+ * tables, FFT projections): a problem on a cell list is refused naming `command` and what runs on cell lists.
+ */
+export function loadProblemOption(args: ParsedArgs, io: Io, command: string): Problem {
   const readFrom = optionString(args, 'read-from');
   const p = loadProblem(optionString(args, 'problem')!, {
     readFrom: readFrom === undefined ? [] : readFrom.split(',').filter((d) => d !== ''),
   });
   reportWarnings(io, p.warnings);
-  return p.problem;
+  return gridProblem(p.problem, command);
 }
 
 /** Prior files checked against the problem's grid, warnings to stderr. */

@@ -148,7 +148,7 @@ export const fit: Command = {
     const maxText = optionString(args, 'max-iterations');
     const maxIterations =
       maxText === undefined ? undefined : parseNumberOption('max-iterations', maxText, { integer: true, ge: 1, le: 100000 });
-    const problem = loadProblemOption(args, io);
+    const problem = loadProblemOption(args, io, 'priorscope fit');
     const q = loadPrior(optionString(args, 'prior')!, problem.grid);
     reportWarnings(io, q.warnings);
     const start = q.prior;

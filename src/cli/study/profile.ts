@@ -107,7 +107,7 @@ export const profile: Command = {
       if (hi < lo) throw new UsageError(`--range must have lo ≤ hi, got ${JSON.stringify(rangeText)}`);
       values = Array.from(logSpaced({ min: lo, max: hi, count: n }, 'range'));
     }
-    const problem = loadProblemOption(args, io);
+    const problem = loadProblemOption(args, io, 'priorscope profile');
     const q = loadPrior(optionString(args, 'prior')!, problem.grid);
     reportWarnings(io, q.warnings);
     const prior = q.prior;

@@ -88,7 +88,7 @@ export const score: Command = {
   run(args, io) {
     const paths = priorPaths(args);
     const route = routeOption(args);
-    const problem = loadProblemOption(args, io);
+    const problem = loadProblemOption(args, io, 'priorscope score');
     const priors = loadPriors(paths, problem, io);
     const key: ScoreKey = { problem: problemKey(problem), priors: paths, priorObjects: priors.map(priorObject), route };
     const out = runShardable<ScorePartial>((t) => emit(io, args, t), args, {

@@ -7,6 +7,7 @@
  * and is not meant to resist deliberate collisions).
  */
 import { matchOperator } from '../linalg/operator.ts';
+import { type Geometry, isCellList } from '../grid/grid.ts';
 import type { Problem } from '../problems/spec.ts';
 
 function mix(h: [number, number], words: Uint32Array): void {
@@ -26,9 +27,14 @@ const words = (a: Float64Array | Int32Array | Uint32Array) => new Uint32Array(a.
 const numbers = (xs: readonly number[]) => words(Float64Array.from(xs));
 
 /** 16 hexadecimal digits identifying the problem's grid, data and operator. */
-export function problemFingerprint(p: Problem): string {
+export function problemFingerprint(p: Problem<Geometry>): string {
   const h: [number, number] = [0x9e3779b9, 0x85ebca6b];
-  mix(h, numbers([...p.grid.shape, -1, ...p.grid.spacing, -2, ...(p.grid.origin ?? [])]));
+  const g0 = p.grid;
+  if (isCellList(g0)) {
+    // A cell list: its dimension and centres (a grid's words start with a positive count, this with −3).
+    mix(h, numbers([-3, g0.dim, g0.x.length]));
+    for (const a of [g0.x, g0.y, g0.z]) mix(h, words(a));
+  } else mix(h, numbers([...g0.shape, -1, ...g0.spacing, -2, ...(g0.origin ?? [])]));
   mix(h, words(p.data.values));
   if (p.data.sigma) mix(h, words(p.data.sigma));
   if (p.data.covariance) mix(h, words(p.data.covariance.data));

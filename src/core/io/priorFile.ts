@@ -15,8 +15,7 @@
  * Unknown fields give warnings (and are dropped); an `angle` on an isotropic term and a `nu` on a
  * non-Matérn term are kept in the spec (for the exact round trip) but warned about: the core ignores them.
  */
-import type { Grid } from '../grid/grid.ts';
-import { cellCount } from '../grid/grid.ts';
+import { cellCount, type Geometry, gridDimension } from '../grid/grid.ts';
 import { isAnisotropic, KERNEL_NAMES, type KernelName, type Term } from '../kernels/spec.ts';
 import { kernelsTaking, kernelTakes } from '../kernels/table.ts';
 import type { MeanSpec, PriorSpec } from '../prior/spec.ts';
@@ -34,7 +33,7 @@ export interface PriorFileResult {
 
 export interface PriorReadOptions {
   /** When given, lengths that depend on the grid (mean.values, stdProfile, 2-D-only fields) are checked. */
-  readonly grid?: Grid;
+  readonly grid?: Geometry;
 }
 
 const TOP_FIELDS = ['kind', 'version', 'mean', 'terms', 'nugget', 'stdProfile'] as const;
@@ -151,9 +150,9 @@ export function readPriorObject(r: JsonReader, value: unknown, options: PriorRea
  * Grid-dependent checks of a prior: lengths of mean.values and stdProfile equal the cell count,
  * the trend slope and anisotropic terms match the grid's dimension.
  */
-export function checkPriorForGrid(file: string, prior: PriorSpec, grid: Grid): void {
+export function checkPriorForGrid(file: string, prior: PriorSpec, grid: Geometry): void {
   const n = cellCount(grid);
-  const dim = grid.shape.length;
+  const dim = gridDimension(grid);
   const m = prior.mean;
   if ('values' in m && m.values.length !== n) {
     throw fieldError(file, 'mean.values', `an array of ${n} numbers (one per grid cell)`, m.values);

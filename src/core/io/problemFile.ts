@@ -2,28 +2,33 @@
  * The problem file: JSON `{"kind": "priorscope.problem", "version": 1, …}` ⇄ core Problem.
  *
  *   title      optional string
- *   grid       {"shape": [nx] | [nx, ny], "spacing": [dx] | [dx, dy] (> 0), "origin"?: [...], "unit"?: "m",
- *               "axes"?: ["x"] | ["x", "depth"]}
- *              cell (ix, iy) sits at (x0 + dx·ix, y0 + dy·iy) and has index ix + nx·iy; "axes" names the
- *              axes in every label (non-empty, distinct, at most 40 characters; default "x" and "y")
+ *   grid       {"shape": [nx] | [nx, ny] | [nx, ny, nz], "spacing": [dx] | [dx, dy] | [dx, dy, dz] (> 0),
+ *               "origin"?: [...], "unit"?: "m", "axes"?: ["x"] | ["x", "depth"] | ["x", "y", "z"]}
+ *              cell (ix, iy, iz) sits at (x0 + dx·ix, y0 + dy·iy, z0 + dz·iz) and has index ix + nx·(iy + ny·iz);
+ *              "axes" names the axes in every label (non-empty, distinct, at most 40 characters; default x, y, z)
+ *   cells      instead of grid, the user's own mesh (../io/cellList.ts): {"centres": [[x, y], …] | "c.npy" (N × d),
+ *              "volumes"?: [N numbers > 0], "unit"?: "m", "axes"?: [...]}, d = 1, 2 or 3; cell i is row i
  *   operator   {"dense": [[N numbers], … M rows]}
  *              | {"sparse": {"rows": [...], "cols": [...], "values": [...]}}   zero-based, duplicates summed
  *              | {"file": "G.csv" | "G.mtx" | "G.npy"}                         a sibling file, by extension
  *   data       {"values": [M numbers], "sigma": [M numbers > 0]}  or  {"values": [...], "covariance": M×M SPD}
  *              optional "unit": "ms"; optional geometry, M rows in the grid's unit and axes, for plots only:
- *              "positions": [[x], …] (1-D) or [[x, y], …] (2-D), where each point datum was measured
- *              (may lie outside the grid), or "sources" and "receivers": [[x, y], …] (2-D), the ends of
- *              each path datum (a path that misses the grid entirely is warned about)
+ *              "positions": [[x], …] (1-D), [[x, y], …] (2-D) or [[x, y, z], …] (3-D), where each point datum
+ *              was measured (may lie outside the grid), or "sources" and "receivers": [[x, y], …] (2-D) or
+ *              [[x, y, z], …] (3-D), the ends of each path datum (a path that misses the grid entirely is warned
+ *              about; for a cell list, the box of its centres)
  *   truth      optional, N numbers
  *   quantity   optional {"name": "...", "unit"?: "..."}
  *
- * M (the number of data) is the length of data.values; N is the grid's cell count. Sibling files
+ * M (the number of data) is the length of data.values; N is the grid's cell count (a cell list's row count). Sibling files
  * are read through an injected `readSibling(name) → bytes`, so the browser (files picked together)
  * and the command line (the problem file's directory) share this module. A data covariance must be
  * symmetric (to 1e-12 of its largest entry) and pass the Cholesky test of positive definiteness
  * (Higham 2002, Thm 10.7).
  */
-import { cellCount, type Grid } from '../grid/grid.ts';
+import { cellCount, type Geometry, type Grid, gridDimension, isCellList } from '../grid/grid.ts';
+import { InputError } from '../errors.ts';
+import { readCellList } from './cellList.ts';
 import { covarianceDefect } from './covarianceCheck.ts';
 import type { Matrix } from '../linalg/matrix.ts';
 import { matchOperator, operatorAsDense, operatorEntries, type Operator } from '../linalg/operator.ts';
@@ -58,12 +63,14 @@ export interface ProblemReadOptions {
 }
 
 export interface ProblemFileResult {
-  readonly problem: Problem;
+  /** On a regular grid or, when the file gave `cells`, on a cell list. */
+  readonly problem: Problem<Geometry>;
   readonly warnings: readonly FileWarning[];
 }
 
 /** The fields each object of a problem file may hold (the `--help formats` test checks that every one is documented). */
-export const TOP_FIELDS = ['kind', 'version', 'title', 'grid', 'operator', 'data', 'truth', 'quantity'] as const;
+export const TOP_FIELDS = ['kind', 'version', 'title', 'grid', 'cells', 'operator', 'data', 'truth', 'quantity'] as const;
+export const CELLS_FIELDS = ['centres', 'volumes', 'unit', 'axes'] as const;
 export const GRID_FIELDS = ['shape', 'spacing', 'origin', 'unit', 'axes'] as const;
 export const OPERATOR_FIELDS = ['dense', 'sparse', 'file'] as const;
 export const DATA_FIELDS = ['values', 'sigma', 'covariance', 'unit', 'positions', 'sources', 'receivers'] as const;
@@ -103,7 +110,7 @@ function readGrid(r: JsonReader, value: unknown): Grid {
  * The data fields; `operatorRows` is the row count of an inline dense operator, so that when
  * data.values alone disagrees with data.sigma and the operator, data.values is the field named.
  */
-function readData(r: JsonReader, value: unknown, grid: Grid, operatorRows?: number): DataSpec {
+function readData(r: JsonReader, value: unknown, grid: Geometry, operatorRows?: number): DataSpec {
   const d = r.object(value, 'data', DATA_FIELDS);
   const values = r.vector(r.required(d, 'data', 'values', 'an array of numbers (the data)'), 'data.values');
   const m = values.length;
@@ -129,8 +136,8 @@ function readData(r: JsonReader, value: unknown, grid: Grid, operatorRows?: numb
 }
 
 /** "[x, depth]": one row of coordinates named by the grid's axes. */
-function coordinateWords(grid: Grid, dim: number): string {
-  const names = grid.axes ?? ['x', 'y'];
+function coordinateWords(grid: Geometry, dim: number): string {
+  const names = grid.axes ?? ['x', 'y', 'z'];
   return `[${names.slice(0, dim).join(', ')}]`;
 }
 
@@ -147,8 +154,8 @@ function readCoordinates(r: JsonReader, value: unknown, field: string, m: number
 }
 
 /** The optional geometry fields of `data` (see the module comment); warns about paths that miss the grid. */
-function readGeometry(r: JsonReader, d: Record<string, unknown>, grid: Grid, m: number): DataGeometry | null {
-  const dim = grid.shape.length;
+function readGeometry(r: JsonReader, d: Record<string, unknown>, grid: Geometry, m: number): DataGeometry | null {
+  const dim = gridDimension(grid);
   const paths = d.sources !== undefined || d.receivers !== undefined;
   if (d.positions !== undefined && paths) {
     r.fail('data', 'an object with either positions (point data) or sources and receivers (path data), not both', 'both');
@@ -157,11 +164,15 @@ function readGeometry(r: JsonReader, d: Record<string, unknown>, grid: Grid, m: 
     return { kind: 'points', positions: readCoordinates(r, d.positions, 'data.positions', m, dim, coordinateWords(grid, dim)) };
   }
   if (!paths) return null;
-  if (dim !== 2) {
+  if (dim === 1) {
     const field = d.sources !== undefined ? 'data.sources' : 'data.receivers';
-    r.fail(field, 'absent on a 1-D grid (paths need a 2-D grid; give data.positions [[x], …] for point data)', d.sources ?? d.receivers);
+    r.fail(
+      field,
+      'absent on a 1-D grid (paths need a 2-D or 3-D grid; give data.positions [[x], …] for point data)',
+      d.sources ?? d.receivers,
+    );
   }
-  const words = coordinateWords(grid, 2);
+  const words = coordinateWords(grid, dim);
   for (const [k, other] of [
     ['sources', 'receivers'],
     ['receivers', 'sources'],
@@ -171,8 +182,8 @@ function readGeometry(r: JsonReader, d: Record<string, unknown>, grid: Grid, m: 
   }
   const geometry: DataGeometry = {
     kind: 'paths',
-    sources: readCoordinates(r, d.sources, 'data.sources', m, 2, words),
-    receivers: readCoordinates(r, d.receivers, 'data.receivers', m, 2, words),
+    sources: readCoordinates(r, d.sources, 'data.sources', m, dim, words),
+    receivers: readCoordinates(r, d.receivers, 'data.receivers', m, dim, words),
   };
   const missing = pathsMissingGrid(grid, geometry);
   if (missing.length > 0) r.warn('data.sources', pathsMissWarning(grid, missing, m));
@@ -181,19 +192,25 @@ function readGeometry(r: JsonReader, d: Record<string, unknown>, grid: Grid, m: 
 
 /** The warning about paths outside the grid, with the grid's outline so a wrong origin or swapped shape shows. */
 export function pathsMissWarning(
-  grid: Grid,
+  grid: Geometry,
   missing: readonly number[],
   m: number,
-  words = { ends: 'data.sources → data.receivers', origin: 'grid.origin', shape: 'grid.shape [nx, ny]' },
+  words = {
+    ends: 'data.sources → data.receivers',
+    origin: 'grid.origin',
+    shape: gridDimension(grid) === 3 ? 'grid.shape [nx, ny, nz]' : 'grid.shape [nx, ny]',
+  },
 ): string {
   const b = gridBounds(grid);
-  const [ax, ay] = grid.axes ?? ['x', 'y'];
+  const [ax, ay, az] = grid.axes ?? ['x', 'y', 'z'];
   const u = grid.unit ? ` ${grid.unit}` : '';
-  const span = `${ax} ${formatNumber(b.x[0])} to ${formatNumber(b.x[1])}${u}, ${ay} ${formatNumber(b.y[0])} to ${formatNumber(b.y[1])}${u}`;
-  return (
-    `${missing.length} of ${m} path${m === 1 ? '' : 's'} (${words.ends}, ${rowList(missing)}) miss the grid entirely ` +
-    `(it spans ${span}); check ${words.origin} (the first cell centre) and the order of ${words.shape}`
-  );
+  const range = (name: string, v: readonly [number, number]) => `${name} ${formatNumber(v[0])} to ${formatNumber(v[1])}${u}`;
+  const span = [range(ax, b.x), range(ay, b.y), ...(b.z ? [range(az ?? 'z', b.z)] : [])].join(', ');
+  const check = isCellList(grid)
+    ? 'check the coordinates of cells.centres and of the path ends (same unit and axes)'
+    : `check ${words.origin} (the first cell centre) and the order of ${words.shape}`;
+  const what = isCellList(grid) ? 'the cell list' : 'the grid';
+  return `${missing.length} of ${m} path${m === 1 ? '' : 's'} (${words.ends}, ${rowList(missing)}) miss ${what} entirely (it spans ${span}); ${check}`;
 }
 
 /** The data covariance must be symmetric and positive definite (see ./covarianceCheck.ts). */
@@ -228,7 +245,7 @@ function readIndex(r: JsonReader, value: unknown, array: string, p: number, limi
   return value as number;
 }
 
-function readOperator(r: JsonReader, value: unknown, m: number, n: number, options: ProblemReadOptions): Operator {
+function readOperator(r: JsonReader, value: unknown, m: number, n: number, options: ProblemReadOptions, cellWord = 'grid cell'): Operator {
   const o = r.object(value, 'operator', OPERATOR_FIELDS);
   const forms = ['dense', 'sparse', 'file'].filter((k) => o[k] !== undefined);
   if (forms.length !== 1) {
@@ -239,7 +256,7 @@ function readOperator(r: JsonReader, value: unknown, m: number, n: number, optio
     if (rows.length !== m) r.fail('operator.dense', `an array of ${m} rows (one per datum in data.values)`, rows);
     for (let i = 0; i < m; i++) {
       const row = rows[i];
-      if (!Array.isArray(row) || row.length !== n) r.fail(`operator.dense[${i}]`, `an array of ${n} numbers (one per grid cell)`, row);
+      if (!Array.isArray(row) || row.length !== n) r.fail(`operator.dense[${i}]`, `an array of ${n} numbers (one per ${cellWord})`, row);
     }
     return { kind: 'dense', matrix: r.matrixRows(o.dense, 'operator.dense', m, n) };
   }
@@ -262,19 +279,7 @@ function readOperator(r: JsonReader, value: unknown, m: number, n: number, optio
   const lower = name.toLowerCase();
   const format = lower.endsWith('.csv') ? 'csv' : lower.endsWith('.mtx') ? 'mtx' : lower.endsWith('.npy') ? 'npy' : null;
   if (!format) r.fail('operator.file', 'the name of a .csv, .mtx (Matrix Market) or .npy file', name);
-  if (!options.readSibling) {
-    throw new FileFormatError(r.file, `operator.file ${formatValue(name)} cannot be read here (no access to files next to ${r.file})`, {
-      field: 'operator.file',
-    });
-  }
-  let bytes: Uint8Array;
-  try {
-    bytes = options.readSibling(name);
-  } catch (e) {
-    throw new FileFormatError(r.file, `operator.file ${formatValue(name)} could not be read: ${(e as Error).message}`, {
-      field: 'operator.file',
-    });
-  }
+  const bytes = siblingBytes(r, 'operator.file', name, options);
   const sibling = baseName(name);
   let g: Operator;
   switch (format!) {
@@ -297,7 +302,7 @@ function readOperator(r: JsonReader, value: unknown, m: number, n: number, optio
   if (g.matrix.rows !== m || g.matrix.cols !== n) {
     throw new FileFormatError(
       r.file,
-      `operator.file ${formatValue(name)} must hold a ${m} × ${n} matrix (data × grid cells), got ${g.matrix.rows} × ${g.matrix.cols}`,
+      `operator.file ${formatValue(name)} must hold a ${m} × ${n} matrix (data × ${cellWord}s), got ${g.matrix.rows} × ${g.matrix.cols}`,
       { field: 'operator.file' },
     );
   }
@@ -309,7 +314,7 @@ function readOperator(r: JsonReader, value: unknown, m: number, n: number, optio
  * ≤ 1e50, sigma from 1e-50 to 1e50 (σ = 1e-300 used to overflow 1/σ² into null results). Throws a
  * FileFormatError of `file` naming the field.
  */
-export function checkProblemScales(file: string, problem: Problem, operatorField = 'operator'): void {
+export function checkProblemScales(file: string, problem: Problem<Geometry>, operatorField = 'operator'): void {
   const fail = (field: string, expected: string, v: number): never => {
     throw new FileFormatError(
       file,
@@ -330,26 +335,70 @@ export function checkProblemScales(file: string, problem: Problem, operatorField
   }
 }
 
+/** Bytes of a sibling file named in `field`, the failure worded as a FileFormatError of the problem file. */
+function siblingBytes(r: JsonReader, field: string, name: string, options: ProblemReadOptions): Uint8Array {
+  if (!options.readSibling) {
+    throw new FileFormatError(r.file, `${field} ${formatValue(name)} cannot be read here (no access to files next to ${r.file})`, {
+      field,
+    });
+  }
+  try {
+    return options.readSibling(name);
+  } catch (e) {
+    throw new FileFormatError(r.file, `${field} ${formatValue(name)} could not be read: ${(e as Error).message}`, { field });
+  }
+}
+
+/** The `cells` object (../io/cellList.ts); centres inline or in a sibling .npy of shape (N, d). */
+function readCells(r: JsonReader, value: unknown, options: ProblemReadOptions): Geometry {
+  const c = r.object(value, 'cells', CELLS_FIELDS);
+  let npy: Matrix | undefined;
+  if (typeof c.centres === 'string') {
+    const name = c.centres;
+    if (!name.toLowerCase().endsWith('.npy')) r.fail('cells.centres', 'rows [[x, y], …] or the name of a sibling .npy file (N × d)', name);
+    const sibling = baseName(name);
+    const a = parseNpy(sibling, siblingBytes(r, 'cells.centres', name, options));
+    if (a.shape.length !== 2 || a.shape[1] < 1 || a.shape[1] > 3) {
+      throw new FileFormatError(
+        sibling,
+        `must hold the cell centres as shape (N, d) with d = 1, 2 or 3 coordinates per row, got shape (${a.shape.join(', ')}${a.shape.length === 1 ? ',' : ''})`,
+      );
+    }
+    npy = npyToMatrix(sibling, a);
+  }
+  try {
+    return readCellList(c, npy, 'cells');
+  } catch (e) {
+    if (e instanceof InputError) throw new FileFormatError(r.file, e.message, { field: e.field });
+    throw e;
+  }
+}
+
 /** Parse a problem file (text or UTF-8 bytes). */
 export function parseProblemFile(file: string, input: string | Uint8Array, options: ProblemReadOptions = {}): ProblemFileResult {
   const r = new JsonReader(file);
   const obj = r.object(parseJsonText(file, input), '', TOP_FIELDS);
   checkKindVersion(r, obj, PROBLEM_KIND, PROBLEM_VERSION);
-  if (obj.cells !== undefined) {
-    // The core computes priors on cell lists (../io/cellList.ts, ../prior/cells.ts); problem files do not read them yet.
-    r.fail(
-      'cells',
-      'absent: problem files read a regular "grid" only so far (cell lists of your own mesh are not yet read from files; resample the mesh onto a grid)',
-      'a cell list',
-    );
+  if (obj.cells !== undefined && obj.grid !== undefined) {
+    r.fail('cells', 'absent when grid is given (a problem has either a regular grid or a cell list of its own mesh)', 'both');
   }
-  const grid = readGrid(r, r.required(obj, '', 'grid', 'an object with shape and spacing'));
+  const grid: Geometry =
+    obj.cells !== undefined
+      ? readCells(r, obj.cells, options)
+      : readGrid(r, r.required(obj, '', 'grid', 'an object with shape and spacing'));
   const n = cellCount(grid);
   const op = obj.operator as { dense?: unknown } | undefined;
   const operatorRows = op !== null && typeof op === 'object' && Array.isArray(op.dense) ? op.dense.length : undefined;
   const data = readData(r, r.required(obj, '', 'data', 'an object with values and sigma or covariance'), grid, operatorRows);
-  const operator = readOperator(r, r.required(obj, '', 'operator', 'an object with dense, sparse or file'), data.values.length, n, options);
-  const problem: { -readonly [K in keyof Problem]: Problem[K] } = { grid, operator, data };
+  const operator = readOperator(
+    r,
+    r.required(obj, '', 'operator', 'an object with dense, sparse or file'),
+    data.values.length,
+    n,
+    options,
+    isCellList(grid) ? 'cell (row of cells.centres)' : 'grid cell',
+  );
+  const problem: { -readonly [K in keyof Problem<Geometry>]: Problem<Geometry>[K] } = { grid, operator, data };
   if (obj.title !== undefined) problem.title = r.string(obj.title, 'title');
   if (obj.truth !== undefined) problem.truth = r.vector(obj.truth, 'truth', n);
   if (obj.quantity !== undefined) {
@@ -376,12 +425,23 @@ function vec(a: ArrayLike<number>): number[] {
 }
 
 /** The JSON object of a problem file (operator inline unless `operatorFile` names a sibling). */
-export function problemToJson(problem: Problem, operatorFile?: string): Record<string, unknown> {
-  const g = problem.grid;
-  const grid: Record<string, unknown> = { shape: vec(g.shape), spacing: vec(g.spacing) };
-  if (g.origin !== undefined) grid.origin = vec(g.origin);
-  if (g.unit !== undefined) grid.unit = g.unit;
-  if (g.axes !== undefined) grid.axes = [...g.axes];
+function geometryJson(g: Geometry): Record<string, unknown> {
+  const out: Record<string, unknown> = {};
+  if (isCellList(g)) {
+    const axis = [g.x, g.y, g.z];
+    out.centres = Array.from({ length: g.x.length }, (_, i) => axis.slice(0, g.dim).map((a) => a[i]));
+    if (g.volumes !== undefined) out.volumes = vec(g.volumes);
+  } else {
+    out.shape = vec(g.shape);
+    out.spacing = vec(g.spacing);
+    if (g.origin !== undefined) out.origin = vec(g.origin);
+  }
+  if (g.unit !== undefined) out.unit = g.unit;
+  if (g.axes !== undefined) out.axes = [...g.axes];
+  return out;
+}
+
+export function problemToJson(problem: Problem<Geometry>, operatorFile?: string): Record<string, unknown> {
   let operator: Record<string, unknown>;
   if (operatorFile !== undefined) operator = { file: operatorFile };
   else {
@@ -409,7 +469,7 @@ export function problemToJson(problem: Problem, operatorFile?: string): Record<s
   }
   const out: Record<string, unknown> = { kind: PROBLEM_KIND, version: PROBLEM_VERSION };
   if (problem.title !== undefined) out.title = problem.title;
-  out.grid = grid;
+  out[isCellList(problem.grid) ? 'cells' : 'grid'] = geometryJson(problem.grid);
   out.operator = operator;
   out.data = data;
   if (problem.truth !== undefined) out.truth = vec(problem.truth);
@@ -431,7 +491,7 @@ export function encodeOperatorFile(name: string, g: Operator): Uint8Array {
  * back (with the sibling) to an equal Problem: numbers are written in their shortest round-trip
  * form, a sparse operator as its (sorted, duplicate-free) coordinates.
  */
-export function writeProblemFile(problem: Problem, placement: OperatorPlacement = 'inline'): ProblemWriteResult {
+export function writeProblemFile(problem: Problem<Geometry>, placement: OperatorPlacement = 'inline'): ProblemWriteResult {
   if (placement === 'inline') return { json: formatJson(problemToJson(problem)) };
   const bytes = encodeOperatorFile(placement.file, problem.operator);
   return {

@@ -17,7 +17,7 @@
  */
 import { KERNEL_NAMES } from '../kernels/spec.ts';
 import { kernelDefinition, KERNELS, kernelTakes, termSmoothness } from '../kernels/table.ts';
-import { cellCount, gridDimension, type Grid } from '../grid/grid.ts';
+import { cellCount, type Geometry, gridDimension, type Grid, isCellList } from '../grid/grid.ts';
 import { cholesky } from '../linalg/cholesky.ts';
 import { lanczosExtremes, symmetricEigenvalues } from '../linalg/eigen.ts';
 import type { Matrix } from '../linalg/matrix.ts';
@@ -163,7 +163,7 @@ function extremeEigenvalues(c: Matrix): { min: number; max: number; method: 'exa
 }
 
 /** Diagnostics of a symmetric matrix; with `context`, prior-specific warnings are added. */
-export function diagnoseCovariance(c: Matrix, context?: { grid: Grid; prior: PriorSpec }): Diagnostics {
+export function diagnoseCovariance(c: Matrix, context?: { grid: Geometry; prior: PriorSpec }): Diagnostics {
   const n = c.rows;
   const chol = cholesky(c);
   const failedPivot = chol.ok ? null : chol.pivot;
@@ -228,7 +228,8 @@ export function diagnoseCovariance(c: Matrix, context?: { grid: Grid; prior: Pri
       message: 'No diagonal jitter up to the mean prior variance makes the covariance well conditioned; check the covariance terms.',
     });
   }
-  if (context) warnings.push(...priorWarnings(context.grid, context.prior));
+  // The spec-only warnings rest on the lattice (lag tables); a cell list has none.
+  if (context && !isCellList(context.grid)) warnings.push(...priorWarnings(context.grid, context.prior));
   return {
     verdict,
     positiveDefinite: verdictValue(verdict),
@@ -251,14 +252,20 @@ export function diagnoseCovariance(c: Matrix, context?: { grid: Grid; prior: Pri
   };
 }
 
-function cellLabel(i: number, grid?: Grid): string {
-  if (!grid || gridDimension(grid) === 1) return '';
+function cellLabel(i: number, grid?: Geometry): string {
+  if (!grid) return '';
+  if (isCellList(grid)) return ` (row ${i} of cells.centres)`;
+  const dim = gridDimension(grid);
+  if (dim === 1) return '';
   const nx = grid.shape[0];
-  return ` (cell ix = ${i % nx}, iy = ${Math.floor(i / nx)})`;
+  const ny = grid.shape[1];
+  return dim === 2
+    ? ` (cell ix = ${i % nx}, iy = ${Math.floor(i / nx)})`
+    : ` (cell ix = ${i % nx}, iy = ${Math.floor(i / nx) % ny}, iz = ${Math.floor(i / (nx * ny))})`;
 }
 
 /** Validates the prior, assembles Cm and diagnoses it, with prior-specific warnings. */
-export function diagnosePrior(grid: Grid, prior: PriorSpec): Diagnostics {
+export function diagnosePrior(grid: Geometry, prior: PriorSpec): Diagnostics {
   return diagnoseCovariance(covarianceMatrix(grid, prior), { grid, prior });
 }
 

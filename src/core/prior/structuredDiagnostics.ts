@@ -51,7 +51,7 @@
  * STRUCTURED_DIAGNOSTICS_MIN_CELLS, spectrumBracket.
  */
 import { InputError } from '../errors.ts';
-import { cellCount, type Grid } from '../grid/grid.ts';
+import { cellCount, type Geometry, type Grid, isCellList } from '../grid/grid.ts';
 import { lanczosExtremes } from '../linalg/eigen.ts';
 import { circulantEmbedding, gridAxes, productPadding } from '../fft/embedding.ts';
 import { covarianceOperator, nonStationaryReason } from '../fft/covariance.ts';
@@ -363,6 +363,8 @@ export function chooseDiagnosticsPath(grid: Grid, prior: PriorSpec): Diagnostics
 }
 
 /** Diagnostics through the route {@link chooseDiagnosticsPath} picks; `eigenvalueMethod` says which ran. */
-export function diagnosePriorAuto(grid: Grid, prior: PriorSpec): Diagnostics {
+export function diagnosePriorAuto(grid: Geometry, prior: PriorSpec): Diagnostics {
+  // A cell list has no lattice, so no circulant embedding: dense Cholesky and eigenvalues.
+  if (isCellList(grid)) return diagnosePrior(grid, prior);
   return chooseDiagnosticsPath(grid, prior).path === 'fft' ? diagnoseStructured(grid, prior) : diagnosePrior(grid, prior);
 }

@@ -2,35 +2,55 @@
  * Data geometry (see DataGeometry in ./spec.ts): the grid's outline and which paths miss it.
  * PUBLIC API: gridBounds, segmentMeetsBox, pathsMissingGrid, geometryRows.
  */
-import { gridDimension, type Grid } from '../grid/grid.ts';
+import { gridDimension, isCellList, type Geometry } from '../grid/grid.ts';
 import type { DataGeometry } from './spec.ts';
 
-/** Axis-aligned box: the grid's outer cell edges. */
+/** Axis-aligned box: the grid's outer cell edges (a cell list: the span of its centres). */
 export interface Bounds {
   readonly x: readonly [number, number];
   /** [0, 0] for a 1-D grid. */
   readonly y: readonly [number, number];
+  /** Present on 3-D geometries only. */
+  readonly z?: readonly [number, number];
+}
+
+function span(v: Float64Array): [number, number] {
+  let lo = Number.POSITIVE_INFINITY;
+  let hi = Number.NEGATIVE_INFINITY;
+  for (let i = 0; i < v.length; i++) {
+    if (v[i] < lo) lo = v[i];
+    if (v[i] > hi) hi = v[i];
+  }
+  return [lo, hi];
 }
 
 /**
  * Outer edges of the grid: cell k along an axis is centred at origin + k·spacing and spans half a
  * spacing either side, so the grid covers [x0 − dx/2, x0 + (nx − ½)·dx] (and the same along y).
  */
-export function gridBounds(grid: Grid): Bounds {
+export function gridBounds(grid: Geometry): Bounds {
+  const dim = gridDimension(grid);
+  if (isCellList(grid)) {
+    // No cell sizes are known: the box of the centres themselves.
+    const b = { x: span(grid.x), y: dim >= 2 ? span(grid.y) : ([0, 0] as [number, number]) };
+    return dim === 3 ? { ...b, z: span(grid.z) } : b;
+  }
   const edge = (k: number): [number, number] => {
     const o = grid.origin?.[k] ?? 0;
     const d = grid.spacing[k];
     return [o - d / 2, o + (grid.shape[k] - 0.5) * d];
   };
-  return { x: edge(0), y: gridDimension(grid) === 2 ? edge(1) : [0, 0] };
+  const b = { x: edge(0), y: dim >= 2 ? edge(1) : ([0, 0] as [number, number]) };
+  return dim === 3 ? { ...b, z: edge(2) } : b;
 }
 
 /**
  * Whether the closed segment from p to q meets the closed box, by Liang–Barsky clipping
  * (Liang & Barsky 1984, ACM Trans. Graph. 3:1; from memory): the parameter interval
- * t ∈ [0, 1] is narrowed by each of the four edges and the segment meets the box when it stays non-empty.
+ * t ∈ [0, 1] is narrowed by each of the four edges (six faces in 3-D: points [x, y, z] and a box with z)
+ * and the segment meets the box when it stays non-empty.
  */
-export function segmentMeetsBox(p: readonly [number, number], q: readonly [number, number], box: Bounds): boolean {
+export function segmentMeetsBox(p: readonly number[], q: readonly number[], box: Bounds): boolean {
   let t0 = 0;
   let t1 = 1;
   const dx = q[0] - p[0];
@@ -48,18 +68,25 @@ export function segmentMeetsBox(p: readonly [number, number], q: readonly [numbe
     }
     return true;
   };
-  return clip(-dx, p[0] - box.x[0]) && clip(dx, box.x[1] - p[0]) && clip(-dy, p[1] - box.y[0]) && clip(dy, box.y[1] - p[1]) && t0 <= t1;
+  const inPlane = clip(-dx, p[0] - box.x[0]) && clip(dx, box.x[1] - p[0]) && clip(-dy, p[1] - box.y[0]) && clip(dy, box.y[1] - p[1]);
+  if (!inPlane) return false;
+  if (box.z !== undefined && p.length > 2) {
+    const dz = q[2] - p[2];
+    if (!(clip(-dz, p[2] - box.z[0]) && clip(dz, box.z[1] - p[2]))) return false;
+  }
+  return t0 <= t1;
 }
 
 /** Zero-based indices of the path data whose source–receiver segment does not touch the grid (points: none). */
-export function pathsMissingGrid(grid: Grid, geometry: DataGeometry): number[] {
+export function pathsMissingGrid(grid: Geometry, geometry: DataGeometry): number[] {
   if (geometry.kind !== 'paths') return [];
   const box = gridBounds(grid);
-  const s = geometry.sources.data;
-  const r = geometry.receivers.data;
+  const s = geometry.sources;
+  const r = geometry.receivers;
+  const d = s.cols;
   const out: number[] = [];
-  for (let k = 0; k < geometry.sources.rows; k++) {
-    if (!segmentMeetsBox([s[2 * k], s[2 * k + 1]], [r[2 * k], r[2 * k + 1]], box)) out.push(k);
+  for (let k = 0; k < s.rows; k++) {
+    if (!segmentMeetsBox(Array.from(s.data.subarray(d * k, d * k + d)), Array.from(r.data.subarray(d * k, d * k + d)), box)) out.push(k);
   }
   return out;
 }

@@ -2,19 +2,20 @@
  * A linear inverse problem d = G m + e, e ~ N(0, Cd), on a regular grid.
  * Typed-array form used inside the core; the JSON problem file maps onto it in src/core/io.
  */
-import type { Geometry, Grid } from '../grid/grid.ts';
+import { InputError } from '../errors.ts';
+import { type Geometry, type Grid, isCellList } from '../grid/grid.ts';
 import type { Matrix } from '../linalg/matrix.ts';
 import type { Operator } from '../linalg/operator.ts';
 
 /**
  * Where each datum was measured, in the grid's unit and along its axes (row k belongs to datum k):
- * a point datum at a position (a station, a sample; [x] in 1-D, [x, y] in 2-D), or a path datum
- * between a source and a receiver (2-D only, [x, y] each). Positions may lie outside the grid
+ * a point datum at a position (a station, a sample; [x] in 1-D, [x, y] in 2-D, [x, y, z] in 3-D), or a
+ * path datum between a source and a receiver ([x, y] each in 2-D, [x, y, z] in 3-D). Positions may lie outside the grid
  * (stations above a section). Used for plots only; G alone defines the forward model.
  */
 export type DataGeometry =
   | { readonly kind: 'points' /** M × dim, row-major. */; readonly positions: Matrix }
-  | { readonly kind: 'paths' /** M × 2. */; readonly sources: Matrix /** M × 2. */; readonly receivers: Matrix };
+  | { readonly kind: 'paths' /** M × dim (2 or 3). */; readonly sources: Matrix /** M × dim. */; readonly receivers: Matrix };
 
 export interface DataSpec {
   readonly values: Float64Array;
@@ -39,4 +40,20 @@ export interface Problem<G extends Geometry = Grid> {
   readonly data: DataSpec;
   readonly truth?: Float64Array;
   readonly quantity?: { readonly name: string; readonly unit?: string };
+}
+
+/**
+ * The problem on its regular grid, for the computations that need one (FFT products, lag tables, grid plots);
+ * a cell list is refused with an InputError on `cells` saying what works on cell lists instead.
+ */
+export function gridProblem(problem: Problem<Geometry>, what: string): Problem {
+  const g = problem.grid;
+  if (isCellList(g)) {
+    throw new InputError(
+      'cells',
+      `a regular "grid" for ${what} (a problem on a cell list of its own mesh takes the dense route: priorscope posterior, check and sample)`,
+      `a cell list of ${g.x.length} centres`,
+    );
+  }
+  return { ...problem, grid: g };
 }

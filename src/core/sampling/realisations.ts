@@ -12,7 +12,7 @@
  * says which route ran, with the embedding's padding and any clipping.
  */
 import { InputError, NotPositiveDefiniteError } from '../errors.ts';
-import type { Grid } from '../grid/grid.ts';
+import { type Geometry, type Grid, isCellList } from '../grid/grid.ts';
 import { cholesky } from '../linalg/cholesky.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
 import { covarianceMatrix, meanVector } from '../prior/covariance.ts';
@@ -44,14 +44,14 @@ export interface RealisationRoute {
 
 /** `count` prior realisations with the route that drew them (see the module comment). */
 export function priorRealisationsWithRoute(
-  grid: Grid,
+  grid: Geometry,
   prior: PriorSpec,
   count: number,
   seed: number,
 ): { realisations: Matrix } & RealisationRoute {
   if (!Number.isInteger(count) || count < 0) throw new InputError('count', 'a non-negative integer', count);
   validateSeed(seed);
-  if (cellCount(grid) > DENSE_REALISATION_LIMIT && nonStationaryReason(grid, prior) === null) {
+  if (!isCellList(grid) && cellCount(grid) > DENSE_REALISATION_LIMIT && nonStationaryReason(grid, prior) === null) {
     const r = cachedSampler(grid, prior);
     return {
       realisations: r.draw(count, seed),
@@ -64,7 +64,7 @@ export function priorRealisationsWithRoute(
   return {
     realisations: denseRealisations(grid, prior, count, seed),
     route: 'dense',
-    padding: grid.shape,
+    padding: isCellList(grid) ? [cellCount(grid)] : grid.shape,
     clipped: false,
     clippedRelativeTrace: 0,
   };
@@ -86,11 +86,11 @@ function cachedSampler(grid: Grid, prior: PriorSpec): CirculantSampler {
  * `count` prior realisations, one per row (count × N); same seed, same numbers everywhere. Dense
  * m0 + L z up to {@link DENSE_REALISATION_LIMIT} cells, circulant embedding above.
  */
-export function priorRealisations(grid: Grid, prior: PriorSpec, count: number, seed: number): Matrix {
+export function priorRealisations(grid: Geometry, prior: PriorSpec, count: number, seed: number): Matrix {
   return priorRealisationsWithRoute(grid, prior, count, seed).realisations;
 }
 
-function denseRealisations(grid: Grid, prior: PriorSpec, count: number, seed: number): Matrix {
+function denseRealisations(grid: Geometry, prior: PriorSpec, count: number, seed: number): Matrix {
   const m0 = meanVector(grid, prior);
   const c = covarianceMatrix(grid, prior);
   const r = cholesky(c);

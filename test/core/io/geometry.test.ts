@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
 import { parseProblemFile, writeProblemFile } from '../../../src/core/io/problemFile.ts';
+import { gridProblem } from '../../../src/core/problems/spec.ts';
 import { parseGeometryCsv } from '../../../src/core/io/geometryCsv.ts';
 import { assembleProblem } from '../../../src/core/io/pieces.ts';
 import { toRows } from '../../../src/core/linalg/matrix.ts';
@@ -192,7 +193,7 @@ describe('data geometry in problem files', () => {
     [
       'paths on a 1-D grid',
       oneD({ sources: [[0], [1], [2]], receivers: [[1], [2], [3]] }),
-      'a.json: data.sources must be absent on a 1-D grid (paths need a 2-D grid; give data.positions [[x], …] for point data), got an array of length 3',
+      'a.json: data.sources must be absent on a 1-D grid (paths need a 2-D or 3-D grid; give data.positions [[x], …] for point data), got an array of length 3',
     ],
     ['positions not an array', twoD({ positions: 'stations.csv' }), 'a.json: data.positions must be an array of rows, got "stations.csv"'],
   ])('refuses %s, in one line naming the field and row', (_what, text, message) => {
@@ -317,8 +318,8 @@ describe('the geometry reaches the views', () => {
   it('problemView carries the problem’s geometry (null without one)', async () => {
     const { problemView } = await import('../../../src/worker/engine.ts');
     const extra = { demoId: null, description: '', startPrior: null, truthPrior: null };
-    const withGeo = parseProblemFile('p.json', twoD({ sources: SOURCES, receivers: RECEIVERS })).problem;
+    const withGeo = gridProblem(parseProblemFile('p.json', twoD({ sources: SOURCES, receivers: RECEIVERS })).problem, 'this test');
     expect(rowsOf(problemView(withGeo, 1, extra).geometry ?? undefined)).toEqual({ sources: SOURCES, receivers: RECEIVERS });
-    expect(problemView(parseProblemFile('p.json', twoD({})).problem, 1, extra).geometry).toBeNull();
+    expect(problemView(gridProblem(parseProblemFile('p.json', twoD({})).problem, 'this test'), 1, extra).geometry).toBeNull();
   });
 });

@@ -114,7 +114,7 @@ describe('parseProblemFile', () => {
     );
     expect(warnings.map((w) => w.field)).toEqual(['author', 'grid.colour', 'data.weights']);
     expect(warnings[0].message).toBe(
-      'p.json: unknown field author ignored (known here: kind, version, title, grid, operator, data, truth, quantity)',
+      'p.json: unknown field author ignored (known here: kind, version, title, grid, cells, operator, data, truth, quantity)',
     );
   });
 
