@@ -47,6 +47,46 @@ describe('segmentMeetsBox', () => {
   });
 });
 
+describe('segmentMeetsBox in 3-D', () => {
+  // Outside check: points sampled densely along the segment (10,001 of them); a segment is counted as
+  // meeting the box when a sample lies inside, as missing when every sample is more than 0.01 away.
+  it('agrees with dense sampling along 500 random segments around a 3-D grid', () => {
+    const grid = { shape: [6, 4, 5], spacing: [2, 3, 1], origin: [1, 1.5, 0.5] };
+    const box = gridBounds(grid);
+    expect(box.z).toEqual([0, 5]);
+    const lo = [box.x[0], box.y[0], box.z![0]];
+    const hi = [box.x[1], box.y[1], box.z![1]];
+    const rnd = new Random(5);
+    let meets = 0;
+    let misses = 0;
+    for (let k = 0; k < 500; k++) {
+      const p = [0, 1, 2].map((a) => lo[a] - 8 + rnd.nextDouble() * (hi[a] - lo[a] + 16));
+      const q = [0, 1, 2].map((a) => lo[a] - 8 + rnd.nextDouble() * (hi[a] - lo[a] + 16));
+      let gap = Number.POSITIVE_INFINITY;
+      for (let j = 0; j <= 10000; j++) {
+        const t = j / 10000;
+        const out = [0, 1, 2].map((a) => {
+          const v = p[a] + t * (q[a] - p[a]);
+          return Math.max(lo[a] - v, v - hi[a], 0);
+        });
+        gap = Math.min(gap, Math.hypot(...out));
+      }
+      if (gap === 0) {
+        expect(segmentMeetsBox(p, q, box)).toBe(true);
+        meets++;
+      } else if (gap > 0.01) {
+        expect(segmentMeetsBox(p, q, box)).toBe(false);
+        misses++;
+      }
+    }
+    expect(meets).toBeGreaterThan(50);
+    expect(misses).toBeGreaterThan(50);
+    // A path passing above the volume (z beyond its top) misses, though its x–y shadow crosses the grid.
+    expect(segmentMeetsBox([-5, 2, 7], [20, 8, 6], box)).toBe(false);
+    expect(segmentMeetsBox([-5, 2, 4], [20, 8, 3], box)).toBe(true);
+  });
+});
+
 describe('pathsMissingGrid', () => {
   it('lists the paths outside the grid and none for point data', () => {
     const grid = { shape: [2, 2], spacing: [10, 10], origin: [5, 5] };
@@ -67,5 +107,38 @@ describe('pathsMissingGrid', () => {
     expect(rowList([3])).toBe('row 3');
     expect(rowList([1, 4])).toBe('rows 1 and 4');
     expect(rowList([0, 1, 2, 3, 4, 5, 6])).toBe('rows 0, 1, 2, 3, 4 and 2 more');
+  });
+});
+
+describe('3-D path ends in a problem file', () => {
+  it('are read as M × 3 and a path above the volume is warned about with the z range', async () => {
+    const { parseProblemFile } = await import('../../../src/core/io/problemFile.ts');
+    const n = 4 * 3 * 2;
+    const text = JSON.stringify({
+      kind: 'priorscope.problem',
+      version: 1,
+      grid: { shape: [4, 3, 2], spacing: [1, 1, 1] },
+      operator: { dense: [new Array(n).fill(0.1), new Array(n).fill(0.2)] },
+      data: {
+        values: [1, 2],
+        sigma: [0.1, 0.1],
+        sources: [
+          [-1, 1, 0.5],
+          [-1, 1, 9],
+        ],
+        receivers: [
+          [5, 1, 0.5],
+          [5, 1, 9],
+        ],
+      },
+    });
+    const r = parseProblemFile('p.json', text);
+    const geo = r.problem.data.geometry;
+    expect(geo?.kind === 'paths' && geo.sources.cols).toBe(3);
+    expect(r.warnings.map((w) => w.message)).toEqual([
+      expect.stringMatching(
+        /1 of 2 paths \(data\.sources → data\.receivers, row 1\) miss the grid entirely .*z -0\.5 to 1\.5.*grid\.shape \[nx, ny, nz\]/,
+      ),
+    ]);
   });
 });
