@@ -5,8 +5,8 @@ import { DEMO_CHOICES } from './demos.ts';
 import { useWb } from './context.ts';
 import { PriorPanel } from './PriorPanel.tsx';
 import { StatusPanel } from './StatusPanel.tsx';
-import { FitScreen, PosteriorScreen, PriorScreen, ProblemScreen, RealisationsScreen, VolumeScreen } from './screens/index.ts';
-import { gridDimension } from '../core/grid/grid.ts';
+import { CellsScreen, FitScreen, PosteriorScreen, PriorScreen, ProblemScreen, RealisationsScreen, VolumeScreen } from './screens/index.ts';
+import { gridDimension, isCellList } from '../core/grid/grid.ts';
 import { TABS, type TabId } from './view/slice.ts';
 import { SelectScreen } from './select/SelectScreen.tsx';
 import { OverviewScreen } from './overview/OverviewScreen.tsx';
@@ -25,7 +25,10 @@ async function restorePrevious(): Promise<void> {
 }
 
 function Screen({ tab }: { tab: TabId }) {
-  const volume = useWb((s) => (s.problem ? gridDimension(s.problem.grid) === 3 : false));
+  const volume = useWb((s) => (s.problem && !isCellList(s.problem.grid) ? gridDimension(s.problem.grid) === 3 : false));
+  const cells = useWb((s) => (s.problem ? isCellList(s.problem.grid) : false));
+  // A cell list (the user's own mesh) has one screen on every tab: the prior-selection studies need a grid.
+  if (cells) return <CellsScreen />;
   if (volume && tab !== 'select') return <VolumeScreen />;
   switch (tab) {
     case 'overview':

@@ -11,13 +11,12 @@ import { noteInteraction } from './interaction.ts';
 import { axisNames } from './labels.ts';
 import { formatNumber } from '../core/format.ts';
 import type { ProblemView } from '../worker/protocol.ts';
+import { geometryScale } from '../core/problems/geometry.ts';
 import { MAX_TERMS } from '../core/prior/validate.ts';
 
 function lengthRange(problem: ProblemView): [number, number] {
-  const g = problem.grid;
-  const minSpacing = Math.min(...g.spacing);
-  const extent = Math.max(...g.shape.map((n, k) => n * g.spacing[k]));
-  return [minSpacing / 10, extent * 10];
+  const { extent, spacing } = geometryScale(problem.grid);
+  return [spacing / 10, extent * 10];
 }
 
 export function PriorPanel() {

@@ -4,6 +4,7 @@
  */
 import type { Term } from '../core/kernels/spec.ts';
 import type { PriorSpec } from '../core/prior/spec.ts';
+import { geometryScale } from '../core/problems/geometry.ts';
 import type { ProblemView } from '../worker/protocol.ts';
 
 /** Realisations drawn per request (prior and posterior). */
@@ -15,9 +16,7 @@ export function defaultPrior(problem: ProblemView): PriorSpec {
 }
 
 export function defaultTerm(problem: ProblemView): Term {
-  const g = problem.grid;
-  const extent = Math.max(...g.shape.map((n, k) => n * g.spacing[k]));
-  const length = roundTo2(extent / 10);
+  const length = roundTo2(geometryScale(problem.grid).extent / 10);
   return { kernel: 'exponential', variance: 1, length };
 }
 

@@ -4,7 +4,7 @@
  * in brackets only when there is a unit (never an empty "()").
  * Pure functions; unit-tested in test/app/labels.test.ts.
  */
-import { gridDimension, type Grid } from '../core/grid/grid.ts';
+import { type Geometry, gridDimension, type Grid } from '../core/grid/grid.ts';
 
 /**
  * A hyperparameter name of src/core/tuning/typeII.ts (`terms[k].variance`, `.length`,
@@ -32,10 +32,10 @@ export function parameterLabel(name: string): string {
 }
 
 /** The grid's axis names (`grid.axes`), else x (and y on a 2-D grid). */
-export function axisNames(grid: Grid): readonly string[] {
+export function axisNames(grid: Geometry): readonly string[] {
   const dim = gridDimension(grid);
   if (grid.axes && grid.axes.length === dim) return grid.axes;
-  return dim === 2 ? ['x', 'y'] : ['x'];
+  return ['x', 'y', 'z'].slice(0, dim);
 }
 
 /** "name (unit)", or just "name" when the unit is empty. */

@@ -19,6 +19,7 @@ import type { Diagnostics } from '../core/prior/diagnostics.ts';
 import { matchOperator, type Operator } from '../core/linalg/operator.ts';
 import type { PriorSpec } from '../core/prior/spec.ts';
 import type { Problem } from '../core/problems/spec.ts';
+import type { Geometry } from '../core/grid/grid.ts';
 import {
   channelOf,
   type Channel,
@@ -59,7 +60,7 @@ export interface TuningPort {
 export interface ClientPort {
   loadDemo(demoId: string): Promise<Outcome<ProblemView>>;
   /** Send the user's own problem to the worker(s) (the session slice; optional for fakes). */
-  setProblem?(problem: Problem): Promise<Outcome<ProblemView>>;
+  setProblem?(problem: Problem<Geometry>): Promise<Outcome<ProblemView>>;
   /** `onPartial` (optional for fakes) receives the mean ahead of the bands, while the request is current. */
   posterior(prior: PriorSpec, onPartial?: (partial: PosteriorPartial) => void): Promise<Outcome<PosteriorResult>>;
   diagnostics(prior: PriorSpec): Promise<Outcome<Diagnostics>>;
@@ -157,7 +158,7 @@ export class WorkerClient implements ClientPort {
   }
 
   /** The problem's buffers are copied before they are transferred, so the caller keeps its arrays. */
-  setProblem(problem: Problem): Promise<Outcome<ProblemView>> {
+  setProblem(problem: Problem<Geometry>): Promise<Outcome<ProblemView>> {
     return this.sendProblem({ id: this.nextId++, kind: 'setProblem', version: ++this.version, problem });
   }
 
@@ -310,7 +311,7 @@ export class WorkerClient implements ClientPort {
 }
 
 /** Copies of a problem's typed arrays, with the list of their buffers for transfer. */
-function copyProblem(problem: Problem): { problem: Problem; transfer: ArrayBuffer[] } {
+function copyProblem(problem: Problem<Geometry>): { problem: Problem<Geometry>; transfer: ArrayBuffer[] } {
   const transfer: ArrayBuffer[] = [];
   const c = <T extends Float64Array | Int32Array>(a: T): T => {
     const b = a.slice() as T;

@@ -5,9 +5,9 @@
  */
 import { START_PRIOR_RULE_TEXT, startPriorRule } from '../core/tuning/startPrior.ts';
 import { DEMOS } from '../core/problems/demos.ts';
-import type { Problem } from '../core/problems/spec.ts';
+import { gridProblem, isGridProblem, type Problem } from '../core/problems/spec.ts';
 import type { PriorSpec } from '../core/prior/spec.ts';
-import { cellCount } from '../core/grid/grid.ts';
+import { type CellList, cellCount, type Geometry, isCellList } from '../core/grid/grid.ts';
 import { operatorColumnAbsSums, operatorEntries } from '../core/linalg/operator.ts';
 import { diagnosePriorAuto } from '../core/prior/structuredDiagnostics.ts';
 import { structuredPosteriorDraws, structuredResolutionRow } from '../core/inverse/structuredDraws.ts';
@@ -85,7 +85,7 @@ export function structuredPartial(st: StructuredPosteriorState): PosteriorPartia
   };
 }
 
-function sigmaOf(problem: Problem): Float64Array {
+function sigmaOf(problem: Problem<Geometry>): Float64Array {
   const { sigma, covariance } = problem.data;
   if (sigma) return sigma.slice();
   if (covariance) {
@@ -97,8 +97,12 @@ function sigmaOf(problem: Problem): Float64Array {
   throw new InputError('problem.data', 'sigma or covariance', undefined);
 }
 
+function copyCells(g: CellList): CellList {
+  return { ...g, x: g.x.slice(), y: g.y.slice(), z: g.z.slice(), ...(g.volumes ? { volumes: g.volumes.slice() } : {}) };
+}
+
 export function problemView(
-  problem: Problem,
+  problem: Problem<Geometry>,
   version: number,
   extra: {
     demoId: string | null;
@@ -114,7 +118,8 @@ export function problemView(
     demoId: extra.demoId,
     title: problem.title ?? 'Untitled problem',
     description: extra.description,
-    grid: problem.grid,
+    // A cell list's centres are copied: the view's buffers are transferred to the page, the worker keeps its own.
+    grid: isCellList(problem.grid) ? copyCells(problem.grid) : problem.grid,
     dataCount: problem.data.values.length,
     values: problem.data.values.slice(),
     sigma: sigmaOf(problem),
@@ -140,7 +145,7 @@ export interface EngineOptions {
 }
 
 export class Engine {
-  private problem: Problem | null = null;
+  private problem: Problem<Geometry> | null = null;
   private version = -1;
   private cached: { key: string; state: PosteriorState } | null = null;
   /** FFT path: the problem with its cached row spectra, so a prior change costs only the inverse transforms. */
@@ -154,7 +159,7 @@ export class Engine {
     return this.version;
   }
 
-  private requireProblem(problemVersion: number): Problem {
+  private requireProblem(problemVersion: number): Problem<Geometry> {
     if (!this.problem) throw new StaleProblemError('no problem has been loaded yet');
     if (problemVersion !== this.version) {
       throw new StaleProblemError(`the request was made for problem ${problemVersion}, the worker holds ${this.version}`);
@@ -183,7 +188,7 @@ export class Engine {
     const key = `${problemVersion}:${JSON.stringify(prior)}`;
     if (this.structuredCached?.key === key) return this.structuredCached.state;
     progress('posterior mean (FFT path)', 0.1);
-    const sp = this.structured ?? (this.structured = structuredProblem(problem));
+    const sp = this.structured ?? (this.structured = structuredProblem(gridProblem(problem, 'the FFT route')));
     const pool = this.options.pool;
     const state = await prepareStructured(sp, prior, pool && { get: () => pool.get(), threads: pool.threads });
     this.structuredCached = { key, state };
@@ -212,7 +217,8 @@ export class Engine {
     partial: PartialFn,
   ): Promise<ResultMap[RequestKind]> {
     // Prior selection: chunked, cancellable runs in ./tuning.ts.
-    if (isTuningRequest(r)) return runTuning(this.requireProblem(r.problemVersion), r, progress);
+    if (isTuningRequest(r))
+      return runTuning(gridProblem(this.requireProblem(r.problemVersion), 'prior selection in the workbench'), r, progress);
     switch (r.kind) {
       case 'loadDemo': {
         const demo = DEMOS.find((d) => d.id === r.demoId);
@@ -236,7 +242,7 @@ export class Engine {
         progress('fitting a starting prior to the data', 0.5);
         let start: { startPrior: PriorSpec | null; startRule: string | null };
         try {
-          const rule = startPriorRule(r.problem, { structured: this.structured! });
+          const rule = startPriorRule(r.problem, this.structured ? { structured: this.structured } : {});
           start = { startPrior: rule.prior, startRule: `${START_PRIOR_RULE_TEXT} Here: ${rule.explanation}` };
         } catch (e) {
           start = {
@@ -319,12 +325,12 @@ export class Engine {
     }
   }
 
-  private setProblemInternal(problem: Problem, version: number): void {
+  private setProblemInternal(problem: Problem<Geometry>, version: number): void {
     this.problem = problem;
     this.version = version;
     this.cached = null;
     this.structuredCached = null;
-    this.structured = structuredProblem(problem);
+    this.structured = isGridProblem(problem) ? structuredProblem(problem) : null;
   }
 }
 

@@ -15,7 +15,7 @@ import { assertNever } from '../core/errors.ts';
 import type { Diagnostics } from '../core/prior/diagnostics.ts';
 import type { PriorSpec } from '../core/prior/spec.ts';
 import type { DataGeometry, Problem } from '../core/problems/spec.ts';
-import type { Grid } from '../core/grid/grid.ts';
+import type { Geometry } from '../core/grid/grid.ts';
 import type { Matrix } from '../core/linalg/matrix.ts';
 import type { PosteriorSummary } from '../core/inverse/types.ts';
 import type { RequestBase } from './requestBase.ts';
@@ -27,7 +27,8 @@ export interface ProblemView {
   readonly demoId: string | null;
   readonly title: string;
   readonly description: string;
-  readonly grid: Grid;
+  /** A regular grid, or a cell list (the user's own mesh: shown on the cells screen, dense route). */
+  readonly grid: Geometry;
   readonly dataCount: number;
   readonly values: Float64Array;
   /** Per-datum standard deviation (√diag Cd for a full data covariance). */
@@ -100,7 +101,7 @@ export const CHANNEL_PRIORITY: readonly Channel[] = [
 
 export type WorkerRequest =
   | (RequestBase & { readonly kind: 'loadDemo'; readonly version: number; readonly demoId: string })
-  | (RequestBase & { readonly kind: 'setProblem'; readonly version: number; readonly problem: Problem })
+  | (RequestBase & { readonly kind: 'setProblem'; readonly version: number; readonly problem: Problem<Geometry> })
   | (RequestBase & { readonly kind: 'posterior'; readonly problemVersion: number; readonly prior: PriorSpec })
   | (RequestBase & { readonly kind: 'diagnostics'; readonly problemVersion: number; readonly prior: PriorSpec })
   | (RequestBase & {

@@ -13,7 +13,7 @@ import { readCellList } from '../../src/core/io/cellList.ts';
 import { parseProblemFile } from '../../src/core/io/problemFile.ts';
 import { KERNEL_NAMES } from '../../src/core/kernels/spec.ts';
 import { matrix } from '../../src/core/linalg/matrix.ts';
-import { MAX_CELL_LIST } from '../../src/core/prior/cells.ts';
+import { covarianceRow, MAX_CELL_LIST } from '../../src/core/prior/cells.ts';
 import { covarianceApply, covarianceMatrix, meanVector, priorVariance } from '../../src/core/prior/covariance.ts';
 import type { PriorSpec } from '../../src/core/prior/spec.ts';
 import type { Problem } from '../../src/core/problems/spec.ts';
@@ -132,6 +132,9 @@ describe('cell lists against scipy (cdist on rotated centres, model-space poster
       const x = Float64Array.from({ length: n }, (_, i) => Math.cos(0.37 * i));
       const yRef = Array.from({ length: n }, (_, i) => refs[k].Cm.slice(i * n, (i + 1) * n).reduce((a, v, j) => a + v * x[j], 0));
       expect(maxDiff(covarianceApply(cells, c.prior)(x), yRef)).toBeLessThan(1e-12);
+      // One row without forming Cm (the screens' correlation with a chosen cell).
+      for (const i of [0, 5, n - 1])
+        expect(maxDiff(covarianceRow(cells, c.prior, i), refs[k].Cm.slice(i * n, (i + 1) * n))).toBeLessThan(1e-12);
       const s = densePosterior(cells, c.prior, ops[k].G, ops[k].d, ops[k].sigma);
       expect(maxDiff(s.mean, refs[k].mean)).toBeLessThan(1e-8);
       expect(maxDiff(s.std, refs[k].std)).toBeLessThan(1e-8);
@@ -166,6 +169,9 @@ describe('a cell list with the centres of a regular grid equals the grid route',
       const cells = cellsOf(centres);
       expect(maxDiff(covarianceMatrix(cells, prior).data, covarianceMatrix(grid, prior).data)).toBeLessThan(1e-12);
       expect(maxDiff(meanVector(cells, prior), meanVector(grid, prior))).toBeLessThan(1e-12);
+      const full = covarianceMatrix(grid, prior);
+      for (const i of [0, 7, n - 1])
+        expect(maxDiff(covarianceRow(grid, prior, i), full.data.subarray(i * n, (i + 1) * n))).toBeLessThan(1e-12);
       const { G, d, sigma } = operatorFor(centres, 10);
       const onGrid = computePosteriorSerial(
         {

@@ -122,25 +122,28 @@ export function sectionTrace(grid: Grid, s: Section, name: string, colour: Trace
 export function geometryTraces(geometry: DataGeometry | undefined, plane: SectionPlane): Trace[] {
   if (!geometry) return [];
   const [a, b] = planeAxes(plane);
+  // Three coordinates project onto any plane; two (a 2-D cell list's map) lie in the x–y plane only.
+  const fits = (cols: number) => cols === 3 || (cols === 2 && plane === 'xy');
   if (geometry.kind === 'points') {
     const p = geometry.positions;
-    if (p.cols !== 3) return [];
+    if (!fits(p.cols)) return [];
     const x: number[] = [];
     const y: number[] = [];
     for (let i = 0; i < p.rows; i++) {
-      x.push(p.data[i * 3 + a]);
-      y.push(p.data[i * 3 + b]);
+      x.push(p.data[i * p.cols + a]);
+      y.push(p.data[i * p.cols + b]);
     }
     return [{ type: 'scatter', mode: 'markers', x, y, name: 'data positions', marker: { size: 5, color: '#111', symbol: 'x' } }];
   }
   const s = geometry.sources;
   const r = geometry.receivers;
-  if (s.cols !== 3 || r.cols !== 3) return [];
+  if (!fits(s.cols) || r.cols !== s.cols) return [];
+  const d = s.cols;
   const x: (number | null)[] = [];
   const y: (number | null)[] = [];
   for (let i = 0; i < s.rows; i++) {
-    x.push(s.data[i * 3 + a], r.data[i * 3 + a], null);
-    y.push(s.data[i * 3 + b], r.data[i * 3 + b], null);
+    x.push(s.data[i * d + a], r.data[i * d + a], null);
+    y.push(s.data[i * d + b], r.data[i * d + b], null);
   }
   return [{ type: 'scatter', mode: 'lines', x, y, name: 'paths', line: { width: 0.5, color: 'rgba(0,0,0,0.35)' }, hoverinfo: 'skip' }];
 }

@@ -8,9 +8,9 @@ import { FileFormatError, type FileWarning } from '../../core/io/errors.ts';
 import { parseProblemFile } from '../../core/io/problemFile.ts';
 import { parsePriorFile } from '../../core/io/priorFile.ts';
 import { assembleProblem, type NamedBytes, type PiecesInput } from '../../core/io/pieces.ts';
-import { gridProblem, type Problem } from '../../core/problems/spec.ts';
+import type { Problem } from '../../core/problems/spec.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
-import type { Grid } from '../../core/grid/grid.ts';
+import type { Geometry } from '../../core/grid/grid.ts';
 
 export type ParseRequest =
   /** A problem JSON and the sibling files it names, picked or dropped together. */
@@ -18,10 +18,10 @@ export type ParseRequest =
   /** G, data and optionally a covariance file, with the grid typed in a form. */
   | { readonly kind: 'pieces'; readonly input: PiecesInput }
   /** A prior file, checked against the current grid. */
-  | { readonly kind: 'prior'; readonly file: NamedBytes; readonly grid: Grid };
+  | { readonly kind: 'prior'; readonly file: NamedBytes; readonly grid: Geometry };
 
 export type ParseResult =
-  | { readonly kind: 'problem'; readonly problem: Problem; readonly label: string; readonly warnings: readonly string[] }
+  | { readonly kind: 'problem'; readonly problem: Problem<Geometry>; readonly label: string; readonly warnings: readonly string[] }
   | { readonly kind: 'prior'; readonly prior: PriorSpec; readonly warnings: readonly string[] };
 
 /** Serialised failure (FileFormatError keeps its file name). */
@@ -64,7 +64,7 @@ export function parseRequest(req: ParseRequest): ParseResult {
       const r = parseProblemFile(main.name, main.bytes, { readSibling });
       return {
         kind: 'problem',
-        problem: gridProblem(r.problem, 'the workbench'),
+        problem: r.problem,
         label: main.name,
         warnings: r.warnings.map((w) => w.message),
       };

@@ -4,6 +4,7 @@
  * When every panel has drawn the results of the current prior, the performance mark
  * {@link MARK_OVERVIEW_DRAWN} is set (read by `npm run bench:ui`).
  */
+import { useGridView } from '../gridView.ts';
 import { useCallback, useMemo, useRef } from 'react';
 import { useWb, useWorkbenchStore } from '../context.ts';
 import { Plot } from '../Plot.tsx';
@@ -48,7 +49,7 @@ function current(s: WorkbenchState): boolean {
 
 export function OverviewScreen() {
   const store = useWorkbenchStore();
-  const p = useWb((s) => s.problem);
+  const p = useGridView();
   const complete = useWb((s) => s.posterior);
   const partial = useWb((s) => s.posteriorPartial);
   const draws = useWb((s) => s.priorDraws);

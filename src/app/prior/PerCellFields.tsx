@@ -5,7 +5,7 @@
  * the prior is left as it was.
  */
 import { useRef, type ChangeEvent } from 'react';
-import { cellCount } from '../../core/grid/grid.ts';
+import { cellCount, isCellList } from '../../core/grid/grid.ts';
 import { parseCellValues, type CellValuesKind } from '../../core/io/cellValues.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
 import { formatNumber } from '../../core/format.ts';
@@ -46,7 +46,9 @@ export function PerCellFields() {
   const range = (a: readonly number[]) => `${formatNumber(Math.min(...a))} to ${formatNumber(Math.max(...a))}`;
   return (
     <fieldset data-testid="per-cell">
-      <legend>Per cell (from a file of {n} values, x fastest)</legend>
+      <legend>
+        Per cell (from a file of {n} values, {isCellList(problem.grid) ? 'in the order of the cell centres' : 'x fastest'})
+      </legend>
       <button
         type="button"
         data-testid="mean-file"

@@ -4,7 +4,7 @@
  * per-channel errors, busy flags and the key each result was computed for. `refresh` requests what
  * the open screen needs and is not up to date; each channel's newest request wins (../../worker/client.ts).
  */
-import { cellCount, gridDimension } from '../../core/grid/grid.ts';
+import { cellCount, gridDimension, isCellList } from '../../core/grid/grid.ts';
 import type { Matrix } from '../../core/linalg/matrix.ts';
 import type { Diagnostics } from '../../core/prior/diagnostics.ts';
 import type { ClientPort, Outcome } from '../../worker/client.ts';
@@ -128,8 +128,9 @@ export function createResultsSlice(set: StoreSet, get: StoreGet, client: ClientP
         (message) =>
           partialShown ? `the uncertainty bands could not be computed (${message}); the posterior mean is shown without them` : message,
       );
-      // A 3-D problem has one screen (sections of every field): its draws and the chosen cell's resolution row on every tab.
-      const volume = gridDimension(problem.grid) === 3;
+      // A 3-D problem and a cell list have one screen each (every field there): their draws and the chosen cell's
+      // resolution row on every tab.
+      const volume = isCellList(problem.grid) || gridDimension(problem.grid) === 3;
       if ((s.tab === 'posterior' && s.selectedCell !== null) || volume) {
         const cell = s.selectedCell ?? 0;
         run(

@@ -1,4 +1,5 @@
 /** The Data fit screen: χ² against its reference distribution, observed against predicted data, residuals. */
+import { useGridView } from '../gridView.ts';
 import { useMemo } from 'react';
 import { useWb } from '../context.ts';
 import { fmtNum } from '../figures/common.ts';
@@ -9,7 +10,7 @@ import { FIT_REFERENCE_BASIS, fitVerdict, formatTail, shownPosterior } from '../
 import { Waiting } from './Waiting.tsx';
 
 export function FitScreen() {
-  const p = useWb((s) => s.problem);
+  const p = useGridView();
   const complete = useWb((s) => s.posterior);
   const partial = useWb((s) => s.posteriorPartial);
   // The data fit needs only the mean: the partial one is complete for this screen.

@@ -1,8 +1,9 @@
 /** The Posterior screen: mean and bands (1-D) or maps (2-D), and the averaging kernel of a chosen cell. */
+import { useGridView } from '../gridView.ts';
 import { useMemo } from 'react';
 import { useShallow } from 'zustand/react/shallow';
 import { gridDimension } from '../../core/grid/grid.ts';
-import type { ProblemView } from '../../worker/protocol.ts';
+import type { GridView } from '../gridView.ts';
 import { useWb } from '../context.ts';
 import { NumberField } from '../controls.tsx';
 import {
@@ -19,7 +20,7 @@ import { MARK_POSTERIOR_DRAWN } from '../results/slice.ts';
 import { cellAt } from '../traces.ts';
 import { Waiting } from './Waiting.tsx';
 
-function CellPicker({ p }: { p: ProblemView }) {
+function CellPicker({ p }: { p: GridView }) {
   const [cell, selectCell] = useWb(useShallow((s) => [s.selectedCell, s.selectCell] as const));
   const nx = p.grid.shape[0];
   const ny = p.grid.shape[1] ?? 1;
@@ -66,7 +67,7 @@ function CellPicker({ p }: { p: ProblemView }) {
 const markDrawn = () => performance.mark(MARK_POSTERIOR_DRAWN);
 
 export function PosteriorScreen() {
-  const p = useWb((s) => s.problem);
+  const p = useGridView();
   const complete = useWb((s) => s.posterior);
   const partial = useWb((s) => s.posteriorPartial);
   const busy = useWb((s) => s.busy.posterior ?? false);

@@ -1,4 +1,5 @@
 /** The Prior screen: correlation against distance, the 2-D correlation map or the Cm heat map. */
+import { useGridView } from '../gridView.ts';
 import { useMemo } from 'react';
 import { cellCount, gridDimension } from '../../core/grid/grid.ts';
 import { useWb } from '../context.ts';
@@ -16,7 +17,7 @@ import { COVARIANCE_VIEW_CELLS } from '../results/slice.ts';
 import type { Trace } from '../traces.ts';
 
 export function PriorScreen() {
-  const p = useWb((s) => s.problem);
+  const p = useGridView();
   const prior = useWb((s) => s.prior);
   const cov = useWb((s) => s.covariance);
   const covError = useWb((s) => s.errors.covariance ?? null);

@@ -1,4 +1,5 @@
 /** The Problem screen: facts of the loaded problem, its data and the sensitivity of G. */
+import { useGridView } from '../gridView.ts';
 import { useMemo } from 'react';
 import { cellCount } from '../../core/grid/grid.ts';
 import { useWb } from '../context.ts';
@@ -9,7 +10,7 @@ import { Plot } from '../Plot.tsx';
 import { gridOverlayTraces, overlayLegend, surveyDataFigure } from '../survey/figures.ts';
 
 export function ProblemScreen() {
-  const p = useWb((s) => s.problem);
+  const p = useGridView();
   const posterior = useWb((s) => s.posterior);
   // Against position when the data say where they were measured (src/app/survey/figures.ts).
   const profile = useMemo(() => p && surveyDataFigure(p), [p]);

@@ -1,8 +1,9 @@
 /** The Realisations screen: six prior and six posterior draws from one seed, on one colour scale. */
+import { useGridView } from '../gridView.ts';
 import { useMemo } from 'react';
 import { useShallow } from 'zustand/react/shallow';
 import type { Matrix } from '../../core/linalg/matrix.ts';
-import type { ProblemView } from '../../worker/protocol.ts';
+import type { GridView } from '../gridView.ts';
 import { useWb } from '../context.ts';
 import { NumberField } from '../controls.tsx';
 import { galleryLayout, galleryTraces } from '../figures/realisations.ts';
@@ -12,14 +13,14 @@ import { divergingRange, effectiveRange } from '../colourScales.ts';
 import { useColourLimits } from '../overview/colourLimits.ts';
 import { Waiting } from './Waiting.tsx';
 
-function Gallery({ id, title, p, draws, range }: { id: string; title: string; p: ProblemView; draws: Matrix; range: [number, number] }) {
+function Gallery({ id, title, p, draws, range }: { id: string; title: string; p: GridView; draws: Matrix; range: [number, number] }) {
   const data = useMemo(() => galleryTraces(p.grid, draws), [p, draws]);
   const layout = useMemo(() => galleryLayout(p.grid, p.quantity.unit, draws.rows, range, title), [p, draws, range, title]);
   return <Plot id={id} label={title} data={data} layout={layout} height={280} />;
 }
 
 export function RealisationsScreen() {
-  const p = useWb((s) => s.problem);
+  const p = useGridView();
   const [seed, setSeed, newSeed] = useWb(useShallow((s) => [s.seed, s.setSeed, s.newSeed] as const));
   const priorDraws = useWb((s) => s.priorDraws);
   const postDraws = useWb((s) => s.posteriorDraws);

@@ -3,6 +3,7 @@
  * axis, for the posterior mean, standard deviation, variance reduction, prior and posterior realisations and the
  * averaging kernel (resolution row) of the chosen cell. Figures from the pure builders in ../figures/sections.ts.
  */
+import { useGridView } from '../gridView.ts';
 import { useMemo, useState } from 'react';
 import { useShallow } from 'zustand/react/shallow';
 import { useWb } from '../context.ts';
@@ -34,7 +35,7 @@ const FIELDS: readonly { id: FieldId; label: string; signed: boolean }[] = [
 ];
 
 export function VolumeScreen() {
-  const p = useWb((s) => s.problem);
+  const p = useGridView();
   const post = useWb((s) => s.posterior);
   const priorDraws = useWb((s) => s.priorDraws);
   const postDraws = useWb((s) => s.posteriorDraws);

@@ -3,6 +3,7 @@
  * last evidence map's cells, weighted by evidence × a stated hyper-prior (src/core/tuning/averaged.ts),
  * so one sees how much the result depends on the length and variance chosen.
  */
+import { useGridView } from '../gridView.ts';
 import { useMemo, useState } from 'react';
 import { useWb } from '../context.ts';
 import { Plot } from '../Plot.tsx';
@@ -15,7 +16,7 @@ import { fmt } from './candidates.ts';
 import { Num, TaskStatusLine } from './common.tsx';
 
 export function AveragedPanel() {
-  const p = useWb((s) => s.problem);
+  const p = useGridView();
   const mapTask = useWb((s) => s.selectTasks.evidenceMap);
   const task = useWb((s) => s.selectTasks.averaged);
   const post = useWb((s) => s.posterior);

@@ -1,10 +1,11 @@
 /** Pinned candidate priors compared side by side: bands or paired maps, scores, realisations, cross-calibration. */
+import { useGridView } from '../gridView.ts';
 import { useEffect, useMemo, useState } from 'react';
 import { useWb } from '../context.ts';
 import { Plot } from '../Plot.tsx';
 import { NumberField } from '../controls.tsx';
 import { axis1D, gridDimension, rowOf } from '../traces.ts';
-import type { ProblemView } from '../../worker/protocol.ts';
+import type { GridView } from '../gridView.ts';
 import { bestRow, fmt, SCORE_COLUMNS, scoreRows } from './candidates.ts';
 import { Num, TaskStatusLine } from './common.tsx';
 import { candidatesKey, type Candidate } from './slice.ts';
@@ -23,7 +24,7 @@ import { candidateRanges, DIVERGING, SEQUENTIAL } from '../colourScales.ts';
 import { useColourLimits } from '../overview/colourLimits.ts';
 
 export function CandidatesPanel() {
-  const p = useWb((s) => s.problem)!;
+  const p = useGridView()!;
   const candidates = useWb((s) => s.candidates);
   const key = useWb(candidatesKey);
   const refresh = useWb((s) => s.refreshCandidates);
@@ -130,7 +131,7 @@ export function CandidatesPanel() {
   );
 }
 
-function Comparison({ p, candidates, scores }: { p: ProblemView; candidates: readonly Candidate[]; scores: readonly CandidateScores[] }) {
+function Comparison({ p, candidates, scores }: { p: GridView; candidates: readonly Candidate[]; scores: readonly CandidateScores[] }) {
   const is2D = gridDimension(p.grid) === 2;
   const ok = useMemo(
     () =>

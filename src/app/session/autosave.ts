@@ -5,6 +5,7 @@
  * Structured clone keeps Float64Arrays as they are, so a reload restores the numbers bit for bit.
  */
 import type { Problem } from '../../core/problems/spec.ts';
+import type { Geometry } from '../../core/grid/grid.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
 import type { TabId } from '../view/slice.ts';
 
@@ -29,7 +30,7 @@ export interface SavedSession {
 
 export interface SavedProblem {
   readonly key: string;
-  readonly problem: Problem;
+  readonly problem: Problem<Geometry>;
 }
 
 /** Storage behind the autosave (IndexedDB in the browser, a Map in tests). */

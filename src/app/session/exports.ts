@@ -12,7 +12,7 @@
 import { writePriorFile } from '../../core/io/priorFile.ts';
 import { writeCsv } from '../../core/io/csv.ts';
 import { float64Bytes, npyHeader, writeNpy } from '../../core/io/npy.ts';
-import { cellCoordinates, cellCount, gridDimension, type Grid } from '../../core/grid/grid.ts';
+import { cellCoordinates, cellCount, type Geometry, gridDimension, type Grid, isCellList } from '../../core/grid/grid.ts';
 import { matrix, type Matrix } from '../../core/linalg/matrix.ts';
 import { formatJson } from '../../core/io/json.ts';
 import { type VtiField, writeVti } from '../../core/io/vti.ts';
@@ -33,9 +33,10 @@ export function priorExport(prior: PriorSpec): ExportFile {
   return text('prior.json', 'application/json', writePriorFile(prior, 'prior.json'));
 }
 
-function coordinateColumns(grid: Grid): { names: string[]; cols: Float64Array[] } {
-  const { x, y } = cellCoordinates(grid);
-  return gridDimension(grid) === 2 ? { names: ['x', 'y'], cols: [x, y] } : { names: ['x'], cols: [x] };
+function coordinateColumns(grid: Geometry): { names: string[]; cols: Float64Array[] } {
+  const { x, y, z } = cellCoordinates(grid);
+  const dim = gridDimension(grid);
+  return { names: ['x', 'y', 'z'].slice(0, dim), cols: [x, y, z].slice(0, dim) };
 }
 
 function columns(cols: readonly ArrayLike<number>[]): Matrix {
@@ -45,7 +46,7 @@ function columns(cols: readonly ArrayLike<number>[]): Matrix {
   return m;
 }
 
-export function posteriorCsv(grid: Grid, s: PosteriorSummary): ExportFile {
+export function posteriorCsv(grid: Geometry, s: PosteriorSummary): ExportFile {
   const c = coordinateColumns(grid);
   return text('posterior.csv', 'text/csv', writeCsv(columns([...c.cols, s.mean, s.std]), [...c.names, 'mean', 'std']));
 }
@@ -127,7 +128,7 @@ export function joinParts(file: ExportParts): Uint8Array {
 
 /** What lies beside the realisations: the grid (problem-file fields), the seed and how to read the rows. */
 export function drawsGridFile(
-  grid: Grid,
+  grid: Geometry,
   draws: Matrix,
   which: 'prior' | 'posterior',
   seed: number,
@@ -142,15 +143,31 @@ export function drawsGridFile(
     which,
     count: draws.rows,
     seed,
-    layout: 'draws × cells: row k is realisation k; column i is cell i = ix + nx·iy (x fastest), centred at origin + (ix·dx, iy·dy)',
+    layout: `draws × cells: row k is realisation k; column i is ${cellWords(grid)}`,
     files: [`${base}.npy`, `${base}.csv`],
-    grid: gridRecord(grid),
+    ...(isCellList(grid) ? { cells: gridRecord(grid) } : { grid: gridRecord(grid) }),
   };
   return text(`${base}.grid.json`, 'application/json', formatJson(record));
 }
 
-/** The grid as in a problem file, origin always written. */
-function gridRecord(grid: Grid): Record<string, unknown> {
+/** What cell i is, in words, for the layout fields. */
+function cellWords(grid: Geometry): string {
+  return isCellList(grid)
+    ? 'cell i, centred at row i of cells.centres'
+    : 'cell i = ix + nx·(iy + ny·iz) (x fastest), centred at origin + (ix·dx, iy·dy, iz·dz)';
+}
+
+/** The grid as in a problem file, origin always written; a cell list as its centres. */
+function gridRecord(grid: Geometry): Record<string, unknown> {
+  if (isCellList(grid)) {
+    const { x, y, z } = grid;
+    const axis = [x, y, z].slice(0, grid.dim);
+    return {
+      centres: Array.from({ length: x.length }, (_, i) => axis.map((a) => a[i])),
+      ...(grid.unit !== undefined ? { unit: grid.unit } : {}),
+      ...(grid.axes !== undefined ? { axes: [...grid.axes] } : {}),
+    };
+  }
   return {
     shape: [...grid.shape],
     spacing: [...grid.spacing],
@@ -161,14 +178,14 @@ function gridRecord(grid: Grid): Record<string, unknown> {
 }
 
 /** The grid beside an exported N × N matrix (Cm or its factor): rows and columns are cells in the grid's order. */
-export function gridFile(grid: Grid, file: string, title: string): ExportFile {
+export function gridFile(grid: Geometry, file: string, title: string): ExportFile {
   const record = {
     kind: 'priorscope.grid',
     version: 1,
     problem: title,
     file,
-    layout: 'cells × cells: row and column i are cell i = ix + nx·iy (x fastest), centred at origin + (ix·dx, iy·dy)',
-    grid: gridRecord(grid),
+    layout: `cells × cells: row and column i are ${cellWords(grid)}`,
+    ...(isCellList(grid) ? { cells: gridRecord(grid) } : { grid: gridRecord(grid) }),
   };
   return text(`${file.replace(/\.npy$/, '')}.grid.json`, 'application/json', formatJson(record));
 }

@@ -6,6 +6,7 @@
  */
 import type { WorkbenchState } from '../store.ts';
 import { cellCount } from '../../core/grid/grid.ts';
+import { isGridView } from '../gridView.ts';
 import type { Matrix } from '../../core/linalg/matrix.ts';
 import { defenceHtml, type DefenceInput } from '../../core/report/defence.ts';
 import { averagedRows, criteriaRows, fitReferenceRows, g4, pdRows, priorInWords } from '../../core/report/words.ts';
@@ -23,7 +24,8 @@ export function reportTime(now: Date): string {
 export function reportInput(s: WorkbenchState, caution: string, draws: Matrix | null, now = new Date()): DefenceInput | null {
   const p = s.problem;
   const post = s.posterior;
-  if (!p || !s.prior || !post) return null;
+  // The document's maps and tables are drawn on a grid; a cell list has none (the cells screen says so).
+  if (!isGridView(p) || !s.prior || !post) return null;
   const n = cellCount(p.grid);
   const unit = p.grid.unit ?? '';
   const facts: [string, string][] = [

@@ -16,12 +16,13 @@ import { InputError } from '../../core/errors.ts';
 import { fieldError, FileFormatError } from '../../core/io/errors.ts';
 import { JsonReader } from '../../core/io/json.ts';
 import { PRIOR_KIND, PRIOR_VERSION, readPriorObject } from '../../core/io/priorFile.ts';
-import type { Grid } from '../../core/grid/grid.ts';
+import type { Geometry } from '../../core/grid/grid.ts';
+import { MAX_CELL_LIST } from '../../core/prior/cells.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
 import { validatePrior } from '../../core/prior/validate.ts';
 import { DEMO_CHOICES } from '../demos.ts';
 import { MAX_CELLS, parseProblemFile, writeProblemFile } from '../../core/io/problemFile.ts';
-import { gridProblem, type Problem } from '../../core/problems/spec.ts';
+import type { Problem } from '../../core/problems/spec.ts';
 import { DEFAULT_SEED, TABS, type TabId } from '../view/slice.ts';
 import { SESSION_FORMAT, type SavedSession } from './autosave.ts';
 
@@ -105,7 +106,7 @@ function plain(v: unknown, depth = 0): unknown {
  * A prior from storage, checked like a prior file (field kinds, finite numbers, at most MAX_TERMS terms)
  * and, given a grid, by the core's validatePrior against it. Throws an Error with our one-line message.
  */
-export function readStoredPrior(file: string, value: unknown, grid?: Grid): PriorSpec {
+export function readStoredPrior(file: string, value: unknown, grid?: Geometry): PriorSpec {
   if (!isObject(value)) throw fieldError(file, 'prior', 'an object with mean and terms', value);
   const prior = readPriorObject(
     new JsonReader(file),
@@ -131,7 +132,7 @@ export function damagedPrior(e: unknown): string {
  * The saved problem through the problem-file validators (write, then parse back). Throws an Error
  * with our message when it cannot be restored.
  */
-export function validateSavedProblem(raw: unknown): Problem {
+export function validateSavedProblem(raw: unknown): Problem<Geometry> {
   const shape = shapeDefect(raw);
   if (shape) throw new Error(`The saved problem could not be restored: ${shape}.`);
   try {
@@ -145,7 +146,7 @@ export function validateSavedProblem(raw: unknown): Problem {
         return bytes;
       },
     }).problem;
-    return gridProblem(parsed, 'the workbench');
+    return parsed;
   } catch (e) {
     if (e instanceof InputError || e instanceof FileFormatError) throw new Error(`The saved problem could not be restored: ${e.message}`);
     throw new Error('The saved problem could not be restored: the stored copy is damaged.');
@@ -161,11 +162,22 @@ const isCount = (v: unknown, max: number): v is number => typeof v === 'number' 
 function shapeDefect(raw: unknown): string | null {
   if (!isObject(raw) || !isObject(raw.grid) || !isObject(raw.operator) || !isObject(raw.data))
     return 'the stored copy is damaged (grid, operator or data missing)';
-  const shape = raw.grid.shape;
-  if (!Array.isArray(shape) || shape.length < 1 || shape.length > 3 || !shape.every((v) => isCount(v, MAX_CELLS)))
-    return 'grid.shape must be [nx], [nx, ny] or [nx, ny, nz] of positive integers';
-  const n = (shape as number[]).reduce((a, b) => a * b, 1);
-  if (n > MAX_CELLS) return `grid.shape must have at most ${MAX_CELLS} cells in all, got ${n}`;
+  let n: number;
+  if (raw.grid.kind === 'cells') {
+    // A cell list: three coordinate arrays of one length (the rest is checked by the problem-file reader).
+    const { x, y, z } = raw.grid;
+    if (!(x instanceof Float64Array) || !(y instanceof Float64Array) || !(z instanceof Float64Array))
+      return 'the stored cell list is damaged (centres missing)';
+    n = x.length;
+    if (!isCount(n, MAX_CELL_LIST) || y.length !== n || z.length !== n)
+      return `the stored cell list must have 1 to ${MAX_CELL_LIST} centres with every coordinate given`;
+  } else {
+    const shape = raw.grid.shape;
+    if (!Array.isArray(shape) || shape.length < 1 || shape.length > 3 || !shape.every((v) => isCount(v, MAX_CELLS)))
+      return 'grid.shape must be [nx], [nx, ny] or [nx, ny, nz] of positive integers';
+    n = (shape as number[]).reduce((a, b) => a * b, 1);
+    if (n > MAX_CELLS) return `grid.shape must have at most ${MAX_CELLS} cells in all, got ${n}`;
+  }
   const g = raw.operator.matrix;
   if (!isObject(g) || !isCount(g.rows, MAX_CELLS) || g.cols !== n)
     return `the operator must have ${n} columns (one per grid cell) and a whole number of rows`;

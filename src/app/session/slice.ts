@@ -10,7 +10,7 @@
 import type { Problem } from '../../core/problems/spec.ts';
 import type { PriorSpec } from '../../core/prior/spec.ts';
 import type { Matrix } from '../../core/linalg/matrix.ts';
-import type { Grid } from '../../core/grid/grid.ts';
+import type { Geometry } from '../../core/grid/grid.ts';
 import type { NamedBytes, PiecesInput } from '../../core/io/pieces.ts';
 import { checkPriorForGrid } from '../../core/io/priorFile.ts';
 import { validatePrior } from '../../core/prior/validate.ts';
@@ -26,7 +26,7 @@ import type { StoreGet, StoreSet, WorkbenchState, WorkbenchStore } from '../stor
 import type { TabId } from '../view/slice.ts';
 
 export interface UserProblem {
-  readonly problem: Problem;
+  readonly problem: Problem<Geometry>;
   /** File name(s) it came from, shown as text. */
   readonly label: string;
   /** Identifies the saved copy in IndexedDB. */
@@ -52,7 +52,7 @@ export interface SessionSlice {
   loadProblemFiles(files: readonly NamedBytes[]): Promise<boolean>;
   loadPieces(input: PiecesInput): Promise<boolean>;
   /** Use a parsed problem (also used to restore a saved one). */
-  adoptProblem(problem: Problem, label: string, view?: SessionView, key?: string): Promise<boolean>;
+  adoptProblem(problem: Problem<Geometry>, label: string, view?: SessionView, key?: string): Promise<boolean>;
   /** Load a built-in problem and then apply a saved or shared view (prior, seed, tab, cell). */
   openDemo(demoId: string, view?: SessionView): Promise<boolean>;
   importPrior(file: NamedBytes): Promise<boolean>;
@@ -74,7 +74,7 @@ export interface SessionSlice {
 }
 
 /** A prior from storage or a link: every field (the core's validator), then its fit to the grid. */
-export function checkSavedPrior(prior: PriorSpec, grid: Grid): void {
+export function checkSavedPrior(prior: PriorSpec, grid: Geometry): void {
   try {
     validatePrior(prior, grid);
   } catch (e) {

@@ -4,7 +4,7 @@
  * profile and grid overlay. Figures come from ./figures.ts.
  */
 import { useMemo } from 'react';
-import type { ProblemView } from '../../worker/protocol.ts';
+import type { GridView } from '../gridView.ts';
 import { Plot } from '../Plot.tsx';
 import { gridOverlayTraces, misfitTraces, profileLayouts, profileTraces, rayLayouts, rayTraces } from './figures.ts';
 
@@ -14,7 +14,7 @@ interface Fit {
 }
 
 /** The fit's survey views, or nothing when the problem has no geometry. */
-export function SurveyFitPlots({ p, fit }: { p: ProblemView; fit: Fit }) {
+export function SurveyFitPlots({ p, fit }: { p: GridView; fit: Fit }) {
   const figs = useMemo(() => {
     const g = p.geometry;
     if (g?.kind === 'points') {

@@ -11,7 +11,7 @@
  * src/core/prior/validate.ts (|mean| ≤ 1e50; std from 1e-50 to 1e50). Errors name the file and the
  * line (CSV) or the flat index (.npy).
  */
-import { cellCount, type Grid } from '../grid/grid.ts';
+import { cellCount, type Geometry, isCellList } from '../grid/grid.ts';
 import { formatValue } from '../errors.ts';
 import { SCALE_LIMIT, SCALE_MIN } from '../prior/validate.ts';
 import { FileFormatError } from './errors.ts';
@@ -21,9 +21,10 @@ import { parseNpy } from './npy.ts';
 export type CellValuesKind = 'mean' | 'std';
 
 /** Read N per-cell values; `kind` 'std' requires every value > 0. */
-export function parseCellValues(file: string, bytes: Uint8Array, grid: Grid, kind: CellValuesKind): Float64Array {
+export function parseCellValues(file: string, bytes: Uint8Array, grid: Geometry, kind: CellValuesKind): Float64Array {
   const n = cellCount(grid);
-  const [nx, ny, nz] = grid.shape;
+  // A cell list takes (N,) or (N, 1) only: values in the order of cells.centres.
+  const [nx, ny, nz] = isCellList(grid) ? [n, undefined, undefined] : grid.shape;
   const lower = file.toLowerCase();
   let values: Float64Array;
   let where: (k: number) => string;
@@ -54,7 +55,9 @@ export function parseCellValues(file: string, bytes: Uint8Array, grid: Grid, kin
     if (t.matrix.rows !== n) {
       throw new FileFormatError(
         file,
-        `must have ${n} rows of values (one per grid cell, ${grid.shape.join(' × ')}, x fastest), got ${t.matrix.rows}`,
+        isCellList(grid)
+          ? `must have ${n} rows of values (one per cell, in the order of cells.centres), got ${t.matrix.rows}`
+          : `must have ${n} rows of values (one per grid cell, ${grid.shape.join(' × ')}, x fastest), got ${t.matrix.rows}`,
       );
     }
     values = t.matrix.data;

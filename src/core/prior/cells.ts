@@ -7,10 +7,10 @@
  *
  * O(N²) kernel evaluations (the grid route needs O(N)); only the upper triangle is evaluated and mirrored,
  * so Cm is exactly symmetric. Size limit: MAX_CELL_LIST (measured, see DEVELOPERS.md "Cell lists").
- * PUBLIC API: pairwiseCovariance, MAX_CELL_LIST.
+ * PUBLIC API: pairwiseCovariance, covarianceRow, MAX_CELL_LIST.
  */
 import { InputError } from '../errors.ts';
-import type { CellList } from '../grid/grid.ts';
+import { type CellList, cellCoordinates, type Geometry } from '../grid/grid.ts';
 import { correlationFunction } from '../kernels/correlation.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
 import { scaledDistance } from './lag.ts';
@@ -55,4 +55,26 @@ export function pairwiseCovariance(cells: CellList, prior: PriorSpec): Matrix {
   const nugget = prior.nugget ?? 0;
   if (nugget !== 0) for (let i = 0; i < n; i++) d[i * n + i] += nugget;
   return c;
+}
+
+/**
+ * Row i of Cm on any geometry (a grid or a cell list) from the offsets x_j − x_i of the cell centres, without
+ * forming Cm: O(N) kernel evaluations per term (the correlation of one cell with every other, for the volume and
+ * cells screens). The same formula, kernel table and scaled distance as {@link pairwiseCovariance}.
+ */
+export function covarianceRow(g: Geometry, prior: PriorSpec, i: number): Float64Array {
+  const { x, y, z } = cellCoordinates(g);
+  const n = x.length;
+  if (!Number.isInteger(i) || i < 0 || i >= n) throw new InputError('cell', `an integer cell index from 0 to ${n - 1}`, i);
+  const out = new Float64Array(n);
+  for (const term of prior.terms) {
+    const rho = correlationFunction(term.kernel, term.nu);
+    const h = scaledDistance(term);
+    const v = term.variance;
+    for (let j = 0; j < n; j++) out[j] += v * rho(h(x[j] - x[i], y[j] - y[i], z[j] - z[i]));
+  }
+  const s = prior.stdProfile;
+  if (s !== undefined) for (let j = 0; j < n; j++) out[j] *= s[i] * s[j];
+  out[i] += prior.nugget ?? 0;
+  return out;
 }

@@ -104,3 +104,20 @@ export function rowList(rows: readonly number[], max = 5): string {
   if (more) return `rows ${shown.join(', ')}${more}`;
   return `rows ${shown.slice(0, -1).join(', ')} and ${shown[shown.length - 1]}`;
 }
+
+/**
+ * The largest extent of the geometry and its smallest cell size, for default lengths and slider ranges. A grid:
+ * n·spacing along each axis and its smallest spacing. A cell list has no spacing: the spans of its centres, and the
+ * side of the cube (square, segment) holding the mean share of their box, (Π spans / N)^(1/d) (our choice).
+ */
+export function geometryScale(g: Geometry): { readonly extent: number; readonly spacing: number } {
+  if (!isCellList(g)) {
+    return { extent: Math.max(...g.shape.map((n, k) => n * g.spacing[k])), spacing: Math.min(...g.spacing) };
+  }
+  const b = gridBounds(g);
+  const spans = [b.x, b.y, b.z ?? ([0, 0] as const)].slice(0, g.dim).map(([lo, hi]) => hi - lo);
+  const extent = Math.max(...spans);
+  if (!(extent > 0)) return { extent: 1, spacing: 1 };
+  const spacing = (spans.reduce((a, v) => a * Math.max(v, extent * 1e-6), 1) / g.x.length) ** (1 / g.dim);
+  return { extent, spacing };
+}

@@ -3,7 +3,7 @@
  * Typed-array form used inside the core; the JSON problem file maps onto it in src/core/io.
  */
 import { InputError } from '../errors.ts';
-import { type Geometry, type Grid, isCellList } from '../grid/grid.ts';
+import { cellCount, type Geometry, type Grid, isCellList } from '../grid/grid.ts';
 import type { Matrix } from '../linalg/matrix.ts';
 import type { Operator } from '../linalg/operator.ts';
 
@@ -42,18 +42,20 @@ export interface Problem<G extends Geometry = Grid> {
   readonly quantity?: { readonly name: string; readonly unit?: string };
 }
 
+/** Whether the problem's cells form a regular grid (not a cell list). */
+export function isGridProblem(problem: Problem<Geometry>): problem is Problem {
+  return !isCellList(problem.grid);
+}
+
 /**
- * The problem on its regular grid, for the computations that need one (FFT products, lag tables, grid plots);
- * a cell list is refused with an InputError on `cells` saying what works on cell lists instead.
+ * The problem on its regular grid (the same object), for the computations that need one (FFT products, lag tables,
+ * grid plots); a cell list is refused with an InputError on `cells` saying what works on cell lists instead.
  */
 export function gridProblem(problem: Problem<Geometry>, what: string): Problem {
-  const g = problem.grid;
-  if (isCellList(g)) {
-    throw new InputError(
-      'cells',
-      `a regular "grid" for ${what} (a problem on a cell list of its own mesh takes the dense route: priorscope posterior, check and sample)`,
-      `a cell list of ${g.x.length} centres`,
-    );
-  }
-  return { ...problem, grid: g };
+  if (isGridProblem(problem)) return problem;
+  throw new InputError(
+    'cells',
+    `a regular "grid" for ${what} (a problem on a cell list of its own mesh takes the dense route: priorscope posterior, check and sample)`,
+    `a cell list of ${cellCount(problem.grid)} centres`,
+  );
 }

@@ -15,14 +15,14 @@
 import { assertNever, InputError, NotPositiveDefiniteError } from '../errors.ts';
 import { nonStationaryReason } from '../fft/covariance.ts';
 import { structuredProblem, type StructuredProblem } from '../inverse/structured.ts';
-import { cellCount } from '../grid/grid.ts';
+import { cellCount, type Geometry } from '../grid/grid.ts';
 import { cholesky, logDetFromCholesky, solveLower } from '../linalg/cholesky.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
 import { applyOperator, operatorShape, projectCovariance } from '../linalg/operator.ts';
 import { assembleCovariance, covarianceMatrix, meanVector } from '../prior/covariance.ts';
 import { offsetTable, type OffsetFunction } from '../prior/lag.ts';
 import type { PriorSpec } from '../prior/spec.ts';
-import type { Problem } from '../problems/spec.ts';
+import { isGridProblem, type Problem } from '../problems/spec.ts';
 import { structuredProjection, TUNING_DENSE_LIMIT, tuningRoute, type TuningRoute } from './projected.ts';
 import { lagProjectionApplies, lagTableProjection, projectLagTable } from './lagProjection.ts';
 
@@ -119,7 +119,13 @@ export function addMatrices(a: Matrix, b: Matrix): Matrix {
  * (test/core/tuning/projected.test.ts). Validates the prior (InputError naming the field); a forced
  * 'fft' for a prior that is not stationary on the grid is an InputError naming `route`.
  */
-export function projectedPriorCovariance(problem: Problem, prior: PriorSpec, options: RouteOptions = {}): Matrix {
+export function projectedPriorCovariance(problem: Problem<Geometry>, prior: PriorSpec, options: RouteOptions = {}): Matrix {
+  if (!isGridProblem(problem)) {
+    // A cell list (the user's own mesh) has no lattice: the dense route only.
+    if (options.route === 'fft' || options.structured)
+      throw new InputError('route', '"dense" or "auto" for a cell list (the FFT route needs a regular grid)', 'fft');
+    return projectCovariance(problem.operator, covarianceMatrix(problem.grid, prior));
+  }
   const route = projectionRoute(problem, prior, options.route ?? 'auto');
   if (route === 'dense') return projectCovariance(problem.operator, covarianceMatrix(problem.grid, prior));
   // Few non-zeros (point data): the lag table gives P exactly, cheaper than any transform (./lagProjection.ts).

@@ -35,7 +35,8 @@
  * PUBLIC API: startPriorRule, StartPriorRule, START_PRIOR_RULE_TEXT.
  */
 import { InputError } from '../errors.ts';
-import { cellCount, gridDimension, type Grid } from '../grid/grid.ts';
+import { cellCount, type Geometry, gridDimension, isCellList } from '../grid/grid.ts';
+import { geometryScale } from '../problems/geometry.ts';
 import { cholesky, solveLower, solveLowerRows } from '../linalg/cholesky.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
 import { applyOperator, operatorShape } from '../linalg/operator.ts';
@@ -83,8 +84,15 @@ function round(x: number, digits = 2): number {
   return x === 0 || !Number.isFinite(x) ? x : Number(x.toPrecision(digits));
 }
 
-/** The rule's correlation length for a grid (step 1 of the module comment). */
-export function startLength(grid: Grid): number {
+/**
+ * The rule's correlation length for a grid (step 1 of the module comment); for a cell list, its extent and typical
+ * cell size from ../problems/geometry.ts geometryScale.
+ */
+export function startLength(grid: Geometry): number {
+  if (isCellList(grid)) {
+    const { extent, spacing } = geometryScale(grid);
+    return Math.max(START_LENGTH_FRACTION * extent, 2 * spacing);
+  }
   const extent = Math.max(...grid.shape.map((n, k) => n * grid.spacing[k]));
   return Math.max(START_LENGTH_FRACTION * extent, 2 * Math.max(...grid.spacing));
 }
@@ -93,7 +101,7 @@ export function startLength(grid: Grid): number {
  * The starting prior of the module comment for `problem`. Throws InputError when the data
  * covariance does not factor or the operator is zero (no variance can be inferred).
  */
-export function startPriorRule(problem: Problem, options: { structured?: StructuredProblem } = {}): StartPriorRule {
+export function startPriorRule(problem: Problem<Geometry>, options: { structured?: StructuredProblem } = {}): StartPriorRule {
   const { grid, operator, data } = problem;
   const { rows: m, cols: n } = operatorShape(operator);
   if (n !== cellCount(grid)) throw new InputError('problem.operator', `${cellCount(grid)} columns (one per grid cell)`, `${n} columns`);
@@ -208,7 +216,9 @@ export function startPriorRule(problem: Problem, options: { structured?: Structu
     nugget: 0,
   };
   const lu = grid.unit ? ` ${grid.unit}` : '';
-  const dims = gridDimension(grid) === 2 ? 'the larger grid extent' : 'the grid extent';
+  const dims = isCellList(grid)
+    ? 'the largest extent of the cell centres'
+    : ['the grid extent', 'the larger grid extent', 'the largest grid extent'][gridDimension(grid) - 1];
   const explanation =
     `Mean ${round(c)}` +
     (meanFitted

@@ -66,14 +66,17 @@ describe('volume sections', () => {
     expect(l.yaxis.autorange).toBe('reversed');
   });
 
-  it('project 3-D positions and path ends onto each plane; 2-D geometry is not drawn on a volume', () => {
+  it('project 3-D positions and path ends onto each plane; 2-D geometry lies in the x–y plane only (a 2-D cell list’s map)', () => {
     const positions = matrix(2, 3, Float64Array.from([1, 2, 3, 4, 5, 6]));
     expect(geometryTraces({ kind: 'points', positions }, 'xz')[0]).toMatchObject({ x: [1, 4], y: [3, 6] });
     expect(geometryTraces({ kind: 'points', positions }, 'yz')[0]).toMatchObject({ x: [2, 5], y: [3, 6] });
     const sources = matrix(1, 3, Float64Array.from([0, 1, 2]));
     const receivers = matrix(1, 3, Float64Array.from([9, 8, 7]));
     expect(geometryTraces({ kind: 'paths', sources, receivers }, 'xy')[0]).toMatchObject({ x: [0, 9, null], y: [1, 8, null] });
-    expect(geometryTraces({ kind: 'points', positions: matrix(1, 2, Float64Array.from([1, 2])) }, 'xy')).toEqual([]);
+    const flat = matrix(1, 2, Float64Array.from([1, 2]));
+    expect(geometryTraces({ kind: 'points', positions: flat }, 'xy')[0]).toMatchObject({ x: [1], y: [2] });
+    expect(geometryTraces({ kind: 'points', positions: flat }, 'xz')).toEqual([]);
+    expect(geometryTraces({ kind: 'paths', sources: flat, receivers: flat }, 'yz')).toEqual([]);
     expect(geometryTraces(undefined, 'xy')).toEqual([]);
   });
 

@@ -80,7 +80,7 @@ describe('parseRequest: 3-D problems', () => {
     });
     const r = parseRequest({ kind: 'problemFiles', files: [{ name: 'v.json', bytes: enc(text) }] });
     if (r.kind !== 'problem') throw new Error(`expected a problem, got ${r.kind}`);
-    expect(r.problem.grid.shape).toEqual([1, 1, 2]);
+    expect(r.problem.grid).toMatchObject({ shape: [1, 1, 2] });
     expect(r.problem.data.geometry?.kind).toBe('points');
   });
 });
