@@ -77,6 +77,14 @@ test('a 3-D problem loads and shows three sections that follow the sliders', asy
   // Another field: the standard deviation on the sequential scale from 0.
   await page.getByTestId('volume-field').selectOption('std');
   await expect.poll(async () => Math.min(...((await zOf('plot-section-xy')) ?? [[-1]]).flat())).toBeGreaterThan(0);
+  // The prior correlation with the chosen cell: 1 at that cell (it lies on every section), below 1 elsewhere.
+  await page.getByTestId('volume-field').selectOption('correlation');
+  await expect.poll(async () => Math.max(...((await zOf('plot-section-yz')) ?? [[0]]).flat())).toBeCloseTo(1, 12);
+  const chosen = (await state(page)).selectedCell!;
+  const yzCorr = (await zOf('plot-section-yz'))!;
+  // y–z at the chosen ix: row iz, column iy.
+  expect(yzCorr[Math.floor(chosen / (NX * NY))][Math.floor(chosen / NX) % NY]).toBeCloseTo(1, 12);
+  await screenshot(page, info, 'volume-correlation');
   await page.getByTestId('volume-field').selectOption('kernel');
   await expect.poll(async () => (await zOf('plot-section-xy'))?.length ?? 0, { timeout: 30_000 }).toBe(NY);
   await screenshot(page, info, 'volume-kernel');

@@ -167,12 +167,16 @@ export function crossHairs(s: Section, cellCentre: readonly [number, number, num
   };
 }
 
-/** Layout of one section: true aspect (scaleanchor), the down axis reversed, axis names with the grid's unit. */
+/**
+ * Layout of one section: true aspect (scaleanchor), the down axis reversed, axis names with the grid's unit. The title
+ * is the section alone when `heading` is empty (three sections side by side leave no room for the field's name,
+ * which the screen's field list shows).
+ */
 export function sectionLayout(grid: Grid, s: Section, heading: string): Layout {
   const names = volumeAxisNames(grid);
   const [a, b] = planeAxes(s.plane);
   return {
-    title: title(`${heading}: ${sectionTitle(grid, s)}`),
+    title: title(heading ? `${heading}: ${sectionTitle(grid, s)}` : sectionTitle(grid, s)),
     xaxis: { title: { text: withUnit(names[a], grid.unit) }, constrain: 'domain' },
     yaxis: { title: { text: `${withUnit(names[b], grid.unit)} ↓` }, autorange: 'reversed', scaleanchor: 'x', constrain: 'domain' },
     margin: { l: 56, r: 10, t: 30, b: 42 },

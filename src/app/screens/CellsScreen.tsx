@@ -7,10 +7,9 @@
  */
 import { useMemo, useState } from 'react';
 import { useShallow } from 'zustand/react/shallow';
-import { type CellList, isCellList } from '../../core/grid/grid.ts';
-import { covarianceRow } from '../../core/prior/cells.ts';
-import { priorVariance } from '../../core/prior/covariance.ts';
+import { isCellList } from '../../core/grid/grid.ts';
 import { useWb } from '../context.ts';
+import { correlationWith } from '../figures/correlation.ts';
 import {
   chosenTrace,
   cloudAxisNames,
@@ -44,17 +43,6 @@ const FIELDS: readonly { id: FieldId; label: string }[] = [
   { id: 'posterior-draw', label: 'Posterior realisation 1' },
   { id: 'kernel', label: 'Averaging kernel' },
 ];
-
-/** Prior correlation of cell i with every cell, Cm[i][j] / √(Cm[i][i] Cm[j][j]); null for a prior being edited into shape. */
-function correlationWith(cells: CellList, prior: Parameters<typeof covarianceRow>[1], i: number): Float64Array | null {
-  try {
-    const row = covarianceRow(cells, prior, i);
-    const v = priorVariance(cells, prior);
-    return row.map((c, j) => c / Math.sqrt(v[i] * v[j]));
-  } catch {
-    return null;
-  }
-}
 
 export function CellsScreen() {
   const cells = useWb((s) => (s.problem && isCellList(s.problem.grid) ? s.problem.grid : null));
@@ -111,6 +99,7 @@ export function CellsScreen() {
     const planes: readonly SectionPlane[] = cells.dim === 2 ? ['xy'] : ['xy', 'xz', 'yz'];
     return {
       kind: 'planes' as const,
+      heading,
       planes: planes.map((plane, k) => {
         const f = planeAxes(plane)[2];
         const members = slabMembers(cells, f, where[f], half);
@@ -226,6 +215,11 @@ export function CellsScreen() {
           />
         ) : (
           <div className={figures.planes.length === 1 ? undefined : 'grid-3'}>
+            {figures.planes.length > 1 && (
+              <div className="section-heading" data-testid="cells-shown">
+                {figures.heading}
+              </div>
+            )}
             {figures.planes.map((f) => (
               <Plot
                 key={f.plane}

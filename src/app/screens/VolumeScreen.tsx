@@ -7,6 +7,7 @@ import { useGridView } from '../gridView.ts';
 import { useMemo, useState } from 'react';
 import { useShallow } from 'zustand/react/shallow';
 import { useWb } from '../context.ts';
+import { correlationWith } from '../figures/correlation.ts';
 import {
   crossHairs,
   geometryTraces,
@@ -24,11 +25,12 @@ import { download } from '../session/download.ts';
 import { volumeVti } from '../session/exports.ts';
 import { Waiting } from './Waiting.tsx';
 
-type FieldId = 'mean' | 'std' | 'reduction' | 'prior-draw' | 'posterior-draw' | 'kernel';
+type FieldId = 'mean' | 'std' | 'reduction' | 'correlation' | 'prior-draw' | 'posterior-draw' | 'kernel';
 const FIELDS: readonly { id: FieldId; label: string; signed: boolean }[] = [
   { id: 'mean', label: 'Posterior mean', signed: true },
   { id: 'std', label: 'Posterior standard deviation', signed: false },
   { id: 'reduction', label: 'Variance reduction 1 − σ²post/σ²prior', signed: false },
+  { id: 'correlation', label: 'Prior correlation with the chosen cell', signed: true },
   { id: 'prior-draw', label: 'Prior realisation 1', signed: true },
   { id: 'posterior-draw', label: 'Posterior realisation 1', signed: true },
   { id: 'kernel', label: 'Averaging kernel', signed: true },
@@ -40,6 +42,7 @@ export function VolumeScreen() {
   const priorDraws = useWb((s) => s.priorDraws);
   const postDraws = useWb((s) => s.posteriorDraws);
   const resolution = useWb((s) => s.resolution);
+  const prior = useWb((s) => s.prior);
   const [selected, selectCell] = useWb(useShallow((s) => [s.selectedCell, s.selectCell] as const));
   const [field, setField] = useState<FieldId>('mean');
   const shape = p ? [p.grid.shape[0], p.grid.shape[1] ?? 1, p.grid.shape[2] ?? 1] : [1, 1, 1];
@@ -55,6 +58,10 @@ export function VolumeScreen() {
         return { v: s.std, signed: false };
       case 'reduction':
         return { v: varianceReduction(s.std, s.priorStd), signed: false };
+      case 'correlation': {
+        const c = p && prior ? correlationWith(p.grid, prior, sel) : null;
+        return c ? { v: c, signed: true, centre: 0 } : null;
+      }
       case 'prior-draw':
         return priorDraws ? { v: priorDraws.data.subarray(0, priorDraws.cols), signed: true } : null;
       case 'posterior-draw':
@@ -63,23 +70,24 @@ export function VolumeScreen() {
         // A resolution row is signed about 0 (not about the prior mean): the diverging scale centred on 0.
         return resolution && resolution.cell === sel ? { v: resolution.row, signed: true, centre: 0 } : null;
     }
-  }, [post, priorDraws, postDraws, resolution, field, sel]);
+  }, [p, prior, post, priorDraws, postDraws, resolution, field, sel]);
   const figures = useMemo(() => {
     if (!p || !post || !values) return null;
     const shown = volumeColour(values.v, values.signed, values.centre === undefined ? post.priorMean : new Float64Array(values.v.length));
     const label = FIELDS.find((f) => f.id === field)!.label;
     const heading = shown.perturbation ? `${label} − prior mean` : label;
     const centre: [number, number, number] = [centres(p.grid, 0)[cell[0]], centres(p.grid, 1)[cell[1]], centres(p.grid, 2)[cell[2]]];
-    return sectionsThrough(p.grid, shown.values, cell).map((s, k) => ({
+    const planes = sectionsThrough(p.grid, shown.values, cell).map((s, k) => ({
       plane: s.plane,
       data: [
         sectionTrace(p.grid, s, label, shown.colour, k === 2),
         crossHairs(s, centre),
         ...geometryTraces(p.geometry ?? undefined, s.plane),
       ],
-      layout: sectionLayout(p.grid, s, heading),
+      layout: sectionLayout(p.grid, s, ''),
       extent: planeExtent(p.grid, s.plane),
     }));
+    return { heading, planes };
   }, [p, post, values, field, cell[0], cell[1], cell[2]]);
   if (!p) return null;
   const names = volumeAxisNames(p.grid);
@@ -135,7 +143,10 @@ export function VolumeScreen() {
       </div>
       {figures ? (
         <div className="grid-3">
-          {figures.map((f) => (
+          <div className="section-heading" data-testid="volume-shown">
+            {figures.heading}
+          </div>
+          {figures.planes.map((f) => (
             <Plot
               key={f.plane}
               id={`plot-section-${f.plane}`}
