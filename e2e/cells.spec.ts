@@ -128,7 +128,7 @@ test('a 2-D cell list loads as a map of its centres coloured by the posterior, e
   await page.getByTestId('cells-field').selectOption('correlation');
   await expect.poll(async () => Math.max(...((await markers(page, 'plot-cells-xy'))?.colour ?? [0]))).toBeCloseTo(1, 12);
   const corr = (await markers(page, 'plot-cells-xy'))!;
-  const chosen = (await state(page)).selectedCell ?? 0;
+  const chosen = Number((await page.getByTestId('cells-chosen').textContent())?.match(/chosen cell (\d+)/)?.[1]);
   expect(corr.colour[corr.cell.indexOf(chosen)]).toBeCloseTo(1, 12);
   await screenshot(page, info, 'cells-2d-correlation');
   // Export CSV: numpy reads the centres back in file order, with the posterior mean beside them.

@@ -69,7 +69,8 @@ test('a 3-D problem loads and shows three sections that follow the sliders', asy
   const before = await zOf('plot-section-xy');
   await page.getByTestId('volume-slider-2').fill('4');
   await expect.poll(async () => JSON.stringify(await zOf('plot-section-xy'))).not.toBe(JSON.stringify(before));
-  expect((await state(page)).selectedCell).toBe(4 * NX * NY);
+  // The screen starts at the middle cell (6, 5, 3); the slider keeps its x and y.
+  expect((await state(page)).selectedCell).toBe(6 + NX * (5 + NY * 4));
   await expect(page.getByText(/east–north at depth = 9 m/)).toBeVisible();
   await page.getByTestId('volume-slider-0').fill('7');
   await expect(page.getByText(/north–depth at east = 15 m/)).toBeVisible();
@@ -112,4 +113,33 @@ test('a 3-D problem loads and shows three sections that follow the sliders', asy
     'prior realisation 1',
     'posterior realisation 1',
   ]);
+});
+
+test('the built-in 3-D demo opens on the volume screen with its rays projected onto every section', async ({ page }, info) => {
+  test.setTimeout(120_000);
+  await page.goto('/?demo=three-boreholes');
+  await expect(page.getByTestId('screen-volume')).toBeVisible({ timeout: 45_000 });
+  const s = await settle(page);
+  expect(s.demoId).toBe('three-boreholes');
+  const traces = (id: string) =>
+    page.evaluate((plot) => {
+      const el = document.querySelector(`[data-testid="${plot}"] .js-plotly-plot`) ?? document.getElementById(plot);
+      return ((el as unknown as { data?: { name?: string; x?: unknown[]; z?: number[][] }[] })?.data ?? []).map((t) => ({
+        name: t.name ?? '',
+        points: t.x?.length ?? 0,
+        rows: t.z?.length ?? 0,
+      }));
+    }, id);
+  // 16 × 12 × 10 cells; 192 rays drawn as 3 points each (two ends and a break) on every plane.
+  await expect.poll(async () => (await traces('plot-section-xy'))[0]?.rows ?? 0, { timeout: 30_000 }).toBe(12);
+  for (const [plane, rows] of [
+    ['xy', 12],
+    ['xz', 10],
+    ['yz', 10],
+  ] as const) {
+    const t = await traces(`plot-section-${plane}`);
+    expect(t[0].rows).toBe(rows);
+    expect(t.find((x) => x.name === 'paths')?.points).toBe(3 * 192);
+  }
+  await screenshot(page, info, 'volume-demo');
 });

@@ -4,7 +4,8 @@
  */
 import type { Term } from '../core/kernels/spec.ts';
 import type { PriorSpec } from '../core/prior/spec.ts';
-import { geometryScale } from '../core/problems/geometry.ts';
+import { geometryScale, gridBounds } from '../core/problems/geometry.ts';
+import { type Geometry, isCellList } from '../core/grid/grid.ts';
 import type { ProblemView } from '../worker/protocol.ts';
 
 /** Realisations drawn per request (prior and posterior). */
@@ -36,4 +37,33 @@ export function addedTerm(terms: readonly Term[], problem: ProblemView): Term {
 function roundTo2(x: number): number {
   const p = 10 ** Math.floor(Math.log10(x));
   return (Math.round((x / p) * 10) / 10) * p;
+}
+
+const middles = new WeakMap<Geometry, number>();
+
+/**
+ * The cell a one-screen view (a volume, a cell list) shows before the user chooses one: the middle of the grid
+ * (a 1-D or 2-D grid keeps cell 0, as its screens always did), or the centre nearest the middle of a cell list's box.
+ */
+export function startCell(g: Geometry): number {
+  const known = middles.get(g);
+  if (known !== undefined) return known;
+  let cell = 0;
+  if (isCellList(g)) {
+    const b = gridBounds(g);
+    const mid = [b.x, b.y, b.z ?? ([0, 0] as const)].map(([lo, hi]) => (lo + hi) / 2);
+    let best = Number.POSITIVE_INFINITY;
+    for (let i = 0; i < g.x.length; i++) {
+      const d = (g.x[i] - mid[0]) ** 2 + (g.y[i] - mid[1]) ** 2 + (g.z[i] - mid[2]) ** 2;
+      if (d < best) {
+        best = d;
+        cell = i;
+      }
+    }
+  } else if (g.shape.length === 3) {
+    const [nx, ny, nz] = g.shape;
+    cell = Math.floor(nx / 2) + nx * (Math.floor(ny / 2) + ny * Math.floor(nz / 2));
+  }
+  middles.set(g, cell);
+  return cell;
 }

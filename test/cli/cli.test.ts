@@ -437,7 +437,7 @@ describe('tune and demo', () => {
     const r = await runCommand(['demo', '--list'], dir);
     expect(r.code).toBe(0);
     const list = JSON.parse(r.out) as { id: string; title: string; description: string }[];
-    expect(list.map((d) => d.id)).toEqual(['borehole-log', 'crosshole-tomography', 'potential-field']);
+    expect(list.map((d) => d.id)).toEqual(['borehole-log', 'crosshole-tomography', 'potential-field', 'three-boreholes']);
     list.forEach((d) => expect(d.title.length).toBeGreaterThan(0));
   });
   it('demo NAME writes files that the other commands read; a sibling operator file gives the same posterior', async () => {
@@ -458,7 +458,7 @@ describe('tune and demo', () => {
   it('demo with an unknown name is bad input', async () => {
     expectBadInput(
       await runCommand(['demo', 'volcano'], dir),
-      'priorscope demo: demo name must be one of borehole-log, crosshole-tomography, potential-field, got "volcano" (see priorscope demo --help)',
+      'priorscope demo: demo name must be one of borehole-log, crosshole-tomography, potential-field, three-boreholes, got "volcano" (see priorscope demo --help)',
     );
   });
 });

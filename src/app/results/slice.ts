@@ -9,7 +9,7 @@ import type { Matrix } from '../../core/linalg/matrix.ts';
 import type { Diagnostics } from '../../core/prior/diagnostics.ts';
 import type { ClientPort, Outcome } from '../../worker/client.ts';
 import type { Channel, PosteriorPartial, PosteriorResult } from '../../worker/protocol.ts';
-import { DRAW_COUNT } from '../defaults.ts';
+import { DRAW_COUNT, startCell } from '../defaults.ts';
 import type { StoreGet, StoreSet } from '../store.ts';
 
 /** Largest N for which the covariance heat map is requested. */
@@ -132,7 +132,7 @@ export function createResultsSlice(set: StoreSet, get: StoreGet, client: ClientP
       // resolution row on every tab.
       const volume = isCellList(problem.grid) || gridDimension(problem.grid) === 3;
       if ((s.tab === 'posterior' && s.selectedCell !== null) || volume) {
-        const cell = s.selectedCell ?? 0;
+        const cell = s.selectedCell ?? startCell(problem.grid);
         run(
           'resolution',
           `${rev}:${cell}`,

@@ -9,6 +9,7 @@ import { useMemo, useState } from 'react';
 import { useShallow } from 'zustand/react/shallow';
 import { isCellList } from '../../core/grid/grid.ts';
 import { useWb } from '../context.ts';
+import { startCell } from '../defaults.ts';
 import { correlationWith } from '../figures/correlation.ts';
 import {
   chosenTrace,
@@ -55,7 +56,7 @@ export function CellsScreen() {
   const resolution = useWb((s) => s.resolution);
   const [selected, selectCell] = useWb(useShallow((s) => [s.selectedCell, s.selectCell] as const));
   const [field, setField] = useState<FieldId>('mean');
-  const sel = selected ?? 0;
+  const sel = selected ?? (cells ? startCell(cells) : 0);
   // Slab positions (3-D): start through the chosen cell; a slider moves one, and the chosen cell follows.
   const positions = useMemo(() => (cells ? [0, 1, 2].map((k) => slabPositions(cells, k)) : [[], [], []]), [cells]);
   const [at, setAt] = useState<[number, number, number] | null>(null);

@@ -7,6 +7,7 @@ import { useGridView } from '../gridView.ts';
 import { useMemo, useState } from 'react';
 import { useShallow } from 'zustand/react/shallow';
 import { useWb } from '../context.ts';
+import { startCell } from '../defaults.ts';
 import { correlationWith } from '../figures/correlation.ts';
 import {
   crossHairs,
@@ -46,7 +47,7 @@ export function VolumeScreen() {
   const [selected, selectCell] = useWb(useShallow((s) => [s.selectedCell, s.selectCell] as const));
   const [field, setField] = useState<FieldId>('mean');
   const shape = p ? [p.grid.shape[0], p.grid.shape[1] ?? 1, p.grid.shape[2] ?? 1] : [1, 1, 1];
-  const sel = selected ?? 0;
+  const sel = selected ?? (p ? startCell(p.grid) : 0);
   const cell: [number, number, number] = [sel % shape[0], Math.floor(sel / shape[0]) % shape[1], Math.floor(sel / (shape[0] * shape[1]))];
   const values = useMemo((): { v: ArrayLike<number>; signed: boolean; centre?: number } | null => {
     if (!post) return null;

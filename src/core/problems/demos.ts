@@ -1,5 +1,5 @@
 /**
- * Built-in demo problems: three invented scenarios with a seeded synthetic truth drawn from a stated
+ * Built-in demo problems: four invented scenarios (three 1-D / 2-D, one 3-D) with a seeded synthetic truth drawn from a stated
  * `truthPrior` and seeded Gaussian noise, plus a reasonable but deliberately different `startPrior`
  * for the user to improve on. PUBLIC API (UI and CLI): DemoProblem, DEMOS, DEMO_IDS, demoById.
  *
@@ -19,7 +19,7 @@ import { rayOperator, type Ray } from './rays.ts';
 import type { Problem } from './spec.ts';
 
 export interface DemoProblem {
-  /** Stable id used in URLs and the CLI: "borehole-log", "crosshole-tomography", "potential-field". */
+  /** Stable id used in URLs and the CLI: "borehole-log", "crosshole-tomography", "potential-field", "three-boreholes". */
   readonly id: string;
   readonly title: string;
   /** One or two sentences describing the invented scenario. */
@@ -203,7 +203,76 @@ const potentialField: DemoProblem = {
   },
 };
 
-export const DEMOS: readonly DemoProblem[] = [boreholeLog, crossholeTomography, potentialField];
+// ---------------------------------------------------------------------------------------------
+// three-boreholes: 3-D travel times between three boreholes through a block of 1 m cells.
+
+/** east, north along the surface, depth downwards (m); 16 × 12 × 10 cells of 1 m. */
+const BOREHOLES_GRID: Grid = {
+  shape: [16, 12, 10],
+  spacing: [1, 1, 1],
+  origin: [0.5, 0.5, 0.5],
+  unit: 'm',
+  axes: ['east', 'north', 'depth'],
+};
+/** Where the three holes meet the surface (east, north; m), and the 8 source / receiver depths in each (m). */
+const BOREHOLES_HOLES: readonly (readonly [number, number])[] = [
+  [1.5, 1.5],
+  [14.5, 3],
+  [6, 10.5],
+];
+const BOREHOLES_DEPTHS = Array.from({ length: 8 }, (_, k) => 0.75 + 1.25 * k);
+
+/** Straight rays between every pair of holes, every source depth to every receiver depth: 3 × 64 = 192. */
+function boreholeRays3d(): Ray[] {
+  const rays: Ray[] = [];
+  for (let a = 0; a < BOREHOLES_HOLES.length; a++)
+    for (let b = a + 1; b < BOREHOLES_HOLES.length; b++)
+      for (const zs of BOREHOLES_DEPTHS)
+        for (const zr of BOREHOLES_DEPTHS) rays.push({ from: [...BOREHOLES_HOLES[a], zs], to: [...BOREHOLES_HOLES[b], zr] });
+  return rays;
+}
+
+const threeBoreholes: DemoProblem = {
+  id: 'three-boreholes',
+  title: 'Travel times between three boreholes (3-D)',
+  description:
+    'Three boreholes 10 m deep, 9 to 13 m apart: 8 sources and receivers in each, 192 straight rays between every ' +
+    'pair. Data are travel-time anomalies (ms); estimate the slowness perturbation (s/km) in a 16 m × 12 m × 10 m ' +
+    'block of 1 m cells, a formation with gently dipping, rotated layering.',
+  build() {
+    const truthPrior: PriorSpec = {
+      mean: { constant: 0 },
+      terms: [{ kernel: 'matern', nu: 1.5, variance: 4e-4, lengths: [7, 5, 1.5], angles: [25, 10, 0] }],
+      nugget: 4e-8,
+    };
+    const startPrior: PriorSpec = {
+      mean: { constant: 0 },
+      terms: [{ kernel: 'exponential', variance: 1e-3, length: 3 }],
+      nugget: 1e-7,
+    };
+    const rays = boreholeRays3d();
+    const G = rayOperator(BOREHOLES_GRID, rays);
+    const truth = drawFromPrior(BOREHOLES_GRID, truthPrior, 2718);
+    const sigma = new Float64Array(G.matrix.rows).fill(0.01);
+    const values = syntheticData(G, truth, sigma, 1414);
+    const problem: Problem = {
+      title: 'Travel times between three boreholes (3-D)',
+      grid: BOREHOLES_GRID,
+      operator: G,
+      data: {
+        values,
+        sigma,
+        unit: 'ms',
+        geometry: { kind: 'paths', sources: fromRows(rays.map((r) => [...r.from])), receivers: fromRows(rays.map((r) => [...r.to])) },
+      },
+      truth,
+      quantity: { name: 'slowness perturbation', unit: 's/km' },
+    };
+    return { problem, truthPrior, startPrior };
+  },
+};
+
+export const DEMOS: readonly DemoProblem[] = [boreholeLog, crossholeTomography, potentialField, threeBoreholes];
 
 export const DEMO_IDS: readonly string[] = DEMOS.map((d) => d.id);
 

@@ -1,13 +1,13 @@
 /**
- * Straight-ray forward operator for travel-time tomography on a regular 2-D grid.
+ * Straight-ray forward operator for travel-time tomography on a regular 2-D or 3-D grid.
  * PUBLIC API: rayPathLengths, rayOperator.
  *
- * A ray from P = (x0, y0) to Q = (x1, y1) is P + t (Q − P), t ∈ [0, 1]. Its travel time through a
- * slowness field that is constant per cell is Σ_cells ℓ_cell s_cell, where ℓ_cell is the exact length
- * of the segment inside the cell. We collect every t at which the ray crosses a vertical or
- * horizontal cell edge, sort them, and give each piece between two consecutive crossings (length
- * Δt |Q − P|) to the cell that contains the piece's midpoint (the standard cell-walking idea of
- * Siddon 1985, Med. Phys. 12:252, memory). Pieces outside the grid are dropped.
+ * A ray from P to Q ([x, y] on a 2-D grid, [x, y, z] on a 3-D one) is P + t (Q − P), t ∈ [0, 1]. Its travel
+ * time through a slowness field that is constant per cell is Σ_cells ℓ_cell s_cell, where ℓ_cell is the exact
+ * length of the segment inside the cell. We collect every t at which the ray crosses a cell face (a plane of
+ * constant x, y or z), sort them, and give each piece between two consecutive crossings (length Δt |Q − P|) to
+ * the cell that contains the piece's midpoint (the standard cell-walking idea of Siddon 1985, Med. Phys. 12:252,
+ * memory). Pieces outside the grid are dropped.
  */
 import { InputError } from '../errors.ts';
 import { cellCount, type Grid } from '../grid/grid.ts';
@@ -20,8 +20,9 @@ export interface RaySegment {
 }
 
 export interface Ray {
-  readonly from: readonly [number, number];
-  readonly to: readonly [number, number];
+  /** [x, y] on a 2-D grid, [x, y, z] on a 3-D one. */
+  readonly from: readonly number[];
+  readonly to: readonly number[];
 }
 
 /** Cell edges along one axis: cell k spans [o − d/2 + k d, o + d/2 + k d] (cell centres at o + k d). */
@@ -33,41 +34,46 @@ function edges(origin: number, spacing: number, count: number): Float64Array {
 
 /** Exact length of the ray inside each cell it crosses (cells with zero length omitted). */
 export function rayPathLengths(grid: Grid, ray: Ray): RaySegment[] {
-  if (grid.shape.length !== 2) throw new InputError('grid.shape', '[nx, ny] (rays need a 2-D grid)', grid.shape);
-  const [nx, ny] = grid.shape as [number, number];
-  const [dx, dy] = grid.spacing as [number, number];
-  const [ox = 0, oy = 0] = grid.origin ?? [];
-  const [x0, y0] = ray.from;
-  const [x1, y1] = ray.to;
-  const vx = x1 - x0;
-  const vy = y1 - y0;
-  const total = Math.hypot(vx, vy);
+  const dim = grid.shape.length;
+  if (dim !== 2 && dim !== 3) throw new InputError('grid.shape', '[nx, ny] or [nx, ny, nz] (rays need a 2-D or 3-D grid)', grid.shape);
+  if (ray.from.length !== dim || ray.to.length !== dim) {
+    throw new InputError('ray', `ends of ${dim} coordinates each on a ${dim}-D grid`, `${ray.from.length} and ${ray.to.length}`);
+  }
+  const n = grid.shape;
+  const d = grid.spacing;
+  const v = ray.to.map((q, k) => q - ray.from[k]);
+  const total = Math.hypot(...v);
   if (!(total > 0)) return [];
   const ts: number[] = [0, 1];
-  const ex = edges(ox, dx, nx);
-  const ey = edges(oy, dy, ny);
-  if (vx !== 0)
-    for (const e of ex) {
-      const t = (e - x0) / vx;
+  const lo: number[] = [];
+  for (let k = 0; k < dim; k++) {
+    const e = edges(grid.origin?.[k] ?? 0, d[k], n[k]);
+    lo.push(e[0]);
+    if (v[k] === 0) continue;
+    for (const x of e) {
+      const t = (x - ray.from[k]) / v[k];
       if (t > 0 && t < 1) ts.push(t);
     }
-  if (vy !== 0)
-    for (const e of ey) {
-      const t = (e - y0) / vy;
-      if (t > 0 && t < 1) ts.push(t);
-    }
+  }
   ts.sort((a, b) => a - b);
-  const xmin = ex[0];
-  const ymin = ey[0];
   const out = new Map<number, number>();
-  for (let k = 0; k + 1 < ts.length; k++) {
-    const dt = ts[k + 1] - ts[k];
+  for (let j = 0; j + 1 < ts.length; j++) {
+    const dt = ts[j + 1] - ts[j];
     if (dt <= 0) continue;
-    const tm = 0.5 * (ts[k] + ts[k + 1]);
-    const ix = Math.floor((x0 + tm * vx - xmin) / dx);
-    const iy = Math.floor((y0 + tm * vy - ymin) / dy);
-    if (ix < 0 || ix >= nx || iy < 0 || iy >= ny) continue;
-    const cell = ix + nx * iy;
+    const tm = 0.5 * (ts[j] + ts[j + 1]);
+    let cell = 0;
+    let stride = 1;
+    let inside = true;
+    for (let k = 0; k < dim; k++) {
+      const i = Math.floor((ray.from[k] + tm * v[k] - lo[k]) / d[k]);
+      if (i < 0 || i >= n[k]) {
+        inside = false;
+        break;
+      }
+      cell += stride * i;
+      stride *= n[k];
+    }
+    if (!inside) continue;
     out.set(cell, (out.get(cell) ?? 0) + dt * total);
   }
   return [...out.entries()].sort((a, b) => a[0] - b[0]).map(([cell, length]) => ({ cell, length }));

@@ -9,12 +9,14 @@ import { covarianceMatrix, meanVector } from '../../../src/core/prior/covariance
 const built = new Map(DEMOS.map((d) => [d.id, d.build()]));
 
 describe('demo problems', () => {
-  it('has the three stable ids', () => {
-    expect(DEMO_IDS).toEqual(['borehole-log', 'crosshole-tomography', 'potential-field']);
+  it('has the four stable ids', () => {
+    expect(DEMO_IDS).toEqual(['borehole-log', 'crosshole-tomography', 'potential-field', 'three-boreholes']);
   });
   it('demoById returns the demo and names the known ids otherwise', () => {
     expect(demoById('potential-field').id).toBe('potential-field');
-    expect(() => demoById('nope')).toThrow('demo must be one of "borehole-log", "crosshole-tomography", "potential-field", got "nope"');
+    expect(() => demoById('nope')).toThrow(
+      'demo must be one of "borehole-log", "crosshole-tomography", "potential-field", "three-boreholes", got "nope"',
+    );
   });
   it.each(DEMOS.map((d) => [d.id, d] as const))('%s is deterministic and consistent in size', (id, demo) => {
     const a = built.get(id)!;
