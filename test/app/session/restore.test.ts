@@ -12,6 +12,7 @@ import { installAutosave, restorePreviousSession, type sessionRecord, startSessi
 import { sanitizeSavedSession, validateSavedProblem } from '../../../src/app/session/restore.ts';
 import { encodeShare } from '../../../src/app/session/share.ts';
 import { problemFingerprint } from '../../../src/core/io/fingerprint.ts';
+import { parseProblemFile } from '../../../src/core/io/problemFile.ts';
 import { demoById } from '../../../src/core/problems/demos.ts';
 import { enc, fiveCells } from './fixtures.ts';
 import { inProcessClient, tick } from './inProcessClient.ts';
@@ -112,6 +113,39 @@ describe('validateSavedProblem: the problem-file validators', () => {
     expect(message).toMatch(/^The saved problem could not be restored: /);
     expect(message).toMatch(field);
     expect(message).not.toMatch(RAW_JS);
+  });
+});
+
+describe('validateSavedProblem on a cell list (the user’s own mesh)', () => {
+  const centres = [
+    [0, 0],
+    [1.5, 0.2],
+    [0.4, 2.1],
+    [2.2, 1.7],
+  ];
+  const { problem: good } = parseProblemFile(
+    'mesh.json',
+    JSON.stringify({
+      kind: 'priorscope.problem',
+      version: 1,
+      cells: { centres, unit: 'm' },
+      operator: { dense: [[0.5, 0.5, 0, 0]] },
+      data: { values: [1], sigma: [0.1] },
+    }),
+  );
+  it('comes back equal, centres and all', () => {
+    expect(validateSavedProblem(good)).toEqual(good);
+  });
+  it('a damaged cell list is refused with our message, never looped over', () => {
+    const g = good.grid as { x: Float64Array };
+    for (const grid of [
+      { ...good.grid, x: 'junk' },
+      { ...good.grid, y: new Float64Array(1) },
+      { ...good.grid, x: new Float64Array(0) },
+      { ...good.grid, x: Float64Array.from(g.x, (v, i) => (i === 1 ? Number.NaN : v)) },
+    ]) {
+      expect(() => validateSavedProblem({ ...good, grid })).toThrow(/^The saved problem could not be restored: /);
+    }
   });
 });
 
