@@ -174,6 +174,7 @@ export function circulantBase(grid: Grid, terms: readonly Term[] | OffsetFunctio
  * c̃(−j) = c̃(j) (indices mod p).
  */
 export function circulantBase3(grid: Grid, terms: readonly Term[] | OffsetFunction, px: number, py: number, pz: number): Float64Array {
+  if (typeof terms !== 'function' && signSymmetric(terms)) return mirroredBase3(grid, stationaryCovariance3(terms), px, py, pz);
   const [dx, dy, dz] = grid.spacing;
   const cov = typeof terms === 'function' ? terms : stationaryCovariance3(terms);
   const base = new Float64Array(px * py * pz);
@@ -203,6 +204,59 @@ export function circulantBase3(grid: Grid, terms: readonly Term[] | OffsetFuncti
 }
 
 /**
+ * True when every term's scaled distance is exactly (bit for bit) unchanged by flipping the sign of any one offset
+ * component: isotropic terms, and anisotropic ones with every angle exactly 0 (no rotation: only squares of the
+ * components enter). A rotation by a multiple of 90° is symmetric in exact arithmetic but not in floating point
+ * (cos 90° ≈ 6e-17), so it is not taken here.
+ */
+function signSymmetric(terms: readonly Term[]): boolean {
+  return terms.every(
+    (t) => t.lengths === undefined || (t.lengths.length === 3 ? (t.angles ?? [0, 0, 0]).every((a) => a === 0) : (t.angle ?? 0) === 0),
+  );
+}
+
+/**
+ * {@link circulantBase3} for a covariance that is even in each offset component separately: the lags with
+ * jx ≤ px/2, jy ≤ py/2, jz ≤ pz/2 are evaluated (an eighth of the base) and written to their up to eight mirror
+ * images (p − j on each axis). Bit-identical to the general loop: the same lag, or its exact mirror, in the same
+ * expression (the averages over ±p/2 at a Nyquist lag included).
+ */
+function mirroredBase3(grid: Grid, cov: OffsetFunction, px: number, py: number, pz: number): Float64Array {
+  const [dx, dy, dz] = grid.spacing;
+  const base = new Float64Array(px * py * pz);
+  const hx = Math.floor(px / 2);
+  const hy = Math.floor(py / 2);
+  const hz = Math.floor(pz / 2);
+  const xs = Array.from({ length: hx + 1 }, (_, j) => lagOffsets(j, px));
+  const ys = Array.from({ length: hy + 1 }, (_, j) => lagOffsets(j, py));
+  for (let jz = 0; jz <= hz; jz++) {
+    const ozs = lagOffsets(jz, pz);
+    const kz = [jz, jz === 0 ? 0 : pz - jz];
+    for (let jy = 0; jy <= hy; jy++) {
+      const oys = ys[jy];
+      const ky = [jy, jy === 0 ? 0 : py - jy];
+      for (let jx = 0; jx <= hx; jx++) {
+        const oxs = xs[jx];
+        let s = 0;
+        if (oxs.length === 1 && oys.length === 1 && ozs.length === 1) s = cov(oxs[0] * dx, oys[0] * dy, ozs[0] * dz);
+        else {
+          for (const ox of oxs) for (const oy of oys) for (const oz of ozs) s += cov(ox * dx, oy * dy, oz * dz);
+          s /= oxs.length * oys.length * ozs.length;
+        }
+        const mx = jx === 0 ? 0 : px - jx;
+        for (const z of kz)
+          for (const y of ky) {
+            const row = px * (y + py * z);
+            base[jx + row] = s;
+            base[mx + row] = s;
+          }
+      }
+    }
+  }
+  return base;
+}
+
+/**
  * λ = F c̃ (numpy.fft.fftn's convention) of a real even px × py × pz base, at half the work of a complex
  * transform of that size: the real array is read as complex of half the length along x,
  * z(m) = c̃(2m) + i c̃(2m + 1), transformed as (px/2) × py × pz, and split (the classical real-input FFT,
@@ -225,6 +279,14 @@ export function evenRealSpectrum3(base: Float64Array, px: number, py: number, pz
   // The base's memory order (x fastest, real) is exactly z's interleaved order at half the length in x.
   const z = base.slice();
   fft3InPlace(z, hx, py, pz);
+  // The twiddles e^{−2πi kx/px} once per kx (the same Math.cos / Math.sin calls as per element, so the same bits).
+  const cosT = new Float64Array(hx);
+  const sinT = new Float64Array(hx);
+  for (let kx = 0; kx < hx; kx++) {
+    const t = (-2 * Math.PI * kx) / px;
+    cosT[kx] = Math.cos(t);
+    sinT[kx] = Math.sin(t);
+  }
   for (let kz = 0; kz < pz; kz++) {
     const mz = kz === 0 ? 0 : pz - kz;
     for (let ky = 0; ky < py; ky++) {
@@ -242,8 +304,7 @@ export function evenRealSpectrum3(base: Float64Array, px: number, py: number, pz
         const er = 0.5 * (zr + wr);
         const or = 0.5 * (zi - wi); // O = (Z − conj Z(−k))/(2i): real part
         const oi = -0.5 * (zr - wr); // imaginary part
-        const t = (-2 * Math.PI * kx) / px;
-        lam[kx + px * (ky + py * kz)] = er + Math.cos(t) * or - Math.sin(t) * oi;
+        lam[kx + px * (ky + py * kz)] = er + cosT[kx] * or - sinT[kx] * oi;
       }
     }
   }

@@ -33,7 +33,7 @@ import type { Term } from '../kernels/spec.ts';
 import { Random } from '../sampling/random.ts';
 import { circulantEmbedding, gridAxes, isAxisSymmetric, minimalPadding, type CirculantEmbedding } from './embedding.ts';
 import { Fft2 } from './fft2.ts';
-import { fft3InPlace } from './fft3.ts';
+import { fft3Block } from './fft3.ts';
 
 export interface EmbeddingOptions {
   /** Relative tolerance: λ ≥ −tol·max λ counts as non-negative (default 1e-10). */
@@ -220,14 +220,15 @@ function volumeSampler(
       for (let r = 0; r < count; r += 2) {
         const single = r + 1 === count;
         spectrumOf(rng, root, single, px, py, pz, buf);
-        fft3InPlace(buf, px, py, pz);
+        // Only the leading nx × ny × nz block of the transform is read (./fft3.ts fft3Block).
+        const y = fft3Block(buf, px, py, pz, nx, ny, nz);
         for (let part = 0; part < (single ? 1 : 2); part++) {
           const o = (r + part) * n;
           for (let iz = 0; iz < nz; iz++) {
             for (let iy = 0; iy < ny; iy++) {
               const b = 2 * px * (iy + py * iz) + part;
               const g = o + nx * (iy + ny * iz);
-              for (let ix = 0; ix < nx; ix++) out.data[g + ix] = buf[b + 2 * ix];
+              for (let ix = 0; ix < nx; ix++) out.data[g + ix] = y[b + 2 * ix];
             }
           }
           finishField(out.data, o, n, s, eps, nuggetSd, m0, rng);
@@ -249,14 +250,20 @@ function hermitianSpectrum(rng: Random, root: Float64Array, px: number, py: numb
   const cells = px * py * pz;
   const z = rng.fillNormal(new Float64Array(cells));
   let q = 0;
+  // Row by row (ky, kz): a row before its mirror row takes a pair per element; a row after it was written with its
+  // mirror; a row that is its own mirror (ky, kz ∈ {0, p/2}) goes element by element. The normals are taken in the
+  // same order as an element-by-element walk over k (pairs at the smaller flat index), so the draws are unchanged.
   for (let kz = 0; kz < pz; kz++) {
     const mz = kz === 0 ? 0 : pz - kz;
     for (let ky = 0; ky < py; ky++) {
       const my = ky === 0 ? 0 : py - ky;
+      const row = px * (ky + py * kz);
+      const mrow = px * (my + py * mz);
+      if (row > mrow) continue;
       for (let kx = 0; kx < px; kx++) {
         const mx = kx === 0 ? 0 : px - kx;
-        const k = kx + px * (ky + py * kz);
-        const mk = mx + px * (my + py * mz);
+        const k = row + kx;
+        const mk = mrow + mx;
         if (mk === k) {
           buf[2 * k] = root[k] * z[q++];
           buf[2 * k + 1] = 0;

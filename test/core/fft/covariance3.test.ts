@@ -5,10 +5,12 @@
  */
 import { describe, expect, it } from 'vitest';
 import { covarianceOperator, nonStationaryReason } from '../../../src/core/fft/covariance.ts';
-import { fft3 } from '../../../src/core/fft/fft3.ts';
-import { circulantBase3, evenRealSpectrum3 } from '../../../src/core/fft/embedding.ts';
+import { fft3, fft3Block } from '../../../src/core/fft/fft3.ts';
+import { circulantBase3, evenRealSpectrum3, stationaryCovariance3 } from '../../../src/core/fft/embedding.ts';
 import { matrix } from '../../../src/core/linalg/matrix.ts';
 import { COVARIANCE_CASES_3D, relErr, seededVector } from './cases.ts';
+import type { Grid } from '../../../src/core/grid/grid.ts';
+import type { Term } from '../../../src/core/kernels/spec.ts';
 
 /** X(k) = Σ_j x(j) e^(∓2πi Σ_a k_a j_a / p_a), straight from the definition (numpy.fft.fftn's convention). */
 function directDft3(x: Float64Array, p: readonly [number, number, number], inverse: boolean): Float64Array {
@@ -100,5 +102,56 @@ describe('3-D covariance products by circulant embedding', () => {
   it('3-D grids take the FFT route (posterior, realisations, the eigenvalue bracket); 4 axes do not', () => {
     expect(nonStationaryReason(COVARIANCE_CASES_3D[0].grid, COVARIANCE_CASES_3D[0].prior)).toBeNull();
     expect(nonStationaryReason({ shape: [2, 2, 2, 2], spacing: [1, 1, 1, 1] }, COVARIANCE_CASES_3D[0].prior)).toMatch(/4 axes/);
+  });
+});
+
+describe('the mirrored 3-D base (terms even in each offset component)', () => {
+  // The fast path evaluates an eighth of the lags and mirrors them; the general loop (forced here by passing the
+  // same covariance as an offset function) evaluates them all. They must agree bit for bit, Nyquist lags included.
+  const grid: Grid = { shape: [7, 5, 4], spacing: [1, 0.7, 1.3] };
+  const cases: [string, Term[], number, number, number][] = [
+    ['isotropic Matérn 3/2, even embedding', [{ kernel: 'matern', nu: 1.5, variance: 1.3, length: 2 }], 12, 8, 6],
+    [
+      'axis-aligned anisotropic Gaussian + exponential, odd sizes',
+      [
+        { kernel: 'gaussian', variance: 1, lengths: [3, 1.5, 0.8], angles: [0, 0, 0] },
+        { kernel: 'exponential', variance: 0.2, length: 1 },
+      ],
+      13,
+      9,
+      7,
+    ],
+  ];
+  it.each(cases)('%s', (_name, terms, px, py, pz) => {
+    const cov = stationaryCovariance3(terms);
+    const fast = circulantBase3(grid, terms, px, py, pz);
+    const general = circulantBase3(grid, (a, b, c) => cov(a, b, c), px, py, pz);
+    expect(Array.from(fast)).toEqual(Array.from(general));
+  });
+});
+
+describe('fft3Block: the leading block of the 3-D transform', () => {
+  // Against the full transform (itself checked against numpy.fft.fftn above), on blocks that halve each axis
+  // (the engine's halfOut) and blocks that do not (p = 2(n − 1) embeddings), to rounding.
+  it.each([
+    [8, 8, 4, 4, 4, 2],
+    [8, 4, 8, 5, 3, 5],
+    [16, 8, 4, 8, 4, 1],
+    [4, 4, 4, 4, 4, 4],
+  ])('%i × %i × %i, block %i × %i × %i', (px, py, pz, nx, ny, nz) => {
+    const buf = seededVector(2 * px * py * pz, px + 7 * nz);
+    const want = fft3(buf, px, py, pz);
+    const got = fft3Block(buf, px, py, pz, nx, ny, nz).slice();
+    let err = 0;
+    let scale = 0;
+    for (let z = 0; z < nz; z++)
+      for (let y = 0; y < ny; y++)
+        for (let x = 0; x < nx; x++) {
+          const k = 2 * (x + px * (y + py * z));
+          err = Math.max(err, Math.abs(got[k] - want[k]), Math.abs(got[k + 1] - want[k + 1]));
+          scale = Math.max(scale, Math.abs(want[k]));
+        }
+    expect(err / scale).toBeLessThan(1e-13);
+    expect(scale).toBeGreaterThan(0);
   });
 });
