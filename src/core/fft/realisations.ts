@@ -149,16 +149,45 @@ export function circulantSampler(grid: Grid, prior: PriorSpec, options: SamplerO
     };
   }
   const e = search.embedding;
-  if (grid.shape.length === 3) return volumeSampler(e, search, m0, s, nugget);
-  const { nx, ny, px, py } = e;
-  const cells = px * py;
+  const { nx, ny, nz, px, py, pz } = e;
+  if (grid.shape.length === 3) {
+    // The 3-D transform of ./fft3.ts, only where the leading nx × ny × nz block needs it.
+    return fftSampler(e, search, m0, s, nugget, [px, py, pz], () => (buf) => fft3Block(buf, px, py, pz, nx, ny, nz));
+  }
+  return fftSampler(e, search, m0, s, nugget, gridDimension(grid) === 1 ? [px] : [px, py], () => {
+    const fft = new Fft2(px, py);
+    return (buf) => {
+      fft.transform(buf, { outputRows: ny });
+      return buf;
+    };
+  });
+}
+
+/**
+ * The FFT path (module comment) on the px × py × pz embedding (pz = 1 below 3-D): spectra of seeded normals, one
+ * transform per two realisations (Re y and Im y of the leading nx × ny × nz block; the last of an odd count from a
+ * Hermitian spectrum). `transformer()` gives, per draw call, the forward unnormalised transform of a spectrum: the
+ * array holding the result in the spectrum's layout (the 2-D transform in place, or ./fft3.ts fft3Block's view).
+ */
+function fftSampler(
+  e: CirculantEmbedding,
+  search: EmbeddingSearch,
+  m0: Float64Array,
+  s: readonly number[] | undefined,
+  nugget: number,
+  padding: readonly number[],
+  transformer: () => (buf: Float64Array) => Float64Array,
+): CirculantSampler {
+  const { nx, ny, nz, px, py, pz } = e;
+  const n = nx * ny * nz;
+  const cells = px * py * pz;
   // √(λ⁺ / P), negatives (round-off or clipped) set to 0.
   const root = new Float64Array(cells);
   for (let k = 0; k < cells; k++) root[k] = Math.sqrt(Math.max(0, e.eigenvalues[k]) / cells);
   const nuggetSd = Math.sqrt(nugget);
   return {
     path: 'fft',
-    padding: gridDimension(grid) === 1 ? [px] : [px, py],
+    padding,
     tried: search.tried,
     clipped: !search.nonNegative,
     clippedRelativeTrace: search.clippedRelativeTrace,
@@ -167,61 +196,12 @@ export function circulantSampler(grid: Grid, prior: PriorSpec, options: SamplerO
       const rng = new Random(seed);
       const out = matrix(count, n);
       const buf = new Float64Array(2 * cells);
-      const fft = new Fft2(px, py);
-      const eps = nugget > 0 ? new Float64Array(n) : null;
-      for (let r = 0; r < count; r += 2) {
-        const single = r + 1 === count;
-        spectrumOf(rng, root, single, px, py, 1, buf);
-        fft.transform(buf, { outputRows: ny });
-        for (let part = 0; part < (single ? 1 : 2); part++) {
-          const o = (r + part) * n;
-          for (let iy = 0; iy < ny; iy++) {
-            const b = 2 * px * iy + part;
-            const g = o + nx * iy;
-            for (let ix = 0; ix < nx; ix++) out.data[g + ix] = buf[b + 2 * ix];
-          }
-          finishField(out.data, o, n, s, eps, nuggetSd, m0, rng);
-        }
-      }
-      return out;
-    },
-  };
-}
-
-/**
- * The FFT path on a 3-D grid: as in 2-D (module comment) with the px × py × pz embedding and the 3-D transform
- * (./fft3.ts, forward, unnormalised); the leading nx × ny × nz block of Re y and Im y are two realisations.
- */
-function volumeSampler(
-  e: CirculantEmbedding,
-  search: EmbeddingSearch,
-  m0: Float64Array,
-  s: readonly number[] | undefined,
-  nugget: number,
-): CirculantSampler {
-  const { nx, ny, nz, px, py, pz } = e;
-  const n = nx * ny * nz;
-  const cells = px * py * pz;
-  const root = new Float64Array(cells);
-  for (let k = 0; k < cells; k++) root[k] = Math.sqrt(Math.max(0, e.eigenvalues[k]) / cells);
-  const nuggetSd = Math.sqrt(nugget);
-  return {
-    path: 'fft',
-    padding: [px, py, pz],
-    tried: search.tried,
-    clipped: !search.nonNegative,
-    clippedRelativeTrace: search.clippedRelativeTrace,
-    draw(count, seed) {
-      checkCount(count);
-      const rng = new Random(seed);
-      const out = matrix(count, n);
-      const buf = new Float64Array(2 * cells);
+      const transform = transformer();
       const eps = nugget > 0 ? new Float64Array(n) : null;
       for (let r = 0; r < count; r += 2) {
         const single = r + 1 === count;
         spectrumOf(rng, root, single, px, py, pz, buf);
-        // Only the leading nx × ny × nz block of the transform is read (./fft3.ts fft3Block).
-        const y = fft3Block(buf, px, py, pz, nx, ny, nz);
+        const y = transform(buf);
         for (let part = 0; part < (single ? 1 : 2); part++) {
           const o = (r + part) * n;
           for (let iz = 0; iz < nz; iz++) {
