@@ -9,8 +9,8 @@ import { useMemo, useState } from 'react';
 import { useShallow } from 'zustand/react/shallow';
 import { isCellList } from '../../core/grid/grid.ts';
 import { useWb } from '../context.ts';
+import { type FieldId, FieldPicker, fieldLabel, useFieldValues } from './fields.tsx';
 import { startCell } from '../defaults.ts';
-import { correlationWith } from '../figures/correlation.ts';
 import {
   chosenTrace,
   cloudAxisNames,
@@ -27,33 +27,18 @@ import {
   slabPositions,
   slabTitle,
 } from '../figures/cells.ts';
-import { geometryTraces, planeAxes, type SectionPlane, varianceReduction, volumeColour } from '../figures/sections.ts';
+import { geometryTraces, planeAxes, type SectionPlane, volumeColour } from '../figures/sections.ts';
 import { withUnit } from '../labels.ts';
 import { Plot } from '../Plot.tsx';
 import { download } from '../session/download.ts';
 import { posteriorCsv } from '../session/exports.ts';
 import { Waiting } from './Waiting.tsx';
 
-type FieldId = 'mean' | 'std' | 'reduction' | 'correlation' | 'prior-draw' | 'posterior-draw' | 'kernel';
-const FIELDS: readonly { id: FieldId; label: string }[] = [
-  { id: 'mean', label: 'Posterior mean' },
-  { id: 'std', label: 'Posterior standard deviation' },
-  { id: 'reduction', label: 'Variance reduction 1 − σ²post/σ²prior' },
-  { id: 'correlation', label: 'Prior correlation with the chosen cell' },
-  { id: 'prior-draw', label: 'Prior realisation 1' },
-  { id: 'posterior-draw', label: 'Posterior realisation 1' },
-  { id: 'kernel', label: 'Averaging kernel' },
-];
-
 export function CellsScreen() {
   const cells = useWb((s) => (s.problem && isCellList(s.problem.grid) ? s.problem.grid : null));
   const geometry = useWb((s) => s.problem?.geometry ?? undefined);
   const unitQ = useWb((s) => s.problem?.quantity.unit ?? '');
-  const prior = useWb((s) => s.prior);
   const post = useWb((s) => s.posterior);
-  const priorDraws = useWb((s) => s.priorDraws);
-  const postDraws = useWb((s) => s.posteriorDraws);
-  const resolution = useWb((s) => s.resolution);
   const [selected, selectCell] = useWb(useShallow((s) => [s.selectedCell, s.selectCell] as const));
   const [field, setField] = useState<FieldId>('mean');
   const sel = selected ?? (cells ? startCell(cells) : 0);
@@ -61,30 +46,8 @@ export function CellsScreen() {
   const positions = useMemo(() => (cells ? [0, 1, 2].map((k) => slabPositions(cells, k)) : [[], [], []]), [cells]);
   const [at, setAt] = useState<[number, number, number] | null>(null);
   const where: [number, number, number] = cells ? (at ?? [cells.x[sel] ?? 0, cells.y[sel] ?? 0, cells.z[sel] ?? 0]) : [0, 0, 0];
-  const values = useMemo((): { v: ArrayLike<number>; signed: boolean; centre?: number } | null => {
-    if (!post || !cells) return null;
-    const s = post.summary;
-    switch (field) {
-      case 'mean':
-        return { v: s.mean, signed: true };
-      case 'std':
-        return { v: s.std, signed: false };
-      case 'reduction':
-        return { v: varianceReduction(s.std, s.priorStd), signed: false };
-      case 'correlation': {
-        const c = prior ? correlationWith(cells, prior, sel) : null;
-        return c ? { v: c, signed: true, centre: 0 } : null;
-      }
-      case 'prior-draw':
-        return priorDraws ? { v: priorDraws.data.subarray(0, priorDraws.cols), signed: true } : null;
-      case 'posterior-draw':
-        return postDraws ? { v: postDraws.data.subarray(0, postDraws.cols), signed: true } : null;
-      case 'kernel':
-        // A resolution row is signed about 0 (not about the prior mean): the diverging scale centred on 0.
-        return resolution && resolution.cell === sel ? { v: resolution.row, signed: true, centre: 0 } : null;
-    }
-  }, [post, cells, prior, priorDraws, postDraws, resolution, field, sel]);
-  const label = FIELDS.find((f) => f.id === field)!.label;
+  const values = useFieldValues(cells, field, sel);
+  const label = fieldLabel(field);
   const figures = useMemo(() => {
     if (!cells || !post || !values) return null;
     const shown = volumeColour(values.v, values.signed, values.centre === undefined ? post.priorMean : new Float64Array(values.v.length));
@@ -144,16 +107,7 @@ export function CellsScreen() {
   return (
     <div className="screen" data-testid="screen-cells">
       <div className="row toolbar">
-        <label>
-          Field{' '}
-          <select data-testid="cells-field" value={field} onChange={(e) => setField(e.target.value as FieldId)}>
-            {FIELDS.map((f) => (
-              <option key={f.id} value={f.id}>
-                {f.label}
-              </option>
-            ))}
-          </select>
-        </label>
+        <FieldPicker testId="cells-field" field={field} onChange={setField} />
         {cells.dim === 3 &&
           [0, 1, 2].map((a) => {
             const list = positions[a];

@@ -7,8 +7,8 @@ import { useGridView } from '../gridView.ts';
 import { useMemo, useState } from 'react';
 import { useShallow } from 'zustand/react/shallow';
 import { useWb } from '../context.ts';
+import { type FieldId, FieldPicker, fieldLabel, useFieldValues } from './fields.tsx';
 import { startCell } from '../defaults.ts';
-import { correlationWith } from '../figures/correlation.ts';
 import {
   crossHairs,
   geometryTraces,
@@ -16,7 +16,6 @@ import {
   sectionLayout,
   sectionsThrough,
   sectionTrace,
-  varianceReduction,
   volumeAxisNames,
   volumeColour,
   centres,
@@ -26,56 +25,21 @@ import { download } from '../session/download.ts';
 import { volumeVti } from '../session/exports.ts';
 import { Waiting } from './Waiting.tsx';
 
-type FieldId = 'mean' | 'std' | 'reduction' | 'correlation' | 'prior-draw' | 'posterior-draw' | 'kernel';
-const FIELDS: readonly { id: FieldId; label: string; signed: boolean }[] = [
-  { id: 'mean', label: 'Posterior mean', signed: true },
-  { id: 'std', label: 'Posterior standard deviation', signed: false },
-  { id: 'reduction', label: 'Variance reduction 1 − σ²post/σ²prior', signed: false },
-  { id: 'correlation', label: 'Prior correlation with the chosen cell', signed: true },
-  { id: 'prior-draw', label: 'Prior realisation 1', signed: true },
-  { id: 'posterior-draw', label: 'Posterior realisation 1', signed: true },
-  { id: 'kernel', label: 'Averaging kernel', signed: true },
-];
-
 export function VolumeScreen() {
   const p = useGridView();
   const post = useWb((s) => s.posterior);
   const priorDraws = useWb((s) => s.priorDraws);
   const postDraws = useWb((s) => s.posteriorDraws);
-  const resolution = useWb((s) => s.resolution);
-  const prior = useWb((s) => s.prior);
   const [selected, selectCell] = useWb(useShallow((s) => [s.selectedCell, s.selectCell] as const));
   const [field, setField] = useState<FieldId>('mean');
   const shape = p ? [p.grid.shape[0], p.grid.shape[1] ?? 1, p.grid.shape[2] ?? 1] : [1, 1, 1];
   const sel = selected ?? (p ? startCell(p.grid) : 0);
   const cell: [number, number, number] = [sel % shape[0], Math.floor(sel / shape[0]) % shape[1], Math.floor(sel / (shape[0] * shape[1]))];
-  const values = useMemo((): { v: ArrayLike<number>; signed: boolean; centre?: number } | null => {
-    if (!post) return null;
-    const s = post.summary;
-    switch (field) {
-      case 'mean':
-        return { v: s.mean, signed: true };
-      case 'std':
-        return { v: s.std, signed: false };
-      case 'reduction':
-        return { v: varianceReduction(s.std, s.priorStd), signed: false };
-      case 'correlation': {
-        const c = p && prior ? correlationWith(p.grid, prior, sel) : null;
-        return c ? { v: c, signed: true, centre: 0 } : null;
-      }
-      case 'prior-draw':
-        return priorDraws ? { v: priorDraws.data.subarray(0, priorDraws.cols), signed: true } : null;
-      case 'posterior-draw':
-        return postDraws ? { v: postDraws.data.subarray(0, postDraws.cols), signed: true } : null;
-      case 'kernel':
-        // A resolution row is signed about 0 (not about the prior mean): the diverging scale centred on 0.
-        return resolution && resolution.cell === sel ? { v: resolution.row, signed: true, centre: 0 } : null;
-    }
-  }, [p, prior, post, priorDraws, postDraws, resolution, field, sel]);
+  const values = useFieldValues(p ? p.grid : null, field, sel);
   const figures = useMemo(() => {
     if (!p || !post || !values) return null;
     const shown = volumeColour(values.v, values.signed, values.centre === undefined ? post.priorMean : new Float64Array(values.v.length));
-    const label = FIELDS.find((f) => f.id === field)!.label;
+    const label = fieldLabel(field);
     const heading = shown.perturbation ? `${label} − prior mean` : label;
     const centre: [number, number, number] = [centres(p.grid, 0)[cell[0]], centres(p.grid, 1)[cell[1]], centres(p.grid, 2)[cell[2]]];
     const planes = sectionsThrough(p.grid, shown.values, cell).map((s, k) => ({
@@ -100,16 +64,7 @@ export function VolumeScreen() {
   return (
     <div className="screen" data-testid="screen-volume">
       <div className="row toolbar">
-        <label>
-          Field{' '}
-          <select data-testid="volume-field" value={field} onChange={(e) => setField(e.target.value as FieldId)}>
-            {FIELDS.map((f) => (
-              <option key={f.id} value={f.id}>
-                {f.label}
-              </option>
-            ))}
-          </select>
-        </label>
+        <FieldPicker testId="volume-field" field={field} onChange={setField} />
         {[0, 1, 2].map((a) => (
           <label key={a}>
             {names[a]} {Number(centres(p.grid, a)[cell[a]].toPrecision(6))}

@@ -189,18 +189,29 @@ export function circulantBase3(grid: Grid, terms: readonly Term[] | OffsetFuncti
       const my = jy === 0 ? 0 : py - jy;
       for (let jx = 0; jx < px; jx++) {
         const oxs = xs[jx];
-        let s = 0;
-        if (oxs.length === 1 && oys.length === 1 && ozs.length === 1) s = cov(oxs[0] * dx, oys[0] * dy, ozs[0] * dz);
-        else {
-          for (const ox of oxs) for (const oy of oys) for (const oz of ozs) s += cov(ox * dx, oy * dy, oz * dz);
-          s /= oxs.length * oys.length * ozs.length;
-        }
+        const s = lagValue(cov, oxs, oys, ozs, dx, dy, dz);
         base[jx + px * (jy + py * jz)] = s;
         base[(jx === 0 ? 0 : px - jx) + px * (my + py * mz)] = s;
       }
     }
   }
   return base;
+}
+
+/** The base at one lag: the covariance at its offset, or the mean over ±p/2 at a Nyquist lag ({@link lagOffsets}). */
+function lagValue(
+  cov: OffsetFunction,
+  oxs: readonly number[],
+  oys: readonly number[],
+  ozs: readonly number[],
+  dx: number,
+  dy: number,
+  dz: number,
+): number {
+  if (oxs.length === 1 && oys.length === 1 && ozs.length === 1) return cov(oxs[0] * dx, oys[0] * dy, ozs[0] * dz);
+  let s = 0;
+  for (const ox of oxs) for (const oy of oys) for (const oz of ozs) s += cov(ox * dx, oy * dy, oz * dz);
+  return s / (oxs.length * oys.length * ozs.length);
 }
 
 /**
@@ -237,12 +248,7 @@ function mirroredBase3(grid: Grid, cov: OffsetFunction, px: number, py: number, 
       const ky = [jy, jy === 0 ? 0 : py - jy];
       for (let jx = 0; jx <= hx; jx++) {
         const oxs = xs[jx];
-        let s = 0;
-        if (oxs.length === 1 && oys.length === 1 && ozs.length === 1) s = cov(oxs[0] * dx, oys[0] * dy, ozs[0] * dz);
-        else {
-          for (const ox of oxs) for (const oy of oys) for (const oz of ozs) s += cov(ox * dx, oy * dy, oz * dz);
-          s /= oxs.length * oys.length * ozs.length;
-        }
+        const s = lagValue(cov, oxs, oys, ozs, dx, dy, dz);
         const mx = jx === 0 ? 0 : px - jx;
         for (const z of kz)
           for (const y of ky) {

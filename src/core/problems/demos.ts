@@ -41,6 +41,37 @@ function syntheticData(G: Operator, truth: Float64Array, sigma: Float64Array, se
   return d;
 }
 
+/**
+ * A travel-time demo: straight rays through the grid (./rays.ts), the truth drawn from `truthPrior`, data with
+ * σ = 0.01 ms; slowness perturbation in s/km (length in m × s/km = ms).
+ */
+function rayDemo(
+  title: string,
+  grid: Grid,
+  rays: readonly Ray[],
+  priors: { truthPrior: PriorSpec; startPrior: PriorSpec },
+  seeds: { truth: number; noise: number },
+): { problem: Problem; truthPrior: PriorSpec; startPrior: PriorSpec } {
+  const G = rayOperator(grid, rays);
+  const truth = drawFromPrior(grid, priors.truthPrior, seeds.truth);
+  const sigma = new Float64Array(G.matrix.rows).fill(0.01);
+  const values = syntheticData(G, truth, sigma, seeds.noise);
+  const problem: Problem = {
+    title,
+    grid,
+    operator: G,
+    data: {
+      values,
+      sigma,
+      unit: 'ms',
+      geometry: { kind: 'paths', sources: fromRows(rays.map((r) => r.from)), receivers: fromRows(rays.map((r) => r.to)) },
+    },
+    truth,
+    quantity: { name: 'slowness perturbation', unit: 's/km' },
+  };
+  return { problem, ...priors };
+}
+
 // ---------------------------------------------------------------------------------------------
 // borehole-log: 1-D temperature profile, Gaussian-weighted sensor windows.
 
@@ -139,25 +170,13 @@ const crossholeTomography: DemoProblem = {
       terms: [{ kernel: 'exponential', variance: 1e-3, length: 3 }],
       nugget: 1e-7,
     };
-    const rays = crossholeRays();
-    const G = rayOperator(CROSSHOLE_GRID, rays);
-    const truth = drawFromPrior(CROSSHOLE_GRID, truthPrior, 31337);
-    const sigma = new Float64Array(G.matrix.rows).fill(0.01);
-    const values = syntheticData(G, truth, sigma, 4242);
-    const problem: Problem = {
-      title: 'Crosshole travel-time tomography',
-      grid: CROSSHOLE_GRID,
-      operator: G,
-      data: {
-        values,
-        sigma,
-        unit: 'ms',
-        geometry: { kind: 'paths', sources: fromRows(rays.map((r) => r.from)), receivers: fromRows(rays.map((r) => r.to)) },
-      },
-      truth,
-      quantity: { name: 'slowness perturbation', unit: 's/km' },
-    };
-    return { problem, truthPrior, startPrior };
+    return rayDemo(
+      'Crosshole travel-time tomography',
+      CROSSHOLE_GRID,
+      crossholeRays(),
+      { truthPrior, startPrior },
+      { truth: 31337, noise: 4242 },
+    );
   },
 };
 
@@ -250,25 +269,13 @@ const threeBoreholes: DemoProblem = {
       terms: [{ kernel: 'exponential', variance: 1e-3, length: 3 }],
       nugget: 1e-7,
     };
-    const rays = boreholeRays3d();
-    const G = rayOperator(BOREHOLES_GRID, rays);
-    const truth = drawFromPrior(BOREHOLES_GRID, truthPrior, 2718);
-    const sigma = new Float64Array(G.matrix.rows).fill(0.01);
-    const values = syntheticData(G, truth, sigma, 1414);
-    const problem: Problem = {
-      title: 'Travel times between three boreholes (3-D)',
-      grid: BOREHOLES_GRID,
-      operator: G,
-      data: {
-        values,
-        sigma,
-        unit: 'ms',
-        geometry: { kind: 'paths', sources: fromRows(rays.map((r) => [...r.from])), receivers: fromRows(rays.map((r) => [...r.to])) },
-      },
-      truth,
-      quantity: { name: 'slowness perturbation', unit: 's/km' },
-    };
-    return { problem, truthPrior, startPrior };
+    return rayDemo(
+      'Travel times between three boreholes (3-D)',
+      BOREHOLES_GRID,
+      boreholeRays3d(),
+      { truthPrior, startPrior },
+      { truth: 2718, noise: 1414 },
+    );
   },
 };
 
