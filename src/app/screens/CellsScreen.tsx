@@ -49,8 +49,8 @@ export function CellsScreen() {
   const values = useFieldValues(cells, field, sel);
   const label = fieldLabel(field);
   const figures = useMemo(() => {
-    if (!cells || !post || !values) return null;
-    const shown = volumeColour(values.v, values.signed, values.centre === undefined ? post.priorMean : new Float64Array(values.v.length));
+    if (!cells || !values) return null;
+    const shown = volumeColour(values.v, values.signed, values.centre === undefined ? values.priorMean : new Float64Array(values.v.length));
     const heading = shown.perturbation ? `${label} − prior mean` : label;
     if (cells.dim === 1) {
       return {
@@ -87,7 +87,7 @@ export function CellsScreen() {
         };
       }),
     };
-  }, [cells, post, values, label, unitQ, geometry, sel, where[0], where[1], where[2]]);
+  }, [cells, values, label, unitQ, geometry, sel, where[0], where[1], where[2]]);
   if (!cells) return null;
   const names = cloudAxisNames(cells);
   // A slider moves one slab and chooses, among the cells in it, the one nearest the chosen cell's other two

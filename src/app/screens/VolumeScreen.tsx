@@ -37,8 +37,8 @@ export function VolumeScreen() {
   const cell: [number, number, number] = [sel % shape[0], Math.floor(sel / shape[0]) % shape[1], Math.floor(sel / (shape[0] * shape[1]))];
   const values = useFieldValues(p ? p.grid : null, field, sel);
   const figures = useMemo(() => {
-    if (!p || !post || !values) return null;
-    const shown = volumeColour(values.v, values.signed, values.centre === undefined ? post.priorMean : new Float64Array(values.v.length));
+    if (!p || !values) return null;
+    const shown = volumeColour(values.v, values.signed, values.centre === undefined ? values.priorMean : new Float64Array(values.v.length));
     const label = fieldLabel(field);
     const heading = shown.perturbation ? `${label} − prior mean` : label;
     const centre: [number, number, number] = [centres(p.grid, 0)[cell[0]], centres(p.grid, 1)[cell[1]], centres(p.grid, 2)[cell[2]]];
@@ -53,7 +53,7 @@ export function VolumeScreen() {
       extent: planeExtent(p.grid, s.plane),
     }));
     return { heading, planes };
-  }, [p, post, values, field, cell[0], cell[1], cell[2]]);
+  }, [p, values, field, cell[0], cell[1], cell[2]]);
   if (!p) return null;
   const names = volumeAxisNames(p.grid);
   const move = (axis: number, to: number) => {

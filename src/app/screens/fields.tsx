@@ -31,37 +31,43 @@ export interface FieldValues {
   readonly v: ArrayLike<number>;
   readonly signed: boolean;
   readonly centre?: number;
+  /** The prior mean a signed field is drawn against (../figures/sections.ts volumeColour). */
+  readonly priorMean: ArrayLike<number>;
 }
 
 export function useFieldValues(g: Geometry | null, field: FieldId, cell: number): FieldValues | null {
   const prior = useWb((s) => s.prior);
   const post = useWb((s) => s.posterior);
+  // On the FFT route the mean arrives first (a partial result) and the bands after it: the mean is drawn at once.
+  const partial = useWb((s) => s.posteriorPartial);
   const priorDraws = useWb((s) => s.priorDraws);
   const postDraws = useWb((s) => s.posteriorDraws);
   const resolution = useWb((s) => s.resolution);
   return useMemo((): FieldValues | null => {
-    if (!post || !g) return null;
+    if (!g) return null;
+    if (!post) return field === 'mean' && partial ? { v: partial.mean, signed: true, priorMean: partial.priorMean } : null;
     const s = post.summary;
+    const m0 = post.priorMean;
     switch (field) {
       case 'mean':
-        return { v: s.mean, signed: true };
+        return { v: s.mean, signed: true, priorMean: m0 };
       case 'std':
-        return { v: s.std, signed: false };
+        return { v: s.std, signed: false, priorMean: m0 };
       case 'reduction':
-        return { v: varianceReduction(s.std, s.priorStd), signed: false };
+        return { v: varianceReduction(s.std, s.priorStd), signed: false, priorMean: m0 };
       case 'correlation': {
         const c = prior ? correlationWith(g, prior, cell) : null;
-        return c ? { v: c, signed: true, centre: 0 } : null;
+        return c ? { v: c, signed: true, centre: 0, priorMean: m0 } : null;
       }
       case 'prior-draw':
-        return priorDraws ? { v: priorDraws.data.subarray(0, priorDraws.cols), signed: true } : null;
+        return priorDraws ? { v: priorDraws.data.subarray(0, priorDraws.cols), signed: true, priorMean: m0 } : null;
       case 'posterior-draw':
-        return postDraws ? { v: postDraws.data.subarray(0, postDraws.cols), signed: true } : null;
+        return postDraws ? { v: postDraws.data.subarray(0, postDraws.cols), signed: true, priorMean: m0 } : null;
       case 'kernel':
         // A resolution row is signed about 0 (not about the prior mean): the diverging scale centred on 0.
-        return resolution && resolution.cell === cell ? { v: resolution.row, signed: true, centre: 0 } : null;
+        return resolution && resolution.cell === cell ? { v: resolution.row, signed: true, centre: 0, priorMean: m0 } : null;
     }
-  }, [g, prior, post, priorDraws, postDraws, resolution, field, cell]);
+  }, [g, prior, post, partial, priorDraws, postDraws, resolution, field, cell]);
 }
 
 /** The field list of a one-screen view. */
