@@ -1,5 +1,5 @@
 /**
- * A linear inverse problem d = G m + e, e ~ N(0, Cd), on a regular grid.
+ * A linear inverse problem d = G m + e, e ~ N(0, Cd), on a regular grid or on a cell list (the user's own mesh).
  * Typed-array form used inside the core; the JSON problem file maps onto it in src/core/io.
  */
 import { InputError } from '../errors.ts';

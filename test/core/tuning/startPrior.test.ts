@@ -8,7 +8,8 @@ import { runPython } from '../../reference/python.ts';
 import { startLength, startPriorRule } from '../../../src/core/tuning/startPrior.ts';
 import { fromRows, toRows } from '../../../src/core/linalg/matrix.ts';
 import type { Problem } from '../../../src/core/problems/spec.ts';
-import type { Grid } from '../../../src/core/grid/grid.ts';
+import type { Geometry, Grid } from '../../../src/core/grid/grid.ts';
+import { readCellList } from '../../../src/core/io/cellList.ts';
 import { Random } from '../../../src/core/sampling/random.ts';
 import { priorRealisations } from '../../../src/core/sampling/realisations.ts';
 import { applyOperator } from '../../../src/core/linalg/operator.ts';
@@ -160,5 +161,35 @@ describe('the demos keep their own priors; the rule still applies to their data'
       const r = startPriorRule(d.build().problem);
       expect(Number.isFinite(r.exact.variance) && r.exact.variance > 0).toBe(true);
     }
+  });
+});
+
+describe('the rule on a cell list (the user’s own mesh)', () => {
+  it('takes its length from the centres’ extent and typical cell size, and fits a positive variance', () => {
+    // An invented 2-D mesh: 60 jittered centres over 30 m × 12 m, 8 averaging data.
+    const centres = Array.from({ length: 60 }, (_, i) => [
+      (i % 10) * 3 + 0.4 * Math.sin(i),
+      Math.floor(i / 10) * 2 + 0.3 * Math.cos(2 * i),
+    ]);
+    const cells = readCellList({ centres });
+    const n = centres.length;
+    const G = new Float64Array(8 * n);
+    for (let k = 0; k < 8; k++) for (let i = 0; i < n; i++) G[k * n + i] = Math.exp(-((centres[i][0] - 4 * k) ** 2) / 8) / 10;
+    const problem: Problem<Geometry> = {
+      grid: cells,
+      operator: { kind: 'dense', matrix: { rows: 8, cols: n, data: G } },
+      data: { values: Float64Array.from({ length: 8 }, (_, k) => Math.sin(k) + 0.5), sigma: new Float64Array(8).fill(0.1) },
+    };
+    const xs = centres.map((c) => c[0]);
+    const ys = centres.map((c) => c[1]);
+    const sx = Math.max(...xs) - Math.min(...xs);
+    const sy = Math.max(...ys) - Math.min(...ys);
+    // geometryScale: extent = the larger span; cell = √(sx·sy/N); length = max(extent/10, 2·cell).
+    const want = Math.max(Math.max(sx, sy) / 10, 2 * Math.sqrt((sx * sy) / n));
+    expect(startLength(cells)).toBeCloseTo(want, 12);
+    const r = startPriorRule(problem);
+    expect(r.exact.variance).toBeGreaterThan(0);
+    expect(r.prior.terms[0]).toMatchObject({ kernel: 'exponential' });
+    expect(r.explanation).toMatch(/the largest extent of the cell centres/);
   });
 });
