@@ -7,6 +7,7 @@
  */
 import type { Grid } from '../grid/grid.ts';
 import { gridDimension } from '../grid/grid.ts';
+import { formatNumber } from '../format.ts';
 import type { Matrix } from '../linalg/matrix.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { DataGeometry } from '../problems/spec.ts';
@@ -124,10 +125,12 @@ export function geometryOverlay(geometry: DataGeometry | null | undefined): Heat
   }
   const s = geometry.sources.data;
   const r = geometry.receivers.data;
+  // Path ends of 3 coordinates (a volume) are drawn by their first two, on the x–y plane.
+  const c = geometry.sources.cols;
   return {
     segments: Array.from(
       { length: geometry.sources.rows },
-      (_, i) => [s[2 * i] ?? 0, s[2 * i + 1] ?? 0, r[2 * i] ?? 0, r[2 * i + 1] ?? 0] as const,
+      (_, i) => [s[c * i] ?? 0, s[c * i + 1] ?? 0, r[c * i] ?? 0, r[c * i + 1] ?? 0] as const,
     ),
   };
 }
@@ -181,8 +184,60 @@ export function priorFormula(prior: PriorSpec): string[] {
   return lines;
 }
 
-/** The whole document as an HTML string. */
-export function defenceHtml(input: DefenceInput): string {
+/**
+ * A 3-D problem's document drawn on one section: the x–y layer through the middle of the third axis (iz = ⌊nz/2⌋),
+ * every per-cell field cut there, the grid that layer's 2-D grid, the survey geometry projected onto it, and a fact
+ * saying so (the whole volume goes to a .vti file). 1-D and 2-D inputs come back unchanged.
+ */
+export function sectionOfVolume(input: DefenceInput): DefenceInput {
+  const g = input.grid;
+  if (g.shape.length !== 3) return input;
+  const [nx, ny, nz] = g.shape;
+  const iz = Math.floor(nz / 2);
+  const layer = nx * ny;
+  const cut = (v: ArrayLike<number>): Float64Array => Float64Array.from({ length: layer }, (_, i) => v[iz * layer + i]);
+  const cutOrNull = (v: ArrayLike<number> | null): Float64Array | null => (v === null ? null : cut(v));
+  const names = g.axes && g.axes.length === 3 ? g.axes : ['x', 'y', 'z'];
+  const z = (g.origin?.[2] ?? 0) + iz * g.spacing[2];
+  const grid: Grid = {
+    shape: [nx, ny],
+    spacing: [g.spacing[0], g.spacing[1]],
+    ...(g.origin ? { origin: [g.origin[0], g.origin[1]] } : {}),
+    ...(g.unit !== undefined ? { unit: g.unit } : {}),
+    axes: [names[0], names[1]],
+  };
+  const draws = input.draws;
+  return {
+    ...input,
+    grid,
+    problemFacts: [
+      ...input.problemFacts,
+      [
+        'Maps',
+        `the ${names[0]}–${names[1]} section at ${names[2]} = ${formatNumber(z)}${g.unit ? ` ${g.unit}` : ''} (layer ${iz + 1} of ${nz}), survey projected onto it; the whole volume: priorscope posterior --vti FILE`,
+      ],
+    ],
+    coverage: cutOrNull(input.coverage),
+    priorMean: cut(input.priorMean),
+    priorStd: cut(input.priorStd),
+    draws:
+      draws === null
+        ? null
+        : (() => {
+            const out = new Float64Array(draws.rows * layer);
+            for (let r = 0; r < draws.rows; r++)
+              out.set(draws.data.subarray(r * draws.cols + iz * layer, r * draws.cols + (iz + 1) * layer), r * layer);
+            return { rows: draws.rows, cols: layer, data: out };
+          })(),
+    posterior: input.posterior === null ? null : { ...input.posterior, mean: cut(input.posterior.mean), std: cut(input.posterior.std) },
+    truth: cutOrNull(input.truth),
+    averaged: input.averaged === null ? null : { ...input.averaged, mean: cut(input.averaged.mean), std: cut(input.averaged.std) },
+  };
+}
+
+/** The whole document as an HTML string (a 3-D problem on its middle x–y section, {@link sectionOfVolume}). */
+export function defenceHtml(whole: DefenceInput): string {
+  const input = sectionOfVolume(whole);
   const g = input.grid;
   const is2D = gridDimension(g) === 2;
   const qUnit = input.quantity.unit;

@@ -1,5 +1,6 @@
 import { describe, expect, it } from 'vitest';
-import { defenceHtml, type DefenceInput } from '../../../src/core/report/defence.ts';
+import { defenceHtml, type DefenceInput, geometryOverlay, sectionOfVolume } from '../../../src/core/report/defence.ts';
+import { fromRows } from '../../../src/core/linalg/matrix.ts';
 import { colourAt, esc, extent, gridExtent, heatSvg, ticks } from '../../../src/core/report/svg.ts';
 import { DIVERGING } from '../../../src/core/report/colours.ts';
 
@@ -120,5 +121,42 @@ describe('svg helpers', () => {
     expect(extent([[3, Number.NaN, -1]])).toEqual([-1, 3]);
     expect(extent([[2, 2]])).toEqual([1, 3]);
     expect(esc(`a<b>&"'`)).toBe('a&lt;b&gt;&amp;&quot;&#39;');
+  });
+});
+
+describe('a 3-D problem in the document', () => {
+  // 4 × 3 × 5 cells: the maps show the middle x–y layer (iz = 2); every per-cell field is cut there.
+  const g3 = { shape: [4, 3, 5], spacing: [2, 1, 0.5], origin: [1, 0.5, 0.25], unit: 'm', axes: ['east', 'north', 'depth'] };
+  const n = 60;
+  const field = (k: number) => Float64Array.from({ length: n }, (_, i) => i + 1000 * k);
+  const vol: DefenceInput = {
+    ...base,
+    grid: g3,
+    coverage: field(1),
+    priorMean: field(2),
+    priorStd: field(3),
+    draws: { rows: 2, cols: n, data: Float64Array.from({ length: 2 * n }, (_, i) => i) },
+    posterior: { mean: field(4), std: field(5), predicted: [1, 2] },
+    truth: field(6),
+    geometry: { kind: 'paths', sources: fromRows([[0, 0, 9]]), receivers: fromRows([[8, 3, 9]]) },
+  };
+  it('cuts every field at the middle layer, on that layer’s 2-D grid, and says so', () => {
+    const s = sectionOfVolume(vol);
+    const layer = (k: number) => Array.from({ length: 12 }, (_, i) => 24 + i + 1000 * k);
+    expect(s.grid).toEqual({ shape: [4, 3], spacing: [2, 1], origin: [1, 0.5], unit: 'm', axes: ['east', 'north'] });
+    expect(Array.from(s.coverage!)).toEqual(layer(1));
+    expect(Array.from(s.priorMean)).toEqual(layer(2));
+    expect(Array.from(s.posterior!.std)).toEqual(layer(5));
+    expect(Array.from(s.truth!)).toEqual(layer(6));
+    expect(Array.from(s.draws!.data.subarray(12, 24))).toEqual(Array.from({ length: 12 }, (_, i) => 60 + 24 + i));
+    expect(s.problemFacts.at(-1)).toEqual(['Maps', expect.stringMatching(/east–north section at depth = 1\.25 m \(layer 3 of 5\)/)]);
+    // 2-D inputs pass through untouched.
+    expect(sectionOfVolume(base)).toBe(base);
+  });
+  it('draws 3-D path ends by their first two coordinates, and renders the whole document', () => {
+    expect(geometryOverlay(vol.geometry)).toEqual({ segments: [[0, 0, 8, 3]] });
+    const html = defenceHtml(vol);
+    expect(html).toContain('east–north section at depth');
+    expect((html.match(/<svg /g) ?? []).length).toBe(6);
   });
 });
