@@ -131,6 +131,9 @@ test('a 2-D cell list loads as a map of its centres coloured by the posterior, e
   const chosen = Number((await page.getByTestId('cells-chosen').textContent())?.match(/chosen cell (\d+)/)?.[1]);
   expect(corr.colour[corr.cell.indexOf(chosen)]).toBeCloseTo(1, 12);
   await screenshot(page, info, 'cells-2d-correlation');
+  // The report is drawn on a grid: its buttons are disabled for a cell list, and say why.
+  await expect(page.getByTestId('report-open')).toBeDisabled();
+  await expect(page.getByTestId('report-open')).toHaveAttribute('title', /regular grid/);
   // Export CSV: numpy reads the centres back in file order, with the posterior mean beside them.
   const [download] = await Promise.all([page.waitForEvent('download'), page.getByTestId('export-cells-csv').click()]);
   const saved = info.outputPath('cells.csv');

@@ -5,6 +5,7 @@
  */
 import { useEffect, useRef, useState, type FormEvent } from 'react';
 import { useWb, useWorkbenchStore } from '../context.ts';
+import { isCellList } from '../../core/grid/grid.ts';
 import { readFiles } from '../io/parseClient.ts';
 import { LoadError } from '../io/parseClient.ts';
 import { exportCovariance, exportDraws, exportPlots, exportPosterior, exportPrior, openReport, shareLink } from './actions.ts';
@@ -36,6 +37,9 @@ export function SessionBar() {
   const saveStatus = useWb((s) => s.saveStatus);
   const ready = useWb((s) => s.problemStatus === 'ready');
   const hasPosterior = useWb((s) => s.posterior !== null);
+  // The report is drawn on a grid (a volume on its middle section); a cell list has none.
+  const onCells = useWb((s) => s.problem !== null && isCellList(s.problem.grid));
+  const noReport = onCells ? 'The report is drawn on a regular grid; for a cell list, export the posterior CSV and the prior' : undefined;
   const [link, setLink] = useState<string | null>(null);
   const [drawCount, setDrawCount] = useState('100');
   const [dragging, setDragging] = useState(false);
@@ -197,13 +201,20 @@ export function SessionBar() {
           <button type="button" data-testid="export-plots-svg" onClick={guarded(() => exportPlots('svg', title), fail)}>
             Plots on this screen (.svg)
           </button>
-          <button type="button" data-testid="report-open" disabled={!hasPosterior} onClick={guarded(() => openReport(store, 'open'), fail)}>
+          <button
+            type="button"
+            data-testid="report-open"
+            disabled={!hasPosterior || onCells}
+            title={noReport}
+            onClick={guarded(() => openReport(store, 'open'), fail)}
+          >
             One-page report (open)
           </button>
           <button
             type="button"
             data-testid="report-download"
-            disabled={!hasPosterior}
+            disabled={!hasPosterior || onCells}
+            title={noReport}
             onClick={guarded(() => openReport(store, 'download'), fail)}
           >
             One-page report (.html)
