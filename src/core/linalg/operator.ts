@@ -387,3 +387,25 @@ export function operatorGram(g: Operator): Matrix {
       return assertNever(g);
   }
 }
+
+/** G restricted to the given rows, in their order (a new operator of rows.length × N, the same kind as G). */
+export function operatorRowSubset(g: Operator, rows: readonly number[]): Operator {
+  const cols = g.matrix.cols;
+  if (g.kind === 'dense') {
+    const data = new Float64Array(rows.length * cols);
+    rows.forEach((i, k) => data.set(g.matrix.data.subarray(i * cols, (i + 1) * cols), k * cols));
+    return { kind: 'dense', matrix: { rows: rows.length, cols, data } };
+  }
+  const { rowPtr, colIdx, values } = g.matrix;
+  const ptr = new Int32Array(rows.length + 1);
+  rows.forEach((i, k) => {
+    ptr[k + 1] = ptr[k] + rowPtr[i + 1] - rowPtr[i];
+  });
+  const ci = new Int32Array(ptr[rows.length]);
+  const v = new Float64Array(ptr[rows.length]);
+  rows.forEach((i, k) => {
+    ci.set(colIdx.subarray(rowPtr[i], rowPtr[i + 1]), ptr[k]);
+    v.set(values.subarray(rowPtr[i], rowPtr[i + 1]), ptr[k]);
+  });
+  return { kind: 'sparse', matrix: { rows: rows.length, cols, rowPtr: ptr, colIdx: ci, values: v } };
+}

@@ -5,11 +5,12 @@
  * of the symmetric sparse product (M not a multiple of 4) and the NT kernel's depth block (KC = 256).
  */
 import { describe, expect, it } from 'vitest';
-import { matrix } from '../../../src/core/linalg/matrix.ts';
+import { fromRows, matrix } from '../../../src/core/linalg/matrix.ts';
 import {
   addOperatorRow,
   applyOperator,
   applyOperatorTranspose,
+  operatorRowSubset,
   denseTimesOperatorTranspose,
   matchOperator,
   operatorAsDense,
@@ -18,6 +19,7 @@ import {
   operatorGram,
   operatorRow,
   operatorRowExtents,
+  operatorShape,
   operatorTimesDense,
   operatorTimesSymmetric,
   operatorTimesTransposed,
@@ -26,7 +28,7 @@ import {
   projectCovariance,
   type Operator,
 } from '../../../src/core/linalg/operator.ts';
-import { sparseFromCoordinates } from '../../../src/core/linalg/sparse.ts';
+import { denseToSparse, sparseFromCoordinates } from '../../../src/core/linalg/sparse.ts';
 import { runPython } from '../../reference/python.ts';
 import { randomMatrix, randomSpd, relError, seededUniform, toJson, type JsonMatrix } from './helpers.ts';
 
@@ -166,5 +168,25 @@ describe.each([
   it('shares a dense operator’s storage and copies a sparse one', () => {
     expect(operatorAsDense(dense)).toBe(dense.matrix);
     expect(operatorAsDense(sparse)).not.toBe(operatorAsDense(sparse));
+  });
+});
+
+describe('operatorRowSubset', () => {
+  it('keeps the chosen rows in their order, dense and sparse alike', () => {
+    const a = fromRows([
+      [1, 0, 2, 0],
+      [0, 3, 0, 0],
+      [4, 0, 0, 5],
+      [0, 0, 6, 0],
+    ]);
+    for (const g of [
+      { kind: 'dense' as const, matrix: a },
+      { kind: 'sparse' as const, matrix: denseToSparse(a) },
+    ]) {
+      const sub = operatorRowSubset(g, [3, 0, 2]);
+      expect(sub.kind).toBe(g.kind);
+      expect(operatorShape(sub)).toEqual({ rows: 3, cols: 4 });
+      expect([0, 1, 2].map((k) => Array.from(operatorRow(sub, k)))).toEqual([3, 0, 2].map((i) => Array.from(operatorRow(g, i))));
+    }
   });
 });

@@ -5,8 +5,9 @@
  */
 import { describe, expect, it } from 'vitest';
 import { runPython } from '../../reference/python.ts';
-import { startLength, startPriorRule } from '../../../src/core/tuning/startPrior.ts';
-import { fromRows, toRows } from '../../../src/core/linalg/matrix.ts';
+import { START_RULE_MAX_DATA, startLength, startPriorRule } from '../../../src/core/tuning/startPrior.ts';
+import { fromRows, matrix, toRows } from '../../../src/core/linalg/matrix.ts';
+import { denseToSparse } from '../../../src/core/linalg/sparse.ts';
 import type { Problem } from '../../../src/core/problems/spec.ts';
 import type { Geometry, Grid } from '../../../src/core/grid/grid.ts';
 import { readCellList } from '../../../src/core/io/cellList.ts';
@@ -191,5 +192,46 @@ describe('the rule on a cell list (the user’s own mesh)', () => {
     expect(r.exact.variance).toBeGreaterThan(0);
     expect(r.prior.terms[0]).toMatchObject({ kernel: 'exponential' });
     expect(r.explanation).toMatch(/the largest extent of the cell centres/);
+  });
+});
+
+describe('the rule on many data (fitted to START_RULE_MAX_DATA of them)', () => {
+  it('equals the rule on the evenly spaced rows, for sparse G with σ and dense G with a full Cd, and says so', () => {
+    const grid: Grid = { shape: [40, 30], spacing: [1, 1] };
+    const n = 1200;
+    const m = 700;
+    const rnd = new Random(9);
+    const rows: number[][] = Array.from({ length: m }, () =>
+      Array.from({ length: n }, () => (rnd.nextDouble() < 0.02 ? rnd.nextDouble() : 0)),
+    );
+    const values = Float64Array.from({ length: m }, () => rnd.nextNormal());
+    const pick = Array.from({ length: START_RULE_MAX_DATA }, (_, k) => Math.floor((k * m) / START_RULE_MAX_DATA));
+    const sparse = { kind: 'sparse' as const, matrix: denseToSparse(fromRows(rows)) };
+    const sigma = Float64Array.from({ length: m }, (_, i) => 0.5 + (i % 4) / 10);
+    const whole: Problem = { grid, operator: sparse, data: { values, sigma } };
+    const part: Problem = {
+      grid,
+      operator: { kind: 'sparse', matrix: denseToSparse(fromRows(pick.map((i) => rows[i]))) },
+      data: { values: Float64Array.from(pick, (i) => values[i]), sigma: Float64Array.from(pick, (i) => sigma[i]) },
+    };
+    const a = startPriorRule(whole);
+    expect(a.exact).toEqual(startPriorRule(part).exact);
+    expect(a.fit.degreesOfFreedom).toBe(START_RULE_MAX_DATA - 1);
+    expect(a.explanation).toMatch(new RegExp(`fitted to ${START_RULE_MAX_DATA} of the ${m} data`));
+    // Dense G and a full (diagonal-plus-band) Cd: the subset takes the matching block of Cd.
+    const cov = matrix(m, m);
+    for (let i = 0; i < m; i++) {
+      cov.data[i * m + i] = sigma[i] ** 2;
+      if (i + 1 < m) cov.data[i * m + i + 1] = cov.data[(i + 1) * m + i] = 0.1 * sigma[i] * sigma[i + 1];
+    }
+    const dense: Problem = { grid, operator: { kind: 'dense', matrix: fromRows(rows) }, data: { values, covariance: cov } };
+    const block = matrix(pick.length, pick.length);
+    pick.forEach((i, p) => pick.forEach((j, q) => (block.data[p * pick.length + q] = cov.data[i * m + j])));
+    const denseSubset: Problem = {
+      ...part,
+      operator: { kind: 'dense', matrix: fromRows(pick.map((i) => rows[i])) },
+      data: { values: part.data.values, covariance: block },
+    };
+    expect(startPriorRule(dense).exact).toEqual(startPriorRule(denseSubset).exact);
   });
 });
