@@ -8,7 +8,8 @@
  *   - the positive-definiteness verdict at 64³ (≤ 2 s).
  * The survey is invented: rays between opposite faces of the block (the face pair turning with the ray's number),
  * end points from a seeded generator; path lengths by midpoint sampling at 1/20 of a cell (enough for a timing
- * problem; the library's exact ray walk is 2-D), Matérn ν = 1.5, length n/8, σ = 0.5.
+ * problem; kept so the timings stay comparable with earlier runs, though the exact walk of src/core/problems/rays.ts
+ * now runs in 3-D too), Matérn ν = 1.5, length n/8, σ = 0.5.
  */
 import { execFileSync } from 'node:child_process';
 import { fileURLToPath } from 'node:url';
