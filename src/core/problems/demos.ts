@@ -41,6 +41,13 @@ function syntheticData(G: Operator, truth: Float64Array, sigma: Float64Array, se
   return d;
 }
 
+/** The travel-time demos' starting prior: deliberately shorter and wider than their truth, for the user to improve. */
+const RAY_START_PRIOR: PriorSpec = {
+  mean: { constant: 0 },
+  terms: [{ kernel: 'exponential', variance: 1e-3, length: 3 }],
+  nugget: 1e-7,
+};
+
 /**
  * A travel-time demo: straight rays through the grid (./rays.ts), the truth drawn from `truthPrior`, data with
  * σ = 0.01 ms; slowness perturbation in s/km (length in m × s/km = ms).
@@ -165,16 +172,11 @@ const crossholeTomography: DemoProblem = {
       terms: [{ kernel: 'matern', nu: 2.5, variance: 4e-4, lengths: [5, 1.5], angle: 15 }],
       nugget: 4e-8,
     };
-    const startPrior: PriorSpec = {
-      mean: { constant: 0 },
-      terms: [{ kernel: 'exponential', variance: 1e-3, length: 3 }],
-      nugget: 1e-7,
-    };
     return rayDemo(
       'Crosshole travel-time tomography',
       CROSSHOLE_GRID,
       crossholeRays(),
-      { truthPrior, startPrior },
+      { truthPrior, startPrior: RAY_START_PRIOR },
       { truth: 31337, noise: 4242 },
     );
   },
@@ -264,16 +266,11 @@ const threeBoreholes: DemoProblem = {
       terms: [{ kernel: 'matern', nu: 1.5, variance: 4e-4, lengths: [7, 5, 1.5], angles: [25, 10, 0] }],
       nugget: 4e-8,
     };
-    const startPrior: PriorSpec = {
-      mean: { constant: 0 },
-      terms: [{ kernel: 'exponential', variance: 1e-3, length: 3 }],
-      nugget: 1e-7,
-    };
     return rayDemo(
       'Travel times between three boreholes (3-D)',
       BOREHOLES_GRID,
       boreholeRays3d(),
-      { truthPrior, startPrior },
+      { truthPrior, startPrior: RAY_START_PRIOR },
       { truth: 2718, noise: 1414 },
     );
   },
