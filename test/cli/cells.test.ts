@@ -125,6 +125,41 @@ describe('priorscope on a cell-list problem file', () => {
     expect(Math.abs(ss - dof)).toBeLessThan(5 * Math.sqrt(2 * dof));
   });
 
+  it('sample --posterior: the mean of 2000 draws is scipy’s posterior mean within 5 standard errors (std/√K) in every cell', async () => {
+    const count = 2000;
+    const r = await runCommand(
+      [
+        'sample',
+        '--problem',
+        'inline.json',
+        '--prior',
+        'q.json',
+        '--posterior',
+        '--count',
+        String(count),
+        '--seed',
+        '5',
+        '--format',
+        'csv',
+      ],
+      dir,
+    );
+    expect(r.code).toBe(0);
+    expect(r.err).toMatch(/route dense/);
+    const rows = r.out
+      .trim()
+      .split('\n')
+      .map((l) => l.split(',').map(Number));
+    expect(rows.length).toBe(count);
+    let worst = 0;
+    for (let i = 0; i < N; i++) {
+      const mean = rows.reduce((a, row) => a + row[i], 0) / count;
+      worst = Math.max(worst, Math.abs(mean - ref.mean[i]) / (ref.std[i] / Math.sqrt(count)));
+    }
+    expect(worst).toBeLessThan(5);
+    expect(worst).toBeGreaterThan(0.1);
+  });
+
   it('a written cell-list problem reads back equal (centres, unit, axes, data positions)', () => {
     const text = readFileSync(join(dir, 'inline.json'), 'utf8');
     const a = parseProblemFile('inline.json', text).problem;
