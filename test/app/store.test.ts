@@ -7,6 +7,7 @@
  */
 import { describe, expect, it } from 'vitest';
 import { createWorkbenchStore } from '../../src/app/store.ts';
+import { HEAVY_POSTERIOR } from '../../src/app/results/slice.ts';
 import type { ClientPort } from '../../src/worker/client.ts';
 import { bandsState, bandsText, shownPosterior } from '../../src/app/posteriorView.ts';
 import { Engine } from '../../src/worker/engine.ts';
@@ -143,5 +144,61 @@ describe('store: mean first, bands later', () => {
     stop();
     await store.getState().loadDemo('borehole-log');
     expect(store.getState().posteriorPartial).toBeNull();
+  });
+});
+
+describe('store: a heavy posterior is asked for before the verdict', () => {
+  /** A client whose posterior the test answers by hand and whose verdict requests are counted (never answered). */
+  async function heavySetup(heavy: boolean) {
+    const base = inProcessClient();
+    const pending: Pending[] = [];
+    const verdicts: PriorSpec[] = [];
+    const client: ClientPort = {
+      ...base,
+      // The borehole demo's view, with a size claimed for the rule (cells × data) above or below HEAVY_POSTERIOR.
+      loadDemo: async (id) => {
+        const o = await base.loadDemo(id);
+        if (o.superseded || !heavy) return o;
+        return { superseded: false, value: { ...o.value, grid: { shape: [1000, 1000], spacing: [1, 1] }, dataCount: 100 } };
+      },
+      posterior: (prior, onPartial) => new Promise((resolve, reject) => pending.push({ prior, onPartial, resolve, reject })),
+      diagnostics: (prior) => {
+        verdicts.push(prior);
+        return new Promise(() => {});
+      },
+    };
+    const store = createWorkbenchStore(client, { demoId: 'borehole-log' });
+    await store.getState().loadDemo('borehole-log');
+    await tick();
+    return { store, pending, verdicts };
+  }
+
+  it('above HEAVY_POSTERIOR the verdict waits for the mean (busy meanwhile); below it both start at once', async () => {
+    expect(1000 * 1000 * 100).toBeGreaterThanOrEqual(HEAVY_POSTERIOR);
+    const h = await heavySetup(true);
+    expect(h.pending).toHaveLength(1);
+    expect(h.verdicts).toHaveLength(0);
+    expect(h.store.getState().busy.diagnostics).toBe(true);
+    h.pending[0].onPartial!({ mean: new Float64Array(0) } as unknown as PosteriorPartial);
+    await tick();
+    expect(h.verdicts).toHaveLength(1);
+    const l = await heavySetup(false);
+    expect(l.verdicts).toHaveLength(1);
+  });
+
+  it('a verdict deferred behind a superseded posterior is dropped: only the newer prior’s verdict is asked for', async () => {
+    const h = await heavySetup(true);
+    const s = h.store.getState();
+    s.setNugget((s.prior!.nugget ?? 0) + 0.5);
+    await tick();
+    expect(h.pending).toHaveLength(2);
+    // The first posterior ends as superseded; its verdict must not be sent for the old prior.
+    h.pending[0].resolve({ superseded: true } as unknown as { superseded: false; value: PosteriorResult });
+    await tick();
+    expect(h.verdicts).toHaveLength(0);
+    h.pending[1].onPartial!({ mean: new Float64Array(0) } as unknown as PosteriorPartial);
+    await tick();
+    expect(h.verdicts).toHaveLength(1);
+    expect(h.verdicts[0].nugget).toBe(h.store.getState().prior!.nugget);
   });
 });

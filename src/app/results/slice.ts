@@ -12,6 +12,13 @@ import type { Channel, PosteriorPartial, PosteriorResult } from '../../worker/pr
 import { DRAW_COUNT, startCell } from '../defaults.ts';
 import type { StoreGet, StoreSet } from '../store.ts';
 
+/**
+ * Cells × data from which the positive-definiteness verdict is asked for only after the posterior mean is drawn (a 32³
+ * grid with 1,000 rays is 3.3·10⁷: its verdict took a core from the mean for 0.8 s; a 128² grid with 400 data, 6.6·10⁶,
+ * starts both at once). Our choice.
+ */
+export const HEAVY_POSTERIOR = 1e7;
+
 /** Largest N for which the covariance heat map is requested. */
 export const COVARIANCE_VIEW_CELLS = 400;
 
@@ -114,16 +121,30 @@ export function createResultsSlice(set: StoreSet, get: StoreGet, client: ClientP
       // Mean first, bands later (FFT path, large problems): a partial of the current request is
       // drawn at once; the full result replaces it. If the bands then fail, the mean stays.
       let partialShown = false;
+      // Resolves when this refresh's posterior has drawn its mean (partial or full), or at once when none was asked.
+      let meanReady: Promise<unknown> = Promise.resolve();
       run(
         'posterior',
         rev,
-        () =>
-          client.posterior(prior, (posteriorPartial) => {
+        () => {
+          let partialArrived = () => {};
+          const partial = new Promise<void>((r) => {
+            partialArrived = r;
+          });
+          const full = client.posterior(prior, (posteriorPartial) => {
+            partialArrived();
             const now = get();
             if (now.computedFor.posterior !== rev || now.problem?.version !== problem.version) return;
             partialShown = true;
             set({ posteriorPartial });
-          }),
+          });
+          // Never rejects: a failed posterior lets a waiting verdict go ahead (and leaves no unhandled rejection).
+          meanReady = Promise.race([partial, full]).then(
+            () => undefined,
+            () => undefined,
+          );
+          return full;
+        },
         (posterior) => ({ posterior, posteriorPartial: null }),
         (message) =>
           partialShown ? `the uncertainty bands could not be computed (${message}); the posterior mean is shown without them` : message,
@@ -151,10 +172,15 @@ export function createResultsSlice(set: StoreSet, get: StoreGet, client: ClientP
           (priorDraws) => ({ priorDraws }),
         );
       }
+      // A heavy posterior (N·M ≥ HEAVY_POSTERIOR) gets both cores first: the verdict's request waits for the mean to be
+      // drawn (busy at once, so nothing looks settled meanwhile) and is dropped if a newer refresh took the channel.
+      const heavy = cellCount(problem.grid) * problem.dataCount >= HEAVY_POSTERIOR;
+      const verdict = () => client.diagnostics(prior);
       run(
         'diagnostics',
         rev,
-        () => client.diagnostics(prior),
+        () =>
+          heavy ? meanReady.then(() => (get().computedFor.diagnostics === rev ? verdict() : { superseded: true as const })) : verdict(),
         (diagnostics) => ({ diagnostics }),
       );
       if (s.tab === 'realisations' || volume) {
