@@ -71,6 +71,20 @@ const relDiff = (a: readonly number[], b: readonly number[]) => {
   return Math.max(...a.map((v, i) => Math.abs(v - b[i]))) / s;
 };
 
+/** `priorscope sample … --format csv` through the dense route: the draws as rows of numbers. */
+async function sampleRows(file: string, count: number, seed: number, posterior = false): Promise<number[][]> {
+  const args = ['sample', '--problem', file, '--prior', 'q.json', '--count', String(count), '--seed', String(seed), '--format', 'csv'];
+  const r = await runCommand(posterior ? [...args, '--posterior'] : args, dir);
+  expect(r.code).toBe(0);
+  expect(r.err).toMatch(/route dense/);
+  const rows = r.out
+    .trim()
+    .split('\n')
+    .map((l) => l.split(',').map(Number));
+  expect(rows.length).toBe(count);
+  return rows;
+}
+
 describe('priorscope on a cell-list problem file', () => {
   it('posterior: the dense route, mean and std equal scipy to 1e-8, inline centres and a numpy-written .npy alike', async () => {
     for (const file of ['inline.json', 'npy.json']) {
@@ -96,17 +110,7 @@ describe('priorscope on a cell-list problem file', () => {
 
   it('sample: 3000 prior draws whitened by the Cholesky factor of scipy’s Cm give a χ² sum inside its 5σ band', async () => {
     const count = 3000;
-    const r = await runCommand(
-      ['sample', '--problem', 'npy.json', '--prior', 'q.json', '--count', String(count), '--seed', '11', '--format', 'csv'],
-      dir,
-    );
-    expect(r.code).toBe(0);
-    expect(r.err).toMatch(/route dense/);
-    const rows = r.out
-      .trim()
-      .split('\n')
-      .map((l) => l.split(',').map(Number));
-    expect(rows.length).toBe(count);
+    const rows = await sampleRows('npy.json', count, 11);
     const f = cholesky({ rows: N, cols: N, data: Float64Array.from(ref.Cm) });
     if (!f.ok) throw new Error('reference Cm did not factor');
     const L = f.factor.data;
@@ -127,30 +131,7 @@ describe('priorscope on a cell-list problem file', () => {
 
   it('sample --posterior: the mean of 2000 draws is scipy’s posterior mean within 5 standard errors (std/√K) in every cell', async () => {
     const count = 2000;
-    const r = await runCommand(
-      [
-        'sample',
-        '--problem',
-        'inline.json',
-        '--prior',
-        'q.json',
-        '--posterior',
-        '--count',
-        String(count),
-        '--seed',
-        '5',
-        '--format',
-        'csv',
-      ],
-      dir,
-    );
-    expect(r.code).toBe(0);
-    expect(r.err).toMatch(/route dense/);
-    const rows = r.out
-      .trim()
-      .split('\n')
-      .map((l) => l.split(',').map(Number));
-    expect(rows.length).toBe(count);
+    const rows = await sampleRows('inline.json', count, 5, true);
     let worst = 0;
     for (let i = 0; i < N; i++) {
       const mean = rows.reduce((a, row) => a + row[i], 0) / count;
