@@ -23,7 +23,7 @@ import { correlationFunction } from '../kernels/correlation.ts';
 import type { Term } from '../kernels/spec.ts';
 import type { Grid } from '../grid/grid.ts';
 import { type OffsetFunction, scaledDistance } from '../prior/lag.ts';
-import { fft3InPlace } from './fft3.ts';
+import { fft3InPlace, fft3View } from './fft3.ts';
 import { fftBatch, nextPowerOfTwo } from './transform.ts';
 
 /** Σ_t variance_t ρ_t(h_t(ox, oy)) at a physical offset (ox, oy); oy ≡ 0 on a 1-D grid. */
@@ -246,17 +246,18 @@ function mirroredBase3(grid: Grid, cov: OffsetFunction, px: number, py: number, 
     for (let jy = 0; jy <= hy; jy++) {
       const oys = ys[jy];
       const ky = [jy, jy === 0 ? 0 : py - jy];
+      // One row (jy, jz) evaluated and mirrored within itself, then copied whole to its mirror rows.
+      const row = px * (jy + py * jz);
       for (let jx = 0; jx <= hx; jx++) {
-        const oxs = xs[jx];
-        const s = lagValue(cov, oxs, oys, ozs, dx, dy, dz);
-        const mx = jx === 0 ? 0 : px - jx;
-        for (const z of kz)
-          for (const y of ky) {
-            const row = px * (y + py * z);
-            base[jx + row] = s;
-            base[mx + row] = s;
-          }
+        const s = lagValue(cov, xs[jx], oys, ozs, dx, dy, dz);
+        base[jx + row] = s;
+        base[(jx === 0 ? 0 : px - jx) + row] = s;
       }
+      for (const z of kz)
+        for (const y of ky) {
+          const to = px * (y + py * z);
+          if (to !== row) base.copyWithin(to, row, row + px);
+        }
     }
   }
   return base;
@@ -282,9 +283,9 @@ export function evenRealSpectrum3(base: Float64Array, px: number, py: number, pz
     return lam;
   }
   const hx = px / 2;
-  // The base's memory order (x fastest, real) is exactly z's interleaved order at half the length in x.
-  const z = base.slice();
-  fft3InPlace(z, hx, py, pz);
+  // The base's memory order (x fastest, real) is exactly z's interleaved order at half the length in x; its
+  // transform is read in the engine's memory (no copy of the base, none back).
+  const z = fft3View(base, hx, py, pz);
   // The twiddles e^{−2πi kx/px} once per kx (the same Math.cos / Math.sin calls as per element, so the same bits).
   const cosT = new Float64Array(hx);
   const sinT = new Float64Array(hx);
@@ -299,6 +300,9 @@ export function evenRealSpectrum3(base: Float64Array, px: number, py: number, pz
       const my = ky === 0 ? 0 : py - ky;
       const row = hx * (ky + py * kz);
       const mrow = hx * (my + py * mz);
+      const out = px * (ky + py * kz);
+      // λ is even, λ(kx, ky, kz) = λ(−kx, −ky, −kz): each value also fills its mirror px − kx of row (my, mz).
+      const mout = px * (my + py * mz);
       for (let kx = 0; kx < hx; kx++) {
         const mx = kx === 0 ? 0 : hx - kx;
         const a = 2 * (row + kx);
@@ -310,20 +314,14 @@ export function evenRealSpectrum3(base: Float64Array, px: number, py: number, pz
         const er = 0.5 * (zr + wr);
         const or = 0.5 * (zi - wi); // O = (Z − conj Z(−k))/(2i): real part
         const oi = -0.5 * (zr - wr); // imaginary part
-        lam[kx + px * (ky + py * kz)] = er + cosT[kx] * or - sinT[kx] * oi;
+        const v = er + cosT[kx] * or - sinT[kx] * oi;
+        lam[kx + out] = v;
+        if (kx > 0) lam[px - kx + mout] = v;
       }
-    }
-  }
-  // λ even: λ(kx, ky, kz) = λ(−kx, −ky, −kz) fills kx = px/2 … px − 1 except kx = px/2 itself.
-  for (let kz = 0; kz < pz; kz++) {
-    const mz = kz === 0 ? 0 : pz - kz;
-    for (let ky = 0; ky < py; ky++) {
-      const my = ky === 0 ? 0 : py - ky;
-      for (let kx = hx + 1; kx < px; kx++) lam[kx + px * (ky + py * kz)] = lam[px - kx + px * (my + py * mz)];
       // kx = px/2: E and O at kx ≡ 0 of the half grid with the twiddle e^{−iπ} = −1.
-      const a = 2 * (hx * (ky + py * kz));
-      const b = 2 * (hx * (my + py * mz));
-      lam[hx + px * (ky + py * kz)] = 0.5 * (z[a] + z[b]) - 0.5 * (z[a + 1] + z[b + 1]);
+      const a = 2 * row;
+      const b = 2 * mrow;
+      lam[hx + out] = 0.5 * (z[a] + z[b]) - 0.5 * (z[a + 1] + z[b + 1]);
     }
   }
   return lam;

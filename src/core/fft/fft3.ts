@@ -13,8 +13,18 @@
 import type { FftEngine } from './engine.ts';
 import { fftEngine, isPowerOfTwo } from './transform.ts';
 
-/** In-place 3-D transform of a px × py × pz complex buffer (length 2·px·py·pz). */
-export function fft3InPlace(buf: Float64Array, px: number, py: number, pz: number, inverse = false, engine: FftEngine = fftEngine()): void {
+/**
+ * The unnormalised 3-D transform of a px × py × pz complex buffer (length 2·px·py·pz), left in the engine's memory:
+ * returns a view of the result in the buffer's layout, valid until the engine's next use; `buf` is not written.
+ */
+export function fft3View(
+  buf: Float64Array,
+  px: number,
+  py: number,
+  pz: number,
+  inverse = false,
+  engine: FftEngine = fftEngine(),
+): Float64Array {
   if (!isPowerOfTwo(px) || !isPowerOfTwo(py) || !isPowerOfTwo(pz)) {
     throw new RangeError(`fft3: sizes ${px} × ${py} × ${pz} must be powers of two`);
   }
@@ -25,15 +35,19 @@ export function fft3InPlace(buf: Float64Array, px: number, py: number, pz: numbe
   const a = engine.workBase();
   const b = a + full;
   const t = b + full;
-  let v = engine.reserve(t + full);
+  const v = engine.reserve(t + full);
   v.set(buf, a / 8);
   engine.run(a, b, t, px, 1, py * pz, 16 * px, inverse);
   engine.run(b, a, t, py, px, pz, 16 * px * py, inverse);
   engine.run(a, b, t, pz, px * py, 1, 0, inverse);
-  v = engine.f64();
-  const out = v.subarray(b / 8, b / 8 + 2 * count);
+  return engine.f64().subarray(b / 8, b / 8 + 2 * count);
+}
+
+/** In-place 3-D transform of a px × py × pz complex buffer (length 2·px·py·pz). */
+export function fft3InPlace(buf: Float64Array, px: number, py: number, pz: number, inverse = false, engine: FftEngine = fftEngine()): void {
+  const out = fft3View(buf, px, py, pz, inverse, engine);
   if (inverse) {
-    const s = 1 / count;
+    const s = 1 / (px * py * pz);
     for (let i = 0; i < out.length; i++) buf[i] = out[i] * s;
   } else {
     buf.set(out);
@@ -54,10 +68,11 @@ export function fft3(buf: Float64Array, px: number, py: number, pz: number, inve
  * quarter of the work when the embedding doubles the grid; an axis whose block is at most half its transform keeps
  * only the outputs below half (the engine's halfOut). Returns a view of the engine's memory in the buffer's layout,
  * exact in the block (the same sums as {@link fft3InPlace} in another order: equal to rounding), stale elsewhere,
- * and valid until the engine's next use.
+ * and valid until the engine's next use. The input is a buffer (copied in) or a function that writes every element of
+ * the engine's input region itself (no buffer of the embedding's size on the side).
  */
 export function fft3Block(
-  buf: Float64Array,
+  input: Float64Array | ((region: Float64Array) => void),
   px: number,
   py: number,
   pz: number,
@@ -73,7 +88,8 @@ export function fft3Block(
     throw new RangeError(`fft3Block: block ${nx} × ${ny} × ${nz} must lie inside ${px} × ${py} × ${pz}`);
   }
   const count = px * py * pz;
-  if (buf.length !== 2 * count) throw new RangeError(`fft3: buffer has length ${buf.length}, expected ${2 * count}`);
+  if (typeof input !== 'function' && input.length !== 2 * count)
+    throw new RangeError(`fft3: buffer has length ${input.length}, expected ${2 * count}`);
   for (const n of [px, py, pz]) if (n > 1) engine.twiddles(n, false);
   const full = 16 * count;
   const slab = 16 * px * py;
@@ -81,7 +97,9 @@ export function fft3Block(
   const b = a + full;
   const t = b + full;
   const v = engine.reserve(t + full);
-  v.set(buf, a / 8);
+  // A filler writes the input straight into the engine's memory (every element: the region is not cleared).
+  if (typeof input === 'function') input(v.subarray(a / 8, a / 8 + 2 * count));
+  else v.set(input, a / 8);
   engine.run(a, b, t, pz, px * py, 1, 0, false, false, 2 * nz <= pz);
   engine.run(b, a, t, py, px, nz, slab, false, false, 2 * ny <= py);
   for (let z = 0; z < nz; z++) engine.run(a + slab * z, b + slab * z, t, px, 1, ny, 16 * px, false, false, 2 * nx <= px);

@@ -152,11 +152,13 @@ export function circulantSampler(grid: Grid, prior: PriorSpec, options: SamplerO
   const { nx, ny, nz, px, py, pz } = e;
   if (grid.shape.length === 3) {
     // The 3-D transform of ./fft3.ts, only where the leading nx × ny × nz block needs it.
-    return fftSampler(e, search, m0, s, nugget, [px, py, pz], () => (buf) => fft3Block(buf, px, py, pz, nx, ny, nz));
+    return fftSampler(e, search, m0, s, nugget, [px, py, pz], () => (fill) => fft3Block(fill, px, py, pz, nx, ny, nz));
   }
   return fftSampler(e, search, m0, s, nugget, gridDimension(grid) === 1 ? [px] : [px, py], () => {
     const fft = new Fft2(px, py);
-    return (buf) => {
+    const buf = new Float64Array(2 * px * py);
+    return (fill) => {
+      fill(buf);
       fft.transform(buf, { outputRows: ny });
       return buf;
     };
@@ -166,8 +168,9 @@ export function circulantSampler(grid: Grid, prior: PriorSpec, options: SamplerO
 /**
  * The FFT path (module comment) on the px × py × pz embedding (pz = 1 below 3-D): spectra of seeded normals, one
  * transform per two realisations (Re y and Im y of the leading nx × ny × nz block; the last of an odd count from a
- * Hermitian spectrum). `transformer()` gives, per draw call, the forward unnormalised transform of a spectrum: the
- * array holding the result in the spectrum's layout (the 2-D transform in place, or ./fft3.ts fft3Block's view).
+ * Hermitian spectrum). `transformer()` gives, per draw call, the forward unnormalised transform of a spectrum written
+ * by `fill` (into the 2-D transform's buffer, or straight into the engine's memory by ./fft3.ts fft3Block): the
+ * array holding the result in the spectrum's layout.
  */
 function fftSampler(
   e: CirculantEmbedding,
@@ -176,7 +179,7 @@ function fftSampler(
   s: readonly number[] | undefined,
   nugget: number,
   padding: readonly number[],
-  transformer: () => (buf: Float64Array) => Float64Array,
+  transformer: () => (fill: (spectrum: Float64Array) => void) => Float64Array,
 ): CirculantSampler {
   const { nx, ny, nz, px, py, pz } = e;
   const n = nx * ny * nz;
@@ -195,13 +198,11 @@ function fftSampler(
       checkCount(count);
       const rng = new Random(seed);
       const out = matrix(count, n);
-      const buf = new Float64Array(2 * cells);
       const transform = transformer();
       const eps = nugget > 0 ? new Float64Array(n) : null;
       for (let r = 0; r < count; r += 2) {
         const single = r + 1 === count;
-        spectrumOf(rng, root, single, px, py, pz, buf);
-        const y = transform(buf);
+        const y = transform((spectrum) => spectrumOf(rng, root, single, px, py, pz, spectrum));
         for (let part = 0; part < (single ? 1 : 2); part++) {
           const o = (r + part) * n;
           for (let iz = 0; iz < nz; iz++) {
@@ -219,6 +220,9 @@ function fftSampler(
   };
 }
 
+/** Normals drawn at a time for a Hermitian spectrum (1 Mi: 8 MB). */
+const NORMAL_CHUNK = 1 << 20;
+
 /**
  * One real field from P normals (used for the last realisation of an odd count): a spectrum
  * ẑ with ẑ(−k) = conj ẑ(k), E|ẑ(k)|² = λ_k / P and E[ẑ(k)²] = 0 for k ≠ −k (real, variance λ_k/P,
@@ -227,9 +231,22 @@ function fftSampler(
  */
 function hermitianSpectrum(rng: Random, root: Float64Array, px: number, py: number, pz: number, buf: Float64Array): void {
   const h = Math.SQRT1_2;
-  const cells = px * py * pz;
-  const z = rng.fillNormal(new Float64Array(cells));
-  let q = 0;
+  // The normals in chunks, in order (successive fillNormal calls give the same sequence as one call), instead of
+  // one array as large as the embedding. Exactly P normals are taken in all (the last chunk only what is left), so
+  // the generator is where one fillNormal of P would leave it.
+  let left = px * py * pz;
+  const chunk = new Float64Array(Math.min(left, NORMAL_CHUNK));
+  let z = chunk;
+  let q = chunk.length; // empty: the first call fills it
+  const next = (): number => {
+    if (q === z.length) {
+      z = left < chunk.length ? chunk.subarray(0, left) : chunk;
+      rng.fillNormal(z);
+      left -= z.length;
+      q = 0;
+    }
+    return z[q++];
+  };
   // Row by row (ky, kz): a row before its mirror row takes a pair per element; a row after it was written with its
   // mirror; a row that is its own mirror (ky, kz ∈ {0, p/2}) goes element by element. The normals are taken in the
   // same order as an element-by-element walk over k (pairs at the smaller flat index), so the draws are unchanged.
@@ -245,12 +262,12 @@ function hermitianSpectrum(rng: Random, root: Float64Array, px: number, py: numb
         const k = row + kx;
         const mk = mrow + mx;
         if (mk === k) {
-          buf[2 * k] = root[k] * z[q++];
+          buf[2 * k] = root[k] * next();
           buf[2 * k + 1] = 0;
         } else if (k < mk) {
           const r = root[k] * h;
-          const a = r * z[q++];
-          const b = r * z[q++];
+          const a = r * next();
+          const b = r * next();
           buf[2 * k] = a;
           buf[2 * k + 1] = b;
           buf[2 * mk] = a;
