@@ -7,7 +7,7 @@ import { START_PRIOR_RULE_TEXT, startPriorRule } from '../core/tuning/startPrior
 import { DEMOS } from '../core/problems/demos.ts';
 import { gridProblem, isGridProblem, type Problem } from '../core/problems/spec.ts';
 import type { PriorSpec } from '../core/prior/spec.ts';
-import { type CellList, cellCount, type Geometry, isCellList } from '../core/grid/grid.ts';
+import { cellCount, type Geometry } from '../core/grid/grid.ts';
 import { operatorColumnAbsSums, operatorEntries } from '../core/linalg/operator.ts';
 import { diagnosePriorAuto } from '../core/prior/structuredDiagnostics.ts';
 import { structuredPosteriorDraws, structuredResolutionRow } from '../core/inverse/structuredDraws.ts';
@@ -97,10 +97,6 @@ function sigmaOf(problem: Problem<Geometry>): Float64Array {
   throw new InputError('problem.data', 'sigma or covariance', undefined);
 }
 
-function copyCells(g: CellList): CellList {
-  return { ...g, x: g.x.slice(), y: g.y.slice(), z: g.z.slice(), ...(g.volumes ? { volumes: g.volumes.slice() } : {}) };
-}
-
 export function problemView(
   problem: Problem<Geometry>,
   version: number,
@@ -118,8 +114,9 @@ export function problemView(
     demoId: extra.demoId,
     title: problem.title ?? 'Untitled problem',
     description: extra.description,
-    // A cell list's centres are copied: the view's buffers are transferred to the page, the worker keeps its own.
-    grid: isCellList(problem.grid) ? copyCells(problem.grid) : problem.grid,
+    // Every array the view holds is its own copy: the reply's buffers are transferred to the page (protocol.ts
+    // transferables), and the worker keeps the problem's (a cell list's centres, the data geometry).
+    grid: structuredClone(problem.grid),
     dataCount: problem.data.values.length,
     values: problem.data.values.slice(),
     sigma: sigmaOf(problem),
@@ -129,7 +126,7 @@ export function problemView(
     operatorNonZeros: operatorEntries(g).length,
     quantity: { name: problem.quantity?.name ?? 'value', unit: problem.quantity?.unit ?? '' },
     dataUnit: problem.data.unit ?? '',
-    geometry: problem.data.geometry ?? null,
+    geometry: problem.data.geometry ? structuredClone(problem.data.geometry) : null,
     startPrior: extra.startPrior,
     startRule: extra.startRule ?? null,
     truthPrior: extra.truthPrior,

@@ -3,8 +3,10 @@
  * `partial`), then the full result, all under the request's id; the partial's numbers are the
  * final result's, bit for bit, and moving its buffers leaves the result intact.
  */
+import { parseProblemFile } from '../../src/core/io/problemFile.ts';
+import { transferables } from '../../src/worker/protocol.ts';
 import { describe, expect, it } from 'vitest';
-import { answerRequest, Engine, PARTIAL_MIN_FLOPS, type EngineOptions } from '../../src/worker/engine.ts';
+import { answerRequest, Engine, PARTIAL_MIN_FLOPS, problemView, type EngineOptions } from '../../src/worker/engine.ts';
 import type { PosteriorPartial, PosteriorResult, WorkerReply, WorkerRequest } from '../../src/worker/protocol.ts';
 import { varianceFlops } from '../../src/core/parallel/blocks.ts';
 import type { Problem } from '../../src/core/problems/spec.ts';
@@ -138,4 +140,30 @@ describe('Engine: FFT-path products over a thread pool', () => {
       await pool.close();
     }
   }, 60_000);
+});
+
+describe('problemView shares no buffer with the worker’s problem', () => {
+  it('its grid (a cell list’s centres) and data geometry are copies: transferring the view leaves the worker’s intact', () => {
+    const { problem } = parseProblemFile(
+      'p.json',
+      JSON.stringify({
+        kind: 'priorscope.problem',
+        version: 1,
+        cells: {
+          centres: [
+            [0, 0],
+            [1, 2],
+            [3, 1],
+          ],
+        },
+        operator: { dense: [[1, 1, 1]] },
+        data: { values: [1], sigma: [0.1], positions: [[1, 1]] },
+      }),
+    );
+    const view = problemView(problem, 1, { demoId: null, description: '', startPrior: null, truthPrior: null });
+    const mine = new Set(transferables(problem));
+    for (const b of transferables(view)) expect(mine.has(b)).toBe(false);
+    expect(view.grid).toEqual(problem.grid);
+    expect(view.geometry).toEqual(problem.data.geometry);
+  });
 });
