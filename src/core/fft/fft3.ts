@@ -14,6 +14,36 @@ import type { FftEngine } from './engine.ts';
 import { fftEngine, isPowerOfTwo } from './transform.ts';
 
 /**
+ * Checks the sizes, makes the twiddle tables, lays out the input, output and scratch regions (byte addresses a, b, t)
+ * and puts the input in region a: copied from a buffer, or written there by a filler (which must write every element:
+ * the region is not cleared).
+ */
+function loadInput(
+  engine: FftEngine,
+  input: Float64Array | ((region: Float64Array) => void),
+  px: number,
+  py: number,
+  pz: number,
+  inverse: boolean,
+): { a: number; b: number; t: number; count: number } {
+  if (!isPowerOfTwo(px) || !isPowerOfTwo(py) || !isPowerOfTwo(pz)) {
+    throw new RangeError(`fft3: sizes ${px} × ${py} × ${pz} must be powers of two`);
+  }
+  const count = px * py * pz;
+  if (typeof input !== 'function' && input.length !== 2 * count)
+    throw new RangeError(`fft3: buffer has length ${input.length}, expected ${2 * count}`);
+  for (const n of [px, py, pz]) if (n > 1) engine.twiddles(n, inverse);
+  const full = 16 * count;
+  const a = engine.workBase();
+  const b = a + full;
+  const t = b + full;
+  const v = engine.reserve(t + full);
+  if (typeof input === 'function') input(v.subarray(a / 8, a / 8 + 2 * count));
+  else v.set(input, a / 8);
+  return { a, b, t, count };
+}
+
+/**
  * The unnormalised 3-D transform of a px × py × pz complex buffer (length 2·px·py·pz), left in the engine's memory:
  * returns a view of the result in the buffer's layout, valid until the engine's next use; `buf` is not written.
  */
@@ -25,18 +55,7 @@ export function fft3View(
   inverse = false,
   engine: FftEngine = fftEngine(),
 ): Float64Array {
-  if (!isPowerOfTwo(px) || !isPowerOfTwo(py) || !isPowerOfTwo(pz)) {
-    throw new RangeError(`fft3: sizes ${px} × ${py} × ${pz} must be powers of two`);
-  }
-  const count = px * py * pz;
-  if (buf.length !== 2 * count) throw new RangeError(`fft3: buffer has length ${buf.length}, expected ${2 * count}`);
-  for (const n of [px, py, pz]) if (n > 1) engine.twiddles(n, inverse);
-  const full = 16 * count;
-  const a = engine.workBase();
-  const b = a + full;
-  const t = b + full;
-  const v = engine.reserve(t + full);
-  v.set(buf, a / 8);
+  const { a, b, t, count } = loadInput(engine, buf, px, py, pz, inverse);
   engine.run(a, b, t, px, 1, py * pz, 16 * px, inverse);
   engine.run(b, a, t, py, px, pz, 16 * px * py, inverse);
   engine.run(a, b, t, pz, px * py, 1, 0, inverse);
@@ -81,25 +100,11 @@ export function fft3Block(
   nz: number,
   engine: FftEngine = fftEngine(),
 ): Float64Array {
-  if (!isPowerOfTwo(px) || !isPowerOfTwo(py) || !isPowerOfTwo(pz)) {
-    throw new RangeError(`fft3: sizes ${px} × ${py} × ${pz} must be powers of two`);
-  }
   if (nx < 1 || ny < 1 || nz < 1 || nx > px || ny > py || nz > pz) {
     throw new RangeError(`fft3Block: block ${nx} × ${ny} × ${nz} must lie inside ${px} × ${py} × ${pz}`);
   }
-  const count = px * py * pz;
-  if (typeof input !== 'function' && input.length !== 2 * count)
-    throw new RangeError(`fft3: buffer has length ${input.length}, expected ${2 * count}`);
-  for (const n of [px, py, pz]) if (n > 1) engine.twiddles(n, false);
-  const full = 16 * count;
+  const { a, b, t, count } = loadInput(engine, input, px, py, pz, false);
   const slab = 16 * px * py;
-  const a = engine.workBase();
-  const b = a + full;
-  const t = b + full;
-  const v = engine.reserve(t + full);
-  // A filler writes the input straight into the engine's memory (every element: the region is not cleared).
-  if (typeof input === 'function') input(v.subarray(a / 8, a / 8 + 2 * count));
-  else v.set(input, a / 8);
   engine.run(a, b, t, pz, px * py, 1, 0, false, false, 2 * nz <= pz);
   engine.run(b, a, t, py, px, nz, slab, false, false, 2 * ny <= py);
   for (let z = 0; z < nz; z++) engine.run(a + slab * z, b + slab * z, t, px, 1, ny, 16 * px, false, false, 2 * nx <= px);
