@@ -7,17 +7,16 @@
  * the cells of an irregular mesh). No DOM, no store; tested in test/app/figures/cells.test.ts.
  */
 import type { CellList } from '../../core/grid/grid.ts';
-import { geometryScale } from '../../core/problems/geometry.ts';
-import { withUnit } from '../labels.ts';
+import { geometryScale, gridBounds } from '../../core/problems/geometry.ts';
+import { axisNames, withUnit } from '../labels.ts';
 import type { Trace } from '../traces.ts';
 import { hoverName, type Layout, title } from './common.ts';
 import { planeAxes, type SectionPlane } from './sections.ts';
 
-/** The axis names of a cell list: its `axes`, else x, y, z. */
+/** The axis names of a cell list: its `axes`, else x, y, z (../labels.ts axisNames), padded to three. */
 export function cloudAxisNames(cells: CellList): readonly [string, string, string] {
-  const a = cells.axes;
-  const names = ['x', 'y', 'z'].map((d, k) => (a && a.length === cells.dim ? (a[k] ?? d) : d));
-  return [names[0], names[1], names[2]];
+  const a = axisNames(cells);
+  return [a[0], a[1] ?? 'y', a[2] ?? 'z'];
 }
 
 /** The coordinate arrays by axis index (0 = x, 1 = y, 2 = z). */
@@ -163,17 +162,10 @@ export function cloudLayout(cells: CellList, plane: SectionPlane, heading: strin
 /** Physical extent (across, down) of the cloud on a plane, for the plot's height at true aspect. */
 export function cloudExtent(cells: CellList, plane: SectionPlane): [number, number] {
   const [a, b] = planeAxes(plane);
-  const span = (v: Float64Array) => {
-    let lo = Number.POSITIVE_INFINITY;
-    let hi = Number.NEGATIVE_INFINITY;
-    for (const x of v) {
-      lo = Math.min(lo, x);
-      hi = Math.max(hi, x);
-    }
-    return hi - lo;
-  };
+  const box = gridBounds(cells);
+  const spans = [box.x, box.y, box.z ?? ([0, 0] as const)].map(([lo, hi]) => hi - lo);
   const s = geometryScale(cells).spacing;
-  return [span(axisOf(cells, a)) + s, span(axisOf(cells, b)) + s];
+  return [spans[a] + s, spans[b] + s];
 }
 
 /** A 1-D list: the field against the coordinate, cells sorted along it. */
