@@ -151,8 +151,8 @@ export function createResultsSlice(set: StoreSet, get: StoreGet, client: ClientP
       );
       // A 3-D problem and a cell list have one screen each (every field there): their draws and the chosen cell's
       // resolution row on every tab.
-      const volume = isCellList(problem.grid) || gridDimension(problem.grid) === 3;
-      if ((s.tab === 'posterior' && s.selectedCell !== null) || volume) {
+      const oneScreen = isCellList(problem.grid) || gridDimension(problem.grid) === 3;
+      if ((s.tab === 'posterior' && s.selectedCell !== null) || oneScreen) {
         const cell = s.selectedCell ?? startCell(problem.grid);
         run(
           'resolution',
@@ -162,7 +162,7 @@ export function createResultsSlice(set: StoreSet, get: StoreGet, client: ClientP
         );
       }
       // Prior draws before the diagnostics: both go to the same worker, and the overview waits for the draws.
-      if (s.tab === 'realisations' || s.tab === 'overview' || volume) {
+      if (s.tab === 'realisations' || s.tab === 'overview' || oneScreen) {
         const key = `${rev}:${s.seed}`;
         const seed = s.seed;
         run(
@@ -183,7 +183,7 @@ export function createResultsSlice(set: StoreSet, get: StoreGet, client: ClientP
           heavy ? meanReady.then(() => (get().computedFor.diagnostics === rev ? verdict() : { superseded: true as const })) : verdict(),
         (diagnostics) => ({ diagnostics }),
       );
-      if (s.tab === 'realisations' || volume) {
+      if (s.tab === 'realisations' || oneScreen) {
         const key = `${rev}:${s.seed}`;
         const seed = s.seed;
         run(
