@@ -8,13 +8,16 @@
 import { InputError } from '../errors.ts';
 import { cellCount, type Geometry, isCellList } from '../grid/grid.ts';
 import { MIN_SPLIT_FLOPS, parallelPosteriorStd, varianceFlops, type BlockPool } from '../parallel/blocks.ts';
-import { prepareStructuredPosteriorParallel, productsWorthSplitting } from '../parallel/products.ts';
+import { productsWorthSplitting, structuredShapeProductsParallel } from '../parallel/products.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
 import { choosePosteriorPath, type PathDecision, type PathRequest } from './auto.ts';
 import { posteriorSummary, preparePosterior, type PosteriorState } from './posterior.ts';
 import {
+  completeStructuredPosterior,
   prepareStructuredPosterior,
+  type ShapeProducts,
+  structuredShapeProducts,
   structuredPosteriorStd,
   structuredPosteriorSummary,
   type StructuredPosteriorState,
@@ -73,12 +76,22 @@ export async function prepareStructured(
   prior: PriorSpec,
   pool?: PosteriorPool,
 ): Promise<StructuredPosteriorState> {
+  const p = await structuredProducts(sp, prior, pool);
+  return completeStructuredPosterior(p.setup, p.Bt, p.spectraCached, p.times);
+}
+
+/**
+ * The FFT route's Bᵀ for the prior's covariance shape (./structured.ts covarianceShape; not yet scaled), over
+ * `pool` on the same decision as {@link prepareStructured}; ./structured.ts completeWithShapeProducts turns it
+ * into the posterior of any prior of that shape.
+ */
+export async function structuredProducts(sp: StructuredProblem | Problem, prior: PriorSpec, pool?: PosteriorPool): Promise<ShapeProducts> {
   const problem = 'cacheBytes' in sp ? sp.problem : sp;
   const split =
     pool !== undefined &&
     pool.threads > 1 &&
     (pool.force === true || productsWorthSplitting(problem.data.values.length, problem.grid.shape, pool.threads));
-  return split ? prepareStructuredPosteriorParallel(sp, prior, pool.get()) : prepareStructuredPosterior(sp, prior);
+  return split ? structuredShapeProductsParallel(sp, prior, pool.get()) : structuredShapeProducts(sp, prior);
 }
 
 /**

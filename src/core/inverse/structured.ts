@@ -17,8 +17,8 @@
  * block by column block ({@link structuredVarianceBlock} is the unit a worker runs; each column's
  * arithmetic is the same whatever the blocks, so split runs are identical to one run).
  *
- * PUBLIC API: structuredProblem, prepareStructuredPosterior, structuredPosteriorStd,
- * structuredVarianceBlock, structuredPosteriorSummary.
+ * PUBLIC API: structuredProblem, prepareStructuredPosterior, structuredShapeProducts, completeStructuredPosterior,
+ * completeWithShapeProducts, covarianceShape, scaleProducts, structuredPosteriorStd, structuredVarianceBlock, structuredPosteriorSummary.
  */
 import { InputError, NotPositiveDefiniteError } from '../errors.ts';
 import { cellCount } from '../grid/grid.ts';
@@ -33,6 +33,7 @@ import {
   type Operator,
 } from '../linalg/operator.ts';
 import { CirculantProduct, nonStationaryReason } from '../fft/covariance.ts';
+import { stationaryCovariance } from '../fft/embedding.ts';
 import { meanVector, validatePrior } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
@@ -134,11 +135,42 @@ function scaledRow(g: Operator, k: number, s: readonly number[] | undefined, out
   return out;
 }
 
+/**
+ * The prior's covariance shape and scale: every term's variance and the nugget divided by the first
+ * term's variance v₁ (the mean dropped: products do not depend on it), and v₁. Cm = v₁ · Cm(shape),
+ * so Bᵀ = v₁ · Bᵀ(shape). Every FFT-path product is computed for the shape and then multiplied by
+ * the scale (the same multiplication on every route), so products computed once for a shape serve
+ * any variance (the worker reuses the starting rule's products for the first posterior) with the
+ * same bits as a fresh computation. Scale 1 (the prior itself) when v₁ is not a positive number.
+ */
+export function covarianceShape(prior: PriorSpec): { readonly shape: PriorSpec; readonly scale: number } {
+  const v1 = prior.terms[0]?.variance;
+  const scale = v1 !== undefined && v1 > 0 && Number.isFinite(v1) ? v1 : 1;
+  const shape: PriorSpec = {
+    mean: { constant: 0 },
+    terms: prior.terms.map((t) => ({ ...t, variance: t.variance / scale })),
+    nugget: (prior.nugget ?? 0) / scale,
+    ...(prior.stdProfile !== undefined ? { stdProfile: prior.stdProfile } : {}),
+  };
+  return { shape, scale };
+}
+
+/** Multiplies shape products by the prior's scale ({@link covarianceShape}) in place; returns `bt`. */
+export function scaleProducts(bt: Float64Array, scale: number): Float64Array {
+  if (scale !== 1) for (let i = 0; i < bt.length; i++) bt[i] *= scale;
+  return bt;
+}
+
 /** Validated inputs of the FFT path, shared by the single-thread and parallel variants. */
 export interface StructuredSetup {
   readonly holder: StructuredProblem;
   readonly problem: Problem;
   readonly prior: PriorSpec;
+  /** The prior's covariance shape and scale ({@link covarianceShape}); `cp` is the shape's product. */
+  readonly shape: PriorSpec;
+  readonly scale: number;
+  /** c(0) of the prior itself (Σ of its terms' variances), for diag(Cm). */
+  readonly variance: number;
   /** N cells and M data. */
   readonly n: number;
   readonly m: number;
@@ -149,7 +181,8 @@ export interface StructuredSetup {
 
 /**
  * Validates the prior and problem for the FFT path (InputError for a bad prior or problem, or a
- * prior that is not stationary on the grid) and builds the circulant product and pair order.
+ * prior that is not stationary on the grid) and builds the circulant product of the prior's shape
+ * and the pair order.
  */
 export function structuredSetup(sp: StructuredProblem | Problem, prior: PriorSpec): StructuredSetup {
   const holder = 'cacheBytes' in sp ? sp : structuredProblem(sp);
@@ -160,8 +193,39 @@ export function structuredSetup(sp: StructuredProblem | Problem, prior: PriorSpe
   if (why !== null) throw new InputError('prior', 'stationary on a regular grid for the FFT path', why);
   const n = cellCount(grid);
   const m = validateProblem(problem, n);
-  const cp = new CirculantProduct(grid, prior);
-  return { holder, problem, prior, n, m, cp, order: pairOrder(problem.operator, grid.shape[0], m) };
+  const { shape, scale } = covarianceShape(prior);
+  const cp = new CirculantProduct(grid, shape);
+  const variance = stationaryCovariance(prior.terms)(0, 0);
+  return { holder, problem, prior, shape, scale, variance, n, m, cp, order: pairOrder(problem.operator, grid.shape[0], m) };
+}
+
+/** Bᵀ of the prior's shape (profile and shape nugget included, not yet scaled), one thread, with the holder's spectra cache. */
+export interface ShapeProducts {
+  readonly setup: StructuredSetup;
+  readonly Bt: Matrix;
+  readonly spectraCached: boolean;
+  readonly times: { readonly spectra: number; readonly products: number };
+}
+
+/** {@link ShapeProducts} of (problem, prior) on one thread. Throws as {@link structuredSetup}. */
+export function structuredShapeProducts(sp: StructuredProblem | Problem, prior: PriorSpec): ShapeProducts {
+  const setup = structuredSetup(sp, prior);
+  const { holder, problem, n, m, cp, order } = setup;
+  const g = problem.operator;
+  const s = prior.stdProfile;
+  // Bᵀ rows by circulant products, two data rows per complex transform.
+  const pairs = Math.ceil(m / 2);
+  const specBytes = cp.columnSpectrumLength * 8;
+  const cachedSpectra = matchingSpectra(holder, cp, s);
+  const spectraCached = cachedSpectra !== null;
+  const fits = pairs * specBytes <= holder.cacheBytes;
+  const spectra: Float64Array[] = cachedSpectra ?? [];
+  const Bt = matrix(m, n);
+  const t = computeBtPairs(cp, g, s, order, order, Bt.data, cachedSpectra, !spectraCached && fits ? spectra : null);
+  if (!spectraCached && fits) keepSpectra(holder, cp, s, spectra);
+  const tFix = now();
+  finishBtRows(g, s, setup.shape.nugget ?? 0, order, order, Bt.data, n);
+  return { setup, Bt, spectraCached, times: { spectra: t.spectra, products: t.products + now() - tFix } };
 }
 
 /**
@@ -258,30 +322,30 @@ export function keepSpectra(
  * is not stationary on the grid (./compute.ts computePosterior falls back to the dense path).
  */
 export function prepareStructuredPosterior(sp: StructuredProblem | Problem, prior: PriorSpec): StructuredPosteriorState {
-  const setup = structuredSetup(sp, prior);
-  const { holder, problem, n, m, cp, order } = setup;
-  const g = problem.operator;
-  const s = prior.stdProfile;
-
-  // Bᵀ rows by circulant products, two data rows per complex transform.
-  const pairs = Math.ceil(m / 2);
-  const specBytes = cp.columnSpectrumLength * 8;
-  const cachedSpectra = matchingSpectra(holder, cp, s);
-  const spectraCached = cachedSpectra !== null;
-  const fits = pairs * specBytes <= holder.cacheBytes;
-  const spectra: Float64Array[] = cachedSpectra ?? [];
-  const Bt = matrix(m, n);
-  const t = computeBtPairs(cp, g, s, order, order, Bt.data, cachedSpectra, !spectraCached && fits ? spectra : null);
-  if (!spectraCached && fits) keepSpectra(holder, cp, s, spectra);
-  const tFix = now();
-  finishBtRows(g, s, prior.nugget ?? 0, order, order, Bt.data, n);
-  return completeStructuredPosterior(setup, Bt, spectraCached, { spectra: t.spectra, products: t.products + now() - tFix });
+  const p = structuredShapeProducts(sp, prior);
+  return completeStructuredPosterior(p.setup, p.Bt, p.spectraCached, p.times);
 }
 
 /**
- * The rest of the FFT path once Bᵀ (M × N, profile and nugget included) is known: K = G Bᵀᵀ + Cd,
- * its Cholesky factor, α = K⁻¹ r and the mean. Throws NotPositiveDefiniteError when K (or a full
- * Cd) does not factor.
+ * The posterior of `prior` from shape products computed for another prior of the same covariance shape
+ * ({@link covarianceShape}: the same terms up to one common variance factor, nugget and profile), e.g. the
+ * worker's products for the starting rule: the same bits as {@link prepareStructuredPosterior} of `prior`.
+ * Takes `p.Bt` over (it is scaled in place). Throws InputError for a bad prior and RangeError when the shapes differ.
+ */
+export function completeWithShapeProducts(p: ShapeProducts, prior: PriorSpec): StructuredPosteriorState {
+  validatePrior(prior, p.setup.problem.grid);
+  const { shape, scale } = covarianceShape(prior);
+  if (JSON.stringify(shape) !== JSON.stringify(p.setup.shape))
+    throw new RangeError('completeWithShapeProducts: the products were computed for another covariance shape');
+  const setup: StructuredSetup = { ...p.setup, prior, scale, variance: stationaryCovariance(prior.terms)(0, 0) };
+  return completeStructuredPosterior(setup, p.Bt, p.spectraCached, p.times);
+}
+
+/**
+ * The rest of the FFT path once the shape's Bᵀ (M × N, profile and shape nugget included; see
+ * {@link covarianceShape}) is known: Bᵀ is scaled in place (it becomes the state's Bᵀ), then
+ * K = G Bᵀᵀ + Cd, its Cholesky factor, α = K⁻¹ r and the mean. Throws NotPositiveDefiniteError
+ * when K (or a full Cd) does not factor.
  */
 export function completeStructuredPosterior(
   setup: StructuredSetup,
@@ -289,13 +353,13 @@ export function completeStructuredPosterior(
   spectraCached: boolean,
   times: { readonly spectra: number; readonly products: number },
 ): StructuredPosteriorState {
-  const { problem, prior, n, m, cp } = setup;
+  const { problem, prior, n, m, cp, variance } = setup;
   const grid = problem.grid;
   const g = problem.operator;
   const s = prior.stdProfile;
   const nugget = prior.nugget ?? 0;
-  const bt = Bt.data;
   const t0 = now();
+  const bt = scaleProducts(Bt.data, setup.scale);
 
   // K = G Bᵀᵀ + Cd (symmetrised), its factor, α.
   const K = operatorTimesTransposedSymmetric(g, Bt);
@@ -324,7 +388,7 @@ export function completeStructuredPosterior(
     for (let i = 0; i < n; i++) mean[i] += ak * bt[o + i];
   }
   const priorVariance = new Float64Array(n);
-  for (let i = 0; i < n; i++) priorVariance[i] = (s === undefined ? 1 : s[i] * s[i]) * cp.variance + nugget;
+  for (let i = 0; i < n; i++) priorVariance[i] = (s === undefined ? 1 : s[i] * s[i]) * variance + nugget;
   const factorTime = now() - t0;
   const base = {
     problem,

@@ -271,27 +271,40 @@ export function operatorTimesTransposed(g: Operator, b: Matrix): Matrix {
  * (K = G Cm Gᵀ): the lower triangle is computed and mirrored onto the upper one. Dense G: the
  * register-blocked NT kernel. Sparse G: four rows b … b+3 of B per sweep of G's row a, so each
  * stored index and value is loaded once for four sums (each sum keeps its own order, so the result
- * equals the one-row loop).
+ * equals the one-row loop). With `bRows`, row c of B is B's row bRows[c] (B may have more rows: the
+ * rule of src/core/tuning/startPrior.ts takes a subset of the rows of a whole problem's Bᵀ without a copy).
  */
-export function operatorTimesTransposedSymmetric(g: Operator, b: Matrix): Matrix {
+export function operatorTimesTransposedSymmetric(g: Operator, b: Matrix, bRows?: ArrayLike<number>): Matrix {
   const { rows: m, cols: n } = g.matrix;
-  if (b.rows !== m || b.cols !== n) {
+  if (bRows !== undefined) {
+    if (bRows.length !== m || b.cols !== n) {
+      throw new RangeError(`operatorTimesTransposedSymmetric: G is ${m}×${n}, B is ${b.rows}×${b.cols} with ${bRows.length} rows chosen`);
+    }
+    for (let c = 0; c < m; c++)
+      if (!(bRows[c] >= 0 && bRows[c] < b.rows && Number.isInteger(bRows[c])))
+        throw new RangeError(`operatorTimesTransposedSymmetric: row ${bRows[c]} of a B with ${b.rows} rows`);
+  } else if (b.rows !== m || b.cols !== n) {
     throw new RangeError(`operatorTimesTransposedSymmetric: G is ${m}×${n}, B is ${b.rows}×${b.cols} (expected equal shapes)`);
   }
   switch (g.kind) {
-    case 'dense':
-      return symmetricProductNT(g.matrix, b);
+    case 'dense': {
+      if (bRows === undefined) return symmetricProductNT(g.matrix, b);
+      const sub = matrix(m, n);
+      for (let c = 0; c < m; c++) sub.data.set(b.data.subarray(bRows[c] * n, (bRows[c] + 1) * n), c * n);
+      return symmetricProductNT(g.matrix, sub);
+    }
     case 'sparse': {
       const K = matrix(m, m);
       const kd = K.data;
       const bd = b.data;
       const { rowPtr, colIdx, values } = g.matrix;
       let c = 0;
+      const at = (c: number) => (bRows === undefined ? c : bRows[c]) * n;
       for (; c + 4 <= m; c += 4) {
-        const o0 = c * n;
-        const o1 = o0 + n;
-        const o2 = o1 + n;
-        const o3 = o2 + n;
+        const o0 = at(c);
+        const o1 = at(c + 1);
+        const o2 = at(c + 2);
+        const o3 = at(c + 3);
         for (let a = c; a < m; a++) {
           let s0 = 0,
             s1 = 0,
@@ -313,7 +326,7 @@ export function operatorTimesTransposedSymmetric(g: Operator, b: Matrix): Matrix
         }
       }
       for (; c < m; c++) {
-        const o = c * n;
+        const o = at(c);
         for (let a = c; a < m; a++) {
           let sum = 0;
           for (let p = rowPtr[a], p1 = rowPtr[a + 1]; p < p1; p++) sum += values[p] * bd[o + colIdx[p]];

@@ -47,6 +47,11 @@ export interface BlockPool {
   runProducts(task: ProductsTask, port: number): Promise<ProductsResult>;
   /** Ends the threads; pending tasks are rejected. */
   close(): Promise<void>;
+  /**
+   * Resolves once every thread has answered (at once after the first time). A caller inside a Web Worker awaits it
+   * before a long synchronous share of its own: until then the threads it started may not have loaded.
+   */
+  started?(): Promise<void>;
 }
 
 /**

@@ -5,15 +5,24 @@
  * (products tasks: the thread keeps that share's spectra). Messages: {id, task} in, {id, kind,
  * result} or {id, error} out; a variance task's Bᵀ slice and all returned arrays are transferred.
  *
- * PUBLIC API: PoolTask, TaskPort, TaskRequest, TaskReply, portPool, answerTask.
+ * PUBLIC API: PoolTask, PingTask, TaskPort, TaskRequest, TaskReply, portPool, answerTask.
  */
 import { assertNever } from '../errors.ts';
 import { runVarianceTask, type BlockPool, type VarianceTask } from './blocks.ts';
 import { ProductsThreadState, runProductsTask } from './products.ts';
 import type { ProductsResult, ProductsTask } from './tasks.ts';
 
+/**
+ * A task that does nothing: its reply says the thread is running. A Web Worker started from inside a worker
+ * loads its script only while the starting worker's event loop is free, so a caller that is about to compute
+ * for a while waits for this reply first (see {@link BlockPool.started}).
+ */
+export interface PingTask {
+  readonly kind: 'ping';
+}
+
 /** The task kinds a pool thread answers. */
-export type PoolTask = VarianceTask | ProductsTask;
+export type PoolTask = VarianceTask | ProductsTask | PingTask;
 
 export interface TaskRequest {
   readonly id: number;
@@ -23,6 +32,7 @@ export interface TaskRequest {
 export type TaskReply =
   | { readonly id: number; readonly kind: 'variance'; readonly result: Float64Array }
   | { readonly id: number; readonly kind: 'products'; readonly result: ProductsResult }
+  | { readonly id: number; readonly kind: 'ping'; readonly result: null }
   | { readonly id: number; readonly error: string };
 
 /** A reply that carries a result (not an error). */
@@ -52,6 +62,8 @@ export function answerTask(request: TaskRequest, state: ProductsThreadState = th
         const result = runProductsTask(task, state);
         return { reply: { id, kind: 'products', result }, transfer: result.rows === null ? [] : [result.rows.buffer as ArrayBuffer] };
       }
+      case 'ping':
+        return { reply: { id, kind: 'ping', result: null }, transfer: [] };
       default:
         return assertNever(task);
     }
@@ -74,6 +86,7 @@ function transferOf(task: PoolTask): ArrayBuffer[] {
     case 'variance':
       return [task.bt.buffer as ArrayBuffer];
     case 'products':
+    case 'ping':
       return [];
     default:
       return assertNever(task);
@@ -132,8 +145,13 @@ export function portPool(ports: readonly TaskPort[]): BlockPool {
       pump();
     });
   };
+  let started: Promise<void> | null = null;
   return {
     size: ports.length,
+    started: () =>
+      (started ??= Promise.all(ports.map((_, i) => submit({ kind: 'ping' }, i, (r) => (r.kind === 'ping' ? true : undefined)))).then(
+        () => undefined,
+      )),
     run: (task) => submit(task, undefined, (r) => (r.kind === 'variance' ? r.result : undefined)),
     runProducts(task, port) {
       if (!Number.isInteger(port) || port < 0 || port >= ports.length) {

@@ -2,7 +2,8 @@
  * Bᵀ = G Cm (M × N), the main cost of the FFT-path posterior mean, split across threads (pure: no
  * worker or Node imports; the pools live in ./node.ts and src/worker/pool.ts).
  *
- * Row k of Bᵀ is s ⊙ C(s ⊙ g_k) + nugget·g_k, computed two data rows per complex transform by
+ * Row k of Bᵀ is s ⊙ C(s ⊙ g_k) + nugget·g_k, computed for the prior's covariance shape (../inverse/structured.ts
+ * covarianceShape; the caller scales) two data rows per complex transform by
  * circulant embedding (../inverse/structured.ts computeBtPairs; Tarantola 2005, Inverse Problem
  * Theory, §3.2 for the posterior it feeds). The pairs (in pairOrder) split into contiguous ranges,
  * one per thread; each range's rows come from the same arithmetic as in the single-thread
@@ -25,7 +26,7 @@
  *
  * PUBLIC API: ProductsTask, ProductsResult, ProductsThreadState, ParallelProductsOptions, runProductsTask, pairRanges,
  * sharedMemoryAvailable, productWork, MIN_PRODUCT_SPLIT_WORK, productsWorthSplitting,
- * prepareStructuredPosteriorParallel.
+ * prepareStructuredPosteriorParallel, structuredShapeProductsParallel.
  */
 import type { Grid } from '../grid/grid.ts';
 import { CirculantProduct } from '../fft/covariance.ts';
@@ -38,6 +39,7 @@ import {
   finishBtRows,
   structuredProblem,
   structuredSetup,
+  type ShapeProducts,
   type StructuredPosteriorState,
   type StructuredProblem,
 } from '../inverse/structured.ts';
@@ -228,6 +230,20 @@ export async function prepareStructuredPosteriorParallel(
   pool: BlockPool,
   options: ParallelProductsOptions = {},
 ): Promise<StructuredPosteriorState> {
+  const p = await structuredShapeProductsParallel(sp, prior, pool, options);
+  return completeStructuredPosterior(p.setup, p.Bt, p.spectraCached, p.times);
+}
+
+/**
+ * As ../inverse/structured.ts structuredShapeProducts (the shape's Bᵀ, not yet scaled), with the
+ * products split over the pool (and the caller): the same bits as one thread.
+ */
+export async function structuredShapeProductsParallel(
+  sp: StructuredProblem | Problem,
+  prior: PriorSpec,
+  pool: BlockPool,
+  options: ParallelProductsOptions = {},
+): Promise<ShapeProducts> {
   const holder = 'cacheBytes' in sp ? sp : structuredProblem(sp);
   const setup = structuredSetup(holder, prior);
   // The threads keep this problem's spectra now; the single-thread cache would only hold memory.
@@ -243,6 +259,8 @@ export async function prepareStructuredPosteriorParallel(
   let sent = sentTokens.get(pool);
   if (sent === undefined) sentTokens.set(pool, (sent = []));
 
+  // The caller's share below runs without yielding: the threads must be running before it starts.
+  await pool.started?.();
   const t0 = now();
   const sab = shared ? new SharedArrayBuffer(m * n * 8) : null;
   const Bt: Matrix = sab !== null ? { rows: m, cols: n, data: new Float64Array(sab) } : matrix(m, n);
@@ -251,7 +269,7 @@ export async function prepareStructuredPosteriorParallel(
     kind: 'products',
     token: token!,
     grid: problem.grid,
-    prior,
+    prior: setup.shape,
     operator,
     rows,
     cacheBytes: Math.floor((holder.cacheBytes * rows.length) / m),
@@ -297,7 +315,7 @@ export async function prepareStructuredPosteriorParallel(
   }
   // Wall time of the split stage; `spectra` is the longest thread's spectra time.
   const wall = now() - t0;
-  return completeStructuredPosterior(setup, Bt, cached, { spectra, products: wall - spectra });
+  return { setup, Bt, spectraCached: cached, times: { spectra, products: wall - spectra } };
 }
 
 function now(): number {

@@ -13,6 +13,7 @@ export interface ProductsTask {
   /** Identifies the problem (G, grid) across calls, so a thread can keep its spectra and G. */
   readonly token: number;
   readonly grid: Grid;
+  /** The prior's covariance shape (../inverse/structured.ts covarianceShape): the rows come out unscaled. */
   readonly prior: PriorSpec;
   /** G; null when the receiving thread already holds it under `token`. */
   readonly operator: Operator | null;

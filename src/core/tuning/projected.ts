@@ -38,6 +38,7 @@ import {
   finishBtRows,
   keepSpectra,
   matchingSpectra,
+  scaleProducts,
   structuredSetup,
   type StructuredProblem,
 } from '../inverse/structured.ts';
@@ -75,7 +76,9 @@ export function structuredProjection(holder: StructuredProblem, prior: PriorSpec
     kernel === undefined ? setup.cp : new CirculantProduct(problem.grid, prior, [setup.cp.px, setup.cp.py, setup.cp.pz], undefined, kernel);
   const g = problem.operator;
   const s = prior.stdProfile;
-  const nugget = kernel === undefined ? (prior.nugget ?? 0) : 0;
+  // The shape's product and nugget, then the scale (../inverse/structured.ts covarianceShape); a term's derivative as given.
+  const nugget = kernel === undefined ? (setup.shape.nugget ?? 0) : 0;
+  const scale = kernel === undefined ? setup.scale : 1;
   const cached = matchingSpectra(holder, cp, s);
   const pairs = Math.ceil(m / 2);
   const fits = pairs * cp.columnSpectrumLength * 8 <= holder.cacheBytes;
@@ -93,8 +96,9 @@ export function structuredProjection(holder: StructuredProblem, prior: PriorSpec
     const spectra = cached === null ? null : cached.slice(j0 / 2, Math.ceil(j1 / 2));
     computeBtPairs(cp, g, s, rows, sl, bt, spectra, save);
     finishBtRows(g, s, nugget, rows, sl, bt, n);
-    // Columns rows[q] of P: P_a,rows[q] = g_a · (Bᵀ)_rows[q].
     const k = j1 - j0;
+    scaleProducts(bt.subarray(0, k * n), scale);
+    // Columns rows[q] of P: P_a,rows[q] = g_a · (Bᵀ)_rows[q].
     const part = operatorTimesTransposed(g, { rows: k, cols: n, data: bt.subarray(0, k * n) });
     for (let a = 0; a < m; a++) for (let q = 0; q < k; q++) pd[a * m + rows[q]] = part.data[a * k + q];
   }

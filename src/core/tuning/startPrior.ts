@@ -7,7 +7,8 @@
  * 1. Correlation: one exponential term, isotropic, length ℓ = a tenth of the largest grid extent
  *    (nₖ·Δₖ), but at least two cells of the largest spacing. Long enough to span several cells,
  *    short enough that about ten independent lengths fit in the domain, so the data can tell the
- *    structure apart (common practice, no source). R is its unit-variance correlation matrix.
+ *    structure apart (common practice, no source). R is its unit-variance correlation matrix, with ℓ rounded to
+ *    the 2 significant digits shown (step 5), so the variance is fitted for the length the user sees.
  * 2. Whitening: Cd = Ld Ldᵀ, d̃ = Ld⁻¹ d, g = G·1 (the data a constant model of 1 gives), g̃ = Ld⁻¹ g.
  * 3. Variance σ² and constant mean c together: with K(σ²) = σ² G R Gᵀ + Cd, the mean is the
  *    generalised least squares constant through G,  c(σ²) = gᵀK⁻¹d / gᵀK⁻¹g,  and σ² is the value at
@@ -34,16 +35,21 @@
  *    statistic of step 3 is then χ² on the subset's degrees of freedom, so the properties above hold for it.
  *
  * Cost: one projection G R Gᵀ (M × M) by ./dataSpace.ts projectedPriorCovariance (FFT route on
- * large grids) and, for a full Cd, two M × M triangular solves.
+ * large grids) and, for a full Cd, two M × M triangular solves. A caller that has Bᵀ = G R for every
+ * datum (the worker computes it on the FFT route, where the first posterior needs it anyway) passes it
+ * as `products`, and the projection is G times the rule's rows of it.
  *
- * PUBLIC API: startPriorRule, StartPriorRule, START_PRIOR_RULE_TEXT.
+ * Where to check: test/core/tuning/startPrior.test.ts (numpy/scipy references, seeded simulation; the
+ * `products` form against the default one).
+ *
+ * PUBLIC API: startPriorRule, startPriorShape, StartPriorRule, StartPriorOptions, START_PRIOR_RULE_TEXT.
  */
 import { InputError } from '../errors.ts';
 import { cellCount, type Geometry, gridDimension, isCellList } from '../grid/grid.ts';
 import { geometryScale } from '../problems/geometry.ts';
 import { cholesky, solveLower, solveLowerRows } from '../linalg/cholesky.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
-import { applyOperator, operatorRowSubset, operatorShape } from '../linalg/operator.ts';
+import { applyOperator, type Operator, operatorRowSubset, operatorShape, operatorTimesTransposedSymmetric } from '../linalg/operator.ts';
 import { transposeOf } from '../linalg/products.ts';
 import { symmetricEigenProjected } from '../linalg/eigen.ts';
 import type { PriorSpec } from '../prior/spec.ts';
@@ -61,11 +67,15 @@ export const START_PRIOR_RULE_TEXT =
 /** Most data the rule is fitted to (step 6 of the module comment; our choice). */
 export const START_RULE_MAX_DATA = 300;
 
-/** The problem restricted to START_RULE_MAX_DATA evenly spaced data (step 6), or itself when it has no more. */
+/** The data rows the rule is fitted to (step 6): ⌊k·M/START_RULE_MAX_DATA⌋, or null for all of them. */
+function ruleRows(m: number): number[] | null {
+  return m <= START_RULE_MAX_DATA ? null : Array.from({ length: START_RULE_MAX_DATA }, (_, k) => Math.floor((k * m) / START_RULE_MAX_DATA));
+}
+
+/** The problem restricted to the rows of {@link ruleRows} (step 6), or itself when it has no more data. */
 function ruleData(problem: Problem<Geometry>): Problem<Geometry> {
-  const m = problem.data.values.length;
-  if (m <= START_RULE_MAX_DATA) return problem;
-  const rows = Array.from({ length: START_RULE_MAX_DATA }, (_, k) => Math.floor((k * m) / START_RULE_MAX_DATA));
+  const rows = ruleRows(problem.data.values.length);
+  if (rows === null) return problem;
   const d = problem.data;
   const cd = d.covariance;
   return {
@@ -90,6 +100,15 @@ function ruleData(problem: Problem<Geometry>): Problem<Geometry> {
   };
 }
 
+/** G R Gᵀ for the rule's rows (./startPrior.ts ruleRows of `total` data) from the whole problem's Bᵀ = G R; `g` is the rule's operator. */
+function projectionFromProducts(g: Operator, bt: Matrix, total: number): Matrix {
+  const n = bt.cols;
+  if (bt.rows !== total || n !== g.matrix.cols)
+    throw new RangeError(`startPriorRule: products of ${bt.rows}×${n}, expected ${total}×${g.matrix.cols} (every datum, every cell)`);
+  const rows = ruleRows(total);
+  return rows === null ? operatorTimesTransposedSymmetric(g, bt) : operatorTimesTransposedSymmetric(g, bt, rows);
+}
+
 /** Fraction of the largest grid extent used as the correlation length. */
 export const START_LENGTH_FRACTION = 0.1;
 /** Signal-to-noise power ratio of the variance floor. */
@@ -98,7 +117,7 @@ export const START_VARIANCE_FLOOR_SNR = 0.1;
 export interface StartPriorRule {
   /** The prior to start from (values rounded to 2 significant digits). */
   readonly prior: PriorSpec;
-  /** Unrounded values of the rule. */
+  /** Unrounded values of the rule (the length is the one fitted with: {@link startPriorShape}'s, 2 significant digits). */
   readonly exact: { readonly mean: number; readonly variance: number; readonly length: number };
   /** Whether a constant mean was fitted (false when G maps constants to zero). */
   readonly meanFitted: boolean;
@@ -134,19 +153,42 @@ export function startLength(grid: Geometry): number {
 }
 
 /**
+ * The rule's correlation R as a prior (step 1): one exponential term of variance 1 with the length of
+ * {@link startLength} to the 2 significant digits shown, so the variance is fitted for the length the
+ * user sees. A caller that computes Bᵀ = R Gᵀ for this prior anyway (the worker, on the FFT route, for
+ * the first posterior) passes it to {@link startPriorRule}.
+ */
+export function startPriorShape(grid: Geometry): PriorSpec {
+  return { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length: round(startLength(grid)) }], nugget: 0 };
+}
+
+export interface StartPriorOptions {
+  /** The whole problem's spectrum cache for the FFT route (used when the rule fits all data). */
+  readonly structured?: StructuredProblem;
+  /**
+   * Bᵀ = G R (M × N, every datum, in file order) for R = {@link startPriorShape}: the projection G R Gᵀ of the
+   * rule's rows is then formed from it (G times the rows of Bᵀ) instead of fresh covariance products.
+   */
+  readonly products?: Matrix;
+}
+
+/**
  * The starting prior of the module comment for `problem`. Throws InputError when the data
  * covariance does not factor or the operator is zero (no variance can be inferred).
  */
-export function startPriorRule(whole: Problem<Geometry>, options: { structured?: StructuredProblem } = {}): StartPriorRule {
+export function startPriorRule(whole: Problem<Geometry>, options: StartPriorOptions = {}): StartPriorRule {
   const problem = ruleData(whole);
   const subset = problem !== whole;
   const { grid, operator, data } = problem;
   const { rows: m, cols: n } = operatorShape(operator);
   if (n !== cellCount(grid)) throw new InputError('problem.operator', `${cellCount(grid)} columns (one per grid cell)`, `${n} columns`);
-  const length = startLength(grid);
-  const unit: PriorSpec = { mean: { constant: 0 }, terms: [{ kernel: 'exponential', variance: 1, length }], nugget: 0 };
-  // A spectrum cache belongs to the whole problem: a subset builds its own.
-  const A = projectedPriorCovariance(problem, unit, options.structured && !subset ? { structured: options.structured } : {});
+  const unit = startPriorShape(grid);
+  const length = unit.terms[0].length!;
+  const A =
+    options.products !== undefined
+      ? projectionFromProducts(operator, options.products, whole.data.values.length)
+      : // A spectrum cache belongs to the whole problem: a subset builds its own.
+        projectedPriorCovariance(problem, unit, options.structured && !subset ? { structured: options.structured } : {});
 
   // Whitening: d̃, g̃ and Ã = Ld⁻¹ A Ld⁻ᵀ.
   const g = applyOperator(operator, new Float64Array(n).fill(1));

@@ -9,7 +9,10 @@ import { cellCount } from '../../../src/core/grid/grid.ts';
 import { describe, expect, it } from 'vitest';
 import { posteriorSummary, preparePosterior } from '../../../src/core/inverse/posterior.ts';
 import {
+  completeWithShapeProducts,
+  covarianceShape,
   prepareStructuredPosterior,
+  structuredShapeProducts,
   structuredPosteriorStd,
   structuredPosteriorSummary,
   structuredProblem,
@@ -21,6 +24,7 @@ import type { PriorSpec } from '../../../src/core/prior/spec.ts';
 import type { Problem } from '../../../src/core/problems/spec.ts';
 import { rayOperator } from '../../../src/core/problems/rays.ts';
 import { rayFan, relErr, seededVector } from '../fft/cases.ts';
+import { sameBits } from '../../worker/problems.ts';
 
 const grid: Grid = { shape: [12, 9], spacing: [1, 0.8] };
 const n = 108;
@@ -149,6 +153,39 @@ describe('row-spectrum cache', () => {
     expect(sp.cache).toBeNull();
     expect(b.spectraCached).toBe(false);
     expect(b.mean).toEqual(a.mean);
+  });
+});
+
+describe('products for the covariance shape, then scaled', () => {
+  it('a prior of the same shape from another prior’s products: the same bits as a fresh run, and the dense posterior', () => {
+    const problem = rayProblem(11, 5);
+    for (const { prior } of PRIORS) {
+      // Same shape: every variance and the nugget times 4 (so the ratios keep their bits), another mean.
+      const other: PriorSpec = {
+        ...prior,
+        mean: { constant: -1.5 },
+        terms: prior.terms.map((t) => ({ ...t, variance: 4 * t.variance })),
+        ...(prior.nugget !== undefined ? { nugget: 4 * prior.nugget } : {}),
+      };
+      const products = structuredShapeProducts(problem, other);
+      const reused = completeWithShapeProducts(products, prior);
+      const fresh = prepareStructuredPosterior(problem, prior);
+      expect(sameBits(reused.Bt.data, fresh.Bt.data)).toBe(true);
+      expect(sameBits(reused.mean, fresh.mean)).toBe(true);
+      expect(sameBits(reused.priorVariance, fresh.priorVariance)).toBe(true);
+      expectSameSummary(structuredPosteriorSummary(reused), posteriorSummary(preparePosterior(problem, prior)));
+    }
+  });
+
+  it('the shape divides by the first variance; another shape is refused', () => {
+    const prior = PRIORS[1].prior;
+    const { shape, scale } = covarianceShape({ ...prior, nugget: 0.2 });
+    expect(scale).toBe(0.4);
+    expect(shape.terms.map((t) => t.variance)).toEqual([1, 0.6 / 0.4]);
+    expect(shape.nugget).toBe(0.2 / 0.4);
+    const products = structuredShapeProducts(rayProblem(6, 2), prior);
+    const longer: PriorSpec = { ...prior, terms: [{ kernel: 'exponential', variance: 0.4, length: 3 }, prior.terms[1]] };
+    expect(() => completeWithShapeProducts(products, longer)).toThrow(/another covariance shape/);
   });
 });
 

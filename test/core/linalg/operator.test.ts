@@ -132,6 +132,13 @@ describe.each([
         const K = operatorTimesTransposedSymmetric(g, bt);
         expect(relError(K.data, ref.gcgt.data)).toBeLessThan(TOL);
         expect(isSymmetric(K)).toBe(true);
+        // The same rows of B chosen out of a larger B (shuffled among decoys): the same bits.
+        const big = matrix(2 * m + 1, n);
+        const pick = Array.from({ length: m }, (_, r) => 2 * (m - 1 - r) + 1);
+        pick.forEach((row, r) => big.data.set(bt.data.subarray(r * n, (r + 1) * n), row * n));
+        for (const row of [0, 2, 2 * m]) big.data.fill(1e6, row * n, (row + 1) * n);
+        expect(Array.from(operatorTimesTransposedSymmetric(g, big, pick).data)).toEqual(Array.from(K.data));
+        expect(() => operatorTimesTransposedSymmetric(g, big, [...pick.slice(1), 2 * m + 1])).toThrow(/row 9|row \d+ of a B/);
       });
       it('G C Gᵀ (projectCovariance) and G Gᵀ, exactly symmetric', () => {
         const p = projectCovariance(g, c);

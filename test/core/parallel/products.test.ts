@@ -315,4 +315,20 @@ describe('portPool with pinned tasks (in-thread ports)', () => {
     expect(results.map((r) => r.rows!.length)).toEqual([2 * 480, 2 * 480, 480]);
     await pool.close();
   });
+
+  it('started(): resolves once every port has answered a ping, and only pings once', async () => {
+    const log: [number, number][] = [];
+    const pool = portPool(fakePorts([25, 5], log));
+    let done = false;
+    const first = pool.started!().then(() => {
+      done = true;
+    });
+    await new Promise((r) => setTimeout(r, 12));
+    expect(done).toBe(false); // port 0 has not answered yet
+    await first;
+    expect(log.map(([port]) => port).sort()).toEqual([0, 1]);
+    await pool.started!();
+    expect(log.length).toBe(2);
+    await pool.close();
+  });
 });

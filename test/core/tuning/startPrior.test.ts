@@ -5,7 +5,8 @@
  */
 import { describe, expect, it } from 'vitest';
 import { runPython } from '../../reference/python.ts';
-import { START_RULE_MAX_DATA, startLength, startPriorRule } from '../../../src/core/tuning/startPrior.ts';
+import { START_RULE_MAX_DATA, startLength, startPriorRule, startPriorShape } from '../../../src/core/tuning/startPrior.ts';
+import { structuredShapeProducts } from '../../../src/core/inverse/structured.ts';
 import { fromRows, matrix, toRows } from '../../../src/core/linalg/matrix.ts';
 import { denseToSparse } from '../../../src/core/linalg/sparse.ts';
 import type { Problem } from '../../../src/core/problems/spec.ts';
@@ -233,5 +234,31 @@ describe('the rule on many data (fitted to START_RULE_MAX_DATA of them)', () => 
       data: { values: part.data.values, covariance: block },
     };
     expect(startPriorRule(dense).exact).toEqual(startPriorRule(denseSubset).exact);
+  });
+
+  it('with the products Bᵀ = G R passed in (the worker’s FFT route): the same rule to round-off', () => {
+    const grid: Grid = { shape: [40, 30], spacing: [1, 1] };
+    const rnd = new Random(17);
+    for (const m of [700, 120]) {
+      const rows: number[][] = Array.from({ length: m }, () =>
+        Array.from({ length: 1200 }, () => (rnd.nextDouble() < 0.02 ? rnd.nextDouble() : 0)),
+      );
+      const problem: Problem = {
+        grid,
+        operator: { kind: 'sparse', matrix: denseToSparse(fromRows(rows)) },
+        data: { values: Float64Array.from({ length: m }, () => 2 + rnd.nextNormal()), sigma: new Float64Array(m).fill(0.4) },
+      };
+      const own = startPriorRule(problem);
+      const products = structuredShapeProducts(problem, startPriorShape(grid)).Bt;
+      const given = startPriorRule(problem, { products });
+      expect(rel(given.exact.variance, own.exact.variance)).toBeLessThan(1e-10);
+      expect(rel(given.exact.mean, own.exact.mean)).toBeLessThan(1e-10);
+      expect(given.prior).toEqual(own.prior);
+      expect(given.exact.length).toBe(own.prior.terms[0].length);
+      // Products of another problem's size are refused.
+      expect(() => startPriorRule(problem, { products: { rows: m - 1, cols: 1200, data: new Float64Array((m - 1) * 1200) } })).toThrow(
+        /expected/,
+      );
+    }
   });
 });
