@@ -158,8 +158,9 @@ export class WorkerClient implements ClientPort {
   }
 
   /** The problem's buffers are copied before they are transferred, so the caller keeps its arrays. */
-  setProblem(problem: Problem<Geometry>): Promise<Outcome<ProblemView>> {
-    return this.sendProblem({ id: this.nextId++, kind: 'setProblem', version: ++this.version, problem });
+  setProblem(problem: Problem<Geometry>, options: { readonly startPrior?: boolean } = {}): Promise<Outcome<ProblemView>> {
+    const request: WorkerRequest = { id: this.nextId++, kind: 'setProblem', version: ++this.version, problem };
+    return this.sendProblem(options.startPrior === false ? { ...request, startPrior: false } : request);
   }
 
   /** `onPartial` receives the mean ahead of the bands (FFT path, large problems), at most once, before the promise settles. */

@@ -3,7 +3,7 @@
  * keeps the current problem and the factorised posterior of the latest prior, and answers one
  * request at a time by calling the numerical core.
  */
-import { START_PRIOR_RULE_TEXT, startPriorRule } from '../core/tuning/startPrior.ts';
+import { START_PRIOR_RULE_TEXT, startPriorRule, startPriorShape } from '../core/tuning/startPrior.ts';
 import { DEMOS } from '../core/problems/demos.ts';
 import { gridProblem, isGridProblem, type Problem } from '../core/problems/spec.ts';
 import type { PriorSpec } from '../core/prior/spec.ts';
@@ -19,9 +19,16 @@ import { posteriorRealisations, preparePosterior, resolutionRow, type PosteriorS
 import { assertNever, InputError, NotPositiveDefiniteError } from '../core/errors.ts';
 import { cholesky } from '../core/linalg/cholesky.ts';
 import { choosePosteriorPath } from '../core/inverse/auto.ts';
-import { structuredDataFit, structuredProblem, type StructuredProblem } from '../core/inverse/structured.ts';
+import {
+  completeWithShapeProducts,
+  covarianceShape,
+  type ShapeProducts,
+  structuredDataFit,
+  structuredProblem,
+  type StructuredProblem,
+} from '../core/inverse/structured.ts';
 import { varianceFlops, type BlockPool } from '../core/parallel/blocks.ts';
-import { computePosterior, prepareStructured } from '../core/inverse/compute.ts';
+import { computePosterior, prepareStructured, structuredProducts } from '../core/inverse/compute.ts';
 import type { StructuredPosteriorState } from '../core/inverse/structured.ts';
 import {
   serialiseError,
@@ -149,6 +156,17 @@ export class Engine {
   private structured: StructuredProblem | null = null;
   /** FFT path: the factored state of the latest prior asked for draws or resolution rows (no std). */
   private structuredCached: { key: string; state: StructuredPosteriorState } | null = null;
+  /**
+   * The FFT route's Bᵀ for the starting rule's correlation (src/core/inverse/structured.ts covarianceShape),
+   * computed when the problem arrives: the rule fits its variance from it, and the first posterior of a prior
+   * with that shape (the starting prior) takes it over instead of computing the products again.
+   */
+  private shapeProducts: ShapeProducts | null = null;
+
+  /** Whether products from the problem's arrival are waiting for their first posterior (for tests). */
+  get holdsStartProducts(): boolean {
+    return this.shapeProducts !== null;
+  }
 
   constructor(private readonly options: EngineOptions = {}) {}
 
@@ -187,7 +205,13 @@ export class Engine {
     progress('posterior mean (FFT path)', 0.1);
     const sp = this.structured ?? (this.structured = structuredProblem(gridProblem(problem, 'the FFT route')));
     const pool = this.options.pool;
-    const state = await prepareStructured(sp, prior, pool && { get: () => pool.get(), threads: pool.threads });
+    // The products kept from the problem's arrival serve one posterior of their shape, then go.
+    const kept = this.shapeProducts;
+    this.shapeProducts = null;
+    const state =
+      kept !== null && sameShape(kept, prior)
+        ? completeWithShapeProducts(kept, prior)
+        : await prepareStructured(sp, prior, pool && { get: () => pool.get(), threads: pool.threads });
     this.structuredCached = { key, state };
     return state;
   }
@@ -236,16 +260,23 @@ export class Engine {
         this.setProblemInternal(r.problem, r.version);
         // A starting prior on the problem's own scale (src/core/tuning/startPrior.ts); if the rule
         // cannot be applied the workbench falls back to its generic prior and says why.
-        progress('fitting a starting prior to the data', 0.5);
-        let start: { startPrior: PriorSpec | null; startRule: string | null };
-        try {
-          const rule = startPriorRule(r.problem, this.structured ? { structured: this.structured } : {});
-          start = { startPrior: rule.prior, startRule: `${START_PRIOR_RULE_TEXT} Here: ${rule.explanation}` };
-        } catch (e) {
-          start = {
-            startPrior: null,
-            startRule: `The starting-prior rule could not be applied (${e instanceof Error ? e.message : String(e)}); the generic prior (mean 0, variance 1) is used.`,
-          };
+        let start: { startPrior: PriorSpec | null; startRule: string | null } = { startPrior: null, startRule: null };
+        if (r.startPrior !== false) {
+          progress('fitting a starting prior to the data', 0.5);
+          try {
+            const products = await this.startProducts(r.problem);
+            const rule = startPriorRule(
+              r.problem,
+              products ? { products: products.Bt } : this.structured ? { structured: this.structured } : {},
+            );
+            start = { startPrior: rule.prior, startRule: `${START_PRIOR_RULE_TEXT} Here: ${rule.explanation}` };
+          } catch (e) {
+            this.shapeProducts = null;
+            start = {
+              startPrior: null,
+              startRule: `The starting-prior rule could not be applied (${e instanceof Error ? e.message : String(e)}); the generic prior (mean 0, variance 1) is used.`,
+            };
+          }
         }
         return problemView(r.problem, r.version, { demoId: null, description: '', truthPrior: null, ...start });
       }
@@ -322,13 +353,32 @@ export class Engine {
     }
   }
 
+  /**
+   * On the FFT route (the posterior of the starting rule's correlation would take it), Bᵀ for that correlation over
+   * the pool, kept for the first posterior; null on the dense route (the rule then forms its own projection).
+   */
+  private async startProducts(problem: Problem<Geometry>): Promise<ShapeProducts | null> {
+    if (!isGridProblem(problem) || this.structured === null) return null;
+    const shape = startPriorShape(problem.grid);
+    if (choosePosteriorPath(problem, shape).path !== 'fft') return null;
+    const pool = this.options.pool;
+    this.shapeProducts = await structuredProducts(this.structured, shape, pool && { get: () => pool.get(), threads: pool.threads });
+    return this.shapeProducts;
+  }
+
   private setProblemInternal(problem: Problem<Geometry>, version: number): void {
     this.problem = problem;
     this.version = version;
     this.cached = null;
     this.structuredCached = null;
+    this.shapeProducts = null;
     this.structured = isGridProblem(problem) ? structuredProblem(problem) : null;
   }
+}
+
+/** Whether `prior` has the covariance shape the products were computed for (src/core/inverse/structured.ts covarianceShape). */
+function sameShape(p: ShapeProducts, prior: PriorSpec): boolean {
+  return JSON.stringify(covarianceShape(prior).shape) === JSON.stringify(p.setup.shape);
 }
 
 /**

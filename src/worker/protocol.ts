@@ -101,7 +101,13 @@ export const CHANNEL_PRIORITY: readonly Channel[] = [
 
 export type WorkerRequest =
   | (RequestBase & { readonly kind: 'loadDemo'; readonly version: number; readonly demoId: string })
-  | (RequestBase & { readonly kind: 'setProblem'; readonly version: number; readonly problem: Problem<Geometry> })
+  | (RequestBase & {
+      readonly kind: 'setProblem';
+      readonly version: number;
+      readonly problem: Problem<Geometry>;
+      /** Fit the starting prior (src/core/tuning/startPrior.ts; default true). False: startPrior and startRule are null. */
+      readonly startPrior?: boolean;
+    })
   | (RequestBase & { readonly kind: 'posterior'; readonly problemVersion: number; readonly prior: PriorSpec })
   | (RequestBase & { readonly kind: 'diagnostics'; readonly problemVersion: number; readonly prior: PriorSpec })
   | (RequestBase & {

@@ -32,9 +32,12 @@ export class SplitClient implements ClientPort {
     const [a, b] = await Promise.all([this.primary.loadDemo(demoId), this.secondary.loadDemo(demoId)]);
     return b.superseded ? b : a;
   }
-  /** The user's own problem, to both workers (each copies its buffers). */
+  /**
+   * The user's own problem, to both workers (each copies its buffers). Only the primary fits the
+   * starting prior: the secondary's would be thrown away, and on 2 cores it would slow the primary's.
+   */
   async setProblem(problem: Problem): Promise<Outcome<ProblemView>> {
-    const [a, b] = await Promise.all([this.primary.setProblem(problem), this.secondary.setProblem(problem)]);
+    const [a, b] = await Promise.all([this.primary.setProblem(problem), this.secondary.setProblem(problem, { startPrior: false })]);
     return b.superseded ? b : a;
   }
   /** `onPartial` receives the mean-first reply of a large FFT-path posterior (./engine.ts). */

@@ -14,6 +14,9 @@ import type { Diagnostics } from '../../src/core/prior/diagnostics.ts';
 import type { Matrix } from '../../src/core/linalg/matrix.ts';
 import type { Problem } from '../../src/core/problems/spec.ts';
 import { relErr } from '../core/fft/cases.ts';
+import { computePosteriorSerial } from '../../src/core/inverse/compute.ts';
+import type { PosteriorSummary } from '../../src/core/inverse/types.ts';
+import type { ProblemView } from '../../src/worker/protocol.ts';
 import { PRIOR, profileProblem, sameBits } from './problems.ts';
 
 async function engineWith(problem: Problem): Promise<Engine> {
@@ -43,6 +46,31 @@ describe('Engine: FFT routes for draws, resolution and diagnostics', () => {
     await expect(engine.handle({ id: 4, kind: 'resolution', problemVersion: 1, prior: PRIOR, cell: 160 })).rejects.toThrow(
       'cell must be an integer cell index from 0 to 159, got 160',
     );
+  });
+
+  it('the starting rule’s products serve the first posterior of the starting prior: the same bits as the core', async () => {
+    const problem = profileProblem(160, 'diagonal');
+    const engine = new Engine();
+    const view = (await engine.handle({ id: 1, kind: 'setProblem', version: 1, problem })) as ProblemView;
+    expect(view.startPrior).not.toBeNull();
+    expect(engine.holdsStartProducts).toBe(true);
+    const start = view.startPrior!;
+    const got = (await engine.handle({ id: 2, kind: 'posterior', problemVersion: 1, prior: start })) as { summary: PosteriorSummary };
+    expect(engine.holdsStartProducts).toBe(false);
+    const want = computePosteriorSerial(problem, start).summary;
+    expect(got.summary.path).toBe('fft');
+    expect(sameBits(got.summary.mean, want.mean)).toBe(true);
+    expect(sameBits(got.summary.std, want.std)).toBe(true);
+    // Another shape first: the kept products are dropped, not used.
+    const other = new Engine();
+    await other.handle({ id: 1, kind: 'setProblem', version: 1, problem });
+    await other.handle({ id: 2, kind: 'posterior', problemVersion: 1, prior: PRIOR });
+    expect(other.holdsStartProducts).toBe(false);
+    // Without the starting rule nothing is computed ahead.
+    const secondary = new Engine();
+    const bare = (await secondary.handle({ id: 1, kind: 'setProblem', version: 1, problem, startPrior: false })) as ProblemView;
+    expect(bare.startPrior).toBeNull();
+    expect(secondary.holdsStartProducts).toBe(false);
   });
 
   it('100 cells (dense posterior path): draws are the dense ones', async () => {

@@ -65,3 +65,24 @@ describe('SplitClient.covariance', () => {
     ]);
   });
 });
+
+describe('SplitClient.setProblem', () => {
+  it('sends the problem to both workers; only the primary fits the starting prior, and its view is returned', async () => {
+    const calls: unknown[][] = [];
+    const client = (name: string) =>
+      ({
+        setProblem: (...args: unknown[]) => {
+          calls.push([name, ...args]);
+          return Promise.resolve({ superseded: false, value: { from: name } });
+        },
+      }) as unknown as WorkerClient;
+    const split = new SplitClient(client('primary'), client('secondary'));
+    const problem = { title: 'invented' } as unknown as Parameters<SplitClient['setProblem']>[0];
+    const o = await split.setProblem(problem);
+    expect(o).toEqual({ superseded: false, value: { from: 'primary' } });
+    expect(calls).toEqual([
+      ['primary', problem],
+      ['secondary', problem, { startPrior: false }],
+    ]);
+  });
+});
