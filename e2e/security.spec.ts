@@ -1,6 +1,6 @@
 /**
  * The security policy arrives as HTTP headers on every response of the served build (page and
- * numerics workers), with nosniff and frame protection, and holds inside the workers: a request to
+ * numerics workers), with nosniff, frame protection and cross-origin isolation, and holds inside the workers: a request to
  * another origin is refused by the policy (a securitypolicyviolation for connect-src; before the
  * headers, the workers ran with no policy and the request went out). String eval is forbidden by the
  * same script-src, but cannot be probed here: code evaluated through the DevTools protocol is exempt.
@@ -20,6 +20,10 @@ test('headers on the page and the worker scripts; the policy holds inside a work
   expect(doc.headers['content-security-policy']).not.toMatch(/sha256-/);
   expect(doc.headers['x-content-type-options']).toBe('nosniff');
   expect(doc.headers['x-frame-options']).toBe('DENY');
+  // Cross-origin isolated, so the numerics worker and its pool threads share one buffer of covariance products.
+  expect(doc.headers['cross-origin-opener-policy']).toBe('same-origin');
+  expect(doc.headers['cross-origin-embedder-policy']).toBe('require-corp');
+  expect(await page.evaluate(() => self.crossOriginIsolated)).toBe(true);
   const html = await page.content();
   expect(html).not.toMatch(/sha256-/);
 
