@@ -45,4 +45,35 @@ def op_mean_std(params):
     return lambda: _route(p, g)
 
 
-OPS = {"dense_route_3d_mean_std": op_mean_std}
+def op_std_step(params):
+    """The std step alone (what the exact standard deviations cost on any route that factors K): W = L^-1 B^T by
+    solve_triangular, var = diag(Cm) - column sums of W squared; L, B and Cm built untimed."""
+    path = _results / f"fft3-problem-{int(params['n'])}.json"
+    if not path.exists():
+        raise SystemExit(f"fft3.py: {path} is missing (the TypeScript case's setup writes it; run through test/bench/run.ts)")
+    p = json.loads(path.read_text())
+    g = scipy.sparse.csr_matrix(
+        (np.asarray(p["g"]["values"]), np.asarray(p["g"]["colIdx"]), np.asarray(p["g"]["rowPtr"])),
+        shape=(p["g"]["rows"], p["g"]["cols"]),
+    )
+    nx, ny, nz = p["grid"]["shape"]
+    dx, dy, dz = p["grid"]["spacing"]
+    iz, iy, ix = np.meshgrid(np.arange(nz), np.arange(ny), np.arange(nx), indexing="ij")
+    pts = np.column_stack([ix.ravel() * dx, iy.ravel() * dy, iz.ravel() * dz])
+    r = cdist(pts, pts)
+    r *= np.sqrt(3.0) / p["length"]
+    cm = (1.0 + r) * np.exp(-r)
+    b = (g @ cm).T
+    k = g @ b + np.diag(np.asarray(p["sigma"]) ** 2)
+    low = np.linalg.cholesky(k)
+    bt = np.ascontiguousarray(b.T)
+    diag = np.diag(cm).copy()
+
+    def run():
+        w = scipy.linalg.solve_triangular(low, bt, lower=True)
+        return np.sqrt(np.clip(diag - np.einsum("ij,ij->j", w, w), 0, None))
+
+    return run
+
+
+OPS = {"dense_route_3d_mean_std": op_mean_std, "dense_route_3d_std_step": op_std_step}

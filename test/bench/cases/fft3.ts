@@ -1,7 +1,8 @@
 /**
  * Benchmarks of the FFT route on 3-D grids (issue targets; not timed tests):
  *   - 20 × 20 × 20 (8,000 cells), M = 500 straight rays: posterior mean + std, against the dense scipy route on
- *     the same problem (test/bench/cases/fft3.py, Cm from scipy.spatial.distance.cdist); target ratio ≤ 0.1;
+ *     the same problem (test/bench/cases/fft3.py, Cm from scipy.spatial.distance.cdist); target ratio ≤ 0.1; and the
+ *     std step alone (W = L⁻¹Bᵀ) against scipy's solve_triangular on the same L and Bᵀ, the floor of that ratio;
  *   - 32 × 32 × 32 (32,768 cells; a dense Cm would need 8.6 GB), M = 1,000 rays: mean + std in a child process,
  *     targets ≤ 5 s and peak RSS ≤ 1 GB (the child's wall time and maxRSS, medians over the runs);
  *   - one realisation on 64³ (≤ 0.4 s) and 128³ (≤ 3 s), with the embedding's set-up and (64³) without;
@@ -92,6 +93,21 @@ export const cases: BenchCase[] = [
       const problem = benchProblem3(20, 500);
       writeProblemForScipy(20, problem, 'fft3-problem');
       return () => structuredPosteriorStd(prepareStructuredPosterior(structuredProblem(problem), benchPrior3(20)));
+    },
+  },
+  {
+    // The floor of the target above: the exact standard deviations need W = L⁻¹Bᵀ (M²N/2 multiply-adds) on any route
+    // that factors K, so the same step in scipy (LAPACK's triangular solve on the same L and Bᵀ) bounds what the whole
+    // posterior can reach against the dense route.
+    name: '3-D posterior 20x20x20 M=500: the std step alone (W = L⁻¹Bᵀ, column sums of W²), against scipy on the same L and Bᵀ',
+    params: { N: 8000, M: 500, n: 20 },
+    scipyOp: 'dense_route_3d_std_step',
+    flops: (500 * 500 * 8000) / 2,
+    setup: () => {
+      const problem = benchProblem3(20, 500);
+      writeProblemForScipy(20, problem, 'fft3-problem');
+      const state = prepareStructuredPosterior(structuredProblem(problem), benchPrior3(20));
+      return () => structuredPosteriorStd(state);
     },
   },
   {
