@@ -18,7 +18,10 @@
  *    of freedom; a restricted-likelihood identity, memory), so this is an unbiased estimating
  *    equation, and q is non-increasing in σ² (a minimum over c of sums with weights 1/(σ²λ + 1)),
  *    so the root is unique and P(σ̂² ≤ σ²_true) = P(χ²_{M−p} ≤ M − p) exactly (checked by simulation
- *    in test/core/tuning/startPrior.test.ts). The start therefore never trips the plausibility warning.
+ *    in test/core/tuning/startPrior.test.ts). The start therefore never trips the plausibility warning on the
+ *    data it was fitted to. Fitted to a subset (step 6), the check on all the data can still fire: seen on invented
+ *    white-noise data four times the stated error variance (32³, 1,000 rays: q/M = 1.46 on all of them), which no
+ *    smooth prior explains, so the warning is right there.
  *    Computed in whitened form: Ã = Ld⁻¹ G R Gᵀ Ld⁻ᵀ = V Λ Vᵀ, a = Vᵀd̃, b = Vᵀg̃, w = 1/(σ²λ + 1),
  *    c = Σ w a b / Σ w b², q = Σ w (a − c b)²; the root by bisection on log σ².
  *    When G maps constants to (numerically) zero (‖g̃‖² ≤ 1e-12 tr Ã) the data cannot see a constant:
