@@ -343,8 +343,8 @@ export function completeWithShapeProducts(p: ShapeProducts, prior: PriorSpec): S
 
 /**
  * The rest of the FFT path once the shape's Bᵀ (M × N, profile and shape nugget included; see
- * {@link covarianceShape}) is known: Bᵀ is scaled in place (it becomes the state's Bᵀ), then
- * K = G Bᵀᵀ + Cd, its Cholesky factor, α = K⁻¹ r and the mean. Throws NotPositiveDefiniteError
+ * {@link covarianceShape}) is known: K = scale · G Bᵀᵀ + Cd, its Cholesky factor, α = K⁻¹ r, and the
+ * mean in one pass with Bᵀ ← scale · Bᵀ in place (it becomes the state's Bᵀ). Throws NotPositiveDefiniteError
  * when K (or a full Cd) does not factor.
  */
 export function completeStructuredPosterior(
@@ -359,10 +359,12 @@ export function completeStructuredPosterior(
   const s = prior.stdProfile;
   const nugget = prior.nugget ?? 0;
   const t0 = now();
-  const bt = scaleProducts(Bt.data, setup.scale);
+  const scale = setup.scale;
+  const bt = Bt.data;
 
-  // K = G Bᵀᵀ + Cd (symmetrised), its factor, α.
+  // K = scale · G Bᵀᵀ (the shape's Bᵀ, symmetrised) + Cd, its factor, α. Bᵀ itself is scaled in the mean's pass below.
   const K = operatorTimesTransposedSymmetric(g, Bt);
+  if (scale !== 1) for (let i = 0; i < K.data.length; i++) K.data[i] *= scale;
   addDataCovariance(K, problem);
   const f = cholesky(K, { inPlace: true });
   if (!f.ok) {
@@ -381,11 +383,18 @@ export function completeStructuredPosterior(
   const r = new Float64Array(m);
   for (let k = 0; k < m; k++) r[k] = problem.data.values[k] - gm0[k];
   const alpha = choleskySolve(L, r);
+  // m̃ = m0 + Bᵀᵀ α, in the same pass as Bᵀ ← scale · Bᵀ (one pass over M × N instead of two).
   const mean = m0.slice();
   for (let k = 0; k < m; k++) {
     const ak = alpha[k];
     const o = k * n;
-    for (let i = 0; i < n; i++) mean[i] += ak * bt[o + i];
+    if (scale === 1) for (let i = 0; i < n; i++) mean[i] += ak * bt[o + i];
+    else
+      for (let i = 0; i < n; i++) {
+        const b = bt[o + i] * scale;
+        bt[o + i] = b;
+        mean[i] += ak * b;
+      }
   }
   const priorVariance = new Float64Array(n);
   for (let i = 0; i < n; i++) priorVariance[i] = (s === undefined ? 1 : s[i] * s[i]) * variance + nugget;
