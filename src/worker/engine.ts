@@ -362,7 +362,12 @@ export class Engine {
     const shape = startPriorShape(problem.grid);
     if (choosePosteriorPath(problem, shape).path !== 'fft') return null;
     const pool = this.options.pool;
-    this.shapeProducts = await structuredProducts(this.structured, shape, pool && { get: () => pool.get(), threads: pool.threads });
+    try {
+      this.shapeProducts = await structuredProducts(this.structured, shape, pool && { get: () => pool.get(), threads: pool.threads });
+    } catch {
+      // Out of memory or a failed thread: the rule forms its own (smaller) projection and reports its own errors.
+      this.shapeProducts = null;
+    }
     return this.shapeProducts;
   }
 

@@ -17,6 +17,9 @@ import { relErr } from '../core/fft/cases.ts';
 import { computePosteriorSerial } from '../../src/core/inverse/compute.ts';
 import type { PosteriorSummary } from '../../src/core/inverse/types.ts';
 import type { ProblemView } from '../../src/worker/protocol.ts';
+import type { BlockPool } from '../../src/core/parallel/blocks.ts';
+import { sparseFromCoordinates } from '../../src/core/linalg/sparse.ts';
+import { startPriorRule } from '../../src/core/tuning/startPrior.ts';
 import { PRIOR, profileProblem, sameBits } from './problems.ts';
 
 async function engineWith(problem: Problem): Promise<Engine> {
@@ -71,6 +74,43 @@ describe('Engine: FFT routes for draws, resolution and diagnostics', () => {
     const bare = (await secondary.handle({ id: 1, kind: 'setProblem', version: 1, problem, startPrior: false })) as ProblemView;
     expect(bare.startPrior).toBeNull();
     expect(secondary.holdsStartProducts).toBe(false);
+  });
+
+  it('when the products for the starting rule fail (a pool thread fails), the rule still runs on its own projection', async () => {
+    // 64 × 64 cells and 700 point data: enough work for the products to go to the pool (productsWorthSplitting).
+    const n = 64 * 64;
+    const m = 700;
+    const cols = Array.from({ length: m }, (_, k) => (k * 2654435761) % n);
+    const problem: Problem = {
+      grid: { shape: [64, 64], spacing: [1, 1] },
+      operator: {
+        kind: 'sparse',
+        matrix: sparseFromCoordinates(
+          m,
+          n,
+          Array.from(cols, (_, k) => k),
+          cols,
+          new Array(m).fill(1),
+        ),
+      },
+      data: { values: Float64Array.from(cols, (c) => 1 + Math.sin(c / 300)), sigma: new Float64Array(m).fill(0.1) },
+    };
+    let asked = 0;
+    const failing: BlockPool = {
+      size: 2,
+      run: () => Promise.reject(new Error('thread gone')),
+      runProducts: () => {
+        asked++;
+        return Promise.reject(new Error('thread gone'));
+      },
+      close: () => Promise.resolve(),
+      started: () => Promise.resolve(),
+    };
+    const engine = new Engine({ pool: { get: () => failing, threads: 2 } });
+    const view = (await engine.handle({ id: 1, kind: 'setProblem', version: 1, problem })) as ProblemView;
+    expect(asked).toBeGreaterThan(0);
+    expect(engine.holdsStartProducts).toBe(false);
+    expect(view.startPrior).toEqual(startPriorRule(problem).prior);
   });
 
   it('100 cells (dense posterior path): draws are the dense ones', async () => {
