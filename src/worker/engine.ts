@@ -21,7 +21,7 @@ import { cholesky } from '../core/linalg/cholesky.ts';
 import { choosePosteriorPath } from '../core/inverse/auto.ts';
 import {
   completeWithShapeProducts,
-  covarianceShape,
+  hasCovarianceShape,
   type ShapeProducts,
   structuredDataFit,
   structuredProblem,
@@ -209,7 +209,7 @@ export class Engine {
     const kept = this.shapeProducts;
     this.shapeProducts = null;
     const state =
-      kept !== null && sameShape(kept, prior)
+      kept !== null && hasCovarianceShape(kept, prior)
         ? completeWithShapeProducts(kept, prior)
         : await prepareStructured(sp, prior, pool && { get: () => pool.get(), threads: pool.threads });
     this.structuredCached = { key, state };
@@ -358,7 +358,8 @@ export class Engine {
    * the pool, kept for the first posterior; null on the dense route (the rule then forms its own projection).
    */
   private async startProducts(problem: Problem<Geometry>): Promise<ShapeProducts | null> {
-    if (!isGridProblem(problem) || this.structured === null) return null;
+    // this.structured is set for a problem on a grid (setProblemInternal), null for a cell list.
+    if (this.structured === null) return null;
     const shape = startPriorShape(problem.grid);
     if (choosePosteriorPath(problem, shape).path !== 'fft') return null;
     const pool = this.options.pool;
@@ -379,11 +380,6 @@ export class Engine {
     this.shapeProducts = null;
     this.structured = isGridProblem(problem) ? structuredProblem(problem) : null;
   }
-}
-
-/** Whether `prior` has the covariance shape the products were computed for (src/core/inverse/structured.ts covarianceShape). */
-function sameShape(p: ShapeProducts, prior: PriorSpec): boolean {
-  return JSON.stringify(covarianceShape(prior).shape) === JSON.stringify(p.setup.shape);
 }
 
 /**

@@ -18,7 +18,7 @@
  * arithmetic is the same whatever the blocks, so split runs are identical to one run).
  *
  * PUBLIC API: structuredProblem, prepareStructuredPosterior, structuredShapeProducts, completeStructuredPosterior,
- * completeWithShapeProducts, covarianceShape, scaleProducts, structuredPosteriorStd, structuredVarianceBlock, structuredPosteriorSummary.
+ * completeWithShapeProducts, covarianceShape, hasCovarianceShape, structuredPosteriorStd, structuredVarianceBlock, structuredPosteriorSummary.
  */
 import { InputError, NotPositiveDefiniteError } from '../errors.ts';
 import { cellCount } from '../grid/grid.ts';
@@ -155,10 +155,14 @@ export function covarianceShape(prior: PriorSpec): { readonly shape: PriorSpec; 
   return { shape, scale };
 }
 
-/** Multiplies shape products by the prior's scale ({@link covarianceShape}) in place; returns `bt`. */
-export function scaleProducts(bt: Float64Array, scale: number): Float64Array {
-  if (scale !== 1) for (let i = 0; i < bt.length; i++) bt[i] *= scale;
-  return bt;
+/** The prior's part of a {@link StructuredSetup}: the prior, its shape and scale, and c(0) for diag(Cm). */
+function priorParts(prior: PriorSpec): Pick<StructuredSetup, 'prior' | 'shape' | 'scale' | 'variance'> {
+  return { prior, ...covarianceShape(prior), variance: stationaryCovariance(prior.terms)(0, 0) };
+}
+
+/** Whether products computed for `p` serve `prior`: the same covariance shape, compared by value (its JSON). */
+export function hasCovarianceShape(p: ShapeProducts, prior: PriorSpec): boolean {
+  return JSON.stringify(covarianceShape(prior).shape) === JSON.stringify(p.setup.shape);
 }
 
 /** Validated inputs of the FFT path, shared by the single-thread and parallel variants. */
@@ -193,10 +197,9 @@ export function structuredSetup(sp: StructuredProblem | Problem, prior: PriorSpe
   if (why !== null) throw new InputError('prior', 'stationary on a regular grid for the FFT path', why);
   const n = cellCount(grid);
   const m = validateProblem(problem, n);
-  const { shape, scale } = covarianceShape(prior);
-  const cp = new CirculantProduct(grid, shape);
-  const variance = stationaryCovariance(prior.terms)(0, 0);
-  return { holder, problem, prior, shape, scale, variance, n, m, cp, order: pairOrder(problem.operator, grid.shape[0], m) };
+  const parts = priorParts(prior);
+  const cp = new CirculantProduct(grid, parts.shape);
+  return { holder, problem, ...parts, n, m, cp, order: pairOrder(problem.operator, grid.shape[0], m) };
 }
 
 /** Bᵀ of the prior's shape (profile and shape nugget included, not yet scaled), one thread, with the holder's spectra cache. */
@@ -334,11 +337,9 @@ export function prepareStructuredPosterior(sp: StructuredProblem | Problem, prio
  */
 export function completeWithShapeProducts(p: ShapeProducts, prior: PriorSpec): StructuredPosteriorState {
   validatePrior(prior, p.setup.problem.grid);
-  const { shape, scale } = covarianceShape(prior);
-  if (JSON.stringify(shape) !== JSON.stringify(p.setup.shape))
+  if (!hasCovarianceShape(p, prior))
     throw new RangeError('completeWithShapeProducts: the products were computed for another covariance shape');
-  const setup: StructuredSetup = { ...p.setup, prior, scale, variance: stationaryCovariance(prior.terms)(0, 0) };
-  return completeStructuredPosterior(setup, p.Bt, p.spectraCached, p.times);
+  return completeStructuredPosterior({ ...p.setup, ...priorParts(prior) }, p.Bt, p.spectraCached, p.times);
 }
 
 /**

@@ -38,7 +38,6 @@ import {
   finishBtRows,
   keepSpectra,
   matchingSpectra,
-  scaleProducts,
   structuredSetup,
   type StructuredProblem,
 } from '../inverse/structured.ts';
@@ -76,7 +75,8 @@ export function structuredProjection(holder: StructuredProblem, prior: PriorSpec
     kernel === undefined ? setup.cp : new CirculantProduct(problem.grid, prior, [setup.cp.px, setup.cp.py, setup.cp.pz], undefined, kernel);
   const g = problem.operator;
   const s = prior.stdProfile;
-  // The shape's product and nugget, then the scale (../inverse/structured.ts covarianceShape); a term's derivative as given.
+  // The shape's product and nugget, P times the scale at the end (../inverse/structured.ts covarianceShape; as K in
+  // completeStructuredPosterior); a term's derivative as given.
   const nugget = kernel === undefined ? (setup.shape.nugget ?? 0) : 0;
   const scale = kernel === undefined ? setup.scale : 1;
   const cached = matchingSpectra(holder, cp, s);
@@ -96,13 +96,13 @@ export function structuredProjection(holder: StructuredProblem, prior: PriorSpec
     const spectra = cached === null ? null : cached.slice(j0 / 2, Math.ceil(j1 / 2));
     computeBtPairs(cp, g, s, rows, sl, bt, spectra, save);
     finishBtRows(g, s, nugget, rows, sl, bt, n);
-    const k = j1 - j0;
-    scaleProducts(bt.subarray(0, k * n), scale);
     // Columns rows[q] of P: P_a,rows[q] = g_a · (Bᵀ)_rows[q].
+    const k = j1 - j0;
     const part = operatorTimesTransposed(g, { rows: k, cols: n, data: bt.subarray(0, k * n) });
     for (let a = 0; a < m; a++) for (let q = 0; q < k; q++) pd[a * m + rows[q]] = part.data[a * k + q];
   }
   if (save !== null) keepSpectra(holder, cp, s, save);
+  if (scale !== 1) for (let i = 0; i < pd.length; i++) pd[i] *= scale;
   symmetrise(p);
   return p;
 }

@@ -108,8 +108,7 @@ function projectionFromProducts(g: Operator, bt: Matrix, total: number): Matrix 
   const n = bt.cols;
   if (bt.rows !== total || n !== g.matrix.cols)
     throw new RangeError(`startPriorRule: products of ${bt.rows}×${n}, expected ${total}×${g.matrix.cols} (every datum, every cell)`);
-  const rows = ruleRows(total);
-  return rows === null ? operatorTimesTransposedSymmetric(g, bt) : operatorTimesTransposedSymmetric(g, bt, rows);
+  return operatorTimesTransposedSymmetric(g, bt, ruleRows(total) ?? undefined);
 }
 
 /** Fraction of the largest grid extent used as the correlation length. */
