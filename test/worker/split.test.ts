@@ -15,6 +15,18 @@ function recorder(name: string, log: string[]): WorkerClient {
   } as unknown as WorkerClient;
 }
 
+/** A primary and a secondary client whose `method` records [name, ...args] in `calls` and resolves with `value(name)`. */
+function recordingPair(method: string, calls: unknown[][], value: (name: string) => unknown): [WorkerClient, WorkerClient] {
+  const client = (name: string) =>
+    ({
+      [method]: (...args: unknown[]) => {
+        calls.push([name, ...args]);
+        return Promise.resolve({ superseded: false, value: value(name) });
+      },
+    }) as unknown as WorkerClient;
+  return [client('primary'), client('secondary')];
+}
+
 describe('SplitClient.tuning', () => {
   it('sends tuning requests and cancels to the secondary worker only', async () => {
     const log: string[] = [];
@@ -48,14 +60,7 @@ describe('SplitClient.posterior', () => {
 describe('SplitClient.covariance', () => {
   it('passes the export form (Cm or its Cholesky factor) to the secondary worker', async () => {
     const calls: unknown[][] = [];
-    const client = (name: string) =>
-      ({
-        covariance: (...args: unknown[]) => {
-          calls.push([name, ...args]);
-          return Promise.resolve({ superseded: false, value: null });
-        },
-      }) as unknown as WorkerClient;
-    const split = new SplitClient(client('primary'), client('secondary'));
+    const split = new SplitClient(...recordingPair('covariance', calls, () => null));
     const prior = { mean: { constant: 0 }, terms: [] };
     await split.covariance(prior, 'cholesky');
     await split.covariance(prior);
@@ -69,14 +74,7 @@ describe('SplitClient.covariance', () => {
 describe('SplitClient.setProblem', () => {
   it('sends the problem to both workers; only the primary fits the starting prior, and its view is returned', async () => {
     const calls: unknown[][] = [];
-    const client = (name: string) =>
-      ({
-        setProblem: (...args: unknown[]) => {
-          calls.push([name, ...args]);
-          return Promise.resolve({ superseded: false, value: { from: name } });
-        },
-      }) as unknown as WorkerClient;
-    const split = new SplitClient(client('primary'), client('secondary'));
+    const split = new SplitClient(...recordingPair('setProblem', calls, (name) => ({ from: name })));
     const problem = { title: 'invented' } as unknown as Parameters<SplitClient['setProblem']>[0];
     const o = await split.setProblem(problem);
     expect(o).toEqual({ superseded: false, value: { from: 'primary' } });

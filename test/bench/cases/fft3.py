@@ -14,14 +14,32 @@ from scipy.spatial.distance import cdist
 _results = Path(__file__).resolve().parent.parent.parent.parent / "bench-results"
 
 
-def _route(p, g):
+def _load(params):
+    """The problem the TypeScript case wrote, and its G as a scipy CSR matrix."""
+    path = _results / f"fft3-problem-{int(params['n'])}.json"
+    if not path.exists():
+        raise SystemExit(f"fft3.py: {path} is missing (the TypeScript case's setup writes it; run through test/bench/run.ts)")
+    p = json.loads(path.read_text())
+    g = scipy.sparse.csr_matrix(
+        (np.asarray(p["g"]["values"]), np.asarray(p["g"]["colIdx"]), np.asarray(p["g"]["rowPtr"])),
+        shape=(p["g"]["rows"], p["g"]["cols"]),
+    )
+    return p, g
+
+
+def _cm(p):
+    """Dense Cm over the cell centres (x fastest), Matérn 3/2 (R&W 2006 eq. 4.17)."""
     nx, ny, nz = p["grid"]["shape"]
     dx, dy, dz = p["grid"]["spacing"]
     iz, iy, ix = np.meshgrid(np.arange(nz), np.arange(ny), np.arange(nx), indexing="ij")
     pts = np.column_stack([ix.ravel() * dx, iy.ravel() * dy, iz.ravel() * dz])
     r = cdist(pts, pts)
     r *= np.sqrt(3.0) / p["length"]
-    cm = (1.0 + r) * np.exp(-r)
+    return (1.0 + r) * np.exp(-r)
+
+
+def _route(p, g):
+    cm = _cm(p)
     d = np.asarray(p["d"])
     sigma = np.asarray(p["sigma"])
     b = (g @ cm).T
@@ -34,35 +52,15 @@ def _route(p, g):
 
 
 def op_mean_std(params):
-    path = _results / f"fft3-problem-{int(params['n'])}.json"
-    if not path.exists():
-        raise SystemExit(f"fft3.py: {path} is missing (the TypeScript case's setup writes it; run through test/bench/run.ts)")
-    p = json.loads(path.read_text())
-    g = scipy.sparse.csr_matrix(
-        (np.asarray(p["g"]["values"]), np.asarray(p["g"]["colIdx"]), np.asarray(p["g"]["rowPtr"])),
-        shape=(p["g"]["rows"], p["g"]["cols"]),
-    )
+    p, g = _load(params)
     return lambda: _route(p, g)
 
 
 def op_std_step(params):
     """The std step alone (what the exact standard deviations cost on any route that factors K): W = L^-1 B^T by
     solve_triangular, var = diag(Cm) - column sums of W squared; L, B and Cm built untimed."""
-    path = _results / f"fft3-problem-{int(params['n'])}.json"
-    if not path.exists():
-        raise SystemExit(f"fft3.py: {path} is missing (the TypeScript case's setup writes it; run through test/bench/run.ts)")
-    p = json.loads(path.read_text())
-    g = scipy.sparse.csr_matrix(
-        (np.asarray(p["g"]["values"]), np.asarray(p["g"]["colIdx"]), np.asarray(p["g"]["rowPtr"])),
-        shape=(p["g"]["rows"], p["g"]["cols"]),
-    )
-    nx, ny, nz = p["grid"]["shape"]
-    dx, dy, dz = p["grid"]["spacing"]
-    iz, iy, ix = np.meshgrid(np.arange(nz), np.arange(ny), np.arange(nx), indexing="ij")
-    pts = np.column_stack([ix.ravel() * dx, iy.ravel() * dy, iz.ravel() * dz])
-    r = cdist(pts, pts)
-    r *= np.sqrt(3.0) / p["length"]
-    cm = (1.0 + r) * np.exp(-r)
+    p, g = _load(params)
+    cm = _cm(p)
     b = (g @ cm).T
     k = g @ b + np.diag(np.asarray(p["sigma"]) ** 2)
     low = np.linalg.cholesky(k)

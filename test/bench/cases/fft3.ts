@@ -91,24 +91,30 @@ const volumePrior = (n: number, nugget = 0): PriorSpec => ({
   terms: [{ kernel: 'matern', nu: 1.5, variance: 1, length: n / 8 }],
 });
 
+/** The 20³ problem with M = 500, also written for the scipy side (./fft3.py reads it). */
+function problem20(): Problem {
+  const problem = benchProblem3(20, 500);
+  writeProblemForScipy(20, problem, 'fft3-problem');
+  return problem;
+}
+const params20 = { N: 8000, M: 500, n: 20 };
+
 export const cases: BenchCase[] = [
   {
     name: '3-D fft posterior 20x20x20 M=500: mean + std (cold), against the dense scipy route (target ≤ 0.1)',
-    params: { N: 8000, M: 500, n: 20 },
+    params: params20,
     scipyOp: 'dense_route_3d_mean_std',
     setup: () => {
-      const problem = benchProblem3(20, 500);
-      writeProblemForScipy(20, problem, 'fft3-problem');
+      const problem = problem20();
       return () => structuredPosteriorStd(prepareStructuredPosterior(structuredProblem(problem), benchPrior3(20)));
     },
   },
   {
     name: '3-D fft posterior 20x20x20 M=500: mean + std (cold) on both cores (products and std split over a 2-thread pool), against the dense scipy route',
-    params: { N: 8000, M: 500, n: 20 },
+    params: params20,
     scipyOp: 'dense_route_3d_mean_std',
     setup: () => {
-      const problem = benchProblem3(20, 500);
-      writeProblemForScipy(20, problem, 'fft3-problem');
+      const problem = problem20();
       const pool = twoThreads();
       return async () =>
         parallelPosteriorStd(await prepareStructuredPosteriorParallel(structuredProblem(problem), benchPrior3(20), pool), pool);
@@ -119,13 +125,11 @@ export const cases: BenchCase[] = [
     // that factors K, so the same step in scipy (LAPACK's triangular solve on the same L and Bᵀ) bounds what the whole
     // posterior can reach against the dense route.
     name: '3-D posterior 20x20x20 M=500: the std step alone (W = L⁻¹Bᵀ, column sums of W²), against scipy on the same L and Bᵀ',
-    params: { N: 8000, M: 500, n: 20 },
+    params: params20,
     scipyOp: 'dense_route_3d_std_step',
     flops: (500 * 500 * 8000) / 2,
     setup: () => {
-      const problem = benchProblem3(20, 500);
-      writeProblemForScipy(20, problem, 'fft3-problem');
-      const state = prepareStructuredPosterior(structuredProblem(problem), benchPrior3(20));
+      const state = prepareStructuredPosterior(structuredProblem(problem20()), benchPrior3(20));
       return () => structuredPosteriorStd(state);
     },
   },
