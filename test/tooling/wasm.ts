@@ -20,6 +20,7 @@ export const WAT_SOURCES = [
   { file: 'variance.wat', constant: 'VARIANCE_WASM' },
   { file: 'gemm.wat', constant: 'GEMM_WASM' },
   { file: 'fft.wat', constant: 'FFT_WASM' },
+  { file: 'lagsum.wat', constant: 'LAGSUM_WASM' },
 ] as const;
 
 let wabtModule: ReturnType<typeof wabt> | undefined;

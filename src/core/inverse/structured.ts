@@ -40,6 +40,8 @@ import type { Problem } from '../problems/spec.ts';
 import { chiSquareInterval } from './chisquare.ts';
 import { dataFitReference, weightsFromWhitened } from './fitReference.ts';
 import { VARIANCE_BLOCK } from './varianceBlock.ts';
+import { lagProductsPreferred, lagRowsInto } from './lagProducts.ts';
+import { lagTable, type LagTable } from '../prior/lag.ts';
 import { wasmVarianceBlock } from '../wasm/varianceBlock.ts';
 
 export { structuredVarianceBlock, VARIANCE_BLOCK } from './varianceBlock.ts';
@@ -52,10 +54,19 @@ import type { PosteriorSummary } from './types.ts';
  */
 export const DEFAULT_SPECTRUM_CACHE_BYTES = 64 * 1024 * 1024;
 
+/**
+ * How the rows of Bᵀ are computed on the FFT path: by circulant embedding, by direct sums over the lag table
+ * (./lagProducts.ts, sparse operators only), or `auto`: the cheaper of the two by ./lagProducts.ts
+ * lagProductsPreferred. Both agree to round-off; each is bit for bit the same on every thread count.
+ */
+export type RowProducts = 'auto' | 'circulant' | 'lag';
+
 /** A problem with its cache of row spectra for the FFT path. */
 export interface StructuredProblem {
   readonly problem: Problem;
   readonly cacheBytes: number;
+  /** How the rows of Bᵀ are computed ({@link RowProducts}; default auto). */
+  readonly products: RowProducts;
   /** Filled on first use; replaced when the padding or the std profile changes. */
   cache: RowSpectra | null;
 }
@@ -70,8 +81,8 @@ interface RowSpectra {
   readonly spectra: Float64Array[];
 }
 
-export function structuredProblem(problem: Problem, options: { cacheBytes?: number } = {}): StructuredProblem {
-  return { problem, cacheBytes: options.cacheBytes ?? DEFAULT_SPECTRUM_CACHE_BYTES, cache: null };
+export function structuredProblem(problem: Problem, options: { cacheBytes?: number; products?: RowProducts } = {}): StructuredProblem {
+  return { problem, cacheBytes: options.cacheBytes ?? DEFAULT_SPECTRUM_CACHE_BYTES, products: options.products ?? 'auto', cache: null };
 }
 
 export interface StructuredPosteriorState {
@@ -90,7 +101,9 @@ export interface StructuredPosteriorState {
   readonly mean: Float64Array;
   /** diag(Cm). */
   readonly priorVariance: Float64Array;
-  /** Embedding sizes per grid axis used for the products ([px], [px, py] or [px, py, pz]). */
+  /** How the rows of Bᵀ were computed: by circulant embedding or by direct sums over the lag table. */
+  readonly products: 'circulant' | 'lag';
+  /** Embedding sizes per grid axis used for the circulant products ([px], [px, py] or [px, py, pz]); empty for lag sums. */
   readonly padding: readonly number[];
   /** Whether the row spectra came from the cache. */
   readonly spectraCached: boolean;
@@ -178,7 +191,10 @@ export interface StructuredSetup {
   /** N cells and M data. */
   readonly n: number;
   readonly m: number;
-  readonly cp: CirculantProduct;
+  /** The shape's circulant product, or null when the rows come from `table` (direct sums). */
+  readonly cp: CirculantProduct | null;
+  /** The shape's lag table when the rows are direct sums (./lagProducts.ts), else null. */
+  readonly table: LagTable | null;
   /** Pairing of the data rows into complex transforms ({@link pairOrder}). */
   readonly order: Int32Array;
 }
@@ -198,8 +214,12 @@ export function structuredSetup(sp: StructuredProblem | Problem, prior: PriorSpe
   const n = cellCount(grid);
   const m = validateProblem(problem, n);
   const parts = priorParts(prior);
-  const cp = new CirculantProduct(grid, parts.shape);
-  return { holder, problem, ...parts, n, m, cp, order: pairOrder(problem.operator, grid.shape[0], m) };
+  const g = problem.operator;
+  const lag = holder.products === 'auto' ? lagProductsPreferred(g, grid) : holder.products === 'lag';
+  if (lag && g.kind !== 'sparse') throw new InputError('products', 'a sparse operator for lag-table sums', `a ${g.kind} operator`);
+  const cp = lag ? null : new CirculantProduct(grid, parts.shape);
+  const table = lag ? lagTable(grid, parts.shape.terms) : null;
+  return { holder, problem, ...parts, n, m, cp, table, order: pairOrder(g, grid.shape[0], m) };
 }
 
 /** Bᵀ of the prior's shape (profile and shape nugget included, not yet scaled), one thread, with the holder's spectra cache. */
@@ -216,6 +236,7 @@ export function structuredShapeProducts(sp: StructuredProblem | Problem, prior: 
   const { holder, problem, n, m, cp, order } = setup;
   const g = problem.operator;
   const s = prior.stdProfile;
+  if (cp === null) return lagShapeProducts(setup);
   // Bᵀ rows by circulant products, two data rows per complex transform.
   const pairs = Math.ceil(m / 2);
   const specBytes = cp.columnSpectrumLength * 8;
@@ -229,6 +250,18 @@ export function structuredShapeProducts(sp: StructuredProblem | Problem, prior: 
   const tFix = now();
   finishBtRows(g, s, setup.shape.nugget ?? 0, order, order, Bt.data, n);
   return { setup, Bt, spectraCached, times: { spectra: t.spectra, products: t.products + now() - tFix } };
+}
+
+/** {@link structuredShapeProducts} by direct sums over the shape's lag table (the setup's `table`). */
+function lagShapeProducts(setup: StructuredSetup): ShapeProducts {
+  const { problem, n, m, order, table } = setup;
+  const g = problem.operator;
+  const t0 = now();
+  const Bt = matrix(m, n);
+  if (table === null || g.kind !== 'sparse') throw new RangeError('lagShapeProducts: the setup has no lag table');
+  lagRowsInto(table, g.matrix, setup.prior.stdProfile, order, order, Bt.data);
+  finishBtRows(g, setup.prior.stdProfile, setup.shape.nugget ?? 0, order, order, Bt.data, n);
+  return { setup, Bt, spectraCached: false, times: { spectra: 0, products: now() - t0 } };
 }
 
 /**
@@ -410,7 +443,8 @@ export function completeStructuredPosterior(
     alpha,
     mean,
     priorVariance,
-    padding: [cp.px, cp.py, cp.pz].slice(0, grid.shape.length),
+    products: cp === null ? ('lag' as const) : ('circulant' as const),
+    padding: cp === null ? [] : [cp.px, cp.py, cp.pz].slice(0, grid.shape.length),
     spectraCached,
   };
   const timings = { spectra: times.spectra, products: times.products, factor: factorTime };

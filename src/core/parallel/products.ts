@@ -41,10 +41,13 @@ import {
   structuredSetup,
   type ShapeProducts,
   type StructuredPosteriorState,
+  type StructuredSetup,
   type StructuredProblem,
 } from '../inverse/structured.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
+import { lagRowsInto } from '../inverse/lagProducts.ts';
+import { lagTable } from '../prior/lag.ts';
 import type { BlockPool } from './blocks.ts';
 import type { ProductsResult, ProductsTask } from './tasks.ts';
 
@@ -86,7 +89,7 @@ function productsInto(
   state: ProductsThreadState,
   bt: Float64Array,
   slots: Int32Array,
-  product?: CirculantProduct,
+  setup?: Pick<StructuredSetup, 'cp' | 'table'>,
 ): Omit<ProductsResult, 'rows'> {
   if (task.operator !== null) {
     if (state.problem?.token !== task.token) state.cache = null;
@@ -96,9 +99,17 @@ function productsInto(
     throw new Error(`products task: this thread holds no operator for problem token ${task.token} (send the operator with the task)`);
   }
   const g = state.problem.operator;
-  // The caller passes the product it already built for the same grid and prior.
-  const cp = product ?? new CirculantProduct(task.grid, task.prior);
   const s = task.prior.stdProfile;
+  if (task.lag) {
+    if (g.kind !== 'sparse') throw new Error('products task: lag-table sums need a sparse operator');
+    const t0 = now();
+    // The caller passes the table it already built for the same grid and prior.
+    lagRowsInto(setup?.table ?? lagTable(task.grid, task.prior.terms), g.matrix, s, task.rows, slots, bt);
+    finishBtRows(g, s, task.prior.nugget ?? 0, task.rows, slots, bt, cellsOf(task.grid));
+    return { spectraCached: false, spectra: 0, products: now() - t0 };
+  }
+  // The caller passes the product it already built for the same grid and prior.
+  const cp = setup?.cp ?? new CirculantProduct(task.grid, task.prior);
   const c = state.cache;
   const hit =
     c !== null &&
@@ -274,6 +285,7 @@ export async function structuredShapeProductsParallel(
     rows,
     cacheBytes: Math.floor((holder.cacheBytes * rows.length) / m),
     out,
+    lag: setup.cp === null,
   });
   // Worker shares are posted first (the caller's share then runs while they work).
   const own = callerShare ? ranges[0] : null;
@@ -297,7 +309,7 @@ export async function structuredShapeProductsParallel(
     if (state === undefined) callerStates.set(holder, (state = new ProductsThreadState()));
     const rows = rowsOf(own);
     try {
-      const r = productsInto(share(rows, null, problem.operator), state, Bt.data, rows, setup.cp);
+      const r = productsInto(share(rows, null, problem.operator), state, Bt.data, rows, setup);
       spectra = r.spectra;
       cached = r.spectraCached;
     } catch (e) {

@@ -23,6 +23,8 @@ export interface ProductsTask {
   readonly cacheBytes: number;
   /** M × N Bᵀ to write rows in place (row rows[i] at rows[i]·N); null: return the rows. */
   readonly out: SharedArrayBuffer | null;
+  /** Rows by direct sums over the shape's lag table (../inverse/lagProducts.ts) instead of circulant embedding. */
+  readonly lag: boolean;
 }
 
 export interface ProductsResult {

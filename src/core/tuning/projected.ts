@@ -41,7 +41,8 @@ import {
   structuredSetup,
   type StructuredProblem,
 } from '../inverse/structured.ts';
-import type { OffsetFunction } from '../prior/lag.ts';
+import { offsetTable, type OffsetFunction } from '../prior/lag.ts';
+import { lagRowsInto } from '../inverse/lagProducts.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
 
@@ -71,17 +72,22 @@ export function structuredProjection(holder: StructuredProblem, prior: PriorSpec
   const { n, m, order, problem } = setup;
   // With `kernel`: G S D S Gᵀ for that even function of the offset (a term's derivative), no nugget; the row
   // spectra depend on G and S only, so the cached ones serve (same padding).
+  // On the lag route (setup.table; ../inverse/lagProducts.ts) the table of that function replaces the prior's.
+  const base = setup.cp;
   const cp =
-    kernel === undefined ? setup.cp : new CirculantProduct(problem.grid, prior, [setup.cp.px, setup.cp.py, setup.cp.pz], undefined, kernel);
+    base === null || kernel === undefined
+      ? base
+      : new CirculantProduct(problem.grid, prior, [base.px, base.py, base.pz], undefined, kernel);
+  const table = setup.table === null ? null : kernel === undefined ? setup.table : offsetTable(problem.grid, kernel);
   const g = problem.operator;
   const s = prior.stdProfile;
   // The shape's product and nugget, P times the scale at the end (../inverse/structured.ts covarianceShape; as K in
   // completeStructuredPosterior); a term's derivative as given.
   const nugget = kernel === undefined ? (setup.shape.nugget ?? 0) : 0;
   const scale = kernel === undefined ? setup.scale : 1;
-  const cached = matchingSpectra(holder, cp, s);
+  const cached = cp === null ? null : matchingSpectra(holder, cp, s);
   const pairs = Math.ceil(m / 2);
-  const fits = pairs * cp.columnSpectrumLength * 8 <= holder.cacheBytes;
+  const fits = cp !== null && pairs * cp.columnSpectrumLength * 8 <= holder.cacheBytes;
   const save: Float64Array[] | null = cached === null && fits ? [] : null;
   const block = Math.min(BT_BLOCK_ROWS, m + (m % 2));
   const bt = new Float64Array(block * n);
@@ -94,14 +100,15 @@ export function structuredProjection(holder: StructuredProblem, prior: PriorSpec
     const rows = order.subarray(j0, j1);
     const sl = slots.subarray(0, j1 - j0);
     const spectra = cached === null ? null : cached.slice(j0 / 2, Math.ceil(j1 / 2));
-    computeBtPairs(cp, g, s, rows, sl, bt, spectra, save);
+    if (cp !== null) computeBtPairs(cp, g, s, rows, sl, bt, spectra, save);
+    else if (table !== null && g.kind === 'sparse') lagRowsInto(table, g.matrix, s, rows, sl, bt);
     finishBtRows(g, s, nugget, rows, sl, bt, n);
     // Columns rows[q] of P: P_a,rows[q] = g_a · (Bᵀ)_rows[q].
     const k = j1 - j0;
     const part = operatorTimesTransposed(g, { rows: k, cols: n, data: bt.subarray(0, k * n) });
     for (let a = 0; a < m; a++) for (let q = 0; q < k; q++) pd[a * m + rows[q]] = part.data[a * k + q];
   }
-  if (save !== null) keepSpectra(holder, cp, s, save);
+  if (save !== null && cp !== null) keepSpectra(holder, cp, s, save);
   if (scale !== 1) for (let i = 0; i < pd.length; i++) pd[i] *= scale;
   symmetrise(p);
   return p;

@@ -19,6 +19,9 @@ import type { Grid } from '../../../src/core/grid/grid.ts';
 import { diagnoseStructured } from '../../../src/core/prior/structuredDiagnostics.ts';
 import { prepareStructuredPosterior, structuredPosteriorStd, structuredProblem } from '../../../src/core/inverse/structured.ts';
 import { sparseFromCoordinates } from '../../../src/core/linalg/sparse.ts';
+import { lagRowsInto } from '../../../src/core/inverse/lagProducts.ts';
+import { lagTable } from '../../../src/core/prior/lag.ts';
+import { forceWasmOffForTesting } from '../../../src/core/wasm/runtime.ts';
 import { type BlockPool, parallelPosteriorStd } from '../../../src/core/parallel/blocks.ts';
 import { nodeBlockPool } from '../../../src/core/parallel/node.ts';
 import { prepareStructuredPosteriorParallel } from '../../../src/core/parallel/products.ts';
@@ -110,6 +113,16 @@ export const cases: BenchCase[] = [
     },
   },
   {
+    name: '3-D fft posterior 20x20x20 M=500: mean + std (cold), rows of Bᵀ by circulant embedding (forced; the route before lag sums)',
+    params: params20,
+    scipyOp: 'dense_route_3d_mean_std',
+    setup: () => {
+      const problem = problem20();
+      return () =>
+        structuredPosteriorStd(prepareStructuredPosterior(structuredProblem(problem, { products: 'circulant' }), benchPrior3(20)));
+    },
+  },
+  {
     name: '3-D fft posterior 20x20x20 M=500: mean + std (cold) on both cores (products and std split over a 2-thread pool), against the dense scipy route',
     params: params20,
     scipyOp: 'dense_route_3d_mean_std',
@@ -133,6 +146,31 @@ export const cases: BenchCase[] = [
       return () => structuredPosteriorStd(state);
     },
   },
+  // The rows of Bᵀ alone by lag sums (../../../src/core/inverse/lagProducts.ts): the WebAssembly kernel and its
+  // JavaScript twin (same bits), 2 flops per multiply-add of nnz(G)·N.
+  ...(['wasm', 'js'] as const).map(
+    (kind): BenchCase => ({
+      name: `3-D lag-sum rows of Bᵀ 20x20x20 M=500 (${kind === 'wasm' ? 'WebAssembly SIMD' : 'JavaScript twin'})`,
+      params: params20,
+      flops: 2 * 16034 * 8000,
+      setup: () => {
+        const problem = problem20();
+        const g = problem.operator;
+        if (g.kind !== 'sparse' || g.matrix.rowPtr[500] !== 16034) throw new Error('bench: the 20³ problem changed (nnz)');
+        const table = lagTable(problem.grid, benchPrior3(20).terms);
+        const rows = Int32Array.from({ length: 500 }, (_, k) => k);
+        const bt = new Float64Array(500 * 8000);
+        return () => {
+          forceWasmOffForTesting(kind === 'js');
+          try {
+            lagRowsInto(table, g.matrix, undefined, rows, rows, bt);
+          } finally {
+            forceWasmOffForTesting(false);
+          }
+        };
+      },
+    }),
+  ),
   {
     name: '3-D fft posterior 32x32x32 M=1000: mean + std in a child process (targets ≤ 5 s, peak RSS ≤ 1 GB)',
     params: { N: 32 ** 3, M: 1000 },

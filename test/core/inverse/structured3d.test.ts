@@ -52,28 +52,31 @@ function problemFor(grid: Grid, m: number, seed: number): Problem {
 }
 
 describe('structured posterior on 3-D grids equals the dense 3-D posterior', () => {
-  for (const c of COVARIANCE_CASES_3D) {
-    it(`${c.name} (${c.grid.shape.join(' × ')}): mean, std, predictions, evidence, tr R and a resolution row to 1e-10`, () => {
-      const problem = problemFor(c.grid, 19, 7);
-      const state = prepareStructuredPosterior(problem, c.prior);
-      const ours = structuredPosteriorSummary(state);
-      const dense = posteriorSummary(preparePosterior(problem, c.prior));
-      expect(ours.path).toBe('fft');
-      expect(relErr(ours.mean, dense.mean)).toBeLessThan(1e-10);
-      expect(relErr(ours.std, dense.std)).toBeLessThan(1e-10);
-      expect(relErr(ours.priorStd, dense.priorStd)).toBeLessThan(1e-10);
-      expect(relErr(ours.predicted, dense.predicted)).toBeLessThan(1e-10);
-      expect(Math.abs(ours.logEvidence - dense.logEvidence)).toBeLessThan(1e-10 * Math.abs(dense.logEvidence));
-      expect(Math.abs(ours.resolutionTrace - dense.resolutionTrace)).toBeLessThan(1e-10 * dense.resolutionTrace);
-      const cell = Math.floor(cellCount(c.grid) / 3);
-      expect(relErr(structuredResolutionRow(state, cell), resolutionRow(preparePosterior(problem, c.prior), cell))).toBeLessThan(1e-10);
-    });
-  }
+  // Both ways of computing the rows of Bᵀ: circulant embedding and direct sums over the lag table.
+  for (const c of COVARIANCE_CASES_3D)
+    for (const products of ['circulant', 'lag'] as const) {
+      it(`${c.name} (${c.grid.shape.join(' × ')}), rows by ${products}: mean, std, predictions, evidence, tr R and a resolution row to 1e-10`, () => {
+        const problem = problemFor(c.grid, 19, 7);
+        const state = prepareStructuredPosterior(structuredProblem(problem, { products }), c.prior);
+        const ours = structuredPosteriorSummary(state);
+        const dense = posteriorSummary(preparePosterior(problem, c.prior));
+        expect(ours.path).toBe('fft');
+        expect(state.products).toBe(products);
+        expect(relErr(ours.mean, dense.mean)).toBeLessThan(1e-10);
+        expect(relErr(ours.std, dense.std)).toBeLessThan(1e-10);
+        expect(relErr(ours.priorStd, dense.priorStd)).toBeLessThan(1e-10);
+        expect(relErr(ours.predicted, dense.predicted)).toBeLessThan(1e-10);
+        expect(Math.abs(ours.logEvidence - dense.logEvidence)).toBeLessThan(1e-10 * Math.abs(dense.logEvidence));
+        expect(Math.abs(ours.resolutionTrace - dense.resolutionTrace)).toBeLessThan(1e-10 * dense.resolutionTrace);
+        const cell = Math.floor(cellCount(c.grid) / 3);
+        expect(relErr(structuredResolutionRow(state, cell), resolutionRow(preparePosterior(problem, c.prior), cell))).toBeLessThan(1e-10);
+      });
+    }
 
   it('a cached spectrum (second prior on the same problem) gives the fresh result', () => {
     const c = COVARIANCE_CASES_3D[4]!;
     const problem = problemFor(c.grid, 13, 3);
-    const sp = structuredProblem(problem);
+    const sp = structuredProblem(problem, { products: 'circulant' });
     prepareStructuredPosterior(sp, COVARIANCE_CASES_3D[0]!.prior);
     const warm = prepareStructuredPosterior(sp, c.prior);
     expect(warm.spectraCached).toBe(true);
@@ -125,7 +128,8 @@ describe('the 3-D checks can fail: a wrong axis order is caught', () => {
 
   it('the state names one embedding size per axis (px, py, pz ≥ 2n − 1)', () => {
     const c = COVARIANCE_CASES_3D[6]!; // 5 × 1 × 7
-    const state = prepareStructuredPosterior(problemFor(c.grid, 9, 2), c.prior);
+    const state = prepareStructuredPosterior(structuredProblem(problemFor(c.grid, 9, 2), { products: 'circulant' }), c.prior);
+    expect(state.products).toBe('circulant');
     expect(state.padding).toHaveLength(3);
     state.padding.forEach((p, a) => expect(p).toBeGreaterThanOrEqual(2 * c.grid.shape[a]! - 1));
   });
@@ -170,12 +174,13 @@ describe('computePosterior on 3-D grids (the entry of the worker engine and the 
 });
 
 describe('prior selection on 3-D grids: the projection P = G Cm Gᵀ of the criteria (tuning/dataSpace.ts)', () => {
-  for (const c of COVARIANCE_CASES_3D) {
-    it(`${c.name}: the FFT route's P equals the dense route's to 1e-10`, () => {
-      const problem = problemFor(c.grid, 15, 9);
-      const fft = projectedPriorCovariance(problem, c.prior, { route: 'fft' });
-      const dense = projectedPriorCovariance(problem, c.prior, { route: 'dense' });
-      expect(relErr(fft.data, dense.data)).toBeLessThan(1e-10);
-    });
-  }
+  for (const c of COVARIANCE_CASES_3D)
+    for (const products of ['circulant', 'lag'] as const) {
+      it(`${c.name}, rows by ${products}: the FFT route's P equals the dense route's to 1e-10`, () => {
+        const problem = problemFor(c.grid, 15, 9);
+        const fft = projectedPriorCovariance(problem, c.prior, { route: 'fft', structured: structuredProblem(problem, { products }) });
+        const dense = projectedPriorCovariance(problem, c.prior, { route: 'dense' });
+        expect(relErr(fft.data, dense.data)).toBeLessThan(1e-10);
+      });
+    }
 });

@@ -12,6 +12,7 @@ import {
   pairOrder,
   prepareStructuredPosterior,
   structuredProblem,
+  type RowProducts,
   type StructuredPosteriorState,
 } from '../../../src/core/inverse/structured.ts';
 import { matrix } from '../../../src/core/linalg/matrix.ts';
@@ -92,14 +93,17 @@ function differences(a: StructuredPosteriorState, b: StructuredPosteriorState): 
 }
 const none = { Bt: 0, L: 0, alpha: 0, mean: 0, priorVariance: 0 };
 
-const problems: [string, () => Problem, (n: number) => PriorSpec][] = [
-  ['2-D sparse G, odd M', sparse2d, () => matern(3)],
-  ['2-D dense G, odd M', dense2d, () => matern(3)],
-  ['1-D dense G, odd M', dense1d, () => matern(4)],
-  ['2-D sparse G with profile + nugget', sparse2d, (n) => withProfile(matern(3), n)],
-  ['1-D dense G with profile + nugget', dense1d, (n) => withProfile(matern(4), n)],
-  ['3-D sparse G, odd M', sparse3d, () => matern(2)],
-  ['3-D sparse G with profile + nugget', sparse3d, (n) => withProfile(matern(2), n)],
+/** Label, problem, prior, and how the rows are computed (auto: circulant below 3-D, lag sums for these 3-D rays). */
+const problems: [string, () => Problem, (n: number) => PriorSpec, RowProducts][] = [
+  ['2-D sparse G, odd M', sparse2d, () => matern(3), 'auto'],
+  ['2-D dense G, odd M', dense2d, () => matern(3), 'auto'],
+  ['1-D dense G, odd M', dense1d, () => matern(4), 'auto'],
+  ['2-D sparse G with profile + nugget', sparse2d, (n) => withProfile(matern(3), n), 'auto'],
+  ['1-D dense G with profile + nugget', dense1d, (n) => withProfile(matern(4), n), 'auto'],
+  ['3-D sparse G, odd M, circulant', sparse3d, () => matern(2), 'circulant'],
+  ['3-D sparse G with profile + nugget, circulant', sparse3d, (n) => withProfile(matern(2), n), 'circulant'],
+  ['3-D sparse G, odd M, lag sums', sparse3d, () => matern(2), 'auto'],
+  ['3-D sparse G with profile + nugget, lag sums', sparse3d, (n) => withProfile(matern(2), n), 'lag'],
 ];
 const variants: [string, number, ParallelProductsOptions][] = [
   ['pool 2, caller share, shared Bᵀ', 0, {}],
@@ -109,19 +113,22 @@ const variants: [string, number, ParallelProductsOptions][] = [
 ];
 
 describe('prepareStructuredPosteriorParallel: bit-identical to one thread', () => {
-  for (const [label, make, priorOf] of problems) {
+  for (const [label, make, priorOf, products] of problems) {
     it.each(variants)(`${label}: %s, cold then cached`, async (_v, k, opts) => {
       const problem = make();
       const n = problem.grid.shape.reduce((a, b) => a * b, 1);
       const prior = priorOf(n);
       const changed: PriorSpec = { ...prior, terms: [{ kernel: 'matern', nu: 1.5, variance: 2, length: 5 }] };
-      const sp = structuredProblem(problem);
+      const sp = structuredProblem(problem, { products });
+      const oneThread = (p: PriorSpec) => prepareStructuredPosterior(structuredProblem(problem, { products }), p);
       const cold = await prepareStructuredPosteriorParallel(sp, prior, pools[k], opts);
       expect(cold.spectraCached).toBe(false);
-      expect(differences(cold, prepareStructuredPosterior(problem, prior))).toEqual(none);
+      expect(cold.products).toBe(label.endsWith('lag sums') ? 'lag' : 'circulant');
+      expect(differences(cold, oneThread(prior))).toEqual(none);
       const warm = await prepareStructuredPosteriorParallel(sp, changed, pools[k], opts);
-      expect(warm.spectraCached).toBe(true);
-      expect(differences(warm, prepareStructuredPosterior(problem, changed))).toEqual(none);
+      // Lag sums keep no spectra: every prior is computed afresh.
+      expect(warm.spectraCached).toBe(cold.products === 'circulant');
+      expect(differences(warm, oneThread(changed))).toEqual(none);
     });
   }
 
@@ -197,6 +204,7 @@ describe('errors', () => {
       rows: Int32Array.of(0, 1),
       cacheBytes: 0,
       out: null,
+      lag: false,
     };
     await expect(pools[0].runProducts(task, 1)).rejects.toThrow(
       'products worker: products task: this thread holds no operator for problem token 987654',
@@ -214,6 +222,7 @@ describe('errors', () => {
       rows: Int32Array.of(0),
       cacheBytes: 0,
       out: null,
+      lag: false,
     };
     await expect(pools[0].runProducts(task, 2)).rejects.toThrow('products task: port must be an integer in 0 … 1, got 2');
   });
@@ -254,7 +263,17 @@ describe('pieces', () => {
       for (let k = 0; k + 1 < cuts.length; k++) {
         const rows = order.slice(cuts[k], cuts[k + 1]);
         const r = runProductsTask(
-          { kind: 'products', token: 5, grid: problem.grid, prior, operator: problem.operator, rows, cacheBytes: 0, out: null },
+          {
+            kind: 'products',
+            token: 5,
+            grid: problem.grid,
+            prior,
+            operator: problem.operator,
+            rows,
+            cacheBytes: 0,
+            out: null,
+            lag: one.products === 'lag',
+          },
           state,
         );
         for (let i = 0; i < rows.length; i++) bt.set(r.rows!.subarray(i * 480, (i + 1) * 480), rows[i] * 480);
@@ -304,6 +323,7 @@ describe('portPool with pinned tasks (in-thread ports)', () => {
       rows: Int32Array.from(rows),
       cacheBytes: 0,
       out: null,
+      lag: false,
     });
     const results = await Promise.all([
       pool.runProducts(task([0, 1]), 0),
