@@ -50,6 +50,9 @@ test('loads the 1-D demo with posterior mean, bands and data fit; no console err
 
   await page.getByTestId('tab-fit').click();
   await expect(page.getByTestId('plot-fit')).toBeVisible();
+  // The plot's element is visible before Plotly has drawn into it: wait for both traces.
+  await expect.poll(async () => (await traceValues(page, 'plot-fit', 'predicted G m̃')).length).toBe(expected.predicted.length);
+  await expect.poll(async () => (await traceValues(page, 'plot-residuals', 'normalised residual')).length).toBe(expected.residuals.length);
   const predicted = (await traceValues(page, 'plot-fit', 'predicted G m̃')) as number[];
   expect(maxRelDiff(predicted, expected.predicted)).toBeLessThan(TOL);
   const residuals = (await traceValues(page, 'plot-residuals', 'normalised residual')) as number[];
