@@ -21,6 +21,7 @@ export const WAT_SOURCES = [
   { file: 'gemm.wat', constant: 'GEMM_WASM' },
   { file: 'fft.wat', constant: 'FFT_WASM' },
   { file: 'lagsum.wat', constant: 'LAGSUM_WASM' },
+  { file: 'reorth.wat', constant: 'REORTH_WASM' },
 ] as const;
 
 let wabtModule: ReturnType<typeof wabt> | undefined;

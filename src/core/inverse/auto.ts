@@ -22,6 +22,7 @@
  * PUBLIC API: PathRequest, PATH_REQUESTS, FFT_MIN_CELLS, PathDecision, choosePosteriorPath. The
  * posterior itself, on the chosen route, comes from ./compute.ts computePosterior.
  */
+import { lagProductsPreferred } from './lagProducts.ts';
 import { assertNever, InputError } from '../errors.ts';
 import { cellCount, type Geometry, isCellList } from '../grid/grid.ts';
 import { nonStationaryReason } from '../fft/covariance.ts';
@@ -60,6 +61,12 @@ export interface PathDecision {
   readonly path: 'dense' | 'fft';
   /** One sentence on why (for logs, the CLI's stderr and the UI). */
   readonly reason: string;
+}
+
+/** How the FFT route will form the rows of Bᵀ when they are not transforms (./lagProducts.ts), for the reason. */
+function rowsNote(problem: Problem<Geometry>): string {
+  if (isCellList(problem.grid) || !lagProductsPreferred(problem.operator, problem.grid)) return '';
+  return '; rows of G Cm summed from the lag table (few non-zeros per row of G on a 3-D grid)';
 }
 
 /**
@@ -106,7 +113,7 @@ export function choosePosteriorPath(
           `"dense" or "auto" for this problem (the FFT path needs a stationary prior on a regular 1-D, 2-D or 3-D grid: ${why})`,
           'fft',
         );
-      return { path: 'fft', reason: 'FFT path requested' };
+      return { path: 'fft', reason: `FFT path requested${rowsNote(problem)}` };
     case 'auto':
       if (why !== null) {
         if (n > DENSE_MAX_CELLS)
@@ -114,7 +121,7 @@ export function choosePosteriorPath(
         return { path: 'dense', reason: `dense: ${why}` };
       }
       if (n < FFT_MIN_CELLS) return { path: 'dense', reason: `dense: ${n} cells, below ${FFT_MIN_CELLS} the dense path is as fast` };
-      return { path: 'fft', reason: `FFT: stationary prior on a regular grid of ${n} cells (≥ ${FFT_MIN_CELLS})` };
+      return { path: 'fft', reason: `FFT: stationary prior on a regular grid of ${n} cells (≥ ${FFT_MIN_CELLS})${rowsNote(problem)}` };
     default:
       return assertNever(requested);
   }

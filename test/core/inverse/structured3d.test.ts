@@ -151,6 +151,7 @@ describe('computePosterior on 3-D grids (the entry of the worker engine and the 
     const dense = await computePosterior(problem, prior, { path: 'dense' });
     expect([fft.decision.path, fft.summary.path]).toEqual(['fft', 'fft']);
     expect(fft.decision.reason).toMatch(/FFT: stationary prior on a regular grid of 420 cells/);
+    expect(fft.decision.reason).toMatch(/rows of G Cm summed from the lag table/);
     expect([dense.decision.path, dense.summary.path]).toEqual(['dense', 'dense']);
     expect(relErr(fft.summary.mean, dense.summary.mean)).toBeLessThan(1e-10);
     expect(relErr(fft.summary.std, dense.summary.std)).toBeLessThan(1e-10);

@@ -9,7 +9,7 @@ import { existsSync, mkdtempSync, readFileSync } from 'node:fs';
 import { tmpdir } from 'node:os';
 import { join } from 'node:path';
 import { describe, expect, it } from 'vitest';
-import { FFT_WASM, GEMM_WASM, LAGSUM_WASM, SIMD_PROBE_WASM, VARIANCE_WASM } from '../../../src/core/wasm/modules.ts';
+import { FFT_WASM, GEMM_WASM, LAGSUM_WASM, REORTH_WASM, SIMD_PROBE_WASM, VARIANCE_WASM } from '../../../src/core/wasm/modules.ts';
 import { assemble, buildModules, MODULES_FILE, WAT_DIR, WAT_SOURCES } from '../../tooling/wasm.ts';
 
 const DEBIAN_WAT2WASM = '/usr/bin/wat2wasm';
@@ -20,6 +20,7 @@ const COMMITTED: Record<(typeof WAT_SOURCES)[number]['constant'], Uint8Array<Arr
   GEMM_WASM,
   FFT_WASM,
   LAGSUM_WASM,
+  REORTH_WASM,
 };
 
 describe('WebAssembly text → committed bytes', () => {
