@@ -6,13 +6,14 @@
  * var_j = Cm_jj − Σ_k W_kj², W = L⁻¹ Bᵀ (Tarantola 2005, Inverse Problem Theory, §3.2; see
  * ../inverse/structured.ts): each column j of W depends on column j of Bᵀ and on L only, so the
  * columns split into independent tasks. A task carries L, its columns of Bᵀ (copied contiguous,
- * M × w) and of diag(Cm), and runs ../wasm/varianceBlock.ts wasmVarianceBlock (the bits of
+ * M × w; or, when Bᵀ is in a SharedArrayBuffer as the split products leave it, Bᵀ itself and L once in shared
+ * memory, so nothing of size M × N is copied or sent) and of diag(Cm), and runs ../wasm/varianceBlock.ts wasmVarianceBlock (the bits of
  * ../inverse/varianceBlock.ts structuredVarianceBlock) over blocks of
  * VARIANCE_BLOCK columns, the same blocks the single-thread structuredPosteriorStd uses when the
  * ranges start at multiples of VARIANCE_BLOCK (and each column's arithmetic does not depend on the
  * blocks anyway), so the split result equals the single-thread one bit for bit.
  *
- * PUBLIC API: VarianceTask, BlockPool, columnRanges, varianceTask, runVarianceTask,
+ * PUBLIC API: VarianceTask, BlockPool, columnRanges, isShared, varianceTask, runVarianceTask,
  * parallelPosteriorVariance, parallelPosteriorStd, MIN_SPLIT_FLOPS (used by ../inverse/compute.ts stdSplits).
  */
 import { InputError } from '../errors.ts';
@@ -29,11 +30,17 @@ export interface VarianceTask {
   /** First and one-past-last global column. */
   readonly c0: number;
   readonly c1: number;
-  /** L (M × M, row-major). */
+  /** L (M × M, row-major; in shared memory when Bᵀ is). */
   readonly L: Float64Array;
-  /** Columns c0 … c1 − 1 of Bᵀ, row-major M × (c1 − c0). */
+  /**
+   * Bᵀ's columns: the task's own copy of columns c0 … c1 − 1 (M × (c1 − c0), `cols` = c1 − c0, `first` = 0), or, when
+   * Bᵀ lives in a SharedArrayBuffer, the whole M × N Bᵀ itself (`cols` = N, `first` = c0): no copy is made or sent.
+   */
   readonly bt: Float64Array;
-  /** diag(Cm)[c0 … c1 − 1]. */
+  readonly cols: number;
+  /** The column of `bt` that is global column c0. */
+  readonly first: number;
+  /** diag(Cm), indexed like the columns of `bt` (the slice c0 … c1 − 1, or all N in shared memory). */
   readonly priorVariance: Float64Array;
 }
 
@@ -72,25 +79,43 @@ export function columnRanges(n: number, parts: number, align = VARIANCE_BLOCK): 
   return out;
 }
 
-/** The task for columns [c0, c1) (copies its slices of Bᵀ and diag Cm, and L). */
-export function varianceTask(L: Matrix, Bt: Matrix, priorVariance: Float64Array, c0: number, c1: number): VarianceTask {
+/** True when `a` is a view of a SharedArrayBuffer (threads read it in place). */
+export function isShared(a: Float64Array): boolean {
+  return typeof SharedArrayBuffer === 'function' && a.buffer instanceof SharedArrayBuffer;
+}
+
+/**
+ * The task for columns [c0, c1). When Bᵀ is in shared memory the task refers to it (and to `sharedL`, L's copy in
+ * shared memory, when given); otherwise it copies its slices of Bᵀ and diag Cm, and L.
+ */
+export function varianceTask(
+  L: Matrix,
+  Bt: Matrix,
+  priorVariance: Float64Array,
+  c0: number,
+  c1: number,
+  sharedL?: Float64Array,
+): VarianceTask {
   const m = Bt.rows;
   const n = Bt.cols;
+  const l = sharedL ?? L.data.slice();
+  if (isShared(Bt.data)) return { kind: 'variance', m, c0, c1, L: l, bt: Bt.data, cols: n, first: c0, priorVariance };
   const w = c1 - c0;
   const bt = new Float64Array(m * w);
   for (let k = 0; k < m; k++) bt.set(Bt.data.subarray(k * n + c0, k * n + c1), k * w);
-  return { kind: 'variance', m, c0, c1, L: L.data.slice(), bt, priorVariance: priorVariance.slice(c0, c1) };
+  return { kind: 'variance', m, c0, c1, L: l, bt, cols: w, first: 0, priorVariance: priorVariance.slice(c0, c1) };
 }
 
 /** Runs one task on this thread: the function a worker calls. */
 export function runVarianceTask(task: VarianceTask, block = VARIANCE_BLOCK): Float64Array {
   const w = task.c1 - task.c0;
   const L: Matrix = { rows: task.m, cols: task.m, data: task.L };
-  const Bt: Matrix = { rows: task.m, cols: w, data: task.bt };
+  const Bt: Matrix = { rows: task.m, cols: task.cols, data: task.bt };
   const out = new Float64Array(w);
+  const f = task.first;
   for (let j0 = 0; j0 < w; j0 += block) {
     const j1 = Math.min(w, j0 + block);
-    wasmVarianceBlock(L, Bt, task.priorVariance, j0, j1, out.subarray(j0, j1)); // = structuredVarianceBlock's bits
+    wasmVarianceBlock(L, Bt, task.priorVariance, f + j0, f + j1, out.subarray(j0, j1)); // = structuredVarianceBlock's bits
   }
   return out;
 }
@@ -121,9 +146,15 @@ export async function parallelPosteriorVariance(
   const n = state.Bt.cols;
   const out = new Float64Array(n);
   const ranges = columnRanges(n, pool.size * tasksPerThread);
+  // With Bᵀ in shared memory, L goes there too: one copy for all tasks instead of one per task.
+  let sharedL: Float64Array | undefined;
+  if (isShared(state.Bt.data)) {
+    sharedL = new Float64Array(new SharedArrayBuffer(state.L.data.length * 8));
+    sharedL.set(state.L.data);
+  }
   await Promise.all(
     ranges.map(async ([c0, c1]) => {
-      const v = await pool.run(varianceTask(state.L, state.Bt, state.priorVariance, c0, c1));
+      const v = await pool.run(varianceTask(state.L, state.Bt, state.priorVariance, c0, c1, sharedL));
       if (v.length !== c1 - c0) throw new Error(`parallel variance: task [${c0}, ${c1}) returned ${v.length} values`);
       out.set(v, c0);
     }),

@@ -3,12 +3,13 @@
  * in the browser), pure: the caller adapts its workers to {@link TaskPort}. Each port runs one
  * task at a time; tasks queue and go to the next free port, or to their own port when pinned
  * (products tasks: the thread keeps that share's spectra). Messages: {id, task} in, {id, kind,
- * result} or {id, error} out; a variance task's Bᵀ slice and all returned arrays are transferred.
+ * result} or {id, error} out; a copying variance task's Bᵀ slice and all returned arrays are transferred (a task
+ * over shared memory sends views of the caller's SharedArrayBuffers).
  *
  * PUBLIC API: PoolTask, PingTask, TaskPort, TaskRequest, TaskReply, portPool, answerTask.
  */
 import { assertNever } from '../errors.ts';
-import { runVarianceTask, type BlockPool, type VarianceTask } from './blocks.ts';
+import { isShared, runVarianceTask, type BlockPool, type VarianceTask } from './blocks.ts';
 import { ProductsThreadState, runProductsTask } from './products.ts';
 import type { ProductsResult, ProductsTask } from './tasks.ts';
 
@@ -84,7 +85,9 @@ interface Job {
 function transferOf(task: PoolTask): ArrayBuffer[] {
   switch (task.kind) {
     case 'variance':
-      return [task.bt.buffer as ArrayBuffer];
+      // A task over shared memory refers to the caller's Bᵀ (a SharedArrayBuffer cannot be transferred, and need not
+      // be); a copying task's slice of Bᵀ is its own.
+      return isShared(task.bt) ? [] : [task.bt.buffer as ArrayBuffer];
     case 'products':
     case 'ping':
       return [];

@@ -62,6 +62,20 @@ describe('split standard deviations', () => {
     expect(differ).toEqual([]);
   });
 
+  it.each([0, 1])('pool %i, Bᵀ in shared memory (as the split products leave it): no copy in the task, bit-identical', async (k) => {
+    const data = new Float64Array(new SharedArrayBuffer(state.Bt.data.length * 8));
+    data.set(state.Bt.data);
+    const shared = { ...state, Bt: { ...state.Bt, data } };
+    const task = varianceTask(shared.L, shared.Bt, shared.priorVariance, 64, 128);
+    expect(task.bt).toBe(data);
+    expect([task.cols, task.first]).toEqual([shared.Bt.cols, 64]);
+    const split = await parallelPosteriorStd(shared, pools[k]);
+    expect(Array.from(split).filter((v, i) => !Object.is(v, single[i]))).toEqual([]);
+    // The caller's arrays are still there (nothing was transferred away).
+    expect(shared.priorVariance.length).toBe(single.length);
+    expect(shared.L.data.length).toBe(state.L.data.length);
+  });
+
   it('unaligned ranges run in-thread are bit-identical too', () => {
     const n = state.Bt.cols;
     const cuts = [0, 7, 130, 131, 300, n];
