@@ -18,7 +18,7 @@
  * arithmetic is the same whatever the blocks, so split runs are identical to one run).
  *
  * PUBLIC API: structuredProblem, prepareStructuredPosterior, structuredShapeProducts, completeStructuredPosterior,
- * completeWithShapeProducts, covarianceShape, hasCovarianceShape, structuredPosteriorStd, structuredVarianceBlock, structuredPosteriorSummary.
+ * completeWithShapeProducts, covarianceShape, hasCovarianceShape, lagShapeRows, structuredPosteriorStd, structuredVarianceBlock, structuredPosteriorSummary.
  */
 import { InputError, NotPositiveDefiniteError } from '../errors.ts';
 import { cellCount } from '../grid/grid.ts';
@@ -255,13 +255,31 @@ export function structuredShapeProducts(sp: StructuredProblem | Problem, prior: 
 /** {@link structuredShapeProducts} by direct sums over the shape's lag table (the setup's `table`). */
 function lagShapeProducts(setup: StructuredSetup): ShapeProducts {
   const { problem, n, m, order, table } = setup;
-  const g = problem.operator;
   const t0 = now();
   const Bt = matrix(m, n);
-  if (table === null || g.kind !== 'sparse') throw new RangeError('lagShapeProducts: the setup has no lag table');
-  lagRowsInto(table, g.matrix, setup.prior.stdProfile, order, order, Bt.data);
-  finishBtRows(g, setup.prior.stdProfile, setup.shape.nugget ?? 0, order, order, Bt.data, n);
+  if (table === null) throw new RangeError('lagShapeProducts: the setup has no lag table');
+  lagShapeRows(table, problem.operator, setup.prior.stdProfile, setup.shape.nugget ?? 0, order, order, Bt.data);
   return { setup, Bt, spectraCached: false, times: { spectra: 0, products: now() - t0 } };
+}
+
+/**
+ * Rows `rows[i]` of the shape's Bᵀ into `bt` at row slot `slots[i]` · N by direct sums over its lag table, profile
+ * and nugget included (./lagProducts.ts lagRowsInto, then {@link finishBtRows}): the lag route's counterpart of
+ * {@link computeBtPairs} + {@link finishBtRows}, for one thread or one share of the pool. Throws RangeError for
+ * an operator that is not sparse.
+ */
+export function lagShapeRows(
+  table: LagTable,
+  g: Operator,
+  s: readonly number[] | undefined,
+  nugget: number,
+  rows: Int32Array,
+  slots: Int32Array,
+  bt: Float64Array,
+): void {
+  if (g.kind !== 'sparse') throw new RangeError('lag-table sums need a sparse operator');
+  lagRowsInto(table, g.matrix, s, rows, slots, bt);
+  finishBtRows(g, s, nugget, rows, slots, bt, table.nx * table.ny * table.nz);
 }
 
 /**

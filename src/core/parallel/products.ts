@@ -37,6 +37,7 @@ import {
   completeStructuredPosterior,
   computeBtPairs,
   finishBtRows,
+  lagShapeRows,
   structuredProblem,
   structuredSetup,
   type ShapeProducts,
@@ -46,7 +47,6 @@ import {
 } from '../inverse/structured.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
-import { lagRowsInto } from '../inverse/lagProducts.ts';
 import { lagTable } from '../prior/lag.ts';
 import type { BlockPool } from './blocks.ts';
 import type { ProductsResult, ProductsTask } from './tasks.ts';
@@ -101,11 +101,9 @@ function productsInto(
   const g = state.problem.operator;
   const s = task.prior.stdProfile;
   if (task.lag) {
-    if (g.kind !== 'sparse') throw new Error('products task: lag-table sums need a sparse operator');
     const t0 = now();
     // The caller passes the table it already built for the same grid and prior.
-    lagRowsInto(setup?.table ?? lagTable(task.grid, task.prior.terms), g.matrix, s, task.rows, slots, bt);
-    finishBtRows(g, s, task.prior.nugget ?? 0, task.rows, slots, bt, cellsOf(task.grid));
+    lagShapeRows(setup?.table ?? lagTable(task.grid, task.prior.terms), g, s, task.prior.nugget ?? 0, task.rows, slots, bt);
     return { spectraCached: false, spectra: 0, products: now() - t0 };
   }
   // The caller passes the product it already built for the same grid and prior.

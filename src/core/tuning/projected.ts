@@ -37,12 +37,12 @@ import {
   computeBtPairs,
   finishBtRows,
   keepSpectra,
+  lagShapeRows,
   matchingSpectra,
   structuredSetup,
   type StructuredProblem,
 } from '../inverse/structured.ts';
 import { offsetTable, type OffsetFunction } from '../prior/lag.ts';
-import { lagRowsInto } from '../inverse/lagProducts.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
 
@@ -100,9 +100,10 @@ export function structuredProjection(holder: StructuredProblem, prior: PriorSpec
     const rows = order.subarray(j0, j1);
     const sl = slots.subarray(0, j1 - j0);
     const spectra = cached === null ? null : cached.slice(j0 / 2, Math.ceil(j1 / 2));
-    if (cp !== null) computeBtPairs(cp, g, s, rows, sl, bt, spectra, save);
-    else if (table !== null && g.kind === 'sparse') lagRowsInto(table, g.matrix, s, rows, sl, bt);
-    finishBtRows(g, s, nugget, rows, sl, bt, n);
+    if (cp !== null) {
+      computeBtPairs(cp, g, s, rows, sl, bt, spectra, save);
+      finishBtRows(g, s, nugget, rows, sl, bt, n);
+    } else if (table !== null) lagShapeRows(table, g, s, nugget, rows, sl, bt);
     // Columns rows[q] of P: P_a,rows[q] = g_a · (Bᵀ)_rows[q].
     const k = j1 - j0;
     const part = operatorTimesTransposed(g, { rows: k, cols: n, data: bt.subarray(0, k * n) });
