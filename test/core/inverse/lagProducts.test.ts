@@ -9,6 +9,7 @@
 import { afterEach, describe, expect, it } from 'vitest';
 import { lagProductsPreferred, lagRowsInto } from '../../../src/core/inverse/lagProducts.ts';
 import { prepareStructuredPosterior, structuredProblem } from '../../../src/core/inverse/structured.ts';
+import { structuredProjection } from '../../../src/core/tuning/projected.ts';
 import { cellCount, type Grid } from '../../../src/core/grid/grid.ts';
 import { sparseFromCoordinates, sparseToDense, type SparseMatrix } from '../../../src/core/linalg/sparse.ts';
 import { covarianceMatrix } from '../../../src/core/prior/covariance.ts';
@@ -111,6 +112,18 @@ describe('lag-table rows of Bᵀ', () => {
     expect(lag.padding).toEqual([]);
     expect(relErr(lag.Bt.data, circ.Bt.data)).toBeLessThan(1e-12);
     expect(relErr(lag.mean, circ.mean)).toBeLessThan(1e-12);
+  });
+
+  it('a projection with a derivative kernel (type-II gradients) from the lag table equals the circulant one to 1e-12', () => {
+    const problem = benchProblem3(9, 21);
+    const prior: PriorSpec = { ...rotated, stdProfile: Array.from(seededVector(729, 8), (x) => 1 + 0.2 * x) };
+    // An even function of the offset (a stand-in for a term's derivative): a Gaussian bump in the scaled offset.
+    const kernel = (ox: number, oy: number, oz: number) => Math.exp(-(ox * ox + 0.5 * oy * oy + 2 * oz * oz) / 9);
+    const lag = structuredProjection(structuredProblem(problem, { products: 'lag' }), prior, kernel);
+    const circ = structuredProjection(structuredProblem(problem, { products: 'circulant' }), prior, kernel);
+    expect(relErr(lag.data, circ.data)).toBeLessThan(1e-12);
+    // And not the prior's own projection (the kernel was used).
+    expect(relErr(lag.data, structuredProjection(structuredProblem(problem, { products: 'lag' }), prior).data)).toBeGreaterThan(1e-2);
   });
 
   it('lag sums need a sparse operator: asking for them with a dense G is refused with the reason', () => {
