@@ -56,7 +56,7 @@ const align16 = (bytes: number) => (bytes + 15) & ~15;
 /**
  * For each row r (0 … rowCount − 1), out row = Σ_e w[e] T[off[e] + lag of the cell], e over
  * entries start[r] … start[r + 1] − 1, written to bt at offset slotOffsets[r] (see lagRowsInto). False, and
- * nothing written, when the kernel is unavailable.
+ * nothing written, when the kernel is unavailable or its memory cannot grow to hold the table and a row.
  */
 export function wasmLagRows(
   grid: LagRowsGrid,
@@ -76,7 +76,11 @@ export function wasmLagRows(
   const wts = align16(8 * table.length);
   const offs = align16(wts + 8 * longest);
   const out = align16(offs + 4 * longest);
-  if (ensureBytes(k.memory, out + 8 * n)) k.residentFrom = null;
+  try {
+    if (ensureBytes(k.memory, out + 8 * n)) k.residentFrom = null;
+  } catch {
+    return false; // the runtime refused to grow the memory: the JavaScript loop runs instead
+  }
   const f = new Float64Array(k.memory.buffer);
   const ints = new Int32Array(k.memory.buffer);
   if (k.residentFrom !== table) {

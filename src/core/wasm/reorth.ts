@@ -44,7 +44,11 @@ export function wasmReorthWorkspace(n: number, steps: number): ReorthWorkspace |
   if (kernel === undefined) kernel = instantiateKernel<KernelFn>(REORTH_WASM, 'cgs2');
   if (kernel === null) return null;
   const k = kernel;
-  ensureBytes(k.memory, end);
+  try {
+    ensureBytes(k.memory, end);
+  } catch {
+    return null; // the runtime refused to grow the memory: the JavaScript twin runs instead
+  }
   busy = true;
   return {
     q: new Float64Array(k.memory.buffer, 0, n * steps),
