@@ -269,8 +269,8 @@ export function operatorTimesTransposed(g: Operator, b: Matrix): Matrix {
 /**
  * K = G Bᵀ (M × M) when the caller knows K is symmetric, as for B = G Cm with Cm symmetric
  * (K = G Cm Gᵀ): the lower triangle is computed and mirrored onto the upper one. Dense G: the
- * register-blocked NT kernel. Sparse G: four rows b … b+3 of B per sweep of G's row a, so each
- * stored index and value is loaded once for four sums (each sum keeps its own order, so the result
+ * register-blocked NT kernel. Sparse G: eight rows b … b+7 of B per sweep of G's row a, so each
+ * stored index and value is loaded once for eight sums (each sum keeps its own order, so the result
  * equals the one-row loop). With `bRows`, row c of B is B's row bRows[c] (B may have more rows: the
  * rule of src/core/tuning/startPrior.ts takes a subset of the rows of a whole problem's Bᵀ without a copy).
  */
@@ -301,7 +301,7 @@ export function operatorTimesTransposedSymmetric(g: Operator, b: Matrix, bRows?:
       let c = 0;
       const at = (c: number) => (bRows === undefined ? c : bRows[c]) * n;
       // Eight rows of B per pass (more independent gathers in flight: 10 ms instead of 14 at 20³ with M = 500, 100 ms instead of
-      // 120 at 32³ with M = 1,000, with four), then four, then one; every entry is the same sum over p ascending.
+      // 120 at 32³ with M = 1,000, with four), then the last M mod 8 one at a time; every entry is the same sum over p ascending.
       for (; c + 8 <= m; c += 8) {
         const o0 = at(c);
         const o1 = at(c + 1);
@@ -341,31 +341,6 @@ export function operatorTimesTransposedSymmetric(g: Operator, b: Matrix, bRows?:
           if (a >= c + 5) kd[ka + 5] = s5;
           if (a >= c + 6) kd[ka + 6] = s6;
           if (a >= c + 7) kd[ka + 7] = s7;
-        }
-      }
-      for (; c + 4 <= m; c += 4) {
-        const o0 = at(c);
-        const o1 = at(c + 1);
-        const o2 = at(c + 2);
-        const o3 = at(c + 3);
-        for (let a = c; a < m; a++) {
-          let s0 = 0,
-            s1 = 0,
-            s2 = 0,
-            s3 = 0;
-          for (let p = rowPtr[a], p1 = rowPtr[a + 1]; p < p1; p++) {
-            const v = values[p];
-            const j = colIdx[p];
-            s0 += v * bd[o0 + j];
-            s1 += v * bd[o1 + j];
-            s2 += v * bd[o2 + j];
-            s3 += v * bd[o3 + j];
-          }
-          const ka = a * m + c;
-          kd[ka] = s0;
-          if (a >= c + 1) kd[ka + 1] = s1;
-          if (a >= c + 2) kd[ka + 2] = s2;
-          if (a >= c + 3) kd[ka + 3] = s3;
         }
       }
       for (; c < m; c++) {
