@@ -16,6 +16,7 @@ import { posteriorSummary, preparePosterior, type PosteriorState } from './poste
 import {
   completeStructuredPosterior,
   prepareStructuredPosterior,
+  rowsByLagSums,
   type ShapeProducts,
   structuredShapeProducts,
   structuredPosteriorStd,
@@ -90,7 +91,13 @@ export async function structuredProducts(sp: StructuredProblem | Problem, prior:
   const split =
     pool !== undefined &&
     pool.threads > 1 &&
-    (pool.force === true || productsWorthSplitting(problem.data.values.length, problem.grid.shape, pool.threads));
+    (pool.force === true ||
+      productsWorthSplitting(
+        problem.data.values.length,
+        problem.grid.shape,
+        pool.threads,
+        rowsByLagSums(sp) ? problem.operator : undefined,
+      ));
   return split ? structuredShapeProductsParallel(sp, prior, pool.get()) : structuredShapeProducts(sp, prior);
 }
 

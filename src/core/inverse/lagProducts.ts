@@ -17,7 +17,7 @@
  * so both give the same bits, and a row does not depend on which other rows are computed with it (any split over
  * threads equals one thread).
  *
- * PUBLIC API: lagProductsPreferred, LAG_MULTIPLY_ADD_COST, lagRowsInto.
+ * PUBLIC API: lagProductsPreferred, circulantWork, lagWork, LAG_MULTIPLY_ADD_COST, lagRowsInto.
  */
 import type { Grid } from '../grid/grid.ts';
 import { productPadding } from '../fft/embedding.ts';
@@ -47,16 +47,22 @@ export const LAG_MULTIPLY_ADD_COST = 0.07;
  */
 export function lagProductsPreferred(g: Operator, grid: Grid): boolean {
   if (g.kind !== 'sparse' || grid.shape.length < 3) return false;
-  const shape = grid.shape;
-  let n = 1;
+  return lagWork(g, grid.shape) < circulantWork(g.matrix.rows, grid.shape);
+}
+
+/** Points the circulant route transforms for M data rows: ⌈M/2⌉ pairs × px × py × pz (the embedding; pz = 1 below 3-D). */
+export function circulantWork(m: number, shape: readonly number[]): number {
   let padded = 1;
-  for (const k of shape) {
-    n *= k;
-    padded *= productPadding(k);
-  }
-  const a = g.matrix;
-  const nnz = a.rowPtr[a.rows] ?? 0;
-  return nnz * n * LAG_MULTIPLY_ADD_COST < Math.ceil(a.rows / 2) * padded;
+  for (const k of shape) padded *= productPadding(k);
+  return Math.ceil(m / 2) * padded;
+}
+
+/** The lag sums' work in the same unit: nnz(G) · N · {@link LAG_MULTIPLY_ADD_COST} (needs a sparse G). */
+export function lagWork(g: Operator, shape: readonly number[]): number {
+  if (g.kind !== 'sparse') throw new RangeError('lagWork: lag-table sums need a sparse operator');
+  let n = 1;
+  for (const k of shape) n *= k;
+  return (g.matrix.rowPtr[g.matrix.rows] ?? 0) * n * LAG_MULTIPLY_ADD_COST;
 }
 
 /**

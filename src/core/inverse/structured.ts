@@ -18,7 +18,7 @@
  * arithmetic is the same whatever the blocks, so split runs are identical to one run).
  *
  * PUBLIC API: structuredProblem, prepareStructuredPosterior, structuredShapeProducts, completeStructuredPosterior,
- * completeWithShapeProducts, covarianceShape, hasCovarianceShape, lagShapeRows, structuredPosteriorStd, structuredVarianceBlock, structuredPosteriorSummary.
+ * completeWithShapeProducts, covarianceShape, hasCovarianceShape, lagShapeRows, rowsByLagSums, structuredPosteriorStd, structuredVarianceBlock, structuredPosteriorSummary.
  */
 import { InputError, NotPositiveDefiniteError } from '../errors.ts';
 import { cellCount } from '../grid/grid.ts';
@@ -215,11 +215,19 @@ export function structuredSetup(sp: StructuredProblem | Problem, prior: PriorSpe
   const m = validateProblem(problem, n);
   const parts = priorParts(prior);
   const g = problem.operator;
-  const lag = holder.products === 'auto' ? lagProductsPreferred(g, grid) : holder.products === 'lag';
+  const lag = rowsByLagSums(holder);
   if (lag && g.kind !== 'sparse') throw new InputError('products', 'a sparse operator for lag-table sums', `a ${g.kind} operator`);
   const cp = lag ? null : new CirculantProduct(grid, parts.shape);
   const table = lag ? lagTable(grid, parts.shape.terms) : null;
   return { holder, problem, ...parts, n, m, cp, table, order: pairOrder(g, grid.shape[0], m) };
+}
+
+/** Whether the rows of Bᵀ for this problem come from lag sums: the holder's `products`, `auto` by ./lagProducts.ts lagProductsPreferred. */
+export function rowsByLagSums(sp: StructuredProblem | Problem): boolean {
+  const holder = 'cacheBytes' in sp ? sp : null;
+  const problem = holder?.problem ?? (sp as Problem);
+  const products = holder?.products ?? 'auto';
+  return products === 'auto' ? lagProductsPreferred(problem.operator, problem.grid) : products === 'lag';
 }
 
 /** Bᵀ of the prior's shape (profile and shape nugget included, not yet scaled), one thread, with the holder's spectra cache. */

@@ -30,7 +30,6 @@
  */
 import type { Grid } from '../grid/grid.ts';
 import { CirculantProduct } from '../fft/covariance.ts';
-import { productPadding } from '../fft/embedding.ts';
 import type { Operator } from '../linalg/operator.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
 import {
@@ -48,6 +47,7 @@ import {
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
 import { lagTable } from '../prior/lag.ts';
+import { circulantWork, lagWork } from '../inverse/lagProducts.ts';
 import type { BlockPool } from './blocks.ts';
 import type { ProductsResult, ProductsTask } from './tasks.ts';
 
@@ -175,10 +175,7 @@ export function sharedMemoryAvailable(): boolean {
  * pair costs a few passes over it; pz = 1 below 3-D).
  */
 export function productWork(m: number, shape: readonly number[]): number {
-  const px = productPadding(shape[0]);
-  const py = shape.length > 1 ? productPadding(shape[1]) : 1;
-  const pz = shape.length > 2 ? productPadding(shape[2]) : 1;
-  return Math.ceil(m / 2) * px * py * pz;
+  return circulantWork(m, shape);
 }
 
 /**
@@ -207,9 +204,14 @@ export function productWork(m: number, shape: readonly number[]): number {
  */
 export const MIN_PRODUCT_SPLIT_WORK = 5e6;
 
-/** Whether splitting the products over `threads` threads (a pool already running) is worth it ({@link MIN_PRODUCT_SPLIT_WORK}). */
-export function productsWorthSplitting(m: number, shape: readonly number[], threads: number): boolean {
-  return threads > 1 && productWork(m, shape) >= MIN_PRODUCT_SPLIT_WORK;
+/**
+ * Whether splitting the products over `threads` threads (a pool already running) is worth it ({@link MIN_PRODUCT_SPLIT_WORK}).
+ * `lagRows`: the operator, when its rows are lag sums (../inverse/structured.ts rowsByLagSums); their work
+ * (../inverse/lagProducts.ts lagWork, in the same unit) is then what counts, not the transforms they replace.
+ */
+export function productsWorthSplitting(m: number, shape: readonly number[], threads: number, lagRows?: Operator): boolean {
+  const work = lagRows === undefined ? productWork(m, shape) : lagWork(lagRows, shape);
+  return threads > 1 && work >= MIN_PRODUCT_SPLIT_WORK;
 }
 
 let nextToken = 1;

@@ -16,7 +16,8 @@ import {
   type StructuredPosteriorState,
 } from '../../../src/core/inverse/structured.ts';
 import { matrix } from '../../../src/core/linalg/matrix.ts';
-import { sparseToDense, type SparseMatrix } from '../../../src/core/linalg/sparse.ts';
+import { sparseFromCoordinates, sparseToDense, type SparseMatrix } from '../../../src/core/linalg/sparse.ts';
+import type { Operator } from '../../../src/core/linalg/operator.ts';
 import { nodeBlockPool } from '../../../src/core/parallel/node.ts';
 import { portPool, answerTask, type TaskPort, type TaskReply, type TaskRequest } from '../../../src/core/parallel/pool.ts';
 import {
@@ -281,6 +282,26 @@ describe('pieces', () => {
       expect(bt.reduce((c, v, i) => c + (Object.is(v, one.Bt.data[i]) ? 0 : 1), 0)).toBe(0);
     },
   );
+
+  it('productsWorthSplitting on the lag route counts the sums, not the transforms they replace', () => {
+    // 32³ with 100 point data: the transforms would cover 50 × 64³ points (split), the sums are 100 × 32³ multiply-adds (not).
+    const n = 32 ** 3;
+    const points: Operator = {
+      kind: 'sparse',
+      matrix: sparseFromCoordinates(
+        100,
+        n,
+        Array.from({ length: 100 }, (_, k) => k),
+        Array.from({ length: 100 }, (_, k) => (k * 331) % n),
+        Array.from({ length: 100 }, () => 1),
+      ),
+    };
+    expect(productsWorthSplitting(100, [32, 32, 32], 2)).toBe(true);
+    expect(productsWorthSplitting(100, [32, 32, 32], 2, points)).toBe(false);
+    // The 20³ rays of the benchmark: enough sums to split either way.
+    const rays = benchProblem3(20, 500);
+    expect(productsWorthSplitting(500, rays.grid.shape, 2, rays.operator)).toBe(true);
+  });
 
   it('productsWorthSplitting: never on one thread; no at 64² with M = 400 (no gain measured with cached spectra), yes at 128² and at 64² with M = 800', () => {
     expect(productsWorthSplitting(400, [128, 128], 1)).toBe(false);
