@@ -78,7 +78,7 @@ export async function prepareStructured(
   pool?: PosteriorPool,
 ): Promise<StructuredPosteriorState> {
   const p = await structuredProducts(sp, prior, pool);
-  return completeStructuredPosterior(p.setup, p.Bt, p.spectraCached, p.times);
+  return completeStructuredPosterior(p);
 }
 
 /**

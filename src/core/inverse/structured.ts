@@ -385,7 +385,7 @@ export function keepSpectra(
  */
 export function prepareStructuredPosterior(sp: StructuredProblem | Problem, prior: PriorSpec): StructuredPosteriorState {
   const p = structuredShapeProducts(sp, prior);
-  return completeStructuredPosterior(p.setup, p.Bt, p.spectraCached, p.times);
+  return completeStructuredPosterior(p);
 }
 
 /**
@@ -398,21 +398,18 @@ export function completeWithShapeProducts(p: ShapeProducts, prior: PriorSpec): S
   validatePrior(prior, p.setup.problem.grid);
   if (!hasCovarianceShape(p, prior))
     throw new RangeError('completeWithShapeProducts: the products were computed for another covariance shape');
-  return completeStructuredPosterior({ ...p.setup, ...priorParts(prior) }, p.Bt, p.spectraCached, p.times);
+  return completeStructuredPosterior(p, { ...p.setup, ...priorParts(prior) });
 }
 
 /**
  * The rest of the FFT path once the shape's Bᵀ (M × N, profile and shape nugget included; see
  * {@link covarianceShape}) is known: K = scale · G Bᵀᵀ + Cd, its Cholesky factor, α = K⁻¹ r, and the
- * mean in one pass with Bᵀ ← scale · Bᵀ in place (it becomes the state's Bᵀ). Throws NotPositiveDefiniteError
+ * mean in one pass with Bᵀ ← scale · Bᵀ in place (it becomes the state's Bᵀ). `setup` is the products' own, or
+ * that of another prior of the same shape ({@link completeWithShapeProducts}). Throws NotPositiveDefiniteError
  * when K (or a full Cd) does not factor.
  */
-export function completeStructuredPosterior(
-  setup: StructuredSetup,
-  Bt: Matrix,
-  spectraCached: boolean,
-  times: { readonly spectra: number; readonly products: number },
-): StructuredPosteriorState {
+export function completeStructuredPosterior(p: ShapeProducts, setup: StructuredSetup = p.setup): StructuredPosteriorState {
+  const { Bt, spectraCached, times } = p;
   const { problem, prior, n, m, cp, variance } = setup;
   const grid = problem.grid;
   const g = problem.operator;

@@ -242,7 +242,7 @@ export async function prepareStructuredPosteriorParallel(
   options: ParallelProductsOptions = {},
 ): Promise<StructuredPosteriorState> {
   const p = await structuredShapeProductsParallel(sp, prior, pool, options);
-  return completeStructuredPosterior(p.setup, p.Bt, p.spectraCached, p.times);
+  return completeStructuredPosterior(p);
 }
 
 /**
