@@ -5,8 +5,8 @@
  * falls back to when WebAssembly or its 128-bit SIMD is missing.
  *
  * One kernel instance (module, instance, WebAssembly.Memory) per JS realm — each worker has its own —
- * created on first use. Per call, the block of Bᵀ is copied in (row stride padded to a multiple of
- * 4 with zero columns, which change no real column) and the w results copied out. L is packed into
+ * created on first use. Per call, the block of Bᵀ is copied in, in column tiles of 4 (the last padded
+ * with zero columns, which change no real column; layout in ./wat/variance.wat), and the w results copied out. L is packed into
  * the kernel's layout once and kept resident while the same L.data is passed again (re-packing per
  * call of 64 columns at M = 400 costs ≈ 25 %, test/bench/cases/wasm.ts). Factors are replaced, not
  * mutated, in the core; as a guard against an in-place change the diagonal and the last row of L
@@ -17,7 +17,7 @@ import type { Matrix } from '../linalg/matrix.ts';
 import { ensureBytes, forceWasmOffForTesting, instantiateKernel, simdSupported } from './runtime.ts';
 import { VARIANCE_WASM } from './modules.ts';
 
-type KernelFn = (lt: number, diag: number, x: number, out: number, groups: number, wp: number) => void;
+type KernelFn = (lt: number, diag: number, x: number, out: number, groups: number, wp: number, rows: number) => void;
 
 interface Kernel {
   readonly memory: WebAssembly.Memory;
@@ -125,27 +125,39 @@ export function wasmVarianceBlock(
     k.packedRows = m;
     k.packedCheck = checkValues(l, m);
   }
-  // X = Bᵀ[:, c0:c1] with zero columns up to wp.
+  // X = Bᵀ[:, c0:c1] in tiles of 4 columns (X[r, 4t + c] at 4mt + 4r + c), zero columns up to wp.
   const bt = Bt.data;
   const x0 = lay.x / 8;
-  for (let r = 0; r < m; r++) {
-    const o = x0 + r * wp;
-    f.set(bt.subarray(r * n + c0, r * n + c1), o);
-    for (let j = w; j < wp; j++) f[o + j] = 0;
+  const ts = 4 * m;
+  // Tile by tile (down the rows of 4 columns): half the time of row by row here.
+  for (let j = 0; j < wp; j += 4) {
+    const cols = Math.min(4, w - j);
+    let o = x0 + ts * (j >> 2);
+    let b = c0 + j;
+    if (cols === 4) {
+      for (let r = 0; r < m; r++, o += 4, b += n) {
+        f[o] = bt[b];
+        f[o + 1] = bt[b + 1];
+        f[o + 2] = bt[b + 2];
+        f[o + 3] = bt[b + 3];
+      }
+    } else {
+      for (let r = 0; r < m; r++, o += 4, b += n) for (let c = 0; c < 4; c++) f[o + c] = c < cols ? bt[b + c] : 0;
+    }
   }
   const o0 = lay.out / 8;
   f.set(priorVariance.subarray(c0, c1), o0);
   for (let j = w; j < wp; j++) f[o0 + j] = 0;
-  k.run(lay.lt, lay.diag, lay.x, lay.out, lay.groups, wp);
+  k.run(lay.lt, lay.diag, lay.x, lay.out, lay.groups, wp, m);
   // Rows past the last group of 4: the same operations in the same order as the JS kernel.
   for (let i = 4 * lay.groups; i < m; i++) {
-    const oi = x0 + i * wp;
     const inv = 1 / l[i * m + i];
     for (let j = 0; j < w; j++) {
-      let s = f[oi + j];
-      for (let p = 0; p < i; p++) s -= l[i * m + p] * f[x0 + p * wp + j];
+      const t = x0 + ts * (j >> 2) + (j & 3); // X[0, j]; X[p, j] at t + 4p
+      let s = f[t + 4 * i];
+      for (let p = 0; p < i; p++) s -= l[i * m + p] * f[t + 4 * p];
       s *= inv;
-      f[oi + j] = s;
+      f[t + 4 * i] = s;
       f[o0 + j] -= s * s;
     }
   }

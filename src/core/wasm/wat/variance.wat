@@ -1,6 +1,6 @@
 ;; The posterior-variance kernel (assembled by test/tooling/wasm.ts into ../modules.ts).
 ;;
-;; variance(lt, diag, x, out, groups, wp): for row groups g = 0 … groups−1 (rows i0 = 4g … 4g+3) and
+;; variance(lt, diag, x, out, groups, wp, rows): for row groups g = 0 … groups−1 (rows i0 = 4g … 4g+3) and
 ;; column tiles of 4, the forward substitution W = L⁻¹ X in place over X and the running sums
 ;; out_j −= W_ij² (Golub & Van Loan, Matrix Computations, §3.1, memory), in f64x2 lanes (two
 ;; columns per lane pair):
@@ -17,7 +17,11 @@
 ;;        (the rows of the group interleaved by column, so one row of W meets four L values in a row);
 ;;   diag group g holds 16 doubles at diag + 128g: 1/L_ii for the 4 rows, then L[i0+1,i0],
 ;;        L[i0+2,i0], L[i0+2,i0+1], L[i0+3,i0], L[i0+3,i0+1], L[i0+3,i0+2] (the 4 × 4 triangle);
-;;   x    the block X (rows × wp, row-major, wp a multiple of 4), overwritten by W;
+;;   x    the block X (rows × wp, wp a multiple of 4) in column tiles of 4, overwritten by W: tile t (columns
+;;        4t … 4t+3) holds its rows one after another, X[r, 4t + c] at x + 8·(4·rows·t + 4r + c). The sum over
+;;        earlier rows then reads one tile's strip in order (two rows per cache line) instead of a new line per
+;;        row at the row stride, and the strip and the group's L panel (16 KB each at 500 rows) fit the 32 KB
+;;        first-level cache together. Measured at M = 500, N = 8,000 (one thread): 108 ms → 96–98 ms;
 ;;   out  wp doubles, prior variances on entry.
 ;; Rows past the last full group of 4 are left to the caller (src/core/wasm/varianceBlock.ts).
 ;;
@@ -26,16 +30,17 @@
 (module
   (import "env" "memory" (memory 1))
   (func $variance (export "variance")
-      (param $lt i32) (param $diag i32) (param $x i32) (param $out i32) (param $groups i32) (param $wp i32)
-    ;; g: group; rs: row stride of X in bytes; rowBase: X[i0, 0]; ltg … ltEnd: group g in lt;
+      (param $lt i32) (param $diag i32) (param $x i32) (param $out i32) (param $groups i32) (param $wp i32) (param $rows i32)
+    ;; g: group; rs: row stride of X in bytes (within a tile, 32); ts: tile stride (32·rows); rowBase: X[i0, 0]; ltg … ltEnd: group g in lt;
     ;; dg: diag block of group g; tile … tileEnd: X[i0, j] over the tiles; outp: out[j]; lp, xp: the
     ;; L value and the row of W met in the sum over earlier rows.
     (local $g i32) (local $rs i32) (local $rowBase i32) (local $ltg i32) (local $ltEnd i32) (local $dg i32)
     (local $tile i32) (local $tileEnd i32) (local $outp i32) (local $lp i32) (local $xp i32) (local $row0 i32)
-    (local $row1 i32) (local $row2 i32) (local $row3 i32) (local $a00 v128) (local $a01 v128)
+    (local $row1 i32) (local $row2 i32) (local $row3 i32) (local $ts i32) (local $a00 v128) (local $a01 v128)
     (local $a10 v128) (local $a11 v128) (local $a20 v128) (local $a21 v128) (local $a30 v128)
     (local $a31 v128) (local $y0 v128) (local $y1 v128) (local $lv v128)
-    (local.set $rs (i32.shl (local.get $wp) (i32.const 3)))
+    (local.set $rs (i32.const 32))
+    (local.set $ts (i32.shl (local.get $rows) (i32.const 5)))
     (local.set $rowBase (local.get $x))
     (local.set $ltg (local.get $lt))
     (local.set $dg (local.get $diag))
@@ -46,7 +51,7 @@
         ;; Group g: its part of lt is 4·4g doubles = 128g bytes.
         (local.set $ltEnd (i32.add (local.get $ltg) (i32.shl (local.get $g) (i32.const 7))))
         (local.set $tile (local.get $rowBase))
-        (local.set $tileEnd (i32.add (local.get $rowBase) (local.get $rs)))
+        (local.set $tileEnd (i32.add (local.get $rowBase) (i32.mul (i32.shr_u (local.get $wp) (i32.const 2)) (local.get $ts))))
         (local.set $outp (local.get $out))
         (loop $eachTile
           ;; Load the 4 × 4 tile of X.
@@ -137,7 +142,7 @@
           (local.set $y1 (f64x2.sub (local.get $y1) (f64x2.mul (local.get $a21) (local.get $a21))))
           (local.set $y1 (f64x2.sub (local.get $y1) (f64x2.mul (local.get $a31) (local.get $a31))))
           (v128.store offset=16 (local.get $outp) (local.get $y1))
-          (local.set $tile (i32.add (local.get $tile) (i32.const 32)))
+          (local.set $tile (i32.add (local.get $tile) (local.get $ts)))
           (local.set $outp (i32.add (local.get $outp) (i32.const 32)))
           (br_if $eachTile (i32.ne (local.get $tile) (local.get $tileEnd))))
         ;; Next group: lt, diag and X move on by one group of 4 rows.
