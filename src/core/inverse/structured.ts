@@ -236,6 +236,11 @@ export interface ShapeProducts {
   readonly Bt: Matrix;
   readonly spectraCached: boolean;
   readonly times: { readonly spectra: number; readonly products: number };
+  /**
+   * G Bᵀᵀ of the shape (M × M, symmetric), when the threads that computed Bᵀ also formed it
+   * (../parallel/products.ts); {@link completeStructuredPosterior} then copies it instead of computing it.
+   */
+  readonly gram?: Matrix;
 }
 
 /** {@link ShapeProducts} of (problem, prior) on one thread. Throws as {@link structuredSetup}. */
@@ -420,7 +425,7 @@ export function completeStructuredPosterior(p: ShapeProducts, setup: StructuredS
   const bt = Bt.data;
 
   // K = scale · G Bᵀᵀ (the shape's Bᵀ, symmetrised) + Cd, its factor, α. Bᵀ itself is scaled in the mean's pass below.
-  const K = operatorTimesTransposedSymmetric(g, Bt);
+  const K = p.gram === undefined ? operatorTimesTransposedSymmetric(g, Bt) : { rows: m, cols: m, data: p.gram.data.slice() };
   if (scale !== 1) for (let i = 0; i < K.data.length; i++) K.data[i] *= scale;
   addDataCovariance(K, problem);
   const f = cholesky(K, { inPlace: true });

@@ -25,6 +25,11 @@ export interface ProductsTask {
   readonly out: SharedArrayBuffer | null;
   /** Rows by direct sums over the shape's lag table (../inverse/lagProducts.ts) instead of circulant embedding. */
   readonly lag: boolean;
+  /**
+   * M × M K = G Bᵀᵀ of the shape, whose lower-triangle entries in this share's columns (its rows of Bᵀ) the thread
+   * fills once its rows are done (../linalg/operator.ts sparseGramLowerInto); only with `out` and a sparse G, else null.
+   */
+  readonly gram: SharedArrayBuffer | null;
 }
 
 export interface ProductsResult {

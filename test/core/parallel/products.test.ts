@@ -17,7 +17,7 @@ import {
 } from '../../../src/core/inverse/structured.ts';
 import { matrix } from '../../../src/core/linalg/matrix.ts';
 import { sparseFromCoordinates, sparseToDense, type SparseMatrix } from '../../../src/core/linalg/sparse.ts';
-import type { Operator } from '../../../src/core/linalg/operator.ts';
+import { operatorTimesTransposedSymmetric, type Operator } from '../../../src/core/linalg/operator.ts';
 import { nodeBlockPool } from '../../../src/core/parallel/node.ts';
 import { portPool, answerTask, type TaskPort, type TaskReply, type TaskRequest } from '../../../src/core/parallel/pool.ts';
 import {
@@ -26,6 +26,7 @@ import {
   productsWorthSplitting,
   ProductsThreadState,
   runProductsTask,
+  structuredShapeProductsParallel,
   type ParallelProductsOptions,
 } from '../../../src/core/parallel/products.ts';
 import type { ProductsTask } from '../../../src/core/parallel/tasks.ts';
@@ -133,6 +134,25 @@ describe('prepareStructuredPosteriorParallel: bit-identical to one thread', () =
     });
   }
 
+  it('with Bᵀ shared and G sparse the threads form K = G Bᵀᵀ in their own rows’ columns: the one-thread K bit for bit; not for a dense G or rows sent back', async () => {
+    for (const [make, prior] of [
+      [sparse3d, withProfile(matern(2), 512)],
+      [sparse2d, matern(3)],
+    ] as const) {
+      const problem = make();
+      for (const k of [0, 1]) {
+        const p = await structuredShapeProductsParallel(structuredProblem(problem), prior, pools[k]);
+        const K = operatorTimesTransposedSymmetric(problem.operator, p.Bt);
+        expect(p.gram).toBeDefined();
+        expect(p.gram!.data.reduce((c, v, i) => c + (Object.is(v, K.data[i]) ? 0 : 1), 0)).toBe(0);
+      }
+      const sent = await structuredShapeProductsParallel(structuredProblem(problem), prior, pools[0], { shared: false });
+      expect(sent.gram).toBeUndefined();
+    }
+    const dense = await structuredShapeProductsParallel(structuredProblem(dense2d()), matern(3), pools[0]);
+    expect(dense.gram).toBeUndefined();
+  });
+
   it('without a cache budget nothing is cached, and the result is still identical', async () => {
     const problem = sparse2d();
     const sp = structuredProblem(problem, { cacheBytes: 0 });
@@ -206,6 +226,7 @@ describe('errors', () => {
       cacheBytes: 0,
       out: null,
       lag: false,
+      gram: null,
     };
     await expect(pools[0].runProducts(task, 1)).rejects.toThrow(
       'products worker: products task: this thread holds no operator for problem token 987654',
@@ -224,6 +245,7 @@ describe('errors', () => {
       cacheBytes: 0,
       out: null,
       lag: false,
+      gram: null,
     };
     await expect(pools[0].runProducts(task, 2)).rejects.toThrow('products task: port must be an integer in 0 … 1, got 2');
   });
@@ -274,6 +296,7 @@ describe('pieces', () => {
             cacheBytes: 0,
             out: null,
             lag: one.products === 'lag',
+            gram: null,
           },
           state,
         );
@@ -345,6 +368,7 @@ describe('portPool with pinned tasks (in-thread ports)', () => {
       cacheBytes: 0,
       out: null,
       lag: false,
+      gram: null,
     });
     const results = await Promise.all([
       pool.runProducts(task([0, 1]), 0),
