@@ -18,7 +18,7 @@
  * arithmetic is the same whatever the blocks, so split runs are identical to one run).
  *
  * PUBLIC API: structuredProblem, prepareStructuredPosterior, structuredShapeProducts, completeStructuredPosterior,
- * completeWithShapeProducts, covarianceShape, hasCovarianceShape, lagShapeRows, rowsByLagSums, structuredPosteriorStd, structuredVarianceBlock, structuredPosteriorSummary.
+ * completeWithShapeProducts, structuredMean, covarianceShape, hasCovarianceShape, lagShapeRows, rowsByLagSums, structuredPosteriorStd, structuredVarianceBlock, structuredPosteriorSummary.
  */
 import { InputError, NotPositiveDefiniteError } from '../errors.ts';
 import { cellCount } from '../grid/grid.ts';

@@ -9,7 +9,8 @@
  * one per thread; each range's rows come from the same arithmetic as in the single-thread
  * prepareStructuredPosterior (a pair depends on its two rows, the grid and the prior only, and every
  * thread builds the same CirculantProduct from the same plain data), so the result equals the
- * single-thread one bit for bit. K, its factor and the mean then run on the caller
+ * single-thread one bit for bit. With Bᵀ shared and G sparse the threads also form K = G Bᵀᵀ, each in its own rows'
+ * columns (the same sums as the caller's, so the same bits); K's factor and the mean then run on the caller
  * (completeStructuredPosterior).
  *
  * Choices (measured on the 2-core project machine, see test/bench/cases/parallel.ts and
@@ -288,8 +289,8 @@ export async function structuredShapeProductsParallel(
   await pool.started?.();
   const t0 = now();
   const sab = shared ? new SharedArrayBuffer(m * n * 8) : null;
-  // With Bᵀ shared and G sparse, each thread also fills K = G Bᵀᵀ's lower triangle in its own rows' columns, while
-  // those rows are fresh (the caller would otherwise compute all of it after the split: 10 ms at 20³, M = 500).
+  // With Bᵀ shared and G sparse, each thread also fills K = G Bᵀᵀ's lower triangle in its own rows' columns once those
+  // rows are done, in parallel (the caller would otherwise compute all of it after the split: 10 ms at 20³, M = 500).
   const gramSab = sab !== null && problem.operator.kind === 'sparse' ? new SharedArrayBuffer(m * m * 8) : null;
   const Bt: Matrix = sab !== null ? { rows: m, cols: n, data: new Float64Array(sab) } : matrix(m, n);
   const rowsOf = ([p0, p1]: [number, number]) => order.slice(2 * p0, Math.min(m, 2 * p1));
