@@ -21,7 +21,7 @@ import { cellCount, type Geometry } from '../grid/grid.ts';
 import { cholesky, choleskySolve, solveLower, solveLowerMatrix } from '../linalg/cholesky.ts';
 import { matrix, type Matrix } from '../linalg/matrix.ts';
 import { applyOperator, applyOperatorTranspose, operatorTimesSymmetric, operatorTimesTransposedSymmetric } from '../linalg/operator.ts';
-import { columnSumsOfSquares, symmetricProductNT, transposeOf } from '../linalg/products.ts';
+import { columnSumsOfSquares, plusRowCombination, symmetricProductNT, transposeOf } from '../linalg/products.ts';
 import { covarianceMatrix, meanVector } from '../prior/covariance.ts';
 import type { PriorSpec } from '../prior/spec.ts';
 import type { Problem } from '../problems/spec.ts';
@@ -137,16 +137,7 @@ export function preparePosteriorFromCovariance(problem: Problem<Geometry>, Cm: M
 
 /** m0 + B v = m0 + (Bᵀ)ᵀ v for a data-space vector v. */
 function addCrossCovariance(state: PosteriorFactors, base: ArrayLike<number>, v: ArrayLike<number>): Float64Array {
-  const { Bt } = state;
-  const n = Bt.cols;
-  const out = Float64Array.from(base);
-  for (let k = 0; k < Bt.rows; k++) {
-    const vk = v[k];
-    if (vk === 0) continue;
-    const ok = k * n;
-    for (let i = 0; i < n; i++) out[i] += Bt.data[ok + i] * vk;
-  }
-  return out;
+  return plusRowCombination(base, state.Bt.data, v, state.Bt.cols);
 }
 
 /** Normalised residuals: (d − p)/σ for a diagonal Cd, Ld⁻¹ (d − p) for a full one. */

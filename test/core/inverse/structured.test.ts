@@ -15,7 +15,6 @@ import {
   structuredShapeProducts,
   structuredPosteriorStd,
   structuredPosteriorSummary,
-  structuredMean,
   structuredProblem,
 } from '../../../src/core/inverse/structured.ts';
 import type { Grid } from '../../../src/core/grid/grid.ts';
@@ -187,31 +186,6 @@ describe('products for the covariance shape, then scaled', () => {
     const products = structuredShapeProducts(rayProblem(6, 2), prior);
     const longer: PriorSpec = { ...prior, terms: [{ kernel: 'exponential', variance: 0.4, length: 3 }, prior.terms[1]] };
     expect(() => completeWithShapeProducts(products, longer)).toThrow(/another covariance shape/);
-  });
-});
-
-describe('the mean pass, four rows of Bᵀ at a time', () => {
-  it('equals m0 + Σ_k α_k (scale · Bᵀ row k) summed a row at a time, and leaves Bᵀ scaled (M = 1 … 9: every tail length)', () => {
-    for (let m = 1; m <= 9; m++) {
-      const n = 13;
-      const m0 = seededVector(n, 100 + m);
-      const alpha = seededVector(m, 200 + m);
-      const bt = seededVector(m * n, 300 + m);
-      for (const scale of [1, 0.37]) {
-        const ref = m0.slice();
-        for (let k = 0; k < m; k++) for (let i = 0; i < n; i++) ref[i] += alpha[k] * (scale * bt[k * n + i]);
-        const b = bt.slice();
-        const mean = structuredMean(m0, b, alpha, n, scale);
-        expect(relErr(mean, ref)).toBeLessThan(1e-14);
-        expect(
-          sameBits(
-            b,
-            bt.map((v) => scale * v),
-          ),
-        ).toBe(true);
-        expect(mean).not.toBe(m0);
-      }
-    }
   });
 });
 

@@ -5,12 +5,15 @@ import {
   mirrorLowerToUpper,
   multiply,
   multiplyNT,
+  plusRowCombination,
   rowSumsOfSquares,
   symmetricProduct,
   symmetricProductNT,
   transposeOf,
 } from '../../../src/core/linalg/products.ts';
 import { randomMatrix, relError } from './helpers.ts';
+import { relErr, seededVector } from '../fft/cases.ts';
+import { sameBits } from '../../worker/problems.ts';
 
 /** Plain triple loop, the definition C_ij = Σ_p A_ip B_pj. */
 function naive(a: Matrix, b: Matrix): Matrix {
@@ -107,6 +110,31 @@ describe('transpose', () => {
       expect([t.rows, t.cols]).toEqual([c, r]);
       for (let i = 0; i < r; i++) for (let j = 0; j < c; j++) expect(t.data[j * r + i]).toBe(a.data[i * c + j]);
       expect(Array.from(transposeOf(a).data)).toEqual(Array.from(t.data));
+    }
+  });
+});
+
+describe('plusRowCombination: the posterior mean pass, four rows of Bᵀ at a time', () => {
+  it('equals m0 + Σ_k α_k (scale · Bᵀ row k) summed a row at a time, and leaves Bᵀ scaled (M = 1 … 9: every tail length)', () => {
+    for (let m = 1; m <= 9; m++) {
+      const n = 13;
+      const m0 = seededVector(n, 100 + m);
+      const alpha = seededVector(m, 200 + m);
+      const bt = seededVector(m * n, 300 + m);
+      for (const scale of [1, 0.37]) {
+        const ref = m0.slice();
+        for (let k = 0; k < m; k++) for (let i = 0; i < n; i++) ref[i] += alpha[k] * (scale * bt[k * n + i]);
+        const b = bt.slice();
+        const mean = plusRowCombination(m0, b, alpha, n, scale);
+        expect(relErr(mean, ref)).toBeLessThan(1e-14);
+        expect(
+          sameBits(
+            b,
+            bt.map((v) => scale * v),
+          ),
+        ).toBe(true);
+        expect(mean).not.toBe(m0);
+      }
     }
   });
 });
