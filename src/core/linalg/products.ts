@@ -2,7 +2,8 @@
  * Fast dense products for the posterior formulas (Tarantola 2005, §3.2, eq. numbers memory):
  * B = Cm Gᵀ, S = G B + Cd (symmetric), W = L⁻¹ Bᵀ and the posterior variances Cm_ii − Σ_k W_ki².
  * All run on the register-blocked NT kernel of ./kernels.ts (C += A Bᵀ with both operands read
- * along rows); plain products transpose their right operand once first (O(kn) against O(mkn)).
+ * along rows); plain products transpose their right operand once first (O(kn) against O(mkn)). The mean's
+ * base + Bᵀᵀ w ({@link plusRowCombination}) is a plain loop, four rows per pass.
  */
 import { matrix, type Matrix } from './matrix.ts';
 import { transposeBlock } from './kernels.ts';
